@@ -1,0 +1,63 @@
+//! The library's one error type. Each variant keeps its cause and says where; the binary
+//! prints the chain and picks the exit code from [`Error::is_bad_input`].
+
+use std::path::PathBuf;
+
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// The scene file cannot be understood; `line` and `column` count from 1.
+    #[error("{}:{line}:{column}: {message}", path.display())]
+    Scene { path: PathBuf, line: usize, column: usize, message: String },
+
+    #[error("cannot read {}", path.display())]
+    Read {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+
+    #[error("cannot write {}", path.display())]
+    Write {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+
+    #[error("the scene has no standpoint named \"{name}\" (it has: {available})")]
+    UnknownStandpoint { name: String, available: String },
+
+    #[error("the scene names no standpoint: add one to its `standpoints` or give --at X,Y")]
+    NoStandpoint,
+
+    /// A setting outside what can be drawn (an image size, a tolerance, a line weight).
+    #[error("{0}")]
+    Setting(String),
+
+    /// Refused before anything was allocated.
+    #[error("an image of {width}x{height} pixels is {reason}")]
+    ImageSize { width: u64, height: u64, reason: String },
+
+    #[error("PNG encoding failed")]
+    Png(#[from] png::EncodingError),
+}
+
+impl Error {
+    /// Whether the user can fix this by changing their input or options (exit code 2),
+    /// as opposed to a failure of the machine or of pansite (exit code 1).
+    pub fn is_bad_input(&self) -> bool {
+        match self {
+            Error::Scene { .. }
+            | Error::UnknownStandpoint { .. }
+            | Error::NoStandpoint
+            | Error::Setting(_)
+            | Error::ImageSize { .. } => true,
+            Error::Read { source, .. } => matches!(
+                source.kind(),
+                std::io::ErrorKind::NotFound | std::io::ErrorKind::IsADirectory
+            ),
+            Error::Write { .. } | Error::Png(_) => false,
+        }
+    }
+}
+
+pub type Result<T, E = Error> = std::result::Result<T, E>;

@@ -1,0 +1,93 @@
+//! The equirectangular mapping (Snyder, "Map Projections: A Working Manual", USGS
+//! Professional Paper 1395, 1987, section 12, equations 12-1 and 12-2 with the standard
+//! parallel at the equator: `x = R (lon - lon0)`, `y = R lat`), scaled to pixels.
+//!
+//! Image conventions: the centre column is the heading; relative azimuth `r` in `[-pi, pi)`
+//! grows to the right; the top row is the zenith. In pixel-edge coordinates (pixel centres at
+//! `+0.5`): `x = (r + pi) / (2 pi) * W`, `y = (pi/2 - e) / pi * H`.
+
+use std::f64::consts::{FRAC_PI_2, PI, TAU};
+
+/// A point on the image in pixels: `x` grows to the right, `y` downwards.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct ImagePoint {
+    pub x: f64,
+    pub y: f64,
+}
+
+impl ImagePoint {
+    pub fn new(x: f64, y: f64) -> ImagePoint {
+        ImagePoint { x, y }
+    }
+}
+
+/// The mapping from (relative azimuth, elevation) to the pixels of a `width` x `height`
+/// image covering the whole sphere.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Equirect {
+    width: f64,
+    height: f64,
+}
+
+impl Equirect {
+    /// Any positive size; `width = 2 height` keeps angles equal in both directions.
+    pub fn from_size_px(width: f64, height: f64) -> Equirect {
+        Equirect { width, height }
+    }
+
+    pub fn width(&self) -> f64 {
+        self.width
+    }
+
+    pub fn height(&self) -> f64 {
+        self.height
+    }
+
+    /// Pixels per radian of azimuth.
+    pub fn x_scale(&self) -> f64 {
+        self.width / TAU
+    }
+
+    /// Pixels per radian of elevation.
+    pub fn y_scale(&self) -> f64 {
+        self.height / PI
+    }
+
+    /// Image point of a relative azimuth and an elevation (radians). An azimuth of exactly
+    /// `pi` lands on the right border, `-pi` on the left: callers choose the side.
+    pub fn to_image(&self, relative_azimuth: f64, elevation: f64) -> ImagePoint {
+        ImagePoint {
+            x: (relative_azimuth + PI) * self.x_scale(),
+            y: (FRAC_PI_2 - elevation) * self.y_scale(),
+        }
+    }
+
+    /// Relative azimuth and elevation (radians) of an image point.
+    pub fn to_angles(&self, p: ImagePoint) -> (f64, f64) {
+        (p.x / self.x_scale() - PI, FRAC_PI_2 - p.y / self.y_scale())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn issue_formula_in_degrees() {
+        let map = Equirect::from_size_px(4096.0, 2048.0);
+        let (r, e) = (37.5f64, -12.25f64);
+        let p = map.to_image(r.to_radians(), e.to_radians());
+        assert!((p.x - (r + 180.0) / 360.0 * 4096.0).abs() < 1e-9);
+        assert!((p.y - (90.0 - e) / 180.0 * 2048.0).abs() < 1e-9);
+        let (r2, e2) = map.to_angles(p);
+        assert!((r2.to_degrees() - r).abs() < 1e-12 && (e2.to_degrees() - e).abs() < 1e-12);
+    }
+
+    #[test]
+    fn heading_is_the_centre_column_and_the_horizon_the_middle_row() {
+        let map = Equirect::from_size_px(1000.0, 500.0);
+        assert_eq!(map.to_image(0.0, 0.0), ImagePoint::new(500.0, 250.0));
+        assert_eq!(map.to_image(-PI, FRAC_PI_2), ImagePoint::new(0.0, 0.0));
+        assert_eq!(map.to_image(PI, -FRAC_PI_2), ImagePoint::new(1000.0, 500.0));
+    }
+}

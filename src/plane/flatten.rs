@@ -1,0 +1,445 @@
+//! Flattening a curve on the sphere into polylines on the equirectangular image.
+//!
+//! **Tolerance** means one thing throughout pansite: the largest distance, in output pixels,
+//! between the true image of a curve and the polyline drawn for it ([`DEFAULT_TOLERANCE_PX`]).
+//!
+//! The method:
+//! 1. *Cut* the curve where its image is discontinuous or hard to follow: at the seam (the
+//!    meridian behind the viewer, found in closed form by [`SphereCurve::meridian_crossings`]),
+//!    at passes through a pole, and where it comes near a pole (so that the fast sweep of
+//!    azimuth there lies at the end of a piece, where it is sampled). A curve that comes within
+//!    the tolerance of a pole is treated as passing through it: its horizontal offset at the
+//!    nearest point is removed (which moves no point by more than the tolerance), so the
+//!    image runs up to the border row and continues from the column 180 degrees away instead
+//!    of drawing a sweep along the border.
+//! 2. *Refine* each piece recursively. For a chord from parameter `a` to `b` the error is
+//!    estimated as the larger of (i) the distance of the curve's midpoint from the chord and
+//!    (ii) the bound `max |n . P''| (b - a)^2 / 8`, where `P''` is the exact second derivative
+//!    of the image point with respect to the parameter, sampled at both ends and the middle,
+//!    and `n` the chord's normal. (ii) is the standard remainder bound of linear
+//!    interpolation, `|f(t) - chord| <= max|f''| (t - a)(b - t) / 2`, applied to the
+//!    component across the chord. A chord whose error exceeds the tolerance is split into
+//!    `ceil(sqrt(error / tolerance))` equal parts (the error falls with the square of the
+//!    span), which keeps the vertex count near the minimum for the tolerance.
+//!
+//! Within a piece the azimuth never crosses the seam, so every sample is unwrapped against the
+//! azimuth at the piece's middle; a piece ending on the seam ends exactly on the left or
+//! right border, and the two pieces on either side of a seam crossing share the same `t` and
+//! so the same row.
+
+use super::{Equirect, ImagePoint, PolylineSet};
+use crate::sphere::SphereCurve;
+use nalgebra::{Vector2, Vector3};
+use std::f64::consts::{FRAC_PI_4, PI, TAU};
+
+/// The default tolerance, in output pixels.
+pub const DEFAULT_TOLERANCE_PX: f64 = 0.1;
+
+/// Pieces longer than this in parameter (radians of arc for great circles) are cut in equal
+/// parts first, so that no single chord test spans an inflection on both sides.
+const MAX_PIECE_PARAMETER: f64 = FRAC_PI_4;
+
+/// A curve passing nearer than this to a pole (radians) is cut at its nearest point.
+const NEAR_POLE: f64 = 0.35;
+
+/// Recursion and work limits, reached only by pathological input.
+const MAX_DEPTH: u32 = 60;
+const MAX_PARTS: usize = 16;
+const MAX_SAMPLES_PER_CURVE: usize = 1 << 20;
+
+/// Flattens curves for one image at one tolerance.
+#[derive(Clone, Copy, Debug)]
+pub struct Flattener {
+    map: Equirect,
+    tolerance: f64,
+}
+
+/// Flattens one curve; a convenience over [`Flattener`].
+pub fn flatten(curve: &SphereCurve, map: Equirect, tolerance_px: f64, out: &mut PolylineSet) {
+    Flattener::new(map, tolerance_px).flatten(curve, out);
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
+enum Cut {
+    // Ordered by priority when two cuts fall on the same parameter.
+    Plain,
+    Seam,
+    Pole,
+}
+
+#[derive(Clone, Copy, Debug)]
+struct Sample {
+    t: f64,
+    at: ImagePoint,
+    /// Second derivative of the image point with respect to `t`; `None` at a pole.
+    curvature: Option<Vector2<f64>>,
+}
+
+/// What one piece of a curve needs while it is refined.
+struct Piece<'a> {
+    curve: &'a SphereCurve,
+    /// Azimuth at the middle of the piece: every sample is unwrapped against it.
+    reference: f64,
+    samples_left: usize,
+}
+
+impl Flattener {
+    /// `tolerance_px` must be positive and finite (validated by the caller's settings).
+    pub fn new(map: Equirect, tolerance_px: f64) -> Flattener {
+        Flattener { map, tolerance: tolerance_px }
+    }
+
+    pub fn tolerance(&self) -> f64 {
+        self.tolerance
+    }
+
+    /// Appends the image of `curve` to `out`: one polyline for each stretch between the
+    /// seam and pole crossings.
+    pub fn flatten(&self, curve: &SphereCurve, out: &mut PolylineSet) {
+        let (curve, cuts) = self.cuts(curve);
+        let on_seam_plane = curve.lies_in_plane(&Vector3::x());
+        let mut budget = MAX_SAMPLES_PER_CURVE;
+        let mut run_on_seam = false;
+        for pair in cuts.windows(2) {
+            let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
+            let middle = curve.position((ta + tb) / 2.0);
+            let lies_on_seam = on_seam_plane && middle.y < 0.0;
+            let reference = if lies_on_seam { -PI } else { middle.x.atan2(middle.y) };
+            let mut piece = Piece { curve: &curve, reference, samples_left: budget };
+            let a = self.end_sample(&mut piece, ta, cut_a, true);
+            let b = self.end_sample(&mut piece, tb, cut_b, false);
+            // Plain cuts only help the refinement; the polyline goes on through them.
+            if ta == curve.t0 || cut_a != Cut::Plain {
+                if run_on_seam {
+                    self.copy_to_right_border(out);
+                }
+                out.move_to(a.at);
+                run_on_seam = lies_on_seam;
+            }
+            self.refine(&mut piece, &a, &b, 0, out);
+            budget = piece.samples_left;
+        }
+        if run_on_seam {
+            self.copy_to_right_border(out);
+        }
+    }
+
+    /// A polyline drawn along the seam belongs to both borders: repeat the last one (drawn
+    /// on the left border) on the right border.
+    fn copy_to_right_border(&self, out: &mut PolylineSet) {
+        let copy: Vec<ImagePoint> = out
+            .last()
+            .map(|line| line.iter().map(|p| ImagePoint::new(self.map.width(), p.y)).collect())
+            .unwrap_or_default();
+        out.push(&copy);
+    }
+
+    /// The cut parameters of a curve, sorted, with their kinds, and the curve to flatten
+    /// (shifted onto a pole it passes within the tolerance of).
+    fn cuts(&self, curve: &SphereCurve) -> (SphereCurve, Vec<(f64, Cut)>) {
+        let pole_tolerance = self.tolerance / self.map.y_scale();
+        let mut curve = *curve;
+        let mut cuts = vec![(curve.t0, Cut::Plain), (curve.t1, Cut::Plain)];
+        for zenith in [true, false] {
+            for (t, distance) in curve.pole_approaches(zenith, NEAR_POLE) {
+                if distance < pole_tolerance {
+                    let p = curve.position(t);
+                    curve.centre -= Vector3::new(p.x, p.y, 0.0);
+                    cuts.push((t, Cut::Pole));
+                } else {
+                    cuts.push((t, Cut::Plain));
+                }
+            }
+        }
+        for &t in curve.meridian_crossings(PI).as_slice() {
+            cuts.push((t, Cut::Seam));
+        }
+        cuts.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
+        // Merge cuts closer than a whisker, keeping the most significant kind.
+        let whisker = (curve.t1 - curve.t0) * 1e-12;
+        let mut merged: Vec<(f64, Cut)> = Vec::with_capacity(cuts.len() + 4);
+        for (t, cut) in cuts {
+            match merged.last_mut() {
+                Some(last) if t - last.0 <= whisker => last.1 = last.1.max(cut),
+                _ => merged.push((t, cut)),
+            }
+        }
+        // The ends of the curve stay the ends even when a cut merged into them.
+        if let Some(first) = merged.first_mut() {
+            first.0 = curve.t0;
+        }
+        if let Some(last) = merged.last_mut() {
+            last.0 = curve.t1;
+        }
+        let mut cuts = Vec::with_capacity(merged.len() * 2);
+        for pair in merged.windows(2) {
+            cuts.push(pair[0]);
+            let parts = ((pair[1].0 - pair[0].0) / MAX_PIECE_PARAMETER).ceil().max(1.0) as usize;
+            for k in 1..parts {
+                let t = pair[0].0 + (pair[1].0 - pair[0].0) * k as f64 / parts as f64;
+                cuts.push((t, Cut::Plain));
+            }
+        }
+        cuts.extend(merged.last().copied());
+        (curve, cuts)
+    }
+
+    /// The sample at one end of a piece (`at_start` says which).
+    fn end_sample(&self, piece: &mut Piece, t: f64, cut: Cut, at_start: bool) -> Sample {
+        match cut {
+            Cut::Plain => self.sample(piece, t),
+            Cut::Seam => {
+                let mut s = self.sample(piece, t);
+                s.at.x = if piece.reference < 0.0 { 0.0 } else { self.map.width() };
+                s
+            }
+            Cut::Pole => {
+                // At the pole the azimuth is the limit along the curve: the horizontal part of
+                // the position is h(t) ~ h'(t*) (t - t*), so it points along -h' before the
+                // pole and along h' after it.
+                let velocity = piece.curve.velocity(t);
+                let sign = if at_start { 1.0 } else { -1.0 };
+                let (hx, hy) = (velocity.x * sign, velocity.y * sign);
+                let azimuth = if hx.hypot(hy) > 1e-12 * velocity.norm() {
+                    unwrap(hx.atan2(hy), piece.reference)
+                } else {
+                    piece.reference
+                };
+                let zenith = piece.curve.position(t).z > 0.0;
+                let elevation = if zenith { PI / 2.0 } else { -PI / 2.0 };
+                Sample { t, at: self.map.to_image(azimuth, elevation), curvature: None }
+            }
+        }
+    }
+
+    /// The image point at `t` and its exact second derivative.
+    fn sample(&self, piece: &mut Piece, t: f64) -> Sample {
+        piece.samples_left = piece.samples_left.saturating_sub(1);
+        let curve = piece.curve;
+        let (sin, cos) = t.sin_cos();
+        let p = curve.centre + curve.u * cos + curve.v * sin;
+        let d1 = curve.v * cos - curve.u * sin;
+        let d2 = -(curve.u * cos + curve.v * sin);
+        let rho2 = p.x * p.x + p.y * p.y;
+        let rho = rho2.sqrt();
+        let azimuth = unwrap(p.x.atan2(p.y), piece.reference);
+        let elevation = p.z.atan2(rho);
+        let at = self.map.to_image(azimuth, elevation);
+        let curvature = (rho2 > 1e-300 * p.norm_squared())
+            .then(|| self.image_second_derivative(&p, &d1, &d2, rho))
+            .filter(|c| c.x.is_finite() && c.y.is_finite());
+        Sample { t, at, curvature }
+    }
+
+    /// `d2/dt2` of the image point of `P(t)`, from `P`, `P'` and `P''`, in pixels.
+    ///
+    /// With `lambda = atan2(x, y)`, `rho = hypot(x, y)`, `phi = atan2(z, rho)`:
+    /// `lambda' = w / rho^2` with `w = y x' - x y'`, so
+    /// `lambda'' = (y x'' - x y'') / rho^2 - 2 w (x x' + y y') / rho^4`;
+    /// `phi' = N / M` with `N = rho z' - z rho'`, `M = rho^2 + z^2`, so
+    /// `phi'' = (N' M - N M') / M^2`, `N' = rho z'' - z rho''`, `M' = 2 (rho rho' + z z')`,
+    /// where `rho' = (x x' + y y') / rho` and `rho'' = (x'^2 + y'^2 + x x'' + y y'' - rho'^2) / rho`.
+    fn image_second_derivative(
+        &self,
+        p: &Vector3<f64>,
+        d1: &Vector3<f64>,
+        d2: &Vector3<f64>,
+        rho: f64,
+    ) -> Vector2<f64> {
+        let rho2 = rho * rho;
+        let w = p.y * d1.x - p.x * d1.y;
+        let radial = p.x * d1.x + p.y * d1.y;
+        let azimuth_dd = (p.y * d2.x - p.x * d2.y) / rho2 - 2.0 * w * radial / (rho2 * rho2);
+        let rho_d = radial / rho;
+        let rho_dd = (d1.x * d1.x + d1.y * d1.y + p.x * d2.x + p.y * d2.y - rho_d * rho_d) / rho;
+        let n = rho * d1.z - p.z * rho_d;
+        let m = rho2 + p.z * p.z;
+        let n_d = rho * d2.z - p.z * rho_dd;
+        let m_d = 2.0 * (rho * rho_d + p.z * d1.z);
+        let elevation_dd = (n_d * m - n * m_d) / (m * m);
+        Vector2::new(azimuth_dd * self.map.x_scale(), -elevation_dd * self.map.y_scale())
+    }
+
+    /// Appends the vertices after `a` up to and including `b`.
+    fn refine(&self, piece: &mut Piece, a: &Sample, b: &Sample, depth: u32, out: &mut PolylineSet) {
+        let middle = self.sample(piece, (a.t + b.t) / 2.0);
+        let error = self.chord_error(a, &middle, b);
+        if error <= self.tolerance || depth >= MAX_DEPTH || piece.samples_left == 0 {
+            out.line_to(b.at);
+            return;
+        }
+        let parts = ((error / self.tolerance).sqrt().ceil() as usize).clamp(2, MAX_PARTS);
+        if parts == 2 {
+            self.refine(piece, a, &middle, depth + 1, out);
+            self.refine(piece, &middle, b, depth + 1, out);
+            return;
+        }
+        let mut previous = *a;
+        for k in 1..parts {
+            let next = self.sample(piece, a.t + (b.t - a.t) * k as f64 / parts as f64);
+            self.refine(piece, &previous, &next, depth + 1, out);
+            previous = next;
+        }
+        self.refine(piece, &previous, b, depth + 1, out);
+    }
+
+    /// The estimated largest distance between the curve and the chord from `a` to `b`.
+    fn chord_error(&self, a: &Sample, middle: &Sample, b: &Sample) -> f64 {
+        let chord = Vector2::new(b.at.x - a.at.x, b.at.y - a.at.y);
+        let length = chord.norm();
+        let to_middle = Vector2::new(middle.at.x - a.at.x, middle.at.y - a.at.y);
+        // Distance across the chord, or plain distance for a chord of no length.
+        let across = |v: &Vector2<f64>| {
+            if length > 1e-12 {
+                (chord.x * v.y - chord.y * v.x).abs() / length
+            } else {
+                v.norm()
+            }
+        };
+        let span = b.t - a.t;
+        let bound = [a.curvature, middle.curvature, b.curvature]
+            .iter()
+            .flatten()
+            .map(|c| across(c))
+            .fold(0.0, f64::max)
+            * span
+            * span
+            / 8.0;
+        across(&to_middle).max(bound)
+    }
+}
+
+/// `azimuth` moved by whole turns into `[reference - pi, reference + pi]`, then into
+/// `[-pi, pi]` (a reference on the seam keeps its side).
+fn unwrap(azimuth: f64, reference: f64) -> f64 {
+    let unwrapped = reference + (azimuth - reference + PI).rem_euclid(TAU) - PI;
+    unwrapped.clamp(-PI, PI)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::sphere::azimuth_elevation;
+
+    fn map() -> Equirect {
+        Equirect::from_size_px(4096.0, 2048.0)
+    }
+
+    fn lines(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
+        let mut out = PolylineSet::new();
+        flatten(curve, map(), DEFAULT_TOLERANCE_PX, &mut out);
+        out.iter().map(|l| l.to_vec()).collect()
+    }
+
+    fn arc(a: [f64; 3], b: [f64; 3]) -> SphereCurve {
+        SphereCurve::great_arc(&Vector3::from(a), &Vector3::from(b)).unwrap()
+    }
+
+    #[test]
+    fn unwrap_keeps_the_side_of_the_reference() {
+        assert_eq!(unwrap(-PI, 3.0), PI);
+        assert_eq!(unwrap(PI, -3.0), -PI);
+        assert!((unwrap(0.5, 0.4) - 0.5).abs() < 1e-15);
+    }
+
+    #[test]
+    fn second_derivative_matches_finite_differences() {
+        let curve = SphereCurve::ellipse_arc(
+            Vector3::new(1.0, 4.0, 2.0),
+            Vector3::new(2.0, 0.5, 0.0),
+            Vector3::new(0.0, 1.0, 1.5),
+            0.0,
+            TAU,
+        );
+        let flattener = Flattener::new(map(), 0.1);
+        for t in [0.1, 1.0, 2.5, 4.0] {
+            let mut piece = Piece { curve: &curve, reference: 0.0, samples_left: 100 };
+            let h = 1e-4;
+            let s = |t| flattener.sample(&mut Piece { curve: &curve, reference: 0.0, samples_left: 9 }, t).at;
+            let (m, p0, p) = (s(t - h), s(t), s(t + h));
+            let fd = Vector2::new(m.x - 2.0 * p0.x + p.x, m.y - 2.0 * p0.y + p.y) / (h * h);
+            let exact = flattener.sample(&mut piece, t).curvature.unwrap();
+            assert!((fd - exact).norm() <= 1e-4 * exact.norm().max(1.0), "t {t}: {fd} vs {exact}");
+        }
+    }
+
+    #[test]
+    fn vertical_edge_is_a_vertical_line() {
+        // An edge straight ahead-right, from below the eye to above it.
+        let pieces = lines(&arc([3.0, 4.0, -1.5], [3.0, 4.0, 8.0]));
+        assert_eq!(pieces.len(), 1);
+        let expected_x = (3f64.atan2(4.0) + PI) / TAU * 4096.0;
+        for p in &pieces[0] {
+            assert!((p.x - expected_x).abs() < 1e-9, "{p:?}");
+        }
+        // A straight image needs only its ends, plus the cut every MAX_PIECE_PARAMETER.
+        assert!(pieces[0].len() <= 3, "{:?}", pieces[0]);
+    }
+
+    #[test]
+    fn seam_crossing_ends_on_both_borders_at_one_row() {
+        let pieces = lines(&arc([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5]));
+        assert_eq!(pieces.len(), 2);
+        let end_of_first = *pieces[0].last().unwrap();
+        let start_of_second = pieces[1][0];
+        let borders = [end_of_first.x, start_of_second.x];
+        assert!(borders.contains(&0.0) && borders.contains(&4096.0), "{borders:?}");
+        assert!((end_of_first.y - start_of_second.y).abs() < 0.01);
+    }
+
+    #[test]
+    fn exact_pole_pass_runs_to_the_border_and_continues_opposite() {
+        // Over the head from ahead-right to behind-left, through the zenith.
+        let pieces = lines(&arc([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0]));
+        assert_eq!(pieces.len(), 2);
+        let top_a = *pieces[0].last().unwrap();
+        let top_b = pieces[1][0];
+        assert_eq!((top_a.y, top_b.y), (0.0, 0.0));
+        assert!(((top_a.x - top_b.x).abs() - 2048.0).abs() < 1e-9, "{top_a:?} {top_b:?}");
+        // Both pieces are vertical lines.
+        for piece in &pieces {
+            assert!(piece.iter().all(|p| (p.x - piece[0].x).abs() < 1e-9), "{piece:?}");
+        }
+    }
+
+    #[test]
+    fn near_pole_pass_within_tolerance_behaves_like_an_exact_one() {
+        let miss = 1e-5; // far below 0.1 px at 2048 rows (0.1 px is about 1.5e-4 rad)
+        let pieces = lines(&arc([miss, 1.0, 1.0], [miss, -1.0, 1.0]));
+        assert_eq!(pieces.len(), 2, "{pieces:?}");
+        assert_eq!(pieces[0].last().unwrap().y, 0.0);
+        assert!(pieces.iter().flatten().all(|p| (p.x - 2048.0).abs() < 0.2 || p.x.abs() < 0.2 || (p.x - 4096.0).abs() < 0.2));
+    }
+
+    #[test]
+    fn near_pole_pass_beyond_tolerance_sweeps_below_the_border() {
+        let miss = 0.02; // about 13 px from the zenith
+        let pieces = lines(&arc([miss, 1.0, 1.0], [miss, -1.0, 1.0]));
+        let top = pieces.iter().flatten().map(|p| p.y).fold(f64::INFINITY, f64::min);
+        let expected = miss.atan() * 2048.0 / PI;
+        assert!((top - expected).abs() < 0.1, "{top} vs {expected}");
+    }
+
+    #[test]
+    fn piece_on_the_seam_is_drawn_on_both_borders() {
+        // Straight behind the viewer, from the ground up.
+        let pieces = lines(&arc([0.0, -4.0, -1.6], [0.0, -4.0, 3.0]));
+        assert_eq!(pieces.len(), 2);
+        assert!(pieces[0].iter().all(|p| p.x == 0.0));
+        assert!(pieces[1].iter().all(|p| p.x == 4096.0));
+    }
+
+    #[test]
+    fn every_vertex_lies_on_the_curve() {
+        let curve = arc([5.0, 2.0, -1.0], [-3.0, 6.0, 4.0]);
+        let normal = curve.u.cross(&curve.v);
+        for piece in lines(&curve) {
+            for p in piece {
+                let (r, e) = map().to_angles(p);
+                let d = crate::sphere::direction_from_azimuth_elevation(r, e);
+                assert!(normal.dot(&d).abs() < 1e-12);
+                let _ = azimuth_elevation(&d);
+            }
+        }
+    }
+}

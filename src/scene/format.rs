@@ -1,0 +1,166 @@
+//! The RON scene format, as serde types. Validation that can name a position in the file
+//! happens here, while deserialising: non-finite numbers, non-positive sizes and too-short
+//! point lists are rejected by the number and list types below, so the RON parser reports the
+//! line and column.
+//!
+//! ```ron
+//! Scene(
+//!     name: "Tollgate Square",
+//!     standpoints: [(name: "fountain", x: 0, y: -6, heading: 20)],
+//!     items: [
+//!         Block(label: "corn hall", at: Corner(0, 10), width: 24, depth: 12, height: 9.5),
+//!         Polyline(points: [(-30, -3, 0), (30, -3, 0)]),
+//!     ],
+//! )
+//! ```
+
+use serde::{Deserialize, Deserializer};
+
+/// Any finite number (NaN and infinities are refused where they are written).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Finite(pub f64);
+
+impl<'de> Deserialize<'de> for Finite {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let value = f64::deserialize(deserializer)?;
+        if value.is_finite() {
+            Ok(Finite(value))
+        } else {
+            Err(serde::de::Error::custom(format!("expected a finite number, found {value}")))
+        }
+    }
+}
+
+/// A finite number greater than zero (a size).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Positive(pub f64);
+
+impl<'de> Deserialize<'de> for Positive {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let Finite(value) = Finite::deserialize(deserializer)?;
+        if value > 0.0 {
+            Ok(Positive(value))
+        } else {
+            Err(serde::de::Error::custom(format!("expected a size greater than zero, found {value}")))
+        }
+    }
+}
+
+/// A finite number at least zero.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct NonNegative(pub f64);
+
+impl<'de> Deserialize<'de> for NonNegative {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let Finite(value) = Finite::deserialize(deserializer)?;
+        if value >= 0.0 {
+            Ok(NonNegative(value))
+        } else {
+            Err(serde::de::Error::custom(format!("expected zero or more, found {value}")))
+        }
+    }
+}
+
+/// A polyline's vertices: at least two.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Vertices(pub Vec<(Finite, Finite, Finite)>);
+
+impl<'de> Deserialize<'de> for Vertices {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let points = Vec::<(Finite, Finite, Finite)>::deserialize(deserializer)?;
+        if points.len() >= 2 {
+            Ok(Vertices(points))
+        } else {
+            Err(serde::de::Error::custom(format!(
+                "expected at least two points (x, y, z), found {}",
+                points.len()
+            )))
+        }
+    }
+}
+
+fn default_eye_height() -> NonNegative {
+    NonNegative(super::DEFAULT_EYE_HEIGHT)
+}
+
+fn default_facing() -> Finite {
+    Finite(180.0)
+}
+
+fn zero() -> Finite {
+    Finite(0.0)
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(rename = "Scene", deny_unknown_fields)]
+pub struct SceneFile {
+    #[serde(default)]
+    pub name: Option<String>,
+    #[serde(default)]
+    pub standpoints: Vec<StandpointSpec>,
+    pub items: Vec<ItemSpec>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(rename = "Standpoint", deny_unknown_fields)]
+pub struct StandpointSpec {
+    pub name: String,
+    pub x: Finite,
+    pub y: Finite,
+    #[serde(default = "zero")]
+    pub ground: Finite,
+    #[serde(default = "default_eye_height")]
+    pub eye_height: NonNegative,
+    /// Degrees clockwise from north.
+    #[serde(default = "zero")]
+    pub heading: Finite,
+    #[serde(default = "zero")]
+    pub pitch: Finite,
+    #[serde(default = "zero")]
+    pub roll: Finite,
+}
+
+#[derive(Debug, Deserialize)]
+pub enum ItemSpec {
+    Block(BlockSpec),
+    Polyline(PolylineSpec),
+}
+
+/// Where a block's plan is anchored: its front-left corner (as seen by someone facing the
+/// front) or the centre of its plan.
+#[derive(Debug, Deserialize)]
+pub enum Anchor {
+    Corner(Finite, Finite),
+    Centre(Finite, Finite),
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct BlockSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    pub at: Anchor,
+    /// Along the front, metres.
+    pub width: Positive,
+    /// From the front backwards, metres.
+    pub depth: Positive,
+    pub height: Positive,
+    /// The azimuth (degrees) the front wall faces, outwards; 180 = south-facing, which puts
+    /// the width along +x and the depth along +y.
+    #[serde(default = "default_facing")]
+    pub facing: Finite,
+    /// Height of the block's base, metres.
+    #[serde(default = "zero")]
+    pub base: Finite,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PolylineSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    pub points: Vertices,
+    /// Join the last point back to the first.
+    #[serde(default)]
+    pub closed: bool,
+}

@@ -1,0 +1,136 @@
+//! Reading a RON scene file into a [`Site`].
+
+use super::expand::expand;
+use super::format::SceneFile;
+use super::Site;
+use crate::error::{Error, Result};
+use ron::extensions::Extensions;
+use std::path::Path;
+
+/// Reads and resolves a scene file.
+pub fn load_scene(path: &Path) -> Result<Site> {
+    let bytes =
+        std::fs::read(path).map_err(|source| Error::Read { path: path.to_owned(), source })?;
+    let fallback = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_default();
+    parse_scene(&bytes, path, &fallback)
+}
+
+/// Parses scene text (`path` is only used in messages; `fallback_name` names a scene that
+/// has no `name`).
+pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Site> {
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
+        Error::Scene {
+            path: path.to_owned(),
+            line,
+            column,
+            message: "expected UTF-8 text (this looks like a binary file)".to_owned(),
+        }
+    })?;
+    // A byte-order mark is legal UTF-8 but not RON.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    if text.trim().is_empty() {
+        return Err(Error::Scene {
+            path: path.to_owned(),
+            line: 1,
+            column: 1,
+            message: "the file is empty; expected a scene: Scene(items: [...])".to_owned(),
+        });
+    }
+    let options = ron::Options::default()
+        .with_default_extension(Extensions::IMPLICIT_SOME | Extensions::UNWRAP_VARIANT_NEWTYPES);
+    let file: SceneFile = options.from_str(text).map_err(|e| Error::Scene {
+        path: path.to_owned(),
+        line: e.span.start.line,
+        column: e.span.start.col,
+        message: e.code.to_string(),
+    })?;
+    Ok(expand(file, fallback_name))
+}
+
+/// Line and column (from 1, counting characters) just after `prefix`.
+fn line_and_column(prefix: &[u8]) -> (usize, usize) {
+    let text = String::from_utf8_lossy(prefix);
+    let line = text.matches('\n').count() + 1;
+    let column = text.rsplit('\n').next().map_or(0, |last| last.chars().count()) + 1;
+    (line, column)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str) -> Result<Site> {
+        parse_scene(text.as_bytes(), Path::new("test.ron"), "test")
+    }
+
+    fn error_at(text: &str) -> (usize, usize, String) {
+        match parse(text) {
+            Err(Error::Scene { line, column, message, .. }) => (line, column, message),
+            other => panic!("expected a scene error, got {other:?}"),
+        }
+    }
+
+    #[test]
+    fn minimal_scene_with_integers_for_numbers() {
+        let site = parse(
+            "Scene(standpoints: [(name: \"a\", x: 1, y: 2)], items: [\n\
+             Block(label: \"b\", at: Corner(0, 0), width: 4, depth: 3, height: 2),\n\
+             Polyline(points: [(0, 0, 0), (1, 1, 1), (2, 0, 0)], closed: true)])",
+        )
+        .unwrap();
+        assert_eq!(site.name, "test");
+        assert_eq!(site.standpoints[0].eye_height, 1.6);
+        assert_eq!(site.items.len(), 2);
+        assert_eq!(site.edges.len(), 12 + 3);
+        assert_eq!(site.describe_item(crate::scene::ItemId(0)), "block \"b\" (item 1)");
+    }
+
+    #[test]
+    fn non_finite_numbers_are_refused_where_they_stand() {
+        let (line, column, message) =
+            error_at("Scene(items: [\n  Polyline(points: [(0, 0, 0), (NaN, 1, 1)])])");
+        assert_eq!(line, 2);
+        assert!(column > 20, "column {column}");
+        assert!(message.contains("finite"), "{message}");
+        let (_, _, message) = error_at("Scene(items: [Polyline(points: [(0, 0, inf), (1, 1, 1)])])");
+        assert!(message.contains("finite"), "{message}");
+    }
+
+    #[test]
+    fn unknown_fields_and_wrong_types_are_explained() {
+        let (line, _, message) = error_at("Scene(items: [\n\nBlock(at: Corner(0, 0), widht: 4)])");
+        assert_eq!(line, 3);
+        assert!(message.contains("widht"), "{message}");
+        let (_, _, message) =
+            error_at("Scene(items: [Block(at: Corner(0, 0), width: \"4\", depth: 1, height: 1)])");
+        assert!(message.to_lowercase().contains("expected"), "{message}");
+    }
+
+    #[test]
+    fn sizes_must_be_positive() {
+        let (_, _, message) =
+            error_at("Scene(items: [Block(at: Corner(0, 0), width: 0, depth: 1, height: 1)])");
+        assert!(message.contains("greater than zero"), "{message}");
+    }
+
+    #[test]
+    fn empty_binary_and_bom_files() {
+        assert!(error_at("  \n").2.contains("empty"));
+        let garbage = [b'S', b'c', 0xff, 0xfe, 0x00];
+        match parse_scene(&garbage, Path::new("x.ron"), "x") {
+            Err(Error::Scene { line: 1, column: 3, message, .. }) => {
+                assert!(message.contains("UTF-8"))
+            }
+            other => panic!("{other:?}"),
+        }
+        let with_bom = "\u{feff}Scene(items: [])\r\n";
+        assert!(parse(with_bom).is_ok());
+    }
+
+    #[test]
+    fn truncated_file_names_the_end() {
+        let (line, _, _) = error_at("Scene(items: [\n  Block(at: Corner(0, 0), width: 4,");
+        assert_eq!(line, 2);
+    }
+}

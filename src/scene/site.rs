@@ -1,0 +1,118 @@
+//! The resolved site model.
+
+use nalgebra::{Point3, Vector3};
+
+/// Eye height of a standing adult, metres (common practice; it lies between the usual
+/// standing eye heights of adult men and women).
+pub const DEFAULT_EYE_HEIGHT: f64 = 1.6;
+
+/// Where the viewer stands and which way the centre of the panorama looks.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Standpoint {
+    pub name: String,
+    /// Plan position, metres east and north.
+    pub x: f64,
+    pub y: f64,
+    /// Height of the ground under the viewer, metres.
+    pub ground: f64,
+    /// Eye height above that ground, metres.
+    pub eye_height: f64,
+    /// Azimuth at the centre of the image, radians clockwise from north.
+    pub heading: f64,
+    /// Radians; positive looks up.
+    pub pitch: f64,
+    /// Radians; positive turns the viewer's up towards their right.
+    pub roll: f64,
+}
+
+impl Standpoint {
+    /// A standpoint on level ground at `z = 0`, angles in degrees.
+    pub fn from_degrees(
+        name: &str,
+        x: f64,
+        y: f64,
+        eye_height: f64,
+        heading_deg: f64,
+        pitch_deg: f64,
+        roll_deg: f64,
+    ) -> Standpoint {
+        Standpoint {
+            name: name.to_owned(),
+            x,
+            y,
+            ground: 0.0,
+            eye_height,
+            heading: heading_deg.to_radians(),
+            pitch: pitch_deg.to_radians(),
+            roll: roll_deg.to_radians(),
+        }
+    }
+
+    /// The eye in site coordinates.
+    pub fn eye(&self) -> Point3<f64> {
+        Point3::new(self.x, self.y, self.ground + self.eye_height)
+    }
+}
+
+/// A drawable edge in site coordinates.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum SiteCurve {
+    Segment { start: Point3<f64>, end: Point3<f64> },
+    /// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): circles
+    /// and ellipses of arches, columns and domes.
+    Ellipse { centre: Point3<f64>, u: Vector3<f64>, v: Vector3<f64>, start: f64, sweep: f64 },
+}
+
+/// Index of an item in [`Site::items`].
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct ItemId(pub u32);
+
+/// What a warning needs to name an item.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ItemInfo {
+    pub kind: &'static str,
+    pub label: Option<String>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Edge {
+    pub curve: SiteCurve,
+    pub item: ItemId,
+}
+
+/// A scene resolved into edges.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Site {
+    pub name: String,
+    /// In file order; the first is the default.
+    pub standpoints: Vec<Standpoint>,
+    pub items: Vec<ItemInfo>,
+    pub edges: Vec<Edge>,
+}
+
+impl Site {
+    /// Adds an item and returns its id, for loaders and for code that builds sites directly.
+    pub fn add_item(&mut self, kind: &'static str, label: Option<String>) -> ItemId {
+        self.items.push(ItemInfo { kind, label });
+        ItemId(self.items.len() as u32 - 1)
+    }
+
+    pub fn add_segment(&mut self, item: ItemId, start: Point3<f64>, end: Point3<f64>) {
+        self.edges.push(Edge { curve: SiteCurve::Segment { start, end }, item });
+    }
+
+    /// How a message names an item: `block "corn hall" (item 3)`, counting from 1.
+    pub fn describe_item(&self, id: ItemId) -> String {
+        match self.items.get(id.0 as usize) {
+            Some(ItemInfo { kind, label: Some(label) }) => {
+                format!("{kind} \"{label}\" (item {})", id.0 + 1)
+            }
+            Some(ItemInfo { kind, label: None }) => format!("{kind} (item {})", id.0 + 1),
+            None => format!("item {}", id.0 + 1),
+        }
+    }
+
+    pub fn standpoint(&self, name: &str) -> Option<&Standpoint> {
+        self.standpoints.iter().find(|s| s.name == name)
+    }
+}

@@ -1,0 +1,353 @@
+//! The one curve type the projector knows: `P(t) = c + u cos t + v sin t`, `t0 <= t <= t1`,
+//! a point set relative to the eye in the view frame. Its image on the viewing sphere is
+//! `P(t) / |P(t)|`.
+//!
+//! Why one trigonometric form: it covers both kinds of edge a site holds.
+//! - A straight segment seen from the eye lies in a plane through the eye, so its image is a
+//!   great-circle arc; written as `c = 0`, `u` = the unit direction of the start, `v` = the
+//!   unit direction a quarter turn further in that plane, `t` = the angle travelled along the
+//!   arc (unit speed on the sphere). It is built from the two end directions alone.
+//! - A circle or ellipse (arches, columns, domes) is `c` = its centre minus the eye and `u`,
+//!   `v` = its semi-axes, `t` = the eccentric angle.
+//!
+//! Any plane through the eye cuts such a curve where `m . P(t) = 0`, that is
+//! `C + A cos t + B sin t = 0`, which has a closed-form solution: that is how the seam is found
+//! exactly. Derivatives are exact too, so the flattener can bound its chord error.
+
+use nalgebra::Vector3;
+use std::f64::consts::{PI, TAU};
+
+/// A trigonometric curve on the viewing sphere (see the module docs).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SphereCurve {
+    pub centre: Vector3<f64>,
+    pub u: Vector3<f64>,
+    pub v: Vector3<f64>,
+    pub t0: f64,
+    pub t1: f64,
+}
+
+/// The roots of `m . P(t) = 0` strictly inside `(t0, t1)`, ascending. There are at most two
+/// because the curve's parameter range never exceeds one turn.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct TrigRoots {
+    roots: [f64; 2],
+    len: usize,
+}
+
+impl TrigRoots {
+    fn push(&mut self, t: f64) {
+        if self.len < 2 {
+            self.roots[self.len] = t;
+            self.len += 1;
+        }
+    }
+
+    pub fn as_slice(&self) -> &[f64] {
+        &self.roots[..self.len]
+    }
+}
+
+/// The relative size below which a coefficient counts as zero when deciding that a curve lies
+/// entirely in a plane (a curve drawn along the seam itself, for example).
+const IN_PLANE_EPSILON: f64 = 1e-12;
+
+impl SphereCurve {
+    /// The great-circle arc from direction `a` to direction `b` (any lengths, not parallel or
+    /// opposite). Returns `None` when the directions are (anti)parallel within `1e-12` rad,
+    /// where the plane of the arc is undefined.
+    pub fn great_arc(a: &Vector3<f64>, b: &Vector3<f64>) -> Option<SphereCurve> {
+        let a = a.try_normalize(0.0)?;
+        let b = b.try_normalize(0.0)?;
+        let normal = a.cross(&b);
+        let sin_angle = normal.norm();
+        if sin_angle < 1e-12 {
+            return None;
+        }
+        let angle = sin_angle.atan2(a.dot(&b));
+        // v = n x a / |n| is the unit vector a quarter turn from `a` towards `b` in the plane.
+        let v = normal.cross(&a) / sin_angle;
+        Some(SphereCurve { centre: Vector3::zeros(), u: a, v, t0: 0.0, t1: angle })
+    }
+
+    /// An elliptic arc with the given centre (relative to the eye) and semi-axes, from
+    /// eccentric angle `start` through `sweep` (radians, either sign, at most one turn).
+    pub fn ellipse_arc(
+        centre: Vector3<f64>,
+        u: Vector3<f64>,
+        v: Vector3<f64>,
+        start: f64,
+        sweep: f64,
+    ) -> SphereCurve {
+        let sweep = sweep.clamp(-TAU, TAU);
+        if sweep >= 0.0 {
+            SphereCurve { centre, u, v, t0: start, t1: start + sweep }
+        } else {
+            // Run the same points the other way round so that t0 < t1 always holds:
+            // P(-s) with v negated traces the arc backwards.
+            SphereCurve { centre, u, v: -v, t0: -start, t1: -start - sweep }
+        }
+    }
+
+    pub fn is_great_circle(&self) -> bool {
+        self.centre == Vector3::zeros()
+    }
+
+    pub fn position(&self, t: f64) -> Vector3<f64> {
+        let (s, c) = t.sin_cos();
+        self.centre + self.u * c + self.v * s
+    }
+
+    /// `dP/dt`.
+    pub fn velocity(&self, t: f64) -> Vector3<f64> {
+        let (s, c) = t.sin_cos();
+        self.v * c - self.u * s
+    }
+
+    /// `d2P/dt2`.
+    pub fn acceleration(&self, t: f64) -> Vector3<f64> {
+        let (s, c) = t.sin_cos();
+        -(self.u * c + self.v * s)
+    }
+
+    /// The coefficients `(C, A, B)` of `m . P(t) = C + A cos t + B sin t`.
+    fn coefficients(&self, m: &Vector3<f64>) -> (f64, f64, f64) {
+        (m.dot(&self.centre), m.dot(&self.u), m.dot(&self.v))
+    }
+
+    /// Whether the whole curve lies in the plane through the eye with normal `m`.
+    pub fn lies_in_plane(&self, m: &Vector3<f64>) -> bool {
+        let (c, a, b) = self.coefficients(m);
+        let scale = self.centre.norm() + self.u.norm() + self.v.norm();
+        c.abs().max(a.abs()).max(b.abs()) <= IN_PLANE_EPSILON * scale * m.norm()
+    }
+
+    /// Parameters strictly inside the range where the curve meets the plane through the eye
+    /// with normal `m`: the solutions of `C + A cos t + B sin t = 0`, that is
+    /// `R cos(t - phi) = -C` with `R = hypot(A, B)`, `phi = atan2(B, A)`, so
+    /// `t = phi +- acos(-C / R)` (any trigonometry handbook). A curve lying in the plane has no
+    /// isolated roots and returns none; test that with [`SphereCurve::lies_in_plane`].
+    pub fn plane_crossings(&self, m: &Vector3<f64>) -> TrigRoots {
+        let mut out = TrigRoots::default();
+        if self.lies_in_plane(m) {
+            return out;
+        }
+        let (c, a, b) = self.coefficients(m);
+        let r = a.hypot(b);
+        if r == 0.0 || c.abs() > r {
+            return out;
+        }
+        let phi = b.atan2(a);
+        let spread = (-c / r).clamp(-1.0, 1.0).acos();
+        let mut candidates = [phi - spread, phi + spread];
+        if spread == 0.0 || spread == PI {
+            // A tangency: one double root, counted once.
+            candidates[1] = f64::NAN;
+        }
+        for root in candidates.iter_mut() {
+            if root.is_nan() {
+                continue;
+            }
+            // Bring the root into [t0, t0 + 2 pi).
+            *root = self.t0 + (*root - self.t0).rem_euclid(TAU);
+        }
+        candidates.sort_by(|x, y| x.total_cmp(y));
+        for root in candidates {
+            if root > self.t0 && root < self.t1 {
+                out.push(root);
+            }
+        }
+        out
+    }
+
+    /// Where the curve crosses the half-plane of directions with the given azimuth (the
+    /// meridian at `azimuth`, radians): the crossings of the full meridian plane that fall on
+    /// that side of the vertical. The seam is the meridian at `pi`.
+    pub fn meridian_crossings(&self, azimuth: f64) -> TrigRoots {
+        let (sin_az, cos_az) = azimuth.sin_cos();
+        // The meridian plane holds the vertical and (sin az, cos az, 0); its normal:
+        let normal = Vector3::new(cos_az, -sin_az, 0.0);
+        let along = Vector3::new(sin_az, cos_az, 0.0);
+        let mut out = TrigRoots::default();
+        for &t in self.plane_crossings(&normal).as_slice() {
+            if along.dot(&self.position(t)) > 0.0 {
+                out.push(t);
+            }
+        }
+        out
+    }
+
+    /// Where the curve comes nearest the zenith (`towards_zenith`) or the nadir, if that is
+    /// closer than `within` radians and happens strictly inside the range: the parameter and
+    /// the angular distance to the pole there.
+    ///
+    /// For a great circle with unit normal `n`, the nearest point to the pole `p` is `p`
+    /// projected into the plane, at angle `asin(|n . p|)` from it. Other curves are searched
+    /// numerically (64 samples, then golden-section refinement of each local minimum).
+    pub fn pole_approaches(&self, towards_zenith: bool, within: f64) -> Vec<(f64, f64)> {
+        let pole = Vector3::new(0.0, 0.0, if towards_zenith { 1.0 } else { -1.0 });
+        if self.is_great_circle() {
+            let normal = self.u.cross(&self.v).normalize();
+            let closest = pole - normal * normal.dot(&pole);
+            let Some(closest) = closest.try_normalize(1e-300) else {
+                return Vec::new(); // the arc lies on the equator of this pole: never near
+            };
+            let distance = normal.dot(&pole).abs().clamp(0.0, 1.0).asin();
+            if distance >= within {
+                return Vec::new();
+            }
+            let t = self.v.dot(&closest).atan2(self.u.dot(&closest));
+            let t = self.t0 + (t - self.t0).rem_euclid(TAU);
+            return if t > self.t0 && t < self.t1 { vec![(t, distance)] } else { Vec::new() };
+        }
+        self.pole_approaches_numerically(&pole, within)
+    }
+
+    #[cold]
+    fn pole_approaches_numerically(&self, pole: &Vector3<f64>, within: f64) -> Vec<(f64, f64)> {
+        const SAMPLES: usize = 64;
+        let step = (self.t1 - self.t0) / SAMPLES as f64;
+        let distance = |t: f64| super::angle_between(&self.position(t), pole);
+        let values: Vec<f64> = (0..=SAMPLES).map(|i| distance(self.t0 + step * i as f64)).collect();
+        let mut found = Vec::new();
+        for i in 1..SAMPLES {
+            if values[i] <= values[i - 1] && values[i] <= values[i + 1] {
+                let (t, d) = golden_section_minimum(
+                    &distance,
+                    self.t0 + step * (i - 1) as f64,
+                    self.t0 + step * (i + 1) as f64,
+                );
+                if d < within && t > self.t0 && t < self.t1 {
+                    found.push((t, d));
+                }
+            }
+        }
+        found
+    }
+}
+
+/// The minimum of a unimodal function on `[a, b]` by golden-section search (Kiefer 1953;
+/// Press et al., "Numerical Recipes", 3rd ed., section 10.2), to a bracket of `1e-15` of the
+/// range.
+fn golden_section_minimum(f: &impl Fn(f64) -> f64, mut a: f64, mut b: f64) -> (f64, f64) {
+    let ratio = (5f64.sqrt() - 1.0) / 2.0;
+    let mut x1 = b - ratio * (b - a);
+    let mut x2 = a + ratio * (b - a);
+    let (mut f1, mut f2) = (f(x1), f(x2));
+    let stop = (b - a).abs() * 1e-15;
+    for _ in 0..200 {
+        if (b - a).abs() <= stop {
+            break;
+        }
+        if f1 < f2 {
+            b = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = b - ratio * (b - a);
+            f1 = f(x1);
+        } else {
+            a = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = a + ratio * (b - a);
+            f2 = f(x2);
+        }
+    }
+    let t = (a + b) / 2.0;
+    (t, f(t))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn v(x: f64, y: f64, z: f64) -> Vector3<f64> {
+        Vector3::new(x, y, z)
+    }
+
+    #[test]
+    fn great_arc_runs_from_start_to_end_at_unit_speed() {
+        let a = v(3.0, 4.0, 1.0);
+        let b = v(-2.0, 5.0, 2.5);
+        let arc = SphereCurve::great_arc(&a, &b).unwrap();
+        assert!((arc.position(arc.t0) - a.normalize()).norm() < 1e-15);
+        assert!((arc.position(arc.t1) - b.normalize()).norm() < 1e-15);
+        for t in [0.0, 0.2, arc.t1] {
+            assert!((arc.velocity(t).norm() - 1.0).abs() < 1e-15);
+            assert!((arc.position(t).norm() - 1.0).abs() < 1e-15);
+        }
+    }
+
+    #[test]
+    fn great_arc_rejects_parallel_and_opposite_directions() {
+        assert!(SphereCurve::great_arc(&v(1.0, 2.0, 3.0), &v(2.0, 4.0, 6.0)).is_none());
+        assert!(SphereCurve::great_arc(&v(1.0, 2.0, 3.0), &v(-1.0, -2.0, -3.0)).is_none());
+        assert!(SphereCurve::great_arc(&v(0.0, 0.0, 0.0), &v(1.0, 0.0, 0.0)).is_none());
+    }
+
+    #[test]
+    fn plane_crossings_solve_the_trigonometric_equation() {
+        let circle =
+            SphereCurve::ellipse_arc(v(0.5, 3.0, 0.2), v(2.0, 0.0, 0.0), v(0.0, 0.0, 1.5), 0.0, TAU);
+        let m = v(1.0, 0.0, 0.0);
+        let roots = circle.plane_crossings(&m);
+        assert_eq!(roots.as_slice().len(), 2);
+        for &t in roots.as_slice() {
+            assert!(m.dot(&circle.position(t)).abs() < 1e-14, "root {t}");
+        }
+        // x = 0.5 + 2 cos t: cos t = -1/4.
+        let expected = (-0.25f64).acos();
+        assert!((roots.as_slice()[0] - expected).abs() < 1e-14);
+        assert!((roots.as_slice()[1] - (TAU - expected)).abs() < 1e-14);
+    }
+
+    #[test]
+    fn reversed_ellipse_arc_traces_the_same_points() {
+        let forward = SphereCurve::ellipse_arc(v(0.0, 4.0, 0.0), v(1.0, 0.0, 0.0), v(0.0, 0.0, 2.0), 0.3, 1.2);
+        let backward = SphereCurve::ellipse_arc(v(0.0, 4.0, 0.0), v(1.0, 0.0, 0.0), v(0.0, 0.0, 2.0), 1.5, -1.2);
+        assert!(backward.t0 < backward.t1);
+        assert!((forward.position(forward.t0) - backward.position(backward.t1)).norm() < 1e-14);
+        assert!((forward.position(forward.t1) - backward.position(backward.t0)).norm() < 1e-14);
+    }
+
+    #[test]
+    fn a_curve_in_the_plane_has_no_isolated_crossings() {
+        let arc = SphereCurve::great_arc(&v(0.0, 1.0, 0.2), &v(0.0, -1.0, 0.3)).unwrap();
+        assert!(arc.lies_in_plane(&v(1.0, 0.0, 0.0)));
+        assert!(arc.plane_crossings(&v(1.0, 0.0, 0.0)).as_slice().is_empty());
+    }
+
+    #[test]
+    fn pole_approach_of_a_great_arc_is_exact() {
+        // An arc over the head that misses the zenith by about 0.01 rad to the right.
+        let miss = 0.01f64;
+        let a = v(miss.tan(), 1.0, 1.0);
+        let b = v(miss.tan(), -1.0, 1.0);
+        let arc = SphereCurve::great_arc(&a, &b).unwrap();
+        let found = arc.pole_approaches(true, 0.1);
+        assert_eq!(found.len(), 1);
+        let (t, d) = found[0];
+        let zenith = v(0.0, 0.0, 1.0);
+        assert!((d - super::super::angle_between(&arc.position(t), &zenith)).abs() < 1e-15);
+        // The closest point lies straight to the right of the zenith, at 90 deg - 0.01 rad.
+        assert!((d - miss).abs() < 1e-15, "{d}");
+        assert!(arc.position(t).y.abs() < 1e-15);
+        assert!(arc.pole_approaches(false, 0.1).is_empty());
+        // The first half alone ends before the closest point is reached.
+        let half = SphereCurve::great_arc(&a, &v(miss.tan(), 0.1, 1.0)).unwrap();
+        assert!(half.pole_approaches(true, 0.1).is_empty());
+    }
+
+    #[test]
+    fn numeric_pole_approach_matches_a_dense_scan() {
+        let ring = SphereCurve::ellipse_arc(v(0.3, 0.1, 5.0), v(2.0, 0.0, 0.0), v(0.0, 1.5, 0.5), 0.0, TAU);
+        let found = ring.pole_approaches(true, 1.0);
+        assert!(!found.is_empty());
+        let pole = v(0.0, 0.0, 1.0);
+        let dense = (0..200_000)
+            .map(|i| super::super::angle_between(&ring.position(TAU * i as f64 / 200_000.0), &pole))
+            .fold(f64::INFINITY, f64::min);
+        let best = found.iter().map(|f| f.1).fold(f64::INFINITY, f64::min);
+        assert!(best <= dense + 1e-12, "{best} vs {dense}");
+    }
+}

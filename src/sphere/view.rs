@@ -1,0 +1,146 @@
+//! The view frame: the eye's position and the rotation from the site frame into the frame
+//! the panorama is laid out in.
+
+use super::SphereCurve;
+use crate::scene::{SiteCurve, Standpoint};
+use nalgebra::{Point3, Rotation3, Vector3};
+
+/// Why an edge has no drawable image from a standpoint. The renderer skips such edges with a
+/// warning naming the item; the run goes on.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Degeneracy {
+    /// Start and end coincide (or an ellipse has a zero semi-axis).
+    ZeroLength,
+    /// An end of the edge is at the eye.
+    EndAtEye,
+    /// The edge's line passes through the eye, so it is seen end-on: a point, or two opposite
+    /// points if the eye lies between its ends.
+    SeenEndOn,
+}
+
+impl std::fmt::Display for Degeneracy {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Degeneracy::ZeroLength => "it has zero length",
+            Degeneracy::EndAtEye => "one of its ends is at the eye",
+            Degeneracy::SeenEndOn => "its line passes through the eye (it is seen end-on)",
+        })
+    }
+}
+
+/// Distances from the eye below this (metres) count as "at the eye".
+const AT_EYE: f64 = 1e-9;
+
+/// The eye and the rotation site frame -> view frame for one standpoint.
+#[derive(Clone, Copy, Debug)]
+pub struct ViewFrame {
+    eye: Point3<f64>,
+    site_to_view: Rotation3<f64>,
+}
+
+impl ViewFrame {
+    /// The view frame of a standpoint: first turn about the vertical by the heading (so the
+    /// heading direction becomes `+y`), then tilt about the new `x` axis by the pitch
+    /// (positive looks up), then turn about the view axis by the roll (positive turns the
+    /// viewer's up towards their right).
+    pub fn new(standpoint: &Standpoint) -> ViewFrame {
+        // Rotating (sin h, cos h, 0) counter-clockwise by h about z gives (0, 1, 0).
+        let heading = Rotation3::from_axis_angle(&Vector3::z_axis(), standpoint.heading);
+        // (0, cos p, sin p) turned by -p about x gives (0, 1, 0).
+        let pitch = Rotation3::from_axis_angle(&Vector3::x_axis(), -standpoint.pitch);
+        // The rolled up vector (sin r, 0, cos r) turned by -r about y gives (0, 0, 1).
+        let roll = Rotation3::from_axis_angle(&Vector3::y_axis(), -standpoint.roll);
+        ViewFrame { eye: standpoint.eye(), site_to_view: roll * pitch * heading }
+    }
+
+    pub fn eye(&self) -> Point3<f64> {
+        self.eye
+    }
+
+    /// A site point relative to the eye, in the view frame.
+    pub fn to_view(&self, p: &Point3<f64>) -> Vector3<f64> {
+        self.site_to_view * (p - self.eye)
+    }
+
+    /// A site direction (free vector) in the view frame.
+    pub fn direction_to_view(&self, d: &Vector3<f64>) -> Vector3<f64> {
+        self.site_to_view * d
+    }
+
+    /// The curve an edge traces on the viewing sphere, or why it has none.
+    pub fn sphere_curve(&self, curve: &SiteCurve) -> Result<SphereCurve, Degeneracy> {
+        match *curve {
+            SiteCurve::Segment { start, end } => {
+                let a = self.to_view(&start);
+                let b = self.to_view(&end);
+                let scale = a.norm().max(b.norm()).max(1.0);
+                if (end - start).norm() <= 1e-12 * scale {
+                    return Err(Degeneracy::ZeroLength);
+                }
+                if a.norm() <= AT_EYE || b.norm() <= AT_EYE {
+                    return Err(Degeneracy::EndAtEye);
+                }
+                SphereCurve::great_arc(&a, &b).ok_or(Degeneracy::SeenEndOn)
+            }
+            SiteCurve::Ellipse { centre, u, v, start, sweep } => {
+                if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300) || sweep == 0.0
+                {
+                    return Err(Degeneracy::ZeroLength);
+                }
+                Ok(SphereCurve::ellipse_arc(
+                    self.to_view(&centre),
+                    self.direction_to_view(&u),
+                    self.direction_to_view(&v),
+                    start,
+                    sweep,
+                ))
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::sphere::azimuth_elevation;
+
+    fn standpoint(heading_deg: f64, pitch_deg: f64, roll_deg: f64) -> Standpoint {
+        Standpoint::from_degrees("test", 1.0, 2.0, 1.5, heading_deg, pitch_deg, roll_deg)
+    }
+
+    #[test]
+    fn heading_direction_is_straight_ahead() {
+        let view = ViewFrame::new(&standpoint(30.0, 0.0, 0.0));
+        let ahead = Point3::new(1.0 + 30f64.to_radians().sin(), 2.0 + 30f64.to_radians().cos(), 1.5);
+        let v = view.to_view(&ahead);
+        assert!((v - Vector3::new(0.0, 1.0, 0.0)).norm() < 1e-15, "{v}");
+        // East lies 60 degrees to the right of a 30-degree heading.
+        let (az, el) = azimuth_elevation(&view.direction_to_view(&Vector3::x()));
+        assert!((az.to_degrees() - 60.0).abs() < 1e-12 && el.abs() < 1e-15);
+    }
+
+    #[test]
+    fn pitch_looks_up_and_roll_turns_up_to_the_right() {
+        let pitched = ViewFrame::new(&standpoint(0.0, 20.0, 0.0));
+        let up20 = Vector3::new(0.0, 20f64.to_radians().cos(), 20f64.to_radians().sin());
+        assert!((pitched.direction_to_view(&up20) - Vector3::y()).norm() < 1e-15);
+        let rolled = ViewFrame::new(&standpoint(0.0, 0.0, 10.0));
+        let tilted_up = Vector3::new(10f64.to_radians().sin(), 0.0, 10f64.to_radians().cos());
+        assert!((rolled.direction_to_view(&tilted_up) - Vector3::z()).norm() < 1e-15);
+    }
+
+    #[test]
+    fn degenerate_edges_are_named() {
+        let view = ViewFrame::new(&standpoint(0.0, 0.0, 0.0));
+        let eye = view.eye();
+        let seg = |a: Point3<f64>, b: Point3<f64>| view.sphere_curve(&SiteCurve::Segment { start: a, end: b });
+        let p = Point3::new(5.0, 5.0, 0.0);
+        assert_eq!(seg(p, p), Err(Degeneracy::ZeroLength));
+        assert_eq!(seg(eye, p), Err(Degeneracy::EndAtEye));
+        let beyond = eye + (p - eye) * 3.0;
+        assert_eq!(seg(p, beyond), Err(Degeneracy::SeenEndOn));
+        let behind = eye - (p - eye) * 2.0;
+        assert_eq!(seg(p, behind), Err(Degeneracy::SeenEndOn));
+        assert!(seg(p, Point3::new(6.0, 5.0, 0.0)).is_ok());
+    }
+}
