@@ -7,7 +7,12 @@ use std::path::PathBuf;
 pub enum Error {
     /// The scene file cannot be understood; `line` and `column` count from 1.
     #[error("{}:{line}:{column}: {message}", path.display())]
-    Scene { path: PathBuf, line: usize, column: usize, message: String },
+    Scene {
+        path: PathBuf,
+        line: usize,
+        column: usize,
+        message: String,
+    },
 
     #[error("cannot read {}", path.display())]
     Read {
@@ -35,7 +40,11 @@ pub enum Error {
 
     /// Refused before anything was allocated.
     #[error("an image of {width}x{height} pixels is {reason}")]
-    ImageSize { width: u64, height: u64, reason: String },
+    ImageSize {
+        width: u64,
+        height: u64,
+        reason: String,
+    },
 
     #[error("PNG encoding failed")]
     Png(#[from] png::EncodingError),

@@ -86,7 +86,10 @@ struct Piece<'a> {
 impl Flattener {
     /// `tolerance_px` must be positive and finite (validated by the caller's settings).
     pub fn new(map: Equirect, tolerance_px: f64) -> Flattener {
-        Flattener { map, tolerance: tolerance_px }
+        Flattener {
+            map,
+            tolerance: tolerance_px,
+        }
     }
 
     pub fn tolerance(&self) -> f64 {
@@ -104,8 +107,16 @@ impl Flattener {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
             let middle = curve.position((ta + tb) / 2.0);
             let lies_on_seam = on_seam_plane && middle.y < 0.0;
-            let reference = if lies_on_seam { -PI } else { middle.x.atan2(middle.y) };
-            let mut piece = Piece { curve: &curve, reference, samples_left: budget };
+            let reference = if lies_on_seam {
+                -PI
+            } else {
+                middle.x.atan2(middle.y)
+            };
+            let mut piece = Piece {
+                curve: &curve,
+                reference,
+                samples_left: budget,
+            };
             let a = self.end_sample(&mut piece, ta, cut_a, true);
             let b = self.end_sample(&mut piece, tb, cut_b, false);
             // Plain cuts only help the refinement; the polyline goes on through them.
@@ -129,7 +140,11 @@ impl Flattener {
     fn copy_to_right_border(&self, out: &mut PolylineSet) {
         let copy: Vec<ImagePoint> = out
             .last()
-            .map(|line| line.iter().map(|p| ImagePoint::new(self.map.width(), p.y)).collect())
+            .map(|line| {
+                line.iter()
+                    .map(|p| ImagePoint::new(self.map.width(), p.y))
+                    .collect()
+            })
             .unwrap_or_default();
         out.push(&copy);
     }
@@ -139,7 +154,17 @@ impl Flattener {
     fn cuts(&self, curve: &SphereCurve) -> (SphereCurve, Vec<(f64, Cut)>) {
         let pole_tolerance = self.tolerance / self.map.y_scale();
         let mut curve = *curve;
-        let mut cuts = vec![(curve.t0, Cut::Plain), (curve.t1, Cut::Plain)];
+        // An end at a pole takes its azimuth from the curve's tangent, like a pass does.
+        let end_cut = |t: f64| {
+            let p = curve.position(t);
+            let off_vertical = p.x.hypot(p.y).atan2(p.z.abs());
+            if off_vertical < pole_tolerance {
+                Cut::Pole
+            } else {
+                Cut::Plain
+            }
+        };
+        let mut cuts = vec![(curve.t0, end_cut(curve.t0)), (curve.t1, end_cut(curve.t1))];
         for zenith in [true, false] {
             for (t, distance) in curve.pole_approaches(zenith, NEAR_POLE) {
                 if distance < pole_tolerance {
@@ -174,7 +199,9 @@ impl Flattener {
         let mut cuts = Vec::with_capacity(merged.len() * 2);
         for pair in merged.windows(2) {
             cuts.push(pair[0]);
-            let parts = ((pair[1].0 - pair[0].0) / MAX_PIECE_PARAMETER).ceil().max(1.0) as usize;
+            let parts = ((pair[1].0 - pair[0].0) / MAX_PIECE_PARAMETER)
+                .ceil()
+                .max(1.0) as usize;
             for k in 1..parts {
                 let t = pair[0].0 + (pair[1].0 - pair[0].0) * k as f64 / parts as f64;
                 cuts.push((t, Cut::Plain));
@@ -190,7 +217,11 @@ impl Flattener {
             Cut::Plain => self.sample(piece, t),
             Cut::Seam => {
                 let mut s = self.sample(piece, t);
-                s.at.x = if piece.reference < 0.0 { 0.0 } else { self.map.width() };
+                s.at.x = if piece.reference < 0.0 {
+                    0.0
+                } else {
+                    self.map.width()
+                };
                 s
             }
             Cut::Pole => {
@@ -207,7 +238,11 @@ impl Flattener {
                 };
                 let zenith = piece.curve.position(t).z > 0.0;
                 let elevation = if zenith { PI / 2.0 } else { -PI / 2.0 };
-                Sample { t, at: self.map.to_image(azimuth, elevation), curvature: None }
+                Sample {
+                    t,
+                    at: self.map.to_image(azimuth, elevation),
+                    curvature: None,
+                }
             }
         }
     }
@@ -257,7 +292,10 @@ impl Flattener {
         let n_d = rho * d2.z - p.z * rho_dd;
         let m_d = 2.0 * (rho * rho_d + p.z * d1.z);
         let elevation_dd = (n_d * m - n * m_d) / (m * m);
-        Vector2::new(azimuth_dd * self.map.x_scale(), -elevation_dd * self.map.y_scale())
+        Vector2::new(
+            azimuth_dd * self.map.x_scale(),
+            -elevation_dd * self.map.y_scale(),
+        )
     }
 
     /// Appends the vertices after `a` up to and including `b`.
@@ -353,13 +391,31 @@ mod tests {
         );
         let flattener = Flattener::new(map(), 0.1);
         for t in [0.1, 1.0, 2.5, 4.0] {
-            let mut piece = Piece { curve: &curve, reference: 0.0, samples_left: 100 };
+            let mut piece = Piece {
+                curve: &curve,
+                reference: 0.0,
+                samples_left: 100,
+            };
             let h = 1e-4;
-            let s = |t| flattener.sample(&mut Piece { curve: &curve, reference: 0.0, samples_left: 9 }, t).at;
+            let s = |t| {
+                flattener
+                    .sample(
+                        &mut Piece {
+                            curve: &curve,
+                            reference: 0.0,
+                            samples_left: 9,
+                        },
+                        t,
+                    )
+                    .at
+            };
             let (m, p0, p) = (s(t - h), s(t), s(t + h));
             let fd = Vector2::new(m.x - 2.0 * p0.x + p.x, m.y - 2.0 * p0.y + p.y) / (h * h);
             let exact = flattener.sample(&mut piece, t).curvature.unwrap();
-            assert!((fd - exact).norm() <= 1e-4 * exact.norm().max(1.0), "t {t}: {fd} vs {exact}");
+            assert!(
+                (fd - exact).norm() <= 1e-4 * exact.norm().max(1.0),
+                "t {t}: {fd} vs {exact}"
+            );
         }
     }
 
@@ -383,7 +439,10 @@ mod tests {
         let end_of_first = *pieces[0].last().unwrap();
         let start_of_second = pieces[1][0];
         let borders = [end_of_first.x, start_of_second.x];
-        assert!(borders.contains(&0.0) && borders.contains(&4096.0), "{borders:?}");
+        assert!(
+            borders.contains(&0.0) && borders.contains(&4096.0),
+            "{borders:?}"
+        );
         assert!((end_of_first.y - start_of_second.y).abs() < 0.01);
     }
 
@@ -395,10 +454,16 @@ mod tests {
         let top_a = *pieces[0].last().unwrap();
         let top_b = pieces[1][0];
         assert_eq!((top_a.y, top_b.y), (0.0, 0.0));
-        assert!(((top_a.x - top_b.x).abs() - 2048.0).abs() < 1e-9, "{top_a:?} {top_b:?}");
+        assert!(
+            ((top_a.x - top_b.x).abs() - 2048.0).abs() < 1e-9,
+            "{top_a:?} {top_b:?}"
+        );
         // Both pieces are vertical lines.
         for piece in &pieces {
-            assert!(piece.iter().all(|p| (p.x - piece[0].x).abs() < 1e-9), "{piece:?}");
+            assert!(
+                piece.iter().all(|p| (p.x - piece[0].x).abs() < 1e-9),
+                "{piece:?}"
+            );
         }
     }
 
@@ -408,14 +473,21 @@ mod tests {
         let pieces = lines(&arc([miss, 1.0, 1.0], [miss, -1.0, 1.0]));
         assert_eq!(pieces.len(), 2, "{pieces:?}");
         assert_eq!(pieces[0].last().unwrap().y, 0.0);
-        assert!(pieces.iter().flatten().all(|p| (p.x - 2048.0).abs() < 0.2 || p.x.abs() < 0.2 || (p.x - 4096.0).abs() < 0.2));
+        assert!(pieces
+            .iter()
+            .flatten()
+            .all(|p| (p.x - 2048.0).abs() < 0.2 || p.x.abs() < 0.2 || (p.x - 4096.0).abs() < 0.2));
     }
 
     #[test]
     fn near_pole_pass_beyond_tolerance_sweeps_below_the_border() {
         let miss = 0.02; // about 13 px from the zenith
         let pieces = lines(&arc([miss, 1.0, 1.0], [miss, -1.0, 1.0]));
-        let top = pieces.iter().flatten().map(|p| p.y).fold(f64::INFINITY, f64::min);
+        let top = pieces
+            .iter()
+            .flatten()
+            .map(|p| p.y)
+            .fold(f64::INFINITY, f64::min);
         let expected = miss.atan() * 2048.0 / PI;
         assert!((top - expected).abs() < 0.1, "{top} vs {expected}");
     }

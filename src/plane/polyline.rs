@@ -74,7 +74,11 @@ mod tests {
         let mut set = PolylineSet::new();
         set.move_to(ImagePoint::new(0.0, 0.0));
         set.line_to(ImagePoint::new(1.0, 0.0));
-        set.push(&[ImagePoint::new(5.0, 5.0), ImagePoint::new(6.0, 6.0), ImagePoint::new(7.0, 5.0)]);
+        set.push(&[
+            ImagePoint::new(5.0, 5.0),
+            ImagePoint::new(6.0, 6.0),
+            ImagePoint::new(7.0, 5.0),
+        ]);
         let lines: Vec<_> = set.iter().collect();
         assert_eq!(lines.len(), 2);
         assert_eq!(lines[0].len(), 2);

@@ -58,7 +58,12 @@ pub fn block_plan(block: &BlockSpec) -> [Vector2<f64>; 4] {
         Anchor::Corner(x, y) => Vector2::new(x.0, y.0),
         Anchor::Centre(x, y) => Vector2::new(x.0, y.0) - (along + back) / 2.0,
     };
-    [front_left, front_left + along, front_left + along + back, front_left + back]
+    [
+        front_left,
+        front_left + along,
+        front_left + along + back,
+        front_left + back,
+    ]
 }
 
 fn add_block(site: &mut Site, id: ItemId, block: &BlockSpec) {
@@ -67,15 +72,27 @@ fn add_block(site: &mut Site, id: ItemId, block: &BlockSpec) {
     let top = bottom + block.height.0;
     for i in 0..4 {
         let (a, b) = (plan[i], plan[(i + 1) % 4]);
-        site.add_segment(id, Point3::new(a.x, a.y, bottom), Point3::new(b.x, b.y, bottom));
+        site.add_segment(
+            id,
+            Point3::new(a.x, a.y, bottom),
+            Point3::new(b.x, b.y, bottom),
+        );
         site.add_segment(id, Point3::new(a.x, a.y, top), Point3::new(b.x, b.y, top));
-        site.add_segment(id, Point3::new(a.x, a.y, bottom), Point3::new(a.x, a.y, top));
+        site.add_segment(
+            id,
+            Point3::new(a.x, a.y, bottom),
+            Point3::new(a.x, a.y, top),
+        );
     }
 }
 
 fn add_polyline(site: &mut Site, id: ItemId, polyline: &PolylineSpec) {
-    let points: Vec<Point3<f64>> =
-        polyline.points.0.iter().map(|(x, y, z)| Point3::new(x.0, y.0, z.0)).collect();
+    let points: Vec<Point3<f64>> = polyline
+        .points
+        .0
+        .iter()
+        .map(|(x, y, z)| Point3::new(x.0, y.0, z.0))
+        .collect();
     for pair in points.windows(2) {
         site.add_segment(id, pair[0], pair[1]);
     }
@@ -103,7 +120,10 @@ mod tests {
 
     fn assert_plan(plan: [Vector2<f64>; 4], expected: [(f64, f64); 4]) {
         for (p, (x, y)) in plan.iter().zip(expected) {
-            assert!((p.x - x).abs() < 1e-12 && (p.y - y).abs() < 1e-12, "{plan:?}");
+            assert!(
+                (p.x - x).abs() < 1e-12 && (p.y - y).abs() < 1e-12,
+                "{plan:?}"
+            );
         }
     }
 
@@ -125,7 +145,11 @@ mod tests {
     fn block_has_twelve_edges() {
         let mut site = Site::default();
         let id = site.add_item("block", None);
-        add_block(&mut site, id, &block(Anchor::Corner(Finite(0.0), Finite(0.0)), 180.0));
+        add_block(
+            &mut site,
+            id,
+            &block(Anchor::Corner(Finite(0.0), Finite(0.0)), 180.0),
+        );
         assert_eq!(site.edges.len(), 12);
     }
 }

@@ -26,7 +26,9 @@ impl<'de> Deserialize<'de> for Finite {
         if value.is_finite() {
             Ok(Finite(value))
         } else {
-            Err(serde::de::Error::custom(format!("expected a finite number, found {value}")))
+            Err(serde::de::Error::custom(format!(
+                "expected a finite number, found {value}"
+            )))
         }
     }
 }
@@ -41,7 +43,9 @@ impl<'de> Deserialize<'de> for Positive {
         if value > 0.0 {
             Ok(Positive(value))
         } else {
-            Err(serde::de::Error::custom(format!("expected a size greater than zero, found {value}")))
+            Err(serde::de::Error::custom(format!(
+                "expected a size greater than zero, found {value}"
+            )))
         }
     }
 }
@@ -56,7 +60,9 @@ impl<'de> Deserialize<'de> for NonNegative {
         if value >= 0.0 {
             Ok(NonNegative(value))
         } else {
-            Err(serde::de::Error::custom(format!("expected zero or more, found {value}")))
+            Err(serde::de::Error::custom(format!(
+                "expected zero or more, found {value}"
+            )))
         }
     }
 }

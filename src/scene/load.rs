@@ -9,9 +9,14 @@ use std::path::Path;
 
 /// Reads and resolves a scene file.
 pub fn load_scene(path: &Path) -> Result<Site> {
-    let bytes =
-        std::fs::read(path).map_err(|source| Error::Read { path: path.to_owned(), source })?;
-    let fallback = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_default();
+    let bytes = std::fs::read(path).map_err(|source| Error::Read {
+        path: path.to_owned(),
+        source,
+    })?;
+    let fallback = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
     parse_scene(&bytes, path, &fallback)
 }
 
@@ -52,7 +57,11 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
 fn line_and_column(prefix: &[u8]) -> (usize, usize) {
     let text = String::from_utf8_lossy(prefix);
     let line = text.matches('\n').count() + 1;
-    let column = text.rsplit('\n').next().map_or(0, |last| last.chars().count()) + 1;
+    let column = text
+        .rsplit('\n')
+        .next()
+        .map_or(0, |last| last.chars().count())
+        + 1;
     (line, column)
 }
 
@@ -66,7 +75,12 @@ mod tests {
 
     fn error_at(text: &str) -> (usize, usize, String) {
         match parse(text) {
-            Err(Error::Scene { line, column, message, .. }) => (line, column, message),
+            Err(Error::Scene {
+                line,
+                column,
+                message,
+                ..
+            }) => (line, column, message),
             other => panic!("expected a scene error, got {other:?}"),
         }
     }
@@ -83,7 +97,10 @@ mod tests {
         assert_eq!(site.standpoints[0].eye_height, 1.6);
         assert_eq!(site.items.len(), 2);
         assert_eq!(site.edges.len(), 12 + 3);
-        assert_eq!(site.describe_item(crate::scene::ItemId(0)), "block \"b\" (item 1)");
+        assert_eq!(
+            site.describe_item(crate::scene::ItemId(0)),
+            "block \"b\" (item 1)"
+        );
     }
 
     #[test]
@@ -93,7 +110,8 @@ mod tests {
         assert_eq!(line, 2);
         assert!(column > 20, "column {column}");
         assert!(message.contains("finite"), "{message}");
-        let (_, _, message) = error_at("Scene(items: [Polyline(points: [(0, 0, inf), (1, 1, 1)])])");
+        let (_, _, message) =
+            error_at("Scene(items: [Polyline(points: [(0, 0, inf), (1, 1, 1)])])");
         assert!(message.contains("finite"), "{message}");
     }
 
@@ -119,7 +137,12 @@ mod tests {
         assert!(error_at("  \n").2.contains("empty"));
         let garbage = [b'S', b'c', 0xff, 0xfe, 0x00];
         match parse_scene(&garbage, Path::new("x.ron"), "x") {
-            Err(Error::Scene { line: 1, column: 3, message, .. }) => {
+            Err(Error::Scene {
+                line: 1,
+                column: 3,
+                message,
+                ..
+            }) => {
                 assert!(message.contains("UTF-8"))
             }
             other => panic!("{other:?}"),

@@ -57,10 +57,19 @@ impl Standpoint {
 /// A drawable edge in site coordinates.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum SiteCurve {
-    Segment { start: Point3<f64>, end: Point3<f64> },
+    Segment {
+        start: Point3<f64>,
+        end: Point3<f64>,
+    },
     /// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): circles
     /// and ellipses of arches, columns and domes.
-    Ellipse { centre: Point3<f64>, u: Vector3<f64>, v: Vector3<f64>, start: f64, sweep: f64 },
+    Ellipse {
+        centre: Point3<f64>,
+        u: Vector3<f64>,
+        v: Vector3<f64>,
+        start: f64,
+        sweep: f64,
+    },
 }
 
 /// Index of an item in [`Site::items`].
@@ -98,13 +107,19 @@ impl Site {
     }
 
     pub fn add_segment(&mut self, item: ItemId, start: Point3<f64>, end: Point3<f64>) {
-        self.edges.push(Edge { curve: SiteCurve::Segment { start, end }, item });
+        self.edges.push(Edge {
+            curve: SiteCurve::Segment { start, end },
+            item,
+        });
     }
 
     /// How a message names an item: `block "corn hall" (item 3)`, counting from 1.
     pub fn describe_item(&self, id: ItemId) -> String {
         match self.items.get(id.0 as usize) {
-            Some(ItemInfo { kind, label: Some(label) }) => {
+            Some(ItemInfo {
+                kind,
+                label: Some(label),
+            }) => {
                 format!("{kind} \"{label}\" (item {})", id.0 + 1)
             }
             Some(ItemInfo { kind, label: None }) => format!("{kind} (item {})", id.0 + 1),

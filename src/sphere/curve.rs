@@ -67,7 +67,13 @@ impl SphereCurve {
         let angle = sin_angle.atan2(a.dot(&b));
         // v = n x a / |n| is the unit vector a quarter turn from `a` towards `b` in the plane.
         let v = normal.cross(&a) / sin_angle;
-        Some(SphereCurve { centre: Vector3::zeros(), u: a, v, t0: 0.0, t1: angle })
+        Some(SphereCurve {
+            centre: Vector3::zeros(),
+            u: a,
+            v,
+            t0: 0.0,
+            t1: angle,
+        })
     }
 
     /// An elliptic arc with the given centre (relative to the eye) and semi-axes, from
@@ -81,11 +87,23 @@ impl SphereCurve {
     ) -> SphereCurve {
         let sweep = sweep.clamp(-TAU, TAU);
         if sweep >= 0.0 {
-            SphereCurve { centre, u, v, t0: start, t1: start + sweep }
+            SphereCurve {
+                centre,
+                u,
+                v,
+                t0: start,
+                t1: start + sweep,
+            }
         } else {
             // Run the same points the other way round so that t0 < t1 always holds:
             // P(-s) with v negated traces the arc backwards.
-            SphereCurve { centre, u, v: -v, t0: -start, t1: -start - sweep }
+            SphereCurve {
+                centre,
+                u,
+                v: -v,
+                t0: -start,
+                t1: -start - sweep,
+            }
         }
     }
 
@@ -198,7 +216,11 @@ impl SphereCurve {
             }
             let t = self.v.dot(&closest).atan2(self.u.dot(&closest));
             let t = self.t0 + (t - self.t0).rem_euclid(TAU);
-            return if t > self.t0 && t < self.t1 { vec![(t, distance)] } else { Vec::new() };
+            return if t > self.t0 && t < self.t1 {
+                vec![(t, distance)]
+            } else {
+                Vec::new()
+            };
         }
         self.pole_approaches_numerically(&pole, within)
     }
@@ -208,7 +230,9 @@ impl SphereCurve {
         const SAMPLES: usize = 64;
         let step = (self.t1 - self.t0) / SAMPLES as f64;
         let distance = |t: f64| super::angle_between(&self.position(t), pole);
-        let values: Vec<f64> = (0..=SAMPLES).map(|i| distance(self.t0 + step * i as f64)).collect();
+        let values: Vec<f64> = (0..=SAMPLES)
+            .map(|i| distance(self.t0 + step * i as f64))
+            .collect();
         let mut found = Vec::new();
         for i in 1..SAMPLES {
             if values[i] <= values[i - 1] && values[i] <= values[i + 1] {
@@ -287,8 +311,13 @@ mod tests {
 
     #[test]
     fn plane_crossings_solve_the_trigonometric_equation() {
-        let circle =
-            SphereCurve::ellipse_arc(v(0.5, 3.0, 0.2), v(2.0, 0.0, 0.0), v(0.0, 0.0, 1.5), 0.0, TAU);
+        let circle = SphereCurve::ellipse_arc(
+            v(0.5, 3.0, 0.2),
+            v(2.0, 0.0, 0.0),
+            v(0.0, 0.0, 1.5),
+            0.0,
+            TAU,
+        );
         let m = v(1.0, 0.0, 0.0);
         let roots = circle.plane_crossings(&m);
         assert_eq!(roots.as_slice().len(), 2);
@@ -303,8 +332,20 @@ mod tests {
 
     #[test]
     fn reversed_ellipse_arc_traces_the_same_points() {
-        let forward = SphereCurve::ellipse_arc(v(0.0, 4.0, 0.0), v(1.0, 0.0, 0.0), v(0.0, 0.0, 2.0), 0.3, 1.2);
-        let backward = SphereCurve::ellipse_arc(v(0.0, 4.0, 0.0), v(1.0, 0.0, 0.0), v(0.0, 0.0, 2.0), 1.5, -1.2);
+        let forward = SphereCurve::ellipse_arc(
+            v(0.0, 4.0, 0.0),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 0.0, 2.0),
+            0.3,
+            1.2,
+        );
+        let backward = SphereCurve::ellipse_arc(
+            v(0.0, 4.0, 0.0),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 0.0, 2.0),
+            1.5,
+            -1.2,
+        );
         assert!(backward.t0 < backward.t1);
         assert!((forward.position(forward.t0) - backward.position(backward.t1)).norm() < 1e-14);
         assert!((forward.position(forward.t1) - backward.position(backward.t0)).norm() < 1e-14);
@@ -340,7 +381,13 @@ mod tests {
 
     #[test]
     fn numeric_pole_approach_matches_a_dense_scan() {
-        let ring = SphereCurve::ellipse_arc(v(0.3, 0.1, 5.0), v(2.0, 0.0, 0.0), v(0.0, 1.5, 0.5), 0.0, TAU);
+        let ring = SphereCurve::ellipse_arc(
+            v(0.3, 0.1, 5.0),
+            v(2.0, 0.0, 0.0),
+            v(0.0, 1.5, 0.5),
+            0.0,
+            TAU,
+        );
         let found = ring.pole_approaches(true, 1.0);
         assert!(!found.is_empty());
         let pole = v(0.0, 0.0, 1.0);

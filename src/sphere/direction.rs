@@ -44,9 +44,21 @@ mod tests {
     #[test]
     fn azimuth_turns_clockwise_from_forward() {
         assert_near(azimuth_elevation(&Vector3::new(0.0, 1.0, 0.0)).0, 0.0, 0.0);
-        assert_near(azimuth_elevation(&Vector3::new(1.0, 0.0, 0.0)).0, FRAC_PI_2, 1e-15);
-        assert_near(azimuth_elevation(&Vector3::new(-1.0, 0.0, 0.0)).0, -FRAC_PI_2, 1e-15);
-        assert_near(azimuth_elevation(&Vector3::new(0.0, -1.0, 0.0)).0, PI, 1e-15);
+        assert_near(
+            azimuth_elevation(&Vector3::new(1.0, 0.0, 0.0)).0,
+            FRAC_PI_2,
+            1e-15,
+        );
+        assert_near(
+            azimuth_elevation(&Vector3::new(-1.0, 0.0, 0.0)).0,
+            -FRAC_PI_2,
+            1e-15,
+        );
+        assert_near(
+            azimuth_elevation(&Vector3::new(0.0, -1.0, 0.0)).0,
+            PI,
+            1e-15,
+        );
     }
 
     #[test]
@@ -63,7 +75,15 @@ mod tests {
     fn angle_between_keeps_precision_near_zero_and_pi() {
         let a = Vector3::new(1.0, 0.0, 0.0);
         let tiny = 1e-9;
-        assert_near(angle_between(&a, &Vector3::new(1.0, tiny, 0.0)), tiny, 1e-20);
-        assert_near(angle_between(&a, &Vector3::new(-1.0, tiny, 0.0)), PI - tiny, 1e-15);
+        assert_near(
+            angle_between(&a, &Vector3::new(1.0, tiny, 0.0)),
+            tiny,
+            1e-20,
+        );
+        assert_near(
+            angle_between(&a, &Vector3::new(-1.0, tiny, 0.0)),
+            PI - tiny,
+            1e-15,
+        );
     }
 }

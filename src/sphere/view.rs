@@ -50,7 +50,10 @@ impl ViewFrame {
         let pitch = Rotation3::from_axis_angle(&Vector3::x_axis(), -standpoint.pitch);
         // The rolled up vector (sin r, 0, cos r) turned by -r about y gives (0, 0, 1).
         let roll = Rotation3::from_axis_angle(&Vector3::y_axis(), -standpoint.roll);
-        ViewFrame { eye: standpoint.eye(), site_to_view: roll * pitch * heading }
+        ViewFrame {
+            eye: standpoint.eye(),
+            site_to_view: roll * pitch * heading,
+        }
     }
 
     pub fn eye(&self) -> Point3<f64> {
@@ -82,9 +85,14 @@ impl ViewFrame {
                 }
                 SphereCurve::great_arc(&a, &b).ok_or(Degeneracy::SeenEndOn)
             }
-            SiteCurve::Ellipse { centre, u, v, start, sweep } => {
-                if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300) || sweep == 0.0
-                {
+            SiteCurve::Ellipse {
+                centre,
+                u,
+                v,
+                start,
+                sweep,
+            } => {
+                if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300) || sweep == 0.0 {
                     return Err(Degeneracy::ZeroLength);
                 }
                 Ok(SphereCurve::ellipse_arc(
@@ -111,7 +119,11 @@ mod tests {
     #[test]
     fn heading_direction_is_straight_ahead() {
         let view = ViewFrame::new(&standpoint(30.0, 0.0, 0.0));
-        let ahead = Point3::new(1.0 + 30f64.to_radians().sin(), 2.0 + 30f64.to_radians().cos(), 1.5);
+        let ahead = Point3::new(
+            1.0 + 30f64.to_radians().sin(),
+            2.0 + 30f64.to_radians().cos(),
+            1.5,
+        );
         let v = view.to_view(&ahead);
         assert!((v - Vector3::new(0.0, 1.0, 0.0)).norm() < 1e-15, "{v}");
         // East lies 60 degrees to the right of a 30-degree heading.
@@ -133,7 +145,9 @@ mod tests {
     fn degenerate_edges_are_named() {
         let view = ViewFrame::new(&standpoint(0.0, 0.0, 0.0));
         let eye = view.eye();
-        let seg = |a: Point3<f64>, b: Point3<f64>| view.sphere_curve(&SiteCurve::Segment { start: a, end: b });
+        let seg = |a: Point3<f64>, b: Point3<f64>| {
+            view.sphere_curve(&SiteCurve::Segment { start: a, end: b })
+        };
         let p = Point3::new(5.0, 5.0, 0.0);
         assert_eq!(seg(p, p), Err(Degeneracy::ZeroLength));
         assert_eq!(seg(eye, p), Err(Degeneracy::EndAtEye));

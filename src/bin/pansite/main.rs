@@ -1,1 +1,196 @@
-fn main(){}
+//! The `pansite` command: parse, call the library, report.
+
+mod args;
+
+use anyhow::Context;
+use args::{Cli, Command, RenderArgs};
+use clap::Parser;
+use pansite::output::encode_grey_png;
+use pansite::render::{draw, raster, render_png, RenderSettings};
+use pansite::scene::{load_scene, parse_scene, Site, Standpoint, DEFAULT_EYE_HEIGHT};
+use pansite::Error;
+use std::io::{Read, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::Instant;
+
+/// How many skipped edges are named one by one before the rest are counted.
+const MAX_NAMED_SKIPS: usize = 20;
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(error) => {
+            let _ = error.print();
+            return ExitCode::from(error.exit_code().clamp(0, 255) as u8);
+        }
+    };
+    let result = match cli.command {
+        Command::Render(args) => render(&args),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(error) => {
+            eprintln!("pansite: error: {error:#}");
+            let bad_input = error
+                .chain()
+                .any(|e| e.downcast_ref::<Error>().is_some_and(Error::is_bad_input));
+            ExitCode::from(if bad_input { 2 } else { 1 })
+        }
+    }
+}
+
+fn render(args: &RenderArgs) -> anyhow::Result<()> {
+    let started = Instant::now();
+    let site = read_site(&args.scene)?;
+    let load_time = started.elapsed();
+    let standpoint = choose_standpoint(&site, args)?;
+    let settings = RenderSettings {
+        width: args.size.0,
+        height: args.size.1,
+        tolerance_px: args.tolerance,
+        line_weight_px: args.line_weight,
+        overlays: !args.bare,
+    };
+    settings.validate()?;
+    let output = args
+        .output
+        .clone()
+        .unwrap_or_else(|| default_output(&args.scene, &standpoint));
+    let render = if output == Path::new("-") {
+        // Standard output cannot be replaced atomically: encode in memory, then send it.
+        let mut render = draw(&site, &standpoint, &settings)?;
+        let canvas = raster(&mut render);
+        let mut bytes = Vec::new();
+        encode_grey_png(&canvas, &mut bytes)?;
+        std::io::stdout()
+            .lock()
+            .write_all(&bytes)
+            .context("writing to standard output")?;
+        render
+    } else {
+        if args.output.is_none() {
+            if let Some(folder) = output.parent() {
+                std::fs::create_dir_all(folder)
+                    .with_context(|| format!("cannot create the folder {}", folder.display()))?;
+            }
+        }
+        render_png(&site, &standpoint, &settings, &output)
+            .with_context(|| format!("rendering {}", output.display()))?
+    };
+    if !args.quiet {
+        for skipped in render.skipped.iter().take(MAX_NAMED_SKIPS) {
+            eprintln!(
+                "pansite: warning: skipped an edge of {}: {}",
+                site.describe_item(skipped.item),
+                skipped.why
+            );
+        }
+        if render.skipped.len() > MAX_NAMED_SKIPS {
+            eprintln!(
+                "pansite: warning: ... and {} more",
+                render.skipped.len() - MAX_NAMED_SKIPS
+            );
+        }
+        let lines = render.drawing.layers.last().map_or(0, |l| l.lines.len());
+        eprintln!(
+            "pansite: wrote {} ({}x{} px, standpoint \"{}\", {} edges as {} lines, {} skipped)",
+            output.display(),
+            settings.width,
+            settings.height,
+            standpoint.name,
+            site.edges.len(),
+            lines,
+            render.skipped.len()
+        );
+    }
+    if args.timings {
+        let t = &render.timings;
+        eprintln!(
+            "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster {:.1} ms, encode {:.1} ms",
+            load_time.as_secs_f64() * 1e3,
+            t.flatten.as_secs_f64() * 1e3,
+            t.raster.as_secs_f64() * 1e3,
+            t.encode.as_secs_f64() * 1e3
+        );
+    }
+    Ok(())
+}
+
+fn read_site(path: &Path) -> pansite::Result<Site> {
+    if path == Path::new("-") {
+        let mut bytes = Vec::new();
+        std::io::stdin()
+            .read_to_end(&mut bytes)
+            .map_err(|source| Error::Read {
+                path: PathBuf::from("<stdin>"),
+                source,
+            })?;
+        return parse_scene(&bytes, Path::new("<stdin>"), "stdin");
+    }
+    load_scene(path)
+}
+
+/// The scene's standpoint (named, or the first), or one made from `--at`, with any
+/// command-line overrides applied.
+fn choose_standpoint(site: &Site, args: &RenderArgs) -> pansite::Result<Standpoint> {
+    let mut standpoint = match (&args.standpoint, args.at) {
+        (Some(name), _) => {
+            site.standpoint(name)
+                .cloned()
+                .ok_or_else(|| Error::UnknownStandpoint {
+                    name: name.clone(),
+                    available: site
+                        .standpoints
+                        .iter()
+                        .map(|s| s.name.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                })?
+        }
+        (None, Some((x, y))) => {
+            Standpoint::from_degrees("here", x, y, DEFAULT_EYE_HEIGHT, 0.0, 0.0, 0.0)
+        }
+        (None, None) => site
+            .standpoints
+            .first()
+            .cloned()
+            .ok_or(Error::NoStandpoint)?,
+    };
+    if let (Some((x, y)), Some(_)) = (args.at, &args.standpoint) {
+        standpoint.x = x;
+        standpoint.y = y;
+    }
+    if let Some(eye_height) = args.eye_height {
+        standpoint.eye_height = eye_height;
+    }
+    if let Some(heading) = args.heading {
+        standpoint.heading = heading.to_radians();
+    }
+    if let Some(pitch) = args.pitch {
+        standpoint.pitch = pitch.to_radians();
+    }
+    if let Some(roll) = args.roll {
+        standpoint.roll = roll.to_radians();
+    }
+    Ok(standpoint)
+}
+
+/// `renders/SCENE-STANDPOINT.png`, with the standpoint's name made safe for a file name.
+fn default_output(scene: &Path, standpoint: &Standpoint) -> PathBuf {
+    let stem = scene
+        .file_stem()
+        .map_or("scene".into(), |s| s.to_string_lossy().into_owned());
+    let name: String = standpoint
+        .name
+        .chars()
+        .map(|c| {
+            if c.is_alphanumeric() || c == '-' || c == '_' {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    PathBuf::from("renders").join(format!("{stem}-{name}.png"))
+}

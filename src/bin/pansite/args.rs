@@ -1,0 +1,189 @@
+//! What the user typed (clap), and its checks.
+
+use clap::{Args, Parser, Subcommand};
+use std::path::PathBuf;
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "pansite",
+    version,
+    about = "Exact equirectangular wireframe underlays for hand-drawn 360-degree perspectives",
+    after_help = "Exit codes: 0 success, 1 failure, 2 bad usage or bad input."
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Draw a scene from a standpoint as an equirectangular PNG underlay.
+    Render(RenderArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct RenderArgs {
+    /// The scene file (RON), or - for standard input.
+    pub scene: PathBuf,
+
+    /// Output PNG, or - for standard output [default: renders/SCENE-STANDPOINT.png].
+    #[arg(short, long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+
+    /// Which of the scene's standpoints to use [default: the first].
+    #[arg(short, long, value_name = "NAME")]
+    pub standpoint: Option<String>,
+
+    /// Stand at this plan position instead, metres east and north.
+    #[arg(long, value_name = "X,Y", value_parser = parse_pair)]
+    pub at: Option<(f64, f64)>,
+
+    /// Eye height above the ground, metres [default: the standpoint's, or 1.6].
+    #[arg(long, value_name = "METRES", value_parser = parse_finite)]
+    pub eye_height: Option<f64>,
+
+    /// Azimuth at the centre of the image, degrees clockwise from north.
+    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
+    pub heading: Option<f64>,
+
+    /// Tilt of the view, degrees; positive looks up.
+    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
+    pub pitch: Option<f64>,
+
+    /// Roll of the view, degrees; positive turns up towards the right.
+    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
+    pub roll: Option<f64>,
+
+    /// Image size in pixels, WIDTHxHEIGHT (2:1 for the full sphere).
+    #[arg(long, value_name = "WxH", default_value = "4096x2048", value_parser = parse_size)]
+    pub size: (u32, u32),
+
+    /// Width of the wireframe's lines, pixels.
+    #[arg(long, value_name = "PX", default_value_t = 1.5, value_parser = parse_finite)]
+    pub line_weight: f64,
+
+    /// Largest distance between a true curve and its drawn polyline, pixels.
+    #[arg(long, value_name = "PX", default_value_t = pansite::plane::DEFAULT_TOLERANCE_PX, value_parser = parse_finite)]
+    pub tolerance: f64,
+
+    /// The wireframe alone, full-bleed on white: no grid, no horizon.
+    #[arg(long)]
+    pub bare: bool,
+
+    /// Print nothing but errors.
+    #[arg(short, long)]
+    pub quiet: bool,
+
+    /// Print the time each stage took on standard error.
+    #[arg(long)]
+    pub timings: bool,
+}
+
+fn parse_finite(text: &str) -> Result<f64, String> {
+    let value: f64 = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("expected a number, found \"{text}\""))?;
+    if value.is_finite() {
+        Ok(value)
+    } else {
+        Err(format!("expected a finite number, found \"{text}\""))
+    }
+}
+
+fn parse_pair(text: &str) -> Result<(f64, f64), String> {
+    let (x, y) = text
+        .split_once(',')
+        .ok_or_else(|| format!("expected X,Y, found \"{text}\""))?;
+    Ok((parse_finite(x)?, parse_finite(y)?))
+}
+
+fn parse_size(text: &str) -> Result<(u32, u32), String> {
+    let (w, h) = text
+        .split_once(['x', 'X'])
+        .ok_or_else(|| format!("expected WIDTHxHEIGHT such as 4096x2048, found \"{text}\""))?;
+    let number = |s: &str| {
+        s.trim()
+            .parse::<u32>()
+            .map_err(|_| format!("expected a whole number of pixels, found \"{s}\""))
+    };
+    Ok((number(w)?, number(h)?))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn render(args: &[&str]) -> Result<RenderArgs, clap::Error> {
+        let mut all = vec!["pansite", "render", "scene.ron"];
+        all.extend_from_slice(args);
+        Cli::try_parse_from(all).map(|cli| match cli.command {
+            Command::Render(r) => r,
+        })
+    }
+
+    #[test]
+    fn defaults() {
+        let r = render(&[]).unwrap();
+        assert_eq!(r.size, (4096, 2048));
+        assert_eq!(r.line_weight, 1.5);
+        assert_eq!(r.tolerance, 0.1);
+        assert!(!r.bare && !r.quiet && !r.timings);
+        assert!(r.output.is_none() && r.standpoint.is_none() && r.at.is_none());
+    }
+
+    #[test]
+    fn every_option_is_read() {
+        let r = render(&[
+            "-o",
+            "out.png",
+            "-s",
+            "gate",
+            "--at",
+            "3,-4.5",
+            "--eye-height",
+            "1.2",
+            "--heading",
+            "-30",
+            "--pitch",
+            "5",
+            "--roll",
+            "-2",
+            "--size",
+            "800x400",
+            "--line-weight",
+            "2",
+            "--tolerance",
+            "0.05",
+            "--bare",
+            "--quiet",
+            "--timings",
+        ])
+        .unwrap();
+        assert_eq!(r.output.as_deref(), Some(std::path::Path::new("out.png")));
+        assert_eq!(r.standpoint.as_deref(), Some("gate"));
+        assert_eq!(r.at, Some((3.0, -4.5)));
+        assert_eq!(
+            (r.eye_height, r.heading, r.pitch, r.roll),
+            (Some(1.2), Some(-30.0), Some(5.0), Some(-2.0))
+        );
+        assert_eq!(r.size, (800, 400));
+        assert_eq!((r.line_weight, r.tolerance), (2.0, 0.05));
+        assert!(r.bare && r.quiet && r.timings);
+    }
+
+    #[test]
+    fn bad_values_are_usage_errors() {
+        for args in [
+            &["--size", "800"][..],
+            &["--size", "0.5x2"],
+            &["--at", "3"],
+            &["--heading", "NaN"],
+            &["--pitch", "inf"],
+            &["--line-weight", "thick"],
+        ] {
+            let error = render(args).unwrap_err();
+            assert_eq!(error.exit_code(), 2, "{args:?}");
+        }
+    }
+}

@@ -1,0 +1,10 @@
+//! Output backends. Each takes the [`Drawing`](crate::drawing::Drawing) and an explicit
+//! mapping onto its canvas; none holds global state.
+
+mod atomic;
+mod png;
+mod raster;
+
+pub use self::png::{encode_grey_png, write_grey_png};
+pub use atomic::write_atomically;
+pub use raster::{rasterize, GreyCanvas, MAX_PIXELS};

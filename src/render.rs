@@ -1,0 +1,177 @@
+//! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
+//! drawing -> canvas -> file, with the time each stage took.
+
+use crate::drawing::{
+    grid_and_horizon, wireframe, Drawing, Layer, SkippedEdge, Stroke, GRID_STEP_DEG,
+};
+use crate::error::{Error, Result};
+use crate::output::{encode_grey_png, rasterize, write_atomically, GreyCanvas, MAX_PIXELS};
+use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
+use crate::scene::{Site, Standpoint};
+use crate::sphere::ViewFrame;
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+/// What to draw and how large. Build with `Default` and change fields; [`draw`] validates.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RenderSettings {
+    pub width: u32,
+    pub height: u32,
+    /// See [`crate::plane`]: the largest distance between true curve and drawn polyline.
+    pub tolerance_px: f64,
+    /// Width of the wireframe's lines, pixels.
+    pub line_weight_px: f64,
+    /// The reference grid and the horizon under the wireframe. Off gives the bare wireframe,
+    /// full-bleed on white, for exact checks.
+    pub overlays: bool,
+}
+
+impl Default for RenderSettings {
+    fn default() -> Self {
+        RenderSettings {
+            width: 4096,
+            height: 2048,
+            tolerance_px: DEFAULT_TOLERANCE_PX,
+            line_weight_px: 1.5,
+            overlays: true,
+        }
+    }
+}
+
+impl RenderSettings {
+    /// Refuses settings that cannot be drawn, before anything is allocated.
+    pub fn validate(&self) -> Result<()> {
+        let (w, h) = (self.width as u64, self.height as u64);
+        if w == 0 || h == 0 {
+            return Err(Error::ImageSize {
+                width: w,
+                height: h,
+                reason: "empty".into(),
+            });
+        }
+        if w * h > MAX_PIXELS {
+            return Err(Error::ImageSize {
+                width: w,
+                height: h,
+                reason: format!(
+                    "{:.0} megapixels, above the limit of {} megapixels",
+                    (w * h) as f64 / 1e6,
+                    MAX_PIXELS / 1_000_000
+                ),
+            });
+        }
+        if !(self.tolerance_px.is_finite() && (0.001..=100.0).contains(&self.tolerance_px)) {
+            return Err(Error::Setting(format!(
+                "tolerance {} px is outside 0.001 to 100 px",
+                self.tolerance_px
+            )));
+        }
+        if !(self.line_weight_px.is_finite()
+            && self.line_weight_px > 0.0
+            && self.line_weight_px <= 1000.0)
+        {
+            return Err(Error::Setting(format!(
+                "line weight {} px is outside (0, 1000] px",
+                self.line_weight_px
+            )));
+        }
+        Ok(())
+    }
+}
+
+/// Stage times, for `--timings`.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Timings {
+    pub flatten: Duration,
+    pub raster: Duration,
+    pub encode: Duration,
+}
+
+/// A finished drawing and what happened on the way.
+#[derive(Clone, Debug)]
+pub struct Render {
+    pub drawing: Drawing,
+    pub skipped: Vec<SkippedEdge>,
+    pub timings: Timings,
+}
+
+/// The grid's strokes: light enough to draw over, the horizon a little stronger.
+const GRID_STROKE: Stroke = Stroke {
+    ink: 0.22,
+    width_px: 1.0,
+};
+const HORIZON_STROKE: Stroke = Stroke {
+    ink: 0.5,
+    width_px: 1.25,
+};
+
+/// Builds the drawing of `site` seen from `standpoint`.
+pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
+    settings.validate()?;
+    let started = Instant::now();
+    let view = ViewFrame::new(standpoint);
+    let map = Equirect::from_size_px(settings.width as f64, settings.height as f64);
+    let flattener = Flattener::new(map, settings.tolerance_px);
+    let mut layers = Vec::new();
+    if settings.overlays {
+        let (grid, horizon) = grid_and_horizon(&view, &flattener, GRID_STEP_DEG);
+        layers.push(Layer {
+            name: "grid",
+            stroke: GRID_STROKE,
+            lines: grid,
+        });
+        layers.push(Layer {
+            name: "horizon",
+            stroke: HORIZON_STROKE,
+            lines: horizon,
+        });
+    }
+    let (lines, skipped) = wireframe(site, &view, &flattener);
+    let stroke = Stroke {
+        ink: 1.0,
+        width_px: settings.line_weight_px,
+    };
+    layers.push(Layer {
+        name: "wireframe",
+        stroke,
+        lines,
+    });
+    let drawing = Drawing {
+        width: settings.width,
+        height: settings.height,
+        layers,
+    };
+    let timings = Timings {
+        flatten: started.elapsed(),
+        ..Timings::default()
+    };
+    Ok(Render {
+        drawing,
+        skipped,
+        timings,
+    })
+}
+
+/// Rasterises a drawing, timing it into `render`.
+pub fn raster(render: &mut Render) -> GreyCanvas {
+    let started = Instant::now();
+    let canvas = rasterize(&render.drawing);
+    render.timings.raster = started.elapsed();
+    canvas
+}
+
+/// Draws, rasterises and writes a grey PNG atomically: on any error no file is left at
+/// `path` and an earlier file there is untouched.
+pub fn render_png(
+    site: &Site,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    path: &Path,
+) -> Result<Render> {
+    let mut render = draw(site, standpoint, settings)?;
+    let canvas = raster(&mut render);
+    let started = Instant::now();
+    write_atomically(path, |file| encode_grey_png(&canvas, file))?;
+    render.timings.encode = started.elapsed();
+    Ok(render)
+}
