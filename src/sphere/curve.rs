@@ -234,12 +234,15 @@ impl SphereCurve {
             .map(|i| distance(self.t0 + step * i as f64))
             .collect();
         let mut found = Vec::new();
-        for i in 1..SAMPLES {
-            if values[i] <= values[i - 1] && values[i] <= values[i + 1] {
+        // A sampled minimum at either end still brackets a minimum that may lie inside.
+        for i in 0..=SAMPLES {
+            let lower = i == 0 || values[i] <= values[i - 1];
+            let upper = i == SAMPLES || values[i] <= values[i + 1];
+            if lower && upper {
                 let (t, d) = golden_section_minimum(
                     &distance,
-                    self.t0 + step * (i - 1) as f64,
-                    self.t0 + step * (i + 1) as f64,
+                    self.t0 + step * i.saturating_sub(1) as f64,
+                    self.t0 + step * (i + 1).min(SAMPLES) as f64,
                 );
                 if d < within && t > self.t0 && t < self.t1 {
                     found.push((t, d));
