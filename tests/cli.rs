@@ -1,0 +1,354 @@
+//! The `pansite` binary, run for real in a fresh temporary folder for each test.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+const DEMO: &str = "scenes/wexcombe-square.ron";
+
+/// A fresh folder under the system's temporary folder, removed when dropped.
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(name: &str) -> Scratch {
+        let dir = std::env::temp_dir().join(format!("pansite-cli-{name}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        Scratch(dir)
+    }
+
+    fn path(&self, name: &str) -> PathBuf {
+        self.0.join(name)
+    }
+
+    fn write(&self, name: &str, text: &str) -> PathBuf {
+        let path = self.path(name);
+        std::fs::write(&path, text).unwrap();
+        path
+    }
+
+    fn files(&self) -> Vec<String> {
+        let mut names: Vec<String> = walk(&self.0)
+            .iter()
+            .map(|p| p.strip_prefix(&self.0).unwrap().display().to_string())
+            .collect();
+        names.sort();
+        names
+    }
+}
+
+fn walk(dir: &Path) -> Vec<PathBuf> {
+    let mut out = Vec::new();
+    for entry in std::fs::read_dir(dir).unwrap() {
+        let path = entry.unwrap().path();
+        if path.is_dir() {
+            out.extend(walk(&path));
+        } else {
+            out.push(path);
+        }
+    }
+    out
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+fn demo() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(DEMO)
+}
+
+fn pansite(dir: &Scratch, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .current_dir(&dir.0)
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn stderr(output: &Output) -> String {
+    String::from_utf8_lossy(&output.stderr).into_owned()
+}
+
+fn png_size(bytes: &[u8]) -> (u32, u32, png::ColorType) {
+    let decoder = png::Decoder::new(std::io::Cursor::new(bytes));
+    let reader = decoder.read_info().unwrap();
+    let info = reader.info();
+    (info.width, info.height, info.color_type)
+}
+
+#[test]
+fn renders_the_demo_into_renders_by_default() {
+    let dir = Scratch::new("default");
+    let out = pansite(
+        &dir,
+        &["render", demo().to_str().unwrap(), "--size", "800x400"],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert_eq!(dir.files(), vec!["renders/wexcombe-square-fountain.png"]);
+    let bytes = std::fs::read(dir.path("renders/wexcombe-square-fountain.png")).unwrap();
+    assert_eq!(png_size(&bytes), (800, 400, png::ColorType::Grayscale));
+    assert!(
+        stderr(&out).contains("wrote renders/wexcombe-square-fountain.png"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn standpoint_by_name_and_output_path() {
+    let dir = Scratch::new("named");
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            demo().to_str().unwrap(),
+            "-s",
+            "hall steps",
+            "-o",
+            "steps.png",
+            "--size",
+            "400x200",
+            "-q",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert!(
+        out.stderr.is_empty(),
+        "--quiet prints nothing: {}",
+        stderr(&out)
+    );
+    assert_eq!(dir.files(), vec!["steps.png"]);
+}
+
+#[test]
+fn writes_png_to_standard_output() {
+    let dir = Scratch::new("stdout");
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            demo().to_str().unwrap(),
+            "-o",
+            "-",
+            "--size",
+            "200x100",
+            "-q",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert_eq!(png_size(&out.stdout), (200, 100, png::ColorType::Grayscale));
+    assert!(dir.files().is_empty());
+}
+
+#[test]
+fn bare_render_is_white_where_nothing_is_drawn() {
+    let dir = Scratch::new("bare");
+    let scene = dir.write(
+        "one.ron",
+        "Scene(items: [Polyline(points: [(-1, 10, 1.6), (1, 10, 1.6)])])",
+    );
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            scene.to_str().unwrap(),
+            "--at",
+            "0,0",
+            "--bare",
+            "-o",
+            "bare.png",
+            "--size",
+            "360x180",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let decoder = png::Decoder::new(std::io::BufReader::new(
+        std::fs::File::open(dir.path("bare.png")).unwrap(),
+    ));
+    let mut reader = decoder.read_info().unwrap();
+    let mut pixels = vec![0; reader.output_buffer_size().unwrap()];
+    reader.next_frame(&mut pixels).unwrap();
+    // The short line straight ahead at eye level spans about +-5.7 degrees on the horizon
+    // row (rows 89 and 90 share it); everything else is white.
+    let dark: Vec<(usize, usize)> = (0..180 * 360)
+        .filter(|&i| pixels[i] < 255)
+        .map(|i| (i % 360, i / 360))
+        .collect();
+    assert!(
+        dark.iter()
+            .all(|&(x, y)| (172..=188).contains(&x) && (88..=91).contains(&y)),
+        "{dark:?}"
+    );
+    assert!(dark.iter().any(|&(x, _)| x == 180));
+}
+
+#[test]
+fn overrides_and_timings() {
+    let dir = Scratch::new("overrides");
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            demo().to_str().unwrap(),
+            "--at",
+            "0,-2",
+            "--eye-height",
+            "1.2",
+            "--heading",
+            "-45",
+            "--pitch",
+            "10",
+            "--roll",
+            "-5",
+            "--line-weight",
+            "2",
+            "--tolerance",
+            "0.2",
+            "--timings",
+            "-o",
+            "o.png",
+            "--size",
+            "400x200",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let text = stderr(&out);
+    for stage in ["load", "flatten", "raster", "encode"] {
+        assert!(text.contains(stage), "{text}");
+    }
+}
+
+#[test]
+fn skipped_edges_are_named_and_counted() {
+    let dir = Scratch::new("skipped");
+    // The second polyline runs straight through the eye at (0, 0, 1.6).
+    let scene = dir.write(
+        "s.ron",
+        "Scene(standpoints: [(name: \"here\", x: 0, y: 0)], items: [\n\
+         Polyline(label: \"rail\", points: [(-3, 5, 1), (3, 5, 1)]),\n\
+         Polyline(label: \"sight line\", points: [(0, -5, 1.6), (0, 5, 1.6)])])",
+    );
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            scene.to_str().unwrap(),
+            "-o",
+            "s.png",
+            "--size",
+            "200x100",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let text = stderr(&out);
+    assert!(
+        text.contains("polyline \"sight line\" (item 2)") && text.contains("through the eye"),
+        "{text}"
+    );
+    assert!(text.contains("1 skipped"), "{text}");
+}
+
+/// Bad input: exit 2, a message naming the problem, no output file, an earlier file intact.
+fn assert_refused(dir: &Scratch, args: &[&str], expected: &[&str]) {
+    let earlier = dir.write("out.png", "earlier good output");
+    let mut all = args.to_vec();
+    all.extend(["-o", "out.png"]);
+    let out = pansite(dir, &all);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {text}");
+    assert!(
+        text.starts_with("pansite: ") || text.starts_with("error:"),
+        "{text}"
+    );
+    for e in expected {
+        assert!(text.contains(e), "{args:?}: expected {e:?} in {text}");
+    }
+    assert_eq!(
+        std::fs::read_to_string(&earlier).unwrap(),
+        "earlier good output"
+    );
+    assert_eq!(
+        dir.files()
+            .iter()
+            .filter(|f| f.as_str() != "out.png" && !f.ends_with(".ron"))
+            .count(),
+        0,
+        "{:?}",
+        dir.files()
+    );
+}
+
+#[test]
+fn bad_scene_names_file_line_and_column() {
+    let dir = Scratch::new("bad-scene");
+    let scene = dir.write(
+        "bad.ron",
+        "Scene(items: [\n  Polyline(points: [(0, 0, 0), (1, NaN, 0)]),\n])",
+    );
+    assert_refused(
+        &dir,
+        &["render", scene.to_str().unwrap(), "--at", "0,0"],
+        &["bad.ron:2:", "finite"],
+    );
+    let scene = dir.write(
+        "typo.ron",
+        "Scene(items: [\n  Block(at: Corner(0, 0), width: 4, depht: 3, height: 2),\n])",
+    );
+    assert_refused(
+        &dir,
+        &["render", scene.to_str().unwrap(), "--at", "0,0"],
+        &["typo.ron:2:", "depht"],
+    );
+}
+
+#[test]
+fn bad_options_are_refused_before_work() {
+    let dir = Scratch::new("bad-options");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    assert_refused(
+        &dir,
+        &["render", demo, "--size", "0x100"],
+        &["0x100", "empty"],
+    );
+    assert_refused(
+        &dir,
+        &["render", demo, "--size", "100000x50000"],
+        &["megapixels"],
+    );
+    assert_refused(
+        &dir,
+        &["render", demo, "-s", "nowhere"],
+        &["nowhere", "fountain"],
+    );
+    assert_refused(&dir, &["render", demo, "--tolerance", "0"], &["tolerance"]);
+    assert_refused(&dir, &["render", demo, "--size", "wide"], &["WIDTHxHEIGHT"]);
+    assert_refused(&dir, &["render", "missing.ron"], &["missing.ron"]);
+    let no_standpoint = dir.write("none.ron", "Scene(items: [])");
+    assert_refused(
+        &dir,
+        &["render", no_standpoint.to_str().unwrap()],
+        &["standpoint"],
+    );
+}
+
+#[test]
+fn unwritable_output_is_a_failure_not_bad_input() {
+    let dir = Scratch::new("unwritable");
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            demo().to_str().unwrap(),
+            "-o",
+            "no/such/folder/x.png",
+            "--size",
+            "100x50",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    assert!(stderr(&out).contains("cannot write"), "{}", stderr(&out));
+    assert!(dir.files().is_empty());
+}

@@ -1,0 +1,124 @@
+//! Golden images of the demo scene, compared with an explicit per-channel tolerance and a
+//! count of differing pixels (so that another machine's last-bit differences in `atan2` do
+//! not fail the test, while any real change in the drawing does).
+//!
+//! On failure `target/golden/NAME.png` shows expected | difference | actual side by side.
+//! Regenerate the references with `PANSITE_BLESS=1 cargo test --test golden`.
+
+use pansite::output::{encode_grey_png, GreyCanvas};
+use pansite::render::{draw, raster, RenderSettings};
+use pansite::scene::load_scene;
+use std::path::{Path, PathBuf};
+
+/// Largest difference in grey levels that counts as equal.
+const CHANNEL_TOLERANCE: u8 = 24;
+/// How many pixels may differ by more than that.
+const MAX_DIFFERING_PIXELS: usize = 8;
+
+fn golden_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/golden")
+}
+
+fn read_png(path: &Path) -> GreyCanvas {
+    let decoder = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(path).unwrap()));
+    let mut reader = decoder.read_info().unwrap();
+    let mut pixels = vec![0; reader.output_buffer_size().unwrap()];
+    let info = reader.next_frame(&mut pixels).unwrap();
+    assert_eq!(info.color_type, png::ColorType::Grayscale);
+    GreyCanvas {
+        width: info.width,
+        height: info.height,
+        pixels,
+    }
+}
+
+fn write_png(canvas: &GreyCanvas, path: &Path) {
+    std::fs::create_dir_all(path.parent().unwrap()).unwrap();
+    encode_grey_png(canvas, std::fs::File::create(path).unwrap()).unwrap();
+}
+
+fn check(name: &str, standpoint: &str, settings: RenderSettings) {
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let standpoint = site.standpoint(standpoint).unwrap();
+    let mut render = draw(&site, standpoint, &settings).unwrap();
+    let actual = raster(&mut render);
+    let reference = golden_dir().join(format!("{name}.png"));
+    if std::env::var_os("PANSITE_BLESS").is_some() {
+        write_png(&actual, &reference);
+        return;
+    }
+    let expected = read_png(&reference);
+    assert_eq!(
+        (expected.width, expected.height),
+        (actual.width, actual.height)
+    );
+    let differing = expected
+        .pixels
+        .iter()
+        .zip(&actual.pixels)
+        .filter(|(e, a)| e.abs_diff(**a) > CHANNEL_TOLERANCE)
+        .count();
+    if differing > MAX_DIFFERING_PIXELS {
+        let (w, h) = (actual.width as usize, actual.height as usize);
+        let mut side_by_side = GreyCanvas {
+            width: 3 * actual.width,
+            height: actual.height,
+            pixels: vec![255; 3 * w * h],
+        };
+        for y in 0..h {
+            for x in 0..w {
+                let (e, a) = (expected.pixels[y * w + x], actual.pixels[y * w + x]);
+                side_by_side.pixels[y * 3 * w + x] = e;
+                side_by_side.pixels[y * 3 * w + w + x] = 255 - e.abs_diff(a);
+                side_by_side.pixels[y * 3 * w + 2 * w + x] = a;
+            }
+        }
+        let report =
+            Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("target/golden/{name}.png"));
+        write_png(&side_by_side, &report);
+        panic!(
+            "{name}: {differing} pixels differ by more than {CHANNEL_TOLERANCE} levels (at most {MAX_DIFFERING_PIXELS} may); see {}",
+            report.display()
+        );
+    }
+}
+
+#[test]
+fn demo_with_grid() {
+    check(
+        "wexcombe-fountain",
+        "fountain",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            ..RenderSettings::default()
+        },
+    );
+}
+
+#[test]
+fn demo_bare_from_the_steps() {
+    let settings = RenderSettings {
+        width: 1024,
+        height: 512,
+        overlays: false,
+        ..RenderSettings::default()
+    };
+    check("wexcombe-steps-bare", "hall steps", settings);
+}
+
+#[test]
+fn demo_seated_at_the_lane_corner() {
+    check(
+        "wexcombe-lane-corner",
+        "lane corner",
+        RenderSettings {
+            width: 800,
+            height: 400,
+            line_weight_px: 1.0,
+            ..RenderSettings::default()
+        },
+    );
+}
