@@ -1,1 +1,253 @@
-fn main() {}
+//! `cargo bench`: speed and memory of the whole pipeline, reported as ratios to a floor
+//! measured in the same run (machines are shared and noisy; absolute times are not
+//! comparable from one run to the next, ratios mostly are).
+//!
+//! Floor F: allocate and fill a blank 8192x4096 grey canvas and encode it as an 8-bit grey
+//! PNG with the `png` crate's fast compression, into memory.
+//!
+//! Cases:
+//! - `town`: a synthetic town of about 100,000 edges (blocks with window grids over
+//!   400 m x 400 m, the standpoint among them) at 8192x4096: parse, draw, rasterise, encode.
+//! - `demo`: the bundled demo scene at 8192x4096.
+//!
+//! Peak memory is measured by running each case once more in a child process and reading
+//! its high-water mark (`VmHWM`) from `/proc/self/status`.
+
+use pansite::output::{encode_grey_png, GreyCanvas};
+use pansite::plane::{Equirect, Flattener, PolylineSet, DEFAULT_TOLERANCE_PX};
+use pansite::render::{draw, raster, RenderSettings};
+use pansite::scene::{parse_scene, Site};
+use pansite::sphere::ViewFrame;
+use std::fmt::Write as _;
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+const WIDTH: u32 = 8192;
+const HEIGHT: u32 = 4096;
+const RUNS: usize = 7;
+
+/// The synthetic town as scene text: a 25 x 25 grid of blocks on a 16 m pitch, each with
+/// three storeys of three windows on every face (156 edges a block).
+fn town_scene() -> String {
+    let mut text = String::from(
+        "Scene(standpoints: [(name: \"crossing\", x: 6.5, y: 6.5, heading: 30)], items: [\n",
+    );
+    for i in 0..25 {
+        for j in 0..25 {
+            let (x, y) = (-200.0 + 16.0 * i as f64, -200.0 + 16.0 * j as f64);
+            let height = 9.0 + ((i * 7 + j * 13) % 5) as f64 * 1.5;
+            writeln!(
+                text,
+                "Block(at: Corner({x}, {y}), width: 10, depth: 10, height: {height}),"
+            )
+            .unwrap();
+            // Windows: 1.2 x 1.5 m, three across each 10 m face, three storeys.
+            for storey in 0..3 {
+                let z0 = 1.0 + 3.0 * storey as f64;
+                let z1 = z0 + 1.5;
+                for k in 0..3 {
+                    let a = 1.8 + 3.2 * k as f64;
+                    let b = a + 1.2;
+                    let faces = [
+                        [(x + a, y), (x + b, y)],
+                        [(x + 10.0, y + a), (x + 10.0, y + b)],
+                        [(x + b, y + 10.0), (x + a, y + 10.0)],
+                        [(x, y + b), (x, y + a)],
+                    ];
+                    for [(ax, ay), (bx, by)] in faces {
+                        writeln!(
+                            text,
+                            "Polyline(closed: true, points: [({ax}, {ay}, {z0}), ({bx}, {by}, {z0}), ({bx}, {by}, {z1}), ({ax}, {ay}, {z1})]),"
+                        )
+                        .unwrap();
+                    }
+                }
+            }
+        }
+    }
+    text.push_str("])\n");
+    text
+}
+
+fn demo_scene() -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap()
+}
+
+fn floor() -> usize {
+    let canvas = GreyCanvas {
+        width: WIDTH,
+        height: HEIGHT,
+        pixels: vec![255; (WIDTH * HEIGHT) as usize],
+    };
+    let mut bytes = Vec::new();
+    encode_grey_png(&canvas, &mut bytes).unwrap();
+    bytes.len()
+}
+
+fn settings() -> RenderSettings {
+    RenderSettings {
+        width: WIDTH,
+        height: HEIGHT,
+        ..RenderSettings::default()
+    }
+}
+
+/// Stage times of one whole render, and the edge and vertex counts.
+struct Run {
+    parse: Duration,
+    flatten: Duration,
+    raster: Duration,
+    encode: Duration,
+    edges: usize,
+    vertices: usize,
+}
+
+impl Run {
+    fn total(&self) -> Duration {
+        self.parse + self.flatten + self.raster + self.encode
+    }
+}
+
+fn whole(text: &str) -> Run {
+    let started = Instant::now();
+    let site = parse_scene(text.as_bytes(), Path::new("bench.ron"), "bench").unwrap();
+    let parse = started.elapsed();
+    let mut render = draw(&site, &site.standpoints[0], &settings()).unwrap();
+    let canvas = raster(&mut render);
+    let started = Instant::now();
+    let mut bytes = Vec::with_capacity(8 << 20);
+    encode_grey_png(&canvas, &mut bytes).unwrap();
+    let encode = started.elapsed();
+    Run {
+        parse,
+        flatten: render.timings.flatten,
+        raster: render.timings.raster,
+        encode,
+        edges: site.edges.len(),
+        vertices: render.drawing.vertex_count(),
+    }
+}
+
+/// Projection and flattening alone on one core: output vertices per second.
+fn flatten_rate(site: &Site) -> f64 {
+    let view = ViewFrame::new(&site.standpoints[0]);
+    let flattener = Flattener::new(
+        Equirect::from_size_px(WIDTH as f64, HEIGHT as f64),
+        DEFAULT_TOLERANCE_PX,
+    );
+    let started = Instant::now();
+    let mut lines = PolylineSet::new();
+    for edge in &site.edges {
+        if let Ok(curve) = view.sphere_curve(&edge.curve) {
+            flattener.flatten(&curve, &mut lines);
+        }
+    }
+    lines.vertex_count() as f64 / started.elapsed().as_secs_f64()
+}
+
+fn median(mut values: Vec<Duration>) -> Duration {
+    values.sort();
+    values[values.len() / 2]
+}
+
+fn ms(d: Duration) -> f64 {
+    d.as_secs_f64() * 1e3
+}
+
+/// Peak resident memory of this process so far, bytes.
+fn peak_memory() -> Option<u64> {
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = status.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kib: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kib * 1024)
+}
+
+/// Runs one case in a fresh child process and returns its peak memory.
+fn child_peak(case: &str) -> Option<u64> {
+    let output = std::process::Command::new(std::env::current_exe().ok()?)
+        .env("PANSITE_BENCH_CHILD", case)
+        .output()
+        .ok()?;
+    String::from_utf8_lossy(&output.stdout).trim().parse().ok()
+}
+
+fn main() {
+    if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
+        match case.as_str() {
+            "floor" => drop(floor()),
+            "town" => drop(whole(&town_scene())),
+            "demo" => drop(whole(&demo_scene())),
+            _ => {}
+        }
+        println!("{}", peak_memory().unwrap_or(0));
+        return;
+    }
+    let town = town_scene();
+    let demo = demo_scene();
+    // Warm up caches and the allocator once.
+    floor();
+    whole(&demo);
+
+    let floor_time = median(
+        (0..RUNS)
+            .map(|_| {
+                let s = Instant::now();
+                floor();
+                s.elapsed()
+            })
+            .collect(),
+    );
+    let town_runs: Vec<Run> = (0..RUNS).map(|_| whole(&town)).collect();
+    let demo_runs: Vec<Run> = (0..RUNS).map(|_| whole(&demo)).collect();
+    let town_site = parse_scene(town.as_bytes(), Path::new("town.ron"), "town").unwrap();
+    let rate = (0..RUNS)
+        .map(|_| flatten_rate(&town_site))
+        .fold(0.0, f64::max);
+
+    let image_bytes = (WIDTH as u64) * (HEIGHT as u64);
+    println!(
+        "pansite benchmark, {WIDTH}x{HEIGHT}, median of {RUNS} runs, {} cores",
+        std::thread::available_parallelism().map_or(1, |n| n.get())
+    );
+    println!(
+        "floor F (blank canvas + grey PNG fast encode): {:.1} ms",
+        ms(floor_time)
+    );
+    println!();
+    println!("| case | edges | vertices | parse ms | flatten ms | raster ms | encode ms | total ms | total / F | peak memory |");
+    println!("|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
+    for (name, runs) in [("town", &town_runs), ("demo", &demo_runs)] {
+        let pick = |f: fn(&Run) -> Duration| median(runs.iter().map(f).collect());
+        let total = pick(Run::total);
+        let peak = child_peak(name).map_or("n/a".to_owned(), |p| {
+            format!(
+                "{:.0} MB (image {:.0} MB + {:.0} MB)",
+                p as f64 / 1e6,
+                image_bytes as f64 / 1e6,
+                (p as f64 - image_bytes as f64) / 1e6
+            )
+        });
+        println!(
+            "| {name} | {} | {} | {:.1} | {:.1} | {:.1} | {:.1} | {:.1} | {:.2} | {peak} |",
+            runs[0].edges,
+            runs[0].vertices,
+            ms(pick(|r| r.parse)),
+            ms(pick(|r| r.flatten)),
+            ms(pick(|r| r.raster)),
+            ms(pick(|r| r.encode)),
+            ms(total),
+            total.as_secs_f64() / floor_time.as_secs_f64(),
+        );
+    }
+    println!();
+    println!(
+        "projection + flattening, one core: {:.1} million output vertices per second",
+        rate / 1e6
+    );
+    if let Some(peak) = child_peak("floor") {
+        println!("floor's own peak memory: {:.0} MB", peak as f64 / 1e6);
+    }
+}
