@@ -134,7 +134,7 @@ fn whole(text: &str) -> Run {
 /// Projection and flattening alone on one core: output vertices per second.
 fn flatten_rate(site: &Site) -> f64 {
     let view = ViewFrame::new(&site.standpoints[0]);
-    let flattener = Flattener::new(
+    let mut flattener = Flattener::new(
         Equirect::from_size_px(WIDTH as f64, HEIGHT as f64),
         DEFAULT_TOLERANCE_PX,
     );

@@ -111,10 +111,10 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
     let map = Equirect::from_size_px(settings.width as f64, settings.height as f64);
-    let flattener = Flattener::new(map, settings.tolerance_px);
+    let mut flattener = Flattener::new(map, settings.tolerance_px);
     let mut layers = Vec::new();
     if settings.overlays {
-        let (grid, horizon) = grid_and_horizon(&view, &flattener, GRID_STEP_DEG);
+        let (grid, horizon) = grid_and_horizon(&view, &mut flattener, GRID_STEP_DEG);
         layers.push(Layer {
             name: "grid",
             stroke: GRID_STROKE,

@@ -13,7 +13,7 @@ pub const GRID_STEP_DEG: u32 = 10;
 /// elevation except the horizon) and, separately, the horizon.
 pub fn grid_and_horizon(
     view: &ViewFrame,
-    flattener: &Flattener,
+    flattener: &mut Flattener,
     step_deg: u32,
 ) -> (PolylineSet, PolylineSet) {
     let mut grid = PolylineSet::new();
@@ -66,7 +66,7 @@ mod tests {
             "s", 0.0, 0.0, 1.6, 25.0, 0.0, 0.0,
         ));
         let map = Equirect::from_size_px(3600.0, 1800.0);
-        let (grid, horizon) = grid_and_horizon(&view, &Flattener::new(map, 0.1), 10);
+        let (grid, horizon) = grid_and_horizon(&view, &mut Flattener::new(map, 0.1), 10);
         for line in horizon.iter() {
             assert!(line.iter().all(|p| (p.y - 900.0).abs() < 1e-9), "{line:?}");
         }

@@ -38,8 +38,11 @@ const BAND_ROWS: usize = 64;
 /// The caller has checked the size against [`MAX_PIXELS`].
 pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
     let (width, height) = (drawing.width as usize, drawing.height as usize);
-    let mut pixels = vec![255u8; width * height];
+    // Zeroed memory comes from the system untouched; each band is filled with white paper
+    // by its own thread just before it is drawn, while it is in that core's cache.
+    let mut pixels = vec![0u8; width * height];
     let segments = collect_segments(drawing);
+    let by_band = segments_by_band(&segments, height);
     // Bands are dealt round-robin to the threads: neighbouring bands hold similar amounts
     // of drawing, so every thread gets a fair share without any locking.
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
@@ -53,11 +56,13 @@ pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
     }
     std::thread::scope(|scope| {
         for bands in work {
-            let segments = &segments;
+            let (segments, by_band) = (&segments, &by_band);
             scope.spawn(move || {
                 for mut band in bands {
-                    for segment in segments {
-                        band.draw(segment);
+                    band.rows.fill(255);
+                    let index = band.top / BAND_ROWS;
+                    for &s in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
+                        band.draw(&segments[s as usize]);
                     }
                 }
             });
@@ -68,6 +73,41 @@ pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
         height: drawing.height,
         pixels,
     }
+}
+
+/// For each band, the indices of the segments that reach into it (a compressed row list:
+/// band `i` owns `entries[starts[i]..starts[i + 1]]`).
+struct SegmentsByBand {
+    starts: Vec<usize>,
+    entries: Vec<u32>,
+}
+
+fn band_range(s: &Segment, bands: usize) -> std::ops::Range<usize> {
+    let first = (s.top.max(0.0) as usize / BAND_ROWS).min(bands);
+    let last = (s.bottom.max(0.0) as usize / BAND_ROWS + 1).min(bands);
+    first..last.max(first)
+}
+
+fn segments_by_band(segments: &[Segment], height: usize) -> SegmentsByBand {
+    let bands = height.div_ceil(BAND_ROWS);
+    let mut starts = vec![0usize; bands + 1];
+    for s in segments {
+        for band in band_range(s, bands) {
+            starts[band + 1] += 1;
+        }
+    }
+    for i in 0..bands {
+        starts[i + 1] += starts[i];
+    }
+    let mut fill = starts.clone();
+    let mut entries = vec![0u32; starts[bands]];
+    for (index, s) in segments.iter().enumerate() {
+        for band in band_range(s, bands) {
+            entries[fill[band]] = index as u32;
+            fill[band] += 1;
+        }
+    }
+    SegmentsByBand { starts, entries }
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -134,39 +174,54 @@ struct Band<'a> {
 impl Band<'_> {
     fn draw(&mut self, s: &Segment) {
         let band_rows = self.rows.len() / self.width.max(1);
-        let first_row = (s.top.floor().max(self.top as f64)) as usize;
-        let end_row = (s.bottom.ceil().max(0.0) as usize).min(self.top + band_rows);
+        // Rows whose centres the capsule can reach. (Casts instead of floor/ceil/round in
+        // this loop: they saturate at zero and compile to single instructions.)
+        let first_row = (s.top.max(0.0) as usize).max(self.top);
+        let end_row = (s.bottom.max(0.0) as usize + 1).min(self.top + band_rows);
         if first_row >= end_row {
             return;
         }
         let (dx, dy) = (s.b.x - s.a.x, s.b.y - s.a.y);
         let length_sq = dx * dx + dy * dy;
+        let inverse_length_sq = if length_sq > 0.0 {
+            1.0 / length_sq
+        } else {
+            0.0
+        };
+        let full = s.half_width + 0.5;
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
             let Some((x0, x1)) = capsule_row_span(s, cy) else {
                 continue;
             };
-            let start = (x0 - 0.5).ceil().max(0.0) as usize;
-            let end = ((x1 - 0.5).floor() + 1.0).clamp(0.0, self.width as f64) as usize;
+            // Pixel centres column + 0.5 within [x0, x1].
+            let start = ceil_at_least_zero(x0 - 0.5);
+            let end = ((x1 - 0.5).max(-1.0) + 1.0) as usize;
+            let end = end.min(self.width);
             let offset = (row - self.top) * self.width;
+            let py = cy - s.a.y;
             for column in start..end {
-                let cx = column as f64 + 0.5;
-                let (px, py) = (cx - s.a.x, cy - s.a.y);
-                let t = if length_sq > 0.0 {
-                    ((px * dx + py * dy) / length_sq).clamp(0.0, 1.0)
-                } else {
-                    0.0
-                };
+                let px = column as f64 + 0.5 - s.a.x;
+                let t = ((px * dx + py * dy) * inverse_length_sq).clamp(0.0, 1.0);
                 let (ex, ey) = (px - t * dx, py - t * dy);
-                let distance = (ex * ex + ey * ey).sqrt();
-                let coverage = (s.half_width + 0.5 - distance).clamp(0.0, 1.0);
-                if coverage > 0.0 {
-                    let value = (255.0 - coverage * s.ink).round() as u8;
-                    let pixel = &mut self.rows[offset + column];
-                    *pixel = (*pixel).min(value);
-                }
+                let coverage = (full - (ex * ex + ey * ey).sqrt()).clamp(0.0, 1.0);
+                // 255 - coverage * ink, rounded to the nearest level.
+                let value = (255.5 - coverage * s.ink) as u8;
+                let pixel = &mut self.rows[offset + column];
+                *pixel = (*pixel).min(value);
             }
         }
+    }
+}
+
+/// `ceil(v)` for the pixel loop, clamped at zero.
+fn ceil_at_least_zero(v: f64) -> usize {
+    let v = v.max(0.0);
+    let whole = v as usize;
+    if (whole as f64) < v {
+        whole + 1
+    } else {
+        whole
     }
 }
 
@@ -186,7 +241,7 @@ fn capsule_row_span(s: &Segment, y: f64) -> Option<(f64, f64)> {
         }
     }
     let (dx, dy) = (s.b.x - s.a.x, s.b.y - s.a.y);
-    let length = dx.hypot(dy);
+    let length = (dx * dx + dy * dy).sqrt();
     if length > 0.0 && dy.abs() > 1e-12 * length {
         // Points on the row: p(x) = (x, y). Strip: |n . (p - a)| <= r with n = (-dy, dx)/L,
         // and 0 <= d . (p - a) <= L with d = (dx, dy)/L. Each is an interval in x.

@@ -49,11 +49,13 @@ const MAX_DEPTH: u32 = 60;
 const MAX_PARTS: usize = 16;
 const MAX_SAMPLES_PER_CURVE: usize = 1 << 20;
 
-/// Flattens curves for one image at one tolerance.
-#[derive(Clone, Copy, Debug)]
+/// Flattens curves for one image at one tolerance. Holds a scratch list reused from curve
+/// to curve, so flattening allocates nothing but the output; give each thread its own.
+#[derive(Clone, Debug)]
 pub struct Flattener {
     map: Equirect,
     tolerance: f64,
+    cuts: Vec<(f64, Cut)>,
 }
 
 /// Flattens one curve; a convenience over [`Flattener`].
@@ -78,6 +80,17 @@ struct Sample {
     derivatives: Option<(Vector2<f64>, Vector2<f64>)>,
 }
 
+/// The state carried from piece to piece of one curve.
+struct Run {
+    /// The curve lies in the plane of the seam (straight behind or ahead of the viewer).
+    on_seam_plane: bool,
+    /// The open polyline lies along the seam.
+    on_seam: bool,
+    /// A polyline is open (the last piece was drawn).
+    drawing: bool,
+    samples_left: usize,
+}
+
 /// What one piece of a curve needs while it is refined.
 struct Piece<'a> {
     curve: &'a SphereCurve,
@@ -92,6 +105,7 @@ impl Flattener {
         Flattener {
             map,
             tolerance: tolerance_px,
+            cuts: Vec::with_capacity(16),
         }
     }
 
@@ -101,47 +115,75 @@ impl Flattener {
 
     /// Appends the image of `curve` to `out`: one polyline for each stretch between the
     /// seam and pole crossings.
-    pub fn flatten(&self, curve: &SphereCurve, out: &mut PolylineSet) {
-        let cuts = self.cuts(curve);
-        let on_seam_plane = curve.lies_in_plane(&Vector3::x());
-        let mut budget = MAX_SAMPLES_PER_CURVE;
-        let mut run_on_seam = false;
-        let mut drawing = false;
+    pub fn flatten(&mut self, curve: &SphereCurve, out: &mut PolylineSet) {
+        let mut cuts = std::mem::take(&mut self.cuts);
+        self.find_cuts(curve, &mut cuts);
+        let mut run = Run {
+            on_seam_plane: curve.lies_in_plane(&Vector3::x()),
+            on_seam: false,
+            drawing: false,
+            samples_left: MAX_SAMPLES_PER_CURVE,
+        };
         for pair in cuts.windows(2) {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
-            if self.in_pole_band(curve, (ta + tb) / 2.0) {
-                drawing = false;
-                continue;
+            // Long stretches go in equal pieces so that no chord test spans too much.
+            let parts = ((tb - ta) / MAX_PIECE_PARAMETER).ceil().max(1.0) as usize;
+            for k in 0..parts {
+                let start = ta + (tb - ta) * k as f64 / parts as f64;
+                let end = if k + 1 == parts {
+                    tb
+                } else {
+                    ta + (tb - ta) * (k + 1) as f64 / parts as f64
+                };
+                let start_cut = if k == 0 { cut_a } else { Cut::Plain };
+                let end_cut = if k + 1 == parts { cut_b } else { Cut::Plain };
+                self.piece(curve, (start, start_cut), (end, end_cut), &mut run, out);
             }
-            let middle = curve.position((ta + tb) / 2.0);
-            let lies_on_seam = on_seam_plane && middle.y < 0.0;
-            let reference = if lies_on_seam {
-                -PI
-            } else {
-                middle.x.atan2(middle.y)
-            };
-            let mut piece = Piece {
-                curve,
-                reference,
-                samples_left: budget,
-            };
-            let a = self.end_sample(&mut piece, ta, cut_a);
-            let b = self.end_sample(&mut piece, tb, cut_b);
-            // Plain cuts only help the refinement; the polyline goes on through them.
-            if !drawing || cut_a != Cut::Plain {
-                if run_on_seam {
-                    self.copy_to_right_border(out);
-                }
-                out.move_to(a.at);
-                run_on_seam = lies_on_seam;
-                drawing = true;
-            }
-            self.refine(&mut piece, &a, &b, 0, out);
-            budget = piece.samples_left;
         }
-        if run_on_seam {
+        if run.on_seam {
             self.copy_to_right_border(out);
         }
+        self.cuts = cuts;
+    }
+
+    /// Flattens the piece of `curve` between two cuts.
+    fn piece(
+        &self,
+        curve: &SphereCurve,
+        (ta, cut_a): (f64, Cut),
+        (tb, cut_b): (f64, Cut),
+        run: &mut Run,
+        out: &mut PolylineSet,
+    ) {
+        if self.in_pole_band(curve, (ta + tb) / 2.0) {
+            run.drawing = false;
+            return;
+        }
+        let middle = curve.position((ta + tb) / 2.0);
+        let lies_on_seam = run.on_seam_plane && middle.y < 0.0;
+        let reference = if lies_on_seam {
+            -PI
+        } else {
+            middle.x.atan2(middle.y)
+        };
+        let mut piece = Piece {
+            curve,
+            reference,
+            samples_left: run.samples_left,
+        };
+        let a = self.end_sample(&mut piece, ta, cut_a);
+        let b = self.end_sample(&mut piece, tb, cut_b);
+        // Plain cuts only help the refinement; the polyline goes on through them.
+        if !run.drawing || cut_a != Cut::Plain {
+            if run.on_seam {
+                self.copy_to_right_border(out);
+            }
+            out.move_to(a.at);
+            run.on_seam = lies_on_seam;
+            run.drawing = true;
+        }
+        self.refine(&mut piece, &a, &b, 0, out);
+        run.samples_left = piece.samples_left;
     }
 
     /// A polyline drawn along the seam belongs to both borders: repeat the last one (drawn
@@ -189,10 +231,11 @@ impl Flattener {
         Some(b)
     }
 
-    /// The cut parameters of a curve, sorted, with their kinds.
-    fn cuts(&self, curve: &SphereCurve) -> Vec<(f64, Cut)> {
+    /// The cut parameters of a curve, sorted, with their kinds, into `cuts`.
+    fn find_cuts(&self, curve: &SphereCurve, cuts: &mut Vec<(f64, Cut)>) {
         let (t0, t1) = (curve.t0, curve.t1);
-        let mut cuts = vec![(t0, Cut::Plain), (t1, Cut::Plain)];
+        cuts.clear();
+        cuts.extend([(t0, Cut::Plain), (t1, Cut::Plain)]);
         let band_edges = |inside: f64, outwards: &[f64], cuts: &mut Vec<(f64, Cut)>| {
             for &outside in outwards {
                 if let Some(t) = self.pole_band_edge(curve, inside, outside) {
@@ -203,51 +246,48 @@ impl Flattener {
         for zenith in [true, false] {
             for (t, distance) in curve.pole_approaches(zenith, NEAR_POLE) {
                 if distance < self.pole_band() {
-                    band_edges(t, &[t0, t1], &mut cuts);
+                    band_edges(t, &[t0, t1], cuts);
                 } else {
                     cuts.push((t, Cut::Plain));
                 }
             }
         }
         if self.in_pole_band(curve, t0) {
-            band_edges(t0, &[t1], &mut cuts);
+            band_edges(t0, &[t1], cuts);
         }
         if self.in_pole_band(curve, t1) {
-            band_edges(t1, &[t0], &mut cuts);
+            band_edges(t1, &[t0], cuts);
         }
-        for &t in curve.meridian_crossings(PI).as_slice() {
-            cuts.push((t, Cut::Seam));
-        }
-        cuts.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
-        // Merge cuts closer than a whisker, keeping the most significant kind.
-        let whisker = (t1 - t0) * 1e-12;
-        let mut merged: Vec<(f64, Cut)> = Vec::with_capacity(cuts.len() + 4);
-        for (t, cut) in cuts {
-            match merged.last_mut() {
-                Some(last) if t - last.0 <= whisker => last.1 = last.1.max(cut),
-                _ => merged.push((t, cut)),
+        // A great arc shorter than a half turn lies in the cone of its ends, so with both
+        // ends ahead of the viewer it cannot reach the seam behind: most edges skip the search.
+        let ahead = |t: f64| curve.position(t).y > 0.0;
+        if !(curve.is_great_circle() && t1 - t0 < PI && ahead(t0) && ahead(t1)) {
+            for &t in curve.meridian_crossings(PI).as_slice() {
+                cuts.push((t, Cut::Seam));
             }
+        }
+        if cuts.len() > 2 {
+            cuts.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
+            // Merge cuts closer than a whisker, keeping the most significant kind.
+            let whisker = (t1 - t0) * 1e-12;
+            let mut kept = 0;
+            for i in 1..cuts.len() {
+                if cuts[i].0 - cuts[kept].0 <= whisker {
+                    cuts[kept].1 = cuts[kept].1.max(cuts[i].1);
+                } else {
+                    kept += 1;
+                    cuts[kept] = cuts[i];
+                }
+            }
+            cuts.truncate(kept + 1);
         }
         // The ends of the curve stay the ends even when a cut merged into them.
-        if let Some(first) = merged.first_mut() {
+        if let Some(first) = cuts.first_mut() {
             first.0 = t0;
         }
-        if let Some(last) = merged.last_mut() {
+        if let Some(last) = cuts.last_mut() {
             last.0 = t1;
         }
-        let mut cuts = Vec::with_capacity(merged.len() * 2);
-        for pair in merged.windows(2) {
-            cuts.push(pair[0]);
-            let parts = ((pair[1].0 - pair[0].0) / MAX_PIECE_PARAMETER)
-                .ceil()
-                .max(1.0) as usize;
-            for k in 1..parts {
-                let t = pair[0].0 + (pair[1].0 - pair[0].0) * k as f64 / parts as f64;
-                cuts.push((t, Cut::Plain));
-            }
-        }
-        cuts.extend(merged.last().copied());
-        cuts
     }
 
     /// The sample at one end of a piece: on the border for a seam crossing, on the border

@@ -58,10 +58,12 @@ impl PolylineSet {
         })
     }
 
-    pub fn extend(&mut self, other: &PolylineSet) {
-        for line in other.iter() {
-            self.push(line);
-        }
+    /// Moves every polyline of `other` to the end of this set.
+    pub fn append(&mut self, other: &mut PolylineSet) {
+        let offset = self.points.len();
+        self.starts
+            .extend(other.starts.drain(..).map(|s| s + offset));
+        self.points.append(&mut other.points);
     }
 }
 
@@ -84,5 +86,15 @@ mod tests {
         assert_eq!(lines[0].len(), 2);
         assert_eq!(lines[1].len(), 3);
         assert_eq!(set.vertex_count(), 5);
+        let mut more = PolylineSet::new();
+        more.push(&[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)]);
+        set.append(&mut more);
+        assert!(more.is_empty());
+        let lines: Vec<_> = set.iter().collect();
+        assert_eq!(lines.len(), 3);
+        assert_eq!(
+            lines[2],
+            &[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)]
+        );
     }
 }

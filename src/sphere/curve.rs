@@ -206,6 +206,9 @@ impl SphereCurve {
         let pole = Vector3::new(0.0, 0.0, if towards_zenith { 1.0 } else { -1.0 });
         if self.is_great_circle() {
             let normal = self.u.cross(&self.v).normalize();
+            if normal.dot(&pole).abs() >= within.sin() {
+                return Vec::new(); // the whole circle keeps further than `within` away
+            }
             let closest = pole - normal * normal.dot(&pole);
             let Some(closest) = closest.try_normalize(1e-300) else {
                 return Vec::new(); // the arc lies on the equator of this pole: never near
@@ -234,6 +237,13 @@ impl SphereCurve {
             .map(|i| distance(self.t0 + step * i as f64))
             .collect();
         let mut found = Vec::new();
+        let (lowest, highest) = values.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), &v| {
+            (lo.min(v), hi.max(v))
+        });
+        if highest - lowest <= 1e-12 * highest {
+            // A circle round the vertical (a parallel) keeps one distance: no nearest point.
+            return found;
+        }
         // A sampled minimum at either end still brackets a minimum that may lie inside.
         for i in 0..=SAMPLES {
             let lower = i == 0 || values[i] <= values[i - 1];
