@@ -24,14 +24,8 @@ use pansite::sphere::{
 };
 use std::f64::consts::PI;
 
-#[track_caller]
-fn assert_near(a: f64, b: f64, eps: f64) {
-    assert!(
-        (a - b).abs() <= eps,
-        "{a:.12} vs {b:.12}: differ by {:.3e} > {eps:.3e}",
-        (a - b).abs()
-    );
-}
+mod common;
+use common::assert_near;
 
 /// Degrees and minutes to radians (`sign` -1 for south and west).
 fn dm(sign: f64, degrees: f64, minutes: f64) -> f64 {

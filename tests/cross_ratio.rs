@@ -10,20 +10,14 @@
 //! whatever way the viewer faces.
 
 use nalgebra::{Point3, Vector3};
-use pansite::plane::{flatten, Equirect, ImagePoint, PolylineSet};
+use pansite::plane::{flatten, Equirect, PolylineSet};
 use pansite::scene::Standpoint;
 use pansite::sphere::{
     angle_between, azimuth_elevation, direction_from_azimuth_elevation, SphereCurve, ViewFrame,
 };
 
-#[track_caller]
-fn assert_near(a: f64, b: f64, eps: f64) {
-    assert!(
-        (a - b).abs() <= eps,
-        "{a:.17} vs {b:.17}: differ by {:.3e} > {eps:.3e}",
-        (a - b).abs()
-    );
-}
+mod common;
+use common::{assert_near, distance_to_set};
 
 /// The four site points: (-4, 6, 0) + t (2, 1, 0.5) at t = 0, 1, 3, 7.
 fn points() -> [Point3<f64>; 4] {
@@ -97,31 +91,6 @@ fn cross_ratio_notices_a_point_off_the_line() {
     assert!((ratio - 9.0 / 7.0).abs() > 1e-6, "{ratio}");
 }
 
-/// Distance (pixels) from `p` to the nearest segment of any polyline in `set`.
-fn distance_to_polylines(p: ImagePoint, set: &PolylineSet) -> f64 {
-    let mut best = f64::INFINITY;
-    for line in set.iter() {
-        for w in line.windows(2) {
-            best = best.min(distance_to_segment(p, w[0], w[1]));
-        }
-        if line.len() == 1 {
-            best = best.min((p.x - line[0].x).hypot(p.y - line[0].y));
-        }
-    }
-    best
-}
-
-fn distance_to_segment(p: ImagePoint, a: ImagePoint, b: ImagePoint) -> f64 {
-    let (dx, dy) = (b.x - a.x, b.y - a.y);
-    let length2 = dx * dx + dy * dy;
-    let s = if length2 > 0.0 {
-        (((p.x - a.x) * dx + (p.y - a.y) * dy) / length2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    (p.x - a.x - s * dx).hypot(p.y - a.y - s * dy)
-}
-
 /// B and C, projected on their own, lie on the drawn image of the segment A..D: within the
 /// flattening tolerance (0.1 px, the library's definition of "tolerance") of its polyline.
 #[test]
@@ -137,7 +106,7 @@ fn inner_points_lie_on_the_flattened_arc() {
         for inner in [b, c] {
             let (azimuth, elevation) = azimuth_elevation(&inner);
             let p = map.to_image(azimuth, elevation);
-            let distance = distance_to_polylines(p, &set);
+            let distance = distance_to_set(p, &set);
             assert!(
                 distance <= tolerance,
                 "view ({heading}, {pitch}, {roll}): {p:?} is {distance} px from the arc"
@@ -146,7 +115,7 @@ fn inner_points_lie_on_the_flattened_arc() {
         // And the check can fail: a point 1 cm above C is farther than the tolerance.
         let above_c = frame.to_view(&(points()[2] + Vector3::new(0.0, 0.0, 0.01)));
         let (azimuth, elevation) = azimuth_elevation(&above_c);
-        let off = distance_to_polylines(map.to_image(azimuth, elevation), &set);
+        let off = distance_to_set(map.to_image(azimuth, elevation), &set);
         assert!(off > tolerance, "view ({heading}, {pitch}, {roll}): {off}");
     }
 }

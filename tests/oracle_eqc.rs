@@ -22,14 +22,8 @@ use proj4rs::adaptors::transform_vertex_2d;
 use proj4rs::Proj;
 use std::f64::consts::{FRAC_PI_2, PI};
 
-#[track_caller]
-fn assert_near(a: f64, b: f64, eps: f64) {
-    assert!(
-        (a - b).abs() <= eps,
-        "{a:.17e} vs {b:.17e}: differ by {:.3e} > {eps:.3e}",
-        (a - b).abs()
-    );
-}
+mod common;
+use common::assert_near;
 
 /// The two coordinate systems, with the parameter names proj4rs 0.1.10 reads: `+a`/`+b` for
 /// the ellipsoid (`proj.rs` `get_ellipsoid`, `ellps.rs`), `+lon_0`, `+x_0`, `+y_0` (`proj.rs`),

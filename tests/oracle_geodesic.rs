@@ -20,14 +20,8 @@ use pansite::plane::{flatten, Equirect, PolylineSet};
 use pansite::sphere::{angle_between, direction_from_azimuth_elevation, SphereCurve};
 use std::f64::consts::{FRAC_PI_2, PI};
 
-#[track_caller]
-fn assert_near(a: f64, b: f64, eps: f64) {
-    assert!(
-        (a - b).abs() <= eps,
-        "{a:.17e} vs {b:.17e}: differ by {:.3e} > {eps:.3e}",
-        (a - b).abs()
-    );
-}
+mod common;
+use common::assert_near;
 
 /// `assert_near` with a note saying which case failed.
 #[track_caller]

@@ -9,6 +9,9 @@ use pansite::sphere::{azimuth_elevation, direction_from_azimuth_elevation, Spher
 use proptest::prelude::*;
 use std::f64::consts::{FRAC_PI_2, PI};
 
+mod common;
+use common::distance_to_segment;
+
 const WIDTH: f64 = 4096.0;
 const HEIGHT: f64 = 2048.0;
 const TOLERANCE: f64 = 0.1;
@@ -69,17 +72,6 @@ fn flattened(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
     let mut set = PolylineSet::new();
     flatten(curve, map(), TOLERANCE, &mut set);
     set.iter().map(|l| l.to_vec()).collect()
-}
-
-fn distance_to_segment(p: ImagePoint, a: ImagePoint, b: ImagePoint) -> f64 {
-    let (dx, dy) = (b.x - a.x, b.y - a.y);
-    let length_sq = dx * dx + dy * dy;
-    let t = if length_sq > 0.0 {
-        (((p.x - a.x) * dx + (p.y - a.y) * dy) / length_sq).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    (p.x - a.x - t * dx).hypot(p.y - a.y - t * dy)
 }
 
 /// Distance from a point to the drawing, counting the seam as one line (x and x +- W).

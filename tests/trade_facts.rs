@@ -8,14 +8,8 @@ use pansite::scene::Standpoint;
 use pansite::sphere::{angle_between, azimuth_elevation, SphereCurve, ViewFrame};
 use std::f64::consts::{PI, TAU};
 
-#[track_caller]
-fn assert_near(a: f64, b: f64, eps: f64) {
-    assert!(
-        (a - b).abs() <= eps,
-        "{a:.15e} vs {b:.15e}: differ by {:.3e} > {eps:.3e}",
-        (a - b).abs()
-    );
-}
+mod common;
+use common::{assert_near, distance_to_segment, distance_to_set};
 
 /// An angle moved by whole turns into [-pi, pi).
 fn wrap(angle: f64) -> f64 {
@@ -37,30 +31,6 @@ fn flattened(curve: &SphereCurve, map: Equirect, tolerance: f64) -> PolylineSet 
     let mut set = PolylineSet::new();
     flatten(curve, map, tolerance, &mut set);
     set
-}
-
-fn distance_to_segment(p: ImagePoint, a: ImagePoint, b: ImagePoint) -> f64 {
-    let (dx, dy) = (b.x - a.x, b.y - a.y);
-    let length2 = dx * dx + dy * dy;
-    let s = if length2 > 0.0 {
-        (((p.x - a.x) * dx + (p.y - a.y) * dy) / length2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    (p.x - a.x - s * dx).hypot(p.y - a.y - s * dy)
-}
-
-fn distance_to_polylines(p: ImagePoint, set: &PolylineSet) -> f64 {
-    let mut best = f64::INFINITY;
-    for line in set.iter() {
-        if line.len() == 1 {
-            best = best.min((p.x - line[0].x).hypot(p.y - line[0].y));
-        }
-        for w in line.windows(2) {
-            best = best.min(distance_to_segment(p, w[0], w[1]));
-        }
-    }
-    best
 }
 
 /// (a) Common practice: parallel horizontal lines all run to the same two vanishing points on
@@ -164,7 +134,7 @@ fn diagonals_of_a_rectangle_cross_at_the_image_of_its_centre() {
             let p = image_of(&map, &centre_direction);
             for diagonal in [diagonal1, diagonal2] {
                 let set = flattened(&diagonal, map, DEFAULT_TOLERANCE_PX);
-                let d = distance_to_polylines(p, &set);
+                let d = distance_to_set(p, &set);
                 assert!(d <= DEFAULT_TOLERANCE_PX, "{centre}: {d} px");
             }
         }
