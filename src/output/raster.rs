@@ -114,13 +114,107 @@ fn segments_by_band(segments: &[Segment], height: usize) -> SegmentsByBand {
 struct Segment {
     a: ImagePoint,
     b: ImagePoint,
-    /// Coverage reaches this far from the segment.
+    /// Coverage reaches this far from the segment: half the stroke width plus half a pixel.
     reach: f64,
-    half_width: f64,
     /// Darkness at full coverage, 0..=255, already scaled for strokes thinner than a pixel.
     ink: f64,
+    /// Bounding box of everything the stroke can cover.
+    left: f64,
+    right: f64,
     top: f64,
     bottom: f64,
+    /// `b - a`, its unit direction and `1 / |b - a|^2` (0 for a dot).
+    d: (f64, f64),
+    unit: (f64, f64),
+    inverse_length_sq: f64,
+}
+
+impl Segment {
+    fn new(a: ImagePoint, b: ImagePoint, reach: f64, ink: f64) -> Segment {
+        let d = (b.x - a.x, b.y - a.y);
+        let length_sq = d.0 * d.0 + d.1 * d.1;
+        let length = length_sq.sqrt();
+        let (unit, inverse_length_sq) = if length_sq > 0.0 {
+            ((d.0 / length, d.1 / length), 1.0 / length_sq)
+        } else {
+            ((0.0, 0.0), 0.0)
+        };
+        Segment {
+            a,
+            b,
+            reach,
+            ink,
+            left: a.x.min(b.x) - reach,
+            right: a.x.max(b.x) + reach,
+            top: a.y.min(b.y) - reach,
+            bottom: a.y.max(b.y) + reach,
+            d,
+            unit,
+            inverse_length_sq,
+        }
+    }
+
+    fn shifted(&self, dx: f64) -> Segment {
+        let moved = |p: ImagePoint| ImagePoint::new(p.x + dx, p.y);
+        Segment::new(moved(self.a), moved(self.b), self.reach, self.ink)
+    }
+
+    /// The x-interval where the row through `y` meets the capsule of radius `reach` around
+    /// the segment: the union of its two end discs and the strip between them (the capsule
+    /// is convex, so the union is one interval). Narrow strokes just use their bounding box.
+    fn row_span(&self, y: f64) -> Option<(f64, f64)> {
+        if self.right - self.left <= NARROW {
+            return Some((self.left, self.right));
+        }
+        let r = self.reach;
+        let mut lo = f64::INFINITY;
+        let mut hi = f64::NEG_INFINITY;
+        for end in [self.a, self.b] {
+            let dy = y - end.y;
+            if dy.abs() <= r {
+                let half = (r * r - dy * dy).sqrt();
+                lo = lo.min(end.x - half);
+                hi = hi.max(end.x + half);
+            }
+        }
+        let (ux, uy) = self.unit;
+        if uy.abs() > 1e-12 {
+            // On the row, |n . (p - a)| <= r with n = (-uy, ux) and 0 <= u . (p - a) <= L:
+            // two intervals in x, intersected.
+            let dy = y - self.a.y;
+            let length = 1.0 / self.inverse_length_sq.sqrt();
+            let across = interval(-uy, ux * dy + uy * self.a.x, -r, r);
+            let along = interval(ux, uy * dy - ux * self.a.x, 0.0, length);
+            let (start, end) = (across.0.max(along.0), across.1.min(along.1));
+            if start <= end {
+                lo = lo.min(start);
+                hi = hi.max(end);
+            }
+        } else if self.inverse_length_sq > 0.0 && (y - self.a.y).abs() <= r {
+            // A horizontal segment: the strip covers the whole span between the ends.
+            lo = lo.min(self.a.x.min(self.b.x));
+            hi = hi.max(self.a.x.max(self.b.x));
+        }
+        (lo <= hi).then_some((lo, hi))
+    }
+}
+
+/// Strokes at most this wide (pixels, with their reach) are drawn over their whole bounding
+/// box, which is cheaper than finding the exact span of each row.
+const NARROW: f64 = 8.0;
+
+/// The `x` with `min <= k x + c <= max` (everything if `k` is zero and `c` fits, nothing if
+/// it does not).
+fn interval(k: f64, c: f64, min: f64, max: f64) -> (f64, f64) {
+    if k.abs() < 1e-300 {
+        return if c >= min && c <= max {
+            (f64::NEG_INFINITY, f64::INFINITY)
+        } else {
+            (1.0, 0.0)
+        };
+    }
+    let (a, b) = ((min - c) / k, (max - c) / k);
+    (a.min(b), a.max(b))
 }
 
 fn collect_segments(drawing: &Drawing) -> Vec<Segment> {
@@ -128,35 +222,21 @@ fn collect_segments(drawing: &Drawing) -> Vec<Segment> {
     let mut segments = Vec::new();
     for layer in &drawing.layers {
         let Stroke { ink, width_px } = layer.stroke;
-        let half_width = width_px.max(1.0) / 2.0;
+        let reach = width_px.max(1.0) / 2.0 + 0.5;
         let ink = 255.0 * ink.clamp(0.0, 1.0) * width_px.min(1.0);
-        let reach = half_width + 0.5;
         for line in layer.lines.iter() {
             let pairs = line.windows(2).map(|w| (w[0], w[1]));
             // A single point still makes a dot.
             let single = (line.len() == 1).then(|| (line[0], line[0]));
             for (a, b) in pairs.chain(single) {
-                let segment = Segment {
-                    a,
-                    b,
-                    reach,
-                    half_width,
-                    ink,
-                    top: a.y.min(b.y) - reach,
-                    bottom: a.y.max(b.y) + reach,
-                };
+                let segment = Segment::new(a, b, reach, ink);
                 segments.push(segment);
                 // Wrap strokes that reach past a border onto the other side.
-                let (left, right) = (a.x.min(b.x) - reach, a.x.max(b.x) + reach);
-                for shift in [width, -width] {
-                    if (shift > 0.0 && left < 0.0) || (shift < 0.0 && right > width) {
-                        let moved = |p: ImagePoint| ImagePoint::new(p.x + shift, p.y);
-                        segments.push(Segment {
-                            a: moved(a),
-                            b: moved(b),
-                            ..segment
-                        });
-                    }
+                if segment.left < 0.0 {
+                    segments.push(segment.shifted(width));
+                }
+                if segment.right > width {
+                    segments.push(segment.shifted(-width));
                 }
             }
         }
@@ -178,33 +258,36 @@ impl Band<'_> {
         // this loop: they saturate at zero and compile to single instructions.)
         let first_row = (s.top.max(0.0) as usize).max(self.top);
         let end_row = (s.bottom.max(0.0) as usize + 1).min(self.top + band_rows);
-        if first_row >= end_row {
-            return;
-        }
-        let (dx, dy) = (s.b.x - s.a.x, s.b.y - s.a.y);
-        let length_sq = dx * dx + dy * dy;
-        let inverse_length_sq = if length_sq > 0.0 {
-            1.0 / length_sq
-        } else {
-            0.0
-        };
-        let full = s.half_width + 0.5;
+        let ((dx, dy), (ux, uy)) = (s.d, s.unit);
+        let is_dot = s.inverse_length_sq == 0.0;
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
-            let Some((x0, x1)) = capsule_row_span(s, cy) else {
+            let Some((x0, x1)) = s.row_span(cy) else {
                 continue;
             };
             // Pixel centres column + 0.5 within [x0, x1].
             let start = ceil_at_least_zero(x0 - 0.5);
-            let end = ((x1 - 0.5).max(-1.0) + 1.0) as usize;
-            let end = end.min(self.width);
+            let end = (((x1 - 0.5).max(-1.0) + 1.0) as usize).min(self.width);
             let offset = (row - self.top) * self.width;
             let py = cy - s.a.y;
+            // Along the row, the parameter of the nearest point on the segment's line and the
+            // signed distance to that line are linear in the column.
+            let x_first = start as f64 + 0.5 - s.a.x;
+            let mut t = (x_first * dx + py * dy) * s.inverse_length_sq;
+            let step_t = dx * s.inverse_length_sq;
+            let mut across = x_first * uy - py * ux;
             for column in start..end {
-                let px = column as f64 + 0.5 - s.a.x;
-                let t = ((px * dx + py * dy) * inverse_length_sq).clamp(0.0, 1.0);
-                let (ex, ey) = (px - t * dx, py - t * dy);
-                let coverage = (full - (ex * ex + ey * ey).sqrt()).clamp(0.0, 1.0);
+                let distance = if (0.0..=1.0).contains(&t) && !is_dot {
+                    across.abs()
+                } else {
+                    // Beyond an end: the distance to that end point.
+                    let end_point = if t > 1.0 { s.b } else { s.a };
+                    let (ex, ey) = (column as f64 + 0.5 - end_point.x, cy - end_point.y);
+                    (ex * ex + ey * ey).sqrt()
+                };
+                t += step_t;
+                across += uy;
+                let coverage = (s.reach - distance).clamp(0.0, 1.0);
                 // 255 - coverage * ink, rounded to the nearest level.
                 let value = (255.5 - coverage * s.ink) as u8;
                 let pixel = &mut self.rows[offset + column];
@@ -223,54 +306,6 @@ fn ceil_at_least_zero(v: f64) -> usize {
     } else {
         whole
     }
-}
-
-/// The x-interval where the horizontal line `y` meets the capsule of radius `reach` around
-/// the segment: the union of its two end discs and the strip between them (the capsule is
-/// convex, so the union is one interval).
-fn capsule_row_span(s: &Segment, y: f64) -> Option<(f64, f64)> {
-    let r = s.reach;
-    let mut lo = f64::INFINITY;
-    let mut hi = f64::NEG_INFINITY;
-    for end in [s.a, s.b] {
-        let dy = y - end.y;
-        if dy.abs() <= r {
-            let half = (r * r - dy * dy).sqrt();
-            lo = lo.min(end.x - half);
-            hi = hi.max(end.x + half);
-        }
-    }
-    let (dx, dy) = (s.b.x - s.a.x, s.b.y - s.a.y);
-    let length = (dx * dx + dy * dy).sqrt();
-    if length > 0.0 && dy.abs() > 1e-12 * length {
-        // Points on the row: p(x) = (x, y). Strip: |n . (p - a)| <= r with n = (-dy, dx)/L,
-        // and 0 <= d . (p - a) <= L with d = (dx, dy)/L. Each is an interval in x.
-        let (nx, ny) = (-dy / length, dx / length);
-        let (ux, uy) = (dx / length, dy / length);
-        let across = interval_of_linear(nx, ny * (y - s.a.y) - nx * s.a.x, -r, r);
-        let along = interval_of_linear(ux, uy * (y - s.a.y) - ux * s.a.x, 0.0, length);
-        if let (Some(c), Some(d)) = (across, along) {
-            let (a, b) = (c.0.max(d.0), c.1.min(d.1));
-            if a <= b {
-                lo = lo.min(a);
-                hi = hi.max(b);
-            }
-        }
-    } else if length > 0.0 && (y - s.a.y).abs() <= r {
-        // A horizontal segment: the strip covers the whole span between the ends.
-        lo = lo.min(s.a.x.min(s.b.x));
-        hi = hi.max(s.a.x.max(s.b.x));
-    }
-    (lo <= hi).then_some((lo, hi))
-}
-
-/// The `x` with `min <= k x + c <= max`, for `k != 0`, or everything if `k == 0` and `c` fits.
-fn interval_of_linear(k: f64, c: f64, min: f64, max: f64) -> Option<(f64, f64)> {
-    if k.abs() < 1e-300 {
-        return (c >= min && c <= max).then_some((f64::NEG_INFINITY, f64::INFINITY));
-    }
-    let (a, b) = ((min - c) / k, (max - c) / k);
-    Some((a.min(b), a.max(b)))
 }
 
 #[cfg(test)]

@@ -47,9 +47,9 @@ const NEAR_POLE: f64 = 0.35;
 const SIN_NEAR_POLE: f64 = 0.342_897_807_455_451_24;
 
 /// Great-arc spans up to this long (radians) may be accepted on their ends' curvature alone
-/// (see [`Flattener::ends_bound`]): over a hundredth of a radian, away from the poles, the
-/// image's curvature changes by a few per cent at most.
-const SHORT_SPAN: f64 = 0.01;
+/// (see [`Flattener::ends_bound`]): over so short an arc, away from the poles, the image's
+/// curvature changes little, and the spread between the ends widens the bound.
+const SHORT_SPAN: f64 = 0.03;
 
 /// The rows within this fraction of the height from the top or bottom (9 degrees of
 /// elevation) count as near a pole, where chords must stay within `POLAR_MARGIN` of the
@@ -98,6 +98,8 @@ struct Sample {
 
 /// The state carried from piece to piece of one curve.
 struct Run {
+    /// Some of the curve lies in a pole band, so pieces must be checked for it.
+    touches_pole_band: bool,
     /// The curve lies in the plane of the seam (straight behind or ahead of the viewer).
     on_seam_plane: bool,
     /// The open polyline lies along the seam.
@@ -134,8 +136,9 @@ impl Flattener {
     /// seam and pole crossings.
     pub fn flatten(&mut self, curve: &SphereCurve, out: &mut PolylineSet) {
         let mut cuts = std::mem::take(&mut self.cuts);
-        self.find_cuts(curve, &mut cuts);
+        let touches_pole_band = self.find_cuts(curve, &mut cuts);
         let mut run = Run {
+            touches_pole_band,
             on_seam_plane: curve.lies_in_plane(&Vector3::x()),
             on_seam: false,
             drawing: false,
@@ -172,12 +175,12 @@ impl Flattener {
         run: &mut Run,
         out: &mut PolylineSet,
     ) {
-        let middle = curve.position((ta + tb) / 2.0);
-        if self.is_in_pole_band(&middle) {
+        let middle = || curve.position((ta + tb) / 2.0);
+        if run.touches_pole_band && self.is_in_pole_band(&middle()) {
             run.drawing = false;
             return;
         }
-        let lies_on_seam = run.on_seam_plane && middle.y < 0.0;
+        let lies_on_seam = run.on_seam_plane && middle().y < 0.0;
         // Samples are unwrapped against the azimuth at the middle only where it matters: a
         // piece that reaches behind the viewer may touch the seam, where atan2's sign of
         // zero would otherwise pick the border. Ahead, atan2's own range is continuous.
@@ -186,20 +189,21 @@ impl Flattener {
             reference: 0.0,
             samples_left: run.samples_left,
         };
-        let (mut a, mut b) = (
-            self.end_sample(&mut piece, ta, cut_a),
-            self.end_sample(&mut piece, tb, cut_b),
-        );
+        let (mut a, mut b) = (self.sample(&mut piece, ta), self.sample(&mut piece, tb));
         let behind = |s: &Sample| (s.at.x - self.map.width() / 2.0).abs() > self.map.width() / 4.0;
         if lies_on_seam || cut_a == Cut::Seam || cut_b == Cut::Seam || behind(&a) || behind(&b) {
+            let middle = middle();
             piece.reference = if lies_on_seam {
                 -PI
             } else {
                 middle.x.atan2(middle.y)
             };
-            a = self.end_sample(&mut piece, ta, cut_a);
-            b = self.end_sample(&mut piece, tb, cut_b);
+            for end in [&mut a, &mut b] {
+                end.at.x = self.rewrap_x(end.at.x, piece.reference);
+            }
         }
+        self.snap_to_cut(&mut a, cut_a, &piece);
+        self.snap_to_cut(&mut b, cut_b, &piece);
         // Plain cuts only help the refinement; the polyline goes on through them.
         if !run.drawing || cut_a != Cut::Plain {
             if run.on_seam {
@@ -262,8 +266,9 @@ impl Flattener {
         Some(b)
     }
 
-    /// The cut parameters of a curve, sorted, with their kinds, into `cuts`.
-    fn find_cuts(&self, curve: &SphereCurve, cuts: &mut Vec<(f64, Cut)>) {
+    /// The cut parameters of a curve, sorted, with their kinds, into `cuts`; and whether
+    /// any of the curve lies in a pole band.
+    fn find_cuts(&self, curve: &SphereCurve, cuts: &mut Vec<(f64, Cut)>) -> bool {
         let (t0, t1) = (curve.t0, curve.t1);
         cuts.clear();
         cuts.extend([(t0, Cut::Plain), (t1, Cut::Plain)]);
@@ -288,16 +293,17 @@ impl Flattener {
                 }
             }
         }
-        if self.in_pole_band(curve, t0) {
+        let (start, end) = (curve.position(t0), curve.position(t1));
+        let ends_in_band = [self.is_in_pole_band(&start), self.is_in_pole_band(&end)];
+        if ends_in_band[0] {
             band_edges(t0, &[t1], cuts);
         }
-        if self.in_pole_band(curve, t1) {
+        if ends_in_band[1] {
             band_edges(t1, &[t0], cuts);
         }
         // A great arc shorter than a half turn lies in the cone of its ends, so with both
         // ends ahead of the viewer it cannot reach the seam behind: most edges skip the search.
-        let ahead = |t: f64| curve.position(t).y > 0.0;
-        if !(curve.is_great_circle() && t1 - t0 < PI && ahead(t0) && ahead(t1)) {
+        if !(curve.is_great_circle() && t1 - t0 < PI && start.y > 0.0 && end.y > 0.0) {
             for &t in curve.meridian_crossings(PI).as_slice() {
                 cuts.push((t, Cut::Seam));
             }
@@ -324,12 +330,13 @@ impl Flattener {
         if let Some(last) = cuts.last_mut() {
             last.0 = t1;
         }
+        // Only then can a piece lie in a pole band.
+        ends_in_band.contains(&true) || cuts.iter().any(|(_, cut)| *cut == Cut::Pole)
     }
 
-    /// The sample at one end of a piece: on the border for a seam crossing, on the border
-    /// row for the edge of a pole band.
-    fn end_sample(&self, piece: &mut Piece, t: f64, cut: Cut) -> Sample {
-        let mut sample = self.sample(piece, t);
+    /// Puts the sample at one end of a piece on the border for a seam crossing, or on the
+    /// border row for the edge of a pole band.
+    fn snap_to_cut(&self, sample: &mut Sample, cut: Cut, piece: &Piece) {
         match cut {
             Cut::Plain => {}
             Cut::Seam => {
@@ -340,11 +347,16 @@ impl Flattener {
                 }
             }
             Cut::Pole => {
-                let zenith = piece.curve.position(t).z > 0.0;
+                let zenith = piece.curve.position(sample.t).z > 0.0;
                 sample.at.y = if zenith { 0.0 } else { self.map.height() };
             }
         }
-        sample
+    }
+
+    /// An image column re-unwrapped against another reference azimuth (whole turns only).
+    fn rewrap_x(&self, x: f64, reference: f64) -> f64 {
+        let azimuth = unwrap(x / self.map.x_scale() - PI, reference);
+        (azimuth + PI) * self.map.x_scale()
     }
 
     /// The image point at `t` and its exact derivatives.
@@ -468,8 +480,7 @@ impl Flattener {
         let chord = Vector2::new(b.at.x - a.at.x, b.at.y - a.at.y);
         let length = chord.norm();
         let too_wide = chord.x.abs() > self.map.width() / 4.0;
-        // Near a pole the curvature changes too fast for two samples (beyond POLAR_ROWS, by
-        // at most about 6% over SHORT_SPAN).
+        // Near a pole the curvature changes too fast for two samples.
         let polar = |y: f64| {
             y < POLAR_ROWS * self.map.height() || y > (1.0 - POLAR_ROWS) * self.map.height()
         };
@@ -629,7 +640,12 @@ mod tests {
         // than an eighth of the height (256 px here).
         let length = pieces[0][pieces[0].len() - 1].y - pieces[0][0].y;
         let most = (length.abs() / 256.0).ceil() as usize * 2 + 1;
-        assert!(pieces[0].len() <= most, "{} vertices for {length} px: {:?}", pieces[0].len(), pieces[0]);
+        assert!(
+            pieces[0].len() <= most,
+            "{} vertices for {length} px: {:?}",
+            pieces[0].len(),
+            pieces[0]
+        );
     }
 
     #[test]
