@@ -32,7 +32,7 @@ impl GreyCanvas {
 }
 
 /// Rows per band handed to a thread.
-const BAND_ROWS: usize = 64;
+const BAND_ROWS: usize = 32;
 
 /// Rasterises every layer of the drawing onto white paper, using all cores.
 /// The caller has checked the size against [`MAX_PIXELS`].
@@ -43,27 +43,32 @@ pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
     let mut pixels = vec![0u8; width * height];
     let segments = collect_segments(drawing);
     let by_band = segments_by_band(&segments, height);
-    // Bands are dealt round-robin to the threads: neighbouring bands hold similar amounts
-    // of drawing, so every thread gets a fair share without any locking.
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
-    let mut work: Vec<Vec<Band>> = (0..threads).map(|_| Vec::new()).collect();
-    for (index, rows) in pixels.chunks_mut(BAND_ROWS * width.max(1)).enumerate() {
-        work[index % threads].push(Band {
+    // Each core takes the next undrawn band until none is left: the drawing is rarely spread
+    // evenly over the height (most of it hugs the horizon), so a fixed share would leave one
+    // core idle while the other works.
+    let bands = pixels
+        .chunks_mut(BAND_ROWS * width.max(1))
+        .enumerate()
+        .map(|(index, rows)| Band {
             width,
             top: index * BAND_ROWS,
             rows,
         });
-    }
+    let queue = std::sync::Mutex::new(bands);
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
     std::thread::scope(|scope| {
-        for bands in work {
-            let (segments, by_band) = (&segments, &by_band);
-            scope.spawn(move || {
-                for mut band in bands {
-                    band.rows.fill(255);
-                    let index = band.top / BAND_ROWS;
-                    for &s in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
-                        band.draw(&segments[s as usize]);
-                    }
+        for _ in 0..threads {
+            let (segments, by_band, queue) = (&segments, &by_band, &queue);
+            scope.spawn(move || loop {
+                let next = queue
+                    .lock()
+                    .unwrap_or_else(|poisoned| poisoned.into_inner())
+                    .next();
+                let Some(mut band) = next else { break };
+                band.rows.fill(255);
+                let index = band.top / BAND_ROWS;
+                for &s in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
+                    band.draw(&segments[s as usize]);
                 }
             });
         }
@@ -127,6 +132,10 @@ struct Segment {
     d: (f64, f64),
     unit: (f64, f64),
     inverse_length_sq: f64,
+    /// How far the line moves in x per row (`dx / dy`), and half the width in x of the strip
+    /// within `reach` of the line (`reach / |uy|`; infinite for a horizontal line).
+    x_per_row: f64,
+    half_strip: f64,
 }
 
 impl Segment {
@@ -151,6 +160,12 @@ impl Segment {
             d,
             unit,
             inverse_length_sq,
+            x_per_row: if d.1 != 0.0 { d.0 / d.1 } else { 0.0 },
+            half_strip: if unit.1 != 0.0 {
+                reach / unit.1.abs()
+            } else {
+                f64::INFINITY
+            },
         }
     }
 
@@ -159,67 +174,22 @@ impl Segment {
         Segment::new(moved(self.a), moved(self.b), self.reach, self.ink)
     }
 
-    /// The x-interval where the row through `y` meets the capsule of radius `reach` around
-    /// the segment: the union of its two end discs and the strip between them (the capsule
-    /// is convex, so the union is one interval). Narrow strokes just use their bounding box.
-    fn row_span(&self, y: f64) -> Option<(f64, f64)> {
-        if self.right - self.left <= NARROW {
-            return Some((self.left, self.right));
-        }
-        let r = self.reach;
-        let mut lo = f64::INFINITY;
-        let mut hi = f64::NEG_INFINITY;
-        for end in [self.a, self.b] {
-            let dy = y - end.y;
-            if dy.abs() <= r {
-                let half = (r * r - dy * dy).sqrt();
-                lo = lo.min(end.x - half);
-                hi = hi.max(end.x + half);
-            }
-        }
-        let (ux, uy) = self.unit;
-        if uy.abs() > 1e-12 {
-            // On the row, |n . (p - a)| <= r with n = (-uy, ux) and 0 <= u . (p - a) <= L:
-            // two intervals in x, intersected.
-            let dy = y - self.a.y;
-            let length = 1.0 / self.inverse_length_sq.sqrt();
-            let across = interval(-uy, ux * dy + uy * self.a.x, -r, r);
-            let along = interval(ux, uy * dy - ux * self.a.x, 0.0, length);
-            let (start, end) = (across.0.max(along.0), across.1.min(along.1));
-            if start <= end {
-                lo = lo.min(start);
-                hi = hi.max(end);
-            }
-        } else if self.inverse_length_sq > 0.0 && (y - self.a.y).abs() <= r {
-            // A horizontal segment: the strip covers the whole span between the ends.
-            lo = lo.min(self.a.x.min(self.b.x));
-            hi = hi.max(self.a.x.max(self.b.x));
-        }
-        (lo <= hi).then_some((lo, hi))
+    /// An x-interval of the row through `y` that holds every point within `reach` of the
+    /// segment: the strip within `reach` of its line, cut to the stroke's bounding box. (The
+    /// capsule lies inside both; the few extra pixels near the ends get zero coverage.)
+    fn row_span(&self, y: f64) -> (f64, f64) {
+        let x_on_line = self.a.x + (y - self.a.y) * self.x_per_row;
+        (
+            (x_on_line - self.half_strip).max(self.left),
+            (x_on_line + self.half_strip).min(self.right),
+        )
     }
-}
-
-/// Strokes at most this wide (pixels, with their reach) are drawn over their whole bounding
-/// box, which is cheaper than finding the exact span of each row.
-const NARROW: f64 = 8.0;
-
-/// The `x` with `min <= k x + c <= max` (everything if `k` is zero and `c` fits, nothing if
-/// it does not).
-fn interval(k: f64, c: f64, min: f64, max: f64) -> (f64, f64) {
-    if k.abs() < 1e-300 {
-        return if c >= min && c <= max {
-            (f64::NEG_INFINITY, f64::INFINITY)
-        } else {
-            (1.0, 0.0)
-        };
-    }
-    let (a, b) = ((min - c) / k, (max - c) / k);
-    (a.min(b), a.max(b))
 }
 
 fn collect_segments(drawing: &Drawing) -> Vec<Segment> {
     let width = drawing.width as f64;
-    let mut segments = Vec::new();
+    // One segment per vertex is enough but for the few that wrap round a border.
+    let mut segments = Vec::with_capacity(drawing.vertex_count() + drawing.vertex_count() / 64);
     for layer in &drawing.layers {
         let Stroke { ink, width_px } = layer.stroke;
         let reach = width_px.max(1.0) / 2.0 + 0.5;
@@ -262,39 +232,72 @@ impl Band<'_> {
         let is_dot = s.inverse_length_sq == 0.0;
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
-            let Some((x0, x1)) = s.row_span(cy) else {
-                continue;
-            };
+            let (x0, x1) = s.row_span(cy);
             // Pixel centres column + 0.5 within [x0, x1].
             let start = ceil_at_least_zero(x0 - 0.5);
             let end = (((x1 - 0.5).max(-1.0) + 1.0) as usize).min(self.width);
+            if start >= end {
+                continue;
+            }
             let offset = (row - self.top) * self.width;
             let py = cy - s.a.y;
             // Along the row, the parameter of the nearest point on the segment's line and the
             // signed distance to that line are linear in the column.
             let x_first = start as f64 + 0.5 - s.a.x;
-            let mut t = (x_first * dx + py * dy) * s.inverse_length_sq;
+            let t_first = (x_first * dx + py * dy) * s.inverse_length_sq;
             let step_t = dx * s.inverse_length_sq;
-            let mut across = x_first * uy - py * ux;
-            for column in start..end {
-                let distance = if (0.0..=1.0).contains(&t) && !is_dot {
-                    across.abs()
-                } else {
-                    // Beyond an end: the distance to that end point.
-                    let end_point = if t > 1.0 { s.b } else { s.a };
-                    let (ex, ey) = (column as f64 + 0.5 - end_point.x, cy - end_point.y);
-                    (ex * ex + ey * ey).sqrt()
-                };
-                t += step_t;
-                across += uy;
-                let coverage = (s.reach - distance).clamp(0.0, 1.0);
-                // 255 - coverage * ink, rounded to the nearest level.
-                let value = (255.5 - coverage * s.ink) as u8;
-                let pixel = &mut self.rows[offset + column];
-                *pixel = (*pixel).min(value);
+            let across_first = x_first * uy - py * ux;
+            let pixels = &mut self.rows[offset..offset + self.width];
+            // Columns whose nearest point lies between the ends (the strip, where the distance
+            // is |across|), found from the linear t; the rest are near an end point.
+            let (strip_start, strip_end) = if is_dot {
+                (start, start)
+            } else {
+                strip_columns(start, end, t_first, step_t)
+            };
+            for column in (start..strip_start).chain(strip_end..end) {
+                let t = t_first + (column - start) as f64 * step_t;
+                let end_point = if t > 0.5 { s.b } else { s.a };
+                let (ex, ey) = (column as f64 + 0.5 - end_point.x, cy - end_point.y);
+                ink(
+                    &mut pixels[column],
+                    s.reach - (ex * ex + ey * ey).sqrt(),
+                    s.ink,
+                );
+            }
+            // The strip: no branches, so the compiler can use vector instructions.
+            for (k, pixel) in pixels[strip_start..strip_end].iter_mut().enumerate() {
+                let across = across_first + (strip_start - start + k) as f64 * uy;
+                ink(pixel, s.reach - across.abs(), s.ink);
             }
         }
     }
+}
+
+/// Darkens a pixel to `255 - clamp(coverage) * ink`, rounded, if that is darker.
+#[inline(always)]
+fn ink(pixel: &mut u8, coverage: f64, ink: f64) {
+    let value = (255.5 - coverage.clamp(0.0, 1.0) * ink) as u8;
+    *pixel = (*pixel).min(value);
+}
+
+/// The columns in `start..end` where `t_first + (column - start) * step_t` lies in `[0, 1]`.
+fn strip_columns(start: usize, end: usize, t_first: f64, step_t: f64) -> (usize, usize) {
+    if step_t == 0.0 {
+        return if (0.0..=1.0).contains(&t_first) {
+            (start, end)
+        } else {
+            (start, start)
+        };
+    }
+    // t(k) = t_first + k step_t for k = column - start; the k where 0 <= t <= 1.
+    let (k0, k1) = ((0.0 - t_first) / step_t, (1.0 - t_first) / step_t);
+    let (k_low, k_high) = (k0.min(k1), k0.max(k1));
+    let count = (end - start) as f64;
+    let first = ceil_at_least_zero(k_low).min(end - start);
+    let last = ((k_high.min(count - 1.0)).max(-1.0) + 1.0) as usize;
+    let last = last.max(first).min(end - start);
+    (start + first, start + last)
 }
 
 /// `ceil(v)` for the pixel loop, clamped at zero.

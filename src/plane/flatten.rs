@@ -558,7 +558,14 @@ fn distance_to_chord(a: ImagePoint, b: ImagePoint, p: ImagePoint) -> f64 {
 /// `azimuth` moved by whole turns into `[reference - pi, reference + pi]`, then into
 /// `[-pi, pi]` (a reference on the seam keeps its side).
 fn unwrap(azimuth: f64, reference: f64) -> f64 {
-    let unwrapped = reference + (azimuth - reference + PI).rem_euclid(TAU) - PI;
+    // Both lie in [-pi, pi], so one turn at most brings them within half a turn.
+    let mut difference = azimuth - reference;
+    if difference > PI {
+        difference -= TAU;
+    } else if difference < -PI {
+        difference += TAU;
+    }
+    let unwrapped = reference + difference;
     unwrapped.clamp(-PI, PI)
 }
 

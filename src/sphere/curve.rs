@@ -151,7 +151,7 @@ impl SphereCurve {
             return out;
         }
         let (c, a, b) = self.coefficients(m);
-        let r = a.hypot(b);
+        let r = (a * a + b * b).sqrt();
         if r == 0.0 || c.abs() > r {
             return out;
         }
@@ -167,7 +167,7 @@ impl SphereCurve {
                 continue;
             }
             // Bring the root into [t0, t0 + 2 pi).
-            *root = self.t0 + (*root - self.t0).rem_euclid(TAU);
+            *root = self.t0 + wrap_turn(*root - self.t0);
         }
         candidates.sort_by(|x, y| x.total_cmp(y));
         for root in candidates {
@@ -206,21 +206,24 @@ impl SphereCurve {
         let pole = Vector3::new(0.0, 0.0, if towards_zenith { 1.0 } else { -1.0 });
         if self.is_great_circle() {
             let normal = self.u.cross(&self.v).normalize();
-            if normal.dot(&pole).abs() >= within.sin() {
+            let sine = normal.dot(&pole).abs();
+            if sine >= within.sin() {
                 return Vec::new(); // the whole circle keeps further than `within` away
             }
+            // The point of the circle nearest the pole; inside the arc only if it lies between
+            // the ends (cheap cross-product tests before any trigonometry).
             let closest = pole - normal * normal.dot(&pole);
-            let Some(closest) = closest.try_normalize(1e-300) else {
-                return Vec::new(); // the arc lies on the equator of this pole: never near
-            };
-            let distance = normal.dot(&pole).abs().clamp(0.0, 1.0).asin();
-            if distance >= within {
+            let (start, end) = (self.position(self.t0), self.position(self.t1));
+            let inside = self.t1 - self.t0 >= std::f64::consts::PI
+                || (start.cross(&closest).dot(&normal) > 0.0
+                    && closest.cross(&end).dot(&normal) > 0.0);
+            if !inside {
                 return Vec::new();
             }
             let t = self.v.dot(&closest).atan2(self.u.dot(&closest));
-            let t = self.t0 + (t - self.t0).rem_euclid(TAU);
+            let t = self.t0 + wrap_turn(t - self.t0);
             return if t > self.t0 && t < self.t1 {
-                vec![(t, distance)]
+                vec![(t, sine.min(1.0).asin())]
             } else {
                 Vec::new()
             };
@@ -261,6 +264,21 @@ impl SphereCurve {
         }
         found
     }
+}
+
+/// An angle brought into `[0, 2 pi)` by whole turns (for angles within a few turns of zero;
+/// cheaper than `rem_euclid`, which calls `fmod`).
+fn wrap_turn(mut angle: f64) -> f64 {
+    if !angle.is_finite() {
+        return angle;
+    }
+    while angle < 0.0 {
+        angle += TAU;
+    }
+    while angle >= TAU {
+        angle -= TAU;
+    }
+    angle
 }
 
 /// The minimum of a unimodal function on `[a, b]` by golden-section search (Kiefer 1953;
