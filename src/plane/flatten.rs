@@ -147,7 +147,7 @@ impl Flattener {
         for pair in cuts.windows(2) {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
             // Long stretches go in equal pieces so that no chord test spans too much.
-            let parts = ((tb - ta) / MAX_PIECE_PARAMETER).ceil().max(1.0) as usize;
+            let parts = whole_parts((tb - ta) / MAX_PIECE_PARAMETER);
             for k in 0..parts {
                 let start = ta + (tb - ta) * k as f64 / parts as f64;
                 let end = if k + 1 == parts {
@@ -456,7 +456,7 @@ impl Flattener {
             }
             return;
         }
-        let parts = ((error / self.tolerance).sqrt().ceil() as usize).clamp(2, MAX_PARTS);
+        let parts = whole_parts((error / self.tolerance).sqrt()).clamp(2, MAX_PARTS);
         let parts = if short { parts } else { parts.max(4) };
         if parts == 2 {
             self.refine(piece, a, &middle, depth + 1, out);
@@ -539,6 +539,17 @@ impl Flattener {
         let span = b.t - a.t;
         let bound = largest * (1.0 + spread) * span * span / 8.0;
         distance_to_chord(a.at, b.at, middle.at).max(bound)
+    }
+}
+
+/// `ceil(x)` as a count of at least one, without the library call `ceil` makes on the
+/// baseline x86-64 target (this runs for every edge).
+fn whole_parts(x: f64) -> usize {
+    let whole = x as usize;
+    if (whole as f64) < x {
+        whole + 1
+    } else {
+        whole.max(1)
     }
 }
 

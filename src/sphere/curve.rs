@@ -136,8 +136,10 @@ impl SphereCurve {
     /// Whether the whole curve lies in the plane through the eye with normal `m`.
     pub fn lies_in_plane(&self, m: &Vector3<f64>) -> bool {
         let (c, a, b) = self.coefficients(m);
-        let scale = self.centre.norm() + self.u.norm() + self.v.norm();
-        c.abs().max(a.abs()).max(b.abs()) <= IN_PLANE_EPSILON * scale * m.norm()
+        // Largest components rather than norms: the same test within a factor of two, and
+        // no square roots (this runs for every edge).
+        let scale = self.centre.amax() + self.u.amax() + self.v.amax();
+        c.abs().max(a.abs()).max(b.abs()) <= IN_PLANE_EPSILON * scale * m.amax()
     }
 
     /// Parameters strictly inside the range where the curve meets the plane through the eye
