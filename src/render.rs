@@ -5,10 +5,11 @@ use crate::drawing::{
     grid_and_horizon, wireframe, Drawing, Layer, SkippedEdge, Stroke, GRID_STEP_DEG,
 };
 use crate::error::{Error, Result};
-use crate::output::{encode_grey_png, rasterize, write_atomically, GreyCanvas, MAX_PIXELS};
+use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{Site, Standpoint};
 use crate::sphere::ViewFrame;
+use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
 
@@ -85,6 +86,8 @@ pub struct Timings {
     pub flatten: Duration,
     pub raster: Duration,
     pub encode: Duration,
+    /// Set instead of `raster` and `encode` where the two ran overlapped.
+    pub raster_and_encode: Option<Duration>,
 }
 
 /// A finished drawing and what happened on the way.
@@ -168,10 +171,25 @@ pub fn render_png(
     settings: &RenderSettings,
     path: &Path,
 ) -> Result<Render> {
+    let mut render = None;
+    write_atomically(path, |file| {
+        render = Some(render_png_to(site, standpoint, settings, file)?);
+        Ok(())
+    })?;
+    Ok(render.expect("set by the successful write"))
+}
+
+/// Draws, rasterises and encodes a grey PNG into `out` (rasterising and encoding overlap,
+/// so they are timed together).
+pub fn render_png_to(
+    site: &Site,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    out: impl Write,
+) -> Result<Render> {
     let mut render = draw(site, standpoint, settings)?;
-    let canvas = raster(&mut render);
     let started = Instant::now();
-    write_atomically(path, |file| encode_grey_png(&canvas, file))?;
-    render.timings.encode = started.elapsed();
+    rasterize_grey_png(&render.drawing, out)?;
+    render.timings.raster_and_encode = Some(started.elapsed());
     Ok(render)
 }

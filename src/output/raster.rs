@@ -37,67 +37,151 @@ const BAND_ROWS: usize = 32;
 /// Rasterises every layer of the drawing onto white paper, using all cores.
 /// The caller has checked the size against [`MAX_PIXELS`].
 pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
+    match rasterize_in_bands(drawing, |_| Ok::<(), std::convert::Infallible>(())) {
+        Ok(canvas) => canvas,
+        Err(never) => match never {},
+    }
+}
+
+/// Rasterises like [`rasterize`], and hands the finished rows to `rows`, top to bottom,
+/// on the calling thread while the other bands are still being drawn: an encoder can
+/// compress the top of the image while the rest is rasterised. Stops at `rows`' first
+/// error (the bands being drawn are finished and thrown away).
+pub fn rasterize_in_bands<E>(
+    drawing: &Drawing,
+    mut rows: impl FnMut(&[u8]) -> Result<(), E>,
+) -> Result<GreyCanvas, E> {
     let (width, height) = (drawing.width as usize, drawing.height as usize);
     // Zeroed memory comes from the system untouched; each band is filled with white paper
     // by its own thread just before it is drawn, while it is in that core's cache.
     let mut pixels = vec![0u8; width * height];
-    let segments = collect_segments(drawing);
-    let by_band = segments_by_band(&segments, height);
+    let pens: Vec<Pen> = drawing
+        .layers
+        .iter()
+        .map(|layer| Pen::of(layer.stroke))
+        .collect();
+    let by_band = strokes_by_band(drawing, &pens);
+    let band_count = height.div_ceil(BAND_ROWS);
     // Each core takes the next undrawn band until none is left: the drawing is rarely spread
     // evenly over the height (most of it hugs the horizon), so a fixed share would leave one
     // core idle while the other works.
-    let bands = pixels
-        .chunks_mut(BAND_ROWS * width.max(1))
-        .enumerate()
-        .map(|(index, rows)| Band {
-            width,
-            top: index * BAND_ROWS,
-            rows,
-        });
-    let queue = std::sync::Mutex::new(bands);
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
-    std::thread::scope(|scope| {
-        for _ in 0..threads {
-            let (segments, by_band, queue) = (&segments, &by_band, &queue);
-            scope.spawn(move || loop {
-                let next = queue
-                    .lock()
-                    .unwrap_or_else(|poisoned| poisoned.into_inner())
-                    .next();
-                let Some(mut band) = next else { break };
-                band.rows.fill(255);
-                let index = band.top / BAND_ROWS;
-                for &s in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
-                    band.draw(&segments[s as usize]);
-                }
+    let mut outcome = Ok(());
+    {
+        let bands = pixels
+            .chunks_mut(BAND_ROWS * width.max(1))
+            .enumerate()
+            .map(|(index, rows)| Band {
+                width,
+                top: index * BAND_ROWS,
+                rows,
             });
-        }
-    });
-    GreyCanvas {
+        let queue = std::sync::Mutex::new(bands);
+        let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
+        let (finished, done) = std::sync::mpsc::channel::<Band>();
+        std::thread::scope(|scope| {
+            for _ in 0..threads {
+                let (by_band, queue, pens, finished) = (&by_band, &queue, &pens, finished.clone());
+                scope.spawn(move || loop {
+                    let next = queue
+                        .lock()
+                        .unwrap_or_else(|poisoned| poisoned.into_inner())
+                        .next();
+                    let Some(mut band) = next else { break };
+                    band.rows.fill(255);
+                    band.draw_strokes(drawing, pens, by_band);
+                    if finished.send(band).is_err() {
+                        break; // nobody wants the rows any more
+                    }
+                });
+            }
+            drop(finished);
+            // Pass the bands on in order as they come in (nearly in order already, since the
+            // cores take them from the top down).
+            let mut waiting: Vec<Option<Band>> = (0..band_count).map(|_| None).collect();
+            let mut next = 0;
+            for band in done.iter() {
+                let index = band.top / BAND_ROWS;
+                waiting[index] = Some(band);
+                while let Some(Some(band)) = waiting.get_mut(next).map(Option::take) {
+                    if outcome.is_ok() {
+                        outcome = rows(band.rows);
+                    }
+                    next += 1;
+                }
+                if outcome.is_err() {
+                    break;
+                }
+            }
+        });
+    }
+    outcome.map(|()| GreyCanvas {
         width: drawing.width,
         height: drawing.height,
         pixels,
+    })
+}
+
+/// How a layer's strokes are drawn, in the rasteriser's terms.
+#[derive(Clone, Copy, Debug)]
+struct Pen {
+    /// Coverage reaches this far from a segment: half the stroke width plus half a pixel.
+    reach: f64,
+    /// Darkness at full coverage, 0..=255, already scaled for strokes thinner than a pixel.
+    ink: f64,
+}
+
+impl Pen {
+    fn of(stroke: Stroke) -> Pen {
+        Pen {
+            reach: stroke.width_px.max(1.0) / 2.0 + 0.5,
+            ink: 255.0 * stroke.ink.clamp(0.0, 1.0) * stroke.width_px.min(1.0),
+        }
     }
 }
 
-/// For each band, the indices of the segments that reach into it (a compressed row list:
-/// band `i` owns `entries[starts[i]..starts[i + 1]]`).
-struct SegmentsByBand {
+/// One segment of one layer's polylines: indices into that layer's points.
+#[derive(Clone, Copy, Debug)]
+struct StrokeRef {
+    layer: u32,
+    from: u32,
+    to: u32,
+}
+
+/// For each band, the segments that reach into it (a compressed row list: band `i` owns
+/// `entries[starts[i]..starts[i + 1]]`). Eight bytes a segment instead of the segment's
+/// derived values, which each band recomputes as it draws.
+struct StrokesByBand {
     starts: Vec<usize>,
-    entries: Vec<u32>,
+    entries: Vec<StrokeRef>,
 }
 
-fn band_range(s: &Segment, bands: usize) -> std::ops::Range<usize> {
-    let first = (s.top.max(0.0) as usize / BAND_ROWS).min(bands);
-    let last = (s.bottom.max(0.0) as usize / BAND_ROWS + 1).min(bands);
-    first..last.max(first)
-}
-
-fn segments_by_band(segments: &[Segment], height: usize) -> SegmentsByBand {
-    let bands = height.div_ceil(BAND_ROWS);
+fn strokes_by_band(drawing: &Drawing, pens: &[Pen]) -> StrokesByBand {
+    let bands = (drawing.height as usize).div_ceil(BAND_ROWS);
+    let band_range = |a: ImagePoint, b: ImagePoint, reach: f64| {
+        let first = ((a.y.min(b.y) - reach).max(0.0) as usize / BAND_ROWS).min(bands);
+        let last = ((a.y.max(b.y) + reach).max(0.0) as usize / BAND_ROWS + 1).min(bands);
+        first..last.max(first)
+    };
+    let strokes = || {
+        drawing.layers.iter().enumerate().flat_map(|(layer, l)| {
+            let points = l.lines.points();
+            let reach = pens[layer].reach;
+            l.lines.segment_indices().map(move |(from, to)| {
+                let range = band_range(points[from as usize], points[to as usize], reach);
+                (
+                    StrokeRef {
+                        layer: layer as u32,
+                        from,
+                        to,
+                    },
+                    range,
+                )
+            })
+        })
+    };
     let mut starts = vec![0usize; bands + 1];
-    for s in segments {
-        for band in band_range(s, bands) {
+    for (_, range) in strokes() {
+        for band in range {
             starts[band + 1] += 1;
         }
     }
@@ -105,14 +189,19 @@ fn segments_by_band(segments: &[Segment], height: usize) -> SegmentsByBand {
         starts[i + 1] += starts[i];
     }
     let mut fill = starts.clone();
-    let mut entries = vec![0u32; starts[bands]];
-    for (index, s) in segments.iter().enumerate() {
-        for band in band_range(s, bands) {
-            entries[fill[band]] = index as u32;
+    let placeholder = StrokeRef {
+        layer: 0,
+        from: 0,
+        to: 0,
+    };
+    let mut entries = vec![placeholder; starts[bands]];
+    for (stroke, range) in strokes() {
+        for band in range {
+            entries[fill[band]] = stroke;
             fill[band] += 1;
         }
     }
-    SegmentsByBand { starts, entries }
+    StrokesByBand { starts, entries }
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -139,7 +228,8 @@ struct Segment {
 }
 
 impl Segment {
-    fn new(a: ImagePoint, b: ImagePoint, reach: f64, ink: f64) -> Segment {
+    fn new(a: ImagePoint, b: ImagePoint, pen: Pen) -> Segment {
+        let Pen { reach, ink } = pen;
         let d = (b.x - a.x, b.y - a.y);
         let length_sq = d.0 * d.0 + d.1 * d.1;
         let length = length_sq.sqrt();
@@ -171,7 +261,14 @@ impl Segment {
 
     fn shifted(&self, dx: f64) -> Segment {
         let moved = |p: ImagePoint| ImagePoint::new(p.x + dx, p.y);
-        Segment::new(moved(self.a), moved(self.b), self.reach, self.ink)
+        Segment::new(
+            moved(self.a),
+            moved(self.b),
+            Pen {
+                reach: self.reach,
+                ink: self.ink,
+            },
+        )
     }
 
     /// An x-interval of the row through `y` that holds every point within `reach` of the
@@ -186,34 +283,6 @@ impl Segment {
     }
 }
 
-fn collect_segments(drawing: &Drawing) -> Vec<Segment> {
-    let width = drawing.width as f64;
-    // One segment per vertex is enough but for the few that wrap round a border.
-    let mut segments = Vec::with_capacity(drawing.vertex_count() + drawing.vertex_count() / 64);
-    for layer in &drawing.layers {
-        let Stroke { ink, width_px } = layer.stroke;
-        let reach = width_px.max(1.0) / 2.0 + 0.5;
-        let ink = 255.0 * ink.clamp(0.0, 1.0) * width_px.min(1.0);
-        for line in layer.lines.iter() {
-            let pairs = line.windows(2).map(|w| (w[0], w[1]));
-            // A single point still makes a dot.
-            let single = (line.len() == 1).then(|| (line[0], line[0]));
-            for (a, b) in pairs.chain(single) {
-                let segment = Segment::new(a, b, reach, ink);
-                segments.push(segment);
-                // Wrap strokes that reach past a border onto the other side.
-                if segment.left < 0.0 {
-                    segments.push(segment.shifted(width));
-                }
-                if segment.right > width {
-                    segments.push(segment.shifted(-width));
-                }
-            }
-        }
-    }
-    segments
-}
-
 /// A horizontal band of the canvas.
 struct Band<'a> {
     width: usize,
@@ -222,6 +291,29 @@ struct Band<'a> {
 }
 
 impl Band<'_> {
+    /// Draws every stroke that reaches into this band.
+    fn draw_strokes(&mut self, drawing: &Drawing, pens: &[Pen], by_band: &StrokesByBand) {
+        let index = self.top / BAND_ROWS;
+        let canvas_width = drawing.width as f64;
+        for stroke in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
+            let points = drawing.layers[stroke.layer as usize].lines.points();
+            let pen = pens[stroke.layer as usize];
+            let segment = Segment::new(
+                points[stroke.from as usize],
+                points[stroke.to as usize],
+                pen,
+            );
+            self.draw(&segment);
+            // Strokes that reach past a border wrap round to the other side.
+            if segment.left < 0.0 {
+                self.draw(&segment.shifted(canvas_width));
+            }
+            if segment.right > canvas_width {
+                self.draw(&segment.shifted(-canvas_width));
+            }
+        }
+    }
+
     fn draw(&mut self, s: &Segment) {
         let band_rows = self.rows.len() / self.width.max(1);
         // Rows whose centres the capsule can reach. (Casts instead of floor/ceil/round in
@@ -248,6 +340,15 @@ impl Band<'_> {
             let step_t = dx * s.inverse_length_sq;
             let across_first = x_first * uy - py * ux;
             let pixels = &mut self.rows[offset..offset + self.width];
+            let t_last = t_first + (end - 1 - start) as f64 * step_t;
+            if !is_dot && (0.0..=1.0).contains(&t_first) && (0.0..=1.0).contains(&t_last) {
+                // The whole row is beside the segment, not beyond an end: the distance is
+                // |across| throughout (most rows of most strokes).
+                for (k, pixel) in pixels[start..end].iter_mut().enumerate() {
+                    ink(pixel, s.reach - (across_first + k as f64 * uy).abs(), s.ink);
+                }
+                continue;
+            }
             // Columns whose nearest point lies between the ends (the strip, where the distance
             // is |across|), found from the linear t; the rest are near an end point.
             let (strip_start, strip_end) = if is_dot {
@@ -265,7 +366,6 @@ impl Band<'_> {
                     s.ink,
                 );
             }
-            // The strip: no branches, so the compiler can use vector instructions.
             for (k, pixel) in pixels[strip_start..strip_end].iter_mut().enumerate() {
                 let across = across_first + (strip_start - start + k) as f64 * uy;
                 ink(pixel, s.reach - across.abs(), s.ink);

@@ -51,6 +51,23 @@ impl PolylineSet {
         self.starts.last().map(|&s| &self.points[s..])
     }
 
+    /// Every vertex of every polyline, in order.
+    pub fn points(&self) -> &[ImagePoint] {
+        &self.points
+    }
+
+    /// The strokes to draw, as index pairs into [`PolylineSet::points`]: each pair of
+    /// consecutive vertices of a polyline, and `(i, i)` for a polyline of a single point.
+    pub fn segment_indices(&self) -> impl Iterator<Item = (u32, u32)> + '_ {
+        self.starts.iter().enumerate().flat_map(|(i, &start)| {
+            let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());
+            let single = (end - start == 1).then_some((start as u32, start as u32));
+            (start..end.saturating_sub(1))
+                .map(|k| (k as u32, k as u32 + 1))
+                .chain(single)
+        })
+    }
+
     pub fn iter(&self) -> impl Iterator<Item = &[ImagePoint]> + '_ {
         self.starts.iter().enumerate().map(|(i, &start)| {
             let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());
@@ -86,6 +103,11 @@ mod tests {
         assert_eq!(lines[0].len(), 2);
         assert_eq!(lines[1].len(), 3);
         assert_eq!(set.vertex_count(), 5);
+        let pairs: Vec<_> = set.segment_indices().collect();
+        assert_eq!(pairs, vec![(0, 1), (2, 3), (3, 4)]);
+        let mut dot = PolylineSet::new();
+        dot.move_to(ImagePoint::new(1.0, 1.0));
+        assert_eq!(dot.segment_indices().collect::<Vec<_>>(), vec![(0, 0)]);
         let mut more = PolylineSet::new();
         more.push(&[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)]);
         set.append(&mut more);

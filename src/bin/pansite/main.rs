@@ -5,8 +5,7 @@ mod args;
 use anyhow::Context;
 use args::{Cli, Command, RenderArgs};
 use clap::Parser;
-use pansite::output::encode_grey_png;
-use pansite::render::{draw, raster, render_png, RenderSettings};
+use pansite::render::{render_png, render_png_to, RenderSettings};
 use pansite::scene::{load_scene, parse_scene, Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use pansite::Error;
 use std::io::{Read, Write};
@@ -59,10 +58,8 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         .unwrap_or_else(|| default_output(&args.scene, &standpoint));
     let render = if output == Path::new("-") {
         // Standard output cannot be replaced atomically: encode in memory, then send it.
-        let mut render = draw(&site, &standpoint, &settings)?;
-        let canvas = raster(&mut render);
         let mut bytes = Vec::new();
-        encode_grey_png(&canvas, &mut bytes)?;
+        let render = render_png_to(&site, &standpoint, &settings, &mut bytes)?;
         std::io::stdout()
             .lock()
             .write_all(&bytes)
@@ -106,12 +103,19 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
     }
     if args.timings {
         let t = &render.timings;
+        let ms = |d: std::time::Duration| d.as_secs_f64() * 1e3;
+        let last = match t.raster_and_encode {
+            Some(both) => format!("raster + encode (overlapped) {:.1} ms", ms(both)),
+            None => format!(
+                "raster {:.1} ms, encode {:.1} ms",
+                ms(t.raster),
+                ms(t.encode)
+            ),
+        };
         eprintln!(
-            "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster {:.1} ms, encode {:.1} ms",
-            load_time.as_secs_f64() * 1e3,
-            t.flatten.as_secs_f64() * 1e3,
-            t.raster.as_secs_f64() * 1e3,
-            t.encode.as_secs_f64() * 1e3
+            "pansite: timings: load {:.1} ms, flatten {:.1} ms, {last}",
+            ms(load_time),
+            ms(t.flatten)
         );
     }
     Ok(())
