@@ -12,42 +12,54 @@ pub struct SkippedEdge {
     pub why: Degeneracy,
 }
 
-/// Below this many edges a second thread costs more than it saves.
-const EDGES_PER_THREAD: usize = 4096;
+/// Edges are flattened in runs of this many; below two runs a second thread costs more
+/// than it saves.
+const EDGES_PER_RUN: usize = 2048;
 
 /// Flattens every edge of the site; degenerate edges are listed, not drawn.
 ///
-/// Large sites are split into one run of consecutive edges per core; the runs' polylines
-/// are joined in edge order, so the result does not depend on the number of cores.
+/// Large sites are cut into runs of consecutive edges that the cores take one at a time
+/// (near edges cost far more than distant ones, so fixed halves would leave a core idle);
+/// the runs' polylines are joined in edge order, so the result does not depend on the
+/// number of cores.
 pub fn wireframe(
     site: &Site,
     view: &ViewFrame,
     flattener: &Flattener,
 ) -> (PolylineSet, Vec<SkippedEdge>) {
+    let runs: Vec<&[Edge]> = site.edges.chunks(EDGES_PER_RUN).collect();
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
-    let threads = cores.min(site.edges.len() / EDGES_PER_THREAD).max(1);
-    let chunk = site.edges.len().div_ceil(threads).max(1);
-    let parts: Vec<(PolylineSet, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
-        let handles: Vec<_> = site
-            .edges
-            .chunks(chunk)
-            .enumerate()
-            .map(|(i, edges)| {
-                let mut flattener = flattener.clone();
-                scope.spawn(move || flatten_edges(edges, i * chunk, view, &mut flattener))
+    let threads = cores.min(runs.len()).max(1);
+    let next_run = std::sync::atomic::AtomicUsize::new(0);
+    let mut parts: Vec<(usize, PolylineSet, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..threads)
+            .map(|_| {
+                let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
+                scope.spawn(move || {
+                    let mut done = Vec::new();
+                    loop {
+                        let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                        let Some(edges) = runs.get(index) else { break };
+                        let (lines, skipped) =
+                            flatten_edges(edges, index * EDGES_PER_RUN, view, &mut flattener);
+                        done.push((index, lines, skipped));
+                    }
+                    done
+                })
             })
             .collect();
         handles
             .into_iter()
-            .map(|h| {
+            .flat_map(|h| {
                 h.join()
                     .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
             })
             .collect()
     });
+    parts.sort_by_key(|(index, _, _)| *index);
     let mut lines = PolylineSet::new();
     let mut skipped = Vec::new();
-    for (mut part_lines, part_skipped) in parts {
+    for (_, mut part_lines, part_skipped) in parts {
         lines.append(&mut part_lines);
         skipped.extend(part_skipped);
     }

@@ -14,7 +14,7 @@
 use crate::drawing::{Drawing, Stroke};
 use crate::plane::ImagePoint;
 
-/// The largest canvas pansite allocates: 500 megapixels.
+/// The largest image pansite draws: 500 megapixels.
 pub const MAX_PIXELS: u64 = 500_000_000;
 
 /// An 8-bit grey image, 255 = white paper, rows top to bottom.
@@ -37,24 +37,44 @@ const BAND_ROWS: usize = 32;
 /// Rasterises every layer of the drawing onto white paper, using all cores.
 /// The caller has checked the size against [`MAX_PIXELS`].
 pub fn rasterize(drawing: &Drawing) -> GreyCanvas {
-    match rasterize_in_bands(drawing, |_| Ok::<(), std::convert::Infallible>(())) {
-        Ok(canvas) => canvas,
+    let mut pixels = Vec::with_capacity(drawing.width as usize * drawing.height as usize);
+    let drawn = rasterize_in_bands(drawing, |rows| {
+        pixels.extend_from_slice(rows);
+        Ok::<(), std::convert::Infallible>(())
+    });
+    match drawn {
+        Ok(()) => GreyCanvas {
+            width: drawing.width,
+            height: drawing.height,
+            pixels,
+        },
         Err(never) => match never {},
     }
 }
 
-/// Rasterises like [`rasterize`], and hands the finished rows to `rows`, top to bottom,
-/// on the calling thread while the other bands are still being drawn: an encoder can
-/// compress the top of the image while the rest is rasterised. Stops at `rows`' first
-/// error (the bands being drawn are finished and thrown away).
+/// Band buffers in flight per core: enough that no core waits for the writer.
+const BUFFERS_PER_CORE: usize = 3;
+
+/// Rasterises the drawing band by band and hands the finished rows to `rows`, top to
+/// bottom, on the calling thread, while the other cores draw the bands below: an encoder
+/// compresses the top of the image while the rest is rasterised. Only a few bands exist at
+/// any time (their buffers are reused), so memory stays small whatever the image size, and
+/// the buffers are touched once, not page-faulted in afresh for every band. Stops at
+/// `rows`' first error.
+///
+/// Each core takes a free buffer, then the next band down, fills it with white paper and
+/// draws every stroke that reaches into it. (Buffer first, band second: so the lowest band
+/// not yet written always has a buffer, and the writer can never wait on a band that waits
+/// for a buffer.) The drawing is rarely spread evenly over the height (most of it hugs the
+/// horizon), which is why the bands are handed out one at a time rather than in fixed
+/// shares.
 pub fn rasterize_in_bands<E>(
     drawing: &Drawing,
     mut rows: impl FnMut(&[u8]) -> Result<(), E>,
-) -> Result<GreyCanvas, E> {
+) -> Result<(), E> {
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    use std::sync::mpsc::channel;
     let (width, height) = (drawing.width as usize, drawing.height as usize);
-    // Zeroed memory comes from the system untouched; each band is filled with white paper
-    // by its own thread just before it is drawn, while it is in that core's cache.
-    let mut pixels = vec![0u8; width * height];
     let pens: Vec<Pen> = drawing
         .layers
         .iter()
@@ -62,63 +82,68 @@ pub fn rasterize_in_bands<E>(
         .collect();
     let by_band = strokes_by_band(drawing, &pens);
     let band_count = height.div_ceil(BAND_ROWS);
-    // Each core takes the next undrawn band until none is left: the drawing is rarely spread
-    // evenly over the height (most of it hugs the horizon), so a fixed share would leave one
-    // core idle while the other works.
+    let rows_in = |band: usize| BAND_ROWS.min(height - band * BAND_ROWS);
+    let threads = std::thread::available_parallelism()
+        .map_or(1, |n| n.get())
+        .min(band_count.max(1));
+    let (free, free_buffers) = channel::<Vec<u8>>();
+    for _ in 0..(threads * BUFFERS_PER_CORE).min(band_count) {
+        // Ignoring the result is safe: the receiver is alive until the end of this function.
+        let _ = free.send(vec![0u8; BAND_ROWS * width]);
+    }
+    let free_buffers = std::sync::Mutex::new(free_buffers);
+    let next_band = AtomicUsize::new(0);
+    let (finished, done) = channel::<(usize, Vec<u8>)>();
     let mut outcome = Ok(());
-    {
-        let bands = pixels
-            .chunks_mut(BAND_ROWS * width.max(1))
-            .enumerate()
-            .map(|(index, rows)| Band {
-                width,
-                top: index * BAND_ROWS,
-                rows,
-            });
-        let queue = std::sync::Mutex::new(bands);
-        let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
-        let (finished, done) = std::sync::mpsc::channel::<Band>();
-        std::thread::scope(|scope| {
-            for _ in 0..threads {
-                let (by_band, queue, pens, finished) = (&by_band, &queue, &pens, finished.clone());
-                scope.spawn(move || loop {
-                    let next = queue
-                        .lock()
-                        .unwrap_or_else(|poisoned| poisoned.into_inner())
-                        .next();
-                    let Some(mut band) = next else { break };
-                    band.rows.fill(255);
-                    band.draw_strokes(drawing, pens, by_band);
-                    if finished.send(band).is_err() {
-                        break; // nobody wants the rows any more
-                    }
-                });
-            }
-            drop(finished);
-            // Pass the bands on in order as they come in (nearly in order already, since the
-            // cores take them from the top down).
-            let mut waiting: Vec<Option<Band>> = (0..band_count).map(|_| None).collect();
-            let mut next = 0;
-            for band in done.iter() {
-                let index = band.top / BAND_ROWS;
-                waiting[index] = Some(band);
-                while let Some(Some(band)) = waiting.get_mut(next).map(Option::take) {
-                    if outcome.is_ok() {
-                        outcome = rows(band.rows);
-                    }
-                    next += 1;
+    std::thread::scope(|scope| {
+        for _ in 0..threads {
+            let (by_band, pens, free_buffers, next_band, finished) =
+                (&by_band, &pens, &free_buffers, &next_band, finished.clone());
+            scope.spawn(move || loop {
+                let buffer = free_buffers
+                    .lock()
+                    .unwrap_or_else(|poisoned| poisoned.into_inner())
+                    .recv();
+                let Ok(mut buffer) = buffer else { break }; // the writer has stopped
+                let index = next_band.fetch_add(1, Ordering::Relaxed);
+                if index >= band_count {
+                    break;
                 }
+                let band_rows = &mut buffer[..rows_in(index) * width];
+                band_rows.fill(255);
+                Band {
+                    width,
+                    top: index * BAND_ROWS,
+                    rows: band_rows,
+                }
+                .draw_strokes(drawing, pens, by_band);
+                if finished.send((index, buffer)).is_err() {
+                    break;
+                }
+            });
+        }
+        drop(finished);
+        // Write the bands in order as they come in, and hand their buffers back.
+        let mut waiting: Vec<Option<Vec<u8>>> = (0..band_count).map(|_| None).collect();
+        let mut next = 0;
+        for (index, buffer) in done.iter() {
+            waiting[index] = Some(buffer);
+            while let Some(buffer) = waiting.get_mut(next).and_then(Option::take) {
+                outcome = rows(&buffer[..rows_in(next) * width]);
+                next += 1;
+                let _ = free.send(buffer);
                 if outcome.is_err() {
                     break;
                 }
             }
-        });
-    }
-    outcome.map(|()| GreyCanvas {
-        width: drawing.width,
-        height: drawing.height,
-        pixels,
-    })
+            if outcome.is_err() {
+                break;
+            }
+        }
+        // Stop the cores: those waiting for a buffer see the pool closed.
+        drop(free);
+    });
+    outcome
 }
 
 /// How a layer's strokes are drawn, in the rasteriser's terms.
@@ -322,8 +347,26 @@ impl Band<'_> {
         let end_row = (s.bottom.max(0.0) as usize + 1).min(self.top + band_rows);
         let ((dx, dy), (ux, uy)) = (s.d, s.unit);
         let is_dot = s.inverse_length_sq == 0.0;
+        // Rows of a steep stroke away from its ends (by the reach, in y) hold only pixels
+        // beside the segment, where the distance is the horizontal offset from the line
+        // times |uy|: a few pixels a row, drawn by a short loop (most rows of a wireframe).
+        let steep = !is_dot && uy.abs() >= ux.abs();
+        let (inner_top, inner_bottom) = (s.a.y.min(s.b.y) + s.reach, s.a.y.max(s.b.y) - s.reach);
+        let sine = uy.abs();
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
+            if steep && cy >= inner_top && cy <= inner_bottom {
+                let x_on_line = s.a.x + (cy - s.a.y) * s.x_per_row;
+                let start = ceil_at_least_zero(x_on_line - s.half_strip - 0.5);
+                let end =
+                    (((x_on_line + s.half_strip - 0.5).max(-1.0) + 1.0) as usize).min(self.width);
+                let offset = (row - self.top) * self.width;
+                for column in start..end.max(start) {
+                    let distance = (column as f64 + 0.5 - x_on_line).abs() * sine;
+                    ink(&mut self.rows[offset + column], s.reach - distance, s.ink);
+                }
+                continue;
+            }
             let (x0, x1) = s.row_span(cy);
             // Pixel centres column + 0.5 within [x0, x1].
             let start = ceil_at_least_zero(x0 - 0.5);
