@@ -154,7 +154,7 @@ fn whole(text: &str) -> Run {
     Run {
         parse,
         flatten: staged.timings.flatten,
-        raster: staged.timings.raster,
+        raster: staged.timings.raster.unwrap_or_default(),
         encode: started.elapsed(),
         render,
         edges: site.edges.len(),

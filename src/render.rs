@@ -84,9 +84,9 @@ impl RenderSettings {
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Timings {
     pub flatten: Duration,
-    pub raster: Duration,
-    pub encode: Duration,
-    /// Set instead of `raster` and `encode` where the two ran overlapped.
+    /// Rasterising alone (set by [`raster`]).
+    pub raster: Option<Duration>,
+    /// Rasterising and encoding, which overlap (set by [`render_png_to`]).
     pub raster_and_encode: Option<Duration>,
 }
 
@@ -159,7 +159,7 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
 pub fn raster(render: &mut Render) -> GreyCanvas {
     let started = Instant::now();
     let canvas = rasterize(&render.drawing);
-    render.timings.raster = started.elapsed();
+    render.timings.raster = Some(started.elapsed());
     canvas
 }
 

@@ -5,6 +5,6 @@ mod atomic;
 mod png;
 mod raster;
 
-pub use self::png::{encode_grey_png, rasterize_grey_png, write_grey_png};
+pub use self::png::{encode_grey_png, rasterize_grey_png};
 pub use atomic::write_atomically;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};

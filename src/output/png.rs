@@ -4,11 +4,10 @@
 //! conversion and no copy. `png`'s `Compression::Fast` (an `fdeflate` encoder tuned for PNG)
 //! with the `Up` filter: wireframes are mostly white rows, which `Up` turns into zeros.
 
-use super::{rasterize_in_bands, write_atomically, GreyCanvas};
+use super::{rasterize_in_bands, GreyCanvas};
 use crate::drawing::Drawing;
 use crate::error::Result;
 use std::io::Write;
-use std::path::Path;
 
 fn grey_encoder<W: Write>(out: W, width: u32, height: u32) -> png::Encoder<'static, W> {
     let mut encoder = png::Encoder::new(out, width, height);
@@ -38,11 +37,6 @@ pub fn rasterize_grey_png(drawing: &Drawing, out: impl Write) -> Result<()> {
     stream.finish()?;
     writer.finish()?;
     Ok(())
-}
-
-/// Writes the canvas to `path` atomically.
-pub fn write_grey_png(canvas: &GreyCanvas, path: &Path) -> Result<()> {
-    write_atomically(path, |file| encode_grey_png(canvas, file))
 }
 
 #[cfg(test)]

@@ -301,9 +301,13 @@ impl Flattener {
         if ends_in_band[1] {
             band_edges(t1, &[t0], cuts);
         }
-        // A great arc shorter than a half turn lies in the cone of its ends, so with both
-        // ends ahead of the viewer it cannot reach the seam behind: most edges skip the search.
-        if !(curve.is_great_circle() && t1 - t0 < PI && start.y > 0.0 && end.y > 0.0) {
+        // A great arc shorter than a half turn lies in the cone of its ends: with both ends
+        // ahead of the viewer, or both on the same side (right or left) of the plane of the
+        // seam, it cannot cross the seam. Most edges skip the search.
+        let in_cone = curve.is_great_circle() && t1 - t0 < PI;
+        let ahead = start.y > 0.0 && end.y > 0.0;
+        let one_side = (start.x > 0.0 && end.x > 0.0) || (start.x < 0.0 && end.x < 0.0);
+        if !(in_cone && (ahead || one_side)) {
             for &t in curve.meridian_crossings(PI).as_slice() {
                 cuts.push((t, Cut::Seam));
             }

@@ -104,18 +104,12 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
     if args.timings {
         let t = &render.timings;
         let ms = |d: std::time::Duration| d.as_secs_f64() * 1e3;
-        let last = match t.raster_and_encode {
-            Some(both) => format!("raster + encode (overlapped) {:.1} ms", ms(both)),
-            None => format!(
-                "raster {:.1} ms, encode {:.1} ms",
-                ms(t.raster),
-                ms(t.encode)
-            ),
-        };
+        let both = t.raster_and_encode.unwrap_or_default();
         eprintln!(
-            "pansite: timings: load {:.1} ms, flatten {:.1} ms, {last}",
+            "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster + encode (overlapped) {:.1} ms",
             ms(load_time),
-            ms(t.flatten)
+            ms(t.flatten),
+            ms(both)
         );
     }
     Ok(())
