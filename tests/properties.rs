@@ -10,7 +10,7 @@ use proptest::prelude::*;
 use std::f64::consts::{FRAC_PI_2, PI};
 
 mod common;
-use common::distance_to_segment;
+use common::distance_to_polylines;
 
 const WIDTH: f64 = 4096.0;
 const HEIGHT: f64 = 2048.0;
@@ -76,19 +76,15 @@ fn flattened(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
 
 /// Distance from a point to the drawing, counting the seam as one line (x and x +- W).
 fn distance_to_drawing(p: ImagePoint, lines: &[Vec<ImagePoint>]) -> f64 {
-    let mut best = f64::INFINITY;
-    for shift in [0.0, WIDTH, -WIDTH] {
-        let q = ImagePoint::new(p.x + shift, p.y);
-        for line in lines {
-            if line.len() == 1 {
-                best = best.min((q.x - line[0].x).hypot(q.y - line[0].y));
-            }
-            for w in line.windows(2) {
-                best = best.min(distance_to_segment(q, w[0], w[1]));
-            }
-        }
-    }
-    best
+    [0.0, WIDTH, -WIDTH]
+        .iter()
+        .map(|shift| {
+            distance_to_polylines(
+                ImagePoint::new(p.x + shift, p.y),
+                lines.iter().map(Vec::as_slice),
+            )
+        })
+        .fold(f64::INFINITY, f64::min)
 }
 
 /// Whether an image point lies in the band along the top or bottom border where a pole is
