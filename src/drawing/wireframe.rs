@@ -1,7 +1,7 @@
 //! The site's edges as seen from one standpoint.
 
 use crate::plane::{Flattener, PolylineSet};
-use crate::scene::{Edge, ItemId, Site};
+use crate::scene::{Edge, ItemId, Site, SiteCurve};
 use crate::sphere::{Degeneracy, ViewFrame};
 
 /// An edge left out because it has no drawable image from the standpoint.
@@ -27,7 +27,34 @@ pub fn wireframe(
     view: &ViewFrame,
     flattener: &Flattener,
 ) -> (PolylineSet, Vec<SkippedEdge>) {
-    let runs: Vec<&[Edge]> = site.edges.chunks(EDGES_PER_RUN).collect();
+    // The smooth mesh edges on the outline from this eye join the fixed edges; they are
+    // numbered after them in the list of skipped edges.
+    let eye = view.eye();
+    let outlines: Vec<Edge> = site
+        .silhouette_candidates
+        .iter()
+        .filter(|candidate| candidate.is_outline_from(&eye))
+        .map(|c| Edge {
+            curve: SiteCurve::Segment {
+                start: c.start,
+                end: c.end,
+            },
+            item: c.item,
+        })
+        .collect();
+    let runs: Vec<&[Edge]> = site
+        .edges
+        .chunks(EDGES_PER_RUN)
+        .chain(outlines.chunks(EDGES_PER_RUN))
+        .collect();
+    let fixed_runs = site.edges.len().div_ceil(EDGES_PER_RUN);
+    let first_index = |run: usize| {
+        if run < fixed_runs {
+            run * EDGES_PER_RUN
+        } else {
+            site.edges.len() + (run - fixed_runs) * EDGES_PER_RUN
+        }
+    };
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
@@ -41,7 +68,7 @@ pub fn wireframe(
                         let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
                         let Some(edges) = runs.get(index) else { break };
                         let (lines, skipped) =
-                            flatten_edges(edges, index * EDGES_PER_RUN, view, &mut flattener);
+                            flatten_edges(edges, first_index(index), view, &mut flattener);
                         done.push((index, lines, skipped));
                     }
                     done

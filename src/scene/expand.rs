@@ -1,11 +1,17 @@
 //! Turning the items of a scene file into edges.
 
-use super::format::{Anchor, BlockSpec, ItemSpec, PolylineSpec, SceneFile, StandpointSpec};
-use super::{ItemId, Site, Standpoint};
-use nalgebra::{Point3, Vector2};
+use super::format::{
+    Anchor, BlockSpec, ItemSpec, ModelSpec, PolylineSpec, SceneFile, StandpointSpec,
+};
+use super::load::read;
+use super::{add_mesh, parse_obj, ItemId, MeshPlacement, Site, Standpoint};
+use crate::error::Result;
+use nalgebra::{Point3, Vector2, Vector3};
+use std::path::Path;
 
-/// The resolved site of a parsed scene file.
-pub fn expand(file: SceneFile, fallback_name: &str) -> Site {
+/// The resolved site of a parsed scene file read from `scene_path` (models are found
+/// relative to its folder).
+pub fn expand(file: SceneFile, fallback_name: &str, scene_path: &Path) -> Result<Site> {
     let mut site = Site {
         name: file.name.unwrap_or_else(|| fallback_name.to_owned()),
         ..Site::default()
@@ -21,9 +27,29 @@ pub fn expand(file: SceneFile, fallback_name: &str) -> Site {
                 let id = site.add_item("polyline", polyline.label.clone());
                 add_polyline(&mut site, id, &polyline);
             }
+            ItemSpec::Model(model) => add_model(&mut site, &model, scene_path)?,
         }
     }
-    site
+    Ok(site)
+}
+
+fn add_model(site: &mut Site, model: &ModelSpec, scene_path: &Path) -> Result<()> {
+    let path = scene_path
+        .parent()
+        .unwrap_or(Path::new(""))
+        .join(&model.file);
+    let obj = parse_obj(&read(&path)?, &path)?;
+    let placement = MeshPlacement {
+        up: model.up,
+        unit: model.unit,
+        crease_deg: model.crease.0,
+        scale: model.scale.0,
+        turn_deg: model.turn.0,
+        offset: Vector3::new(model.at.0 .0, model.at.1 .0, model.at.2 .0),
+    };
+    let name = model.label.clone().unwrap_or_else(|| model.file.clone());
+    add_mesh(site, &obj, &placement, &name);
+    Ok(())
 }
 
 fn standpoint(spec: StandpointSpec) -> Standpoint {

@@ -130,6 +130,46 @@ pub struct StandpointSpec {
 pub enum ItemSpec {
     Block(BlockSpec),
     Polyline(PolylineSpec),
+    Model(ModelSpec),
+}
+
+fn one() -> Positive {
+    Positive(1.0)
+}
+
+fn default_crease() -> NonNegative {
+    NonNegative(super::DEFAULT_CREASE_DEG)
+}
+
+fn origin() -> (Finite, Finite, Finite) {
+    (Finite(0.0), Finite(0.0), Finite(0.0))
+}
+
+/// A Wavefront OBJ model placed in the scene.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ModelSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    /// The OBJ file, relative to the scene file's folder.
+    pub file: String,
+    /// Where the model's origin goes, metres (x east, y north, z up).
+    #[serde(default = "origin")]
+    pub at: (Finite, Finite, Finite),
+    /// Turn about the vertical, degrees clockwise seen from above.
+    #[serde(default = "zero")]
+    pub turn: Finite,
+    #[serde(default = "one")]
+    pub scale: Positive,
+    /// Which axis of the file is up: `Y` (the OBJ habit) or `Z`.
+    #[serde(default)]
+    pub up: super::UpAxis,
+    /// `Metre`, `Centimetre`, `Millimetre`, `Inch` or `Foot`.
+    #[serde(default)]
+    pub unit: super::Unit,
+    /// Edges whose faces meet at more than this angle (degrees) are drawn.
+    #[serde(default = "default_crease")]
+    pub crease: NonNegative,
 }
 
 /// Where a block's plan is anchored: its front-left corner (as seen by someone facing the

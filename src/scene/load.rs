@@ -2,17 +2,14 @@
 
 use super::expand::expand;
 use super::format::SceneFile;
-use super::Site;
+use super::{add_mesh, parse_obj, MeshPlacement, MeshStats, Site};
 use crate::error::{Error, Result};
 use ron::extensions::Extensions;
 use std::path::Path;
 
 /// Reads and resolves a scene file.
 pub fn load_scene(path: &Path) -> Result<Site> {
-    let bytes = std::fs::read(path).map_err(|source| Error::Read {
-        path: path.to_owned(),
-        source,
-    })?;
+    let bytes = read(path)?;
     let fallback = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -20,8 +17,33 @@ pub fn load_scene(path: &Path) -> Result<Site> {
     parse_scene(&bytes, path, &fallback)
 }
 
-/// Parses scene text (`path` is only used in messages; `fallback_name` names a scene that
-/// has no `name`).
+/// Reads a Wavefront OBJ model into a site of its own. It has no standpoints: the caller
+/// gives one.
+pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshStats)> {
+    let bytes = read(path)?;
+    let obj = parse_obj(&bytes, path)?;
+    let name = path
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let mut site = Site {
+        name: name.clone(),
+        ..Site::default()
+    };
+    let stats = add_mesh(&mut site, &obj, placement, &name);
+    Ok((site, stats))
+}
+
+pub(super) fn read(path: &Path) -> Result<Vec<u8>> {
+    std::fs::read(path).map_err(|source| Error::Read {
+        path: path.to_owned(),
+        source,
+    })
+}
+
+/// Parses scene text. `path` names the file in messages and is where models (OBJ files)
+/// named in the scene are looked for, relative to its folder; `fallback_name` names a scene
+/// that has no `name`.
 pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Site> {
     let text = std::str::from_utf8(bytes).map_err(|e| {
         let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
@@ -50,7 +72,7 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
         column: e.span.start.col,
         message: e.code.to_string(),
     })?;
-    Ok(expand(file, fallback_name))
+    expand(file, fallback_name, path)
 }
 
 /// Line and column (from 1, counting characters) just after `prefix`.

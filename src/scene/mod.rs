@@ -1,13 +1,20 @@
 //! The site: the one resolved model every later stage reads, and the loaders that build it.
 //!
-//! A scene file is read once into [`Site`]: named standpoints plus a flat list of edges
-//! (segments and elliptic arcs in site coordinates), each tagged with the item it came from.
-//! Nothing after the loader knows what RON is.
+//! A scene file (RON) or a model (Wavefront OBJ) is read once into [`Site`]: named
+//! standpoints, a flat list of edges (segments and elliptic arcs in site coordinates) each
+//! tagged with the item it came from, the smooth mesh edges that are drawn where they form
+//! an outline, and the faces. Nothing after the loaders knows what RON or OBJ is.
 
 mod expand;
 mod format;
 mod load;
+mod mesh;
+mod obj;
 mod site;
 
-pub use load::{load_scene, parse_scene};
-pub use site::{Edge, ItemId, ItemInfo, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT};
+pub use load::{load_obj, load_scene, parse_scene};
+pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
+pub use obj::{parse_obj, ObjFile};
+pub use site::{
+    Edge, Face, ItemId, ItemInfo, SilhouetteEdge, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+};

@@ -76,11 +76,40 @@ pub enum SiteCurve {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub struct ItemId(pub u32);
 
-/// What a warning needs to name an item.
+/// What a warning needs to name an item, and the layer it is drawn on.
 #[derive(Clone, Debug, PartialEq)]
 pub struct ItemInfo {
     pub kind: &'static str,
     pub label: Option<String>,
+    pub layer: Option<String>,
+}
+
+/// A smooth edge of a mesh, drawn only where it is part of the outline seen from the eye:
+/// where one of its two faces is turned towards the eye and the other away.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SilhouetteEdge {
+    pub start: Point3<f64>,
+    pub end: Point3<f64>,
+    /// The outward unit normals of the two faces that share the edge.
+    pub normals: [Vector3<f64>; 2],
+    pub item: ItemId,
+}
+
+impl SilhouetteEdge {
+    /// Whether the edge is on the outline seen from `eye`: the eye is in front of one face's
+    /// plane and behind the other's (both planes hold the edge, so its start will do).
+    pub fn is_outline_from(&self, eye: &Point3<f64>) -> bool {
+        let to_eye = eye - self.start;
+        let [a, b] = self.normals;
+        (a.dot(&to_eye) > 0.0) != (b.dot(&to_eye) > 0.0)
+    }
+}
+
+/// A triangle that hides what lies behind it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Face {
+    pub corners: [Point3<f64>; 3],
+    pub item: ItemId,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -97,12 +126,25 @@ pub struct Site {
     pub standpoints: Vec<Standpoint>,
     pub items: Vec<ItemInfo>,
     pub edges: Vec<Edge>,
+    /// Edges drawn only where they are part of the outline (smooth meshes).
+    pub silhouette_candidates: Vec<SilhouetteEdge>,
+    /// Triangles of the solid items and meshes, for hidden lines.
+    pub faces: Vec<Face>,
 }
 
 impl Site {
     /// Adds an item and returns its id, for loaders and for code that builds sites directly.
     pub fn add_item(&mut self, kind: &'static str, label: Option<String>) -> ItemId {
-        self.items.push(ItemInfo { kind, label });
+        self.add_item_on_layer(kind, label, None)
+    }
+
+    pub fn add_item_on_layer(
+        &mut self,
+        kind: &'static str,
+        label: Option<String>,
+        layer: Option<String>,
+    ) -> ItemId {
+        self.items.push(ItemInfo { kind, label, layer });
         ItemId(self.items.len() as u32 - 1)
     }
 
@@ -119,10 +161,13 @@ impl Site {
             Some(ItemInfo {
                 kind,
                 label: Some(label),
+                ..
             }) => {
                 format!("{kind} \"{label}\" (item {})", id.0 + 1)
             }
-            Some(ItemInfo { kind, label: None }) => format!("{kind} (item {})", id.0 + 1),
+            Some(ItemInfo {
+                kind, label: None, ..
+            }) => format!("{kind} (item {})", id.0 + 1),
             None => format!("item {}", id.0 + 1),
         }
     }

@@ -1,6 +1,6 @@
 //! What the user typed (clap), and its checks.
 
-use clap::{Args, Parser, Subcommand};
+use clap::{Args, Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
 
 #[derive(Debug, Parser)]
@@ -23,7 +23,8 @@ pub enum Command {
 
 #[derive(Debug, Args)]
 pub struct RenderArgs {
-    /// The scene file (RON), or - for standard input.
+    /// The scene file (RON), or a model (Wavefront .obj, placed at the origin; give a
+    /// standpoint with --at), or - for a RON scene on standard input.
     pub scene: PathBuf,
 
     /// Output PNG, or - for standard output [default: renders/SCENE-STANDPOINT.png].
@@ -70,6 +71,18 @@ pub struct RenderArgs {
     #[arg(long)]
     pub bare: bool,
 
+    /// For an .obj model: which of its axes points up.
+    #[arg(long, value_enum, default_value = "y")]
+    pub up: UpArg,
+
+    /// For an .obj model: the unit of its coordinates.
+    #[arg(long, value_enum, default_value = "m")]
+    pub unit: UnitArg,
+
+    /// For an .obj model: faces meeting at more than this angle (degrees) show their edge.
+    #[arg(long, value_name = "DEG", default_value_t = pansite::scene::DEFAULT_CREASE_DEG, value_parser = parse_crease)]
+    pub crease: f64,
+
     /// Print nothing but errors.
     #[arg(short, long)]
     pub quiet: bool,
@@ -77,6 +90,23 @@ pub struct RenderArgs {
     /// Print the time each stage took on standard error.
     #[arg(long)]
     pub timings: bool,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum UpArg {
+    /// x east, y up, z south (the usual OBJ habit)
+    Y,
+    /// x east, y north, z up
+    Z,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum UnitArg {
+    M,
+    Cm,
+    Mm,
+    In,
+    Ft,
 }
 
 fn parse_finite(text: &str) -> Result<f64, String> {
@@ -88,6 +118,17 @@ fn parse_finite(text: &str) -> Result<f64, String> {
         Ok(value)
     } else {
         Err(format!("expected a finite number, found \"{text}\""))
+    }
+}
+
+fn parse_crease(text: &str) -> Result<f64, String> {
+    let value = parse_finite(text)?;
+    if (0.0..=180.0).contains(&value) {
+        Ok(value)
+    } else {
+        Err(format!(
+            "expected an angle from 0 to 180 degrees, found {value}"
+        ))
     }
 }
 
@@ -130,6 +171,7 @@ mod tests {
         assert_eq!(r.tolerance, 0.1);
         assert!(!r.bare && !r.quiet && !r.timings);
         assert!(r.output.is_none() && r.standpoint.is_none() && r.at.is_none());
+        assert_eq!((r.up, r.unit, r.crease), (UpArg::Y, UnitArg::M, 30.0));
     }
 
     #[test]
@@ -170,6 +212,8 @@ mod tests {
         assert_eq!(r.size, (800, 400));
         assert_eq!((r.line_weight, r.tolerance), (2.0, 0.05));
         assert!(r.bare && r.quiet && r.timings);
+        let r = render(&["--up", "z", "--unit", "mm", "--crease", "45"]).unwrap();
+        assert_eq!((r.up, r.unit, r.crease), (UpArg::Z, UnitArg::Mm, 45.0));
     }
 
     #[test]
@@ -181,6 +225,9 @@ mod tests {
             &["--heading", "NaN"],
             &["--pitch", "inf"],
             &["--line-weight", "thick"],
+            &["--up", "x"],
+            &["--unit", "furlong"],
+            &["--crease", "200"],
         ] {
             let error = render(args).unwrap_err();
             assert_eq!(error.exit_code(), 2, "{args:?}");

@@ -3,10 +3,13 @@
 mod args;
 
 use anyhow::Context;
-use args::{Cli, Command, RenderArgs};
+use args::{Cli, Command, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::render::{render_png, render_png_to, RenderSettings};
-use pansite::scene::{load_scene, parse_scene, Site, Standpoint, DEFAULT_EYE_HEIGHT};
+use pansite::scene::{
+    load_obj, load_scene, parse_scene, MeshPlacement, Site, Standpoint, Unit, UpAxis,
+    DEFAULT_EYE_HEIGHT,
+};
 use pansite::Error;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
@@ -41,7 +44,7 @@ fn main() -> ExitCode {
 
 fn render(args: &RenderArgs) -> anyhow::Result<()> {
     let started = Instant::now();
-    let site = read_site(&args.scene)?;
+    let site = read_site(args)?;
     let load_time = started.elapsed();
     let standpoint = choose_standpoint(&site, args)?;
     let settings = RenderSettings {
@@ -115,7 +118,9 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-fn read_site(path: &Path) -> pansite::Result<Site> {
+/// The scene from a RON file, an OBJ model (by its extension) or standard input.
+fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
+    let path = args.scene.as_path();
     if path == Path::new("-") {
         let mut bytes = Vec::new();
         std::io::stdin()
@@ -125,6 +130,27 @@ fn read_site(path: &Path) -> pansite::Result<Site> {
                 source,
             })?;
         return parse_scene(&bytes, Path::new("<stdin>"), "stdin");
+    }
+    let is_obj = path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("obj"));
+    if is_obj {
+        let placement = MeshPlacement {
+            up: match args.up {
+                UpArg::Y => UpAxis::Y,
+                UpArg::Z => UpAxis::Z,
+            },
+            unit: match args.unit {
+                UnitArg::M => Unit::Metre,
+                UnitArg::Cm => Unit::Centimetre,
+                UnitArg::Mm => Unit::Millimetre,
+                UnitArg::In => Unit::Inch,
+                UnitArg::Ft => Unit::Foot,
+            },
+            crease_deg: args.crease,
+            ..MeshPlacement::default()
+        };
+        return load_obj(path, &placement).map(|(site, _)| site);
     }
     load_scene(path)
 }

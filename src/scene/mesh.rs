@@ -1,0 +1,476 @@
+//! Turning a polygon mesh (an OBJ file) into the edges a person would draw: outlines
+//! (boundary edges), creases, edges shared by three or more faces, explicit `l` lines, and
+//! the smooth edges that become the outline from a given standpoint (silhouettes). The
+//! edges between coplanar or nearly coplanar faces (triangulation diagonals, subdivided flat
+//! walls) are never drawn.
+//!
+//! Method: weld positions that coincide within a tolerance relative to the model's size
+//! (exporters split vertices along seams of normals and textures); list every face edge as
+//! (low vertex, high vertex, face), sort, and walk the runs of equal edges. A face's normal
+//! comes from Newell's method (Newell 1972; see Sutherland, Sproull and Schumacker, "A
+//! characterization of ten hidden-surface algorithms", ACM Computing Surveys 6(1), 1974,
+//! from memory), which is exact for planar polygons and robust for slightly warped ones.
+
+use super::obj::ObjFile;
+use super::site::{Face, ItemId, SilhouetteEdge, Site};
+use crate::sphere::angle_between;
+use nalgebra::{Point3, Rotation3, Vector3};
+
+/// Which axis of the file points up.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
+pub enum UpAxis {
+    /// The usual OBJ convention: x east, y up, z towards the viewer (south).
+    #[default]
+    Y,
+    /// x east, y north, z up, as in the site frame.
+    Z,
+}
+
+/// Units of the file's coordinates.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
+pub enum Unit {
+    #[default]
+    Metre,
+    Centimetre,
+    Millimetre,
+    Inch,
+    Foot,
+}
+
+impl Unit {
+    /// Metres per unit (the inch is exactly 25.4 mm and the foot 12 inches by the
+    /// international yard and pound agreement of 1959).
+    pub fn metres(self) -> f64 {
+        match self {
+            Unit::Metre => 1.0,
+            Unit::Centimetre => 0.01,
+            Unit::Millimetre => 0.001,
+            Unit::Inch => 0.0254,
+            Unit::Foot => 0.3048,
+        }
+    }
+}
+
+/// Where and how a mesh is placed in the site, and which of its edges are creases.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MeshPlacement {
+    pub up: UpAxis,
+    pub unit: Unit,
+    /// Edges whose faces meet at more than this angle (degrees) are drawn as creases.
+    pub crease_deg: f64,
+    /// Then scaled by this factor,
+    pub scale: f64,
+    /// turned about the vertical by this many degrees, clockwise seen from above,
+    pub turn_deg: f64,
+    /// and moved by this offset (metres, site frame).
+    pub offset: Vector3<f64>,
+}
+
+/// The default crease angle, degrees: corners of buildings are drawn, the facets of a
+/// smooth curved surface are not.
+pub const DEFAULT_CREASE_DEG: f64 = 30.0;
+
+impl Default for MeshPlacement {
+    fn default() -> Self {
+        MeshPlacement {
+            up: UpAxis::Y,
+            unit: Unit::Metre,
+            crease_deg: DEFAULT_CREASE_DEG,
+            scale: 1.0,
+            turn_deg: 0.0,
+            offset: Vector3::zeros(),
+        }
+    }
+}
+
+/// What the import found, for `check` summaries and tests.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct MeshStats {
+    /// Distinct positions after welding.
+    pub vertices: usize,
+    /// Faces kept (degenerate ones dropped), and the triangles they make.
+    pub faces: usize,
+    pub triangles: usize,
+    /// Distinct face edges, and how they were classed.
+    pub edges: usize,
+    pub boundary: usize,
+    pub creases: usize,
+    pub non_manifold: usize,
+    /// Smooth edges that can become silhouettes.
+    pub smooth: usize,
+    /// Segments of `l` polylines.
+    pub line_segments: usize,
+}
+
+/// Faces meeting at less than this angle (radians) count as one plane: their shared edge is
+/// neither a crease nor ever a silhouette.
+const COPLANAR: f64 = 1e-6;
+
+/// Positions closer than this fraction of the model's bounding-box diagonal are welded.
+const WELD_FRACTION: f64 = 1e-7;
+
+/// Adds a mesh to the site: one item per group of the file (named `name` or `name: group`,
+/// with the group as its layer), its drawn edges, its silhouette candidates and its faces.
+pub fn add_mesh(
+    site: &mut Site,
+    obj: &ObjFile,
+    placement: &MeshPlacement,
+    name: &str,
+) -> MeshStats {
+    let positions = place(&obj.positions, placement);
+    let (weld, vertices) = weld(&positions);
+    let items: Vec<ItemId> = obj
+        .groups
+        .iter()
+        .map(|group| {
+            let label = if group.is_empty() {
+                name.to_owned()
+            } else {
+                format!("{name}: {group}")
+            };
+            site.add_item_on_layer(
+                "model",
+                Some(label),
+                (!group.is_empty()).then(|| group.clone()),
+            )
+        })
+        .collect();
+    let mut stats = MeshStats {
+        vertices,
+        ..MeshStats::default()
+    };
+    let points = representative(&weld, &positions, vertices);
+
+    // Faces: welded corner lists without repeats, their normals, and their triangles.
+    let mut faces: Vec<(Vec<u32>, Vector3<f64>, ItemId)> = Vec::with_capacity(obj.faces.len());
+    for (corners, group) in &obj.faces {
+        let mut welded: Vec<u32> = corners.iter().map(|&c| weld[c as usize]).collect();
+        welded.dedup();
+        while welded.len() > 1 && welded.first() == welded.last() {
+            welded.pop();
+        }
+        if welded.len() < 3 {
+            continue;
+        }
+        let Some(normal) = newell_normal(&welded, &points) else {
+            continue;
+        };
+        let item = items[*group as usize];
+        let p = |i: u32| points[i as usize];
+        for k in 1..welded.len() - 1 {
+            site.faces.push(Face {
+                corners: [p(welded[0]), p(welded[k]), p(welded[k + 1])],
+                item,
+            });
+        }
+        stats.triangles += welded.len() - 2;
+        faces.push((welded, normal, item));
+    }
+    stats.faces = faces.len();
+
+    // Every face edge as (low, high, face, runs low -> high); sorted, equal edges are adjacent.
+    let mut face_edges: Vec<(u32, u32, u32, bool)> = Vec::with_capacity(faces.len() * 4);
+    for (f, (corners, _, _)) in faces.iter().enumerate() {
+        for k in 0..corners.len() {
+            let (a, b) = (corners[k], corners[(k + 1) % corners.len()]);
+            face_edges.push((a.min(b), a.max(b), f as u32, a < b));
+        }
+    }
+    face_edges.sort_unstable();
+    let crease = placement.crease_deg.to_radians();
+    let mut start = 0;
+    while start < face_edges.len() {
+        let (a, b, first_face, first_forward) = face_edges[start];
+        let mut end = start + 1;
+        while end < face_edges.len() && face_edges[end].0 == a && face_edges[end].1 == b {
+            end += 1;
+        }
+        stats.edges += 1;
+        let item = faces[first_face as usize].2;
+        let (pa, pb) = (points[a as usize], points[b as usize]);
+        match end - start {
+            1 => {
+                stats.boundary += 1;
+                site.add_segment(item, pa, pb);
+            }
+            2 => {
+                let (_, _, second_face, second_forward) = face_edges[start + 1];
+                let n1 = faces[first_face as usize].1;
+                // Consistently wound neighbours run a shared edge in opposite directions;
+                // where they do not, one of them is turned over.
+                let flip = if first_forward == second_forward {
+                    -1.0
+                } else {
+                    1.0
+                };
+                let n2 = faces[second_face as usize].1 * flip;
+                let angle = angle_between(&n1, &n2);
+                if angle > crease {
+                    stats.creases += 1;
+                    site.add_segment(item, pa, pb);
+                } else if angle > COPLANAR {
+                    stats.smooth += 1;
+                    site.silhouette_candidates.push(SilhouetteEdge {
+                        start: pa,
+                        end: pb,
+                        normals: [n1, n2],
+                        item,
+                    });
+                }
+            }
+            _ => {
+                stats.non_manifold += 1;
+                site.add_segment(item, pa, pb);
+            }
+        }
+        start = end;
+    }
+
+    for (line, group) in &obj.lines {
+        let item = items[*group as usize];
+        for pair in line.windows(2) {
+            let (a, b) = (weld[pair[0] as usize], weld[pair[1] as usize]);
+            if a != b {
+                site.add_segment(item, points[a as usize], points[b as usize]);
+                stats.line_segments += 1;
+            }
+        }
+    }
+    stats
+}
+
+/// The file's positions in the site frame: axes, units, scale, turn, offset.
+fn place(positions: &[Point3<f64>], placement: &MeshPlacement) -> Vec<Point3<f64>> {
+    let factor = placement.unit.metres() * placement.scale;
+    // Clockwise seen from above is a negative turn about +z.
+    let turn = Rotation3::from_axis_angle(&Vector3::z_axis(), -placement.turn_deg.to_radians());
+    positions
+        .iter()
+        .map(|p| {
+            let site = match placement.up {
+                UpAxis::Y => Point3::new(p.x, -p.z, p.y),
+                UpAxis::Z => *p,
+            };
+            turn * (site * factor) + placement.offset
+        })
+        .collect()
+}
+
+/// For each position, the index of its welded vertex; and the number of welded vertices.
+/// Positions are keyed by their coordinates rounded to the weld tolerance, so exact
+/// duplicates (what exporters write) always merge; two positions within the tolerance but
+/// on either side of a rounding boundary stay apart (a limitation, documented).
+fn weld(positions: &[Point3<f64>]) -> (Vec<u32>, usize) {
+    let (mut low, mut high) = (Point3::origin(), Point3::origin());
+    if let Some(first) = positions.first() {
+        (low, high) = (*first, *first);
+    }
+    for p in positions {
+        low = low.inf(p);
+        high = high.sup(p);
+    }
+    let tolerance = ((high - low).norm() * WELD_FRACTION).max(f64::MIN_POSITIVE);
+    let mut index = std::collections::HashMap::with_capacity(positions.len());
+    let mut weld = Vec::with_capacity(positions.len());
+    for p in positions {
+        let key = [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64);
+        let next = index.len() as u32;
+        weld.push(*index.entry(key).or_insert(next));
+    }
+    let count = index.len();
+    (weld, count)
+}
+
+/// One position for each welded vertex (the first that welded into it).
+fn representative(weld: &[u32], positions: &[Point3<f64>], count: usize) -> Vec<Point3<f64>> {
+    let mut out = vec![Point3::origin(); count];
+    let mut seen = vec![false; count];
+    for (i, &w) in weld.iter().enumerate() {
+        if !seen[w as usize] {
+            seen[w as usize] = true;
+            out[w as usize] = positions[i];
+        }
+    }
+    out
+}
+
+/// The unit normal of a polygon by Newell's method, `None` for a polygon of no area (its
+/// doubled area below a billionth of its longest edge squared: a sliver or a line).
+fn newell_normal(corners: &[u32], points: &[Point3<f64>]) -> Option<Vector3<f64>> {
+    let mut n = Vector3::zeros();
+    let mut longest_sq = 0.0f64;
+    for k in 0..corners.len() {
+        let (a, b) = (
+            points[corners[k] as usize],
+            points[corners[(k + 1) % corners.len()] as usize],
+        );
+        n.x += (a.y - b.y) * (a.z + b.z);
+        n.y += (a.z - b.z) * (a.x + b.x);
+        n.z += (a.x - b.x) * (a.y + b.y);
+        longest_sq = longest_sq.max((b - a).norm_squared());
+    }
+    if !(n.norm() > 1e-9 * longest_sq) {
+        return None;
+    }
+    n.try_normalize(0.0)
+        .filter(|v: &Vector3<f64>| v.iter().all(|c| c.is_finite()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scene::parse_obj;
+    use std::fmt::Write;
+    use std::path::Path;
+
+    fn import(text: &str, placement: &MeshPlacement) -> (Site, MeshStats) {
+        let obj = parse_obj(text.as_bytes(), Path::new("t.obj")).unwrap();
+        let mut site = Site::default();
+        let stats = add_mesh(&mut site, &obj, placement, "t.obj");
+        (site, stats)
+    }
+
+    /// A unit cube as 12 triangles, wound counter-clockwise seen from outside (z up).
+    const CUBE: &str = "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nv 0 0 1\nv 1 0 1\nv 1 1 1\nv 0 1 1\n\
+        f 1 3 2\nf 1 4 3\nf 5 6 7\nf 5 7 8\nf 1 2 6\nf 1 6 5\nf 2 3 7\nf 2 7 6\n\
+        f 3 4 8\nf 3 8 7\nf 4 1 5\nf 4 5 8\n";
+
+    fn z_up() -> MeshPlacement {
+        MeshPlacement {
+            up: UpAxis::Z,
+            ..MeshPlacement::default()
+        }
+    }
+
+    #[test]
+    fn a_triangulated_cube_has_its_twelve_real_edges() {
+        let (site, stats) = import(CUBE, &z_up());
+        assert_eq!(site.edges.len(), 12);
+        assert_eq!(
+            (stats.vertices, stats.triangles, stats.edges, stats.creases),
+            (8, 12, 18, 12)
+        );
+        assert_eq!(site.faces.len(), 12);
+        assert!(
+            site.silhouette_candidates.is_empty(),
+            "the diagonals are coplanar, not smooth"
+        );
+        // Every drawn edge is axis-parallel with length 1: no diagonal.
+        for edge in &site.edges {
+            let crate::scene::SiteCurve::Segment { start, end } = edge.curve else {
+                panic!()
+            };
+            assert!(((end - start).norm() - 1.0).abs() < 1e-12, "{start} {end}");
+        }
+    }
+
+    #[test]
+    fn split_vertices_weld_and_winding_mistakes_are_forgiven() {
+        // The same cube as 6 quads with 4 vertices each (24 positions), one face wound the
+        // wrong way round.
+        let mut text = String::new();
+        let quads = [
+            [[0, 0, 0], [0, 1, 0], [1, 1, 0], [1, 0, 0]],
+            [[0, 0, 1], [1, 0, 1], [1, 1, 1], [0, 1, 1]],
+            [[0, 0, 0], [1, 0, 0], [1, 0, 1], [0, 0, 1]],
+            [[1, 0, 0], [1, 1, 0], [1, 1, 1], [1, 0, 1]],
+            [[1, 1, 0], [0, 1, 0], [0, 1, 1], [1, 1, 1]],
+            [[0, 0, 1], [0, 1, 1], [0, 1, 0], [0, 0, 0]], // wrong way round
+        ];
+        for quad in quads {
+            for [x, y, z] in quad {
+                writeln!(text, "v {x} {y} {z}").unwrap();
+            }
+            writeln!(text, "f -4 -3 -2 -1").unwrap();
+        }
+        let (site, stats) = import(&text, &z_up());
+        assert_eq!((stats.vertices, stats.faces, stats.edges), (8, 6, 12));
+        assert_eq!(site.edges.len(), 12);
+        assert_eq!(stats.boundary, 0);
+    }
+
+    fn cylinder(sides: usize) -> String {
+        // Radius 1, from z = 0 to 2, side quads and two n-gon caps, wound outwards.
+        let mut text = String::new();
+        for z in [0.0, 2.0] {
+            for k in 0..sides {
+                let a = std::f64::consts::TAU * k as f64 / sides as f64;
+                writeln!(text, "v {} {} {z}", a.cos(), a.sin()).unwrap();
+            }
+        }
+        for k in 0..sides {
+            let (a, b) = (k + 1, (k + 1) % sides + 1);
+            writeln!(text, "f {a} {b} {} {}", b + sides, a + sides).unwrap();
+        }
+        let bottom: Vec<String> = (1..=sides).rev().map(|i| i.to_string()).collect();
+        let top: Vec<String> = (1..=sides).map(|i| (i + sides).to_string()).collect();
+        writeln!(text, "f {}\nf {}", bottom.join(" "), top.join(" ")).unwrap();
+        text
+    }
+
+    #[test]
+    fn a_64_sided_cylinder_shows_two_circles_and_two_silhouettes() {
+        let (site, stats) = import(&cylinder(64), &z_up());
+        // The caps' rims are creases (90 degrees); the sides meet at 5.6 degrees: smooth.
+        assert_eq!((stats.creases, stats.smooth, stats.boundary), (128, 64, 0));
+        assert_eq!(site.edges.len(), 128);
+        let eye = Point3::new(5.0, 0.7, 1.6);
+        let outline: Vec<&SilhouetteEdge> = site
+            .silhouette_candidates
+            .iter()
+            .filter(|c| c.is_outline_from(&eye))
+            .collect();
+        assert_eq!(outline.len(), 2);
+        // They are the generators nearest the tangent points, at acos(r / d) from the
+        // direction of the eye (standard geometry of tangents to a circle).
+        let d = eye.x.hypot(eye.y);
+        let tangent = (1.0 / d).acos();
+        let towards_eye = eye.y.atan2(eye.x);
+        for edge in outline {
+            let angle = edge.start.y.atan2(edge.start.x);
+            let off = ((angle - towards_eye).abs() - tangent).abs();
+            assert!(
+                off <= std::f64::consts::TAU / 64.0,
+                "generator at {angle}, {off} from the tangent"
+            );
+        }
+    }
+
+    #[test]
+    fn crease_angle_and_axes_and_units() {
+        // With a crease of 3 degrees the cylinder's sides all show.
+        let placement = MeshPlacement {
+            crease_deg: 3.0,
+            ..z_up()
+        };
+        let (_, stats) = import(&cylinder(64), &placement);
+        assert_eq!((stats.creases, stats.smooth), (192, 0));
+        // Y-up in millimetres, turned 90 degrees clockwise and moved: (1000, 0, -2000) mm
+        // is 1 m east and 2 m north, then turned to 1 m south and 2 m east, then moved.
+        let placement = MeshPlacement {
+            unit: Unit::Millimetre,
+            turn_deg: 90.0,
+            offset: Vector3::new(10.0, 20.0, 0.0),
+            ..MeshPlacement::default()
+        };
+        let placed = place(&[Point3::new(1000.0, 500.0, -2000.0)], &placement);
+        assert!(
+            (placed[0] - Point3::new(12.0, 19.0, 0.5)).norm() < 1e-12,
+            "{}",
+            placed[0]
+        );
+        assert_eq!(Unit::Foot.metres(), 0.3048);
+        assert_eq!(Unit::Inch.metres(), 0.0254);
+    }
+
+    #[test]
+    fn lines_groups_and_non_manifold_edges() {
+        let text = "g fin\nv 0 0 0\nv 1 0 0\nv 0 1 0\nv 0 -1 0\nv 0 0 1\n\
+            f 1 2 3\nf 2 1 4\nf 1 2 5\ng mast\nl 1 5 3\n";
+        let (site, stats) = import(text, &z_up());
+        assert_eq!(stats.non_manifold, 1, "the edge 1-2 has three faces");
+        assert_eq!(stats.line_segments, 2);
+        let layers: Vec<Option<&str>> = site.items.iter().map(|i| i.layer.as_deref()).collect();
+        assert_eq!(layers, vec![None, Some("fin"), Some("mast")]);
+    }
+}

@@ -1,0 +1,256 @@
+//! Reading Wavefront OBJ files (the format of the "Object Files (.obj)" appendix of the
+//! Advanced Visualizer manual): `v` positions, `f` faces of any arity, `l` polylines,
+//! absolute and negative (relative) indices, the `v/vt/vn` index forms, and `o` / `g` names.
+//! Everything else (`vt`, `vn`, materials, smoothing groups, free-form geometry) is read past.
+//!
+//! Why not a crate: the ones on crates.io either report malformed numbers without the line
+//! (obj-rs, tobj), keep positions in `f32` (obj-rs), or reject relative indices in quads,
+//! scope indices to each object, and turn a two-vertex face into a line without a word
+//! (wavefront_obj 11). A user must be told which line of their export is wrong, so pansite
+//! reads the few statements it needs itself.
+
+use crate::error::{Error, Result};
+use nalgebra::Point3;
+use std::path::Path;
+
+/// A parsed OBJ file, in its own coordinates and units.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct ObjFile {
+    pub positions: Vec<Point3<f64>>,
+    /// Faces as 0-based position indices, with the group they belong to.
+    pub faces: Vec<(Vec<u32>, u32)>,
+    /// `l` polylines as 0-based position indices, with their group.
+    pub lines: Vec<(Vec<u32>, u32)>,
+    /// Group names (from `g`, or `o` where no `g` is given); index 0 is the file's default.
+    pub groups: Vec<String>,
+}
+
+/// Parses OBJ text; `path` names the file in messages.
+pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
+    let error = |line: usize, message: String| Error::Scene {
+        path: path.to_owned(),
+        line,
+        column: 1,
+        message,
+    };
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        let line = bytes[..e.valid_up_to()]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count()
+            + 1;
+        error(
+            line,
+            "expected OBJ text (this looks like a binary file)".to_owned(),
+        )
+    })?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    if text.trim().is_empty() {
+        return Err(error(
+            1,
+            "the file is empty; expected `v` and `f` lines".to_owned(),
+        ));
+    }
+    let mut obj = ObjFile {
+        groups: vec![String::new()],
+        ..ObjFile::default()
+    };
+    let mut group = 0u32;
+    let mut object_name = String::new();
+    // Absolute indices may point forward; they are checked once every `v` is read.
+    let mut absolute_checks: Vec<(usize, i64)> = Vec::new();
+    for (number, line) in text.lines().enumerate() {
+        let number = number + 1;
+        let line = line.split('#').next().unwrap_or("");
+        let mut words = line.split_whitespace();
+        let Some(keyword) = words.next() else {
+            continue;
+        };
+        match keyword {
+            "v" => {
+                let mut coordinates = [0.0; 3];
+                for (axis, value) in coordinates.iter_mut().enumerate() {
+                    let word = words.next().ok_or_else(|| {
+                        error(
+                            number,
+                            format!("expected three coordinates after `v`, found {axis}"),
+                        )
+                    })?;
+                    *value = parse_number(word).map_err(|m| error(number, m))?;
+                }
+                obj.positions.push(Point3::from(coordinates));
+            }
+            "f" | "l" => {
+                let mut indices = Vec::new();
+                for word in words {
+                    let index = word.split('/').next().unwrap_or("");
+                    let index: i64 = index.parse().map_err(|_| {
+                        error(number, format!("expected a vertex index, found \"{word}\""))
+                    })?;
+                    let resolved = match index {
+                        0 => {
+                            return Err(error(
+                                number,
+                                "vertex indices start at 1; found 0".to_owned(),
+                            ))
+                        }
+                        i if i < 0 => {
+                            let resolved = obj.positions.len() as i64 + i;
+                            if resolved < 0 {
+                                return Err(error(number, format!(
+                                    "relative index {i} reaches before the first vertex (only {} are defined so far)",
+                                    obj.positions.len()
+                                )));
+                            }
+                            resolved
+                        }
+                        i => {
+                            absolute_checks.push((number, i));
+                            i - 1
+                        }
+                    };
+                    indices.push(u32::try_from(resolved).map_err(|_| {
+                        error(number, format!("vertex index {index} is too large"))
+                    })?);
+                }
+                let (least, what) = if keyword == "f" {
+                    (3, "a face")
+                } else {
+                    (2, "a line")
+                };
+                if indices.len() < least {
+                    return Err(error(
+                        number,
+                        format!(
+                            "{what} needs at least {least} vertices, found {}",
+                            indices.len()
+                        ),
+                    ));
+                }
+                if keyword == "f" {
+                    obj.faces.push((indices, group));
+                } else {
+                    obj.lines.push((indices, group));
+                }
+            }
+            "o" => {
+                object_name = words.collect::<Vec<_>>().join(" ");
+                group = name_group(&mut obj.groups, &object_name);
+            }
+            "g" => {
+                let name = words.collect::<Vec<_>>().join(" ");
+                let name = if name.is_empty() {
+                    object_name.clone()
+                } else {
+                    name
+                };
+                group = name_group(&mut obj.groups, &name);
+            }
+            // Texture and normal vectors, materials, smoothing, points, free-form geometry:
+            // nothing pansite draws.
+            _ => {}
+        }
+    }
+    let count = obj.positions.len() as i64;
+    if let Some(&(line, index)) = absolute_checks.iter().find(|&&(_, i)| i > count) {
+        return Err(error(
+            line,
+            format!("vertex index {index} is out of range: the file has {count} vertices"),
+        ));
+    }
+    if obj.faces.is_empty() && obj.lines.is_empty() {
+        return Err(error(
+            1,
+            "no faces (`f`) or lines (`l`) in the file; is it an OBJ file?".to_owned(),
+        ));
+    }
+    Ok(obj)
+}
+
+fn parse_number(word: &str) -> std::result::Result<f64, String> {
+    let value: f64 = word
+        .parse()
+        .map_err(|_| format!("expected a number, found \"{word}\""))?;
+    if value.is_finite() {
+        Ok(value)
+    } else {
+        Err(format!("expected a finite number, found \"{word}\""))
+    }
+}
+
+fn name_group(groups: &mut Vec<String>, name: &str) -> u32 {
+    match groups.iter().position(|g| g == name) {
+        Some(index) => index as u32,
+        None => {
+            groups.push(name.to_owned());
+            groups.len() as u32 - 1
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str) -> Result<ObjFile> {
+        parse_obj(text.as_bytes(), Path::new("t.obj"))
+    }
+
+    fn error_line(text: &str) -> (usize, String) {
+        match parse(text) {
+            Err(Error::Scene { line, message, .. }) => (line, message),
+            other => panic!("expected an error, got {other:?}"),
+        }
+    }
+
+    // Cases written from the Wavefront "Object Files (.obj)" appendix of the Advanced
+    // Visualizer manual: relative indices, the v/vt/vn forms, polylines, groups.
+    #[test]
+    fn relative_indices_quads_and_index_forms() {
+        let obj = parse("v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nf -4 -3 -2 -1\nvt 0 0\nvn 0 0 1\nf 1/1/1 2/1/1 3//1\nl 1 2 3 4\nl 1/1 3/1\n").unwrap();
+        assert_eq!(obj.faces[0].0, vec![0, 1, 2, 3]);
+        assert_eq!(obj.faces[1].0, vec![0, 1, 2]);
+        assert_eq!(obj.lines[0].0, vec![0, 1, 2, 3]);
+        assert_eq!(obj.lines[1].0, vec![0, 2]);
+    }
+
+    #[test]
+    fn indices_are_global_across_objects_and_groups_are_named() {
+        let obj = parse("o first\nv 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 3\no second\ng wall door\nv 5 5 5\nf 1 2 4 # uses the first object's vertices\n").unwrap();
+        assert_eq!(obj.faces[1].0, vec![0, 1, 3]);
+        assert_eq!(obj.groups[obj.faces[0].1 as usize], "first");
+        assert_eq!(obj.groups[obj.faces[1].1 as usize], "wall door");
+    }
+
+    #[test]
+    fn bad_input_names_the_line() {
+        assert_eq!(error_line("v 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 9\n").0, 4);
+        assert!(error_line("v 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 9\n")
+            .1
+            .contains("out of range"));
+        assert_eq!(error_line("v 0 0 0\nv 1 0 0\nv 1 1 0\nf 0 1 2\n").0, 4);
+        let (line, message) = error_line("v 0 0 0\nv 1 0 0\nf 1 2\n");
+        assert_eq!(line, 3);
+        assert!(message.contains("at least 3"), "{message}");
+        let (line, message) = error_line("v 0 0 0\nl 1\n");
+        assert_eq!(line, 2);
+        assert!(message.contains("at least 2"), "{message}");
+        let (line, message) = error_line("v 0 0 0\nv 1.0 abc 2\n");
+        assert_eq!(line, 2);
+        assert!(message.contains("abc"), "{message}");
+        assert!(error_line("v nan 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 3\n")
+            .1
+            .contains("finite"));
+        assert!(error_line("v 0 0 0\nf -5 -4 -3\n")
+            .1
+            .contains("before the first vertex"));
+        assert!(error_line("").1.contains("empty"));
+        assert!(error_line("v 0 0 0\nv 1 0 0\n").1.contains("no faces"));
+        match parse_obj(&[b'v', b' ', 0xff, 0xfe, b'\n'], Path::new("x.obj")) {
+            Err(Error::Scene {
+                line: 1, message, ..
+            }) => assert!(message.contains("binary")),
+            other => panic!("{other:?}"),
+        }
+    }
+}
