@@ -11,6 +11,9 @@
 //! - `town`: a synthetic town of about 100,000 edges (blocks with window grids over
 //!   400 m x 400 m, the standpoint among them) at 8192x4096: parse, draw, rasterise, encode.
 //! - `demo`: the bundled demo scene at 8192x4096.
+//! - `mesh`: a generated OBJ of 1,048,576 triangles (256 smooth spheres of 64 x 32 facets,
+//!   each quad split in two): parse it and find its drawn edges (boundary, crease and
+//!   silhouette candidates), then the silhouettes from one standpoint; memory in a child.
 //!
 //! Peak memory is measured by running each case once more, as the command does it (load,
 //! then draw, rasterise and encode in bands), in a child process, and reading its
@@ -20,7 +23,7 @@
 use pansite::output::{encode_grey_png, GreyCanvas};
 use pansite::plane::{Equirect, Flattener, PolylineSet, DEFAULT_TOLERANCE_PX};
 use pansite::render::{draw, raster, render_png_to, RenderSettings};
-use pansite::scene::{parse_scene, Site};
+use pansite::scene::{add_mesh, parse_obj, parse_scene, MeshPlacement, MeshStats, Site};
 use pansite::sphere::ViewFrame;
 use std::fmt::Write as _;
 use std::path::Path;
@@ -162,6 +165,57 @@ fn whole(text: &str) -> Run {
     }
 }
 
+/// 256 spheres of radius 4 on a 16 m grid, 64 x 32 quads each written as two triangles
+/// (the two at each pole are slivers of no area, which the import drops).
+fn mesh_obj() -> String {
+    let (around, down) = (64usize, 32usize);
+    let mut text = String::with_capacity(48 << 20);
+    let mut base = 0usize;
+    for sphere in 0..256 {
+        let (cx, cy) = (
+            16.0 * (sphere % 16) as f64 - 120.0,
+            16.0 * (sphere / 16) as f64 - 120.0,
+        );
+        for j in 0..=down {
+            let polar = std::f64::consts::PI * j as f64 / down as f64;
+            for i in 0..around {
+                let azimuth = std::f64::consts::TAU * i as f64 / around as f64;
+                let (x, z) = (
+                    4.0 * polar.sin() * azimuth.cos() + cx,
+                    4.0 * polar.sin() * azimuth.sin() + cy,
+                );
+                writeln!(text, "v {x:.6} {:.6} {z:.6}", 4.0 * polar.cos() + 4.0).unwrap();
+            }
+        }
+        for j in 0..down {
+            for i in 0..around {
+                let at = |j: usize, i: usize| base + j * around + i % around + 1;
+                let (a, b, c, d) = (at(j, i), at(j, i + 1), at(j + 1, i + 1), at(j + 1, i));
+                writeln!(text, "f {a} {d} {c}\nf {a} {c} {b}").unwrap();
+            }
+        }
+        base += (down + 1) * around;
+    }
+    text
+}
+
+/// Parse and classify the mesh's edges: the times of the two steps and what was found.
+fn mesh_import(text: &str) -> (Duration, Duration, MeshStats, usize) {
+    let started = Instant::now();
+    let obj = parse_obj(text.as_bytes(), Path::new("spheres.obj")).unwrap();
+    let parse = started.elapsed();
+    let started = Instant::now();
+    let mut site = Site::default();
+    let stats = add_mesh(&mut site, &obj, &MeshPlacement::default(), "spheres.obj");
+    let eye = nalgebra::Point3::new(3.0, -2.0, 1.6);
+    let outlines = site
+        .silhouette_candidates
+        .iter()
+        .filter(|c| c.is_outline_from(&eye))
+        .count();
+    (parse, started.elapsed(), stats, outlines)
+}
+
 /// What the command does: load, then draw, rasterise and encode in bands (for the memory
 /// figure, measured in a child process of its own).
 fn render_only(text: &str) {
@@ -236,6 +290,7 @@ fn main() {
             "floor_up" => drop(floor_up()),
             "town" => render_only(&town_scene()),
             "demo" => render_only(&demo_scene()),
+            "mesh" => drop(mesh_import(&mesh_obj())),
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
@@ -299,6 +354,27 @@ fn main() {
     println!(
         "projection + flattening, one core: {:.1} million output vertices per second",
         rate / 1e6
+    );
+    let mesh = mesh_obj();
+    let imports: Vec<_> = (0..3).map(|_| mesh_import(&mesh)).collect();
+    let pick = |f: fn(&(Duration, Duration, MeshStats, usize)) -> Duration| {
+        median(imports.iter().map(f).collect())
+    };
+    let (_, _, stats, outlines) = imports[0];
+    println!();
+    println!(
+        "OBJ of {} triangles ({:.0} MB of text): parse {:.0} ms, edges {:.0} ms, total {:.2} s (target 2 s); \
+         peak memory {} (target 1 GB)",
+        stats.triangles,
+        megabytes(mesh.len() as u64),
+        ms(pick(|r| r.0)),
+        ms(pick(|r| r.1)),
+        (pick(|r| r.0) + pick(|r| r.1)).as_secs_f64(),
+        child_peak("mesh").map_or("n/a".to_owned(), |p| format!("{:.0} MB", megabytes(p)))
+    );
+    println!(
+        "  {} vertices after welding, {} edges: {} creases, {} boundary, {} smooth (silhouette candidates), {} on the outline from one standpoint",
+        stats.vertices, stats.edges, stats.creases, stats.boundary, stats.smooth, outlines
     );
     if let Some(peak) = child_peak("floor") {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));
