@@ -250,7 +250,8 @@ fn skipped_edges_are_named_and_counted() {
     assert!(text.contains("1 skipped"), "{text}");
 }
 
-/// Bad input: exit 2, a message naming the problem, no output file, an earlier file intact.
+/// Bad input: exit 2, a message naming the problem, no output file, an earlier file intact
+/// (and nothing else left in the folder but the inputs).
 fn assert_refused(dir: &Scratch, args: &[&str], expected: &[&str]) {
     let earlier = dir.write("out.png", "earlier good output");
     let mut all = args.to_vec();
@@ -272,7 +273,7 @@ fn assert_refused(dir: &Scratch, args: &[&str], expected: &[&str]) {
     assert_eq!(
         dir.files()
             .iter()
-            .filter(|f| f.as_str() != "out.png" && !f.ends_with(".ron"))
+            .filter(|f| f.as_str() != "out.png" && !f.ends_with(".ron") && !f.ends_with(".obj"))
             .count(),
         0,
         "{:?}",
@@ -351,4 +352,121 @@ fn unwritable_output_is_a_failure_not_bad_input() {
     assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
     assert!(stderr(&out).contains("cannot write"), "{}", stderr(&out));
     assert!(dir.files().is_empty());
+}
+
+/// A unit cube as 12 triangles, Y up (the OBJ habit).
+const CUBE_OBJ: &str = "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nv 0 0 1\nv 1 0 1\nv 1 1 1\nv 0 1 1\n\
+f 1 2 3\nf 1 3 4\nf 5 7 6\nf 5 8 7\nf 1 6 2\nf 1 5 6\nf 2 7 3\nf 2 6 7\nf 3 8 4\nf 3 7 8\nf 4 5 1\nf 4 8 5\n";
+
+#[test]
+fn renders_an_obj_model_from_a_standpoint_given_on_the_command_line() {
+    let dir = Scratch::new("obj");
+    let model = dir.write("cube.obj", CUBE_OBJ);
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            model.to_str().unwrap(),
+            "--at",
+            "0.5,-4",
+            "--unit",
+            "m",
+            "--up",
+            "y",
+            "-o",
+            "cube.png",
+            "--size",
+            "400x200",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert!(stderr(&out).contains("12 edges"), "{}", stderr(&out));
+    // Without a standpoint it says how to give one.
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            model.to_str().unwrap(),
+            "-o",
+            "none.png",
+            "--size",
+            "400x200",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--at"), "{}", stderr(&out));
+}
+
+#[test]
+fn a_scene_places_a_model_beside_its_own_items() {
+    let dir = Scratch::new("obj-in-scene");
+    std::fs::create_dir_all(dir.path("models")).unwrap();
+    dir.write("models/cube.obj", CUBE_OBJ);
+    let scene = dir.write(
+        "square.ron",
+        "Scene(standpoints: [(name: \"s\", x: 0, y: -10)], items: [\n\
+         Model(label: \"kiosk\", file: \"models/cube.obj\", at: (2, 3, 0), turn: 30, scale: 2.5, unit: Metre),\n\
+         Polyline(points: [(-5, 0, 0), (5, 0, 0)]),\n])",
+    );
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            scene.to_str().unwrap(),
+            "-o",
+            "s.png",
+            "--size",
+            "400x200",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert!(stderr(&out).contains("13 edges"), "{}", stderr(&out));
+}
+
+#[test]
+fn bad_obj_files_name_the_line() {
+    let dir = Scratch::new("bad-obj");
+    let cases = [
+        (
+            "range.obj",
+            "v 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 9\n",
+            "range.obj:4:",
+            "out of range",
+        ),
+        (
+            "short.obj",
+            "v 0 0 0\nv 1 0 0\nf 1 2\n",
+            "short.obj:3:",
+            "at least 3",
+        ),
+        ("number.obj", "v 0 0 0\nv 1 zz 0\n", "number.obj:2:", "zz"),
+        ("empty.obj", "", "empty.obj:1:", "empty"),
+    ];
+    for (name, text, place, what) in cases {
+        let model = dir.write(name, text);
+        assert_refused(
+            &dir,
+            &["render", model.to_str().unwrap(), "--at", "0,0"],
+            &[place, what],
+        );
+    }
+    let garbage = dir.path("garbage.obj");
+    std::fs::write(&garbage, [0x89u8, 0x50, 0x4e, 0x47, 0xff, 0x00, 0x13]).unwrap();
+    assert_refused(
+        &dir,
+        &["render", garbage.to_str().unwrap(), "--at", "0,0"],
+        &["garbage.obj:1:", "binary"],
+    );
+    assert_refused(
+        &dir,
+        &["render", "missing.obj", "--at", "0,0"],
+        &["missing.obj"],
+    );
+    // A scene naming a model that is not there.
+    let scene = dir.write("s.ron", "Scene(items: [Model(file: \"nowhere.obj\")])");
+    assert_refused(
+        &dir,
+        &["render", scene.to_str().unwrap(), "--at", "0,0"],
+        &["nowhere.obj"],
+    );
 }
