@@ -2,7 +2,8 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::drawing::{
-    grid_and_horizon, wireframe, Drawing, Layer, SkippedEdge, Stroke, GRID_STEP_DEG,
+    grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
+    Wireframe, GRID_STEP_DEG,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
@@ -119,26 +120,34 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     if settings.overlays {
         let (grid, horizon) = grid_and_horizon(&view, &mut flattener, GRID_STEP_DEG);
         layers.push(Layer {
-            name: "grid",
+            name: "grid".to_owned(),
             stroke: GRID_STROKE,
             lines: grid,
         });
         layers.push(Layer {
-            name: "horizon",
+            name: "horizon".to_owned(),
             stroke: HORIZON_STROKE,
             lines: horizon,
         });
     }
-    let (lines, skipped) = wireframe(site, &view, &flattener);
+    let Wireframe {
+        layers: site_layers,
+        skipped,
+    } = wireframe(site, &view, &flattener);
     let stroke = Stroke {
         ink: 1.0,
         width_px: settings.line_weight_px,
     };
-    layers.push(Layer {
-        name: "wireframe",
-        stroke,
-        lines,
-    });
+    for (index, (name, lines)) in site_layers.into_iter().enumerate() {
+        // The default layer is always there, even empty; named layers only when used.
+        if index == 0 || !lines.is_empty() {
+            layers.push(Layer {
+                name: wireframe_layer_name(name.as_deref()),
+                stroke,
+                lines,
+            });
+        }
+    }
     let drawing = Drawing {
         width: settings.width,
         height: settings.height,

@@ -6,7 +6,8 @@
 //! its source).
 
 use nalgebra::Point3;
-use pansite::scene::{load_obj, parse_obj, MeshPlacement, MeshStats, Site};
+use pansite::render::{draw, RenderSettings};
+use pansite::scene::{load_obj, parse_obj, MeshPlacement, MeshStats, Site, Standpoint};
 use pansite::Error;
 use std::collections::HashSet;
 use std::path::{Path, PathBuf};
@@ -129,6 +130,33 @@ fn ngons_lines_groups_and_index_forms() {
         .filter_map(|i| i.layer.as_deref())
         .collect();
     assert!(layers.len() >= 2, "groups become layers: {layers:?}");
+    // ... and layers of the drawing, one for each group that has edges.
+    let standpoint = Standpoint::from_degrees("s", 0.3, -5.0, 1.6, 0.0, 0.0, 0.0);
+    let settings = RenderSettings {
+        width: 400,
+        height: 200,
+        overlays: false,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &standpoint, &settings).unwrap();
+    let drawn: Vec<&str> = render
+        .drawing
+        .layers
+        .iter()
+        .map(|l| l.name.as_str())
+        .collect();
+    for layer in &layers {
+        let name = format!("wireframe: {layer}");
+        let has_edges = site
+            .edges
+            .iter()
+            .any(|e| site.items[e.item.0 as usize].layer.as_deref() == Some(layer));
+        assert_eq!(
+            drawn.contains(&name.as_str()),
+            has_edges,
+            "{name} in {drawn:?}"
+        );
+    }
 }
 
 #[test]

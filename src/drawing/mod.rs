@@ -5,7 +5,7 @@ mod overlay;
 mod wireframe;
 
 pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
-pub use wireframe::{wireframe, SkippedEdge};
+pub use wireframe::{wireframe, SkippedEdge, Wireframe};
 
 use crate::plane::PolylineSet;
 
@@ -19,7 +19,7 @@ pub struct Stroke {
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Layer {
-    pub name: &'static str,
+    pub name: String,
     pub stroke: Stroke,
     pub lines: PolylineSet,
 }
@@ -32,7 +32,27 @@ pub struct Drawing {
     pub layers: Vec<Layer>,
 }
 
+/// The name of the wireframe layer of a site layer (`None`: items on no layer).
+pub fn wireframe_layer_name(site_layer: Option<&str>) -> String {
+    match site_layer {
+        None => WIREFRAME.to_owned(),
+        Some(name) => format!("{WIREFRAME}: {name}"),
+    }
+}
+
+/// Layer names start with this for the site's edges.
+pub const WIREFRAME: &str = "wireframe";
+
 impl Drawing {
+    /// The polylines of the site's edges (every wireframe layer), not the overlays.
+    pub fn wireframe_lines(&self) -> usize {
+        self.layers
+            .iter()
+            .filter(|l| l.name.starts_with(WIREFRAME))
+            .map(|l| l.lines.len())
+            .sum()
+    }
+
     pub fn vertex_count(&self) -> usize {
         self.layers.iter().map(|l| l.lines.vertex_count()).sum()
     }

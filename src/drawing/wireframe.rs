@@ -22,11 +22,7 @@ const EDGES_PER_RUN: usize = 2048;
 /// (near edges cost far more than distant ones, so fixed halves would leave a core idle);
 /// the runs' polylines are joined in edge order, so the result does not depend on the
 /// number of cores.
-pub fn wireframe(
-    site: &Site,
-    view: &ViewFrame,
-    flattener: &Flattener,
-) -> (PolylineSet, Vec<SkippedEdge>) {
+pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wireframe {
     // The smooth mesh edges on the outline from this eye join the fixed edges; they are
     // numbered after them in the list of skipped edges.
     let eye = view.eye();
@@ -58,7 +54,9 @@ pub fn wireframe(
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
-    let mut parts: Vec<(usize, PolylineSet, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
+    let (names, slot_of_item) = site.layer_slots();
+    let (names, slot_of_item) = (&names, &slot_of_item);
+    let mut parts: Vec<(usize, Vec<PolylineSet>, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
         let handles: Vec<_> = (0..threads)
             .map(|_| {
                 let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
@@ -67,8 +65,14 @@ pub fn wireframe(
                     loop {
                         let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
                         let Some(edges) = runs.get(index) else { break };
-                        let (lines, skipped) =
-                            flatten_edges(edges, first_index(index), view, &mut flattener);
+                        let (lines, skipped) = flatten_edges(
+                            edges,
+                            first_index(index),
+                            view,
+                            &mut flattener,
+                            slot_of_item,
+                            names.len(),
+                        );
                         done.push((index, lines, skipped));
                     }
                     done
@@ -84,13 +88,26 @@ pub fn wireframe(
             .collect()
     });
     parts.sort_by_key(|(index, _, _)| *index);
-    let mut lines = PolylineSet::new();
+    let mut layers: Vec<(Option<String>, PolylineSet)> = names
+        .iter()
+        .map(|name| (name.map(str::to_owned), PolylineSet::new()))
+        .collect();
     let mut skipped = Vec::new();
-    for (_, mut part_lines, part_skipped) in parts {
-        lines.append(&mut part_lines);
+    for (_, part_layers, part_skipped) in parts {
+        for ((_, lines), mut part) in layers.iter_mut().zip(part_layers) {
+            lines.append(&mut part);
+        }
         skipped.extend(part_skipped);
     }
-    (lines, skipped)
+    Wireframe { layers, skipped }
+}
+
+/// The wireframe of a site from one standpoint: one set of polylines for each of the
+/// site's layers (the first for items on no layer), and the edges left out.
+#[derive(Clone, Debug, Default)]
+pub struct Wireframe {
+    pub layers: Vec<(Option<String>, PolylineSet)>,
+    pub skipped: Vec<SkippedEdge>,
 }
 
 fn flatten_edges(
@@ -98,12 +115,15 @@ fn flatten_edges(
     first_index: usize,
     view: &ViewFrame,
     flattener: &mut Flattener,
-) -> (PolylineSet, Vec<SkippedEdge>) {
-    let mut lines = PolylineSet::new();
+    slot_of_item: &[u32],
+    slots: usize,
+) -> (Vec<PolylineSet>, Vec<SkippedEdge>) {
+    let mut lines = vec![PolylineSet::new(); slots];
     let mut skipped = Vec::new();
     for (offset, edge) in edges.iter().enumerate() {
+        let slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0) as usize;
         match view.sphere_curve(&edge.curve) {
-            Ok(curve) => flattener.flatten(&curve, &mut lines),
+            Ok(curve) => flattener.flatten(&curve, &mut lines[slot]),
             Err(why) => skipped.push(SkippedEdge {
                 item: edge.item,
                 edge_index: first_index + offset,

@@ -70,7 +70,7 @@ mod tests {
             width: 512,
             height: 300,
             layers: vec![Layer {
-                name: "test",
+                name: "test".to_owned(),
                 stroke: Stroke {
                     ink: 0.8,
                     width_px: 1.7,

@@ -471,7 +471,7 @@ mod tests {
             width: size.0,
             height: size.1,
             layers: vec![Layer {
-                name: "test",
+                name: "test".to_owned(),
                 stroke: Stroke { ink: 1.0, width_px },
                 lines: set,
             }],

@@ -172,6 +172,27 @@ impl Site {
         }
     }
 
+    /// The layers the items are drawn on: slot 0 for items without a layer, then one slot for
+    /// each layer name in order of first use; and each item's slot.
+    pub fn layer_slots(&self) -> (Vec<Option<&str>>, Vec<u32>) {
+        let mut names: Vec<Option<&str>> = vec![None];
+        let slots = self
+            .items
+            .iter()
+            .map(|item| match item.layer.as_deref() {
+                None => 0,
+                Some(name) => match names.iter().position(|n| *n == Some(name)) {
+                    Some(slot) => slot as u32,
+                    None => {
+                        names.push(Some(name));
+                        names.len() as u32 - 1
+                    }
+                },
+            })
+            .collect();
+        (names, slots)
+    }
+
     pub fn standpoint(&self, name: &str) -> Option<&Standpoint> {
         self.standpoints.iter().find(|s| s.name == name)
     }

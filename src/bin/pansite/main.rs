@@ -92,7 +92,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
                 render.skipped.len() - MAX_NAMED_SKIPS
             );
         }
-        let lines = render.drawing.layers.last().map_or(0, |l| l.lines.len());
+        let lines = render.drawing.wireframe_lines();
         eprintln!(
             "pansite: wrote {} ({}x{} px, standpoint \"{}\", {} edges as {} lines, {} skipped)",
             output.display(),
