@@ -3,8 +3,8 @@
 use super::format::{
     Anchor, BlockSpec, ItemSpec, ModelSpec, PolylineSpec, SceneFile, StandpointSpec,
 };
-use super::load::read;
-use super::{add_mesh, parse_obj, ItemId, MeshPlacement, Site, Standpoint};
+use super::obj::read_obj;
+use super::{add_mesh, ItemId, MeshPlacement, Site, Standpoint};
 use crate::error::Result;
 use nalgebra::{Point3, Vector2, Vector3};
 use std::path::Path;
@@ -38,7 +38,7 @@ fn add_model(site: &mut Site, model: &ModelSpec, scene_path: &Path) -> Result<()
         .parent()
         .unwrap_or(Path::new(""))
         .join(&model.file);
-    let obj = parse_obj(&read(&path)?, &path)?;
+    let obj = read_obj(&path)?;
     let placement = MeshPlacement {
         up: model.up,
         unit: model.unit,

@@ -2,7 +2,8 @@
 
 use super::expand::expand;
 use super::format::SceneFile;
-use super::{add_mesh, parse_obj, MeshPlacement, MeshStats, Site};
+use super::obj::read_obj;
+use super::{add_mesh, MeshPlacement, MeshStats, Site};
 use crate::error::{Error, Result};
 use ron::extensions::Extensions;
 use std::path::Path;
@@ -20,8 +21,7 @@ pub fn load_scene(path: &Path) -> Result<Site> {
 /// Reads a Wavefront OBJ model into a site of its own. It has no standpoints: the caller
 /// gives one.
 pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshStats)> {
-    let bytes = read(path)?;
-    let obj = parse_obj(&bytes, path)?;
+    let obj = read_obj(path)?;
     let name = path
         .file_name()
         .map(|s| s.to_string_lossy().into_owned())
@@ -34,7 +34,7 @@ pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshSta
     Ok((site, stats))
 }
 
-pub(super) fn read(path: &Path) -> Result<Vec<u8>> {
+fn read(path: &Path) -> Result<Vec<u8>> {
     std::fs::read(path).map_err(|source| Error::Read {
         path: path.to_owned(),
         source,

@@ -13,7 +13,6 @@
 
 use super::obj::ObjFile;
 use super::site::{Face, ItemId, SilhouetteEdge, Site};
-use crate::sphere::angle_between;
 use nalgebra::{Point3, Rotation3, Vector3};
 
 /// Which axis of the file points up.
@@ -204,7 +203,8 @@ pub fn add_mesh(
                     1.0
                 };
                 let n2 = faces[second_face as usize].1 * flip;
-                let angle = angle_between(&n1, &n2);
+                // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
+                let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
                 if angle > crease {
                     stats.creases += 1;
                     site.add_segment(item, pa, pb);

@@ -25,6 +25,15 @@ pub struct ObjFile {
     pub groups: Vec<String>,
 }
 
+/// Reads and parses an OBJ file.
+pub fn read_obj(path: &Path) -> Result<ObjFile> {
+    let bytes = std::fs::read(path).map_err(|source| Error::Read {
+        path: path.to_owned(),
+        source,
+    })?;
+    parse_obj(&bytes, path)
+}
+
 /// Parses OBJ text; `path` names the file in messages.
 pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
     let error = |line: usize, message: String| Error::Scene {
