@@ -45,6 +45,10 @@ const MAX_PIECE_PARAMETER: f64 = FRAC_PI_4;
 const NEAR_POLE: f64 = 0.35;
 /// `sin(NEAR_POLE)`.
 const SIN_NEAR_POLE: f64 = 0.342_897_807_455_451_24;
+/// Great arcs up to this long (radians) are tested for pole approaches by their ends alone.
+const SHORT_ARC: f64 = 0.05;
+/// `cos(NEAR_POLE + SHORT_ARC)`: an end further than this from both poles.
+const COS_NEAR_POLE_AND_SHORT_ARC: f64 = 0.921_060_994_002_885_1;
 
 /// Great-arc spans up to this long (radians) may be accepted on their ends' curvature alone
 /// (see [`Flattener::ends_bound`]): over so short an arc, away from the poles, the image's
@@ -90,6 +94,8 @@ enum Cut {
 #[derive(Clone, Copy, Debug)]
 struct Sample {
     t: f64,
+    /// The curve's point there (relative to the eye, view frame).
+    position: Vector3<f64>,
     at: ImagePoint,
     /// First and second derivatives of the image point with respect to `t`; `None` at a
     /// pole, where they do not exist.
@@ -107,6 +113,8 @@ struct Run {
     /// A polyline is open (the last piece was drawn).
     drawing: bool,
     samples_left: usize,
+    /// The samples at the curve's two ends, unwrapped against azimuth zero.
+    ends: (Sample, Sample),
 }
 
 /// What one piece of a curve needs while it is refined.
@@ -136,13 +144,25 @@ impl Flattener {
     /// seam and pole crossings.
     pub fn flatten(&mut self, curve: &SphereCurve, out: &mut PolylineSet) {
         let mut cuts = std::mem::take(&mut self.cuts);
-        let touches_pole_band = self.find_cuts(curve, &mut cuts);
+        // The two ends are sampled once, for the cuts and for the pieces that end there.
+        let mut whole = Piece {
+            curve,
+            reference: 0.0,
+            samples_left: MAX_SAMPLES_PER_CURVE,
+        };
+        let ends = (
+            self.sample(&mut whole, curve.t0),
+            self.sample(&mut whole, curve.t1),
+        );
+        let touches_pole_band =
+            self.find_cuts(curve, &mut cuts, (&ends.0.position, &ends.1.position));
         let mut run = Run {
             touches_pole_band,
             on_seam_plane: curve.lies_in_plane(&Vector3::x()),
             on_seam: false,
             drawing: false,
-            samples_left: MAX_SAMPLES_PER_CURVE,
+            samples_left: whole.samples_left,
+            ends,
         };
         for pair in cuts.windows(2) {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
@@ -182,16 +202,30 @@ impl Flattener {
         }
         let lies_on_seam = run.on_seam_plane && middle().y < 0.0;
         // Samples are unwrapped against the azimuth at the middle only where it matters: a
-        // piece that reaches behind the viewer may touch the seam, where atan2's sign of
-        // zero would otherwise pick the border. Ahead, atan2's own range is continuous.
+        // piece never crosses the seam (it is cut there), so atan2's own range is continuous
+        // along it except at an end lying on the seam.
         let mut piece = Piece {
             curve,
             reference: 0.0,
             samples_left: run.samples_left,
         };
-        let (mut a, mut b) = (self.sample(&mut piece, ta), self.sample(&mut piece, tb));
-        let behind = |s: &Sample| (s.at.x - self.map.width() / 2.0).abs() > self.map.width() / 4.0;
-        if lies_on_seam || cut_a == Cut::Seam || cut_b == Cut::Seam || behind(&a) || behind(&b) {
+        let mut sample_at = |t: f64, known: &Sample| {
+            if t == known.t {
+                *known
+            } else {
+                self.sample(&mut piece, t)
+            }
+        };
+        let (mut a, mut b) = (sample_at(ta, &run.ends.0), sample_at(tb, &run.ends.1));
+        // atan2 gives exactly +-pi only on the seam itself, whose side it picks by the sign
+        // of a zero: only then does the middle decide.
+        let on_border = |s: &Sample| s.at.x == 0.0 || s.at.x == self.map.width();
+        if lies_on_seam
+            || cut_a == Cut::Seam
+            || cut_b == Cut::Seam
+            || on_border(&a)
+            || on_border(&b)
+        {
             let middle = middle();
             piece.reference = if lies_on_seam {
                 -PI
@@ -268,7 +302,12 @@ impl Flattener {
 
     /// The cut parameters of a curve, sorted, with their kinds, into `cuts`; and whether
     /// any of the curve lies in a pole band.
-    fn find_cuts(&self, curve: &SphereCurve, cuts: &mut Vec<(f64, Cut)>) -> bool {
+    fn find_cuts(
+        &self,
+        curve: &SphereCurve,
+        cuts: &mut Vec<(f64, Cut)>,
+        (start, end): (&Vector3<f64>, &Vector3<f64>),
+    ) -> bool {
         let (t0, t1) = (curve.t0, curve.t1);
         cuts.clear();
         cuts.extend([(t0, Cut::Plain), (t1, Cut::Plain)]);
@@ -282,8 +321,14 @@ impl Flattener {
         // A great circle whose plane is steeper than NEAR_POLE from the horizontal never comes
         // that near either pole: |n . z| >= sin(NEAR_POLE) |n| for its normal n.
         let normal = curve.u.cross(&curve.v);
+        // Or a short great arc whose ends are both far from the poles: no point of it is more
+        // than its length from its start.
+        let short_and_level = t1 - t0 <= SHORT_ARC
+            && start.z.abs() <= COS_NEAR_POLE_AND_SHORT_ARC * start.norm()
+            && end.z.abs() <= COS_NEAR_POLE_AND_SHORT_ARC * end.norm();
         let far_from_poles = curve.is_great_circle()
-            && normal.z * normal.z >= SIN_NEAR_POLE * SIN_NEAR_POLE * normal.norm_squared();
+            && (short_and_level
+                || normal.z * normal.z >= SIN_NEAR_POLE * SIN_NEAR_POLE * normal.norm_squared());
         for zenith in [true, false].into_iter().filter(|_| !far_from_poles) {
             for (t, distance) in curve.pole_approaches(zenith, NEAR_POLE) {
                 if distance < self.pole_band() {
@@ -293,8 +338,7 @@ impl Flattener {
                 }
             }
         }
-        let (start, end) = (curve.position(t0), curve.position(t1));
-        let ends_in_band = [self.is_in_pole_band(&start), self.is_in_pole_band(&end)];
+        let ends_in_band = [self.is_in_pole_band(start), self.is_in_pole_band(end)];
         if ends_in_band[0] {
             band_edges(t0, &[t1], cuts);
         }
@@ -367,7 +411,8 @@ impl Flattener {
     fn sample(&self, piece: &mut Piece, t: f64) -> Sample {
         piece.samples_left = piece.samples_left.saturating_sub(1);
         let curve = piece.curve;
-        let (sin, cos) = t.sin_cos();
+        // Every great arc starts at t = 0: spare the library call there.
+        let (sin, cos) = if t == 0.0 { (0.0, 1.0) } else { t.sin_cos() };
         let p = curve.centre + curve.u * cos + curve.v * sin;
         let d1 = curve.v * cos - curve.u * sin;
         let d2 = -(curve.u * cos + curve.v * sin);
@@ -379,7 +424,12 @@ impl Flattener {
         let derivatives = (rho2 > 1e-300 * p.norm_squared())
             .then(|| self.image_derivatives(&p, &d1, &d2, rho))
             .filter(|(v, a)| v.iter().chain(a.iter()).all(|c| c.is_finite()));
-        Sample { t, at, derivatives }
+        Sample {
+            t,
+            position: p,
+            at,
+            derivatives,
+        }
     }
 
     /// `d/dt` and `d2/dt2` of the image point of `P(t)`, from `P`, `P'` and `P''`, in pixels.
@@ -398,18 +448,22 @@ impl Flattener {
         rho: f64,
     ) -> (Vector2<f64>, Vector2<f64>) {
         let rho2 = rho * rho;
+        let (inverse_rho, inverse_rho2) = (1.0 / rho, 1.0 / rho2);
         let w = p.y * d1.x - p.x * d1.y;
         let radial = p.x * d1.x + p.y * d1.y;
-        let azimuth_dd = (p.y * d2.x - p.x * d2.y) / rho2 - 2.0 * w * radial / (rho2 * rho2);
-        let rho_d = radial / rho;
-        let rho_dd = (d1.x * d1.x + d1.y * d1.y + p.x * d2.x + p.y * d2.y - rho_d * rho_d) / rho;
+        let azimuth_dd =
+            ((p.y * d2.x - p.x * d2.y) - 2.0 * w * radial * inverse_rho2) * inverse_rho2;
+        let rho_d = radial * inverse_rho;
+        let rho_dd =
+            (d1.x * d1.x + d1.y * d1.y + p.x * d2.x + p.y * d2.y - rho_d * rho_d) * inverse_rho;
         let n = rho * d1.z - p.z * rho_d;
         let m = rho2 + p.z * p.z;
+        let inverse_m = 1.0 / m;
         let n_d = rho * d2.z - p.z * rho_dd;
         let m_d = 2.0 * (rho * rho_d + p.z * d1.z);
-        let elevation_dd = (n_d * m - n * m_d) / (m * m);
+        let elevation_dd = (n_d - n * m_d * inverse_m) * inverse_m;
         let (sx, sy) = (self.map.x_scale(), self.map.y_scale());
-        let velocity = Vector2::new(w / rho2 * sx, -n / m * sy);
+        let velocity = Vector2::new(w * inverse_rho2 * sx, -n * inverse_m * sy);
         (velocity, Vector2::new(azimuth_dd * sx, -elevation_dd * sy))
     }
 

@@ -59,14 +59,19 @@ impl SphereCurve {
     pub fn great_arc(a: &Vector3<f64>, b: &Vector3<f64>) -> Option<SphereCurve> {
         let a = a.try_normalize(0.0)?;
         let b = b.try_normalize(0.0)?;
+        Self::great_arc_between_units(a, b)
+    }
+
+    /// [`SphereCurve::great_arc`] for directions already of unit length.
+    pub fn great_arc_between_units(a: Vector3<f64>, b: Vector3<f64>) -> Option<SphereCurve> {
         let normal = a.cross(&b);
         let sin_angle = normal.norm();
-        if sin_angle < 1e-12 {
+        if !(sin_angle >= 1e-12) {
             return None;
         }
         let angle = sin_angle.atan2(a.dot(&b));
         // v = n x a / |n| is the unit vector a quarter turn from `a` towards `b` in the plane.
-        let v = normal.cross(&a) / sin_angle;
+        let v = normal.cross(&a) * (1.0 / sin_angle);
         Some(SphereCurve {
             centre: Vector3::zeros(),
             u: a,

@@ -74,16 +74,17 @@ impl ViewFrame {
     pub fn sphere_curve(&self, curve: &SiteCurve) -> Result<SphereCurve, Degeneracy> {
         match *curve {
             SiteCurve::Segment { start, end } => {
-                let a = self.to_view(&start);
-                let b = self.to_view(&end);
-                let scale = a.norm().max(b.norm()).max(1.0);
-                if (end - start).norm() <= 1e-12 * scale {
+                let (a, b) = (self.to_view(&start), self.to_view(&end));
+                let (length_a, length_b) = (a.norm(), b.norm());
+                let scale = length_a.max(length_b).max(1.0);
+                if (end - start).norm_squared() <= (1e-12 * scale).powi(2) {
                     return Err(Degeneracy::ZeroLength);
                 }
-                if a.norm() <= AT_EYE || b.norm() <= AT_EYE {
+                if length_a <= AT_EYE || length_b <= AT_EYE {
                     return Err(Degeneracy::EndAtEye);
                 }
-                SphereCurve::great_arc(&a, &b).ok_or(Degeneracy::SeenEndOn)
+                SphereCurve::great_arc_between_units(a * (1.0 / length_a), b * (1.0 / length_b))
+                    .ok_or(Degeneracy::SeenEndOn)
             }
             SiteCurve::Ellipse {
                 centre,
