@@ -51,6 +51,20 @@ impl RenderSettings {
                 reason: "empty".into(),
             });
         }
+        if w > MAX_SIDE_PX || h > MAX_SIDE_PX {
+            return Err(Error::ImageSize {
+                width: w,
+                height: h,
+                reason: format!("wider or taller than the limit of {MAX_SIDE_PX} pixels"),
+            });
+        }
+        if w < h / 2 || w > 8 * h {
+            return Err(Error::ImageSize {
+                width: w,
+                height: h,
+                reason: "too far from the 2:1 shape of a panorama (width from half the height to 8 times it)".into(),
+            });
+        }
         if w * h > MAX_PIXELS {
             return Err(Error::ImageSize {
                 width: w,
@@ -70,16 +84,22 @@ impl RenderSettings {
         }
         if !(self.line_weight_px.is_finite()
             && self.line_weight_px > 0.0
-            && self.line_weight_px <= 1000.0)
+            && self.line_weight_px <= MAX_LINE_WEIGHT_PX)
         {
             return Err(Error::Setting(format!(
-                "line weight {} px is outside (0, 1000] px",
+                "line weight {} px is outside (0, {MAX_LINE_WEIGHT_PX}] px",
                 self.line_weight_px
             )));
         }
         Ok(())
     }
 }
+
+/// The widest stroke: the rasteriser's work grows with the square of the width.
+pub const MAX_LINE_WEIGHT_PX: f64 = 64.0;
+
+/// The longest side of an image, pixels.
+pub const MAX_SIDE_PX: u64 = 1 << 17;
 
 /// Stage times, for `--timings`.
 #[derive(Clone, Debug, Default, PartialEq)]

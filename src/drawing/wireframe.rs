@@ -56,37 +56,37 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
     let next_run = std::sync::atomic::AtomicUsize::new(0);
     let (names, slot_of_item) = site.layer_slots();
     let (names, slot_of_item) = (&names, &slot_of_item);
-    let mut parts: Vec<(usize, Vec<PolylineSet>, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
-        let handles: Vec<_> = (0..threads)
-            .map(|_| {
-                let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
-                scope.spawn(move || {
-                    let mut done = Vec::new();
-                    loop {
-                        let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                        let Some(edges) = runs.get(index) else { break };
-                        let (lines, skipped) = flatten_edges(
-                            edges,
-                            first_index(index),
-                            view,
-                            &mut flattener,
-                            slot_of_item,
-                            names.len(),
-                        );
-                        done.push((index, lines, skipped));
-                    }
-                    done
+    let mut parts: Vec<(usize, Vec<(u32, PolylineSet)>, Vec<SkippedEdge>)> =
+        std::thread::scope(|scope| {
+            let handles: Vec<_> = (0..threads)
+                .map(|_| {
+                    let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
+                    scope.spawn(move || {
+                        let mut done = Vec::new();
+                        loop {
+                            let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                            let Some(edges) = runs.get(index) else { break };
+                            let (lines, skipped) = flatten_edges(
+                                edges,
+                                first_index(index),
+                                view,
+                                &mut flattener,
+                                slot_of_item,
+                            );
+                            done.push((index, lines, skipped));
+                        }
+                        done
+                    })
                 })
-            })
-            .collect();
-        handles
-            .into_iter()
-            .flat_map(|h| {
-                h.join()
-                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
-            })
-            .collect()
-    });
+                .collect();
+            handles
+                .into_iter()
+                .flat_map(|h| {
+                    h.join()
+                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+                })
+                .collect()
+        });
     parts.sort_by_key(|(index, _, _)| *index);
     let mut layers: Vec<(Option<String>, PolylineSet)> = names
         .iter()
@@ -94,8 +94,8 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
         .collect();
     let mut skipped = Vec::new();
     for (_, part_layers, part_skipped) in parts {
-        for ((_, lines), mut part) in layers.iter_mut().zip(part_layers) {
-            lines.append(&mut part);
+        for (slot, mut part) in part_layers {
+            layers[slot as usize].1.append(&mut part);
         }
         skipped.extend(part_skipped);
     }
@@ -116,14 +116,23 @@ fn flatten_edges(
     view: &ViewFrame,
     flattener: &mut Flattener,
     slot_of_item: &[u32],
-    slots: usize,
-) -> (Vec<PolylineSet>, Vec<SkippedEdge>) {
-    let mut lines = vec![PolylineSet::new(); slots];
+) -> (Vec<(u32, PolylineSet)>, Vec<SkippedEdge>) {
+    // Only the layers this run uses (a model may have a layer for each of its parts).
+    let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();
     for (offset, edge) in edges.iter().enumerate() {
-        let slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0) as usize;
+        let slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0);
         match view.sphere_curve(&edge.curve) {
-            Ok(curve) => flattener.flatten(&curve, &mut lines[slot]),
+            Ok(curve) => {
+                let position = match lines.iter().rposition(|(s, _)| *s == slot) {
+                    Some(position) => position,
+                    None => {
+                        lines.push((slot, PolylineSet::new()));
+                        lines.len() - 1
+                    }
+                };
+                flattener.flatten(&curve, &mut lines[position].1);
+            }
             Err(why) => skipped.push(SkippedEdge {
                 item: edge.item,
                 edge_index: first_index + offset,

@@ -89,7 +89,7 @@ pub fn rasterize_in_bands<E>(
     let (free, free_buffers) = channel::<Vec<u8>>();
     for _ in 0..(threads * BUFFERS_PER_CORE).min(band_count) {
         // Ignoring the result is safe: the receiver is alive until the end of this function.
-        let _ = free.send(vec![0u8; BAND_ROWS * width]);
+        let _ = free.send(vec![0u8; BAND_ROWS.min(height) * width]);
     }
     let free_buffers = std::sync::Mutex::new(free_buffers);
     let next_band = AtomicUsize::new(0);

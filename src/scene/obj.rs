@@ -11,6 +11,7 @@
 
 use crate::error::{Error, Result};
 use nalgebra::Point3;
+use std::collections::HashMap;
 use std::path::Path;
 
 /// A parsed OBJ file, in its own coordinates and units.
@@ -64,6 +65,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
         groups: vec![String::new()],
         ..ObjFile::default()
     };
+    let mut group_index = HashMap::from([(String::new(), 0u32)]);
     let mut group = 0u32;
     let mut object_name = String::new();
     // Absolute indices may point forward; they are checked once every `v` is read.
@@ -144,7 +146,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
             }
             "o" => {
                 object_name = words.collect::<Vec<_>>().join(" ");
-                group = name_group(&mut obj.groups, &object_name);
+                group = name_group(&mut obj.groups, &mut group_index, &object_name);
             }
             "g" => {
                 let name = words.collect::<Vec<_>>().join(" ");
@@ -153,7 +155,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                 } else {
                     name
                 };
-                group = name_group(&mut obj.groups, &name);
+                group = name_group(&mut obj.groups, &mut group_index, &name);
             }
             // Texture and normal vectors, materials, smoothing, points, free-form geometry:
             // nothing pansite draws.
@@ -187,14 +189,16 @@ fn parse_number(word: &str) -> std::result::Result<f64, String> {
     }
 }
 
-fn name_group(groups: &mut Vec<String>, name: &str) -> u32 {
-    match groups.iter().position(|g| g == name) {
-        Some(index) => index as u32,
-        None => {
-            groups.push(name.to_owned());
-            groups.len() as u32 - 1
-        }
+/// The index of a group name, adding it if new (`index` maps names to indices: exports
+/// from CAD write a group for every component, hundreds of thousands of them).
+fn name_group(groups: &mut Vec<String>, index: &mut HashMap<String, u32>, name: &str) -> u32 {
+    if let Some(&i) = index.get(name) {
+        return i;
     }
+    groups.push(name.to_owned());
+    let i = groups.len() as u32 - 1;
+    index.insert(name.to_owned(), i);
+    i
 }
 
 #[cfg(test)]

@@ -176,18 +176,16 @@ impl Site {
     /// each layer name in order of first use; and each item's slot.
     pub fn layer_slots(&self) -> (Vec<Option<&str>>, Vec<u32>) {
         let mut names: Vec<Option<&str>> = vec![None];
+        let mut slot_of_name = std::collections::HashMap::new();
         let slots = self
             .items
             .iter()
             .map(|item| match item.layer.as_deref() {
                 None => 0,
-                Some(name) => match names.iter().position(|n| *n == Some(name)) {
-                    Some(slot) => slot as u32,
-                    None => {
-                        names.push(Some(name));
-                        names.len() as u32 - 1
-                    }
-                },
+                Some(name) => *slot_of_name.entry(name).or_insert_with(|| {
+                    names.push(Some(name));
+                    names.len() as u32 - 1
+                }),
             })
             .collect();
         (names, slots)
