@@ -28,6 +28,15 @@ pub enum Error {
         source: std::io::Error,
     },
 
+    /// A model named in a scene could not be read.
+    #[error("{}: in the model \"{item}\": {source}", scene.display())]
+    InModel {
+        scene: PathBuf,
+        item: String,
+        #[source]
+        source: Box<Error>,
+    },
+
     #[error("the scene has no standpoint named \"{name}\" (it has: {available})")]
     UnknownStandpoint { name: String, available: String },
 
@@ -62,8 +71,12 @@ impl Error {
             | Error::ImageSize { .. } => true,
             Error::Read { source, .. } => matches!(
                 source.kind(),
-                std::io::ErrorKind::NotFound | std::io::ErrorKind::IsADirectory
+                std::io::ErrorKind::NotFound
+                    | std::io::ErrorKind::IsADirectory
+                    | std::io::ErrorKind::InvalidInput
+                    | std::io::ErrorKind::PermissionDenied
             ),
+            Error::InModel { source, .. } => source.is_bad_input(),
             Error::Write { .. } | Error::Png(_) => false,
         }
     }

@@ -5,7 +5,7 @@ use super::format::{
 };
 use super::obj::read_obj;
 use super::{add_mesh, ItemId, MeshPlacement, Site, Standpoint};
-use crate::error::Result;
+use crate::error::{Error, Result};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::path::Path;
 
@@ -27,7 +27,13 @@ pub fn expand(file: SceneFile, fallback_name: &str, scene_path: &Path) -> Result
                 let id = site.add_item("polyline", polyline.label.clone());
                 add_polyline(&mut site, id, &polyline);
             }
-            ItemSpec::Model(model) => add_model(&mut site, &model, scene_path)?,
+            ItemSpec::Model(model) => {
+                add_model(&mut site, &model, scene_path).map_err(|source| Error::InModel {
+                    scene: scene_path.to_owned(),
+                    item: model.label.clone().unwrap_or_else(|| model.file.0.clone()),
+                    source: Box::new(source),
+                })?
+            }
         }
     }
     Ok(site)
@@ -37,7 +43,7 @@ fn add_model(site: &mut Site, model: &ModelSpec, scene_path: &Path) -> Result<()
     let path = scene_path
         .parent()
         .unwrap_or(Path::new(""))
-        .join(&model.file);
+        .join(&model.file.0);
     let obj = read_obj(&path)?;
     let placement = MeshPlacement {
         up: model.up,
@@ -47,7 +53,7 @@ fn add_model(site: &mut Site, model: &ModelSpec, scene_path: &Path) -> Result<()
         turn_deg: model.turn.0,
         offset: Vector3::new(model.at.0 .0, model.at.1 .0, model.at.2 .0),
     };
-    let name = model.label.clone().unwrap_or_else(|| model.file.clone());
+    let name = model.label.clone().unwrap_or_else(|| model.file.0.clone());
     add_mesh(site, &obj, &placement, &name);
     Ok(())
 }

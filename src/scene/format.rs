@@ -16,19 +16,62 @@
 
 use serde::{Deserialize, Deserializer};
 
-/// Any finite number (NaN and infinities are refused where they are written).
+/// The largest magnitude of any number in a scene: a million kilometres, far beyond any
+/// site, and small enough that sums and products of coordinates stay exact enough.
+pub const MAX_MAGNITUDE: f64 = 1e9;
+
+/// A finite number within [`MAX_MAGNITUDE`] (NaN, infinities and absurd sizes are refused
+/// where they are written).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Finite(pub f64);
 
 impl<'de> Deserialize<'de> for Finite {
     fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
         let value = f64::deserialize(deserializer)?;
-        if value.is_finite() {
-            Ok(Finite(value))
-        } else {
+        if !value.is_finite() {
             Err(serde::de::Error::custom(format!(
                 "expected a finite number, found {value}"
             )))
+        } else if value.abs() > MAX_MAGNITUDE {
+            Err(serde::de::Error::custom(format!(
+                "expected a number from -1e9 to 1e9, found {value:e}"
+            )))
+        } else {
+            Ok(Finite(value))
+        }
+    }
+}
+
+/// An angle from 0 to 180 degrees.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct HalfTurn(pub f64);
+
+impl<'de> Deserialize<'de> for HalfTurn {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let Finite(value) = Finite::deserialize(deserializer)?;
+        if (0.0..=180.0).contains(&value) {
+            Ok(HalfTurn(value))
+        } else {
+            Err(serde::de::Error::custom(format!(
+                "expected an angle from 0 to 180 degrees, found {value}"
+            )))
+        }
+    }
+}
+
+/// A file name that is not empty.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FileName(pub String);
+
+impl<'de> Deserialize<'de> for FileName {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let name = String::deserialize(deserializer)?;
+        if name.trim().is_empty() {
+            Err(serde::de::Error::custom(
+                "expected a file name, found an empty string",
+            ))
+        } else {
+            Ok(FileName(name))
         }
     }
 }
@@ -137,8 +180,8 @@ fn one() -> Positive {
     Positive(1.0)
 }
 
-fn default_crease() -> NonNegative {
-    NonNegative(super::DEFAULT_CREASE_DEG)
+fn default_crease() -> HalfTurn {
+    HalfTurn(super::DEFAULT_CREASE_DEG)
 }
 
 fn origin() -> (Finite, Finite, Finite) {
@@ -152,7 +195,7 @@ pub struct ModelSpec {
     #[serde(default)]
     pub label: Option<String>,
     /// The OBJ file, relative to the scene file's folder.
-    pub file: String,
+    pub file: FileName,
     /// Where the model's origin goes, metres (x east, y north, z up).
     #[serde(default = "origin")]
     pub at: (Finite, Finite, Finite),
@@ -169,7 +212,7 @@ pub struct ModelSpec {
     pub unit: super::Unit,
     /// Edges whose faces meet at more than this angle (degrees) are drawn.
     #[serde(default = "default_crease")]
-    pub crease: NonNegative,
+    pub crease: HalfTurn,
 }
 
 /// Where a block's plan is anchored: its front-left corner (as seen by someone facing the

@@ -1,6 +1,7 @@
 //! Reading a RON scene file into a [`Site`].
 
 use super::expand::expand;
+use super::file::read_input;
 use super::format::SceneFile;
 use super::obj::read_obj;
 use super::{add_mesh, MeshPlacement, MeshStats, Site};
@@ -10,7 +11,7 @@ use std::path::Path;
 
 /// Reads and resolves a scene file.
 pub fn load_scene(path: &Path) -> Result<Site> {
-    let bytes = read(path)?;
+    let bytes = read_input(path)?;
     let fallback = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -32,13 +33,6 @@ pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshSta
     };
     let stats = add_mesh(&mut site, &obj, placement, &name);
     Ok((site, stats))
-}
-
-fn read(path: &Path) -> Result<Vec<u8>> {
-    std::fs::read(path).map_err(|source| Error::Read {
-        path: path.to_owned(),
-        source,
-    })
 }
 
 /// Parses scene text. `path` names the file in messages and is where models (OBJ files)

@@ -87,8 +87,10 @@ impl Default for MeshPlacement {
 pub struct MeshStats {
     /// Distinct positions after welding.
     pub vertices: usize,
-    /// Faces kept (degenerate ones dropped), and the triangles they make.
+    /// Faces kept, and faces of no area left out.
     pub faces: usize,
+    pub dropped_faces: usize,
+    /// The triangles the kept faces make.
     pub triangles: usize,
     /// Distinct face edges, and how they were classed.
     pub edges: usize,
@@ -117,7 +119,13 @@ pub fn add_mesh(
     name: &str,
 ) -> MeshStats {
     let positions = place(&obj.positions, placement);
-    let (weld, vertices) = weld(&positions);
+    let mut used = vec![false; positions.len()];
+    for (indices, _) in obj.faces.iter().chain(&obj.lines) {
+        for &i in indices {
+            used[i as usize] = true;
+        }
+    }
+    let (weld, vertices) = weld(&positions, &used);
     let items: Vec<ItemId> = obj
         .groups
         .iter()
@@ -148,10 +156,13 @@ pub fn add_mesh(
         while welded.len() > 1 && welded.first() == welded.last() {
             welded.pop();
         }
-        if welded.len() < 3 {
-            continue;
-        }
-        let Some(normal) = newell_normal(&welded, &points) else {
+        let normal = if welded.len() < 3 {
+            None
+        } else {
+            newell_normal(&welded, &points)
+        };
+        let Some(normal) = normal else {
+            stats.dropped_faces += 1;
             continue;
         };
         let item = items[*group as usize];
@@ -260,20 +271,33 @@ fn place(positions: &[Point3<f64>], placement: &MeshPlacement) -> Vec<Point3<f64
 /// Positions are keyed by their coordinates rounded to the weld tolerance, so exact
 /// duplicates (what exporters write) always merge; two positions within the tolerance but
 /// on either side of a rounding boundary stay apart (a limitation, documented).
-fn weld(positions: &[Point3<f64>]) -> (Vec<u32>, usize) {
-    let (mut low, mut high) = (Point3::origin(), Point3::origin());
-    if let Some(first) = positions.first() {
-        (low, high) = (*first, *first);
-    }
-    for p in positions {
+fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
+    // The model's size from the positions its faces and lines use: a stray vertex far away
+    // must not widen the tolerance until the model welds into a point.
+    let (mut low, mut high) = (
+        Point3::from([f64::INFINITY; 3]),
+        Point3::from([f64::NEG_INFINITY; 3]),
+    );
+    for (p, _) in positions.iter().zip(used).filter(|(_, &u)| u) {
         low = low.inf(p);
         high = high.sup(p);
     }
-    let tolerance = ((high - low).norm() * WELD_FRACTION).max(f64::MIN_POSITIVE);
+    // The largest side rather than the diagonal: no squares to overflow.
+    let size = (high - low).amax();
+    let tolerance = size * WELD_FRACTION;
     let mut index = std::collections::HashMap::with_capacity(positions.len());
     let mut weld = Vec::with_capacity(positions.len());
     for p in positions {
-        let key = [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64);
+        // Beyond what rounding to the tolerance can key (a model spanning 1e300, say), only
+        // identical positions weld.
+        let key = if tolerance.is_finite()
+            && tolerance > 0.0
+            && p.iter().all(|c| (c / tolerance).abs() < 9e18)
+        {
+            [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
+        } else {
+            [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
+        };
         let next = index.len() as u32;
         weld.push(*index.entry(key).or_insert(next));
     }
@@ -461,6 +485,49 @@ mod tests {
         );
         assert_eq!(Unit::Foot.metres(), 0.3048);
         assert_eq!(Unit::Inch.metres(), 0.0254);
+    }
+
+    #[test]
+    fn a_stray_vertex_far_away_does_not_weld_the_model_into_a_point() {
+        // A 10 cm cube in georeferenced coordinates, plus one unused vertex at the origin.
+        let mut text = String::from("v 0 0 0\n");
+        for line in CUBE.lines() {
+            match line.strip_prefix("v ") {
+                Some(v) => {
+                    let c: Vec<f64> = v.split_whitespace().map(|w| w.parse().unwrap()).collect();
+                    writeln!(
+                        text,
+                        "v {} {} {}",
+                        500000.0 + c[0] * 0.1,
+                        5000000.0 + c[1] * 0.1,
+                        c[2] * 0.1
+                    )
+                    .unwrap();
+                }
+                None => {
+                    let shifted: Vec<String> = line
+                        .split_whitespace()
+                        .skip(1)
+                        .map(|i| (i.parse::<u32>().unwrap() + 1).to_string())
+                        .collect();
+                    writeln!(text, "f {}", shifted.join(" ")).unwrap();
+                }
+            }
+        }
+        let (site, stats) = import(&text, &z_up());
+        assert_eq!(
+            (stats.vertices, site.edges.len(), stats.dropped_faces),
+            (9, 12, 0)
+        );
+    }
+
+    #[test]
+    fn faces_of_no_area_are_counted() {
+        let (_, stats) = import(
+            "v 0 0 0\nv 1 0 0\nv 2 0 0\nv 0 1 0\nf 1 2 3\nf 1 1 1\nf 1 2 4\n",
+            &z_up(),
+        );
+        assert_eq!((stats.faces, stats.dropped_faces), (1, 2));
     }
 
     #[test]

@@ -6,12 +6,14 @@
 //! an outline, and the faces. Nothing after the loaders knows what RON or OBJ is.
 
 mod expand;
+mod file;
 mod format;
 mod load;
 mod mesh;
 mod obj;
 mod site;
 
+pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};

@@ -37,10 +37,10 @@ pub fn read_obj(path: &Path) -> Result<ObjFile> {
 
 /// Parses OBJ text; `path` names the file in messages.
 pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
-    let error = |line: usize, message: String| Error::Scene {
+    let error = |line: usize, column: usize, message: String| Error::Scene {
         path: path.to_owned(),
         line,
-        column: 1,
+        column,
         message,
     };
     let text = std::str::from_utf8(bytes).map_err(|e| {
@@ -51,12 +51,14 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
             + 1;
         error(
             line,
+            1,
             "expected OBJ text (this looks like a binary file)".to_owned(),
         )
     })?;
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     if text.trim().is_empty() {
         return Err(error(
+            1,
             1,
             "the file is empty; expected `v` and `f` lines".to_owned(),
         ));
@@ -69,46 +71,53 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
     let mut group = 0u32;
     let mut object_name = String::new();
     // Absolute indices may point forward; they are checked once every `v` is read.
-    let mut absolute_checks: Vec<(usize, i64)> = Vec::new();
+    let mut absolute_checks: Vec<(usize, usize, i64)> = Vec::new();
     for (number, line) in text.lines().enumerate() {
         let number = number + 1;
         let line = line.split('#').next().unwrap_or("");
-        let mut words = line.split_whitespace();
-        let Some(keyword) = words.next() else {
+        let mut words = words_with_columns(line);
+        let Some((_, keyword)) = words.next() else {
             continue;
         };
+        let line_end = line.chars().count() + 1;
         match keyword {
             "v" => {
                 let mut coordinates = [0.0; 3];
                 for (axis, value) in coordinates.iter_mut().enumerate() {
-                    let word = words.next().ok_or_else(|| {
+                    let (column, word) = words.next().ok_or_else(|| {
                         error(
                             number,
+                            line_end,
                             format!("expected three coordinates after `v`, found {axis}"),
                         )
                     })?;
-                    *value = parse_number(word).map_err(|m| error(number, m))?;
+                    *value = parse_number(word).map_err(|m| error(number, column, m))?;
                 }
                 obj.positions.push(Point3::from(coordinates));
             }
             "f" | "l" => {
                 let mut indices = Vec::new();
-                for word in words {
+                for (column, word) in words {
                     let index = word.split('/').next().unwrap_or("");
                     let index: i64 = index.parse().map_err(|_| {
-                        error(number, format!("expected a vertex index, found \"{word}\""))
+                        error(
+                            number,
+                            column,
+                            format!("expected a vertex index, found \"{word}\""),
+                        )
                     })?;
                     let resolved = match index {
                         0 => {
                             return Err(error(
                                 number,
+                                column,
                                 "vertex indices start at 1; found 0".to_owned(),
                             ))
                         }
                         i if i < 0 => {
                             let resolved = obj.positions.len() as i64 + i;
                             if resolved < 0 {
-                                return Err(error(number, format!(
+                                return Err(error(number, column, format!(
                                     "relative index {i} reaches before the first vertex (only {} are defined so far)",
                                     obj.positions.len()
                                 )));
@@ -116,12 +125,12 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                             resolved
                         }
                         i => {
-                            absolute_checks.push((number, i));
+                            absolute_checks.push((number, column, i));
                             i - 1
                         }
                     };
                     indices.push(u32::try_from(resolved).map_err(|_| {
-                        error(number, format!("vertex index {index} is too large"))
+                        error(number, column, format!("vertex index {index} is too large"))
                     })?);
                 }
                 let (least, what) = if keyword == "f" {
@@ -132,6 +141,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                 if indices.len() < least {
                     return Err(error(
                         number,
+                        line_end,
                         format!(
                             "{what} needs at least {least} vertices, found {}",
                             indices.len()
@@ -145,11 +155,11 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                 }
             }
             "o" => {
-                object_name = words.collect::<Vec<_>>().join(" ");
+                object_name = words.map(|(_, w)| w).collect::<Vec<_>>().join(" ");
                 group = name_group(&mut obj.groups, &mut group_index, &object_name);
             }
             "g" => {
-                let name = words.collect::<Vec<_>>().join(" ");
+                let name = words.map(|(_, w)| w).collect::<Vec<_>>().join(" ");
                 let name = if name.is_empty() {
                     object_name.clone()
                 } else {
@@ -163,14 +173,16 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
         }
     }
     let count = obj.positions.len() as i64;
-    if let Some(&(line, index)) = absolute_checks.iter().find(|&&(_, i)| i > count) {
+    if let Some(&(line, column, index)) = absolute_checks.iter().find(|&&(_, _, i)| i > count) {
         return Err(error(
             line,
+            column,
             format!("vertex index {index} is out of range: the file has {count} vertices"),
         ));
     }
     if obj.faces.is_empty() && obj.lines.is_empty() {
         return Err(error(
+            1,
             1,
             "no faces (`f`) or lines (`l`) in the file; is it an OBJ file?".to_owned(),
         ));
@@ -178,15 +190,40 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
     Ok(obj)
 }
 
+/// The largest coordinate read from a file, in its own units (a thousand kilometres in
+/// millimetres): beyond it a model is a mistake, and sums of coordinates lose all precision.
+const MAX_COORDINATE: f64 = 1e12;
+
 fn parse_number(word: &str) -> std::result::Result<f64, String> {
     let value: f64 = word
         .parse()
         .map_err(|_| format!("expected a number, found \"{word}\""))?;
-    if value.is_finite() {
-        Ok(value)
-    } else {
+    if !value.is_finite() {
         Err(format!("expected a finite number, found \"{word}\""))
+    } else if value.abs() > MAX_COORDINATE {
+        Err(format!(
+            "expected a coordinate from -1e12 to 1e12, found {word}"
+        ))
+    } else {
+        Ok(value)
     }
+}
+
+/// The whitespace-separated words of a line with their columns (counting characters from 1).
+fn words_with_columns(line: &str) -> impl Iterator<Item = (usize, &str)> {
+    let mut column = 0;
+    let mut rest = line;
+    std::iter::from_fn(move || {
+        let start = rest.find(|c: char| !c.is_whitespace())?;
+        column += rest[..start].chars().count();
+        rest = &rest[start..];
+        let end = rest.find(char::is_whitespace).unwrap_or(rest.len());
+        let word = &rest[..end];
+        let word_column = column + 1;
+        column += word.chars().count();
+        rest = &rest[end..];
+        Some((word_column, word))
+    })
 }
 
 /// The index of a group name, adding it if new (`index` maps names to indices: exports
@@ -214,6 +251,25 @@ mod tests {
             Err(Error::Scene { line, message, .. }) => (line, message),
             other => panic!("expected an error, got {other:?}"),
         }
+    }
+
+    fn error_column(text: &str) -> usize {
+        match parse(text) {
+            Err(Error::Scene { column, .. }) => column,
+            other => panic!("expected an error, got {other:?}"),
+        }
+    }
+
+    #[test]
+    fn errors_point_at_the_word() {
+        assert_eq!(error_column("v 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 0\n"), 7);
+        assert_eq!(error_column("v 0 0 0\nv 1 0 0\nv 1 1 0\nf  1 2   9\n"), 10);
+        assert_eq!(error_column("v 1.0 abc 2\n"), 7);
+        assert_eq!(error_column("v 1e13 0 0\n"), 3);
+        assert_eq!(
+            words_with_columns("  f\t1 22").collect::<Vec<_>>(),
+            vec![(3, "f"), (5, "1"), (7, "22")]
+        );
     }
 
     // Cases written from the Wavefront "Object Files (.obj)" appendix of the Advanced

@@ -36,11 +36,11 @@ pub struct RenderArgs {
     pub standpoint: Option<String>,
 
     /// Stand at this plan position instead, metres east and north.
-    #[arg(long, value_name = "X,Y", value_parser = parse_pair)]
+    #[arg(long, value_name = "X,Y", value_parser = parse_pair, allow_hyphen_values = true)]
     pub at: Option<(f64, f64)>,
 
     /// Eye height above the ground, metres [default: the standpoint's, or 1.6].
-    #[arg(long, value_name = "METRES", value_parser = parse_finite)]
+    #[arg(long, value_name = "METRES", value_parser = parse_non_negative)]
     pub eye_height: Option<f64>,
 
     /// Azimuth at the centre of the image, degrees clockwise from north.
@@ -121,6 +121,15 @@ fn parse_finite(text: &str) -> Result<f64, String> {
     }
 }
 
+fn parse_non_negative(text: &str) -> Result<f64, String> {
+    let value = parse_finite(text)?;
+    if value >= 0.0 {
+        Ok(value)
+    } else {
+        Err(format!("expected zero or more, found {value}"))
+    }
+}
+
 fn parse_crease(text: &str) -> Result<f64, String> {
     let value = parse_finite(text)?;
     if (0.0..=180.0).contains(&value) {
@@ -182,7 +191,7 @@ mod tests {
             "-s",
             "gate",
             "--at",
-            "3,-4.5",
+            "-3,-4.5",
             "--eye-height",
             "1.2",
             "--heading",
@@ -204,7 +213,7 @@ mod tests {
         .unwrap();
         assert_eq!(r.output.as_deref(), Some(std::path::Path::new("out.png")));
         assert_eq!(r.standpoint.as_deref(), Some("gate"));
-        assert_eq!(r.at, Some((3.0, -4.5)));
+        assert_eq!(r.at, Some((-3.0, -4.5)));
         assert_eq!(
             (r.eye_height, r.heading, r.pitch, r.roll),
             (Some(1.2), Some(-30.0), Some(5.0), Some(-2.0))
@@ -228,6 +237,7 @@ mod tests {
             &["--up", "x"],
             &["--unit", "furlong"],
             &["--crease", "200"],
+            &["--eye-height=-1"],
         ] {
             let error = render(args).unwrap_err();
             assert_eq!(error.exit_code(), 2, "{args:?}");

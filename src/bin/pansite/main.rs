@@ -150,7 +150,15 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
             crease_deg: args.crease,
             ..MeshPlacement::default()
         };
-        return load_obj(path, &placement).map(|(site, _)| site);
+        let (site, stats) = load_obj(path, &placement)?;
+        if stats.dropped_faces > 0 && !args.quiet {
+            eprintln!(
+                "pansite: warning: {}: left out {} faces of no area (repeated or collinear vertices)",
+                path.display(),
+                stats.dropped_faces
+            );
+        }
+        return Ok(site);
     }
     load_scene(path)
 }
