@@ -320,15 +320,17 @@ impl Flattener {
         };
         // A great circle whose plane is steeper than NEAR_POLE from the horizontal never comes
         // that near either pole: |n . z| >= sin(NEAR_POLE) |n| for its normal n.
-        let normal = curve.u.cross(&curve.v);
         // Or a short great arc whose ends are both far from the poles: no point of it is more
-        // than its length from its start.
-        let short_and_level = t1 - t0 <= SHORT_ARC
-            && start.z.abs() <= COS_NEAR_POLE_AND_SHORT_ARC * start.norm()
-            && end.z.abs() <= COS_NEAR_POLE_AND_SHORT_ARC * end.norm();
-        let far_from_poles = curve.is_great_circle()
-            && (short_and_level
-                || normal.z * normal.z >= SIN_NEAR_POLE * SIN_NEAR_POLE * normal.norm_squared());
+        // than its length from its start. (Squared: |z| <= c |p| as z^2 <= c^2 |p|^2.)
+        let level =
+            |p: &Vector3<f64>| p.z * p.z <= COS_NEAR_POLE_AND_SHORT_ARC.powi(2) * p.norm_squared();
+        let short_and_level = t1 - t0 <= SHORT_ARC && level(start) && level(end);
+        let far_from_poles = curve.is_great_circle() && {
+            short_and_level || {
+                let normal = curve.u.cross(&curve.v);
+                normal.z * normal.z >= SIN_NEAR_POLE * SIN_NEAR_POLE * normal.norm_squared()
+            }
+        };
         for zenith in [true, false].into_iter().filter(|_| !far_from_poles) {
             for (t, distance) in curve.pole_approaches(zenith, NEAR_POLE) {
                 if distance < self.pole_band() {
