@@ -232,7 +232,7 @@ fn flatten_rate(site: &Site) -> f64 {
         DEFAULT_TOLERANCE_PX,
     );
     let started = Instant::now();
-    let mut lines = PolylineSet::new();
+    let mut lines = PolylineSet::with_capacity(site.edges.len(), 3 * site.edges.len());
     for edge in &site.edges {
         if let Ok(curve) = view.sphere_curve(&edge.curve) {
             flattener.flatten(&curve, &mut lines);

@@ -127,7 +127,9 @@ fn flatten_edges(
                 let position = match lines.iter().rposition(|(s, _)| *s == slot) {
                     Some(position) => position,
                     None => {
-                        lines.push((slot, PolylineSet::new()));
+                        // Most edges draw as one polyline of two or three vertices.
+                        let room = edges.len() - offset;
+                        lines.push((slot, PolylineSet::with_capacity(room, 3 * room)));
                         lines.len() - 1
                     }
                 };

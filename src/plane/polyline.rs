@@ -14,6 +14,14 @@ impl PolylineSet {
         PolylineSet::default()
     }
 
+    /// An empty set with room for `lines` polylines of `points` vertices in all.
+    pub fn with_capacity(lines: usize, points: usize) -> PolylineSet {
+        PolylineSet {
+            points: Vec::with_capacity(points),
+            starts: Vec::with_capacity(lines),
+        }
+    }
+
     /// Starts a new polyline at `p`.
     pub fn move_to(&mut self, p: ImagePoint) {
         self.starts.push(self.points.len());
