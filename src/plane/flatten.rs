@@ -20,14 +20,25 @@
 //!    of the image point with respect to the parameter, sampled at both ends and the middle,
 //!    and `n` the chord's normal. (ii) is the standard remainder bound of linear
 //!    interpolation, `|f(t) - chord| <= max|f''| (t - a)(b - t) / 2`, applied to the
-//!    component across the chord. A chord whose error exceeds the tolerance is split into
-//!    `ceil(sqrt(error / tolerance))` equal parts (the error falls with the square of the
+//!    component across the chord. Three samples can miss a little of a fast-changing second
+//!    derivative, so the bound is widened by the spread of the sampled values; where the image
+//!    runs back against the chord (an ellipse seen edge-on) the whole second derivative is
+//!    bounded, not just its part across. A chord whose error exceeds the tolerance is split
+//!    into `ceil(sqrt(error / tolerance))` equal parts (the error falls with the square of the
 //!    span), which keeps the vertex count near the minimum for the tolerance.
+//! 3. *Guard* what the estimate cannot see: an ellipse's chord is also measured at its
+//!    quarter points; near a pole (the top and bottom 5% of rows) the estimate must stay
+//!    within 80% of the tolerance; no chord is longer than an eighth of the image height or
+//!    wider than a quarter of its width. Short great-arc spans away from the poles are
+//!    accepted on their end samples alone (most edges of a site: two samples, no middle).
+//!    Property tests over 20,000 random curves biased to the seam and the poles hold every
+//!    point of the true image within the tolerance of the drawing.
 //!
-//! Within a piece the azimuth never crosses the seam, so every sample is unwrapped against the
-//! azimuth at the piece's middle; a piece ending on the seam ends exactly on the left or
-//! right border, and the two pieces on either side of a seam crossing share the same `t` and
-//! so the same row.
+//! A piece never crosses the seam (it is cut there), so the azimuths of its samples are
+//! continuous as `atan2` gives them; only a piece touching the seam is unwrapped against the
+//! azimuth at its middle, so a piece ending on the seam ends exactly on the left or right
+//! border, and the two pieces on either side of a seam crossing share the same `t` and so
+//! the same row.
 
 use super::{Equirect, ImagePoint, PolylineSet};
 use crate::sphere::SphereCurve;
