@@ -30,6 +30,7 @@ pub fn grid_and_horizon(
             v: up,
             t0: -FRAC_PI_2,
             t1: FRAC_PI_2,
+            exact_end: None,
         };
         flattener.flatten(&meridian, &mut grid);
     }

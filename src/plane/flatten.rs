@@ -87,6 +87,8 @@ pub struct Flattener {
     cuts: Vec<(f64, Cut)>,
     /// `tan^2` of the pole band's angle, for [`Flattener::is_in_pole_band`].
     pole_band_tan_squared: f64,
+    /// The last position whose angles were computed, and its angles (see `angles`).
+    last_angles: std::cell::Cell<Option<([u64; 3], f64, f64)>>,
 }
 
 /// Flattens one curve; a convenience over [`Flattener`].
@@ -144,6 +146,7 @@ impl Flattener {
             tolerance: tolerance_px,
             cuts: Vec::with_capacity(16),
             pole_band_tan_squared: (0.5 * tolerance_px / map.y_scale()).tan().powi(2),
+            last_angles: std::cell::Cell::new(None),
         }
     }
 
@@ -426,13 +429,16 @@ impl Flattener {
         let curve = piece.curve;
         // Every great arc starts at t = 0: spare the library call there.
         let (sin, cos) = if t == 0.0 { (0.0, 1.0) } else { t.sin_cos() };
-        let p = curve.centre + curve.u * cos + curve.v * sin;
+        let p = match curve.exact_end {
+            Some(end) if t == curve.t1 => end,
+            _ => curve.centre + curve.u * cos + curve.v * sin,
+        };
         let d1 = curve.v * cos - curve.u * sin;
         let d2 = -(curve.u * cos + curve.v * sin);
         let rho2 = p.x * p.x + p.y * p.y;
         let rho = rho2.sqrt();
-        let azimuth = unwrap(p.x.atan2(p.y), piece.reference);
-        let elevation = p.z.atan2(rho);
+        let (raw_azimuth, elevation) = self.angles(&p, rho);
+        let azimuth = unwrap(raw_azimuth, piece.reference);
         let at = self.map.to_image(azimuth, elevation);
         let derivatives = (rho2 > 1e-300 * p.norm_squared())
             .then(|| self.image_derivatives(&p, &d1, &d2, rho))
@@ -443,6 +449,21 @@ impl Flattener {
             at,
             derivatives,
         }
+    }
+
+    /// The azimuth (`atan2`'s own range) and elevation of a position. Consecutive edges of a
+    /// polyline or a block share their ends exactly, so the angles of the last end met are
+    /// kept and reused when the next edge starts there: a third fewer `atan2` on a wireframe.
+    fn angles(&self, p: &Vector3<f64>, rho: f64) -> (f64, f64) {
+        let key = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+        if let Some((last, azimuth, elevation)) = self.last_angles.get() {
+            if last == key {
+                return (azimuth, elevation);
+            }
+        }
+        let (azimuth, elevation) = (p.x.atan2(p.y), p.z.atan2(rho));
+        self.last_angles.set(Some((key, azimuth, elevation)));
+        (azimuth, elevation)
     }
 
     /// `d/dt` and `d2/dt2` of the image point of `P(t)`, from `P`, `P'` and `P''`, in pixels.

@@ -102,19 +102,16 @@ fn add_block(site: &mut Site, id: ItemId, block: &BlockSpec) {
     let plan = block_plan(block);
     let bottom = block.base.0;
     let top = bottom + block.height.0;
+    let corner = |i: usize, z: f64| Point3::new(plan[i % 4].x, plan[i % 4].y, z);
+    // Each ring of edges end to end, so consecutive edges share their ends (the projector
+    // reuses the angles of a shared end), then the uprights.
+    for z in [bottom, top] {
+        for i in 0..4 {
+            site.add_segment(id, corner(i, z), corner(i + 1, z));
+        }
+    }
     for i in 0..4 {
-        let (a, b) = (plan[i], plan[(i + 1) % 4]);
-        site.add_segment(
-            id,
-            Point3::new(a.x, a.y, bottom),
-            Point3::new(b.x, b.y, bottom),
-        );
-        site.add_segment(id, Point3::new(a.x, a.y, top), Point3::new(b.x, b.y, top));
-        site.add_segment(
-            id,
-            Point3::new(a.x, a.y, bottom),
-            Point3::new(a.x, a.y, top),
-        );
+        site.add_segment(id, corner(i, bottom), corner(i, top));
     }
 }
 

@@ -25,6 +25,9 @@ pub struct SphereCurve {
     pub v: Vector3<f64>,
     pub t0: f64,
     pub t1: f64,
+    /// `P(t1)` where it is known exactly (a great arc's end direction, as given), which the
+    /// trigonometric form only reproduces to the last bit or two; `None` otherwise.
+    pub exact_end: Option<Vector3<f64>>,
 }
 
 /// The roots of `m . P(t) = 0` strictly inside `(t0, t1)`, ascending. There are at most two
@@ -78,6 +81,7 @@ impl SphereCurve {
             v,
             t0: 0.0,
             t1: angle,
+            exact_end: Some(b),
         })
     }
 
@@ -98,6 +102,7 @@ impl SphereCurve {
                 v,
                 t0: start,
                 t1: start + sweep,
+                exact_end: None,
             }
         } else {
             // Run the same points the other way round so that t0 < t1 always holds:
@@ -108,6 +113,7 @@ impl SphereCurve {
                 v: -v,
                 t0: -start,
                 t1: -start - sweep,
+                exact_end: None,
             }
         }
     }
