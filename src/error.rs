@@ -29,7 +29,8 @@ pub enum Error {
     },
 
     /// A model named in a scene could not be read.
-    #[error("{}: in the model \"{item}\": {source}", scene.display())]
+    // The cause follows in the chain the command prints (`{:#}`), so it is not repeated here.
+    #[error("{}: in the model \"{item}\"", scene.display())]
     InModel {
         scene: PathBuf,
         item: String,

@@ -462,6 +462,17 @@ fn bad_obj_files_name_the_line() {
         &["render", "missing.obj", "--at", "0,0"],
         &["missing.obj"],
     );
+    // A scene naming a bad model: both places are named, the model's to the column.
+    dir.write("bad_model.obj", "v 0 0 0\nv 1 0 0\nv 1 1 0\nf 1 2 9\n");
+    let scene = dir.write(
+        "with_bad.ron",
+        "Scene(items: [Model(file: \"bad_model.obj\")])",
+    );
+    assert_refused(
+        &dir,
+        &["render", scene.to_str().unwrap(), "--at", "0,0"],
+        &["with_bad.ron: in the model", "bad_model.obj:4:7:"],
+    );
     // A scene naming a model that is not there.
     let scene = dir.write("s.ron", "Scene(items: [Model(file: \"nowhere.obj\")])");
     assert_refused(
