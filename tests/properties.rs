@@ -7,7 +7,7 @@ use nalgebra::Vector3;
 use pansite::plane::{flatten, Equirect, ImagePoint, PolylineSet};
 use pansite::sphere::{azimuth_elevation, direction_from_azimuth_elevation, SphereCurve};
 use proptest::prelude::*;
-use std::f64::consts::{FRAC_PI_2, PI};
+use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 mod common;
 use common::distance_to_polylines;
@@ -57,7 +57,7 @@ fn segment() -> impl Strategy<Value = (Vector3<f64>, Vector3<f64>)> {
 }
 
 fn ellipse() -> impl Strategy<Value = SphereCurve> {
-    (point(), point(), point(), -PI..PI, 0.1..6.28f64).prop_map(|(c, u, v, start, sweep)| {
+    (point(), point(), point(), -PI..PI, 0.1..TAU).prop_map(|(c, u, v, start, sweep)| {
         SphereCurve::ellipse_arc(c, u * 0.3, v * 0.3, start, sweep)
     })
 }

@@ -250,8 +250,8 @@ impl SegmentIndex {
         let bucket = |x: f64| ((x / Self::BUCKET_PX).floor().max(0.0) as usize).min(count - 1);
         for (i, (a, b)) in segments.iter().enumerate() {
             let (lo, hi) = (a.x.min(b.x) - Self::MARGIN, a.x.max(b.x) + Self::MARGIN);
-            for k in bucket(lo)..=bucket(hi) {
-                buckets[k].push(i);
+            for list in &mut buckets[bucket(lo)..=bucket(hi)] {
+                list.push(i);
             }
         }
         SegmentIndex { segments, buckets }

@@ -56,37 +56,36 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
     let next_run = std::sync::atomic::AtomicUsize::new(0);
     let (names, slot_of_item) = site.layer_slots();
     let (names, slot_of_item) = (&names, &slot_of_item);
-    let mut parts: Vec<(usize, Vec<(u32, PolylineSet)>, Vec<SkippedEdge>)> =
-        std::thread::scope(|scope| {
-            let handles: Vec<_> = (0..threads)
-                .map(|_| {
-                    let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
-                    scope.spawn(move || {
-                        let mut done = Vec::new();
-                        loop {
-                            let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                            let Some(edges) = runs.get(index) else { break };
-                            let (lines, skipped) = flatten_edges(
-                                edges,
-                                first_index(index),
-                                view,
-                                &mut flattener,
-                                slot_of_item,
-                            );
-                            done.push((index, lines, skipped));
-                        }
-                        done
-                    })
+    let mut parts: Vec<(usize, RunLines, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..threads)
+            .map(|_| {
+                let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
+                scope.spawn(move || {
+                    let mut done = Vec::new();
+                    loop {
+                        let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                        let Some(edges) = runs.get(index) else { break };
+                        let (lines, skipped) = flatten_edges(
+                            edges,
+                            first_index(index),
+                            view,
+                            &mut flattener,
+                            slot_of_item,
+                        );
+                        done.push((index, lines, skipped));
+                    }
+                    done
                 })
-                .collect();
-            handles
-                .into_iter()
-                .flat_map(|h| {
-                    h.join()
-                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
-                })
-                .collect()
-        });
+            })
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| {
+                h.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
+    });
     parts.sort_by_key(|(index, _, _)| *index);
     let mut layers: Vec<(Option<String>, PolylineSet)> = names
         .iter()
@@ -110,13 +109,16 @@ pub struct Wireframe {
     pub skipped: Vec<SkippedEdge>,
 }
 
+/// One run's polylines, by layer slot.
+type RunLines = Vec<(u32, PolylineSet)>;
+
 fn flatten_edges(
     edges: &[Edge],
     first_index: usize,
     view: &ViewFrame,
     flattener: &mut Flattener,
     slot_of_item: &[u32],
-) -> (Vec<(u32, PolylineSet)>, Vec<SkippedEdge>) {
+) -> (RunLines, Vec<SkippedEdge>) {
     // Only the layers this run uses (a model may have a layer for each of its parts).
     let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();

@@ -32,8 +32,7 @@ pub fn encode_grey_png(canvas: &GreyCanvas, out: impl Write) -> Result<()> {
 pub fn rasterize_grey_png(drawing: &Drawing, out: impl Write) -> Result<()> {
     let mut writer = grey_encoder(out, drawing.width, drawing.height).write_header()?;
     let mut stream = writer.stream_writer()?;
-    rasterize_in_bands(drawing, |rows| stream.write_all(rows))
-        .map_err(|e| png::EncodingError::from(e))?;
+    rasterize_in_bands(drawing, |rows| stream.write_all(rows)).map_err(png::EncodingError::from)?;
     stream.finish()?;
     writer.finish()?;
     Ok(())

@@ -321,7 +321,7 @@ fn representative(weld: &[u32], positions: &[Point3<f64>], count: usize) -> Vec<
 /// The unit normal of a polygon by Newell's method, `None` for a polygon of no area (its
 /// doubled area below a billionth of its longest edge squared: a sliver or a line).
 fn newell_normal(corners: &[u32], points: &[Point3<f64>]) -> Option<Vector3<f64>> {
-    let mut n = Vector3::zeros();
+    let mut n: Vector3<f64> = Vector3::zeros();
     let mut longest_sq = 0.0f64;
     for k in 0..corners.len() {
         let (a, b) = (
@@ -333,7 +333,8 @@ fn newell_normal(corners: &[u32], points: &[Point3<f64>]) -> Option<Vector3<f64>
         n.z += (a.x - b.x) * (a.y + b.y);
         longest_sq = longest_sq.max((b - a).norm_squared());
     }
-    if !(n.norm() > 1e-9 * longest_sq) {
+    let doubled_area = n.norm();
+    if doubled_area.is_nan() || doubled_area <= 1e-9 * longest_sq {
         return None;
     }
     n.try_normalize(0.0)

@@ -69,7 +69,8 @@ impl SphereCurve {
     pub fn great_arc_between_units(a: Vector3<f64>, b: Vector3<f64>) -> Option<SphereCurve> {
         let normal = a.cross(&b);
         let sin_angle = normal.norm();
-        if !(sin_angle >= 1e-12) {
+        // NaN (from non-finite input) must be refused too, so not `sin_angle < 1e-12` alone.
+        if sin_angle.is_nan() || sin_angle < 1e-12 {
             return None;
         }
         let angle = sin_angle.atan2(a.dot(&b));
