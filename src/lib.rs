@@ -2,9 +2,8 @@
 //!
 //! Exact equirectangular wireframe underlays for people who draw 360-degree spherical
 //! perspectives by hand. A site (blocks, polylines, Wavefront OBJ models) and a standpoint go
-//! in; out comes a
-//! 360 x 180 degree image in which every straight edge is drawn as the great-circle arc it
-//! really makes on the viewing sphere, ready to print and trace over.
+//! in; out comes a 360 x 180 degree image in which every straight edge is drawn as the
+//! great-circle arc it really makes on the viewing sphere, ready to print and trace over.
 //!
 //! ```
 //! use pansite::render::{draw, RenderSettings};
