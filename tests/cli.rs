@@ -67,6 +67,13 @@ fn pansite(dir: &Scratch, args: &[&str]) -> Output {
         .unwrap()
 }
 
+/// Runs the command, which must succeed (exit 0, or its error is shown).
+fn succeeds(dir: &Scratch, args: &[&str]) -> Output {
+    let out = pansite(dir, args);
+    assert_eq!(out.status.code(), Some(0), "{args:?}: {}", stderr(&out));
+    out
+}
+
 fn stderr(output: &Output) -> String {
     String::from_utf8_lossy(&output.stderr).into_owned()
 }
@@ -81,11 +88,10 @@ fn png_size(bytes: &[u8]) -> (u32, u32, png::ColorType) {
 #[test]
 fn renders_the_demo_into_renders_by_default() {
     let dir = Scratch::new("default");
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &["render", demo().to_str().unwrap(), "--size", "800x400"],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     assert_eq!(dir.files(), vec!["renders/wexcombe-square-fountain.png"]);
     let bytes = std::fs::read(dir.path("renders/wexcombe-square-fountain.png")).unwrap();
     assert_eq!(png_size(&bytes), (800, 400, png::ColorType::Grayscale));
@@ -99,7 +105,7 @@ fn renders_the_demo_into_renders_by_default() {
 #[test]
 fn standpoint_by_name_and_output_path() {
     let dir = Scratch::new("named");
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -113,7 +119,6 @@ fn standpoint_by_name_and_output_path() {
             "-q",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     assert!(
         out.stderr.is_empty(),
         "--quiet prints nothing: {}",
@@ -125,7 +130,7 @@ fn standpoint_by_name_and_output_path() {
 #[test]
 fn writes_png_to_standard_output() {
     let dir = Scratch::new("stdout");
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -137,7 +142,6 @@ fn writes_png_to_standard_output() {
             "-q",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     assert_eq!(png_size(&out.stdout), (200, 100, png::ColorType::Grayscale));
     assert!(dir.files().is_empty());
 }
@@ -149,7 +153,7 @@ fn bare_render_is_white_where_nothing_is_drawn() {
         "one.ron",
         "Scene(items: [Polyline(points: [(-1, 10, 1.6), (1, 10, 1.6)])])",
     );
-    let out = pansite(
+    succeeds(
         &dir,
         &[
             "render",
@@ -163,7 +167,6 @@ fn bare_render_is_white_where_nothing_is_drawn() {
             "360x180",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let decoder = png::Decoder::new(std::io::BufReader::new(
         std::fs::File::open(dir.path("bare.png")).unwrap(),
     ));
@@ -187,7 +190,7 @@ fn bare_render_is_white_where_nothing_is_drawn() {
 #[test]
 fn overrides_and_timings() {
     let dir = Scratch::new("overrides");
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -213,7 +216,6 @@ fn overrides_and_timings() {
             "400x200",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let text = stderr(&out);
     for stage in ["load", "flatten", "raster", "encode"] {
         assert!(text.contains(stage), "{text}");
@@ -230,7 +232,7 @@ fn skipped_edges_are_named_and_counted() {
          Polyline(label: \"rail\", points: [(-3, 5, 1), (3, 5, 1)]),\n\
          Polyline(label: \"sight line\", points: [(0, -5, 1.6), (0, 5, 1.6)])])",
     );
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -241,7 +243,6 @@ fn skipped_edges_are_named_and_counted() {
             "200x100",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let text = stderr(&out);
     assert!(
         text.contains("polyline \"sight line\" (item 2)") && text.contains("through the eye"),
@@ -362,7 +363,7 @@ f 1 2 3\nf 1 3 4\nf 5 7 6\nf 5 8 7\nf 1 6 2\nf 1 5 6\nf 2 7 3\nf 2 6 7\nf 3 8 4\
 fn renders_an_obj_model_from_a_standpoint_given_on_the_command_line() {
     let dir = Scratch::new("obj");
     let model = dir.write("cube.obj", CUBE_OBJ);
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -379,7 +380,6 @@ fn renders_an_obj_model_from_a_standpoint_given_on_the_command_line() {
             "400x200",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     assert!(stderr(&out).contains("12 edges"), "{}", stderr(&out));
     // Without a standpoint it says how to give one.
     let out = pansite(
@@ -408,7 +408,7 @@ fn a_scene_places_a_model_beside_its_own_items() {
          Model(label: \"kiosk\", file: \"models/cube.obj\", at: (2, 3, 0), turn: 30, scale: 2.5, unit: Metre),\n\
          Polyline(points: [(-5, 0, 0), (5, 0, 0)]),\n])",
     );
-    let out = pansite(
+    let out = succeeds(
         &dir,
         &[
             "render",
@@ -419,7 +419,6 @@ fn a_scene_places_a_model_beside_its_own_items() {
             "400x200",
         ],
     );
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     assert!(stderr(&out).contains("13 edges"), "{}", stderr(&out));
 }
 

@@ -173,7 +173,7 @@ struct StrokeRef {
 }
 
 /// For each band, the segments that reach into it (a compressed row list: band `i` owns
-/// `entries[starts[i]..starts[i + 1]]`). Eight bytes a segment instead of the segment's
+/// `entries[starts[i]..starts[i + 1]]`). Twelve bytes a segment instead of the segment's
 /// derived values, which each band recomputes as it draws.
 struct StrokesByBand {
     starts: Vec<usize>,

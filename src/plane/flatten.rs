@@ -79,7 +79,8 @@ const MAX_PARTS: usize = 16;
 const MAX_SAMPLES_PER_CURVE: usize = 1 << 20;
 
 /// Flattens curves for one image at one tolerance. Holds a scratch list reused from curve
-/// to curve, so flattening allocates nothing but the output; give each thread its own.
+/// to curve, so flattening allocates nothing but the output, and the angles of the last end
+/// it met (see `angles`); give each thread its own.
 #[derive(Clone, Debug)]
 pub struct Flattener {
     map: Equirect,
@@ -148,10 +149,6 @@ impl Flattener {
             pole_band_tan_squared: (0.5 * tolerance_px / map.y_scale()).tan().powi(2),
             last_angles: std::cell::Cell::new(None),
         }
-    }
-
-    pub fn tolerance(&self) -> f64 {
-        self.tolerance
     }
 
     /// Appends the image of `curve` to `out`: one polyline for each stretch between the

@@ -134,12 +134,6 @@ impl SphereCurve {
         self.v * c - self.u * s
     }
 
-    /// `d2P/dt2`.
-    pub fn acceleration(&self, t: f64) -> Vector3<f64> {
-        let (s, c) = t.sin_cos();
-        -(self.u * c + self.v * s)
-    }
-
     /// The coefficients `(C, A, B)` of `m . P(t) = C + A cos t + B sin t`.
     fn coefficients(&self, m: &Vector3<f64>) -> (f64, f64, f64) {
         (m.dot(&self.centre), m.dot(&self.u), m.dot(&self.v))
