@@ -1,7 +1,7 @@
 //! The site's edges as seen from one standpoint.
 
 use crate::plane::{Flattener, PolylineSet};
-use crate::scene::{Edge, ItemId, Site, SiteCurve};
+use crate::scene::{Edge, ItemId, Site};
 use crate::sphere::{Degeneracy, ViewFrame};
 
 /// An edge left out because it has no drawable image from the standpoint.
@@ -26,18 +26,7 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
     // The smooth mesh edges on the outline from this eye join the fixed edges; they are
     // numbered after them in the list of skipped edges.
     let eye = view.eye();
-    let outlines: Vec<Edge> = site
-        .silhouette_candidates
-        .iter()
-        .filter(|candidate| candidate.is_outline_from(&eye))
-        .map(|c| Edge {
-            curve: SiteCurve::Segment {
-                start: c.start,
-                end: c.end,
-            },
-            item: c.item,
-        })
-        .collect();
+    let outlines = site.outline_edges_from(&eye);
     let runs: Vec<&[Edge]> = site
         .edges
         .chunks(EDGES_PER_RUN)

@@ -1,184 +1,217 @@
-//! Turning the items of a scene file into edges.
+//! Turning the items of a scene file into the site: walking groups and repeats, placing
+//! each item, and naming the item (by its path in the file) when one is wrong.
 
-use super::format::{
-    Anchor, BlockSpec, ItemSpec, ModelSpec, PolylineSpec, SceneFile, StandpointSpec,
-};
+use super::build::{ItemBuilder, Placement};
+use super::format::{spot, ItemSpec, Posture, SceneFile, StandpointSpec};
+use super::items::*;
 use super::obj::read_obj;
-use super::{add_mesh, ItemId, MeshPlacement, Site, Standpoint};
-use crate::error::{Error, Result};
-use nalgebra::{Point3, Vector2, Vector3};
+use super::{add_mesh, MeshPlacement, Site, Standpoint};
+use crate::error::Error;
 use std::path::Path;
+
+/// Eye heights of the postures, metres: standing (common practice; see
+/// [`DEFAULT_EYE_HEIGHT`](super::DEFAULT_EYE_HEIGHT)) and seated on a low stool or bench
+/// (about 1.2 m, common practice).
+pub const SEATED_EYE_HEIGHT: f64 = 1.2;
+
+/// The most items a scene may expand to, copies of repeats included: a town of houses
+/// with every window, far beyond a drawing's needs, and small enough to stay interactive.
+pub const MAX_ITEMS: usize = 1_000_000;
+
+/// What went wrong while expanding, and where.
+#[derive(Debug)]
+pub enum ExpandError {
+    /// An item is wrong; `path` leads to it through the `items` lists (from 0).
+    Item { path: Vec<usize>, message: String },
+    /// A scene-level field is wrong.
+    Field {
+        field: &'static str,
+        message: String,
+    },
+    /// A model file could not be read.
+    Model { label: String, source: Error },
+}
 
 /// The resolved site of a parsed scene file read from `scene_path` (models are found
 /// relative to its folder).
-pub fn expand(file: SceneFile, fallback_name: &str, scene_path: &Path) -> Result<Site> {
+pub fn expand(
+    file: SceneFile,
+    fallback_name: &str,
+    scene_path: &Path,
+) -> Result<Site, ExpandError> {
+    let unit = file.unit.metres();
     let mut site = Site {
         name: file.name.unwrap_or_else(|| fallback_name.to_owned()),
         ..Site::default()
     };
-    site.standpoints = file.standpoints.into_iter().map(standpoint).collect();
-    for item in file.items {
-        match item {
-            ItemSpec::Block(block) => {
-                let id = site.add_item("block", block.label.clone());
-                add_block(&mut site, id, &block);
-            }
-            ItemSpec::Polyline(polyline) => {
-                let id = site.add_item("polyline", polyline.label.clone());
-                add_polyline(&mut site, id, &polyline);
-            }
-            ItemSpec::Model(model) => {
-                add_model(&mut site, &model, scene_path).map_err(|source| Error::InModel {
-                    scene: scene_path.to_owned(),
-                    item: model.label.clone().unwrap_or_else(|| model.file.0.clone()),
-                    source: Box::new(source),
-                })?
+    site.standpoints = file
+        .standpoints
+        .iter()
+        .map(|s| standpoint(s, unit))
+        .collect();
+    if let Some(name) = &file.default_standpoint {
+        match site.standpoints.iter().position(|s| &s.name == name) {
+            Some(index) => site.default_standpoint = index,
+            None => {
+                return Err(ExpandError::Field {
+                    field: "default_standpoint",
+                    message: format!("there is no standpoint named \"{name}\""),
+                })
             }
         }
     }
+    let mut walker = Walker {
+        site: &mut site,
+        scene_path,
+        path: Vec::new(),
+    };
+    walker.items(&file.items, Placement::in_unit(unit), None, None)?;
     Ok(site)
 }
 
-fn add_model(site: &mut Site, model: &ModelSpec, scene_path: &Path) -> Result<()> {
-    let path = scene_path
-        .parent()
-        .unwrap_or(Path::new(""))
-        .join(&model.file.0);
-    let obj = read_obj(&path)?;
-    let placement = MeshPlacement {
-        up: model.up,
-        unit: model.unit,
-        crease_deg: model.crease.0,
-        scale: model.scale.0,
-        turn_deg: model.turn.0,
-        offset: Vector3::new(model.at.0 .0, model.at.1 .0, model.at.2 .0),
-    };
-    let name = model.label.clone().unwrap_or_else(|| model.file.0.clone());
-    add_mesh(site, &obj, &placement, &name);
-    Ok(())
+struct Walker<'a> {
+    site: &'a mut Site,
+    scene_path: &'a Path,
+    /// Where the walk is in the nested `items` lists.
+    path: Vec<usize>,
 }
 
-fn standpoint(spec: StandpointSpec) -> Standpoint {
+impl Walker<'_> {
+    fn items(
+        &mut self,
+        items: &[ItemSpec],
+        place: Placement,
+        layer: Option<&str>,
+        copy: Option<u32>,
+    ) -> Result<(), ExpandError> {
+        for (index, item) in items.iter().enumerate() {
+            self.path.push(index);
+            self.item(item, place, layer, copy)?;
+            self.path.pop();
+        }
+        Ok(())
+    }
+
+    fn fail(&self, message: String) -> ExpandError {
+        ExpandError::Item {
+            path: self.path.clone(),
+            message,
+        }
+    }
+
+    fn item(
+        &mut self,
+        item: &ItemSpec,
+        place: Placement,
+        outer_layer: Option<&str>,
+        copy: Option<u32>,
+    ) -> Result<(), ExpandError> {
+        if self.site.items.len() >= MAX_ITEMS {
+            return Err(self.fail(format!(
+                "the scene expands to more than {MAX_ITEMS} items (check the repeat counts)"
+            )));
+        }
+        let layer = item.layer().or(outer_layer);
+        match item {
+            ItemSpec::Group(group) => {
+                let inner = place.then_move(spot(&group.at).coords, group.turn.0.to_radians());
+                return self.items(&group.items, inner, layer, copy);
+            }
+            ItemSpec::Repeat(repeat) => {
+                let step = spot(&repeat.step).coords;
+                for k in 0..repeat.count.0 {
+                    let inner =
+                        place.then_move(step * k as f64, (repeat.turn.0 * k as f64).to_radians());
+                    self.items(&repeat.items, inner, layer, Some(k + 1))?;
+                }
+                return Ok(());
+            }
+            ItemSpec::Model(model) => return self.model(model, place, layer),
+            _ => {}
+        }
+        let label = item.label().map(|label| match copy {
+            Some(k) => format!("{label} {k}"),
+            None => label.to_owned(),
+        });
+        let id = self
+            .site
+            .add_item_on_layer(item.kind(), label, layer.map(str::to_owned));
+        let mut b = ItemBuilder::new(self.site, id, place);
+        let built = match item {
+            ItemSpec::Block(spec) => build_block(&mut b, spec),
+            ItemSpec::Footprint(spec) => build_footprint(&mut b, spec),
+            ItemSpec::Road(spec) => build_road(&mut b, spec),
+            ItemSpec::Arch(spec) | ItemSpec::Arcade(spec) => build_arcade(&mut b, spec),
+            ItemSpec::Column(spec) => build_column(&mut b, spec),
+            ItemSpec::Tower(spec) => build_tower(&mut b, spec),
+            ItemSpec::Dome(spec) => build_dome(&mut b, spec),
+            ItemSpec::Stairs(spec) => build_stairs(&mut b, spec),
+            ItemSpec::Tiles(spec) => build_tiles(&mut b, spec),
+            ItemSpec::Vault(spec) => build_vault(&mut b, spec),
+            ItemSpec::Room(spec) => build_room(&mut b, spec),
+            ItemSpec::Polyline(spec) => {
+                build_polyline(&mut b, spec);
+                Ok(())
+            }
+            ItemSpec::Line(spec) => build_line(&mut b, spec),
+            ItemSpec::Point(spec) => {
+                build_point(&mut b, spec);
+                Ok(())
+            }
+            ItemSpec::Group(_) | ItemSpec::Repeat(_) | ItemSpec::Model(_) => Ok(()),
+        };
+        built.map_err(|message| self.fail(message))
+    }
+
+    fn model(
+        &mut self,
+        model: &ModelSpec,
+        place: Placement,
+        layer: Option<&str>,
+    ) -> Result<(), ExpandError> {
+        let label = model.label.clone().unwrap_or_else(|| model.file.0.clone());
+        let path = self
+            .scene_path
+            .parent()
+            .unwrap_or(Path::new(""))
+            .join(&model.file.0);
+        let obj = read_obj(&path).map_err(|source| ExpandError::Model {
+            label: label.clone(),
+            source,
+        })?;
+        let placement = MeshPlacement {
+            up: model.up,
+            unit: model.unit,
+            crease_deg: model.crease.0,
+            scale: model.scale.0,
+            turn_deg: (place.turn.to_degrees()) + model.turn.0,
+            offset: place.point(&spot(&model.at)).coords,
+        };
+        let first = self.site.items.len();
+        add_mesh(self.site, &obj, &placement, &label);
+        if let Some(layer) = layer {
+            for item in &mut self.site.items[first..] {
+                item.layer.get_or_insert_with(|| layer.to_owned());
+            }
+        }
+        Ok(())
+    }
+}
+
+fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {
+    let eye_height = match (spec.eye_height, spec.posture) {
+        (Some(height), _) => height.0 * unit,
+        (None, Posture::Standing) => super::DEFAULT_EYE_HEIGHT,
+        (None, Posture::Seated) => SEATED_EYE_HEIGHT,
+    };
     Standpoint {
-        name: spec.name,
-        x: spec.x.0,
-        y: spec.y.0,
-        ground: spec.ground.0,
-        eye_height: spec.eye_height.0,
+        name: spec.name.clone(),
+        x: spec.x.0 * unit,
+        y: spec.y.0 * unit,
+        ground: spec.ground.0 * unit,
+        eye_height,
         heading: spec.heading.0.to_radians(),
         pitch: spec.pitch.0.to_radians(),
         roll: spec.roll.0.to_radians(),
-    }
-}
-
-/// The unit plan vector pointing at an azimuth (radians clockwise from north).
-fn plan_direction(azimuth: f64) -> Vector2<f64> {
-    let (sin, cos) = azimuth.sin_cos();
-    Vector2::new(sin, cos)
-}
-
-/// The four plan corners of a block, counter-clockwise seen from above, starting at the
-/// front-left corner (as seen by someone facing the front).
-pub fn block_plan(block: &BlockSpec) -> [Vector2<f64>; 4] {
-    let facing = block.facing.0.to_radians();
-    // Facing the front, one looks towards facing + 180; one's right is a quarter turn
-    // clockwise from that, so the width runs towards facing - 90 and the depth towards
-    // facing + 180.
-    let along = plan_direction(facing - std::f64::consts::FRAC_PI_2) * block.width.0;
-    let back = -plan_direction(facing) * block.depth.0;
-    let front_left = match block.at {
-        Anchor::Corner(x, y) => Vector2::new(x.0, y.0),
-        Anchor::Centre(x, y) => Vector2::new(x.0, y.0) - (along + back) / 2.0,
-    };
-    [
-        front_left,
-        front_left + along,
-        front_left + along + back,
-        front_left + back,
-    ]
-}
-
-fn add_block(site: &mut Site, id: ItemId, block: &BlockSpec) {
-    let plan = block_plan(block);
-    let bottom = block.base.0;
-    let top = bottom + block.height.0;
-    let corner = |i: usize, z: f64| Point3::new(plan[i % 4].x, plan[i % 4].y, z);
-    // Each ring of edges end to end, so consecutive edges share their ends (the projector
-    // reuses the angles of a shared end), then the uprights.
-    for z in [bottom, top] {
-        for i in 0..4 {
-            site.add_segment(id, corner(i, z), corner(i + 1, z));
-        }
-    }
-    for i in 0..4 {
-        site.add_segment(id, corner(i, bottom), corner(i, top));
-    }
-}
-
-fn add_polyline(site: &mut Site, id: ItemId, polyline: &PolylineSpec) {
-    let points: Vec<Point3<f64>> = polyline
-        .points
-        .0
-        .iter()
-        .map(|(x, y, z)| Point3::new(x.0, y.0, z.0))
-        .collect();
-    for pair in points.windows(2) {
-        site.add_segment(id, pair[0], pair[1]);
-    }
-    if polyline.closed && points.len() > 2 {
-        site.add_segment(id, points[points.len() - 1], points[0]);
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::super::format::{Finite, Positive};
-    use super::*;
-
-    fn block(at: Anchor, facing: f64) -> BlockSpec {
-        BlockSpec {
-            label: None,
-            at,
-            width: Positive(4.0),
-            depth: Positive(2.0),
-            height: Positive(3.0),
-            facing: Finite(facing),
-            base: Finite(0.0),
-        }
-    }
-
-    fn assert_plan(plan: [Vector2<f64>; 4], expected: [(f64, f64); 4]) {
-        for (p, (x, y)) in plan.iter().zip(expected) {
-            assert!(
-                (p.x - x).abs() < 1e-12 && (p.y - y).abs() < 1e-12,
-                "{plan:?}"
-            );
-        }
-    }
-
-    #[test]
-    fn south_facing_block_runs_east_and_north_from_its_corner() {
-        let plan = block_plan(&block(Anchor::Corner(Finite(1.0), Finite(1.0)), 180.0));
-        assert_plan(plan, [(1.0, 1.0), (5.0, 1.0), (5.0, 3.0), (1.0, 3.0)]);
-    }
-
-    #[test]
-    fn east_facing_block_centred() {
-        // Facing east, the front runs north-south; facing it one looks west and the right
-        // hand points north, so the width runs north and the depth west.
-        let plan = block_plan(&block(Anchor::Centre(Finite(0.0), Finite(0.0)), 90.0));
-        assert_plan(plan, [(1.0, -2.0), (1.0, 2.0), (-1.0, 2.0), (-1.0, -2.0)]);
-    }
-
-    #[test]
-    fn block_has_twelve_edges() {
-        let mut site = Site::default();
-        let id = site.add_item("block", None);
-        add_block(
-            &mut site,
-            id,
-            &block(Anchor::Corner(Finite(0.0), Finite(0.0)), 180.0),
-        );
-        assert_eq!(site.edges.len(), 12);
     }
 }

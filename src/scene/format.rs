@@ -3,6 +3,8 @@
 //! point lists are rejected by the number and list types below, so the RON parser reports the
 //! line and column.
 //!
+//! The item specs themselves live beside the code that builds them, in `items/`.
+//!
 //! ```ron
 //! Scene(
 //!     name: "Tollgate Square",
@@ -14,6 +16,7 @@
 //! )
 //! ```
 
+use super::items;
 use serde::{Deserialize, Deserializer};
 
 /// The largest magnitude of any number in a scene: a million kilometres, far beyond any
@@ -128,16 +131,68 @@ impl<'de> Deserialize<'de> for Vertices {
     }
 }
 
-fn default_eye_height() -> NonNegative {
-    NonNegative(super::DEFAULT_EYE_HEIGHT)
+/// A count of things: 1 to 100,000.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Count(pub u32);
+
+/// The most of anything one field can ask for (steps, openings, copies).
+pub const MAX_COUNT: u32 = 100_000;
+
+impl<'de> Deserialize<'de> for Count {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let value = u64::deserialize(deserializer)?;
+        if (1..=MAX_COUNT as u64).contains(&value) {
+            Ok(Count(value as u32))
+        } else {
+            Err(serde::de::Error::custom(format!(
+                "expected a count from 1 to {MAX_COUNT}, found {value}"
+            )))
+        }
+    }
 }
 
-fn default_facing() -> Finite {
+/// A plan position or size pair (x, y).
+pub type Plan = (Finite, Finite);
+/// A site position (x, y, z).
+pub type Spot = (Finite, Finite, Finite);
+
+pub fn plan(p: &Plan) -> nalgebra::Vector2<f64> {
+    nalgebra::Vector2::new(p.0 .0, p.1 .0)
+}
+
+pub fn spot(p: &Spot) -> nalgebra::Point3<f64> {
+    nalgebra::Point3::new(p.0 .0, p.1 .0, p.2 .0)
+}
+
+pub fn zero() -> Finite {
+    Finite(0.0)
+}
+
+pub fn origin() -> Spot {
+    (Finite(0.0), Finite(0.0), Finite(0.0))
+}
+
+/// The azimuth a block's front faces by default: south, so that its width runs east.
+pub fn default_facing() -> Finite {
     Finite(180.0)
 }
 
-fn zero() -> Finite {
-    Finite(0.0)
+/// The unit of every length in a scene file.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
+pub enum SceneUnit {
+    #[default]
+    Metre,
+    /// Decimal feet (0.3048 m exactly, by the international yard and pound agreement of 1959).
+    Foot,
+}
+
+impl SceneUnit {
+    pub fn metres(self) -> f64 {
+        match self {
+            SceneUnit::Metre => 1.0,
+            SceneUnit::Foot => 0.3048,
+        }
+    }
 }
 
 #[derive(Debug, Deserialize)]
@@ -146,8 +201,21 @@ pub struct SceneFile {
     #[serde(default)]
     pub name: Option<String>,
     #[serde(default)]
+    pub unit: SceneUnit,
+    #[serde(default)]
     pub standpoints: Vec<StandpointSpec>,
+    /// The standpoint used when none is asked for; the first if not given.
+    #[serde(default)]
+    pub default_standpoint: Option<String>,
     pub items: Vec<ItemSpec>,
+}
+
+/// How the viewer's eye height is chosen when it is not given.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
+pub enum Posture {
+    #[default]
+    Standing,
+    Seated,
 }
 
 #[derive(Debug, Deserialize)]
@@ -158,8 +226,11 @@ pub struct StandpointSpec {
     pub y: Finite,
     #[serde(default = "zero")]
     pub ground: Finite,
-    #[serde(default = "default_eye_height")]
-    pub eye_height: NonNegative,
+    /// In the scene's unit; by default the posture's eye height.
+    #[serde(default)]
+    pub eye_height: Option<NonNegative>,
+    #[serde(default)]
+    pub posture: Posture,
     /// Degrees clockwise from north.
     #[serde(default = "zero")]
     pub heading: Finite,
@@ -169,87 +240,120 @@ pub struct StandpointSpec {
     pub roll: Finite,
 }
 
+/// Runs `$body` on whichever spec the item holds (every spec has `label` and `layer`).
+macro_rules! each_spec {
+    ($item:expr, $spec:ident => $body:expr) => {
+        match $item {
+            ItemSpec::Block($spec) => $body,
+            ItemSpec::Footprint($spec) => $body,
+            ItemSpec::Road($spec) => $body,
+            ItemSpec::Arch($spec) | ItemSpec::Arcade($spec) => $body,
+            ItemSpec::Column($spec) => $body,
+            ItemSpec::Tower($spec) => $body,
+            ItemSpec::Dome($spec) => $body,
+            ItemSpec::Stairs($spec) => $body,
+            ItemSpec::Tiles($spec) => $body,
+            ItemSpec::Vault($spec) => $body,
+            ItemSpec::Room($spec) => $body,
+            ItemSpec::Polyline($spec) => $body,
+            ItemSpec::Line($spec) => $body,
+            ItemSpec::Point($spec) => $body,
+            ItemSpec::Group($spec) => $body,
+            ItemSpec::Repeat($spec) => $body,
+            ItemSpec::Model($spec) => $body,
+        }
+    };
+}
+use each_spec;
+
+/// Every kind of item a scene can hold.
 #[derive(Debug, Deserialize)]
 pub enum ItemSpec {
-    Block(BlockSpec),
-    Polyline(PolylineSpec),
-    Model(ModelSpec),
+    Block(items::BlockSpec),
+    Footprint(items::FootprintSpec),
+    Road(items::RoadSpec),
+    Arch(items::ArcadeSpec),
+    Arcade(items::ArcadeSpec),
+    Column(items::ColumnSpec),
+    Tower(items::TowerSpec),
+    Dome(items::DomeSpec),
+    Stairs(items::StairsSpec),
+    Tiles(items::TilesSpec),
+    Vault(items::VaultSpec),
+    Room(items::RoomSpec),
+    Polyline(items::PolylineSpec),
+    Line(items::LineSpec),
+    Point(items::PointSpec),
+    Group(GroupSpec),
+    Repeat(RepeatSpec),
+    Model(items::ModelSpec),
 }
 
-fn one() -> Positive {
-    Positive(1.0)
+impl ItemSpec {
+    /// The word messages use for the item.
+    pub fn kind(&self) -> &'static str {
+        match self {
+            ItemSpec::Block(_) => "block",
+            ItemSpec::Footprint(_) => "footprint",
+            ItemSpec::Road(_) => "road",
+            ItemSpec::Arch(_) => "arch",
+            ItemSpec::Arcade(_) => "arcade",
+            ItemSpec::Column(_) => "column",
+            ItemSpec::Tower(_) => "tower",
+            ItemSpec::Dome(_) => "dome",
+            ItemSpec::Stairs(_) => "stairs",
+            ItemSpec::Tiles(_) => "tiles",
+            ItemSpec::Vault(_) => "vault",
+            ItemSpec::Room(_) => "room",
+            ItemSpec::Polyline(_) => "polyline",
+            ItemSpec::Line(_) => "line",
+            ItemSpec::Point(_) => "point",
+            ItemSpec::Group(_) => "group",
+            ItemSpec::Repeat(_) => "repeat",
+            ItemSpec::Model(_) => "model",
+        }
+    }
+
+    pub fn label(&self) -> Option<&str> {
+        each_spec!(self, spec => spec.label.as_deref())
+    }
+
+    pub fn layer(&self) -> Option<&str> {
+        each_spec!(self, spec => spec.layer.as_deref())
+    }
 }
 
-fn default_crease() -> HalfTurn {
-    HalfTurn(super::DEFAULT_CREASE_DEG)
-}
-
-fn origin() -> (Finite, Finite, Finite) {
-    (Finite(0.0), Finite(0.0), Finite(0.0))
-}
-
-/// A Wavefront OBJ model placed in the scene.
+/// Items moved and turned together.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct ModelSpec {
+pub struct GroupSpec {
     #[serde(default)]
     pub label: Option<String>,
-    /// The OBJ file, relative to the scene file's folder.
-    pub file: FileName,
-    /// Where the model's origin goes, metres (x east, y north, z up).
+    #[serde(default)]
+    pub layer: Option<String>,
+    /// Where the group's origin goes.
     #[serde(default = "origin")]
-    pub at: (Finite, Finite, Finite),
-    /// Turn about the vertical, degrees clockwise seen from above.
+    pub at: Spot,
+    /// Degrees clockwise seen from above, about the group's origin.
     #[serde(default = "zero")]
     pub turn: Finite,
-    #[serde(default = "one")]
-    pub scale: Positive,
-    /// Which axis of the file is up: `Y` (the OBJ habit) or `Z`.
-    #[serde(default)]
-    pub up: super::UpAxis,
-    /// `Metre`, `Centimetre`, `Millimetre`, `Inch` or `Foot`.
-    #[serde(default)]
-    pub unit: super::Unit,
-    /// Edges whose faces meet at more than this angle (degrees) are drawn.
-    #[serde(default = "default_crease")]
-    pub crease: HalfTurn,
+    pub items: Vec<ItemSpec>,
 }
 
-/// Where a block's plan is anchored: its front-left corner (as seen by someone facing the
-/// front) or the centre of its plan.
-#[derive(Debug, Deserialize)]
-pub enum Anchor {
-    Corner(Finite, Finite),
-    Centre(Finite, Finite),
-}
-
+/// Copies of items, each moved `step` further (and turned `turn` further about the
+/// origin) than the one before.
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct BlockSpec {
+pub struct RepeatSpec {
     #[serde(default)]
     pub label: Option<String>,
-    pub at: Anchor,
-    /// Along the front, metres.
-    pub width: Positive,
-    /// From the front backwards, metres.
-    pub depth: Positive,
-    pub height: Positive,
-    /// The azimuth (degrees) the front wall faces, outwards; 180 = south-facing, which puts
-    /// the width along +x and the depth along +y.
-    #[serde(default = "default_facing")]
-    pub facing: Finite,
-    /// Height of the block's base, metres.
+    #[serde(default)]
+    pub layer: Option<String>,
+    pub count: Count,
+    #[serde(default = "origin")]
+    pub step: Spot,
+    /// Degrees clockwise seen from above, for radial arrays.
     #[serde(default = "zero")]
-    pub base: Finite,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct PolylineSpec {
-    #[serde(default)]
-    pub label: Option<String>,
-    pub points: Vertices,
-    /// Join the last point back to the first.
-    #[serde(default)]
-    pub closed: bool,
+    pub turn: Finite,
+    pub items: Vec<ItemSpec>,
 }

@@ -1,8 +1,9 @@
 //! Reading a RON scene file into a [`Site`].
 
-use super::expand::expand;
+use super::expand::{expand, ExpandError};
 use super::file::read_input;
 use super::format::SceneFile;
+use super::locate::{describe_path, item_spans, ItemSpan};
 use super::obj::read_obj;
 use super::{add_mesh, MeshPlacement, MeshStats, Site};
 use crate::error::{Error, Result};
@@ -66,7 +67,55 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
         column: e.span.start.col,
         message: e.code.to_string(),
     })?;
-    expand(file, fallback_name, path)
+    expand(file, fallback_name, path).map_err(|e| match e {
+        ExpandError::Item { path: at, message } => {
+            let spans = item_spans(text);
+            let (line, column) = item_start(&spans, &at).unwrap_or((1, 1));
+            let name = describe_path(&spans, &at).unwrap_or_else(|| describe_path_plain(&at));
+            Error::Scene {
+                path: path.to_owned(),
+                line,
+                column,
+                message: format!("in {name}: {message}"),
+            }
+        }
+        ExpandError::Field { field, message } => {
+            let (line, column) = text
+                .find(field)
+                .map_or((1, 1), |at| line_and_column(&text.as_bytes()[..at]));
+            Error::Scene {
+                path: path.to_owned(),
+                line,
+                column,
+                message: format!("`{field}`: {message}"),
+            }
+        }
+        ExpandError::Model { label, source } => Error::InModel {
+            scene: path.to_owned(),
+            item: label,
+            source: Box::new(source),
+        },
+    })
+}
+
+/// How a message names an item by its path alone: `item 2 of item 5`, counting from 1.
+fn describe_path_plain(path: &[usize]) -> String {
+    path.iter()
+        .rev()
+        .map(|i| format!("item {}", i + 1))
+        .collect::<Vec<_>>()
+        .join(" of ")
+}
+
+/// Where the item at `path` starts.
+fn item_start(spans: &[ItemSpan], path: &[usize]) -> Option<(usize, usize)> {
+    let (&first, rest) = path.split_first()?;
+    let span = spans.get(first)?;
+    if rest.is_empty() {
+        Some(span.start)
+    } else {
+        item_start(&span.children, rest).or(Some(span.start))
+    }
 }
 
 /// Line and column (from 1, counting characters) just after `prefix`.

@@ -5,18 +5,25 @@
 //! tagged with the item it came from, the smooth mesh edges that are drawn where they form
 //! an outline, and the faces. Nothing after the loaders knows what RON or OBJ is.
 
+mod build;
 mod expand;
 mod file;
 mod format;
+mod items;
 mod load;
+mod locate;
 mod mesh;
 mod obj;
+mod outline;
 mod site;
 
+pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
 pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
+pub use outline::{tangent_points, Outline, RoundOutline};
 pub use site::{
-    Edge, Face, ItemId, ItemInfo, SilhouetteEdge, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+    Edge, Face, ItemId, ItemInfo, Marker, SilhouetteEdge, Site, SiteCurve, Standpoint,
+    DEFAULT_EYE_HEIGHT,
 };

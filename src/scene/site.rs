@@ -1,5 +1,6 @@
 //! The resolved site model.
 
+use super::outline::Outline;
 use nalgebra::{Point3, Vector3};
 
 /// Eye height of a standing adult, metres (common practice; it lies between the usual
@@ -52,6 +53,13 @@ impl Standpoint {
     pub fn eye(&self) -> Point3<f64> {
         Point3::new(self.x, self.y, self.ground + self.eye_height)
     }
+}
+
+/// A labelled point: a small mark drawn at its direction.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Marker {
+    pub at: Point3<f64>,
+    pub item: ItemId,
 }
 
 /// A drawable edge in site coordinates.
@@ -122,14 +130,19 @@ pub struct Edge {
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Site {
     pub name: String,
-    /// In file order; the first is the default.
+    /// In file order.
     pub standpoints: Vec<Standpoint>,
+    /// Which of them is used when none is named.
+    pub default_standpoint: usize,
     pub items: Vec<ItemInfo>,
     pub edges: Vec<Edge>,
     /// Edges drawn only where they are part of the outline (smooth meshes).
     pub silhouette_candidates: Vec<SilhouetteEdge>,
     /// Triangles of the solid items and meshes, for hidden lines.
     pub faces: Vec<Face>,
+    /// Round shapes whose outline depends on the eye (columns, cones, domes).
+    pub outlines: Vec<Outline>,
+    pub markers: Vec<Marker>,
 }
 
 impl Site {
@@ -189,6 +202,39 @@ impl Site {
             })
             .collect();
         (names, slots)
+    }
+
+    /// The edges that are part of the outline only from this eye: smooth mesh edges
+    /// between a face turned towards the eye and one turned away, and the grazing lines of
+    /// round shapes.
+    pub fn outline_edges_from(&self, eye: &Point3<f64>) -> Vec<Edge> {
+        let meshes = self
+            .silhouette_candidates
+            .iter()
+            .filter(|candidate| candidate.is_outline_from(eye))
+            .map(|c| Edge {
+                curve: SiteCurve::Segment {
+                    start: c.start,
+                    end: c.end,
+                },
+                item: c.item,
+            });
+        let rounds = self.outlines.iter().flat_map(|outline| {
+            outline
+                .shape
+                .curves_from(eye)
+                .into_iter()
+                .map(|curve| Edge {
+                    curve,
+                    item: outline.item,
+                })
+        });
+        meshes.chain(rounds).collect()
+    }
+
+    /// The standpoint used when none is named, if there is any.
+    pub fn default_standpoint(&self) -> Option<&Standpoint> {
+        self.standpoints.get(self.default_standpoint)
     }
 
     pub fn standpoint(&self, name: &str) -> Option<&Standpoint> {

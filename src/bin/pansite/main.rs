@@ -184,8 +184,7 @@ fn choose_standpoint(site: &Site, args: &RenderArgs) -> pansite::Result<Standpoi
             Standpoint::from_degrees("here", x, y, DEFAULT_EYE_HEIGHT, 0.0, 0.0, 0.0)
         }
         (None, None) => site
-            .standpoints
-            .first()
+            .default_standpoint()
             .cloned()
             .ok_or(Error::NoStandpoint)?,
     };

@@ -1,0 +1,350 @@
+//! What every item writes into the site: edges, faces, outlines and markers, given in the
+//! item's own coordinates and placed by a [`Placement`] (the scene's unit, and the moves of
+//! the groups and repeats the item sits in).
+
+use super::outline::{Outline, RoundOutline};
+use super::site::{Edge, Face, ItemId, Marker, Site, SiteCurve};
+use nalgebra::{Point3, Vector2, Vector3};
+use std::collections::HashSet;
+use std::f64::consts::TAU;
+
+/// A similarity that keeps the vertical vertical: scale by the scene's unit, turn about the
+/// vertical (clockwise seen from above, like an azimuth), then shift.
+///
+/// `site = scale * turn(local) + shift`, with `shift` in metres.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Placement {
+    /// Metres per unit of the scene file.
+    pub scale: f64,
+    /// Radians clockwise seen from above.
+    pub turn: f64,
+    /// Metres.
+    pub shift: Vector3<f64>,
+}
+
+impl Placement {
+    /// Lengths in the given unit (metres per unit), nothing moved.
+    pub fn in_unit(metres_per_unit: f64) -> Placement {
+        Placement {
+            scale: metres_per_unit,
+            turn: 0.0,
+            shift: Vector3::zeros(),
+        }
+    }
+
+    /// This placement applied after moving by `offset` (scene units) and turning by
+    /// `turn` (radians clockwise): the placement of something inside a group.
+    pub fn then_move(&self, offset: Vector3<f64>, turn: f64) -> Placement {
+        Placement {
+            scale: self.scale,
+            turn: self.turn + turn,
+            shift: self.shift + self.vector(&offset),
+        }
+    }
+
+    pub fn point(&self, p: &Point3<f64>) -> Point3<f64> {
+        Point3::from(self.vector(&p.coords) + self.shift)
+    }
+
+    /// A direction or displacement: scaled and turned, not shifted.
+    pub fn vector(&self, v: &Vector3<f64>) -> Vector3<f64> {
+        let plan = turn_clockwise(Vector2::new(v.x, v.y), self.turn);
+        Vector3::new(plan.x, plan.y, v.z) * self.scale
+    }
+
+    pub fn length(&self, l: f64) -> f64 {
+        l * self.scale
+    }
+}
+
+/// `v` turned clockwise (seen from above, x east and y north) by `angle` radians.
+pub fn turn_clockwise(v: Vector2<f64>, angle: f64) -> Vector2<f64> {
+    let (sin, cos) = angle.sin_cos();
+    Vector2::new(v.x * cos + v.y * sin, -v.x * sin + v.y * cos)
+}
+
+/// The unit plan vector pointing at an azimuth (radians clockwise from north).
+pub fn plan_direction(azimuth: f64) -> Vector2<f64> {
+    let (sin, cos) = azimuth.sin_cos();
+    Vector2::new(sin, cos)
+}
+
+/// Curved faces are cut into flat pieces no wider than this angle (radians) for hidden
+/// lines: the gap between a circle of radius r and the pieces is r (1 - cos(angle / 2)),
+/// under 0.06 % of r. The drawn edges stay exact curves.
+pub const FACET_ANGLE: f64 = TAU / 96.0;
+
+/// How many flat pieces a curved face sweeping `sweep` radians is cut into.
+pub fn facet_count(sweep: f64) -> usize {
+    ((sweep.abs() / FACET_ANGLE).ceil() as usize).max(1)
+}
+
+/// `count + 1` points along `centre + u cos t + v sin t` for t from `start` to `start + sweep`.
+pub fn ellipse_points(
+    centre: Point3<f64>,
+    u: Vector3<f64>,
+    v: Vector3<f64>,
+    start: f64,
+    sweep: f64,
+    count: usize,
+) -> Vec<Point3<f64>> {
+    (0..=count)
+        .map(|i| {
+            let t = start + sweep * i as f64 / count as f64;
+            centre + u * t.cos() + v * t.sin()
+        })
+        .collect()
+}
+
+/// Writes one item into the site.
+///
+/// A segment given twice (a wall's top that is also the eaves of its roof) is drawn once:
+/// ends that agree to a micrometre are taken as the same.
+pub struct ItemBuilder<'a> {
+    site: &'a mut Site,
+    item: ItemId,
+    place: Placement,
+    drawn: HashSet<[i64; 6]>,
+}
+
+impl<'a> ItemBuilder<'a> {
+    pub fn new(site: &'a mut Site, item: ItemId, place: Placement) -> ItemBuilder<'a> {
+        ItemBuilder {
+            site,
+            item,
+            place,
+            drawn: HashSet::new(),
+        }
+    }
+
+    /// Shapes given in a frame of their own: `offset` (in this builder's coordinates) is
+    /// their origin and `turn` (radians clockwise seen from above) their rotation.
+    pub fn move_by(&mut self, offset: Vector3<f64>, turn: f64) {
+        self.place = self.place.then_move(offset, turn);
+    }
+
+    pub fn placement(&self) -> &Placement {
+        &self.place
+    }
+
+    pub fn segment(&mut self, start: Point3<f64>, end: Point3<f64>) {
+        if start == end {
+            return;
+        }
+        let key = |a: &Point3<f64>, b: &Point3<f64>| {
+            let micrometres = |p: &Point3<f64>| p.coords.map(|c| (c * 1e6).round() as i64);
+            let (a, b) = (micrometres(a), micrometres(b));
+            [a.x, a.y, a.z, b.x, b.y, b.z]
+        };
+        let (start, end) = (self.place.point(&start), self.place.point(&end));
+        if !self.drawn.insert(key(&start, &end)) || self.drawn.contains(&key(&end, &start)) {
+            return;
+        }
+        self.site.add_segment(self.item, start, end);
+    }
+
+    /// Segments joining the points in order, and the last back to the first if `closed`.
+    pub fn path(&mut self, points: &[Point3<f64>], closed: bool) {
+        for pair in points.windows(2) {
+            self.segment(pair[0], pair[1]);
+        }
+        if closed && points.len() > 2 {
+            self.segment(points[points.len() - 1], points[0]);
+        }
+    }
+
+    /// The arc `centre + u cos t + v sin t`, t from `start` through `sweep` radians.
+    pub fn ellipse(
+        &mut self,
+        centre: Point3<f64>,
+        u: Vector3<f64>,
+        v: Vector3<f64>,
+        start: f64,
+        sweep: f64,
+    ) {
+        self.site.edges.push(Edge {
+            curve: SiteCurve::Ellipse {
+                centre: self.place.point(&centre),
+                u: self.place.vector(&u),
+                v: self.place.vector(&v),
+                start,
+                sweep,
+            },
+            item: self.item,
+        });
+    }
+
+    /// A horizontal circle.
+    pub fn circle(&mut self, centre: Point3<f64>, radius: f64) {
+        self.ellipse(
+            centre,
+            Vector3::x() * radius,
+            Vector3::y() * radius,
+            0.0,
+            TAU,
+        );
+    }
+
+    /// A flat face bounded by `outer`, with `holes` cut out of it (all in one plane,
+    /// any winding); cut into triangles. Faces hide, they are not drawn: items draw their
+    /// edges themselves.
+    pub fn face(&mut self, outer: &[Point3<f64>], holes: &[Vec<Point3<f64>>]) {
+        let placed: Vec<Point3<f64>> = outer
+            .iter()
+            .chain(holes.iter().flatten())
+            .map(|p| self.place.point(p))
+            .collect();
+        let mut hole_starts = Vec::with_capacity(holes.len());
+        let mut next = outer.len();
+        for hole in holes {
+            hole_starts.push(next);
+            next += hole.len();
+        }
+        for [a, b, c] in triangulate(&placed, &hole_starts) {
+            self.site.faces.push(Face {
+                corners: [placed[a], placed[b], placed[c]],
+                item: self.item,
+            });
+        }
+    }
+
+    /// The faces between two rows of points that run side by side (a curved strip: a
+    /// column's side, a soffit, a vault), as quads cut into triangles.
+    pub fn strip(&mut self, a: &[Point3<f64>], b: &[Point3<f64>]) {
+        for i in 0..a.len().min(b.len()).saturating_sub(1) {
+            for corners in [[a[i], a[i + 1], b[i + 1]], [a[i], b[i + 1], b[i]]] {
+                self.triangle(corners);
+            }
+        }
+    }
+
+    fn triangle(&mut self, corners: [Point3<f64>; 3]) {
+        let corners = corners.map(|p| self.place.point(&p));
+        let area2 = (corners[1] - corners[0]).cross(&(corners[2] - corners[0]));
+        if area2.norm_squared() > 0.0 {
+            self.site.faces.push(Face {
+                corners,
+                item: self.item,
+            });
+        }
+    }
+
+    /// A vertical cylinder whose two outline generators are found from each eye.
+    pub fn round_outline(&mut self, shape: RoundOutline) {
+        let shape = match shape {
+            RoundOutline::Cylinder {
+                base,
+                radius,
+                height,
+            } => RoundOutline::Cylinder {
+                base: self.place.point(&base),
+                radius: self.place.length(radius),
+                height: self.place.length(height),
+            },
+            RoundOutline::Cone {
+                base,
+                radius,
+                height,
+            } => RoundOutline::Cone {
+                base: self.place.point(&base),
+                radius: self.place.length(radius),
+                height: self.place.length(height),
+            },
+            RoundOutline::Dome { centre, radius } => RoundOutline::Dome {
+                centre: self.place.point(&centre),
+                radius: self.place.length(radius),
+            },
+        };
+        self.site.outlines.push(Outline {
+            shape,
+            item: self.item,
+        });
+    }
+
+    pub fn marker(&mut self, at: Point3<f64>) {
+        let at = self.place.point(&at);
+        self.site.markers.push(Marker {
+            at,
+            item: self.item,
+        });
+    }
+}
+
+/// Triangles (vertex indices) covering a flat polygon with holes. The polygon is laid flat
+/// on the coordinate plane it is most nearly parallel to (the largest component of its
+/// Newell normal), which keeps its shape free of folds.
+fn triangulate(points: &[Point3<f64>], hole_starts: &[usize]) -> Vec<[usize; 3]> {
+    let outer = hole_starts.first().copied().unwrap_or(points.len());
+    let normal = newell_normal(&points[..outer]);
+    let (a, b) = match normal.iamax() {
+        0 => (1, 2),
+        1 => (2, 0),
+        _ => (0, 1),
+    };
+    let flat: Vec<[f64; 2]> = points.iter().map(|p| [p[a], p[b]]).collect();
+    let mut indices: Vec<usize> = Vec::new();
+    earcut::Earcut::new().earcut(flat.iter().copied(), hole_starts, &mut indices);
+    indices
+        .chunks_exact(3)
+        .map(|t| [t[0], t[1], t[2]])
+        .collect()
+}
+
+/// Newell's normal of a polygon (twice its vector area): exact for a flat polygon.
+pub fn newell_normal(points: &[Point3<f64>]) -> Vector3<f64> {
+    let mut normal = Vector3::zeros();
+    for (i, p) in points.iter().enumerate() {
+        let q = points[(i + 1) % points.len()];
+        normal += p.coords.cross(&q.coords);
+    }
+    normal
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::f64::consts::PI;
+
+    #[test]
+    fn quarter_turn_clockwise_takes_north_to_east() {
+        let v = turn_clockwise(Vector2::new(0.0, 1.0), PI / 2.0);
+        assert!((v - Vector2::new(1.0, 0.0)).norm() < 1e-15);
+    }
+
+    #[test]
+    fn placements_compose_in_order() {
+        // A group at (10, 0) turned a quarter clockwise holds a point 1 unit north of its
+        // origin: the point lands 1 unit east of (10, 0), in feet.
+        let feet = Placement::in_unit(0.3048);
+        let group = feet.then_move(Vector3::new(10.0, 0.0, 0.0), PI / 2.0);
+        let p = group.point(&Point3::new(0.0, 1.0, 2.0));
+        let expected = Point3::new(11.0 * 0.3048, 0.0, 2.0 * 0.3048);
+        assert!((p - expected).norm() < 1e-12, "{p}");
+    }
+
+    #[test]
+    fn square_with_square_hole_is_eight_triangles() {
+        let mut site = Site::default();
+        let id = site.add_item("test", None);
+        let square = |h: f64| {
+            vec![
+                Point3::new(-h, 0.0, -h),
+                Point3::new(h, 0.0, -h),
+                Point3::new(h, 0.0, h),
+                Point3::new(-h, 0.0, h),
+            ]
+        };
+        ItemBuilder::new(&mut site, id, Placement::in_unit(1.0)).face(&square(2.0), &[square(1.0)]);
+        assert_eq!(site.faces.len(), 8);
+        // The triangles cover the ring's area, 16 - 4.
+        let area: f64 = site
+            .faces
+            .iter()
+            .map(|f| {
+                let [a, b, c] = f.corners;
+                (b - a).cross(&(c - a)).norm() / 2.0
+            })
+            .sum();
+        assert!((area - 12.0).abs() < 1e-12, "{area}");
+    }
+}

@@ -1,0 +1,214 @@
+//! `Block`: a rectangular mass placed by a corner or its centre, with a roof, openings and
+//! storey lines.
+
+use super::super::build::{plan_direction, ItemBuilder};
+use super::super::format::{default_facing, zero, Finite, NonNegative, Positive};
+use super::mass::{build_mass, Mass};
+use super::walls::{openings_in_wall, OpeningsSpec, WallChoice};
+use nalgebra::{Vector2, Vector3};
+use serde::Deserialize;
+use std::f64::consts::PI;
+
+/// Where a block's plan is anchored: its front-left corner (as seen by someone facing the
+/// front) or the centre of its plan.
+#[derive(Clone, Copy, Debug, Deserialize, PartialEq)]
+pub enum Anchor {
+    Corner(Finite, Finite),
+    Centre(Finite, Finite),
+}
+
+/// Which way a gable roof's ridge runs.
+#[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq, Eq)]
+pub enum Along {
+    /// Parallel to the front.
+    #[default]
+    Width,
+    /// From the front to the back.
+    Depth,
+}
+
+/// A block's roof. Heights (`ridge`, `apex`, `back`) are measured from the block's base,
+/// like its `height` (the eaves).
+#[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub enum RoofSpec {
+    #[default]
+    Flat,
+    /// Two slopes meeting at a ridge, with upright gable ends.
+    Gable {
+        ridge: Positive,
+        #[serde(default)]
+        along: Along,
+        #[serde(default)]
+        overhang: Option<NonNegative>,
+    },
+    /// Four slopes of one pitch; the ridge runs along the longer side.
+    Hip {
+        ridge: Positive,
+        #[serde(default)]
+        overhang: Option<NonNegative>,
+    },
+    /// Four slopes meeting at a point over the centre.
+    Pyramid {
+        apex: Positive,
+        #[serde(default)]
+        overhang: Option<NonNegative>,
+    },
+    /// One slope (mono-pitch), from the front at `height` to the back at `back`.
+    Shed {
+        back: Positive,
+        #[serde(default)]
+        overhang: Option<NonNegative>,
+    },
+}
+
+/// A parapet round a flat roof: its height above the roof and its thickness.
+#[derive(Clone, Copy, Debug, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct ParapetSpec {
+    pub height: Positive,
+    pub thickness: Positive,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct BlockSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    #[serde(default)]
+    pub layer: Option<String>,
+    pub at: Anchor,
+    /// Along the front.
+    pub width: Positive,
+    /// From the front backwards.
+    pub depth: Positive,
+    /// To the eaves (the top of the walls).
+    pub height: Positive,
+    /// The azimuth (degrees) the front wall faces, outwards; 180 = south-facing, which puts
+    /// the width along +x and the depth along +y.
+    #[serde(default = "default_facing")]
+    pub facing: Finite,
+    /// Height of the block's foot.
+    #[serde(default = "zero")]
+    pub base: Finite,
+    #[serde(default)]
+    pub roof: RoofSpec,
+    #[serde(default)]
+    pub parapet: Option<ParapetSpec>,
+    #[serde(default)]
+    pub openings: Vec<OpeningsSpec>,
+    /// Heights of storey lines (string courses) above the base.
+    #[serde(default)]
+    pub storeys: Vec<Positive>,
+}
+
+/// The frame of a rectangle placed by an anchor: its front-left corner, and the turn that
+/// takes the local x (along the front) and y (backwards) onto the site.
+pub fn rectangle_frame(at: Anchor, width: f64, depth: f64, facing_deg: f64) -> (Vector2<f64>, f64) {
+    let facing = facing_deg.to_radians();
+    // Facing the front, one looks towards facing + 180 degrees and one's right hand points a
+    // quarter turn clockwise from there, so the width runs towards facing - 90 and the depth
+    // towards facing + 180: local +y (north) turns onto facing + 180.
+    let along = plan_direction(facing - PI / 2.0) * width;
+    let back = -plan_direction(facing) * depth;
+    let front_left = match at {
+        Anchor::Corner(x, y) => Vector2::new(x.0, y.0),
+        Anchor::Centre(x, y) => Vector2::new(x.0, y.0) - (along + back) / 2.0,
+    };
+    (front_left, facing + PI)
+}
+
+/// A rectangle's corners in its own frame, counter-clockwise from the front-left.
+pub fn rectangle_plan(width: f64, depth: f64) -> Vec<Vector2<f64>> {
+    vec![
+        Vector2::new(0.0, 0.0),
+        Vector2::new(width, 0.0),
+        Vector2::new(width, depth),
+        Vector2::new(0.0, depth),
+    ]
+}
+
+/// The walls a choice names, counting a rectangle's walls from the front: front, right,
+/// back, left.
+pub fn rectangle_walls(choice: WallChoice) -> Result<Vec<usize>, String> {
+    Ok(match choice {
+        WallChoice::Front => vec![0],
+        WallChoice::Right => vec![1],
+        WallChoice::Back => vec![2],
+        WallChoice::Left => vec![3],
+        WallChoice::All => vec![0, 1, 2, 3],
+        WallChoice::Side(n) if (1..=4).contains(&n.0) => vec![n.0 as usize - 1],
+        WallChoice::Side(n) => {
+            return Err(format!("a rectangle has sides 1 to 4, not side {}", n.0))
+        }
+    })
+}
+
+pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
+    let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
+    let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
+    b.move_by(Vector3::new(corner.x, corner.y, block.base.0), turn);
+    let rise_above_eaves = |top: f64, what: &str| {
+        if top > height {
+            Ok(top - height)
+        } else {
+            Err(format!(
+                "the {what} ({top}) must be higher than the eaves (`height`, {height})"
+            ))
+        }
+    };
+    let overhang = |o: Option<NonNegative>| o.map_or(0.0, |o| o.0);
+    let (slopes, overhang) = match block.roof {
+        RoofSpec::Flat => (Vec::new(), 0.0),
+        RoofSpec::Gable {
+            ridge,
+            along,
+            overhang: o,
+        } => {
+            let rise = rise_above_eaves(ridge.0, "ridge")?;
+            let slopes = match along {
+                Along::Width => {
+                    let s = Some(rise / (depth / 2.0));
+                    vec![s, None, s, None]
+                }
+                Along::Depth => {
+                    let s = Some(rise / (width / 2.0));
+                    vec![None, s, None, s]
+                }
+            };
+            (slopes, overhang(o))
+        }
+        RoofSpec::Hip { ridge, overhang: o } => {
+            let rise = rise_above_eaves(ridge.0, "ridge")?;
+            (vec![Some(rise / (width.min(depth) / 2.0)); 4], overhang(o))
+        }
+        RoofSpec::Pyramid { apex, overhang: o } => {
+            let rise = rise_above_eaves(apex.0, "apex")?;
+            let (front, side) = (Some(rise / (depth / 2.0)), Some(rise / (width / 2.0)));
+            (vec![front, side, front, side], overhang(o))
+        }
+        RoofSpec::Shed { back, overhang: o } => (
+            vec![Some((back.0 - height) / depth), None, None, None],
+            overhang(o),
+        ),
+    };
+    if block.parapet.is_some() && block.roof != RoofSpec::Flat {
+        return Err("a parapet needs a flat roof".to_owned());
+    }
+    let mass = Mass {
+        plan: rectangle_plan(width, depth),
+        eaves: height,
+        slopes,
+        overhang,
+        parapet: block.parapet.map(|p| (p.height.0, p.thickness.0)),
+    };
+    let walls = mass.walls();
+    let mut openings = vec![Vec::new(); 4];
+    for spec in &block.openings {
+        for wall in rectangle_walls(spec.wall)? {
+            openings[wall].extend(openings_in_wall(spec, &walls[wall])?);
+        }
+    }
+    let storeys: Vec<f64> = block.storeys.iter().map(|s| s.0).collect();
+    build_mass(b, &mass, &walls, &openings, &storeys)
+}

@@ -1,0 +1,221 @@
+//! Round items: `Column`, `Tower` and `Dome`. Their rims are exact circles; their outlines
+//! from the eye are found for each standpoint (see `outline.rs`).
+
+use super::super::build::{ellipse_points, facet_count, ItemBuilder};
+use super::super::format::{plan, zero, Finite, Plan, Positive};
+use super::super::outline::RoundOutline;
+use nalgebra::{Point3, Vector3};
+use serde::Deserialize;
+use std::f64::consts::{PI, TAU};
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ColumnSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    #[serde(default)]
+    pub layer: Option<String>,
+    /// The centre of its plan.
+    pub at: Plan,
+    pub diameter: Positive,
+    pub height: Positive,
+    #[serde(default = "zero")]
+    pub base: Finite,
+    /// Height of a ring drawn round the foot (the top of a base moulding).
+    #[serde(default)]
+    pub plinth: Option<Positive>,
+    /// Depth below the top of a ring drawn round the head (the foot of a capital).
+    #[serde(default)]
+    pub capital: Option<Positive>,
+}
+
+/// What stands on a round tower.
+#[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub enum TowerRoof {
+    #[default]
+    Flat,
+    /// A cone rising `height` above the top of the wall.
+    Cone { height: Positive },
+    /// A hemisphere as wide as the tower.
+    Dome,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TowerSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    #[serde(default)]
+    pub layer: Option<String>,
+    pub at: Plan,
+    pub diameter: Positive,
+    /// To the top of the wall.
+    pub height: Positive,
+    #[serde(default = "zero")]
+    pub base: Finite,
+    #[serde(default)]
+    pub roof: TowerRoof,
+    /// Heights of storey lines above the base.
+    #[serde(default)]
+    pub storeys: Vec<Positive>,
+}
+
+/// A hemisphere on a round drum.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DomeSpec {
+    #[serde(default)]
+    pub label: Option<String>,
+    #[serde(default)]
+    pub layer: Option<String>,
+    pub at: Plan,
+    pub diameter: Positive,
+    /// Height of the drum the dome stands on (0 for none).
+    #[serde(default)]
+    pub drum: Option<Positive>,
+    #[serde(default = "zero")]
+    pub base: Finite,
+}
+
+/// A drum: top and bottom circles and rings drawn; side faces for hiding; its outline
+/// from each eye.
+fn drum(b: &mut ItemBuilder, foot: Point3<f64>, radius: f64, height: f64, rings: &[f64]) {
+    let top = foot + Vector3::z() * height;
+    b.circle(foot, radius);
+    b.circle(top, radius);
+    for &ring in rings {
+        b.circle(foot + Vector3::z() * ring, radius);
+    }
+    b.round_outline(RoundOutline::Cylinder {
+        base: foot,
+        radius,
+        height,
+    });
+    let count = facet_count(TAU);
+    let (u, v) = (Vector3::x() * radius, Vector3::y() * radius);
+    let bottom = ellipse_points(foot, u, v, 0.0, TAU, count);
+    let upper = ellipse_points(top, u, v, 0.0, TAU, count);
+    b.strip(&bottom, &upper);
+    b.face(&bottom[..count], &[]);
+}
+
+fn lid(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
+    let count = facet_count(TAU);
+    let rim = ellipse_points(
+        centre,
+        Vector3::x() * radius,
+        Vector3::y() * radius,
+        0.0,
+        TAU,
+        count,
+    );
+    b.face(&rim[..count], &[]);
+}
+
+/// A hemisphere on the circle of `radius` about `centre`: the outline from each eye, and
+/// faces cut along meridians and parallels.
+fn dome(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
+    b.round_outline(RoundOutline::Dome { centre, radius });
+    let around = facet_count(TAU);
+    let up = facet_count(PI / 2.0);
+    let ring = |k: usize| {
+        let elevation = PI / 2.0 * k as f64 / up as f64;
+        let (r, z) = (radius * elevation.cos(), radius * elevation.sin());
+        ellipse_points(
+            centre + Vector3::z() * z,
+            Vector3::x() * r,
+            Vector3::y() * r,
+            0.0,
+            TAU,
+            around,
+        )
+    };
+    for k in 0..up {
+        b.strip(&ring(k), &ring(k + 1));
+    }
+}
+
+fn check_rings(rings: &[f64], height: f64) -> Result<(), String> {
+    match rings.iter().find(|&&r| r >= height) {
+        Some(r) => Err(format!("a ring at {r} is not below the top ({height})")),
+        None => Ok(()),
+    }
+}
+
+pub fn build_column(b: &mut ItemBuilder, spec: &ColumnSpec) -> Result<(), String> {
+    let height = spec.height.0;
+    let mut rings = Vec::new();
+    if let Some(plinth) = spec.plinth {
+        rings.push(plinth.0);
+    }
+    if let Some(capital) = spec.capital {
+        rings.push(height - capital.0);
+        if capital.0 >= height {
+            return Err(format!(
+                "the capital ({}) is deeper than the column is tall",
+                capital.0
+            ));
+        }
+    }
+    check_rings(&rings, height)?;
+    let centre = plan(&spec.at);
+    let foot = Point3::new(centre.x, centre.y, spec.base.0);
+    let radius = spec.diameter.0 / 2.0;
+    drum(b, foot, radius, height, &rings);
+    lid(b, foot + Vector3::z() * height, radius);
+    Ok(())
+}
+
+pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> {
+    let height = spec.height.0;
+    let rings: Vec<f64> = spec.storeys.iter().map(|s| s.0).collect();
+    check_rings(&rings, height)?;
+    let centre = plan(&spec.at);
+    let foot = Point3::new(centre.x, centre.y, spec.base.0);
+    let radius = spec.diameter.0 / 2.0;
+    let top = foot + Vector3::z() * height;
+    drum(b, foot, radius, height, &rings);
+    match spec.roof {
+        TowerRoof::Flat => lid(b, top, radius),
+        TowerRoof::Cone { height: rise } => {
+            b.round_outline(RoundOutline::Cone {
+                base: top,
+                radius,
+                height: rise.0,
+            });
+            let apex = top + Vector3::z() * rise.0;
+            let count = facet_count(TAU);
+            let rim = ellipse_points(
+                top,
+                Vector3::x() * radius,
+                Vector3::y() * radius,
+                0.0,
+                TAU,
+                count,
+            );
+            b.strip(&rim, &vec![apex; rim.len()]);
+        }
+        TowerRoof::Dome => dome(b, top, radius),
+    }
+    Ok(())
+}
+
+pub fn build_dome(b: &mut ItemBuilder, spec: &DomeSpec) -> Result<(), String> {
+    let centre = plan(&spec.at);
+    let foot = Point3::new(centre.x, centre.y, spec.base.0);
+    let radius = spec.diameter.0 / 2.0;
+    let springing = match spec.drum {
+        Some(drum_height) => {
+            drum(b, foot, radius, drum_height.0, &[]);
+            foot + Vector3::z() * drum_height.0
+        }
+        None => {
+            b.circle(foot, radius);
+            lid(b, foot, radius);
+            foot
+        }
+    };
+    dome(b, springing, radius);
+    Ok(())
+}

@@ -1,0 +1,232 @@
+//! Outlines that depend on where the eye is: the two generators of a column or a cone that
+//! the lines of sight graze, and the rim of a dome as seen from the eye.
+//!
+//! Each is found exactly from the eye's position (tangent planes through the eye), so a
+//! round column reads correctly from anywhere.
+
+use super::site::{ItemId, SiteCurve};
+use nalgebra::{Point3, Vector2, Vector3};
+use std::f64::consts::PI;
+
+/// A round shape with a vertical axis.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum RoundOutline {
+    /// A vertical cylinder standing on the circle of `radius` about `base`.
+    Cylinder {
+        base: Point3<f64>,
+        radius: f64,
+        height: f64,
+    },
+    /// A cone on the circle of `radius` about `base`, its apex `height` above `base`.
+    Cone {
+        base: Point3<f64>,
+        radius: f64,
+        height: f64,
+    },
+    /// The upper half of a sphere (a dome standing on its equator).
+    Dome { centre: Point3<f64>, radius: f64 },
+}
+
+/// A round shape of an item.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Outline {
+    pub shape: RoundOutline,
+    pub item: ItemId,
+}
+
+/// The points where the two tangents from `from` touch the circle of `radius` about
+/// `centre`, or `None` when `from` is on or inside the circle.
+///
+/// The tangent points lie at the angle acos(r / d) either side of the direction from the
+/// centre towards `from`, d being the distance from the centre (right angle between radius
+/// and tangent: Euclid, Elements III.18; any geometry handbook).
+pub fn tangent_points(
+    centre: Vector2<f64>,
+    radius: f64,
+    from: Vector2<f64>,
+) -> Option<[Vector2<f64>; 2]> {
+    let towards = from - centre;
+    let distance = towards.norm();
+    if distance <= radius * (1.0 + 1e-12) {
+        return None;
+    }
+    let along = towards / distance;
+    let across = Vector2::new(-along.y, along.x);
+    // cos(angle) = r / d, sin(angle) = sqrt(d^2 - r^2) / d, written without cancellation.
+    let cos = radius / distance;
+    let sin = ((distance - radius) * (distance + radius)).sqrt() / distance;
+    Some([
+        centre + (along * cos + across * sin) * radius,
+        centre + (along * cos - across * sin) * radius,
+    ])
+}
+
+impl RoundOutline {
+    /// The outline curves seen from `eye` (none when the eye is inside the shape's plan or
+    /// otherwise sees no outline).
+    pub fn curves_from(&self, eye: &Point3<f64>) -> Vec<SiteCurve> {
+        match *self {
+            RoundOutline::Cylinder {
+                base,
+                radius,
+                height,
+            } => {
+                let plan = |p: &Point3<f64>| Vector2::new(p.x, p.y);
+                tangent_points(plan(&base), radius, plan(eye))
+                    .map(|points| {
+                        points
+                            .iter()
+                            .map(|t| SiteCurve::Segment {
+                                start: Point3::new(t.x, t.y, base.z),
+                                end: Point3::new(t.x, t.y, base.z + height),
+                            })
+                            .collect()
+                    })
+                    .unwrap_or_default()
+            }
+            RoundOutline::Cone {
+                base,
+                radius,
+                height,
+            } => cone_generators(base, radius, height, eye),
+            RoundOutline::Dome { centre, radius } => {
+                dome_rim(centre, radius, eye).into_iter().collect()
+            }
+        }
+    }
+}
+
+/// The generators of a cone whose tangent planes hold the eye. A plane through the apex
+/// and the eye meets the base plane in a line through P, the point where the line from the
+/// apex through the eye meets that plane; the plane is tangent to the cone where that
+/// line is tangent to the base circle, so the generators run from the apex to the tangent
+/// points from P.
+fn cone_generators(
+    base: Point3<f64>,
+    radius: f64,
+    height: f64,
+    eye: &Point3<f64>,
+) -> Vec<SiteCurve> {
+    let apex = base + Vector3::z() * height;
+    let from_apex = eye - apex;
+    let centre = Vector2::new(base.x, base.y);
+    let touch = if from_apex.z.abs() <= 1e-12 * from_apex.norm() {
+        // The eye is level with the apex: the tangent planes are vertical, parallel to the
+        // line of sight, and touch the circle across it.
+        let along = Vector2::new(from_apex.x, from_apex.y);
+        if along.norm() == 0.0 {
+            return Vec::new();
+        }
+        let across = Vector2::new(-along.y, along.x).normalize() * radius;
+        Some([centre + across, centre - across])
+    } else {
+        // Along the line apex + s (eye - apex), the base plane is at s = -height / dz.
+        let s = -height / from_apex.z;
+        let p = apex + from_apex * s;
+        tangent_points(centre, radius, Vector2::new(p.x, p.y))
+    };
+    touch
+        .map(|points| {
+            points
+                .iter()
+                .map(|t| SiteCurve::Segment {
+                    start: apex,
+                    end: Point3::new(t.x, t.y, base.z),
+                })
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// The part of a sphere's outline seen from the eye that lies on its upper half.
+///
+/// The lines of sight from an eye at distance D from the centre touch a sphere of radius R
+/// on a circle of radius R sqrt(1 - R^2 / D^2) whose centre lies R^2 / D from the sphere's
+/// centre towards the eye (the tangent cone; same right-angle fact as for a circle).
+fn dome_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteCurve> {
+    let towards = eye - centre;
+    let distance = towards.norm();
+    if distance <= radius * (1.0 + 1e-12) {
+        return None;
+    }
+    let n = towards / distance;
+    let rim_centre = centre + n * (radius * radius / distance);
+    let rim_radius = radius * ((distance - radius) * (distance + radius)).sqrt() / distance;
+    let rim_height = rim_centre.z - centre.z;
+    // u horizontal and across the line of sight; v completes the rim's plane, pointing up.
+    let horizontal = Vector3::new(-n.y, n.x, 0.0);
+    if horizontal.norm() < 1e-12 {
+        // Straight above or below the centre: the rim is a level circle.
+        return (rim_height > 0.0).then(|| SiteCurve::Ellipse {
+            centre: rim_centre,
+            u: Vector3::x() * rim_radius,
+            v: Vector3::y() * rim_radius,
+            start: 0.0,
+            sweep: 2.0 * PI,
+        });
+    }
+    let u = horizontal.normalize();
+    let mut v = n.cross(&u);
+    if v.z < 0.0 {
+        v = -v;
+    }
+    // Height above the equator: rim_height + rim_radius v.z sin t >= 0.
+    let k = -rim_height / (rim_radius * v.z);
+    let (start, sweep) = if v.z <= 1e-12 {
+        if rim_height >= 0.0 {
+            (0.0, 2.0 * PI)
+        } else {
+            return None;
+        }
+    } else if k <= -1.0 {
+        (0.0, 2.0 * PI)
+    } else if k >= 1.0 {
+        return None;
+    } else {
+        let low = k.asin();
+        (low, PI - 2.0 * low)
+    };
+    Some(SiteCurve::Ellipse {
+        centre: rim_centre,
+        u: u * rim_radius,
+        v: v * rim_radius,
+        start,
+        sweep,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tangent_points_are_at_right_angles_to_their_radii() {
+        let centre = Vector2::new(1.0, 2.0);
+        let from = Vector2::new(6.0, -1.0);
+        let [a, b] = tangent_points(centre, 1.5, from).unwrap();
+        for t in [a, b] {
+            assert!(((t - centre).norm() - 1.5).abs() < 1e-12);
+            assert!((t - centre).dot(&(from - t)).abs() < 1e-12);
+        }
+        assert!(tangent_points(centre, 1.5, centre).is_none());
+    }
+
+    #[test]
+    fn dome_rim_from_the_side_is_a_half_circle() {
+        // Eye level with the centre: the rim's upper half is the half above the equator.
+        let rim = dome_rim(Point3::origin(), 1.0, &Point3::new(0.0, -4.0, 0.0)).unwrap();
+        let SiteCurve::Ellipse { start, sweep, .. } = rim else {
+            panic!()
+        };
+        assert!(start.abs() < 1e-12 && (sweep - PI).abs() < 1e-12);
+    }
+
+    #[test]
+    fn dome_rim_seen_from_above_is_whole() {
+        let rim = dome_rim(Point3::origin(), 1.0, &Point3::new(0.3, -0.2, 5.0)).unwrap();
+        let SiteCurve::Ellipse { sweep, .. } = rim else {
+            panic!()
+        };
+        assert!((sweep - 2.0 * PI).abs() < 1e-12);
+    }
+}
