@@ -1,7 +1,8 @@
 //! The site's edges as seen from one standpoint.
 
 use crate::plane::{Flattener, PolylineSet};
-use crate::scene::{Edge, ItemId, Site};
+use crate::scene::{Edge, ItemId, Marker, Site, SiteCurve};
+use nalgebra::{Point3, Vector3};
 use crate::sphere::{Degeneracy, ViewFrame};
 
 /// An edge left out because it has no drawable image from the standpoint.
@@ -23,10 +24,13 @@ const EDGES_PER_RUN: usize = 2048;
 /// the runs' polylines are joined in edge order, so the result does not depend on the
 /// number of cores.
 pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wireframe {
-    // The smooth mesh edges on the outline from this eye join the fixed edges; they are
-    // numbered after them in the list of skipped edges.
+    // The edges that depend on the eye (mesh silhouettes, the outlines of round items,
+    // point markers) join the fixed edges; they are numbered after them in the list of
+    // skipped edges.
     let eye = view.eye();
-    let outlines = site.outline_edges_from(&eye);
+    let mut outlines = site.outline_edges_from(&eye);
+    let arm = MARKER_ARM_PX * std::f64::consts::TAU / flattener.map().width();
+    outlines.extend(site.markers.iter().flat_map(|m| marker_cross(m, &eye, arm)));
     let runs: Vec<&[Edge]> = site
         .edges
         .chunks(EDGES_PER_RUN)
@@ -88,6 +92,39 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
         skipped.extend(part_skipped);
     }
     Wireframe { layers, skipped }
+}
+
+/// Half the width of a point marker's cross, in pixels.
+const MARKER_ARM_PX: f64 = 6.0;
+
+/// A point marker as an upright cross seen square-on from the eye: a vertical arm and a
+/// level arm across the line of sight, each reaching `arm` radians either side of the point
+/// (tan(arm) times its distance). None for a marker at the eye.
+pub fn marker_cross(marker: &Marker, eye: &Point3<f64>, arm: f64) -> Vec<Edge> {
+    let towards = marker.at - eye;
+    let distance = towards.norm();
+    if distance == 0.0 {
+        return Vec::new();
+    }
+    let reach = distance * arm.tan();
+    let level = Vector3::new(-towards.y, towards.x, 0.0);
+    // Straight above or below the eye any level direction is across the line of sight.
+    let across = if level.norm() > 1e-12 * distance {
+        level.normalize()
+    } else {
+        Vector3::x()
+    };
+    let upright = towards.cross(&across).normalize();
+    [across, upright]
+        .iter()
+        .map(|arm| Edge {
+            curve: SiteCurve::Segment {
+                start: marker.at - arm * reach,
+                end: marker.at + arm * reach,
+            },
+            item: marker.item,
+        })
+        .collect()
 }
 
 /// The wireframe of a site from one standpoint: one set of polylines for each of the

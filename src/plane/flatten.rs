@@ -151,6 +151,10 @@ impl Flattener {
         }
     }
 
+    pub fn map(&self) -> Equirect {
+        self.map
+    }
+
     /// Appends the image of `curve` to `out`: one polyline for each stretch between the
     /// seam and pole crossings.
     pub fn flatten(&mut self, curve: &SphereCurve, out: &mut PolylineSet) {

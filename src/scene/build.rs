@@ -59,13 +59,30 @@ impl Placement {
 
 /// `v` turned clockwise (seen from above, x east and y north) by `angle` radians.
 pub fn turn_clockwise(v: Vector2<f64>, angle: f64) -> Vector2<f64> {
-    let (sin, cos) = angle.sin_cos();
+    let (sin, cos) = sin_cos_of_turn(angle);
     Vector2::new(v.x * cos + v.y * sin, -v.x * sin + v.y * cos)
+}
+
+/// Sine and cosine, exact at whole quarter turns: buildings square to the compass are
+/// the usual case, and their corners should land on the numbers written in the scene.
+pub fn sin_cos_of_turn(angle: f64) -> (f64, f64) {
+    let quarters = angle / (TAU / 4.0);
+    let nearest = quarters.round();
+    if (quarters - nearest).abs() < 1e-12 {
+        match (nearest as i64).rem_euclid(4) {
+            0 => (0.0, 1.0),
+            1 => (1.0, 0.0),
+            2 => (0.0, -1.0),
+            _ => (-1.0, 0.0),
+        }
+    } else {
+        angle.sin_cos()
+    }
 }
 
 /// The unit plan vector pointing at an azimuth (radians clockwise from north).
 pub fn plan_direction(azimuth: f64) -> Vector2<f64> {
-    let (sin, cos) = azimuth.sin_cos();
+    let (sin, cos) = sin_cos_of_turn(azimuth);
     Vector2::new(sin, cos)
 }
 

@@ -1,0 +1,208 @@
+//! What `pansite check` reports about a site: what it holds, how far it reaches, and
+//! whether each standpoint stands somewhere a person could (not inside a solid, not under
+//! the ground).
+
+use super::site::{ItemId, Site, SiteCurve, Standpoint};
+use nalgebra::{Point3, Vector3};
+use std::collections::BTreeMap;
+use std::f64::consts::TAU;
+
+/// The kinds of item whose faces close a solid one cannot stand in.
+const SOLID_KINDS: &[&str] = &[
+    "block", "footprint", "arch", "arcade", "column", "tower", "dome", "stairs",
+];
+
+/// A summary of a site.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Survey {
+    /// How many items of each kind.
+    pub items_by_kind: BTreeMap<&'static str, usize>,
+    pub edges: usize,
+    pub faces: usize,
+    /// Round shapes whose outline is found from each eye.
+    pub outlines: usize,
+    pub markers: usize,
+    /// The box holding every edge and face, `None` for an empty site.
+    pub bounds: Option<(Point3<f64>, Point3<f64>)>,
+    pub standpoints: Vec<StandpointCheck>,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct StandpointCheck {
+    pub name: String,
+    pub eye: Point3<f64>,
+    /// The solid items the eye is inside.
+    pub inside: Vec<ItemId>,
+    /// The eye is below the site's datum (z = 0).
+    pub underground: bool,
+}
+
+pub fn survey(site: &Site) -> Survey {
+    let mut items_by_kind = BTreeMap::new();
+    for item in &site.items {
+        *items_by_kind.entry(item.kind).or_insert(0) += 1;
+    }
+    Survey {
+        items_by_kind,
+        edges: site.edges.len(),
+        faces: site.faces.len(),
+        outlines: site.outlines.len(),
+        markers: site.markers.len(),
+        bounds: bounds(site),
+        standpoints: site
+            .standpoints
+            .iter()
+            .map(|s| check_standpoint(site, s))
+            .collect(),
+    }
+}
+
+fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
+    let eye = standpoint.eye();
+    StandpointCheck {
+        name: standpoint.name.clone(),
+        eye,
+        inside: solids_enclosing(site, &eye),
+        underground: eye.z < 0.0,
+    }
+}
+
+/// The solid items whose faces enclose `point`: a ray from it crosses their surface an odd
+/// number of times (the parity rule of point-in-polyhedron tests). The ray's direction is
+/// fixed and oblique so that it does not run along the level and upright faces of
+/// buildings.
+pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
+    let ray = Vector3::new(0.280_573, 0.496_614, 0.821_411).normalize();
+    let mut crossings: BTreeMap<u32, usize> = BTreeMap::new();
+    for face in &site.faces {
+        let solid = site
+            .items
+            .get(face.item.0 as usize)
+            .is_some_and(|item| SOLID_KINDS.contains(&item.kind));
+        if solid && ray_hits_triangle(point, &ray, &face.corners) {
+            *crossings.entry(face.item.0).or_insert(0) += 1;
+        }
+    }
+    crossings
+        .into_iter()
+        .filter(|(_, count)| count % 2 == 1)
+        .map(|(item, _)| ItemId(item))
+        .collect()
+}
+
+/// Whether the ray from `origin` along `direction` passes through the triangle (Moeller
+/// and Trumbore, "Fast, minimum storage ray-triangle intersection", Journal of Graphics
+/// Tools 2(1), 1997).
+pub fn ray_hits_triangle(
+    origin: &Point3<f64>,
+    direction: &Vector3<f64>,
+    [a, b, c]: &[Point3<f64>; 3],
+) -> bool {
+    let (ab, ac) = (b - a, c - a);
+    let p = direction.cross(&ac);
+    let determinant = ab.dot(&p);
+    if determinant.abs() < 1e-14 * ab.norm() * ac.norm() {
+        return false;
+    }
+    let to_origin = origin - a;
+    let u = to_origin.dot(&p) / determinant;
+    if !(0.0..=1.0).contains(&u) {
+        return false;
+    }
+    let q = to_origin.cross(&ab);
+    let v = direction.dot(&q) / determinant;
+    if v < 0.0 || u + v > 1.0 {
+        return false;
+    }
+    ac.dot(&q) / determinant > 0.0
+}
+
+/// The box holding every edge (curves exactly) and face of the site.
+pub fn bounds(site: &Site) -> Option<(Point3<f64>, Point3<f64>)> {
+    let mut lo = Point3::new(f64::INFINITY, f64::INFINITY, f64::INFINITY);
+    let mut hi = -lo;
+    let mut take = |p: Point3<f64>| {
+        lo = lo.inf(&p);
+        hi = hi.sup(&p);
+    };
+    for edge in &site.edges {
+        match edge.curve {
+            SiteCurve::Segment { start, end } => {
+                take(start);
+                take(end);
+            }
+            SiteCurve::Ellipse {
+                centre,
+                u,
+                v,
+                start,
+                sweep,
+            } => {
+                for t in ellipse_extreme_angles(&u, &v, start, sweep) {
+                    take(centre + u * t.cos() + v * t.sin());
+                }
+            }
+        }
+    }
+    for face in &site.faces {
+        face.corners.iter().copied().for_each(&mut take);
+    }
+    for marker in &site.markers {
+        take(marker.at);
+    }
+    (lo.x <= hi.x).then_some((lo, hi))
+}
+
+/// The parameters where `u cos t + v sin t` reaches its least and greatest x, y and z
+/// within the arc (each coordinate is extreme where its derivative vanishes, at
+/// t = atan2(v_i, u_i) and half a turn on), and the arc's ends.
+fn ellipse_extreme_angles(u: &Vector3<f64>, v: &Vector3<f64>, start: f64, sweep: f64) -> Vec<f64> {
+    let mut angles = vec![start, start + sweep];
+    for i in 0..3 {
+        let first = v[i].atan2(u[i]);
+        for candidate in [first, first + TAU / 2.0] {
+            let into = (candidate - start).rem_euclid(TAU);
+            if into <= sweep {
+                angles.push(start + into);
+            }
+        }
+    }
+    angles
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scene::parse_scene;
+    use std::path::Path;
+
+    fn site(text: &str) -> Site {
+        parse_scene(text.as_bytes(), Path::new("t.ron"), "t").unwrap()
+    }
+
+    #[test]
+    fn a_standpoint_inside_a_block_is_found() {
+        let site = site(
+            "Scene(standpoints: [(name: \"in\", x: 2, y: 1), (name: \"out\", x: 9, y: 1)], \
+             items: [Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)])",
+        );
+        let survey = survey(&site);
+        assert_eq!(survey.standpoints[0].inside, vec![ItemId(0)]);
+        assert!(survey.standpoints[1].inside.is_empty());
+        let (lo, hi) = survey.bounds.unwrap();
+        assert_eq!((lo, hi), (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0)));
+    }
+
+    #[test]
+    fn a_half_circle_arc_reaches_its_radius_only_where_it_goes() {
+        // The upper half of a unit circle in the xz plane: x from -1 to 1, z from 0 to 1.
+        let angles = ellipse_extreme_angles(&Vector3::x(), &Vector3::z(), 0.0, TAU / 2.0);
+        let points: Vec<Vector3<f64>> = angles
+            .iter()
+            .map(|t| Vector3::x() * t.cos() + Vector3::z() * t.sin())
+            .collect();
+        let top = points.iter().map(|p| p.z).fold(f64::MIN, f64::max);
+        let bottom = points.iter().map(|p| p.z).fold(f64::MAX, f64::min);
+        assert!((top - 1.0).abs() < 1e-15 && bottom.abs() < 1e-15);
+    }
+}
