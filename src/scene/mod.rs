@@ -9,6 +9,7 @@ mod expand;
 mod file;
 mod format;
 mod load;
+mod locate;
 mod mesh;
 mod obj;
 mod site;
