@@ -13,6 +13,7 @@ mod locate;
 mod mesh;
 mod obj;
 mod site;
+mod suggest;
 
 pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
