@@ -2,8 +2,8 @@
 
 use crate::plane::{Flattener, PolylineSet};
 use crate::scene::{Edge, ItemId, Marker, Site, SiteCurve};
-use nalgebra::{Point3, Vector3};
 use crate::sphere::{Degeneracy, ViewFrame};
+use nalgebra::{Point3, Vector3};
 
 /// An edge left out because it has no drawable image from the standpoint.
 #[derive(Clone, Debug, PartialEq)]

@@ -264,7 +264,6 @@ macro_rules! each_spec {
         }
     };
 }
-use each_spec;
 
 /// Every kind of item a scene can hold.
 #[derive(Debug, Deserialize)]

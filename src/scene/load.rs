@@ -3,8 +3,9 @@
 use super::expand::{expand, ExpandError};
 use super::file::read_input;
 use super::format::SceneFile;
-use super::locate::{describe_path, item_spans, ItemSpan};
+use super::locate::{describe_path, item_path_at, item_spans, ItemSpan};
 use super::obj::read_obj;
+use super::suggest::explain;
 use super::{add_mesh, MeshPlacement, MeshStats, Site};
 use crate::error::{Error, Result};
 use ron::extensions::Extensions;
@@ -61,11 +62,20 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
     }
     let options = ron::Options::default()
         .with_default_extension(Extensions::IMPLICIT_SOME | Extensions::UNWRAP_VARIANT_NEWTYPES);
-    let file: SceneFile = options.from_str(text).map_err(|e| Error::Scene {
-        path: path.to_owned(),
-        line: e.span.start.line,
-        column: e.span.start.col,
-        message: e.code.to_string(),
+    let file: SceneFile = options.from_str(text).map_err(|e| {
+        let (line, column) = (e.span.start.line, e.span.start.col);
+        let spans = item_spans(text);
+        let at = item_path_at(&spans, line, column);
+        let message = match describe_path(&spans, &at) {
+            Some(item) => format!("in {item}: {}", explain(&e.code)),
+            None => explain(&e.code),
+        };
+        Error::Scene {
+            path: path.to_owned(),
+            line,
+            column,
+            message,
+        }
     })?;
     expand(file, fallback_name, path).map_err(|e| match e {
         ExpandError::Item { path: at, message } => {

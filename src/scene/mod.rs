@@ -16,10 +16,10 @@ mod mesh;
 mod obj;
 mod outline;
 mod site;
+mod suggest;
 mod survey;
 
 pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
-pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};
 pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
@@ -29,3 +29,4 @@ pub use site::{
     Edge, Face, ItemId, ItemInfo, Marker, SilhouetteEdge, Site, SiteCurve, Standpoint,
     DEFAULT_EYE_HEIGHT,
 };
+pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

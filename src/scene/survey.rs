@@ -9,7 +9,14 @@ use std::f64::consts::TAU;
 
 /// The kinds of item whose faces close a solid one cannot stand in.
 const SOLID_KINDS: &[&str] = &[
-    "block", "footprint", "arch", "arcade", "column", "tower", "dome", "stairs",
+    "block",
+    "footprint",
+    "arch",
+    "arcade",
+    "column",
+    "tower",
+    "dome",
+    "stairs",
 ];
 
 /// A summary of a site.
@@ -190,7 +197,10 @@ mod tests {
         assert_eq!(survey.standpoints[0].inside, vec![ItemId(0)]);
         assert!(survey.standpoints[1].inside.is_empty());
         let (lo, hi) = survey.bounds.unwrap();
-        assert_eq!((lo, hi), (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0)));
+        assert_eq!(
+            (lo, hi),
+            (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0))
+        );
     }
 
     #[test]
