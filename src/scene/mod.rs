@@ -20,6 +20,9 @@ mod suggest;
 mod survey;
 
 pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
+
+/// A commented scene to begin from (`pansite new`).
+pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};

@@ -19,6 +19,24 @@ pub struct Cli {
 pub enum Command {
     /// Draw a scene from a standpoint as an equirectangular PNG underlay.
     Render(RenderArgs),
+    /// Read a scene and report what it holds, its extent and its standpoints, with
+    /// warnings (a standpoint inside a solid or under the ground).
+    Check(CheckArgs),
+    /// Write a commented starter scene to begin from.
+    New(NewArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// The scene file (RON), or a model (Wavefront .obj).
+    pub scene: PathBuf,
+}
+
+#[derive(Debug, Args)]
+pub struct NewArgs {
+    /// Where to write it; an existing file is never replaced.
+    #[arg(default_value = "scene.ron")]
+    pub file: PathBuf,
 }
 
 #[derive(Debug, Args)]

@@ -1,14 +1,15 @@
 //! The `pansite` command: parse, call the library, report.
 
 mod args;
+mod check;
 
 use anyhow::Context;
-use args::{Cli, Command, RenderArgs, UnitArg, UpArg};
+use args::{Cli, Command, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::render::{render_png, render_png_to, RenderSettings};
 use pansite::scene::{
     load_obj, load_scene, parse_scene, MeshPlacement, Site, Standpoint, Unit, UpAxis,
-    DEFAULT_EYE_HEIGHT,
+    DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
 use std::io::{Read, Write};
@@ -29,6 +30,8 @@ fn main() -> ExitCode {
     };
     let result = match cli.command {
         Command::Render(args) => render(&args),
+        Command::Check(args) => check::check(&args.scene),
+        Command::New(args) => new_scene(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -115,6 +118,44 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             ms(both)
         );
     }
+    Ok(())
+}
+
+/// Writes the starter scene, refusing to replace a file that is already there.
+fn new_scene(args: &NewArgs) -> anyhow::Result<()> {
+    use std::fs::OpenOptions;
+    let path = &args.file;
+    let mut file = match OpenOptions::new().write(true).create_new(true).open(path) {
+        Ok(file) => file,
+        Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {
+            return Err(Error::Setting(format!(
+                "{} already exists; choose another name (it was left as it is)",
+                path.display()
+            ))
+            .into())
+        }
+        Err(source) => {
+            return Err(Error::Write {
+                path: path.clone(),
+                source,
+            }
+            .into())
+        }
+    };
+    if let Err(source) = file.write_all(STARTER_SCENE.as_bytes()) {
+        drop(file);
+        let _ = std::fs::remove_file(path);
+        return Err(Error::Write {
+            path: path.clone(),
+            source,
+        }
+        .into());
+    }
+    eprintln!(
+        "pansite: wrote {}; draw it with: pansite render {}",
+        path.display(),
+        path.display()
+    );
     Ok(())
 }
 
