@@ -1,0 +1,356 @@
+//! The site vocabulary checked against geometry from outside the project: Euler's
+//! polyhedron formula for the solids' edge counts, the tangent-to-a-circle facts for round
+//! outlines, the international foot, hand-computed counts and extents, and the exact curves
+//! of the curved items flattened within the tolerance from random standpoints.
+
+use nalgebra::{Point3, Vector2};
+use pansite::plane::{flatten, Equirect, ImagePoint, PolylineSet};
+use pansite::scene::{
+    bounds, parse_scene, tangent_points, ItemId, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+    SEATED_EYE_HEIGHT,
+};
+use pansite::sphere::{azimuth_elevation, ViewFrame};
+use proptest::prelude::*;
+use std::path::Path;
+
+mod common;
+use common::{assert_near, distance_to_polylines};
+
+fn site(text: &str) -> Site {
+    parse_scene(text.as_bytes(), Path::new("test.ron"), "test").unwrap_or_else(|e| panic!("{e}"))
+}
+
+fn scene_with(items: &str) -> Site {
+    site(&format!("Scene(items: [{items}])"))
+}
+
+/// Distinct corners of a site's straight edges (to a micrometre).
+fn vertex_count(site: &Site) -> usize {
+    let mut corners: Vec<[i64; 3]> = Vec::new();
+    for edge in &site.edges {
+        if let SiteCurve::Segment { start, end } = edge.curve {
+            for p in [start, end] {
+                corners.push(p.coords.map(|c| (c * 1e6).round() as i64).into());
+            }
+        }
+    }
+    corners.sort();
+    corners.dedup();
+    corners.len()
+}
+
+/// Euler's polyhedron formula V - E + F = 2 (Euler 1758; any text on polyhedra, e.g.
+/// Coxeter, "Regular Polytopes", 1973, section 1.6, from memory) holds for a block's drawn
+/// corners and edges and its flat faces counted by hand.
+#[test]
+fn block_roofs_satisfy_eulers_formula() {
+    let cases = [
+        // roof, faces (walls + floor + roof planes), edges counted by hand
+        ("Flat", 6, 12),
+        ("Gable(ridge: 8)", 7, 15),
+        ("Gable(ridge: 8, along: Depth)", 7, 15),
+        ("Hip(ridge: 8)", 9, 17),
+        ("Pyramid(apex: 9)", 9, 16),
+        ("Shed(back: 7)", 6, 12),
+    ];
+    for (roof, faces, edges) in cases {
+        let site = scene_with(&format!(
+            "Block(at: Corner(0, 0), width: 10, depth: 6, height: 5, roof: {roof})"
+        ));
+        let (v, e) = (vertex_count(&site) as i64, site.edges.len() as i64);
+        assert_eq!(e, edges, "{roof}: edges");
+        assert_eq!(
+            v - e + faces,
+            2,
+            "{roof}: V - E + F with V = {v}, E = {e}, F = {faces}"
+        );
+    }
+}
+
+#[test]
+fn hip_roof_ridge_and_gable_extent_by_hand() {
+    // A hip roof of one pitch on a 10 x 6 plan: the ridge is 10 - 6 = 4 long, 3 in from
+    // each end. Its ends are the highest corners.
+    let site =
+        scene_with("Block(at: Corner(0, 0), width: 10, depth: 6, height: 5, roof: Hip(ridge: 8))");
+    let ridge: Vec<(Point3<f64>, Point3<f64>)> = site
+        .edges
+        .iter()
+        .filter_map(|e| match e.curve {
+            SiteCurve::Segment { start, end } if start.z == 8.0 && end.z == 8.0 => {
+                Some((start, end))
+            }
+            _ => None,
+        })
+        .collect();
+    assert_eq!(ridge.len(), 1);
+    let (a, b) = ridge[0];
+    assert_near((a - b).norm(), 4.0, 1e-12);
+    assert_near(a.x.min(b.x), 3.0, 1e-12);
+    // A gable roof with a 0.5 overhang on a 10 x 6 plan, ridge 3 above the eaves (slope 1):
+    // the eaves drop 0.5 below the wall tops and the roof reaches 0.5 beyond every wall.
+    let site = scene_with(
+        "Block(at: Corner(0, 0), width: 10, depth: 6, height: 5, roof: Gable(ridge: 8, overhang: 0.5))",
+    );
+    let (lo, hi) = bounds(&site).unwrap();
+    for (got, want) in [
+        (lo.x, -0.5),
+        (lo.y, -0.5),
+        (lo.z, 0.0),
+        (hi.x, 10.5),
+        (hi.y, 6.5),
+        (hi.z, 8.0),
+    ] {
+        assert_near(got, want, 1e-12);
+    }
+    let eaves = site
+        .faces
+        .iter()
+        .flat_map(|f| f.corners)
+        .map(|p| p.z)
+        .fold(f64::MAX, |m, z| if z > 1.0 { m.min(z) } else { m });
+    assert_near(eaves, 4.5, 1e-12);
+}
+
+#[test]
+fn openings_with_reveals_and_storey_lines_by_hand() {
+    // Three windows with reveals in the front: 4 + 4 + 4 edges each. A storey line at 2.9
+    // runs below the windows (sill 3.2), uninterrupted; one at 4.0 is cut by all three.
+    let plain = scene_with("Block(at: Corner(0, 0), width: 10, depth: 6, height: 8)");
+    let site = scene_with(
+        "Block(at: Corner(0, 0), width: 10, depth: 6, height: 8, \
+         openings: [(wall: Front, count: 3, width: 1, height: 1.5, sill: 3.2, reveal: 0.2)], \
+         storeys: [2.9, 4.0])",
+    );
+    // At 2.9 one line on each of the 4 walls; at 4.0 four pieces on the front and one on
+    // each of the other 3 walls.
+    let storey_pieces = 4 + (4 + 3);
+    assert_eq!(plain.edges.len(), 12);
+    assert_eq!(site.edges.len(), 12 + 3 * 12 + storey_pieces);
+    // Windows that do not fit are refused with the item named.
+    let text =
+        "Scene(items: [Block(label: \"narrow\", at: Corner(0, 0), width: 3, depth: 3, height: 3, \
+                openings: [(wall: Front, count: 4, width: 1, height: 1)])])";
+    let error = parse_scene(text.as_bytes(), Path::new("t.ron"), "t")
+        .unwrap_err()
+        .to_string();
+    assert!(
+        error.contains("Block \"narrow\"") && error.contains("do not fit"),
+        "{error}"
+    );
+}
+
+#[test]
+fn a_footprint_is_walls_on_its_outline() {
+    // An L-shaped footprint of 6 corners: 6 + 6 + 6 edges (foot, corners, top).
+    let site = scene_with(
+        "Footprint(points: [(0, 0), (8, 0), (8, 4), (4, 4), (4, 9), (0, 9)], height: 6)",
+    );
+    assert_eq!(site.edges.len(), 18);
+    assert_eq!(vertex_count(&site), 12);
+    // A hipped roof on a convex footprint: every face rises at the pitch. On a square of
+    // side 8 at 45 degrees the apex stands 4 above the eaves.
+    let site = scene_with(
+        "Footprint(points: [(0, 0), (8, 0), (8, 8), (0, 8)], height: 6, roof: Hipped(pitch: 45))",
+    );
+    let (_, hi) = bounds(&site).unwrap();
+    assert_near(hi.z, 10.0, 1e-12);
+    // A self-crossing outline and a hipped roof on an L are refused.
+    for bad in [
+        "Footprint(points: [(0, 0), (4, 4), (4, 0), (0, 4)], height: 3)",
+        "Footprint(points: [(0, 0), (8, 0), (8, 4), (4, 4), (4, 9), (0, 9)], height: 6, roof: Hipped(pitch: 30))",
+    ] {
+        let text = format!("Scene(items: [{bad}])");
+        assert!(parse_scene(text.as_bytes(), Path::new("t.ron"), "t").is_err(), "{bad}");
+    }
+}
+
+/// The outline generators of a column from an eye at distance d from its axis touch the
+/// circle at acos(r / d) either side of the direction to the eye, and the tangent from the
+/// eye's foot is sqrt(d^2 - r^2) long (the radius meets the tangent at a right angle:
+/// Euclid, Elements III.18; standard geometry of tangents to a circle).
+#[test]
+fn column_outline_touches_where_the_tangent_rule_says() {
+    let (r, d) = (0.4, 5.0);
+    let site = scene_with(&format!(
+        "Column(at: (0, 0), diameter: {}, height: 3)",
+        2.0 * r
+    ));
+    let eye = Point3::new(0.0, -d, 1.6);
+    let outline = site.outline_edges_from(&eye);
+    assert_eq!(outline.len(), 2);
+    for edge in outline {
+        let SiteCurve::Segment { start, end } = edge.curve else {
+            panic!()
+        };
+        let touch = Vector2::new(start.x, start.y);
+        let to_eye = Vector2::new(0.0, -d);
+        let angle = touch.angle(&to_eye);
+        assert_near(angle, (r / d).acos(), 1e-12);
+        assert_near((touch - to_eye).norm(), (d * d - r * r).sqrt(), 1e-12);
+        assert_eq!((start.z, end.z), (0.0, 3.0));
+    }
+    // From inside the column there is no outline.
+    assert!(site
+        .outline_edges_from(&Point3::new(0.1, 0.0, 1.6))
+        .is_empty());
+    assert!(tangent_points(Vector2::zeros(), 1.0, Vector2::new(0.5, 0.0)).is_none());
+}
+
+/// Every line of sight to the rim of a dome grazes the sphere: it is at right angles to the
+/// radius where it touches (same tangent fact, in three dimensions).
+#[test]
+fn dome_rim_is_where_sight_lines_graze_the_sphere() {
+    let site = scene_with("Dome(at: (3, 4), diameter: 6, drum: 2)");
+    let centre = Point3::new(3.0, 4.0, 2.0);
+    for eye in [
+        Point3::new(-10.0, -6.0, 1.6),
+        Point3::new(3.5, 4.0, 20.0),
+        Point3::new(3.0, 12.0, 2.0),
+    ] {
+        let rims: Vec<SiteCurve> = site
+            .outline_edges_from(&eye)
+            .into_iter()
+            .map(|e| e.curve)
+            .filter(|c| matches!(c, SiteCurve::Ellipse { .. }))
+            .collect();
+        assert_eq!(rims.len(), 1, "{eye}");
+        let SiteCurve::Ellipse {
+            centre: c,
+            u,
+            v,
+            start,
+            sweep,
+        } = rims[0]
+        else {
+            panic!()
+        };
+        for i in 0..=20 {
+            let t = start + sweep * i as f64 / 20.0;
+            let p = c + u * t.cos() + v * t.sin();
+            assert_near((p - centre).norm(), 3.0, 1e-12);
+            assert_near((p - eye).dot(&(p - centre)), 0.0, 1e-9);
+            assert!(p.z >= centre.z - 1e-9, "{p} is below the dome's springing");
+        }
+    }
+}
+
+/// One international foot is 0.3048 m exactly (international yard and pound agreement,
+/// 1959).
+#[test]
+fn scenes_in_feet_are_drawn_in_metres() {
+    let site = site(
+        "Scene(unit: Foot, standpoints: [(name: \"a\", x: 10, y: 0), (name: \"b\", x: 0, y: 0, eye_height: 5)], \
+         items: [Block(at: Corner(0, 0), width: 10, depth: 10, height: 20)])",
+    );
+    let (_, hi) = bounds(&site).unwrap();
+    assert_near(hi.z, 6.096, 1e-12);
+    assert_near(site.standpoints[0].x, 3.048, 1e-12);
+    // The default eye height is a person's, in metres, whatever the unit.
+    assert_eq!(site.standpoints[0].eye_height, DEFAULT_EYE_HEIGHT);
+    assert_near(site.standpoints[1].eye_height, 1.524, 1e-12);
+}
+
+#[test]
+fn postures_and_the_default_standpoint() {
+    let site = site(
+        "Scene(default_standpoint: \"bench\", standpoints: [(name: \"kerb\", x: 0, y: 0), \
+         (name: \"bench\", x: 1, y: 1, posture: Seated)], items: [])",
+    );
+    assert_eq!(site.default_standpoint().unwrap().name, "bench");
+    assert_eq!(
+        site.default_standpoint().unwrap().eye_height,
+        SEATED_EYE_HEIGHT
+    );
+    let text =
+        "Scene(default_standpoint: \"roof\", standpoints: [(name: \"a\", x: 0, y: 0)], items: [])";
+    let error = parse_scene(text.as_bytes(), Path::new("t.ron"), "t")
+        .unwrap_err()
+        .to_string();
+    assert!(
+        error.contains("roof") && error.contains("t.ron:1:"),
+        "{error}"
+    );
+}
+
+#[test]
+fn groups_and_repeats_place_their_items() {
+    // A repeat of four columns 5 m apart inside a group at (100, 0) turned a quarter
+    // clockwise: the row's step south turns to west, so it runs west from (100, 0).
+    let site = scene_with(
+        "Group(at: (100, 0, 0), turn: 90, layer: \"lamps\", items: [Repeat(count: 4, step: (0, -5, 0), \
+         items: [Column(label: \"lamp\", at: (0, 0), diameter: 0.2, height: 4)])])",
+    );
+    assert_eq!(site.items.len(), 4);
+    assert_eq!(site.describe_item(ItemId(3)), "column \"lamp 4\" (item 4)");
+    assert_eq!(site.items[2].layer.as_deref(), Some("lamps"));
+    let (lo, hi) = bounds(&site).unwrap();
+    assert_near(lo.x, 84.9, 1e-9);
+    assert_near(hi.x, 100.1, 1e-9);
+    assert_near(lo.y, -0.1, 1e-9);
+    assert_near(hi.y, 0.1, 1e-9);
+}
+
+// --- Curved items flattened from random standpoints --------------------------------------
+
+const WIDTH: f64 = 2048.0;
+const TOLERANCE: f64 = 0.1;
+
+/// The scene whose curves are checked: columns, a coned and a domed tower, a dome.
+const CURVED: &str = "Scene(items: [
+    Column(at: (0, 0), diameter: 0.6, height: 4, plinth: 0.3, capital: 0.4),
+    Tower(at: (8, 3), diameter: 4, height: 9, roof: Cone(height: 5)),
+    Tower(at: (-7, 5), diameter: 3, height: 6, roof: Dome),
+    Dome(at: (0, 12), diameter: 10, drum: 3),
+])";
+
+/// The distance from the drawing to the true image of the curve, sampled densely
+/// (the image of P(t) / |P(t)|, the definition itself), away from the pole rows.
+fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> f64 {
+    let map = Equirect::from_size_px(WIDTH, WIDTH / 2.0);
+    let Ok(sphere) = view.sphere_curve(curve) else {
+        return 0.0;
+    };
+    let mut set = PolylineSet::new();
+    flatten(&sphere, map, TOLERANCE, &mut set);
+    let lines: Vec<Vec<ImagePoint>> = set.iter().map(|l| l.to_vec()).collect();
+    let mut worst: f64 = 0.0;
+    for i in 0..=1000 {
+        let t = sphere.t0 + (sphere.t1 - sphere.t0) * i as f64 / 1000.0;
+        let (az, el) = azimuth_elevation(&sphere.position(t));
+        let p = map.to_image(az, el);
+        if p.y <= 1.5 * TOLERANCE || p.y >= WIDTH / 2.0 - 1.5 * TOLERANCE {
+            continue;
+        }
+        let miss = [0.0, WIDTH, -WIDTH]
+            .iter()
+            .map(|s| {
+                distance_to_polylines(
+                    ImagePoint::new(p.x + s, p.y),
+                    lines.iter().map(Vec::as_slice),
+                )
+            })
+            .fold(f64::INFINITY, f64::min);
+        worst = worst.max(miss);
+    }
+    worst
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
+
+    #[test]
+    fn curved_items_stay_within_tolerance(
+        x in -15.0..15.0f64, y in -10.0..20.0f64, eye in 0.2..12.0f64,
+        heading in -180.0..180.0f64, pitch in -30.0..30.0f64,
+    ) {
+        let site = site(CURVED);
+        let standpoint = Standpoint::from_degrees("random", x, y, eye, heading, pitch, 0.0);
+        let view = ViewFrame::new(&standpoint);
+        let outlines = site.outline_edges_from(&standpoint.eye());
+        for edge in site.edges.iter().chain(&outlines) {
+            let miss = worst_miss(&view, &edge.curve);
+            prop_assert!(miss <= TOLERANCE * 1.001 + 1e-9, "{:?} missed by {} px", edge.curve, miss);
+        }
+    }
+}
