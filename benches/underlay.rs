@@ -15,6 +15,9 @@
 //!   each quad split in two): parse it and find its drawn edges (boundary, crease and
 //!   silhouette candidates), then the silhouettes from one standpoint; memory in a child.
 //!
+//! - `town block`: 2,000 items of every common kind written out one by one: read, check
+//!   the RON, expand into edges and faces (the 50 ms target), and `check`'s survey.
+//!
 //! Peak memory is measured by running each case once more, as the command does it (load,
 //! then draw, rasterise and encode in bands), in a child process, and reading its
 //! high-water mark (`VmHWM`) from `/proc/self/status`. "image" in that column is the size
@@ -71,6 +74,42 @@ fn town_scene() -> String {
                 }
             }
         }
+    }
+    text.push_str("])\n");
+    text
+}
+
+/// A town block of 2,000 items written out one by one: 200 bays along a street, each a
+/// house with a gable roof, a window grid and a door, two porch columns, front steps, a
+/// lamp, paving, a kerb line, a marked doorstep, an arched gateway and a round bollard.
+fn town_block_scene() -> String {
+    let mut text = String::from(
+        "Scene(standpoints: [(name: \"street\", x: 600, y: -8, heading: 0)], items: [\n",
+    );
+    for bay in 0..200 {
+        let x = 6.0 * bay as f64;
+        let ridge = 9.0 + (bay % 3) as f64;
+        writeln!(
+            text,
+            "Block(label: \"house {bay}\", at: Corner({x}, 0), width: 6, depth: 9, height: 7, \
+             roof: Gable(ridge: {ridge}, overhang: 0.3), storeys: [3.2], openings: [\
+             (wall: Front, count: 2, width: 1, height: 1.5, sill: 4, reveal: 0.15), \
+             (wall: Front, width: 1, height: 2.2, reveal: 0.2)]),
+             Column(at: ({c1}, -1.2), diameter: 0.25, height: 2.8),
+             Column(at: ({c2}, -1.2), diameter: 0.25, height: 2.8),
+             Stairs(at: ({mid}, -1.5), bearing: 0, steps: 3, rise: 0.15, going: 0.3, width: 1.6),
+             Column(label: \"lamp\", at: ({x}, -3.5), diameter: 0.12, height: 4.5),
+             Tiles(corner: ({x}, -3.8, 0), along: (6, 0, 0), across: (0, 2.2, 0), tile: (0.6, 0.6)),
+             Line(from: ({x}, -4, 0), to: ({x6}, -4, 0)),
+             Point(label: \"doorstep {bay}\", at: ({mid}, -0.2, 0.45)),
+             Arch(at: Corner({x}, 12), span: 2.4, springing: 2.2, pier: 0.8, thickness: 0.5),
+             Column(at: ({mid}, -5), diameter: 0.3, height: 0.9),",
+            c1 = x + 2.0,
+            c2 = x + 4.0,
+            mid = x + 3.0,
+            x6 = x + 6.0,
+        )
+        .unwrap();
     }
     text.push_str("])\n");
     text
@@ -376,6 +415,33 @@ fn main() {
     println!(
         "  {} vertices after welding, {} edges: {} creases, {} boundary, {} smooth (silhouette candidates), {} on the outline from one standpoint",
         stats.vertices, stats.edges, stats.creases, stats.boundary, stats.smooth, outlines
+    );
+    let block = town_block_scene();
+    let loads: Vec<(Duration, Duration, usize)> = (0..RUNS)
+        .map(|_| {
+            let started = Instant::now();
+            let site = parse_scene(block.as_bytes(), Path::new("block.ron"), "block").unwrap();
+            let loaded = started.elapsed();
+            let started = Instant::now();
+            let survey = pansite::scene::survey(&site);
+            (loaded, started.elapsed(), survey.edges)
+        })
+        .collect();
+    let items = parse_scene(block.as_bytes(), Path::new("block.ron"), "block")
+        .unwrap()
+        .items
+        .len();
+    let load = median(loads.iter().map(|r| r.0).collect());
+    let check = median(loads.iter().map(|r| r.1).collect());
+    println!();
+    println!(
+        "town block of {items} items ({} edges): read and expand {:.1} ms = {:.2} F (target 50 ms); \
+         check's survey {:.1} ms = {:.2} F",
+        loads[0].2,
+        ms(load),
+        load.as_secs_f64() / floor_time.as_secs_f64(),
+        ms(check),
+        check.as_secs_f64() / floor_time.as_secs_f64(),
     );
     if let Some(peak) = child_peak("floor") {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));

@@ -187,6 +187,7 @@ mod tests {
         all.extend_from_slice(args);
         Cli::try_parse_from(all).map(|cli| match cli.command {
             Command::Render(r) => r,
+            other => panic!("parsed as {other:?}"),
         })
     }
 
