@@ -480,3 +480,64 @@ fn bad_obj_files_name_the_line() {
         &["nowhere.obj"],
     );
 }
+
+#[test]
+fn check_summarises_a_scene_and_warns_of_a_standpoint_in_a_wall() {
+    let dir = Scratch::new("check");
+    dir.write(
+        "yard.ron",
+        "Scene(standpoints: [(name: \"in the shed\", x: 1, y: 1), (name: \"cellar\", x: 9, y: 9, ground: -3)], \
+         items: [Block(label: \"shed\", at: Corner(0, 0), width: 3, depth: 2, height: 2.5, roof: Gable(ridge: 3.2)), \
+         Column(at: (6, 6), diameter: 0.5, height: 3)])",
+    );
+    let out = succeeds(&dir, &["check", "yard.ron"]);
+    let report = String::from_utf8_lossy(&out.stdout);
+    for expected in [
+        "items: 2 (block 1, column 1)",
+        "17 edges", // 15 for the gabled shed, 2 rims for the column
+        "1 round outlines",
+        "extent: x 0.00 to 6.25",
+        "\"in the shed\"",
+        "INSIDE block \"shed\"",
+        "UNDER THE GROUND",
+    ] {
+        assert!(
+            report.contains(expected),
+            "expected {expected:?} in\n{report}"
+        );
+    }
+    let warnings = stderr(&out);
+    assert!(
+        warnings.contains("warning: standpoint \"in the shed\" is inside block \"shed\""),
+        "{warnings}"
+    );
+    assert!(warnings.contains("under the ground"), "{warnings}");
+    // A broken scene: exit 2, the place and the suggestion.
+    dir.write(
+        "broken.ron",
+        "Scene(items: [\n  Colum(at: (0, 0), diameter: 1, height: 2),\n])",
+    );
+    let out = pansite(&dir, &["check", "broken.ron"]);
+    assert_eq!(out.status.code(), Some(2));
+    let text = stderr(&out);
+    assert!(
+        text.contains("broken.ron:2:3") && text.contains("did you mean `Column`"),
+        "{text}"
+    );
+}
+
+#[test]
+fn new_writes_a_starter_scene_and_never_replaces_a_file() {
+    let dir = Scratch::new("new");
+    succeeds(&dir, &["new", "plan.ron"]);
+    succeeds(&dir, &["check", "plan.ron"]);
+    succeeds(
+        &dir,
+        &["render", "plan.ron", "-o", "plan.png", "--size", "512x256"],
+    );
+    let mine = dir.write("mine.ron", "my own work");
+    let out = pansite(&dir, &["new", "mine.ron"]);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains("already exists"));
+    assert_eq!(std::fs::read_to_string(mine).unwrap(), "my own work");
+}

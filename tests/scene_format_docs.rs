@@ -62,8 +62,24 @@ fn every_example_in_the_reference_reads_and_draws() {
 fn every_kind_of_item_has_a_section() {
     let text = std::fs::read_to_string(root().join("docs/scene-format.md")).unwrap();
     let kinds = [
-        "Block", "Footprint", "Road", "Arch", "Arcade", "Column", "Tower", "Dome", "Stairs",
-        "Tiles", "Vault", "Room", "Polyline", "Line", "Point", "Group", "Repeat", "Model",
+        "Block",
+        "Footprint",
+        "Road",
+        "Arch",
+        "Arcade",
+        "Column",
+        "Tower",
+        "Dome",
+        "Stairs",
+        "Tiles",
+        "Vault",
+        "Room",
+        "Polyline",
+        "Line",
+        "Point",
+        "Group",
+        "Repeat",
+        "Model",
     ];
     for kind in kinds {
         let heading = text
@@ -93,7 +109,11 @@ fn example_files_and_bundled_scenes_read_and_draw() {
 
 #[test]
 fn the_starter_scene_reads_and_draws() {
-    let site = parse_scene(STARTER_SCENE.as_bytes(), Path::new("starter.ron"), "starter")
-        .unwrap_or_else(|e| panic!("{e}"));
+    let site = parse_scene(
+        STARTER_SCENE.as_bytes(),
+        Path::new("starter.ron"),
+        "starter",
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
     draws(&site, "the starter scene");
 }
