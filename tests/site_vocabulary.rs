@@ -354,3 +354,17 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn a_block_of_no_height_is_its_plan_with_a_warning() {
+    let site =
+        scene_with("Block(label: \"plot\", at: Corner(0, 0), width: 12, depth: 30, height: 0)");
+    assert_eq!(site.edges.len(), 4);
+    assert!(site.faces.is_empty());
+    assert_eq!(site.warnings.len(), 1);
+    assert!(
+        site.warnings[0].1.contains("no height"),
+        "{:?}",
+        site.warnings
+    );
+}

@@ -278,6 +278,11 @@ impl<'a> ItemBuilder<'a> {
         });
     }
 
+    /// Notes something that looks wrong but can still be drawn.
+    pub fn warn(&mut self, message: impl Into<String>) {
+        self.site.warnings.push((self.item, message.into()));
+    }
+
     pub fn marker(&mut self, at: Point3<f64>) {
         let at = self.place.point(&at);
         self.site.markers.push(Marker {

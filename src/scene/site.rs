@@ -143,6 +143,8 @@ pub struct Site {
     /// Round shapes whose outline depends on the eye (columns, cones, domes).
     pub outlines: Vec<Outline>,
     pub markers: Vec<Marker>,
+    /// Things that look wrong but can still be drawn (a block of no height), by item.
+    pub warnings: Vec<(ItemId, String)>,
 }
 
 impl Site {

@@ -99,7 +99,11 @@ pub fn report(site: &Site, path: &Path) -> String {
 /// What looks wrong, in words.
 pub fn warnings(site: &Site) -> Vec<String> {
     let survey = survey(site);
-    let mut warnings = Vec::new();
+    let mut warnings: Vec<String> = site
+        .warnings
+        .iter()
+        .map(|(item, message)| format!("{} {message}", site.describe_item(*item)))
+        .collect();
     if site.standpoints.is_empty() {
         warnings.push("the scene has no standpoint; render will need --at X,Y".to_owned());
     }

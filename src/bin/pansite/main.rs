@@ -82,6 +82,9 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             .with_context(|| format!("rendering {}", output.display()))?
     };
     if !args.quiet {
+        for (item, message) in &site.warnings {
+            eprintln!("pansite: warning: {} {message}", site.describe_item(*item));
+        }
         for skipped in render.skipped.iter().take(MAX_NAMED_SKIPS) {
             eprintln!(
                 "pansite: warning: skipped an edge of {}: {}",

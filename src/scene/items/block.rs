@@ -5,7 +5,7 @@ use super::super::build::{plan_direction, ItemBuilder};
 use super::super::format::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
 use super::walls::{openings_in_wall, OpeningsSpec, WallChoice};
-use nalgebra::{Vector2, Vector3};
+use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 use std::f64::consts::PI;
 
@@ -82,8 +82,8 @@ pub struct BlockSpec {
     pub width: Positive,
     /// From the front backwards.
     pub depth: Positive,
-    /// To the eaves (the top of the walls).
-    pub height: Positive,
+    /// To the eaves (the top of the walls); 0 draws just the plan on the ground.
+    pub height: NonNegative,
     /// The azimuth (degrees) the front wall faces, outwards; 180 = south-facing, which puts
     /// the width along +x and the depth along +y.
     #[serde(default = "default_facing")]
@@ -148,6 +148,15 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
     b.move_by(Vector3::new(corner.x, corner.y, block.base.0), turn);
+    if height == 0.0 {
+        b.warn("has no height: only its plan is drawn, on the ground");
+        let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)
+            .iter()
+            .map(|p| Point3::new(p.x, p.y, 0.0))
+            .collect();
+        b.path(&plan, true);
+        return Ok(());
+    }
     let rise_above_eaves = |top: f64, what: &str| {
         if top > height {
             Ok(top - height)
