@@ -368,3 +368,19 @@ fn a_block_of_no_height_is_its_plan_with_a_warning() {
         site.warnings
     );
 }
+
+#[test]
+fn a_standpoint_inside_a_block_is_found_and_the_extent_is_exact() {
+    let site = site(
+        "Scene(standpoints: [(name: \"in\", x: 2, y: 1), (name: \"out\", x: 9, y: 1)], \
+         items: [Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)])",
+    );
+    let survey = pansite::scene::survey(&site);
+    assert_eq!(survey.standpoints[0].inside, vec![ItemId(0)]);
+    assert!(survey.standpoints[1].inside.is_empty());
+    let (lo, hi) = survey.bounds.unwrap();
+    assert_eq!(
+        (lo, hi),
+        (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0))
+    );
+}

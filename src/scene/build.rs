@@ -2,8 +2,8 @@
 //! item's own coordinates and placed by a [`Placement`] (the scene's unit, and the moves of
 //! the groups and repeats the item sits in).
 
-use super::outline::{Outline, RoundOutline};
-use super::site::{Edge, Face, ItemId, Marker, Site, SiteCurve};
+use super::outline::RoundOutline;
+use super::site::{Edge, Face, ItemId, Marker, Outline, Site, SiteCurve};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::collections::HashSet;
 use std::f64::consts::TAU;
@@ -138,10 +138,6 @@ impl<'a> ItemBuilder<'a> {
     /// their origin and `turn` (radians clockwise seen from above) their rotation.
     pub fn move_by(&mut self, offset: Vector3<f64>, turn: f64) {
         self.place = self.place.then_move(offset, turn);
-    }
-
-    pub fn placement(&self) -> &Placement {
-        &self.place
     }
 
     pub fn segment(&mut self, start: Point3<f64>, end: Point3<f64>) {

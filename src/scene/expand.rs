@@ -2,15 +2,17 @@
 //! each item, and naming the item (by its path in the file) when one is wrong.
 
 use super::build::{ItemBuilder, Placement};
-use super::format::{spot, ItemSpec, Posture, SceneFile, StandpointSpec};
+use super::format::{ItemSpec, Posture, SceneFile, StandpointSpec};
 use super::items::*;
+use super::mesh::{add_mesh, MeshPlacement};
+use super::numbers::spot;
 use super::obj::read_obj;
-use super::{add_mesh, MeshPlacement, Site, Standpoint};
+use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use crate::error::Error;
 use std::path::Path;
 
 /// Eye heights of the postures, metres: standing (common practice; see
-/// [`DEFAULT_EYE_HEIGHT`](super::DEFAULT_EYE_HEIGHT)) and seated on a low stool or bench
+/// [`DEFAULT_EYE_HEIGHT`]) and seated on a low stool or bench
 /// (about 1.2 m, common practice).
 pub const SEATED_EYE_HEIGHT: f64 = 1.2;
 
@@ -201,7 +203,7 @@ impl Walker<'_> {
 fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {
     let eye_height = match (spec.eye_height, spec.posture) {
         (Some(height), _) => height.0 * unit,
-        (None, Posture::Standing) => super::DEFAULT_EYE_HEIGHT,
+        (None, Posture::Standing) => DEFAULT_EYE_HEIGHT,
         (None, Posture::Seated) => SEATED_EYE_HEIGHT,
     };
     Standpoint {

@@ -6,6 +6,7 @@
 //! an outline, and the faces. Nothing after the loaders knows what RON or OBJ is.
 
 mod build;
+mod curve;
 mod expand;
 mod file;
 mod format;
@@ -13,6 +14,7 @@ mod items;
 mod load;
 mod locate;
 mod mesh;
+mod numbers;
 mod obj;
 mod outline;
 mod site;
@@ -27,9 +29,9 @@ pub use file::MAX_INPUT_BYTES;
 pub use load::{load_obj, load_scene, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
-pub use outline::{tangent_points, Outline, RoundOutline};
+pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Edge, Face, ItemId, ItemInfo, Marker, SilhouetteEdge, Site, SiteCurve, Standpoint,
+    Edge, Face, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site, SiteCurve, Standpoint,
     DEFAULT_EYE_HEIGHT,
 };
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

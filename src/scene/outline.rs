@@ -4,7 +4,7 @@
 //! Each is found exactly from the eye's position (tangent planes through the eye), so a
 //! round column reads correctly from anywhere.
 
-use super::site::{ItemId, SiteCurve};
+use super::curve::SiteCurve;
 use nalgebra::{Point3, Vector2, Vector3};
 use std::f64::consts::PI;
 
@@ -25,13 +25,6 @@ pub enum RoundOutline {
     },
     /// The upper half of a sphere (a dome standing on its equator).
     Dome { centre: Point3<f64>, radius: f64 },
-}
-
-/// A round shape of an item.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Outline {
-    pub shape: RoundOutline,
-    pub item: ItemId,
 }
 
 /// The points where the two tangents from `from` touch the circle of `radius` about

@@ -1,6 +1,7 @@
 //! The resolved site model.
 
-use super::outline::Outline;
+pub use super::curve::SiteCurve;
+use super::outline::RoundOutline;
 use nalgebra::{Point3, Vector3};
 
 /// Eye height of a standing adult, metres (common practice; it lies between the usual
@@ -62,24 +63,6 @@ pub struct Marker {
     pub item: ItemId,
 }
 
-/// A drawable edge in site coordinates.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum SiteCurve {
-    Segment {
-        start: Point3<f64>,
-        end: Point3<f64>,
-    },
-    /// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): circles
-    /// and ellipses of arches, columns and domes.
-    Ellipse {
-        centre: Point3<f64>,
-        u: Vector3<f64>,
-        v: Vector3<f64>,
-        start: f64,
-        sweep: f64,
-    },
-}
-
 /// Index of an item in [`Site::items`].
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub struct ItemId(pub u32);
@@ -90,6 +73,13 @@ pub struct ItemInfo {
     pub kind: &'static str,
     pub label: Option<String>,
     pub layer: Option<String>,
+}
+
+/// A round shape of an item, whose outline is found from each eye.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Outline {
+    pub shape: RoundOutline,
+    pub item: ItemId,
 }
 
 /// A smooth edge of a mesh, drawn only where it is part of the outline seen from the eye:

@@ -180,28 +180,6 @@ fn ellipse_extreme_angles(u: &Vector3<f64>, v: &Vector3<f64>, start: f64, sweep:
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::scene::parse_scene;
-    use std::path::Path;
-
-    fn site(text: &str) -> Site {
-        parse_scene(text.as_bytes(), Path::new("t.ron"), "t").unwrap()
-    }
-
-    #[test]
-    fn a_standpoint_inside_a_block_is_found() {
-        let site = site(
-            "Scene(standpoints: [(name: \"in\", x: 2, y: 1), (name: \"out\", x: 9, y: 1)], \
-             items: [Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)])",
-        );
-        let survey = survey(&site);
-        assert_eq!(survey.standpoints[0].inside, vec![ItemId(0)]);
-        assert!(survey.standpoints[1].inside.is_empty());
-        let (lo, hi) = survey.bounds.unwrap();
-        assert_eq!(
-            (lo, hi),
-            (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0))
-        );
-    }
 
     #[test]
     fn a_half_circle_arc_reaches_its_radius_only_where_it_goes() {

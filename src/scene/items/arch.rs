@@ -1,7 +1,7 @@
 //! `Arch` and `Arcade`: a wall pierced by a row of equal arched openings on piers.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{default_facing, zero, Count, Finite, Positive};
+use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::block::Anchor;
 use serde::Deserialize;
 

@@ -2,7 +2,7 @@
 //! storey lines.
 
 use super::super::build::{plan_direction, ItemBuilder};
-use super::super::format::{default_facing, zero, Finite, NonNegative, Positive};
+use super::super::numbers::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
 use super::walls::{openings_in_wall, OpeningsSpec, WallChoice};
 use nalgebra::{Point3, Vector2, Vector3};

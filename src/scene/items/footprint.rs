@@ -2,7 +2,7 @@
 //! pitched equally from every side (convex plans only).
 
 use super::super::build::ItemBuilder;
-use super::super::format::{plan, zero, Finite, NonNegative, Plan, Positive};
+use super::super::numbers::{plan, zero, Finite, NonNegative, Plan, Positive};
 use super::block::ParapetSpec;
 use super::mass::{build_mass, Mass};
 use super::plan::{is_convex, simple_polygon_problem, twice_signed_area};

@@ -1,7 +1,7 @@
 //! Plain marks: `Polyline`, `Line` and `Point` (a labelled marker).
 
 use super::super::build::ItemBuilder;
-use super::super::format::{spot, Spot, Vertices};
+use super::super::numbers::{spot, Spot, Vertices};
 use nalgebra::Point3;
 use serde::Deserialize;
 

@@ -20,8 +20,8 @@ mod tiles;
 mod vault;
 mod walls;
 
-pub use arch::{build_arcade, ArcadeSpec, ArchShape};
-pub use block::{build_block, Anchor, BlockSpec, RoofSpec};
+pub use arch::{build_arcade, ArcadeSpec};
+pub use block::{build_block, BlockSpec};
 pub use footprint::{build_footprint, FootprintSpec};
 pub use marks::{build_line, build_point, build_polyline, LineSpec, PointSpec, PolylineSpec};
 pub use model::ModelSpec;

@@ -1,7 +1,7 @@
 //! `Model`: a Wavefront OBJ file placed in the scene.
 
-use super::super::format::{origin, zero, FileName, Finite, HalfTurn, Positive, Spot};
-use super::super::{Unit, UpAxis, DEFAULT_CREASE_DEG};
+use super::super::mesh::{Unit, UpAxis, DEFAULT_CREASE_DEG};
+use super::super::numbers::{origin, zero, FileName, Finite, HalfTurn, Positive, Spot};
 use serde::Deserialize;
 
 fn one() -> Positive {

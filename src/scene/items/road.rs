@@ -2,7 +2,7 @@
 //! rounded corners, level or sloping.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{Finite, Plan, Positive};
+use super::super::numbers::{Finite, Plan, Positive};
 use serde::Deserialize;
 
 #[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]

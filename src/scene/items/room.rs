@@ -2,7 +2,7 @@
 //! windows through its walls.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{default_facing, zero, Count, Finite, Positive};
+use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::block::Anchor;
 use super::walls::OpeningsSpec;
 use serde::Deserialize;

@@ -2,7 +2,7 @@
 //! from the eye are found for each standpoint (see `outline.rs`).
 
 use super::super::build::{ellipse_points, facet_count, ItemBuilder};
-use super::super::format::{plan, zero, Finite, Plan, Positive};
+use super::super::numbers::{plan, zero, Finite, Plan, Positive};
 use super::super::outline::RoundOutline;
 use nalgebra::{Point3, Vector3};
 use serde::Deserialize;

@@ -1,7 +1,7 @@
 //! `Stairs`: a straight flight of equal steps, with landings.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{zero, Count, Finite, Plan, Positive};
+use super::super::numbers::{zero, Count, Finite, Plan, Positive};
 use serde::Deserialize;
 
 /// A level stretch after a step.

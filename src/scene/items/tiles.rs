@@ -2,7 +2,7 @@
 //! tiles, paving, coffers): in an interior, the strongest cue to perspective.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{spot, Finite, Positive, Spot};
+use super::super::numbers::{spot, Finite, Positive, Spot};
 use nalgebra::Vector3;
 use serde::Deserialize;
 

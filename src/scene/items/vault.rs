@@ -1,7 +1,7 @@
 //! `Vault`: a barrel vault over a rectangle, its axis running from front to back.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{default_facing, zero, Count, Finite, Positive};
+use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::block::Anchor;
 use serde::Deserialize;
 

@@ -3,7 +3,7 @@
 //! this.
 
 use super::super::build::ItemBuilder;
-use super::super::format::{Count, NonNegative, Positive};
+use super::super::numbers::{Count, NonNegative, Positive};
 use nalgebra::{Point3, Vector2};
 use serde::Deserialize;
 
