@@ -7,6 +7,8 @@
 
 mod arch;
 mod block;
+#[cfg(test)]
+mod checks;
 mod footprint;
 mod marks;
 mod mass;
