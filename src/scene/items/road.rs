@@ -27,6 +27,8 @@ pub enum CentreLine {
     #[default]
     None,
     Solid,
+    /// Dashes `dash` long with `gap` between them, measured along the centreline from its
+    /// first point and running on round the corners.
     Dashed {
         dash: Positive,
         gap: Positive,
@@ -71,9 +73,9 @@ struct Run {
 impl Run {
     /// The part from `from` to `to` along the run, its heights on the run's even slope.
     fn part(&self, from: f64, to: f64) -> Run {
-        let (low, high) = self.heights;
+        let (start_height, end_height) = self.heights;
         let length = self.piece.length();
-        let height = |d: f64| low + (high - low) * d / length;
+        let height = |d: f64| start_height + (end_height - start_height) * d / length;
         Run {
             piece: self.piece.part(from, to),
             heights: (height(from), height(to)),
