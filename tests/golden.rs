@@ -37,10 +37,15 @@ fn write_png(canvas: &GreyCanvas, path: &Path) {
     encode_grey_png(canvas, std::fs::File::create(path).unwrap()).unwrap();
 }
 
+/// The core demo (plain blocks and polylines), frozen as a test fixture.
+const CORE_SCENE: &str = "tests/fixtures/scenes/core-square.ron";
+
 fn check(name: &str, standpoint: &str, settings: RenderSettings) {
-    let site =
-        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
-            .unwrap();
+    check_scene(CORE_SCENE, name, standpoint, settings)
+}
+
+fn check_scene(scene: &str, name: &str, standpoint: &str, settings: RenderSettings) {
+    let site = load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join(scene)).unwrap();
     let standpoint = site.standpoint(standpoint).unwrap();
     let mut render = draw(&site, standpoint, &settings).unwrap();
     let actual = raster(&mut render);
@@ -118,6 +123,36 @@ fn demo_seated_at_the_lane_corner() {
             width: 800,
             height: 400,
             line_weight_px: 1.0,
+            ..RenderSettings::default()
+        },
+    );
+}
+
+#[test]
+fn exterior_demo_of_every_outdoor_item_bare() {
+    check_scene(
+        "scenes/wexcombe-square.ron",
+        "exterior-loggia-bare",
+        "loggia",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            overlays: false,
+            ..RenderSettings::default()
+        },
+    );
+}
+
+#[test]
+fn interior_demo_bare() {
+    check_scene(
+        "scenes/wexcombe-corn-exchange.ron",
+        "interior-door-bare",
+        "door",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            overlays: false,
             ..RenderSettings::default()
         },
     );

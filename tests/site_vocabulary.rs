@@ -455,3 +455,22 @@ fn a_standpoint_inside_a_block_is_found_and_the_extent_is_exact() {
         (Point3::new(0.0, 0.0, 0.0), Point3::new(4.0, 3.0, 5.0))
     );
 }
+
+#[test]
+fn overhanging_roofs_close_their_solid() {
+    // A standpoint inside a block with an overhanging roof is inside it; one just outside
+    // a wall, under the overhang, is not.
+    for roof in [
+        "Gable(ridge: 8, overhang: 0.6)",
+        "Hip(ridge: 8, overhang: 0.6)",
+        "Shed(back: 6, overhang: 0.6)",
+    ] {
+        let site = site(&format!(
+            "Scene(standpoints: [(name: \"in\", x: 2, y: 2), (name: \"eaves\", x: -0.3, y: 2, eye_height: 1.6)], \
+             items: [Block(at: Corner(0, 0), width: 10, depth: 6, height: 5, roof: {roof})])"
+        ));
+        let survey = pansite::scene::survey(&site);
+        assert_eq!(survey.standpoints[0].inside, vec![ItemId(0)], "{roof}");
+        assert!(survey.standpoints[1].inside.is_empty(), "{roof}");
+    }
+}

@@ -221,12 +221,7 @@ pub fn build_mass(
         let roof: Vec<Point3<f64>> = eaves_plan.iter().map(|&p| at(p, mass.eaves)).collect();
         b.path(&roof, true);
         b.face(&roof, &[]);
-        if mass.overhang > 0.0 {
-            // The soffit's underside is open to view from below; close the mass at the
-            // top of the walls.
-            let top: Vec<Point3<f64>> = mass.plan.iter().map(|&p| at(p, mass.eaves)).collect();
-            b.face(&top, &[]);
-        }
+        soffits(b, mass, walls, &eaves_plan, &planes);
         return Ok(());
     }
     for (i, plane) in planes.iter().enumerate() {
@@ -247,11 +242,35 @@ pub fn build_mass(
         b.path(&face, true);
         b.face(&face, &[]);
     }
-    if mass.overhang > 0.0 {
-        let top: Vec<Point3<f64>> = mass.plan.iter().map(|&p| at(p, mass.eaves)).collect();
-        b.face(&top, &[]);
-    }
+    soffits(b, mass, walls, &eaves_plan, &planes);
     Ok(())
+}
+
+/// The undersides of an overhanging roof: from the top of each wall out to the roof's
+/// edge above it. With them the walls, floor and roof close one solid, the overhang
+/// included, so a ray from inside crosses its surface an odd number of times.
+fn soffits(
+    b: &mut ItemBuilder,
+    mass: &Mass,
+    walls: &[Wall],
+    eaves_plan: &[Vector2<f64>],
+    planes: &[Affine],
+) {
+    if mass.overhang <= 0.0 {
+        return;
+    }
+    let n = eaves_plan.len();
+    for (i, wall) in walls.iter().enumerate() {
+        let (start, end) = (eaves_plan[i], eaves_plan[(i + 1) % n]);
+        let along = (end - start) / (end - start).norm();
+        let mut outline: Vec<Point3<f64>> =
+            wall.top.iter().map(|&(t, z)| wall.point(t, z)).collect();
+        outline.extend(top_profile(start, end, planes).iter().rev().map(|&(t, z)| {
+            let p = start + along * t;
+            Point3::new(p.x, p.y, mass.eaves + z)
+        }));
+        b.face(&outline, &[]);
+    }
 }
 
 /// A clipped polygon without repeated corners or corners in the middle of a straight side,
