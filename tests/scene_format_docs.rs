@@ -59,6 +59,23 @@ fn every_example_in_the_reference_reads_and_draws() {
 }
 
 #[test]
+fn the_readme_scene_reads_and_draws() {
+    let path = root().join("README.md");
+    let text = std::fs::read_to_string(&path).unwrap();
+    let scenes: Vec<(usize, String)> = ron_blocks(&text)
+        .into_iter()
+        .filter(|(_, block)| block.trim_start().starts_with("Scene("))
+        .collect();
+    assert!(!scenes.is_empty());
+    for (line, block) in scenes {
+        let what = format!("the scene at README.md line {line}");
+        let site = parse_scene(block.as_bytes(), &path, "readme")
+            .unwrap_or_else(|e| panic!("{what}: {e}"));
+        draws(&site, &what);
+    }
+}
+
+#[test]
 fn every_kind_of_item_has_a_section() {
     let text = std::fs::read_to_string(root().join("docs/scene-format.md")).unwrap();
     let kinds = [
