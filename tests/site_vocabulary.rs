@@ -474,3 +474,17 @@ fn overhanging_roofs_close_their_solid() {
         assert!(survey.standpoints[1].inside.is_empty(), "{roof}");
     }
 }
+
+#[test]
+fn runaway_repeats_and_opening_grids_are_refused_quickly() {
+    for bad in [
+        "Repeat(count: 100000, items: [Repeat(count: 100000, items: [])])",
+        "Repeat(count: 100000, items: [Repeat(count: 100000, items: [Point(at: (0, 0, 0))])])",
+        "Block(at: Corner(0, 0), width: 1e6, depth: 10, height: 1e6, openings: [(wall: Front, count: 100000, \
+         width: 1, height: 1, rows: 1000, row_step: 2)])",
+    ] {
+        let text = format!("Scene(items: [{bad}])");
+        let error = parse_scene(text.as_bytes(), Path::new("t.ron"), "t").unwrap_err().to_string();
+        assert!(error.contains("more than"), "{error}");
+    }
+}

@@ -66,6 +66,7 @@ pub fn expand(
         site: &mut site,
         scene_path,
         path: Vec::new(),
+        visits: 0,
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
     Ok(site)
@@ -76,6 +77,9 @@ struct Walker<'a> {
     scene_path: &'a Path,
     /// Where the walk is in the nested `items` lists.
     path: Vec<usize>,
+    /// Items and copies visited so far, groups and repeats included, so that nested
+    /// repeats of nothing cannot spin for hours either.
+    visits: usize,
 }
 
 impl Walker<'_> {
@@ -108,7 +112,8 @@ impl Walker<'_> {
         outer_layer: Option<&str>,
         copy: Option<u32>,
     ) -> Result<(), ExpandError> {
-        if self.site.items.len() >= MAX_ITEMS {
+        self.visits += 1;
+        if self.site.items.len() >= MAX_ITEMS || self.visits > 2 * MAX_ITEMS {
             return Err(self.fail(format!(
                 "the scene expands to more than {MAX_ITEMS} items (check the repeat counts)"
             )));
@@ -122,6 +127,12 @@ impl Walker<'_> {
             ItemSpec::Repeat(repeat) => {
                 let step = spot(&repeat.step).coords;
                 for k in 0..repeat.count.0 {
+                    self.visits += 1;
+                    if self.visits > 2 * MAX_ITEMS {
+                        return Err(self.fail(format!(
+                            "the scene expands to more than {MAX_ITEMS} items (check the repeat counts)"
+                        )));
+                    }
                     let inner =
                         place.then_move(step * k as f64, (repeat.turn.0 * k as f64).to_radians());
                     self.items(&repeat.items, inner, layer, Some(k + 1))?;

@@ -150,9 +150,18 @@ pub fn opening_centres(spec: &OpeningsSpec, length: f64) -> Result<Vec<f64>, Str
     Ok(centres)
 }
 
+/// The most openings one spec may put in one wall.
+pub const MAX_OPENINGS: usize = 10_000;
+
 /// The openings a spec puts in one wall, checked to fit under its top.
 pub fn openings_in_wall(spec: &OpeningsSpec, wall: &Wall) -> Result<Vec<Opening>, String> {
     let rows = spec.rows.0 as usize;
+    let across = spec.count.map_or(1, |c| c.0 as usize);
+    if rows.saturating_mul(across) > MAX_OPENINGS {
+        return Err(format!(
+            "{across} openings across in {rows} rows is more than {MAX_OPENINGS} in one wall"
+        ));
+    }
     let step = match (rows, spec.row_step) {
         (1, _) => 0.0,
         (_, Some(step)) => step.0,
