@@ -20,6 +20,8 @@ pub struct Placement {
     pub turn: f64,
     /// Metres.
     pub shift: Vector3<f64>,
+    /// The sine and cosine of `turn`, worked out once: every point of every item is placed.
+    sin_cos: (f64, f64),
 }
 
 impl Placement {
@@ -29,16 +31,19 @@ impl Placement {
             scale: metres_per_unit,
             turn: 0.0,
             shift: Vector3::zeros(),
+            sin_cos: (0.0, 1.0),
         }
     }
 
     /// This placement applied after moving by `offset` (scene units) and turning by
     /// `turn` (radians clockwise): the placement of something inside a group.
     pub fn then_move(&self, offset: Vector3<f64>, turn: f64) -> Placement {
+        let turn = self.turn + turn;
         Placement {
             scale: self.scale,
-            turn: self.turn + turn,
+            turn,
             shift: self.shift + self.vector(&offset),
+            sin_cos: sin_cos_of_turn(turn),
         }
     }
 
@@ -48,19 +53,13 @@ impl Placement {
 
     /// A direction or displacement: scaled and turned, not shifted.
     pub fn vector(&self, v: &Vector3<f64>) -> Vector3<f64> {
-        let plan = turn_clockwise(Vector2::new(v.x, v.y), self.turn);
-        Vector3::new(plan.x, plan.y, v.z) * self.scale
+        let (sin, cos) = self.sin_cos;
+        Vector3::new(v.x * cos + v.y * sin, -v.x * sin + v.y * cos, v.z) * self.scale
     }
 
     pub fn length(&self, l: f64) -> f64 {
         l * self.scale
     }
-}
-
-/// `v` turned clockwise (seen from above, x east and y north) by `angle` radians.
-pub fn turn_clockwise(v: Vector2<f64>, angle: f64) -> Vector2<f64> {
-    let (sin, cos) = sin_cos_of_turn(angle);
-    Vector2::new(v.x * cos + v.y * sin, -v.x * sin + v.y * cos)
 }
 
 /// Sine and cosine, exact at whole quarter turns: buildings square to the compass are
@@ -224,15 +223,26 @@ impl<'a> ItemBuilder<'a> {
     /// The faces between two rows of points that run side by side (a curved strip: a
     /// column's side, a soffit, a vault), as quads cut into triangles.
     pub fn strip(&mut self, a: &[Point3<f64>], b: &[Point3<f64>]) {
+        let a: Vec<Point3<f64>> = a.iter().map(|p| self.place.point(p)).collect();
+        let b: Vec<Point3<f64>> = b.iter().map(|p| self.place.point(p)).collect();
         for i in 0..a.len().min(b.len()).saturating_sub(1) {
             for corners in [[a[i], a[i + 1], b[i + 1]], [a[i], b[i + 1], b[i]]] {
-                self.triangle(corners);
+                self.placed_triangle(corners);
             }
         }
     }
 
-    fn triangle(&mut self, corners: [Point3<f64>; 3]) {
-        let corners = corners.map(|p| self.place.point(&p));
+    /// A flat convex face (a column's lid): a fan of triangles from its first corner,
+    /// without the general triangulator.
+    pub fn convex_face(&mut self, corners: &[Point3<f64>]) {
+        let placed: Vec<Point3<f64>> = corners.iter().map(|p| self.place.point(p)).collect();
+        for k in 1..placed.len().saturating_sub(1) {
+            self.placed_triangle([placed[0], placed[k], placed[k + 1]]);
+        }
+    }
+
+    /// A triangle already in site coordinates; one of no area hides nothing and is left out.
+    fn placed_triangle(&mut self, corners: [Point3<f64>; 3]) {
         let area2 = (corners[1] - corners[0]).cross(&(corners[2] - corners[0]));
         if area2.norm_squared() > 0.0 {
             self.site.faces.push(Face {
@@ -325,8 +335,9 @@ mod tests {
 
     #[test]
     fn quarter_turn_clockwise_takes_north_to_east() {
-        let v = turn_clockwise(Vector2::new(0.0, 1.0), PI / 2.0);
-        assert!((v - Vector2::new(1.0, 0.0)).norm() < 1e-15);
+        let quarter = Placement::in_unit(1.0).then_move(Vector3::zeros(), PI / 2.0);
+        let v = quarter.vector(&Vector3::new(0.0, 1.0, 0.0));
+        assert_eq!(v, Vector3::new(1.0, 0.0, 0.0));
     }
 
     #[test]

@@ -78,9 +78,16 @@ pub struct DomeSpec {
     pub base: Finite,
 }
 
-/// A drum: top and bottom circles and rings drawn; side faces for hiding; its outline
-/// from each eye.
-fn drum(b: &mut ItemBuilder, foot: Point3<f64>, radius: f64, height: f64, rings: &[f64]) {
+/// A drum: top and bottom circles and rings drawn; side faces and a floor for hiding; its
+/// outline from each eye. Returns the facet corners round its top (last = first), for
+/// whatever closes it.
+fn drum(
+    b: &mut ItemBuilder,
+    foot: Point3<f64>,
+    radius: f64,
+    height: f64,
+    rings: &[f64],
+) -> Vec<Point3<f64>> {
     let top = foot + Vector3::z() * height;
     b.circle(foot, radius);
     b.circle(top, radius);
@@ -95,9 +102,11 @@ fn drum(b: &mut ItemBuilder, foot: Point3<f64>, radius: f64, height: f64, rings:
     let count = facet_count(TAU);
     let (u, v) = (Vector3::x() * radius, Vector3::y() * radius);
     let bottom = ellipse_points(foot, u, v, 0.0, TAU, count);
-    let upper = ellipse_points(top, u, v, 0.0, TAU, count);
+    // The top is the bottom lifted: no second round of sines and cosines.
+    let upper: Vec<Point3<f64>> = bottom.iter().map(|p| p + (top - foot)).collect();
     b.strip(&bottom, &upper);
-    b.face(&bottom[..count], &[]);
+    b.convex_face(&bottom[..count]);
+    upper
 }
 
 fn lid(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
@@ -110,7 +119,7 @@ fn lid(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
         TAU,
         count,
     );
-    b.face(&rim[..count], &[]);
+    b.convex_face(&rim[..count]);
 }
 
 /// A hemisphere on the circle of `radius` about `centre`: the outline from each eye, and
@@ -162,8 +171,8 @@ pub fn build_column(b: &mut ItemBuilder, spec: &ColumnSpec) -> Result<(), String
     let centre = plan(&spec.at);
     let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
-    drum(b, foot, radius, height, &rings);
-    lid(b, foot + Vector3::z() * height, radius);
+    let rim = drum(b, foot, radius, height, &rings);
+    b.convex_face(&rim[..rim.len() - 1]);
     Ok(())
 }
 
@@ -175,9 +184,9 @@ pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> 
     let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
     let top = foot + Vector3::z() * height;
-    drum(b, foot, radius, height, &rings);
+    let rim = drum(b, foot, radius, height, &rings);
     match spec.roof {
-        TowerRoof::Flat => lid(b, top, radius),
+        TowerRoof::Flat => b.convex_face(&rim[..rim.len() - 1]),
         TowerRoof::Cone { height: rise } => {
             b.round_outline(RoundOutline::Cone {
                 base: top,
@@ -185,15 +194,6 @@ pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> 
                 height: rise.0,
             });
             let apex = top + Vector3::z() * rise.0;
-            let count = facet_count(TAU);
-            let rim = ellipse_points(
-                top,
-                Vector3::x() * radius,
-                Vector3::y() * radius,
-                0.0,
-                TAU,
-                count,
-            );
             b.strip(&rim, &vec![apex; rim.len()]);
         }
         TowerRoof::Dome => dome(b, top, radius),
@@ -207,6 +207,7 @@ pub fn build_dome(b: &mut ItemBuilder, spec: &DomeSpec) -> Result<(), String> {
     let radius = spec.diameter.0 / 2.0;
     let springing = match spec.drum {
         Some(drum_height) => {
+            // The dome closes the drum's top.
             drum(b, foot, radius, drum_height.0, &[]);
             foot + Vector3::z() * drum_height.0
         }
