@@ -190,6 +190,15 @@ fn column_outline_touches_where_the_tangent_rule_says() {
         assert_near((touch - to_eye).norm(), (d * d - r * r).sqrt(), 1e-12);
         assert_eq!((start.z, end.z), (0.0, 3.0));
     }
+    // A cylinder is the same thing by another name.
+    let cylinder = scene_with(&format!(
+        "Cylinder(at: (0, 0), diameter: {}, height: 3)",
+        2.0 * r
+    ));
+    assert_eq!(
+        cylinder.outline_edges_from(&eye),
+        site.outline_edges_from(&eye)
+    );
     // From inside the column there is no outline.
     assert!(site
         .outline_edges_from(&Point3::new(0.1, 0.0, 1.6))

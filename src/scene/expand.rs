@@ -155,7 +155,7 @@ impl Walker<'_> {
             ItemSpec::Footprint(spec) => build_footprint(&mut b, spec),
             ItemSpec::Road(spec) => build_road(&mut b, spec),
             ItemSpec::Arch(spec) | ItemSpec::Arcade(spec) => build_arcade(&mut b, spec),
-            ItemSpec::Column(spec) => build_column(&mut b, spec),
+            ItemSpec::Column(spec) | ItemSpec::Cylinder(spec) => build_column(&mut b, spec),
             ItemSpec::Tower(spec) => build_tower(&mut b, spec),
             ItemSpec::Dome(spec) => build_dome(&mut b, spec),
             ItemSpec::Stairs(spec) => build_stairs(&mut b, spec),
