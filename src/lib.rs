@@ -63,5 +63,6 @@ pub mod plane;
 pub mod render;
 pub mod scene;
 pub mod sphere;
+pub mod visibility;
 
 pub use error::{Error, Result};

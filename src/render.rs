@@ -2,13 +2,13 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::drawing::{
-    grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
-    Wireframe, GRID_STEP_DEG,
+    dashed, grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
+    Wireframe, GRID_STEP_DEG, HIDDEN,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
-use crate::scene::{Site, Standpoint};
+use crate::scene::{HiddenEdges, Site, Standpoint};
 use crate::sphere::ViewFrame;
 use std::io::Write;
 use std::path::Path;
@@ -26,6 +26,8 @@ pub struct RenderSettings {
     /// The reference grid and the horizon under the wireframe. Off gives the bare wireframe,
     /// full-bleed on white, for exact checks.
     pub overlays: bool,
+    /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
+    pub hidden: Option<HiddenEdges>,
 }
 
 impl Default for RenderSettings {
@@ -36,6 +38,7 @@ impl Default for RenderSettings {
             tolerance_px: DEFAULT_TOLERANCE_PX,
             line_weight_px: 1.5,
             overlays: true,
+            hidden: None,
         }
     }
 }
@@ -150,10 +153,24 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
             lines: horizon,
         });
     }
+    let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
     let Wireframe {
         layers: site_layers,
+        hidden,
         skipped,
-    } = wireframe(site, &view, &flattener);
+    } = wireframe(site, &view, &flattener, hidden_edges);
+    if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
+        // Under the seen edges, lighter, thinner and dashed.
+        let width = settings.line_weight_px;
+        layers.push(Layer {
+            name: HIDDEN.to_owned(),
+            stroke: Stroke {
+                ink: 0.4,
+                width_px: (0.75 * width).max(0.75),
+            },
+            lines: dashed(&hidden, 3.0 * width + 3.0, 2.0 * width + 2.0),
+        });
+    }
     let stroke = Stroke {
         ink: 1.0,
         width_px: settings.line_weight_px,

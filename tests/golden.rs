@@ -7,7 +7,7 @@
 
 use pansite::output::{encode_grey_png, GreyCanvas};
 use pansite::render::{draw, raster, RenderSettings};
-use pansite::scene::load_scene;
+use pansite::scene::{load_scene, HiddenEdges};
 use std::path::{Path, PathBuf};
 
 /// Largest difference in grey levels that counts as equal.
@@ -40,7 +40,12 @@ fn write_png(canvas: &GreyCanvas, path: &Path) {
 /// The core demo (plain blocks and polylines), frozen as a test fixture.
 const CORE_SCENE: &str = "tests/fixtures/scenes/core-square.ron";
 
+/// The core demo's references are see-through wireframes, as the core drew them.
 fn check(name: &str, standpoint: &str, settings: RenderSettings) {
+    let settings = RenderSettings {
+        hidden: Some(HiddenEdges::Solid),
+        ..settings
+    };
     check_scene(CORE_SCENE, name, standpoint, settings)
 }
 
@@ -138,6 +143,7 @@ fn exterior_demo_of_every_outdoor_item_bare() {
             width: 1024,
             height: 512,
             overlays: false,
+            hidden: Some(HiddenEdges::Solid),
             ..RenderSettings::default()
         },
     );
@@ -153,7 +159,60 @@ fn interior_demo_bare() {
             width: 1024,
             height: 512,
             overlays: false,
+            hidden: Some(HiddenEdges::Solid),
             ..RenderSettings::default()
         },
     );
+}
+
+#[test]
+fn exterior_demo_with_hidden_edges_faint() {
+    check_scene(
+        "scenes/wexcombe-square.ron",
+        "exterior-fountain-hidden-faint",
+        "fountain",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            hidden: Some(HiddenEdges::Faint),
+            ..RenderSettings::default()
+        },
+    );
+}
+
+#[test]
+fn exterior_demo_with_hidden_edges_off() {
+    check_scene(
+        "scenes/wexcombe-square.ron",
+        "exterior-loggia-hidden-off",
+        "loggia",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            overlays: false,
+            hidden: Some(HiddenEdges::Off),
+            ..RenderSettings::default()
+        },
+    );
+}
+
+#[test]
+fn interior_demo_with_hidden_edges_faint_and_off() {
+    for (name, hidden) in [
+        ("interior-aisle-hidden-faint", HiddenEdges::Faint),
+        ("interior-aisle-hidden-off", HiddenEdges::Off),
+    ] {
+        check_scene(
+            "scenes/wexcombe-corn-exchange.ron",
+            name,
+            "aisle",
+            RenderSettings {
+                width: 1024,
+                height: 512,
+                overlays: false,
+                hidden: Some(hidden),
+                ..RenderSettings::default()
+            },
+        );
+    }
 }

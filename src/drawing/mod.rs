@@ -1,9 +1,11 @@
 //! The drawing: a display list of stroked polylines in image pixels, built from the site and
 //! the overlays, that every output backend reads.
 
+mod dash;
 mod overlay;
 mod wireframe;
 
+pub use dash::dashed;
 pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
 pub use wireframe::{wireframe, SkippedEdge, Wireframe};
 
@@ -39,6 +41,9 @@ pub fn wireframe_layer_name(site_layer: Option<&str>) -> String {
         Some(name) => format!("{WIREFRAME}: {name}"),
     }
 }
+
+/// The layer of the parts of edges hidden behind faces.
+pub const HIDDEN: &str = "hidden";
 
 /// Layer names start with this for the site's edges.
 pub const WIREFRAME: &str = "wireframe";

@@ -1,8 +1,10 @@
 //! The site's edges as seen from one standpoint.
 
 use crate::plane::{Flattener, PolylineSet};
-use crate::scene::{Edge, ItemId, Marker, Site, SiteCurve};
+use crate::scene::{Edge, HiddenEdges, ItemId, Marker, Site, SiteCurve};
+use crate::sphere::SphereCurve;
 use crate::sphere::{Degeneracy, ViewFrame};
+use crate::visibility::{Bvh, Depth, Occluders};
 use nalgebra::{Point3, Vector3};
 
 /// An edge left out because it has no drawable image from the standpoint.
@@ -23,7 +25,12 @@ const EDGES_PER_RUN: usize = 2048;
 /// (near edges cost far more than distant ones, so fixed halves would leave a core idle);
 /// the runs' polylines are joined in edge order, so the result does not depend on the
 /// number of cores.
-pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wireframe {
+pub fn wireframe(
+    site: &Site,
+    view: &ViewFrame,
+    flattener: &Flattener,
+    hidden: HiddenEdges,
+) -> Wireframe {
     // The edges that depend on the eye (mesh silhouettes, the outlines of round items,
     // point markers) join the fixed edges; they are numbered after them in the list of
     // skipped edges.
@@ -44,54 +51,73 @@ pub fn wireframe(site: &Site, view: &ViewFrame, flattener: &Flattener) -> Wirefr
             site.edges.len() + (run - fixed_runs) * EDGES_PER_RUN
         }
     };
+    // Hidden parts are found only when they are to be drawn differently, and there is
+    // something to hide them.
+    let bvh =
+        (hidden != HiddenEdges::Solid && !site.faces.is_empty()).then(|| Bvh::new(&site.faces));
+    let occluders = bvh.as_ref().map(|bvh| Occluders {
+        faces: &site.faces,
+        bvh,
+        view,
+        eye,
+    });
+    let occluders = occluders.as_ref();
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
     let (names, slot_of_item) = site.layer_slots();
     let (names, slot_of_item) = (&names, &slot_of_item);
-    let mut parts: Vec<(usize, RunLines, Vec<SkippedEdge>)> = std::thread::scope(|scope| {
-        let handles: Vec<_> = (0..threads)
-            .map(|_| {
-                let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
-                scope.spawn(move || {
-                    let mut done = Vec::new();
-                    loop {
-                        let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                        let Some(edges) = runs.get(index) else { break };
-                        let (lines, skipped) = flatten_edges(
-                            edges,
-                            first_index(index),
-                            view,
-                            &mut flattener,
-                            slot_of_item,
-                        );
-                        done.push((index, lines, skipped));
-                    }
-                    done
+    let mut parts: Vec<(usize, RunLines, PolylineSet, Vec<SkippedEdge>)> =
+        std::thread::scope(|scope| {
+            let handles: Vec<_> = (0..threads)
+                .map(|_| {
+                    let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
+                    scope.spawn(move || {
+                        let mut done = Vec::new();
+                        loop {
+                            let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                            let Some(edges) = runs.get(index) else { break };
+                            let (lines, hidden, skipped) = flatten_edges(
+                                edges,
+                                first_index(index),
+                                view,
+                                &mut flattener,
+                                slot_of_item,
+                                occluders,
+                            );
+                            done.push((index, lines, hidden, skipped));
+                        }
+                        done
+                    })
                 })
-            })
-            .collect();
-        handles
-            .into_iter()
-            .flat_map(|h| {
-                h.join()
-                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
-            })
-            .collect()
-    });
-    parts.sort_by_key(|(index, _, _)| *index);
+                .collect();
+            handles
+                .into_iter()
+                .flat_map(|h| {
+                    h.join()
+                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+                })
+                .collect()
+        });
+    parts.sort_by_key(|(index, _, _, _)| *index);
     let mut layers: Vec<(Option<String>, PolylineSet)> = names
         .iter()
         .map(|name| (name.map(str::to_owned), PolylineSet::new()))
         .collect();
     let mut skipped = Vec::new();
-    for (_, part_layers, part_skipped) in parts {
+    let mut hidden = PolylineSet::new();
+    for (_, part_layers, mut part_hidden, part_skipped) in parts {
         for (slot, mut part) in part_layers {
             layers[slot as usize].1.append(&mut part);
         }
+        hidden.append(&mut part_hidden);
         skipped.extend(part_skipped);
     }
-    Wireframe { layers, skipped }
+    Wireframe {
+        layers,
+        hidden,
+        skipped,
+    }
 }
 
 /// Half the width of a point marker's cross, in pixels.
@@ -132,6 +158,8 @@ pub fn marker_cross(marker: &Marker, eye: &Point3<f64>, arm: f64) -> Vec<Edge> {
 #[derive(Clone, Debug, Default)]
 pub struct Wireframe {
     pub layers: Vec<(Option<String>, PolylineSet)>,
+    /// The parts of edges hidden behind faces (empty unless hidden parts are looked for).
+    pub hidden: PolylineSet,
     pub skipped: Vec<SkippedEdge>,
 }
 
@@ -144,7 +172,11 @@ fn flatten_edges(
     view: &ViewFrame,
     flattener: &mut Flattener,
     slot_of_item: &[u32],
-) -> (RunLines, Vec<SkippedEdge>) {
+    occluders: Option<&Occluders>,
+) -> (RunLines, PolylineSet, Vec<SkippedEdge>) {
+    // One pixel of angle between visibility samples, changes found to a thousandth of it.
+    let pixel = std::f64::consts::TAU / flattener.map().width();
+    let mut hidden = PolylineSet::new();
     // Only the layers this run uses (a model may have a layer for each of its parts).
     let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();
@@ -161,7 +193,39 @@ fn flatten_edges(
                         lines.len() - 1
                     }
                 };
-                flattener.flatten(&curve, &mut lines[position].1);
+                match occluders {
+                    None => flattener.flatten(&curve, &mut lines[position].1),
+                    Some(occluders) => {
+                        let depth = match edge.curve {
+                            SiteCurve::Segment { start, end } => Depth::Segment {
+                                a: view.to_view(&start),
+                                b: view.to_view(&end),
+                            },
+                            SiteCurve::Ellipse { .. } => Depth::Curve,
+                        };
+                        for (t0, t1, seen) in occluders.spans(&curve, &depth, pixel, 1e-3 * pixel) {
+                            if t1 <= t0 {
+                                continue;
+                            }
+                            let part = SphereCurve {
+                                t0,
+                                t1,
+                                exact_end: if t1 == curve.t1 {
+                                    curve.exact_end
+                                } else {
+                                    None
+                                },
+                                ..curve
+                            };
+                            let out = if seen {
+                                &mut lines[position].1
+                            } else {
+                                &mut hidden
+                            };
+                            flattener.flatten(&part, out);
+                        }
+                    }
+                }
             }
             Err(why) => skipped.push(SkippedEdge {
                 item: edge.item,
@@ -170,5 +234,5 @@ fn flatten_edges(
             }),
         }
     }
-    (lines, skipped)
+    (lines, hidden, skipped)
 }

@@ -216,18 +216,27 @@ impl<'a> ItemBuilder<'a> {
             self.site.faces.push(Face {
                 corners: [placed[a], placed[b], placed[c]],
                 item: self.item,
+                slack: 0.0,
             });
         }
     }
 
     /// The faces between two rows of points that run side by side (a curved strip: a
     /// column's side, a soffit, a vault), as quads cut into triangles.
+    ///
+    /// The rows are points of a curved surface [`FACET_ANGLE`] or less apart in angle, so
+    /// each piece stands off the true surface by at most the sagitta of its chord c:
+    /// (c / 2) tan(angle / 4) (the chord and the arc of a circle); that is the faces'
+    /// slack.
     pub fn strip(&mut self, a: &[Point3<f64>], b: &[Point3<f64>]) {
         let a: Vec<Point3<f64>> = a.iter().map(|p| self.place.point(p)).collect();
         let b: Vec<Point3<f64>> = b.iter().map(|p| self.place.point(p)).collect();
+        let bow = (FACET_ANGLE / 4.0).tan() / 2.0;
         for i in 0..a.len().min(b.len()).saturating_sub(1) {
+            let chord = (a[i + 1] - a[i]).norm().max((b[i + 1] - b[i]).norm());
+            let slack = (chord * bow) as f32;
             for corners in [[a[i], a[i + 1], b[i + 1]], [a[i], b[i + 1], b[i]]] {
-                self.placed_triangle(corners);
+                self.placed_triangle(corners, slack);
             }
         }
     }
@@ -237,17 +246,18 @@ impl<'a> ItemBuilder<'a> {
     pub fn convex_face(&mut self, corners: &[Point3<f64>]) {
         let placed: Vec<Point3<f64>> = corners.iter().map(|p| self.place.point(p)).collect();
         for k in 1..placed.len().saturating_sub(1) {
-            self.placed_triangle([placed[0], placed[k], placed[k + 1]]);
+            self.placed_triangle([placed[0], placed[k], placed[k + 1]], 0.0);
         }
     }
 
     /// A triangle already in site coordinates; one of no area hides nothing and is left out.
-    fn placed_triangle(&mut self, corners: [Point3<f64>; 3]) {
+    fn placed_triangle(&mut self, corners: [Point3<f64>; 3], slack: f32) {
         let area2 = (corners[1] - corners[0]).cross(&(corners[2] - corners[0]));
         if area2.norm_squared() > 0.0 {
             self.site.faces.push(Face {
                 corners,
                 item: self.item,
+                slack,
             });
         }
     }

@@ -46,6 +46,7 @@ pub fn expand(
         name: file.name.unwrap_or_else(|| fallback_name.to_owned()),
         ..Site::default()
     };
+    site.hidden_edges = file.hidden;
     site.standpoints = file
         .standpoints
         .iter()

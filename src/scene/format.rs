@@ -48,6 +48,9 @@ pub struct SceneFile {
     /// The standpoint used when none is asked for; the first if not given.
     #[serde(default)]
     pub default_standpoint: Option<String>,
+    /// How edges hidden behind faces are drawn: `Solid`, `Faint` (the default) or `Off`.
+    #[serde(default)]
+    pub hidden: Option<super::site::HiddenEdges>,
     pub items: Vec<ItemSpec>,
 }
 

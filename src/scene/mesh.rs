@@ -171,6 +171,7 @@ pub fn add_mesh(
             site.faces.push(Face {
                 corners: [p(welded[0]), p(welded[k]), p(welded[k + 1])],
                 item,
+                slack: 0.0,
             });
         }
         stats.triangles += welded.len() - 2;

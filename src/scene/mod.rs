@@ -31,7 +31,7 @@ pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Edge, Face, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site, SiteCurve, Standpoint,
-    DEFAULT_EYE_HEIGHT,
+    Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site, SiteCurve,
+    Standpoint, DEFAULT_EYE_HEIGHT,
 };
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

@@ -64,6 +64,18 @@ pub struct Marker {
     pub item: ItemId,
 }
 
+/// How the parts of edges hidden behind faces are drawn.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
+pub enum HiddenEdges {
+    /// Like the seen parts: a see-through wireframe.
+    Solid,
+    /// Faint and dashed, so that they guide without being mistaken for seen edges.
+    #[default]
+    Faint,
+    /// Left out.
+    Off,
+}
+
 /// Index of an item in [`Site::items`].
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub struct ItemId(pub u32);
@@ -109,6 +121,10 @@ impl SilhouetteEdge {
 pub struct Face {
     pub corners: [Point3<f64>; 3],
     pub item: ItemId,
+    /// How far (metres) the true surface may stand off this flat piece of it: 0 for a flat
+    /// face, the sagitta of the facet for a piece of a curved surface. Edges drawn on the
+    /// true surface lie up to this far behind the facet, and must not be hidden by it.
+    pub slack: f32,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -136,6 +152,8 @@ pub struct Site {
     pub markers: Vec<Marker>,
     /// Things that look wrong but can still be drawn (a block of no height), by item.
     pub warnings: Vec<(ItemId, String)>,
+    /// How the scene asks for hidden edges to be drawn, if it says.
+    pub hidden_edges: Option<HiddenEdges>,
 }
 
 impl Site {

@@ -65,6 +65,11 @@ impl ViewFrame {
         self.site_to_view * (p - self.eye)
     }
 
+    /// A view-frame direction in the site frame.
+    pub fn direction_to_site(&self, d: &Vector3<f64>) -> Vector3<f64> {
+        self.site_to_view.inverse_transform_vector(d)
+    }
+
     /// A site direction (free vector) in the view frame.
     pub fn direction_to_view(&self, d: &Vector3<f64>) -> Vector3<f64> {
         self.site_to_view * d

@@ -89,6 +89,10 @@ pub struct RenderArgs {
     #[arg(long)]
     pub bare: bool,
 
+    /// How edges hidden behind faces are drawn [default: the scene's choice, or faint].
+    #[arg(long, value_enum, value_name = "HOW")]
+    pub hidden: Option<HiddenArg>,
+
     /// For an .obj model: which of its axes points up.
     #[arg(long, value_enum, default_value = "y")]
     pub up: UpArg,
@@ -108,6 +112,17 @@ pub struct RenderArgs {
     /// Print the time each stage took on standard error.
     #[arg(long)]
     pub timings: bool,
+}
+
+/// How edges hidden behind faces are drawn.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum HiddenArg {
+    /// Like the seen edges (a see-through wireframe).
+    Solid,
+    /// Faint and dashed.
+    Faint,
+    /// Left out.
+    Off,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]

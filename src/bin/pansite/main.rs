@@ -4,11 +4,11 @@ mod args;
 mod check;
 
 use anyhow::Context;
-use args::{Cli, Command, NewArgs, RenderArgs, UnitArg, UpArg};
+use args::{Cli, Command, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::render::{render_png, render_png_to, RenderSettings};
 use pansite::scene::{
-    load_obj, load_scene, parse_scene, MeshPlacement, Site, Standpoint, Unit, UpAxis,
+    load_obj, load_scene, parse_scene, HiddenEdges, MeshPlacement, Site, Standpoint, Unit, UpAxis,
     DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
@@ -56,6 +56,11 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         tolerance_px: args.tolerance,
         line_weight_px: args.line_weight,
         overlays: !args.bare,
+        hidden: args.hidden.map(|h| match h {
+            HiddenArg::Solid => HiddenEdges::Solid,
+            HiddenArg::Faint => HiddenEdges::Faint,
+            HiddenArg::Off => HiddenEdges::Off,
+        }),
     };
     settings.validate()?;
     let output = args

@@ -1,0 +1,260 @@
+//! A bounding-volume hierarchy over the site's faces, for one question asked millions of
+//! times: does anything stand between the eye and this point?
+//!
+//! Built top-down by splitting each node's faces at the median of their centres along the
+//! longest side of the centres' box, down to leaves of a few faces (a balanced tree, built in
+//! O(n log n) with selection rather than sorting). Boxes are stored in f32, rounded outwards,
+//! to keep a node to 32 bytes; the triangle tests are in f64 against the site's own faces.
+
+use crate::scene::Face;
+use nalgebra::{Point3, Vector3};
+
+/// Faces in a leaf: more saves nodes, fewer saves triangle tests.
+const LEAF_FACES: usize = 4;
+
+#[derive(Clone, Copy, Debug)]
+struct Node {
+    lo: [f32; 3],
+    hi: [f32; 3],
+    /// A leaf: the first of its faces in `order`. An inner node: its second child (the
+    /// first follows it directly).
+    index: u32,
+    /// Faces in a leaf; 0 for an inner node.
+    count: u32,
+}
+
+/// The hierarchy: nodes in depth-first order and the faces' indices in leaf order.
+pub struct Bvh {
+    nodes: Vec<Node>,
+    order: Vec<u32>,
+}
+
+/// A box of f32 that holds every point it was given in f64: widened by a few f32 steps
+/// before rounding, more than rounding can take back.
+fn outward(lo: Vector3<f64>, hi: Vector3<f64>) -> ([f32; 3], [f32; 3]) {
+    let widen = |x: f64| 4.0 * f32::EPSILON as f64 * x.abs() + f32::MIN_POSITIVE as f64;
+    let down = |x: f64| (x - widen(x)) as f32;
+    let up = |x: f64| (x + widen(x)) as f32;
+    (
+        [down(lo.x), down(lo.y), down(lo.z)],
+        [up(hi.x), up(hi.y), up(hi.z)],
+    )
+}
+
+impl Bvh {
+    pub fn new(faces: &[Face]) -> Bvh {
+        let centres: Vec<[f32; 3]> = faces
+            .iter()
+            .map(|f| {
+                let c = (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0;
+                [c.x as f32, c.y as f32, c.z as f32]
+            })
+            .collect();
+        let mut bvh = Bvh {
+            nodes: Vec::with_capacity(2 * faces.len() / LEAF_FACES + 1),
+            order: (0..faces.len() as u32).collect(),
+        };
+        if !faces.is_empty() {
+            bvh.build(faces, &centres, 0, faces.len());
+        }
+        bvh
+    }
+
+    /// Builds the node for `order[first..end]` and everything under it.
+    fn build(&mut self, faces: &[Face], centres: &[[f32; 3]], first: usize, end: usize) {
+        let mut lo = Vector3::repeat(f64::INFINITY);
+        let mut hi = Vector3::repeat(f64::NEG_INFINITY);
+        let mut centre_lo = [f32::INFINITY; 3];
+        let mut centre_hi = [f32::NEG_INFINITY; 3];
+        for &i in &self.order[first..end] {
+            for p in &faces[i as usize].corners {
+                lo = lo.inf(&p.coords);
+                hi = hi.sup(&p.coords);
+            }
+            for k in 0..3 {
+                centre_lo[k] = centre_lo[k].min(centres[i as usize][k]);
+                centre_hi[k] = centre_hi[k].max(centres[i as usize][k]);
+            }
+        }
+        let (lo, hi) = outward(lo, hi);
+        let at = self.nodes.len();
+        self.nodes.push(Node {
+            lo,
+            hi,
+            index: first as u32,
+            count: (end - first) as u32,
+        });
+        if end - first <= LEAF_FACES {
+            return;
+        }
+        let axis = (0..3)
+            .max_by(|&a, &b| {
+                (centre_hi[a] - centre_lo[a]).total_cmp(&(centre_hi[b] - centre_lo[b]))
+            })
+            .unwrap_or(0);
+        let middle = (first + end) / 2;
+        self.order[first..end].select_nth_unstable_by(middle - first, |&a, &b| {
+            centres[a as usize][axis].total_cmp(&centres[b as usize][axis])
+        });
+        self.build(faces, centres, first, middle);
+        let second = self.nodes.len() as u32;
+        self.build(faces, centres, middle, end);
+        self.nodes[at].index = second;
+        self.nodes[at].count = 0;
+    }
+
+    /// Whether some face for which `blocks(face, distance)` holds meets the ray from
+    /// `origin` along the unit `direction` closer than `limit`. Stops at the first one.
+    pub fn any_hit(
+        &self,
+        faces: &[Face],
+        origin: &Point3<f64>,
+        direction: &Vector3<f64>,
+        limit: f64,
+        blocks: impl Fn(&Face, f64) -> bool,
+    ) -> bool {
+        if self.nodes.is_empty() {
+            return false;
+        }
+        let o = [origin.x as f32, origin.y as f32, origin.z as f32];
+        let inverse = [
+            (1.0 / direction.x) as f32,
+            (1.0 / direction.y) as f32,
+            (1.0 / direction.z) as f32,
+        ];
+        // f32 rounding of the ray itself is absorbed by a little slack on the boxes.
+        let pad = 1e-5 * (1.0 + origin.coords.abs().max() as f32);
+        let limit32 = limit as f32 * (1.0 + 1e-5) + pad;
+        let mut stack = [0u32; 64];
+        let mut depth = 1;
+        while depth > 0 {
+            depth -= 1;
+            let at = stack[depth];
+            let node = &self.nodes[at as usize];
+            if !ray_meets_box(&o, &inverse, &node.lo, &node.hi, pad, limit32) {
+                continue;
+            }
+            if node.count > 0 {
+                let first = node.index as usize;
+                for &face in &self.order[first..first + node.count as usize] {
+                    let face = &faces[face as usize];
+                    if let Some(distance) = ray_hits_triangle(origin, direction, &face.corners) {
+                        if distance < limit && blocks(face, distance) {
+                            return true;
+                        }
+                    }
+                }
+            } else if depth + 2 <= stack.len() {
+                // Both children; the first one (stored right after its parent) on top.
+                stack[depth] = node.index;
+                stack[depth + 1] = at + 1;
+                depth += 2;
+            }
+        }
+        false
+    }
+}
+
+/// The slab test (Kay and Kajiya, "Ray tracing complex scenes", SIGGRAPH 1986), on a box
+/// grown by `pad`, for the part of the ray from 0 to `limit`.
+fn ray_meets_box(
+    o: &[f32; 3],
+    inverse: &[f32; 3],
+    lo: &[f32; 3],
+    hi: &[f32; 3],
+    pad: f32,
+    limit: f32,
+) -> bool {
+    let (mut near, mut far) = (0.0f32, limit);
+    for k in 0..3 {
+        let a = (lo[k] - pad - o[k]) * inverse[k];
+        let b = (hi[k] + pad - o[k]) * inverse[k];
+        // NaN (a ray parallel to a face of the box, starting on it) keeps the old bounds.
+        let (a, b) = if a <= b { (a, b) } else { (b, a) };
+        if a > near {
+            near = a;
+        }
+        if b < far {
+            far = b;
+        }
+        if near > far {
+            return false;
+        }
+    }
+    true
+}
+
+/// The distance along the ray to the triangle, if the ray crosses it ahead of the origin
+/// (Moeller and Trumbore, "Fast, minimum storage ray-triangle intersection", Journal of
+/// Graphics Tools 2(1), 1997). A ray in the triangle's plane does not cross it.
+pub fn ray_hits_triangle(
+    origin: &Point3<f64>,
+    direction: &Vector3<f64>,
+    [a, b, c]: &[Point3<f64>; 3],
+) -> Option<f64> {
+    let (ab, ac) = (b - a, c - a);
+    let p = direction.cross(&ac);
+    let determinant = ab.dot(&p);
+    if determinant.abs() <= 1e-14 * ab.norm() * ac.norm() {
+        return None;
+    }
+    let inverse = 1.0 / determinant;
+    let to_origin = origin - a;
+    let u = to_origin.dot(&p) * inverse;
+    if !(0.0..=1.0).contains(&u) {
+        return None;
+    }
+    let q = to_origin.cross(&ab);
+    let v = direction.dot(&q) * inverse;
+    if v < 0.0 || u + v > 1.0 {
+        return None;
+    }
+    let distance = ac.dot(&q) * inverse;
+    (distance > 0.0).then_some(distance)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scene::ItemId;
+
+    fn triangle(z: f64, shift: f64) -> Face {
+        Face {
+            corners: [
+                Point3::new(shift - 1.0, -1.0, z),
+                Point3::new(shift + 1.0, -1.0, z),
+                Point3::new(shift, 1.0, z),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        }
+    }
+
+    #[test]
+    fn rays_find_the_faces_a_brute_force_search_finds() {
+        // A grid of small triangles at various heights; rays from below in many directions.
+        let faces: Vec<Face> = (0..400)
+            .map(|i| {
+                let (x, y) = ((i % 20) as f64 * 0.7 - 7.0, (i / 20) as f64 * 0.7 - 7.0);
+                let mut f = triangle(2.0 + (i % 7) as f64 * 0.3, x);
+                for p in &mut f.corners {
+                    p.y += y;
+                    p.x *= 0.3;
+                }
+                f
+            })
+            .collect();
+        let bvh = Bvh::new(&faces);
+        let origin = Point3::new(0.1, 0.2, 0.0);
+        for k in 0..500 {
+            let a = k as f64 * 0.37;
+            let d = Vector3::new(a.cos() * (k % 9) as f64 * 0.1, a.sin() * 0.8, 1.0).normalize();
+            for limit in [2.5, 4.0, 100.0] {
+                let brute = faces
+                    .iter()
+                    .any(|f| ray_hits_triangle(&origin, &d, &f.corners).is_some_and(|t| t < limit));
+                assert_eq!(bvh.any_hit(&faces, &origin, &d, limit, |_, _| true), brute);
+            }
+        }
+    }
+}
