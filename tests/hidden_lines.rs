@@ -1,0 +1,232 @@
+//! Hidden lines checked against an independent reference: a brute-force ray caster over
+//! every face, written here separately from the renderer's hierarchy, sampling and
+//! bisection. Its definition of "seen" is the renderer's documented one: no face crosses
+//! the sight line nearer than the point's distance less the depth bias (and less a curved
+//! facet's slack, measured along the sight line).
+//!
+//! Scenes: a round tower in front of a hall, the interior demo with its columns, and the
+//! exterior demo from a standpoint inside the arcade.
+
+use nalgebra::{Point3, Vector3};
+use pansite::scene::{load_scene, parse_scene, Face, Site, SiteCurve, Standpoint};
+use pansite::sphere::{SphereCurve, ViewFrame};
+use pansite::visibility::{Bvh, Depth, Occluders, DEPTH_BIAS};
+use std::f64::consts::TAU;
+use std::path::Path;
+
+/// Image width the pixel measures refer to.
+const WIDTH: f64 = 1024.0;
+const PIXEL: f64 = TAU / WIDTH;
+
+/// Moeller-Trumbore again, on its own: the distance at which the ray crosses the triangle.
+fn crossing(origin: &Point3<f64>, d: &Vector3<f64>, f: &Face) -> Option<f64> {
+    let [a, b, c] = f.corners;
+    let (e1, e2) = (b - a, c - a);
+    let h = d.cross(&e2);
+    let det = e1.dot(&h);
+    if det.abs() < 1e-14 * e1.norm() * e2.norm() {
+        return None;
+    }
+    let s = origin - a;
+    let u = s.dot(&h) / det;
+    let q = s.cross(&e1);
+    let v = d.dot(&q) / det;
+    if u < 0.0 || v < 0.0 || u + v > 1.0 || u > 1.0 {
+        return None;
+    }
+    let t = e2.dot(&q) / det;
+    (t > 0.0).then_some(t)
+}
+
+/// The reference: is the site point `p` seen from `eye`, by every face in turn?
+fn seen_by_brute_force(faces: &[Face], eye: &Point3<f64>, p: &Point3<f64>) -> bool {
+    let to = p - eye;
+    let distance = to.norm();
+    let d = to / distance;
+    let limit = distance * (1.0 - DEPTH_BIAS);
+    !faces.iter().any(|f| {
+        crossing(eye, &d, f).is_some_and(|t| {
+            let [a, b, c] = f.corners;
+            let n = (b - a).cross(&(c - a)).normalize();
+            let cosine = n.dot(&d).abs().max(0.05);
+            t < limit - f.slack as f64 / cosine
+        })
+    })
+}
+
+/// The site point of an edge at parameter `t` of its sphere curve (back from the view
+/// frame): the curve's own point for an ellipse, the segment's point in that direction for
+/// a segment.
+fn site_point(view: &ViewFrame, edge: &SiteCurve, curve: &SphereCurve, t: f64) -> Point3<f64> {
+    let d = curve.position(t);
+    match *edge {
+        SiteCurve::Ellipse { .. } => view.eye() + view.direction_to_site(&d),
+        SiteCurve::Segment { start, end } => {
+            // Where the sight line meets the segment: solve eye + s D = start + k (end - start)
+            // by least squares in the plane they share.
+            let dir = view.direction_to_site(&d.normalize());
+            let (w, e) = (start - view.eye(), end - start);
+            let (a, b, c) = (dir.dot(&dir), dir.dot(&e), e.dot(&e));
+            let (dd, ee) = (dir.dot(&w), e.dot(&w));
+            let k = (b * dd - a * ee) / (a * c - b * b);
+            start + e * k
+        }
+    }
+}
+
+/// Parameter step that turns the direction by `angle`, from a finite difference.
+fn step_for(curve: &SphereCurve, t: f64, angle: f64) -> f64 {
+    let h = 1e-6;
+    let a = curve.position(t).normalize();
+    let b = curve.position((t + h).min(curve.t1)).normalize();
+    let speed = (b - a).norm() / h;
+    (angle / speed.max(1e-12)).clamp(1e-9, 0.05)
+}
+
+struct Tally {
+    samples: usize,
+    disagreeing: usize,
+    transitions: usize,
+}
+
+fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
+    let view = ViewFrame::new(standpoint);
+    let eye = view.eye();
+    let bvh = Bvh::new(&site.faces);
+    let occluders = Occluders {
+        faces: &site.faces,
+        bvh: &bvh,
+        view: &view,
+        eye,
+    };
+    let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve).collect();
+    edges.extend(site.outline_edges_from(&eye).iter().map(|e| e.curve));
+    let mut tally = Tally {
+        samples: 0,
+        disagreeing: 0,
+        transitions: 0,
+    };
+    for edge in edges.iter().step_by(every) {
+        let Ok(curve) = view.sphere_curve(edge) else {
+            continue;
+        };
+        let depth = match *edge {
+            SiteCurve::Segment { start, end } => Depth::Segment {
+                a: view.to_view(&start),
+                b: view.to_view(&end),
+            },
+            SiteCurve::Ellipse { .. } => Depth::Curve,
+        };
+        let spans = occluders.spans(&curve, &depth, PIXEL, 1e-3 * PIXEL);
+        let renderer_sees = |t: f64| {
+            spans
+                .iter()
+                .find(|(a, b, _)| t >= *a && t <= *b)
+                .is_none_or(|(_, _, seen)| *seen)
+        };
+        let reference =
+            |t: f64| seen_by_brute_force(&site.faces, &eye, &site_point(&view, edge, &curve, t));
+        // Samples a quarter of a pixel apart, and where each lies in angle.
+        let mut ts = vec![curve.t0];
+        while *ts.last().unwrap() < curve.t1 {
+            let t = *ts.last().unwrap();
+            ts.push((t + step_for(&curve, t, 0.25 * PIXEL)).min(curve.t1));
+        }
+        let truth: Vec<bool> = ts.iter().map(|&t| reference(t)).collect();
+        let angle_between = |a: f64, b: f64| {
+            let (p, q) = (curve.position(a).normalize(), curve.position(b).normalize());
+            p.cross(&q).norm().atan2(p.dot(&q))
+        };
+        for (i, &t) in ts.iter().enumerate() {
+            tally.samples += 1;
+            if renderer_sees(t) == truth[i] {
+                continue;
+            }
+            tally.disagreeing += 1;
+            // A disagreement must lie within a pixel of a true change of visibility.
+            let near_change = ts
+                .iter()
+                .zip(&truth)
+                .any(|(&u, &seen)| seen != truth[i] && angle_between(t, u) <= PIXEL);
+            assert!(
+                near_change,
+                "{name}: edge {edge:?} disagrees at t = {t} far from any change"
+            );
+        }
+        // Each change the renderer finds is within half a pixel of a true one: just before
+        // it the reference agrees with the stretch before, just after with the stretch
+        // after, at most half a pixel away (less where a stretch is shorter than that).
+        for window in spans.windows(2) {
+            let ((a, t, seen_before), (_, b, seen_after)) = (
+                (window[0].0, window[0].1, window[0].2),
+                (window[1].0, window[1].1, window[1].2),
+            );
+            // A stretch a hundredth of a pixel long cannot be seen in the drawing (it is
+            // where a sight line grazes a face, at an edge's end): nothing to place.
+            if angle_between(a, t) < 0.01 * PIXEL || angle_between(t, b) < 0.01 * PIXEL {
+                continue;
+            }
+            tally.transitions += 1;
+            let reach = step_for(&curve, t, 0.5 * PIXEL);
+            let before = t - reach.min(0.5 * (t - a));
+            let after = t + reach.min(0.5 * (b - t));
+            assert!(
+                reference(before) == seen_before && reference(after) == seen_after,
+                "{name}: the change at t = {t} on {edge:?} has no true change within half a pixel"
+            );
+        }
+    }
+    let agreement = 1.0 - tally.disagreeing as f64 / tally.samples as f64;
+    assert!(
+        agreement >= 0.995,
+        "{name}: {} of {} samples disagree ({:.3} % agreement)",
+        tally.disagreeing,
+        tally.samples,
+        100.0 * agreement
+    );
+    assert!(
+        tally.transitions > 0,
+        "{name}: nothing was hidden, a test of nothing"
+    );
+    eprintln!(
+        "{name}: {} samples, {:.3} % agree, {} changes placed within half a pixel",
+        tally.samples,
+        100.0 * agreement,
+        tally.transitions
+    );
+}
+
+fn scene(path: &str) -> Site {
+    load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join(path)).unwrap()
+}
+
+#[test]
+fn a_tower_in_front_of_a_hall() {
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"street\", x: 2, y: -14, heading: 5)], items: [
+            Block(label: \"hall\", at: Corner(-10, 0), width: 20, depth: 10, height: 8,
+                  roof: Gable(ridge: 12, overhang: 0.4),
+                  openings: [(wall: Front, count: 5, width: 1.2, height: 2, sill: 1, reveal: 0.3)]),
+            Tower(label: \"tower\", at: (1, -5), diameter: 3, height: 14, roof: Cone(height: 4)),
+            Column(at: (-4, -8), diameter: 0.5, height: 4),
+        ])",
+        Path::new("tower.ron"),
+        "tower",
+    )
+    .unwrap();
+    check_scene("tower", &site, &site.standpoints[0], 1);
+}
+
+#[test]
+fn an_interior_with_columns() {
+    let site = scene("scenes/wexcombe-corn-exchange.ron");
+    for standpoint in &site.standpoints {
+        check_scene(&standpoint.name, &site, standpoint, 3);
+    }
+}
+
+#[test]
+fn a_standpoint_inside_an_arcade() {
+    let site = scene("scenes/wexcombe-square.ron");
+    check_scene("loggia", &site, site.standpoint("loggia").unwrap(), 4);
+}
