@@ -18,6 +18,10 @@
 //! - `town block`: 2,000 items of every common kind written out one by one: read, check
 //!   the RON, expand into edges and faces (the 50 ms target), and `check`'s survey.
 //!
+//! - `hidden lines`: the same mesh drawn at 8192x4096 from among the spheres with hidden
+//!   parts found and drawn faint, against the same drawing without: the pass's time and
+//!   memory (the 3 s and 1.5 x image targets).
+//!
 //! Peak memory is measured by running each case once more, as the command does it (load,
 //! then draw, rasterise and encode in bands), in a child process, and reading its
 //! high-water mark (`VmHWM`) from `/proc/self/status`. "image" in that column is the size
@@ -26,8 +30,11 @@
 use pansite::output::{encode_grey_png, GreyCanvas};
 use pansite::plane::{Equirect, Flattener, PolylineSet, DEFAULT_TOLERANCE_PX};
 use pansite::render::{draw, raster, render_png_to, RenderSettings};
-use pansite::scene::{add_mesh, parse_obj, parse_scene, MeshPlacement, MeshStats, Site};
+use pansite::scene::{
+    add_mesh, parse_obj, parse_scene, HiddenEdges, MeshPlacement, MeshStats, Site, Standpoint,
+};
 use pansite::sphere::ViewFrame;
+use pansite::visibility::Bvh;
 use std::fmt::Write as _;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -148,10 +155,12 @@ fn floor_up() -> usize {
     bytes.len()
 }
 
+/// The wireframe pipeline as the core issue measured it: every edge drawn alike.
 fn settings() -> RenderSettings {
     RenderSettings {
         width: WIDTH,
         height: HEIGHT,
+        hidden: Some(HiddenEdges::Solid),
         ..RenderSettings::default()
     }
 }
@@ -165,6 +174,8 @@ struct Run {
     raster: Duration,
     encode: Duration,
     render: Duration,
+    /// The same render with hidden parts found and drawn faint (the default).
+    hidden: Duration,
     edges: usize,
     vertices: usize,
 }
@@ -187,6 +198,14 @@ fn whole(text: &str) -> Run {
     let started = Instant::now();
     render_png_to(&site, &site.standpoints[0], &settings(), &mut bytes).unwrap();
     let render = started.elapsed();
+    let faint = RenderSettings {
+        hidden: Some(HiddenEdges::Faint),
+        ..settings()
+    };
+    bytes.clear();
+    let started = Instant::now();
+    render_png_to(&site, &site.standpoints[0], &faint, &mut bytes).unwrap();
+    let hidden = started.elapsed();
     // The stages one after the other, for the breakdown.
     let mut staged = draw(&site, &site.standpoints[0], &settings()).unwrap();
     let canvas = raster(&mut staged);
@@ -199,6 +218,7 @@ fn whole(text: &str) -> Run {
         raster: staged.timings.raster.unwrap_or_default(),
         encode: started.elapsed(),
         render,
+        hidden,
         edges: site.edges.len(),
         vertices: staged.drawing.vertex_count(),
     }
@@ -253,6 +273,28 @@ fn mesh_import(text: &str) -> (Duration, Duration, MeshStats, usize) {
         .filter(|c| c.is_outline_from(&eye))
         .count();
     (parse, started.elapsed(), stats, outlines)
+}
+
+/// The mesh placed as a site, and a standpoint among the spheres.
+fn mesh_site(text: &str) -> (Site, Standpoint) {
+    let obj = parse_obj(text.as_bytes(), Path::new("spheres.obj")).unwrap();
+    let mut site = Site::default();
+    add_mesh(&mut site, &obj, &MeshPlacement::default(), "spheres.obj");
+    let standpoint = Standpoint::from_degrees("among the spheres", 3.0, -2.0, 1.6, 30.0, 0.0, 0.0);
+    (site, standpoint)
+}
+
+/// The mesh drawn at 8192x4096 with hidden parts looked for (`Faint`) or not (`Solid`):
+/// the difference is the hidden-line pass.
+fn mesh_render(site: &Site, standpoint: &Standpoint, hidden: HiddenEdges) -> Duration {
+    let settings = RenderSettings {
+        hidden: Some(hidden),
+        ..settings()
+    };
+    let mut bytes = Vec::with_capacity(8 << 20);
+    let started = Instant::now();
+    render_png_to(site, standpoint, &settings, &mut bytes).unwrap();
+    started.elapsed()
 }
 
 /// What the command does: load, then draw, rasterise and encode in bands (for the memory
@@ -330,6 +372,15 @@ fn main() {
             "town" => render_only(&town_scene()),
             "demo" => render_only(&demo_scene()),
             "mesh" => drop(mesh_import(&mesh_obj())),
+            "mesh_solid" | "mesh_faint" => {
+                let (site, standpoint) = mesh_site(&mesh_obj());
+                let hidden = if case == "mesh_solid" {
+                    HiddenEdges::Solid
+                } else {
+                    HiddenEdges::Faint
+                };
+                mesh_render(&site, &standpoint, hidden);
+            }
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
@@ -364,8 +415,8 @@ fn main() {
         ms(floor_up_time)
     );
     println!();
-    println!("| case | edges | vertices | parse ms | flatten ms | raster ms | encode ms | render ms (overlapped) | render / F | render / F_up | with parse / F | peak memory |");
-    println!("|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
+    println!("| case | edges | vertices | parse ms | flatten ms | raster ms | encode ms | render ms (overlapped) | render / F | render / F_up | with parse / F | peak memory | with hidden lines ms | hidden / F |");
+    println!("|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
     for (name, runs) in [("town", &town_runs), ("demo", &demo_runs)] {
         let pick = |f: fn(&Run) -> Duration| median(runs.iter().map(f).collect());
         let render = pick(Run::render);
@@ -376,8 +427,9 @@ fn main() {
                 megabytes(image_bytes)
             )
         });
+        let hidden = pick(|r| r.hidden);
         println!(
-            "| {name} | {} | {} | {:.1} | {:.1} | {:.1} | {:.1} | {:.1} | {:.2} | {:.2} | {:.2} | {peak} |",
+            "| {name} | {} | {} | {:.1} | {:.1} | {:.1} | {:.1} | {:.1} | {:.2} | {:.2} | {:.2} | {peak} | {:.1} | {:.2} |",
             runs[0].edges,
             runs[0].vertices,
             ms(pick(|r| r.parse)),
@@ -388,6 +440,8 @@ fn main() {
             render.as_secs_f64() / floor_time.as_secs_f64(),
             render.as_secs_f64() / floor_up_time.as_secs_f64(),
             pick(Run::with_parse).as_secs_f64() / floor_time.as_secs_f64(),
+            ms(hidden),
+            hidden.as_secs_f64() / floor_time.as_secs_f64(),
         );
     }
     println!();
@@ -416,6 +470,45 @@ fn main() {
         "  {} vertices after welding, {} edges: {} creases, {} boundary, {} smooth (silhouette candidates), {} on the outline from one standpoint",
         stats.vertices, stats.edges, stats.creases, stats.boundary, stats.smooth, outlines
     );
+    let (site, standpoint) = mesh_site(&mesh);
+    let solid = median(
+        (0..3)
+            .map(|_| mesh_render(&site, &standpoint, HiddenEdges::Solid))
+            .collect(),
+    );
+    let faint = median(
+        (0..3)
+            .map(|_| mesh_render(&site, &standpoint, HiddenEdges::Faint))
+            .collect(),
+    );
+    let peaks = (child_peak("mesh_solid"), child_peak("mesh_faint"));
+    println!(
+        "hidden lines on the same mesh at {WIDTH}x{HEIGHT} ({} faces): render without {:.0} ms, with {:.0} ms; \
+         the pass adds {:.2} s = {:.1} F (target 3 s)",
+        site.faces.len(),
+        ms(solid),
+        ms(faint),
+        (faint.saturating_sub(solid)).as_secs_f64(),
+        faint.saturating_sub(solid).as_secs_f64() / floor_time.as_secs_f64(),
+    );
+    println!(
+        "  the hierarchy of faces holds {:.0} MB = {:.2} x the image's {:.0} MB (target 1.5)",
+        megabytes(Bvh::new(&site.faces).memory_bytes() as u64),
+        Bvh::new(&site.faces).memory_bytes() as f64 / image_bytes as f64,
+        megabytes(image_bytes)
+    );
+    if let (Some(without), Some(with)) = peaks {
+        println!(
+            "  peak memory of the whole command without {:.0} MB, with {:.0} MB: the pass adds {:.0} MB = {:.2} x the image's {:.0} MB",
+            megabytes(without),
+            megabytes(with),
+            megabytes(with.saturating_sub(without)),
+            with.saturating_sub(without) as f64 / image_bytes as f64,
+            megabytes(image_bytes)
+        );
+    }
+    drop(site);
+
     let block = town_block_scene();
     let loads: Vec<(Duration, Duration, usize)> = (0..RUNS)
         .map(|_| {

@@ -541,3 +541,56 @@ fn new_writes_a_starter_scene_and_never_replaces_a_file() {
     assert!(stderr(&out).contains("already exists"));
     assert_eq!(std::fs::read_to_string(mine).unwrap(), "my own work");
 }
+
+#[test]
+fn hidden_edges_from_the_command_line_and_the_scene() {
+    let dir = Scratch::new("hidden");
+    // A small block in front of a tall one: the tall one's lower edges are hidden.
+    let scene = "Scene(hidden: Off, standpoints: [(name: \"s\", x: 0, y: -10)], items: [\n\
+                 Block(at: Centre(0, 0), width: 4, depth: 2, height: 3),\n\
+                 Block(at: Centre(0, 8), width: 10, depth: 2, height: 12)])";
+    dir.write("pair.ron", scene);
+    let ink = |name: &str| -> u64 {
+        let decoder =
+            png::Decoder::new(std::io::Cursor::new(std::fs::read(dir.path(name)).unwrap()));
+        let mut reader = decoder.read_info().unwrap();
+        let mut pixels = vec![0; reader.output_buffer_size().unwrap()];
+        reader.next_frame(&mut pixels).unwrap();
+        pixels.iter().map(|&p| 255 - p as u64).sum()
+    };
+    let size = ["--size", "1024x512", "--bare"];
+    for (how, out) in [
+        ("solid", "solid.png"),
+        ("faint", "faint.png"),
+        ("off", "off.png"),
+    ] {
+        let mut args = vec!["render", "pair.ron", "--hidden", how, "-o", out];
+        args.extend(size);
+        succeeds(&dir, &args);
+    }
+    let mut args = vec!["render", "pair.ron", "-o", "scene.png"];
+    args.extend(size);
+    succeeds(&dir, &args);
+    // Less ink as hidden parts fade and go; the scene's own choice is `Off`.
+    assert!(ink("solid.png") > ink("faint.png"));
+    assert!(ink("faint.png") > ink("off.png"));
+    assert_eq!(
+        std::fs::read(dir.path("scene.png")).unwrap(),
+        std::fs::read(dir.path("off.png")).unwrap()
+    );
+    // Standing inside the small block is warned about.
+    let inside = "Scene(standpoints: [(name: \"in\", x: 0, y: 0)], items: [Block(at: Centre(0, 0), width: 4, depth: 2, height: 3)])";
+    dir.write("inside.ron", inside);
+    let out = succeeds(
+        &dir,
+        &[
+            "render",
+            "inside.ron",
+            "-o",
+            "inside.png",
+            "--size",
+            "256x128",
+        ],
+    );
+    assert!(stderr(&out).contains("is inside block"), "{}", stderr(&out));
+}

@@ -103,18 +103,24 @@ impl Bvh {
         self.nodes[at].count = 0;
     }
 
-    /// Whether some face for which `blocks(face, distance)` holds meets the ray from
-    /// `origin` along the unit `direction` closer than `limit`. Stops at the first one.
-    pub fn any_hit(
+    /// The memory the hierarchy holds, bytes.
+    pub fn memory_bytes(&self) -> usize {
+        self.nodes.capacity() * std::mem::size_of::<Node>() + self.order.capacity() * 4
+    }
+
+    /// A face for which `blocks(face, distance)` holds that meets the ray from `origin`
+    /// along the unit `direction` closer than `limit` (its index), if any. Stops at the
+    /// first one found.
+    pub fn first_hit(
         &self,
         faces: &[Face],
         origin: &Point3<f64>,
         direction: &Vector3<f64>,
         limit: f64,
         blocks: impl Fn(&Face, f64) -> bool,
-    ) -> bool {
+    ) -> Option<u32> {
         if self.nodes.is_empty() {
-            return false;
+            return None;
         }
         let o = [origin.x as f32, origin.y as f32, origin.z as f32];
         let inverse = [
@@ -136,11 +142,11 @@ impl Bvh {
             }
             if node.count > 0 {
                 let first = node.index as usize;
-                for &face in &self.order[first..first + node.count as usize] {
-                    let face = &faces[face as usize];
+                for &index in &self.order[first..first + node.count as usize] {
+                    let face = &faces[index as usize];
                     if let Some(distance) = ray_hits_triangle(origin, direction, &face.corners) {
                         if distance < limit && blocks(face, distance) {
-                            return true;
+                            return Some(index);
                         }
                     }
                 }
@@ -151,8 +157,86 @@ impl Bvh {
                 depth += 2;
             }
         }
+        None
+    }
+
+    /// Whether any face crosses the triangle `wedge` (a fan of sight lines from the eye to a
+    /// piece of an edge): if none does, nothing stands between the eye and that piece.
+    /// Faces in the wedge's own plane are seen edge-on and do not count.
+    pub fn crosses(&self, faces: &[Face], wedge: &[Point3<f64>; 3]) -> bool {
+        if self.nodes.is_empty() {
+            return false;
+        }
+        let mut lo = wedge[0].coords;
+        let mut hi = lo;
+        for p in wedge {
+            lo = lo.inf(&p.coords);
+            hi = hi.sup(&p.coords);
+        }
+        let (lo, hi) = outward(lo, hi);
+        let normal = (wedge[1] - wedge[0]).cross(&(wedge[2] - wedge[0]));
+        let offset = normal.dot(&wedge[0].coords);
+        let mut stack = [0u32; 64];
+        let mut depth = 1;
+        while depth > 0 {
+            depth -= 1;
+            let at = stack[depth];
+            let node = &self.nodes[at as usize];
+            let apart = (0..3).any(|k| node.hi[k] < lo[k] || node.lo[k] > hi[k]);
+            if apart || !box_meets_plane(node, &normal, offset) {
+                continue;
+            }
+            if node.count > 0 {
+                let first = node.index as usize;
+                let leaf = &self.order[first..first + node.count as usize];
+                if leaf
+                    .iter()
+                    .any(|&i| triangles_cross(&faces[i as usize].corners, wedge))
+                {
+                    return true;
+                }
+            } else if depth + 2 <= stack.len() {
+                stack[depth] = node.index;
+                stack[depth + 1] = at + 1;
+                depth += 2;
+            }
+        }
         false
     }
+}
+
+/// Whether the plane `normal . x = offset` passes through the box (its corners are not all
+/// on one side).
+fn box_meets_plane(node: &Node, normal: &Vector3<f64>, offset: f64) -> bool {
+    let (mut below, mut above) = (false, false);
+    for corner in 0..8 {
+        let pick = |k: usize| {
+            if corner >> k & 1 == 1 {
+                node.hi[k] as f64
+            } else {
+                node.lo[k] as f64
+            }
+        };
+        let side = normal.x * pick(0) + normal.y * pick(1) + normal.z * pick(2) - offset;
+        below |= side <= 0.0;
+        above |= side >= 0.0;
+    }
+    below && above
+}
+
+/// Whether two triangles cross: a side of one passes through the other. Triangles in one
+/// plane do not count (a face seen edge-on hides nothing).
+fn triangles_cross(a: &[Point3<f64>; 3], b: &[Point3<f64>; 3]) -> bool {
+    let side_through = |t: &[Point3<f64>; 3], other: &[Point3<f64>; 3]| {
+        (0..3).any(|i| {
+            let (p, q) = (t[i], t[(i + 1) % 3]);
+            let along = q - p;
+            let length = along.norm();
+            length > 0.0
+                && ray_hits_triangle(&p, &(along / length), other).is_some_and(|d| d <= length)
+        })
+    };
+    side_through(a, b) || side_through(b, a)
 }
 
 /// The slab test (Kay and Kajiya, "Ray tracing complex scenes", SIGGRAPH 1986), on a box
@@ -253,7 +337,11 @@ mod tests {
                 let brute = faces
                     .iter()
                     .any(|f| ray_hits_triangle(&origin, &d, &f.corners).is_some_and(|t| t < limit));
-                assert_eq!(bvh.any_hit(&faces, &origin, &d, limit, |_, _| true), brute);
+                assert_eq!(
+                    bvh.first_hit(&faces, &origin, &d, limit, |_, _| true)
+                        .is_some(),
+                    brute
+                );
             }
         }
     }

@@ -1,7 +1,7 @@
 //! Which stretches of an edge the eye sees: sampled along the edge about a pixel apart, and
 //! each change between seen and hidden found by bisection to a small fraction of a pixel.
 
-use super::bvh::Bvh;
+use super::bvh::{ray_hits_triangle, Bvh};
 use crate::scene::Face;
 use crate::sphere::{SphereCurve, ViewFrame};
 use nalgebra::{Point3, Vector3};
@@ -45,50 +45,169 @@ impl Depth {
     }
 }
 
+/// What the eye finds looking at one point of an edge: whether it is seen, and if not, a
+/// face that hides it.
+#[derive(Clone, Copy, Debug)]
+struct Look {
+    t: f64,
+    blocker: Option<u32>,
+}
+
+impl Look {
+    fn seen(&self) -> bool {
+        self.blocker.is_none()
+    }
+}
+
 impl Occluders<'_> {
-    /// Whether the point of the edge at `t` is seen.
-    fn sees(&self, curve: &SphereCurve, depth: &Depth, t: f64) -> bool {
-        let Some(direction) = curve.position(t).try_normalize(0.0) else {
-            return true;
-        };
-        let distance = depth.at(curve, t, &direction);
-        let limit = distance * (1.0 - DEPTH_BIAS);
-        let towards = self.view.direction_to_site(&direction);
-        !self
-            .bvh
-            .any_hit(self.faces, &self.eye, &towards, limit, |face, hit| {
-                // A facet of a curved surface may stand up to its slack in front of the true
-                // surface that edges are drawn on, more so for rays that graze it.
-                if face.slack == 0.0 {
-                    return true;
-                }
-                let [p, q, r] = face.corners;
-                let normal = (q - p).cross(&(r - p));
-                let cosine = (normal.dot(&towards) / normal.norm()).abs().max(0.05);
-                hit < limit - face.slack as f64 / cosine
-            })
+    /// The point of the edge at `t`, in site coordinates, and its direction from the eye.
+    fn point(&self, curve: &SphereCurve, depth: &Depth, t: f64) -> Option<(Vector3<f64>, f64)> {
+        let direction = curve.position(t).try_normalize(0.0)?;
+        Some((direction, depth.at(curve, t, &direction)))
     }
 
-    /// The stretches of the edge seen and hidden. `step` is the angle (radians) between
-    /// samples; changes between samples are located to within `precision` radians.
+    /// Whether `face` hides the point at `distance` along the site direction `towards`,
+    /// given that the sight line meets it at `hit`.
+    fn hides(&self, face: &Face, towards: &Vector3<f64>, hit: f64, limit: f64) -> bool {
+        // A facet of a curved surface may stand up to its slack in front of the true
+        // surface that edges are drawn on, more so for sight lines that graze it.
+        if face.slack == 0.0 {
+            return hit < limit;
+        }
+        let [p, q, r] = face.corners;
+        let normal = (q - p).cross(&(r - p));
+        let cosine = (normal.dot(towards) / normal.norm()).abs().max(0.05);
+        hit < limit - face.slack as f64 / cosine
+    }
+
+    /// Looks at the point of the edge at `t`.
+    fn look(&self, curve: &SphereCurve, depth: &Depth, t: f64) -> Look {
+        let Some((direction, distance)) = self.point(curve, depth, t) else {
+            return Look { t, blocker: None };
+        };
+        let limit = distance * (1.0 - DEPTH_BIAS);
+        let towards = self.view.direction_to_site(&direction);
+        let blocker = self
+            .bvh
+            .first_hit(self.faces, &self.eye, &towards, limit, |face, hit| {
+                self.hides(face, &towards, hit, limit)
+            });
+        Look { t, blocker }
+    }
+
+    /// Whether the face hides the point of the edge at `t`.
+    fn face_hides(&self, curve: &SphereCurve, depth: &Depth, t: f64, face: u32) -> bool {
+        let Some((direction, distance)) = self.point(curve, depth, t) else {
+            return false;
+        };
+        let limit = distance * (1.0 - DEPTH_BIAS);
+        let towards = self.view.direction_to_site(&direction);
+        let face = &self.faces[face as usize];
+        ray_hits_triangle(&self.eye, &towards, &face.corners)
+            .is_some_and(|hit| self.hides(face, &towards, hit, limit))
+    }
+
+    /// The stretches of the edge seen and hidden. `step` is the angle (radians) below
+    /// which a piece of the edge is not divided further; changes are located to within
+    /// `precision` radians.
+    ///
+    /// A straight piece whose two ends are seen is seen throughout if no face crosses the
+    /// fan of sight lines to it (one query of the hierarchy); one whose ends are hidden by
+    /// the same face is hidden throughout (a triangle meets the fan's plane in a segment,
+    /// and two straight pieces in a plane that are ordered the same way at both ends of a
+    /// fan are ordered so between). Other pieces are halved, down to `step`; curved edges
+    /// are sampled every `step`.
     pub fn spans(&self, curve: &SphereCurve, depth: &Depth, step: f64, precision: f64) -> Spans {
         let mut spans: Spans = Vec::new();
-        let mut t = curve.t0;
-        let mut seen = self.sees(curve, depth, t);
-        let mut start = t;
-        while t < curve.t1 {
-            let next = (t + parameter_step(curve, t, step)).min(curve.t1);
-            let next_seen = self.sees(curve, depth, next);
-            if next_seen != seen {
-                let change = self.bisect(curve, depth, t, next, seen, precision);
-                spans.push((start, change, seen));
-                start = change;
-                seen = next_seen;
+        let first = self.look(curve, depth, curve.t0);
+        match depth {
+            Depth::Segment { .. } => {
+                let last = self.look(curve, depth, curve.t1);
+                self.divide(curve, depth, first, last, step, precision, &mut spans);
             }
-            t = next;
+            Depth::Curve => {
+                let mut here = first;
+                while here.t < curve.t1 {
+                    let next_t = (here.t + parameter_step(curve, here.t, step)).min(curve.t1);
+                    let next = self.look(curve, depth, next_t);
+                    self.settle(curve, depth, here, next, precision, &mut spans);
+                    here = next;
+                }
+            }
         }
-        spans.push((start, curve.t1, seen));
-        spans
+        merge(spans)
+    }
+
+    /// The stretches between two looked-at points of a straight edge.
+    #[allow(clippy::too_many_arguments)]
+    fn divide(
+        &self,
+        curve: &SphereCurve,
+        depth: &Depth,
+        a: Look,
+        b: Look,
+        step: f64,
+        precision: f64,
+        spans: &mut Spans,
+    ) {
+        // A great arc's parameter is its angle.
+        if b.t - a.t <= step {
+            self.settle(curve, depth, a, b, precision, spans);
+            return;
+        }
+        match (a.blocker, b.blocker) {
+            (None, None) if !self.fan_crossed(curve, depth, a.t, b.t) => {
+                spans.push((a.t, b.t, true));
+                return;
+            }
+            (Some(fa), Some(fb))
+                if fa == fb
+                    || self.face_hides(curve, depth, b.t, fa)
+                    || self.face_hides(curve, depth, a.t, fb) =>
+            {
+                spans.push((a.t, b.t, false));
+                return;
+            }
+            _ => {}
+        }
+        let middle = self.look(curve, depth, 0.5 * (a.t + b.t));
+        self.divide(curve, depth, a, middle, step, precision, spans);
+        self.divide(curve, depth, middle, b, step, precision, spans);
+    }
+
+    /// Whether any face crosses the fan of sight lines from the eye to the piece of a
+    /// straight edge from `a` to `b` (stopped short by the depth bias, so that the faces
+    /// the edge lies on do not count).
+    fn fan_crossed(&self, curve: &SphereCurve, depth: &Depth, a: f64, b: f64) -> bool {
+        let end = |t: f64| {
+            self.point(curve, depth, t).map(|(direction, distance)| {
+                self.eye + self.view.direction_to_site(&direction) * (distance * (1.0 - DEPTH_BIAS))
+            })
+        };
+        match (end(a), end(b)) {
+            (Some(p), Some(q)) => self.bvh.crosses(self.faces, &[self.eye, p, q]),
+            _ => true,
+        }
+    }
+
+    /// The stretch between two neighbouring looked-at points: one, or two with the change
+    /// between them found by bisection.
+    fn settle(
+        &self,
+        curve: &SphereCurve,
+        depth: &Depth,
+        a: Look,
+        b: Look,
+        precision: f64,
+        spans: &mut Spans,
+    ) {
+        if a.seen() == b.seen() {
+            spans.push((a.t, b.t, a.seen()));
+        } else {
+            let change = self.bisect(curve, depth, a.t, b.t, a.seen(), precision);
+            spans.push((a.t, change, a.seen()));
+            spans.push((change, b.t, b.seen()));
+        }
     }
 
     /// The parameter between `a` (seen as `seen_at_a`) and `b` (the other) where the edge
@@ -107,7 +226,7 @@ impl Occluders<'_> {
                 break;
             }
             let middle = 0.5 * (a + b);
-            if self.sees(curve, depth, middle) == seen_at_a {
+            if self.look(curve, depth, middle).seen() == seen_at_a {
                 a = middle;
             } else {
                 b = middle;
@@ -115,6 +234,18 @@ impl Occluders<'_> {
         }
         0.5 * (a + b)
     }
+}
+
+/// Joins neighbouring stretches that are both seen or both hidden.
+fn merge(spans: Spans) -> Spans {
+    let mut merged: Spans = Vec::with_capacity(spans.len());
+    for (a, b, seen) in spans {
+        match merged.last_mut() {
+            Some(last) if last.2 == seen => last.1 = b,
+            _ => merged.push((a, b, seen)),
+        }
+    }
+    merged
 }
 
 /// How fast the direction P(t) / |P(t)| turns, radians per unit of t: the part of P'

@@ -8,8 +8,8 @@ use args::{Cli, Command, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::render::{render_png, render_png_to, RenderSettings};
 use pansite::scene::{
-    load_obj, load_scene, parse_scene, HiddenEdges, MeshPlacement, Site, Standpoint, Unit, UpAxis,
-    DEFAULT_EYE_HEIGHT, STARTER_SCENE,
+    load_obj, load_scene, parse_scene, solids_enclosing, HiddenEdges, MeshPlacement, Site,
+    Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
 use std::io::{Read, Write};
@@ -87,6 +87,13 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             .with_context(|| format!("rendering {}", output.display()))?
     };
     if !args.quiet {
+        for item in solids_enclosing(&site, &standpoint.eye()) {
+            eprintln!(
+                "pansite: warning: standpoint \"{}\" is inside {}: its faces surround the view and hide everything beyond",
+                standpoint.name,
+                site.describe_item(item)
+            );
+        }
         for (item, message) in &site.warnings {
             eprintln!("pansite: warning: {} {message}", site.describe_item(*item));
         }
