@@ -2,10 +2,12 @@
 //! the overlays, that every output backend reads.
 
 mod dash;
+mod lettering;
 mod overlay;
 mod wireframe;
 
 pub use dash::dashed;
+pub use lettering::{letter, text_width, Align};
 pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
 pub use wireframe::{wireframe, SkippedEdge, Wireframe};
 
