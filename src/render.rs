@@ -123,14 +123,8 @@ pub struct Render {
 }
 
 /// The grid's strokes: light enough to draw over, the horizon a little stronger.
-const GRID_STROKE: Stroke = Stroke {
-    ink: 0.22,
-    width_px: 1.0,
-};
-const HORIZON_STROKE: Stroke = Stroke {
-    ink: 0.5,
-    width_px: 1.25,
-};
+const GRID_STROKE: Stroke = Stroke::black(0.22, 1.0);
+const HORIZON_STROKE: Stroke = Stroke::black(0.5, 1.25);
 
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
@@ -164,17 +158,11 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         let width = settings.line_weight_px;
         layers.push(Layer {
             name: HIDDEN.to_owned(),
-            stroke: Stroke {
-                ink: 0.4,
-                width_px: (0.75 * width).max(0.75),
-            },
+            stroke: Stroke::black(0.4, (0.75 * width).max(0.75)),
             lines: dashed(&hidden, 3.0 * width + 3.0, 2.0 * width + 2.0),
         });
     }
-    let stroke = Stroke {
-        ink: 1.0,
-        width_px: settings.line_weight_px,
-    };
+    let stroke = Stroke::black(1.0, settings.line_weight_px);
     for (index, (name, lines)) in site_layers.into_iter().enumerate() {
         // The default layer is always there, even empty; named layers only when used.
         if index == 0 || !lines.is_empty() {

@@ -13,12 +13,35 @@ pub use wireframe::{wireframe, SkippedEdge, Wireframe};
 
 use crate::plane::PolylineSet;
 
-/// How a layer's lines are drawn: darkness on white paper and width, in image pixels.
+/// How a layer's lines are drawn: colour, opacity over white paper, and width in the
+/// drawing's pixels.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Stroke {
-    /// 0 = invisible, 1 = black.
-    pub ink: f64,
+    /// Red, green, blue, 0 to 255.
+    pub colour: [u8; 3],
+    /// 0 = invisible, 1 = the full colour.
+    pub opacity: f64,
     pub width_px: f64,
+}
+
+impl Stroke {
+    /// Black ink at `opacity` (a grey on white paper).
+    pub const fn black(opacity: f64, width_px: f64) -> Stroke {
+        Stroke {
+            colour: [0, 0, 0],
+            opacity,
+            width_px,
+        }
+    }
+
+    /// How dark the stroke is on white paper, 0 to 1, for grey output: its opacity times
+    /// the darkness of its colour (one less its relative luminance, with the Rec. 709
+    /// weights of sRGB: IEC 61966-2-1, applied to the encoded values as an approximation).
+    pub fn darkness(&self) -> f64 {
+        let [r, g, b] = self.colour.map(|c| c as f64 / 255.0);
+        let luminance = 0.2126 * r + 0.7152 * g + 0.0722 * b;
+        (self.opacity * (1.0 - luminance)).clamp(0.0, 1.0)
+    }
 }
 
 #[derive(Clone, Debug, PartialEq)]

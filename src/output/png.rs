@@ -70,10 +70,7 @@ mod tests {
             height: 300,
             layers: vec![Layer {
                 name: "test".to_owned(),
-                stroke: Stroke {
-                    ink: 0.8,
-                    width_px: 1.7,
-                },
+                stroke: Stroke::black(0.8, 1.7),
                 lines,
             }],
         };

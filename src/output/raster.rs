@@ -159,7 +159,7 @@ impl Pen {
     fn of(stroke: Stroke) -> Pen {
         Pen {
             reach: stroke.width_px.max(1.0) / 2.0 + 0.5,
-            ink: 255.0 * stroke.ink.clamp(0.0, 1.0) * stroke.width_px.min(1.0),
+            ink: 255.0 * stroke.darkness() * stroke.width_px.min(1.0),
         }
     }
 }
@@ -472,7 +472,7 @@ mod tests {
             height: size.1,
             layers: vec![Layer {
                 name: "test".to_owned(),
-                stroke: Stroke { ink: 1.0, width_px },
+                stroke: Stroke::black(1.0, width_px),
                 lines: set,
             }],
         };
