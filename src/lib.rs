@@ -59,6 +59,7 @@
 pub mod drawing;
 pub mod error;
 pub mod output;
+pub mod page;
 pub mod plane;
 pub mod render;
 pub mod scene;
