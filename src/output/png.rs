@@ -1,9 +1,12 @@
-//! Grey PNG encoding.
+//! PNG encoding: 8-bit grey (the default for a monochrome underlay: a quarter of the bytes)
+//! or RGBA, with the print resolution (pHYs) and panorama metadata (XMP) when asked.
 //!
-//! The canvas is already 8-bit grey, so its rows go to the encoder as they are: no
-//! conversion and no copy. `png`'s `Compression::Fast` (an `fdeflate` encoder tuned for PNG)
-//! with the `Up` filter: wireframes are mostly white rows, which `Up` turns into zeros.
+//! The grey canvas goes to the encoder as it is: no conversion and no copy. `png`'s
+//! `Compression::Fast` (an `fdeflate` encoder tuned for PNG) with the `Up` filter:
+//! wireframes are mostly white rows, which `Up` turns into zeros.
 
+use super::raster::rasterize_rgb_in_bands;
+use super::xmp::{panorama_xmp, Panorama};
 use super::{rasterize_in_bands, GreyCanvas};
 use crate::drawing::Drawing;
 use crate::error::Result;
@@ -22,6 +25,69 @@ fn grey_encoder<W: Write>(out: W, width: u32, height: u32) -> png::Encoder<'stat
 pub fn encode_grey_png(canvas: &GreyCanvas, out: impl Write) -> Result<()> {
     let mut writer = grey_encoder(out, canvas.width, canvas.height).write_header()?;
     writer.write_image_data(&canvas.pixels)?;
+    writer.finish()?;
+    Ok(())
+}
+
+/// What a PNG holds besides its pixels, and how its pixels are stored.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct PngOptions {
+    /// Red, green, blue and alpha (opaque) instead of grey.
+    pub colour: bool,
+    /// Pixels per inch, written in the pHYs chunk (in pixels per metre, as PNG stores it)
+    /// so that the image prints at true size.
+    pub dpi: Option<f64>,
+    /// A panorama's description, written as XMP (an iTXt chunk with the keyword
+    /// `XML:com.adobe.xmp`, as the XMP specification, part 3, places it in PNG).
+    pub panorama: Option<Panorama>,
+}
+
+/// Pixels per metre for a resolution in pixels per inch, rounded.
+pub fn pixels_per_metre(dpi: f64) -> u32 {
+    (dpi / 0.0254).round().clamp(1.0, u32::MAX as f64) as u32
+}
+
+/// Rasterises the drawing and writes it as a PNG into `out` as `options` say, streaming
+/// rows to the encoder as the bands are finished.
+pub fn write_png(drawing: &Drawing, options: &PngOptions, out: impl Write) -> Result<()> {
+    if !options.colour && options.dpi.is_none() && options.panorama.is_none() {
+        return rasterize_grey_png(drawing, out);
+    }
+    let mut encoder = if options.colour {
+        let mut encoder = grey_encoder(out, drawing.width, drawing.height);
+        encoder.set_color(png::ColorType::Rgba);
+        encoder
+    } else {
+        grey_encoder(out, drawing.width, drawing.height)
+    };
+    if let Some(dpi) = options.dpi {
+        let ppm = pixels_per_metre(dpi);
+        encoder.set_pixel_dims(Some(png::PixelDimensions {
+            xppu: ppm,
+            yppu: ppm,
+            unit: png::Unit::Meter,
+        }));
+    }
+    if let Some(panorama) = &options.panorama {
+        encoder.add_itxt_chunk("XML:com.adobe.xmp".to_owned(), panorama_xmp(panorama))?;
+    }
+    let mut writer = encoder.write_header()?;
+    let mut stream = writer.stream_writer()?;
+    if options.colour {
+        let mut rgba: Vec<u8> = Vec::new();
+        rasterize_rgb_in_bands(drawing, |rows| {
+            rgba.clear();
+            for pixel in rows.chunks_exact(3) {
+                rgba.extend_from_slice(&[pixel[0], pixel[1], pixel[2], 255]);
+            }
+            stream.write_all(&rgba)
+        })
+        .map_err(png::EncodingError::from)?;
+    } else {
+        rasterize_in_bands(drawing, |rows| stream.write_all(rows))
+            .map_err(png::EncodingError::from)?;
+    }
+    stream.finish()?;
     writer.finish()?;
     Ok(())
 }

@@ -70,15 +70,34 @@ const BUFFERS_PER_CORE: usize = 3;
 /// shares.
 pub fn rasterize_in_bands<E>(
     drawing: &Drawing,
+    rows: impl FnMut(&[u8]) -> Result<(), E>,
+) -> Result<(), E> {
+    rasterize_channels_in_bands::<1, E>(drawing, rows)
+}
+
+/// [`rasterize_in_bands`] in colour: rows of red, green and blue bytes. Each channel is
+/// inked like the grey canvas (the darkest wins), so colour output is as independent of
+/// drawing order as grey.
+pub fn rasterize_rgb_in_bands<E>(
+    drawing: &Drawing,
+    rows: impl FnMut(&[u8]) -> Result<(), E>,
+) -> Result<(), E> {
+    rasterize_channels_in_bands::<3, E>(drawing, rows)
+}
+
+fn rasterize_channels_in_bands<const C: usize, E>(
+    drawing: &Drawing,
     mut rows: impl FnMut(&[u8]) -> Result<(), E>,
 ) -> Result<(), E> {
     use std::sync::atomic::{AtomicUsize, Ordering};
     use std::sync::mpsc::channel;
     let (width, height) = (drawing.width as usize, drawing.height as usize);
+    // Bytes a row: every pixel's channels side by side.
+    let stride = width * C;
     let pens: Vec<Pen> = drawing
         .layers
         .iter()
-        .map(|layer| Pen::of(layer.stroke))
+        .map(|layer| Pen::of(layer.stroke, C))
         .collect();
     let by_band = strokes_by_band(drawing, &pens);
     let band_count = height.div_ceil(BAND_ROWS);
@@ -89,7 +108,7 @@ pub fn rasterize_in_bands<E>(
     let (free, free_buffers) = channel::<Vec<u8>>();
     for _ in 0..(threads * BUFFERS_PER_CORE).min(band_count) {
         // Ignoring the result is safe: the receiver is alive until the end of this function.
-        let _ = free.send(vec![0u8; BAND_ROWS.min(height) * width]);
+        let _ = free.send(vec![0u8; BAND_ROWS.min(height) * stride]);
     }
     let free_buffers = std::sync::Mutex::new(free_buffers);
     let next_band = AtomicUsize::new(0);
@@ -109,9 +128,9 @@ pub fn rasterize_in_bands<E>(
                 if index >= band_count {
                     break;
                 }
-                let band_rows = &mut buffer[..rows_in(index) * width];
+                let band_rows = &mut buffer[..rows_in(index) * stride];
                 band_rows.fill(255);
-                Band {
+                Band::<C> {
                     width,
                     top: index * BAND_ROWS,
                     rows: band_rows,
@@ -129,7 +148,7 @@ pub fn rasterize_in_bands<E>(
         for (index, buffer) in done.iter() {
             waiting[index] = Some(buffer);
             while let Some(buffer) = waiting.get_mut(next).and_then(Option::take) {
-                outcome = rows(&buffer[..rows_in(next) * width]);
+                outcome = rows(&buffer[..rows_in(next) * stride]);
                 next += 1;
                 let _ = free.send(buffer);
                 if outcome.is_err() {
@@ -151,15 +170,23 @@ pub fn rasterize_in_bands<E>(
 struct Pen {
     /// Coverage reaches this far from a segment: half the stroke width plus half a pixel.
     reach: f64,
-    /// Darkness at full coverage, 0..=255, already scaled for strokes thinner than a pixel.
-    ink: f64,
+    /// Darkness at full coverage in each channel (grey uses the first), 0..=255, already
+    /// scaled for strokes thinner than a pixel.
+    ink: [f64; 3],
 }
 
 impl Pen {
-    fn of(stroke: Stroke) -> Pen {
+    fn of(stroke: Stroke, channels: usize) -> Pen {
+        let thin = stroke.width_px.min(1.0);
+        let opacity = stroke.opacity.clamp(0.0, 1.0);
+        let ink = if channels == 1 {
+            [255.0 * stroke.darkness() * thin; 3]
+        } else {
+            stroke.colour.map(|c| (255.0 - c as f64) * opacity * thin)
+        };
         Pen {
             reach: stroke.width_px.max(1.0) / 2.0 + 0.5,
-            ink: 255.0 * stroke.darkness() * stroke.width_px.min(1.0),
+            ink,
         }
     }
 }
@@ -236,7 +263,7 @@ struct Segment {
     /// Coverage reaches this far from the segment: half the stroke width plus half a pixel.
     reach: f64,
     /// Darkness at full coverage, 0..=255, already scaled for strokes thinner than a pixel.
-    ink: f64,
+    ink: [f64; 3],
     /// Bounding box of everything the stroke can cover.
     left: f64,
     right: f64,
@@ -308,14 +335,14 @@ impl Segment {
     }
 }
 
-/// A horizontal band of the canvas.
-struct Band<'a> {
+/// A horizontal band of the canvas, `C` bytes a pixel.
+struct Band<'a, const C: usize> {
     width: usize,
     top: usize,
     rows: &'a mut [u8],
 }
 
-impl Band<'_> {
+impl<const C: usize> Band<'_, C> {
     /// Draws every stroke that reaches into this band.
     fn draw_strokes(&mut self, drawing: &Drawing, pens: &[Pen], by_band: &StrokesByBand) {
         let index = self.top / BAND_ROWS;
@@ -340,7 +367,7 @@ impl Band<'_> {
     }
 
     fn draw(&mut self, s: &Segment) {
-        let band_rows = self.rows.len() / self.width.max(1);
+        let band_rows = self.rows.len() / (self.width * C).max(1);
         // Rows whose centres the capsule can reach. (Casts instead of floor/ceil/round in
         // this loop: they saturate at zero and compile to single instructions.)
         let first_row = (s.top.max(0.0) as usize).max(self.top);
@@ -363,7 +390,8 @@ impl Band<'_> {
                 let offset = (row - self.top) * self.width;
                 for column in start..end.max(start) {
                     let distance = (column as f64 + 0.5 - x_on_line).abs() * sine;
-                    ink(&mut self.rows[offset + column], s.reach - distance, s.ink);
+                    let at = (offset + column) * C;
+                    ink::<C>(&mut self.rows[at..at + C], s.reach - distance, &s.ink);
                 }
                 continue;
             }
@@ -382,13 +410,13 @@ impl Band<'_> {
             let t_first = (x_first * dx + py * dy) * s.inverse_length_sq;
             let step_t = dx * s.inverse_length_sq;
             let across_first = x_first * uy - py * ux;
-            let pixels = &mut self.rows[offset..offset + self.width];
+            let pixels = &mut self.rows[offset * C..(offset + self.width) * C];
             let t_last = t_first + (end - 1 - start) as f64 * step_t;
             if !is_dot && (0.0..=1.0).contains(&t_first) && (0.0..=1.0).contains(&t_last) {
                 // The whole row is beside the segment, not beyond an end: the distance is
                 // |across| throughout (most rows of most strokes).
-                for (k, pixel) in pixels[start..end].iter_mut().enumerate() {
-                    ink(pixel, s.reach - (across_first + k as f64 * uy).abs(), s.ink);
+                for (k, pixel) in pixels[start * C..end * C].chunks_exact_mut(C).enumerate() {
+                    ink::<C>(pixel, s.reach - (across_first + k as f64 * uy).abs(), &s.ink);
                 }
                 continue;
             }
@@ -403,25 +431,29 @@ impl Band<'_> {
                 let t = t_first + (column - start) as f64 * step_t;
                 let end_point = if t > 0.5 { s.b } else { s.a };
                 let (ex, ey) = (column as f64 + 0.5 - end_point.x, cy - end_point.y);
-                ink(
-                    &mut pixels[column],
+                ink::<C>(
+                    &mut pixels[column * C..column * C + C],
                     s.reach - (ex * ex + ey * ey).sqrt(),
-                    s.ink,
+                    &s.ink,
                 );
             }
-            for (k, pixel) in pixels[strip_start..strip_end].iter_mut().enumerate() {
+            let strip = &mut pixels[strip_start * C..strip_end * C];
+            for (k, pixel) in strip.chunks_exact_mut(C).enumerate() {
                 let across = across_first + (strip_start - start + k) as f64 * uy;
-                ink(pixel, s.reach - across.abs(), s.ink);
+                ink::<C>(pixel, s.reach - across.abs(), &s.ink);
             }
         }
     }
 }
 
-/// Darkens a pixel to `255 - clamp(coverage) * ink`, rounded, if that is darker.
+/// Darkens each channel of a pixel to `255 - clamp(coverage) * ink`, rounded, if that is
+/// darker.
 #[inline(always)]
-fn ink(pixel: &mut u8, coverage: f64, ink: f64) {
-    let value = (255.5 - coverage.clamp(0.0, 1.0) * ink) as u8;
-    *pixel = (*pixel).min(value);
+fn ink<const C: usize>(pixel: &mut [u8], coverage: f64, ink: &[f64; 3]) {
+    let coverage = coverage.clamp(0.0, 1.0);
+    for (channel, value) in pixel.iter_mut().zip(ink) {
+        *channel = (*channel).min((255.5 - coverage * value) as u8);
+    }
 }
 
 /// The columns in `start..end` where `t_first + (column - start) * step_t` lies in `[0, 1]`.

@@ -1,6 +1,10 @@
 //! Pages: the panorama laid out on paper of a chosen size, with a title block, or split
 //! over several sheets; what the vector and raster backends write.
 
+mod paper;
+
+pub use paper::{preset_names, Paper, MAX_SIDE_MM, MM_PER_INCH};
+
 use crate::drawing::Drawing;
 
 /// A drawing on a sheet of paper. The drawing's coordinates are pixels (x right, y down,
