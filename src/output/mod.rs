@@ -7,6 +7,6 @@ mod raster;
 mod xmp;
 
 pub use self::png::{encode_grey_png, pixels_per_metre, rasterize_grey_png, write_png, PngOptions};
-pub use xmp::{panorama_xmp, Panorama};
 pub use atomic::write_atomically;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};
+pub use xmp::{panorama_xmp, Panorama};

@@ -416,7 +416,11 @@ impl<const C: usize> Band<'_, C> {
                 // The whole row is beside the segment, not beyond an end: the distance is
                 // |across| throughout (most rows of most strokes).
                 for (k, pixel) in pixels[start * C..end * C].chunks_exact_mut(C).enumerate() {
-                    ink::<C>(pixel, s.reach - (across_first + k as f64 * uy).abs(), &s.ink);
+                    ink::<C>(
+                        pixel,
+                        s.reach - (across_first + k as f64 * uy).abs(),
+                        &s.ink,
+                    );
                 }
                 continue;
             }

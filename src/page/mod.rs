@@ -1,8 +1,12 @@
 //! Pages: the panorama laid out on paper of a chosen size, with a title block, or split
 //! over several sheets; what the vector and raster backends write.
 
+mod clip;
+mod layout;
 mod paper;
 
+pub use clip::{clip_and_move, clip_segment, Rect};
+pub use layout::{PageSettings, Placement, Tiling};
 pub use paper::{preset_names, Paper, MAX_SIDE_MM, MM_PER_INCH};
 
 use crate::drawing::Drawing;

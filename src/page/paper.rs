@@ -120,10 +120,24 @@ mod tests {
 
     #[test]
     fn names_and_sizes_parse() {
-        assert_eq!(Paper::parse("a4").unwrap(), Paper { width_mm: 210.0, height_mm: 297.0 });
-        assert_eq!(Paper::parse("420x297mm").unwrap(), Paper { width_mm: 420.0, height_mm: 297.0 });
+        assert_eq!(
+            Paper::parse("a4").unwrap(),
+            Paper {
+                width_mm: 210.0,
+                height_mm: 297.0
+            }
+        );
+        assert_eq!(
+            Paper::parse("420x297mm").unwrap(),
+            Paper {
+                width_mm: 420.0,
+                height_mm: 297.0
+            }
+        );
         let tabloid = Paper::parse("11x17in").unwrap();
-        assert!((tabloid.width_mm - 279.4).abs() < 1e-9 && (tabloid.height_mm - 431.8).abs() < 1e-9);
+        assert!(
+            (tabloid.width_mm - 279.4).abs() < 1e-9 && (tabloid.height_mm - 431.8).abs() < 1e-9
+        );
         assert!(Paper::parse("a7").is_err());
         assert!(Paper::parse("0x10").is_err());
         assert!(Paper::parse("nanxinf").is_err());

@@ -17,8 +17,9 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Draw a scene from a standpoint as an equirectangular PNG underlay.
-    Render(RenderArgs),
+    /// Draw a scene from a standpoint as an equirectangular underlay (PNG, SVG or PDF),
+    /// alone or laid out on paper.
+    Render(Box<RenderArgs>),
     /// Read a scene and report what it holds, its extent and its standpoints, with
     /// warnings (a standpoint inside a solid or under the ground).
     Check(CheckArgs),
@@ -45,9 +46,52 @@ pub struct RenderArgs {
     /// standpoint with --at), or - for a RON scene on standard input.
     pub scene: PathBuf,
 
-    /// Output PNG, or - for standard output [default: renders/SCENE-STANDPOINT.png].
+    /// Output file: .png, .svg or .pdf (or give --format), or - for standard output
+    /// [default: renders/SCENE-STANDPOINT.png].
     #[arg(short, long, value_name = "FILE")]
     pub output: Option<PathBuf>,
+
+    /// Output format, instead of the output file's extension.
+    #[arg(long, value_enum, value_name = "FORMAT")]
+    pub format: Option<FormatArg>,
+
+    /// Lay the panorama out on paper: a4, a3, b5, letter, tabloid, asme-c ... or a size
+    /// such as 420x297mm or 11x17in. Without it the image is the panorama alone (--size).
+    #[arg(long, value_name = "PAPER")]
+    pub page: Option<String>,
+
+    /// Turn the paper upright (the default is landscape).
+    #[arg(long)]
+    pub portrait: bool,
+
+    /// Margin round the sheet, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
+    pub margin: f64,
+
+    /// Resolution: pixels per inch of a page, and the size of a pixel in SVG and PDF.
+    #[arg(long, value_name = "DPI", default_value_t = 300.0, value_parser = parse_finite)]
+    pub dpi: f64,
+
+    /// Only these elevations, LOW,HIGH degrees, so the page is filled where the poles are
+    /// not needed (with --page).
+    #[arg(long, value_name = "LOW,HIGH", value_parser = parse_pair, allow_hyphen_values = true)]
+    pub band: Option<(f64, f64)>,
+
+    /// Leave out the title block (scene, standpoint, heading, eye height, scale, date).
+    #[arg(long)]
+    pub no_title: bool,
+
+    /// Split the page over COLUMNSxROWS sheets of the paper, to print large and assemble.
+    #[arg(long, value_name = "CxR", value_parser = parse_tiles)]
+    pub tiles: Option<(u32, u32)>,
+
+    /// Overlap between neighbouring sheets, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
+    pub overlap: f64,
+
+    /// Write colour (RGBA) PNG instead of grey.
+    #[arg(long)]
+    pub colour: bool,
 
     /// Which of the scene's standpoints to use [default: the first].
     #[arg(short, long, value_name = "NAME")]
@@ -112,6 +156,14 @@ pub struct RenderArgs {
     /// Print the time each stage took on standard error.
     #[arg(long)]
     pub timings: bool,
+}
+
+/// What kind of file to write.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum FormatArg {
+    Png,
+    Svg,
+    Pdf,
 }
 
 /// How edges hidden behind faces are drawn.
@@ -193,6 +245,21 @@ fn parse_size(text: &str) -> Result<(u32, u32), String> {
     Ok((number(w)?, number(h)?))
 }
 
+fn parse_tiles(text: &str) -> Result<(u32, u32), String> {
+    let bad = || format!("expected COLUMNSxROWS from 1x1 to 20x20, such as 3x2, found \"{text}\"");
+    let (c, r) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let count = |s: &str| {
+        s.trim()
+            .parse::<u32>()
+            .ok()
+            .filter(|n| (1..=20).contains(n))
+    };
+    match (count(c), count(r)) {
+        (Some(c), Some(r)) => Ok((c, r)),
+        _ => Err(bad()),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -201,7 +268,7 @@ mod tests {
         let mut all = vec!["pansite", "render", "scene.ron"];
         all.extend_from_slice(args);
         Cli::try_parse_from(all).map(|cli| match cli.command {
-            Command::Render(r) => r,
+            Command::Render(r) => *r,
             other => panic!("parsed as {other:?}"),
         })
     }

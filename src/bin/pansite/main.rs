@@ -4,9 +4,11 @@ mod args;
 mod check;
 
 use anyhow::Context;
-use args::{Cli, Command, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
+use args::{Cli, Command, FormatArg, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
-use pansite::render::{render_png, render_png_to, RenderSettings};
+use pansite::output::{write_atomically, write_png, Panorama, PngOptions};
+use pansite::page::{PageSettings, Paper, Sheet, Tiling};
+use pansite::render::{draw_sheets, title_lines, today, RenderSettings};
 use pansite::scene::{
     load_obj, load_scene, parse_scene, solids_enclosing, HiddenEdges, MeshPlacement, Site,
     Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
@@ -46,6 +48,7 @@ fn main() -> ExitCode {
 }
 
 fn render(args: &RenderArgs) -> anyhow::Result<()> {
+    let mut written: Vec<PathBuf> = Vec::new();
     let started = Instant::now();
     let site = read_site(args)?;
     let load_time = started.elapsed();
@@ -66,16 +69,38 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
     let output = args
         .output
         .clone()
-        .unwrap_or_else(|| default_output(&args.scene, &standpoint));
-    let render = if output == Path::new("-") {
+        .unwrap_or_else(|| default_output(&args.scene, &standpoint, args.format));
+    let format = output_format(&output, args.format)?;
+    let page = page_settings(args, &site, &standpoint)?;
+    let (sheets, render) = draw_sheets(&site, &standpoint, &settings, page.as_ref(), args.dpi)?;
+    let started = Instant::now();
+    let png = PngOptions {
+        colour: args.colour,
+        dpi: Some(args.dpi),
+        // A full-sphere image edge to edge is a panorama viewers can open.
+        panorama: page.is_none().then(|| Panorama {
+            width: settings.width,
+            height: settings.height,
+            heading_deg: standpoint.heading.to_degrees(),
+            pitch_deg: standpoint.pitch.to_degrees(),
+            roll_deg: standpoint.roll.to_degrees(),
+        }),
+    };
+    let columns = page.as_ref().and_then(|p| p.tiles).map_or(1, |t| t.columns);
+    if output == Path::new("-") {
+        if sheets.len() > 1 && format != FormatArg::Pdf {
+            return Err(Error::Setting(
+                "several sheets cannot go to standard output as one PNG or SVG; give a file name, or use PDF".into(),
+            )
+            .into());
+        }
         // Standard output cannot be replaced atomically: encode in memory, then send it.
         let mut bytes = Vec::new();
-        let render = render_png_to(&site, &standpoint, &settings, &mut bytes)?;
+        write_sheets(&sheets, format, &png, &mut bytes, 0)?;
         std::io::stdout()
             .lock()
             .write_all(&bytes)
             .context("writing to standard output")?;
-        render
     } else {
         if args.output.is_none() {
             if let Some(folder) = output.parent() {
@@ -83,9 +108,15 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
                     .with_context(|| format!("cannot create the folder {}", folder.display()))?;
             }
         }
-        render_png(&site, &standpoint, &settings, &output)
-            .with_context(|| format!("rendering {}", output.display()))?
-    };
+        for (path, first) in output_paths(&output, format, sheets.len(), columns) {
+            write_atomically(&path, |file| {
+                write_sheets(&sheets, format, &png, file, first)
+            })
+            .with_context(|| format!("rendering {}", path.display()))?;
+            written.push(path);
+        }
+    }
+    let write_time = started.elapsed();
     if !args.quiet {
         for item in solids_enclosing(&site, &standpoint.eye()) {
             eprintln!(
@@ -111,11 +142,25 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             );
         }
         let lines = render.drawing.wireframe_lines();
+        let names: Vec<String> = if written.is_empty() {
+            vec!["standard output".to_owned()]
+        } else {
+            written.iter().map(|p| p.display().to_string()).collect()
+        };
+        let size = match &page {
+            Some(page) => format!(
+                "{} x {} mm at {} dpi, {} sheet{}",
+                page.paper.width_mm,
+                page.paper.height_mm,
+                page.dpi,
+                sheets.len(),
+                if sheets.len() == 1 { "" } else { "s" }
+            ),
+            None => format!("{}x{} px", render.drawing.width, render.drawing.height),
+        };
         eprintln!(
-            "pansite: wrote {} ({}x{} px, standpoint \"{}\", {} edges as {} lines, {} skipped)",
-            output.display(),
-            settings.width,
-            settings.height,
+            "pansite: wrote {} ({size}, standpoint \"{}\", {} edges as {} lines, {} skipped)",
+            names.join(", "),
             standpoint.name,
             site.edges.len(),
             lines,
@@ -125,12 +170,11 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
     if args.timings {
         let t = &render.timings;
         let ms = |d: std::time::Duration| d.as_secs_f64() * 1e3;
-        let both = t.raster_and_encode.unwrap_or_default();
         eprintln!(
             "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster + encode (overlapped) {:.1} ms",
             ms(load_time),
             ms(t.flatten),
-            ms(both)
+            ms(write_time)
         );
     }
     Ok(())
@@ -263,8 +307,110 @@ fn choose_standpoint(site: &Site, args: &RenderArgs) -> pansite::Result<Standpoi
     Ok(standpoint)
 }
 
-/// `renders/SCENE-STANDPOINT.png`, with the standpoint's name made safe for a file name.
-fn default_output(scene: &Path, standpoint: &Standpoint) -> PathBuf {
+/// The format asked for, or the one the output's extension names (PNG for standard output
+/// and files without a known extension).
+fn output_format(output: &Path, asked: Option<FormatArg>) -> pansite::Result<FormatArg> {
+    if let Some(format) = asked {
+        return Ok(format);
+    }
+    let extension = output
+        .extension()
+        .map(|e| e.to_string_lossy().to_lowercase());
+    match extension.as_deref() {
+        None | Some("png") => Ok(FormatArg::Png),
+        Some("svg") => Ok(FormatArg::Svg),
+        Some("pdf") => Ok(FormatArg::Pdf),
+        Some(other) => Err(Error::Setting(format!(
+            "cannot tell the format from the extension .{other}: use .png, .svg or .pdf, or give --format"
+        ))),
+    }
+}
+
+/// The page layout the command line asks for, if any.
+fn page_settings(
+    args: &RenderArgs,
+    site: &Site,
+    standpoint: &Standpoint,
+) -> pansite::Result<Option<PageSettings>> {
+    let Some(name) = &args.page else {
+        for (flag, given) in [
+            ("--band", args.band.is_some()),
+            ("--tiles", args.tiles.is_some()),
+            ("--portrait", args.portrait),
+        ] {
+            if given {
+                return Err(Error::Setting(format!("{flag} needs a page: give --page")));
+            }
+        }
+        return Ok(None);
+    };
+    let paper = Paper::parse(name).map_err(Error::Setting)?;
+    Ok(Some(PageSettings {
+        paper: if args.portrait {
+            paper.portrait()
+        } else {
+            paper.landscape()
+        },
+        margin_mm: args.margin,
+        dpi: args.dpi,
+        band_deg: args.band.unwrap_or((-90.0, 90.0)),
+        title: (!args.no_title).then(|| title_lines(site, standpoint, today())),
+        tiles: args.tiles.map(|(columns, rows)| Tiling {
+            columns,
+            rows,
+            overlap_mm: args.overlap,
+        }),
+    }))
+}
+
+/// Writes the sheets from `first` on that one file holds: all of them in a PDF, one in a
+/// PNG or an SVG.
+fn write_sheets(
+    sheets: &[Sheet],
+    format: FormatArg,
+    png: &PngOptions,
+    out: &mut impl Write,
+    first: usize,
+) -> pansite::Result<()> {
+    match format {
+        FormatArg::Png => write_png(&sheets[first].drawing, png, out),
+        FormatArg::Svg | FormatArg::Pdf => Err(Error::Setting(
+            "SVG and PDF output are not built yet".to_owned(),
+        )),
+    }
+}
+
+/// The files a render writes, and the first sheet each holds: one file, or for PNG and SVG
+/// one per sheet, named by row and column (`plan-r1c2.png`).
+fn output_paths(
+    output: &Path,
+    format: FormatArg,
+    sheets: usize,
+    columns: u32,
+) -> Vec<(PathBuf, usize)> {
+    if sheets <= 1 || format == FormatArg::Pdf {
+        return vec![(output.to_owned(), 0)];
+    }
+    let stem = output
+        .file_stem()
+        .map_or("sheet".into(), |s| s.to_string_lossy().into_owned());
+    let extension = output
+        .extension()
+        .map_or(String::new(), |e| format!(".{}", e.to_string_lossy()));
+    (0..sheets)
+        .map(|k| {
+            let (row, column) = (k as u32 / columns + 1, k as u32 % columns + 1);
+            (
+                output.with_file_name(format!("{stem}-r{row}c{column}{extension}")),
+                k,
+            )
+        })
+        .collect()
+}
+
+/// `renders/SCENE-STANDPOINT.png` (or `.svg`, `.pdf`), with the standpoint's name made
+/// safe for a file name.
+fn default_output(scene: &Path, standpoint: &Standpoint, format: Option<FormatArg>) -> PathBuf {
     let stem = scene
         .file_stem()
         .map_or("scene".into(), |s| s.to_string_lossy().into_owned());
@@ -279,5 +425,10 @@ fn default_output(scene: &Path, standpoint: &Standpoint) -> PathBuf {
             }
         })
         .collect();
-    PathBuf::from("renders").join(format!("{stem}-{name}.png"))
+    let extension = match format {
+        None | Some(FormatArg::Png) => "png",
+        Some(FormatArg::Svg) => "svg",
+        Some(FormatArg::Pdf) => "pdf",
+    };
+    PathBuf::from("renders").join(format!("{stem}-{name}.{extension}"))
 }

@@ -1,0 +1,389 @@
+//! Laying the panorama out on paper: centred at 2:1 (or the proportion of the chosen band
+//! of elevations) in the printable area, a title block under it, and the whole split over
+//! several sheets when asked.
+
+use super::clip::{clip_and_move, Rect};
+use super::{Paper, Sheet};
+use crate::drawing::{letter, Align, Drawing, Layer, Stroke};
+use crate::plane::{ImagePoint, PolylineSet};
+
+/// How the panorama goes on paper.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PageSettings {
+    /// The sheet, already turned as wanted.
+    pub paper: Paper,
+    pub margin_mm: f64,
+    /// Pixels per inch of the raster output; also the precision of the vector outputs.
+    pub dpi: f64,
+    /// The elevations shown, lowest and highest, degrees: (-90, 90) for the whole sphere.
+    pub band_deg: (f64, f64),
+    /// The lines of the title block (scene, standpoint, ...); the scale is added to them.
+    /// `None`: no title block.
+    pub title: Option<Vec<String>>,
+    pub tiles: Option<Tiling>,
+}
+
+/// A layout split over `columns` x `rows` sheets of the paper, overlapping by
+/// `overlap_mm` so that they can be trimmed and joined.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Tiling {
+    pub columns: u32,
+    pub rows: u32,
+    pub overlap_mm: f64,
+}
+
+/// Where the panorama lands: the size to render it at (the whole sphere, `width` x
+/// `height` pixels at the page's resolution), the rows of it shown, and its top-left
+/// corner on the whole layout, in layout pixels.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Placement {
+    pub width: u32,
+    pub height: u32,
+    pub band_top_px: f64,
+    pub band_bottom_px: f64,
+    pub left_px: f64,
+    pub top_px: f64,
+    pub mm_per_degree: f64,
+    /// The whole layout (all sheets together), millimetres.
+    pub layout_width_mm: f64,
+    pub layout_height_mm: f64,
+}
+
+/// Height of the title block, millimetres, and its gap above.
+const TITLE_MM: f64 = 16.0;
+const TITLE_GAP_MM: f64 = 3.0;
+/// Cap height of the title lettering, millimetres.
+const LETTER_MM: f64 = 2.5;
+
+impl PageSettings {
+    pub fn px_per_mm(&self) -> f64 {
+        self.dpi / 25.4
+    }
+
+    /// Checks the settings and works out where the panorama goes.
+    pub fn place(&self) -> Result<Placement, String> {
+        let (low, high) = self.band_deg;
+        if !(low.is_finite() && high.is_finite() && -90.0 <= low && low < high && high <= 90.0) {
+            return Err(format!(
+                "expected a band of elevations from low to high within -90..90 degrees, found {low}..{high}"
+            ));
+        }
+        if !(self.dpi.is_finite() && (10.0..=2400.0).contains(&self.dpi)) {
+            return Err(format!(
+                "expected a resolution from 10 to 2400 dpi, found {}",
+                self.dpi
+            ));
+        }
+        let (columns, rows, overlap) = match self.tiles {
+            Some(t) => (t.columns.max(1) as f64, t.rows.max(1) as f64, t.overlap_mm),
+            None => (1.0, 1.0, 0.0),
+        };
+        let printable_w = self.paper.width_mm - 2.0 * self.margin_mm;
+        let printable_h = self.paper.height_mm - 2.0 * self.margin_mm;
+        let margin_ok = self.margin_mm.is_finite() && self.margin_mm >= 0.0;
+        if !margin_ok || printable_w <= 0.0 || printable_h <= 0.0 {
+            return Err(format!(
+                "margins of {} mm leave nothing of a {} x {} mm sheet",
+                self.margin_mm, self.paper.width_mm, self.paper.height_mm
+            ));
+        }
+        if overlap.is_nan() || overlap < 0.0 || overlap >= printable_w.min(printable_h) / 2.0 {
+            return Err(format!(
+                "an overlap of {overlap} mm is more than half a sheet"
+            ));
+        }
+        // The layout's printable area: the sheets' printable areas, overlapped.
+        let area_w = columns * printable_w - (columns - 1.0) * overlap;
+        let area_h = rows * printable_h - (rows - 1.0) * overlap;
+        let title = if self.title.is_some() {
+            TITLE_MM + TITLE_GAP_MM
+        } else {
+            0.0
+        };
+        let pano_h_room = area_h - title;
+        if pano_h_room <= 0.0 {
+            return Err("the title block leaves no room for the panorama".to_owned());
+        }
+        let span = high - low;
+        let mm_per_degree = (area_w / 360.0).min(pano_h_room / span);
+        let px_per_mm = self.px_per_mm();
+        let width = (360.0 * mm_per_degree * px_per_mm).round().max(2.0) as u32;
+        let height = (width as f64 / 2.0).round() as u32;
+        let band_top_px = (90.0 - high) / 180.0 * height as f64;
+        let band_bottom_px = (90.0 - low) / 180.0 * height as f64;
+        let pano_w_mm = width as f64 / px_per_mm;
+        let pano_h_mm = (band_bottom_px - band_top_px) / px_per_mm;
+        let left_mm = self.margin_mm + (area_w - pano_w_mm) / 2.0;
+        let top_mm = self.margin_mm + (pano_h_room - pano_h_mm) / 2.0;
+        Ok(Placement {
+            width,
+            height,
+            band_top_px,
+            band_bottom_px,
+            left_px: left_mm * px_per_mm,
+            top_px: top_mm * px_per_mm,
+            mm_per_degree: pano_w_mm / 360.0,
+            layout_width_mm: area_w + 2.0 * self.margin_mm,
+            layout_height_mm: area_h + 2.0 * self.margin_mm,
+        })
+    }
+
+    /// Lays the panorama's drawing (the whole sphere, rendered at the placement's size) out
+    /// on the sheets: its band, a frame round it, the title block, and on tiled sheets
+    /// crop marks and a label.
+    pub fn lay_out(&self, panorama: &Drawing, placement: &Placement) -> Vec<Sheet> {
+        let px = self.px_per_mm();
+        let window = Rect {
+            left: 0.0,
+            top: placement.band_top_px,
+            right: placement.width as f64,
+            bottom: placement.band_bottom_px,
+        };
+        let (dx, dy) = (placement.left_px, placement.top_px - placement.band_top_px);
+        let mut layers: Vec<Layer> = panorama
+            .layers
+            .iter()
+            .map(|layer| Layer {
+                name: layer.name.clone(),
+                stroke: layer.stroke,
+                lines: clip_and_move(&layer.lines, &window, dx, dy),
+            })
+            .collect();
+        let frame = Rect {
+            left: placement.left_px,
+            top: placement.top_px,
+            right: placement.left_px + placement.width as f64,
+            bottom: placement.top_px + (placement.band_bottom_px - placement.band_top_px),
+        };
+        let mut frame_lines = PolylineSet::new();
+        frame_lines.push(&rectangle(&frame));
+        layers.push(Layer {
+            name: "frame".to_owned(),
+            stroke: Stroke::black(0.7, (0.25 * px).max(1.0)),
+            lines: frame_lines,
+        });
+        if let Some(lines) = &self.title {
+            layers.push(self.title_block(lines, placement, frame.bottom));
+        }
+        let layout = Drawing {
+            width: (placement.layout_width_mm * px).ceil() as u32,
+            height: (placement.layout_height_mm * px).ceil() as u32,
+            layers,
+        };
+        match self.tiles {
+            None => vec![Sheet {
+                drawing: layout,
+                width_mm: self.paper.width_mm,
+                height_mm: self.paper.height_mm,
+                mm_per_px: 1.0 / px,
+            }],
+            Some(tiling) => self.cut(&layout, tiling),
+        }
+    }
+
+    /// The title block under the panorama: the given lines, the scale, and a scale bar
+    /// ten degrees long.
+    fn title_block(&self, lines: &[String], placement: &Placement, pano_bottom: f64) -> Layer {
+        let px = self.px_per_mm();
+        let mut strokes = PolylineSet::new();
+        let left = placement.left_px;
+        let top = pano_bottom + TITLE_GAP_MM * px;
+        let height = LETTER_MM * px;
+        let mut all: Vec<String> = lines.to_vec();
+        all.push(format!(
+            "SCALE 1\u{b0} = {:.3} MM; 10\u{b0} = {:.2} MM",
+            placement.mm_per_degree,
+            10.0 * placement.mm_per_degree
+        ));
+        for (row, text) in all.iter().take(4).enumerate() {
+            let baseline = top + height + row as f64 * 1.6 * height;
+            letter(
+                text,
+                ImagePoint::new(left, baseline),
+                height,
+                Align::Start,
+                &mut strokes,
+            );
+        }
+        // The scale bar at the right of the block, ticked every degree.
+        let bar = 10.0 * placement.mm_per_degree * px;
+        let right = left + placement.width as f64;
+        let y = top + 2.0 * height;
+        strokes.push(&[ImagePoint::new(right - bar, y), ImagePoint::new(right, y)]);
+        for degree in 0..=10 {
+            let x = right - bar + bar * degree as f64 / 10.0;
+            let tick = if degree % 5 == 0 {
+                height
+            } else {
+                height / 2.0
+            };
+            strokes.push(&[ImagePoint::new(x, y), ImagePoint::new(x, y - tick)]);
+        }
+        letter(
+            "10\u{b0}",
+            ImagePoint::new(right, y + 1.6 * height),
+            height,
+            Align::End,
+            &mut strokes,
+        );
+        Layer {
+            name: "title".to_owned(),
+            stroke: Stroke::black(0.9, (0.25 * px).max(1.0)),
+            lines: strokes,
+        }
+    }
+
+    /// Cuts the layout into sheets: each shows its part of the layout's printable area in
+    /// its own printable area, with crop marks at the corners of that area and a label.
+    fn cut(&self, layout: &Drawing, tiling: Tiling) -> Vec<Sheet> {
+        let px = self.px_per_mm();
+        let margin = self.margin_mm * px;
+        let (printable_w, printable_h) = (
+            self.paper.width_mm * px - 2.0 * margin,
+            self.paper.height_mm * px - 2.0 * margin,
+        );
+        let overlap = tiling.overlap_mm * px;
+        let total = tiling.columns * tiling.rows;
+        let mut sheets = Vec::new();
+        for row in 0..tiling.rows {
+            for column in 0..tiling.columns {
+                // This sheet's printable area, in layout pixels.
+                let x0 = margin + column as f64 * (printable_w - overlap);
+                let y0 = margin + row as f64 * (printable_h - overlap);
+                let part = Rect {
+                    left: x0,
+                    top: y0,
+                    right: x0 + printable_w,
+                    bottom: y0 + printable_h,
+                };
+                let (dx, dy) = (margin - x0, margin - y0);
+                let mut layers: Vec<Layer> = layout
+                    .layers
+                    .iter()
+                    .map(|layer| Layer {
+                        name: layer.name.clone(),
+                        stroke: layer.stroke,
+                        lines: clip_and_move(&layer.lines, &part, dx, dy),
+                    })
+                    .collect();
+                let mut marks = PolylineSet::new();
+                let reach = (margin * 0.8).min(8.0 * px);
+                for (x, y, sx, sy) in [
+                    (margin, margin, -1.0, -1.0),
+                    (margin + printable_w, margin, 1.0, -1.0),
+                    (margin, margin + printable_h, -1.0, 1.0),
+                    (margin + printable_w, margin + printable_h, 1.0, 1.0),
+                ] {
+                    // Corner marks in the margin, in line with the edges of the printable
+                    // area, that meet there: cut along them to trim the sheet.
+                    marks.push(&[
+                        ImagePoint::new(x, y + sy * 1.0),
+                        ImagePoint::new(x, y + sy * reach),
+                    ]);
+                    marks.push(&[
+                        ImagePoint::new(x + sx * 1.0, y),
+                        ImagePoint::new(x + sx * reach, y),
+                    ]);
+                }
+                let label = format!(
+                    "ROW {} OF {}, COLUMN {} OF {} ({} SHEETS); OVERLAP {} MM",
+                    row + 1,
+                    tiling.rows,
+                    column + 1,
+                    tiling.columns,
+                    total,
+                    tiling.overlap_mm
+                );
+                let height = (LETTER_MM * px).min(margin * 0.4);
+                letter(
+                    &label,
+                    ImagePoint::new(margin, margin + printable_h + margin * 0.6),
+                    height,
+                    Align::Start,
+                    &mut marks,
+                );
+                layers.push(Layer {
+                    name: "sheet marks".to_owned(),
+                    stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
+                    lines: marks,
+                });
+                sheets.push(Sheet {
+                    drawing: Drawing {
+                        width: (self.paper.width_mm * px).ceil() as u32,
+                        height: (self.paper.height_mm * px).ceil() as u32,
+                        layers,
+                    },
+                    width_mm: self.paper.width_mm,
+                    height_mm: self.paper.height_mm,
+                    mm_per_px: 1.0 / px,
+                });
+            }
+        }
+        sheets
+    }
+}
+
+/// The corners of a rectangle, closed.
+fn rectangle(r: &Rect) -> [ImagePoint; 5] {
+    [
+        ImagePoint::new(r.left, r.top),
+        ImagePoint::new(r.right, r.top),
+        ImagePoint::new(r.right, r.bottom),
+        ImagePoint::new(r.left, r.bottom),
+        ImagePoint::new(r.left, r.top),
+    ]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn a3_landscape() -> PageSettings {
+        PageSettings {
+            paper: Paper::named("A3").unwrap().landscape(),
+            margin_mm: 10.0,
+            dpi: 300.0,
+            band_deg: (-90.0, 90.0),
+            title: Some(vec!["TEST".to_owned()]),
+            tiles: None,
+        }
+    }
+
+    #[test]
+    fn the_panorama_is_two_to_one_and_centred_across() {
+        let settings = a3_landscape();
+        let placement = settings.place().unwrap();
+        // 400 mm of printable width sets the scale: 400 / 360 mm a degree.
+        assert!((placement.mm_per_degree - 400.0 / 360.0).abs() < 0.01);
+        assert_eq!(placement.height * 2, placement.width);
+        let px = settings.px_per_mm();
+        let right_gap = 420.0 * px - placement.left_px - placement.width as f64;
+        assert!((placement.left_px - right_gap).abs() < 1.0);
+    }
+
+    #[test]
+    fn a_band_of_elevations_fills_more_of_the_sheet() {
+        let mut settings = a3_landscape();
+        settings.paper = Paper::named("A4").unwrap().landscape();
+        settings.title = None;
+        let whole = settings.place().unwrap();
+        settings.band_deg = (-30.0, 60.0);
+        let band = settings.place().unwrap();
+        assert!(band.mm_per_degree >= whole.mm_per_degree);
+        let rows = band.band_bottom_px - band.band_top_px;
+        assert!(
+            (rows - band.height as f64 / 2.0).abs() < 1.0,
+            "90 of 180 degrees"
+        );
+    }
+
+    #[test]
+    fn bad_settings_are_refused_in_words() {
+        let mut settings = a3_landscape();
+        settings.band_deg = (40.0, 10.0);
+        assert!(settings.place().unwrap_err().contains("band"));
+        let mut settings = a3_landscape();
+        settings.margin_mm = 200.0;
+        assert!(settings.place().unwrap_err().contains("margins"));
+    }
+}
