@@ -2,14 +2,14 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::drawing::{
-    dashed, grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
-    Wireframe, GRID_STEP_DEG, HIDDEN,
+    apply_styles, grid_and_horizon, page_style, wireframe, wireframe_layer_name, Drawing, Layer,
+    SkippedEdge, Stroke, Wireframe, GRID_STEP_DEG, HIDDEN,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
 use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
-use crate::scene::{HiddenEdges, Site, Standpoint};
+use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
 use std::io::Write;
 use std::path::Path;
@@ -29,6 +29,12 @@ pub struct RenderSettings {
     pub overlays: bool,
     /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
     pub hidden: Option<HiddenEdges>,
+    /// Pixels per inch: how styles given in millimetres become pixels.
+    pub dpi: f64,
+    /// Styles applied before the scene's own (a page's defaults).
+    pub base_styles: Option<StyleSheet>,
+    /// Styles applied after the scene's own (a style file from the command line).
+    pub styles: Option<StyleSheet>,
 }
 
 impl Default for RenderSettings {
@@ -40,6 +46,9 @@ impl Default for RenderSettings {
             line_weight_px: 1.5,
             overlays: true,
             hidden: None,
+            dpi: 300.0,
+            base_styles: None,
+            styles: None,
         }
     }
 }
@@ -154,13 +163,13 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         hidden,
         skipped,
     } = wireframe(site, &view, &flattener, hidden_edges);
+    let width = settings.line_weight_px;
     if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
-        // Under the seen edges, lighter, thinner and dashed.
-        let width = settings.line_weight_px;
+        // Under the seen edges, lighter, thinner and (by the styles) dashed.
         layers.push(Layer {
             name: HIDDEN.to_owned(),
             stroke: Stroke::black(0.4, (0.75 * width).max(0.75)),
-            lines: dashed(&hidden, 3.0 * width + 3.0, 2.0 * width + 2.0),
+            lines: hidden,
         });
     }
     let stroke = Stroke::black(1.0, settings.line_weight_px);
@@ -174,6 +183,20 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
             });
         }
     }
+    let sheets: Vec<&StyleSheet> = [
+        settings.base_styles.as_ref(),
+        Some(&site.styles),
+        settings.styles.as_ref(),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    apply_styles(
+        &mut layers,
+        &sheets,
+        settings.dpi / 25.4,
+        (3.0 * width + 3.0, 2.0 * width + 2.0),
+    );
     let drawing = Drawing {
         width: settings.width,
         height: settings.height,
@@ -248,6 +271,8 @@ pub fn draw_sheets(
     let sized = RenderSettings {
         width: placement.width,
         height: placement.height,
+        dpi: page.dpi,
+        base_styles: Some(page_style()),
         ..settings.clone()
     };
     let render = draw(site, standpoint, &sized)?;

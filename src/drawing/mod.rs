@@ -4,11 +4,13 @@
 mod dash;
 mod lettering;
 mod overlay;
+mod style;
 mod wireframe;
 
 pub use dash::dashed;
 pub use lettering::{letter, text_width, Align};
 pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
+pub use style::{apply_styles, page_style};
 pub use wireframe::{wireframe, SkippedEdge, Wireframe};
 
 use crate::plane::PolylineSet;

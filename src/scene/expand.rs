@@ -47,6 +47,7 @@ pub fn expand(
         ..Site::default()
     };
     site.hidden_edges = file.hidden;
+    site.styles = file.styles.unwrap_or_default();
     site.standpoints = file
         .standpoints
         .iter()

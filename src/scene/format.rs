@@ -51,6 +51,9 @@ pub struct SceneFile {
     /// How edges hidden behind faces are drawn: `Solid`, `Faint` (the default) or `Off`.
     #[serde(default)]
     pub hidden: Option<super::site::HiddenEdges>,
+    /// How the drawing's layers look, by layer name.
+    #[serde(default)]
+    pub styles: Option<super::style::StyleSheet>,
     pub items: Vec<ItemSpec>,
 }
 

@@ -7,6 +7,7 @@ use super::locate::{describe_path, item_path_at, item_spans, ItemSpan};
 use super::mesh::{add_mesh, MeshPlacement, MeshStats};
 use super::obj::read_obj;
 use super::site::Site;
+use super::style::StyleSheet;
 use super::suggest::explain;
 use crate::error::{Error, Result};
 use ron::extensions::Extensions;
@@ -127,6 +128,31 @@ fn item_start(spans: &[ItemSpan], path: &[usize]) -> Option<(usize, usize)> {
     } else {
         item_start(&span.children, rest).or(Some(span.start))
     }
+}
+
+/// Reads a style file: a map from layer names to styles,
+/// `{"grid": (colour: "non-photo blue"), "hidden": (opacity: 0.3)}`.
+pub fn load_style_sheet(path: &Path) -> Result<StyleSheet> {
+    let bytes = read_input(path)?;
+    let text = std::str::from_utf8(&bytes).map_err(|e| {
+        let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
+        Error::Scene {
+            path: path.to_owned(),
+            line,
+            column,
+            message: "expected UTF-8 text (this looks like a binary file)".to_owned(),
+        }
+    })?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    ron::Options::default()
+        .with_default_extension(Extensions::IMPLICIT_SOME)
+        .from_str(text)
+        .map_err(|e| Error::Scene {
+            path: path.to_owned(),
+            line: e.span.start.line,
+            column: e.span.start.col,
+            message: explain(&e.code),
+        })
 }
 
 /// Line and column (from 1, counting characters) just after `prefix`.

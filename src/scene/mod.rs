@@ -18,6 +18,7 @@ mod numbers;
 mod obj;
 mod outline;
 mod site;
+mod style;
 mod suggest;
 mod survey;
 
@@ -26,7 +27,7 @@ pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
-pub use load::{load_obj, load_scene, parse_scene};
+pub use load::{load_obj, load_scene, load_style_sheet, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};
@@ -34,4 +35,5 @@ pub use site::{
     Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site, SiteCurve,
     Standpoint, DEFAULT_EYE_HEIGHT,
 };
+pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

@@ -154,6 +154,8 @@ pub struct Site {
     pub warnings: Vec<(ItemId, String)>,
     /// How the scene asks for hidden edges to be drawn, if it says.
     pub hidden_edges: Option<HiddenEdges>,
+    /// How the scene asks its layers to look.
+    pub styles: super::style::StyleSheet,
 }
 
 impl Site {

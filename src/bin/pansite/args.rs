@@ -93,6 +93,11 @@ pub struct RenderArgs {
     #[arg(long)]
     pub colour: bool,
 
+    /// A style file: how layers look, by name, over the scene's own styles (see
+    /// docs/scene-format.md, "Styles").
+    #[arg(long, value_name = "FILE")]
+    pub style: Option<PathBuf>,
+
     /// Which of the scene's standpoints to use [default: the first].
     #[arg(short, long, value_name = "NAME")]
     pub standpoint: Option<String>,

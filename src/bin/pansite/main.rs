@@ -10,8 +10,8 @@ use pansite::output::{write_atomically, write_png, Panorama, PngOptions};
 use pansite::page::{PageSettings, Paper, Sheet, Tiling};
 use pansite::render::{draw_sheets, title_lines, today, RenderSettings};
 use pansite::scene::{
-    load_obj, load_scene, parse_scene, solids_enclosing, HiddenEdges, MeshPlacement, Site,
-    Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
+    load_obj, load_scene, load_style_sheet, parse_scene, solids_enclosing, HiddenEdges,
+    MeshPlacement, Site, Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
 use std::io::{Read, Write};
@@ -64,6 +64,9 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             HiddenArg::Faint => HiddenEdges::Faint,
             HiddenArg::Off => HiddenEdges::Off,
         }),
+        dpi: args.dpi,
+        base_styles: None,
+        styles: args.style.as_deref().map(load_style_sheet).transpose()?,
     };
     settings.validate()?;
     let output = args
