@@ -51,6 +51,9 @@ pub struct SceneFile {
     /// How edges hidden behind faces are drawn: `Solid`, `Faint` (the default) or `Off`.
     #[serde(default)]
     pub hidden: Option<super::site::HiddenEdges>,
+    /// Drawing aids: vanishing points, fans, meridians, poles, divisions (`guides.rs`).
+    #[serde(default)]
+    pub guides: Option<super::guides::GuidesSpec>,
     pub items: Vec<ItemSpec>,
 }
 
