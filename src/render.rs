@@ -1,9 +1,9 @@
 //! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
 //! drawing -> canvas -> file, with the time each stage took.
 
+use crate::aids::{self, AidSettings};
 use crate::drawing::{
-    dashed, grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
-    Wireframe, GRID_STEP_DEG, HIDDEN,
+    dashed, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke, Wireframe, HIDDEN,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
@@ -28,6 +28,8 @@ pub struct RenderSettings {
     pub overlays: bool,
     /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
     pub hidden: Option<HiddenEdges>,
+    /// The drawing aids drawn with the overlays (see [`crate::aids`]).
+    pub aids: AidSettings,
 }
 
 impl Default for RenderSettings {
@@ -39,6 +41,7 @@ impl Default for RenderSettings {
             line_weight_px: 1.5,
             overlays: true,
             hidden: None,
+            aids: AidSettings::default(),
         }
     }
 }
@@ -94,7 +97,7 @@ impl RenderSettings {
                 self.line_weight_px
             )));
         }
-        Ok(())
+        self.aids.validate()
     }
 }
 
@@ -122,16 +125,6 @@ pub struct Render {
     pub timings: Timings,
 }
 
-/// The grid's strokes: light enough to draw over, the horizon a little stronger.
-const GRID_STROKE: Stroke = Stroke {
-    ink: 0.22,
-    width_px: 1.0,
-};
-const HORIZON_STROKE: Stroke = Stroke {
-    ink: 0.5,
-    width_px: 1.25,
-};
-
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
     settings.validate()?;
@@ -141,17 +134,7 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     let mut flattener = Flattener::new(map, settings.tolerance_px);
     let mut layers = Vec::new();
     if settings.overlays {
-        let (grid, horizon) = grid_and_horizon(&view, &mut flattener, GRID_STEP_DEG);
-        layers.push(Layer {
-            name: "grid".to_owned(),
-            stroke: GRID_STROKE,
-            lines: grid,
-        });
-        layers.push(Layer {
-            name: "horizon".to_owned(),
-            stroke: HORIZON_STROKE,
-            lines: horizon,
-        });
+        layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
     let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
     let Wireframe {
@@ -184,6 +167,10 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
                 lines,
             });
         }
+    }
+    if settings.overlays {
+        let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
+        layers.extend(over);
     }
     let drawing = Drawing {
         width: settings.width,
