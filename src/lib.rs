@@ -46,7 +46,9 @@
 //! ## Pipeline
 //! [`scene`] (model and loaders) -> [`sphere`] (view frame, curves on the viewing sphere) ->
 //! [`plane`] (equirectangular mapping, flattening with seam and pole cuts) -> [`drawing`]
-//! (display list of stroked polylines) -> [`output`] (rasteriser, PNG). [`render`] runs them.
+//! (display list of stroked polylines) -> [`output`] (rasteriser, PNG). [`render`] runs them;
+//! [`aids`] adds the drawing aids (grid, labels, vanishing points, fans, poles, divisions)
+//! and the table of angles.
 //!
 //! ## Limitations
 //! - Every edge is drawn: hidden-line removal is not done yet.
@@ -56,6 +58,7 @@
 
 #![forbid(unsafe_code)]
 
+pub mod aids;
 pub mod drawing;
 pub mod error;
 pub mod output;

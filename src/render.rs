@@ -1,9 +1,10 @@
 //! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
 //! drawing -> canvas -> file, with the time each stage took.
 
+use crate::aids::{self, AidSettings};
 use crate::drawing::{
-    apply_styles, grid_and_horizon, page_style, wireframe, wireframe_layer_name, Drawing, Layer,
-    SkippedEdge, Stroke, Wireframe, GRID_STEP_DEG, HIDDEN,
+    apply_styles, page_style, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
+    Wireframe, HIDDEN,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
@@ -35,6 +36,8 @@ pub struct RenderSettings {
     pub base_styles: Option<StyleSheet>,
     /// Styles applied after the scene's own (a style file from the command line).
     pub styles: Option<StyleSheet>,
+    /// The drawing aids drawn with the overlays (see [`crate::aids`]).
+    pub aids: AidSettings,
 }
 
 impl Default for RenderSettings {
@@ -49,6 +52,7 @@ impl Default for RenderSettings {
             dpi: 300.0,
             base_styles: None,
             styles: None,
+            aids: AidSettings::default(),
         }
     }
 }
@@ -104,7 +108,7 @@ impl RenderSettings {
                 self.line_weight_px
             )));
         }
-        Ok(())
+        self.aids.validate()
     }
 }
 
@@ -132,10 +136,6 @@ pub struct Render {
     pub timings: Timings,
 }
 
-/// The grid's strokes: light enough to draw over, the horizon a little stronger.
-const GRID_STROKE: Stroke = Stroke::black(0.22, 1.0);
-const HORIZON_STROKE: Stroke = Stroke::black(0.5, 1.25);
-
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
     settings.validate()?;
@@ -145,17 +145,7 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     let mut flattener = Flattener::new(map, settings.tolerance_px);
     let mut layers = Vec::new();
     if settings.overlays {
-        let (grid, horizon) = grid_and_horizon(&view, &mut flattener, GRID_STEP_DEG);
-        layers.push(Layer {
-            name: "grid".to_owned(),
-            stroke: GRID_STROKE,
-            lines: grid,
-        });
-        layers.push(Layer {
-            name: "horizon".to_owned(),
-            stroke: HORIZON_STROKE,
-            lines: horizon,
-        });
+        layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
     let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
     let Wireframe {
@@ -182,6 +172,10 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
                 lines,
             });
         }
+    }
+    if settings.overlays {
+        let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
+        layers.extend(over);
     }
     let sheets: Vec<&StyleSheet> = [
         settings.base_styles.as_ref(),

@@ -216,3 +216,42 @@ fn interior_demo_with_hidden_edges_faint_and_off() {
         );
     }
 }
+
+#[test]
+fn exterior_demo_with_every_aid() {
+    use pansite::aids::AidSettings;
+    use pansite::scene::{Division, Fan, Pole, Slope};
+    let mut aids = AidSettings::all();
+    aids.guides.fans.push(Fan {
+        direction: Slope {
+            bearing_deg: 0.0,
+            pitch_deg: 0.0,
+        },
+        step_deg: 15.0,
+    });
+    aids.guides.meridians.push(45.0);
+    aids.guides.poles.push(Pole {
+        label: Some("pole".to_owned()),
+        foot: nalgebra::Point3::new(-6.0, 4.0, 0.0),
+        height: 8.0,
+        step: 1.0,
+        unit: 1.0,
+    });
+    aids.guides.divisions.push(Division::Between {
+        from: nalgebra::Point3::new(8.0, -4.0, 0.0),
+        to: nalgebra::Point3::new(8.0, 4.0, 0.0),
+        parts: 4,
+        extend: 2,
+    });
+    check_scene(
+        "scenes/wexcombe-square.ron",
+        "exterior-fountain-aids",
+        "fountain",
+        RenderSettings {
+            width: 1024,
+            height: 512,
+            aids,
+            ..RenderSettings::default()
+        },
+    );
+}

@@ -299,6 +299,16 @@ impl<'a> ItemBuilder<'a> {
         self.site.warnings.push((self.item, message.into()));
     }
 
+    /// A direction of the item that no edge runs along (a stair's rake), for the
+    /// vanishing points.
+    pub fn axis(&mut self, direction: Vector3<f64>) {
+        let direction = self.place.vector(&direction);
+        self.site.axes.push(super::site::Axis {
+            direction,
+            item: self.item,
+        });
+    }
+
     pub fn marker(&mut self, at: Point3<f64>) {
         let at = self.place.point(&at);
         self.site.markers.push(Marker {

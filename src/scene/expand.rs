@@ -71,6 +71,27 @@ pub fn expand(
         visits: 0,
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
+    if let Some(guides) = &file.guides {
+        site.guides =
+            super::guides::resolve(guides, unit).map_err(|message| ExpandError::Field {
+                field: "guides",
+                message,
+            })?;
+        for division in &site.guides.divisions {
+            if let super::guides::Division::Edges { item, .. } = division {
+                if !site
+                    .items
+                    .iter()
+                    .any(|i| label_matches(i.label.as_deref(), item))
+                {
+                    return Err(ExpandError::Field {
+                        field: "guides",
+                        message: format!("there is no item labelled \"{item}\" to divide"),
+                    });
+                }
+            }
+        }
+    }
     Ok(site)
 }
 
@@ -211,6 +232,17 @@ impl Walker<'_> {
         }
         Ok(())
     }
+}
+
+/// Whether an item's label is `wanted`, or a numbered copy of it (`lamp 3` for `lamp`).
+pub fn label_matches(label: Option<&str>, wanted: &str) -> bool {
+    label.is_some_and(|label| {
+        label == wanted
+            || label
+                .strip_prefix(wanted)
+                .and_then(|rest| rest.strip_prefix(' '))
+                .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()))
+    })
 }
 
 fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {

@@ -54,6 +54,9 @@ pub struct SceneFile {
     /// How the drawing's layers look, by layer name.
     #[serde(default)]
     pub styles: Option<super::style::StyleSheet>,
+    /// Drawing aids: vanishing points, fans, meridians, poles, divisions (`guides.rs`).
+    #[serde(default)]
+    pub guides: Option<super::guides::GuidesSpec>,
     pub items: Vec<ItemSpec>,
 }
 

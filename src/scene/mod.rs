@@ -10,6 +10,7 @@ mod curve;
 mod expand;
 mod file;
 mod format;
+mod guides;
 mod items;
 mod load;
 mod locate;
@@ -22,18 +23,19 @@ mod style;
 mod suggest;
 mod survey;
 
-pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
+pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
+pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{load_obj, load_scene, load_style_sheet, parse_scene};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site, SiteCurve,
-    Standpoint, DEFAULT_EYE_HEIGHT,
+    Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site,
+    SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

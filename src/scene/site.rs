@@ -64,6 +64,14 @@ pub struct Marker {
     pub item: ItemId,
 }
 
+/// A direction an item declares as one of its own that no edge of it runs along (a
+/// stair's rake), for the vanishing points.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Axis {
+    pub direction: Vector3<f64>,
+    pub item: ItemId,
+}
+
 /// How the parts of edges hidden behind faces are drawn.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
 pub enum HiddenEdges {
@@ -156,6 +164,10 @@ pub struct Site {
     pub hidden_edges: Option<HiddenEdges>,
     /// How the scene asks its layers to look.
     pub styles: super::style::StyleSheet,
+    /// Directions items declare beyond their edges (see [`Axis`]).
+    pub axes: Vec<Axis>,
+    /// The drawing aids the scene asks for.
+    pub guides: super::guides::Guides,
 }
 
 impl Site {

@@ -25,6 +25,9 @@ pub enum Command {
     Check(CheckArgs),
     /// Write a commented starter scene to begin from.
     New(NewArgs),
+    /// List the azimuth, elevation, distance and image position of every labelled point and
+    /// item corner, to plot by hand.
+    Angles(super::aids::AnglesArgs),
 }
 
 #[derive(Debug, Args)]
@@ -161,6 +164,9 @@ pub struct RenderArgs {
     /// Print the time each stage took on standard error.
     #[arg(long)]
     pub timings: bool,
+
+    #[command(flatten)]
+    pub aids: super::aids::AidArgs,
 }
 
 /// What kind of file to write.
@@ -238,7 +244,7 @@ fn parse_pair(text: &str) -> Result<(f64, f64), String> {
     Ok((parse_finite(x)?, parse_finite(y)?))
 }
 
-fn parse_size(text: &str) -> Result<(u32, u32), String> {
+pub fn parse_size(text: &str) -> Result<(u32, u32), String> {
     let (w, h) = text
         .split_once(['x', 'X'])
         .ok_or_else(|| format!("expected WIDTHxHEIGHT such as 4096x2048, found \"{text}\""))?;

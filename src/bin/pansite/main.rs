@@ -1,5 +1,6 @@
 //! The `pansite` command: parse, call the library, report.
 
+mod aids;
 mod args;
 mod check;
 
@@ -34,6 +35,7 @@ fn main() -> ExitCode {
         Command::Render(args) => render(&args),
         Command::Check(args) => check::check(&args.scene),
         Command::New(args) => new_scene(&args),
+        Command::Angles(args) => angles(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -67,6 +69,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         dpi: args.dpi,
         base_styles: None,
         styles: args.style.as_deref().map(load_style_sheet).transpose()?,
+        aids: args.aids.settings(),
     };
     settings.validate()?;
     let output = args
@@ -269,6 +272,30 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
 /// The scene's standpoint (named, or the first), or one made from `--at`, with any
 /// command-line overrides applied.
 fn choose_standpoint(site: &Site, args: &RenderArgs) -> pansite::Result<Standpoint> {
+    choose_view(
+        site,
+        &ViewChoice {
+            standpoint: args.standpoint.clone(),
+            at: args.at,
+            eye_height: args.eye_height,
+            heading: args.heading,
+            pitch: args.pitch,
+            roll: args.roll,
+        },
+    )
+}
+
+/// The options that choose or change the standpoint, whichever command they came with.
+struct ViewChoice {
+    standpoint: Option<String>,
+    at: Option<(f64, f64)>,
+    eye_height: Option<f64>,
+    heading: Option<f64>,
+    pitch: Option<f64>,
+    roll: Option<f64>,
+}
+
+fn choose_view(site: &Site, args: &ViewChoice) -> pansite::Result<Standpoint> {
     let mut standpoint = match (&args.standpoint, args.at) {
         (Some(name), _) => {
             site.standpoint(name)
@@ -409,6 +436,77 @@ fn output_paths(
             )
         })
         .collect()
+}
+
+/// The table of angles, written to standard output or atomically to a file.
+fn angles(args: &aids::AnglesArgs) -> anyhow::Result<()> {
+    use pansite::aids::table::{angle_table, to_csv, to_json, to_text, PagePlacement, TableChoice};
+    let site = if args.scene == Path::new("-") {
+        let mut bytes = Vec::new();
+        std::io::stdin()
+            .read_to_end(&mut bytes)
+            .map_err(|source| Error::Read {
+                path: PathBuf::from("<stdin>"),
+                source,
+            })?;
+        parse_scene(&bytes, Path::new("<stdin>"), "stdin")?
+    } else {
+        load_scene(&args.scene)?
+    };
+    let standpoint = choose_view(
+        &site,
+        &ViewChoice {
+            standpoint: args.standpoint.clone(),
+            at: args.at,
+            eye_height: args.eye_height,
+            heading: args.heading,
+            pitch: args.pitch,
+            roll: args.roll,
+        },
+    )?;
+    let settings = RenderSettings {
+        width: args.size.0,
+        height: args.size.1,
+        ..RenderSettings::default()
+    };
+    settings.validate()?;
+    let map = pansite::plane::Equirect::from_size_px(args.size.0 as f64, args.size.1 as f64);
+    let choice = TableChoice {
+        item: args.item.clone(),
+        points_only: args.points,
+    };
+    let page = args.page_width_mm.map(PagePlacement::panorama_width);
+    let rows = angle_table(&site, &standpoint, &map, page, &choice);
+    if let Some(item) = &args.item {
+        if rows.is_empty() {
+            return Err(Error::Setting(format!(
+                "no item labelled \"{item}\" has a point or a corner"
+            ))
+            .into());
+        }
+    }
+    let text = match args.format {
+        aids::TableFormat::Text => to_text(&rows),
+        aids::TableFormat::Csv => to_csv(&rows),
+        aids::TableFormat::Json => to_json(&rows, &standpoint, &map),
+    };
+    match &args.output {
+        None => std::io::stdout()
+            .lock()
+            .write_all(text.as_bytes())
+            .context("writing to standard output")?,
+        Some(path) => {
+            pansite::output::write_atomically(path, |file| {
+                file.write_all(text.as_bytes())
+                    .map_err(|source| Error::Write {
+                        path: path.clone(),
+                        source,
+                    })
+            })
+            .with_context(|| format!("writing {}", path.display()))?;
+        }
+    }
+    Ok(())
 }
 
 /// `renders/SCENE-STANDPOINT.png` (or `.svg`, `.pdf`), with the standpoint's name made

@@ -100,6 +100,8 @@ pub fn build_stairs(b: &mut ItemBuilder, spec: &StairsSpec) -> Result<(), String
     let (back, top) = (positions[steps], steps as f64 * rise);
     profile.push((back, top));
     profile.push((back, 0.0));
+    // The rake: the line of the nosings, one going and one rise per step.
+    b.axis(Vector3::new(0.0, spec.going.0, rise));
     let side = |x: f64| -> Vec<Point3<f64>> {
         profile
             .iter()
