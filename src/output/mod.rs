@@ -4,7 +4,10 @@
 mod atomic;
 mod png;
 mod raster;
+mod svg;
+mod vector;
 
 pub use self::png::{encode_grey_png, rasterize_grey_png};
 pub use atomic::write_atomically;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};
+pub use svg::write_svg;
