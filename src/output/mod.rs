@@ -2,6 +2,7 @@
 //! mapping onto its canvas; none holds global state.
 
 mod atomic;
+mod pdf;
 mod png;
 mod raster;
 mod svg;
@@ -9,5 +10,6 @@ mod vector;
 
 pub use self::png::{encode_grey_png, rasterize_grey_png};
 pub use atomic::write_atomically;
+pub use pdf::write_pdf;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};
 pub use svg::write_svg;
