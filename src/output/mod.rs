@@ -1,5 +1,6 @@
 //! Output backends. Each takes the [`Drawing`](crate::drawing::Drawing) and an explicit
-//! mapping onto its canvas; none holds global state.
+//! mapping onto its canvas (pixels for PNG, a [`Sheet`](crate::page::Sheet)'s millimetres
+//! per pixel for SVG and PDF); none holds global state.
 
 mod atomic;
 mod pdf;
