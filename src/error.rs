@@ -58,6 +58,11 @@ pub enum Error {
 
     #[error("PNG encoding failed")]
     Png(#[from] png::EncodingError),
+
+    /// A vector page (SVG, PDF) could not be handed to its writer; the caller knows where
+    /// it was going and adds that.
+    #[error("cannot write the page")]
+    Output(#[source] std::io::Error),
 }
 
 impl Error {
@@ -78,7 +83,7 @@ impl Error {
                     | std::io::ErrorKind::PermissionDenied
             ),
             Error::InModel { source, .. } => source.is_bad_input(),
-            Error::Write { .. } | Error::Png(_) => false,
+            Error::Write { .. } | Error::Png(_) | Error::Output(_) => false,
         }
     }
 }

@@ -52,7 +52,8 @@
 //!
 //! ## Limitations
 //! - Every edge is drawn: hidden-line removal is not done yet.
-//! - Output is grey PNG only.
+//! - The command line writes grey PNG only; [`output::write_svg`] and [`output::write_pdf`]
+//!   write a [`page::Sheet`] as vector pages.
 //! - An elliptic arc whose curve passes exactly through the eye is not detected as
 //!   degenerate (segments are).
 

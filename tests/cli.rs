@@ -594,3 +594,78 @@ fn hidden_edges_from_the_command_line_and_the_scene() {
     );
     assert!(stderr(&out).contains("is inside block"), "{}", stderr(&out));
 }
+
+#[test]
+fn pages_and_formats_from_the_command_line() {
+    let dir = Scratch::new("pages");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    succeeds(
+        &dir,
+        &[
+            "render", demo, "--page", "a4", "--dpi", "100", "-o", "a4.pdf",
+        ],
+    );
+    assert!(std::fs::read(dir.path("a4.pdf"))
+        .unwrap()
+        .starts_with(b"%PDF-"));
+    succeeds(
+        &dir,
+        &[
+            "render",
+            demo,
+            "--page",
+            "letter",
+            "--portrait",
+            "--dpi",
+            "100",
+            "-o",
+            "p.svg",
+        ],
+    );
+    let svg = std::fs::read_to_string(dir.path("p.svg")).unwrap();
+    assert!(
+        svg.contains("width=\"215.9mm\"") && svg.contains("height=\"279.4mm\""),
+        "{}",
+        &svg[..300]
+    );
+    succeeds(
+        &dir,
+        &[
+            "render", demo, "--page", "a5", "--dpi", "72", "--tiles", "2x2", "--band", "-30,60",
+            "-o", "m.png",
+        ],
+    );
+    for name in ["m-r1c1.png", "m-r1c2.png", "m-r2c1.png", "m-r2c2.png"] {
+        assert!(dir.path(name).exists(), "{name}: {:?}", dir.files());
+    }
+    succeeds(
+        &dir,
+        &[
+            "render", demo, "--size", "512x256", "--colour", "-o", "c.png",
+        ],
+    );
+    assert_eq!(
+        png_size(&std::fs::read(dir.path("c.png")).unwrap()).2,
+        png::ColorType::Rgba
+    );
+    // Page options without a page, a paper nobody knows, an extension that names no format.
+    let dir = Scratch::new("pages-refused");
+    assert_refused(
+        &dir,
+        &["render", demo, "--band", "-30,60"],
+        &["--band needs a page"],
+    );
+    assert_refused(
+        &dir,
+        &["render", demo, "--page", "a9"],
+        &["a4", "letter", "asme-c"],
+    );
+    let out = pansite(&dir, &["render", demo, "-o", "x.jpg"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains(".png, .svg or .pdf"),
+        "{}",
+        stderr(&out)
+    );
+}

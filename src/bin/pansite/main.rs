@@ -7,7 +7,7 @@ mod check;
 use anyhow::Context;
 use args::{Cli, Command, FormatArg, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
-use pansite::output::{write_atomically, write_png, Panorama, PngOptions};
+use pansite::output::{write_atomically, write_pdf, write_png, write_svg, Panorama, PngOptions};
 use pansite::page::{PageSettings, Paper, Sheet, Tiling};
 use pansite::render::{draw_sheets, title_lines, today, RenderSettings};
 use pansite::scene::{
@@ -155,7 +155,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         };
         let size = match &page {
             Some(page) => format!(
-                "{} x {} mm at {} dpi, {} sheet{}",
+                "{:.1} x {:.1} mm at {} dpi, {} sheet{}",
                 page.paper.width_mm,
                 page.paper.height_mm,
                 page.dpi,
@@ -404,9 +404,8 @@ fn write_sheets(
 ) -> pansite::Result<()> {
     match format {
         FormatArg::Png => write_png(&sheets[first].drawing, png, out),
-        FormatArg::Svg | FormatArg::Pdf => Err(Error::Setting(
-            "SVG and PDF output are not built yet".to_owned(),
-        )),
+        FormatArg::Svg => write_svg(&sheets[first], out).map_err(Error::Output),
+        FormatArg::Pdf => write_pdf(sheets, out),
     }
 }
 
