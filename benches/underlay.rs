@@ -22,14 +22,19 @@
 //!   parts found and drawn faint, against the same drawing without: the pass's time and
 //!   memory (the 3 s and 1.5 x image targets).
 //!
+//! - `pages`: the demo on A3 and A1 paper at 300 dpi with its title block, written as grey
+//!   and as RGBA PNG (the pages issue's targets: time and memory beside the floor, grey no
+//!   dearer than colour).
+//!
 //! Peak memory is measured by running each case once more, as the command does it (load,
 //! then draw, rasterise and encode in bands), in a child process, and reading its
 //! high-water mark (`VmHWM`) from `/proc/self/status`. "image" in that column is the size
 //! of the whole image in memory, for scale: the banded renderer never holds it all.
 
-use pansite::output::{encode_grey_png, GreyCanvas};
+use pansite::output::{encode_grey_png, write_png, GreyCanvas, PngOptions};
+use pansite::page::{PageSettings, Paper};
 use pansite::plane::{Equirect, Flattener, PolylineSet, DEFAULT_TOLERANCE_PX};
-use pansite::render::{draw, raster, render_png_to, RenderSettings};
+use pansite::render::{draw, draw_sheets, raster, render_png_to, RenderSettings};
 use pansite::scene::{
     add_mesh, parse_obj, parse_scene, HiddenEdges, MeshPlacement, MeshStats, Site, Standpoint,
 };
@@ -275,6 +280,38 @@ fn mesh_import(text: &str) -> (Duration, Duration, MeshStats, usize) {
     (parse, started.elapsed(), stats, outlines)
 }
 
+/// The demo on a page of `paper` (landscape, 300 dpi, title block), written as a PNG in
+/// grey or colour: the time from the site to the encoded file.
+fn page_render(paper: &str, colour: bool) -> Duration {
+    let site = parse_scene(demo_scene().as_bytes(), Path::new("demo.ron"), "demo").unwrap();
+    let standpoint = &site.standpoints[0];
+    let page = PageSettings {
+        paper: Paper::named(paper).unwrap().landscape(),
+        margin_mm: 10.0,
+        dpi: 300.0,
+        band_deg: (-90.0, 90.0),
+        title: Some(vec!["BENCHMARK".to_owned()]),
+        tiles: None,
+    };
+    let started = Instant::now();
+    let (sheets, _) = draw_sheets(
+        &site,
+        standpoint,
+        &RenderSettings::default(),
+        Some(&page),
+        300.0,
+    )
+    .unwrap();
+    let options = PngOptions {
+        colour,
+        dpi: Some(300.0),
+        panorama: None,
+    };
+    let mut bytes = Vec::with_capacity(16 << 20);
+    write_png(&sheets[0].drawing, &options, &mut bytes).unwrap();
+    started.elapsed()
+}
+
 /// The mesh placed as a site, and a standpoint among the spheres.
 fn mesh_site(text: &str) -> (Site, Standpoint) {
     let obj = parse_obj(text.as_bytes(), Path::new("spheres.obj")).unwrap();
@@ -372,6 +409,10 @@ fn main() {
             "town" => render_only(&town_scene()),
             "demo" => render_only(&demo_scene()),
             "mesh" => drop(mesh_import(&mesh_obj())),
+            "a3_grey" => drop(page_render("A3", false)),
+            "a3_colour" => drop(page_render("A3", true)),
+            "a1_grey" => drop(page_render("A1", false)),
+            "a1_colour" => drop(page_render("A1", true)),
             "mesh_solid" | "mesh_faint" => {
                 let (site, standpoint) = mesh_site(&mesh_obj());
                 let hidden = if case == "mesh_solid" {
@@ -508,6 +549,32 @@ fn main() {
         );
     }
     drop(site);
+
+    println!();
+    println!("| page (demo, 300 dpi, landscape) | pixels | grey PNG ms | grey / F | grey peak memory | RGBA PNG ms | RGBA / F | RGBA peak memory |");
+    println!("|---|---:|---:|---:|---:|---:|---:|---:|");
+    for (paper, grey_case, colour_case) in [
+        ("A3", "a3_grey", "a3_colour"),
+        ("A1", "a1_grey", "a1_colour"),
+    ] {
+        let grey = median((0..3).map(|_| page_render(paper, false)).collect());
+        let colour = median((0..3).map(|_| page_render(paper, true)).collect());
+        let size = Paper::named(paper).unwrap();
+        let pixels = (size.width_mm * 300.0 / 25.4).ceil() * (size.height_mm * 300.0 / 25.4).ceil();
+        let peak = |case: &str| {
+            child_peak(case).map_or("n/a".to_owned(), |p| format!("{:.0} MB", megabytes(p)))
+        };
+        println!(
+            "| {paper} | {:.1} M | {:.0} | {:.2} | {} | {:.0} | {:.2} | {} |",
+            pixels / 1e6,
+            ms(grey),
+            grey.as_secs_f64() / floor_time.as_secs_f64(),
+            peak(grey_case),
+            ms(colour),
+            colour.as_secs_f64() / floor_time.as_secs_f64(),
+            peak(colour_case),
+        );
+    }
 
     let block = town_block_scene();
     let loads: Vec<(Duration, Duration, usize)> = (0..RUNS)

@@ -3,8 +3,8 @@
 
 use crate::aids::{self, AidSettings};
 use crate::drawing::{
-    apply_styles, page_style, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
-    Wireframe, HIDDEN,
+    apply_styles, page_style, wireframe, wireframe_layer_name, Distance, Drawing, Layer,
+    SkippedEdge, Stroke, Wireframe, HIDDEN,
 };
 use crate::error::{Error, Result};
 use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
@@ -36,6 +36,8 @@ pub struct RenderSettings {
     pub base_styles: Option<StyleSheet>,
     /// Styles applied after the scene's own (a style file from the command line).
     pub styles: Option<StyleSheet>,
+    /// Draw edges nearer than 8 m heavier and those beyond 30 m lighter.
+    pub weight_by_distance: bool,
     /// The drawing aids drawn with the overlays (see [`crate::aids`]).
     pub aids: AidSettings,
 }
@@ -52,6 +54,7 @@ impl Default for RenderSettings {
             dpi: 300.0,
             base_styles: None,
             styles: None,
+            weight_by_distance: false,
             aids: AidSettings::default(),
         }
     }
@@ -136,6 +139,13 @@ pub struct Render {
     pub timings: Timings,
 }
 
+/// Layer names of the near and far wireframe when lines are weighed by distance, and how
+/// much heavier or lighter they are drawn than the middle distance.
+pub const NEAR_SUFFIX: &str = " (near)";
+pub const FAR_SUFFIX: &str = " (far)";
+const NEAR_WEIGHT: f64 = 1.6;
+const FAR_WEIGHT: f64 = 0.6;
+
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
     settings.validate()?;
@@ -152,7 +162,13 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         layers: site_layers,
         hidden,
         skipped,
-    } = wireframe(site, &view, &flattener, hidden_edges);
+    } = wireframe(
+        site,
+        &view,
+        &flattener,
+        hidden_edges,
+        settings.weight_by_distance,
+    );
     let width = settings.line_weight_px;
     if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
         // Under the seen edges, lighter, thinner and (by the styles) dashed.
@@ -163,13 +179,18 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         });
     }
     let stroke = Stroke::black(1.0, settings.line_weight_px);
-    for (index, (name, lines)) in site_layers.into_iter().enumerate() {
+    for (index, wire) in site_layers.into_iter().enumerate() {
         // The default layer is always there, even empty; named layers only when used.
-        if index == 0 || !lines.is_empty() {
+        if index == 0 || !wire.lines.is_empty() {
+            let name = wireframe_layer_name(wire.site_layer.as_deref());
             layers.push(Layer {
-                name: wireframe_layer_name(name.as_deref()),
+                name: match wire.distance {
+                    Distance::Middle => name,
+                    Distance::Near => format!("{name}{NEAR_SUFFIX}"),
+                    Distance::Far => format!("{name}{FAR_SUFFIX}"),
+                },
                 stroke,
-                lines,
+                lines: wire.lines,
             });
         }
     }
@@ -191,6 +212,14 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         settings.dpi / 25.4,
         (3.0 * width + 3.0, 2.0 * width + 2.0),
     );
+    // Nearer edges heavier, farther ones lighter, after the styles have set the weight.
+    for layer in &mut layers {
+        if layer.name.ends_with(NEAR_SUFFIX) {
+            layer.stroke.width_px *= NEAR_WEIGHT;
+        } else if layer.name.ends_with(FAR_SUFFIX) {
+            layer.stroke.width_px *= FAR_WEIGHT;
+        }
+    }
     let drawing = Drawing {
         width: settings.width,
         height: settings.height,

@@ -251,3 +251,40 @@ fn a_full_panorama_carries_its_metadata() {
     let heading: f64 = field("PoseHeadingDegrees").parse().unwrap();
     assert!((heading - 10.0).abs() < 1e-3);
 }
+
+#[test]
+fn styles_from_the_scene_and_weights_by_distance() {
+    let site = pansite::scene::parse_scene(
+        b"Scene(standpoints: [(name: \"s\", x: 0, y: 0)], styles: {\"wireframe\": (colour: \"#102030\", weight_px: 2), \
+          \"grid\": (opacity: 0.5), \"posts\": (colour: \"red\")}, items: [
+            Block(at: Centre(0, 5), width: 4, depth: 2, height: 3),
+            Block(at: Centre(40, 60), width: 10, depth: 4, height: 12),
+            Column(layer: \"posts\", at: (12, 15), diameter: 0.2, height: 3),
+        ])",
+        Path::new("styled.ron"),
+        "styled",
+    )
+    .unwrap();
+    let settings = RenderSettings {
+        width: 512,
+        height: 256,
+        weight_by_distance: true,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let layer = |name: &str| {
+        render
+            .drawing
+            .layers
+            .iter()
+            .find(|l| l.name == name)
+            .unwrap_or_else(|| panic!("no layer {name}"))
+    };
+    // The scene's wireframe style, then 1.6 times heavier near and 0.6 times far.
+    assert_eq!(layer("wireframe (near)").stroke.colour, [0x10, 0x20, 0x30]);
+    assert_eq!(layer("wireframe (near)").stroke.width_px, 2.0 * 1.6);
+    assert_eq!(layer("wireframe (far)").stroke.width_px, 2.0 * 0.6);
+    // A site layer's own style wins over the general one.
+    assert_eq!(layer("wireframe: posts").stroke.colour, [200, 30, 30]);
+    assert_eq!(layer("grid").stroke.opacity, 0.5);
+}

@@ -11,7 +11,9 @@ pub use dash::dashed;
 pub use lettering::{letter, text_width, Align};
 pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
 pub use style::{apply_styles, page_style};
-pub use wireframe::{wireframe, SkippedEdge, Wireframe};
+pub use wireframe::{
+    wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
+};
 
 use crate::plane::PolylineSet;
 

@@ -30,6 +30,11 @@ pub fn page_style() -> StyleSheet {
 /// particular: `wireframe` for every wireframe layer, then the layer's own name, then the
 /// name of a layer of the site's items (whose wireframe layer it styles).
 fn entries_for<'a>(sheet: &'a StyleSheet, layer: &str) -> Vec<&'a LayerStyle> {
+    // The near and far parts of a wireframe layer look like the layer.
+    let layer = layer
+        .strip_suffix(" (near)")
+        .or_else(|| layer.strip_suffix(" (far)"))
+        .unwrap_or(layer);
     let general = sheet
         .0
         .get(WIREFRAME)

@@ -30,6 +30,7 @@ pub fn wireframe(
     view: &ViewFrame,
     flattener: &Flattener,
     hidden: HiddenEdges,
+    by_distance: bool,
 ) -> Wireframe {
     // The edges that depend on the eye (mesh silhouettes, the outlines of round items,
     // point markers) join the fixed edges; they are numbered after them in the list of
@@ -66,6 +67,18 @@ pub fn wireframe(
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
     let (names, slot_of_item) = site.layer_slots();
+    // With weights by distance each site layer has three slots: middle, near and far.
+    let bands: u32 = if by_distance { 3 } else { 1 };
+    let slot_of_item: Vec<u32> = slot_of_item.iter().map(|slot| slot * bands).collect();
+    let names: Vec<(Option<&str>, Distance)> = names
+        .iter()
+        .flat_map(|name| {
+            let all = [Distance::Middle, Distance::Near, Distance::Far];
+            all.into_iter()
+                .take(bands as usize)
+                .map(move |band| (*name, band))
+        })
+        .collect();
     let (names, slot_of_item) = (&names, &slot_of_item);
     let mut parts: Vec<(usize, RunLines, PolylineSet, Vec<SkippedEdge>)> =
         std::thread::scope(|scope| {
@@ -83,6 +96,7 @@ pub fn wireframe(
                                 view,
                                 &mut flattener,
                                 slot_of_item,
+                                bands,
                                 occluders,
                             );
                             done.push((index, lines, hidden, skipped));
@@ -100,15 +114,19 @@ pub fn wireframe(
                 .collect()
         });
     parts.sort_by_key(|(index, _, _, _)| *index);
-    let mut layers: Vec<(Option<String>, PolylineSet)> = names
+    let mut layers: Vec<WireLayer> = names
         .iter()
-        .map(|name| (name.map(str::to_owned), PolylineSet::new()))
+        .map(|(name, distance)| WireLayer {
+            site_layer: name.map(str::to_owned),
+            distance: *distance,
+            lines: PolylineSet::new(),
+        })
         .collect();
     let mut skipped = Vec::new();
     let mut hidden = PolylineSet::new();
     for (_, part_layers, mut part_hidden, part_skipped) in parts {
         for (slot, mut part) in part_layers {
-            layers[slot as usize].1.append(&mut part);
+            layers[slot as usize].lines.append(&mut part);
         }
         hidden.append(&mut part_hidden);
         skipped.extend(part_skipped);
@@ -157,10 +175,66 @@ pub fn marker_cross(marker: &Marker, eye: &Point3<f64>, arm: f64) -> Vec<Edge> {
 /// site's layers (the first for items on no layer), and the edges left out.
 #[derive(Clone, Debug, Default)]
 pub struct Wireframe {
-    pub layers: Vec<(Option<String>, PolylineSet)>,
+    pub layers: Vec<WireLayer>,
     /// The parts of edges hidden behind faces (empty unless hidden parts are looked for).
     pub hidden: PolylineSet,
     pub skipped: Vec<SkippedEdge>,
+}
+
+/// How far an edge is from the eye, when lines are weighed by distance (a common drawing
+/// convention: nearer edges heavier). The bands are fixed in metres: near within
+/// [`NEAR_METRES`], far beyond [`FAR_METRES`].
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Distance {
+    /// Between near and far, or every edge when lines are not weighed by distance.
+    Middle,
+    Near,
+    Far,
+}
+
+pub const NEAR_METRES: f64 = 8.0;
+pub const FAR_METRES: f64 = 30.0;
+
+impl Distance {
+    /// The band of an edge, by its nearest point to the eye (a circle or ellipse by its
+    /// centre's distance less its larger semi-axis).
+    fn of(edge: &Edge, eye: &Point3<f64>) -> Distance {
+        let nearest = match edge.curve {
+            SiteCurve::Segment { start, end } => {
+                let along = end - start;
+                let t = ((eye - start).dot(&along) / along.norm_squared().max(f64::MIN_POSITIVE))
+                    .clamp(0.0, 1.0);
+                (start + along * t - eye).norm()
+            }
+            SiteCurve::Ellipse { centre, u, v, .. } => {
+                ((centre - eye).norm() - u.norm().max(v.norm())).max(0.0)
+            }
+        };
+        if nearest < NEAR_METRES {
+            Distance::Near
+        } else if nearest > FAR_METRES {
+            Distance::Far
+        } else {
+            Distance::Middle
+        }
+    }
+
+    /// Slot offset within a site layer's three slots.
+    fn offset(self) -> u32 {
+        match self {
+            Distance::Middle => 0,
+            Distance::Near => 1,
+            Distance::Far => 2,
+        }
+    }
+}
+
+/// The polylines of one site layer (`None`: items on no layer), in one band of distance.
+#[derive(Clone, Debug)]
+pub struct WireLayer {
+    pub site_layer: Option<String>,
+    pub distance: Distance,
+    pub lines: PolylineSet,
 }
 
 /// One run's polylines, by layer slot.
@@ -172,8 +246,10 @@ fn flatten_edges(
     view: &ViewFrame,
     flattener: &mut Flattener,
     slot_of_item: &[u32],
+    bands: u32,
     occluders: Option<&Occluders>,
 ) -> (RunLines, PolylineSet, Vec<SkippedEdge>) {
+    let eye = view.eye();
     // One pixel of angle between visibility samples, changes found to a thousandth of it.
     let pixel = std::f64::consts::TAU / flattener.map().width();
     let mut hidden = PolylineSet::new();
@@ -181,7 +257,10 @@ fn flatten_edges(
     let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();
     for (offset, edge) in edges.iter().enumerate() {
-        let slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0);
+        let mut slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0);
+        if bands > 1 {
+            slot += Distance::of(edge, &eye).offset();
+        }
         match view.sphere_curve(&edge.curve) {
             Ok(curve) => {
                 let position = match lines.iter().rposition(|(s, _)| *s == slot) {

@@ -96,6 +96,10 @@ pub struct RenderArgs {
     #[arg(long)]
     pub colour: bool,
 
+    /// Weigh lines by distance: edges nearer than 8 m heavier, beyond 30 m lighter.
+    #[arg(long)]
+    pub weigh_by_distance: bool,
+
     /// A style file: how layers look, by name, over the scene's own styles (see
     /// docs/scene-format.md, "Styles").
     #[arg(long, value_name = "FILE")]

@@ -69,6 +69,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         dpi: args.dpi,
         base_styles: None,
         styles: args.style.as_deref().map(load_style_sheet).transpose()?,
+        weight_by_distance: args.weigh_by_distance,
         aids: args.aids.settings(),
     };
     settings.validate()?;
