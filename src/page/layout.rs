@@ -274,7 +274,7 @@ impl PageSettings {
                     (margin, margin + printable_h, -1.0, 1.0),
                     (margin + printable_w, margin + printable_h, 1.0, 1.0),
                 ] {
-                    // Corner marks in the margin, in line with the edges of the printable
+                    // Crop marks in the margin, in line with the edges of the printable
                     // area, that meet there: cut along them to trim the sheet.
                     marks.push(&[
                         ImagePoint::new(x, y + sy * 1.0),
@@ -285,13 +285,44 @@ impl PageSettings {
                         ImagePoint::new(x + sx * reach, y),
                     ]);
                 }
+                // Registration targets in the middle of each margin: a ring and a cross, so
+                // that neighbouring sheets can be lined up by eye through their overlap.
+                let ring = (margin * 0.25).min(3.0 * px);
+                for (x, y) in [
+                    (margin + printable_w / 2.0, margin / 2.0),
+                    (
+                        margin + printable_w / 2.0,
+                        margin + printable_h + margin / 2.0,
+                    ),
+                    (margin / 2.0, margin + printable_h / 2.0),
+                    (
+                        margin + printable_w + margin / 2.0,
+                        margin + printable_h / 2.0,
+                    ),
+                ] {
+                    let circle: Vec<ImagePoint> = (0..=32)
+                        .map(|k| {
+                            let a = std::f64::consts::TAU * k as f64 / 32.0;
+                            ImagePoint::new(x + ring * a.cos(), y + ring * a.sin())
+                        })
+                        .collect();
+                    marks.push(&circle);
+                    marks.push(&[
+                        ImagePoint::new(x - 1.5 * ring, y),
+                        ImagePoint::new(x + 1.5 * ring, y),
+                    ]);
+                    marks.push(&[
+                        ImagePoint::new(x, y - 1.5 * ring),
+                        ImagePoint::new(x, y + 1.5 * ring),
+                    ]);
+                }
+                // Short enough to stay left of the registration target in the margin.
                 let label = format!(
-                    "ROW {} OF {}, COLUMN {} OF {} ({} SHEETS); OVERLAP {} MM",
+                    "ROW {}/{}, COLUMN {}/{} ({total}), OVERLAP {} MM",
                     row + 1,
                     tiling.rows,
                     column + 1,
                     tiling.columns,
-                    total,
                     tiling.overlap_mm
                 );
                 let height = (LETTER_MM * px).min(margin * 0.4);
