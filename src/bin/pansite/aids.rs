@@ -1,5 +1,6 @@
 //! The command-line flags of the drawing aids, and the `angles` command.
 
+use crate::parse::{parse_finite, parse_size};
 use clap::{Args, ValueEnum};
 use pansite::aids::AidSettings;
 use pansite::scene::{Division, Fan, Pole, Slope, DEFAULT_FAN_STEP_DEG};
@@ -131,7 +132,7 @@ pub struct AnglesArgs {
     pub points: bool,
 
     /// Image size in pixels, WIDTHxHEIGHT, for the pixel columns.
-    #[arg(long, value_name = "WxH", default_value = "4096x2048", value_parser = super::args::parse_size)]
+    #[arg(long, value_name = "WxH", default_value = "4096x2048", value_parser = parse_size)]
     pub size: (u32, u32),
 
     /// Printed width of the whole panorama, millimetres, for the page columns
@@ -162,18 +163,6 @@ pub struct AnglesArgs {
     /// Roll of the view, degrees; positive turns up towards the right.
     #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
     pub roll: Option<f64>,
-}
-
-fn parse_finite(text: &str) -> Result<f64, String> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| format!("expected a number, found \"{text}\""))?;
-    if value.is_finite() {
-        Ok(value)
-    } else {
-        Err(format!("expected a finite number, found \"{text}\""))
-    }
 }
 
 fn parse_positive(text: &str) -> Result<f64, String> {

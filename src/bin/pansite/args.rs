@@ -1,5 +1,6 @@
 //! What the user typed (clap), and its checks.
 
+use crate::parse::{parse_finite, parse_non_negative, parse_pair, parse_size};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
 
@@ -209,27 +210,6 @@ pub enum UnitArg {
     Ft,
 }
 
-fn parse_finite(text: &str) -> Result<f64, String> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| format!("expected a number, found \"{text}\""))?;
-    if value.is_finite() {
-        Ok(value)
-    } else {
-        Err(format!("expected a finite number, found \"{text}\""))
-    }
-}
-
-fn parse_non_negative(text: &str) -> Result<f64, String> {
-    let value = parse_finite(text)?;
-    if value >= 0.0 {
-        Ok(value)
-    } else {
-        Err(format!("expected zero or more, found {value}"))
-    }
-}
-
 fn parse_crease(text: &str) -> Result<f64, String> {
     let value = parse_finite(text)?;
     if (0.0..=180.0).contains(&value) {
@@ -239,25 +219,6 @@ fn parse_crease(text: &str) -> Result<f64, String> {
             "expected an angle from 0 to 180 degrees, found {value}"
         ))
     }
-}
-
-fn parse_pair(text: &str) -> Result<(f64, f64), String> {
-    let (x, y) = text
-        .split_once(',')
-        .ok_or_else(|| format!("expected X,Y, found \"{text}\""))?;
-    Ok((parse_finite(x)?, parse_finite(y)?))
-}
-
-pub fn parse_size(text: &str) -> Result<(u32, u32), String> {
-    let (w, h) = text
-        .split_once(['x', 'X'])
-        .ok_or_else(|| format!("expected WIDTHxHEIGHT such as 4096x2048, found \"{text}\""))?;
-    let number = |s: &str| {
-        s.trim()
-            .parse::<u32>()
-            .map_err(|_| format!("expected a whole number of pixels, found \"{s}\""))
-    };
-    Ok((number(w)?, number(h)?))
 }
 
 fn parse_tiles(text: &str) -> Result<(u32, u32), String> {

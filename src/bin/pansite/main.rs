@@ -3,6 +3,7 @@
 mod aids;
 mod args;
 mod check;
+mod parse;
 
 use anyhow::Context;
 use args::{Cli, Command, FormatArg, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};

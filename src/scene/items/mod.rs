@@ -6,6 +6,7 @@
 //! [`ItemBuilder`]: super::build::ItemBuilder
 
 mod arch;
+mod barrel;
 mod block;
 #[cfg(test)]
 mod checks;

@@ -3,8 +3,8 @@
 
 use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
+use super::barrel::BarrelVault;
 use super::block::{rectangle_frame, rectangle_plan, rectangle_walls, Anchor};
-use super::vault::BarrelVault;
 use super::walls::{build_walls, openings_in_wall, OpeningKind, OpeningsSpec, Wall};
 use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
