@@ -226,18 +226,23 @@ fn new_scene(args: &NewArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
+/// A RON scene read from standard input.
+fn scene_from_stdin() -> pansite::Result<Site> {
+    let mut bytes = Vec::new();
+    std::io::stdin()
+        .read_to_end(&mut bytes)
+        .map_err(|source| Error::Read {
+            path: PathBuf::from("<stdin>"),
+            source,
+        })?;
+    parse_scene(&bytes, Path::new("<stdin>"), "stdin")
+}
+
 /// The scene from a RON file, an OBJ model (by its extension) or standard input.
 fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
     let path = args.scene.as_path();
     if path == Path::new("-") {
-        let mut bytes = Vec::new();
-        std::io::stdin()
-            .read_to_end(&mut bytes)
-            .map_err(|source| Error::Read {
-                path: PathBuf::from("<stdin>"),
-                source,
-            })?;
-        return parse_scene(&bytes, Path::new("<stdin>"), "stdin");
+        return scene_from_stdin();
     }
     let is_obj = path
         .extension()
@@ -443,14 +448,7 @@ fn output_paths(
 fn angles(args: &aids::AnglesArgs) -> anyhow::Result<()> {
     use pansite::aids::table::{angle_table, to_csv, to_json, to_text, PagePlacement, TableChoice};
     let site = if args.scene == Path::new("-") {
-        let mut bytes = Vec::new();
-        std::io::stdin()
-            .read_to_end(&mut bytes)
-            .map_err(|source| Error::Read {
-                path: PathBuf::from("<stdin>"),
-                source,
-            })?;
-        parse_scene(&bytes, Path::new("<stdin>"), "stdin")?
+        scene_from_stdin()?
     } else {
         load_scene(&args.scene)?
     };
