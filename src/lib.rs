@@ -1,9 +1,11 @@
 //! # pansite
 //!
 //! Exact equirectangular wireframe underlays for people who draw 360-degree spherical
-//! perspectives by hand. A site (blocks, polylines, Wavefront OBJ models) and a standpoint go
-//! in; out comes a 360 x 180 degree image in which every straight edge is drawn as the
-//! great-circle arc it really makes on the viewing sphere, ready to print and trace over.
+//! perspectives by hand. A site (buildings, streets, arches, columns, stairs, rooms and more,
+//! or Wavefront OBJ models) and a standpoint go in; out comes a 360 x 180 degree image in
+//! which every straight edge is drawn as the great-circle arc it really makes on the viewing
+//! sphere, hidden parts faint or left out, alone or laid out on paper, as PNG, SVG or PDF,
+//! ready to print and trace over.
 //!
 //! ```
 //! use pansite::render::{draw, RenderSettings};
@@ -45,15 +47,16 @@
 //!
 //! ## Pipeline
 //! [`scene`] (model and loaders) -> [`sphere`] (view frame, curves on the viewing sphere) ->
-//! [`plane`] (equirectangular mapping, flattening with seam and pole cuts) -> [`drawing`]
-//! (display list of stroked polylines) -> [`output`] (rasteriser, PNG). [`render`] runs them;
+//! [`visibility`] (hidden lines) -> [`plane`] (equirectangular mapping, flattening with seam
+//! and pole cuts) -> [`drawing`] (display list of stroked polylines, styles, lettering) ->
+//! [`page`] (paper, title block, tiles) -> [`output`] (rasteriser, PNG, SVG, PDF). [`render`]
+//! runs them;
 //! [`aids`] adds the drawing aids (grid, labels, vanishing points, fans, poles, divisions)
 //! and the table of angles.
 //!
 //! ## Limitations
-//! - Every edge is drawn: hidden-line removal is not done yet.
-//! - The command line writes grey PNG only; [`output::write_svg`] and [`output::write_pdf`]
-//!   write a [`page::Sheet`] as vector pages.
+//! - Curved surfaces hide things as facets of 7.5 degrees; their drawn edges stay exact.
+//! - On curved edges, a seen or hidden stretch shorter than a pixel of angle can be missed.
 //! - An elliptic arc whose curve passes exactly through the eye is not detected as
 //!   degenerate (segments are).
 
