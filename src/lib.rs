@@ -60,6 +60,7 @@
 #![forbid(unsafe_code)]
 
 pub mod aids;
+pub mod compose;
 pub mod drawing;
 pub mod error;
 pub mod output;
