@@ -6,7 +6,7 @@
 //! all cores, one standpoint at a time per core (a thumbnail is too small for the
 //! wireframe's own runs to split it), and placed in a grid in the order given.
 
-use crate::drawing::{letter, Align, Drawing, Layer, Stroke};
+use crate::drawing::{letter, text_width, Align, Drawing, Layer, Stroke};
 use crate::error::{Error, Result};
 use crate::page::{clip_and_move, Rect, Sheet};
 use crate::plane::{ImagePoint, PolylineSet};
@@ -268,26 +268,30 @@ pub fn contact_sheet(
             ImagePoint::new(left, top),
         ]);
         let baseline = top + th + 1.3 * letter_px;
-        letter(
-            &format!("{}. {}", k + 1, standpoint.name),
-            ImagePoint::new(left, baseline),
-            letter_px,
-            Align::Start,
-            &mut labels,
-        );
-        letter(
-            &format!(
-                "HEADING {:.0}\u{b0}  AT {:.1}, {:.1}  EYE {:.2} M",
-                standpoint.heading.to_degrees().rem_euclid(360.0),
-                standpoint.x,
-                standpoint.y,
-                standpoint.eye_height
+        let lines = [
+            (format!("{}. {}", k + 1, standpoint.name), letter_px),
+            (
+                format!(
+                    "HEADING {:.0}\u{b0}  AT {:.1}, {:.1}  EYE {:.2} M",
+                    standpoint.heading.to_degrees().rem_euclid(360.0),
+                    standpoint.x,
+                    standpoint.y,
+                    standpoint.eye_height
+                ),
+                0.8 * letter_px,
             ),
-            ImagePoint::new(left, baseline + 1.3 * letter_px),
-            0.8 * letter_px,
-            Align::Start,
-            &mut labels,
-        );
+        ];
+        for (row, (text, height)) in lines.iter().enumerate() {
+            // Long names are lettered smaller rather than run into the next thumbnail.
+            let height = height.min(height * tw / text_width(text, *height).max(1e-9));
+            letter(
+                text,
+                ImagePoint::new(left, baseline + row as f64 * 1.3 * letter_px),
+                height,
+                Align::Start,
+                &mut labels,
+            );
+        }
     }
     layers.push(Layer {
         name: "frame".to_owned(),

@@ -162,7 +162,11 @@ impl Pinhole {
         }
         let (p, q) = (self.image_of_view(&a), self.image_of_view(&b));
         if let Some((t0, t1)) = clip_segment(p, q, &self.frame()) {
-            out.push([lerp(p, q, t0), lerp(p, q, t1)]);
+            // A segment that only touches the picture's edge would be drawn as a dot.
+            let (a, b) = (lerp(p, q, t0), lerp(p, q, t1));
+            if (b.x - a.x).hypot(b.y - a.y) > 1e-6 || (p == q && t0 == 0.0) {
+                out.push([a, b]);
+            }
         }
     }
 

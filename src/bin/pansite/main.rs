@@ -3,6 +3,7 @@
 mod aids;
 mod args;
 mod check;
+mod compose;
 
 use anyhow::Context;
 use args::{Cli, Command, FormatArg, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
@@ -36,6 +37,10 @@ fn main() -> ExitCode {
         Command::Check(args) => check::check(&args.scene),
         Command::New(args) => new_scene(&args),
         Command::Angles(args) => angles(&args),
+        Command::Sheet(args) => compose::sheet(&args),
+        Command::Plan(args) => compose::plan(&args),
+        Command::Preview(args) => compose::preview_command(&args),
+        Command::Watch(args) => compose::watch(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
