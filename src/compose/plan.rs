@@ -311,7 +311,7 @@ fn trim(x: f64) -> String {
 /// the taller sets the height. Sheets of different resolutions are refused.
 pub fn beside(left: &Sheet, right: &Sheet, gap_mm: f64) -> Result<Sheet> {
     let mm_per_px = left.mm_per_px;
-    if (right.mm_per_px - mm_per_px).abs() > 1e-9 * mm_per_px || !(gap_mm >= 0.0) {
+    if (right.mm_per_px - mm_per_px).abs() > 1e-9 * mm_per_px || gap_mm.is_nan() || gap_mm < 0.0 {
         return Err(Error::Setting(
             "sheets placed side by side need the same resolution and a gap of 0 or more".into(),
         ));

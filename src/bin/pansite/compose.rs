@@ -88,7 +88,7 @@ pub struct SheetArgs {
     pub path: Option<Vec<(f64, f64)>>,
     /// Sweep a grid of CxR positions over the rectangle X0,Y0:X1,Y1:CxR.
     #[arg(long, value_name = "X0,Y0:X1,Y1:CxR", value_parser = parse_grid, allow_hyphen_values = true, group = "sweep")]
-    pub grid: Option<((f64, f64), (f64, f64), (u32, u32))>,
+    pub grid: Option<GridSweep>,
     /// How many standpoints along --path.
     #[arg(long, value_name = "N", default_value_t = 8)]
     pub count: usize,
@@ -173,8 +173,7 @@ impl Progress {
         let mut err = std::io::stderr().lock();
         let _ = write!(
             err,
-            "\r{} [{}{}] {done}/{total} {} {:.1} s",
-            "pansite:",
+            "\rpansite: [{}{}] {done}/{total} {} {:.1} s",
             "#".repeat(filled),
             ".".repeat(BAR - filled),
             self.what,
@@ -500,7 +499,8 @@ fn parse_path(text: &str) -> Result<Vec<(f64, f64)>, String> {
     Ok(points)
 }
 
-type GridSweep = ((f64, f64), (f64, f64), (u32, u32));
+/// A grid sweep: two opposite corners and the columns and rows.
+pub type GridSweep = ((f64, f64), (f64, f64), (u32, u32));
 
 fn parse_grid(text: &str) -> Result<GridSweep, String> {
     let parts: Vec<&str> = text.split(':').collect();
