@@ -518,3 +518,82 @@ fn sheet_command_is_quiet_when_piped() {
     let svg = std::fs::read_to_string(dir.0.join("sheet.svg")).unwrap();
     assert_eq!(svg_layer(&svg, "frame").len(), 3);
 }
+
+#[test]
+fn plan_preview_and_sheet_write_every_format() {
+    let dir = scratch("formats");
+    let scene = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
+    let scene = scene.to_str().unwrap();
+    for (args, file) in [
+        (&["plan", scene, "--size", "400x300"][..], "plan.pdf"),
+        (
+            &[
+                "plan",
+                scene,
+                "--beside",
+                "-s",
+                "loggia",
+                "--panorama-size",
+                "512x256",
+            ],
+            "beside.svg",
+        ),
+        (
+            &[
+                "preview", scene, "-s", "loggia", "--fov", "60", "--size", "320x200",
+            ],
+            "preview.png",
+        ),
+        (
+            &[
+                "sheet",
+                scene,
+                "--grid",
+                "-5,-5:5,5:2x2",
+                "--thumb",
+                "160x80",
+            ],
+            "grid.pdf",
+        ),
+        (
+            &[
+                "sheet",
+                scene,
+                "--path",
+                "0,-10:10,-10:10,0",
+                "--count",
+                "3",
+                "--thumb",
+                "160x80",
+            ],
+            "path.png",
+        ),
+    ] {
+        let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+            .args(args)
+            .args(["-o", file, "-q"])
+            .current_dir(&dir.0)
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let bytes = std::fs::read(dir.0.join(file)).unwrap();
+        let magic: &[u8] = match file.rsplit('.').next() {
+            Some("pdf") => b"%PDF",
+            Some("svg") => b"<?xml",
+            _ => b"\x89PNG",
+        };
+        assert!(bytes.starts_with(magic), "{file}");
+    }
+    // A field of view a flat picture cannot hold is refused as bad input.
+    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .args(["preview", scene, "--fov", "180", "-o", "bad.png"])
+        .current_dir(&dir.0)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(!dir.0.join("bad.png").exists());
+}

@@ -85,7 +85,7 @@ pub struct SheetArgs {
     pub headings: Option<(f64, f64, f64)>,
     /// Sweep along a path of plan positions X,Y:X,Y:..., --count standpoints facing along it.
     #[arg(long, value_name = "X,Y:X,Y:...", value_parser = parse_path, allow_hyphen_values = true, group = "sweep")]
-    pub path: Option<Vec<(f64, f64)>>,
+    pub path: Option<PathSweep>,
     /// Sweep a grid of CxR positions over the rectangle X0,Y0:X1,Y1:CxR.
     #[arg(long, value_name = "X0,Y0:X1,Y1:CxR", value_parser = parse_grid, allow_hyphen_values = true, group = "sweep")]
     pub grid: Option<GridSweep>,
@@ -192,7 +192,7 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let base = choose_view(&site, &args.view.choice())?;
     let standpoints: Vec<Standpoint> = if let Some((from, to, step)) = args.headings {
         sweep_headings(&base, from, to, step)?
-    } else if let Some(path) = &args.path {
+    } else if let Some(PathSweep(path)) = &args.path {
         sweep_path(&base, path, args.count)?
     } else if let Some((a, b, (columns, rows))) = args.grid {
         sweep_grid(&base, a, b, columns, rows)?
@@ -486,7 +486,12 @@ fn parse_triple(text: &str) -> Result<(f64, f64, f64), String> {
     }
 }
 
-fn parse_path(text: &str) -> Result<Vec<(f64, f64)>, String> {
+/// The plan positions of a path sweep (a type of its own: clap reads a bare `Vec` as a
+/// repeated option).
+#[derive(Clone, Debug, PartialEq)]
+pub struct PathSweep(pub Vec<(f64, f64)>);
+
+fn parse_path(text: &str) -> Result<PathSweep, String> {
     let points = text
         .split(':')
         .map(parse_pair)
@@ -496,7 +501,7 @@ fn parse_path(text: &str) -> Result<Vec<(f64, f64)>, String> {
             "expected at least two points X,Y:X,Y, found \"{text}\""
         ));
     }
-    Ok(points)
+    Ok(PathSweep(points))
 }
 
 /// A grid sweep: two opposite corners and the columns and rows.
@@ -507,5 +512,49 @@ fn parse_grid(text: &str) -> Result<GridSweep, String> {
     match parts[..] {
         [a, b, counts] => Ok((parse_pair(a)?, parse_pair(b)?, parse_size(counts)?)),
         _ => Err(format!("expected X0,Y0:X1,Y1:CxR, found \"{text}\"")),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn summaries_say_what_changed() {
+        let a = Summary {
+            standpoints: 2,
+            items: 4,
+            edges: 60,
+        };
+        assert_eq!(
+            Summary::changes(None, a),
+            "2 standpoints, 4 items, 60 edges"
+        );
+        let b = Summary {
+            items: 5,
+            edges: 61,
+            ..a
+        };
+        assert_eq!(Summary::changes(Some(a), b), "items 4 -> 5, edges 60 -> 61");
+        assert_eq!(
+            Summary::changes(Some(a), a),
+            "same counts of standpoints, items and edges"
+        );
+    }
+
+    #[test]
+    fn sweep_values_parse() {
+        assert_eq!(parse_triple("0:345:15"), Ok((0.0, 345.0, 15.0)));
+        assert_eq!(
+            parse_path("0,-1:2,3").unwrap(),
+            PathSweep(vec![(0.0, -1.0), (2.0, 3.0)])
+        );
+        assert_eq!(
+            parse_grid("-5,-5:5,5:3x2"),
+            Ok(((-5.0, -5.0), (5.0, 5.0), (3, 2)))
+        );
+        assert!(parse_triple("0:345").is_err());
+        assert!(parse_path("0,0").is_err());
+        assert!(parse_grid("0,0:1,1").is_err());
     }
 }
