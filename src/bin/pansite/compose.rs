@@ -2,7 +2,7 @@
 //! plan with the standpoints marked), `preview` (an ordinary perspective view) and
 //! `watch` (render again whenever the scene or style file is saved).
 
-use super::args::{parse_size, FormatArg, RenderArgs};
+use super::args::{parse_size, FormatArg, HiddenArg, RenderArgs};
 use super::{choose_view, output_format, read_site, write_sheets, ViewChoice};
 use anyhow::Context;
 use clap::Args;
@@ -13,7 +13,7 @@ use pansite::compose::{
 use pansite::output::{write_atomically, PngOptions};
 use pansite::page::Sheet;
 use pansite::render::{draw_sheets, RenderSettings};
-use pansite::scene::{load_scene, Site, Standpoint};
+use pansite::scene::{load_scene, HiddenEdges, Site, Standpoint};
 use pansite::Error;
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
@@ -101,6 +101,10 @@ pub struct SheetArgs {
     /// The wireframes alone, without grid and horizon.
     #[arg(long)]
     pub bare: bool,
+    /// How edges hidden behind faces are drawn [default: the scene's choice, or faint];
+    /// solid is about ten times quicker, for a first look at many standpoints.
+    #[arg(long, value_enum, value_name = "HOW")]
+    pub hidden: Option<HiddenArg>,
 }
 
 #[derive(Debug, Args)]
@@ -221,6 +225,11 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
             height: args.thumb.1,
             line_weight_px: 1.0,
             overlays: !args.bare,
+            hidden: args.hidden.map(|h| match h {
+                HiddenArg::Solid => HiddenEdges::Solid,
+                HiddenArg::Faint => HiddenEdges::Faint,
+                HiddenArg::Off => HiddenEdges::Off,
+            }),
             dpi: args.out.dpi,
             ..RenderSettings::default()
         },
