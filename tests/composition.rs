@@ -62,6 +62,7 @@ fn preview_is_the_gnomonic_projection() {
         width: 1200,
         height: 800,
         fov_deg: 100.0,
+        hidden: Some(HiddenEdges::Solid),
         ..PreviewSettings::default()
     };
     let mut checked = 0;
@@ -110,7 +111,10 @@ fn straight_edges_stay_straight_and_arcs_are_within_tolerance() {
     // the image of a segment's midpoint lies on the line through its ends' images.
     let site = demo();
     let standpoint = Standpoint::from_degrees("s", 1.5, -4.0, 1.6, 10.0, 5.0, 0.0);
-    let settings = PreviewSettings::default();
+    let settings = PreviewSettings {
+        hidden: Some(HiddenEdges::Solid),
+        ..PreviewSettings::default()
+    };
     let camera = Pinhole::new(&standpoint, &settings).unwrap();
     let drawing = preview(&site, &standpoint, &settings).unwrap();
     let wireframe = &drawing
@@ -596,4 +600,97 @@ fn plan_preview_and_sheet_write_every_format() {
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     assert!(!dir.0.join("bad.png").exists());
+}
+
+#[test]
+fn preview_hides_what_the_panorama_hides() {
+    // With hidden parts left out of both, a point of an edge is drawn in the preview
+    // exactly when it is drawn in the panorama (the same stretches, found on the sphere),
+    // except within a pixel of a change.
+    let site = demo();
+    let standpoint = Standpoint::from_degrees("s", 5.0, 9.4, 2.05, 170.0, 0.0, 0.0);
+    let settings = PreviewSettings {
+        hidden: Some(HiddenEdges::Off),
+        ..PreviewSettings::default()
+    };
+    let camera = Pinhole::new(&standpoint, &settings).unwrap();
+    let picture = preview(&site, &standpoint, &settings).unwrap();
+    let in_picture = &picture
+        .layers
+        .iter()
+        .find(|l| l.name == "wireframe")
+        .unwrap()
+        .lines;
+    let render = RenderSettings {
+        width: 4096,
+        height: 2048,
+        overlays: false,
+        hidden: Some(HiddenEdges::Off),
+        ..RenderSettings::default()
+    };
+    let panorama = draw(&site, &standpoint, &render).unwrap().drawing;
+    let mut in_panorama = pansite::plane::PolylineSet::new();
+    for layer in panorama
+        .layers
+        .iter()
+        .filter(|l| l.name.starts_with("wireframe"))
+    {
+        in_panorama.append(&mut layer.lines.clone());
+    }
+    let map = Equirect::from_size_px(4096.0, 2048.0);
+    let view = ViewFrame::new(&standpoint);
+    let (mut agree, mut total, mut hidden_seen) = (0, 0, 0);
+    for edge in &site.edges {
+        let SiteCurve::Segment { start, end } = edge.curve else {
+            continue;
+        };
+        // Edges a few pixels long (window reveals seen from afar) are all near other lines.
+        match (camera.project(&start), camera.project(&end)) {
+            (Some(a), Some(b)) if (b.x - a.x).hypot(b.y - a.y) > 20.0 => {}
+            _ => continue,
+        }
+        let drawn = |s: f64| {
+            let p = start + (end - start) * s;
+            let q = camera.project(&p)?;
+            if !(q.x > 2.0 && q.x < 1278.0 && q.y > 2.0 && q.y < 798.0) {
+                return None;
+            }
+            let (azimuth, elevation) = azimuth_elevation(&view.to_view(&p));
+            let at = map.to_image(azimuth, elevation);
+            if at.y < 20.0 || at.y > 2028.0 || at.x < 2.0 || at.x > 4094.0 {
+                return None;
+            }
+            Some((
+                distance_to_set(q, in_picture) < 0.01,
+                distance_to_set(at, &in_panorama) < 0.15,
+            ))
+        };
+        for k in 1..40 {
+            let s = k as f64 / 40.0;
+            let (Some(here), Some(before), Some(after)) =
+                (drawn(s), drawn(s - 0.0125), drawn(s + 0.0125))
+            else {
+                continue;
+            };
+            // Skip points near a change of visibility in either drawing.
+            if before != here || after != here {
+                continue;
+            }
+            total += 1;
+            if here.0 == here.1 {
+                agree += 1;
+            }
+            if !here.0 {
+                hidden_seen += 1;
+            }
+        }
+    }
+    assert!(
+        hidden_seen > 50,
+        "only {hidden_seen} hidden points: the view hides too little"
+    );
+    assert!(
+        agree as f64 >= 0.995 * total as f64,
+        "{agree} of {total} agree"
+    );
 }

@@ -11,12 +11,14 @@
 //! near plane; an elliptic arc is sampled until every chord is within the tolerance of
 //! the true image.
 
+use crate::drawing::{dashed, HIDDEN};
 use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
 use crate::error::{Error, Result};
 use crate::page::{clip_segment, Rect};
 use crate::plane::{ImagePoint, PolylineSet};
-use crate::scene::{Site, SiteCurve, Standpoint};
+use crate::scene::{HiddenEdges, Site, SiteCurve, Standpoint};
 use crate::sphere::ViewFrame;
+use crate::visibility::{Bvh, Depth, Occluders};
 use nalgebra::{Point3, Vector3};
 
 /// Distance in front of the eye (metres, along the view axis) where edges are cut: the
@@ -32,6 +34,8 @@ pub struct PreviewSettings {
     pub fov_deg: f64,
     pub line_weight_px: f64,
     pub tolerance_px: f64,
+    /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
+    pub hidden: Option<HiddenEdges>,
 }
 
 impl Default for PreviewSettings {
@@ -42,6 +46,7 @@ impl Default for PreviewSettings {
             fov_deg: 90.0,
             line_weight_px: 1.5,
             tolerance_px: 0.1,
+            hidden: None,
         }
     }
 }
@@ -184,17 +189,29 @@ impl Pinhole {
                 sweep,
             } => {
                 let at = |t: f64| self.view.to_view(&(centre + u * t.cos() + v * t.sin()));
-                // Start from pieces of at most 1/64 turn, then halve any piece whose image
-                // strays from its chord by more than the tolerance (at the middle and the
-                // quarter points, which catches the bulge of a conic's piece).
-                let pieces =
-                    ((sweep.abs() / (std::f64::consts::TAU / 64.0)).ceil() as usize).max(1);
-                for k in 0..pieces {
-                    let t0 = start + sweep * k as f64 / pieces as f64;
-                    let t1 = start + sweep * (k + 1) as f64 / pieces as f64;
-                    self.arc_piece(&at, t0, t1, tolerance, 0, out);
-                }
+                self.arc(&at, start, start + sweep, tolerance, out);
             }
+        }
+    }
+
+    /// Appends the image of the view-frame curve `at(t)` for `t` from `t0` to `t1`.
+    fn arc(
+        &self,
+        at: &impl Fn(f64) -> Vector3<f64>,
+        t0: f64,
+        t1: f64,
+        tolerance: f64,
+        out: &mut Vec<[ImagePoint; 2]>,
+    ) {
+        // Start from pieces of at most 1/64 turn, then halve any piece whose image strays
+        // from its chord by more than the tolerance (at the middle and the quarter points,
+        // which catches the bulge of a conic's piece).
+        let sweep = t1 - t0;
+        let pieces = ((sweep.abs() / (std::f64::consts::TAU / 64.0)).ceil() as usize).max(1);
+        for k in 0..pieces {
+            let a = t0 + sweep * k as f64 / pieces as f64;
+            let b = t0 + sweep * (k + 1) as f64 / pieces as f64;
+            self.arc_piece(at, a, b, tolerance, 0, out);
         }
     }
 
@@ -268,7 +285,8 @@ fn join(pieces: &[[ImagePoint; 2]]) -> PolylineSet {
 }
 
 /// The preview of `site` from `standpoint`: every edge (and the outlines of round items
-/// and meshes seen from this eye) as a see-through wireframe, and the horizon.
+/// and meshes seen from this eye), the parts hidden behind faces drawn faint and dashed or
+/// left out as the settings or the scene say, and the horizon.
 pub fn preview(
     site: &Site,
     standpoint: &Standpoint,
@@ -281,31 +299,99 @@ pub fn preview(
         )));
     }
     let camera = Pinhole::new(standpoint, settings)?;
-    let mut pieces = Vec::new();
-    let outlines = site.outline_edges_from(&camera.view.eye());
+    let (mut seen, mut hidden) = (Vec::new(), Vec::new());
+    let eye = camera.view.eye();
+    let outlines = site.outline_edges_from(&eye);
+    let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
+    let bvh = (hidden_edges != HiddenEdges::Solid && !site.faces.is_empty())
+        .then(|| Bvh::new(&site.faces));
+    let occluders = bvh.as_ref().map(|bvh| Occluders {
+        faces: &site.faces,
+        bvh,
+        view: &camera.view,
+        eye,
+    });
+    // The angle of a pixel at the picture's centre (smaller towards its edges).
+    let pixel = 1.0 / camera.focal_px;
+    let tolerance = settings.tolerance_px;
     for edge in site.edges.iter().chain(outlines.iter()) {
-        camera.curve(&edge.curve, settings.tolerance_px, &mut pieces);
+        let Some(occluders) = &occluders else {
+            camera.curve(&edge.curve, tolerance, &mut seen);
+            continue;
+        };
+        // The same seen and hidden stretches as the panorama's, found on the sphere
+        // curve, then drawn in the picture.
+        let Ok(curve) = camera.view.sphere_curve(&edge.curve) else {
+            continue;
+        };
+        match edge.curve {
+            SiteCurve::Segment { start, end } => {
+                let (a, b) = (camera.view.to_view(&start), camera.view.to_view(&end));
+                let depth = Depth::Segment { a, b };
+                for (t0, t1, is_seen) in occluders.spans(&curve, &depth, pixel, 1e-3 * pixel) {
+                    if t1 <= t0 {
+                        continue;
+                    }
+                    // Where the sight lines at t0 and t1 meet the segment.
+                    let (s0, s1) = (
+                        along(&a, &b, &curve.position(t0)),
+                        along(&a, &b, &curve.position(t1)),
+                    );
+                    let out = if is_seen { &mut seen } else { &mut hidden };
+                    camera.segment(a + (b - a) * s0, a + (b - a) * s1, out);
+                }
+            }
+            SiteCurve::Ellipse { .. } => {
+                // An ellipse's sphere curve is its own points relative to the eye.
+                for (t0, t1, is_seen) in occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel)
+                {
+                    if t1 > t0 {
+                        let out = if is_seen { &mut seen } else { &mut hidden };
+                        camera.arc(&|t| curve.position(t), t0, t1, tolerance, out);
+                    }
+                }
+            }
+        }
     }
     let mut horizon = PolylineSet::new();
     if let Some((a, b)) = camera.horizon() {
         horizon.push(&[a, b]);
     }
+    let width = settings.line_weight_px;
+    let mut layers = vec![Layer {
+        name: "horizon".to_owned(),
+        stroke: Stroke::black(0.5, 1.25),
+        lines: horizon,
+    }];
+    if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
+        // As in the panorama: lighter, thinner and dashed, under the seen edges.
+        layers.push(Layer {
+            name: HIDDEN.to_owned(),
+            stroke: Stroke::black(0.4, (0.75 * width).max(0.75)),
+            lines: dashed(&join(&hidden), 3.0 * width + 3.0, 2.0 * width + 2.0),
+        });
+    }
+    layers.push(Layer {
+        name: WIREFRAME.to_owned(),
+        stroke: Stroke::black(1.0, width),
+        lines: join(&seen),
+    });
     Ok(Drawing {
         width: settings.width,
         height: settings.height,
-        layers: vec![
-            Layer {
-                name: "horizon".to_owned(),
-                stroke: Stroke::black(0.5, 1.25),
-                lines: horizon,
-            },
-            Layer {
-                name: WIREFRAME.to_owned(),
-                stroke: Stroke::black(1.0, settings.line_weight_px),
-                lines: join(&pieces),
-            },
-        ],
+        layers,
     })
+}
+
+/// The parameter along the segment from `a` to `b` (view frame, relative to the eye)
+/// where the sight line along `d` meets it: `a + s (b - a) = k d` crossed with `d`.
+fn along(a: &Vector3<f64>, b: &Vector3<f64>, d: &Vector3<f64>) -> f64 {
+    let w = (b - a).cross(d);
+    let denominator = w.norm_squared();
+    if denominator <= f64::MIN_POSITIVE {
+        return 0.0;
+    }
+    (-(a.cross(d)).dot(&w) / denominator).clamp(0.0, 1.0)
 }
 
 #[cfg(test)]

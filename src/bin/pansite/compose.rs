@@ -141,6 +141,9 @@ pub struct PreviewArgs {
     /// Image size, WIDTHxHEIGHT pixels.
     #[arg(long, value_name = "WxH", default_value = "1280x800", value_parser = parse_size)]
     pub size: (u32, u32),
+    /// How edges hidden behind faces are drawn [default: the scene's choice, or faint].
+    #[arg(long, value_enum, value_name = "HOW")]
+    pub hidden: Option<HiddenArg>,
 }
 
 #[derive(Debug, Args)]
@@ -225,11 +228,7 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
             height: args.thumb.1,
             line_weight_px: 1.0,
             overlays: !args.bare,
-            hidden: args.hidden.map(|h| match h {
-                HiddenArg::Solid => HiddenEdges::Solid,
-                HiddenArg::Faint => HiddenEdges::Faint,
-                HiddenArg::Off => HiddenEdges::Off,
-            }),
+            hidden: args.hidden.map(hidden_edges),
             dpi: args.out.dpi,
             ..RenderSettings::default()
         },
@@ -300,6 +299,7 @@ pub fn preview_command(args: &PreviewArgs) -> anyhow::Result<()> {
         width: args.size.0,
         height: args.size.1,
         fov_deg: args.fov,
+        hidden: args.hidden.map(hidden_edges),
         ..PreviewSettings::default()
     };
     let drawing = preview(&site, &standpoint, &settings)?;
@@ -465,6 +465,14 @@ pub fn watch(args: &WatchArgs) -> anyhow::Result<()> {
                 break;
             }
         }
+    }
+}
+
+fn hidden_edges(how: HiddenArg) -> HiddenEdges {
+    match how {
+        HiddenArg::Solid => HiddenEdges::Solid,
+        HiddenArg::Faint => HiddenEdges::Faint,
+        HiddenArg::Off => HiddenEdges::Off,
     }
 }
 
