@@ -592,6 +592,40 @@ fn plan_preview_and_sheet_write_every_format() {
         };
         assert!(bytes.starts_with(magic), "{file}");
     }
+    // A plan on A4 (landscape): the page is the paper, and its scale bar still reads true.
+    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .args(["plan", scene, "--page", "a4", "-o", "a4.svg"])
+        .current_dir(&dir.0)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let svg = std::fs::read_to_string(dir.0.join("a4.svg")).unwrap();
+    let document = roxmltree::Document::parse(&svg).unwrap();
+    let root = document.root_element();
+    assert_eq!(root.attribute("width"), Some("297mm"));
+    assert_eq!(root.attribute("height"), Some("210mm"));
+    let settings = PlanSettings::for_paper(
+        &pansite::page::Paper::parse("a4").unwrap().landscape(),
+        10.0,
+        150.0,
+    );
+    let plan = plan_map(&demo(), &demo().standpoints, &settings).unwrap();
+    let bar = &svg_layer(&svg, "scale bar")[0];
+    assert_near(
+        bar[0].0,
+        10.0 + 0.04 * settings.width as f64 * 25.4 / 150.0,
+        0.002,
+    );
+    assert_near(
+        bar[1].0 - bar[0].0,
+        plan.bar_metres * plan.px_per_metre * 25.4 / 150.0,
+        0.002,
+    );
+
     // A field of view a flat picture cannot hold is refused as bad input.
     let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
         .args(["preview", scene, "--fov", "180", "-o", "bad.png"])

@@ -9,7 +9,7 @@
 
 use crate::drawing::{dashed, letter, Align, Drawing, Layer, Stroke};
 use crate::error::{Error, Result};
-use crate::page::Sheet;
+use crate::page::{Paper, Sheet};
 use crate::plane::{ImagePoint, PolylineSet};
 use crate::scene::{bounds, Site, SiteCurve, Standpoint};
 
@@ -23,6 +23,20 @@ pub struct PlanSettings {
     pub line_weight_px: f64,
     /// Largest distance between a true arc and its drawn chords, pixels.
     pub tolerance_px: f64,
+}
+
+impl PlanSettings {
+    /// The size of the printable area of `paper` less `margin_mm` on every side, at `dpi`.
+    pub fn for_paper(paper: &Paper, margin_mm: f64, dpi: f64) -> PlanSettings {
+        let px = dpi / 25.4;
+        let side = |mm: f64| ((mm - 2.0 * margin_mm) * px).max(0.0).floor() as u32;
+        PlanSettings {
+            width: side(paper.width_mm),
+            height: side(paper.height_mm),
+            dpi,
+            ..PlanSettings::default()
+        }
+    }
 }
 
 impl Default for PlanSettings {
@@ -62,6 +76,43 @@ impl Plan {
     /// The plan as a sheet at its resolution.
     pub fn sheet(&self) -> Sheet {
         Sheet::full_bleed(self.drawing.clone(), self.dpi)
+    }
+
+    /// The plan on a sheet of `paper`, `margin_mm` in from its top-left corner (draw it at
+    /// the size of the printable area: [`PlanSettings::for_paper`]).
+    pub fn on_paper(&self, paper: &Paper, margin_mm: f64) -> Sheet {
+        let mm_per_px = 25.4 / self.dpi;
+        let shift = margin_mm / mm_per_px;
+        let layers = self
+            .drawing
+            .layers
+            .iter()
+            .map(|layer| {
+                let mut lines = PolylineSet::new();
+                for line in layer.lines.iter() {
+                    let moved: Vec<ImagePoint> = line
+                        .iter()
+                        .map(|p| ImagePoint::new(p.x + shift, p.y + shift))
+                        .collect();
+                    lines.push(&moved);
+                }
+                Layer {
+                    name: layer.name.clone(),
+                    stroke: layer.stroke,
+                    lines,
+                }
+            })
+            .collect();
+        Sheet {
+            drawing: Drawing {
+                width: (paper.width_mm / mm_per_px).ceil() as u32,
+                height: (paper.height_mm / mm_per_px).ceil() as u32,
+                layers,
+            },
+            width_mm: paper.width_mm,
+            height_mm: paper.height_mm,
+            mm_per_px,
+        }
     }
 
     /// The printed scale's denominator: 1 : N on paper at the plan's resolution.

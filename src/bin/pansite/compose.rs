@@ -11,7 +11,7 @@ use pansite::compose::{
     ContactSettings, PlanSettings, PreviewSettings,
 };
 use pansite::output::{write_atomically, PngOptions};
-use pansite::page::Sheet;
+use pansite::page::{Paper, Sheet};
 use pansite::render::{draw_sheets, RenderSettings};
 use pansite::scene::{load_scene, HiddenEdges, Site, Standpoint};
 use pansite::Error;
@@ -117,6 +117,15 @@ pub struct PlanArgs {
     /// panorama's).
     #[arg(long, value_name = "WxH", default_value = "1600x1200", value_parser = parse_size)]
     pub size: (u32, u32),
+    /// Lay the plan out on paper (a4, a3, letter, 420x297mm ...), filling the printable area.
+    #[arg(long, value_name = "PAPER", conflicts_with = "beside")]
+    pub page: Option<String>,
+    /// Turn the paper upright (the default is landscape).
+    #[arg(long, requires = "page")]
+    pub portrait: bool,
+    /// Margin round the sheet, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
+    pub margin: f64,
     /// Print the panorama of the standpoint (-s) with the plan beside it on one sheet.
     #[arg(long)]
     pub beside: bool,
@@ -276,6 +285,22 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         let plan = plan_map(&site, std::slice::from_ref(&standpoint), &settings)?;
         let gap_mm = 10.0;
         beside(&sheets[0], &plan.sheet(), gap_mm)?
+    } else if let Some(name) = &args.page {
+        let paper = Paper::parse(name).map_err(Error::Setting)?;
+        let paper = if args.portrait {
+            paper.portrait()
+        } else {
+            paper.landscape()
+        };
+        if !(args.margin >= 0.0 && 2.0 * args.margin < paper.width_mm.min(paper.height_mm)) {
+            return Err(Error::Setting(format!(
+                "a margin of {} mm does not leave room on the paper",
+                args.margin
+            ))
+            .into());
+        }
+        let settings = PlanSettings::for_paper(&paper, args.margin, args.out.dpi);
+        plan_map(&site, &site.standpoints, &settings)?.on_paper(&paper, args.margin)
     } else {
         plan_map(&site, &site.standpoints, &settings)?.sheet()
     };
