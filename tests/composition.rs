@@ -415,12 +415,20 @@ impl Drop for Child {
     }
 }
 
+/// Saves as careful editors do (a temporary file renamed over the scene), so the watcher
+/// never reads a half-written file.
+fn save(path: &Path, text: impl AsRef<[u8]>) {
+    let temporary = path.with_extension("saving");
+    std::fs::write(&temporary, text).unwrap();
+    std::fs::rename(&temporary, path).unwrap();
+}
+
 #[test]
 fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
     let dir = scratch("watch");
     let scene = dir.0.join("scene.ron");
     let starter = pansite::scene::STARTER_SCENE;
-    std::fs::write(&scene, starter).unwrap();
+    save(&scene, starter);
     let output = dir.0.join("out.png");
     let mut child = Child(
         Command::new(env!("CARGO_BIN_EXE_pansite"))
@@ -456,14 +464,14 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
     let first_png = std::fs::read(&output).unwrap();
 
     // Changed: another heading, so another picture.
-    std::fs::write(&scene, starter.replace("heading: 30)", "heading: 120)")).unwrap();
+    save(&scene, starter.replace("heading: 30)", "heading: 120)"));
     let changed = lines.wait_for("scene.ron changed", timeout);
     assert!(changed.contains("rendered in"), "{changed}");
     let second_png = std::fs::read(&output).unwrap();
     assert_ne!(first_png, second_png);
 
     // Broken: the error is shown (with its line) and the output is left alone.
-    std::fs::write(&scene, starter.replace("width: 8,", "width: eight,")).unwrap();
+    save(&scene, starter.replace("width: 8,", "width: eight,"));
     let error = lines.wait_for("error", timeout);
     assert!(error.contains("scene.ron"), "{error}");
     lines.wait_for("the last good output is kept", timeout);
@@ -481,7 +489,7 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
         "        Point(label: \"lamp\", at: (0, -3, 0)),\n        Line(label: \"fence\", from: (-20, 6, 0), to: (20, 6, 0)),",
     );
     assert_ne!(mended, starter);
-    std::fs::write(&scene, mended).unwrap();
+    save(&scene, mended);
     let again = lines.wait_for("rendered in", timeout);
     assert!(again.contains("items") && again.contains("->"), "{again}");
     assert_ne!(std::fs::read(&output).unwrap(), second_png);
