@@ -606,4 +606,52 @@ fn main() {
     if let Some(peak) = child_peak("floor") {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));
     }
+    composition(floor_time);
+}
+
+/// The composition issue's targets: a contact sheet of 24 standpoints of the demo at
+/// thumbnail size in under 2 s, and a watch-mode re-render (read the scene, draw, encode
+/// a PNG) at screen size in under 200 ms.
+fn composition(floor_time: Duration) {
+    use pansite::compose::{contact_sheet, sweep_headings, ContactSettings};
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
+    let site = pansite::scene::load_scene(&path).unwrap();
+    let standpoints = sweep_headings(&site.standpoints[0], 0.0, 345.0, 15.0).unwrap();
+    let settings = ContactSettings::default();
+    let sheet = median(
+        (0..RUNS)
+            .map(|_| {
+                let started = Instant::now();
+                let sheet = contact_sheet(&site, &standpoints, &settings, &|_, _| {}).unwrap();
+                let mut png = Vec::new();
+                pansite::output::rasterize_grey_png(&sheet.drawing, &mut png).unwrap();
+                started.elapsed()
+            })
+            .collect(),
+    );
+    let watch = median(
+        (0..RUNS)
+            .map(|_| {
+                let started = Instant::now();
+                let site = pansite::scene::load_scene(&path).unwrap();
+                let screen = RenderSettings {
+                    width: 1920,
+                    height: 960,
+                    ..RenderSettings::default()
+                };
+                let mut png = Vec::new();
+                render_png_to(&site, &site.standpoints[0], &screen, &mut png).unwrap();
+                started.elapsed()
+            })
+            .collect(),
+    );
+    println!();
+    println!(
+        "contact sheet of 24 standpoints of the demo at 480x240, as PNG: {:.0} ms = {:.1} F (target 2 s); \
+         watch re-render of the demo at 1920x960: {:.0} ms = {:.1} F (target 200 ms)",
+        ms(sheet),
+        sheet.as_secs_f64() / floor_time.as_secs_f64(),
+        ms(watch),
+        watch.as_secs_f64() / floor_time.as_secs_f64(),
+    );
 }

@@ -29,6 +29,16 @@ pub enum Command {
     /// List the azimuth, elevation, distance and image position of every labelled point and
     /// item corner, to plot by hand.
     Angles(super::aids::AnglesArgs),
+    /// Draw many standpoints (the scene's, or a sweep of headings, a path or a grid) as
+    /// labelled thumbnails on one sheet.
+    Sheet(Box<super::compose::SheetArgs>),
+    /// Draw the site plan from above with each standpoint, its heading and seam, a scale
+    /// bar and a north arrow.
+    Plan(Box<super::compose::PlanArgs>),
+    /// Draw an ordinary perspective view (straight lines straight) from a standpoint.
+    Preview(Box<super::compose::PreviewArgs>),
+    /// Render, then render again whenever the scene or style file is saved.
+    Watch(Box<super::compose::WatchArgs>),
 }
 
 #[derive(Debug, Args)]
@@ -191,6 +201,16 @@ pub enum HiddenArg {
     Faint,
     /// Left out.
     Off,
+}
+
+impl From<HiddenArg> for pansite::scene::HiddenEdges {
+    fn from(how: HiddenArg) -> Self {
+        match how {
+            HiddenArg::Solid => Self::Solid,
+            HiddenArg::Faint => Self::Faint,
+            HiddenArg::Off => Self::Off,
+        }
+    }
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]

@@ -3,10 +3,11 @@
 mod aids;
 mod args;
 mod check;
+mod compose;
 mod parse;
 
 use anyhow::Context;
-use args::{Cli, Command, FormatArg, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
+use args::{Cli, Command, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::output::{write_atomically, write_pdf, write_png, write_svg, Panorama, PngOptions};
 use pansite::page::{PageSettings, Paper, Sheet, Tiling};
@@ -37,6 +38,10 @@ fn main() -> ExitCode {
         Command::Check(args) => check::check(&args.scene),
         Command::New(args) => new_scene(&args),
         Command::Angles(args) => angles(&args),
+        Command::Sheet(args) => compose::sheet(&args),
+        Command::Plan(args) => compose::plan(&args),
+        Command::Preview(args) => compose::preview_command(&args),
+        Command::Watch(args) => compose::watch(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -62,11 +67,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         tolerance_px: args.tolerance,
         line_weight_px: args.line_weight,
         overlays: !args.bare,
-        hidden: args.hidden.map(|h| match h {
-            HiddenArg::Solid => HiddenEdges::Solid,
-            HiddenArg::Faint => HiddenEdges::Faint,
-            HiddenArg::Off => HiddenEdges::Off,
-        }),
+        hidden: args.hidden.map(HiddenEdges::from),
         dpi: args.dpi,
         base_styles: None,
         styles: args.style.as_deref().map(load_style_sheet).transpose()?,
