@@ -2,7 +2,7 @@
 //! plan with the standpoints marked), `preview` (an ordinary perspective view) and
 //! `watch` (render again whenever the scene or style file is saved).
 
-use super::args::{FormatArg, HiddenArg, RenderArgs};
+use super::render_args::{FormatArg, HiddenArg, RenderArgs};
 use super::parse::{parse_finite, parse_pair, parse_size};
 use super::{choose_view, output_format, read_site, write_sheets, ViewChoice};
 use anyhow::Context;

@@ -5,6 +5,7 @@ mod args;
 mod check;
 mod compose;
 mod parse;
+mod render_args;
 
 use anyhow::Context;
 use args::{Cli, Command, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg};
