@@ -56,6 +56,7 @@
 
 #![forbid(unsafe_code)]
 
+pub mod budget;
 pub mod drawing;
 pub mod error;
 pub mod output;

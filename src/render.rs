@@ -1,12 +1,15 @@
 //! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
 //! drawing -> canvas -> file, with the time each stage took.
 
+use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
     dashed, grid_and_horizon, wireframe, wireframe_layer_name, Drawing, Layer, SkippedEdge, Stroke,
     Wireframe, GRID_STEP_DEG, HIDDEN,
 };
 use crate::error::{Error, Result};
-use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
+use crate::output::{
+    rasterize, rasterize_grey_png_within, write_atomically, GreyCanvas, MAX_PIXELS,
+};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, Site, Standpoint};
 use crate::sphere::ViewFrame;
@@ -28,6 +31,8 @@ pub struct RenderSettings {
     pub overlays: bool,
     /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
     pub hidden: Option<HiddenEdges>,
+    /// The longest a render may take (see [`crate::budget`]); `None` for no limit.
+    pub time_limit: Option<Duration>,
 }
 
 impl Default for RenderSettings {
@@ -39,6 +44,7 @@ impl Default for RenderSettings {
             line_weight_px: 1.5,
             overlays: true,
             hidden: None,
+            time_limit: Some(DEFAULT_TIME_LIMIT),
         }
     }
 }
@@ -107,11 +113,19 @@ pub const MAX_SIDE_PX: u64 = 1 << 17;
 /// Stage times, for `--timings`.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Timings {
+    /// Everything [`draw`] does: the hierarchy of faces, visibility and flattening.
     pub flatten: Duration,
+    /// Of which building the hierarchy of faces for hidden lines (zero without); the
+    /// visibility of each edge is found in the same pass that flattens it, so the two are
+    /// timed together.
+    pub hierarchy: Duration,
     /// Rasterising alone (set by [`raster`]).
     pub raster: Option<Duration>,
     /// Rasterising and encoding, which overlap (set by [`render_png_to`]).
     pub raster_and_encode: Option<Duration>,
+    /// Of which the calling thread spent encoding (set by [`render_png_to`]); the other
+    /// cores rasterise later bands meanwhile.
+    pub encode: Option<Duration>,
 }
 
 /// A finished drawing and what happened on the way.
@@ -134,6 +148,21 @@ const HORIZON_STROKE: Stroke = Stroke {
 
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
+    draw_within(
+        site,
+        standpoint,
+        settings,
+        &Budget::new(settings.time_limit),
+    )
+}
+
+/// [`draw`] within a budget of time and drawn vertices.
+pub fn draw_within(
+    site: &Site,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    budget: &Budget,
+) -> Result<Render> {
     settings.validate()?;
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
@@ -158,7 +187,8 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         layers: site_layers,
         hidden,
         skipped,
-    } = wireframe(site, &view, &flattener, hidden_edges);
+        hierarchy,
+    } = wireframe(site, &view, &flattener, hidden_edges, budget)?;
     if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
         // Under the seen edges, lighter, thinner and dashed.
         let width = settings.line_weight_px;
@@ -192,6 +222,7 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     };
     let timings = Timings {
         flatten: started.elapsed(),
+        hierarchy,
         ..Timings::default()
     };
     Ok(Render {
@@ -233,9 +264,11 @@ pub fn render_png_to(
     settings: &RenderSettings,
     out: impl Write,
 ) -> Result<Render> {
-    let mut render = draw(site, standpoint, settings)?;
+    let budget = Budget::new(settings.time_limit);
+    let mut render = draw_within(site, standpoint, settings, &budget)?;
     let started = Instant::now();
-    rasterize_grey_png(&render.drawing, out)?;
+    let encode = rasterize_grey_png_within(&render.drawing, out, &budget)?;
     render.timings.raster_and_encode = Some(started.elapsed());
+    render.timings.encode = Some(encode);
     Ok(render)
 }

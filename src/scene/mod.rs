@@ -26,7 +26,10 @@ pub use expand::{MAX_ITEMS, SEATED_EYE_HEIGHT};
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
-pub use load::{load_obj, load_scene, parse_scene};
+pub use load::{
+    load_obj, load_obj_timed, load_scene, load_scene_timed, parse_scene, parse_scene_timed,
+    LoadTimings,
+};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};

@@ -8,7 +8,7 @@ use std::path::PathBuf;
     name = "pansite",
     version,
     about = "Exact equirectangular wireframe underlays for hand-drawn 360-degree perspectives",
-    after_help = "Exit codes: 0 success, 1 failure, 2 bad usage or bad input."
+    after_help = "Exit codes: 0 success, 1 failure, 2 bad usage or bad input (too large or too slow included), 130 interrupted."
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -112,6 +112,22 @@ pub struct RenderArgs {
     /// Print the time each stage took on standard error.
     #[arg(long)]
     pub timings: bool,
+
+    /// Stop a render that would take longer than this many seconds (exit code 2).
+    #[arg(long, value_name = "SECONDS", default_value_t = pansite::budget::DEFAULT_TIME_LIMIT.as_secs_f64(), value_parser = parse_time_limit)]
+    pub time_limit: f64,
+}
+
+fn parse_time_limit(text: &str) -> Result<f64, String> {
+    let value = parse_finite(text)?;
+    // A week is past any render; the bound keeps the duration representable.
+    if value > 0.0 && value <= 7.0 * 86400.0 {
+        Ok(value)
+    } else {
+        Err(format!(
+            "expected more than 0 and at most 604800 seconds, found {value}"
+        ))
+    }
 }
 
 /// How edges hidden behind faces are drawn.

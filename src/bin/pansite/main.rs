@@ -8,19 +8,28 @@ use args::{Cli, Command, HiddenArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::Parser;
 use pansite::render::{render_png, render_png_to, RenderSettings};
 use pansite::scene::{
-    load_obj, load_scene, parse_scene, solids_enclosing, HiddenEdges, MeshPlacement, Site,
-    Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
+    load_obj_timed, load_scene_timed, parse_scene_timed, solids_enclosing, HiddenEdges,
+    LoadTimings, MeshPlacement, Site, Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use std::time::Instant;
+use std::time::Duration;
 
 /// How many skipped edges are named one by one before the rest are counted.
 const MAX_NAMED_SKIPS: usize = 20;
 
+/// The exit code after an interrupt: 128 + SIGINT, as shells report it.
+const INTERRUPTED: i32 = 130;
+
 fn main() -> ExitCode {
+    // Ctrl-C (or a termination request) mid-render must leave no temporary file behind.
+    let _ = ctrlc::set_handler(|| {
+        pansite::output::interrupt::abandon_temporaries();
+        eprintln!("pansite: interrupted; no file was written");
+        std::process::exit(INTERRUPTED);
+    });
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(error) => {
@@ -46,9 +55,7 @@ fn main() -> ExitCode {
 }
 
 fn render(args: &RenderArgs) -> anyhow::Result<()> {
-    let started = Instant::now();
-    let site = read_site(args)?;
-    let load_time = started.elapsed();
+    let (site, load) = read_site(args)?;
     let standpoint = choose_standpoint(&site, args)?;
     let settings = RenderSettings {
         width: args.size.0,
@@ -61,6 +68,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
             HiddenArg::Faint => HiddenEdges::Faint,
             HiddenArg::Off => HiddenEdges::Off,
         }),
+        time_limit: Some(Duration::from_secs_f64(args.time_limit)),
     };
     settings.validate()?;
     let output = args
@@ -123,17 +131,32 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         );
     }
     if args.timings {
-        let t = &render.timings;
-        let ms = |d: std::time::Duration| d.as_secs_f64() * 1e3;
-        let both = t.raster_and_encode.unwrap_or_default();
-        eprintln!(
-            "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster + encode (overlapped) {:.1} ms",
-            ms(load_time),
-            ms(t.flatten),
-            ms(both)
-        );
+        print_timings(&load, &render.timings);
     }
     Ok(())
+}
+
+/// The stages' times on standard error. Visibility is found edge by edge in the pass that
+/// flattens, and the encoder compresses early bands while the other cores rasterise later
+/// ones, so those pairs are given together with the part that can be told apart.
+fn print_timings(load: &LoadTimings, t: &pansite::render::Timings) {
+    let ms = |d: Duration| d.as_secs_f64() * 1e3;
+    let both = t.raster_and_encode.unwrap_or_default();
+    let encode = t.encode.unwrap_or_default();
+    eprintln!(
+        "pansite: timings: load {:.1} ms (read and parse {:.1}, expand {:.1}); \
+         visibility + flatten {:.1} ms (of which the hierarchy of faces {:.1}; edges are seen \
+         and flattened in one pass); raster + encode {:.1} ms overlapped (encode {:.1} ms on \
+         the writing thread, raster {:.1} ms besides)",
+        ms(load.parse + load.expand),
+        ms(load.parse),
+        ms(load.expand),
+        ms(t.flatten),
+        ms(t.hierarchy),
+        ms(both),
+        ms(encode),
+        ms(both.saturating_sub(encode)),
+    );
 }
 
 /// Writes the starter scene, refusing to replace a file that is already there.
@@ -175,7 +198,7 @@ fn new_scene(args: &NewArgs) -> anyhow::Result<()> {
 }
 
 /// The scene from a RON file, an OBJ model (by its extension) or standard input.
-fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
+fn read_site(args: &RenderArgs) -> pansite::Result<(Site, LoadTimings)> {
     let path = args.scene.as_path();
     if path == Path::new("-") {
         let mut bytes = Vec::new();
@@ -185,7 +208,7 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
                 path: PathBuf::from("<stdin>"),
                 source,
             })?;
-        return parse_scene(&bytes, Path::new("<stdin>"), "stdin");
+        return parse_scene_timed(&bytes, Path::new("<stdin>"), "stdin");
     }
     let is_obj = path
         .extension()
@@ -206,7 +229,7 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
             crease_deg: args.crease,
             ..MeshPlacement::default()
         };
-        let (site, stats) = load_obj(path, &placement)?;
+        let (site, stats, timings) = load_obj_timed(path, &placement)?;
         if stats.dropped_faces > 0 && !args.quiet {
             eprintln!(
                 "pansite: warning: {}: left out {} faces of no area (repeated or collinear vertices)",
@@ -214,9 +237,9 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
                 stats.dropped_faces
             );
         }
-        return Ok(site);
+        return Ok((site, timings));
     }
-    load_scene(path)
+    load_scene_timed(path)
 }
 
 /// The scene's standpoint (named, or the first), or one made from `--at`, with any
