@@ -190,6 +190,7 @@ corpus! {
     footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
     road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
+    arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);
     windows_that_do_not_fit: "windows-do-not-fit.ron" => refused("windows-do-not-fit.ron:4:9:", &["12 openings 1.2 wide do not fit"]);
     // Models named in a scene.
     model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);

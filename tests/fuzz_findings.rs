@@ -99,3 +99,27 @@ fn extreme_numbers_in_every_item_draw_or_are_refused() {
         let _ = render_png_to(&site, &site.standpoints[0], &settings, &mut png);
     }
 }
+
+/// The pipeline target's timeout: an arcade on piers of 2e-305 m, thinner than the
+/// arithmetic can tell from nothing, so its openings shared corners and triangulating its
+/// wall took hours for 4,000 arches (11 s for 255 under the fuzzer's instrumentation).
+#[test]
+fn an_arcade_on_piers_too_thin_to_exist_is_refused_at_once() {
+    let text = refusal(
+        "Scene(items: [Arcade(at: Centre(4.778309726736751e-299, 0), count: 4000, span: 3.7, \
+         springing: 33, pier: 2.2565935439425233e-305, thickness: 5.43222665692e-312)])",
+    );
+    assert!(
+        text.contains("at least a billionth of the arcade's length"),
+        "{text}"
+    );
+    // Thin but real piers still build, quickly.
+    let started = Instant::now();
+    parse_scene(
+        b"Scene(items: [Arcade(at: Centre(0, 0), count: 4000, span: 3.7, springing: 33, pier: 1e-4, thickness: 0.5)])",
+        Path::new("finding.ron"),
+        "finding",
+    )
+    .unwrap();
+    assert!(started.elapsed() < Duration::from_secs(5));
+}
