@@ -118,8 +118,10 @@ fn too_slow(
     let estimate = estimate_s.map_or(String::new(), |e| {
         format!(", so the run would take about {}", duration_words(e))
     });
-    let progress = if done_percent > 0.0 {
+    let progress = if done_percent >= 1.0 {
         format!("{done_percent:.0}% of the way")
+    } else if done_percent > 0.0 {
+        format!("{done_percent:.2}% of the way")
     } else {
         "at its start".to_owned()
     };
