@@ -123,3 +123,23 @@ fn an_arcade_on_piers_too_thin_to_exist_is_refused_at_once() {
     .unwrap();
     assert!(started.elapsed() < Duration::from_secs(5));
 }
+
+/// The pipeline target's crash: the grid drawn 32x16 for a view pitched 110 degrees found
+/// an infinite error estimate near a pole, and counting the parts to cut it into
+/// overflowed (a panic where overflow is checked, as in tests).
+#[test]
+fn a_grid_near_a_pole_with_an_infinite_error_estimate_draws() {
+    let scene = "Scene(standpoints: [(name: \"s\", x: 51, y: 46, eye_height: 1182.2, \
+                 heading: 4.600556940150025e-91, pitch: 110, roll: 0)], \
+                 items: [Repeat(count: 138, step: (-56, 32, 0), turn: 230.4, items: [])])";
+    let site = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding").unwrap();
+    let settings = RenderSettings {
+        width: 32,
+        height: 16,
+        hidden: Some(pansite::scene::HiddenEdges::Solid),
+        ..RenderSettings::default()
+    };
+    let mut png = Vec::new();
+    render_png_to(&site, &site.standpoints[0], &settings, &mut png).unwrap();
+    assert!(png.starts_with(b"\x89PNG"));
+}
