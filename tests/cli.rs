@@ -217,7 +217,7 @@ fn overrides_and_timings() {
         ],
     );
     let text = stderr(&out);
-    for stage in ["load", "flatten", "raster", "encode"] {
+    for stage in ["load", "expand", "visibility", "flatten", "raster", "encode"] {
         assert!(text.contains(stage), "{text}");
     }
 }
