@@ -26,6 +26,8 @@
 //!   and as RGBA PNG (the pages issue's targets: time and memory beside the floor, grey no
 //!   dearer than colour).
 //!
+//! Every case prints its time as a multiple of F from the same run.
+//!
 //! Peak memory is measured by running each case once more, as the command does it (load,
 //! then draw, rasterise and encode in bands), in a child process, and reading its
 //! high-water mark (`VmHWM`) from `/proc/self/status`. "image" in that column is the size
@@ -498,13 +500,14 @@ fn main() {
     let (_, _, stats, outlines) = imports[0];
     println!();
     println!(
-        "OBJ of {} triangles ({:.0} MB of text): parse {:.0} ms, edges {:.0} ms, total {:.2} s (target 2 s); \
+        "OBJ of {} triangles ({:.0} MB of text): parse {:.0} ms, edges {:.0} ms, total {:.2} s = {:.1} F (target 2 s); \
          peak memory {} (target 1 GB)",
         stats.triangles,
         megabytes(mesh.len() as u64),
         ms(pick(|r| r.0)),
         ms(pick(|r| r.1)),
         (pick(|r| r.0) + pick(|r| r.1)).as_secs_f64(),
+        (pick(|r| r.0) + pick(|r| r.1)).as_secs_f64() / floor_time.as_secs_f64(),
         child_peak("mesh").map_or("n/a".to_owned(), |p| format!("{:.0} MB", megabytes(p)))
     );
     println!(

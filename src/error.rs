@@ -30,9 +30,11 @@ pub enum Error {
 
     /// A model named in a scene could not be read.
     // The cause follows in the chain the command prints (`{:#}`), so it is not repeated here.
-    #[error("{}: in the model \"{item}\"", scene.display())]
+    #[error("{}:{line}:{column}: in the model \"{item}\"", scene.display())]
     InModel {
         scene: PathBuf,
+        line: usize,
+        column: usize,
         item: String,
         #[source]
         source: Box<Error>,
@@ -56,6 +58,26 @@ pub enum Error {
         reason: String,
     },
 
+    /// More of something than one run may hold (see [`crate::budget`]).
+    #[error("{what}: {found} is more than the limit of {limit}; {advice}")]
+    TooLarge {
+        what: &'static str,
+        found: u64,
+        limit: u64,
+        advice: &'static str,
+    },
+
+    /// The run would outlast its time limit (see [`crate::budget`]).
+    #[error("{}", too_slow(stage, *elapsed_s, *done_percent, *estimate_s, *limit_s))]
+    TooSlow {
+        stage: &'static str,
+        elapsed_s: f64,
+        done_percent: f64,
+        /// The whole run's time as its progress so far suggests.
+        estimate_s: Option<f64>,
+        limit_s: f64,
+    },
+
     #[error("PNG encoding failed")]
     Png(#[from] png::EncodingError),
 
@@ -74,7 +96,9 @@ impl Error {
             | Error::UnknownStandpoint { .. }
             | Error::NoStandpoint
             | Error::Setting(_)
-            | Error::ImageSize { .. } => true,
+            | Error::ImageSize { .. }
+            | Error::TooLarge { .. }
+            | Error::TooSlow { .. } => true,
             Error::Read { source, .. } => matches!(
                 source.kind(),
                 std::io::ErrorKind::NotFound
@@ -86,6 +110,32 @@ impl Error {
             Error::Write { .. } | Error::Png(_) | Error::Output(_) => false,
         }
     }
+}
+
+fn too_slow(
+    stage: &str,
+    elapsed_s: f64,
+    done_percent: f64,
+    estimate_s: Option<f64>,
+    limit_s: f64,
+) -> String {
+    use crate::budget::duration_words;
+    let estimate = estimate_s.map_or(String::new(), |e| {
+        format!(", so the run would take about {}", duration_words(e))
+    });
+    let progress = if done_percent >= 1.0 {
+        format!("{done_percent:.0}% of the way")
+    } else if done_percent > 0.0 {
+        format!("{done_percent:.2}% of the way")
+    } else {
+        "at its start".to_owned()
+    };
+    format!(
+        "stopped in the {stage} stage after {}, {progress}{estimate}; the time limit is {} \
+         (draw a smaller --size, use --hidden solid, simplify the scene, or raise --time-limit)",
+        duration_words(elapsed_s),
+        duration_words(limit_s)
+    )
 }
 
 pub type Result<T, E = Error> = std::result::Result<T, E>;

@@ -63,6 +63,7 @@
 #![forbid(unsafe_code)]
 
 pub mod aids;
+pub mod budget;
 pub mod compose;
 pub mod drawing;
 pub mod error;

@@ -2,12 +2,15 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::aids::{self, AidSettings};
+use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
     apply_styles, page_style, wireframe, wireframe_layer_name, Distance, Drawing, Layer,
     SkippedEdge, Stroke, Wireframe, HIDDEN,
 };
 use crate::error::{Error, Result};
-use crate::output::{rasterize, rasterize_grey_png, write_atomically, GreyCanvas, MAX_PIXELS};
+use crate::output::{
+    rasterize, rasterize_grey_png_within, write_atomically, GreyCanvas, MAX_PIXELS,
+};
 use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
@@ -40,6 +43,8 @@ pub struct RenderSettings {
     pub weight_by_distance: bool,
     /// The drawing aids drawn with the overlays (see [`crate::aids`]).
     pub aids: AidSettings,
+    /// The longest a render may take (see [`crate::budget`]); `None` for no limit.
+    pub time_limit: Option<Duration>,
 }
 
 impl Default for RenderSettings {
@@ -56,6 +61,7 @@ impl Default for RenderSettings {
             styles: None,
             weight_by_distance: false,
             aids: AidSettings::default(),
+            time_limit: Some(DEFAULT_TIME_LIMIT),
         }
     }
 }
@@ -124,11 +130,19 @@ pub const MAX_SIDE_PX: u64 = 1 << 17;
 /// Stage times, for `--timings`.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Timings {
+    /// Everything [`draw`] does: the hierarchy of faces, visibility and flattening.
     pub flatten: Duration,
+    /// Of which building the hierarchy of faces for hidden lines (zero without); the
+    /// visibility of each edge is found in the same pass that flattens it, so the two are
+    /// timed together.
+    pub hierarchy: Duration,
     /// Rasterising alone (set by [`raster`]).
     pub raster: Option<Duration>,
     /// Rasterising and encoding, which overlap (set by [`render_png_to`]).
     pub raster_and_encode: Option<Duration>,
+    /// Of which the calling thread spent encoding (set by [`render_png_to`]); the other
+    /// cores rasterise later bands meanwhile.
+    pub encode: Option<Duration>,
 }
 
 /// A finished drawing and what happened on the way.
@@ -148,6 +162,21 @@ const FAR_WEIGHT: f64 = 0.6;
 
 /// Builds the drawing of `site` seen from `standpoint`.
 pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> Result<Render> {
+    draw_within(
+        site,
+        standpoint,
+        settings,
+        &Budget::new(settings.time_limit),
+    )
+}
+
+/// [`draw`] within a budget of time and drawn vertices.
+pub fn draw_within(
+    site: &Site,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    budget: &Budget,
+) -> Result<Render> {
     settings.validate()?;
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
@@ -162,13 +191,15 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
         layers: site_layers,
         hidden,
         skipped,
+        hierarchy,
     } = wireframe(
         site,
         &view,
         &flattener,
         hidden_edges,
         settings.weight_by_distance,
-    );
+        budget,
+    )?;
     let width = settings.line_weight_px;
     if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
         // Under the seen edges, lighter, thinner and (by the styles) dashed.
@@ -227,6 +258,7 @@ pub fn draw(site: &Site, standpoint: &Standpoint, settings: &RenderSettings) -> 
     };
     let timings = Timings {
         flatten: started.elapsed(),
+        hierarchy,
         ..Timings::default()
     };
     Ok(Render {
@@ -268,10 +300,12 @@ pub fn render_png_to(
     settings: &RenderSettings,
     out: impl Write,
 ) -> Result<Render> {
-    let mut render = draw(site, standpoint, settings)?;
+    let budget = Budget::new(settings.time_limit);
+    let mut render = draw_within(site, standpoint, settings, &budget)?;
     let started = Instant::now();
-    rasterize_grey_png(&render.drawing, out)?;
+    let encode = rasterize_grey_png_within(&render.drawing, out, &budget)?;
     render.timings.raster_and_encode = Some(started.elapsed());
+    render.timings.encode = Some(encode);
     Ok(render)
 }
 

@@ -217,7 +217,14 @@ fn overrides_and_timings() {
         ],
     );
     let text = stderr(&out);
-    for stage in ["load", "flatten", "raster", "encode"] {
+    for stage in [
+        "load",
+        "expand",
+        "visibility",
+        "flatten",
+        "raster",
+        "encode",
+    ] {
         assert!(text.contains(stage), "{text}");
     }
 }
@@ -470,7 +477,7 @@ fn bad_obj_files_name_the_line() {
     assert_refused(
         &dir,
         &["render", scene.to_str().unwrap(), "--at", "0,0"],
-        &["with_bad.ron: in the model", "bad_model.obj:4:7:"],
+        &["with_bad.ron:1:15: in the model", "bad_model.obj:4:7:"],
     );
     // A scene naming a model that is not there.
     let scene = dir.write("s.ron", "Scene(items: [Model(file: \"nowhere.obj\")])");

@@ -1,5 +1,7 @@
 //! The site's edges as seen from one standpoint.
 
+use crate::budget::Budget;
+use crate::error::{Error, Result};
 use crate::plane::{Flattener, PolylineSet};
 use crate::scene::{Edge, HiddenEdges, ItemId, Marker, Site, SiteCurve};
 use crate::sphere::SphereCurve;
@@ -31,7 +33,8 @@ pub fn wireframe(
     flattener: &Flattener,
     hidden: HiddenEdges,
     by_distance: bool,
-) -> Wireframe {
+    budget: &Budget,
+) -> Result<Wireframe> {
     // The edges that depend on the eye (mesh silhouettes, the outlines of round items,
     // point markers) join the fixed edges; they are numbered after them in the list of
     // skipped edges.
@@ -54,8 +57,10 @@ pub fn wireframe(
     };
     // Hidden parts are found only when they are to be drawn differently, and there is
     // something to hide them.
+    let hierarchy_started = std::time::Instant::now();
     let bvh =
         (hidden != HiddenEdges::Solid && !site.faces.is_empty()).then(|| Bvh::new(&site.faces));
+    let hierarchy = hierarchy_started.elapsed();
     let occluders = bvh.as_ref().map(|bvh| Occluders {
         faces: &site.faces,
         bvh,
@@ -66,6 +71,14 @@ pub fn wireframe(
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
+    // The first run to exceed the budget stops every thread before its next run.
+    let refused: std::sync::Mutex<Option<Error>> = std::sync::Mutex::new(None);
+    let stage = if occluders.is_some() {
+        "visibility and flatten"
+    } else {
+        "flatten"
+    };
+    let stage_started = std::time::Instant::now();
     let (names, slot_of_item) = site.layer_slots();
     // With weights by distance each site layer has three slots: middle, near and far.
     let bands: u32 = if by_distance { 3 } else { 1 };
@@ -85,11 +98,17 @@ pub fn wireframe(
             let handles: Vec<_> = (0..threads)
                 .map(|_| {
                     let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
+                    let refused = &refused;
                     scope.spawn(move || {
                         let mut done = Vec::new();
                         loop {
                             let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
                             let Some(edges) = runs.get(index) else { break };
+                            let progress = index as f64 / runs.len() as f64;
+                            if let Err(error) = budget.check_time(stage, stage_started, progress) {
+                                refuse(refused, error, next_run, runs.len());
+                                break;
+                            }
                             let (lines, hidden, skipped) = flatten_edges(
                                 edges,
                                 first_index(index),
@@ -99,6 +118,12 @@ pub fn wireframe(
                                 bands,
                                 occluders,
                             );
+                            let vertices = hidden.vertex_count()
+                                + lines.iter().map(|(_, l)| l.vertex_count()).sum::<usize>();
+                            if let Err(error) = budget.add_vertices(vertices) {
+                                refuse(refused, error, next_run, runs.len());
+                                break;
+                            }
                             done.push((index, lines, hidden, skipped));
                         }
                         done
@@ -113,6 +138,12 @@ pub fn wireframe(
                 })
                 .collect()
         });
+    if let Some(error) = refused
+        .into_inner()
+        .unwrap_or_else(|poisoned| poisoned.into_inner())
+    {
+        return Err(error);
+    }
     parts.sort_by_key(|(index, _, _, _)| *index);
     let mut layers: Vec<WireLayer> = names
         .iter()
@@ -131,11 +162,26 @@ pub fn wireframe(
         hidden.append(&mut part_hidden);
         skipped.extend(part_skipped);
     }
-    Wireframe {
+    Ok(Wireframe {
         layers,
         hidden,
         skipped,
-    }
+        hierarchy,
+    })
+}
+
+/// Keeps the first refusal and sends the other threads past the last run.
+fn refuse(
+    refused: &std::sync::Mutex<Option<Error>>,
+    error: Error,
+    next_run: &std::sync::atomic::AtomicUsize,
+    runs: usize,
+) {
+    next_run.store(runs, std::sync::atomic::Ordering::Relaxed);
+    let mut slot = refused
+        .lock()
+        .unwrap_or_else(|poisoned| poisoned.into_inner());
+    slot.get_or_insert(error);
 }
 
 /// Half the width of a point marker's cross, in pixels.
@@ -179,6 +225,8 @@ pub struct Wireframe {
     /// The parts of edges hidden behind faces (empty unless hidden parts are looked for).
     pub hidden: PolylineSet,
     pub skipped: Vec<SkippedEdge>,
+    /// The time taken to build the hierarchy of faces for hidden lines.
+    pub hierarchy: std::time::Duration,
 }
 
 /// How far an edge is from the eye, when lines are weighed by distance (a common drawing

@@ -1,5 +1,6 @@
 //! Writing a file so that it either appears whole or not at all.
 
+use super::interrupt;
 use crate::error::{Error, Result};
 use std::fs::File;
 use std::io::{BufWriter, Write};
@@ -18,7 +19,7 @@ pub fn write_atomically(
         source,
     };
     let result = (|| {
-        let file = File::create(&temporary).map_err(write_error)?;
+        let file = interrupt::create_temporary(&temporary).map_err(write_error)?;
         let mut writer = BufWriter::with_capacity(1 << 20, file);
         write(&mut writer)?;
         writer.flush().map_err(write_error)?;
@@ -26,10 +27,10 @@ pub fn write_atomically(
             .into_inner()
             .map_err(|e| write_error(e.into_error()))?;
         file.sync_all().map_err(write_error)?;
-        std::fs::rename(&temporary, path).map_err(write_error)
+        interrupt::rename_temporary(&temporary, path).map_err(write_error)
     })();
     if result.is_err() {
-        let _ = std::fs::remove_file(&temporary);
+        interrupt::discard_temporary(&temporary);
     }
     result
 }

@@ -3,6 +3,7 @@
 //! per pixel for SVG and PDF); none holds global state.
 
 mod atomic;
+pub mod interrupt;
 mod pdf;
 mod png;
 mod raster;
@@ -10,7 +11,10 @@ mod svg;
 mod vector;
 mod xmp;
 
-pub use self::png::{encode_grey_png, pixels_per_metre, rasterize_grey_png, write_png, PngOptions};
+pub use self::png::{
+    encode_grey_png, pixels_per_metre, rasterize_grey_png, rasterize_grey_png_within, write_png,
+    PngOptions,
+};
 pub use atomic::write_atomically;
 pub use pdf::write_pdf;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};

@@ -8,9 +8,11 @@
 use super::raster::rasterize_rgb_in_bands;
 use super::xmp::{panorama_xmp, Panorama};
 use super::{rasterize_in_bands, GreyCanvas};
+use crate::budget::Budget;
 use crate::drawing::Drawing;
 use crate::error::Result;
 use std::io::Write;
+use std::time::{Duration, Instant};
 
 fn grey_encoder<W: Write>(out: W, width: u32, height: u32) -> png::Encoder<'static, W> {
     let mut encoder = png::Encoder::new(out, width, height);
@@ -96,12 +98,40 @@ pub fn write_png(drawing: &Drawing, options: &PngOptions, out: impl Write) -> Re
 /// top of the image on this thread while the other cores still draw the rest (the same
 /// bytes as [`encode_grey_png`] of [`super::rasterize`]).
 pub fn rasterize_grey_png(drawing: &Drawing, out: impl Write) -> Result<()> {
+    rasterize_grey_png_within(drawing, out, &Budget::new(None)).map(|_| ())
+}
+
+/// [`rasterize_grey_png`] within a time budget, checked before each band is encoded.
+/// Returns the time spent encoding on this thread (the other cores rasterise meanwhile).
+pub fn rasterize_grey_png_within(
+    drawing: &Drawing,
+    out: impl Write,
+    budget: &Budget,
+) -> Result<Duration> {
     let mut writer = grey_encoder(out, drawing.width, drawing.height).write_header()?;
     let mut stream = writer.stream_writer()?;
-    rasterize_in_bands(drawing, |rows| stream.write_all(rows)).map_err(png::EncodingError::from)?;
+    let (width, height) = (drawing.width.max(1) as usize, drawing.height as f64);
+    let (started, mut rows_done, mut encoding) = (Instant::now(), 0usize, Duration::ZERO);
+    let mut refused = None;
+    let drawn = rasterize_in_bands(drawing, |rows| {
+        rows_done += rows.len() / width;
+        if let Err(error) = budget.check_time("raster", started, rows_done as f64 / height) {
+            refused = Some(error);
+            return Err(std::io::Error::other("stopped by the time limit"));
+        }
+        let encode_started = Instant::now();
+        let written = stream.write_all(rows);
+        encoding += encode_started.elapsed();
+        written
+    });
+    if let Some(error) = refused {
+        return Err(error);
+    }
+    drawn.map_err(png::EncodingError::from)?;
+    let encode_started = Instant::now();
     stream.finish()?;
     writer.finish()?;
-    Ok(())
+    Ok(encoding + encode_started.elapsed())
 }
 
 #[cfg(test)]

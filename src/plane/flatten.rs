@@ -636,11 +636,12 @@ impl Flattener {
 }
 
 /// `ceil(x)` as a count of at least one, without the library call `ceil` makes on the
-/// baseline x86-64 target (this runs for every edge).
+/// baseline x86-64 target (this runs for every edge). An infinite `x` (an error estimate
+/// at a pole) gives the largest count rather than overflowing; NaN gives one.
 fn whole_parts(x: f64) -> usize {
     let whole = x as usize;
     if (whole as f64) < x {
-        whole + 1
+        whole.saturating_add(1)
     } else {
         whole.max(1)
     }

@@ -8,6 +8,7 @@ use super::mesh::{add_mesh, MeshPlacement};
 use super::numbers::spot;
 use super::obj::read_obj;
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
+use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
 use crate::error::Error;
 use std::path::Path;
 
@@ -31,7 +32,11 @@ pub enum ExpandError {
         message: String,
     },
     /// A model file could not be read.
-    Model { label: String, source: Error },
+    Model {
+        path: Vec<usize>,
+        label: String,
+        source: Error,
+    },
 }
 
 /// The resolved site of a parsed scene file read from `scene_path` (models are found
@@ -158,7 +163,11 @@ impl Walker<'_> {
                     }
                     let inner =
                         place.then_move(step * k as f64, (repeat.turn.0 * k as f64).to_radians());
+                    let before = (self.site.edges.len(), self.site.faces.len());
                     self.items(&repeat.items, inner, layer, Some(k + 1))?;
+                    if k == 0 {
+                        self.check_copies(before, repeat.count.0)?;
+                    }
                 }
                 return Ok(());
             }
@@ -196,7 +205,40 @@ impl Walker<'_> {
             }
             ItemSpec::Group(_) | ItemSpec::Repeat(_) | ItemSpec::Model(_) => Ok(()),
         };
-        built.map_err(|message| self.fail(message))
+        built.map_err(|message| self.fail(message))?;
+        self.check_size()
+    }
+
+    /// After the first copy of a repeat: refuses at once when `count` copies like it would
+    /// take the site past the edges or triangles one run may hold, rather than building
+    /// millions of edges first. `before` is the edges and triangles before that copy.
+    fn check_copies(&self, before: (usize, usize), count: u32) -> Result<(), ExpandError> {
+        let count = count as usize;
+        let edges = before.0 + (self.site.edges.len() - before.0) * count;
+        let triangles = before.1 + (self.site.faces.len() - before.1) * count;
+        if edges > MAX_EDGES || triangles > MAX_TRIANGLES {
+            return Err(self.fail(format!(
+                "{count} copies would make {edges} edges and {triangles} face triangles, more than the {MAX_EDGES} edges and {MAX_TRIANGLES} triangles pansite draws; check the repeat count or draw less detail"
+            )));
+        }
+        Ok(())
+    }
+
+    /// Refuses a site past the edges or triangles one run may hold, naming the item that
+    /// took it over (checked after each item, so the walk stops there, not hours later).
+    fn check_size(&self) -> Result<(), ExpandError> {
+        let (edges, triangles) = (self.site.edges.len(), self.site.faces.len());
+        if edges > MAX_EDGES {
+            return Err(self.fail(format!(
+                "the scene holds more than {MAX_EDGES} edges here ({edges}); check the repeat counts or draw less detail"
+            )));
+        }
+        if triangles > MAX_TRIANGLES {
+            return Err(self.fail(format!(
+                "the scene holds more than {MAX_TRIANGLES} face triangles here ({triangles}); check the repeat counts or draw less detail"
+            )));
+        }
+        Ok(())
     }
 
     fn model(
@@ -212,6 +254,7 @@ impl Walker<'_> {
             .unwrap_or(Path::new(""))
             .join(&model.file.0);
         let obj = read_obj(&path).map_err(|source| ExpandError::Model {
+            path: self.path.clone(),
             label: label.clone(),
             source,
         })?;
@@ -230,7 +273,7 @@ impl Walker<'_> {
                 item.layer.get_or_insert_with(|| layer.to_owned());
             }
         }
-        Ok(())
+        self.check_size()
     }
 }
 

@@ -12,21 +12,48 @@ use super::suggest::explain;
 use crate::error::{Error, Result};
 use ron::extensions::Extensions;
 use std::path::Path;
+use std::time::{Duration, Instant};
+
+/// How long loading took, for `--timings`: reading and parsing the text, then expanding
+/// it into the site (a scene's items, a model's mesh).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct LoadTimings {
+    pub parse: Duration,
+    pub expand: Duration,
+}
 
 /// Reads and resolves a scene file.
 pub fn load_scene(path: &Path) -> Result<Site> {
+    load_scene_timed(path).map(|(site, _)| site)
+}
+
+/// [`load_scene`], timed.
+pub fn load_scene_timed(path: &Path) -> Result<(Site, LoadTimings)> {
+    let started = Instant::now();
     let bytes = read_input(path)?;
     let fallback = path
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_default();
-    parse_scene(&bytes, path, &fallback)
+    let (site, mut timings) = parse_scene_timed(&bytes, path, &fallback)?;
+    timings.parse = started.elapsed() - timings.expand;
+    Ok((site, timings))
 }
 
 /// Reads a Wavefront OBJ model into a site of its own. It has no standpoints: the caller
 /// gives one.
 pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshStats)> {
+    load_obj_timed(path, placement).map(|(site, stats, _)| (site, stats))
+}
+
+/// [`load_obj`], timed.
+pub fn load_obj_timed(
+    path: &Path,
+    placement: &MeshPlacement,
+) -> Result<(Site, MeshStats, LoadTimings)> {
+    let started = Instant::now();
     let obj = read_obj(path)?;
+    let parse = started.elapsed();
     let name = path
         .file_name()
         .map(|s| s.to_string_lossy().into_owned())
@@ -36,13 +63,32 @@ pub fn load_obj(path: &Path, placement: &MeshPlacement) -> Result<(Site, MeshSta
         ..Site::default()
     };
     let stats = add_mesh(&mut site, &obj, placement, &name);
-    Ok((site, stats))
+    if site.edges.len() > crate::budget::MAX_EDGES {
+        return Err(Error::TooLarge {
+            what: "the model's drawn edges",
+            found: site.edges.len() as u64,
+            limit: crate::budget::MAX_EDGES as u64,
+            advice: "raise --crease to draw fewer creases, or simplify the model",
+        });
+    }
+    let expand = started.elapsed() - parse;
+    Ok((site, stats, LoadTimings { parse, expand }))
 }
 
 /// Parses scene text. `path` names the file in messages and is where models (OBJ files)
 /// named in the scene are looked for, relative to its folder; `fallback_name` names a scene
 /// that has no `name`.
 pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Site> {
+    parse_scene_timed(bytes, path, fallback_name).map(|(site, _)| site)
+}
+
+/// [`parse_scene`], timed.
+pub fn parse_scene_timed(
+    bytes: &[u8],
+    path: &Path,
+    fallback_name: &str,
+) -> Result<(Site, LoadTimings)> {
+    let started = Instant::now();
     let text = std::str::from_utf8(bytes).map_err(|e| {
         let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
         Error::Scene {
@@ -79,7 +125,8 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
             message,
         }
     })?;
-    expand(file, fallback_name, path).map_err(|e| match e {
+    let parsed = Instant::now();
+    let site = expand(file, fallback_name, path).map_err(|e| match e {
         ExpandError::Item { path: at, message } => {
             let spans = item_spans(text);
             let (line, column) = item_start(&spans, &at).unwrap_or((1, 1));
@@ -102,12 +149,24 @@ pub fn parse_scene(bytes: &[u8], path: &Path, fallback_name: &str) -> Result<Sit
                 message: format!("`{field}`: {message}"),
             }
         }
-        ExpandError::Model { label, source } => Error::InModel {
+        ExpandError::Model {
+            path: at,
+            label,
+            source,
+        } => Error::InModel {
             scene: path.to_owned(),
+            // Where the model is named in the scene.
+            line: item_start(&item_spans(text), &at).map_or(1, |(line, _)| line),
+            column: item_start(&item_spans(text), &at).map_or(1, |(_, column)| column),
             item: label,
             source: Box::new(source),
         },
-    })
+    })?;
+    let timings = LoadTimings {
+        parse: parsed - started,
+        expand: parsed.elapsed(),
+    };
+    Ok((site, timings))
 }
 
 /// How a message names an item by its path alone: `item 2 of item 5`, counting from 1.

@@ -125,12 +125,14 @@ pub const MAX_COUNT: u32 = 100_000;
 
 impl<'de> Deserialize<'de> for Count {
     fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
-        let value = u64::deserialize(deserializer)?;
-        if (1..=MAX_COUNT as u64).contains(&value) {
+        // Read as any number, so that `2.5` or `-3` is told what a count is rather than
+        // meeting the parser's complaint about the characters after the integer.
+        let value = f64::deserialize(deserializer)?;
+        if value.fract() == 0.0 && (1.0..=MAX_COUNT as f64).contains(&value) {
             Ok(Count(value as u32))
         } else {
             Err(serde::de::Error::custom(format!(
-                "expected a count from 1 to {MAX_COUNT}, found {value}"
+                "expected a whole count from 1 to {MAX_COUNT}, found {value}"
             )))
         }
     }

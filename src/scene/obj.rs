@@ -9,6 +9,7 @@
 //! (wavefront_obj 11). A user must be told which line of their export is wrong, so pansite
 //! reads the few statements it needs itself.
 
+use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
 use crate::error::{Error, Result};
 use nalgebra::Point3;
 use std::collections::HashMap;
@@ -28,10 +29,8 @@ pub struct ObjFile {
 
 /// Reads and parses an OBJ file.
 pub fn read_obj(path: &Path) -> Result<ObjFile> {
-    let bytes = std::fs::read(path).map_err(|source| Error::Read {
-        path: path.to_owned(),
-        source,
-    })?;
+    // Through the loaders' checks: a model named `/dev/zero` must not be read for ever.
+    let bytes = super::file::read_input(path)?;
     parse_obj(&bytes, path)
 }
 
@@ -72,6 +71,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
     let mut object_name = String::new();
     // Absolute indices may point forward; they are checked once every `v` is read.
     let mut absolute_checks: Vec<(usize, usize, i64)> = Vec::new();
+    let (mut triangles, mut line_edges) = (0usize, 0usize);
     for (number, line) in text.lines().enumerate() {
         let number = number + 1;
         let line = line.split('#').next().unwrap_or("");
@@ -92,6 +92,13 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                         )
                     })?;
                     *value = parse_number(word).map_err(|m| error(number, column, m))?;
+                }
+                if obj.positions.len() >= MAX_TRIANGLES {
+                    return Err(error(
+                        number,
+                        1,
+                        format!("the model has more than {MAX_TRIANGLES} vertices by this line; pansite draws at most that many"),
+                    ));
                 }
                 obj.positions.push(Point3::from(coordinates));
             }
@@ -146,6 +153,23 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
                             "{what} needs at least {least} vertices, found {}",
                             indices.len()
                         ),
+                    ));
+                }
+                // The bounds of one run, checked as the file is read, before the mesh is
+                // built: a face of n corners makes n - 2 triangles, a line of n points
+                // n - 1 edges.
+                let (count, limit, what) = if keyword == "f" {
+                    triangles += indices.len() - 2;
+                    (triangles, MAX_TRIANGLES, "triangles")
+                } else {
+                    line_edges += indices.len() - 1;
+                    (line_edges, MAX_EDGES, "line segments")
+                };
+                if count > limit {
+                    return Err(error(
+                        number,
+                        1,
+                        format!("the model has more than {limit} {what} by this line; pansite draws at most that many"),
                     ));
                 }
                 if keyword == "f" {

@@ -19,6 +19,19 @@ pub(crate) fn explain(code: &ron::error::Error) -> String {
         Error::NoSuchEnumVariant {
             expected, found, ..
         } => unknown("variant", found, None, expected),
+        Error::MissingStructField { field, outer } => match outer {
+            Some(outer) => format!("missing field `{field}` in `{outer}` (it is required)"),
+            None => format!("missing field `{field}` (it is required)"),
+        },
+        Error::DuplicateStructField { field, outer } => match outer {
+            Some(outer) => format!("field `{field}` is given twice in `{outer}`; expected it once"),
+            None => format!("field `{field}` is given twice; expected it once"),
+        },
+        // RON's own advice (raise the limit) is for programmers, not for scene authors.
+        Error::ExceededRecursionLimit => {
+            "brackets are nested too deeply (more than 128 levels); flatten the groups and repeats"
+                .to_owned()
+        }
         other => other.to_string(),
     }
 }
@@ -185,8 +198,6 @@ mod tests {
     #[test]
     fn other_errors_keep_rons_message() {
         for text in [
-            "Scene(items: [Block(depth: 2, height: 3)])",
-            "Scene(items: [Block(width: 1, width: 1, depth: 2, height: 3)])",
             "Scene(items: [Block(width: \"wide\", depth: 2, height: 3)])",
             "Scene(items: [",
         ] {
@@ -195,6 +206,26 @@ mod tests {
                 .from_str::<Scene>(text)
                 .expect_err("the text has a mistake");
             assert_eq!(explain(&err.code), err.code.to_string(), "{text}");
+        }
+    }
+
+    #[test]
+    fn missing_and_repeated_fields_say_what_was_expected() {
+        for (text, expected) in [
+            (
+                "Scene(items: [Block(depth: 2, height: 3)])",
+                "missing field `width` in `Block` (it is required)",
+            ),
+            (
+                "Scene(items: [Block(width: 1, width: 1, depth: 2, height: 3)])",
+                "field `width` is given twice in `Block`; expected it once",
+            ),
+        ] {
+            let err = ron::Options::default()
+                .with_default_extension(ron::extensions::Extensions::UNWRAP_VARIANT_NEWTYPES)
+                .from_str::<Scene>(text)
+                .expect_err("the text has a mistake");
+            assert_eq!(explain(&err.code), expected, "{text}");
         }
     }
 

@@ -1,8 +1,6 @@
 //! What the user typed: the commands (clap); their options live beside their code.
 
-pub use crate::render_args::{
-    CheckArgs, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg,
-};
+pub use crate::render_args::{CheckArgs, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg};
 use clap::{Parser, Subcommand};
 
 #[derive(Debug, Parser)]
@@ -10,7 +8,7 @@ use clap::{Parser, Subcommand};
     name = "pansite",
     version,
     about = "Exact equirectangular wireframe underlays for hand-drawn 360-degree perspectives",
-    after_help = "Exit codes: 0 success, 1 failure, 2 bad usage or bad input."
+    after_help = "Exit codes: 0 success, 1 failure, 2 bad usage or bad input (too large or too slow included), 130 interrupted."
 )]
 pub struct Cli {
     #[command(subcommand)]

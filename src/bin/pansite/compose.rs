@@ -2,8 +2,8 @@
 //! plan with the standpoints marked), `preview` (an ordinary perspective view) and
 //! `watch` (render again whenever the scene or style file is saved).
 
-use super::render_args::{FormatArg, HiddenArg, RenderArgs};
 use super::parse::{parse_finite, parse_pair, parse_size};
+use super::render_args::{FormatArg, HiddenArg, RenderArgs};
 use super::{choose_view, output_format, read_site, write_sheets, ViewChoice};
 use anyhow::Context;
 use clap::Args;
@@ -454,7 +454,7 @@ pub fn watch(args: &WatchArgs) -> anyhow::Result<()> {
         let outcome = read_site(render_args)
             .map_err(anyhow::Error::from)
             .and_then(|site| {
-                let summary = Summary::of(&site);
+                let summary = Summary::of(&site.0);
                 super::render(render_args).map(|()| summary)
             });
         let what = if changed.is_empty() {

@@ -14,19 +14,29 @@ use pansite::output::{write_atomically, write_pdf, write_png, write_svg, Panoram
 use pansite::page::{PageSettings, Paper, Sheet, Tiling};
 use pansite::render::{draw_sheets, title_lines, today, RenderSettings};
 use pansite::scene::{
-    load_obj, load_scene, load_style_sheet, parse_scene, solids_enclosing, HiddenEdges,
-    MeshPlacement, Site, Standpoint, Unit, UpAxis, DEFAULT_EYE_HEIGHT, STARTER_SCENE,
+    load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene_timed,
+    solids_enclosing, HiddenEdges, LoadTimings, MeshPlacement, Site, Standpoint, Unit, UpAxis,
+    DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use std::time::Instant;
+use std::time::{Duration, Instant};
 
 /// How many skipped edges are named one by one before the rest are counted.
 const MAX_NAMED_SKIPS: usize = 20;
 
+/// The exit code after an interrupt: 128 + SIGINT, as shells report it.
+const INTERRUPTED: i32 = 130;
+
 fn main() -> ExitCode {
+    // Ctrl-C (or a termination request) mid-render must leave no temporary file behind.
+    let _ = ctrlc::set_handler(|| {
+        pansite::output::interrupt::abandon_temporaries();
+        eprintln!("pansite: interrupted; no file was written");
+        std::process::exit(INTERRUPTED);
+    });
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(error) => {
@@ -58,9 +68,7 @@ fn main() -> ExitCode {
 
 fn render(args: &RenderArgs) -> anyhow::Result<()> {
     let mut written: Vec<PathBuf> = Vec::new();
-    let started = Instant::now();
-    let site = read_site(args)?;
-    let load_time = started.elapsed();
+    let (site, load) = read_site(args)?;
     let standpoint = choose_standpoint(&site, args)?;
     let settings = RenderSettings {
         width: args.size.0,
@@ -74,6 +82,7 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         styles: args.style.as_deref().map(load_style_sheet).transpose()?,
         weight_by_distance: args.weigh_by_distance,
         aids: args.aids.settings(),
+        time_limit: Some(Duration::from_secs_f64(args.time_limit)),
     };
     settings.validate()?;
     let output = args
@@ -82,7 +91,8 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         .unwrap_or_else(|| default_output(&args.scene, &standpoint, args.format));
     let format = output_format(&output, args.format)?;
     let page = page_settings(args, &site, &standpoint)?;
-    let (sheets, render) = draw_sheets(&site, &standpoint, &settings, page.as_ref(), args.dpi)?;
+    let (sheets, render) = draw_sheets(&site, &standpoint, &settings, page.as_ref(), args.dpi)
+        .with_context(|| format!("rendering {}", output.display()))?;
     let started = Instant::now();
     let png = PngOptions {
         colour: args.colour,
@@ -178,16 +188,42 @@ fn render(args: &RenderArgs) -> anyhow::Result<()> {
         );
     }
     if args.timings {
-        let t = &render.timings;
-        let ms = |d: std::time::Duration| d.as_secs_f64() * 1e3;
-        eprintln!(
-            "pansite: timings: load {:.1} ms, flatten {:.1} ms, raster + encode (overlapped) {:.1} ms",
-            ms(load_time),
-            ms(t.flatten),
-            ms(write_time)
-        );
+        let timings = pansite::render::Timings {
+            raster_and_encode: Some(write_time),
+            ..render.timings.clone()
+        };
+        print_timings(&load, &timings);
     }
     Ok(())
+}
+
+/// The stages' times on standard error. Visibility is found edge by edge in the pass that
+/// flattens, and the encoder compresses early bands while the other cores rasterise later
+/// ones, so those pairs are given together with the part that can be told apart.
+fn print_timings(load: &LoadTimings, t: &pansite::render::Timings) {
+    let ms = |d: Duration| d.as_secs_f64() * 1e3;
+    let both = t.raster_and_encode.unwrap_or_default();
+    // The writing thread's share is known where the grey PNG is streamed by the library;
+    // pages and other formats are timed as one.
+    let writing = match t.encode {
+        Some(encode) => format!(
+            "raster + encode {:.1} ms overlapped (encode {:.1} ms on the writing thread, raster {:.1} ms besides)",
+            ms(both),
+            ms(encode),
+            ms(both.saturating_sub(encode))
+        ),
+        None => format!("raster + encode + write {:.1} ms overlapped", ms(both)),
+    };
+    eprintln!(
+        "pansite: timings: load {:.1} ms (read and parse {:.1}, expand {:.1}); \
+         visibility + flatten {:.1} ms (of which the hierarchy of faces {:.1}; edges are seen \
+         and flattened in one pass); {writing}",
+        ms(load.parse + load.expand),
+        ms(load.parse),
+        ms(load.expand),
+        ms(t.flatten),
+        ms(t.hierarchy),
+    );
 }
 
 /// Writes the starter scene, refusing to replace a file that is already there.
@@ -228,8 +264,8 @@ fn new_scene(args: &NewArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-/// A RON scene read from standard input.
-fn scene_from_stdin() -> pansite::Result<Site> {
+/// A RON scene read from standard input, and how long reading it took.
+fn scene_from_stdin() -> pansite::Result<(Site, LoadTimings)> {
     let mut bytes = Vec::new();
     std::io::stdin()
         .read_to_end(&mut bytes)
@@ -237,11 +273,11 @@ fn scene_from_stdin() -> pansite::Result<Site> {
             path: PathBuf::from("<stdin>"),
             source,
         })?;
-    parse_scene(&bytes, Path::new("<stdin>"), "stdin")
+    parse_scene_timed(&bytes, Path::new("<stdin>"), "stdin")
 }
 
 /// The scene from a RON file, an OBJ model (by its extension) or standard input.
-fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
+fn read_site(args: &RenderArgs) -> pansite::Result<(Site, LoadTimings)> {
     let path = args.scene.as_path();
     if path == Path::new("-") {
         return scene_from_stdin();
@@ -265,7 +301,7 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
             crease_deg: args.crease,
             ..MeshPlacement::default()
         };
-        let (site, stats) = load_obj(path, &placement)?;
+        let (site, stats, timings) = load_obj_timed(path, &placement)?;
         if stats.dropped_faces > 0 && !args.quiet {
             eprintln!(
                 "pansite: warning: {}: left out {} faces of no area (repeated or collinear vertices)",
@@ -273,9 +309,9 @@ fn read_site(args: &RenderArgs) -> pansite::Result<Site> {
                 stats.dropped_faces
             );
         }
-        return Ok(site);
+        return Ok((site, timings));
     }
-    load_scene(path)
+    load_scene_timed(path)
 }
 
 /// The scene's standpoint (named, or the first), or one made from `--at`, with any
@@ -450,7 +486,7 @@ fn output_paths(
 fn angles(args: &aids::AnglesArgs) -> anyhow::Result<()> {
     use pansite::aids::table::{angle_table, to_csv, to_json, to_text, PagePlacement, TableChoice};
     let site = if args.scene == Path::new("-") {
-        scene_from_stdin()?
+        scene_from_stdin()?.0
     } else {
         load_scene(&args.scene)?
     };

@@ -143,6 +143,10 @@ pub struct RenderArgs {
     #[arg(long)]
     pub timings: bool,
 
+    /// Stop a render that would take longer than this many seconds (exit code 2).
+    #[arg(long, value_name = "SECONDS", default_value_t = pansite::budget::DEFAULT_TIME_LIMIT.as_secs_f64(), value_parser = parse_time_limit)]
+    pub time_limit: f64,
+
     #[command(flatten)]
     pub aids: super::aids::AidArgs,
 }
@@ -216,5 +220,17 @@ fn parse_tiles(text: &str) -> Result<(u32, u32), String> {
     match (count(c), count(r)) {
         (Some(c), Some(r)) => Ok((c, r)),
         _ => Err(bad()),
+    }
+}
+
+fn parse_time_limit(text: &str) -> Result<f64, String> {
+    let value = parse_finite(text)?;
+    // A week is past any render; the bound keeps the duration representable.
+    if value > 0.0 && value <= 7.0 * 86400.0 {
+        Ok(value)
+    } else {
+        Err(format!(
+            "expected more than 0 and at most 604800 seconds, found {value}"
+        ))
     }
 }

@@ -291,6 +291,15 @@ pub fn build_arcade(b: &mut ItemBuilder, spec: &ArcadeSpec) -> Result<(), String
         }
     };
     let length = count as f64 * span + (count + 1) as f64 * pier;
+    // A pier or span below a billionth of the length vanishes in the arithmetic: openings
+    // then share corners and triangulating the wall took hours (found by fuzzing: 4,000
+    // arches on piers of 2e-305 m).
+    let least = 1e-9 * length;
+    if pier < least || span < least {
+        return Err(format!(
+            "piers ({pier}) and spans ({span}) must each be at least a billionth of the arcade's length ({length:.3}), {least:.3e}"
+        ));
+    }
     let (corner, turn) = rectangle_frame(spec.at, length, thickness, spec.facing.0);
     b.move_by(Vector3::new(corner.x, corner.y, spec.base.0), turn);
 

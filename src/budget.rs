@@ -1,0 +1,163 @@
+//! The bounds of one run: how many edges, triangles and drawn vertices it may hold and how
+//! long it may take. Counts are checked before the work that would need them where the
+//! count is known (edges and triangles while loading); drawn vertices and time while the
+//! edges are flattened and the image is drawn, between runs of edges and between bands, so
+//! that a scene that would take hours stops within seconds and says so.
+
+use crate::error::{Error, Result};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
+
+/// The most edges a site may hold (a scene's items or a model's drawn edges): 50 times the
+/// 97,500-edge synthetic town, about 600 MB of edges.
+pub const MAX_EDGES: usize = 5_000_000;
+
+/// The most face triangles a site may hold (they hide edges): five times the
+/// million-triangle model of the benchmark, whose import peaks near 500 MB.
+pub const MAX_TRIANGLES: usize = 5_000_000;
+
+/// The most vertices the flattened drawing may hold: 100 times the synthetic town's at
+/// 8192x4096, about 700 MB with the rasteriser's references to them.
+pub const MAX_DRAWN_VERTICES: usize = 20_000_000;
+
+/// How long a render may take by default: ten minutes, three orders of magnitude above the
+/// benchmark's largest cases.
+pub const DEFAULT_TIME_LIMIT: Duration = Duration::from_secs(600);
+
+/// A run is stopped early when, after this long, its progress so far says it would take
+/// more than [`EARLY_STOP_FACTOR`] times its limit.
+const EARLY_ESTIMATE_AFTER: Duration = Duration::from_secs(2);
+const EARLY_STOP_FACTOR: f64 = 3.0;
+
+/// What one render may still spend. Shared by the threads of a stage.
+#[derive(Debug)]
+pub struct Budget {
+    started: Instant,
+    limit: Option<Duration>,
+    vertices: AtomicUsize,
+}
+
+impl Budget {
+    /// Starts the clock now; `None` never runs out of time.
+    pub fn new(limit: Option<Duration>) -> Budget {
+        Budget {
+            started: Instant::now(),
+            limit,
+            vertices: AtomicUsize::new(0),
+        }
+    }
+
+    /// Counts `n` more drawn vertices, refusing past [`MAX_DRAWN_VERTICES`].
+    pub fn add_vertices(&self, n: usize) -> Result<()> {
+        let total = self.vertices.fetch_add(n, Ordering::Relaxed) + n;
+        if total > MAX_DRAWN_VERTICES {
+            return Err(Error::TooLarge {
+                what: "the drawing's vertices",
+                found: total as u64,
+                limit: MAX_DRAWN_VERTICES as u64,
+                advice: "draw a smaller image (--size), a larger --tolerance, or fewer items",
+            });
+        }
+        Ok(())
+    }
+
+    /// Whether the run may go on, `done` of the way (0 to 1) through `stage`, which began
+    /// at `stage_started`: refused when the limit has passed, or early when the progress so
+    /// far says the run would take several times the limit.
+    pub fn check_time(&self, stage: &'static str, stage_started: Instant, done: f64) -> Result<()> {
+        let Some(limit) = self.limit else {
+            return Ok(());
+        };
+        let elapsed = self.started.elapsed();
+        let before = stage_started
+            .saturating_duration_since(self.started)
+            .as_secs_f64();
+        let estimate = (done > 0.0).then(|| before + stage_started.elapsed().as_secs_f64() / done);
+        let over = elapsed > limit;
+        let hopeless = elapsed > EARLY_ESTIMATE_AFTER
+            && estimate.is_some_and(|e| e > EARLY_STOP_FACTOR * limit.as_secs_f64());
+        if over || hopeless {
+            return Err(Error::TooSlow {
+                stage,
+                elapsed_s: elapsed.as_secs_f64(),
+                done_percent: 100.0 * done.clamp(0.0, 1.0),
+                estimate_s: estimate,
+                limit_s: limit.as_secs_f64(),
+            });
+        }
+        Ok(())
+    }
+}
+
+/// Says how long `seconds` is in words a user reads at a glance.
+pub fn duration_words(seconds: f64) -> String {
+    if seconds < 10.0 {
+        format!("{seconds:.3} s")
+    } else if seconds < 120.0 {
+        format!("{seconds:.0} s")
+    } else if seconds < 7200.0 {
+        format!("{:.0} minutes", seconds / 60.0)
+    } else {
+        format!("{:.1} hours", seconds / 3600.0)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn vertices_past_the_limit_are_refused() {
+        let budget = Budget::new(None);
+        assert!(budget.add_vertices(MAX_DRAWN_VERTICES).is_ok());
+        let error = budget.add_vertices(1).unwrap_err();
+        assert!(error.is_bad_input());
+        assert!(error.to_string().contains("20000001"), "{error}");
+    }
+
+    #[test]
+    fn time_runs_out_at_the_limit() {
+        let budget = Budget::new(Some(Duration::ZERO));
+        std::thread::sleep(Duration::from_millis(2));
+        let error = budget
+            .check_time("flatten", Instant::now(), 0.5)
+            .unwrap_err();
+        assert!(error.is_bad_input());
+        assert!(error.to_string().contains("flatten"), "{error}");
+        assert!(Budget::new(None)
+            .check_time("flatten", Instant::now(), 0.0)
+            .is_ok());
+    }
+
+    #[test]
+    fn a_run_that_would_take_hours_says_so_early() {
+        // 3 s into a run whose stage is a thousandth done: about 50 minutes, against a
+        // limit of 10 s.
+        let started = Instant::now() - Duration::from_secs(3);
+        let budget = Budget {
+            started,
+            limit: Some(Duration::from_secs(10)),
+            vertices: AtomicUsize::new(0),
+        };
+        let error = budget.check_time("raster", started, 0.001).unwrap_err();
+        let text = error.to_string();
+        assert!(
+            text.contains("raster") && text.contains("minutes"),
+            "{text}"
+        );
+        // The same progress with an hour to spare goes on.
+        let budget = Budget {
+            limit: Some(Duration::from_secs(36_000)),
+            ..budget
+        };
+        assert!(budget.check_time("raster", started, 0.001).is_ok());
+    }
+
+    #[test]
+    fn durations_in_words() {
+        assert_eq!(duration_words(0.05), "0.050 s");
+        assert_eq!(duration_words(50.0), "50 s");
+        assert_eq!(duration_words(600.0), "10 minutes");
+        assert_eq!(duration_words(4.0 * 3600.0), "4.0 hours");
+    }
+}

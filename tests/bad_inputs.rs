@@ -1,0 +1,244 @@
+//! The bad-input corpus (`tests/bad_inputs/`, described in its README): one test per file,
+//! each running the real binary in a fresh folder over an earlier good output. Behavioural:
+//! a refused file must exit 2 with a message naming the file, the line and column and what
+//! was expected, create no file, and leave the earlier output byte for byte as it was; a
+//! standpoint inside a solid is a warning (exit 0, a written image).
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+/// Stands for a good image written by an earlier run.
+const EARLIER: &[u8] = b"\x89PNG\r\n\x1a\nan earlier good output, not to be touched";
+
+fn corpus() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_inputs")
+}
+
+/// Every file of the corpus (the README aside) copied into a fresh folder, with the
+/// earlier output beside them.
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(name: &str) -> Scratch {
+        let dir = std::env::temp_dir().join(format!("pansite-bad-{name}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        for entry in std::fs::read_dir(corpus()).unwrap() {
+            let path = entry.unwrap().path();
+            std::fs::copy(&path, dir.join(path.file_name().unwrap())).unwrap();
+        }
+        std::fs::write(dir.join("out.png"), EARLIER).unwrap();
+        Scratch(dir)
+    }
+
+    /// Every file in the folder with its bytes.
+    fn contents(&self) -> BTreeMap<String, Vec<u8>> {
+        std::fs::read_dir(&self.0)
+            .unwrap()
+            .map(|e| {
+                let path = e.unwrap().path();
+                let name = path.file_name().unwrap().to_string_lossy().into_owned();
+                (name, std::fs::read(&path).unwrap())
+            })
+            .collect()
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+/// Renders `file` from the corpus over `out.png`, small, with `extra` options (an OBJ model
+/// gets a standpoint).
+fn render(dir: &Scratch, file: &str, extra: &[&str]) -> (Option<i32>, String) {
+    let mut args = vec!["render", file, "-o", "out.png"];
+    if !extra.contains(&"--size") {
+        args.extend(["--size", "256x128"]);
+    }
+    if file.ends_with(".obj") {
+        args.extend(["--at", "0,-5"]);
+    }
+    args.extend(extra);
+    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .current_dir(&dir.0)
+        .args(&args)
+        .output()
+        .unwrap();
+    (
+        out.status.code(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// Refused: exit 2, `pansite: error: ` and then `at` (`file:line:column`, or what else
+/// names the place) and each of `expected`; the folder exactly as it was.
+#[track_caller]
+fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
+    let dir = Scratch::new(file);
+    let before = dir.contents();
+    let (code, text) = render(&dir, file, extra);
+    assert_eq!(code, Some(2), "{file}: {text}");
+    assert!(
+        text.starts_with(&format!("pansite: error: {at}")),
+        "{file}: expected the message to start with {at:?}: {text}"
+    );
+    for e in expected {
+        assert!(text.contains(e), "{file}: expected {e:?} in: {text}");
+    }
+    assert_eq!(
+        text.lines().count(),
+        1,
+        "{file}: one line of message: {text}"
+    );
+    assert!(
+        dir.contents() == before,
+        "{file}: the folder changed (a file was made, or the earlier output touched)"
+    );
+}
+
+/// Accepted with a warning: exit 0, the warning, and a new image over the earlier one.
+#[track_caller]
+fn warned(file: &str, expected: &[&str]) {
+    let dir = Scratch::new(file);
+    let before = dir.contents();
+    let (code, text) = render(&dir, file, &[]);
+    assert_eq!(code, Some(0), "{file}: {text}");
+    assert!(text.starts_with("pansite: warning: "), "{file}: {text}");
+    for e in expected {
+        assert!(text.contains(e), "{file}: expected {e:?} in: {text}");
+    }
+    let after = dir.contents();
+    assert_eq!(
+        after.keys().collect::<Vec<_>>(),
+        before.keys().collect::<Vec<_>>(),
+        "{file}: only out.png may change"
+    );
+    assert!(after["out.png"].starts_with(b"\x89PNG") && after["out.png"] != EARLIER);
+}
+
+/// One test per corpus file, and the list of files they cover.
+macro_rules! corpus {
+    ($(
+        $test:ident: $file:literal $([$($extra:literal),*])? => $how:ident($($arg:expr),*);
+    )*) => {
+        $(
+            #[test]
+            fn $test() {
+                corpus!(@call $how, $file, [$($($extra),*)?], $($arg),*);
+            }
+        )*
+        const COVERED: &[&str] = &[$($file),*];
+    };
+    (@call refused, $file:literal, [$($extra:literal),*], $at:expr, $expected:expr) => {
+        refused($file, &[$($extra),*], $at, $expected)
+    };
+    (@call warned, $file:literal, [$($extra:literal),*], $expected:expr) => {
+        warned($file, $expected)
+    };
+}
+
+corpus! {
+    // Empty files, encodings, line ends, garbage.
+    empty: "empty.ron" => refused("empty.ron:1:1:", &["empty", "expected a scene"]);
+    whitespace_only: "whitespace-only.ron" => refused("whitespace-only.ron:1:1:", &["empty"]);
+    byte_order_mark_only: "bom-only.ron" => refused("bom-only.ron:1:1:", &["empty"]);
+    byte_order_mark_does_not_shift_columns: "bom-then-typo.ron" => refused("bom-then-typo.ron:4:43:", &["`depht`", "did you mean `depth`"]);
+    crlf_line_ends_count_lines: "crlf-typo.ron" => refused("crlf-typo.ron:4:43:", &["`depht`", "did you mean `depth`"]);
+    crlf_nan: "crlf-nan.ron" => refused("crlf-nan.ron:4:39:", &["expected a finite number", "NaN"]);
+    binary_garbage: "binary-garbage.ron" => refused("binary-garbage.ron:1:3:", &["expected UTF-8 text"]);
+    // Truncated and malformed RON.
+    truncated_mid_item: "truncated-mid-item.ron" => refused("truncated-mid-item.ron:3:13:", &["end of RON"]);
+    truncated_mid_number: "truncated-mid-number.ron" => refused("truncated-mid-number.ron:3:61:", &["Block (item 1)", "Expected comma"]);
+    truncated_in_string: "truncated-in-string.ron" => refused("truncated-in-string.ron:2:11:", &["Expected end of string"]);
+    unbalanced_bracket: "unbalanced-bracket.ron" => refused("unbalanced-bracket.ron:6:2:", &["trailing characters"]);
+    missing_comma: "missing-comma.ron" => refused("missing-comma.ron:4:32:", &["Expected comma"]);
+    deep_nesting: "deep-nesting.ron" => refused("deep-nesting.ron:4:", &["nested too deeply"]);
+    // Wrong types.
+    string_for_number: "string-for-number.ron" => refused("string-for-number.ron:4:39:", &["Block (item 1)", "Expected float"]);
+    number_for_list: "number-for-list.ron" => refused("number-for-list.ron:4:25:", &["Expected opening `[`"]);
+    number_for_bool: "number-for-bool.ron" => refused("number-for-bool.ron:4:57:", &["Expected boolean"]);
+    tuple_too_short: "tuple-too-short.ron" => refused("tuple-too-short.ron:4:25:", &["tuple of size 3", "2 elements"]);
+    // Unknown and missing names.
+    unknown_field: "unknown-field.ron" => refused("unknown-field.ron:4:53:", &["`hieght`", "did you mean `height`"]);
+    unknown_item_kind: "unknown-item-kind.ron" => refused("unknown-item-kind.ron:4:9:", &["`Blok`", "did you mean `Block`"]);
+    unknown_scene_field: "unknown-scene-field.ron" => refused("unknown-scene-field.ron:2:5:", &["did you mean `standpoints`"]);
+    unknown_roof: "unknown-roof.ron" => refused("unknown-roof.ron:4:70:", &["did you mean `Gable`"]);
+    unknown_unit: "unknown-unit.ron" => refused("unknown-unit.ron:3:11:", &["`Furlong`", "`Metre`, `Foot`"]);
+    missing_required_field: "missing-required-field.ron" => refused("missing-required-field.ron:4:51:", &["missing field `height` in `Block`"]);
+    missing_items: "missing-items.ron" => refused("missing-items.ron:3:1:", &["missing field `items`"]);
+    duplicate_field: "duplicate-field.ron" => refused("duplicate-field.ron:4:43:", &["`width` is given twice", "expected it once"]);
+    unknown_default_standpoint: "unknown-default-standpoint.ron" => refused("unknown-default-standpoint.ron:3:5:", &["no standpoint named \"there\""]);
+    // Numbers out of bounds.
+    nan: "nan.ron" => refused("nan.ron:4:40:", &["expected a finite number, found NaN"]);
+    nan_standpoint: "nan-standpoint.ron" => refused("nan-standpoint.ron:2:57:", &["expected a finite number, found NaN"]);
+    infinity: "infinity.ron" => refused("infinity.ron:4:49:", &["expected a finite number, found inf"]);
+    negative_infinity: "negative-infinity.ron" => refused("negative-infinity.ron:4:21:", &["found -inf"]);
+    huge_1e300: "huge-1e300.ron" => refused("huge-1e300.ron:4:26:", &["from -1e9 to 1e9, found 1e300"]);
+    beyond_1e9: "beyond-1e9.ron" => refused("beyond-1e9.ron:4:36:", &["from -1e9 to 1e9, found 2e9"]);
+    negative_width: "negative-width.ron" => refused("negative-width.ron:4:40:", &["greater than zero, found -8"]);
+    zero_depth: "zero-depth.ron" => refused("zero-depth.ron:4:50:", &["greater than zero, found 0"]);
+    zero_diameter: "zero-diameter.ron" => refused("zero-diameter.ron:4:38:", &["greater than zero, found 0"]);
+    negative_count: "negative-count.ron" => refused("negative-count.ron:4:23:", &["whole count from 1 to 100000, found -3"]);
+    zero_count: "zero-count.ron" => refused("zero-count.ron:4:23:", &["found 0"]);
+    fractional_count: "fractional-count.ron" => refused("fractional-count.ron:4:47:", &["whole count", "found 2.5"]);
+    huge_count: "huge-count.ron" => refused("huge-count.ron:4:47:", &["found 10000000"]);
+    // Shapes that cannot be built.
+    self_intersecting_footprint: "self-intersecting-footprint.ron" => refused("self-intersecting-footprint.ron:4:9:", &["crosses side 3", "must not cross itself"]);
+    footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
+    road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
+    polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
+    arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);
+    windows_that_do_not_fit: "windows-do-not-fit.ron" => refused("windows-do-not-fit.ron:4:9:", &["12 openings 1.2 wide do not fit"]);
+    // Models named in a scene.
+    model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);
+    model_not_a_file: "model-not-a-file.ron" => refused("model-not-a-file.ron:4:9:", &["/dev/zero", "expected a file"]);
+    model_bad: "model-bad-obj.ron" => refused("model-bad-obj.ron:4:9:", &["\"shed\"", "obj-index-zero.obj:4:3:", "start at 1"]);
+    // Resource bounds.
+    nested_repeats_too_many_items: "nested-repeats-too-many-items.ron" => refused("nested-repeats-too-many-items.ron:5:58:", &["more than 1000000 items"]);
+    too_many_edges: "too-many-edges.ron" => refused("too-many-edges.ron:4:9:", &["3000 copies would make 5946000 edges", "5000000 edges"]);
+    too_many_triangles: "too-many-triangles.ron" => refused("too-many-triangles.ron:4:9:", &["487700000 face triangles", "5000000 triangles"]);
+    too_slow_for_the_limit: "too-slow-for-the-limit.ron" ["--time-limit", "0.001", "--size", "8192x4096"] => refused("rendering out.png: stopped in the visibility and flatten stage", &["the time limit is 0.001 s", "--time-limit"]);
+    // Standpoints inside solids: warnings, not errors.
+    standpoint_inside_block: "standpoint-inside-block.ron" => warned(&["standpoint \"cellar\" is inside block (item 1)"]);
+    standpoint_inside_tower: "standpoint-inside-tower.ron" => warned(&["standpoint \"stair\" is inside tower \"keep\""]);
+    // OBJ models.
+    obj_empty: "obj-empty.obj" => refused("obj-empty.obj:1:1:", &["empty", "expected `v` and `f` lines"]);
+    obj_comments_only: "obj-comments-only.obj" => refused("obj-comments-only.obj:1:1:", &["no faces (`f`) or lines (`l`)"]);
+    obj_no_faces: "obj-no-faces.obj" => refused("obj-no-faces.obj:1:1:", &["no faces"]);
+    obj_binary_garbage: "obj-binary-garbage.obj" => refused("obj-binary-garbage.obj:1:1:", &["expected OBJ text"]);
+    obj_index_zero: "obj-index-zero.obj" => refused("obj-index-zero.obj:4:3:", &["start at 1; found 0"]);
+    obj_index_out_of_range: "obj-index-out-of-range.obj" => refused("obj-index-out-of-range.obj:4:7:", &["index 4 is out of range", "3 vertices"]);
+    obj_negative_index_before_start: "obj-negative-index-before-start.obj" => refused("obj-negative-index-before-start.obj:4:9:", &["-4 reaches before the first vertex"]);
+    obj_index_beyond_64_bits: "obj-index-beyond-64-bits.obj" => refused("obj-index-beyond-64-bits.obj:4:7:", &["expected a vertex index"]);
+    obj_declared_but_absent: "obj-declared-but-absent.obj" => refused("obj-declared-but-absent.obj:6:3:", &["999999 is out of range", "3 vertices"]);
+    obj_face_of_no_vertices: "obj-face-no-vertices.obj" => refused("obj-face-no-vertices.obj:4:2:", &["at least 3 vertices, found 0"]);
+    obj_face_of_one_vertex: "obj-face-one-vertex.obj" => refused("obj-face-one-vertex.obj:4:4:", &["at least 3 vertices, found 1"]);
+    obj_face_of_two_vertices: "obj-face-two-vertices.obj" => refused("obj-face-two-vertices.obj:4:6:", &["at least 3 vertices, found 2"]);
+    obj_line_of_one_vertex: "obj-line-one-vertex.obj" => refused("obj-line-one-vertex.obj:3:4:", &["at least 2 vertices, found 1"]);
+    obj_vertex_of_two_coordinates: "obj-vertex-two-coordinates.obj" => refused("obj-vertex-two-coordinates.obj:2:6:", &["three coordinates", "found 2"]);
+    obj_nan: "obj-nan.obj" => refused("obj-nan.obj:2:3:", &["expected a finite number"]);
+    obj_infinity: "obj-infinity.obj" => refused("obj-infinity.obj:2:5:", &["expected a finite number"]);
+    obj_1e300: "obj-1e300.obj" => refused("obj-1e300.obj:2:7:", &["from -1e12 to 1e12, found 1e300"]);
+    obj_malformed_number: "obj-malformed-number.obj" => refused("obj-malformed-number.obj:3:5:", &["expected a number, found \"1,5\""]);
+    obj_malformed_index: "obj-malformed-index.obj" => refused("obj-malformed-index.obj:4:7:", &["expected a vertex index, found \"three\""]);
+    obj_crlf_line_ends_count_lines: "obj-crlf-bad-index.obj" => refused("obj-crlf-bad-index.obj:5:7:", &["index 9 is out of range"]);
+    obj_byte_order_mark_does_not_shift_columns: "obj-bom-bad-number.obj" => refused("obj-bom-bad-number.obj:2:7:", &["expected a number, found \"x\""]);
+}
+
+/// Every file in the corpus has its test, and the corpus is as large as promised.
+#[test]
+fn every_corpus_file_has_a_test() {
+    let mut files: Vec<String> = std::fs::read_dir(corpus())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|name| name != "README.md")
+        .collect();
+    files.sort();
+    let mut covered: Vec<String> = COVERED.iter().map(|s| s.to_string()).collect();
+    covered.sort();
+    assert_eq!(files, covered);
+    assert!(files.len() >= 40);
+}

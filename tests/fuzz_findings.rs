@@ -1,0 +1,145 @@
+//! What fuzzing (`fuzz/`) and the review of the bad-input corpus found, each kept as a named
+//! case so it stays fixed. Behavioural: each input must be refused quickly with a message
+//! that says what was expected (or, for bounds, drawn within them).
+
+use pansite::render::{render_png_to, RenderSettings};
+use pansite::scene::parse_scene;
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+fn refusal(scene: &str) -> String {
+    let started = Instant::now();
+    let error = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding")
+        .expect_err("the scene must be refused");
+    assert!(
+        started.elapsed() < Duration::from_secs(5),
+        "refused too slowly"
+    );
+    assert!(error.is_bad_input(), "{error}");
+    error.to_string()
+}
+
+/// A model named `/dev/zero` was read for ever (the OBJ reader skipped the loaders' check
+/// for regular files of bounded size).
+#[test]
+fn a_model_that_is_a_device_is_refused_at_once() {
+    let text = refusal(r#"Scene(items: [Model(file: "/dev/zero")])"#);
+    assert!(text.starts_with("finding.ron:1:15:"), "{text}");
+}
+
+/// `steps: 2.5` met the parser's "Expected comma" at the `.5`; `count: -3` its "Integer is
+/// out of bounds". Both now say what a count is.
+#[test]
+fn a_fractional_or_negative_count_is_told_what_a_count_is() {
+    for (count, found) in [
+        ("2.5", "2.5"),
+        ("-3", "-3"),
+        ("1e20", "100000000000000000000"),
+    ] {
+        let text = refusal(&format!(
+            "Scene(items: [Stairs(at: (0, 0), bearing: 0, steps: {count}, rise: 0.15, going: 0.3, width: 2)])"
+        ));
+        assert!(
+            text.contains(&format!(
+                "expected a whole count from 1 to 100000, found {found}"
+            )),
+            "{text}"
+        );
+    }
+}
+
+/// Nesting beyond RON's recursion limit said "try increasing the limit", which a scene's
+/// author cannot do.
+#[test]
+fn deep_nesting_says_what_to_do() {
+    let depth = 400;
+    let scene = format!(
+        "Scene(items: [{}{}])",
+        "Group(items: [".repeat(depth),
+        "])".repeat(depth)
+    );
+    let text = refusal(&scene);
+    assert!(text.contains("nested too deeply"), "{text}");
+    assert!(!text.contains("increasing"), "{text}");
+}
+
+/// A repeat of heavy items built millions of edges before the item count stopped it; now
+/// the first copy tells how many the rest would make.
+#[test]
+fn a_repeat_too_large_is_refused_after_its_first_copy() {
+    let text = refusal(
+        "Scene(items: [Repeat(count: 100000, step: (0, 0, 1), items: [\
+         Tiles(corner: (0, 0, 0), along: (99, 0, 0), across: (0, 99, 0), tile: (0.1, 0.1))])])",
+    );
+    assert!(text.contains("100000 copies would make"), "{text}");
+}
+
+/// Absurd but finite numbers all through a scene draw (or are refused) without a panic:
+/// the numbers the pipeline target tried first.
+#[test]
+fn extreme_numbers_in_every_item_draw_or_are_refused() {
+    for x in ["1e9", "-1e9", "1e-300", "0.000001", "999999999"] {
+        let scene = format!(
+            "Scene(standpoints: [(name: \"s\", x: {x}, y: {x}, heading: {x}, pitch: {x}, roll: {x})], items: [\
+             Block(at: Corner({x}, {x}), width: 1e-6, depth: 1e9, height: 1e-6, roof: Hip(ridge: 1e9)),\
+             Column(at: ({x}, 0), diameter: 1e-6, height: 1e9),\
+             Dome(at: (0, {x}), diameter: 1e9),\
+             Line(from: ({x}, {x}, {x}), to: (0, 0, 0)),\
+             Point(at: ({x}, 0, 0))])"
+        );
+        let Ok(site) = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding") else {
+            continue;
+        };
+        let settings = RenderSettings {
+            width: 128,
+            height: 64,
+            ..RenderSettings::default()
+        };
+        let mut png = Vec::new();
+        let _ = render_png_to(&site, &site.standpoints[0], &settings, &mut png);
+    }
+}
+
+/// The pipeline target's timeout: an arcade on piers of 2e-305 m, thinner than the
+/// arithmetic can tell from nothing, so its openings shared corners and triangulating its
+/// wall took hours for 4,000 arches (11 s for 255 under the fuzzer's instrumentation).
+#[test]
+fn an_arcade_on_piers_too_thin_to_exist_is_refused_at_once() {
+    let text = refusal(
+        "Scene(items: [Arcade(at: Centre(4.778309726736751e-299, 0), count: 4000, span: 3.7, \
+         springing: 33, pier: 2.2565935439425233e-305, thickness: 5.43222665692e-312)])",
+    );
+    assert!(
+        text.contains("at least a billionth of the arcade's length"),
+        "{text}"
+    );
+    // Thin but real piers still build, quickly.
+    let started = Instant::now();
+    parse_scene(
+        b"Scene(items: [Arcade(at: Centre(0, 0), count: 4000, span: 3.7, springing: 33, pier: 1e-4, thickness: 0.5)])",
+        Path::new("finding.ron"),
+        "finding",
+    )
+    .unwrap();
+    assert!(started.elapsed() < Duration::from_secs(5));
+}
+
+/// The pipeline target's crash: the grid drawn 32x16 for a view pitched 110 degrees found
+/// an infinite error estimate near a pole, and counting the parts to cut it into
+/// overflowed (a panic where overflow is checked, as in tests).
+#[test]
+fn a_grid_near_a_pole_with_an_infinite_error_estimate_draws() {
+    let scene = "Scene(standpoints: [(name: \"s\", x: 51, y: 46, eye_height: 1182.2, \
+                 heading: 4.600556940150025e-91, pitch: 110, roll: 0)], \
+                 items: [Repeat(count: 138, step: (-56, 32, 0), turn: 230.4, items: [])])";
+    let site = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding").unwrap();
+    let settings = RenderSettings {
+        width: 32,
+        height: 16,
+        hidden: Some(pansite::scene::HiddenEdges::Solid),
+        ..RenderSettings::default()
+    };
+    let mut png = Vec::new();
+    render_png_to(&site, &site.standpoints[0], &settings, &mut png).unwrap();
+    assert!(png.starts_with(b"\x89PNG"));
+}
