@@ -89,19 +89,6 @@ impl Budget {
     }
 }
 
-/// Says how long `seconds` is in words a user reads at a glance.
-pub fn duration_words(seconds: f64) -> String {
-    if seconds < 10.0 {
-        format!("{seconds:.3} s")
-    } else if seconds < 120.0 {
-        format!("{seconds:.0} s")
-    } else if seconds < 7200.0 {
-        format!("{:.0} minutes", seconds / 60.0)
-    } else {
-        format!("{:.1} hours", seconds / 3600.0)
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -151,13 +138,5 @@ mod tests {
             ..budget
         };
         assert!(budget.check_time("raster", started, 0.001).is_ok());
-    }
-
-    #[test]
-    fn durations_in_words() {
-        assert_eq!(duration_words(0.05), "0.050 s");
-        assert_eq!(duration_words(50.0), "50 s");
-        assert_eq!(duration_words(600.0), "10 minutes");
-        assert_eq!(duration_words(4.0 * 3600.0), "4.0 hours");
     }
 }

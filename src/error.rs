@@ -119,7 +119,6 @@ fn too_slow(
     estimate_s: Option<f64>,
     limit_s: f64,
 ) -> String {
-    use crate::budget::duration_words;
     let estimate = estimate_s.map_or(String::new(), |e| {
         format!(", so the run would take about {}", duration_words(e))
     });
@@ -139,3 +138,29 @@ fn too_slow(
 }
 
 pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// Says how long `seconds` is in words a user reads at a glance.
+pub fn duration_words(seconds: f64) -> String {
+    if seconds < 10.0 {
+        format!("{seconds:.3} s")
+    } else if seconds < 120.0 {
+        format!("{seconds:.0} s")
+    } else if seconds < 7200.0 {
+        format!("{:.0} minutes", seconds / 60.0)
+    } else {
+        format!("{:.1} hours", seconds / 3600.0)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn durations_in_words() {
+        assert_eq!(duration_words(0.05), "0.050 s");
+        assert_eq!(duration_words(50.0), "50 s");
+        assert_eq!(duration_words(600.0), "10 minutes");
+        assert_eq!(duration_words(4.0 * 3600.0), "4.0 hours");
+    }
+}
