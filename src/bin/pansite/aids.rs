@@ -1,6 +1,7 @@
 //! The command-line flags of the drawing aids, and the `angles` command.
 
 use crate::parse::{parse_finite, parse_size};
+use crate::render_args::ViewArgs;
 use clap::{Args, ValueEnum};
 use pansite::aids::AidSettings;
 use pansite::scene::{Division, Fan, Pole, Slope, DEFAULT_FAN_STEP_DEG};
@@ -140,29 +141,8 @@ pub struct AnglesArgs {
     #[arg(long, value_name = "MM", value_parser = parse_positive)]
     pub page_width_mm: Option<f64>,
 
-    /// Which of the scene's standpoints to use [default: the first].
-    #[arg(short, long, value_name = "NAME")]
-    pub standpoint: Option<String>,
-
-    /// Stand at this plan position instead, metres east and north.
-    #[arg(long, value_name = "X,Y", value_parser = parse_pair, allow_hyphen_values = true)]
-    pub at: Option<(f64, f64)>,
-
-    /// Eye height above the ground, metres.
-    #[arg(long, value_name = "METRES", value_parser = parse_finite)]
-    pub eye_height: Option<f64>,
-
-    /// Azimuth at the centre of the image, degrees clockwise from north.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub heading: Option<f64>,
-
-    /// Tilt of the view, degrees; positive looks up.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub pitch: Option<f64>,
-
-    /// Roll of the view, degrees; positive turns up towards the right.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub roll: Option<f64>,
+    #[command(flatten)]
+    pub view: ViewArgs,
 }
 
 fn parse_positive(text: &str) -> Result<f64, String> {
@@ -185,11 +165,6 @@ fn numbers(text: &str, min: usize, max: usize, shape: &str) -> Result<Vec<f64>, 
     } else {
         Err(format!("expected {shape}, found \"{text}\""))
     }
-}
-
-fn parse_pair(text: &str) -> Result<(f64, f64), String> {
-    let v = numbers(text, 2, 2, "X,Y")?;
-    Ok((v[0], v[1]))
 }
 
 fn parse_slope(text: &str) -> Result<Slope, String> {

@@ -60,7 +60,7 @@ mod tests {
         assert_eq!(r.line_weight, 1.5);
         assert_eq!(r.tolerance, 0.1);
         assert!(!r.bare && !r.quiet && !r.timings);
-        assert!(r.output.is_none() && r.standpoint.is_none() && r.at.is_none());
+        assert!(r.output.is_none() && r.view.standpoint.is_none() && r.view.at.is_none());
         assert_eq!((r.up, r.unit, r.crease), (UpArg::Y, UnitArg::M, 30.0));
     }
 
@@ -93,10 +93,10 @@ mod tests {
         ])
         .unwrap();
         assert_eq!(r.output.as_deref(), Some(std::path::Path::new("out.png")));
-        assert_eq!(r.standpoint.as_deref(), Some("gate"));
-        assert_eq!(r.at, Some((-3.0, -4.5)));
+        assert_eq!(r.view.standpoint.as_deref(), Some("gate"));
+        assert_eq!(r.view.at, Some((-3.0, -4.5)));
         assert_eq!(
-            (r.eye_height, r.heading, r.pitch, r.roll),
+            (r.view.eye_height, r.view.heading, r.view.pitch, r.view.roll),
             (Some(1.2), Some(-30.0), Some(5.0), Some(-2.0))
         );
         assert_eq!(r.size, (800, 400));

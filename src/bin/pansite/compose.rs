@@ -3,8 +3,8 @@
 //! `watch` (render again whenever the scene or style file is saved).
 
 use super::parse::{parse_finite, parse_pair, parse_size};
-use super::render_args::{FormatArg, HiddenArg, RenderArgs};
-use super::{choose_view, output_format, read_site, write_sheets, ViewChoice};
+use super::render_args::{FormatArg, HiddenArg, RenderArgs, ViewArgs};
+use super::{choose_view, output_format, read_site, write_sheets};
 use anyhow::Context;
 use clap::Args;
 use pansite::compose::{
@@ -19,42 +19,6 @@ use pansite::Error;
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant, SystemTime};
-
-/// Which standpoint, or the base of a sweep.
-#[derive(Debug, Args)]
-pub struct ViewArgs {
-    /// Which of the scene's standpoints [default: the first].
-    #[arg(short, long, value_name = "NAME")]
-    pub standpoint: Option<String>,
-    /// Stand at this plan position instead, metres east and north.
-    #[arg(long, value_name = "X,Y", value_parser = parse_pair, allow_hyphen_values = true)]
-    pub at: Option<(f64, f64)>,
-    /// Eye height above the ground, metres.
-    #[arg(long, value_name = "METRES", value_parser = parse_finite)]
-    pub eye_height: Option<f64>,
-    /// Azimuth at the centre of the view, degrees clockwise from north.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub heading: Option<f64>,
-    /// Tilt of the view, degrees; positive looks up.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub pitch: Option<f64>,
-    /// Roll of the view, degrees.
-    #[arg(long, value_name = "DEG", value_parser = parse_finite, allow_hyphen_values = true)]
-    pub roll: Option<f64>,
-}
-
-impl ViewArgs {
-    fn choice(&self) -> ViewChoice {
-        ViewChoice {
-            standpoint: self.standpoint.clone(),
-            at: self.at,
-            eye_height: self.eye_height,
-            heading: self.heading,
-            pitch: self.pitch,
-            roll: self.roll,
-        }
-    }
-}
 
 /// Where a composition command writes.
 #[derive(Debug, Args)]
@@ -206,7 +170,7 @@ impl Progress {
 /// `pansite sheet`.
 pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let site = load_scene(&args.scene)?;
-    let base = choose_view(&site, &args.view.choice())?;
+    let base = choose_view(&site, &args.view)?;
     let standpoints: Vec<Standpoint> = if let Some((from, to, step)) = args.headings {
         sweep_headings(&base, from, to, step)?
     } else if let Some(PathSweep(path)) = &args.path {
@@ -220,10 +184,10 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
             .map(|s| {
                 choose_view(
                     &site,
-                    &ViewChoice {
+                    &ViewArgs {
                         standpoint: Some(s.name.clone()),
                         at: None,
-                        ..args.view.choice()
+                        ..args.view.clone()
                     },
                 )
             })
@@ -274,7 +238,7 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         ..PlanSettings::default()
     };
     let sheet = if args.beside {
-        let standpoint = choose_view(&site, &args.view.choice())?;
+        let standpoint = choose_view(&site, &args.view)?;
         let render = RenderSettings {
             width: args.panorama_size.0,
             height: args.panorama_size.1,
@@ -320,7 +284,7 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
 /// `pansite preview`.
 pub fn preview_command(args: &PreviewArgs) -> anyhow::Result<()> {
     let site = load_scene(&args.scene)?;
-    let standpoint = choose_view(&site, &args.view.choice())?;
+    let standpoint = choose_view(&site, &args.view)?;
     let settings = PreviewSettings {
         width: args.size.0,
         height: args.size.1,

@@ -19,6 +19,7 @@ use pansite::scene::{
     DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
+use render_args::ViewArgs;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -317,30 +318,10 @@ fn read_site(args: &RenderArgs) -> pansite::Result<(Site, LoadTimings)> {
 /// The scene's standpoint (named, or the first), or one made from `--at`, with any
 /// command-line overrides applied.
 fn choose_standpoint(site: &Site, args: &RenderArgs) -> pansite::Result<Standpoint> {
-    choose_view(
-        site,
-        &ViewChoice {
-            standpoint: args.standpoint.clone(),
-            at: args.at,
-            eye_height: args.eye_height,
-            heading: args.heading,
-            pitch: args.pitch,
-            roll: args.roll,
-        },
-    )
+    choose_view(site, &args.view)
 }
 
-/// The options that choose or change the standpoint, whichever command they came with.
-struct ViewChoice {
-    standpoint: Option<String>,
-    at: Option<(f64, f64)>,
-    eye_height: Option<f64>,
-    heading: Option<f64>,
-    pitch: Option<f64>,
-    roll: Option<f64>,
-}
-
-fn choose_view(site: &Site, args: &ViewChoice) -> pansite::Result<Standpoint> {
+fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> {
     let mut standpoint = match (&args.standpoint, args.at) {
         (Some(name), _) => {
             site.standpoint(name)
@@ -490,17 +471,7 @@ fn angles(args: &aids::AnglesArgs) -> anyhow::Result<()> {
     } else {
         load_scene(&args.scene)?
     };
-    let standpoint = choose_view(
-        &site,
-        &ViewChoice {
-            standpoint: args.standpoint.clone(),
-            at: args.at,
-            eye_height: args.eye_height,
-            heading: args.heading,
-            pitch: args.pitch,
-            roll: args.roll,
-        },
-    )?;
+    let standpoint = choose_view(&site, &args.view)?;
     let settings = RenderSettings {
         width: args.size.0,
         height: args.size.1,
