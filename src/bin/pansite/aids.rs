@@ -1,7 +1,7 @@
 //! The command-line flags of the drawing aids, and the `angles` command.
 
 use crate::parse::{parse_finite, parse_size};
-use crate::render_args::ViewArgs;
+use crate::view_args::ViewArgs;
 use clap::{Args, ValueEnum};
 use pansite::aids::AidSettings;
 use pansite::scene::{Division, Fan, Pole, Slope, DEFAULT_FAN_STEP_DEG};

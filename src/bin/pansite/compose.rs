@@ -3,7 +3,8 @@
 //! `watch` (render again whenever the scene or style file is saved).
 
 use super::parse::{parse_finite, parse_pair, parse_size};
-use super::render_args::{FormatArg, HiddenArg, RenderArgs, ViewArgs};
+use super::render_args::{FormatArg, HiddenArg, RenderArgs};
+use super::view_args::ViewArgs;
 use super::{choose_view, output_format, read_site, write_sheets};
 use anyhow::Context;
 use clap::Args;

@@ -6,6 +6,7 @@ mod check;
 mod compose;
 mod parse;
 mod render_args;
+mod view_args;
 
 use anyhow::Context;
 use args::{Cli, Command, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg};
@@ -19,11 +20,11 @@ use pansite::scene::{
     DEFAULT_EYE_HEIGHT, STARTER_SCENE,
 };
 use pansite::Error;
-use render_args::ViewArgs;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::{Duration, Instant};
+use view_args::ViewArgs;
 
 /// How many skipped edges are named one by one before the rest are counted.
 const MAX_NAMED_SKIPS: usize = 20;
