@@ -89,17 +89,7 @@ pub fn parse_scene_timed(
     fallback_name: &str,
 ) -> Result<(Site, LoadTimings)> {
     let started = Instant::now();
-    let text = std::str::from_utf8(bytes).map_err(|e| {
-        let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
-        Error::Scene {
-            path: path.to_owned(),
-            line,
-            column,
-            message: "expected UTF-8 text (this looks like a binary file)".to_owned(),
-        }
-    })?;
-    // A byte-order mark is legal UTF-8 but not RON.
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let text = text_of(bytes, path)?;
     if text.trim().is_empty() {
         return Err(Error::Scene {
             path: path.to_owned(),
@@ -193,16 +183,7 @@ fn item_start(spans: &[ItemSpan], path: &[usize]) -> Option<(usize, usize)> {
 /// `{"grid": (colour: "non-photo blue"), "hidden": (opacity: 0.3)}`.
 pub fn load_style_sheet(path: &Path) -> Result<StyleSheet> {
     let bytes = read_input(path)?;
-    let text = std::str::from_utf8(&bytes).map_err(|e| {
-        let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
-        Error::Scene {
-            path: path.to_owned(),
-            line,
-            column,
-            message: "expected UTF-8 text (this looks like a binary file)".to_owned(),
-        }
-    })?;
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let text = text_of(&bytes, path)?;
     ron::Options::default()
         .with_default_extension(Extensions::IMPLICIT_SOME)
         .from_str(text)
@@ -212,6 +193,21 @@ pub fn load_style_sheet(path: &Path) -> Result<StyleSheet> {
             column: e.span.start.col,
             message: explain(&e.code),
         })
+}
+
+/// The text of a RON file: UTF-8 (a binary file is refused where its first bad byte is),
+/// without a byte-order mark, which is legal UTF-8 but not RON.
+fn text_of<'a>(bytes: &'a [u8], path: &Path) -> Result<&'a str> {
+    let text = std::str::from_utf8(bytes).map_err(|e| {
+        let (line, column) = line_and_column(&bytes[..e.valid_up_to()]);
+        Error::Scene {
+            path: path.to_owned(),
+            line,
+            column,
+            message: "expected UTF-8 text (this looks like a binary file)".to_owned(),
+        }
+    })?;
+    Ok(text.strip_prefix('\u{feff}').unwrap_or(text))
 }
 
 /// Line and column (from 1, counting characters) just after `prefix`.
