@@ -140,15 +140,7 @@ impl PageSettings {
             bottom: placement.band_bottom_px,
         };
         let (dx, dy) = (placement.left_px, placement.top_px - placement.band_top_px);
-        let mut layers: Vec<Layer> = panorama
-            .layers
-            .iter()
-            .map(|layer| Layer {
-                name: layer.name.clone(),
-                stroke: layer.stroke,
-                lines: clip_and_move(&layer.lines, &window, dx, dy),
-            })
-            .collect();
+        let mut layers = clip_layers(&panorama.layers, &window, dx, dy);
         let frame = Rect {
             left: placement.left_px,
             top: placement.top_px,
@@ -257,15 +249,7 @@ impl PageSettings {
                     bottom: y0 + printable_h,
                 };
                 let (dx, dy) = (margin - x0, margin - y0);
-                let mut layers: Vec<Layer> = layout
-                    .layers
-                    .iter()
-                    .map(|layer| Layer {
-                        name: layer.name.clone(),
-                        stroke: layer.stroke,
-                        lines: clip_and_move(&layer.lines, &part, dx, dy),
-                    })
-                    .collect();
+                let mut layers = clip_layers(&layout.layers, &part, dx, dy);
                 let mut marks = PolylineSet::new();
                 let reach = (margin * 0.8).min(8.0 * px);
                 for (x, y, sx, sy) in [
@@ -352,6 +336,18 @@ impl PageSettings {
         }
         sheets
     }
+}
+
+/// Every layer cut to `rect` and moved by `(dx, dy)`, keeping its name and stroke.
+fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
+    layers
+        .iter()
+        .map(|layer| Layer {
+            name: layer.name.clone(),
+            stroke: layer.stroke,
+            lines: clip_and_move(&layer.lines, rect, dx, dy),
+        })
+        .collect()
 }
 
 /// The corners of a rectangle, closed.
