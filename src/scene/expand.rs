@@ -53,6 +53,10 @@ pub fn expand(
     };
     site.hidden_edges = file.hidden;
     site.styles = file.styles.unwrap_or_default();
+    site.location = file
+        .location
+        .as_ref()
+        .map(super::location::Location::from_spec);
     site.standpoints = file
         .standpoints
         .iter()

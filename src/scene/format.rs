@@ -57,6 +57,9 @@ pub struct SceneFile {
     /// Drawing aids: vanishing points, fans, meridians, poles, divisions (`guides.rs`).
     #[serde(default)]
     pub guides: Option<super::guides::GuidesSpec>,
+    /// Where the plan's origin is on the earth (`location.rs`).
+    #[serde(default)]
+    pub location: Option<super::location::LocationSpec>,
     pub items: Vec<ItemSpec>,
 }
 

@@ -14,6 +14,7 @@ mod guides;
 mod items;
 mod load;
 mod locate;
+mod location;
 mod mesh;
 mod numbers;
 mod obj;
@@ -33,6 +34,7 @@ pub use load::{
     load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,
     parse_scene_timed, LoadTimings,
 };
+pub use location::{Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};

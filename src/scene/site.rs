@@ -168,6 +168,8 @@ pub struct Site {
     pub axes: Vec<Axis>,
     /// The drawing aids the scene asks for.
     pub guides: super::guides::Guides,
+    /// Where the plan's origin is on the earth, if the scene says.
+    pub location: Option<super::location::Location>,
 }
 
 impl Site {
