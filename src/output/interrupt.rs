@@ -9,7 +9,16 @@
 
 use std::fs::File;
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Mutex, MutexGuard};
+
+/// How many outputs this process has completed (renamed into place).
+static COMPLETED: AtomicUsize = AtomicUsize::new(0);
+
+/// How many output files this process has written whole, for an interrupt handler to say.
+pub fn completed_writes() -> usize {
+    COMPLETED.load(Ordering::SeqCst)
+}
 
 struct Live {
     paths: Vec<PathBuf>,
@@ -51,6 +60,7 @@ pub(crate) fn rename_temporary(temporary: &Path, to: &Path) -> std::io::Result<(
     }
     std::fs::rename(temporary, to)?;
     live.paths.retain(|p| p != temporary);
+    COMPLETED.fetch_add(1, Ordering::SeqCst);
     Ok(())
 }
 

@@ -1,14 +1,18 @@
 //! The options of `render` (shared by `watch`) and of the small commands, and their checks.
 
-use crate::parse::{parse_finite, parse_non_negative, parse_pair, parse_size};
-pub use crate::view_args::ViewArgs;
+use super::aids::AidArgs;
+use super::values::{parse_finite, parse_non_negative, parse_pair, parse_size};
+use super::view::ViewArgs;
 use clap::{Args, ValueEnum};
 use std::path::PathBuf;
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// The scene file (RON), or a model (Wavefront .obj).
+    /// The scene file (RON), a model (Wavefront .obj), or - for a RON scene on standard input.
     pub scene: PathBuf,
+
+    #[command(flatten)]
+    pub model: ModelArgs,
 }
 
 #[derive(Debug, Args)]
@@ -103,17 +107,8 @@ pub struct RenderArgs {
     #[arg(long, value_enum, value_name = "HOW")]
     pub hidden: Option<HiddenArg>,
 
-    /// For an .obj model: which of its axes points up.
-    #[arg(long, value_enum, default_value = "y")]
-    pub up: UpArg,
-
-    /// For an .obj model: the unit of its coordinates.
-    #[arg(long, value_enum, default_value = "m")]
-    pub unit: UnitArg,
-
-    /// For an .obj model: faces meeting at more than this angle (degrees) show their edge.
-    #[arg(long, value_name = "DEG", default_value_t = pansite::scene::DEFAULT_CREASE_DEG, value_parser = parse_crease)]
-    pub crease: f64,
+    #[command(flatten)]
+    pub model: ModelArgs,
 
     /// Print nothing but errors.
     #[arg(short, long)]
@@ -128,7 +123,24 @@ pub struct RenderArgs {
     pub time_limit: f64,
 
     #[command(flatten)]
-    pub aids: super::aids::AidArgs,
+    pub aids: AidArgs,
+}
+
+/// How a Wavefront OBJ model given instead of a scene is read.
+#[derive(Debug, Args)]
+#[command(next_help_heading = "Models (.obj files)")]
+pub struct ModelArgs {
+    /// For an .obj model: which of its axes points up.
+    #[arg(long, value_enum, default_value = "y")]
+    pub up: UpArg,
+
+    /// For an .obj model: the unit of its coordinates.
+    #[arg(long, value_enum, default_value = "m")]
+    pub unit: UnitArg,
+
+    /// For an .obj model: faces meeting at more than this angle (degrees) show their edge.
+    #[arg(long, value_name = "DEG", default_value_t = pansite::scene::DEFAULT_CREASE_DEG, value_parser = parse_crease)]
+    pub crease: f64,
 }
 
 /// What kind of file to write.

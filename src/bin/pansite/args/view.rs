@@ -1,6 +1,6 @@
 //! Where the viewer stands and looks: the options every command that draws a view shares.
 
-use crate::parse::{parse_finite, parse_non_negative, parse_pair};
+use super::values::{parse_finite, parse_non_negative, parse_pair};
 use clap::Args;
 
 /// The options that choose or change the standpoint, whichever command they come with.

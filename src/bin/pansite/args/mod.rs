@@ -1,7 +1,18 @@
-//! What the user typed: the commands (clap); their options live beside their code.
+//! What the user typed: the commands and their options (clap), and the parsers of their
+//! values. Nothing here does any work; `commands/` turns these into settings and runs them.
 
-pub use crate::render_args::{CheckArgs, FormatArg, NewArgs, RenderArgs, UnitArg, UpArg};
+mod aids;
+mod compose;
+mod render;
+mod values;
+mod view;
+
+pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
+pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
+pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
+pub use values::PathSweep;
+pub use view::ViewArgs;
 
 #[derive(Debug, Parser)]
 #[command(
@@ -27,17 +38,17 @@ pub enum Command {
     New(NewArgs),
     /// List the azimuth, elevation, distance and image position of every labelled point and
     /// item corner, to plot by hand.
-    Angles(super::aids::AnglesArgs),
+    Angles(AnglesArgs),
     /// Draw many standpoints (the scene's, or a sweep of headings, a path or a grid) as
     /// labelled thumbnails on one sheet.
-    Sheet(Box<super::compose::SheetArgs>),
+    Sheet(Box<SheetArgs>),
     /// Draw the site plan from above with each standpoint, its heading and seam, a scale
     /// bar and a north arrow.
-    Plan(Box<super::compose::PlanArgs>),
+    Plan(Box<PlanArgs>),
     /// Draw an ordinary perspective view (straight lines straight) from a standpoint.
-    Preview(Box<super::compose::PreviewArgs>),
+    Preview(Box<PreviewArgs>),
     /// Render, then render again whenever the scene or style file is saved.
-    Watch(Box<super::compose::WatchArgs>),
+    Watch(Box<WatchArgs>),
 }
 
 #[cfg(test)]
@@ -61,7 +72,10 @@ mod tests {
         assert_eq!(r.tolerance, 0.1);
         assert!(!r.bare && !r.quiet && !r.timings);
         assert!(r.output.is_none() && r.view.standpoint.is_none() && r.view.at.is_none());
-        assert_eq!((r.up, r.unit, r.crease), (UpArg::Y, UnitArg::M, 30.0));
+        assert_eq!(
+            (r.model.up, r.model.unit, r.model.crease),
+            (UpArg::Y, UnitArg::M, 30.0)
+        );
     }
 
     #[test]
@@ -103,7 +117,10 @@ mod tests {
         assert_eq!((r.line_weight, r.tolerance), (2.0, 0.05));
         assert!(r.bare && r.quiet && r.timings);
         let r = render(&["--up", "z", "--unit", "mm", "--crease", "45"]).unwrap();
-        assert_eq!((r.up, r.unit, r.crease), (UpArg::Z, UnitArg::Mm, 45.0));
+        assert_eq!(
+            (r.model.up, r.model.unit, r.model.crease),
+            (UpArg::Z, UnitArg::Mm, 45.0)
+        );
     }
 
     #[test]

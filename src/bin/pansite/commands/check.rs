@@ -1,19 +1,16 @@
 //! `pansite check`: read a scene and say what it holds.
 
-use pansite::scene::{load_obj, load_scene, survey, MeshPlacement, Site};
+use super::common::{read_site, write_stdout};
+use crate::args::CheckArgs;
+use pansite::scene::{survey, Site};
 use std::fmt::Write as _;
 use std::path::Path;
 
-pub fn check(path: &Path) -> anyhow::Result<()> {
-    let is_obj = path
-        .extension()
-        .is_some_and(|e| e.eq_ignore_ascii_case("obj"));
-    let site = if is_obj {
-        load_obj(path, &MeshPlacement::default())?.0
-    } else {
-        load_scene(path)?
-    };
-    print!("{}", report(&site, path));
+/// `pansite check`.
+pub fn check(args: &CheckArgs) -> anyhow::Result<()> {
+    let path = args.scene.as_path();
+    let (site, _) = read_site(path, &args.model, false)?;
+    write_stdout(report(&site, path).as_bytes())?;
     let warnings = warnings(&site);
     for warning in &warnings {
         eprintln!("pansite: warning: {warning}");
@@ -61,6 +58,38 @@ pub fn report(site: &Site, path: &Path) -> String {
         None => {
             let _ = writeln!(out, "extent: nothing drawn");
         }
+    }
+    // Where each block's walls stand, so a `facing` or an anchor that put the block
+    // elsewhere than meant shows at once.
+    let blocks: Vec<_> = site
+        .items
+        .iter()
+        .enumerate()
+        .filter(|(_, item)| item.kind == "block")
+        .collect();
+    if !blocks.is_empty() {
+        let _ = writeln!(out, "block corners at the foot (x, y):");
+    }
+    for (id, _) in blocks {
+        let feet: Vec<String> = site
+            .named_points
+            .iter()
+            .filter(|n| n.item.0 as usize == id && n.name.ends_with(" foot"))
+            .map(|n| {
+                format!(
+                    "{} ({:.2}, {:.2})",
+                    n.name.trim_end_matches(" foot"),
+                    n.at.x,
+                    n.at.y
+                )
+            })
+            .collect();
+        let _ = writeln!(
+            out,
+            "  {}: {}",
+            site.describe_item(pansite::scene::ItemId(id as u32)),
+            feet.join(", ")
+        );
     }
     let default = site.default_standpoint().map(|s| s.name.as_str());
     let _ = writeln!(out, "standpoints: {}", site.standpoints.len());

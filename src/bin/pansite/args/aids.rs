@@ -1,9 +1,9 @@
 //! The command-line flags of the drawing aids, and the `angles` command.
 
-use crate::parse::{parse_finite, parse_size};
-use crate::view_args::ViewArgs;
+use super::render::ModelArgs;
+use super::values::{parse_finite, parse_size};
+use super::view::ViewArgs;
 use clap::{Args, ValueEnum};
-use pansite::aids::AidSettings;
 use pansite::scene::{Division, Fan, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 use std::path::PathBuf;
 
@@ -68,38 +68,6 @@ pub struct AidArgs {
     pub text_height: Option<f64>,
 }
 
-impl AidArgs {
-    pub fn settings(&self) -> AidSettings {
-        let base = if self.aids {
-            AidSettings::all()
-        } else {
-            AidSettings::default()
-        };
-        let mut settings = AidSettings {
-            grid_step_deg: self.grid.unwrap_or(base.grid_step_deg),
-            grid_major_every: self.grid_major.unwrap_or(base.grid_major_every),
-            labels: base.labels || self.labels,
-            item_labels: base.item_labels || self.item_labels,
-            vanishing_points: base.vanishing_points || self.vanishing,
-            text_height_px: self.text_height,
-            ..base
-        };
-        let guides = &mut settings.guides;
-        guides.bearings.clone_from(&self.bearing);
-        guides.slopes.clone_from(&self.slope);
-        guides.fans.clone_from(&self.fan);
-        guides.meridians.clone_from(&self.meridian);
-        guides.poles.clone_from(&self.pole);
-        guides.divisions = self
-            .divide
-            .iter()
-            .chain(&self.divide_edges)
-            .cloned()
-            .collect();
-        settings
-    }
-}
-
 /// How `angles` writes its table.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, ValueEnum)]
 pub enum TableFormat {
@@ -114,8 +82,11 @@ pub enum TableFormat {
 
 #[derive(Debug, Args)]
 pub struct AnglesArgs {
-    /// The scene file (RON).
+    /// The scene file (RON), a model (Wavefront .obj), or - for a RON scene on standard input.
     pub scene: PathBuf,
+
+    #[command(flatten)]
+    pub model: ModelArgs,
 
     /// Where to write the table [default: standard output].
     #[arg(short, long, value_name = "FILE")]
