@@ -100,7 +100,7 @@ pub fn angle_table(
             item,
             what,
             at,
-            azimuth_deg: super::normal_azimuth_deg(azimuth.to_degrees()),
+            azimuth_deg: super::marks::normal_azimuth_deg(azimuth.to_degrees()),
             relative_deg: ((azimuth - heading + PI).rem_euclid(2.0 * PI) - PI).to_degrees(),
             elevation_deg: elevation.to_degrees(),
             distance,
@@ -145,8 +145,18 @@ pub fn angle_table(
                 rows.extend(row(name.clone(), "point".to_owned(), marker.at));
             }
         }
+        let named: Vec<_> = site
+            .named_points
+            .iter()
+            .filter(|n| n.item.0 as usize == id)
+            .collect();
         for (k, p) in corners[id].iter().enumerate() {
-            rows.extend(row(name.clone(), format!("corner {}", k + 1), *p));
+            // A corner the item knows by name is called so; others are numbered.
+            let what = named
+                .iter()
+                .find(|n| (n.at - p).norm() < 1e-6)
+                .map_or_else(|| format!("corner {}", k + 1), |n| n.name.clone());
+            rows.extend(row(name.clone(), what, *p));
         }
     }
     rows
@@ -260,7 +270,7 @@ pub fn to_json(rows: &[AngleRow], standpoint: &Standpoint, map: &Equirect) -> St
         fixed(standpoint.x, 3),
         fixed(standpoint.y, 3),
         fixed(standpoint.eye().z, 3),
-        fixed(super::normal_azimuth_deg(standpoint.heading.to_degrees()), 3),
+        fixed(super::marks::normal_azimuth_deg(standpoint.heading.to_degrees()), 3),
         map.width(),
         map.height()
     );

@@ -133,6 +133,16 @@ impl<'a> ItemBuilder<'a> {
         }
     }
 
+    /// Names a point of the item by what it is (in this builder's coordinates).
+    pub fn name_point(&mut self, at: Point3<f64>, name: impl Into<String>) {
+        let at = self.place.point(&at);
+        self.site.named_points.push(super::site::NamedPoint {
+            at,
+            item: self.item,
+            name: name.into(),
+        });
+    }
+
     /// Shapes given in a frame of their own: `offset` (in this builder's coordinates) is
     /// their origin and `turn` (radians clockwise seen from above) their rotation.
     pub fn move_by(&mut self, offset: Vector3<f64>, turn: f64) {

@@ -39,8 +39,8 @@ pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, Outline, SilhouetteEdge, Site,
-    SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+    Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, NamedPoint, Outline, SilhouetteEdge,
+    Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

@@ -64,6 +64,15 @@ pub struct Marker {
     pub item: ItemId,
 }
 
+/// A point of an item named by what it is (`front left eaves`, `ridge left end`, `apex`),
+/// so that tables and reports can say more than "corner 7".
+#[derive(Clone, Debug, PartialEq)]
+pub struct NamedPoint {
+    pub at: Point3<f64>,
+    pub item: ItemId,
+    pub name: String,
+}
+
 /// A direction an item declares as one of its own that no edge of it runs along (a
 /// stair's rake), for the vanishing points.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -158,6 +167,8 @@ pub struct Site {
     /// Round shapes whose outline depends on the eye (columns, cones, domes).
     pub outlines: Vec<Outline>,
     pub markers: Vec<Marker>,
+    /// Points of items named by what they are (see [`NamedPoint`]).
+    pub named_points: Vec<NamedPoint>,
     /// Things that look wrong but can still be drawn (a block of no height), by item.
     pub warnings: Vec<(ItemId, String)>,
     /// How the scene asks for hidden edges to be drawn, if it says.

@@ -144,6 +144,67 @@ pub fn rectangle_walls(choice: WallChoice) -> Result<Vec<usize>, String> {
     })
 }
 
+/// The names of a rectangle's corners, counter-clockwise from the front-left as
+/// [`rectangle_plan`] gives them, as seen by someone facing the front.
+pub const RECTANGLE_CORNERS: [&str; 4] = ["front left", "front right", "back right", "back left"];
+
+/// Names the block's corners at its foot and eaves, and its ridge ends or apex.
+fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: f64, height: f64) {
+    let top = if block.roof == RoofSpec::Flat {
+        "top"
+    } else {
+        "eaves"
+    };
+    for (corner, name) in rectangle_plan(width, depth).iter().zip(RECTANGLE_CORNERS) {
+        b.name_point(Point3::new(corner.x, corner.y, 0.0), format!("{name} foot"));
+        b.name_point(
+            Point3::new(corner.x, corner.y, height),
+            format!("{name} {top}"),
+        );
+    }
+    let (half_w, half_d) = (width / 2.0, depth / 2.0);
+    match block.roof {
+        RoofSpec::Gable {
+            ridge,
+            along: Along::Width,
+            ..
+        } => {
+            b.name_point(Point3::new(0.0, half_d, ridge.0), "ridge left end");
+            b.name_point(Point3::new(width, half_d, ridge.0), "ridge right end");
+        }
+        RoofSpec::Gable {
+            ridge,
+            along: Along::Depth,
+            ..
+        } => {
+            b.name_point(Point3::new(half_w, 0.0, ridge.0), "ridge front end");
+            b.name_point(Point3::new(half_w, depth, ridge.0), "ridge back end");
+        }
+        RoofSpec::Hip { ridge, .. } => {
+            // The hips rise at one pitch from all four sides, so the ridge ends stand half
+            // the shorter side in from the ends.
+            let inset = half_w.min(half_d);
+            if width >= depth {
+                b.name_point(Point3::new(inset, half_d, ridge.0), "ridge left end");
+                b.name_point(
+                    Point3::new(width - inset, half_d, ridge.0),
+                    "ridge right end",
+                );
+            } else {
+                b.name_point(Point3::new(half_w, inset, ridge.0), "ridge front end");
+                b.name_point(
+                    Point3::new(half_w, depth - inset, ridge.0),
+                    "ridge back end",
+                );
+            }
+        }
+        RoofSpec::Pyramid { apex, .. } => {
+            b.name_point(Point3::new(half_w, half_d, apex.0), "apex");
+        }
+        RoofSpec::Flat | RoofSpec::Shed { .. } => {}
+    }
+}
+
 pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
@@ -211,6 +272,7 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
         overhang,
         parapet: block.parapet.map(|p| (p.height.0, p.thickness.0)),
     };
+    name_block_points(b, block, width, depth, height);
     let walls = mass.walls();
     let mut openings = vec![Vec::new(); 4];
     for spec in &block.openings {
