@@ -75,6 +75,18 @@ pub fn load_obj_timed(
     Ok((site, stats, LoadTimings { parse, expand }))
 }
 
+/// A message for text that is JSON rather than a RON scene (a JSON object or array at the
+/// start, where a scene begins with `Scene(` or `(`), or `None`.
+fn looks_like_json(text: &str) -> Option<String> {
+    let start = text.trim_start();
+    let json = start.starts_with('{') || (start.starts_with('[') && !start.contains("Scene("));
+    json.then(|| {
+        "this file looks like JSON, not a pansite scene; a scene is written in RON and begins \
+         Scene(standpoints: [...], items: [...]) (see docs/scene-format.md)"
+            .to_owned()
+    })
+}
+
 /// Parses scene text. `path` names the file in messages and is where models (OBJ files)
 /// named in the scene are looked for, relative to its folder; `fallback_name` names a scene
 /// that has no `name`.
@@ -96,6 +108,14 @@ pub fn parse_scene_timed(
             line: 1,
             column: 1,
             message: "the file is empty; expected a scene: Scene(items: [...])".to_owned(),
+        });
+    }
+    if let Some(message) = looks_like_json(text) {
+        return Err(Error::Scene {
+            path: path.to_owned(),
+            line: 1,
+            column: 1,
+            message,
         });
     }
     let options = ron::Options::default()
@@ -240,6 +260,19 @@ mod tests {
             }) => (line, column, message),
             other => panic!("expected a scene error, got {other:?}"),
         }
+    }
+
+    #[test]
+    fn json_is_told_apart_from_a_scene() {
+        for text in ["{\"type\": \"FeatureCollection\"}", "  [1, 2]"] {
+            let (line, column, message) = error_at(text);
+            assert_eq!((line, column), (1, 1));
+            assert!(message.contains("looks like JSON"), "{message}");
+            assert!(message.contains("Scene("), "{message}");
+        }
+        // A RON scene is never taken for JSON.
+        assert!(looks_like_json("Scene(items: [])").is_none());
+        assert!(looks_like_json("(items: [])").is_none());
     }
 
     #[test]

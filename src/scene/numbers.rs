@@ -138,6 +138,24 @@ impl<'de> Deserialize<'de> for Count {
     }
 }
 
+/// The number of a wall side, counted from 1: `Side(1)` runs from the first corner to the
+/// second.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SideNumber(pub u32);
+
+impl<'de> Deserialize<'de> for SideNumber {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        let value = f64::deserialize(deserializer)?;
+        if value.fract() == 0.0 && (1.0..=MAX_COUNT as f64).contains(&value) {
+            Ok(SideNumber(value as u32))
+        } else {
+            Err(serde::de::Error::custom(format!(
+                "expected a side number counted from 1 (Side(1) runs from the first corner to the second), found {value}"
+            )))
+        }
+    }
+}
+
 /// A plan position or size pair (x, y).
 pub type Plan = (Finite, Finite);
 /// A site position (x, y, z).

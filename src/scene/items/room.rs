@@ -158,7 +158,7 @@ pub fn build_room(b: &mut ItemBuilder, spec: &RoomSpec) -> Result<(), String> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::super::numbers::NonNegative;
+    use super::super::super::numbers::{NonNegative, SideNumber};
     use super::super::super::site::Site;
     use super::super::checks::{
         assert_bounds, assert_faces_within, bounds, built, edge_counts, edge_points, unpaired_sides,
@@ -297,7 +297,7 @@ mod tests {
         // The right wall is at x = 5; its reveal reaches out to x = 5.3.
         let box_ = bounds(&edge_points(&site));
         assert_bounds(box_, [0.0, 0.0, 0.0], [5.3, 4.0, 3.0], 1e-9);
-        spec.openings = vec![opening(WallChoice::Side(Count(5)), 1.0, 1.2, 1.0, 0.3)];
+        spec.openings = vec![opening(WallChoice::Side(SideNumber(5)), 1.0, 1.2, 1.0, 0.3)];
         assert!(build(&spec).is_err());
     }
 }

@@ -3,7 +3,7 @@
 //! this.
 
 use super::super::build::ItemBuilder;
-use super::super::numbers::{Count, NonNegative, Positive};
+use super::super::numbers::{Count, NonNegative, Positive, SideNumber};
 use nalgebra::{Point3, Vector2};
 use serde::Deserialize;
 
@@ -16,7 +16,7 @@ pub enum WallChoice {
     Back,
     Left,
     All,
-    Side(Count),
+    Side(SideNumber),
 }
 
 fn one() -> Count {
