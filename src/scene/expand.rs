@@ -186,30 +186,9 @@ impl Walker<'_> {
             .site
             .add_item_on_layer(item.kind(), label, layer.map(str::to_owned));
         let mut b = ItemBuilder::new(self.site, id, place);
-        let built = match item {
-            ItemSpec::Block(spec) => build_block(&mut b, spec),
-            ItemSpec::Footprint(spec) => build_footprint(&mut b, spec),
-            ItemSpec::Road(spec) => build_road(&mut b, spec),
-            ItemSpec::Arch(spec) | ItemSpec::Arcade(spec) => build_arcade(&mut b, spec),
-            ItemSpec::Column(spec) | ItemSpec::Cylinder(spec) => build_column(&mut b, spec),
-            ItemSpec::Tower(spec) => build_tower(&mut b, spec),
-            ItemSpec::Dome(spec) => build_dome(&mut b, spec),
-            ItemSpec::Stairs(spec) => build_stairs(&mut b, spec),
-            ItemSpec::Tiles(spec) => build_tiles(&mut b, spec),
-            ItemSpec::Vault(spec) => build_vault(&mut b, spec),
-            ItemSpec::Room(spec) => build_room(&mut b, spec),
-            ItemSpec::Polyline(spec) => {
-                build_polyline(&mut b, spec);
-                Ok(())
-            }
-            ItemSpec::Line(spec) => build_line(&mut b, spec),
-            ItemSpec::Point(spec) => {
-                build_point(&mut b, spec);
-                Ok(())
-            }
-            ItemSpec::Group(_) | ItemSpec::Repeat(_) | ItemSpec::Model(_) => Ok(()),
-        };
-        built.map_err(|message| self.fail(message))?;
+        if let Some(built) = item.build(&mut b) {
+            built.map_err(|message| self.fail(message))?;
+        }
         self.check_size()
     }
 

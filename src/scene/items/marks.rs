@@ -39,9 +39,10 @@ pub struct PointSpec {
     pub at: Spot,
 }
 
-pub fn build_polyline(b: &mut ItemBuilder, spec: &PolylineSpec) {
+pub fn build_polyline(b: &mut ItemBuilder, spec: &PolylineSpec) -> Result<(), String> {
     let points: Vec<Point3<f64>> = spec.points.0.iter().map(spot).collect();
     b.path(&points, spec.closed);
+    Ok(())
 }
 
 pub fn build_line(b: &mut ItemBuilder, spec: &LineSpec) -> Result<(), String> {
@@ -53,6 +54,7 @@ pub fn build_line(b: &mut ItemBuilder, spec: &LineSpec) -> Result<(), String> {
     Ok(())
 }
 
-pub fn build_point(b: &mut ItemBuilder, spec: &PointSpec) {
+pub fn build_point(b: &mut ItemBuilder, spec: &PointSpec) -> Result<(), String> {
     b.marker(spot(&spec.at));
+    Ok(())
 }
