@@ -4,8 +4,8 @@
 use crate::aids::{self, AidSettings};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
-    apply_styles, page_style, wireframe, wireframe_layer_name, Distance, Drawing, Layer,
-    SkippedEdge, Stroke, Wireframe, HIDDEN,
+    apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
+    Distance, Drawing, Layer, SkippedEdge, Stroke, Wireframe,
 };
 use crate::error::{Error, Result};
 use crate::output::{
@@ -15,6 +15,7 @@ use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
+use crate::visibility::HiddenLines;
 use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -102,12 +103,7 @@ impl RenderSettings {
                 ),
             });
         }
-        if !(self.tolerance_px.is_finite() && (0.001..=100.0).contains(&self.tolerance_px)) {
-            return Err(Error::Setting(format!(
-                "tolerance {} px is outside 0.001 to 100 px",
-                self.tolerance_px
-            )));
-        }
+        crate::plane::check_tolerance(self.tolerance_px)?;
         if !(self.line_weight_px.is_finite()
             && self.line_weight_px > 0.0
             && self.line_weight_px <= MAX_LINE_WEIGHT_PX)
@@ -186,34 +182,32 @@ pub fn draw_within(
     if settings.overlays {
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
-    let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
+    let hidden_lines = HiddenLines::new(site, settings.hidden);
     let Wireframe {
         layers: site_layers,
         hidden,
         skipped,
-        hierarchy,
     } = wireframe(
         site,
         &view,
         &flattener,
-        hidden_edges,
+        &hidden_lines,
         settings.weight_by_distance,
         budget,
     )?;
     let width = settings.line_weight_px;
-    if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
-        // Under the seen edges, lighter, thinner and (by the styles) dashed.
-        layers.push(Layer {
-            name: HIDDEN.to_owned(),
-            stroke: Stroke::black(0.4, (0.75 * width).max(0.75)),
-            lines: hidden,
-        });
+    if hidden_lines.mode == HiddenEdges::Faint && !hidden.is_empty() {
+        // Under the seen edges; dashed by the styles.
+        layers.push(hidden_layer(hidden, width));
     }
     let stroke = Stroke::black(1.0, settings.line_weight_px);
+    // Which layers hold near and far edges, by index: their weights change after styles.
+    let mut by_distance: Vec<(usize, Distance)> = Vec::new();
     for (index, wire) in site_layers.into_iter().enumerate() {
         // The default layer is always there, even empty; named layers only when used.
         if index == 0 || !wire.lines.is_empty() {
             let name = wireframe_layer_name(wire.site_layer.as_deref());
+            by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
                 name: match wire.distance {
                     Distance::Middle => name,
@@ -241,15 +235,15 @@ pub fn draw_within(
         &mut layers,
         &sheets,
         settings.dpi / 25.4,
-        (3.0 * width + 3.0, 2.0 * width + 2.0),
+        hidden_dash_px(width),
     );
     // Nearer edges heavier, farther ones lighter, after the styles have set the weight.
-    for layer in &mut layers {
-        if layer.name.ends_with(NEAR_SUFFIX) {
-            layer.stroke.width_px *= NEAR_WEIGHT;
-        } else if layer.name.ends_with(FAR_SUFFIX) {
-            layer.stroke.width_px *= FAR_WEIGHT;
-        }
+    for (index, distance) in by_distance {
+        layers[index].stroke.width_px *= match distance {
+            Distance::Near => NEAR_WEIGHT,
+            Distance::Middle => 1.0,
+            Distance::Far => FAR_WEIGHT,
+        };
     }
     let drawing = Drawing {
         width: settings.width,
@@ -258,7 +252,7 @@ pub fn draw_within(
     };
     let timings = Timings {
         flatten: started.elapsed(),
-        hierarchy,
+        hierarchy: hidden_lines.hierarchy_time,
         ..Timings::default()
     };
     Ok(Render {

@@ -146,12 +146,7 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
             settings.dpi
         )));
     }
-    if !(settings.tolerance_px.is_finite() && (0.001..=100.0).contains(&settings.tolerance_px)) {
-        return Err(Error::Setting(format!(
-            "tolerance {} px is outside 0.001 to 100 px",
-            settings.tolerance_px
-        )));
-    }
+    crate::plane::check_tolerance(settings.tolerance_px)?;
     // The extent: the site's and the standpoints', with a little room round it.
     let (mut lo, mut hi) = match bounds(site) {
         Some((lo, hi)) => ((lo.x, lo.y), (hi.x, hi.y)),

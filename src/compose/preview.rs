@@ -11,14 +11,14 @@
 //! near plane; an elliptic arc is sampled until every chord is within the tolerance of
 //! the true image.
 
-use crate::drawing::{dashed, HIDDEN};
+use crate::drawing::{dashed, hidden_dash_px, hidden_layer};
 use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
 use crate::error::{Error, Result};
 use crate::page::{clip_segment, Rect};
 use crate::plane::{ImagePoint, PolylineSet};
 use crate::scene::{HiddenEdges, Site, SiteCurve, Standpoint};
 use crate::sphere::ViewFrame;
-use crate::visibility::{Bvh, Depth, Occluders};
+use crate::visibility::{Depth, HiddenLines};
 use nalgebra::{Point3, Vector3};
 
 /// Distance in front of the eye (metres, along the view axis) where edges are cut: the
@@ -78,13 +78,7 @@ impl Pinhole {
                 reason: "a preview is from 1 to 16384 pixels a side".into(),
             });
         }
-        if !(settings.tolerance_px.is_finite() && (0.001..=100.0).contains(&settings.tolerance_px))
-        {
-            return Err(Error::Setting(format!(
-                "tolerance {} px is outside 0.001 to 100 px",
-                settings.tolerance_px
-            )));
-        }
+        crate::plane::check_tolerance(settings.tolerance_px)?;
         Ok(Pinhole {
             view: ViewFrame::new(standpoint),
             width: w as f64,
@@ -302,15 +296,8 @@ pub fn preview(
     let (mut seen, mut hidden) = (Vec::new(), Vec::new());
     let eye = camera.view.eye();
     let outlines = site.outline_edges_from(&eye);
-    let hidden_edges = settings.hidden.or(site.hidden_edges).unwrap_or_default();
-    let bvh = (hidden_edges != HiddenEdges::Solid && !site.faces.is_empty())
-        .then(|| Bvh::new(&site.faces));
-    let occluders = bvh.as_ref().map(|bvh| Occluders {
-        faces: &site.faces,
-        bvh,
-        view: &camera.view,
-        eye,
-    });
+    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    let occluders = hidden_lines.occluders(site, &camera.view);
     // The angle of a pixel at the picture's centre (smaller towards its edges).
     let pixel = 1.0 / camera.focal_px;
     let tolerance = settings.tolerance_px;
@@ -363,13 +350,10 @@ pub fn preview(
         stroke: Stroke::black(0.5, 1.25),
         lines: horizon,
     }];
-    if hidden_edges == HiddenEdges::Faint && !hidden.is_empty() {
-        // As in the panorama: lighter, thinner and dashed, under the seen edges.
-        layers.push(Layer {
-            name: HIDDEN.to_owned(),
-            stroke: Stroke::black(0.4, (0.75 * width).max(0.75)),
-            lines: dashed(&join(&hidden), 3.0 * width + 3.0, 2.0 * width + 2.0),
-        });
+    if hidden_lines.mode == HiddenEdges::Faint && !hidden.is_empty() {
+        // As in the panorama, under the seen edges; a preview has no styles to dash it.
+        let (on, off) = hidden_dash_px(width);
+        layers.push(hidden_layer(dashed(&join(&hidden), on, off), width));
     }
     layers.push(Layer {
         name: WIREFRAME.to_owned(),

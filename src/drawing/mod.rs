@@ -3,13 +3,11 @@
 
 mod dash;
 mod lettering;
-mod overlay;
 mod style;
 mod wireframe;
 
 pub use dash::dashed;
 pub use lettering::{letter, text_width, Align};
-pub use overlay::{grid_and_horizon, GRID_STEP_DEG};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
@@ -73,6 +71,22 @@ pub fn wireframe_layer_name(site_layer: Option<&str>) -> String {
 
 /// The layer of the parts of edges hidden behind faces.
 pub const HIDDEN: &str = "hidden";
+
+/// The layer of hidden parts drawn faint, as the panorama and the preview both draw it:
+/// lighter and thinner than the seen edges it goes under (dashed by [`hidden_dash_px`]).
+pub fn hidden_layer(lines: PolylineSet, line_weight_px: f64) -> Layer {
+    Layer {
+        name: HIDDEN.to_owned(),
+        stroke: Stroke::black(0.4, (0.75 * line_weight_px).max(0.75)),
+        lines,
+    }
+}
+
+/// The dashes (on, off, in pixels) of hidden parts where no style gives them: long enough
+/// to read as a line, broken enough never to be taken for a seen edge.
+pub fn hidden_dash_px(line_weight_px: f64) -> (f64, f64) {
+    (3.0 * line_weight_px + 3.0, 2.0 * line_weight_px + 2.0)
+}
 
 /// Layer names start with this for the site's edges.
 pub const WIREFRAME: &str = "wireframe";

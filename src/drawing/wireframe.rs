@@ -3,10 +3,10 @@
 use crate::budget::Budget;
 use crate::error::{Error, Result};
 use crate::plane::{Flattener, PolylineSet};
-use crate::scene::{Edge, HiddenEdges, ItemId, Marker, Site, SiteCurve};
+use crate::scene::{Edge, ItemId, Marker, Site, SiteCurve};
 use crate::sphere::SphereCurve;
 use crate::sphere::{Degeneracy, ViewFrame};
-use crate::visibility::{Bvh, Depth, Occluders};
+use crate::visibility::{Depth, HiddenLines, Occluders};
 use nalgebra::{Point3, Vector3};
 
 /// An edge left out because it has no drawable image from the standpoint.
@@ -31,7 +31,7 @@ pub fn wireframe(
     site: &Site,
     view: &ViewFrame,
     flattener: &Flattener,
-    hidden: HiddenEdges,
+    hidden_lines: &HiddenLines,
     by_distance: bool,
     budget: &Budget,
 ) -> Result<Wireframe> {
@@ -55,18 +55,7 @@ pub fn wireframe(
             site.edges.len() + (run - fixed_runs) * EDGES_PER_RUN
         }
     };
-    // Hidden parts are found only when they are to be drawn differently, and there is
-    // something to hide them.
-    let hierarchy_started = std::time::Instant::now();
-    let bvh =
-        (hidden != HiddenEdges::Solid && !site.faces.is_empty()).then(|| Bvh::new(&site.faces));
-    let hierarchy = hierarchy_started.elapsed();
-    let occluders = bvh.as_ref().map(|bvh| Occluders {
-        faces: &site.faces,
-        bvh,
-        view,
-        eye,
-    });
+    let occluders = hidden_lines.occluders(site, view);
     let occluders = occluders.as_ref();
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
@@ -166,7 +155,6 @@ pub fn wireframe(
         layers,
         hidden,
         skipped,
-        hierarchy,
     })
 }
 
@@ -225,8 +213,6 @@ pub struct Wireframe {
     /// The parts of edges hidden behind faces (empty unless hidden parts are looked for).
     pub hidden: PolylineSet,
     pub skipped: Vec<SkippedEdge>,
-    /// The time taken to build the hierarchy of faces for hidden lines.
-    pub hierarchy: std::time::Duration,
 }
 
 /// How far an edge is from the eye, when lines are weighed by distance (a common drawing

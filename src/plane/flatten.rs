@@ -48,6 +48,25 @@ use std::f64::consts::{FRAC_PI_4, PI, TAU};
 /// The default tolerance, in output pixels.
 pub const DEFAULT_TOLERANCE_PX: f64 = 0.1;
 
+/// The tolerances a drawing may ask for, in output pixels: finer than a thousandth of a
+/// pixel only multiplies vertices, coarser than 100 pixels is no longer a drawing of the
+/// curve.
+pub const TOLERANCE_RANGE_PX: std::ops::RangeInclusive<f64> = 0.001..=100.0;
+
+/// Refuses a tolerance outside [`TOLERANCE_RANGE_PX`] (or not a number), with the message
+/// every setting that takes one gives.
+pub fn check_tolerance(tolerance_px: f64) -> crate::Result<()> {
+    if TOLERANCE_RANGE_PX.contains(&tolerance_px) {
+        Ok(())
+    } else {
+        Err(crate::Error::Setting(format!(
+            "tolerance {tolerance_px} px is outside {} to {} px",
+            TOLERANCE_RANGE_PX.start(),
+            TOLERANCE_RANGE_PX.end()
+        )))
+    }
+}
+
 /// Pieces longer than this in parameter (radians of arc for great circles) are cut in equal
 /// parts first, so that no single chord test spans an inflection on both sides.
 const MAX_PIECE_PARAMETER: f64 = FRAC_PI_4;
@@ -691,6 +710,16 @@ mod tests {
 
     fn arc(a: [f64; 3], b: [f64; 3]) -> SphereCurve {
         SphereCurve::great_arc(&Vector3::from(a), &Vector3::from(b)).unwrap()
+    }
+
+    #[test]
+    fn tolerances_are_checked_in_one_place() {
+        assert!(check_tolerance(DEFAULT_TOLERANCE_PX).is_ok());
+        assert!(check_tolerance(0.001).is_ok() && check_tolerance(100.0).is_ok());
+        for bad in [0.0, 0.0009, 100.5, f64::NAN, f64::INFINITY, -1.0] {
+            let error = check_tolerance(bad).unwrap_err().to_string();
+            assert!(error.contains("outside 0.001 to 100 px"), "{bad}: {error}");
+        }
     }
 
     #[test]

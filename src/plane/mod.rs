@@ -5,6 +5,6 @@ mod equirect;
 mod flatten;
 mod polyline;
 
-pub use equirect::{Equirect, ImagePoint};
-pub use flatten::{flatten, Flattener, DEFAULT_TOLERANCE_PX};
+pub use equirect::{image_of_direction, image_of_point, Equirect, ImagePoint};
+pub use flatten::{check_tolerance, flatten, Flattener, DEFAULT_TOLERANCE_PX, TOLERANCE_RANGE_PX};
 pub use polyline::PolylineSet;
