@@ -676,3 +676,199 @@ fn pages_and_formats_from_the_command_line() {
         stderr(&out)
     );
 }
+
+// Everyday friction found in use (issue: a house a newcomer can live in).
+
+/// Runs the binary with `input` on standard input.
+fn with_stdin(dir: &Scratch, args: &[&str], input: &[u8]) -> Output {
+    use std::io::Write;
+    use std::process::Stdio;
+    let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .current_dir(&dir.0)
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    child.stdin.take().unwrap().write_all(input).unwrap();
+    child.wait_with_output().unwrap()
+}
+
+#[test]
+fn a_reader_that_stops_early_ends_the_program_quietly() {
+    use std::io::Read;
+    use std::process::Stdio;
+    let dir = Scratch::new("pipe");
+    // Enough rows that the table cannot fit in the pipe's buffer (64 KiB on Linux).
+    let points: String = (0..4000)
+        .map(|k| format!("Point(label: \"post {k}\", at: ({}, 5, 0)),\n", k % 50))
+        .collect();
+    dir.write(
+        "many.ron",
+        &format!("Scene(standpoints: [(name: \"a\", x: 0, y: 0)], items: [{points}])"),
+    );
+    for args in [
+        &["angles", "many.ron"][..],
+        &["render", "many.ron", "--size", "2048x1024", "-o", "-"],
+    ] {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
+            .current_dir(&dir.0)
+            .args(args)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        // Read a little, as `head` does, then close the pipe.
+        let mut first = [0u8; 16];
+        child
+            .stdout
+            .as_mut()
+            .unwrap()
+            .read_exact(&mut first)
+            .unwrap();
+        drop(child.stdout.take());
+        let out = child.wait_with_output().unwrap();
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {}", stderr(&out));
+        assert!(!stderr(&out).contains("pipe"), "{args:?}: {}", stderr(&out));
+    }
+}
+
+#[test]
+fn every_command_that_takes_a_scene_reads_standard_input() {
+    let dir = Scratch::new("stdin-all");
+    let scene = std::fs::read(demo()).unwrap();
+    let check = with_stdin(&dir, &["check", "-"], &scene);
+    assert_eq!(check.status.code(), Some(0), "{}", stderr(&check));
+    assert!(String::from_utf8_lossy(&check.stdout).contains("Wexcombe"));
+    for (args, file) in [
+        (&["plan", "-", "-o", "plan.svg"][..], "plan.svg"),
+        (&["preview", "-", "-o", "preview.png"], "preview.png"),
+        (
+            &[
+                "sheet",
+                "-",
+                "--thumb",
+                "96x48",
+                "--hidden",
+                "solid",
+                "-o",
+                "sheet.png",
+            ],
+            "sheet.png",
+        ),
+        (&["angles", "-", "-o", "angles.txt"], "angles.txt"),
+    ] {
+        let out = with_stdin(&dir, args, &scene);
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {}", stderr(&out));
+        assert!(dir.path(file).exists(), "{args:?} wrote no {file}");
+    }
+    // watch must read its file again on every save, so it says it cannot watch a stream.
+    let out = with_stdin(&dir, &["watch", "-"], &scene);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("needs a scene file"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[cfg(unix)]
+#[test]
+fn stopping_watch_says_what_it_wrote() {
+    use std::process::Stdio;
+    let dir = Scratch::new("watch-stop");
+    std::fs::copy(demo(), dir.path("square.ron")).unwrap();
+    let child = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .current_dir(&dir.0)
+        .args(["watch", "square.ron", "--size", "256x128", "-o", "live.png"])
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let started = std::time::Instant::now();
+    while !dir.path("live.png").exists() {
+        assert!(started.elapsed().as_secs() < 60, "watch wrote nothing");
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+    let sent = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(sent.success());
+    let out = child.wait_with_output().unwrap();
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(130), "{err}");
+    assert!(err.contains("1 file written before"), "{err}");
+    assert!(!err.contains("no file was written"), "{err}");
+}
+
+#[test]
+fn a_json_file_is_told_it_is_not_a_scene() {
+    let dir = Scratch::new("json");
+    dir.write(
+        "data.json",
+        "{\"type\": \"FeatureCollection\", \"features\": []}",
+    );
+    let out = pansite(&dir, &["render", "data.json"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = stderr(&out);
+    assert!(err.contains("data.json:1:1"), "{err}");
+    assert!(err.contains("looks like JSON"), "{err}");
+    assert!(!err.contains("Expected opening"), "{err}");
+}
+
+#[test]
+fn footprint_sides_are_said_to_count_from_one() {
+    let dir = Scratch::new("side0");
+    dir.write(
+        "side.ron",
+        "Scene(standpoints: [(name: \"a\", x: 0, y: -20)], items: [\n\
+         Footprint(points: [(0, 0), (8, 0), (8, 6), (0, 6)], height: 5,\n\
+         openings: [(wall: Side(0), count: 2, width: 1, height: 1.5)])])",
+    );
+    let out = pansite(&dir, &["check", "side.ron"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = stderr(&out);
+    assert!(err.contains("side.ron:3:"), "{err}");
+    assert!(err.contains("counted from 1"), "{err}");
+}
+
+/// A block facing north at Corner(0, 0), 4 m wide and 3 m deep, under a gable along its
+/// width: its width runs west and its depth south (docs/scene-format.md, "Block").
+const NORTH_FACING: &str = "Scene(standpoints: [(name: \"a\", x: 2, y: 12)], items: [\n\
+     Block(label: \"shed\", at: Corner(0, 0), width: 4, depth: 3, height: 2.5, facing: 0,\n\
+     roof: Gable(ridge: 4))])";
+
+#[test]
+fn angles_names_corners_by_what_they_are() {
+    let dir = Scratch::new("corner-names");
+    dir.write("shed.ron", NORTH_FACING);
+    let out = succeeds(&dir, &["angles", "shed.ron", "--format", "csv"]);
+    let table = String::from_utf8_lossy(&out.stdout).into_owned();
+    for name in [
+        "front left foot",
+        "front right foot",
+        "back left eaves",
+        "ridge left end",
+        "ridge right end",
+    ] {
+        assert!(table.contains(name), "no \"{name}\" in\n{table}");
+    }
+    assert!(!table.contains("corner "), "an unnamed corner in\n{table}");
+}
+
+#[test]
+fn check_lists_each_blocks_corners() {
+    let dir = Scratch::new("block-corners");
+    dir.write("shed.ron", NORTH_FACING);
+    let out = succeeds(&dir, &["check", "shed.ron"]);
+    let report = String::from_utf8_lossy(&out.stdout).into_owned();
+    // Facing north, the front-left corner is the north-east one: the width runs west
+    // (x falls) and the depth south (y falls).
+    assert!(
+        report.contains(
+            "front left (0.00, 0.00), front right (-4.00, 0.00), back right (-4.00, -3.00), back left (0.00, -3.00)"
+        ),
+        "{report}"
+    );
+}
