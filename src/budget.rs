@@ -3,6 +3,39 @@
 //! count is known (edges and triangles while loading); drawn vertices and time while the
 //! edges are flattened and the image is drawn, between runs of edges and between bands, so
 //! that a scene that would take hours stops within seconds and says so.
+//!
+//! ## Limits on input (design notes)
+//!
+//! | what | limit | where |
+//! | --- | --- | --- |
+//! | image | 500 megapixels, at most 131,072 px a side, width from half to 8 times the height | `render::RenderSettings::validate` |
+//! | line weight | up to 64 px (the rasteriser's work grows with its square) | same |
+//! | tolerance | 0.001 to 100 px | same |
+//! | numbers in a scene | finite, within ±1e9 (metres, degrees) | `scene/numbers.rs` (`Finite`) |
+//! | counts (steps, openings, copies) | 1 to 100,000 each | `scene/numbers.rs` (`Count`) |
+//! | items after expanding repeats | 1,000,000 | `scene/expand.rs` (`MAX_ITEMS`) |
+//! | tile grid lines | 2,000 per `Tiles` | `scene/items/tiles.rs` |
+//! | centre-line dashes | 100,000 per road | `scene/items/road.rs` |
+//! | OBJ coordinates | finite, within ±1e12 in the file's units | `scene/obj.rs` |
+//! | input files | regular files of at most 2 GiB | `scene/file.rs` |
+//! | crease angle | 0 to 180 degrees | `--crease`, `Model(crease: ...)` |
+//! | edges of a site | 5,000,000 (50 times the synthetic town) | `budget::MAX_EDGES`: checked after each item, after the first copy of a repeat (count x that copy's edges), and for a model |
+//! | face triangles of a site | 5,000,000 (five times the million-triangle benchmark, whose import peaks near 500 MB) | `budget::MAX_TRIANGLES`: the same places; in an OBJ, by the line that passes it (also its vertices and `l` segments) |
+//! | drawn (flattened) vertices | 20,000,000 | `budget::MAX_DRAWN_VERTICES`, counted after each run of 2,048 edges |
+//! | time of a render | 600 s by default, `--time-limit SECONDS` (`RenderSettings::time_limit`) | `budget::Budget::check_time`, before each run of edges and each band of rows; after 2 s a run whose progress says it would take over 3 times the limit stops at once and says how long it would take |
+//!
+//! Edges, triangles and items are counted while the scene is expanded, so a scene too large
+//! stops at the item that took it over, with its line and column; drawn vertices and time can
+//! only be known while drawing, and stop the render with `Error::TooLarge` or `Error::TooSlow`
+//! (exit 2, no file written). The time is checked between runs of edges and between bands,
+//! not inside the steps before them (building the hierarchy of faces, binning the strokes by
+//! band), so a run can overshoot: a 30000x15000 render with 64 px lines and a 3 s limit
+//! stopped after 6.7 s, saying it would take 13 s. Model files go through the same checks as scenes (a `Model`
+//! naming `/dev/zero` used to read for ever).
+//!
+//! Not yet handled: `-o /dev/stdout` fails for
+//! users who cannot create files in `/dev` (use `-o -`); an output path that is a symbolic link
+//! is replaced by a file rather than written through.
 
 use crate::error::{Error, Result};
 use std::sync::atomic::{AtomicUsize, Ordering};

@@ -7,8 +7,8 @@
 //! Each point is marked by a tick across the image of the segment; the midpoint's tick is
 //! longer.
 
-use super::image_of_point;
 use crate::drawing::{letter, Align};
+use crate::plane::image_of_point;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
 use crate::scene::{label_matches, Division, Site, SiteCurve};
 use crate::sphere::ViewFrame;

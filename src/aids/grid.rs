@@ -83,7 +83,6 @@ pub fn grid(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::drawing::grid_and_horizon;
     use crate::plane::Equirect;
     use crate::scene::Standpoint;
 
@@ -93,28 +92,34 @@ mod tests {
         ))
     }
 
-    fn sorted_points(set: &PolylineSet) -> Vec<(i64, i64)> {
-        let mut points: Vec<(i64, i64)> = set
-            .points()
-            .iter()
-            .map(|p| ((p.x * 1e6).round() as i64, (p.y * 1e6).round() as i64))
-            .collect();
-        points.sort();
-        points
-    }
-
     #[test]
-    fn without_major_lines_it_is_the_grid_as_it_was() {
-        let map = Equirect::from_size_px(1440.0, 720.0);
-        for (heading, pitch) in [(25.0, 0.0), (300.0, 12.0)] {
-            let mut flattener = Flattener::new(map, 0.1);
-            let lines = grid(&view(heading, pitch), &mut flattener, 10.0, 0);
-            let (old_grid, old_horizon) =
-                grid_and_horizon(&view(heading, pitch), &mut flattener, 10);
-            assert!(lines.major.is_empty());
-            assert_eq!(sorted_points(&lines.minor), sorted_points(&old_grid));
-            assert_eq!(sorted_points(&lines.horizon), sorted_points(&old_horizon));
+    fn level_view_has_vertical_meridians_and_a_middle_horizon() {
+        let map = Equirect::from_size_px(3600.0, 1800.0);
+        let lines = grid(&view(25.0, 0.0), &mut Flattener::new(map, 0.1), 10.0, 0);
+        assert!(lines.major.is_empty());
+        for line in lines.horizon.iter() {
+            assert!(line.iter().all(|p| (p.y - 900.0).abs() < 1e-9), "{line:?}");
         }
+        let span: f64 = lines
+            .horizon
+            .iter()
+            .map(|l| (l[l.len() - 1].x - l[0].x).abs())
+            .sum();
+        assert!(
+            (span - 3600.0).abs() < 1e-6,
+            "the horizon spans the width: {span}"
+        );
+        // Heading 25 deg: the meridian of azimuth 30 is 5 deg right of centre, full height
+        // (the image mapping of the crate docs: x = (r + 180) / 360 * W).
+        let x30 = 1800.0 + 5.0 * 10.0;
+        let m = lines
+            .minor
+            .iter()
+            .find(|l| (l[0].x - x30).abs() < 1e-6)
+            .expect("meridian at 30 deg");
+        assert!(m.iter().all(|p| (p.x - x30).abs() < 1e-6));
+        let ys: Vec<f64> = m.iter().map(|p| p.y).collect();
+        assert!(ys.contains(&0.0) && ys.contains(&1800.0), "{ys:?}");
     }
 
     #[test]

@@ -3,8 +3,10 @@
 //! and the heading; and item labels placed near their items, where they cross fewest lines.
 
 use super::grid::multiples;
-use super::{degrees_text, image_of_direction, image_of_point, AidSettings};
+use super::marks::degrees_text;
+use super::settings::AidSettings;
 use crate::drawing::{letter, text_width, Align};
+use crate::plane::{image_of_direction, image_of_point};
 use crate::plane::{Equirect, ImagePoint, PolylineSet};
 use crate::scene::{ItemId, Site, SiteCurve};
 use crate::sphere::{direction_from_azimuth_elevation, ViewFrame};
@@ -122,7 +124,7 @@ pub fn grid_labels(
     ]);
     let words = format!(
         "HEADING {}\u{b0}",
-        degrees_text(super::normal_azimuth_deg(heading))
+        degrees_text(super::marks::normal_azimuth_deg(heading))
     );
     letter(
         &words,

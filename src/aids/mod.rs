@@ -15,107 +15,72 @@
 //! pitch and roll; text is lettered as strokes ([`crate::drawing::letter`]). The aids make
 //! layers of their own, under the wireframe (grid, fans, meridians) or over it (vanishing
 //! points, poles, divisions, labels); none is drawn in the bare mode.
+//!
+//! ## Drawing aids (design notes)
+//!
+//! `src/aids/`. Everything a person drawing over the underlay needs beyond the edges: each aid
+//! is built in the site frame and projected like an edge (so pitch and roll cannot put it
+//! wrong), text is lettered as strokes, and each kind of aid is a layer of its own
+//! (`grid`, `grid major`, `horizon`, `fans`, `meridians` under the wireframe; `vanishing
+//! points`, `poles`, `divisions`, `grid labels`, `item labels` over it). `render.rs` calls
+//! `aids::under` and `aids::over` when overlays are on; the bare mode draws no aid, not even
+//! the scene's guides. `AidSettings::default()` is the plain underlay as it was (the 10-degree
+//! grid and the horizon, same strokes, same pixels: the golden images did not move), plus the
+//! scene's own guides; `AidSettings::all()` (`--aids`) turns the rest on.
+//!
+//! - **Strokes** (grey ink, 0 to 1, until per-layer styles and colour come): grid 0.22 at
+//!   1 px, heavy grid lines 0.35 at 1.25 px, horizon 0.5 at 1.25 px, fans 0.3 and meridians 0.4
+//!   at 1 px (traced lines, lighter than the wireframe), marks (vanishing points, poles, ticks)
+//!   0.75 at 1.25 px, lettering 0.6 at 1 px. The cap height is a hundredth of the image height
+//!   (7 to 60 px) unless set.
+//! - **Principal directions** (`vanishing.rs`): every straight edge votes with its length for
+//!   its direction as a line (level within 0.5 degree: horizontal; otherwise inclined unless
+//!   vertical); votes are merged greedily, heaviest first, into clusters within the merging
+//!   angle (2 degrees by default: walls a little out of square are one direction to a person
+//!   drawing), and clusters at least a tenth as heavy as the heaviest of their kind are kept
+//!   (at most 8 horizontal, 6 inclined). Gable verges, hips and sloping streets are edges; a
+//!   stair's rake is not, so `build_stairs` declares it as an `Axis` on the site. Directions
+//!   the user gives come first; found ones within the merging angle of a given one are left
+//!   out. Found from edges, the method works for OBJ models too.
+//! - **Fans** (`fans.rs`): the planes through the eye that hold a direction `d`, turned about
+//!   `d` by the step from the one holding the horizontal perpendicular `h = z × d`:
+//!   `e(φ) = h cos φ + (d × h) sin φ`, each drawn as the full great circle through `±d` and
+//!   `e(φ)`.
+//! - **Poles** (`pole.rs`): ticks are the images of points on the pole, so their elevations are
+//!   `atan((h − eye) / d)` by construction; the tests check that against the formula.
+//! - **Divisions** (`divide.rs`): the ticks are the images of equally spaced site points,
+//!   each drawn across the image of the segment (its direction from a step of 1e-4 of the
+//!   distance along it, taken the short way round the seam).
+//! - **Item labels** (`labels.rs`): anchored over the middle of the item's plan at its highest
+//!   point (a labelled point at its mark); twelve places round the anchor are tried and the one
+//!   crossing fewest occupied cells (a third of the cap height square, marked from every layer
+//!   drawn before and from earlier labels) wins. Dense scenes still crowd: this avoids lines
+//!   where there is room, it does not guarantee it.
+//! - **The table** (`table.rs`, `pansite angles`): rows for every labelled point and every
+//!   corner (distinct ends of straight edges, numbered per item in drawing order, with their
+//!   site coordinates); absolute azimuth, azimuth relative to the heading, elevation (all in
+//!   the site frame), distance, and the image position with the view's pitch and roll
+//!   applied. Page millimetres are `px * width_mm / width_px` from the panorama's top left
+//!   corner (`--page-width-mm`, the panorama's printed width); `PagePlacement` holds an offset
+//!   too, for when page layouts place the panorama on a sheet. Angles are written to a
+//!   thousandth of a degree, lengths to a millimetre.
 
 pub mod divide;
 pub mod fans;
 pub mod grid;
 pub mod labels;
+pub mod marks;
 pub mod pole;
+mod settings;
 pub mod table;
-
 pub mod vanishing;
 
+pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
+
 use crate::drawing::{Layer, Stroke};
-use crate::error::{Error, Result};
-use crate::plane::{Equirect, Flattener, ImagePoint, PolylineSet};
+use crate::plane::{Flattener, PolylineSet};
 use crate::scene::{Guides, Site};
-use crate::sphere::{azimuth_elevation, ViewFrame};
-use nalgebra::{Point3, Vector3};
-
-/// Which aids to draw, and how. `Default` is the plain underlay: the 10-degree grid and the
-/// horizon, and the guides the scene itself asks for; [`AidSettings::all`] adds the rest.
-#[derive(Clone, Debug, PartialEq)]
-pub struct AidSettings {
-    /// Spacing of the grid, degrees of azimuth and of elevation.
-    pub grid_step_deg: f64,
-    /// Every this many grid lines (counted from north and from the horizon) is heavier;
-    /// 0 for none.
-    pub grid_major_every: u32,
-    /// Azimuths, compass points, elevations and the heading written on the grid.
-    pub labels: bool,
-    /// Item labels placed near their items (and labelled points beside their marks).
-    pub item_labels: bool,
-    /// The vanishing points of the site's principal directions, found from its edges.
-    pub vanishing_points: bool,
-    /// Directions closer than this (degrees) count as one.
-    pub merge_deg: f64,
-    /// Guides asked for on the command line, drawn with the scene's own.
-    pub guides: Guides,
-    /// Cap height of the lettering, pixels; by default a hundredth of the image height.
-    pub text_height_px: Option<f64>,
-}
-
-impl Default for AidSettings {
-    fn default() -> Self {
-        AidSettings {
-            grid_step_deg: 10.0,
-            grid_major_every: 0,
-            labels: false,
-            item_labels: false,
-            vanishing_points: false,
-            merge_deg: DEFAULT_MERGE_DEG,
-            guides: Guides::default(),
-            text_height_px: None,
-        }
-    }
-}
-
-/// Directions within this angle (degrees) are merged: walls a degree or two out of square
-/// are one direction to a person drawing, and their vanishing points would sit on top of
-/// each other.
-pub const DEFAULT_MERGE_DEG: f64 = 2.0;
-
-impl AidSettings {
-    /// Every aid on: heavier lines every 30 degrees, labels, item labels and vanishing points.
-    pub fn all() -> AidSettings {
-        AidSettings {
-            grid_major_every: 3,
-            labels: true,
-            item_labels: true,
-            vanishing_points: true,
-            ..AidSettings::default()
-        }
-    }
-
-    pub fn validate(&self) -> Result<()> {
-        if !(self.grid_step_deg.is_finite() && (0.5..=90.0).contains(&self.grid_step_deg)) {
-            return Err(Error::Setting(format!(
-                "a grid step of {} degrees is outside 0.5 to 90",
-                self.grid_step_deg
-            )));
-        }
-        if !(self.merge_deg.is_finite() && (0.0..=45.0).contains(&self.merge_deg)) {
-            return Err(Error::Setting(format!(
-                "merging directions within {} degrees: expected 0 to 45",
-                self.merge_deg
-            )));
-        }
-        if let Some(h) = self.text_height_px {
-            if !(h.is_finite() && (3.0..=500.0).contains(&h)) {
-                return Err(Error::Setting(format!(
-                    "a text height of {h} px is outside 3 to 500"
-                )));
-            }
-        }
-        Ok(())
-    }
-
-    /// The cap height of the lettering on an image of this size.
-    pub fn text_height(&self, map: &Equirect) -> f64 {
-        self.text_height_px
-            .unwrap_or_else(|| (map.height() / 100.0).clamp(7.0, 60.0))
-    }
-}
+use crate::sphere::ViewFrame;
 
 /// The strokes of the aids, as black ink of an opacity and width in pixels (a page's style
 /// turns the guides light blue). Guides are lighter
@@ -229,94 +194,5 @@ fn layer(name: &str, stroke: Stroke, lines: PolylineSet) -> Layer {
 fn push_if_any(layers: &mut Vec<Layer>, name: &str, stroke: Stroke, lines: PolylineSet) {
     if !lines.is_empty() {
         layers.push(layer(name, stroke, lines));
-    }
-}
-
-/// Where a site direction lands on the image.
-pub fn image_of_direction(view: &ViewFrame, map: &Equirect, d: &Vector3<f64>) -> ImagePoint {
-    let (azimuth, elevation) = azimuth_elevation(&view.direction_to_view(d));
-    map.to_image(azimuth, elevation)
-}
-
-/// Where a site point lands on the image; `None` at the eye.
-pub fn image_of_point(view: &ViewFrame, map: &Equirect, p: &Point3<f64>) -> Option<ImagePoint> {
-    let v = view.to_view(p);
-    (v.norm() > 1e-9).then(|| {
-        let (azimuth, elevation) = azimuth_elevation(&v);
-        map.to_image(azimuth, elevation)
-    })
-}
-
-/// A small circle of `radius` pixels drawn on the image around `at` (a mark, not a curve
-/// of the site).
-pub fn ring(at: ImagePoint, radius: f64, out: &mut PolylineSet) {
-    const SIDES: usize = 16;
-    let points: Vec<ImagePoint> = (0..=SIDES)
-        .map(|k| {
-            let t = std::f64::consts::TAU * k as f64 / SIDES as f64;
-            ImagePoint::new(at.x + radius * t.cos(), at.y + radius * t.sin())
-        })
-        .collect();
-    out.push(&points);
-}
-
-/// An angle in degrees as written on the drawing: whole degrees when it is one, otherwise
-/// to a tenth.
-pub fn degrees_text(deg: f64) -> String {
-    let tenths = (deg * 10.0).round();
-    if tenths % 10.0 == 0.0 {
-        format!("{}", (tenths / 10.0) as i64)
-    } else {
-        format!("{:.1}", tenths / 10.0)
-    }
-}
-
-/// An azimuth in degrees moved into [0, 360).
-pub fn normal_azimuth_deg(deg: f64) -> f64 {
-    let a = deg.rem_euclid(360.0);
-    if a >= 360.0 - 1e-9 {
-        0.0
-    } else {
-        a
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn degrees_are_written_short() {
-        assert_eq!(degrees_text(30.0), "30");
-        assert_eq!(degrees_text(-12.25), "-12.3");
-        assert_eq!(degrees_text(359.96), "360");
-        assert_eq!(normal_azimuth_deg(-30.0), 330.0);
-        assert_eq!(normal_azimuth_deg(720.0), 0.0);
-    }
-
-    #[test]
-    fn settings_are_checked() {
-        assert!(AidSettings::default().validate().is_ok());
-        assert!(AidSettings::all().validate().is_ok());
-        for bad in [
-            AidSettings {
-                grid_step_deg: 0.1,
-                ..AidSettings::default()
-            },
-            AidSettings {
-                grid_step_deg: f64::NAN,
-                ..AidSettings::default()
-            },
-            AidSettings {
-                merge_deg: 50.0,
-                ..AidSettings::default()
-            },
-            AidSettings {
-                text_height_px: Some(1.0),
-                ..AidSettings::default()
-            },
-        ] {
-            assert!(bad.validate().is_err(), "{bad:?}");
-        }
     }
 }

@@ -7,8 +7,8 @@
 //! why a figure's eyes, drawn on the horizon, fix its size (common practice). That tick is
 //! marked `EYE`.
 
-use super::image_of_point;
 use crate::drawing::{letter, Align};
+use crate::plane::image_of_point;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
 use crate::scene::{Pole, SiteCurve};
 use crate::sphere::ViewFrame;

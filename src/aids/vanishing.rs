@@ -9,8 +9,10 @@
 //! as heavy as the heaviest of their kind; items add directions no edge runs along (a
 //! stair's rake). Bearings and slopes the user lists are marked too.
 
-use super::{degrees_text, image_of_direction, normal_azimuth_deg, ring, AidSettings};
+use super::marks::{degrees_text, normal_azimuth_deg, ring};
+use super::settings::AidSettings;
 use crate::drawing::{letter, Align};
+use crate::plane::image_of_direction;
 use crate::plane::{Equirect, ImagePoint, PolylineSet};
 use crate::scene::{Guides, Site, SiteCurve};
 use crate::sphere::ViewFrame;

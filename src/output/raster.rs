@@ -10,6 +10,31 @@
 //!
 //! The panorama wraps horizontally, so a stroke that reaches past the left or right border
 //! continues on the other side.
+//!
+//! ## The rasteriser (design notes)
+//!
+//! `output/raster.rs`. Coverage of a pixel by a stroke of width `w` is
+//! `clamp(w/2 + 1/2 - d, 0, 1)` with `d` the distance from the pixel centre to the segment;
+//! inks combine by `min` (the darkest wins), so the order of drawing does not matter and bands
+//! can be drawn on separate cores with identical results. Strokes are binned by 32-row band
+//! (as 12-byte references into the drawing's polylines). Each core takes a free buffer from a
+//! small pool (three per core), then the next band down, fills it with white, draws the strokes
+//! that reach into it and hands it to the calling thread, which passes the bands on in order, to
+//! the PNG encoder in `render_png`, and returns the buffer to the pool. So encoding overlaps
+//! rasterising, memory does not grow with the image (a few bands, not the whole canvas), and
+//! the buffers are reused rather than page-faulted in afresh. Along a row the distance to a
+//! segment's line is linear in the column; rows of steep strokes away from their ends take a
+//! short loop of their own. Strokes reaching past the left or right border wrap to the other
+//! side. Hot loops use casts instead of `floor`/`ceil`/`round` (library calls on the baseline
+//! x86-64 target).
+//!
+//! `output::rasterize` (the whole canvas at once) is built on the same banded routine; the
+//! golden tests use it.
+//!
+//! PNG filter, measured on the town at 8192x4096 (2026-12-01, best of 5): `Up` 11.6 ms and
+//! 2.4 MB; `Sub` 18 ms, 3.3 MB; adaptive 20 ms, 1.5 MB; none 49 ms, 14 MB (all with the `png`
+//! crate's fast compression; its "fastest" level is no faster here). `Up` it is: wireframe rows
+//! are mostly white, which `Up` turns into runs of zeros.
 
 use crate::drawing::{Drawing, Stroke};
 use crate::plane::ImagePoint;

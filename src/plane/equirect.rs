@@ -6,6 +6,8 @@
 //! grows to the right; the top row is the zenith. In pixel-edge coordinates (pixel centres at
 //! `+0.5`): `x = (r + pi) / (2 pi) * W`, `y = (pi/2 - e) / pi * H`.
 
+use crate::sphere::{azimuth_elevation, ViewFrame};
+use nalgebra::{Point3, Vector3};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
 /// A point on the image in pixels: `x` grows to the right, `y` downwards.
@@ -66,6 +68,21 @@ impl Equirect {
     pub fn to_angles(&self, p: ImagePoint) -> (f64, f64) {
         (p.x / self.x_scale() - PI, FRAC_PI_2 - p.y / self.y_scale())
     }
+}
+
+/// Where a site direction lands on the image.
+pub fn image_of_direction(view: &ViewFrame, map: &Equirect, d: &Vector3<f64>) -> ImagePoint {
+    let (azimuth, elevation) = azimuth_elevation(&view.direction_to_view(d));
+    map.to_image(azimuth, elevation)
+}
+
+/// Where a site point lands on the image; `None` at the eye.
+pub fn image_of_point(view: &ViewFrame, map: &Equirect, p: &Point3<f64>) -> Option<ImagePoint> {
+    let v = view.to_view(p);
+    (v.norm() > 1e-9).then(|| {
+        let (azimuth, elevation) = azimuth_elevation(&v);
+        map.to_image(azimuth, elevation)
+    })
 }
 
 #[cfg(test)]

@@ -10,6 +10,37 @@
 //! comes from Newell's method (Newell 1972; see Sutherland, Sproull and Schumacker, "A
 //! characterization of ten hidden-surface algorithms", ACM Computing Surveys 6(1), 1974,
 //! from memory), which is exact for planar polygons and robust for slightly warped ones.
+//!
+//! ## OBJ models (design notes)
+//!
+//! `pansite render model.obj --at X,Y` draws a model on its own (`--up y|z`, `--unit
+//! m|cm|mm|in|ft`, `--crease DEG`); a scene places models with `Model(file: "...", at: (x, y, z),
+//! turn: DEG, scale: K, up: Y, unit: Metre, crease: DEG)`, the file relative to the scene.
+//!
+//! - **Reader** (`scene/obj.rs`): hand-written, because the crates on offer fell short of what a
+//!   user needs told: obj-rs and tobj report a malformed number without its line (and obj-rs
+//!   keeps positions in `f32`); wavefront_obj 11 rejects `f -4 -3 -2 -1`, scopes indices to each
+//!   `o` object against the format, and turns a two-vertex face into a line silently (all seen
+//!   on hand-written cases). The reader takes `v`, `f`, `l`, `o`, `g`, the `v/vt/vn` forms and
+//!   negative indices, and passes over the rest. Errors: index out of range or zero, a face of
+//!   fewer than three vertices or a line of fewer than two, a malformed or non-finite number,
+//!   binary data, an empty file, a file with no faces or lines; each with its line.
+//! - **Axes and units**: Y-up files map (x, y, z) to site (x, -z, y) (x east, -z north);
+//!   Z-up files map straight across. Units: metre, centimetre, millimetre, inch (25.4 mm) and
+//!   foot (0.3048 m), exact by the 1959 international yard and pound agreement.
+//! - **Which edges** (`scene/mesh.rs`): positions are welded when their coordinates round to the
+//!   same multiple of 1e-7 of the bounding-box diagonal (exact duplicates always merge; two
+//!   points within the tolerance across a rounding boundary do not, a known limit). Each face's
+//!   own edges are listed as (low, high, face) and sorted; an edge of one face is a boundary,
+//!   of three or more non-manifold, both drawn; of two, a crease (drawn) when their normals
+//!   (Newell's method, orientation mended where neighbours are wound inconsistently) differ by
+//!   more than the crease angle (default 30 degrees), otherwise a silhouette candidate unless
+//!   the faces are coplanar (within 1e-6 rad). Triangulation diagonals are not face edges of
+//!   the polygon, and between triangles they are coplanar: never drawn. Silhouettes are chosen
+//!   per standpoint (`SilhouetteEdge::is_outline_from`: one face's plane has the eye in front,
+//!   the other's behind). Faces are kept as triangles (`Site::faces`) for hidden lines.
+//! - **Layers**: each `g` group (or `o` object) becomes an item on a layer of that name, and
+//!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
 
 use super::obj::ObjFile;
 use super::site::{Face, ItemId, SilhouetteEdge, Site};
