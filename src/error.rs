@@ -3,27 +3,38 @@
 
 use std::path::PathBuf;
 
+/// Everything that can go wrong in the library, bad input and failures alike.
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
     /// The scene file cannot be understood; `line` and `column` count from 1.
     #[error("{}:{line}:{column}: {message}", path.display())]
     Scene {
+        /// The file, as the user named it.
         path: PathBuf,
+        /// The line, from 1.
         line: usize,
+        /// The column, from 1, in characters.
         column: usize,
+        /// What is wrong and what was expected, in words.
         message: String,
     },
 
+    /// A file could not be read.
     #[error("cannot read {}", path.display())]
     Read {
+        /// The file.
         path: PathBuf,
+        /// Why.
         #[source]
         source: std::io::Error,
     },
 
+    /// A file could not be written.
     #[error("cannot write {}", path.display())]
     Write {
+        /// The file.
         path: PathBuf,
+        /// Why.
         #[source]
         source: std::io::Error,
     },
@@ -32,17 +43,29 @@ pub enum Error {
     // The cause follows in the chain the command prints (`{:#}`), so it is not repeated here.
     #[error("{}:{line}:{column}: in the model \"{item}\"", scene.display())]
     InModel {
+        /// The scene that names the model.
         scene: PathBuf,
+        /// The line of the `Model` item, from 1.
         line: usize,
+        /// Its column, from 1.
         column: usize,
+        /// How the item is named in messages.
         item: String,
+        /// What went wrong reading the model.
         #[source]
         source: Box<Error>,
     },
 
+    /// A standpoint was asked for by a name the scene does not have.
     #[error("the scene has no standpoint named \"{name}\" (it has: {available})")]
-    UnknownStandpoint { name: String, available: String },
+    UnknownStandpoint {
+        /// The name asked for.
+        name: String,
+        /// The scene's standpoints, listed for the message.
+        available: String,
+    },
 
+    /// Nothing says where to stand.
     #[error("the scene names no standpoint: add one to its `standpoints` or give --at X,Y")]
     NoStandpoint,
 
@@ -53,31 +76,43 @@ pub enum Error {
     /// Refused before anything was allocated.
     #[error("an image of {width}x{height} pixels is {reason}")]
     ImageSize {
+        /// Pixels across.
         width: u64,
+        /// Pixels down.
         height: u64,
+        /// Why that cannot be drawn.
         reason: String,
     },
 
     /// More of something than one run may hold (see [`crate::budget`]).
     #[error("{what}: {found} is more than the limit of {limit}; {advice}")]
     TooLarge {
+        /// What there is too much of.
         what: &'static str,
+        /// How much there is.
         found: u64,
+        /// How much one run may hold.
         limit: u64,
+        /// What the user can do about it.
         advice: &'static str,
     },
 
     /// The run would outlast its time limit (see [`crate::budget`]).
     #[error("{}", too_slow(stage, *elapsed_s, *done_percent, *estimate_s, *limit_s))]
     TooSlow {
+        /// The stage that was running.
         stage: &'static str,
+        /// Seconds spent so far.
         elapsed_s: f64,
+        /// How much of the stage was done.
         done_percent: f64,
         /// The whole run's time as its progress so far suggests.
         estimate_s: Option<f64>,
+        /// The time limit, seconds.
         limit_s: f64,
     },
 
+    /// The PNG encoder failed.
     #[error("PNG encoding failed")]
     Png(#[from] png::EncodingError),
 
@@ -137,6 +172,7 @@ fn too_slow(
     )
 }
 
+/// The library's result, with [`Error`] by default.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
 
 /// Says how long `seconds` is in words a user reads at a glance.

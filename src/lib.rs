@@ -61,6 +61,7 @@
 //!   degenerate (segments are).
 
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 pub mod aids;
 pub mod budget;

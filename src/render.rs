@@ -23,7 +23,9 @@ use std::time::{Duration, Instant};
 /// What to draw and how large. Build with `Default` and change fields; [`draw`] validates.
 #[derive(Clone, Debug, PartialEq)]
 pub struct RenderSettings {
+    /// Pixels across (twice the height for the whole sphere).
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
     /// See [`crate::plane`]: the largest distance between true curve and drawn polyline.
     pub tolerance_px: f64,
@@ -144,14 +146,18 @@ pub struct Timings {
 /// A finished drawing and what happened on the way.
 #[derive(Clone, Debug)]
 pub struct Render {
+    /// The layers drawn.
     pub drawing: Drawing,
+    /// Edges left out, with why (they are named as warnings).
     pub skipped: Vec<SkippedEdge>,
+    /// How long each stage took.
     pub timings: Timings,
 }
 
 /// Layer names of the near and far wireframe when lines are weighed by distance, and how
 /// much heavier or lighter they are drawn than the middle distance.
 pub const NEAR_SUFFIX: &str = " (near)";
+/// The suffix of the far wireframe layers' names.
 pub const FAR_SUFFIX: &str = " (far)";
 const NEAR_WEIGHT: f64 = 1.6;
 const FAR_WEIGHT: f64 = 0.6;

@@ -59,6 +59,7 @@ impl AidSettings {
         }
     }
 
+    /// Refuses settings that cannot be drawn, saying which and why.
     pub fn validate(&self) -> Result<()> {
         if !(self.grid_step_deg.is_finite() && (0.5..=90.0).contains(&self.grid_step_deg)) {
             return Err(Error::Setting(format!(

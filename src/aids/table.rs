@@ -38,6 +38,7 @@ pub struct AngleRow {
     pub distance: f64,
     /// On the image (pixel edges from the top left; the view's pitch and roll applied).
     pub x_px: f64,
+    /// Where it lands on the image, pixels down from the top.
     pub y_px: f64,
     /// On the page, when its size is known.
     pub page_mm: Option<(f64, f64)>,

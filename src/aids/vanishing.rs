@@ -38,6 +38,7 @@ impl Direction {
         )
     }
 
+    /// Whether the direction is level (its vanishing points lie on the horizon).
     pub fn is_horizontal(&self) -> bool {
         self.unit.z.abs() < 1e-12
     }

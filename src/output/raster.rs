@@ -45,12 +45,16 @@ pub const MAX_PIXELS: u64 = 500_000_000;
 /// An 8-bit grey image, 255 = white paper, rows top to bottom.
 #[derive(Clone, Debug, PartialEq)]
 pub struct GreyCanvas {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
+    /// One byte a pixel, row by row from the top: 0 is black ink, 255 white paper.
     pub pixels: Vec<u8>,
 }
 
 impl GreyCanvas {
+    /// The value of one pixel.
     pub fn pixel(&self, x: u32, y: u32) -> u8 {
         self.pixels[y as usize * self.width as usize + x as usize]
     }

@@ -7,10 +7,15 @@
 /// (degrees clockwise from north), tilted by `pitch` and `roll` (degrees).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Panorama {
+    /// Pixels across the whole panorama.
     pub width: u32,
+    /// Pixels down the whole panorama.
     pub height: u32,
+    /// The azimuth at the image's centre, degrees (the pose heading).
     pub heading_deg: f64,
+    /// The view's pitch, degrees, positive up (the pose pitch).
     pub pitch_deg: f64,
+    /// The view's roll, degrees (the pose roll).
     pub roll_deg: f64,
 }
 

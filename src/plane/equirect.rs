@@ -13,11 +13,14 @@ use std::f64::consts::{FRAC_PI_2, PI, TAU};
 /// A point on the image in pixels: `x` grows to the right, `y` downwards.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct ImagePoint {
+    /// Pixels from the image's left edge.
     pub x: f64,
+    /// Pixels from the image's top edge.
     pub y: f64,
 }
 
 impl ImagePoint {
+    /// The point `x` pixels from the left and `y` from the top.
     pub fn new(x: f64, y: f64) -> ImagePoint {
         ImagePoint { x, y }
     }
@@ -37,10 +40,12 @@ impl Equirect {
         Equirect { width, height }
     }
 
+    /// The image's width, pixels.
     pub fn width(&self) -> f64 {
         self.width
     }
 
+    /// The image's height, pixels.
     pub fn height(&self) -> f64 {
         self.height
     }

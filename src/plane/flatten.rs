@@ -170,6 +170,7 @@ impl Flattener {
         }
     }
 
+    /// The mapping this flattener draws into.
     pub fn map(&self) -> Equirect {
         self.map
     }

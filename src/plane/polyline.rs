@@ -3,6 +3,7 @@
 
 use super::ImagePoint;
 
+/// Many polylines in two flat buffers: their points, and where each one ends.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct PolylineSet {
     points: Vec<ImagePoint>,
@@ -10,6 +11,7 @@ pub struct PolylineSet {
 }
 
 impl PolylineSet {
+    /// No polylines.
     pub fn new() -> PolylineSet {
         PolylineSet::default()
     }
@@ -42,14 +44,17 @@ impl PolylineSet {
         }
     }
 
+    /// How many polylines.
     pub fn len(&self) -> usize {
         self.starts.len()
     }
 
+    /// Whether there are none.
     pub fn is_empty(&self) -> bool {
         self.starts.is_empty()
     }
 
+    /// How many points in all.
     pub fn vertex_count(&self) -> usize {
         self.points.len()
     }
@@ -76,6 +81,7 @@ impl PolylineSet {
         })
     }
 
+    /// Each polyline's points, in order.
     pub fn iter(&self) -> impl Iterator<Item = &[ImagePoint]> + '_ {
         self.starts.iter().enumerate().map(|(i, &start)| {
             let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());

@@ -112,37 +112,55 @@ pub const MAX_EXTEND: u32 = 1000;
 /// A direction given by its azimuth and climb, degrees.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Slope {
+    /// Azimuth of the direction's plan, degrees clockwise from north.
     pub bearing_deg: f64,
+    /// Climb above the horizontal, degrees.
     pub pitch_deg: f64,
 }
 
+/// Great circles through a direction's two vanishing points, fanned about them.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Fan {
+    /// The direction whose vanishing points the circles pass through.
     pub direction: Slope,
+    /// The angle between neighbouring circles, degrees.
     pub step_deg: f64,
 }
 
+/// A measuring pole: a vertical line with a tick every `step`.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Pole {
+    /// Written beside the pole, if given.
     pub label: Option<String>,
     /// The foot of the pole, metres.
     pub foot: Point3<f64>,
+    /// How tall, metres.
     pub height: f64,
+    /// The distance between ticks, metres.
     pub step: f64,
     /// Metres per unit of the heights written beside the ticks (the scene's unit).
     pub unit: f64,
 }
 
+/// Perspective-correct equal parts of segments.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Division {
+    /// The segment between two points, and its continuation.
     Between {
+        /// One end, metres.
         from: Point3<f64>,
+        /// The other end, metres.
         to: Point3<f64>,
+        /// Into how many equal parts.
         parts: u32,
+        /// How many times the segment's length to mark beyond `to`.
         extend: u32,
     },
+    /// Every straight edge of the items with a label.
     Edges {
+        /// The label (numbered copies match too).
         item: String,
+        /// Into how many equal parts.
         parts: u32,
     },
 }
@@ -150,11 +168,17 @@ pub enum Division {
 /// The drawing aids of a scene, resolved to metres (angles in degrees).
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Guides {
+    /// Horizontal directions whose vanishing points are marked, degrees of azimuth.
     pub bearings: Vec<f64>,
+    /// Climbing directions whose vanishing points are marked.
     pub slopes: Vec<Slope>,
+    /// Guide fans.
     pub fans: Vec<Fan>,
+    /// Vertical guides at these azimuths, degrees.
     pub meridians: Vec<f64>,
+    /// Measuring poles.
     pub poles: Vec<Pole>,
+    /// Divisions of segments and edges.
     pub divisions: Vec<Division>,
 }
 
@@ -169,6 +193,7 @@ impl Guides {
         self.divisions.extend_from_slice(&other.divisions);
     }
 
+    /// Whether no guide is asked for.
     pub fn is_empty(&self) -> bool {
         *self == Guides::default()
     }

@@ -18,7 +18,9 @@ use std::time::{Duration, Instant};
 /// it into the site (a scene's items, a model's mesh).
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct LoadTimings {
+    /// Reading the file and parsing its text.
     pub parse: Duration,
+    /// Turning the parsed scene into the site's edges and faces.
     pub expand: Duration,
 }
 

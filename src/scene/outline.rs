@@ -13,18 +13,29 @@ use std::f64::consts::PI;
 pub enum RoundOutline {
     /// A vertical cylinder standing on the circle of `radius` about `base`.
     Cylinder {
+        /// The centre of its foot.
         base: Point3<f64>,
+        /// Its radius.
         radius: f64,
+        /// Its height.
         height: f64,
     },
     /// A cone on the circle of `radius` about `base`, its apex `height` above `base`.
     Cone {
+        /// The centre of its foot.
         base: Point3<f64>,
+        /// Its radius at the foot.
         radius: f64,
+        /// The height of its apex above the foot.
         height: f64,
     },
     /// The upper half of a sphere (a dome standing on its equator).
-    Dome { centre: Point3<f64>, radius: f64 },
+    Dome {
+        /// The centre of its equator.
+        centre: Point3<f64>,
+        /// Its radius.
+        radius: f64,
+    },
 }
 
 /// The points where the two tangents from `from` touch the circle of `radius` about

@@ -12,9 +12,11 @@ pub const DEFAULT_EYE_HEIGHT: f64 = 1.6;
 /// Where the viewer stands and which way the centre of the panorama looks.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Standpoint {
+    /// The name used to choose it (`render --standpoint`).
     pub name: String,
-    /// Plan position, metres east and north.
+    /// Plan position, metres east.
     pub x: f64,
+    /// Plan position, metres north.
     pub y: f64,
     /// Height of the ground under the viewer, metres.
     pub ground: f64,
@@ -60,7 +62,9 @@ impl Standpoint {
 /// A labelled point: a small mark drawn at its direction.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Marker {
+    /// Where the point is, in site coordinates.
     pub at: Point3<f64>,
+    /// The item it belongs to.
     pub item: ItemId,
 }
 
@@ -68,8 +72,11 @@ pub struct Marker {
 /// so that tables and reports can say more than "corner 7".
 #[derive(Clone, Debug, PartialEq)]
 pub struct NamedPoint {
+    /// Where the point is, in site coordinates.
     pub at: Point3<f64>,
+    /// The item it belongs to.
     pub item: ItemId,
+    /// What it is, in the words of the trade (`front left eaves`).
     pub name: String,
 }
 
@@ -77,7 +84,9 @@ pub struct NamedPoint {
 /// stair's rake), for the vanishing points.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Axis {
+    /// The direction, in site coordinates (not necessarily of unit length).
     pub direction: Vector3<f64>,
+    /// The item that declares it.
     pub item: ItemId,
 }
 
@@ -100,15 +109,20 @@ pub struct ItemId(pub u32);
 /// What a warning needs to name an item, and the layer it is drawn on.
 #[derive(Clone, Debug, PartialEq)]
 pub struct ItemInfo {
+    /// The word messages use for its kind (`block`, `arch`).
     pub kind: &'static str,
+    /// Its label, if the scene gives one (numbered in repeats).
     pub label: Option<String>,
+    /// The layer its edges are drawn on, if not the default.
     pub layer: Option<String>,
 }
 
 /// A round shape of an item, whose outline is found from each eye.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Outline {
+    /// The shape whose outline is found.
     pub shape: RoundOutline,
+    /// The item it belongs to.
     pub item: ItemId,
 }
 
@@ -116,10 +130,13 @@ pub struct Outline {
 /// where one of its two faces is turned towards the eye and the other away.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct SilhouetteEdge {
+    /// One end, in site coordinates.
     pub start: Point3<f64>,
+    /// The other end.
     pub end: Point3<f64>,
     /// The outward unit normals of the two faces that share the edge.
     pub normals: [Vector3<f64>; 2],
+    /// The item (mesh) it belongs to.
     pub item: ItemId,
 }
 
@@ -136,7 +153,9 @@ impl SilhouetteEdge {
 /// A triangle that hides what lies behind it.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Face {
+    /// The triangle's corners, in site coordinates.
     pub corners: [Point3<f64>; 3],
+    /// The item it belongs to.
     pub item: ItemId,
     /// How far (metres) the true surface may stand off this flat piece of it: 0 for a flat
     /// face, the sagitta of the facet for a piece of a curved surface. Edges drawn on the
@@ -144,21 +163,27 @@ pub struct Face {
     pub slack: f32,
 }
 
+/// An edge to draw: a curve of an item.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Edge {
+    /// The curve, in site coordinates.
     pub curve: SiteCurve,
+    /// The item it belongs to.
     pub item: ItemId,
 }
 
 /// A scene resolved into edges.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Site {
+    /// The scene's name (or its file's).
     pub name: String,
     /// In file order.
     pub standpoints: Vec<Standpoint>,
     /// Which of them is used when none is named.
     pub default_standpoint: usize,
+    /// Every item, by [`ItemId`].
     pub items: Vec<ItemInfo>,
+    /// The edges drawn from every standpoint.
     pub edges: Vec<Edge>,
     /// Edges drawn only where they are part of the outline (smooth meshes).
     pub silhouette_candidates: Vec<SilhouetteEdge>,
@@ -166,6 +191,7 @@ pub struct Site {
     pub faces: Vec<Face>,
     /// Round shapes whose outline depends on the eye (columns, cones, domes).
     pub outlines: Vec<Outline>,
+    /// Labelled points, drawn as small marks.
     pub markers: Vec<Marker>,
     /// Points of items named by what they are (see [`NamedPoint`]).
     pub named_points: Vec<NamedPoint>,
@@ -189,6 +215,7 @@ impl Site {
         self.add_item_on_layer(kind, label, None)
     }
 
+    /// Adds an item drawn on a layer of its own (`None`: the default layer).
     pub fn add_item_on_layer(
         &mut self,
         kind: &'static str,
@@ -199,6 +226,7 @@ impl Site {
         ItemId(self.items.len() as u32 - 1)
     }
 
+    /// Adds a straight edge of an item.
     pub fn add_segment(&mut self, item: ItemId, start: Point3<f64>, end: Point3<f64>) {
         self.edges.push(Edge {
             curve: SiteCurve::Segment { start, end },
@@ -275,6 +303,7 @@ impl Site {
         self.standpoints.get(self.default_standpoint)
     }
 
+    /// The standpoint of that name, if there is one.
     pub fn standpoint(&self, name: &str) -> Option<&Standpoint> {
         self.standpoints.iter().find(|s| s.name == name)
     }

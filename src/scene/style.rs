@@ -9,6 +9,7 @@ use serde::{Deserialize, Deserializer};
 pub struct Colour(pub [u8; 3]);
 
 impl Colour {
+    /// A colour by name or as `#rrggbb`, or `None`.
     pub fn parse(text: &str) -> Option<Colour> {
         let named = match text.trim().to_lowercase().as_str() {
             "black" => Some([0, 0, 0]),
@@ -65,8 +66,10 @@ impl<'de> Deserialize<'de> for Opacity {
 #[derive(Clone, Debug, Default, Deserialize, PartialEq)]
 #[serde(deny_unknown_fields)]
 pub struct LayerStyle {
+    /// The ink's colour.
     #[serde(default)]
     pub colour: Option<Colour>,
+    /// How opaque the ink is, 0 to 1.
     #[serde(default)]
     pub opacity: Option<Opacity>,
     /// Line weight on paper, millimetres.

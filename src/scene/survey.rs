@@ -24,19 +24,26 @@ const SOLID_KINDS: &[&str] = &[
 pub struct Survey {
     /// How many items of each kind.
     pub items_by_kind: BTreeMap<&'static str, usize>,
+    /// Edges drawn from every standpoint.
     pub edges: usize,
+    /// Face triangles, which hide what is behind them.
     pub faces: usize,
     /// Round shapes whose outline is found from each eye.
     pub outlines: usize,
+    /// Labelled points.
     pub markers: usize,
     /// The box holding every edge and face, `None` for an empty site.
     pub bounds: Option<(Point3<f64>, Point3<f64>)>,
+    /// What each standpoint looks like from the site, in file order.
     pub standpoints: Vec<StandpointCheck>,
 }
 
+/// What `check` says of one standpoint.
 #[derive(Clone, Debug, PartialEq)]
 pub struct StandpointCheck {
+    /// Its name.
     pub name: String,
+    /// Where the eye is.
     pub eye: Point3<f64>,
     /// The solid items the eye is inside.
     pub inside: Vec<ItemId>,
@@ -44,6 +51,7 @@ pub struct StandpointCheck {
     pub underground: bool,
 }
 
+/// What `check` reports of a site.
 pub fn survey(site: &Site) -> Survey {
     let mut items_by_kind = BTreeMap::new();
     for item in &site.items {

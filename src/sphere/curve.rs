@@ -20,10 +20,15 @@ use std::f64::consts::{PI, TAU};
 /// A trigonometric curve on the viewing sphere (see the module docs).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct SphereCurve {
+    /// `c` of `P(t) = c + u cos t + v sin t`, in the view frame (zero for great circles).
     pub centre: Vector3<f64>,
+    /// `u`, the part along `cos t`.
     pub u: Vector3<f64>,
+    /// `v`, the part along `sin t`.
     pub v: Vector3<f64>,
+    /// Where the curve starts, radians of `t`.
     pub t0: f64,
+    /// Where it ends.
     pub t1: f64,
     /// `P(t1)` where it is known exactly (a great arc's end direction, as given), which the
     /// trigonometric form only reproduces to the last bit or two; `None` otherwise.
@@ -46,6 +51,7 @@ impl TrigRoots {
         }
     }
 
+    /// The roots found, in order.
     pub fn as_slice(&self) -> &[f64] {
         &self.roots[..self.len]
     }
@@ -119,10 +125,12 @@ impl SphereCurve {
         }
     }
 
+    /// Whether the curve lies on a great circle (its centre is the eye).
     pub fn is_great_circle(&self) -> bool {
         self.centre == Vector3::zeros()
     }
 
+    /// `P(t)`, a point of the curve in the view frame (its direction is what is drawn).
     pub fn position(&self, t: f64) -> Vector3<f64> {
         let (s, c) = t.sin_cos();
         self.centre + self.u * c + self.v * s

@@ -56,6 +56,7 @@ impl ViewFrame {
         }
     }
 
+    /// Where the eye is, in site coordinates.
     pub fn eye(&self) -> Point3<f64> {
         self.eye
     }

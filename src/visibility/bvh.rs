@@ -42,6 +42,7 @@ fn outward(lo: Vector3<f64>, hi: Vector3<f64>) -> ([f32; 3], [f32; 3]) {
 }
 
 impl Bvh {
+    /// The hierarchy of these faces.
     pub fn new(faces: &[Face]) -> Bvh {
         let centres: Vec<[f32; 3]> = faces
             .iter()
