@@ -10,8 +10,11 @@ use std::f64::consts::{FRAC_PI_2, TAU};
 /// The grid's lines by weight.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct GridLines {
+    /// The ordinary grid lines.
     pub minor: PolylineSet,
+    /// The heavier lines at the chosen multiples.
     pub major: PolylineSet,
+    /// The horizon.
     pub horizon: PolylineSet,
 }
 

@@ -28,11 +28,15 @@ pub const NEAR_M: f64 = 0.01;
 /// The size and field of a preview.
 #[derive(Clone, Debug, PartialEq)]
 pub struct PreviewSettings {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
     /// Horizontal field of view, degrees (more than 0, less than 180).
     pub fov_deg: f64,
+    /// Width of the lines, pixels.
     pub line_weight_px: f64,
+    /// Largest distance between a true curve and its drawn polyline, pixels.
     pub tolerance_px: f64,
     /// How edges hidden behind faces are drawn; `None` takes the scene's choice, or faint.
     pub hidden: Option<HiddenEdges>,
@@ -54,8 +58,11 @@ impl Default for PreviewSettings {
 /// A pinhole camera: the view frame of a standpoint and the image it makes.
 #[derive(Clone, Copy, Debug)]
 pub struct Pinhole {
+    /// The standpoint's view frame.
     pub view: ViewFrame,
+    /// The picture's width, pixels.
     pub width: f64,
+    /// The picture's height, pixels.
     pub height: f64,
     /// Focal length in pixels.
     pub focal_px: f64,

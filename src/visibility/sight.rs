@@ -17,9 +17,13 @@ pub type Spans = Vec<(f64, f64, bool)>;
 
 /// Everything that hides, from one eye.
 pub struct Occluders<'a> {
+    /// The faces that may hide things.
     pub faces: &'a [Face],
+    /// Their hierarchy.
     pub bvh: &'a Bvh,
+    /// The view the curves are given in.
     pub view: &'a ViewFrame,
+    /// Where the eye is, in site coordinates.
     pub eye: Point3<f64>,
 }
 
@@ -31,7 +35,12 @@ pub enum Depth {
     /// A segment from `a` to `b` (relative to the eye, view frame): its great arc holds only
     /// directions, and the point along direction d is at |a x b| / |d x (b - a)| (the ray
     /// meets the segment's line within their common plane).
-    Segment { a: Vector3<f64>, b: Vector3<f64> },
+    Segment {
+        /// The start, relative to the eye.
+        a: Vector3<f64>,
+        /// The end, relative to the eye.
+        b: Vector3<f64>,
+    },
 }
 
 impl Depth {
