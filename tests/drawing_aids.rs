@@ -6,8 +6,8 @@
 
 use geographiclib_rs::{Geodesic, InverseGeodesic};
 use nalgebra::{Point3, Vector3};
-use pansite::aids::table::{angle_table, to_csv, PagePlacement, TableChoice};
 use pansite::aids::AidSettings;
+use pansite::aids::{angle_table, to_csv, PagePlacement, TableChoice};
 use pansite::drawing::Layer;
 use pansite::plane::{Equirect, ImagePoint};
 use pansite::render::{draw, RenderSettings};

@@ -65,17 +65,18 @@
 //!   too, for when page layouts place the panorama on a sheet. Angles are written to a
 //!   thousandth of a degree, lengths to a millimetre.
 
-pub mod divide;
-pub mod fans;
-pub mod grid;
-pub mod labels;
-pub mod marks;
-pub mod pole;
+mod divide;
+mod fans;
+mod grid;
+mod labels;
+mod marks;
+mod pole;
 mod settings;
-pub mod table;
-pub mod vanishing;
+mod table;
+mod vanishing;
 
 pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
+pub use table::{angle_table, to_csv, to_json, to_text, AngleRow, PagePlacement, TableChoice};
 
 use crate::drawing::{Layer, Stroke};
 use crate::plane::{Flattener, PolylineSet};
@@ -91,11 +92,17 @@ pub mod strokes {
 
     /// The grid as it has always been: light enough to draw over.
     pub const GRID: Stroke = Stroke::black(0.22, 1.0);
+    /// Heavier grid lines at the chosen multiples.
     pub const GRID_MAJOR: Stroke = Stroke::black(0.35, 1.25);
+    /// The horizon, darker than the grid: the line every figure's eyes rest on.
     pub const HORIZON: Stroke = Stroke::black(0.5, 1.25);
+    /// Guide fans.
     pub const FANS: Stroke = Stroke::black(0.3, 1.0);
+    /// Vertical guides.
     pub const MERIDIANS: Stroke = Stroke::black(0.4, 1.0);
+    /// Marks that are read: vanishing points, pole ticks, division ticks.
     pub const MARKS: Stroke = Stroke::black(0.75, 1.25);
+    /// Lettering.
     pub const LABELS: Stroke = Stroke::black(0.6, 1.0);
 }
 

@@ -37,11 +37,6 @@ impl Direction {
             u.z.atan2(u.x.hypot(u.y)).to_degrees(),
         )
     }
-
-    /// Whether the direction is level (its vanishing points lie on the horizon).
-    pub fn is_horizontal(&self) -> bool {
-        self.unit.z.abs() < 1e-12
-    }
 }
 
 /// Edges steeper than this (degrees) count as inclined; as steep as `90 -` this, vertical.

@@ -71,9 +71,9 @@
 //! re-render of the demo at 1920x960 as `watch` does it 40 to 50 ms, 140 ms once under load
 //! (target 200 ms). `cargo bench` prints both (the last line).
 
-pub mod contact;
-pub mod plan;
-pub mod preview;
+mod contact;
+mod plan;
+mod preview;
 
 pub use contact::{contact_sheet, sweep_grid, sweep_headings, sweep_path, ContactSettings};
 pub use plan::{beside, plan_map, Plan, PlanSettings};

@@ -3,7 +3,7 @@
 use super::common::{choose_view, read_site, write_text};
 use super::settings::table_map;
 use crate::args::{AnglesArgs, TableFormat};
-use pansite::aids::table::{angle_table, to_csv, to_json, to_text, PagePlacement, TableChoice};
+use pansite::aids::{angle_table, to_csv, to_json, to_text, PagePlacement, TableChoice};
 use pansite::Error;
 
 /// `pansite angles`.
