@@ -19,6 +19,18 @@ pub enum Error {
         message: String,
     },
 
+    /// An open-data file (GeoJSON, CityJSON) holds something pansite cannot use: `at` names
+    /// the feature or city object and the JSON path.
+    #[error("{}: {at}: {message}", path.display())]
+    Data {
+        /// The data file.
+        path: PathBuf,
+        /// The feature or city object, and the JSON path.
+        at: String,
+        /// What is wrong and what was expected.
+        message: String,
+    },
+
     /// A file could not be read.
     #[error("cannot read {}", path.display())]
     Read {
@@ -128,6 +140,7 @@ impl Error {
     pub fn is_bad_input(&self) -> bool {
         match self {
             Error::Scene { .. }
+            | Error::Data { .. }
             | Error::UnknownStandpoint { .. }
             | Error::NoStandpoint
             | Error::Setting(_)

@@ -331,7 +331,7 @@ impl<'a> ItemBuilder<'a> {
 /// Triangles (vertex indices) covering a flat polygon with holes. The polygon is laid flat
 /// on the coordinate plane it is most nearly parallel to (the largest component of its
 /// Newell normal), which keeps its shape free of folds.
-fn triangulate(points: &[Point3<f64>], hole_starts: &[usize]) -> Vec<[usize; 3]> {
+pub fn triangulate(points: &[Point3<f64>], hole_starts: &[usize]) -> Vec<[usize; 3]> {
     let outer = hole_starts.first().copied().unwrap_or(points.len());
     let normal = newell_normal(&points[..outer]);
     let (a, b) = match normal.iamax() {

@@ -4,9 +4,16 @@
 use super::build::{ItemBuilder, Placement};
 use super::format::{ItemSpec, Posture, SceneFile, StandpointSpec};
 use super::items::*;
+use super::mesh::UpAxis;
 use super::mesh::{add_mesh, MeshPlacement};
 use super::numbers::spot;
+use super::numbers::{Finite, Positive};
 use super::obj::read_obj;
+use super::opendata::{
+    build_building, cityjson::CITY_CREASE_DEG, geojson::Placed, read_open_data, Content,
+    OpenDataSpec,
+};
+use super::site::ItemId;
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
 use crate::error::Error;
@@ -35,7 +42,7 @@ pub enum ExpandError {
     Model {
         path: Vec<usize>,
         label: String,
-        source: Error,
+        source: Box<Error>,
     },
 }
 
@@ -57,11 +64,14 @@ pub fn expand(
         .location
         .as_ref()
         .map(super::location::Location::from_spec);
+    let frame = site.location.as_ref().map(|l| {
+        super::opendata::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0)
+    });
     site.standpoints = file
         .standpoints
         .iter()
-        .map(|s| standpoint(s, unit))
-        .collect();
+        .map(|s| standpoint(s, unit, frame.as_ref()))
+        .collect::<Result<_, _>>()?;
     if let Some(name) = &file.default_standpoint {
         match site.standpoints.iter().position(|s| &s.name == name) {
             Some(index) => site.default_standpoint = index,
@@ -176,6 +186,7 @@ impl Walker<'_> {
                 return Ok(());
             }
             ItemSpec::Model(model) => return self.model(model, place, layer),
+            ItemSpec::OpenData(data) => return self.open_data(data, layer),
             _ => {}
         }
         let label = item.label().map(|label| match copy {
@@ -239,7 +250,7 @@ impl Walker<'_> {
         let obj = read_obj(&path).map_err(|source| ExpandError::Model {
             path: self.path.clone(),
             label: label.clone(),
-            source,
+            source: Box::new(source),
         })?;
         let placement = MeshPlacement {
             up: model.up,
@@ -260,6 +271,109 @@ impl Walker<'_> {
     }
 }
 
+impl Walker<'_> {
+    /// An `OpenData` item: the file's buildings and streets placed around the scene's
+    /// location (`opendata/`). Streets become ordinary `Road` items, built as any other.
+    fn open_data(&mut self, spec: &OpenDataSpec, layer: Option<&str>) -> Result<(), ExpandError> {
+        let label = spec.label.clone().unwrap_or_else(|| spec.file.0.clone());
+        let path = self
+            .scene_path
+            .parent()
+            .unwrap_or(Path::new(""))
+            .join(&spec.file.0);
+        let data = read_open_data(&path, spec, self.site.location.as_ref()).map_err(|source| {
+            ExpandError::Model {
+                path: self.path.clone(),
+                label: label.clone(),
+                source: Box::new(source),
+            }
+        })?;
+        let file_item =
+            self.site
+                .add_item_on_layer("open data", Some(label), layer.map(str::to_owned));
+        for note in data.notes {
+            self.site.assumptions.push((file_item, note));
+        }
+        let metres = Placement::in_unit(1.0);
+        match data.content {
+            Content::Map(placed) => {
+                for feature in placed {
+                    match feature {
+                        Placed::Building {
+                            label,
+                            rings,
+                            heights,
+                            ground,
+                            assumptions,
+                            warnings,
+                        } => {
+                            let id = self.site.add_item_on_layer(
+                                "building",
+                                Some(label),
+                                layer.map(str::to_owned),
+                            );
+                            let north = self.site.location.as_ref().map_or(0.0, |l| l.north_deg);
+                            let mut b = ItemBuilder::new(self.site, id, metres);
+                            let drawn = build_building(&mut b, &rings, &heights, ground, north);
+                            let warnings = warnings.into_iter().chain(match drawn {
+                                Ok(more) => more,
+                                Err(why) => vec![format!("not drawn: {why}")],
+                            });
+                            for warning in warnings {
+                                self.site.warnings.push((id, warning));
+                            }
+                            for assumption in assumptions {
+                                self.site.assumptions.push((id, assumption));
+                            }
+                        }
+                        Placed::Road {
+                            label,
+                            points,
+                            elevations,
+                            width,
+                            assumptions,
+                        } => {
+                            let road = ItemSpec::Road(RoadSpec {
+                                label: Some(label),
+                                layer: None,
+                                points: points.iter().map(|p| (Finite(p.x), Finite(p.y))).collect(),
+                                elevations: Some(elevations.into_iter().map(Finite).collect()),
+                                width: Positive(width),
+                                pavement: None,
+                                kerb: None,
+                                centre_line: CentreLine::default(),
+                                corner_radius: None,
+                            });
+                            self.item(&road, metres, layer, None)?;
+                            let id = ItemId(self.site.items.len() as u32 - 1);
+                            for assumption in assumptions {
+                                self.site.assumptions.push((id, assumption));
+                            }
+                        }
+                    }
+                }
+            }
+            Content::City(model) => {
+                let first = self.site.items.len();
+                let placement = MeshPlacement {
+                    up: UpAxis::Z,
+                    crease_deg: CITY_CREASE_DEG,
+                    ..MeshPlacement::default()
+                };
+                add_mesh(self.site, &model.mesh, &placement, "");
+                for (item, (id, kind)) in
+                    self.site.items[first..].iter_mut().zip(&model.group_names)
+                {
+                    item.kind = "city object";
+                    item.label = Some(id.clone());
+                    item.layer = Some(layer.map_or_else(|| kind.clone(), str::to_owned));
+                }
+            }
+        }
+        self.check_size()
+    }
+}
+
 /// Whether an item's label is `wanted`, or a numbered copy of it (`lamp 3` for `lamp`).
 pub fn label_matches(label: Option<&str>, wanted: &str) -> bool {
     label.is_some_and(|label| {
@@ -271,20 +385,48 @@ pub fn label_matches(label: Option<&str>, wanted: &str) -> bool {
     })
 }
 
-fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {
+fn standpoint(
+    spec: &StandpointSpec,
+    unit: f64,
+    frame: Option<&super::opendata::LocalFrame>,
+) -> Result<Standpoint, ExpandError> {
+    let field = |message: String| ExpandError::Field {
+        field: "standpoints",
+        message,
+    };
+    let (x, y) = match (spec.x, spec.y, spec.latitude, spec.longitude, frame) {
+        (Some(x), Some(y), None, None, _) => (x.0 * unit, y.0 * unit),
+        (None, None, Some(lat), Some(lon), Some(frame)) => {
+            let (x, y, _) = frame.to_plan(lat.0, lon.0);
+            (x, y)
+        }
+        (None, None, Some(_), Some(_), None) => {
+            return Err(field(format!(
+                "standpoint \"{}\" is given by latitude and longitude, so the scene needs a \
+                 `location` (where its origin is)",
+                spec.name
+            )))
+        }
+        _ => {
+            return Err(field(format!(
+                "standpoint \"{}\" needs either x and y, or latitude and longitude",
+                spec.name
+            )))
+        }
+    };
     let eye_height = match (spec.eye_height, spec.posture) {
         (Some(height), _) => height.0 * unit,
         (None, Posture::Standing) => DEFAULT_EYE_HEIGHT,
         (None, Posture::Seated) => SEATED_EYE_HEIGHT,
     };
-    Standpoint {
+    Ok(Standpoint {
         name: spec.name.clone(),
-        x: spec.x.0 * unit,
-        y: spec.y.0 * unit,
+        x,
+        y,
         ground: spec.ground.0 * unit,
         eye_height,
         heading: spec.heading.0.to_radians(),
         pitch: spec.pitch.0.to_radians(),
         roll: spec.roll.0.to_radians(),
-    }
+    })
 }

@@ -75,8 +75,16 @@ pub enum Posture {
 #[serde(rename = "Standpoint", deny_unknown_fields)]
 pub struct StandpointSpec {
     pub name: String,
-    pub x: Finite,
-    pub y: Finite,
+    /// Plan position; or give `latitude` and `longitude` instead (with a `location`).
+    #[serde(default)]
+    pub x: Option<Finite>,
+    #[serde(default)]
+    pub y: Option<Finite>,
+    /// WGS84 degrees, placed by the scene's `location` (the geodesic from its origin).
+    #[serde(default)]
+    pub latitude: Option<super::location::Latitude>,
+    #[serde(default)]
+    pub longitude: Option<super::location::Longitude>,
     #[serde(default = "zero")]
     pub ground: Finite,
     /// In the scene's unit; by default the posture's eye height.

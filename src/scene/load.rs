@@ -171,7 +171,7 @@ pub fn parse_scene_timed(
             line: item_start(&item_spans(text), &at).map_or(1, |(line, _)| line),
             column: item_start(&item_spans(text), &at).map_or(1, |(_, column)| column),
             item: label,
-            source: Box::new(source),
+            source,
         },
     })?;
     let timings = LoadTimings {

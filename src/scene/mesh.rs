@@ -151,7 +151,14 @@ pub fn add_mesh(
 ) -> MeshStats {
     let positions = place(&obj.positions, placement);
     let mut used = vec![false; positions.len()];
-    for (indices, _) in obj.faces.iter().chain(&obj.lines) {
+    let holes = obj.holes.iter().map(|(_, ring)| ring);
+    for indices in obj
+        .faces
+        .iter()
+        .chain(&obj.lines)
+        .map(|(r, _)| r)
+        .chain(holes)
+    {
         for &i in indices {
             used[i as usize] = true;
         }
@@ -179,14 +186,20 @@ pub fn add_mesh(
     };
     let points = representative(&weld, &positions, vertices);
 
+    // Holes, by face: welded rings without repeats.
+    let mut holes_of: std::collections::HashMap<u32, Vec<Vec<u32>>> =
+        std::collections::HashMap::new();
+    for (face, ring) in &obj.holes {
+        let ring = welded_ring(ring, &weld);
+        if ring.len() >= 3 {
+            holes_of.entry(*face).or_default().push(ring);
+        }
+    }
     // Faces: welded corner lists without repeats, their normals, and their triangles.
     let mut faces: Vec<(Vec<u32>, Vector3<f64>, ItemId)> = Vec::with_capacity(obj.faces.len());
-    for (corners, group) in &obj.faces {
-        let mut welded: Vec<u32> = corners.iter().map(|&c| weld[c as usize]).collect();
-        welded.dedup();
-        while welded.len() > 1 && welded.first() == welded.last() {
-            welded.pop();
-        }
+    let mut face_holes: Vec<(usize, Vec<u32>)> = Vec::new();
+    for (index, (corners, group)) in obj.faces.iter().enumerate() {
+        let welded = welded_ring(corners, &weld);
         let normal = if welded.len() < 3 {
             None
         } else {
@@ -198,21 +211,47 @@ pub fn add_mesh(
         };
         let item = items[*group as usize];
         let p = |i: u32| points[i as usize];
-        for k in 1..welded.len() - 1 {
-            site.faces.push(Face {
-                corners: [p(welded[0]), p(welded[k]), p(welded[k + 1])],
+        let holes = holes_of.remove(&(index as u32)).unwrap_or_default();
+        if holes.is_empty() && (welded.len() == 3 || is_convex_face(&welded, &points, &normal)) {
+            for k in 1..welded.len() - 1 {
+                site.faces.push(Face {
+                    corners: [p(welded[0]), p(welded[k]), p(welded[k + 1])],
+                    item,
+                    slack: 0.0,
+                });
+            }
+            stats.triangles += welded.len() - 2;
+        } else {
+            // A concave face, or one with holes: the general triangulator.
+            let mut ring_points: Vec<Point3<f64>> = welded.iter().map(|&i| p(i)).collect();
+            let mut hole_starts = Vec::with_capacity(holes.len());
+            for hole in &holes {
+                hole_starts.push(ring_points.len());
+                ring_points.extend(hole.iter().map(|&i| p(i)));
+            }
+            let triangles = super::build::triangulate(&ring_points, &hole_starts);
+            stats.triangles += triangles.len();
+            site.faces.extend(triangles.iter().map(|t| Face {
+                corners: t.map(|i| ring_points[i]),
                 item,
                 slack: 0.0,
-            });
+            }));
         }
-        stats.triangles += welded.len() - 2;
+        for hole in holes {
+            face_holes.push((faces.len(), hole));
+        }
         faces.push((welded, normal, item));
     }
     stats.faces = faces.len();
 
     // Every face edge as (low, high, face, runs low -> high); sorted, equal edges are adjacent.
     let mut face_edges: Vec<(u32, u32, u32, bool)> = Vec::with_capacity(faces.len() * 4);
-    for (f, (corners, _, _)) in faces.iter().enumerate() {
+    let rings = faces
+        .iter()
+        .enumerate()
+        .map(|(f, (corners, _, _))| (f, corners))
+        .chain(face_holes.iter().map(|(f, ring)| (*f, ring)));
+    for (f, corners) in rings {
         for k in 0..corners.len() {
             let (a, b) = (corners[k], corners[(k + 1) % corners.len()]);
             face_edges.push((a.min(b), a.max(b), f as u32, a < b));
@@ -280,6 +319,31 @@ pub fn add_mesh(
         }
     }
     stats
+}
+
+/// A ring of position indices through the weld, without repeated corners (nor the first
+/// repeated at the end).
+fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
+    let mut welded: Vec<u32> = corners.iter().map(|&c| weld[c as usize]).collect();
+    welded.dedup();
+    while welded.len() > 1 && welded.first() == welded.last() {
+        welded.pop();
+    }
+    welded
+}
+
+/// Whether a face turns the same way at every corner about its normal (a fan of triangles
+/// from its first corner then covers it exactly).
+fn is_convex_face(corners: &[u32], points: &[Point3<f64>], normal: &Vector3<f64>) -> bool {
+    let n = corners.len();
+    (0..n).all(|k| {
+        let (a, b, c) = (
+            points[corners[k] as usize],
+            points[corners[(k + 1) % n] as usize],
+            points[corners[(k + 2) % n] as usize],
+        );
+        (b - a).cross(&(c - b)).dot(normal) >= 0.0
+    })
 }
 
 /// The file's positions in the site frame: axes, units, scale, turn, offset.

@@ -18,6 +18,7 @@ mod location;
 mod mesh;
 mod numbers;
 mod obj;
+pub mod opendata;
 mod outline;
 mod site;
 mod style;

@@ -25,6 +25,9 @@ pub struct ObjFile {
     pub lines: Vec<(Vec<u32>, u32)>,
     /// Group names (from `g`, or `o` where no `g` is given); index 0 is the file's default.
     pub groups: Vec<String>,
+    /// Holes cut out of faces: the face's index in `faces` and the hole's ring of position
+    /// indices. OBJ has none; CityJSON surfaces do.
+    pub holes: Vec<(u32, Vec<u32>)>,
 }
 
 /// Reads and parses an OBJ file.

@@ -197,6 +197,9 @@ pub struct Site {
     pub named_points: Vec<NamedPoint>,
     /// Things that look wrong but can still be drawn (a block of no height), by item.
     pub warnings: Vec<(ItemId, String)>,
+    /// What a loader assumed where its data said nothing (an open-data building's height
+    /// from its levels), by item: listed by `check` so that no guess passes for a survey.
+    pub assumptions: Vec<(ItemId, String)>,
     /// How the scene asks for hidden edges to be drawn, if it says.
     pub hidden_edges: Option<HiddenEdges>,
     /// How the scene asks its layers to look.

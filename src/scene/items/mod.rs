@@ -78,8 +78,10 @@ pub use block::{build_block, BlockSpec};
 pub use footprint::{build_footprint, FootprintSpec};
 pub use group::{GroupSpec, RepeatSpec};
 pub use marks::{build_line, build_point, build_polyline, LineSpec, PointSpec, PolylineSpec};
+pub use mass::{build_mass, Mass};
 pub use model::ModelSpec;
-pub use road::{build_road, RoadSpec};
+pub use plan::{clip_polygon, is_convex, simple_polygon_problem, turn_angle, twice_signed_area};
+pub use road::{build_road, CentreLine, RoadSpec};
 pub use room::{build_room, RoomSpec};
 pub use round::{build_column, build_dome, build_tower, ColumnSpec, DomeSpec, TowerSpec};
 pub use stairs::{build_stairs, StairsSpec};
@@ -165,5 +167,6 @@ item_kinds! {
         Group: "group", GroupSpec;
         Repeat: "repeat", RepeatSpec;
         Model: "model", ModelSpec;
+        OpenData: "open data", crate::scene::opendata::OpenDataSpec;
     }
 }

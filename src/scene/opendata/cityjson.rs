@@ -1,0 +1,644 @@
+//! Reading CityJSON 2.0 city models (and the line-delimited CityJSONSeq form): the
+//! transform, the vertices, Building and BuildingPart objects with MultiSurface,
+//! CompositeSurface, Solid, MultiSolid and CompositeSolid geometries at one level of detail,
+//! their semantic surfaces (roof, wall, ground...) as layers, and holes in surfaces.
+//!
+//! A vertex is its integers times the scale plus the translate (CityJSON 2.0, section
+//! "Transform object"). The model becomes a mesh like an OBJ model (`mesh.rs`): the edges
+//! drawn are its real edges (where surfaces meet at an angle, outlines, the rims of holes),
+//! never the diagonals of a triangulation, and its surfaces hide what is behind them.
+//!
+//! The boundaries are nested arrays whose depth depends on the geometry's type; they are
+//! read into a small tree ([`Tree`]) whose innermost lists are rings of vertex indices, so
+//! that one walk serves every type.
+
+use super::earth::LocalFrame;
+use super::grid::{Grid, GridToPlan};
+use super::OpenDataError;
+use crate::scene::obj::ObjFile;
+use nalgebra::Point3;
+use serde::de::{Deserializer, SeqAccess, Visitor};
+use serde::Deserialize;
+use std::collections::BTreeMap;
+
+/// Faces between surfaces of a city model meeting at more than this angle (degrees) are
+/// drawn: its surfaces are flat, so any fold is a real edge; a flat wall cut into several
+/// surfaces is not. Our own choice.
+pub const CITY_CREASE_DEG: f64 = 1.0;
+
+/// Nested boundary arrays: rings of vertex indices at the bottom.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Tree {
+    Ring(Vec<u32>),
+    List(Vec<Tree>),
+}
+
+/// One element while reading a list: an index or a deeper list.
+enum Element {
+    Index(u32),
+    Tree(Tree),
+}
+
+impl<'de> Deserialize<'de> for Element {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct V;
+        impl<'de> Visitor<'de> for V {
+            type Value = Element;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("a vertex index or a list of them")
+            }
+            fn visit_u64<E: serde::de::Error>(self, v: u64) -> Result<Element, E> {
+                u32::try_from(v)
+                    .map(Element::Index)
+                    .map_err(|_| E::custom(format!("vertex index {v} is too large")))
+            }
+            fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Element, A::Error> {
+                TreeVisitor.visit_seq(seq).map(Element::Tree)
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+struct TreeVisitor;
+
+impl<'de> Visitor<'de> for TreeVisitor {
+    type Value = Tree;
+    fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+        f.write_str("nested lists of vertex indices")
+    }
+    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Tree, A::Error> {
+        let mut indices = Vec::new();
+        let mut lists = Vec::new();
+        while let Some(element) = seq.next_element::<Element>()? {
+            match element {
+                Element::Index(i) => indices.push(i),
+                Element::Tree(t) => lists.push(t),
+            }
+        }
+        match (indices.is_empty(), lists.is_empty()) {
+            (_, true) => Ok(Tree::Ring(indices)),
+            (true, false) => Ok(Tree::List(lists)),
+            (false, false) => Err(serde::de::Error::custom(
+                "a list mixes vertex indices and lists",
+            )),
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for Tree {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        d.deserialize_seq(TreeVisitor)
+    }
+}
+
+/// Nested semantic values: at the bottom, one surface index (or null) per surface.
+#[derive(Clone, Debug, PartialEq, Deserialize)]
+#[serde(untagged)]
+pub enum Values {
+    Surfaces(Vec<Option<u32>>),
+    List(Vec<Values>),
+}
+
+#[derive(Clone, Debug, Deserialize)]
+pub struct Semantics {
+    #[serde(default)]
+    pub surfaces: Vec<SemanticSurface>,
+    #[serde(default)]
+    pub values: Option<Values>,
+}
+
+#[derive(Clone, Debug, Deserialize)]
+pub struct SemanticSurface {
+    #[serde(rename = "type")]
+    pub kind: String,
+}
+
+/// A level of detail, written as a string ("2.2") or, in older files, a number.
+#[derive(Clone, Debug, Deserialize)]
+#[serde(untagged)]
+pub enum Lod {
+    Text(String),
+    Number(f64),
+}
+
+impl Lod {
+    fn value(&self) -> Option<f64> {
+        match self {
+            Lod::Text(t) => t.trim().parse().ok(),
+            Lod::Number(n) => Some(*n),
+        }
+    }
+
+    fn text(&self) -> String {
+        match self {
+            Lod::Text(t) => t.clone(),
+            Lod::Number(n) => n.to_string(),
+        }
+    }
+}
+
+#[derive(Clone, Debug, Deserialize)]
+pub struct Geometry {
+    #[serde(rename = "type")]
+    pub kind: String,
+    #[serde(default)]
+    pub lod: Option<Lod>,
+    #[serde(default)]
+    pub boundaries: Option<Tree>,
+    #[serde(default)]
+    pub semantics: Option<Semantics>,
+}
+
+#[derive(Clone, Debug, Deserialize)]
+pub struct CityObject {
+    #[serde(rename = "type")]
+    pub kind: String,
+    #[serde(default)]
+    pub geometry: Vec<Geometry>,
+    #[serde(default)]
+    pub children: Vec<String>,
+}
+
+#[derive(Clone, Debug, Deserialize)]
+pub struct Transform {
+    pub scale: [f64; 3],
+    pub translate: [f64; 3],
+}
+
+#[derive(Clone, Debug, Default, Deserialize)]
+pub struct Metadata {
+    #[serde(rename = "referenceSystem", default)]
+    pub reference_system: Option<String>,
+}
+
+/// A CityJSON object, or one CityJSONFeature of a sequence.
+#[derive(Debug, Deserialize)]
+pub struct CityFile {
+    #[serde(rename = "type")]
+    pub kind: String,
+    #[serde(default)]
+    pub version: Option<String>,
+    #[serde(default)]
+    pub transform: Option<Transform>,
+    #[serde(default)]
+    pub metadata: Option<Metadata>,
+    #[serde(rename = "CityObjects", default)]
+    pub city_objects: BTreeMap<String, CityObject>,
+    #[serde(default)]
+    pub vertices: Vec<[i64; 3]>,
+}
+
+/// How the file's coordinates reach the plan.
+pub enum Placing {
+    /// Through the origin's latitude and longitude (exact, turned to true north); heights
+    /// are lowered by `height` (the origin's height in the file's vertical system).
+    Geodesic { map: GridToPlan, height: f64 },
+    /// Grid metres less an origin, grid north as the plan's y.
+    Shift { origin: [f64; 3] },
+}
+
+impl Placing {
+    /// How a file in `reference_system` is placed: by the scene's location through the
+    /// grid, or around a grid origin the scene gives, or (neither given) around the middle
+    /// of the model's ground.
+    pub fn choose(
+        reference_system: Option<&str>,
+        frame: Option<(&LocalFrame, f64)>,
+        origin: Option<(f64, f64)>,
+    ) -> Result<Option<Placing>, String> {
+        match (frame, origin) {
+            (_, Some((e, n))) => Ok(Some(Placing::Shift {
+                origin: [e, n, frame.map_or(0.0, |(_, h)| h)],
+            })),
+            (Some((frame, height)), None) => {
+                let name = reference_system.ok_or(
+                    "the file names no reference system (metadata.referenceSystem), so the \
+                     scene's location cannot be found in it; give the item an origin: \
+                     (easting, northing)",
+                )?;
+                let grid = Grid::from_name(name)?;
+                let (lat, lon) = frame.origin_deg();
+                let origin = grid.to_grid(lat, lon)?;
+                Ok(Some(Placing::Geodesic {
+                    map: GridToPlan::new(&grid, frame, origin)?,
+                    height,
+                }))
+            }
+            (None, None) => Ok(None),
+        }
+    }
+
+    fn place(&self, p: [f64; 3]) -> Point3<f64> {
+        match self {
+            Placing::Geodesic { map, height } => {
+                let [x, y, fall] = map.plan(p[0], p[1]);
+                Point3::new(x, y, p[2] - height - fall)
+            }
+            Placing::Shift { origin } => {
+                Point3::new(p[0] - origin[0], p[1] - origin[1], p[2] - origin[2])
+            }
+        }
+    }
+}
+
+/// A city model read: the mesh of its chosen surfaces, by group (a city object's id and a
+/// semantic layer), and what was left out.
+#[derive(Debug, Default)]
+pub struct CityModel {
+    pub mesh: ObjFile,
+    /// For each group of the mesh: the city object's id and the layer (`roof`, `wall`,
+    /// `ground`... or `building` where the surface has no semantics).
+    pub group_names: Vec<(String, String)>,
+    pub notes: Vec<String>,
+    pub reference_system: Option<String>,
+}
+
+/// The layer of a semantic surface type: `RoofSurface` -> `roof`.
+pub fn layer_of(kind: &str) -> String {
+    kind.strip_suffix("Surface")
+        .unwrap_or(kind)
+        .to_ascii_lowercase()
+}
+
+/// Reads a CityJSON file (`sequence`: a CityJSONSeq, one JSON text per line).
+pub fn read_cityjson(
+    bytes: &[u8],
+    sequence: bool,
+    lod: Option<&str>,
+    placing: impl FnOnce(Option<&str>) -> Result<Option<Placing>, String>,
+) -> Result<CityModel, OpenDataError> {
+    let mut parts: Vec<(Option<usize>, CityFile)> = Vec::new();
+    if sequence {
+        for (number, line) in bytes.split(|&b| b == b'\n').enumerate() {
+            if line.iter().all(u8::is_ascii_whitespace) {
+                continue;
+            }
+            let file: CityFile = serde_json::from_slice(line).map_err(|e| {
+                let mut error = OpenDataError::json(e);
+                error.line_column = error.line_column.map(|(_, c)| (number + 1, c));
+                error
+            })?;
+            parts.push((Some(number + 1), file));
+        }
+    } else {
+        let file: CityFile = serde_json::from_slice(bytes).map_err(OpenDataError::json)?;
+        parts.push((None, file));
+    }
+    let Some((_, header)) = parts.first() else {
+        return Err(OpenDataError::plain(
+            "$",
+            "the file is empty; expected CityJSON",
+        ));
+    };
+    if header.kind != "CityJSON" {
+        return Err(OpenDataError::plain(
+            "$.type",
+            &format!("expected \"CityJSON\", found {:?}", header.kind),
+        ));
+    }
+    if let Some(version) = &header.version {
+        if !matches!(version.as_str(), "2.0" | "1.1") {
+            return Err(OpenDataError::plain(
+                "$.version",
+                &format!("CityJSON {version} is not read; pansite reads versions 2.0 and 1.1"),
+            ));
+        }
+    }
+    let transform = header.transform.clone().ok_or_else(|| {
+        OpenDataError::plain(
+            "$.transform",
+            "the file has no transform (CityJSON 2.0 requires one)",
+        )
+    })?;
+    if transform.scale.iter().any(|s| *s <= 0.0) {
+        return Err(OpenDataError::plain(
+            "$.transform.scale",
+            &format!(
+                "expected scales greater than zero, found {:?}",
+                transform.scale
+            ),
+        ));
+    }
+    let reference_system = header
+        .metadata
+        .as_ref()
+        .and_then(|m| m.reference_system.clone());
+    let real = |v: &[i64; 3]| -> [f64; 3] {
+        [0, 1, 2].map(|k| v[k] as f64 * transform.scale[k] + transform.translate[k])
+    };
+    let placing = match placing(reference_system.as_deref())
+        .map_err(|m| OpenDataError::plain("$.metadata.referenceSystem", &m))?
+    {
+        Some(p) => p,
+        None => {
+            // Around the middle of the model's plan, on its lowest point.
+            let (mut lo, mut hi) = ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]);
+            for (_, part) in &parts {
+                for v in &part.vertices {
+                    let p = real(v);
+                    for k in 0..3 {
+                        lo[k] = lo[k].min(p[k]);
+                        hi[k] = hi[k].max(p[k]);
+                    }
+                }
+            }
+            if lo[0].is_finite() {
+                Placing::Shift {
+                    origin: [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1]), lo[2]],
+                }
+            } else {
+                Placing::Shift { origin: [0.0; 3] }
+            }
+        }
+    };
+    let wanted_lod = match lod {
+        Some(text) => Some(text.trim().parse::<f64>().map_err(|_| {
+            OpenDataError::plain(
+                "lod",
+                &format!("expected a level of detail such as \"2.2\", found {text:?}"),
+            )
+        })?),
+        None => None,
+    };
+
+    let mut model = CityModel {
+        reference_system,
+        ..CityModel::default()
+    };
+    let mut skipped_kinds: BTreeMap<String, usize> = BTreeMap::new();
+    for (line, part) in &parts {
+        let base = model.mesh.positions.len() as u32;
+        model
+            .mesh
+            .positions
+            .extend(part.vertices.iter().map(|v| placing.place(real(v))));
+        let count = part.vertices.len() as u32;
+        let with_parts: std::collections::HashSet<&str> = part
+            .city_objects
+            .iter()
+            .filter(|(_, o)| o.kind == "BuildingPart" && !o.geometry.is_empty())
+            .map(|(id, _)| id.as_str())
+            .collect();
+        for (id, object) in &part.city_objects {
+            let object_path = match line {
+                Some(l) => format!("line {l}, $.CityObjects[{id:?}]"),
+                None => format!("$.CityObjects[{id:?}]"),
+            };
+            if !matches!(object.kind.as_str(), "Building" | "BuildingPart") {
+                *skipped_kinds.entry(object.kind.clone()).or_default() += 1;
+                continue;
+            }
+            // A building drawn by its parts: its own (coarser) geometry is left out.
+            if object.kind == "Building"
+                && object
+                    .children
+                    .iter()
+                    .any(|c| with_parts.contains(c.as_str()))
+            {
+                continue;
+            }
+            let lods: Vec<f64> = object
+                .geometry
+                .iter()
+                .filter_map(|g| g.lod.as_ref().and_then(Lod::value))
+                .collect();
+            let chosen = match wanted_lod {
+                Some(l) => l,
+                None => lods.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            };
+            let mut drawn = false;
+            for (g, geometry) in object.geometry.iter().enumerate() {
+                let at = format!("{object_path}.geometry[{g}]");
+                if geometry.lod.as_ref().and_then(Lod::value) != Some(chosen) {
+                    continue;
+                }
+                let depth = match geometry.kind.as_str() {
+                    "MultiSurface" | "CompositeSurface" => 3,
+                    "Solid" => 4,
+                    "MultiSolid" | "CompositeSolid" => 5,
+                    other => {
+                        model.notes.push(format!(
+                            "{id}: a {other} geometry (lod {}) is not drawn",
+                            geometry.lod.as_ref().map_or(String::new(), Lod::text)
+                        ));
+                        continue;
+                    }
+                };
+                let Some(boundaries) = &geometry.boundaries else {
+                    return Err(OpenDataError::plain(&at, "the geometry has no boundaries"));
+                };
+                let layers: Vec<String> = geometry
+                    .semantics
+                    .as_ref()
+                    .map(|s| s.surfaces.iter().map(|k| layer_of(&k.kind)).collect())
+                    .unwrap_or_default();
+                let values = geometry.semantics.as_ref().and_then(|s| s.values.as_ref());
+                let mut group_of_layer: BTreeMap<String, u32> = BTreeMap::new();
+                let mut problem = None;
+                walk(boundaries, values, depth, &mut |rings, semantic, path| {
+                    if problem.is_some() {
+                        return;
+                    }
+                    let layer = semantic
+                        .and_then(|s| layers.get(s as usize).cloned())
+                        .unwrap_or_else(|| "building".to_owned());
+                    for (r, ring) in rings.iter().enumerate() {
+                        if let Some(&bad) = ring.iter().find(|&&i| i >= count) {
+                            problem = Some(OpenDataError::plain(
+                                &format!("{at}.boundaries{path}[{r}]"),
+                                &format!(
+                                    "vertex index {bad} is beyond the {count} vertices{}",
+                                    if line.is_some() {
+                                        " of its feature"
+                                    } else {
+                                        ""
+                                    }
+                                ),
+                            ));
+                            return;
+                        }
+                    }
+                    let next = model.group_names.len() as u32;
+                    let group = *group_of_layer.entry(layer.clone()).or_insert_with(|| {
+                        model.group_names.push((id.clone(), layer.clone()));
+                        next
+                    });
+                    let shift = |ring: &Vec<u32>| ring.iter().map(|i| i + base).collect();
+                    let face = model.mesh.faces.len() as u32;
+                    model.mesh.faces.push((shift(&rings[0]), group));
+                    for hole in &rings[1..] {
+                        model.mesh.holes.push((face, shift(hole)));
+                    }
+                });
+                if let Some(problem) = problem {
+                    return Err(problem);
+                }
+                drawn = true;
+            }
+            if !drawn && !object.geometry.is_empty() {
+                model.notes.push(format!(
+                    "{id}: no geometry at lod {chosen} (it has {})",
+                    lods.iter()
+                        .map(|l| l.to_string())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ));
+            }
+        }
+    }
+    for (kind, count) in skipped_kinds {
+        model.notes.push(format!(
+            "{count} {kind} object(s) left out (pansite draws buildings)"
+        ));
+    }
+    model.mesh.groups = model
+        .group_names
+        .iter()
+        .map(|(id, layer)| format!("{id}: {layer}"))
+        .collect();
+    if model.mesh.groups.is_empty() {
+        model.mesh.groups.push(String::new());
+    }
+    Ok(model)
+}
+
+/// Calls `surface(rings, semantic value, path)` for every surface of a boundary tree of
+/// `depth` levels (3 for surfaces, 4 for a solid, 5 for several solids), walking the
+/// semantic values alongside.
+fn walk(
+    tree: &Tree,
+    values: Option<&Values>,
+    depth: usize,
+    surface: &mut impl FnMut(&[Vec<u32>], Option<u32>, &str),
+) {
+    fn go(
+        tree: &Tree,
+        values: Option<&Values>,
+        depth: usize,
+        path: &mut String,
+        surface: &mut impl FnMut(&[Vec<u32>], Option<u32>, &str),
+    ) {
+        let Tree::List(items) = tree else {
+            return;
+        };
+        for (k, item) in items.iter().enumerate() {
+            let len = path.len();
+            path.push_str(&format!("[{k}]"));
+            if depth == 3 {
+                // `item` is a surface: a list of rings.
+                let rings: Vec<Vec<u32>> = match item {
+                    Tree::List(rs) => rs
+                        .iter()
+                        .filter_map(|r| match r {
+                            Tree::Ring(ring) => Some(ring.clone()),
+                            Tree::List(_) => None,
+                        })
+                        .collect(),
+                    Tree::Ring(_) => Vec::new(),
+                };
+                let value = match values {
+                    Some(Values::Surfaces(v)) => v.get(k).copied().flatten(),
+                    _ => None,
+                };
+                if !rings.is_empty() {
+                    surface(&rings, value, path);
+                }
+            } else {
+                let inner = match values {
+                    Some(Values::List(v)) => v.get(k),
+                    _ => None,
+                };
+                go(item, inner, depth - 1, path, surface);
+            }
+            path.truncate(len);
+        }
+    }
+    go(tree, values, depth, &mut String::new(), surface);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A unit cube as a Solid, its top a RoofSurface with a square hole, scaled by the
+    /// transform. Hand-made after the CityJSON 2.0 specification's examples.
+    const CUBE: &str = r#"{"type": "CityJSON", "version": "2.0",
+      "transform": {"scale": [0.001, 0.001, 0.001], "translate": [1000.0, 2000.0, 5.0]},
+      "CityObjects": {"b1": {"type": "Building", "geometry": [
+        {"type": "Solid", "lod": "1", "boundaries": [[[[0, 3, 2, 1]], [[4, 5, 6, 7]]]]},
+        {"type": "Solid", "lod": "2.2", "boundaries": [[
+          [[0, 3, 2, 1]], [[4, 5, 6, 7], [8, 9, 10, 11]], [[0, 1, 5, 4]], [[1, 2, 6, 5]],
+          [[2, 3, 7, 6]], [[3, 0, 4, 7]]]],
+         "semantics": {"surfaces": [{"type": "GroundSurface"}, {"type": "RoofSurface"},
+            {"type": "WallSurface"}], "values": [[0, 1, 2, 2, 2, 2]]}}]},
+        "t1": {"type": "SolitaryVegetationObject", "geometry": []}},
+      "vertices": [[0, 0, 0], [10000, 0, 0], [10000, 10000, 0], [0, 10000, 0],
+        [0, 0, 10000], [10000, 0, 10000], [10000, 10000, 10000], [0, 10000, 10000],
+        [4000, 4000, 10000], [6000, 4000, 10000], [6000, 6000, 10000], [4000, 6000, 10000]]}"#;
+
+    fn shift(origin: [f64; 3]) -> impl FnOnce(Option<&str>) -> Result<Option<Placing>, String> {
+        move |_| Ok(Some(Placing::Shift { origin }))
+    }
+
+    #[test]
+    fn vertices_are_integers_times_scale_plus_translate() {
+        // CityJSON 2.0, "Transform object": v = i * scale + translate.
+        let model = read_cityjson(CUBE.as_bytes(), false, None, shift([0.0; 3])).unwrap();
+        assert_eq!(model.mesh.positions[6], Point3::new(1010.0, 2010.0, 15.0));
+        assert_eq!(model.mesh.positions[8], Point3::new(1004.0, 2004.0, 15.0));
+    }
+
+    #[test]
+    fn the_highest_lod_with_its_semantic_layers_and_holes() {
+        let model =
+            read_cityjson(CUBE.as_bytes(), false, None, shift([1000.0, 2000.0, 5.0])).unwrap();
+        assert_eq!(model.mesh.faces.len(), 6);
+        assert_eq!(model.mesh.holes.len(), 1);
+        let layers: Vec<&str> = model.group_names.iter().map(|(_, l)| l.as_str()).collect();
+        assert_eq!(layers, ["ground", "roof", "wall"]);
+        assert!(model
+            .notes
+            .iter()
+            .any(|n| n.contains("SolitaryVegetationObject")));
+        let lod1 = read_cityjson(CUBE.as_bytes(), false, Some("1"), shift([0.0; 3])).unwrap();
+        assert_eq!(lod1.mesh.faces.len(), 2);
+        assert_eq!(lod1.group_names[0].1, "building");
+    }
+
+    #[test]
+    fn a_vertex_index_out_of_range_is_named_by_its_path() {
+        let bad = CUBE.replace(
+            "[[4, 5, 6, 7], [8, 9, 10, 11]]",
+            "[[4, 5, 6, 7], [8, 9, 10, 12]]",
+        );
+        let error = read_cityjson(bad.as_bytes(), false, None, shift([0.0; 3])).unwrap_err();
+        assert!(
+            error
+                .at
+                .contains("$.CityObjects[\"b1\"].geometry[1].boundaries[0][1][1]"),
+            "{error:?}"
+        );
+        assert!(error.message.contains("12"), "{error:?}");
+    }
+
+    #[test]
+    fn a_sequence_shares_the_first_lines_transform() {
+        let seq = concat!(
+            r#"{"type": "CityJSON", "version": "2.0", "transform": {"scale": [0.5, 0.5, 0.5], "translate": [10, 0, 0]}, "CityObjects": {}, "vertices": []}"#,
+            "\n",
+            r#"{"type": "CityJSONFeature", "id": "a", "CityObjects": {"a": {"type": "Building", "geometry": [{"type": "MultiSurface", "lod": "1", "boundaries": [[[0, 1, 2]]]}]}}, "vertices": [[0, 0, 0], [2, 0, 0], [2, 2, 0]]}"#,
+            "\n",
+            r#"{"type": "CityJSONFeature", "id": "b", "CityObjects": {"b": {"type": "Building", "geometry": [{"type": "MultiSurface", "lod": "1", "boundaries": [[[0, 1, 2]]]}]}}, "vertices": [[4, 0, 0], [6, 0, 0], [6, 2, 0]]}"#,
+            "\n"
+        );
+        let model = read_cityjson(seq.as_bytes(), true, None, shift([0.0; 3])).unwrap();
+        assert_eq!(model.mesh.faces.len(), 2);
+        // The second feature's indices point at its own vertices.
+        assert_eq!(model.mesh.faces[1].0, vec![3, 4, 5]);
+        assert_eq!(model.mesh.positions[3], Point3::new(12.0, 0.0, 0.0));
+        let broken = seq.replace("\"b\", \"CityObjects\"", "\"b\" \"CityObjects\"");
+        let error = read_cityjson(broken.as_bytes(), true, None, shift([0.0; 3])).unwrap_err();
+        assert_eq!(error.line_column.map(|(l, _)| l), Some(3));
+    }
+}
