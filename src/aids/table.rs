@@ -42,6 +42,8 @@ pub struct AngleRow {
     pub y_px: f64,
     /// On the page, when its size is known.
     pub page_mm: Option<(f64, f64)>,
+    /// WGS84 latitude and longitude (degrees), when the scene has a `location`.
+    pub latlon: Option<(f64, f64)>,
 }
 
 /// Where the panorama lies on the printed page: today only its printed width.
@@ -87,6 +89,9 @@ pub fn angle_table(
 ) -> Vec<AngleRow> {
     let view = ViewFrame::new(standpoint);
     let eye = standpoint.eye();
+    let frame = site.location.as_ref().map(|l| {
+        crate::scene::opendata::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0)
+    });
     let heading = standpoint.heading;
     let row = |item: String, what: String, at: Point3<f64>| -> Option<AngleRow> {
         let d = at - eye;
@@ -108,6 +113,7 @@ pub fn angle_table(
             x_px: image.x,
             y_px: image.y,
             page_mm: page.map(|p| p.page_position(map, image.x, image.y)),
+            latlon: frame.as_ref().map(|f| f.to_latlon(&at)),
         })
     };
     let wanted = |id: usize| {
@@ -166,7 +172,7 @@ pub fn angle_table(
 /// The columns, in order, with the decimals each is written to: angles to a thousandth of a
 /// degree (a hundredth of a pixel on a 4096-pixel image), lengths to a millimetre, pixels
 /// and page millimetres to a hundredth.
-const COLUMNS: [(&str, usize); 13] = [
+const COLUMNS: [(&str, usize); 15] = [
     ("item", 0),
     ("what", 0),
     ("x", 3),
@@ -180,6 +186,8 @@ const COLUMNS: [(&str, usize); 13] = [
     ("y_px", 2),
     ("x_mm", 2),
     ("y_mm", 2),
+    ("latitude", 8),
+    ("longitude", 8),
 ];
 
 /// A row's cells as text, in [`COLUMNS`] order (page cells empty without a page).
@@ -203,6 +211,13 @@ fn cells(row: &AngleRow) -> Vec<String> {
         Some((x, y)) => {
             cells.push(fixed(x, 2));
             cells.push(fixed(y, 2));
+        }
+        None => cells.extend([String::new(), String::new()]),
+    }
+    match row.latlon {
+        Some((lat, lon)) => {
+            cells.push(fixed(lat, 8));
+            cells.push(fixed(lon, 8));
         }
         None => cells.extend([String::new(), String::new()]),
     }
@@ -383,7 +398,7 @@ mod tests {
         let mut lines = csv.lines();
         assert_eq!(
             lines.next(),
-            Some("item,what,x,y,z,azimuth,relative_azimuth,elevation,distance,x_px,y_px,x_mm,y_mm")
+            Some("item,what,x,y,z,azimuth,relative_azimuth,elevation,distance,x_px,y_px,x_mm,y_mm,latitude,longitude")
         );
         assert_eq!(
             lines.next(),

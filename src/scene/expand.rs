@@ -320,7 +320,9 @@ impl Walker<'_> {
                                 Err(why) => vec![format!("not drawn: {why}")],
                             });
                             for warning in warnings {
-                                self.site.warnings.push((id, warning));
+                                self.site
+                                    .warnings
+                                    .push((id, format!("from open data: {warning}")));
                             }
                             for assumption in assumptions {
                                 self.site.assumptions.push((id, assumption));

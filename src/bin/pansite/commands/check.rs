@@ -122,6 +122,16 @@ pub fn report(site: &Site, path: &Path) -> String {
             }
         );
     }
+    if !site.assumptions.is_empty() {
+        let _ = writeln!(
+            out,
+            "assumed, not surveyed ({}): what the data did not say",
+            site.assumptions.len()
+        );
+        for (item, assumption) in &site.assumptions {
+            let _ = writeln!(out, "  {}: {assumption}", site.describe_item(*item));
+        }
+    }
     out
 }
 
