@@ -1,0 +1,287 @@
+//! Open data against outside sources: RFC 7946's own examples and winding rule, CityJSON
+//! 2.0's transform on a hand-made file (in the reader's unit tests), GeographicLib's
+//! geodesics, the Aviation Formulary's local flat-earth radii, EPSG Guidance Note 7-2's
+//! transverse-Mercator example, and every footprint corner in `pansite angles` against a
+//! position computed here independently.
+
+use geographiclib_rs::{DirectGeodesic, Geodesic, InverseGeodesic};
+use pansite::scene::opendata::geojson::{read_geojson, Placed};
+use pansite::scene::opendata::{LocalFrame, Selection};
+use std::process::Command;
+
+mod common;
+use common::assert_near;
+
+fn far() -> Selection {
+    Selection {
+        within: 1e7,
+        ..Selection::default()
+    }
+}
+
+fn signed_area(ring: &[nalgebra::Vector2<f64>]) -> f64 {
+    (0..ring.len())
+        .map(|i| ring[i].perp(&ring[(i + 1) % ring.len()]))
+        .sum::<f64>()
+        / 2.0
+}
+
+/// RFC 7946, Appendix A.3, "Polygons", the example with holes; and A.6, "MultiPolygons".
+const RFC_POLYGON_WITH_HOLE: &str = r#"{"type": "FeatureCollection", "features": [
+  {"type": "Feature", "properties": {"building": "yes"}, "geometry": {"type": "Polygon",
+   "coordinates": [
+     [[100.0, 0.0], [101.0, 0.0], [101.0, 1.0], [100.0, 1.0], [100.0, 0.0]],
+     [[100.8, 0.8], [100.8, 0.2], [100.2, 0.2], [100.2, 0.8], [100.8, 0.8]]]}},
+  {"type": "Feature", "properties": {"building": "yes"}, "geometry": {"type": "MultiPolygon",
+   "coordinates": [
+     [[[102.0, 2.0], [103.0, 2.0], [103.0, 3.0], [102.0, 3.0], [102.0, 2.0]]],
+     [[[100.0, 0.0], [101.0, 0.0], [101.0, 1.0], [100.0, 1.0], [100.0, 0.0]],
+      [[100.2, 0.2], [100.2, 0.8], [100.8, 0.8], [100.8, 0.2], [100.2, 0.2]]]]}}]}"#;
+
+fn buildings(text: &str, frame: &LocalFrame) -> Vec<Vec<Vec<nalgebra::Vector2<f64>>>> {
+    read_geojson(text.as_bytes(), frame, &far())
+        .unwrap()
+        .placed
+        .into_iter()
+        .filter_map(|p| match p {
+            Placed::Building { rings, .. } => Some(rings),
+            _ => None,
+        })
+        .collect()
+}
+
+#[test]
+fn rfc_7946_polygons_and_multipolygons_with_holes() {
+    let frame = LocalFrame::new(0.5, 100.5, 0.0, 0.0);
+    let found = buildings(RFC_POLYGON_WITH_HOLE, &frame);
+    // One polygon with its hole, then the multipolygon's two polygons (the second holed).
+    let ring_counts: Vec<usize> = found.iter().map(Vec::len).collect();
+    assert_eq!(ring_counts, [2, 1, 2]);
+    // RFC 7946, 3.1.6: exterior rings counter-clockwise, holes clockwise. The example's
+    // rings follow the rule, and the plan (x east, y north) keeps their turn: no mirror.
+    for rings in &found {
+        assert!(signed_area(&rings[0]) > 0.0);
+        for hole in &rings[1..] {
+            assert!(signed_area(hole) < 0.0);
+        }
+    }
+    // The hole is 0.6 degree square inside the 1 degree square: 36 % of its area, near
+    // the equator (to 1 % for the change of scale with latitude).
+    let ratio = -signed_area(&found[0][1]) / signed_area(&found[0][0]);
+    assert_near(ratio, 0.36, 0.0036);
+}
+
+#[test]
+fn rfc_7946_winding_is_not_trusted() {
+    // 3.1.6: "parsers SHOULD NOT reject Polygons that do not follow the right-hand rule".
+    let reversed = RFC_POLYGON_WITH_HOLE.replace(
+        "[[100.0, 0.0], [101.0, 0.0], [101.0, 1.0], [100.0, 1.0], [100.0, 0.0]],\n     [[100.8",
+        "[[100.0, 0.0], [100.0, 1.0], [101.0, 1.0], [101.0, 0.0], [100.0, 0.0]],\n     [[100.8",
+    );
+    assert_ne!(reversed, RFC_POLYGON_WITH_HOLE);
+    let site_of = |text: &str| {
+        let dir = std::env::temp_dir().join(format!("pansite-winding-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(dir.join("rfc.geojson"), text).unwrap();
+        let scene = "Scene(location: (latitude: 0.5, longitude: 100.5), items: [\
+                     OpenData(file: \"rfc.geojson\", within: 1000000)])";
+        let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.join("s.ron"), "s").unwrap();
+        let _ = std::fs::remove_dir_all(&dir);
+        let mut ends: Vec<[i64; 6]> = site
+            .edges
+            .iter()
+            .filter_map(|e| match e.curve {
+                pansite::scene::SiteCurve::Segment { start, end } => {
+                    let (a, b) = if (start.x, start.y, start.z) < (end.x, end.y, end.z) {
+                        (start, end)
+                    } else {
+                        (end, start)
+                    };
+                    let k = |v: f64| (v * 1e3).round() as i64;
+                    Some([k(a.x), k(a.y), k(a.z), k(b.x), k(b.y), k(b.z)])
+                }
+                _ => None,
+            })
+            .collect();
+        ends.sort();
+        (ends, site.faces.len())
+    };
+    assert_eq!(site_of(RFC_POLYGON_WITH_HOLE), site_of(&reversed));
+}
+
+#[test]
+fn plan_positions_are_geodesics_from_the_origin() {
+    // GeographicLib (Karney 2013, the geographiclib-rs port) as the oracle: a point
+    // s metres from the origin at azimuth a lies at (s sin a, s cos a), to 1 mm and
+    // 1e-6 degree of azimuth, within 5 km.
+    let geodesic = Geodesic::wgs84();
+    for (lat0, lon0) in [(51.5, -0.1), (-33.9, 151.2), (64.1, -21.9), (0.0, 179.999)] {
+        let frame = LocalFrame::new(lat0, lon0, 0.0, 0.0);
+        for (azimuth, s) in [
+            (0.0, 5000.0),
+            (37.0, 1234.5),
+            (135.0, 4999.0),
+            (270.0, 80.0),
+        ] {
+            let (lat, lon, _): (f64, f64, f64) = geodesic.direct(lat0, lon0, azimuth, s);
+            let (x, y, _) = frame.to_plan(lat, lon);
+            assert_near(x.hypot(y), s, 1e-3);
+            let plan_azimuth = x.atan2(y).to_degrees().rem_euclid(360.0);
+            let diff = (plan_azimuth - azimuth + 180.0).rem_euclid(360.0) - 180.0;
+            assert!(diff.abs() < 1e-6, "{azimuth} vs {plan_azimuth}");
+        }
+        // Between two points other than the origin, the plan distance is the geodesic's
+        // to a millimetre (the azimuthal equidistant projection's distortion, about
+        // d^3 / R^2, stays below it within 5 km).
+        let (lat_a, lon_a, _): (f64, f64, f64) = geodesic.direct(lat0, lon0, 20.0, 4000.0);
+        let (lat_b, lon_b, _): (f64, f64, f64) = geodesic.direct(lat0, lon0, 250.0, 3500.0);
+        let s_ab: f64 = geodesic.inverse(lat_a, lon_a, lat_b, lon_b);
+        let (xa, ya, _) = frame.to_plan(lat_a, lon_a);
+        let (xb, yb, _) = frame.to_plan(lat_b, lon_b);
+        assert_near((xa - xb).hypot(ya - yb), s_ab, 1e-3);
+    }
+}
+
+#[test]
+fn aviation_formulary_local_flat_earth_radii() {
+    // Ed Williams, "Aviation Formulary" V1.47, "Local, flat earth approximation" (from
+    // memory): north = R1 dlat, east = R2 cos(lat0) dlon, with R1 = a (1 - e^2) /
+    // (1 - e^2 sin^2 lat0)^(3/2) and R2 = a / sqrt(1 - e^2 sin^2 lat0); exact in the limit
+    // of small offsets. Checked at 10 m, where the approximation is good to 0.1 mm.
+    let (a, f): (f64, f64) = (6_378_137.0, 1.0 / 298.257_223_563);
+    let e2 = f * (2.0 - f);
+    for lat0 in [0.0f64, 33.95, 52.0, 70.0] {
+        let w = 1.0 - e2 * lat0.to_radians().sin().powi(2);
+        let (r1, r2) = (a * (1.0 - e2) / w.powf(1.5), a / w.sqrt());
+        let frame = LocalFrame::new(lat0, -118.4, 0.0, 0.0);
+        let dlat = (10.0 / r1).to_degrees();
+        let (x, y, _) = frame.to_plan(lat0 + dlat, -118.4);
+        assert_near(y, 10.0, 1e-4);
+        assert_near(x, 0.0, 1e-4);
+        let dlon = (10.0 / (r2 * lat0.to_radians().cos())).to_degrees();
+        let (x, y, _) = frame.to_plan(lat0, -118.4 + dlon);
+        assert_near(x, 10.0, 1e-4);
+        assert!(
+            y.abs() < 1e-4 + 10.0 * 10.0 / 6.3e6 * lat0.to_radians().tan(),
+            "{y}"
+        );
+        // And the radii themselves, as pansite uses them for the fall of the ground.
+        let east: f64 = pansite::scene::opendata::radius_of_curvature(lat0, 90.0);
+        let north: f64 = pansite::scene::opendata::radius_of_curvature(lat0, 0.0);
+        assert_near(east, r2, 1e-6 * r2);
+        assert_near(north, r1, 1e-6 * r1);
+    }
+}
+
+#[test]
+fn epsg_guidance_note_7_2_transverse_mercator_example() {
+    // IOGP Publication 373-7-2 (EPSG Guidance Note 7-2), section on Transverse Mercator
+    // (EPSG method 9807), worked example on OSGB 1936 / British National Grid: latitude
+    // 50 deg 30' N, longitude 0 deg 30' E on OSGB 1936 gives E = 577,274.99 m,
+    // N = 69,740.50 m (from memory; not confirmed against the document here). The
+    // definition of EPSG:27700 comes from crs-definitions, the projection from proj4rs,
+    // as pansite reads grids; both ends on OSGB 1936, so no datum shift enters.
+    let def = crs_definitions::from_code(27700).unwrap();
+    let grid = proj4rs::Proj::from_proj_string(def.proj4).unwrap();
+    let geographic = proj4rs::Proj::from_proj_string("+proj=longlat +datum=OSGB36").unwrap();
+    let (e, n) = proj4rs::adaptors::transform_vertex_2d(
+        &geographic,
+        &grid,
+        (0.5f64.to_radians(), 50.5f64.to_radians()),
+    )
+    .unwrap();
+    assert_near(e, 577_274.99, 0.01);
+    assert_near(n, 69_740.50, 0.01);
+}
+
+#[test]
+fn every_footprint_corner_in_angles_where_it_is_computed_here() {
+    // One building 6 m high, 40 m north-east of the origin, seen from the origin (a
+    // standpoint by latitude and longitude). Each corner is placed here independently:
+    // GeographicLib's inverse from the standpoint gives distance and azimuth; the corner
+    // lies d^2 / 2R lower (R = 6,371 km, good to a micrometre at this distance).
+    let corners = [
+        (-2.50000, 51.00030),
+        (-2.49990, 51.00030),
+        (-2.49990, 51.00040),
+        (-2.50000, 51.00040),
+    ];
+    let ring: Vec<String> = corners
+        .iter()
+        .chain(std::iter::once(&corners[0]))
+        .map(|(lon, lat)| format!("[{lon}, {lat}]"))
+        .collect();
+    let geojson = format!(
+        r#"{{"type": "FeatureCollection", "features": [{{"type": "Feature", "id": "w1",
+            "properties": {{"building": "yes", "name": "mill", "height": "6"}},
+            "geometry": {{"type": "Polygon", "coordinates": [[{}]]}}}}]}}"#,
+        ring.join(", ")
+    );
+    let dir = std::env::temp_dir().join(format!("pansite-angles-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(dir.join("mill.geojson"), geojson).unwrap();
+    std::fs::write(
+        dir.join("mill.ron"),
+        "Scene(location: (latitude: 51.0, longitude: -2.5), standpoints: [(name: \"here\", \
+         latitude: 51.0002, longitude: -2.50005, eye_height: 1.5)], \
+         items: [OpenData(file: \"mill.geojson\")])",
+    )
+    .unwrap();
+    let output = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .args(["angles", "mill.ron", "--format", "csv", "--item", "mill"])
+        .current_dir(&dir)
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let text = String::from_utf8(output.stdout).unwrap();
+    let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
+    let column = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    let rows: Vec<Vec<f64>> = text
+        .lines()
+        .skip(1)
+        .map(|line| {
+            line.split(',')
+                .skip(2)
+                .map(|c| c.parse().unwrap_or(f64::NAN))
+                .collect()
+        })
+        .collect();
+    let get = |row: &Vec<f64>, name: &str| row[column(name) - 2];
+    assert_eq!(rows.len(), 8, "{text}");
+    let geodesic = Geodesic::wgs84();
+    let (eye_lat, eye_lon, eye_z) = (51.0002, -2.50005, 1.5);
+    for (lon, lat) in corners {
+        for height in [0.0, 6.0] {
+            let (s, azimuth, _, _): (f64, f64, f64, f64) =
+                geodesic.inverse(eye_lat, eye_lon, lat, lon);
+            // The corner's height: the building stands on the ground at its middle,
+            // d^2 / 2R below the origin's plane (d from the origin, about 45 m).
+            let (d_mid, _, _, _): (f64, f64, f64, f64) =
+                geodesic.inverse(51.0, -2.5, 51.00035, -2.49995);
+            let z = height - d_mid * d_mid / (2.0 * 6_371_000.0);
+            let elevation = (z - eye_z).atan2(s).to_degrees();
+            let row = rows
+                .iter()
+                .find(|r| {
+                    (get(r, "latitude") - lat).abs() < 1e-7
+                        && (get(r, "longitude") - lon).abs() < 1e-7
+                        && (get(r, "z") - z).abs() < 0.01
+                })
+                .unwrap_or_else(|| panic!("no row for {lat}, {lon}, {height} in\n{text}"));
+            let diff =
+                (get(row, "azimuth") - azimuth.rem_euclid(360.0) + 180.0).rem_euclid(360.0) - 180.0;
+            // The table prints three decimals.
+            assert!(
+                diff.abs() <= 0.0006,
+                "azimuth {} vs {azimuth}",
+                get(row, "azimuth")
+            );
+            assert_near(get(row, "elevation"), elevation, 0.0006);
+        }
+    }
+}
