@@ -5,8 +5,7 @@
 //! position computed here independently.
 
 use geographiclib_rs::{DirectGeodesic, Geodesic, InverseGeodesic};
-use pansite::scene::opendata::geojson::{read_geojson, Placed};
-use pansite::scene::opendata::{LocalFrame, Selection};
+use pansite::scene::{read_geojson, LocalFrame, Placed, Selection};
 use std::process::Command;
 
 mod common;
@@ -166,8 +165,8 @@ fn aviation_formulary_local_flat_earth_radii() {
             "{y}"
         );
         // And the radii themselves, as pansite uses them for the fall of the ground.
-        let east: f64 = pansite::scene::opendata::radius_of_curvature(lat0, 90.0);
-        let north: f64 = pansite::scene::opendata::radius_of_curvature(lat0, 0.0);
+        let east: f64 = pansite::scene::radius_of_curvature(lat0, 90.0);
+        let north: f64 = pansite::scene::radius_of_curvature(lat0, 0.0);
         assert_near(east, r2, 1e-6 * r2);
         assert_near(north, r1, 1e-6 * r1);
     }

@@ -89,9 +89,10 @@ pub fn angle_table(
 ) -> Vec<AngleRow> {
     let view = ViewFrame::new(standpoint);
     let eye = standpoint.eye();
-    let frame = site.location.as_ref().map(|l| {
-        crate::scene::opendata::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0)
-    });
+    let frame = site
+        .location
+        .as_ref()
+        .map(|l| crate::scene::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0));
     let heading = standpoint.heading;
     let row = |item: String, what: String, at: Point3<f64>| -> Option<AngleRow> {
         let d = at - eye;

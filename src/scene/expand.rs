@@ -10,8 +10,7 @@ use super::numbers::spot;
 use super::numbers::{Finite, Positive};
 use super::obj::read_obj;
 use super::opendata::{
-    build_building, cityjson::CITY_CREASE_DEG, geojson::Placed, read_open_data, Content,
-    OpenDataSpec,
+    build_building, read_open_data, OpenDataContent, OpenDataSpec, Placed, CITY_CREASE_DEG,
 };
 use super::site::ItemId;
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
@@ -296,7 +295,7 @@ impl Walker<'_> {
         }
         let metres = Placement::in_unit(1.0);
         match data.content {
-            Content::Map(placed) => {
+            OpenDataContent::Map(placed) => {
                 for feature in placed {
                     match feature {
                         Placed::Building {
@@ -355,7 +354,7 @@ impl Walker<'_> {
                     }
                 }
             }
-            Content::City(model) => {
+            OpenDataContent::City(model) => {
                 let first = self.site.items.len();
                 let placement = MeshPlacement {
                     up: UpAxis::Z,

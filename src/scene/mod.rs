@@ -18,7 +18,7 @@ mod location;
 mod mesh;
 mod numbers;
 mod obj;
-pub mod opendata;
+mod opendata;
 mod outline;
 mod site;
 mod style;
@@ -38,6 +38,12 @@ pub use load::{
 pub use location::{Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
+pub use opendata::{
+    curvature_drop, radius_of_curvature, read_cityjson, read_geojson, read_open_data, CityModel,
+    DataKind, GeoJsonScene, Heights, LocalFrame, OpenData, OpenDataContent, OpenDataError,
+    OpenDataSpec, Placed, Placing, RoofShape, Selection, DEFAULT_LEVELS, DEFAULT_ROOF_STOREYS,
+    DEFAULT_STOREY, DEFAULT_WITHIN, LANE_WIDTH, ROAD_WIDTHS, SURVEY_REFRACTION,
+};
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
     Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, NamedPoint, Outline, SilhouetteEdge,

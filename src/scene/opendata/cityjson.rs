@@ -193,9 +193,17 @@ pub struct CityFile {
 pub enum Placing {
     /// Through the origin's latitude and longitude (exact, turned to true north); heights
     /// are lowered by `height` (the origin's height in the file's vertical system).
-    Geodesic { map: GridToPlan, height: f64 },
+    Geodesic {
+        /// Grid metres to plan metres.
+        map: GridToPlan,
+        /// The origin's height in the file's vertical system.
+        height: f64,
+    },
     /// Grid metres less an origin, grid north as the plan's y.
-    Shift { origin: [f64; 3] },
+    Shift {
+        /// The grid point (and height) that is the plan's origin.
+        origin: [f64; 3],
+    },
 }
 
 impl Placing {
@@ -246,11 +254,14 @@ impl Placing {
 /// semantic layer), and what was left out.
 #[derive(Debug, Default)]
 pub struct CityModel {
+    /// The chosen surfaces as a mesh in plan metres.
     pub mesh: ObjFile,
     /// For each group of the mesh: the city object's id and the layer (`roof`, `wall`,
     /// `ground`... or `building` where the surface has no semantics).
     pub group_names: Vec<(String, String)>,
+    /// What was left out.
     pub notes: Vec<String>,
+    /// The file's `metadata.referenceSystem`.
     pub reference_system: Option<String>,
 }
 

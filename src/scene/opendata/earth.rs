@@ -62,6 +62,8 @@ pub struct LocalFrame {
 }
 
 impl LocalFrame {
+    /// The frame of an origin (WGS84 degrees), the bearing of true north from the plan's y
+    /// axis (degrees clockwise) and the refraction coefficient for the fall of the ground.
     pub fn new(latitude_deg: f64, longitude_deg: f64, north_deg: f64, refraction: f64) -> Self {
         LocalFrame {
             geodesic: Geodesic::wgs84(),
@@ -72,6 +74,7 @@ impl LocalFrame {
         }
     }
 
+    /// The origin's latitude and longitude, degrees.
     pub fn origin_deg(&self) -> (f64, f64) {
         (self.latitude_deg, self.longitude_deg)
     }

@@ -20,21 +20,32 @@ use serde_json::{Map, Value};
 /// One feature placed in the plan, ready to be built.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Placed {
+    /// A building or building part.
     Building {
+        /// Its name, id or feature number.
         label: String,
         /// The outer ring, then the holes, in plan metres.
         rings: Vec<Vec<Vector2<f64>>>,
+        /// Its heights and roof from its tags.
         heights: Heights,
         /// The height of the ground under it (the fall of the earth at its middle).
         ground: f64,
+        /// What its tags did not say.
         assumptions: Vec<String>,
+        /// What could not be used.
         warnings: Vec<String>,
     },
+    /// A street's centreline.
     Road {
+        /// Its name, id or feature number.
         label: String,
+        /// Its corners in plan.
         points: Vec<Vector2<f64>>,
+        /// The height of the ground at each corner (the fall of the earth).
         elevations: Vec<f64>,
+        /// Its carriageway's width, metres.
         width: f64,
+        /// What its tags did not say.
         assumptions: Vec<String>,
     },
 }
@@ -42,7 +53,9 @@ pub enum Placed {
 /// What a GeoJSON file gives: its features placed, and what was left out and why.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct GeoJsonScene {
+    /// The features kept, in file order.
     pub placed: Vec<Placed>,
+    /// What was left out, and why.
     pub skipped: Vec<String>,
 }
 

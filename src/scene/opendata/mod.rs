@@ -19,9 +19,14 @@ mod read;
 mod tags;
 
 pub use building::build_building;
+pub use cityjson::{read_cityjson, CityModel, Placing, CITY_CREASE_DEG};
 pub use earth::{curvature_drop, radius_of_curvature, LocalFrame, SURVEY_REFRACTION};
-pub use read::{read_open_data, Content, OpenData};
-pub use tags::{DEFAULT_LEVELS, DEFAULT_ROOF_STOREYS, DEFAULT_STOREY, LANE_WIDTH, ROAD_WIDTHS};
+pub use geojson::{read_geojson, GeoJsonScene, Placed};
+pub use read::{read_open_data, OpenData, OpenDataContent};
+pub use tags::{
+    Heights, RoofShape, DEFAULT_LEVELS, DEFAULT_ROOF_STOREYS, DEFAULT_STOREY, LANE_WIDTH,
+    ROAD_WIDTHS,
+};
 
 use super::numbers::{FileName, Finite, NonNegative, Positive};
 use crate::error::Error;
@@ -38,8 +43,10 @@ pub const DEFAULT_WITHIN: f64 = 5000.0;
 #[derive(Debug, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct OpenDataSpec {
+    /// Names the file's items in messages.
     #[serde(default)]
     pub label: Option<String>,
+    /// The layer its items are drawn on (a city model's surfaces keep their own).
     #[serde(default)]
     pub layer: Option<String>,
     /// The data file (`.geojson`, `.json`, `.city.json`, `.jsonl`), relative to the scene.
@@ -70,8 +77,11 @@ pub struct OpenDataSpec {
 /// Which features an `OpenData` item keeps.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Selection {
+    /// Metres from the origin.
     pub within: f64,
+    /// Tag filters (`key` or `key=value`); all features if empty.
     pub only: Vec<String>,
+    /// Metres per storey.
     pub storey: f64,
 }
 
@@ -86,6 +96,7 @@ impl Default for Selection {
 }
 
 impl Selection {
+    /// The selection an `OpenData` item asks for.
     pub fn from_spec(spec: &OpenDataSpec) -> Selection {
         Selection {
             within: spec.within.map_or(DEFAULT_WITHIN, |w| w.0),
@@ -107,8 +118,11 @@ impl Selection {
 /// Which kind of data file a path is, from its name.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum DataKind {
+    /// RFC 7946 GeoJSON.
     GeoJson,
+    /// CityJSON 2.0.
     CityJson,
+    /// CityJSONSeq: CityJSON features one per line.
     CityJsonSeq,
 }
 
@@ -131,12 +145,16 @@ impl DataKind {
 /// Where in a data file something is: which feature or city object, by index and id.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Located {
+    /// `feature` or `city object`.
     pub what: &'static str,
+    /// Its place in the file, from 0.
     pub index: Option<usize>,
+    /// Its id, if it has one.
     pub id: Option<String>,
 }
 
 impl Located {
+    /// A GeoJSON feature.
     pub fn feature(index: usize, id: Option<String>) -> Located {
         Located {
             what: "feature",
@@ -145,6 +163,7 @@ impl Located {
         }
     }
 
+    /// How messages name it.
     pub fn describe(&self) -> String {
         match (&self.index, &self.id) {
             (Some(i), Some(id)) => format!("{} {i} (id {id:?})", self.what),
@@ -154,6 +173,7 @@ impl Located {
         }
     }
 
+    /// An error about it, at a JSON path.
     pub fn error(&self, json_path: &str, message: &str) -> OpenDataError {
         OpenDataError {
             at: format!("{}, at {json_path}", self.describe()),
@@ -167,12 +187,16 @@ impl Located {
 /// column where the JSON itself is broken.
 #[derive(Clone, Debug, PartialEq)]
 pub struct OpenDataError {
+    /// The feature or object and the JSON path.
     pub at: String,
+    /// What is wrong and what was expected.
     pub message: String,
+    /// Where broken JSON breaks: line and column from 1.
     pub line_column: Option<(usize, usize)>,
 }
 
 impl OpenDataError {
+    /// An error at a JSON path, about no one feature.
     pub fn plain(json_path: &str, message: &str) -> OpenDataError {
         OpenDataError {
             at: format!("at {json_path}"),
@@ -181,6 +205,7 @@ impl OpenDataError {
         }
     }
 
+    /// Broken JSON, where it breaks.
     pub fn json(e: serde_json::Error) -> OpenDataError {
         let text = e.to_string();
         // serde_json appends " at line L column C"; the place goes in front instead.

@@ -14,13 +14,15 @@ use std::path::Path;
 /// What a data file gives, before it is built into the site.
 #[derive(Debug)]
 pub struct OpenData {
-    pub content: Content,
+    /// What the file holds.
+    pub content: OpenDataContent,
     /// What was assumed or left out for the file as a whole.
     pub notes: Vec<String>,
 }
 
+/// What a data file holds, placed in the plan.
 #[derive(Debug)]
-pub enum Content {
+pub enum OpenDataContent {
     /// Buildings and streets from GeoJSON, placed in the plan.
     Map(Vec<Placed>),
     /// A city model's mesh, placed in the plan.
@@ -59,7 +61,7 @@ pub fn read_open_data(
             let selection = Selection::from_spec(spec);
             let scene = read_geojson(&bytes, &frame, &selection).map_err(|e| e.in_file(path))?;
             notes.extend(scene.skipped);
-            Content::Map(scene.placed)
+            OpenDataContent::Map(scene.placed)
         }
         DataKind::CityJson | DataKind::CityJsonSeq => {
             let origin = spec.origin.map(|(e, n)| (e.0, n.0));
@@ -86,7 +88,7 @@ pub fn read_open_data(
                 );
             }
             notes.extend(model.notes.iter().cloned());
-            Content::City(model)
+            OpenDataContent::City(model)
         }
     };
     Ok(OpenData { content, notes })

@@ -52,6 +52,7 @@ pub const OTHER_ROAD_WIDTH: f64 = 4.0;
 /// The roof shapes we draw, from `roof:shape`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum RoofShape {
+    /// No pitch.
     Flat,
     /// Two planes from the long sides (or the short ones, `roof:orientation=across`).
     Gabled,
@@ -72,6 +73,7 @@ pub struct Heights {
     pub eaves: f64,
     /// The top of the roof (`height`).
     pub top: f64,
+    /// The roof drawn (`roof:shape`, or flat).
     pub roof: RoofShape,
     /// The true azimuth (degrees) a skillion or the slopes of a roof face, if tagged.
     pub roof_direction: Option<f64>,
