@@ -89,6 +89,38 @@ fn looks_like_json(text: &str) -> Option<String> {
     })
 }
 
+/// Reads an open-data file (GeoJSON, CityJSON, CityJSONSeq) given instead of a scene: a
+/// site of its buildings and streets around `origin` (WGS84 latitude and longitude), or
+/// around a point of the file's own (its first position; a city model's middle), with one
+/// standpoint, `origin`, there.
+pub fn load_open_data(path: &Path, origin: Option<(f64, f64)>) -> Result<Site> {
+    let name = path
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let origin = match (origin, super::opendata::DataKind::of(path)) {
+        (Some(o), _) => Some(o),
+        (None, Some(super::opendata::DataKind::GeoJson)) => {
+            let bytes = read_input(path)?;
+            Some(super::opendata::first_position(&bytes).map_err(|e| e.in_file(path))?)
+        }
+        _ => None,
+    };
+    let location = origin.map_or(String::new(), |(lat, lon)| {
+        format!("location: (latitude: {lat:?}, longitude: {lon:?}),")
+    });
+    // The file's name goes into a RON string as Rust writes strings, escapes and all.
+    let scene = format!(
+        "Scene(name: {name:?}, {location} standpoints: [(name: \"origin\", x: 0, y: 0)], \
+         items: [OpenData(file: {name:?})])"
+    );
+    parse_scene(scene.as_bytes(), path, &name).map_err(|e| match e {
+        // The scene is ours: the data file's own error is the one to show.
+        Error::InModel { source, .. } => *source,
+        other => other,
+    })
+}
+
 /// Parses scene text. `path` names the file in messages and is where models (OBJ files)
 /// named in the scene are looked for, relative to its folder; `fallback_name` names a scene
 /// that has no `name`.

@@ -32,8 +32,8 @@ pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
 pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{
-    load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,
-    parse_scene_timed, LoadTimings,
+    load_obj, load_obj_timed, load_open_data, load_scene, load_scene_timed, load_style_sheet,
+    parse_scene, parse_scene_timed, LoadTimings,
 };
 pub use location::{Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};

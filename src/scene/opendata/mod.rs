@@ -21,7 +21,7 @@ mod tags;
 pub use building::build_building;
 pub use cityjson::{read_cityjson, CityModel, Placing, CITY_CREASE_DEG};
 pub use earth::{curvature_drop, radius_of_curvature, LocalFrame, SURVEY_REFRACTION};
-pub use geojson::{read_geojson, GeoJsonScene, Placed};
+pub use geojson::{first_position, read_geojson, GeoJsonScene, Placed};
 pub use read::{read_open_data, OpenData, OpenDataContent};
 pub use tags::{
     Heights, RoofShape, DEFAULT_LEVELS, DEFAULT_ROOF_STOREYS, DEFAULT_STOREY, LANE_WIDTH,

@@ -1,7 +1,7 @@
 //! The options of `render` (shared by `watch`) and of the small commands, and their checks.
 
 use super::aids::AidArgs;
-use super::values::{parse_finite, parse_non_negative, parse_pair, parse_size};
+use super::values::{parse_finite, parse_latlon, parse_non_negative, parse_pair, parse_size};
 use super::view::ViewArgs;
 use clap::{Args, ValueEnum};
 use std::path::PathBuf;
@@ -141,6 +141,12 @@ pub struct ModelArgs {
     /// For an .obj model: faces meeting at more than this angle (degrees) show their edge.
     #[arg(long, value_name = "DEG", default_value_t = pansite::scene::DEFAULT_CREASE_DEG, value_parser = parse_crease)]
     pub crease: f64,
+
+    /// For a .geojson, .city.json or .jsonl file: the WGS84 latitude and longitude of the
+    /// plan's origin [default: --at-latlon, else the file's first position (GeoJSON) or the
+    /// model's middle (CityJSON)].
+    #[arg(long, value_name = "LAT,LON", value_parser = parse_latlon, allow_hyphen_values = true)]
+    pub origin_latlon: Option<(f64, f64)>,
 }
 
 /// What kind of file to write.

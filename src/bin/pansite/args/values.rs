@@ -22,6 +22,22 @@ pub fn parse_non_negative(text: &str) -> Result<f64, String> {
     }
 }
 
+/// A WGS84 latitude and longitude, degrees: `51.4779,-0.0015`.
+pub fn parse_latlon(text: &str) -> Result<(f64, f64), String> {
+    let (lat, lon) = parse_pair(text)?;
+    if !(-90.0..=90.0).contains(&lat) {
+        return Err(format!(
+            "expected a latitude from -90 to 90 degrees first, found {lat}"
+        ));
+    }
+    if !(-180.0..=180.0).contains(&lon) {
+        return Err(format!(
+            "expected a longitude from -180 to 180 degrees, found {lon}"
+        ));
+    }
+    Ok((lat, lon))
+}
+
 pub fn parse_pair(text: &str) -> Result<(f64, f64), String> {
     let (x, y) = text
         .split_once(',')

@@ -1,6 +1,6 @@
 //! Where the viewer stands and looks: the options every command that draws a view shares.
 
-use super::values::{parse_finite, parse_non_negative, parse_pair};
+use super::values::{parse_finite, parse_latlon, parse_non_negative, parse_pair};
 use clap::Args;
 
 /// The options that choose or change the standpoint, whichever command they come with.
@@ -13,6 +13,11 @@ pub struct ViewArgs {
     /// Stand at this plan position instead, metres east and north.
     #[arg(long, value_name = "X,Y", value_parser = parse_pair, allow_hyphen_values = true)]
     pub at: Option<(f64, f64)>,
+
+    /// Stand at this WGS84 latitude and longitude instead (the scene needs a `location`;
+    /// a data file given directly is placed around it).
+    #[arg(long, value_name = "LAT,LON", value_parser = parse_latlon, allow_hyphen_values = true, conflicts_with = "at")]
+    pub at_latlon: Option<(f64, f64)>,
 
     /// Eye height above the ground, metres [default: the standpoint's, or 1.6].
     #[arg(long, value_name = "METRES", value_parser = parse_non_negative)]

@@ -8,7 +8,7 @@ use pansite::Error;
 
 /// `pansite angles`.
 pub fn angles(args: &AnglesArgs) -> anyhow::Result<()> {
-    let (site, _) = read_site(&args.scene, &args.model, false)?;
+    let (site, _) = read_site(&args.scene, &args.model, args.view.at_latlon, false)?;
     let standpoint = choose_view(&site, &args.view)?;
     let map = table_map(args)?;
     let choice = TableChoice {

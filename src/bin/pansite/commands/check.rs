@@ -9,7 +9,7 @@ use std::path::Path;
 /// `pansite check`.
 pub fn check(args: &CheckArgs) -> anyhow::Result<()> {
     let path = args.scene.as_path();
-    let (site, _) = read_site(path, &args.model, false)?;
+    let (site, _) = read_site(path, &args.model, None, false)?;
     write_stdout(report(&site, path).as_bytes())?;
     let warnings = warnings(&site);
     for warning in &warnings {

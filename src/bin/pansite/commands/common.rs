@@ -6,8 +6,8 @@ use anyhow::Context;
 use pansite::output::{write_atomically, write_pdf, write_png, write_svg, PngOptions};
 use pansite::page::Sheet;
 use pansite::scene::{
-    load_obj_timed, load_scene_timed, parse_scene_timed, LoadTimings, Site, Standpoint,
-    DEFAULT_EYE_HEIGHT,
+    load_obj_timed, load_open_data, load_scene_timed, parse_scene_timed, DataKind, LoadTimings,
+    LocalFrame, Site, Standpoint, DEFAULT_EYE_HEIGHT,
 };
 use pansite::Error;
 use std::io::{IsTerminal, Read, Write};
@@ -19,14 +19,26 @@ pub fn is_standard_stream(path: &Path) -> bool {
     path == Path::new("-")
 }
 
-/// The scene from a RON file, an OBJ model (by its extension) or standard input (`-`).
+/// The scene from a RON file, an OBJ model or an open-data file (by its extension) or
+/// standard input (`-`). A data file is placed around `--origin-latlon`, else `at_latlon`
+/// (the standpoint asked for), else a point of its own.
 pub fn read_site(
     path: &Path,
     model: &ModelArgs,
+    at_latlon: Option<(f64, f64)>,
     quiet: bool,
 ) -> pansite::Result<(Site, LoadTimings)> {
     if is_standard_stream(path) {
         return scene_from_stdin();
+    }
+    if is_data_file(path) {
+        let started = Instant::now();
+        let site = load_open_data(path, model.origin_latlon.or(at_latlon))?;
+        let timings = LoadTimings {
+            parse: started.elapsed(),
+            ..LoadTimings::default()
+        };
+        return Ok((site, timings));
     }
     let is_obj = path
         .extension()
@@ -46,6 +58,16 @@ pub fn read_site(
     load_scene_timed(path)
 }
 
+/// Whether a path names an open-data file by its name: `.geojson`, `.city.json`, `.jsonl`
+/// (a plain `.json` stays a scene, whose reader explains what a scene looks like).
+fn is_data_file(path: &Path) -> bool {
+    let plain_json = path
+        .file_name()
+        .map(|n| n.to_string_lossy().to_ascii_lowercase())
+        .is_some_and(|n| n.ends_with(".json") && !n.ends_with(".city.json"));
+    DataKind::of(path).is_some() && !plain_json
+}
+
 /// A RON scene read from standard input, and how long reading it took.
 fn scene_from_stdin() -> pansite::Result<(Site, LoadTimings)> {
     let mut bytes = Vec::new();
@@ -61,7 +83,26 @@ fn scene_from_stdin() -> pansite::Result<(Site, LoadTimings)> {
 /// The scene's standpoint (named, or the default), or one made from `--at`, with any
 /// command-line overrides applied.
 pub fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> {
-    let mut standpoint = match (&args.standpoint, args.at) {
+    let at = match args.at_latlon {
+        None => args.at,
+        Some((lat, lon)) => {
+            let location = site.location.as_ref().ok_or_else(|| {
+                Error::Setting(
+                    "--at-latlon needs the scene's `location` (where its origin is on the earth)"
+                        .to_owned(),
+                )
+            })?;
+            let frame = LocalFrame::new(
+                location.latitude_deg,
+                location.longitude_deg,
+                location.north_deg,
+                0.0,
+            );
+            let (x, y, _) = frame.to_plan(lat, lon);
+            Some((x, y))
+        }
+    };
+    let mut standpoint = match (&args.standpoint, at) {
         (Some(name), _) => {
             site.standpoint(name)
                 .cloned()
@@ -83,7 +124,7 @@ pub fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> 
             .cloned()
             .ok_or(Error::NoStandpoint)?,
     };
-    if let (Some((x, y)), Some(_)) = (args.at, &args.standpoint) {
+    if let (Some((x, y)), Some(_)) = (at, &args.standpoint) {
         standpoint.x = x;
         standpoint.y = y;
     }

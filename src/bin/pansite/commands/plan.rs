@@ -13,7 +13,12 @@ const BESIDE_GAP_MM: f64 = 10.0;
 
 /// `pansite plan`.
 pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
-    let (site, _) = read_site(&args.scene, &args.model, args.out.quiet)?;
+    let (site, _) = read_site(
+        &args.scene,
+        &args.model,
+        args.view.at_latlon,
+        args.out.quiet,
+    )?;
     let (settings, panorama) = plan_settings(args)?;
     let sheet = if args.beside {
         let standpoint = choose_view(&site, &args.view)?;

@@ -8,7 +8,12 @@ use pansite::page::Sheet;
 
 /// `pansite preview`.
 pub fn preview_command(args: &PreviewArgs) -> anyhow::Result<()> {
-    let (site, _) = read_site(&args.scene, &args.model, args.out.quiet)?;
+    let (site, _) = read_site(
+        &args.scene,
+        &args.model,
+        args.view.at_latlon,
+        args.out.quiet,
+    )?;
     let standpoint = choose_view(&site, &args.view)?;
     let drawing = preview(&site, &standpoint, &preview_settings(args))?;
     let sheet = Sheet::full_bleed(drawing, args.out.dpi);

@@ -19,7 +19,7 @@ const MAX_NAMED_SKIPS: usize = 20;
 
 /// `pansite render`.
 pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
-    let (site, load) = read_site(&args.scene, &args.model, args.quiet)?;
+    let (site, load) = read_site(&args.scene, &args.model, args.view.at_latlon, args.quiet)?;
     let standpoint = choose_view(&site, &args.view)?;
     let settings = render_settings(args)?;
     let output = match &args.output {

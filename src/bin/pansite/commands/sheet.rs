@@ -10,7 +10,12 @@ use std::time::Instant;
 
 /// `pansite sheet`.
 pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
-    let (site, _) = read_site(&args.scene, &args.model, args.out.quiet)?;
+    let (site, _) = read_site(
+        &args.scene,
+        &args.model,
+        args.view.at_latlon,
+        args.out.quiet,
+    )?;
     let base = choose_view(&site, &args.view)?;
     let standpoints: Vec<Standpoint> = if let Some((from, to, step)) = args.headings {
         sweep_headings(&base, from, to, step)?

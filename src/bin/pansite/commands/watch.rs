@@ -83,12 +83,17 @@ pub fn watch(args: &WatchArgs) -> anyhow::Result<()> {
     );
     loop {
         let started = Instant::now();
-        let outcome = read_site(&render_args.scene, &render_args.model, true)
-            .map_err(anyhow::Error::from)
-            .and_then(|site| {
-                let summary = Summary::of(&site.0);
-                super::render::render(render_args).map(|()| summary)
-            });
+        let outcome = read_site(
+            &render_args.scene,
+            &render_args.model,
+            render_args.view.at_latlon,
+            true,
+        )
+        .map_err(anyhow::Error::from)
+        .and_then(|site| {
+            let summary = Summary::of(&site.0);
+            super::render::render(render_args).map(|()| summary)
+        });
         let what = if changed.is_empty() {
             "first render".to_owned()
         } else {
