@@ -403,8 +403,15 @@ fn megabytes(bytes: u64) -> f64 {
     bytes as f64 / 1e6
 }
 
+#[path = "cases/opendata.rs"]
+mod opendata;
+
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
+        if opendata::child(&case) {
+            println!("{}", peak_memory().unwrap_or(0));
+            return;
+        }
         match case.as_str() {
             "floor" => drop(floor()),
             "floor_up" => drop(floor_up()),
@@ -427,6 +434,12 @@ fn main() {
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
+        return;
+    }
+    // PANSITE_BENCH_ONLY=opendata: the floor and the open-data cases alone.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("opendata") {
+        floor();
+        opendata::run(time(floor), child_peak);
         return;
     }
     let town = town_scene();
@@ -657,4 +670,5 @@ fn composition(floor_time: Duration) {
         ms(watch),
         watch.as_secs_f64() / floor_time.as_secs_f64(),
     );
+    opendata::run(floor_time, child_peak);
 }

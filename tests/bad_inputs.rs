@@ -226,6 +226,17 @@ corpus! {
     obj_malformed_index: "obj-malformed-index.obj" => refused("obj-malformed-index.obj:4:7:", &["expected a vertex index, found \"three\""]);
     obj_crlf_line_ends_count_lines: "obj-crlf-bad-index.obj" => refused("obj-crlf-bad-index.obj:5:7:", &["index 9 is out of range"]);
     obj_byte_order_mark_does_not_shift_columns: "obj-bom-bad-number.obj" => refused("obj-bom-bad-number.obj:2:7:", &["expected a number, found \"x\""]);
+    // Open data: the file, the feature (index and id) or city object, the JSON path.
+    geojson_truncated: "geojson-truncated.geojson" => refused("geojson-truncated.geojson:4:1:", &["expected JSON"]);
+    geojson_ring_not_closed: "geojson-ring-not-closed.geojson" => refused("geojson-ring-not-closed.geojson: feature 0 (id \"way/7\"), at $.features[0].geometry.coordinates[0]:", &["not closed", "RFC 7946"]);
+    geojson_ring_crosses_itself: "geojson-crosses-itself.geojson" => refused("geojson-crosses-itself.geojson: feature 0 (id \"bow-tie\")", &["crosses"]);
+    geojson_latitude_written_first: "geojson-latitude-first.geojson" => refused("geojson-latitude-first.geojson: feature 0 (id \"harbour road\"), at $.features[0].geometry.coordinates[0]:", &["out of range", "longitude first"]);
+    geojson_feature_without_geometry: "geojson-no-geometry.geojson" => refused("geojson-no-geometry.geojson: feature 1 (id \"2\"), at $.features[1].geometry:", &["no geometry"]);
+    geojson_other_reference_system: "geojson-other-crs.geojson" => refused("geojson-other-crs.geojson: at $.crs:", &["EPSG::27700", "WGS84"]);
+    cityjson_vertex_index_out_of_range: "cityjson-index-out-of-range.city.json" => refused("cityjson-index-out-of-range.city.json: at $.CityObjects[\"shed\"].geometry[0].boundaries[1][0]:", &["vertex index 3"]);
+    cityjson_unread_reference_system: "cityjson-web-mercator.ron" => refused("cityjson-web-mercator.ron:4:15:", &["EPSG:3857", "not a transverse Mercator"]);
+    cityjson_unread_reference_system_data: "cityjson-web-mercator.city.json" ["--at-latlon", "48,2"] => refused("cityjson-web-mercator.city.json: at $.metadata.referenceSystem:", &["EPSG:3857"]);
+    cityjson_sequence_broken_line: "cityjson-seq-broken-line.city.jsonl" => refused("cityjson-seq-broken-line.city.jsonl:3:39:", &["expected JSON"]);
 }
 
 /// Every file in the corpus has its test, and the corpus is as large as promised.

@@ -102,7 +102,17 @@ pub fn load_open_data(path: &Path, origin: Option<(f64, f64)>) -> Result<Site> {
         (Some(o), _) => Some(o),
         (None, Some(super::opendata::DataKind::GeoJson)) => {
             let bytes = read_input(path)?;
-            Some(super::opendata::first_position(&bytes).map_err(|e| e.in_file(path))?)
+            match super::opendata::first_position(&bytes) {
+                Ok(origin) => Some(origin),
+                // No usable position: the reader says what is wrong with them, if it can.
+                Err(e) => {
+                    let frame = super::opendata::LocalFrame::new(0.0, 0.0, 0.0, 0.0);
+                    let selection = super::opendata::Selection::default();
+                    super::opendata::read_geojson(&bytes, &frame, &selection)
+                        .map_err(|e| e.in_file(path))?;
+                    return Err(e.in_file(path));
+                }
+            }
         }
         _ => None,
     };

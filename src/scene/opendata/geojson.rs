@@ -82,7 +82,10 @@ pub fn first_position(bytes: &[u8]) -> Result<(f64, f64), OpenDataError> {
             _ => None,
         };
         if let Some(p) = found.filter(|p| p.len() >= 2) {
-            return Ok((p[1], p[0]));
+            let (lon, lat) = (p[0], p[1]);
+            if (-180.0..=180.0).contains(&lon) && (-90.0..=90.0).contains(&lat) {
+                return Ok((lat, lon));
+            }
         }
     }
     Err(OpenDataError::plain(
