@@ -6,7 +6,7 @@
 use pansite::render::{render_png_to, RenderSettings};
 use pansite::scene::{load_open_data, HiddenEdges};
 use std::fmt::Write as _;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
 /// The block's origin: an invented spot in the open Atlantic, in UTM zone 26N.
@@ -119,7 +119,7 @@ fn city_model(target_bytes: usize) -> PathBuf {
     path
 }
 
-fn footprints_case(path: &PathBuf) -> (Duration, Duration, usize) {
+fn footprints_case(path: &Path) -> (Duration, Duration, usize) {
     let started = Instant::now();
     let site = load_open_data(path, Some(ORIGIN)).unwrap();
     let load = started.elapsed();
@@ -134,7 +134,7 @@ fn footprints_case(path: &PathBuf) -> (Duration, Duration, usize) {
     (load, started.elapsed(), site.edges.len())
 }
 
-fn city_case(path: &PathBuf) -> (Duration, usize, usize) {
+fn city_case(path: &Path) -> (Duration, usize, usize) {
     let started = Instant::now();
     let site = load_open_data(path, Some(ORIGIN)).unwrap();
     (started.elapsed(), site.edges.len(), site.faces.len())

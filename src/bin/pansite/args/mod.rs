@@ -38,7 +38,7 @@ pub enum Command {
     New(NewArgs),
     /// List the azimuth, elevation, distance and image position of every labelled point and
     /// item corner, to plot by hand.
-    Angles(AnglesArgs),
+    Angles(Box<AnglesArgs>),
     /// Draw many standpoints (the scene's, or a sweep of headings, a path or a grid) as
     /// labelled thumbnails on one sheet.
     Sheet(Box<SheetArgs>),
