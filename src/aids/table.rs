@@ -403,7 +403,7 @@ mod tests {
         );
         assert_eq!(
             lines.next(),
-            Some("\"well, \"\"old\"\"\",point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,,")
+            Some("\"well, \"\"old\"\"\",point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,,,,")
         );
         let json = to_json(&rows, &s, &Equirect::from_size_px(3600.0, 1800.0));
         assert!(
