@@ -613,11 +613,11 @@ fn pages_and_formats_from_the_command_line() {
 // Everyday friction found in use (issue: a house a newcomer can live in).
 
 /// Runs the binary with `input` on standard input.
-fn with_stdin(dir: &Scratch, args: &[&str], input: &[u8]) -> Output {
+fn with_stdin(dir: &Scratch, args: &[&str], input: &[u8]) -> std::process::Output {
     use std::io::Write;
     use std::process::Stdio;
-    let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
+    let mut child = dir
+        .command()
         .args(args)
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
@@ -645,8 +645,8 @@ fn a_reader_that_stops_early_ends_the_program_quietly() {
         &["angles", "many.ron"][..],
         &["render", "many.ron", "--size", "2048x1024", "-o", "-"],
     ] {
-        let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-            .current_dir(&dir.0)
+        let mut child = dir
+            .command()
             .args(args)
             .stdout(Stdio::piped())
             .stderr(Stdio::piped())
@@ -712,8 +712,8 @@ fn stopping_watch_says_what_it_wrote() {
     use std::process::Stdio;
     let dir = Scratch::new("watch-stop");
     std::fs::copy(demo(), dir.path("square.ron")).unwrap();
-    let child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
+    let child = dir
+        .command()
         .args(["watch", "square.ron", "--size", "256x128", "-o", "live.png"])
         .stderr(Stdio::piped())
         .spawn()
@@ -723,7 +723,7 @@ fn stopping_watch_says_what_it_wrote() {
         assert!(started.elapsed().as_secs() < 60, "watch wrote nothing");
         std::thread::sleep(std::time::Duration::from_millis(50));
     }
-    let sent = Command::new("kill")
+    let sent = std::process::Command::new("kill")
         .args(["-INT", &child.id().to_string()])
         .status()
         .unwrap();
