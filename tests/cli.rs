@@ -639,7 +639,7 @@ fn a_reader_that_stops_early_ends_the_program_quietly() {
         .collect();
     dir.write(
         "many.ron",
-        &format!("Scene(standpoints: [(name: \"a\", x: 0, y: 0)], items: [{points}])"),
+        format!("Scene(standpoints: [(name: \"a\", x: 0, y: 0)], items: [{points}])"),
     );
     for args in [
         &["angles", "many.ron"][..],
