@@ -6,7 +6,9 @@
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
-use std::process::Command;
+
+mod common;
+use common::Scratch;
 
 /// Stands for a good image written by an earlier run.
 const EARLIER: &[u8] = b"\x89PNG\r\n\x1a\nan earlier good output, not to be touched";
@@ -15,40 +17,32 @@ fn corpus() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_inputs")
 }
 
-/// Every file of the corpus (the README aside) copied into a fresh folder, with the
-/// earlier output beside them.
-struct Scratch(PathBuf);
-
-impl Scratch {
-    fn new(name: &str) -> Scratch {
-        let dir = std::env::temp_dir().join(format!("pansite-bad-{name}-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&dir);
-        std::fs::create_dir_all(&dir).unwrap();
-        for entry in std::fs::read_dir(corpus()).unwrap() {
-            let path = entry.unwrap().path();
-            std::fs::copy(&path, dir.join(path.file_name().unwrap())).unwrap();
-        }
-        std::fs::write(dir.join("out.png"), EARLIER).unwrap();
-        Scratch(dir)
+/// Every file of the corpus (the README aside) copied into a fresh folder (the shared
+/// harness's), with the earlier output beside them.
+fn scratch_with_corpus(name: &str) -> Scratch {
+    let dir = Scratch::new(&format!("bad-{name}"));
+    for entry in std::fs::read_dir(corpus()).unwrap() {
+        let path = entry.unwrap().path();
+        std::fs::copy(
+            &path,
+            dir.path(&path.file_name().unwrap().to_string_lossy()),
+        )
+        .unwrap();
     }
-
-    /// Every file in the folder with its bytes.
-    fn contents(&self) -> BTreeMap<String, Vec<u8>> {
-        std::fs::read_dir(&self.0)
-            .unwrap()
-            .map(|e| {
-                let path = e.unwrap().path();
-                let name = path.file_name().unwrap().to_string_lossy().into_owned();
-                (name, std::fs::read(&path).unwrap())
-            })
-            .collect()
-    }
+    dir.write("out.png", EARLIER);
+    dir
 }
 
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
+/// Every file in the folder with its bytes.
+fn contents(dir: &Scratch) -> BTreeMap<String, Vec<u8>> {
+    std::fs::read_dir(&dir.0)
+        .unwrap()
+        .map(|e| {
+            let path = e.unwrap().path();
+            let name = path.file_name().unwrap().to_string_lossy().into_owned();
+            (name, std::fs::read(&path).unwrap())
+        })
+        .collect()
 }
 
 /// Renders `file` from the corpus over `out.png`, small, with `extra` options (an OBJ model
@@ -62,11 +56,7 @@ fn render(dir: &Scratch, file: &str, extra: &[&str]) -> (Option<i32>, String) {
         args.extend(["--at", "0,-5"]);
     }
     args.extend(extra);
-    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
-        .args(&args)
-        .output()
-        .unwrap();
+    let out = dir.command().args(&args).output().unwrap();
     (
         out.status.code(),
         String::from_utf8_lossy(&out.stderr).into_owned(),
@@ -77,8 +67,8 @@ fn render(dir: &Scratch, file: &str, extra: &[&str]) -> (Option<i32>, String) {
 /// names the place) and each of `expected`; the folder exactly as it was.
 #[track_caller]
 fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
-    let dir = Scratch::new(file);
-    let before = dir.contents();
+    let dir = scratch_with_corpus(file);
+    let before = contents(&dir);
     let (code, text) = render(&dir, file, extra);
     assert_eq!(code, Some(2), "{file}: {text}");
     assert!(
@@ -94,7 +84,7 @@ fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
         "{file}: one line of message: {text}"
     );
     assert!(
-        dir.contents() == before,
+        contents(&dir) == before,
         "{file}: the folder changed (a file was made, or the earlier output touched)"
     );
 }
@@ -102,15 +92,15 @@ fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
 /// Accepted with a warning: exit 0, the warning, and a new image over the earlier one.
 #[track_caller]
 fn warned(file: &str, expected: &[&str]) {
-    let dir = Scratch::new(file);
-    let before = dir.contents();
+    let dir = scratch_with_corpus(file);
+    let before = contents(&dir);
     let (code, text) = render(&dir, file, &[]);
     assert_eq!(code, Some(0), "{file}: {text}");
     assert!(text.starts_with("pansite: warning: "), "{file}: {text}");
     for e in expected {
         assert!(text.contains(e), "{file}: expected {e:?} in: {text}");
     }
-    let after = dir.contents();
+    let after = contents(&dir);
     assert_eq!(
         after.keys().collect::<Vec<_>>(),
         before.keys().collect::<Vec<_>>(),

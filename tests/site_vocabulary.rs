@@ -386,16 +386,16 @@ fn standpoint() -> impl Strategy<Value = Standpoint> {
 }
 
 /// The distance from the drawing to the true image of the curve, sampled densely
-/// (the image of P(t) / |P(t)|, the definition itself), away from the pole rows.
-fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> f64 {
+/// (the image of P(t) / |P(t)|, the definition itself), away from the pole rows, with the
+/// number of points compared; `None` when the curve has no image to compare.
+fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> Option<(f64, usize)> {
     let map = Equirect::from_size_px(WIDTH, WIDTH / 2.0);
-    let Ok(sphere) = view.sphere_curve(curve) else {
-        return 0.0;
-    };
+    let sphere = view.sphere_curve(curve).ok()?;
     let mut set = PolylineSet::new();
     flatten(&sphere, map, TOLERANCE, &mut set);
     let lines: Vec<Vec<ImagePoint>> = set.iter().map(|l| l.to_vec()).collect();
     let mut worst: f64 = 0.0;
+    let mut compared = 0;
     for i in 0..=1000 {
         let t = sphere.t0 + (sphere.t1 - sphere.t0) * i as f64 / 1000.0;
         let (az, el) = azimuth_elevation(&sphere.position(t));
@@ -413,8 +413,9 @@ fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> f64 {
             })
             .fold(f64::INFINITY, f64::min);
         worst = worst.max(miss);
+        compared += 1;
     }
-    worst
+    Some((worst, compared))
 }
 
 proptest! {
@@ -428,10 +429,18 @@ proptest! {
         let curved = site.edges.iter().chain(&outlines).filter(|e| {
             matches!(e.curve, SiteCurve::Ellipse { .. }) || outlines.contains(e)
         });
+        // Every curve is built and compared: none may slip through as "no image".
+        let (mut curves, mut points) = (0, 0);
         for edge in curved {
-            let miss = worst_miss(&view, &edge.curve);
+            let built = worst_miss(&view, &edge.curve);
+            prop_assert!(built.is_some(), "{:?} has no image from {:?}", edge.curve, standpoint);
+            let (miss, compared) = built.unwrap();
             prop_assert!(miss <= TOLERANCE * 1.001 + 1e-9, "{:?} missed by {} px", edge.curve, miss);
+            curves += 1;
+            points += compared;
         }
+        prop_assert!(curves >= 10, "only {} curves checked", curves);
+        prop_assert!(points >= 500 * curves, "only {} points on {} curves", points, curves);
     }
 }
 

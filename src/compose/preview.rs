@@ -6,10 +6,10 @@
 //! standpoint's heading and pitch; roll turns the image): a point `(x, y, z)` of the view
 //! frame in front of the eye lands at `u = cx + f x / y`, `v = cy - f z / y` with
 //! `f = (W / 2) / tan(fov / 2)`. This is the gnomonic projection of the viewing sphere
-//! onto the tangent plane at the view's centre (Snyder 1987, eq. 22-4 and 22-5), which
-//! `tests/composition.rs` checks. A segment's image is a segment, cut where it crosses the
-//! near plane; an elliptic arc is sampled until every chord is within the tolerance of
-//! the true image.
+//! onto the tangent plane at the view's centre (Snyder 1987: x and y by eq. 22-4 and 22-5,
+//! cos c by 5-3), which `tests/composition.rs` checks, with Snyder's worked example. A
+//! segment's image is a segment, cut where it crosses the near plane; an elliptic arc is
+//! sampled until every chord is within the tolerance of the true image.
 
 use crate::drawing::{dashed, hidden_dash_px, hidden_layer};
 use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
