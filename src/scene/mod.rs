@@ -10,6 +10,7 @@ mod curve;
 mod expand;
 mod file;
 mod format;
+mod ground;
 mod guides;
 mod items;
 mod load;
@@ -20,6 +21,7 @@ mod numbers;
 mod obj;
 mod outline;
 mod site;
+pub mod streets;
 mod style;
 mod suggest;
 mod survey;
@@ -34,6 +36,7 @@ pub use load::{
     load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,
     parse_scene_timed, LoadTimings,
 };
+pub use ground::{Ground, GroundDraw};
 pub use location::{Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};

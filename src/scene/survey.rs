@@ -78,7 +78,7 @@ fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
         name: standpoint.name.clone(),
         eye,
         inside: solids_enclosing(site, &eye),
-        underground: eye.z < 0.0,
+        underground: eye.z < super::ground::ground_height(site, eye.x, eye.y),
     }
 }
 
