@@ -62,9 +62,6 @@ pub struct Ground {
     cell: f64,
 }
 
-/// Metres: two points closer than this in plan are one point.
-const SAME_POINT: f64 = 1e-9;
-
 impl Ground {
     /// The ground under the plan point, if the point lies on it.
     pub fn height_at(&self, x: f64, y: f64) -> Option<f64> {
@@ -304,8 +301,6 @@ pub fn triangulate(
         })
         .collect();
     let is_break = |a: usize, b: usize| {
-        let first_break = spec.contours.iter().map(|c| c.points.len()).sum::<usize>();
-        let _ = first_break;
         constrained
             .iter()
             .any(|&(p, q)| (p.min(q), p.max(q)) == (a.min(b), a.max(b)))
