@@ -71,7 +71,9 @@ pub fn run(floor_time: Duration) {
     )
     .unwrap();
     println!();
-    println!("streets and sloping ground, {WIDTH}x{HEIGHT}, hidden lines faint, median of {RUNS} runs");
+    println!(
+        "streets and sloping ground, {WIDTH}x{HEIGHT}, hidden lines faint, median of {RUNS} runs"
+    );
     whole(&demo);
     let runs: Vec<(Duration, Duration)> = (0..RUNS).map(|_| whole(&demo)).collect();
     let parse = median(runs.iter().map(|r| r.0).collect());

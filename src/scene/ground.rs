@@ -48,6 +48,11 @@ pub struct GroundSpec {
     pub layer: Option<String>,
 }
 
+/// Metres: how far a line drawn on the ground (its own edges, a road laid on it) may lie
+/// behind the ground's faces and still be seen. Without it, rounding would hide half of
+/// every line lying in a face's plane; things behind a hill lie much further behind.
+const GROUND_SLACK: f32 = 0.05;
+
 /// The ground surface, resolved into site coordinates.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Ground {
@@ -133,7 +138,8 @@ impl Ground {
             };
             let xs = triangle.map(|p| p.x);
             let ys = triangle.map(|p| p.y);
-            let fold = |v: [f64; 3], f: fn(f64, f64) -> f64| v[1..].iter().fold(v[0], |a, &b| f(a, b));
+            let fold =
+                |v: [f64; 3], f: fn(f64, f64) -> f64| v[1..].iter().fold(v[0], |a, &b| f(a, b));
             let (c0, c1) = (
                 cell_of(fold(xs, f64::min), self.min.x, self.columns),
                 cell_of(fold(xs, f64::max), self.min.x, self.columns),
@@ -207,7 +213,9 @@ pub fn triangulate(
         Ok(handle)
     };
     for (i, s) in spec.spots.iter().enumerate() {
-        add(&mut cdt, s.0 .0, s.1 .0, s.2 .0, &|| format!("spot {}", i + 1))?;
+        add(&mut cdt, s.0 .0, s.1 .0, s.2 .0, &|| {
+            format!("spot {}", i + 1)
+        })?;
     }
     // Constraint lines, in order: contours then break lines, each named for messages.
     let mut lines: Vec<(String, Vec<spade::handles::FixedVertexHandle>)> = Vec::new();
@@ -245,13 +253,8 @@ pub fn triangulate(
                 let other = lines[..=l]
                     .iter()
                     .find(|(_, hs)| {
-                        hs.windows(2).any(|q| {
-                            crosses(
-                                &cdt,
-                                (pair[0], pair[1]),
-                                (q[0], q[1]),
-                            )
-                        })
+                        hs.windows(2)
+                            .any(|q| crosses(&cdt, (pair[0], pair[1]), (q[0], q[1])))
                     })
                     .map_or("another line".to_owned(), |(n, _)| n.clone());
                 let at = cdt.vertex(pair[0]).position();
@@ -311,7 +314,8 @@ pub fn triangulate(
             let [a, b] = e.vertices();
             let (ia, ib) = (a.fix().index(), b.fix().index());
             let key = (ia.min(ib), ia.max(ib));
-            let outline = hull.contains(&key) || (is_break(ia, ib) && cdt.is_constraint_edge(e.fix()));
+            let outline =
+                hull.contains(&key) || (is_break(ia, ib) && cdt.is_constraint_edge(e.fix()));
             (at(a.fix()), at(b.fix()), outline)
         })
         .collect();
@@ -330,8 +334,14 @@ pub fn triangulate(
 
 fn crosses(
     cdt: &ConstrainedDelaunayTriangulation<Point2<f64>>,
-    a: (spade::handles::FixedVertexHandle, spade::handles::FixedVertexHandle),
-    b: (spade::handles::FixedVertexHandle, spade::handles::FixedVertexHandle),
+    a: (
+        spade::handles::FixedVertexHandle,
+        spade::handles::FixedVertexHandle,
+    ),
+    b: (
+        spade::handles::FixedVertexHandle,
+        spade::handles::FixedVertexHandle,
+    ),
 ) -> bool {
     let p = |v| {
         let q = cdt.vertex(v).position();
@@ -369,11 +379,12 @@ pub fn draw_ground(site: &mut Site, spec: &GroundSpec, edges: GroundEdges) {
             });
         }
     }
-    site.faces.extend(ground.triangles.iter().map(|&corners| Face {
-        corners,
-        item,
-        slack: 0.0,
-    }));
+    site.faces
+        .extend(ground.triangles.iter().map(|&corners| Face {
+            corners,
+            item,
+            slack: GROUND_SLACK,
+        }));
     if spec.layer.is_none() && !site.styles.0.contains_key(&layer) {
         // Faint, so that it guides without competing with the buildings.
         site.styles.0.insert(
@@ -384,6 +395,50 @@ pub fn draw_ground(site: &mut Site, spec: &GroundSpec, edges: GroundEdges) {
             },
         );
     }
+    // What the ground does not reach: such things stand at height 0 there, or float.
+    let outside = |p: &Point3<f64>| ground.height_at(p.x, p.y).is_none();
+    let mut beyond: Vec<ItemId> = Vec::new();
+    for edge in &site.edges {
+        if edge.item == item || beyond.last() == Some(&edge.item) || beyond.contains(&edge.item) {
+            continue;
+        }
+        let off = match edge.curve {
+            SiteCurve::Segment { start, end } => outside(&start) || outside(&end),
+            SiteCurve::Ellipse { centre, u, v, .. } => {
+                outside(&(centre + u))
+                    || outside(&(centre - u))
+                    || outside(&(centre + v))
+                    || outside(&(centre - v))
+            }
+        };
+        if off {
+            beyond.push(edge.item);
+        }
+    }
+    let mut warnings: Vec<(ItemId, String)> = beyond
+        .into_iter()
+        .map(|other| {
+            (
+                item,
+                format!("does not reach under all of {}", site.describe_item(other)),
+            )
+        })
+        .collect();
+    for standpoint in &site.standpoints {
+        if ground.height_at(standpoint.x, standpoint.y).is_none() {
+            warnings.push((
+                item,
+                format!(
+                    "does not reach standpoint {:?} at ({}, {}): it stands at height {} there",
+                    standpoint.name,
+                    short(standpoint.x),
+                    short(standpoint.y),
+                    short(standpoint.ground)
+                ),
+            ));
+        }
+    }
+    site.warnings.extend(warnings);
     site.ground = Some(ground);
 }
 
@@ -451,15 +506,18 @@ mod tests {
         }
         let on_constraint = |a: Vector2<f64>, b: Vector2<f64>| {
             // A piece of a contour or break line, or of the hull (which has one triangle).
-            constraint_pieces
-                .iter()
-                .any(|&(p, q)| ((p - a).norm() < 1e-9 && (q - b).norm() < 1e-9) || ((p - b).norm() < 1e-9 && (q - a).norm() < 1e-9))
+            constraint_pieces.iter().any(|&(p, q)| {
+                ((p - a).norm() < 1e-9 && (q - b).norm() < 1e-9)
+                    || ((p - b).norm() < 1e-9 && (q - a).norm() < 1e-9)
+            })
         };
         let mut shared = 0;
         for (i, s) in ground.triangles.iter().enumerate() {
             for t in &ground.triangles[i + 1..] {
-                let common: Vec<&Point3<f64>> =
-                    s.iter().filter(|p| t.iter().any(|q| key(q) == key(p))).collect();
+                let common: Vec<&Point3<f64>> = s
+                    .iter()
+                    .filter(|p| t.iter().any(|q| key(q) == key(p)))
+                    .collect();
                 if common.len() != 2 {
                     continue;
                 }
@@ -467,7 +525,10 @@ mod tests {
                 if on_constraint(plan(common[0]), plan(common[1])) {
                     continue;
                 }
-                let far = t.iter().find(|q| !common.iter().any(|p| key(p) == key(q))).unwrap();
+                let far = t
+                    .iter()
+                    .find(|q| !common.iter().any(|p| key(p) == key(q)))
+                    .unwrap();
                 let [a, b, c] = s.map(|p| plan(&p));
                 assert!(!in_circle(a, b, c, plan(far)), "{s:?} {t:?}");
             }
@@ -485,9 +546,8 @@ mod tests {
     #[test]
     fn heights_are_found_on_a_tilted_plane() {
         // Every spot on the plane z = 0.1 x + 0.05 y: the surface is that plane.
-        let ground = spec(
-            "(spots: [(0, 0, 0), (100, 0, 10), (100, 100, 15), (0, 100, 5), (50, 40, 7)])",
-        );
+        let ground =
+            spec("(spots: [(0, 0, 0), (100, 0, 10), (100, 100, 15), (0, 100, 5), (50, 40, 7)])");
         let (ground, _) = triangulate(&ground, 1.0).unwrap();
         for (x, y) in [(1.0, 1.0), (99.0, 3.0), (37.5, 81.25), (50.0, 40.0)] {
             let z = ground.height_at(x, y).unwrap();

@@ -58,7 +58,10 @@ pub fn crossing_params(
     if denominator.abs() <= 1e-15 * u.norm() * v.norm() {
         return None;
     }
-    Some(((q - p).perp(&v) / denominator, (q - p).perp(&u) / denominator))
+    Some((
+        (q - p).perp(&v) / denominator,
+        (q - p).perp(&u) / denominator,
+    ))
 }
 
 /// The angle (radians, in [0, 2 pi)) turned counter-clockwise from `a` to `b`.
@@ -426,10 +429,8 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
     }
     for (r, piece, _) in &pieces {
         let mut b = ItemBuilder::new(site, roads[*r].item, Placement::in_unit(1.0));
-        draw_piece(&mut b, &roads[*r], piece).map_err(|message| StreetError {
-            road: *r,
-            message,
-        })?;
+        draw_piece(&mut b, &roads[*r], piece)
+            .map_err(|message| StreetError { road: *r, message })?;
     }
     for (r, height, arc, is_back) in corners_drawn {
         let road = &roads[r];
@@ -539,7 +540,10 @@ mod tests {
             let start = centre + v(start_angle.cos(), start_angle.sin()) * radius;
             let end_angle = start_angle + sweep;
             let end = centre + v(end_angle.cos(), end_angle.sin()) * radius;
-            assert!(((start - vertex).norm() - tangent).abs() < 1e-9, "{degrees}");
+            assert!(
+                ((start - vertex).norm() - tangent).abs() < 1e-9,
+                "{degrees}"
+            );
             assert!(((end - vertex).norm() - tangent).abs() < 1e-9, "{degrees}");
             // The arc's ends are on the kerb lines, and it turns through pi - theta.
             assert!(distance_to_line(start, kerb_a, d_a) < 1e-9);
@@ -558,7 +562,10 @@ mod tests {
         assert!((c.along_a + 3.0).abs() < 1e-12 && (c.along_b + 3.0).abs() < 1e-12);
         // Straight on, the kerbs run through.
         let c = corner(v(0.0, 0.0), v(1.0, 0.0), 3.0, v(-1.0, 0.0), 3.0, 5.0);
-        assert_eq!((c.along_a, c.along_b, c.arc, c.step), (0.0, 0.0, None, None));
+        assert_eq!(
+            (c.along_a, c.along_b, c.arc, c.step),
+            (0.0, 0.0, None, None)
+        );
     }
 
     #[test]
@@ -596,7 +603,10 @@ mod tests {
                 _ => false,
             })
         };
-        assert!(has(v(0.0, 40.0), v(0.0, 7.0)), "the side road's centre line");
+        assert!(
+            has(v(0.0, 40.0), v(0.0, 7.0)),
+            "the side road's centre line"
+        );
         assert!(has(v(7.0, 0.0), v(50.0, 0.0)));
         assert!(!has(v(0.0, 0.0), v(0.0, 7.0)));
         // The far kerb of the through road runs straight on, in two pieces meeting at x = 0.

@@ -515,10 +515,12 @@ fn cut_runs(runs: &[Run], from: f64, to: f64) -> Result<Vec<Run>, (bool, f64)> {
     let total: f64 = lengths.iter().sum();
     let tolerance = 1e-9 * (total + from.abs() + to.abs());
     let straight = |run: Option<&Run>| match run {
-        Some(run @ Run {
-            piece: PathPiece::Line { .. },
-            ..
-        }) => run.piece.length(),
+        Some(
+            run @ Run {
+                piece: PathPiece::Line { .. },
+                ..
+            },
+        ) => run.piece.length(),
         _ => 0.0,
     };
     if from > straight(runs.first()) + tolerance {
@@ -536,7 +538,10 @@ fn cut_runs(runs: &[Run], from: f64, to: f64) -> Result<Vec<Run>, (bool, f64)> {
             let back = start - (end - start).normalize() * -from;
             let height = runs[0].heights.0;
             cut.push(Run {
-                piece: PathPiece::Line { start: back, end: start },
+                piece: PathPiece::Line {
+                    start: back,
+                    end: start,
+                },
                 heights: (height, height),
             });
         }
@@ -555,7 +560,10 @@ fn cut_runs(runs: &[Run], from: f64, to: f64) -> Result<Vec<Run>, (bool, f64)> {
             let on = end + (end - start).normalize() * -to;
             let height = runs[runs.len() - 1].heights.1;
             cut.push(Run {
-                piece: PathPiece::Line { start: end, end: on },
+                piece: PathPiece::Line {
+                    start: end,
+                    end: on,
+                },
                 heights: (height, height),
             });
         }
@@ -588,8 +596,11 @@ pub fn draw_pavement_back(b: &mut ItemBuilder, piece: PathPiece, height: f64, ke
 /// Draws a stretch of road: its edges and kerbs, its pavements, its centre line, a
 /// section across each open end and the crossings at its junctions.
 pub fn draw_piece(b: &mut ItemBuilder, road: &RoadLine, piece: &Piece) -> Result<(), String> {
-    let centreline =
-        Centreline::from_parts(piece.points.clone(), piece.heights.clone(), road.corner_radius)?;
+    let centreline = Centreline::from_parts(
+        piece.points.clone(),
+        piece.heights.clone(),
+        road.corner_radius,
+    )?;
     let (half, kerb, pavement) = (road.half_width, road.kerb, road.pavement);
     let junction_at = |first: bool| {
         let p = if first {
