@@ -56,9 +56,11 @@ const GROUND_SLACK: f32 = 0.05;
 /// The ground surface, resolved into site coordinates.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Ground {
+    /// The triangles of the surface, in site coordinates.
     pub triangles: Vec<[Point3<f64>; 3]>,
-    /// The corners of the box holding the ground.
+    /// The lowest corner of the box holding the ground.
     pub min: Point3<f64>,
+    /// The highest corner of the box holding the ground.
     pub max: Point3<f64>,
     /// Triangles by cell of a square grid over the plan, for finding heights.
     cells: Vec<Vec<u32>>,
@@ -181,10 +183,7 @@ fn short(length: f64) -> String {
 
 /// The triangulated ground and the edges to draw (by what they are: `true` for the
 /// outline and break lines), from a spec in the scene's unit.
-pub fn triangulate(
-    spec: &GroundSpec,
-    unit: f64,
-) -> Result<(Ground, Vec<(Point3<f64>, Point3<f64>, bool)>), String> {
+pub fn triangulate(spec: &GroundSpec, unit: f64) -> Result<(Ground, GroundEdges), String> {
     let mut cdt: ConstrainedDelaunayTriangulation<Point2<f64>> =
         ConstrainedDelaunayTriangulation::new();
     let mut heights: Vec<f64> = Vec::new();

@@ -34,14 +34,18 @@ const STRAIGHT: f64 = 1e-9;
 /// What is wrong, and with which of the roads (an index into the list given).
 #[derive(Debug, PartialEq)]
 pub struct StreetError {
+    /// The road at fault, an index into the list given.
     pub road: usize,
+    /// What is wrong, in words.
     pub message: String,
 }
 
 /// A place where roads meet.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Junction {
+    /// The centre in plan: where the centrelines meet.
     pub at: Vector2<f64>,
+    /// The height of the whole junction.
     pub height: f64,
     /// The roads that meet there (indices into the list given), without repeats.
     pub roads: Vec<usize>,
@@ -82,6 +86,7 @@ pub struct Corner {
     /// Where the line along `a` starts, measured along `a` from the node (negative: back
     /// past it).
     pub along_a: f64,
+    /// Where the line along `b` starts, measured along `b` from the node.
     pub along_b: f64,
     /// The circular return joining the lines, tangent to both.
     pub arc: Option<PathPiece>,
@@ -329,7 +334,7 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
     }
     // Each junction's corners.
     let mut corners_drawn: Vec<(usize, f64, PathPiece, bool)> = Vec::new();
-    let mut steps: Vec<(usize, f64, Vector2<f64>, Vector2<f64>, bool)> = Vec::new();
+    let mut steps: Vec<(usize, f64, PathPiece, bool)> = Vec::new();
     for (node, junction) in junctions.iter().enumerate() {
         let mut arms: Vec<Arm> = Vec::new();
         for (index, (_, piece, ends)) in pieces.iter().enumerate() {
@@ -397,7 +402,12 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
                 corners_drawn.push((road_a, junction.height, arc, false));
             }
             if let Some((p, q)) = c.step {
-                steps.push((road_a, junction.height, p, q, false));
+                steps.push((
+                    road_a,
+                    junction.height,
+                    PathPiece::Line { start: p, end: q },
+                    false,
+                ));
             }
             if la.pavement > 0.0 || lb.pavement > 0.0 {
                 let c = corner(
@@ -414,7 +424,12 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
                     corners_drawn.push((road_a, junction.height, arc, true));
                 }
                 if let Some((p, q)) = c.step {
-                    steps.push((road_a, junction.height, p, q, true));
+                    steps.push((
+                        road_a,
+                        junction.height,
+                        PathPiece::Line { start: p, end: q },
+                        true,
+                    ));
                 }
             }
         }
@@ -432,23 +447,13 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
         draw_piece(&mut b, &roads[*r], piece)
             .map_err(|message| StreetError { road: *r, message })?;
     }
-    for (r, height, arc, is_back) in corners_drawn {
+    for (r, height, arc, is_back) in corners_drawn.into_iter().chain(steps) {
         let road = &roads[r];
         let mut b = ItemBuilder::new(site, road.item, Placement::in_unit(1.0));
         if is_back {
             draw_pavement_back(&mut b, arc, height, road.kerb);
         } else {
             draw_kerb(&mut b, arc, height, road.kerb);
-        }
-    }
-    for (r, height, start, end, is_back) in steps {
-        let road = &roads[r];
-        let mut b = ItemBuilder::new(site, road.item, Placement::in_unit(1.0));
-        let line = PathPiece::Line { start, end };
-        if is_back {
-            draw_pavement_back(&mut b, line, height, road.kerb);
-        } else {
-            draw_kerb(&mut b, line, height, road.kerb);
         }
     }
     Ok(junctions
@@ -483,7 +488,7 @@ mod tests {
                 .from_str(text)
                 .expect("a road as written in a scene");
             let id = site.add_item("road", None);
-            let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+            let b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
             lines.push(road_line(&b, &spec)?);
         }
         let junctions = draw_streets(&mut site, &lines).map_err(|e| e.message)?;

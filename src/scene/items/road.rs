@@ -797,10 +797,9 @@ mod tests {
             .expect("a road as written in a scene");
         let mut site = Site::default();
         let id = site.add_item("road", None);
-        let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+        let b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
         let line = road_line(&b, &spec)?;
-        super::super::super::streets::draw_streets(&mut site, &[line])
-            .map_err(|e| e.message)?;
+        super::super::super::streets::draw_streets(&mut site, &[line]).map_err(|e| e.message)?;
         Ok(site)
     }
 
