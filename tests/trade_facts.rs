@@ -402,15 +402,34 @@ fn a_street_climbing_at_an_angle_vanishes_at_that_elevation() {
     let site =
         pansite::scene::parse_scene(scene.as_bytes(), std::path::Path::new("hill.ron"), "hill")
             .unwrap();
-    let (_, inclined) = pansite::aids::vanishing::found_directions(&site, 0.5);
-    let climb = inclined.first().expect("the climbing street's direction");
-    let (azimuth, elevation) = azimuth_elevation(&climb.unit);
-    assert_near(elevation, 0.1f64.atan(), 1e-9);
-    assert_near(wrap(azimuth), 0.0, 1e-9);
+    // Every line of the street along the climb (kerbs, kerb tops, pavement backs) runs
+    // at that angle: their common direction is the vanishing point's.
+    let climbing: Vec<Vector3<f64>> = site
+        .edges
+        .iter()
+        .filter(|e| site.items[e.item.0 as usize].kind == "road")
+        .filter_map(|e| match e.curve {
+            pansite::scene::SiteCurve::Segment { start, end } if start.y > 10.0 && end.y > 10.0 => {
+                let d = if end.y > start.y {
+                    end - start
+                } else {
+                    start - end
+                };
+                (d.y > 1.0).then_some(d.normalize())
+            }
+            _ => None,
+        })
+        .collect();
+    assert!(climbing.len() >= 4, "{climbing:?}");
+    for d in &climbing {
+        let (azimuth, elevation) = azimuth_elevation(d);
+        assert_near(elevation, 0.1f64.atan(), 1e-9);
+        assert_near(wrap(azimuth), 0.0, 1e-9);
+    }
     // Points far up the street's kerb seen from the foot of the hill close in on that
     // elevation (the vanishing point as the limit of the line's images).
     let eye = site.standpoints[0].eye();
-    let far = Point3::new(3.0, 10.0, 0.15) + climb.unit * 1e7;
+    let far = Point3::new(3.0, 10.0, 0.15) + climbing[0] * 1e7;
     let (_, seen) = azimuth_elevation(&(far - eye));
     assert_near(seen, 0.1f64.atan(), 1e-6);
 }
