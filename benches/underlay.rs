@@ -403,6 +403,9 @@ fn megabytes(bytes: u64) -> f64 {
     bytes as f64 / 1e6
 }
 
+#[path = "cases/streets.rs"]
+mod streets;
+
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
         match case.as_str() {
@@ -427,6 +430,12 @@ fn main() {
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
+        return;
+    }
+    // One topic's cases alone, against the floor measured now (`PANSITE_BENCH_ONLY=streets`).
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("streets") {
+        floor();
+        streets::run(time(floor));
         return;
     }
     let town = town_scene();
@@ -657,4 +666,5 @@ fn composition(floor_time: Duration) {
         ms(watch),
         watch.as_secs_f64() / floor_time.as_secs_f64(),
     );
+    streets::run(floor_time);
 }

@@ -178,6 +178,11 @@ corpus! {
     // Shapes that cannot be built.
     self_intersecting_footprint: "self-intersecting-footprint.ron" => refused("self-intersecting-footprint.ron:4:9:", &["crosses side 3", "must not cross itself"]);
     footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
+    kerb_radius_too_big: "kerb-radius-too-big.ron" => refused("kerb-radius-too-big.ron:5:9:", &["kerb returns of the junction at (0, 0) do not fit", "kerb_radius"]);
+    ground_crossing_contours: "ground-crossing-contours.ron" => refused("ground-crossing-contours.ron:3:5:", &["contour 2 (height 2) crosses contour 1 (height 1)"]);
+    ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
+    ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
+    block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
     road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
     arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);

@@ -805,3 +805,25 @@ fn check_lists_each_blocks_corners() {
         "{report}"
     );
 }
+
+/// `check` reports the sloping ground's extent and height range, and warns of a standpoint
+/// the ground does not reach.
+#[test]
+fn check_reports_the_ground_and_what_lies_off_it() {
+    let dir = Scratch::new("ground-check");
+    dir.write(
+        "hill.ron",
+        "Scene(standpoints: [(name: \"on\", x: 5, y: 5), (name: \"off\", x: 50, y: 5)],\n\
+         ground: (spots: [(0, 0, 1), (20, 0, 1), (0, 20, 4), (20, 20, 4)]), items: [])",
+    );
+    let out = succeeds(&dir, &["check", "hill.ron"]);
+    let report = String::from_utf8_lossy(&out.stdout).into_owned();
+    assert!(
+        report.contains("ground: x 0.00 to 20.00, y 0.00 to 20.00, heights 1.00 to 4.00 m"),
+        "{report}"
+    );
+    // The standpoint on the ground stands on it: 1 + 3 * 5 / 20 under it.
+    assert!(report.contains("above ground at 1.75 m"), "{report}");
+    let all = format!("{report}{}", stderr(&out));
+    assert!(all.contains("does not reach standpoint \"off\""), "{all}");
+}

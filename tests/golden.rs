@@ -290,3 +290,20 @@ fn exterior_demo_with_every_aid() {
         },
     );
 }
+
+/// The hill-town demo: streets meeting at a junction with kerb returns, sloping ground
+/// hiding what lies behind the hill, drawn as renders are by default (hidden parts faint).
+#[test]
+fn hill_town_from_the_high_street() {
+    let settings = RenderSettings {
+        width: 1024,
+        height: 512,
+        ..RenderSettings::default()
+    };
+    check_scene(
+        "scenes/stannock-hill.ron",
+        "stannock-high-street",
+        "high street",
+        settings,
+    );
+}

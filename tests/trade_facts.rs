@@ -388,3 +388,48 @@ fn verticals_are_vertical_lines_and_the_horizon_is_the_middle_row() {
         - xs.iter().cloned().fold(f64::INFINITY, f64::min);
     assert!(spread > 10.0, "spread {spread} px");
 }
+
+/// Common practice, and plain trigonometry: a street climbing at angle `a` runs to a
+/// vanishing point at elevation `a` above the horizon (its lines' direction makes that
+/// angle with the level). Here the street has no heights of its own: it follows sloping
+/// ground that rises 1 in 10 (a = atan 0.1, 5.71 degrees) north of a level stretch.
+#[test]
+fn a_street_climbing_at_an_angle_vanishes_at_that_elevation() {
+    let scene = "Scene(standpoints: [(name: \"foot\", x: -2, y: -5, heading: 0)], \
+        ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 10, 0), (40, 10, 0), \
+                         (-40, 110, 10), (40, 110, 10)]), \
+        items: [Road(points: [(0, -15), (0, 100)], width: 6, kerb: 0.15, pavement: 2)])";
+    let site =
+        pansite::scene::parse_scene(scene.as_bytes(), std::path::Path::new("hill.ron"), "hill")
+            .unwrap();
+    // Every line of the street along the climb (kerbs, kerb tops, pavement backs) runs
+    // at that angle: their common direction is the vanishing point's.
+    let climbing: Vec<Vector3<f64>> = site
+        .edges
+        .iter()
+        .filter(|e| site.items[e.item.0 as usize].kind == "road")
+        .filter_map(|e| match e.curve {
+            pansite::scene::SiteCurve::Segment { start, end } if start.y > 10.0 && end.y > 10.0 => {
+                let d = if end.y > start.y {
+                    end - start
+                } else {
+                    start - end
+                };
+                (d.y > 1.0).then_some(d.normalize())
+            }
+            _ => None,
+        })
+        .collect();
+    assert!(climbing.len() >= 4, "{climbing:?}");
+    for d in &climbing {
+        let (azimuth, elevation) = azimuth_elevation(d);
+        assert_near(elevation, 0.1f64.atan(), 1e-9);
+        assert_near(wrap(azimuth), 0.0, 1e-9);
+    }
+    // Points far up the street's kerb seen from the foot of the hill close in on that
+    // elevation (the vanishing point as the limit of the line's images).
+    let eye = site.standpoints[0].eye();
+    let far = Point3::new(3.0, 10.0, 0.15) + climbing[0] * 1e7;
+    let (_, seen) = azimuth_elevation(&(far - eye));
+    assert_near(seen, 0.1f64.atan(), 1e-6);
+}

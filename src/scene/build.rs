@@ -143,6 +143,26 @@ impl<'a> ItemBuilder<'a> {
         });
     }
 
+    /// Adds a placed road, to be joined with the others and drawn at the end.
+    pub fn add_road(&mut self, road: super::items::RoadLine) {
+        self.site.roads.push(road);
+    }
+
+    /// The site's sloping ground, if it has one.
+    pub fn ground(&self) -> Option<&super::ground::Ground> {
+        self.site.ground.as_ref()
+    }
+
+    /// The item being built.
+    pub fn item(&self) -> ItemId {
+        self.item
+    }
+
+    /// Where this builder puts the item's coordinates in the site.
+    pub fn placement(&self) -> Placement {
+        self.place
+    }
+
     /// Shapes given in a frame of their own: `offset` (in this builder's coordinates) is
     /// their origin and `turn` (radians clockwise seen from above) their rotation.
     pub fn move_by(&mut self, offset: Vector3<f64>, turn: f64) {

@@ -57,10 +57,19 @@ pub fn expand(
         .location
         .as_ref()
         .map(super::location::Location::from_spec);
+    let ground_edges = match &file.ground {
+        Some(ground) => Some(super::ground::add_ground(&mut site, ground, unit).map_err(
+            |message| ExpandError::Field {
+                field: "ground",
+                message,
+            },
+        )?),
+        None => None,
+    };
     site.standpoints = file
         .standpoints
         .iter()
-        .map(|s| standpoint(s, unit))
+        .map(|s| standpoint(s, unit, &site))
         .collect();
     if let Some(name) = &file.default_standpoint {
         match site.standpoints.iter().position(|s| &s.name == name) {
@@ -78,8 +87,18 @@ pub fn expand(
         scene_path,
         path: Vec::new(),
         visits: 0,
+        road_paths: Vec::new(),
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
+    let road_paths = std::mem::take(&mut walker.road_paths);
+    let roads = std::mem::take(&mut site.roads);
+    super::streets::draw_streets(&mut site, &roads).map_err(|e| ExpandError::Item {
+        path: road_paths[e.road].clone(),
+        message: e.message,
+    })?;
+    if let (Some(spec), Some(edges)) = (&file.ground, ground_edges) {
+        super::ground::draw_ground(&mut site, spec, edges);
+    }
     if let Some(guides) = &file.guides {
         site.guides =
             super::guides::resolve(guides, unit).map_err(|message| ExpandError::Field {
@@ -112,6 +131,9 @@ struct Walker<'a> {
     /// Items and copies visited so far, groups and repeats included, so that nested
     /// repeats of nothing cannot spin for hours either.
     visits: usize,
+    /// Where each road placed so far (`Site::roads`) is written; they are drawn together
+    /// at the end so that those that meet are joined.
+    road_paths: Vec<Vec<usize>>,
 }
 
 impl Walker<'_> {
@@ -188,6 +210,10 @@ impl Walker<'_> {
         let mut b = ItemBuilder::new(self.site, id, place);
         if let Some(built) = item.build(&mut b) {
             built.map_err(|message| self.fail(message))?;
+        }
+        // A road is placed, not drawn: it waits to be joined with the others.
+        while self.road_paths.len() < self.site.roads.len() {
+            self.road_paths.push(self.path.clone());
         }
         self.check_size()
     }
@@ -271,7 +297,7 @@ pub fn label_matches(label: Option<&str>, wanted: &str) -> bool {
     })
 }
 
-fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {
+fn standpoint(spec: &StandpointSpec, unit: f64, site: &Site) -> Standpoint {
     let eye_height = match (spec.eye_height, spec.posture) {
         (Some(height), _) => height.0 * unit,
         (None, Posture::Standing) => DEFAULT_EYE_HEIGHT,
@@ -281,7 +307,10 @@ fn standpoint(spec: &StandpointSpec, unit: f64) -> Standpoint {
         name: spec.name.clone(),
         x: spec.x.0 * unit,
         y: spec.y.0 * unit,
-        ground: spec.ground.0 * unit,
+        ground: match spec.ground {
+            Some(ground) => ground.0 * unit,
+            None => super::ground::ground_height(site, spec.x.0 * unit, spec.y.0 * unit),
+        },
         eye_height,
         heading: spec.heading.0.to_radians(),
         pitch: spec.pitch.0.to_radians(),

@@ -60,6 +60,9 @@ pub struct SceneFile {
     /// Where the plan's origin is on the earth (`location.rs`).
     #[serde(default)]
     pub location: Option<super::location::LocationSpec>,
+    /// Sloping ground from spot heights, contours and break lines (`ground.rs`).
+    #[serde(default)]
+    pub ground: Option<super::ground::GroundSpec>,
     pub items: Vec<ItemSpec>,
 }
 
@@ -77,8 +80,9 @@ pub struct StandpointSpec {
     pub name: String,
     pub x: Finite,
     pub y: Finite,
-    #[serde(default = "zero")]
-    pub ground: Finite,
+    /// Height of the ground under the viewer; on the scene's `ground` (or 0) if not given.
+    #[serde(default)]
+    pub ground: Option<Finite>,
     /// In the scene's unit; by default the posture's eye height.
     #[serde(default)]
     pub eye_height: Option<NonNegative>,

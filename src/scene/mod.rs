@@ -10,6 +10,7 @@ mod curve;
 mod expand;
 mod file;
 mod format;
+mod ground;
 mod guides;
 mod items;
 mod load;
@@ -20,6 +21,7 @@ mod numbers;
 mod obj;
 mod outline;
 mod site;
+pub mod streets;
 mod style;
 mod suggest;
 mod survey;
@@ -29,6 +31,7 @@ pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::MAX_INPUT_BYTES;
+pub use ground::{Ground, GroundDraw};
 pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{
     load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,

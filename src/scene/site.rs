@@ -207,6 +207,11 @@ pub struct Site {
     pub guides: super::guides::Guides,
     /// Where the plan's origin is on the earth, if the scene says.
     pub location: Option<super::location::Location>,
+    /// Roads placed but not yet drawn: they are joined where they meet and drawn together
+    /// (`streets::draw_streets`) once every road is known, which leaves this empty.
+    pub roads: Vec<super::items::RoadLine>,
+    /// The sloping ground, if the scene has one.
+    pub ground: Option<super::ground::Ground>,
 }
 
 impl Site {

@@ -36,6 +36,9 @@ pub struct Survey {
     pub bounds: Option<(Point3<f64>, Point3<f64>)>,
     /// What each standpoint looks like from the site, in file order.
     pub standpoints: Vec<StandpointCheck>,
+    /// The box holding the sloping ground, if the scene has one: its plan extent and its
+    /// lowest and highest points.
+    pub ground: Option<(Point3<f64>, Point3<f64>)>,
 }
 
 /// What `check` says of one standpoint.
@@ -69,6 +72,7 @@ pub fn survey(site: &Site) -> Survey {
             .iter()
             .map(|s| check_standpoint(site, s))
             .collect(),
+        ground: site.ground.as_ref().map(|g| (g.min, g.max)),
     }
 }
 
@@ -78,7 +82,7 @@ fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
         name: standpoint.name.clone(),
         eye,
         inside: solids_enclosing(site, &eye),
-        underground: eye.z < 0.0,
+        underground: eye.z < super::ground::ground_height(site, eye.x, eye.y),
     }
 }
 

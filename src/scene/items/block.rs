@@ -91,6 +91,10 @@ pub struct BlockSpec {
     /// Height of the block's foot.
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the ground at the
+    /// block's lowest corner, and the walls run down into the slope (hidden by it).
+    #[serde(default)]
+    pub on_ground: bool,
     #[serde(default)]
     pub roof: RoofSpec,
     #[serde(default)]
@@ -208,7 +212,31 @@ fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: 
 pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
-    b.move_by(Vector3::new(corner.x, corner.y, block.base.0), turn);
+    let mut base = block.base.0;
+    if block.on_ground {
+        let frame = b
+            .placement()
+            .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+        let Some(ground) = b.ground() else {
+            return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+        };
+        let mut lowest = f64::INFINITY;
+        for p in rectangle_plan(width, depth) {
+            let q = frame.point(&Point3::new(p.x, p.y, 0.0));
+            match ground.height_at(q.x, q.y) {
+                Some(z) => lowest = lowest.min(z),
+                None => {
+                    return Err(format!(
+                        "stands on the ground, but its corner at ({:.2}, {:.2}) lies \
+                         outside the ground",
+                        q.x, q.y
+                    ))
+                }
+            }
+        }
+        base += (lowest - frame.shift.z) / frame.scale;
+    }
+    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");
         let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)

@@ -64,7 +64,7 @@ mod group;
 mod marks;
 mod mass;
 mod model;
-mod plan;
+pub mod plan;
 mod road;
 mod room;
 mod round;
@@ -79,7 +79,11 @@ pub use footprint::{build_footprint, FootprintSpec};
 pub use group::{GroupSpec, RepeatSpec};
 pub use marks::{build_line, build_point, build_polyline, LineSpec, PointSpec, PolylineSpec};
 pub use model::ModelSpec;
-pub use road::{build_road, RoadSpec};
+#[cfg(test)]
+pub use road::road_line;
+pub use road::{
+    build_road, draw_kerb, draw_pavement_back, draw_piece, Piece, PieceEnd, RoadLine, RoadSpec,
+};
 pub use room::{build_room, RoomSpec};
 pub use round::{build_column, build_dome, build_tower, ColumnSpec, DomeSpec, TowerSpec};
 pub use stairs::{build_stairs, StairsSpec};
