@@ -1,6 +1,7 @@
 //! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
 //! drawing -> canvas -> file, with the time each stage took.
 
+use crate::aids::{sun_layers, SunDrawing};
 use crate::aids::{self, AidSettings};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
@@ -13,9 +14,11 @@ use crate::output::{
 };
 use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
-use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
+use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
 use crate::visibility::HiddenLines;
+use crate::sun::day::Sky;
+use crate::sun::shadow::with_shadows;
 use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -48,6 +51,35 @@ pub struct RenderSettings {
     pub aids: AidSettings,
     /// The longest a render may take (see [`crate::budget`]); `None` for no limit.
     pub time_limit: Option<Duration>,
+    /// The sun and the shadows, where they differ from the scene's `sun` block.
+    pub sun: SunChoice,
+}
+
+/// The sun and shadows asked for on the command line; each `None` takes the scene's `sun`
+/// block (or, without one, draws nothing of the sun).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SunChoice {
+    pub moment: Option<LocalMoment>,
+    pub path: Option<bool>,
+    pub seasons: Option<bool>,
+    pub shadows: Option<bool>,
+}
+
+impl SunChoice {
+    /// What to draw of the sun for `site`: nothing without a date and time.
+    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool)> {
+        let scene = site.sun.as_ref();
+        let moment = self.moment.or_else(|| scene.map(|s| s.moment()))?;
+        let pick = |asked: Option<bool>, of_scene: Option<bool>, default: bool| {
+            asked.or(of_scene).unwrap_or(default)
+        };
+        let drawing = SunDrawing {
+            moment: Some(moment),
+            path: pick(self.path, scene.map(|s| s.path), true),
+            seasons: pick(self.seasons, scene.map(|s| s.seasons), false),
+        };
+        Some((drawing, pick(self.shadows, scene.map(|s| s.shadows), true)))
+    }
 }
 
 impl Default for RenderSettings {
@@ -65,6 +97,7 @@ impl Default for RenderSettings {
             weight_by_distance: false,
             aids: AidSettings::default(),
             time_limit: Some(DEFAULT_TIME_LIMIT),
+            sun: SunChoice::default(),
         }
     }
 }
@@ -151,6 +184,8 @@ pub struct Render {
     /// Edges left out, with why (they are named as warnings).
     pub skipped: Vec<SkippedEdge>,
     /// How long each stage took.
+    /// Things said in words, not errors (the sun below the horizon: no shadows).
+    pub notes: Vec<String>,
     pub timings: Timings,
 }
 
@@ -188,6 +223,36 @@ pub fn draw_within(
     if settings.overlays {
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
+    let mut notes = Vec::new();
+    let shadowed;
+    let site = match settings.sun.resolve(site) {
+        None => site,
+        Some((drawing, shadows)) => {
+            let sky = Sky::of_site(site)?;
+            if settings.overlays {
+                let text = settings.aids.text_height(&map);
+                let (sun, _labels) = sun_layers(&sky, &view, &mut flattener, &drawing, text)?;
+                layers.extend(sun);
+            }
+            let moment = drawing.moment.expect("resolved with a moment");
+            let now = sky.at(&moment)?;
+            if now.place.elevation_deg <= 0.0 {
+                notes.push(format!(
+                    "the sun is {:.1} degrees below the horizon at {} {} ({}): no shadows",
+                    -now.place.elevation_deg,
+                    moment.date,
+                    moment.time.strftime("%H:%M"),
+                    sky.clock.name()
+                ));
+                site
+            } else if shadows {
+                shadowed = with_shadows(site, &sky.direction(&now));
+                &shadowed
+            } else {
+                site
+            }
+        }
+    };
     let hidden_lines = HiddenLines::new(site, settings.hidden);
     let Wireframe {
         layers: site_layers,
@@ -264,6 +329,7 @@ pub fn draw_within(
     Ok(Render {
         drawing,
         skipped,
+        notes,
         timings,
     })
 }

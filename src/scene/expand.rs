@@ -57,6 +57,7 @@ pub fn expand(
         .location
         .as_ref()
         .map(super::location::Location::from_spec);
+    site.sun = file.sun.clone();
     site.standpoints = file
         .standpoints
         .iter()

@@ -60,6 +60,9 @@ pub struct SceneFile {
     /// Where the plan's origin is on the earth (`location.rs`).
     #[serde(default)]
     pub location: Option<super::location::LocationSpec>,
+    /// The date and local time of the sun and shadows drawn (`when.rs`).
+    #[serde(default)]
+    pub sun: Option<super::when::SunSpec>,
     pub items: Vec<ItemSpec>,
 }
 

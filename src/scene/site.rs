@@ -207,6 +207,8 @@ pub struct Site {
     pub guides: super::guides::Guides,
     /// Where the plan's origin is on the earth, if the scene says.
     pub location: Option<super::location::Location>,
+    /// The date and local time of the sun and shadows the scene asks for.
+    pub sun: Option<super::when::SunSpec>,
 }
 
 impl Site {
