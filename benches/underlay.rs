@@ -46,6 +46,9 @@ use std::fmt::Write as _;
 use std::path::Path;
 use std::time::{Duration, Instant};
 
+#[path = "cases/sun.rs"]
+mod sun;
+
 const WIDTH: u32 = 8192;
 const HEIGHT: u32 = 4096;
 const RUNS: usize = 7;
@@ -429,6 +432,11 @@ fn main() {
         println!("{}", peak_memory().unwrap_or(0));
         return;
     }
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sun") {
+        floor();
+        sun::run(time(floor));
+        return;
+    }
     let town = town_scene();
     let demo = demo_scene();
     // Warm up caches and the allocator once.
@@ -657,4 +665,5 @@ fn composition(floor_time: Duration) {
         ms(watch),
         watch.as_secs_f64() / floor_time.as_secs_f64(),
     );
+    sun::run(floor_time);
 }

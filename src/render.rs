@@ -18,7 +18,7 @@ use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
 use crate::visibility::HiddenLines;
 use crate::sun::day::Sky;
-use crate::sun::shadow::with_shadows;
+use crate::sun::shadow::with_shadows_and_hatching;
 use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -63,11 +63,14 @@ pub struct SunChoice {
     pub path: Option<bool>,
     pub seasons: Option<bool>,
     pub shadows: Option<bool>,
+    /// Hatching of what is in shadow, lines this many metres apart.
+    pub hatch_m: Option<f64>,
 }
 
 impl SunChoice {
     /// What to draw of the sun for `site`: nothing without a date and time.
-    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool)> {
+    /// Also whether to draw the shadows' outlines, and the hatching's spacing if any.
+    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool, Option<f64>)> {
         let scene = site.sun.as_ref();
         let moment = self.moment.or_else(|| scene.map(|s| s.moment()))?;
         let pick = |asked: Option<bool>, of_scene: Option<bool>, default: bool| {
@@ -78,7 +81,14 @@ impl SunChoice {
             path: pick(self.path, scene.map(|s| s.path), true),
             seasons: pick(self.seasons, scene.map(|s| s.seasons), false),
         };
-        Some((drawing, pick(self.shadows, scene.map(|s| s.shadows), true)))
+        let hatch = self
+            .hatch_m
+            .or_else(|| scene.and_then(|s| s.hatch.map(|h| h.0)));
+        Some((
+            drawing,
+            pick(self.shadows, scene.map(|s| s.shadows), true),
+            hatch,
+        ))
     }
 }
 
@@ -227,7 +237,7 @@ pub fn draw_within(
     let shadowed;
     let site = match settings.sun.resolve(site) {
         None => site,
-        Some((drawing, shadows)) => {
+        Some((drawing, shadows, hatch)) => {
             let sky = Sky::of_site(site)?;
             if settings.overlays {
                 let text = settings.aids.text_height(&map);
@@ -245,8 +255,8 @@ pub fn draw_within(
                     sky.clock.name()
                 ));
                 site
-            } else if shadows {
-                shadowed = with_shadows(site, &sky.direction(&now));
+            } else if shadows || hatch.is_some() {
+                shadowed = with_shadows_and_hatching(site, &sky.direction(&now), hatch);
                 &shadowed
             } else {
                 site
@@ -407,7 +417,7 @@ pub fn draw_sheets(
 /// (year, month, day).
 pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
     let (year, month, day) = date;
-    vec![
+    let mut lines = vec![
         format!("{}: STANDPOINT {}", site.name, standpoint.name),
         format!(
             "HEADING {:.1}\u{b0}  PITCH {:.1}\u{b0}  ROLL {:.1}\u{b0}  EYE {:.2} M ABOVE GROUND AT {:.2} M, AT ({:.2}, {:.2})",
@@ -420,7 +430,27 @@ pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) 
             standpoint.y
         ),
         format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
-    ]
+    ];
+    if let Some(location) = &site.location {
+        if location.north_deg.rem_euclid(360.0) != 0.0 {
+            lines.push(format!(
+                "TRUE NORTH {:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)",
+                location.north_deg.rem_euclid(360.0)
+            ));
+        }
+    }
+    if let Some(sun) = &site.sun {
+        lines.push(format!(
+            "SUN AND SHADOWS AT {} {} LOCAL TIME ({}) FROM THE MODEL ALONE",
+            sun.date.0,
+            sun.time.0.strftime("%H:%M"),
+            site.location
+                .as_ref()
+                .and_then(|l| l.time_zone.as_deref())
+                .unwrap_or("UTC")
+        ));
+    }
+    lines
 }
 
 /// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way

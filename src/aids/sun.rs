@@ -7,7 +7,8 @@
 //! The hour labels are kept as data ([`SunLabel`]: text, anchor and kind) and lettered at
 //! the end, so that a label placer can take them instead.
 
-use super::marks::{image_of_direction, ring};
+use super::marks::ring;
+use crate::plane::image_of_direction;
 use super::strokes;
 use crate::drawing::{letter, Align, Layer};
 use crate::error::Result;

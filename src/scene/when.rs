@@ -150,6 +150,9 @@ pub struct SunSpec {
     /// The outlines of the shadows.
     #[serde(default = "yes")]
     pub shadows: bool,
+    /// Hatching of what is in shadow, lines this many metres apart (none if not given).
+    #[serde(default)]
+    pub hatch: Option<super::numbers::Positive>,
 }
 
 fn yes() -> bool {

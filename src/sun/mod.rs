@@ -18,6 +18,7 @@ pub mod clock;
 pub mod day;
 pub mod position;
 pub mod shadow;
+pub mod table;
 
 pub use clock::{Clock, LocalMoment};
 pub use day::{Sky, SunSample};

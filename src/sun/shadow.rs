@@ -107,15 +107,166 @@ pub const SHADOWS: &str = "shadows";
 /// as one item, labelled and layered [`SHADOWS`], so that they are drawn, hidden and
 /// listed (`pansite angles --item shadows`) like any item's edges.
 pub fn with_shadows(site: &Site, towards_sun: &Vector3<f64>) -> Site {
+    with_shadows_and_hatching(site, towards_sun, None)
+}
+
+/// [`with_shadows`], and with `hatch_spacing_m` the [`hatching`] as a second item on its
+/// own layer ([`HATCHING`]).
+pub fn with_shadows_and_hatching(
+    site: &Site,
+    towards_sun: &Vector3<f64>,
+    hatch_spacing_m: Option<f64>,
+) -> Site {
     let bvh = Bvh::new(&site.faces);
     let lines = shadow_outlines(site, &bvh, towards_sun);
+    let hatch = hatch_spacing_m.map(|spacing| hatching(site, &bvh, towards_sun, spacing));
     let mut shadowed = site.clone();
     let item =
         shadowed.add_item_on_layer("shadow", Some(SHADOWS.to_owned()), Some(SHADOWS.to_owned()));
     for line in lines {
         shadowed.add_segment(item, line.start, line.end);
     }
+    if let Some(hatch) = hatch {
+        let item = shadowed.add_item_on_layer(
+            "shadow",
+            Some(HATCHING.to_owned()),
+            Some(HATCHING.to_owned()),
+        );
+        for line in hatch {
+            shadowed.add_segment(item, line.start, line.end);
+        }
+    }
     shadowed
+}
+
+/// The layer of the shadows' hatching.
+pub const HATCHING: &str = "shadow hatching";
+
+/// Hatching of everything in shadow or turned from the sun, on the faces and on the
+/// ground, for prints in black and white: parallel lines `spacing_m` apart on each plane
+/// (at 45 degrees on upright faces and across the plan elsewhere), kept where the ray
+/// from their points to the sun meets a face, their ends found like the outlines' breaks.
+pub fn hatching(
+    site: &Site,
+    bvh: &Bvh,
+    towards_sun: &Vector3<f64>,
+    spacing_m: f64,
+) -> Vec<ShadowLine> {
+    let s = towards_sun.normalize();
+    let mut out = Vec::new();
+    if s.z <= 0.0 || !(spacing_m.is_finite() && spacing_m > 0.0) {
+        return out;
+    }
+    let mut hatch = |receiver: Receiver, a: Point3<f64>, b: Point3<f64>| {
+        let length = (b - a).norm();
+        if length < 1e-9 {
+            return;
+        }
+        let at = |u: f64| a + (b - a) * u;
+        let shaded = |u: f64| shaded_from(site, bvh, &at(u), &s, receiver);
+        for (from, to) in runs(0.0, 1.0, length, shaded) {
+            out.push(ShadowLine {
+                start: at(from),
+                end: at(to),
+            });
+        }
+    };
+    for (index, face) in site.faces.iter().enumerate() {
+        let Some((n, _)) = plane_of(face) else {
+            continue;
+        };
+        // Along: 45 degrees up an upright face; the plan's diagonal projected elsewhere.
+        let along = if n.z.abs() < 0.5 {
+            (n.cross(&Vector3::z()).normalize() + Vector3::z()).normalize()
+        } else {
+            let d = Vector3::new(1.0, 1.0, 0.0);
+            (d - n * n.dot(&d)).normalize()
+        };
+        let across = n.cross(&along);
+        let offsets = face.corners.map(|c| across.dot(&c.coords));
+        let (lo, hi) = offsets
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &o| {
+                (l.min(o), h.max(o))
+            });
+        let first = (lo / spacing_m).ceil() as i64;
+        let last = (hi / spacing_m).floor() as i64;
+        for k in first..=last.min(first + 100_000) {
+            if let Some((a, b)) = cut_triangle(&face.corners, &across, k as f64 * spacing_m) {
+                hatch(Receiver::Face(index as u32), a, b);
+            }
+        }
+    }
+    // The ground: over the plan's extent of the solids and their shadows.
+    let mut lo = (f64::INFINITY, f64::INFINITY);
+    let mut hi = (f64::NEG_INFINITY, f64::NEG_INFINITY);
+    for corner in site.faces.iter().flat_map(|f| f.corners) {
+        if corner.z < 0.0 {
+            continue;
+        }
+        let foot = corner - s * (corner.z / s.z);
+        for p in [corner, foot] {
+            lo = (lo.0.min(p.x), lo.1.min(p.y));
+            hi = (hi.0.max(p.x), hi.1.max(p.y));
+        }
+    }
+    if lo.0.is_finite() {
+        // Lines x - y = c, cut to the extent.
+        let first = ((lo.0 - hi.1) / spacing_m).ceil() as i64;
+        let last = ((hi.0 - lo.1) / spacing_m).floor() as i64;
+        for k in first..=last.min(first + 100_000) {
+            let c = k as f64 * spacing_m;
+            let x0 = lo.0.max(lo.1 + c);
+            let x1 = hi.0.min(hi.1 + c);
+            if x1 > x0 {
+                hatch(
+                    Receiver::Ground,
+                    Point3::new(x0, x0 - c, 0.0),
+                    Point3::new(x1, x1 - c, 0.0),
+                );
+            }
+        }
+    }
+    out
+}
+
+/// The piece of the line {p : across . p = offset} inside a triangle, if any.
+fn cut_triangle(
+    corners: &[Point3<f64>; 3],
+    across: &Vector3<f64>,
+    offset: f64,
+) -> Option<(Point3<f64>, Point3<f64>)> {
+    let mut ends = Vec::with_capacity(2);
+    for k in 0..3 {
+        let (p, q) = (corners[k], corners[(k + 1) % 3]);
+        let (fp, fq) = (
+            across.dot(&p.coords) - offset,
+            across.dot(&q.coords) - offset,
+        );
+        if (fp < 0.0) != (fq < 0.0) {
+            ends.push(p + (q - p) * (fp / (fp - fq)));
+        }
+    }
+    (ends.len() == 2).then(|| (ends[0], ends[1]))
+}
+
+/// Whether the ray from `p` on a receiver towards the sun meets a face (other than the
+/// receiver): the point is in shadow, or on a face turned from the sun.
+fn shaded_from(
+    site: &Site,
+    bvh: &Bvh,
+    p: &Point3<f64>,
+    s: &Vector3<f64>,
+    receiver: Receiver,
+) -> bool {
+    let base = site.faces.as_ptr() as usize;
+    let size = std::mem::size_of::<Face>();
+    let start = 1e-7 * (1.0 + p.coords.abs().max());
+    bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
+        let index = ((face as *const Face as usize - base) / size) as u32;
+        distance > start && receiver != Receiver::Face(index)
+    })
+    .is_some()
 }
 
 /// The unit normal and offset (n . p = d) of a face's plane; `None` for a sliver.
@@ -402,6 +553,32 @@ mod tests {
         let tip = Vector3::new(expected.sin(), expected.cos(), 0.0) * length;
         // The block's far corner is within half its width's diagonal of the pole's line.
         assert!((far.coords - tip).norm() < 0.08, "{far} vs {tip}");
+    }
+
+    #[test]
+    fn hatching_lies_in_shadow_by_a_ray_cast() {
+        let site = site("Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)");
+        let bvh = Bvh::new(&site.faces);
+        let s = sun(200.0, 40.0);
+        let lines = hatching(&site, &bvh, &s, 0.5);
+        let on_ground: Vec<_> = lines.iter().filter(|l| l.start.z.abs() < 1e-9).collect();
+        assert!(on_ground.len() > 5, "{}", on_ground.len());
+        for line in on_ground {
+            let middle = line.start + (line.end - line.start) * 0.5;
+            assert!(shaded(&site, &middle, &Vector3::z(), &s), "{line:?}");
+            // Just beyond either end along the line, the ground is lit (unless the end is
+            // at the block's foot, where the line meets the wall).
+            let along = (line.end - line.start).normalize() * 0.01;
+            for (end, out) in [(line.end, along), (line.start, -along)] {
+                let beyond = end + out;
+                let at_foot =
+                    (-0.02..=4.02).contains(&beyond.x) && (-0.02..=3.02).contains(&beyond.y);
+                assert!(
+                    at_foot || !shaded(&site, &beyond, &Vector3::z(), &s),
+                    "{line:?}"
+                );
+            }
+        }
     }
 
     #[test]

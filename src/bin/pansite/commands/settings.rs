@@ -49,6 +49,7 @@ pub fn render_settings(args: &RenderArgs) -> pansite::Result<RenderSettings> {
         weight_by_distance: args.weigh_by_distance,
         aids: aid_settings(&args.aids),
         time_limit: Some(Duration::from_secs_f64(args.time_limit)),
+        sun: Default::default(),
     };
     settings.validate()?;
     Ok(settings)
@@ -143,6 +144,7 @@ pub fn contact_settings(args: &SheetArgs) -> pansite::Result<ContactSettings> {
         thumbnail,
         columns: args.columns,
         dpi: args.out.dpi,
+        moments: Vec::new(),
     })
 }
 
