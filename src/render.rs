@@ -1,8 +1,8 @@
 //! The whole pipeline for one standpoint: site -> sphere curves -> image polylines ->
 //! drawing -> canvas -> file, with the time each stage took.
 
-use crate::aids::{sun_layers, SunDrawing};
 use crate::aids::{self, AidSettings};
+use crate::aids::{sun_layers, SunDrawing};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
     apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
@@ -16,9 +16,9 @@ use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
+use crate::sun::with_shadows_and_hatching;
+use crate::sun::Sky;
 use crate::visibility::HiddenLines;
-use crate::sun::day::Sky;
-use crate::sun::shadow::with_shadows_and_hatching;
 use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -59,9 +59,13 @@ pub struct RenderSettings {
 /// block (or, without one, draws nothing of the sun).
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct SunChoice {
+    /// The local date and time of the sun and shadows.
     pub moment: Option<LocalMoment>,
+    /// The sun's mark and the day's path.
     pub path: Option<bool>,
+    /// The paths of the solstices and the equinox.
     pub seasons: Option<bool>,
+    /// The shadows' outlines.
     pub shadows: Option<bool>,
     /// Hatching of what is in shadow, lines this many metres apart.
     pub hatch_m: Option<f64>,
@@ -193,9 +197,9 @@ pub struct Render {
     pub drawing: Drawing,
     /// Edges left out, with why (they are named as warnings).
     pub skipped: Vec<SkippedEdge>,
-    /// How long each stage took.
     /// Things said in words, not errors (the sun below the horizon: no shadows).
     pub notes: Vec<String>,
+    /// How long each stage took.
     pub timings: Timings,
 }
 

@@ -1,12 +1,12 @@
 //! The sun and shadows through the library's public face: scenes with a `location` and a
 //! `sun` block, drawn and listed.
 
-use pansite::aids::table::{angle_table, TableChoice};
+use pansite::aids::{angle_table, TableChoice};
 use pansite::plane::Equirect;
 use pansite::render::{draw, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Site};
-use pansite::sun::day::Sky;
-use pansite::sun::shadow::{with_shadows, SHADOWS};
+use pansite::sun::Sky;
+use pansite::sun::{with_shadows, SHADOWS};
 use std::path::Path;
 
 /// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
@@ -25,7 +25,7 @@ fn pole_scene(north: f64, sun: &str) -> Site {
 }
 
 /// The corner of the shadows' outline farthest from the pole's foot, from `angles`' rows.
-fn shadow_tip(site: &Site) -> pansite::aids::table::AngleRow {
+fn shadow_tip(site: &Site) -> pansite::aids::AngleRow {
     let map = Equirect::from_size_px(4096.0, 2048.0);
     let choice = TableChoice {
         item: Some(SHADOWS.to_owned()),
@@ -148,7 +148,7 @@ fn a_skipped_local_time_is_refused_as_bad_input() {
 
 #[test]
 fn a_contact_sheet_over_times_of_day_shows_the_light_change() {
-    use pansite::compose::contact::{contact_sheet, sweep_times, ContactSettings};
+    use pansite::compose::{contact_sheet, sweep_times, ContactSettings};
     let site = pole_scene(0.0, "");
     let day = LocalMoment::parse("2026-06-21", "06:00").unwrap();
     let to = pansite::scene::parse_time("22:00").unwrap().0;

@@ -8,8 +8,8 @@
 
 use pansite::render::{render_png_to, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Location};
-use pansite::sun::day::Sky;
-use pansite::sun::table::{sun_table, TableRequest};
+use pansite::sun::Sky;
+use pansite::sun::{sun_table, TableRequest};
 use std::path::Path;
 use std::time::{Duration, Instant};
 
@@ -52,6 +52,7 @@ pub fn run(floor_time: Duration) {
             path: Some(false),
             seasons: Some(false),
             shadows: Some(true),
+            hatch_m: None,
         },
         ..plain.clone()
     };

@@ -8,20 +8,23 @@
 //! the end, so that a label placer can take them instead.
 
 use super::marks::ring;
-use crate::plane::image_of_direction;
 use super::strokes;
 use crate::drawing::{letter, Align, Layer};
 use crate::error::Result;
+use crate::plane::image_of_direction;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
 use crate::scene::LocalMoment;
 use crate::sphere::{SphereCurve, ViewFrame};
-use crate::sun::day::Sky;
+use crate::sun::Sky;
 use jiff::civil::Date;
 
 /// Layer names.
 pub const SUN: &str = "sun";
+/// The day's path.
 pub const SUN_PATH: &str = "sun path";
+/// The hour ticks and their labels.
 pub const SUN_HOURS: &str = "sun hours";
+/// The paths of the solstices and the equinox.
 pub const SUN_SEASONS: &str = "sun paths of the solstices and equinox";
 
 /// The step between drawn positions of a path, seconds.
@@ -35,6 +38,7 @@ const LOWEST_DEG: f64 = -1.0;
 pub struct SunDrawing {
     /// The sun's mark at this local date and time, and (with `path`) that day's path.
     pub moment: Option<LocalMoment>,
+    /// The day's path and its hours.
     pub path: bool,
     /// The paths at the solstices and the March equinox of the moment's year.
     pub seasons: bool,
@@ -43,8 +47,11 @@ pub struct SunDrawing {
 /// What a label on the sun's layers says and where it is anchored (the placer's input).
 #[derive(Clone, Debug, PartialEq)]
 pub struct SunLabel {
+    /// What the label says.
     pub text: String,
+    /// The image point the label belongs to.
     pub anchor: ImagePoint,
+    /// What kind of label it is (`sun hour`).
     pub kind: &'static str,
 }
 

@@ -14,8 +14,11 @@ pub const YEARS: std::ops::RangeInclusive<i16> = -500..=3000;
 /// give one (to pick one of the two readings of a repeated hour).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct LocalMoment {
+    /// The calendar day.
     pub date: Date,
+    /// The local clock time.
     pub time: Time,
+    /// The offset from UT written after the time, seconds east.
     pub offset_s: Option<i32>,
 }
 
@@ -139,7 +142,9 @@ fn parse_offset(text: &str) -> Option<i32> {
 #[derive(Clone, Debug, PartialEq, Deserialize)]
 #[serde(rename = "Sun", deny_unknown_fields)]
 pub struct SunSpec {
+    /// The day, `YYYY-MM-DD`.
     pub date: DateText,
+    /// The local clock time, `HH:MM[:SS]`, with its offset if written.
     pub time: TimeText,
     /// The sun's mark and the day's path with its hours.
     #[serde(default = "yes")]
@@ -160,6 +165,7 @@ fn yes() -> bool {
 }
 
 impl SunSpec {
+    /// The date and time as one moment.
     pub fn moment(&self) -> LocalMoment {
         LocalMoment {
             date: self.date.0,

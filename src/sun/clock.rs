@@ -8,7 +8,7 @@
 
 use crate::error::{Error, Result};
 use crate::scene::find_time_zone;
-pub use crate::scene::{parse_date, parse_time, LocalMoment, YEARS};
+pub use crate::scene::LocalMoment;
 use jiff::civil::{Date, DateTime, Time};
 use jiff::tz::{AmbiguousOffset, Offset, TimeZone};
 use jiff::Timestamp;
@@ -42,6 +42,7 @@ impl Clock {
         name.map_or_else(|| Ok(Clock::universal()), Clock::named)
     }
 
+    /// The zone's name (`UTC` without one).
     pub fn name(&self) -> &str {
         &self.name
     }

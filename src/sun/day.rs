@@ -16,8 +16,11 @@ const UNIX_EPOCH_JD: f64 = 2_440_587.5;
 /// The sky over a site: its place on the earth, its clock and its air.
 #[derive(Clone, Debug)]
 pub struct Sky {
+    /// Where the site is.
     pub location: Location,
+    /// Its local clock.
     pub clock: Clock,
+    /// The air for refraction (the standard atmosphere at its height).
     pub air: Air,
 }
 
@@ -26,15 +29,20 @@ pub struct Sky {
 pub struct SunSample {
     /// Seconds of UT since 1970.
     pub instant_s: f64,
+    /// The local date and clock time.
     pub local: DateTime,
+    /// Where the sun stands.
     pub place: SunPlace,
 }
 
 /// Sunrise, transit and sunset of a local day, or the sun up or down all day.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct DayEvents {
+    /// Sunrise, if the sun rises that day.
     pub rise: Option<SunSample>,
+    /// The sun crossing the meridian.
     pub transit: Option<SunSample>,
+    /// Sunset, if the sun sets that day.
     pub set: Option<SunSample>,
     /// For a day without a rise or a set: whether the sun stays up (polar day) or down.
     pub all_day: Option<bool>,

@@ -14,15 +14,20 @@
 //! Headings, azimuth labels and compass letters stay measured from the plan's y axis; only
 //! the sun uses the `location`'s bearing of true north.
 
-pub mod clock;
-pub mod day;
-pub mod position;
-pub mod shadow;
-pub mod table;
+mod clock;
+mod day;
+mod position;
+mod shadow;
+mod table;
 
 pub use clock::{Clock, LocalMoment};
-pub use day::{Sky, SunSample};
-pub use position::{sun_place, sun_place_with, Air, SunPlace};
+pub use day::{wall_in_sun, walls, DayEvents, Sky, SunSample, Wall};
+pub use position::{decimal_year, estimated_delta_t, sun_place, sun_place_with, Air, SunPlace};
+pub use shadow::{
+    hatching, shadow_outlines, with_shadows, with_shadows_and_hatching, ShadowLine,
+    BREAK_TOLERANCE_M, HATCHING, SAMPLE_STEP_M, SHADOWS,
+};
+pub use table::{sun_table, table_csv, table_json, table_text, SunRow, TableRequest, MAX_ROWS};
 
 /// The cautions that go with every sun table and the README: said once, here.
 pub const CAUTIONS: [&str; 2] = [

@@ -25,7 +25,9 @@ const DAYS_PER_YEAR: f64 = 365.2425;
 /// The air the sun's light comes through, for the refraction near the horizon.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Air {
+    /// Air pressure, hectopascals (millibars).
     pub pressure_hpa: f64,
+    /// Air temperature, degrees Celsius.
     pub temperature_c: f64,
 }
 
@@ -51,6 +53,7 @@ pub struct SunPlace {
 }
 
 impl SunPlace {
+    /// Degrees from the zenith.
     pub fn zenith_deg(&self) -> f64 {
         90.0 - self.elevation_deg
     }

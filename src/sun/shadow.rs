@@ -34,7 +34,9 @@ const EDGE_ON: f64 = 1e-9;
 /// A straight piece of a shadow's outline, in the site frame.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct ShadowLine {
+    /// One end.
     pub start: Point3<f64>,
+    /// The other end.
     pub end: Point3<f64>,
 }
 
@@ -276,14 +278,14 @@ fn plane_of(face: &Face) -> Option<(Vector3<f64>, f64)> {
     Some((n, n.dot(&a.coords)))
 }
 
+/// An edge's two ends and, for each face along it, the face's index and third corner.
+type EdgeFaces = (Point3<f64>, Point3<f64>, Vec<(u32, Point3<f64>)>);
+
 /// The silhouette edges of the faces from the sun: edges of one face, or of faces on one
 /// side of the plane through the edge and the sun's direction.
 fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
     let key = |p: &Point3<f64>| [p.x, p.y, p.z].map(|v| (v / WELD_M).round() as i64);
-    let mut sides: HashMap<
-        ([i64; 3], [i64; 3]),
-        (Point3<f64>, Point3<f64>, Vec<(u32, Point3<f64>)>),
-    > = HashMap::new();
+    let mut sides: HashMap<([i64; 3], [i64; 3]), EdgeFaces> = HashMap::new();
     for (index, face) in faces.iter().enumerate() {
         for k in 0..3 {
             let (a, b, c) = (

@@ -20,6 +20,7 @@ const WALL_TIME_TOLERANCE_S: f64 = 1.0;
 /// What the table lists.
 #[derive(Clone, Debug, PartialEq)]
 pub struct TableRequest {
+    /// The first day listed.
     pub from: Date,
     /// The last day listed (the same as `from` for one day).
     pub to: Date,
@@ -34,6 +35,7 @@ pub struct TableRequest {
 /// One row: a local date and time, what happened, and where the sun was.
 #[derive(Clone, Debug, PartialEq)]
 pub struct SunRow {
+    /// The local date.
     pub date: Date,
     /// Local clock time, `HH:MM:SS`; empty for a day without it.
     pub time: String,
@@ -46,6 +48,7 @@ pub struct SunRow {
     pub azimuth_deg: Option<f64>,
     /// Degrees clockwise from the plan's y axis.
     pub plan_azimuth_deg: Option<f64>,
+    /// Degrees above the horizontal, refraction included.
     pub elevation_deg: Option<f64>,
     /// For walls: which (`wall facing 135`).
     pub detail: String,
@@ -231,7 +234,7 @@ fn preamble(sky: &Sky) -> Vec<String> {
 }
 
 /// An aligned text table, after the preamble.
-pub fn to_text(sky: &Sky, rows: &[SunRow]) -> String {
+pub fn table_text(sky: &Sky, rows: &[SunRow]) -> String {
     let mut out: String = preamble(sky).into_iter().map(|l| l + "\n").collect();
     out.push('\n');
     let all: Vec<[String; 8]> = std::iter::once(COLUMNS.map(str::to_owned))
@@ -264,7 +267,7 @@ pub fn to_text(sky: &Sky, rows: &[SunRow]) -> String {
 }
 
 /// CSV (RFC 4180): the preamble as `#` comment lines, a header, one line per row.
-pub fn to_csv(sky: &Sky, rows: &[SunRow]) -> String {
+pub fn table_csv(sky: &Sky, rows: &[SunRow]) -> String {
     let quote = |field: &str| {
         if field.contains([',', '"', '\n', '\r']) {
             format!("\"{}\"", field.replace('"', "\"\""))
@@ -289,7 +292,7 @@ pub fn to_csv(sky: &Sky, rows: &[SunRow]) -> String {
 
 /// JSON: the place, the zone, the cautions and `rows` (numbers as numbers, missing
 /// ones `null`).
-pub fn to_json(sky: &Sky, rows: &[SunRow]) -> String {
+pub fn table_json(sky: &Sky, rows: &[SunRow]) -> String {
     let text = |s: &str| {
         let mut out = String::from('"');
         for c in s.chars() {
@@ -406,14 +409,14 @@ mod tests {
         let rows = sun_table(&site, &sky, &year).unwrap();
         // Two days of 144 positions each (no clock change), and three events a day.
         assert_eq!(rows.len(), 2 * (144 + 3));
-        let text = to_text(&sky, &rows);
+        let text = table_text(&sky, &rows);
         assert!(text.contains("Never look at the sun") && text.contains("sunrise"));
-        let csv = to_csv(&sky, &rows);
+        let csv = table_csv(&sky, &rows);
         assert_eq!(
             csv.lines().filter(|l| l.starts_with("2026-")).count(),
             rows.len()
         );
-        let json = to_json(&sky, &rows);
+        let json = table_json(&sky, &rows);
         assert!(json.contains("\"cautions\"") && json.contains("\"event\": \"transit\""));
         assert!(sun_table(&site, &sky, &request(Some("nothing"), false)).is_err());
     }

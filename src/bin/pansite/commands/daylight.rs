@@ -4,8 +4,8 @@
 use super::common::{read_site, write_text};
 use super::settings::daylight_request;
 use crate::args::{DaylightArgs, TableFormat};
-use pansite::sun::day::Sky;
-use pansite::sun::table::{sun_table, to_csv, to_json, to_text};
+use pansite::sun::Sky;
+use pansite::sun::{sun_table, table_csv, table_json, table_text};
 
 /// `pansite daylight`.
 pub fn daylight(args: &DaylightArgs) -> anyhow::Result<()> {
@@ -14,9 +14,9 @@ pub fn daylight(args: &DaylightArgs) -> anyhow::Result<()> {
     let request = daylight_request(args, &site)?;
     let rows = sun_table(&site, &sky, &request)?;
     let text = match args.format {
-        TableFormat::Text => to_text(&sky, &rows),
-        TableFormat::Csv => to_csv(&sky, &rows),
-        TableFormat::Json => to_json(&sky, &rows),
+        TableFormat::Text => table_text(&sky, &rows),
+        TableFormat::Csv => table_csv(&sky, &rows),
+        TableFormat::Json => table_json(&sky, &rows),
     };
     write_text(&text, args.output.as_deref())
 }
