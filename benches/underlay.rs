@@ -46,6 +46,9 @@ use std::fmt::Write as _;
 use std::path::Path;
 use std::time::{Duration, Instant};
 
+#[path = "cases/sun.rs"]
+mod sun;
+
 const WIDTH: u32 = 8192;
 const HEIGHT: u32 = 4096;
 const RUNS: usize = 7;
@@ -438,6 +441,11 @@ fn main() {
         streets::run(time(floor));
         return;
     }
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sun") {
+        floor();
+        sun::run(time(floor));
+        return;
+    }
     let town = town_scene();
     let demo = demo_scene();
     // Warm up caches and the allocator once.
@@ -667,4 +675,5 @@ fn composition(floor_time: Duration) {
         watch.as_secs_f64() / floor_time.as_secs_f64(),
     );
     streets::run(floor_time);
+    sun::run(floor_time);
 }

@@ -74,6 +74,7 @@ pub mod plane;
 pub mod render;
 pub mod scene;
 pub mod sphere;
+pub mod sun;
 pub mod visibility;
 
 pub use error::{Error, Result};

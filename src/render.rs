@@ -2,6 +2,7 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::aids::{self, AidSettings};
+use crate::aids::{sun_layers, SunDrawing};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
     apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
@@ -13,8 +14,10 @@ use crate::output::{
 };
 use crate::page::{PageSettings, Sheet};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
-use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
+use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
+use crate::sun::with_shadows_and_hatching;
+use crate::sun::Sky;
 use crate::visibility::HiddenLines;
 use std::io::Write;
 use std::path::Path;
@@ -48,6 +51,49 @@ pub struct RenderSettings {
     pub aids: AidSettings,
     /// The longest a render may take (see [`crate::budget`]); `None` for no limit.
     pub time_limit: Option<Duration>,
+    /// The sun and the shadows, where they differ from the scene's `sun` block.
+    pub sun: SunChoice,
+}
+
+/// The sun and shadows asked for on the command line; each `None` takes the scene's `sun`
+/// block (or, without one, draws nothing of the sun).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SunChoice {
+    /// The local date and time of the sun and shadows.
+    pub moment: Option<LocalMoment>,
+    /// The sun's mark and the day's path.
+    pub path: Option<bool>,
+    /// The paths of the solstices and the equinox.
+    pub seasons: Option<bool>,
+    /// The shadows' outlines.
+    pub shadows: Option<bool>,
+    /// Hatching of what is in shadow, lines this many metres apart.
+    pub hatch_m: Option<f64>,
+}
+
+impl SunChoice {
+    /// What to draw of the sun for `site`: nothing without a date and time.
+    /// Also whether to draw the shadows' outlines, and the hatching's spacing if any.
+    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool, Option<f64>)> {
+        let scene = site.sun.as_ref();
+        let moment = self.moment.or_else(|| scene.map(|s| s.moment()))?;
+        let pick = |asked: Option<bool>, of_scene: Option<bool>, default: bool| {
+            asked.or(of_scene).unwrap_or(default)
+        };
+        let drawing = SunDrawing {
+            moment: Some(moment),
+            path: pick(self.path, scene.map(|s| s.path), true),
+            seasons: pick(self.seasons, scene.map(|s| s.seasons), false),
+        };
+        let hatch = self
+            .hatch_m
+            .or_else(|| scene.and_then(|s| s.hatch.map(|h| h.0)));
+        Some((
+            drawing,
+            pick(self.shadows, scene.map(|s| s.shadows), true),
+            hatch,
+        ))
+    }
 }
 
 impl Default for RenderSettings {
@@ -65,6 +111,7 @@ impl Default for RenderSettings {
             weight_by_distance: false,
             aids: AidSettings::default(),
             time_limit: Some(DEFAULT_TIME_LIMIT),
+            sun: SunChoice::default(),
         }
     }
 }
@@ -150,6 +197,8 @@ pub struct Render {
     pub drawing: Drawing,
     /// Edges left out, with why (they are named as warnings).
     pub skipped: Vec<SkippedEdge>,
+    /// Things said in words, not errors (the sun below the horizon: no shadows).
+    pub notes: Vec<String>,
     /// How long each stage took.
     pub timings: Timings,
 }
@@ -188,6 +237,36 @@ pub fn draw_within(
     if settings.overlays {
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
+    let mut notes = Vec::new();
+    let shadowed;
+    let site = match settings.sun.resolve(site) {
+        None => site,
+        Some((drawing, shadows, hatch)) => {
+            let sky = Sky::of_site(site)?;
+            if settings.overlays {
+                let text = settings.aids.text_height(&map);
+                let (sun, _labels) = sun_layers(&sky, &view, &mut flattener, &drawing, text)?;
+                layers.extend(sun);
+            }
+            let moment = drawing.moment.expect("resolved with a moment");
+            let now = sky.at(&moment)?;
+            if now.place.elevation_deg <= 0.0 {
+                notes.push(format!(
+                    "the sun is {:.1} degrees below the horizon at {} {} ({}): no shadows",
+                    -now.place.elevation_deg,
+                    moment.date,
+                    moment.time.strftime("%H:%M"),
+                    sky.clock.name()
+                ));
+                site
+            } else if shadows || hatch.is_some() {
+                shadowed = with_shadows_and_hatching(site, &sky.direction(&now), hatch);
+                &shadowed
+            } else {
+                site
+            }
+        }
+    };
     let hidden_lines = HiddenLines::new(site, settings.hidden);
     let Wireframe {
         layers: site_layers,
@@ -264,6 +343,7 @@ pub fn draw_within(
     Ok(Render {
         drawing,
         skipped,
+        notes,
         timings,
     })
 }
@@ -341,7 +421,7 @@ pub fn draw_sheets(
 /// (year, month, day).
 pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
     let (year, month, day) = date;
-    vec![
+    let mut lines = vec![
         format!("{}: STANDPOINT {}", site.name, standpoint.name),
         format!(
             "HEADING {:.1}\u{b0}  PITCH {:.1}\u{b0}  ROLL {:.1}\u{b0}  EYE {:.2} M ABOVE GROUND AT {:.2} M, AT ({:.2}, {:.2})",
@@ -354,7 +434,27 @@ pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) 
             standpoint.y
         ),
         format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
-    ]
+    ];
+    if let Some(location) = &site.location {
+        if location.north_deg.rem_euclid(360.0) != 0.0 {
+            lines.push(format!(
+                "TRUE NORTH {:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)",
+                location.north_deg.rem_euclid(360.0)
+            ));
+        }
+    }
+    if let Some(sun) = &site.sun {
+        lines.push(format!(
+            "SUN AND SHADOWS AT {} {} LOCAL TIME ({}) FROM THE MODEL ALONE",
+            sun.date.0,
+            sun.time.0.strftime("%H:%M"),
+            site.location
+                .as_ref()
+                .and_then(|l| l.time_zone.as_deref())
+                .unwrap_or("UTC")
+        ));
+    }
+    lines
 }
 
 /// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way

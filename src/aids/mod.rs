@@ -72,10 +72,12 @@ mod labels;
 mod marks;
 mod pole;
 mod settings;
+mod sun;
 mod table;
 mod vanishing;
 
 pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
+pub use sun::{sun_layers, SunDrawing, SunLabel, SUN, SUN_HOURS, SUN_PATH, SUN_SEASONS};
 pub use table::{angle_table, to_csv, to_json, to_text, AngleRow, PagePlacement, TableChoice};
 
 use crate::drawing::{Layer, Stroke};

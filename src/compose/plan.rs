@@ -281,6 +281,32 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
         &mut north,
     );
 
+    // True north beside it when the scene's plan is turned from it: the sun uses true north.
+    if let Some(bearing) = site
+        .location
+        .as_ref()
+        .map(|l| l.north_deg.to_radians())
+        .filter(|b| b.sin().abs() > 1e-9 || b.cos() < 0.0)
+    {
+        let (sx, sy) = (bearing.sin(), -bearing.cos());
+        let (cx, cy) = (nx - 1.6 * shaft, ny - 0.5 * shaft);
+        let at = |along: f64, side: f64| {
+            ImagePoint::new(
+                cx + shaft * (along * sx - side * sy),
+                cy + shaft * (along * sy + side * sx),
+            )
+        };
+        north.push(&[at(-0.5, 0.0), at(0.5, 0.0)]);
+        north.push(&[at(0.2, -0.2), at(0.5, 0.0), at(0.2, 0.2)]);
+        letter(
+            "TRUE N",
+            ImagePoint::new(cx - 0.7 * shaft, ny),
+            0.7 * letter_px,
+            Align::End,
+            &mut north,
+        );
+    }
+
     plan.drawing.layers = vec![
         layer(PLAN_EDGES, 1.0, weight, edges),
         layer(SEAMS, 0.7, weight, seams),

@@ -66,6 +66,7 @@ pub fn expand(
         )?),
         None => None,
     };
+    site.sun = file.sun.clone();
     site.standpoints = file
         .standpoints
         .iter()

@@ -63,6 +63,9 @@ pub struct SceneFile {
     /// Sloping ground from spot heights, contours and break lines (`ground.rs`).
     #[serde(default)]
     pub ground: Option<super::ground::GroundSpec>,
+    /// The date and local time of the sun and shadows drawn (`when.rs`).
+    #[serde(default)]
+    pub sun: Option<super::when::SunSpec>,
     pub items: Vec<ItemSpec>,
 }
 

@@ -25,6 +25,7 @@ pub mod streets;
 mod style;
 mod suggest;
 mod survey;
+mod when;
 
 pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 
@@ -37,7 +38,7 @@ pub use load::{
     load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,
     parse_scene_timed, LoadTimings,
 };
-pub use location::{Location, LocationSpec};
+pub use location::{find_time_zone, Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
 pub use obj::{parse_obj, ObjFile};
 pub use outline::{tangent_points, RoundOutline};
@@ -47,3 +48,4 @@ pub use site::{
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};
+pub use when::{parse_date, parse_time, LocalMoment, SunSpec, YEARS};

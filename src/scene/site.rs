@@ -212,6 +212,8 @@ pub struct Site {
     pub roads: Vec<super::items::RoadLine>,
     /// The sloping ground, if the scene has one.
     pub ground: Option<super::ground::Ground>,
+    /// The date and local time of the sun and shadows the scene asks for.
+    pub sun: Option<super::when::SunSpec>,
 }
 
 impl Site {

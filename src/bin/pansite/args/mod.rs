@@ -4,6 +4,7 @@
 mod aids;
 mod compose;
 mod render;
+mod sun;
 mod values;
 mod view;
 
@@ -11,6 +12,7 @@ pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
 pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
 pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
+pub use sun::{DaylightArgs, SunArgs};
 pub use values::PathSweep;
 pub use view::ViewArgs;
 
@@ -49,6 +51,9 @@ pub enum Command {
     Preview(Box<PreviewArgs>),
     /// Render, then render again whenever the scene or style file is saved.
     Watch(Box<WatchArgs>),
+    /// List sunrise, transit and sunset, the sun's azimuth and elevation at a step, and the
+    /// times an item's walls are in sun (needs the scene's `location`).
+    Daylight(DaylightArgs),
 }
 
 #[cfg(test)]
