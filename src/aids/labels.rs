@@ -314,9 +314,9 @@ mod tests {
     #[test]
     fn labels_keep_room_between_them() {
         let settings = AidSettings::default();
-        // At 4 px a degree, "360" 10 px high is 26.7 px wide: 1.6 times that is 42.7 px, so
-        // every fifth 10-degree line (12.5 would do, but labels sit on grid lines).
-        assert_eq!(label_step(&settings, 4.0, text_width("360", 10.0)), 20.0);
+        // At 3 px a degree, "360" 10 px high is 24 px wide (three figures 6 units wide and
+        // two gaps of 3): 1.6 times that is 38.4 px, so every second 10-degree line.
+        assert_eq!(label_step(&settings, 3.0, text_width("360", 10.0)), 20.0);
         let settings = AidSettings {
             grid_major_every: 3,
             ..settings

@@ -2,12 +2,15 @@
 //! the overlays, that every output backend reads.
 
 mod dash;
+mod glyphs;
 mod lettering;
 mod style;
 mod wireframe;
 
 pub use dash::dashed;
-pub use lettering::{letter, text_width, Align};
+pub use lettering::{
+    letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align,
+};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
