@@ -147,6 +147,10 @@ pub struct Render {
     pub drawing: Drawing,
     pub skipped: Vec<SkippedEdge>,
     pub timings: Timings,
+    /// Labels left out for want of room, for the run's summary.
+    pub labels_left_out: usize,
+    /// Characters drawn as the placeholder (no glyph), for a warning.
+    pub unlettered: Vec<char>,
 }
 
 /// Layer names of the near and far wireframe when lines are weighed by distance, and how
@@ -209,6 +213,7 @@ pub fn draw_within(
             let name = wireframe_layer_name(wire.site_layer.as_deref());
             by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
+                text: None,
                 name: match wire.distance {
                     Distance::Middle => name,
                     Distance::Near => format!("{name}{NEAR_SUFFIX}"),
@@ -219,9 +224,12 @@ pub fn draw_within(
             });
         }
     }
+    let (mut labels_left_out, mut unlettered) = (0, Vec::new());
     if settings.overlays {
         let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
-        layers.extend(over);
+        labels_left_out = over.labels_left_out;
+        unlettered = over.unlettered;
+        layers.extend(over.layers);
     }
     let sheets: Vec<&StyleSheet> = [
         settings.base_styles.as_ref(),
@@ -259,6 +267,8 @@ pub fn draw_within(
         drawing,
         skipped,
         timings,
+        labels_left_out,
+        unlettered,
     })
 }
 

@@ -346,6 +346,7 @@ pub fn preview(
     }
     let width = settings.line_weight_px;
     let mut layers = vec![Layer {
+        text: None,
         name: "horizon".to_owned(),
         stroke: Stroke::black(0.5, 1.25),
         lines: horizon,
@@ -356,6 +357,7 @@ pub fn preview(
         layers.push(hidden_layer(dashed(&join(&hidden), on, off), width));
     }
     layers.push(Layer {
+        text: None,
         name: WIREFRAME.to_owned(),
         stroke: Stroke::black(1.0, width),
         lines: join(&seen),

@@ -13,12 +13,9 @@
 //! as its own hand rather than as any program's. Zero is a narrow oval and is not slashed:
 //! its width (6 units against O's 9) tells it from the letter.
 
-/// Cap height, grid units.
+/// Cap height, grid units. Small letters are 7 units high (x-height 7/10 of the cap
+/// height, ISO 3098-0 type B, from memory), descenders 3.
 pub const CAP: f64 = 10.0;
-/// Height of the small letters without ascenders (x-height), grid units: 7/10 of the cap
-/// height, ISO 3098-0 lettering type B (from memory).
-pub const X_HEIGHT: f64 = 7.0;
-
 /// The glyph of a character that has one of its own: (width, strokes).
 pub fn glyph(c: char) -> Option<(f64, &'static str)> {
     Some(match c {

@@ -2,20 +2,7 @@
 
 use crate::plane::{ImagePoint, PolylineSet};
 
-/// An axis-aligned rectangle in drawing pixels.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Rect {
-    pub left: f64,
-    pub top: f64,
-    pub right: f64,
-    pub bottom: f64,
-}
-
-impl Rect {
-    pub fn contains(&self, p: ImagePoint) -> bool {
-        p.x >= self.left && p.x <= self.right && p.y >= self.top && p.y <= self.bottom
-    }
-}
+pub use crate::plane::Rect;
 
 /// The part of the segment from `a` to `b` inside `rect`, as parameters `(t0, t1)` along
 /// it, if any (Liang and Barsky, "A new concept and method for line clipping", ACM

@@ -150,6 +150,7 @@ impl PageSettings {
         let mut frame_lines = PolylineSet::new();
         frame_lines.push(&rectangle(&frame));
         layers.push(Layer {
+            text: None,
             name: "frame".to_owned(),
             stroke: Stroke::black(0.7, (0.25 * px).max(1.0)),
             lines: frame_lines,
@@ -219,6 +220,7 @@ impl PageSettings {
             &mut strokes,
         );
         Layer {
+            text: None,
             name: "title".to_owned(),
             stroke: Stroke::black(0.9, (0.25 * px).max(1.0)),
             lines: strokes,
@@ -318,6 +320,7 @@ impl PageSettings {
                     &mut marks,
                 );
                 layers.push(Layer {
+                    text: None,
                     name: "sheet marks".to_owned(),
                     stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
                     lines: marks,
@@ -343,6 +346,7 @@ fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
     layers
         .iter()
         .map(|layer| Layer {
+            text: None,
             name: layer.name.clone(),
             stroke: layer.stroke,
             lines: clip_and_move(&layer.lines, rect, dx, dy),
