@@ -84,11 +84,14 @@ pub fn draw(
                 if k > parts {
                     if let Some(at) = at {
                         let words = format!("{}\u{d7}", k - parts + 1);
-                        labels.push(Label::fixed(words, at, LabelKind::Division, text, Align::Start).with_spots(vec![
-                            Spot::new(half, -half, Align::Start),
-                            Spot::new(-half, -half, Align::End),
-                            Spot::new(half, half + text, Align::Start),
-                        ]));
+                        labels.push(
+                            Label::fixed(words, at, LabelKind::Division, text, Align::Start)
+                                .with_spots(vec![
+                                    Spot::new(half, -half, Align::Start),
+                                    Spot::new(-half, -half, Align::End),
+                                    Spot::new(half, half + text, Align::Start),
+                                ]),
+                        );
                     }
                 }
             }

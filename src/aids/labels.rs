@@ -50,7 +50,12 @@ pub fn grid_labels(
     let per_degree = map.width() / 360.0;
     let gap = 0.4 * text;
     // A value stands beside its own line, right or left of it, never across another.
-    let beside = |dy: f64| vec![Spot::new(gap, dy, Align::Start), Spot::new(-gap, dy, Align::End)];
+    let beside = |dy: f64| {
+        vec![
+            Spot::new(gap, dy, Align::Start),
+            Spot::new(-gap, dy, Align::End),
+        ]
+    };
     let step = label_step(settings, per_degree, text_width("360", text));
     // Azimuths below the horizon and along the top and bottom edges of the area; the edge
     // rows are reached along each meridian, so they follow it under pitch.

@@ -168,7 +168,15 @@ pub fn over(
     push_if_any(&mut layers, "poles", strokes::MARKS, poles);
     let mut divisions = PolylineSet::new();
     for division in &guides.divisions {
-        divide::draw(site, view, flattener, division, text, &mut divisions, &mut labels);
+        divide::draw(
+            site,
+            view,
+            flattener,
+            division,
+            text,
+            &mut divisions,
+            &mut labels,
+        );
     }
     push_if_any(&mut layers, "divisions", strokes::MARKS, divisions);
     let area = settings
@@ -176,7 +184,14 @@ pub fn over(
         .unwrap_or_else(|| Rect::from_ltrb(0.0, 0.0, map.width(), map.height()));
     if settings.labels {
         let mut notches = PolylineSet::new();
-        labels.extend(labels::grid_labels(view, &map, settings, text, &area, &mut notches));
+        labels.extend(labels::grid_labels(
+            view,
+            &map,
+            settings,
+            text,
+            &area,
+            &mut notches,
+        ));
         push_if_any(&mut layers, "heading marks", strokes::LABELS, notches);
     }
     if settings.item_labels {

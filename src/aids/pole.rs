@@ -63,11 +63,17 @@ pub fn draw(
         // Numbers where there is room between them.
         if last_label.is_none_or(|y| (y - p.y).abs() >= 1.5 * text) {
             labels.push(
-                Label::fixed(height_text(h, pole.unit), p, LabelKind::Pole, text, Align::Start)
-                    .with_spots(vec![
-                        Spot::new(2.5 * tick, 0.5 * text, Align::Start),
-                        Spot::new(-2.5 * tick, 0.5 * text, Align::End),
-                    ]),
+                Label::fixed(
+                    height_text(h, pole.unit),
+                    p,
+                    LabelKind::Pole,
+                    text,
+                    Align::Start,
+                )
+                .with_spots(vec![
+                    Spot::new(2.5 * tick, 0.5 * text, Align::Start),
+                    Spot::new(-2.5 * tick, 0.5 * text, Align::End),
+                ]),
             );
             last_label = Some(p.y);
         }

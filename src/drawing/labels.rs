@@ -116,7 +116,12 @@ impl Label {
 
     /// A label for a point mark: above right, above left, below right, below left, above,
     /// below, then the same a little further out.
-    pub fn around(text: impl Into<String>, anchor: ImagePoint, kind: LabelKind, height: f64) -> Label {
+    pub fn around(
+        text: impl Into<String>,
+        anchor: ImagePoint,
+        kind: LabelKind,
+        height: f64,
+    ) -> Label {
         let mut spots = Vec::new();
         for reach in [0.6, 1.5] {
             let d = reach * height;
@@ -392,7 +397,11 @@ impl LineCells {
                     let (x, y) = (a.x + (b.x - a.x) * s, a.y + (b.y - a.y) * s);
                     let c = ((x - self.origin.x) / self.cell).floor();
                     let r = ((y - self.origin.y) / self.cell).floor();
-                    if c >= 0.0 && r >= 0.0 && (c as usize) < self.columns && (r as usize) < self.rows {
+                    if c >= 0.0
+                        && r >= 0.0
+                        && (c as usize) < self.columns
+                        && (r as usize) < self.rows
+                    {
                         self.taken[r as usize * self.columns + c as usize] = true;
                         self.any = true;
                     }
@@ -446,8 +455,14 @@ mod tests {
             Spot::new(-3.0, 12.0, Align::End),
             Spot::new(3.0, 12.0, Align::Start),
         ];
-        let label = Label::fixed("180", ImagePoint::new(0.0, 100.0), LabelKind::GridValue, 10.0, Align::Start)
-            .with_spots(spots);
+        let label = Label::fixed(
+            "180",
+            ImagePoint::new(0.0, 100.0),
+            LabelKind::GridValue,
+            10.0,
+            Align::Start,
+        )
+        .with_spots(spots);
         placer.place(vec![label]);
         let placed = placer.finish();
         assert_eq!(placed.labels.len(), 1);
@@ -461,8 +476,20 @@ mod tests {
         placer.cut_along(&[110.0], &[]);
         placer.block(Rect::from_ltrb(0.0, 150.0, 400.0, 200.0));
         placer.place(vec![
-            Label::fixed("ACROSS", ImagePoint::new(100.0, 50.0), LabelKind::Item, 10.0, Align::Start),
-            Label::fixed("LOW", ImagePoint::new(10.0, 160.0), LabelKind::Item, 10.0, Align::Start),
+            Label::fixed(
+                "ACROSS",
+                ImagePoint::new(100.0, 50.0),
+                LabelKind::Item,
+                10.0,
+                Align::Start,
+            ),
+            Label::fixed(
+                "LOW",
+                ImagePoint::new(10.0, 160.0),
+                LabelKind::Item,
+                10.0,
+                Align::Start,
+            ),
         ]);
         assert_eq!(placer.finish().left_out, 2);
     }
@@ -474,7 +501,12 @@ mod tests {
         // A line through the anchor, up and to the right, blocks the first spot.
         lines.push(&[ImagePoint::new(200.0, 100.0), ImagePoint::new(300.0, 0.0)]);
         placer.avoid_lines(&lines, 3.0);
-        placer.place(vec![Label::around("WELL", ImagePoint::new(200.0, 100.0), LabelKind::Item, 10.0)]);
+        placer.place(vec![Label::around(
+            "WELL",
+            ImagePoint::new(200.0, 100.0),
+            LabelKind::Item,
+            10.0,
+        )]);
         let placed = placer.finish();
         let b = placed.labels[0].bounds;
         assert!(b.right <= 200.0 && b.bottom <= 100.0, "above left: {b:?}");
@@ -483,7 +515,13 @@ mod tests {
     #[test]
     fn layers_carry_the_text_over_a_halo() {
         let mut placer = LabelPlacer::new(area(), 0.0);
-        placer.place(vec![Label::fixed("N", ImagePoint::new(10.0, 50.0), LabelKind::Compass, 10.0, Align::Start)]);
+        placer.place(vec![Label::fixed(
+            "N",
+            ImagePoint::new(10.0, 50.0),
+            LabelKind::Compass,
+            10.0,
+            Align::Start,
+        )]);
         let ink = LabelInk {
             stroke: Stroke::black(0.8, 1.0),
             halo_px: Some(2.0),

@@ -20,7 +20,7 @@
 //! Strokes are drawn with round caps and joins by every backend, so the lettering has
 //! rounded ends.
 
-use super::glyphs::{self, Place, CAP, COMMA_ABOVE, COMMA_BELOW, CARON_BESIDE, PLACEHOLDER};
+use super::glyphs::{self, Place, CAP, CARON_BESIDE, COMMA_ABOVE, COMMA_BELOW, PLACEHOLDER};
 use crate::plane::{ImagePoint, PolylineSet};
 
 /// Where a line of text stands relative to its anchor point, which is on its baseline.
@@ -276,7 +276,10 @@ mod tests {
     use super::*;
 
     fn assert_near(a: f64, b: f64, tolerance: f64) {
-        assert!((a - b).abs() <= tolerance, "{a} != {b} (within {tolerance})");
+        assert!(
+            (a - b).abs() <= tolerance,
+            "{a} != {b} (within {tolerance})"
+        );
     }
 
     /// Every character the lettering promises: printable ASCII, the letters and signs of
@@ -292,11 +295,25 @@ mod tests {
     #[test]
     fn every_promised_character_has_a_glyph_of_its_own() {
         let missing: String = promised().filter(|&c| shape(c).placeholder).collect();
-        assert_eq!(missing, "", "{:?}", missing.chars().map(|c| c as u32).collect::<Vec<_>>());
+        assert_eq!(
+            missing,
+            "",
+            "{:?}",
+            missing.chars().map(|c| c as u32).collect::<Vec<_>>()
+        );
         // Anything else is drawn as the placeholder and reported.
-        assert_eq!(unlettered("A\u{3b1}B\u{4e2d}\u{3b1}"), vec!['\u{3b1}', '\u{4e2d}']);
+        assert_eq!(
+            unlettered("A\u{3b1}B\u{4e2d}\u{3b1}"),
+            vec!['\u{3b1}', '\u{4e2d}']
+        );
         let mut out = PolylineSet::new();
-        letter("\u{3b1}", ImagePoint::new(0.0, 0.0), 10.0, Align::Start, &mut out);
+        letter(
+            "\u{3b1}",
+            ImagePoint::new(0.0, 0.0),
+            10.0,
+            Align::Start,
+            &mut out,
+        );
         assert_eq!(out.len(), 2, "a crossed box");
     }
 
@@ -410,7 +427,13 @@ mod tests {
         // Drawn heights: capitals reach h, small letters c = 0.7 h, descenders 0.3 h.
         let reach = |c: char| {
             let mut out = PolylineSet::new();
-            letter(&c.to_string(), ImagePoint::new(0.0, 0.0), h, Align::Start, &mut out);
+            letter(
+                &c.to_string(),
+                ImagePoint::new(0.0, 0.0),
+                h,
+                Align::Start,
+                &mut out,
+            );
             let top = out.points().iter().map(|p| -p.y).fold(f64::MIN, f64::max);
             let bottom = out.points().iter().map(|p| -p.y).fold(f64::MAX, f64::min);
             (top, bottom)
@@ -440,7 +463,13 @@ mod tests {
     #[test]
     fn alignment_and_width() {
         let mut out = PolylineSet::new();
-        letter("I", ImagePoint::new(100.0, 50.0), 12.0, Align::Middle, &mut out);
+        letter(
+            "I",
+            ImagePoint::new(100.0, 50.0),
+            12.0,
+            Align::Middle,
+            &mut out,
+        );
         // The I is one stem from the cap line to the baseline, on the anchor.
         assert_eq!(
             out.iter().next().unwrap(),
@@ -448,7 +477,13 @@ mod tests {
         );
         let w = text_width("N45", 12.0);
         let mut out = PolylineSet::new();
-        letter("N45", ImagePoint::new(10.0, 50.0), 12.0, Align::End, &mut out);
+        letter(
+            "N45",
+            ImagePoint::new(10.0, 50.0),
+            12.0,
+            Align::End,
+            &mut out,
+        );
         let right = out.points().iter().map(|p| p.x).fold(f64::MIN, f64::max);
         let left = out.points().iter().map(|p| p.x).fold(f64::MAX, f64::min);
         assert_near(right, 10.0, 1e-9);

@@ -12,9 +12,7 @@ pub use dash::dashed;
 pub use labels::{
     label_layers, Label, LabelInk, LabelKind, LabelPlacer, Placed, PlacedLabel, Spot, HALO,
 };
-pub use lettering::{
-    letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align,
-};
+pub use lettering::{letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,

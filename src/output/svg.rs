@@ -70,7 +70,10 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
             let rest = if rest.is_empty() { line } else { rest };
             out.write_all(b" L")?;
             // Each point once: a point that rounds to the one before adds nothing.
-            let mut last = (Mm(first.x * scale).to_string(), Mm(first.y * scale).to_string());
+            let mut last = (
+                Mm(first.x * scale).to_string(),
+                Mm(first.y * scale).to_string(),
+            );
             let mut wrote = false;
             for p in rest {
                 let here = (Mm(p.x * scale).to_string(), Mm(p.y * scale).to_string());

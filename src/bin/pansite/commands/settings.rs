@@ -6,9 +6,10 @@ use crate::args::{
 };
 use pansite::aids::AidSettings;
 use pansite::compose::{ContactSettings, PlanSettings, PreviewSettings};
+use pansite::page::{title_lines, today};
 use pansite::page::{PageSettings, Paper, Tiling};
 use pansite::plane::Equirect;
-use pansite::render::{title_lines, today, RenderSettings};
+use pansite::render::RenderSettings;
 use pansite::scene::{
     load_style_sheet, HiddenEdges, MeshPlacement, Site, Standpoint, Unit, UpAxis,
 };
