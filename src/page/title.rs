@@ -75,7 +75,9 @@ pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: f64) -> TitleLayou
             legend_rows.push(Vec::new());
             used = 0.0;
         }
-        legend_rows.last_mut().map(|r| r.push(k));
+        if let Some(row) = legend_rows.last_mut() {
+            row.push(k);
+        }
         used += entry;
     }
     let pitch = line_pitch(letter_mm) + 0.4 * letter_mm;
