@@ -12,7 +12,7 @@ use crate::error::{Error, Result};
 use crate::output::{
     rasterize, rasterize_grey_png_within, write_atomically, GreyCanvas, MAX_PIXELS,
 };
-use crate::page::{PageSettings, Sheet};
+use crate::page::{label_frame, PageSettings, Sheet, HALO_MM};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
@@ -201,6 +201,10 @@ pub struct Render {
     pub notes: Vec<String>,
     /// How long each stage took.
     pub timings: Timings,
+    /// Labels left out for want of room, for the run's summary.
+    pub labels_left_out: usize,
+    /// Characters drawn as the placeholder (no glyph), for a warning.
+    pub unlettered: Vec<char>,
 }
 
 /// Layer names of the near and far wireframe when lines are weighed by distance, and how
@@ -294,6 +298,7 @@ pub fn draw_within(
             let name = wireframe_layer_name(wire.site_layer.as_deref());
             by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
+                text: None,
                 name: match wire.distance {
                     Distance::Middle => name,
                     Distance::Near => format!("{name}{NEAR_SUFFIX}"),
@@ -304,9 +309,12 @@ pub fn draw_within(
             });
         }
     }
+    let (mut labels_left_out, mut unlettered) = (0, Vec::new());
     if settings.overlays {
         let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
-        layers.extend(over);
+        labels_left_out = over.labels_left_out;
+        unlettered = over.unlettered;
+        layers.extend(over.layers);
     }
     let sheets: Vec<&StyleSheet> = [
         settings.base_styles.as_ref(),
@@ -345,6 +353,8 @@ pub fn draw_within(
         skipped,
         notes,
         timings,
+        labels_left_out,
+        unlettered,
     })
 }
 
@@ -404,8 +414,14 @@ pub fn draw_sheets(
         let sheet = Sheet::full_bleed(render.drawing.clone(), dpi);
         return Ok((vec![sheet], render));
     };
-    let placement = page.place().map_err(Error::Setting)?;
+    let placement = page.place()?;
+    let (area, cuts_x, cuts_y) = label_frame(page, &placement);
+    let mut aids = settings.aids.clone();
+    aids.label_area = Some(area);
+    aids.label_cuts = (cuts_x, cuts_y);
+    aids.halo_px = aids.halo_px.or(Some(HALO_MM * page.px_per_mm()));
     let sized = RenderSettings {
+        aids,
         width: placement.width,
         height: placement.height,
         dpi: page.dpi,
@@ -415,92 +431,4 @@ pub fn draw_sheets(
     let render = draw(site, standpoint, &sized)?;
     let sheets = page.lay_out(&render.drawing, &placement);
     Ok((sheets, render))
-}
-
-/// The title block's lines for a drawing of `site` from `standpoint`, dated `date`
-/// (year, month, day).
-pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
-    let (year, month, day) = date;
-    let mut lines = vec![
-        format!("{}: STANDPOINT {}", site.name, standpoint.name),
-        format!(
-            "HEADING {:.1}\u{b0}  PITCH {:.1}\u{b0}  ROLL {:.1}\u{b0}  EYE {:.2} M ABOVE GROUND AT {:.2} M, AT ({:.2}, {:.2})",
-            standpoint.heading.to_degrees().rem_euclid(360.0),
-            standpoint.pitch.to_degrees(),
-            standpoint.roll.to_degrees(),
-            standpoint.eye_height,
-            standpoint.ground,
-            standpoint.x,
-            standpoint.y
-        ),
-        format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
-    ];
-    if let Some(location) = &site.location {
-        if location.north_deg.rem_euclid(360.0) != 0.0 {
-            lines.push(format!(
-                "TRUE NORTH {:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)",
-                location.north_deg.rem_euclid(360.0)
-            ));
-        }
-    }
-    if let Some(sun) = &site.sun {
-        lines.push(format!(
-            "SUN AND SHADOWS AT {} {} LOCAL TIME ({}) FROM THE MODEL ALONE",
-            sun.date.0,
-            sun.time.0.strftime("%H:%M"),
-            site.location
-                .as_ref()
-                .and_then(|l| l.time_zone.as_deref())
-                .unwrap_or("UTC")
-        ));
-    }
-    lines
-}
-
-/// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way
-/// to ask for reproducible output).
-pub fn today() -> (i64, u32, u32) {
-    let seconds = std::env::var("SOURCE_DATE_EPOCH")
-        .ok()
-        .and_then(|s| s.trim().parse::<i64>().ok())
-        .unwrap_or_else(|| {
-            std::time::SystemTime::now()
-                .duration_since(std::time::UNIX_EPOCH)
-                .map_or(0, |d| d.as_secs() as i64)
-        });
-    civil_date(seconds.div_euclid(86_400))
-}
-
-/// The proleptic Gregorian date of a day counted from 1970-01-01 (Howard Hinnant,
-/// "chrono-Compatible Low-Level Date Algorithms", `civil_from_days`).
-pub fn civil_date(days: i64) -> (i64, u32, u32) {
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let day_of_era = z.rem_euclid(146_097);
-    let year_of_era =
-        (day_of_era - day_of_era / 1460 + day_of_era / 36_524 - day_of_era / 146_096) / 365;
-    let day_of_year = day_of_era - (365 * year_of_era + year_of_era / 4 - year_of_era / 100);
-    let month_index = (5 * day_of_year + 2) / 153;
-    let day = (day_of_year - (153 * month_index + 2) / 5 + 1) as u32;
-    let month = if month_index < 10 {
-        month_index + 3
-    } else {
-        month_index - 9
-    } as u32;
-    let year = year_of_era + era * 400 + i64::from(month <= 2);
-    (year, month, day)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn civil_dates_of_known_days() {
-        // 1970-01-01 is day 0; 2000-03-01 is day 11017; 2026-12-02 is day 20789.
-        assert_eq!(civil_date(0), (1970, 1, 1));
-        assert_eq!(civil_date(11_017), (2000, 3, 1));
-        assert_eq!(civil_date(20_789), (2026, 12, 2));
-        assert_eq!(civil_date(-1), (1969, 12, 31));
-    }
 }

@@ -169,6 +169,7 @@ fn push(layers: &mut Vec<Layer>, name: &str, stroke: crate::drawing::Stroke, lin
             name: name.to_owned(),
             stroke,
             lines,
+            text: None,
         });
     }
 }

@@ -300,6 +300,7 @@ pub fn contact_sheet(
                     existing.lines.append(&mut lines);
                 }
                 None => layers.push(Layer {
+                    text: None,
                     name: layer.name,
                     stroke: layer.stroke,
                     lines,
@@ -340,11 +341,13 @@ pub fn contact_sheet(
         }
     }
     layers.push(Layer {
+        text: None,
         name: "frame".to_owned(),
         stroke: Stroke::black(0.7, 1.0),
         lines: frames,
     });
     layers.push(Layer {
+        text: None,
         name: "labels".to_owned(),
         stroke: Stroke::black(0.9, 1.0),
         lines: labels,

@@ -97,6 +97,7 @@ impl Plan {
                     lines.push(&moved);
                 }
                 Layer {
+                    text: None,
                     name: layer.name.clone(),
                     stroke: layer.stroke,
                     lines,
@@ -321,6 +322,7 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
 
 fn layer(name: &str, opacity: f64, width: f64, lines: PolylineSet) -> Layer {
     Layer {
+        text: None,
         name: name.to_owned(),
         stroke: Stroke::black(opacity, width),
         lines,
@@ -400,6 +402,7 @@ pub fn beside(left: &Sheet, right: &Sheet, gap_mm: f64) -> Result<Sheet> {
             lines.push(&moved);
         }
         layers.push(Layer {
+            text: None,
             name: layer.name.clone(),
             stroke: layer.stroke,
             lines,

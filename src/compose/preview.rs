@@ -353,6 +353,7 @@ pub fn preview(
     }
     let width = settings.line_weight_px;
     let mut layers = vec![Layer {
+        text: None,
         name: "horizon".to_owned(),
         stroke: Stroke::black(0.5, 1.25),
         lines: horizon,
@@ -363,6 +364,7 @@ pub fn preview(
         layers.push(hidden_layer(dashed(&join(&hidden), on, off), width));
     }
     layers.push(Layer {
+        text: None,
         name: WIREFRAME.to_owned(),
         stroke: Stroke::black(1.0, width),
         lines: join(&seen),

@@ -2,12 +2,17 @@
 //! the overlays, that every output backend reads.
 
 mod dash;
+mod glyphs;
+pub mod labels;
 mod lettering;
 mod style;
 mod wireframe;
 
 pub use dash::dashed;
-pub use lettering::{letter, text_width, Align};
+pub use labels::{
+    label_layers, Label, LabelInk, LabelKind, LabelPlacer, Placed, PlacedLabel, Spot, HALO,
+};
+pub use lettering::{letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
@@ -48,6 +53,9 @@ impl Stroke {
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Layer {
+    /// The words, when the layer is one label (see [`labels`]): an SVG writes them beside
+    /// the strokes, and a page keeps the label whole or leaves it out.
+    pub text: Option<String>,
     pub name: String,
     pub stroke: Stroke,
     pub lines: PolylineSet,
@@ -76,6 +84,7 @@ pub const HIDDEN: &str = "hidden";
 /// lighter and thinner than the seen edges it goes under (dashed by [`hidden_dash_px`]).
 pub fn hidden_layer(lines: PolylineSet, line_weight_px: f64) -> Layer {
     Layer {
+        text: None,
         name: HIDDEN.to_owned(),
         stroke: Stroke::black(0.4, (0.75 * line_weight_px).max(0.75)),
         lines,

@@ -7,9 +7,10 @@ use crate::args::{
 };
 use pansite::aids::AidSettings;
 use pansite::compose::{ContactSettings, PlanSettings, PreviewSettings};
+use pansite::page::{title_lines, today};
 use pansite::page::{PageSettings, Paper, Tiling};
 use pansite::plane::Equirect;
-use pansite::render::{title_lines, today, RenderSettings, SunChoice};
+use pansite::render::{RenderSettings, SunChoice};
 use pansite::scene::{
     load_style_sheet, parse_date, parse_time, HiddenEdges, LocalMoment, MeshPlacement, Site,
     Standpoint, Unit, UpAxis,
