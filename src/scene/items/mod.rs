@@ -61,6 +61,7 @@ mod block;
 mod checks;
 mod footprint;
 mod group;
+mod heads;
 mod marks;
 mod mass;
 mod model;
