@@ -578,7 +578,7 @@ mod tests {
     fn storey_lines_stop_at_openings() {
         let o = Opening::square(2.0, 3.0, 1.0, 2.0, 0.0);
         assert_eq!(
-            gaps_between(&[o.clone()], 1.5, 10.0),
+            gaps_between(std::slice::from_ref(&o), 1.5, 10.0),
             vec![(0.0, 2.0), (3.0, 10.0)]
         );
         assert_eq!(gaps_between(&[o], 2.5, 10.0), vec![(0.0, 10.0)]);
