@@ -187,6 +187,12 @@ corpus! {
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
     arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);
     windows_that_do_not_fit: "windows-do-not-fit.ron" => refused("windows-do-not-fit.ron:4:9:", &["12 openings 1.2 wide do not fit"]);
+    head_taller_than_opening: "head-taller-than-opening.ron" => refused("head-taller-than-opening.ron:4:9:", &["Semicircular head", "rises 1.0000", "height (0.8) must exceed"]);
+    segmental_head_too_high: "segmental-head-too-high.ron" => refused("segmental-head-too-high.ron:4:9:", &["the head", "rises at most half its span", "Pointed"]);
+    round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
+    figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
+    figure_taller_than_people: "figure-taller-than-people.ron" => refused("figure-taller-than-people.ron:4:9:", &["16.000 m", "taller than any person"]);
+    unknown_head: "unknown-head.ron" => refused("unknown-head.ron:5:76:", &["Gothic", "Pointed"]);
     // Models named in a scene.
     model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);
     model_not_a_file: "model-not-a-file.ron" => refused("model-not-a-file.ron:4:9:", &["/dev/zero", "expected a file"]);

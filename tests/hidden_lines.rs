@@ -4,8 +4,9 @@
 //! the sight line nearer than the point's distance less the depth bias (and less a curved
 //! facet's slack, measured along the sight line).
 //!
-//! Scenes: a round tower in front of a hall, the interior demo with its columns, and the
-//! exterior demo from a standpoint inside the arcade.
+//! Scenes: a round tower in front of a hall, the interior demo with its columns, the
+//! exterior demo from a standpoint inside the arcade, and a room whose pointed and round
+//! windows are looked through.
 
 use nalgebra::{Point3, Vector3};
 use pansite::scene::{load_scene, parse_scene, Face, Site, SiteCurve, Standpoint};
@@ -229,4 +230,27 @@ fn an_interior_with_columns() {
 fn a_standpoint_inside_an_arcade() {
     let site = scene("scenes/wexcombe-square.ron");
     check_scene("loggia", &site, site.standpoint("loggia").unwrap(), 4);
+}
+
+#[test]
+fn looking_out_through_a_pointed_window_and_an_oculus() {
+    // Inside a room, facing its front wall: a pointed window (and, on the left, a round
+    // one) through a wall 0.4 thick; a hall across the street and a tower beyond the
+    // left wall are seen through them and hidden by the walls round them.
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"inside\", x: 3, y: 3.5, heading: 200)], items: [
+            Room(at: Corner(0, 0), width: 6, depth: 5, height: 4,
+                 openings: [(wall: Front, width: 1.6, height: 3, sill: 0.5, head: Pointed(),
+                             reveal: 0.4, surround: 0.1)],
+                 round_windows: [(wall: Left, centre: 2.2, diameter: 1.2, reveal: 0.4)]),
+            Block(at: Corner(-4, -14), width: 14, depth: 4, height: 9, roof: Gable(ridge: 12),
+                  openings: [(wall: Front, count: 4, width: 1.2, height: 2.2, sill: 1,
+                              head: Semicircular, reveal: 0.2)]),
+            Tower(at: (-7, 2.5), diameter: 3, height: 8, roof: Cone(height: 3)),
+        ])",
+        Path::new("window.ron"),
+        "window",
+    )
+    .unwrap();
+    check_scene("window", &site, &site.standpoints[0], 1);
 }

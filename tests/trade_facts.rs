@@ -433,3 +433,72 @@ fn a_street_climbing_at_an_angle_vanishes_at_that_elevation() {
     let (_, seen) = azimuth_elevation(&(far - eye));
     assert_near(seen, 0.1f64.atan(), 1e-6);
 }
+
+/// Figures whose eyes are at the viewer's eye height, standing on the same level ground,
+/// have their eyes on the horizon whatever their distance; only their size changes
+/// (common practice: the sketcher's rule for placing figures). A seated viewer sees
+/// standing figures' eyes above the horizon, seated figures' on it.
+#[test]
+fn figures_eyes_lie_on_the_horizon_at_any_distance() {
+    let scene = |posture: &str| {
+        pansite::scene::parse_scene(
+            format!(
+                "Scene(standpoints: [(name: \"here\", x: 0, y: 0, heading: 30{posture})], items: [
+                    Figure(label: \"near\", at: (1, 3)),
+                    Figure(label: \"middle\", at: (-4, 12), facing: 120),
+                    Figure(label: \"far\", at: (25, 60), facing: 250),
+                    Figure(label: \"very far\", at: (-180, 240)),
+                    Figure(label: \"on a bench\", at: (6, 9), pose: Seated),
+                ])"
+            )
+            .as_bytes(),
+            std::path::Path::new("figures.ron"),
+            "figures",
+        )
+        .unwrap()
+    };
+    // The eyes of each figure (its head's ellipse at parameters 0 and pi, level with its
+    // centre) and the head's half-height seen from the standpoint, in radians.
+    let eyes = |site: &pansite::scene::Site| -> Vec<(String, [f64; 2], f64)> {
+        let view = ViewFrame::new(&site.standpoints[0]);
+        site.edges
+            .iter()
+            .filter_map(|edge| {
+                let pansite::scene::SiteCurve::Ellipse { v, .. } = edge.curve else {
+                    return None;
+                };
+                let label = site.items[edge.item.0 as usize]
+                    .label
+                    .clone()
+                    .unwrap_or_default();
+                let curve = view.sphere_curve(&edge.curve).unwrap();
+                let middle = (curve.t0 + curve.t1) / 2.0;
+                let elevation = |t: f64| azimuth_elevation(&curve.position(t)).1;
+                let size = (v.norm() / curve.centre.norm()).atan();
+                Some((label, [elevation(curve.t0), elevation(middle)], size))
+            })
+            .collect()
+    };
+    let standing = eyes(&scene(""));
+    assert_eq!(standing.len(), 5);
+    for (label, [a, b], _) in &standing {
+        if label != "on a bench" {
+            assert_near(*a, 0.0, 1e-12);
+            assert_near(*b, 0.0, 1e-12);
+        } else {
+            assert!(*a < -0.01 && *b < -0.01, "{label}: {a} {b}");
+        }
+    }
+    // Nearer figures are bigger.
+    let sizes: Vec<f64> = standing.iter().map(|(_, _, s)| *s).collect();
+    assert!(sizes[0] > sizes[1] && sizes[1] > sizes[2] && sizes[2] > sizes[3]);
+    let seated = eyes(&scene(", posture: Seated"));
+    for (label, [a, b], _) in &seated {
+        if label == "on a bench" {
+            assert_near(*a, 0.0, 1e-12);
+            assert_near(*b, 0.0, 1e-12);
+        } else {
+            assert!(*a > 0.0 && *b > 0.0, "{label}: {a} {b}");
+        }
+    }
+}

@@ -169,6 +169,11 @@ impl<'a> ItemBuilder<'a> {
         self.place = self.place.then_move(offset, turn);
     }
 
+    /// Metres per unit of the scene file: for items of true size, given in metres.
+    pub fn metres_per_unit(&self) -> f64 {
+        self.place.scale
+    }
+
     pub fn segment(&mut self, start: Point3<f64>, end: Point3<f64>) {
         if start == end {
             return;
@@ -312,6 +317,10 @@ impl<'a> ItemBuilder<'a> {
                 base: self.place.point(&base),
                 radius: self.place.length(radius),
                 height: self.place.length(height),
+            },
+            RoundOutline::Sphere { centre, radius } => RoundOutline::Sphere {
+                centre: self.place.point(&centre),
+                radius: self.place.length(radius),
             },
             RoundOutline::Dome { centre, radius } => RoundOutline::Dome {
                 centre: self.place.point(&centre),

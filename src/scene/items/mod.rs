@@ -59,8 +59,10 @@ mod barrel;
 mod block;
 #[cfg(test)]
 mod checks;
+mod figures;
 mod footprint;
 mod group;
+mod heads;
 mod marks;
 mod mass;
 mod model;
@@ -75,6 +77,7 @@ mod walls;
 
 pub use arch::{build_arcade, ArcadeSpec};
 pub use block::{build_block, BlockSpec};
+pub use figures::{build_car, build_figure, build_tree, CarSpec, FigureSpec, TreeSpec};
 pub use footprint::{build_footprint, FootprintSpec};
 pub use group::{GroupSpec, RepeatSpec};
 pub use marks::{build_line, build_point, build_polyline, LineSpec, PointSpec, PolylineSpec};
@@ -164,6 +167,9 @@ item_kinds! {
         Polyline: "polyline", PolylineSpec, build_polyline;
         Line: "line", LineSpec, build_line;
         Point: "point", PointSpec, build_point;
+        Figure: "figure", FigureSpec, build_figure;
+        Car: "car", CarSpec, build_car;
+        Tree: "tree", TreeSpec, build_tree;
     }
     holding {
         Group: "group", GroupSpec;
