@@ -28,7 +28,8 @@ fn raw_edges(name: &str) -> usize {
     let bytes = std::fs::read(fixture(name)).unwrap();
     let obj = parse_obj(&bytes, Path::new(name)).unwrap();
     let mut edges = HashSet::new();
-    for (face, _) in &obj.faces {
+    for face in &obj.faces {
+        let face = obj.face_corners(face);
         for k in 0..face.len() {
             let (a, b) = (face[k], face[(k + 1) % face.len()]);
             edges.insert((a.min(b), a.max(b)));

@@ -207,6 +207,9 @@ pub struct Site {
     pub guides: super::guides::Guides,
     /// Where the plan's origin is on the earth, if the scene says.
     pub location: Option<super::location::Location>,
+    /// The items of each mesh whose surface is closed (every edge between two faces),
+    /// together a solid that one cannot stand in.
+    pub closed_models: Vec<std::ops::Range<u32>>,
 }
 
 impl Site {
