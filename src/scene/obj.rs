@@ -148,8 +148,7 @@ fn check_material_libraries(obj: &mut ObjFile, path: &Path) {
             None => {
                 all_read = false;
                 obj.warnings.push(format!(
-                    "{}:{line}: material library \"{name}\" not found beside the model; its materials become layers by the names the model gives them",
-                    path.display()
+                    "names the material library \"{name}\" (line {line}), which is not beside it: its materials become layers by the names the model gives them"
                 ));
             }
         }
@@ -158,8 +157,7 @@ fn check_material_libraries(obj: &mut ObjFile, path: &Path) {
         for material in obj.materials.iter().skip(1) {
             if !defined.contains(material) {
                 obj.warnings.push(format!(
-                    "{}: material \"{material}\" is used but no material library defines it",
-                    path.display()
+                    "uses the material \"{material}\", which no material library it names defines"
                 ));
             }
         }
