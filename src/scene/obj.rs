@@ -49,12 +49,15 @@ pub enum Smoothing {
 /// [`ObjFile::corners`] or [`ObjFile::line_points`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct ObjElement {
+    /// Its first corner's place in the corner list.
     pub first: u32,
+    /// How many corners it has.
     pub count: u32,
     /// Index into [`ObjFile::groups`].
     pub group: u32,
     /// Index into [`ObjFile::materials`] (0: none).
     pub material: u32,
+    /// The smoothing in force where it was written (faces only).
     pub smoothing: Smoothing,
 }
 
@@ -67,14 +70,17 @@ impl ObjElement {
 /// A parsed OBJ file, in its own coordinates and units.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct ObjFile {
+    /// `v` positions as written.
     pub positions: Vec<Point3<f64>>,
     /// `vn` vectors as written (not necessarily of unit length).
     pub normals: Vec<Vector3<f64>>,
+    /// `f` faces in file order.
     pub faces: Vec<ObjElement>,
     /// Faces' corners as 0-based position indices.
     pub corners: Vec<u32>,
     /// Beside each corner, its 0-based normal index, or [`NO_NORMAL`].
     pub corner_normals: Vec<u32>,
+    /// `l` polylines in file order.
     pub lines: Vec<ObjElement>,
     /// `l` polylines' points as 0-based position indices.
     pub line_points: Vec<u32>,
