@@ -46,6 +46,8 @@ use std::fmt::Write as _;
 use std::path::Path;
 use std::time::{Duration, Instant};
 
+#[path = "cases/bigmodels.rs"]
+mod bigmodels;
 #[path = "cases/sun.rs"]
 mod sun;
 
@@ -430,6 +432,7 @@ fn main() {
                 };
                 mesh_render(&site, &standpoint, hidden);
             }
+            "bigmodels" => bigmodels::child(),
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
@@ -444,6 +447,17 @@ fn main() {
     if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sun") {
         floor();
         sun::run(time(floor));
+        return;
+    }
+    // One case alone while developing: PANSITE_BENCH_ONLY=bigmodels.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("bigmodels") {
+        floor();
+        let floor_time = time(floor);
+        println!(
+            "floor F (blank canvas, png fast compression): {:.1} ms",
+            ms(floor_time)
+        );
+        bigmodels::run(floor_time, child_peak("bigmodels"));
         return;
     }
     let town = town_scene();
@@ -627,6 +641,7 @@ fn main() {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));
     }
     composition(floor_time);
+    bigmodels::run(floor_time, child_peak("bigmodels"));
 }
 
 /// The composition issue's targets: a contact sheet of 24 standpoints of the demo at

@@ -226,6 +226,16 @@ corpus! {
     obj_malformed_number: "obj-malformed-number.obj" => refused("obj-malformed-number.obj:3:5:", &["expected a number, found \"1,5\""]);
     obj_malformed_index: "obj-malformed-index.obj" => refused("obj-malformed-index.obj:4:7:", &["expected a vertex index, found \"three\""]);
     obj_crlf_line_ends_count_lines: "obj-crlf-bad-index.obj" => refused("obj-crlf-bad-index.obj:5:7:", &["index 9 is out of range"]);
+    // Smoothing groups and normals (issue 18).
+    obj_smoothing_word: "obj-smoothing-word.obj" => refused("obj-smoothing-word.obj:5:3:", &["expected a smoothing group", "or `off`", "found \"smooth\""]);
+    obj_smoothing_missing: "obj-smoothing-missing.obj" => refused("obj-smoothing-missing.obj:5:2:", &["expected a smoothing group after `s`"]);
+    obj_normal_two_coordinates: "obj-normal-two-coordinates.obj" => refused("obj-normal-two-coordinates.obj:5:7:", &["three coordinates after `vn`, found 2"]);
+    obj_normal_bad_number: "obj-normal-bad-number.obj" => refused("obj-normal-bad-number.obj:5:6:", &["expected a number, found \"1.0.0\""]);
+    obj_normal_index_out_of_range: "obj-normal-index-out-of-range.obj" => refused("obj-normal-index-out-of-range.obj:6:16:", &["normal index 2 is out of range", "1 normals"]);
+    obj_normal_index_malformed: "obj-normal-index-malformed.obj" => refused("obj-normal-index-malformed.obj:6:11:", &["expected a normal index", "\"one\""]);
+    obj_normal_relative_before_start: "obj-normal-relative-before-start.obj" => refused("obj-normal-relative-before-start.obj:6:18:", &["relative index -2 reaches before the first normal"]);
+    obj_missing_material_library: "obj-missing-mtl.obj" => warned(&["material library \"nowhere.mtl\"", "not beside it"]);
+    obj_standpoint_inside_model: "obj-standpoint-inside-model.obj" => warned(&["standpoint", "is inside", "obj-standpoint-inside-model.obj"]);
     obj_byte_order_mark_does_not_shift_columns: "obj-bom-bad-number.obj" => refused("obj-bom-bad-number.obj:2:7:", &["expected a number, found \"x\""]);
 }
 

@@ -268,6 +268,9 @@ impl Walker<'_> {
             label: label.clone(),
             source,
         })?;
+        if !self.site.sources.contains(&path) {
+            self.site.sources.push(path.clone());
+        }
         let placement = MeshPlacement {
             up: model.up,
             unit: model.unit,

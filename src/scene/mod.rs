@@ -40,7 +40,7 @@ pub use load::{
 };
 pub use location::{find_time_zone, Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
-pub use obj::{parse_obj, ObjFile};
+pub use obj::{parse_obj, ObjElement, ObjFile, Smoothing, NO_NORMAL};
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
     Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, NamedPoint, Outline, SilhouetteEdge,

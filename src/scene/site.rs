@@ -214,6 +214,12 @@ pub struct Site {
     pub ground: Option<super::ground::Ground>,
     /// The date and local time of the sun and shadows the scene asks for.
     pub sun: Option<super::when::SunSpec>,
+    /// The items of each mesh whose surface is closed (every edge between two faces),
+    /// together a solid that one cannot stand in.
+    pub closed_models: Vec<std::ops::Range<u32>>,
+    /// The files the site was read from besides the scene itself (the models it names), for
+    /// `watch` to watch.
+    pub sources: Vec<std::path::PathBuf>,
 }
 
 impl Site {

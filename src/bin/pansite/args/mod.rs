@@ -79,7 +79,7 @@ mod tests {
         assert!(r.output.is_none() && r.view.standpoint.is_none() && r.view.at.is_none());
         assert_eq!(
             (r.model.up, r.model.unit, r.model.crease),
-            (UpArg::Y, UnitArg::M, 30.0)
+            (UpArg::Y, UnitArg::M, 20.0)
         );
     }
 
