@@ -403,6 +403,9 @@ fn megabytes(bytes: u64) -> f64 {
     bytes as f64 / 1e6
 }
 
+#[path = "cases/explorer.rs"]
+mod explorer;
+
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
         match case.as_str() {
@@ -437,6 +440,11 @@ fn main() {
     whole(&demo);
 
     let floor_time = time(floor);
+    // PANSITE_BENCH_ONLY=explorer: only the explorer case, for working on it.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("explorer") {
+        explorer::run(floor_time);
+        return;
+    }
     let floor_up_time = time(floor_up);
     let town_runs: Vec<Run> = (0..RUNS).map(|_| whole(&town)).collect();
     let demo_runs: Vec<Run> = (0..RUNS).map(|_| whole(&demo)).collect();
@@ -610,6 +618,7 @@ fn main() {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));
     }
     composition(floor_time);
+    explorer::run(floor_time);
 }
 
 /// The composition issue's targets: a contact sheet of 24 standpoints of the demo at

@@ -179,6 +179,20 @@ pub fn draw_within(
     settings: &RenderSettings,
     budget: &Budget,
 ) -> Result<Render> {
+    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    draw_with_hidden_lines(site, &hidden_lines, standpoint, settings, budget)
+}
+
+/// [`draw_within`] with the hidden-line set-up made once by the caller
+/// (`HiddenLines::new(site, settings.hidden)`) and kept for many standpoints of one site:
+/// its hierarchy of faces depends on the faces only.
+pub fn draw_with_hidden_lines(
+    site: &Site,
+    hidden_lines: &HiddenLines,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    budget: &Budget,
+) -> Result<Render> {
     settings.validate()?;
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
@@ -188,7 +202,6 @@ pub fn draw_within(
     if settings.overlays {
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
-    let hidden_lines = HiddenLines::new(site, settings.hidden);
     let Wireframe {
         layers: site_layers,
         hidden,
@@ -197,7 +210,7 @@ pub fn draw_within(
         site,
         &view,
         &flattener,
-        &hidden_lines,
+        hidden_lines,
         settings.weight_by_distance,
         budget,
     )?;

@@ -77,4 +77,4 @@ mod preview;
 
 pub use contact::{contact_sheet, sweep_grid, sweep_headings, sweep_path, ContactSettings};
 pub use plan::{beside, plan_map, Plan, PlanSettings};
-pub use preview::{preview, Pinhole, PreviewSettings};
+pub use preview::{preview, preview_with_hidden_lines, Pinhole, PreviewSettings};
