@@ -11,8 +11,10 @@ use std::sync::Arc;
 use std::time::Duration;
 
 fn demo() -> String {
-    std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
-        .unwrap()
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap()
 }
 
 fn temp_dir(name: &str) -> PathBuf {
@@ -28,8 +30,11 @@ fn start(name: &str) -> (Explorer, PathBuf, PathBuf) {
     let scene = dir.join("square.ron");
     std::fs::write(&scene, demo()).unwrap();
     let out = dir.join("out");
-    let explorer =
-        Explorer::start(ExploreSettings::new(Source::Scene(scene.clone()), out.clone())).unwrap();
+    let explorer = Explorer::start(ExploreSettings::new(
+        Source::Scene(scene.clone()),
+        out.clone(),
+    ))
+    .unwrap();
     (explorer, scene, out)
 }
 
@@ -48,7 +53,9 @@ impl Answer {
 /// Sends `raw` as it is and reads the whole answer (the server closes after it).
 fn send(explorer: &Explorer, raw: &[u8]) -> Answer {
     let mut stream = TcpStream::connect(explorer.address()).unwrap();
-    stream.set_read_timeout(Some(Duration::from_secs(60))).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(60)))
+        .unwrap();
     // A server that refuses early may close before all of a huge request is written.
     let _ = stream.write_all(raw);
     let mut bytes = Vec::new();
@@ -60,7 +67,10 @@ fn send(explorer: &Explorer, raw: &[u8]) -> Answer {
     let head = String::from_utf8_lossy(&bytes[..split]).into_owned();
     let status = head[9..12].parse().unwrap();
     let mut body = bytes[split + 4..].to_vec();
-    if head.to_ascii_lowercase().contains("transfer-encoding: chunked") {
+    if head
+        .to_ascii_lowercase()
+        .contains("transfer-encoding: chunked")
+    {
         body = unchunk(&body);
     }
     Answer { status, head, body }
@@ -70,7 +80,9 @@ fn unchunk(mut data: &[u8]) -> Vec<u8> {
     let mut out = Vec::new();
     loop {
         let line_end = data.windows(2).position(|w| w == b"\r\n").unwrap();
-        let size = usize::from_str_radix(std::str::from_utf8(&data[..line_end]).unwrap().trim(), 16).unwrap();
+        let size =
+            usize::from_str_radix(std::str::from_utf8(&data[..line_end]).unwrap().trim(), 16)
+                .unwrap();
         if size == 0 {
             return out;
         }
@@ -91,7 +103,13 @@ fn get(explorer: &Explorer, path: &str) -> Answer {
     send(explorer, raw.as_bytes())
 }
 
-fn post(explorer: &Explorer, path: &str, token: Option<&str>, origin: Option<&str>, body: &str) -> Answer {
+fn post(
+    explorer: &Explorer,
+    path: &str,
+    token: Option<&str>,
+    origin: Option<&str>,
+    body: &str,
+) -> Answer {
     let mut raw = format!(
         "POST {path} HTTP/1.1\r\nHost: {}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: {}\r\n",
         host(explorer),
@@ -133,16 +151,27 @@ fn the_page_and_images_are_served_with_a_strict_policy() {
     // Nothing from elsewhere: no address of another host anywhere in the page's files.
     for asset in ["/", "/explore.js", "/explore.css"] {
         let text = get(&explorer, asset).text();
-        assert!(!text.contains("http://") && !text.contains("https://") && !text.contains("//cdn"), "{asset}");
+        assert!(
+            !text.contains("http://") && !text.contains("https://") && !text.contains("//cdn"),
+            "{asset}"
+        );
     }
-    assert!(page.head.contains("Content-Security-Policy: default-src 'none'"), "{}", page.head);
+    assert!(
+        page.head
+            .contains("Content-Security-Policy: default-src 'none'"),
+        "{}",
+        page.head
+    );
     let image = get(&explorer, UNDERLAY);
     assert_eq!(image.status, 200, "{}", image.text());
     assert_eq!(&image.body[1..4], b"PNG");
     let plan = get(&explorer, "/plan.png?w=300&h=300");
     assert_eq!(plan.status, 200);
     assert!(plan.head.contains("X-Plan-Px-Per-Metre"));
-    let look = get(&explorer, "/look.png?x=1.5&y=-4&heading=10&w=320&h=180&fov=80");
+    let look = get(
+        &explorer,
+        "/look.png?x=1.5&y=-4&heading=10&w=320&h=180&fov=80",
+    );
     assert_eq!(look.status, 200, "{}", look.text());
     let scene = get(&explorer, "/scene");
     let json: serde_json::Value = serde_json::from_slice(&scene.body).unwrap();
@@ -161,7 +190,11 @@ fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_wri
     // DNS rebinding: a name of the attacker's pointed at 127.0.0.1.
     for bad_host in ["evil.example:80", "", "127.0.0.1", "localhost:1"] {
         let raw = format!("GET /scene HTTP/1.1\r\nHost: {bad_host}\r\nConnection: close\r\n\r\n");
-        assert_eq!(send(&explorer, raw.as_bytes()).status, 403, "host {bad_host:?}");
+        assert_eq!(
+            send(&explorer, raw.as_bytes()).status,
+            403,
+            "host {bad_host:?}"
+        );
     }
     let raw = "GET /scene HTTP/1.1\r\nConnection: close\r\n\r\n";
     assert_eq!(send(&explorer, raw.as_bytes()).status, 403, "no Host");
@@ -173,9 +206,17 @@ fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_wri
     // State-changing requests: token and origin.
     for (token, origin, what) in [
         (None, Some(origin.as_str()), "no token"),
-        (Some("0123456789abcdef0123456789abcdef"), Some(origin.as_str()), "wrong token"),
+        (
+            Some("0123456789abcdef0123456789abcdef"),
+            Some(origin.as_str()),
+            "wrong token",
+        ),
         (Some(token.as_str()), None, "no origin"),
-        (Some(token.as_str()), Some("http://evil.example"), "foreign origin"),
+        (
+            Some(token.as_str()),
+            Some("http://evil.example"),
+            "foreign origin",
+        ),
         (Some(token.as_str()), Some("null"), "opaque origin"),
     ] {
         for path in ["/keep", "/print"] {
@@ -185,7 +226,10 @@ fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_wri
     }
     // GET on a state-changing route, POST on a reading one.
     assert_eq!(get(&explorer, "/keep").status, 405);
-    assert_eq!(post(&explorer, "/scene", Some(&token), Some(&origin), "{}").status, 405);
+    assert_eq!(
+        post(&explorer, "/scene", Some(&token), Some(&origin), "{}").status,
+        405
+    );
     assert_eq!(std::fs::read(&scene).unwrap(), before);
     assert!(!out.exists());
     assert_eq!(files_in(scene.parent().unwrap()), ["square.ron"]);
@@ -199,7 +243,10 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
     let (explorer, scene, out) = start("params");
     let cases = [
         ("/underlay.png?x=../../etc/passwd&y=0&w=256&h=128", "'x'"),
-        ("/underlay.png?x=0&y=0&w=256&h=128&file=/etc/passwd", "'file'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&file=/etc/passwd",
+            "'file'",
+        ),
         ("/underlay.png?x=0&y=0&w=256&h=128&pane=../../x", "'pane'"),
         ("/underlay.png?x=NaN&y=0&w=256&h=128", "'x'"),
         ("/underlay.png?x=inf&y=0&w=256&h=128", "'x'"),
@@ -208,7 +255,10 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
         ("/underlay.png?x=0&y=0&w=100000&h=50000", "'w'"),
         ("/underlay.png?x=0&y=0&w=300&h=100", "twice as wide"),
         ("/underlay.png?x=0&y=0&w=256&h=128&eye=-1", "'eye'"),
-        ("/underlay.png?x=0&y=0&w=256&h=128&hidden=%2Fetc", "'hidden'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&hidden=%2Fetc",
+            "'hidden'",
+        ),
         ("/look.png?x=0&y=0&w=256&h=128&fov=179", "'fov'"),
         ("/probe?x=0&y=0&w=256&h=128&u=999&v=1", "'u'"),
         ("/underlay.png?x=0&x=1&y=0&w=256&h=128", "twice"),
@@ -219,7 +269,13 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
         assert_eq!(answer.status, 400, "{path}: {}", answer.text());
         assert!(answer.text().contains(named), "{path}: {}", answer.text());
     }
-    for path in ["/../../etc/passwd", "/square.ron", "/%2e%2e/square.ron", "/out/", "//etc/passwd"] {
+    for path in [
+        "/../../etc/passwd",
+        "/square.ron",
+        "/%2e%2e/square.ron",
+        "/out/",
+        "//etc/passwd",
+    ] {
         assert_eq!(get(&explorer, path).status, 404, "{path}");
     }
     let token = explorer.token().to_owned();
@@ -270,7 +326,9 @@ fn malformed_and_huge_requests_are_refused_and_the_server_carries_on() {
 /// Sends bytes the server may answer with 400 or simply close on.
 fn send_quietly(explorer: &Explorer, raw: &[u8]) -> Option<u16> {
     let mut stream = TcpStream::connect(explorer.address()).unwrap();
-    stream.set_read_timeout(Some(Duration::from_secs(5))).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(5)))
+        .unwrap();
     let _ = stream.write_all(raw);
     let _ = stream.shutdown(std::net::Shutdown::Write);
     let mut bytes = Vec::new();
@@ -315,7 +373,11 @@ fn keeping_a_standpoint_inserts_one_line_and_refuses_when_the_file_changed() {
     let refused = post(&explorer, "/keep", Some(&token), Some(&origin), other);
     // Unless the watch has already read the edit again.
     if refused.status == 409 {
-        assert!(refused.text().contains("changed on disk"), "{}", refused.text());
+        assert!(
+            refused.text().contains("changed on disk"),
+            "{}",
+            refused.text()
+        );
         assert_eq!(std::fs::read(&scene).unwrap(), edited);
     }
     explorer.stop();
@@ -323,7 +385,8 @@ fn keeping_a_standpoint_inserts_one_line_and_refuses_when_the_file_changed() {
 
 #[test]
 fn a_scene_from_standard_input_cannot_keep_and_says_why() {
-    let site = pansite::scene::parse_scene(demo().as_bytes(), Path::new("<stdin>"), "stdin").unwrap();
+    let site =
+        pansite::scene::parse_scene(demo().as_bytes(), Path::new("<stdin>"), "stdin").unwrap();
     let dir = temp_dir("stdin");
     let source = Source::Fixed {
         site: Box::new(site),
@@ -332,9 +395,18 @@ fn a_scene_from_standard_input_cannot_keep_and_says_why() {
     let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
     let scene: serde_json::Value = serde_json::from_slice(&get(&explorer, "/scene").body).unwrap();
     assert_eq!(scene["keep"], false);
-    assert!(scene["no_keep_reason"].as_str().unwrap().contains("standard input"));
+    assert!(scene["no_keep_reason"]
+        .as_str()
+        .unwrap()
+        .contains("standard input"));
     let token = explorer.token().to_owned();
-    let answer = post(&explorer, "/keep", Some(&token), Some(&own_origin(&explorer)), r#"{"name":"a","x":0,"y":0}"#);
+    let answer = post(
+        &explorer,
+        "/keep",
+        Some(&token),
+        Some(&own_origin(&explorer)),
+        r#"{"name":"a","x":0,"y":0}"#,
+    );
     assert_eq!(answer.status, 409);
     assert!(answer.text().contains("standard input"));
     assert_eq!(files_in(&dir), Vec::<String>::new());
@@ -345,12 +417,15 @@ fn a_scene_from_standard_input_cannot_keep_and_says_why() {
 fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
     let dir = temp_dir("model");
     let model = dir.join("cube.obj");
-    let fixture = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/obj/cube_triangles.obj");
+    let fixture =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/obj/cube_triangles.obj");
     std::fs::copy(&fixture, &model).unwrap();
     let model_bytes = std::fs::read(&model).unwrap();
     let source = Source::Model {
         path: model.clone(),
-        load: Arc::new(|path: &Path| load_obj(path, &MeshPlacement::default()).map(|(site, _)| site)),
+        load: Arc::new(|path: &Path| {
+            load_obj(path, &MeshPlacement::default()).map(|(site, _)| site)
+        }),
         model_item: Some("Model(file: \"cube.obj\")".into()),
     };
     let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
@@ -394,13 +469,19 @@ fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
         .map(|k| {
             let explorer = explorer.clone();
             std::thread::spawn(move || {
-                let path = format!("/underlay.png?x={}&y=-4&w=512&h=256&pane=same", k as f64 * 0.1);
+                let path = format!(
+                    "/underlay.png?x={}&y=-4&w=512&h=256&pane=same",
+                    k as f64 * 0.1
+                );
                 get(&explorer, &path).status
             })
         })
         .collect();
     let statuses: Vec<u16> = threads.into_iter().map(|t| t.join().unwrap()).collect();
-    assert!(statuses.iter().all(|s| *s == 200 || *s == 204), "{statuses:?}");
+    assert!(
+        statuses.iter().all(|s| *s == 200 || *s == 204),
+        "{statuses:?}"
+    );
     assert!(statuses.contains(&200));
     Arc::try_unwrap(explorer).ok().unwrap().stop();
 }

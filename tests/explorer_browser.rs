@@ -23,7 +23,9 @@ fn chromium() -> PathBuf {
             return PathBuf::from(path);
         }
     }
-    panic!("Debian's chromium is not installed (apt-get install chromium); the browser tests need it");
+    panic!(
+        "Debian's chromium is not installed (apt-get install chromium); the browser tests need it"
+    );
 }
 
 fn artefacts() -> PathBuf {
@@ -92,11 +94,13 @@ fn mouse(tab: &Tab, kind: Input::DispatchMouseEventTypeOption, x: f64, y: f64, d
         y,
         modifiers: None,
         timestamp: None,
-        button: Some(if down || matches!(kind, Input::DispatchMouseEventTypeOption::MouseReleased) {
-            Input::MouseButton::Left
-        } else {
-            Input::MouseButton::None
-        }),
+        button: Some(
+            if down || matches!(kind, Input::DispatchMouseEventTypeOption::MouseReleased) {
+                Input::MouseButton::Left
+            } else {
+                Input::MouseButton::None
+            },
+        ),
         buttons: Some(if down { 1 } else { 0 }),
         click_count: Some(1),
         force: None,
@@ -127,7 +131,10 @@ fn canvas_pixels(tab: &Tab, id: &str) -> (u32, u32, Vec<u8>) {
          return [c.width, c.height, btoa(s)]; }})()"
     );
     let value = eval(tab, &js);
-    let (w, h) = (value[0].as_u64().unwrap() as u32, value[1].as_u64().unwrap() as u32);
+    let (w, h) = (
+        value[0].as_u64().unwrap() as u32,
+        value[1].as_u64().unwrap() as u32,
+    );
     let pixels = base64_decode(value[2].as_str().unwrap());
     assert_eq!(pixels.len(), (w * h) as usize);
     (w, h, pixels)
@@ -147,7 +154,10 @@ fn base64_decode(text: &str) -> Vec<u8> {
     let mut out = Vec::with_capacity(bytes.len() * 3 / 4);
     for chunk in bytes.chunks(4) {
         let v: Vec<u32> = chunk.iter().map(|&c| value(c) as u32).collect();
-        let n = v.iter().enumerate().fold(0u32, |n, (i, x)| n | (x << (18 - 6 * i)));
+        let n = v
+            .iter()
+            .enumerate()
+            .fold(0u32, |n, (i, x)| n | (x << (18 - 6 * i)));
         out.extend_from_slice(&n.to_be_bytes()[1..chunk.len()]);
     }
     out
@@ -200,8 +210,10 @@ fn the_page_in_chromium() {
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     let scene = dir.join("square.ron");
-    let original =
-        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron")).unwrap();
+    let original = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap();
     std::fs::write(&scene, &original).unwrap();
     let site = pansite::scene::load_scene(&scene).unwrap();
     let mut settings = ExploreSettings::new(Source::Scene(scene.clone()), dir.join("out"));
@@ -211,11 +223,17 @@ fn the_page_in_chromium() {
     let browser = launch(&dir.join("profile"));
     let tab = browser.new_tab().unwrap();
     tab.set_default_timeout(Duration::from_secs(30));
-    tab.navigate_to(&explorer.url()).unwrap().wait_until_navigated().unwrap();
+    tab.navigate_to(&explorer.url())
+        .unwrap()
+        .wait_until_navigated()
+        .unwrap();
     wait_for(&tab, SETTLED, "the first drawing");
 
     // The page fits 1366x768 without scrolling sideways.
-    let fits = eval(&tab, "document.documentElement.scrollWidth <= window.innerWidth");
+    let fits = eval(
+        &tab,
+        "document.documentElement.scrollWidth <= window.innerWidth",
+    );
     assert_eq!(fits, serde_json::Value::Bool(true));
     assert_eq!(eval(&tab, "window.innerWidth"), 1366);
     screenshot(&tab, "page-1366x768.png");
@@ -230,7 +248,13 @@ fn the_page_in_chromium() {
     mouse(&tab, MousePressed, from_x, from_y, true);
     for step in 1..=20 {
         let s = step as f64 / 20.0;
-        mouse(&tab, MouseMoved, from_x + s * (to_x - from_x), from_y + s * (to_y - from_y), true);
+        mouse(
+            &tab,
+            MouseMoved,
+            from_x + s * (to_x - from_x),
+            from_y + s * (to_y - from_y),
+            true,
+        );
         std::thread::sleep(Duration::from_millis(15));
     }
     mouse(&tab, MouseReleased, to_x, to_y, false);
@@ -240,7 +264,9 @@ fn the_page_in_chromium() {
     let heading = view["heading"].as_f64().unwrap();
     let eye = view["eye"].as_f64().unwrap();
     // Within a pixel of the plan (its scale is px_per_metre) of the point dragged to.
-    let px_per_metre = eval(&tab, "window.pansiteExplorer.plan.pxPerMetre").as_f64().unwrap();
+    let px_per_metre = eval(&tab, "window.pansiteExplorer.plan.pxPerMetre")
+        .as_f64()
+        .unwrap();
     assert!(
         (x - target.0).abs() <= 1.5 / px_per_metre && (y - target.1).abs() <= 1.5 / px_per_metre,
         "dragged to ({x}, {y}), wanted {target:?}"
@@ -294,7 +320,10 @@ fn the_page_in_chromium() {
         "(() => { const r = document.getElementById('underlay').getBoundingClientRect(); return [r.left, r.top, r.width]; })()",
     );
     let scale = rect[2].as_f64().unwrap() / w as f64;
-    let (sx, sy) = (rect[0].as_f64().unwrap() + u * scale, rect[1].as_f64().unwrap() + v * scale);
+    let (sx, sy) = (
+        rect[0].as_f64().unwrap() + u * scale,
+        rect[1].as_f64().unwrap() + v * scale,
+    );
     mouse(&tab, MouseMoved, sx, sy, false);
     wait_for(
         &tab,
@@ -302,8 +331,18 @@ fn the_page_in_chromium() {
         "the hover read-out",
     );
     std::thread::sleep(Duration::from_millis(300));
-    let read_az: f64 = eval(&tab, "Number(document.getElementById('readout').dataset.azimuth)").as_f64().unwrap();
-    let read_el: f64 = eval(&tab, "Number(document.getElementById('readout').dataset.elevation)").as_f64().unwrap();
+    let read_az: f64 = eval(
+        &tab,
+        "Number(document.getElementById('readout').dataset.azimuth)",
+    )
+    .as_f64()
+    .unwrap();
+    let read_el: f64 = eval(
+        &tab,
+        "Number(document.getElementById('readout').dataset.elevation)",
+    )
+    .as_f64()
+    .unwrap();
     // One screen pixel is (360 / w) / scale degrees; the mouse lands on whole pixels.
     let pixel_deg = 360.0 / w as f64 / scale;
     assert!(
@@ -311,21 +350,38 @@ fn the_page_in_chromium() {
         "read {read_az}, {read_el}; computed {azimuth}, {elevation} (a pixel is {pixel_deg} degrees)"
     );
     let readout = eval(&tab, "document.getElementById('readout').textContent");
-    assert!(readout.as_str().unwrap().contains("clock tower"), "{readout}");
+    assert!(
+        readout.as_str().unwrap().contains("clock tower"),
+        "{readout}"
+    );
     // A click keeps the point in the table.
     mouse(&tab, MousePressed, sx, sy, true);
     mouse(&tab, MouseReleased, sx, sy, false);
-    wait_for(&tab, "document.querySelectorAll('#picks tbody tr').length === 1", "a kept point");
+    wait_for(
+        &tab,
+        "document.querySelectorAll('#picks tbody tr').length === 1",
+        "a kept point",
+    );
 
     // Keyboard: an arrow moves half a metre north; Alt with an arrow turns 5 degrees.
     eval(&tab, "document.getElementById('plan').focus(); true");
     tab.press_key("ArrowUp").unwrap();
-    wait_for(&tab, &format!("Math.abs(window.pansiteExplorer.view.y - ({y} + 0.5)) < 1e-9"), "the arrow key");
-    tab.press_key_with_modifiers("ArrowRight", Some(&[headless_chrome::browser::tab::ModifierKey::Alt]))
-        .unwrap();
     wait_for(
         &tab,
-        &format!("Math.abs(window.pansiteExplorer.view.heading - ({} % 360)) < 1e-9", heading + 5.0),
+        &format!("Math.abs(window.pansiteExplorer.view.y - ({y} + 0.5)) < 1e-9"),
+        "the arrow key",
+    );
+    tab.press_key_with_modifiers(
+        "ArrowRight",
+        Some(&[headless_chrome::browser::tab::ModifierKey::Alt]),
+    )
+    .unwrap();
+    wait_for(
+        &tab,
+        &format!(
+            "Math.abs(window.pansiteExplorer.view.heading - ({} % 360)) < 1e-9",
+            heading + 5.0
+        ),
         "Alt with an arrow key",
     );
     wait_for(&tab, SETTLED, "the drawing after the keys");
@@ -350,20 +406,38 @@ fn the_page_in_chromium() {
     let (_, _, before_break) = canvas_pixels(&tab, "underlay");
     let broken = renamed.replacen("width: 25,", "width: 25,,", 1);
     save(&dir, &scene, &broken);
-    wait_for(&tab, "!document.getElementById('problem').hidden", "the error to show");
+    wait_for(
+        &tab,
+        "!document.getElementById('problem').hidden",
+        "the error to show",
+    );
     let problem = eval(&tab, "document.getElementById('problem').textContent");
     let problem = problem.as_str().unwrap();
-    let line = broken.lines().position(|l| l.contains("width: 25,,")).unwrap() + 1;
-    assert!(problem.contains(&format!("square.ron:{line}:")), "{problem}");
+    let line = broken
+        .lines()
+        .position(|l| l.contains("width: 25,,"))
+        .unwrap()
+        + 1;
+    assert!(
+        problem.contains(&format!("square.ron:{line}:")),
+        "{problem}"
+    );
     screenshot(&tab, "broken-scene.png");
     let (_, _, after_break) = canvas_pixels(&tab, "underlay");
     assert_eq!(before_break, after_break, "the last good drawing stays");
 
     // Mended, then keep this standpoint: one line inserted, every other byte unchanged.
     save(&dir, &scene, &renamed);
-    wait_for(&tab, "document.getElementById('problem').hidden", "the error to clear");
+    wait_for(
+        &tab,
+        "document.getElementById('problem').hidden",
+        "the error to clear",
+    );
     wait_for(&tab, SETTLED, "the mended scene");
-    eval(&tab, "document.getElementById('keep-name').value = 'across the square'; true");
+    eval(
+        &tab,
+        "document.getElementById('keep-name').value = 'across the square'; true",
+    );
     eval(&tab, "document.getElementById('keep').click(); true");
     wait_for(
         &tab,
@@ -381,7 +455,10 @@ fn the_page_in_chromium() {
         .count();
     assert_eq!(prefix + suffix, old.len(), "only an insertion");
     let inserted = String::from_utf8_lossy(&kept[prefix..kept.len() - suffix]).into_owned();
-    assert!(inserted.contains("(name: \"across the square\""), "{inserted}");
+    assert!(
+        inserted.contains("(name: \"across the square\""),
+        "{inserted}"
+    );
     assert_eq!(inserted.matches('\n').count(), 1, "one line: {inserted:?}");
     wait_for(
         &tab,

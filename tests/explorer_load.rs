@@ -15,7 +15,11 @@ fn start() -> Explorer {
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     let scene = dir.join("square.ron");
-    std::fs::copy(Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"), &scene).unwrap();
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+        &scene,
+    )
+    .unwrap();
     Explorer::start(ExploreSettings::new(Source::Scene(scene), dir.join("out"))).unwrap()
 }
 
@@ -23,7 +27,9 @@ fn start() -> Explorer {
 /// Content-Length).
 fn get(explorer: &Explorer, path: &str) -> (u16, Vec<u8>) {
     let mut stream = TcpStream::connect(explorer.address()).unwrap();
-    stream.set_read_timeout(Some(Duration::from_secs(120))).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(120)))
+        .unwrap();
     let raw = format!(
         "GET {path} HTTP/1.1\r\nHost: 127.0.0.1:{}\r\nConnection: close\r\n\r\n",
         explorer.address().port()
@@ -31,7 +37,10 @@ fn get(explorer: &Explorer, path: &str) -> (u16, Vec<u8>) {
     stream.write_all(raw.as_bytes()).unwrap();
     let mut bytes = Vec::new();
     stream.read_to_end(&mut bytes).unwrap();
-    let split = bytes.windows(4).position(|w| w == b"\r\n\r\n").expect("an answer");
+    let split = bytes
+        .windows(4)
+        .position(|w| w == b"\r\n\r\n")
+        .expect("an answer");
     let status = std::str::from_utf8(&bytes[9..12]).unwrap().parse().unwrap();
     (status, bytes[split + 4..].to_vec())
 }
@@ -84,8 +93,11 @@ fn twenty_clients_and_a_thousand_renders_all_answered_without_growth() {
         after_last as f64 / 1e6,
         (growth - 1.0) * 100.0
     );
-    assert!((0.9..=1.1).contains(&growth), "memory grew by {:.1} %", (growth - 1.0) * 100.0);
+    assert!(
+        (0.9..=1.1).contains(&growth),
+        "memory grew by {:.1} %",
+        (growth - 1.0) * 100.0
+    );
     assert_eq!(get(&explorer, UNDERLAY).0, 200);
     Arc::try_unwrap(explorer).ok().unwrap().stop();
 }
-

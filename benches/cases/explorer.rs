@@ -24,7 +24,12 @@ fn fetch_and_decode(explorer: &Explorer, path: &str) -> Duration {
     stream.write_all(raw.as_bytes()).unwrap();
     let mut bytes = Vec::new();
     stream.read_to_end(&mut bytes).unwrap();
-    assert_eq!(&bytes[9..12], b"200", "{}", String::from_utf8_lossy(&bytes[..200.min(bytes.len())]));
+    assert_eq!(
+        &bytes[9..12],
+        b"200",
+        "{}",
+        String::from_utf8_lossy(&bytes[..200.min(bytes.len())])
+    );
     let split = bytes.windows(4).position(|w| w == b"\r\n\r\n").unwrap() + 4;
     let decoder = png::Decoder::new(std::io::Cursor::new(&bytes[split..]));
     let mut reader = decoder.read_info().unwrap();
@@ -42,8 +47,11 @@ pub fn run(floor_time: Duration) {
     let dir = std::env::temp_dir().join(format!("pansite-bench-explorer-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let scene = dir.join("square.ron");
-    std::fs::copy(Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"), &scene)
-        .unwrap();
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+        &scene,
+    )
+    .unwrap();
     let explorer =
         Explorer::start(ExploreSettings::new(Source::Scene(scene), dir.join("out"))).unwrap();
     // From the fountain across the square towards the lane corner, turning as it goes.
@@ -62,8 +70,12 @@ pub fn run(floor_time: Duration) {
     // Warm up once.
     fetch_and_decode(&explorer, &underlay(0));
     fetch_and_decode(&explorer, &look(0));
-    let under: Vec<Duration> = (0..STEPS).map(|k| fetch_and_decode(&explorer, &underlay(k))).collect();
-    let around: Vec<Duration> = (0..STEPS).map(|k| fetch_and_decode(&explorer, &look(k))).collect();
+    let under: Vec<Duration> = (0..STEPS)
+        .map(|k| fetch_and_decode(&explorer, &underlay(k)))
+        .collect();
+    let around: Vec<Duration> = (0..STEPS)
+        .map(|k| fetch_and_decode(&explorer, &look(k)))
+        .collect();
     explorer.stop();
     let _ = std::fs::remove_dir_all(&dir);
     let (under, around) = (p95(under), p95(around));
@@ -80,6 +92,12 @@ pub fn run(floor_time: Duration) {
         TARGET.as_millis(),
         TARGET.as_secs_f64() / f,
     );
-    assert!(under < TARGET, "the underlay's p95 {under:?} is over {TARGET:?}");
-    assert!(around < TARGET, "the look-around's p95 {around:?} is over {TARGET:?}");
+    assert!(
+        under < TARGET,
+        "the underlay's p95 {under:?} is over {TARGET:?}"
+    );
+    assert!(
+        around < TARGET,
+        "the look-around's p95 {around:?} is over {TARGET:?}"
+    );
 }

@@ -230,7 +230,10 @@ fn word_end(bytes: &[u8], start: usize) -> usize {
 pub fn insert_standpoint(text: &str, entry: &str) -> std::result::Result<String, String> {
     let tokens = tokens(text)?;
     // The scene's own bracket: the first opening one.
-    let Some(scene_open) = tokens.iter().position(|(_, t)| matches!(t, Token::Open(b'('))) else {
+    let Some(scene_open) = tokens
+        .iter()
+        .position(|(_, t)| matches!(t, Token::Open(b'(')))
+    else {
         return Err("expected a scene: Scene(...)".into());
     };
     let mut depth = 0usize;
@@ -396,14 +399,29 @@ mod tests {
         let old = "Scene(\n  standpoints: [\n    Standpoint(name: \"a\", x: 1, y: 2)\n  ],\n  items: [],\n)";
         let entry = "(name: \"b\", x: 0, y: 0)";
         let new = insert_standpoint(old, entry).unwrap();
-        assert!(only_inserted(old, &new, 1 + 1 + 4 + entry.len() + 1), "{new}");
-        assert!(new.contains("    Standpoint(name: \"a\", x: 1, y: 2),\n    (name: \"b\", x: 0, y: 0),\n  ]"), "{new}");
+        assert!(
+            only_inserted(old, &new, 1 + 1 + 4 + entry.len() + 1),
+            "{new}"
+        );
+        assert!(
+            new.contains(
+                "    Standpoint(name: \"a\", x: 1, y: 2),\n    (name: \"b\", x: 0, y: 0),\n  ]"
+            ),
+            "{new}"
+        );
     }
 
     #[test]
     fn inline_and_empty_lists_stay_inline() {
-        let new = insert_standpoint("Scene(standpoints: [(name: \"a\", x: 1, y: 2)], items: [])", "(B)").unwrap();
-        assert_eq!(new, "Scene(standpoints: [(name: \"a\", x: 1, y: 2), (B)], items: [])");
+        let new = insert_standpoint(
+            "Scene(standpoints: [(name: \"a\", x: 1, y: 2)], items: [])",
+            "(B)",
+        )
+        .unwrap();
+        assert_eq!(
+            new,
+            "Scene(standpoints: [(name: \"a\", x: 1, y: 2), (B)], items: [])"
+        );
         let new = insert_standpoint("Scene(standpoints: [], items: [])", "(B)").unwrap();
         assert_eq!(new, "Scene(standpoints: [(B)], items: [])");
     }
@@ -422,18 +440,26 @@ mod tests {
     fn brackets_in_comments_and_strings_are_not_structure() {
         let old = "Scene(\n    /* standpoints: [ /* nested ] */ ( */\n    name: \"standpoints: [\",\n    standpoints: [\n        (name: \"a ] (\", x: 1, y: 2),\n    ],\n    items: [Block(label: r#\"]\"#, at: Centre(0, 0), width: 1, depth: 1, height: 1)],\n)";
         let new = insert_standpoint(old, "(B)").unwrap();
-        assert!(new.contains("(name: \"a ] (\", x: 1, y: 2),\n        (B),\n    ],"), "{new}");
+        assert!(
+            new.contains("(name: \"a ] (\", x: 1, y: 2),\n        (B),\n    ],"),
+            "{new}"
+        );
     }
 
     #[test]
     fn the_demo_keeps_every_byte_and_reads_back() {
         let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
         let old = std::fs::read_to_string(&path).unwrap();
-        let standpoint = Standpoint::from_degrees("by \"the\" well", 3.25, -6.5, 1.6, 45.0, 5.0, 0.0);
+        let standpoint =
+            Standpoint::from_degrees("by \"the\" well", 3.25, -6.5, 1.6, 45.0, 5.0, 0.0);
         let new = keep_in_scene(&old, &path, &standpoint).unwrap();
         let entry = standpoint_entry(&standpoint, 1.0).unwrap();
         assert_eq!(entry, "(name: \"by \\\"the\\\" well\", x: 3.25, y: -6.5, eye_height: 1.6, heading: 45, pitch: 5)");
-        assert!(only_inserted(&old, &new, entry.len() + 10), "{}", new.len() - old.len());
+        assert!(
+            only_inserted(&old, &new, entry.len() + 10),
+            "{}",
+            new.len() - old.len()
+        );
         let site = parse_scene(new.as_bytes(), &path, "x").unwrap();
         let kept = site.standpoints.last().unwrap();
         assert_eq!(kept.name, "by \"the\" well");

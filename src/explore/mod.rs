@@ -32,7 +32,7 @@ pub mod server;
 pub mod source;
 pub mod work;
 
-pub use server::{Explorer, ExploreSettings};
+pub use server::{ExploreSettings, Explorer};
 pub use source::Source;
 
 /// The text of an error and of each error under it, as the page shows it.

@@ -86,9 +86,12 @@ impl Params {
         let Some(text) = self.values.get(name) else {
             return default.ok_or(format!("parameter '{name}' is missing"));
         };
-        let value: f64 = text
-            .parse()
-            .map_err(|_| format!("parameter '{name}': expected a number, got '{}'", shown(text)))?;
+        let value: f64 = text.parse().map_err(|_| {
+            format!(
+                "parameter '{name}': expected a number, got '{}'",
+                shown(text)
+            )
+        })?;
         if !value.is_finite() || value < range.0 || value > range.1 {
             return Err(format!(
                 "parameter '{name}' = {} is outside {} to {}",
@@ -234,7 +237,15 @@ mod tests {
 
     #[test]
     fn numbers_out_of_range_or_not_numbers_are_refused_by_name() {
-        for bad in ["NaN", "inf", "-inf", "1e300", "../../etc/passwd", "", "0x10"] {
+        for bad in [
+            "NaN",
+            "inf",
+            "-inf",
+            "1e300",
+            "../../etc/passwd",
+            "",
+            "0x10",
+        ] {
             let mut p = params(&format!("/u?x={bad}&y=0"));
             let error = standpoint(&mut p).unwrap_err();
             assert!(error.contains("'x'"), "{bad}: {error}");

@@ -12,11 +12,11 @@
 //!   when it could not be;
 //! - `POST /keep`, `POST /print`: change something; token and Origin checked.
 
+use super::describe;
 use super::keep::{keep_in_scene, new_scene_for_model, standpoint_entry};
 use super::params::{self, Params, MAX_PANE_HEIGHT, MAX_PANE_WIDTH};
 use super::source::{fingerprint, reload, Loaded, Reload, Source};
 use super::work::{Job, Pushed, Queue, RENDERERS};
-use super::describe;
 use crate::budget::Budget;
 use crate::compose::{plan_map, preview_with_hidden_lines, PlanSettings, PreviewSettings};
 use crate::error::{Error, Result};
@@ -429,9 +429,7 @@ fn handle(shared: &Arc<Shared>, mut request: Request) {
                 (Ok(task), Ok(key), Ok(())) => {
                     enqueue(shared, format!("{path}:{key}"), task, request)
                 }
-                (Err(m), _, _) | (_, Err(m), _) | (_, _, Err(m)) => {
-                    respond(request, text(400, &m))
-                }
+                (Err(m), _, _) | (_, Err(m), _) | (_, _, Err(m)) => respond(request, text(400, &m)),
             }
         }
     }
@@ -458,8 +456,12 @@ fn check_sender(shared: &Shared, request: &Request) -> std::result::Result<(), (
             "this request needs the token of this run (open the address pansite printed)".into(),
         ));
     }
-    let origin_ok = header_value(request, "Origin")
-        .is_some_and(|origin| shared.origins.iter().any(|o| o.eq_ignore_ascii_case(origin)));
+    let origin_ok = header_value(request, "Origin").is_some_and(|origin| {
+        shared
+            .origins
+            .iter()
+            .any(|o| o.eq_ignore_ascii_case(origin))
+    });
     if !origin_ok {
         return Err((403, "this request comes from another site's page".into()));
     }
@@ -545,7 +547,11 @@ fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
 fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task, String> {
     let standpoint = params::standpoint(&mut p)?;
     let hidden = params::hidden(&mut p)?;
-    let paper = p.word("paper", &["A4", "A3", "A2", "A1", "Letter", "Tabloid"], "A3")?;
+    let paper = p.word(
+        "paper",
+        &["A4", "A3", "A2", "A1", "Letter", "Tabloid"],
+        "A3",
+    )?;
     let pdf = p.word("format", &["pdf", "png"], "pdf")? == "pdf";
     p.finish()?;
     let paper = Paper::named(paper)
@@ -612,7 +618,10 @@ fn render(shared: &Shared, job: Job<Task, Request>) {
             let status = if error.is_bad_input() { 400 } else { 500 };
             text(status, &describe(&error))
         }
-        Err(_) => text(500, "the drawing failed unexpectedly; the explorer carries on"),
+        Err(_) => text(
+            500,
+            "the drawing failed unexpectedly; the explorer carries on",
+        ),
     };
     respond(job.reply, response);
 }
@@ -641,7 +650,8 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             };
             let budget = Budget::new(settings.time_limit);
             let hidden_lines = loaded.hidden_lines(*hidden);
-            let render = draw_with_hidden_lines(site, hidden_lines, standpoint, &settings, &budget)?;
+            let render =
+                draw_with_hidden_lines(site, hidden_lines, standpoint, &settings, &budget)?;
             let mut bytes = Vec::new();
             crate::output::rasterize_grey_png_within(&render.drawing, &mut bytes, &budget)?;
             Ok(Drawn::Png(bytes, Vec::new()))
@@ -811,7 +821,9 @@ fn probe(shared: &Shared, p: &mut Params) -> std::result::Result<serde_json::Val
         .faces
         .iter()
         .filter_map(|f| ray_hits_triangle(&eye, &direction, &f.corners))
-        .fold(None, |best: Option<f64>, d| Some(best.map_or(d, |b| b.min(d))));
+        .fold(None, |best: Option<f64>, d| {
+            Some(best.map_or(d, |b| b.min(d)))
+        });
     let mut nearest: Option<(f64, nalgebra::Point3<f64>, crate::scene::ItemId)> = None;
     for edge in &site.edges {
         let ends = match edge.curve {
@@ -885,7 +897,10 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
             let Some(beside) = shared.source.beside_scene() else {
                 return refuse(409, "the model has no file name".into());
             };
-            let mut known = shared.beside_bytes.lock().unwrap_or_else(|p| p.into_inner());
+            let mut known = shared
+                .beside_bytes
+                .lock()
+                .unwrap_or_else(|p| p.into_inner());
             let on_disk = std::fs::read(&beside).ok();
             if on_disk != *known {
                 return refuse(
@@ -923,10 +938,11 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
         }
     };
     if let Err(error) = write_atomically(&path, |out| {
-        out.write_all(new.as_bytes()).map_err(|source| Error::Write {
-            path: path.clone(),
-            source,
-        })
+        out.write_all(new.as_bytes())
+            .map_err(|source| Error::Write {
+                path: path.clone(),
+                source,
+            })
     }) {
         return refuse(500, describe(&error));
     }
@@ -951,7 +967,10 @@ fn install(shared: &Shared, mut loaded: Loaded) {
     let version = loaded.version;
     *shared.current.write().unwrap_or_else(|p| p.into_inner()) = Arc::new(loaded);
     *shared.problem.lock().unwrap_or_else(|p| p.into_inner()) = None;
-    broadcast(shared, &format!("event: scene\ndata: {{\"version\":{version}}}\n\n"));
+    broadcast(
+        shared,
+        &format!("event: scene\ndata: {{\"version\":{version}}}\n\n"),
+    );
 }
 
 fn broadcast(shared: &Shared, event: &str) {
@@ -1005,7 +1024,10 @@ fn open_stream(shared: &Arc<Shared>, request: Request) {
     std::thread::spawn(move || {
         let mut out = request.into_writer();
         let head = "HTTP/1.1 200 OK\r\nContent-Type: text/event-stream\r\nCache-Control: no-store\r\nX-Content-Type-Options: nosniff\r\nConnection: close\r\n\r\n: connected\n\n";
-        let mut ok = out.write_all(head.as_bytes()).and_then(|_| out.flush()).is_ok();
+        let mut ok = out
+            .write_all(head.as_bytes())
+            .and_then(|_| out.flush())
+            .is_ok();
         while ok && !shared.stopping.load(Ordering::SeqCst) {
             let event = match receiver.recv_timeout(Duration::from_secs(15)) {
                 Ok(event) => event,

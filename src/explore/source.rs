@@ -3,8 +3,8 @@
 
 use super::describe;
 use crate::error::Result;
-use crate::scene::{parse_scene, read_input, Site};
 use crate::scene::HiddenEdges;
+use crate::scene::{parse_scene, read_input, Site};
 use crate::visibility::HiddenLines;
 use std::path::{Path, PathBuf};
 use std::sync::{Arc, OnceLock};

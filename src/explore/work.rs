@@ -124,8 +124,14 @@ mod tests {
     #[test]
     fn a_newer_request_replaces_the_waiting_one_of_its_pane() {
         let queue = Queue::default();
-        assert!(matches!(queue.push("a".into(), job(1)), Pushed::Waiting(None)));
-        assert!(matches!(queue.push("b".into(), job(2)), Pushed::Waiting(None)));
+        assert!(matches!(
+            queue.push("a".into(), job(1)),
+            Pushed::Waiting(None)
+        ));
+        assert!(matches!(
+            queue.push("b".into(), job(2)),
+            Pushed::Waiting(None)
+        ));
         match queue.push("a".into(), job(3)) {
             Pushed::Waiting(Some(old)) => assert_eq!(old.task, 1),
             _ => panic!("the first job of pane a should come back"),
@@ -141,9 +147,15 @@ mod tests {
     fn too_many_panes_are_refused() {
         let queue = Queue::default();
         for k in 0..MAX_WAITING {
-            assert!(matches!(queue.push(k.to_string(), job(0)), Pushed::Waiting(None)));
+            assert!(matches!(
+                queue.push(k.to_string(), job(0)),
+                Pushed::Waiting(None)
+            ));
         }
-        assert!(matches!(queue.push("one more".into(), job(9)), Pushed::Full(_)));
+        assert!(matches!(
+            queue.push("one more".into(), job(9)),
+            Pushed::Full(_)
+        ));
         assert_eq!(queue.close().len(), MAX_WAITING);
     }
 }

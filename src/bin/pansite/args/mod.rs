@@ -3,6 +3,7 @@
 
 mod aids;
 mod compose;
+mod explore;
 mod render;
 mod values;
 mod view;
@@ -10,6 +11,7 @@ mod view;
 pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
 pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
+pub use explore::ExploreArgs;
 pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
 pub use values::PathSweep;
 pub use view::ViewArgs;
@@ -49,6 +51,9 @@ pub enum Command {
     Preview(Box<PreviewArgs>),
     /// Render, then render again whenever the scene or style file is saved.
     Watch(Box<WatchArgs>),
+    /// Serve a page on this computer where the standpoint is dragged across the plan and
+    /// the underlay and a look-around view follow; keep standpoints and print from it.
+    Explore(Box<ExploreArgs>),
 }
 
 #[cfg(test)]
