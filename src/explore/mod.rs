@@ -2,14 +2,14 @@
 //! where the standpoint is dragged across the plan and the underlay and an ordinary
 //! perspective follow at once.
 //!
-//! - [`source`]: where the site comes from (a scene file, a model given directly, standard
+//! - `source`: where the site comes from (a scene file, a model given directly, standard
 //!   input), the loaded site with its hierarchy of faces kept between requests, and the
 //!   watch that reloads it when the file is saved;
-//! - [`params`]: the page's requests as checked values (ranges, words; never file names);
-//! - [`work`]: the render queue: two renderers, the newest request for a pane replacing an
+//! - `params`: the page's requests as checked values (ranges, words; never file names);
+//! - `work`: the render queue: two renderers, the newest request for a pane replacing an
 //!   older one still waiting;
-//! - [`keep`]: a kept standpoint inserted into the scene text, every other byte unchanged;
-//! - [`server`]: HTTP on top of `tiny_http`: the door checks (Host, token, Origin, sizes),
+//! - `keep`: a kept standpoint inserted into the scene text, every other byte unchanged;
+//! - `server`: HTTP on top of `tiny_http`: the door checks (Host, token, Origin, sizes),
 //!   the routes, the events stream;
 //! - `assets/`: the page (HTML, CSS, JavaScript), compiled into the binary.
 //!
@@ -26,14 +26,15 @@
 //! This module depends on the pipeline (render, compose, page, output) and nothing in the
 //! library depends on it.
 
-pub mod keep;
-pub mod params;
-pub mod server;
-pub mod source;
-pub mod work;
+mod keep;
+mod params;
+mod server;
+mod source;
+mod work;
 
+pub use keep::keep_in_scene;
 pub use server::{ExploreSettings, Explorer};
-pub use source::Source;
+pub use source::{Loader, Source};
 
 /// The text of an error and of each error under it, as the page shows it.
 pub fn describe(error: &crate::Error) -> String {

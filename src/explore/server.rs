@@ -57,6 +57,7 @@ const EXPLORE_JS: &str = include_str!("assets/explore.js");
 /// How to start the explorer.
 #[derive(Clone)]
 pub struct ExploreSettings {
+    /// Where the site comes from and where kept standpoints go.
     pub source: Source,
     /// The address to listen on: 127.0.0.1 unless the user asks otherwise.
     pub listen: IpAddr,
@@ -69,6 +70,7 @@ pub struct ExploreSettings {
 }
 
 impl ExploreSettings {
+    /// Loopback, any free port, the scene looked at five times a second.
     pub fn new(source: Source, output_dir: PathBuf) -> ExploreSettings {
         ExploreSettings {
             source,
@@ -212,6 +214,7 @@ impl Explorer {
         })
     }
 
+    /// The address and port listened on.
     pub fn address(&self) -> SocketAddr {
         self.address
     }

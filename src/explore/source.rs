@@ -22,13 +22,21 @@ pub enum Source {
     /// into a small scene beside it that places the model with `model_item` (RON text, such
     /// as `Model(file: "hall.obj")`). Without an item, keeping is not offered.
     Model {
+        /// The model file.
         path: PathBuf,
+        /// How it is read.
         load: Loader,
+        /// The scene item that places it, for the scene written beside it.
         model_item: Option<String>,
     },
     /// A site read once (from standard input): nothing is watched, nothing can be kept,
     /// for the reason given.
-    Fixed { site: Box<Site>, reason: String },
+    Fixed {
+        /// The site.
+        site: Box<Site>,
+        /// Why nothing can be kept, as the page shows it.
+        reason: String,
+    },
 }
 
 impl Source {
