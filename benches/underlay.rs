@@ -410,6 +410,8 @@ fn megabytes(bytes: u64) -> f64 {
 
 #[path = "cases/streets.rs"]
 mod streets;
+#[path = "cases/explorer.rs"]
+mod explorer;
 
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
@@ -468,6 +470,11 @@ fn main() {
     whole(&demo);
 
     let floor_time = time(floor);
+    // PANSITE_BENCH_ONLY=explorer: only the explorer case, for working on it.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("explorer") {
+        explorer::run(floor_time);
+        return;
+    }
     let floor_up_time = time(floor_up);
     let town_runs: Vec<Run> = (0..RUNS).map(|_| whole(&town)).collect();
     let demo_runs: Vec<Run> = (0..RUNS).map(|_| whole(&demo)).collect();
@@ -642,6 +649,7 @@ fn main() {
     }
     composition(floor_time);
     bigmodels::run(floor_time, child_peak("bigmodels"));
+    explorer::run(floor_time);
 }
 
 /// The composition issue's targets: a contact sheet of 24 standpoints of the demo at

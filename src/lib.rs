@@ -68,6 +68,7 @@ pub mod budget;
 pub mod compose;
 pub mod drawing;
 pub mod error;
+pub mod explore;
 pub mod output;
 pub mod page;
 pub mod plane;

@@ -232,6 +232,20 @@ pub fn draw_within(
     settings: &RenderSettings,
     budget: &Budget,
 ) -> Result<Render> {
+    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    draw_with_hidden_lines(site, &hidden_lines, standpoint, settings, budget)
+}
+
+/// [`draw_within`] with the hidden-line set-up made once by the caller
+/// (`HiddenLines::new(site, settings.hidden)`) and kept for many standpoints of one site:
+/// its hierarchy of faces depends on the faces only.
+pub fn draw_with_hidden_lines(
+    site: &Site,
+    hidden_lines: &HiddenLines,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    budget: &Budget,
+) -> Result<Render> {
     settings.validate()?;
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
@@ -271,7 +285,8 @@ pub fn draw_within(
             }
         }
     };
-    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    // Shadows and hatching add edges, never faces: the caller's hidden-line set-up
+    // (the faces' hierarchy) holds for the shadowed site too.
     let Wireframe {
         layers: site_layers,
         hidden,
@@ -280,7 +295,7 @@ pub fn draw_within(
         site,
         &view,
         &flattener,
-        &hidden_lines,
+        hidden_lines,
         settings.weight_by_distance,
         budget,
     )?;

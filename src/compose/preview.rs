@@ -293,6 +293,22 @@ pub fn preview(
     standpoint: &Standpoint,
     settings: &PreviewSettings,
 ) -> Result<Drawing> {
+    preview_with_hidden_lines(
+        site,
+        &HiddenLines::new(site, settings.hidden),
+        standpoint,
+        settings,
+    )
+}
+
+/// [`preview`] with the hidden-line set-up made once by the caller
+/// (`HiddenLines::new(site, settings.hidden)`) and kept for many standpoints of one site.
+pub fn preview_with_hidden_lines(
+    site: &Site,
+    hidden_lines: &HiddenLines,
+    standpoint: &Standpoint,
+    settings: &PreviewSettings,
+) -> Result<Drawing> {
     if !(settings.line_weight_px.is_finite() && settings.line_weight_px > 0.0) {
         return Err(Error::Setting(format!(
             "line weight {} px must be more than 0",
@@ -303,7 +319,6 @@ pub fn preview(
     let (mut seen, mut hidden) = (Vec::new(), Vec::new());
     let eye = camera.view.eye();
     let outlines = site.outline_edges_from(&eye);
-    let hidden_lines = HiddenLines::new(site, settings.hidden);
     let occluders = hidden_lines.occluders(site, &camera.view);
     // The angle of a pixel at the picture's centre (smaller towards its edges).
     let pixel = 1.0 / camera.focal_px;

@@ -31,12 +31,12 @@ pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
-pub use file::MAX_INPUT_BYTES;
+pub use file::{read_input, MAX_INPUT_BYTES};
 pub use ground::{Ground, GroundDraw};
 pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{
     load_obj, load_obj_timed, load_scene, load_scene_timed, load_style_sheet, parse_scene,
-    parse_scene_timed, LoadTimings,
+    parse_scene_timed, scene_unit_metres, LoadTimings,
 };
 pub use location::{find_time_zone, Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};

@@ -3,6 +3,7 @@
 
 mod aids;
 mod compose;
+mod explore;
 mod render;
 mod sun;
 mod values;
@@ -11,6 +12,7 @@ mod view;
 pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
 pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
+pub use explore::ExploreArgs;
 pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
 pub use sun::{DaylightArgs, SunArgs};
 pub use values::PathSweep;
@@ -54,6 +56,9 @@ pub enum Command {
     /// List sunrise, transit and sunset, the sun's azimuth and elevation at a step, and the
     /// times an item's walls are in sun (needs the scene's `location`).
     Daylight(DaylightArgs),
+    /// Serve a page on this computer where the standpoint is dragged across the plan and
+    /// the underlay and a look-around view follow; keep standpoints and print from it.
+    Explore(Box<ExploreArgs>),
 }
 
 #[cfg(test)]

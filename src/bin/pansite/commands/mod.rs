@@ -6,6 +6,7 @@ pub mod angles;
 pub mod check;
 pub mod common;
 pub mod daylight;
+pub mod explore;
 pub mod new;
 pub mod plan;
 pub mod preview;
