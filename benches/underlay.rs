@@ -408,10 +408,10 @@ fn megabytes(bytes: u64) -> f64 {
     bytes as f64 / 1e6
 }
 
-#[path = "cases/streets.rs"]
-mod streets;
 #[path = "cases/explorer.rs"]
 mod explorer;
+#[path = "cases/streets.rs"]
+mod streets;
 
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {

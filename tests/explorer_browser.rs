@@ -62,11 +62,23 @@ fn launch(profile: &Path) -> Browser {
     Browser::new(options).expect("chromium starts")
 }
 
+/// The value of `js` in the page. Arrays and objects come back by reference over the
+/// DevTools protocol, so the page hands everything over as JSON text.
 fn eval(tab: &Tab, js: &str) -> serde_json::Value {
-    tab.evaluate(js, true)
+    // `eval` of the quoted text keeps statement lists (`a = 1; true`) working: the value is
+    // the last statement's.
+    let quoted = serde_json::Value::String(js.to_owned()).to_string();
+    let wrapped = format!("JSON.stringify(eval({quoted}))");
+    match tab
+        .evaluate(&wrapped, true)
         .unwrap_or_else(|e| panic!("{js}: {e}"))
         .value
-        .unwrap_or(serde_json::Value::Null)
+    {
+        Some(serde_json::Value::String(text)) => {
+            serde_json::from_str(&text).unwrap_or_else(|e| panic!("{js}: {e}: {text}"))
+        }
+        _ => serde_json::Value::Null,
+    }
 }
 
 /// Waits until `js` is true (it is evaluated every 50 ms for up to 30 s).
@@ -78,7 +90,9 @@ fn wait_for(tab: &Tab, js: &str, what: &str) {
         }
         std::thread::sleep(Duration::from_millis(50));
     }
-    panic!("waited 30 s for {what}: {js}");
+    let said = eval(tab, "document.getElementById('message').textContent");
+    let problem = eval(tab, "document.getElementById('problem').textContent");
+    panic!("waited 30 s for {what}: {js} (the page says {said}; problem: {problem})");
 }
 
 /// Both panes have answered their latest request.
@@ -95,13 +109,11 @@ fn mouse(tab: &Tab, kind: Input::DispatchMouseEventTypeOption, x: f64, y: f64, d
         y,
         modifiers: None,
         timestamp: None,
-        button: Some(
-            if down || released {
-                Input::MouseButton::Left
-            } else {
-                Input::MouseButton::None
-            },
-        ),
+        button: Some(if down || released {
+            Input::MouseButton::Left
+        } else {
+            Input::MouseButton::None
+        }),
         buttons: Some(if down { 1 } else { 0 }),
         click_count: Some(1),
         force: None,

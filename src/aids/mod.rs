@@ -144,6 +144,7 @@ pub fn under(
 /// The layers drawn over the wireframe, and what became of their labels.
 #[derive(Clone, Debug, Default)]
 pub struct Over {
+    /// The layers, in painting order.
     pub layers: Vec<Layer>,
     /// Labels left out for want of room (see [`crate::drawing::labels`]).
     pub labels_left_out: usize,

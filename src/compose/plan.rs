@@ -16,10 +16,13 @@ use crate::scene::{bounds, Site, SiteCurve, Standpoint};
 /// The size of the plan and its paper resolution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct PlanSettings {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
     /// Pixels per inch: how big a pixel is on paper (SVG, PDF, PNG pHYs).
     pub dpi: f64,
+    /// Width of the edges' lines, pixels.
     pub line_weight_px: f64,
     /// Largest distance between a true arc and its drawn chords, pixels.
     pub tolerance_px: f64,
@@ -54,6 +57,7 @@ impl Default for PlanSettings {
 /// A plan map and the numbers it was drawn with.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Plan {
+    /// The plan's layers.
     pub drawing: Drawing,
     /// Pixels per site metre.
     pub px_per_metre: f64,
@@ -61,6 +65,7 @@ pub struct Plan {
     pub origin: (f64, f64),
     /// The scale bar's length, metres (a round number).
     pub bar_metres: f64,
+    /// Pixels per inch on paper.
     pub dpi: f64,
 }
 

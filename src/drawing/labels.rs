@@ -74,12 +74,16 @@ impl LabelKind {
 /// aligned on it.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Spot {
+    /// Pixels right of the anchor.
     pub dx: f64,
+    /// Pixels below the anchor.
     pub dy: f64,
+    /// How the text is aligned on that point.
     pub align: Align,
 }
 
 impl Spot {
+    /// A spot `dx`, `dy` pixels from the anchor, aligned.
     pub const fn new(dx: f64, dy: f64, align: Align) -> Spot {
         Spot { dx, dy, align }
     }
@@ -89,10 +93,15 @@ impl Spot {
 /// (pixels) and the spots they may take, best first.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Label {
+    /// The words.
     pub text: String,
+    /// The point they belong to, in drawing pixels.
     pub anchor: ImagePoint,
+    /// What they name, which sets their priority and layer.
     pub kind: LabelKind,
+    /// Cap height, pixels.
     pub height: f64,
+    /// The places they may stand, best first.
     pub spots: Vec<Spot>,
 }
 
@@ -168,12 +177,17 @@ impl Label {
 /// A label where the placer put it.
 #[derive(Clone, Debug, PartialEq)]
 pub struct PlacedLabel {
+    /// The words.
     pub text: String,
+    /// What they name.
     pub kind: LabelKind,
+    /// The point they belong to.
     pub anchor: ImagePoint,
     /// Its baseline point and alignment.
     pub at: ImagePoint,
+    /// How the text is aligned on its baseline point.
     pub align: Align,
+    /// Cap height, pixels.
     pub height: f64,
     /// The box of its ink.
     pub bounds: Rect,
@@ -182,7 +196,9 @@ pub struct PlacedLabel {
 /// What the placer did: the labels it placed, and how many it left out for want of room.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Placed {
+    /// The labels placed, in the order they were placed.
     pub labels: Vec<PlacedLabel>,
+    /// How many were left out for want of room.
     pub left_out: usize,
 }
 
@@ -299,6 +315,7 @@ impl LabelPlacer {
                 .any(|p| p.bounds.overlaps(&spaced))
     }
 
+    /// What was placed, and how many were left out.
     pub fn finish(self) -> Placed {
         self.placed
     }
@@ -308,7 +325,9 @@ impl LabelPlacer {
 /// halo behind them (its width each side of the strokes, pixels; `None` for none).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct LabelInk {
+    /// The letters' ink.
     pub stroke: Stroke,
+    /// The halo's width each side of the strokes, pixels; `None` for none.
     pub halo_px: Option<f64>,
 }
 

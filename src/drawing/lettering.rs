@@ -26,8 +26,11 @@ use crate::plane::{ImagePoint, PolylineSet};
 /// Where a line of text stands relative to its anchor point, which is on its baseline.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Align {
+    /// The text starts at the anchor.
     Start,
+    /// The text is centred on the anchor.
     Middle,
+    /// The text ends at the anchor.
     End,
 }
 

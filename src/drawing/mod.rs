@@ -28,6 +28,7 @@ pub struct Stroke {
     pub colour: [u8; 3],
     /// 0 = invisible, 1 = the full colour.
     pub opacity: f64,
+    /// Width of the line, pixels.
     pub width_px: f64,
 }
 
@@ -51,21 +52,28 @@ impl Stroke {
     }
 }
 
+/// Lines drawn alike, under a name that styles and vector layers use.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Layer {
     /// The words, when the layer is one label (see [`labels`]): an SVG writes them beside
     /// the strokes, and a page keeps the label whole or leaves it out.
     pub text: Option<String>,
+    /// The layer's name (`wireframe`, `hidden`, `grid`, ...): styles are given by it.
     pub name: String,
+    /// How its lines are inked.
     pub stroke: Stroke,
+    /// Its polylines, in drawing pixels.
     pub lines: PolylineSet,
 }
 
 /// Layers in painting order over a `width` x `height` pixel panorama.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Drawing {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
+    /// The layers, in painting order.
     pub layers: Vec<Layer>,
 }
 
@@ -110,6 +118,7 @@ impl Drawing {
             .sum()
     }
 
+    /// How many points all the layers hold.
     pub fn vertex_count(&self) -> usize {
         self.layers.iter().map(|l| l.lines.vertex_count()).sum()
     }

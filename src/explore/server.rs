@@ -21,8 +21,8 @@ use crate::budget::Budget;
 use crate::compose::{plan_map, preview_with_hidden_lines, PlanSettings, PreviewSettings};
 use crate::error::{Error, Result};
 use crate::output::{rasterize, write_atomically, write_pdf, write_png, PngOptions};
-use crate::page::{PageSettings, Paper};
 use crate::page::{title_lines, today};
+use crate::page::{PageSettings, Paper};
 use crate::render::{draw_sheets, draw_with_hidden_lines, RenderSettings};
 use crate::scene::{HiddenEdges, SiteCurve, Standpoint};
 use crate::sphere::azimuth_elevation;
@@ -1000,7 +1000,22 @@ fn watch(shared: &Shared, poll: Duration) {
         seen = now;
         let _guard = shared.file_lock.lock().unwrap_or_else(|p| p.into_inner());
         match reload(&shared.source, &current(shared)) {
-            Reload::Unchanged => {}
+            Reload::Unchanged => {
+                // The file is back to the scene that is drawn (a broken save mended to the
+                // same bytes): the problem shown since is over.
+                let was = shared
+                    .problem
+                    .lock()
+                    .unwrap_or_else(|p| p.into_inner())
+                    .take();
+                if was.is_some() {
+                    let version = current(shared).version;
+                    broadcast(
+                        shared,
+                        &format!("event: scene\ndata: {{\"version\":{version}}}\n\n"),
+                    );
+                }
+            }
             Reload::Loaded(site, bytes) => install(shared, Loaded::new(site, bytes, 0)),
             Reload::Failed(message) => {
                 let data = serde_json::json!({ "message": message }).to_string();

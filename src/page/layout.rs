@@ -16,6 +16,7 @@ use crate::plane::{ImagePoint, PolylineSet};
 pub struct PageSettings {
     /// The sheet, already turned as wanted.
     pub paper: Paper,
+    /// The margin kept clear round the sheet, millimetres.
     pub margin_mm: f64,
     /// Pixels per inch of the raster output; also the precision of the vector outputs.
     pub dpi: f64,
@@ -24,6 +25,7 @@ pub struct PageSettings {
     /// The lines of the title block (scene, standpoint, ...); the scale is added to them.
     /// `None`: no title block.
     pub title: Option<Vec<String>>,
+    /// Several sheets to print and join, or `None` for one.
     pub tiles: Option<Tiling>,
 }
 
@@ -31,8 +33,11 @@ pub struct PageSettings {
 /// `overlap_mm` so that they can be trimmed and joined.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Tiling {
+    /// Sheets across.
     pub columns: u32,
+    /// Sheets down.
     pub rows: u32,
+    /// How far neighbouring sheets overlap, millimetres.
     pub overlap_mm: f64,
 }
 
@@ -41,15 +46,23 @@ pub struct Tiling {
 /// corner on the whole layout, in layout pixels.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Placement {
+    /// Pixels across the whole sphere at the page's resolution.
     pub width: u32,
+    /// Pixels down the whole sphere.
     pub height: u32,
+    /// The first row of the band shown.
     pub band_top_px: f64,
+    /// The row after the band's last.
     pub band_bottom_px: f64,
+    /// The panorama's left edge on the layout, pixels.
     pub left_px: f64,
+    /// The band's top edge on the layout, pixels.
     pub top_px: f64,
+    /// The scale: millimetres of paper per degree of angle.
     pub mm_per_degree: f64,
     /// The whole layout (all sheets together), millimetres.
     pub layout_width_mm: f64,
+    /// The whole layout's height, millimetres.
     pub layout_height_mm: f64,
     /// The title block's rows and size, if there is one, and its top-left corner
     /// (layout millimetres).
@@ -62,6 +75,7 @@ const LETTER_MM: f64 = 2.5;
 pub const HALO_MM: f64 = 0.3;
 
 impl PageSettings {
+    /// Pixels per millimetre of paper.
     pub fn px_per_mm(&self) -> f64 {
         self.dpi / 25.4
     }

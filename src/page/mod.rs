@@ -61,9 +61,13 @@ use crate::drawing::Drawing;
 /// `width_mm` x `height_mm` (its drawing is that size in pixels, rounded up).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Sheet {
+    /// What is drawn on the sheet, in its own pixels.
     pub drawing: Drawing,
+    /// The sheet's width, millimetres.
     pub width_mm: f64,
+    /// The sheet's height, millimetres.
     pub height_mm: f64,
+    /// How big a pixel is on paper, millimetres.
     pub mm_per_px: f64,
 }
 

@@ -33,6 +33,7 @@ pub const LEGEND: [(&str, f64, bool); 5] = [
 pub struct TitleLayout {
     /// Cap height, millimetres.
     pub letter_mm: f64,
+    /// The rows of text, wrapped to fit.
     pub rows: Vec<String>,
     /// The legend's entries, in rows.
     pub legend_rows: Vec<Vec<usize>>,
@@ -40,6 +41,7 @@ pub struct TitleLayout {
     pub text_width_mm: f64,
     /// The whole block, millimetres.
     pub width_mm: f64,
+    /// The whole block's height, millimetres.
     pub height_mm: f64,
     /// Room kept at the right for the scale bar, millimetres.
     pub bar_box_mm: f64,
@@ -137,16 +139,21 @@ pub fn wrap(field: &str, width_mm: f64, letter_mm: f64) -> Vec<String> {
 /// are whole and apart), the scale bar and the legend's samples; `px` pixels a millimetre,
 /// the block's top-left corner at `origin`, the panorama's scale `mm_per_degree`.
 pub struct TitleBlock {
+    /// The lettering, placed.
     pub labels: Vec<crate::drawing::PlacedLabel>,
+    /// The scale bar's strokes.
     pub bar: PolylineSet,
     /// Legend samples, one polyline set per entry of [`LEGEND`].
     pub samples: Vec<(Stroke, PolylineSet)>,
     /// The block's box, and the scale bar's, pixels.
     pub bounds: Rect,
+    /// The scale bar's box, pixels.
     pub bar_bounds: Rect,
+    /// Labels left out for want of room.
     pub left_out: usize,
 }
 
+/// Draws the block laid out by `layout` (see [`TitleBlock`]).
 pub fn title_block(
     layout: &TitleLayout,
     origin: ImagePoint,

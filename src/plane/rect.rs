@@ -5,13 +5,18 @@ use super::ImagePoint;
 /// An axis-aligned rectangle in drawing pixels (x right, y down).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Rect {
+    /// The left edge.
     pub left: f64,
+    /// The top edge (y grows downwards).
     pub top: f64,
+    /// The right edge.
     pub right: f64,
+    /// The bottom edge.
     pub bottom: f64,
 }
 
 impl Rect {
+    /// The rectangle between these edges.
     pub fn from_ltrb(left: f64, top: f64, right: f64, bottom: f64) -> Rect {
         Rect {
             left,
@@ -21,6 +26,7 @@ impl Rect {
         }
     }
 
+    /// Whether `p` lies inside or on the edge.
     pub fn contains(&self, p: ImagePoint) -> bool {
         p.x >= self.left && p.x <= self.right && p.y >= self.top && p.y <= self.bottom
     }
@@ -51,10 +57,12 @@ impl Rect {
         )
     }
 
+    /// Its width.
     pub fn width(&self) -> f64 {
         self.right - self.left
     }
 
+    /// Its height.
     pub fn height(&self) -> f64 {
         self.bottom - self.top
     }

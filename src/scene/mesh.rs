@@ -60,11 +60,16 @@ pub enum UpAxis {
 /// Units of the file's coordinates.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
 pub enum Unit {
+    /// Metres.
     #[default]
     Metre,
+    /// Centimetres.
     Centimetre,
+    /// Millimetres.
     Millimetre,
+    /// Inches (25.4 mm exactly).
     Inch,
+    /// Feet (0.3048 m exactly).
     Foot,
 }
 
@@ -85,7 +90,9 @@ impl Unit {
 /// Where and how a mesh is placed in the site, and which of its edges are creases.
 #[derive(Clone, Debug, PartialEq)]
 pub struct MeshPlacement {
+    /// Which of the file's axes points up.
     pub up: UpAxis,
+    /// The unit of its coordinates.
     pub unit: Unit,
     /// Edges whose faces meet at more than this angle (degrees) are drawn as creases.
     pub crease_deg: f64,
@@ -124,13 +131,17 @@ pub struct MeshStats {
     pub vertices: usize,
     /// Faces kept, and faces of no area left out.
     pub faces: usize,
+    /// Faces of no area left out.
     pub dropped_faces: usize,
     /// The triangles the kept faces make.
     pub triangles: usize,
     /// Distinct face edges, and how they were classed.
     pub edges: usize,
+    /// Edges of one face only (drawn).
     pub boundary: usize,
+    /// Edges where faces meet at a hard edge (drawn).
     pub creases: usize,
+    /// Edges of three or more faces (drawn).
     pub non_manifold: usize,
     /// Smooth edges that can become silhouettes.
     pub smooth: usize,

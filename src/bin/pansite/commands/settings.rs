@@ -93,7 +93,7 @@ pub fn page_settings(
 
 /// A paper by name, landscape unless `portrait`.
 pub fn paper(name: &str, portrait: bool) -> pansite::Result<Paper> {
-    let paper = Paper::parse(name).map_err(Error::Setting)?;
+    let paper = Paper::parse(name)?;
     Ok(if portrait {
         paper.portrait()
     } else {
