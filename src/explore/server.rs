@@ -1016,7 +1016,7 @@ fn watch(shared: &Shared, poll: Duration) {
                     );
                 }
             }
-            Reload::Loaded(site, bytes) => install(shared, Loaded::new(site, bytes, 0)),
+            Reload::Loaded(site, bytes) => install(shared, Loaded::new(*site, bytes, 0)),
             Reload::Failed(message) => {
                 let data = serde_json::json!({ "message": message }).to_string();
                 *shared.problem.lock().unwrap_or_else(|p| p.into_inner()) = Some(message);

@@ -177,7 +177,7 @@ pub fn fingerprint(path: &Path) -> Option<Fingerprint> {
 /// The outcome of looking at the watched file again.
 pub enum Reload {
     Unchanged,
-    Loaded(Site, Option<Vec<u8>>),
+    Loaded(Box<Site>, Option<Vec<u8>>),
     Failed(String),
 }
 
@@ -189,7 +189,7 @@ pub fn reload(source: &Source, current: &Loaded) -> Reload {
         }
     }
     match source.load() {
-        Ok((site, bytes)) => Reload::Loaded(site, bytes),
+        Ok((site, bytes)) => Reload::Loaded(Box::new(site), bytes),
         Err(error) => Reload::Failed(describe(&error)),
     }
 }
