@@ -46,6 +46,11 @@ use std::fmt::Write as _;
 use std::path::Path;
 use std::time::{Duration, Instant};
 
+#[path = "cases/bigmodels.rs"]
+mod bigmodels;
+#[path = "cases/sun.rs"]
+mod sun;
+
 const WIDTH: u32 = 8192;
 const HEIGHT: u32 = 4096;
 const RUNS: usize = 7;
@@ -403,8 +408,12 @@ fn megabytes(bytes: u64) -> f64 {
     bytes as f64 / 1e6
 }
 
+#[path = "cases/explorer.rs"]
+mod explorer;
 #[path = "cases/opendata.rs"]
 mod opendata;
+#[path = "cases/streets.rs"]
+mod streets;
 
 fn main() {
     if let Ok(case) = std::env::var("PANSITE_BENCH_CHILD") {
@@ -431,6 +440,7 @@ fn main() {
                 };
                 mesh_render(&site, &standpoint, hidden);
             }
+            "bigmodels" => bigmodels::child(),
             _ => {}
         }
         println!("{}", peak_memory().unwrap_or(0));
@@ -442,6 +452,28 @@ fn main() {
         opendata::run(time(floor), child_peak);
         return;
     }
+    // One topic's cases alone, against the floor measured now (`PANSITE_BENCH_ONLY=streets`).
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("streets") {
+        floor();
+        streets::run(time(floor));
+        return;
+    }
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sun") {
+        floor();
+        sun::run(time(floor));
+        return;
+    }
+    // One case alone while developing: PANSITE_BENCH_ONLY=bigmodels.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("bigmodels") {
+        floor();
+        let floor_time = time(floor);
+        println!(
+            "floor F (blank canvas, png fast compression): {:.1} ms",
+            ms(floor_time)
+        );
+        bigmodels::run(floor_time, child_peak("bigmodels"));
+        return;
+    }
     let town = town_scene();
     let demo = demo_scene();
     // Warm up caches and the allocator once.
@@ -450,6 +482,11 @@ fn main() {
     whole(&demo);
 
     let floor_time = time(floor);
+    // PANSITE_BENCH_ONLY=explorer: only the explorer case, for working on it.
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("explorer") {
+        explorer::run(floor_time);
+        return;
+    }
     let floor_up_time = time(floor_up);
     let town_runs: Vec<Run> = (0..RUNS).map(|_| whole(&town)).collect();
     let demo_runs: Vec<Run> = (0..RUNS).map(|_| whole(&demo)).collect();
@@ -623,6 +660,8 @@ fn main() {
         println!("floor's own peak memory: {:.0} MB", megabytes(peak));
     }
     composition(floor_time);
+    bigmodels::run(floor_time, child_peak("bigmodels"));
+    explorer::run(floor_time);
 }
 
 /// The composition issue's targets: a contact sheet of 24 standpoints of the demo at
@@ -670,5 +709,7 @@ fn composition(floor_time: Duration) {
         ms(watch),
         watch.as_secs_f64() / floor_time.as_secs_f64(),
     );
+    streets::run(floor_time);
+    sun::run(floor_time);
     opendata::run(floor_time, child_peak);
 }

@@ -85,6 +85,11 @@ pub enum Error {
     #[error("{0}")]
     Setting(String),
 
+    /// A date, local time or place the sun cannot be found for (an unknown time zone, a
+    /// local time skipped or repeated by a clock change, a year outside the method's range).
+    #[error("{0}")]
+    Sun(String),
+
     /// Refused before anything was allocated.
     #[error("an image of {width}x{height} pixels is {reason}")]
     ImageSize {
@@ -144,6 +149,7 @@ impl Error {
             | Error::UnknownStandpoint { .. }
             | Error::NoStandpoint
             | Error::Setting(_)
+            | Error::Sun(_)
             | Error::ImageSize { .. }
             | Error::TooLarge { .. }
             | Error::TooSlow { .. } => true,

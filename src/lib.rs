@@ -68,12 +68,14 @@ pub mod budget;
 pub mod compose;
 pub mod drawing;
 pub mod error;
+pub mod explore;
 pub mod output;
 pub mod page;
 pub mod plane;
 pub mod render;
 pub mod scene;
 pub mod sphere;
+pub mod sun;
 pub mod visibility;
 
 pub use error::{Error, Result};

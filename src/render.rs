@@ -2,6 +2,7 @@
 //! drawing -> canvas -> file, with the time each stage took.
 
 use crate::aids::{self, AidSettings};
+use crate::aids::{sun_layers, SunDrawing};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
     apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
@@ -11,10 +12,12 @@ use crate::error::{Error, Result};
 use crate::output::{
     rasterize, rasterize_grey_png_within, write_atomically, GreyCanvas, MAX_PIXELS,
 };
-use crate::page::{PageSettings, Sheet};
+use crate::page::{label_frame, PageSettings, Sheet, HALO_MM};
 use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
-use crate::scene::{HiddenEdges, Site, Standpoint, StyleSheet};
+use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
+use crate::sun::with_shadows_and_hatching;
+use crate::sun::Sky;
 use crate::visibility::HiddenLines;
 use std::io::Write;
 use std::path::Path;
@@ -48,6 +51,49 @@ pub struct RenderSettings {
     pub aids: AidSettings,
     /// The longest a render may take (see [`crate::budget`]); `None` for no limit.
     pub time_limit: Option<Duration>,
+    /// The sun and the shadows, where they differ from the scene's `sun` block.
+    pub sun: SunChoice,
+}
+
+/// The sun and shadows asked for on the command line; each `None` takes the scene's `sun`
+/// block (or, without one, draws nothing of the sun).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SunChoice {
+    /// The local date and time of the sun and shadows.
+    pub moment: Option<LocalMoment>,
+    /// The sun's mark and the day's path.
+    pub path: Option<bool>,
+    /// The paths of the solstices and the equinox.
+    pub seasons: Option<bool>,
+    /// The shadows' outlines.
+    pub shadows: Option<bool>,
+    /// Hatching of what is in shadow, lines this many metres apart.
+    pub hatch_m: Option<f64>,
+}
+
+impl SunChoice {
+    /// What to draw of the sun for `site`: nothing without a date and time.
+    /// Also whether to draw the shadows' outlines, and the hatching's spacing if any.
+    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool, Option<f64>)> {
+        let scene = site.sun.as_ref();
+        let moment = self.moment.or_else(|| scene.map(|s| s.moment()))?;
+        let pick = |asked: Option<bool>, of_scene: Option<bool>, default: bool| {
+            asked.or(of_scene).unwrap_or(default)
+        };
+        let drawing = SunDrawing {
+            moment: Some(moment),
+            path: pick(self.path, scene.map(|s| s.path), true),
+            seasons: pick(self.seasons, scene.map(|s| s.seasons), false),
+        };
+        let hatch = self
+            .hatch_m
+            .or_else(|| scene.and_then(|s| s.hatch.map(|h| h.0)));
+        Some((
+            drawing,
+            pick(self.shadows, scene.map(|s| s.shadows), true),
+            hatch,
+        ))
+    }
 }
 
 impl Default for RenderSettings {
@@ -65,6 +111,7 @@ impl Default for RenderSettings {
             weight_by_distance: false,
             aids: AidSettings::default(),
             time_limit: Some(DEFAULT_TIME_LIMIT),
+            sun: SunChoice::default(),
         }
     }
 }
@@ -150,8 +197,14 @@ pub struct Render {
     pub drawing: Drawing,
     /// Edges left out, with why (they are named as warnings).
     pub skipped: Vec<SkippedEdge>,
+    /// Things said in words, not errors (the sun below the horizon: no shadows).
+    pub notes: Vec<String>,
     /// How long each stage took.
     pub timings: Timings,
+    /// Labels left out for want of room, for the run's summary.
+    pub labels_left_out: usize,
+    /// Characters drawn as the placeholder (no glyph), for a warning.
+    pub unlettered: Vec<char>,
 }
 
 /// Layer names of the near and far wireframe when lines are weighed by distance, and how
@@ -179,6 +232,20 @@ pub fn draw_within(
     settings: &RenderSettings,
     budget: &Budget,
 ) -> Result<Render> {
+    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    draw_with_hidden_lines(site, &hidden_lines, standpoint, settings, budget)
+}
+
+/// [`draw_within`] with the hidden-line set-up made once by the caller
+/// (`HiddenLines::new(site, settings.hidden)`) and kept for many standpoints of one site:
+/// its hierarchy of faces depends on the faces only.
+pub fn draw_with_hidden_lines(
+    site: &Site,
+    hidden_lines: &HiddenLines,
+    standpoint: &Standpoint,
+    settings: &RenderSettings,
+    budget: &Budget,
+) -> Result<Render> {
     settings.validate()?;
     let started = Instant::now();
     let view = ViewFrame::new(standpoint);
@@ -188,7 +255,38 @@ pub fn draw_within(
     if settings.overlays {
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
-    let hidden_lines = HiddenLines::new(site, settings.hidden);
+    let mut notes = Vec::new();
+    let shadowed;
+    let site = match settings.sun.resolve(site) {
+        None => site,
+        Some((drawing, shadows, hatch)) => {
+            let sky = Sky::of_site(site)?;
+            if settings.overlays {
+                let text = settings.aids.text_height(&map);
+                let (sun, _labels) = sun_layers(&sky, &view, &mut flattener, &drawing, text)?;
+                layers.extend(sun);
+            }
+            let moment = drawing.moment.expect("resolved with a moment");
+            let now = sky.at(&moment)?;
+            if now.place.elevation_deg <= 0.0 {
+                notes.push(format!(
+                    "the sun is {:.1} degrees below the horizon at {} {} ({}): no shadows",
+                    -now.place.elevation_deg,
+                    moment.date,
+                    moment.time.strftime("%H:%M"),
+                    sky.clock.name()
+                ));
+                site
+            } else if shadows || hatch.is_some() {
+                shadowed = with_shadows_and_hatching(site, &sky.direction(&now), hatch);
+                &shadowed
+            } else {
+                site
+            }
+        }
+    };
+    // Shadows and hatching add edges, never faces: the caller's hidden-line set-up
+    // (the faces' hierarchy) holds for the shadowed site too.
     let Wireframe {
         layers: site_layers,
         hidden,
@@ -197,7 +295,7 @@ pub fn draw_within(
         site,
         &view,
         &flattener,
-        &hidden_lines,
+        hidden_lines,
         settings.weight_by_distance,
         budget,
     )?;
@@ -215,6 +313,7 @@ pub fn draw_within(
             let name = wireframe_layer_name(wire.site_layer.as_deref());
             by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
+                text: None,
                 name: match wire.distance {
                     Distance::Middle => name,
                     Distance::Near => format!("{name}{NEAR_SUFFIX}"),
@@ -225,9 +324,12 @@ pub fn draw_within(
             });
         }
     }
+    let (mut labels_left_out, mut unlettered) = (0, Vec::new());
     if settings.overlays {
         let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
-        layers.extend(over);
+        labels_left_out = over.labels_left_out;
+        unlettered = over.unlettered;
+        layers.extend(over.layers);
     }
     let sheets: Vec<&StyleSheet> = [
         settings.base_styles.as_ref(),
@@ -264,7 +366,10 @@ pub fn draw_within(
     Ok(Render {
         drawing,
         skipped,
+        notes,
         timings,
+        labels_left_out,
+        unlettered,
     })
 }
 
@@ -324,8 +429,14 @@ pub fn draw_sheets(
         let sheet = Sheet::full_bleed(render.drawing.clone(), dpi);
         return Ok((vec![sheet], render));
     };
-    let placement = page.place().map_err(Error::Setting)?;
+    let placement = page.place()?;
+    let (area, cuts_x, cuts_y) = label_frame(page, &placement);
+    let mut aids = settings.aids.clone();
+    aids.label_area = Some(area);
+    aids.label_cuts = (cuts_x, cuts_y);
+    aids.halo_px = aids.halo_px.or(Some(HALO_MM * page.px_per_mm()));
     let sized = RenderSettings {
+        aids,
         width: placement.width,
         height: placement.height,
         dpi: page.dpi,
@@ -335,72 +446,4 @@ pub fn draw_sheets(
     let render = draw(site, standpoint, &sized)?;
     let sheets = page.lay_out(&render.drawing, &placement);
     Ok((sheets, render))
-}
-
-/// The title block's lines for a drawing of `site` from `standpoint`, dated `date`
-/// (year, month, day).
-pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
-    let (year, month, day) = date;
-    vec![
-        format!("{}: STANDPOINT {}", site.name, standpoint.name),
-        format!(
-            "HEADING {:.1}\u{b0}  PITCH {:.1}\u{b0}  ROLL {:.1}\u{b0}  EYE {:.2} M ABOVE GROUND AT {:.2} M, AT ({:.2}, {:.2})",
-            standpoint.heading.to_degrees().rem_euclid(360.0),
-            standpoint.pitch.to_degrees(),
-            standpoint.roll.to_degrees(),
-            standpoint.eye_height,
-            standpoint.ground,
-            standpoint.x,
-            standpoint.y
-        ),
-        format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
-    ]
-}
-
-/// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way
-/// to ask for reproducible output).
-pub fn today() -> (i64, u32, u32) {
-    let seconds = std::env::var("SOURCE_DATE_EPOCH")
-        .ok()
-        .and_then(|s| s.trim().parse::<i64>().ok())
-        .unwrap_or_else(|| {
-            std::time::SystemTime::now()
-                .duration_since(std::time::UNIX_EPOCH)
-                .map_or(0, |d| d.as_secs() as i64)
-        });
-    civil_date(seconds.div_euclid(86_400))
-}
-
-/// The proleptic Gregorian date of a day counted from 1970-01-01 (Howard Hinnant,
-/// "chrono-Compatible Low-Level Date Algorithms", `civil_from_days`).
-pub fn civil_date(days: i64) -> (i64, u32, u32) {
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let day_of_era = z.rem_euclid(146_097);
-    let year_of_era =
-        (day_of_era - day_of_era / 1460 + day_of_era / 36_524 - day_of_era / 146_096) / 365;
-    let day_of_year = day_of_era - (365 * year_of_era + year_of_era / 4 - year_of_era / 100);
-    let month_index = (5 * day_of_year + 2) / 153;
-    let day = (day_of_year - (153 * month_index + 2) / 5 + 1) as u32;
-    let month = if month_index < 10 {
-        month_index + 3
-    } else {
-        month_index - 9
-    } as u32;
-    let year = year_of_era + era * 400 + i64::from(month <= 2);
-    (year, month, day)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn civil_dates_of_known_days() {
-        // 1970-01-01 is day 0; 2000-03-01 is day 11017; 2026-12-02 is day 20789.
-        assert_eq!(civil_date(0), (1970, 1, 1));
-        assert_eq!(civil_date(11_017), (2000, 3, 1));
-        assert_eq!(civil_date(20_789), (2026, 12, 2));
-        assert_eq!(civil_date(-1), (1969, 12, 31));
-    }
 }

@@ -6,7 +6,9 @@
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
-use std::process::Command;
+
+mod common;
+use common::Scratch;
 
 /// Stands for a good image written by an earlier run.
 const EARLIER: &[u8] = b"\x89PNG\r\n\x1a\nan earlier good output, not to be touched";
@@ -15,40 +17,32 @@ fn corpus() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_inputs")
 }
 
-/// Every file of the corpus (the README aside) copied into a fresh folder, with the
-/// earlier output beside them.
-struct Scratch(PathBuf);
-
-impl Scratch {
-    fn new(name: &str) -> Scratch {
-        let dir = std::env::temp_dir().join(format!("pansite-bad-{name}-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&dir);
-        std::fs::create_dir_all(&dir).unwrap();
-        for entry in std::fs::read_dir(corpus()).unwrap() {
-            let path = entry.unwrap().path();
-            std::fs::copy(&path, dir.join(path.file_name().unwrap())).unwrap();
-        }
-        std::fs::write(dir.join("out.png"), EARLIER).unwrap();
-        Scratch(dir)
+/// Every file of the corpus (the README aside) copied into a fresh folder (the shared
+/// harness's), with the earlier output beside them.
+fn scratch_with_corpus(name: &str) -> Scratch {
+    let dir = Scratch::new(&format!("bad-{name}"));
+    for entry in std::fs::read_dir(corpus()).unwrap() {
+        let path = entry.unwrap().path();
+        std::fs::copy(
+            &path,
+            dir.path(&path.file_name().unwrap().to_string_lossy()),
+        )
+        .unwrap();
     }
-
-    /// Every file in the folder with its bytes.
-    fn contents(&self) -> BTreeMap<String, Vec<u8>> {
-        std::fs::read_dir(&self.0)
-            .unwrap()
-            .map(|e| {
-                let path = e.unwrap().path();
-                let name = path.file_name().unwrap().to_string_lossy().into_owned();
-                (name, std::fs::read(&path).unwrap())
-            })
-            .collect()
-    }
+    dir.write("out.png", EARLIER);
+    dir
 }
 
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
+/// Every file in the folder with its bytes.
+fn contents(dir: &Scratch) -> BTreeMap<String, Vec<u8>> {
+    std::fs::read_dir(&dir.0)
+        .unwrap()
+        .map(|e| {
+            let path = e.unwrap().path();
+            let name = path.file_name().unwrap().to_string_lossy().into_owned();
+            (name, std::fs::read(&path).unwrap())
+        })
+        .collect()
 }
 
 /// Renders `file` from the corpus over `out.png`, small, with `extra` options (an OBJ model
@@ -62,11 +56,7 @@ fn render(dir: &Scratch, file: &str, extra: &[&str]) -> (Option<i32>, String) {
         args.extend(["--at", "0,-5"]);
     }
     args.extend(extra);
-    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
-        .args(&args)
-        .output()
-        .unwrap();
+    let out = dir.command().args(&args).output().unwrap();
     (
         out.status.code(),
         String::from_utf8_lossy(&out.stderr).into_owned(),
@@ -77,8 +67,8 @@ fn render(dir: &Scratch, file: &str, extra: &[&str]) -> (Option<i32>, String) {
 /// names the place) and each of `expected`; the folder exactly as it was.
 #[track_caller]
 fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
-    let dir = Scratch::new(file);
-    let before = dir.contents();
+    let dir = scratch_with_corpus(file);
+    let before = contents(&dir);
     let (code, text) = render(&dir, file, extra);
     assert_eq!(code, Some(2), "{file}: {text}");
     assert!(
@@ -94,7 +84,7 @@ fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
         "{file}: one line of message: {text}"
     );
     assert!(
-        dir.contents() == before,
+        contents(&dir) == before,
         "{file}: the folder changed (a file was made, or the earlier output touched)"
     );
 }
@@ -102,15 +92,15 @@ fn refused(file: &str, extra: &[&str], at: &str, expected: &[&str]) {
 /// Accepted with a warning: exit 0, the warning, and a new image over the earlier one.
 #[track_caller]
 fn warned(file: &str, expected: &[&str]) {
-    let dir = Scratch::new(file);
-    let before = dir.contents();
+    let dir = scratch_with_corpus(file);
+    let before = contents(&dir);
     let (code, text) = render(&dir, file, &[]);
     assert_eq!(code, Some(0), "{file}: {text}");
     assert!(text.starts_with("pansite: warning: "), "{file}: {text}");
     for e in expected {
         assert!(text.contains(e), "{file}: expected {e:?} in: {text}");
     }
-    let after = dir.contents();
+    let after = contents(&dir);
     assert_eq!(
         after.keys().collect::<Vec<_>>(),
         before.keys().collect::<Vec<_>>(),
@@ -188,10 +178,21 @@ corpus! {
     // Shapes that cannot be built.
     self_intersecting_footprint: "self-intersecting-footprint.ron" => refused("self-intersecting-footprint.ron:4:9:", &["crosses side 3", "must not cross itself"]);
     footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
+    kerb_radius_too_big: "kerb-radius-too-big.ron" => refused("kerb-radius-too-big.ron:5:9:", &["kerb returns of the junction at (0, 0) do not fit", "kerb_radius"]);
+    ground_crossing_contours: "ground-crossing-contours.ron" => refused("ground-crossing-contours.ron:3:5:", &["contour 2 (height 2) crosses contour 1 (height 1)"]);
+    ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
+    ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
+    block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
     road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
     arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);
     windows_that_do_not_fit: "windows-do-not-fit.ron" => refused("windows-do-not-fit.ron:4:9:", &["12 openings 1.2 wide do not fit"]);
+    head_taller_than_opening: "head-taller-than-opening.ron" => refused("head-taller-than-opening.ron:4:9:", &["Semicircular head", "rises 1.0000", "height (0.8) must exceed"]);
+    segmental_head_too_high: "segmental-head-too-high.ron" => refused("segmental-head-too-high.ron:4:9:", &["the head", "rises at most half its span", "Pointed"]);
+    round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
+    figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
+    figure_taller_than_people: "figure-taller-than-people.ron" => refused("figure-taller-than-people.ron:4:9:", &["16.000 m", "taller than any person"]);
+    unknown_head: "unknown-head.ron" => refused("unknown-head.ron:5:76:", &["Gothic", "Pointed"]);
     // Models named in a scene.
     model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);
     model_not_a_file: "model-not-a-file.ron" => refused("model-not-a-file.ron:4:9:", &["/dev/zero", "expected a file"]);
@@ -225,6 +226,16 @@ corpus! {
     obj_malformed_number: "obj-malformed-number.obj" => refused("obj-malformed-number.obj:3:5:", &["expected a number, found \"1,5\""]);
     obj_malformed_index: "obj-malformed-index.obj" => refused("obj-malformed-index.obj:4:7:", &["expected a vertex index, found \"three\""]);
     obj_crlf_line_ends_count_lines: "obj-crlf-bad-index.obj" => refused("obj-crlf-bad-index.obj:5:7:", &["index 9 is out of range"]);
+    // Smoothing groups and normals (issue 18).
+    obj_smoothing_word: "obj-smoothing-word.obj" => refused("obj-smoothing-word.obj:5:3:", &["expected a smoothing group", "or `off`", "found \"smooth\""]);
+    obj_smoothing_missing: "obj-smoothing-missing.obj" => refused("obj-smoothing-missing.obj:5:2:", &["expected a smoothing group after `s`"]);
+    obj_normal_two_coordinates: "obj-normal-two-coordinates.obj" => refused("obj-normal-two-coordinates.obj:5:7:", &["three coordinates after `vn`, found 2"]);
+    obj_normal_bad_number: "obj-normal-bad-number.obj" => refused("obj-normal-bad-number.obj:5:6:", &["expected a number, found \"1.0.0\""]);
+    obj_normal_index_out_of_range: "obj-normal-index-out-of-range.obj" => refused("obj-normal-index-out-of-range.obj:6:16:", &["normal index 2 is out of range", "1 normals"]);
+    obj_normal_index_malformed: "obj-normal-index-malformed.obj" => refused("obj-normal-index-malformed.obj:6:11:", &["expected a normal index", "\"one\""]);
+    obj_normal_relative_before_start: "obj-normal-relative-before-start.obj" => refused("obj-normal-relative-before-start.obj:6:18:", &["relative index -2 reaches before the first normal"]);
+    obj_missing_material_library: "obj-missing-mtl.obj" => warned(&["material library \"nowhere.mtl\"", "not beside it"]);
+    obj_standpoint_inside_model: "obj-standpoint-inside-model.obj" => warned(&["standpoint", "is inside", "obj-standpoint-inside-model.obj"]);
     obj_byte_order_mark_does_not_shift_columns: "obj-bom-bad-number.obj" => refused("obj-bom-bad-number.obj:2:7:", &["expected a number, found \"x\""]);
     // Open data: the file, the feature (index and id) or city object, the JSON path.
     geojson_truncated: "geojson-truncated.geojson" => refused("geojson-truncated.geojson:4:1:", &["expected JSON"]);

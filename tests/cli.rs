@@ -1,81 +1,14 @@
 //! The `pansite` binary, run for real in a fresh temporary folder for each test.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+
+mod common;
+use common::{pansite, stderr, succeeds, Scratch};
 
 const DEMO: &str = "scenes/wexcombe-square.ron";
 
-/// A fresh folder under the system's temporary folder, removed when dropped.
-struct Scratch(PathBuf);
-
-impl Scratch {
-    fn new(name: &str) -> Scratch {
-        let dir = std::env::temp_dir().join(format!("pansite-cli-{name}-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&dir);
-        std::fs::create_dir_all(&dir).unwrap();
-        Scratch(dir)
-    }
-
-    fn path(&self, name: &str) -> PathBuf {
-        self.0.join(name)
-    }
-
-    fn write(&self, name: &str, text: &str) -> PathBuf {
-        let path = self.path(name);
-        std::fs::write(&path, text).unwrap();
-        path
-    }
-
-    fn files(&self) -> Vec<String> {
-        let mut names: Vec<String> = walk(&self.0)
-            .iter()
-            .map(|p| p.strip_prefix(&self.0).unwrap().display().to_string())
-            .collect();
-        names.sort();
-        names
-    }
-}
-
-fn walk(dir: &Path) -> Vec<PathBuf> {
-    let mut out = Vec::new();
-    for entry in std::fs::read_dir(dir).unwrap() {
-        let path = entry.unwrap().path();
-        if path.is_dir() {
-            out.extend(walk(&path));
-        } else {
-            out.push(path);
-        }
-    }
-    out
-}
-
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
-}
-
 fn demo() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(DEMO)
-}
-
-fn pansite(dir: &Scratch, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
-        .args(args)
-        .output()
-        .unwrap()
-}
-
-/// Runs the command, which must succeed (exit 0, or its error is shown).
-fn succeeds(dir: &Scratch, args: &[&str]) -> Output {
-    let out = pansite(dir, args);
-    assert_eq!(out.status.code(), Some(0), "{args:?}: {}", stderr(&out));
-    out
-}
-
-fn stderr(output: &Output) -> String {
-    String::from_utf8_lossy(&output.stderr).into_owned()
 }
 
 fn png_size(bytes: &[u8]) -> (u32, u32, png::ColorType) {
@@ -680,11 +613,11 @@ fn pages_and_formats_from_the_command_line() {
 // Everyday friction found in use (issue: a house a newcomer can live in).
 
 /// Runs the binary with `input` on standard input.
-fn with_stdin(dir: &Scratch, args: &[&str], input: &[u8]) -> Output {
+fn with_stdin(dir: &Scratch, args: &[&str], input: &[u8]) -> std::process::Output {
     use std::io::Write;
     use std::process::Stdio;
-    let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
+    let mut child = dir
+        .command()
         .args(args)
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
@@ -706,14 +639,14 @@ fn a_reader_that_stops_early_ends_the_program_quietly() {
         .collect();
     dir.write(
         "many.ron",
-        &format!("Scene(standpoints: [(name: \"a\", x: 0, y: 0)], items: [{points}])"),
+        format!("Scene(standpoints: [(name: \"a\", x: 0, y: 0)], items: [{points}])"),
     );
     for args in [
         &["angles", "many.ron"][..],
         &["render", "many.ron", "--size", "2048x1024", "-o", "-"],
     ] {
-        let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-            .current_dir(&dir.0)
+        let mut child = dir
+            .command()
             .args(args)
             .stdout(Stdio::piped())
             .stderr(Stdio::piped())
@@ -779,8 +712,8 @@ fn stopping_watch_says_what_it_wrote() {
     use std::process::Stdio;
     let dir = Scratch::new("watch-stop");
     std::fs::copy(demo(), dir.path("square.ron")).unwrap();
-    let child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir.0)
+    let child = dir
+        .command()
         .args(["watch", "square.ron", "--size", "256x128", "-o", "live.png"])
         .stderr(Stdio::piped())
         .spawn()
@@ -790,7 +723,7 @@ fn stopping_watch_says_what_it_wrote() {
         assert!(started.elapsed().as_secs() < 60, "watch wrote nothing");
         std::thread::sleep(std::time::Duration::from_millis(50));
     }
-    let sent = Command::new("kill")
+    let sent = std::process::Command::new("kill")
         .args(["-INT", &child.id().to_string()])
         .status()
         .unwrap();
@@ -871,4 +804,26 @@ fn check_lists_each_blocks_corners() {
         ),
         "{report}"
     );
+}
+
+/// `check` reports the sloping ground's extent and height range, and warns of a standpoint
+/// the ground does not reach.
+#[test]
+fn check_reports_the_ground_and_what_lies_off_it() {
+    let dir = Scratch::new("ground-check");
+    dir.write(
+        "hill.ron",
+        "Scene(standpoints: [(name: \"on\", x: 5, y: 5), (name: \"off\", x: 50, y: 5)],\n\
+         ground: (spots: [(0, 0, 1), (20, 0, 1), (0, 20, 4), (20, 20, 4)]), items: [])",
+    );
+    let out = succeeds(&dir, &["check", "hill.ron"]);
+    let report = String::from_utf8_lossy(&out.stdout).into_owned();
+    assert!(
+        report.contains("ground: x 0.00 to 20.00, y 0.00 to 20.00, heights 1.00 to 4.00 m"),
+        "{report}"
+    );
+    // The standpoint on the ground stands on it: 1 + 3 * 5 / 20 under it.
+    assert!(report.contains("above ground at 1.75 m"), "{report}");
+    let all = format!("{report}{}", stderr(&out));
+    assert!(all.contains("does not reach standpoint \"off\""), "{all}");
 }

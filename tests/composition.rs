@@ -4,7 +4,7 @@
 
 mod common;
 
-use common::{assert_near, distance_to_set};
+use common::{assert_near, distance_to_set, Scratch};
 use nalgebra::Point3;
 use pansite::compose::{
     contact_sheet, plan_map, preview, sweep_headings, ContactSettings, Pinhole, PlanSettings,
@@ -18,8 +18,8 @@ use pansite::sphere::{
     angle_between, azimuth_elevation, direction_from_azimuth_elevation, ViewFrame,
 };
 use std::io::{BufRead, BufReader};
-use std::path::{Path, PathBuf};
-use std::process::{Command, Stdio};
+use std::path::Path;
+use std::process::Stdio;
 use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
@@ -40,7 +40,9 @@ fn corners(site: &Site) -> Vec<Point3<f64>> {
 }
 
 /// Snyder, "Map Projections: A Working Manual" (USGS Professional Paper 1395, 1987),
-/// gnomonic projection, eq. 22-4 (x, y) and 22-5 (cos c), with R = the focal length:
+/// gnomonic projection: cos c by eq. 5-3, k' = 1 / cos c by 22-3, x by 22-4 and y by 22-5
+/// (numbers as in Snyder's chapter 22 and his worked example in appendix A), with R = the
+/// focal length:
 /// latitude = elevation, longitude = azimuth (the map's x grows eastwards, as the
 /// image's u grows clockwise), the centre (phi1, lambda0) = (pitch, heading).
 /// `None` where cos c <= 0 (the hemisphere the projection cannot show).
@@ -53,6 +55,85 @@ fn snyder_gnomonic(f: f64, phi: f64, lambda: f64, phi1: f64, lambda0: f64) -> Op
     let x = f * k * phi.cos() * (lambda - lambda0).sin();
     let y = f * k * (phi1.cos() * phi.sin() - phi1.sin() * phi.cos() * (lambda - lambda0).cos());
     Some((x, y))
+}
+
+/// Snyder's own worked example (appendix A, gnomonic, sphere, forward): R = 1, centre
+/// phi1 = 40 N, lambda0 = 100 W, point phi = 30 N, lambda = 110 W give cos c = 0.9747290,
+/// k' = 1.0259262, x = -0.1542826, y = -0.1694739 units. As a preview: an eye looking on
+/// bearing 260 (100 W) pitched 40 up sees the direction of bearing 250, elevation 30, at
+/// u = W/2 + f x, v = H/2 - f y.
+#[test]
+fn preview_reproduces_snyders_worked_gnomonic_example() {
+    let (x, y) = snyder_gnomonic(
+        1.0,
+        30f64.to_radians(),
+        -110f64.to_radians(),
+        40f64.to_radians(),
+        -100f64.to_radians(),
+    )
+    .unwrap();
+    assert_near(x, -0.1542826, 5e-8);
+    assert_near(y, -0.1694739, 5e-8);
+    let settings = PreviewSettings {
+        width: 1000,
+        height: 1000,
+        fov_deg: 90.0,
+        ..PreviewSettings::default()
+    };
+    let standpoint = Standpoint::from_degrees("s", 0.0, 0.0, 0.0, 260.0, 40.0, 0.0);
+    let camera = Pinhole::new(&standpoint, &settings).unwrap();
+    assert_near(camera.focal_px, 500.0, 1e-9);
+    let (bearing, elevation) = (250f64.to_radians(), 30f64.to_radians());
+    let far = 37.0;
+    let p = Point3::new(
+        far * elevation.cos() * bearing.sin(),
+        far * elevation.cos() * bearing.cos(),
+        far * elevation.sin(),
+    );
+    let image = camera.project(&p).unwrap();
+    // Snyder's seven decimals, times the focal length.
+    assert_near(image.x, 500.0 + 500.0 * -0.1542826, 500.0 * 5e-8);
+    assert_near(image.y, 500.0 - 500.0 * -0.1694739, 500.0 * 5e-8);
+}
+
+/// The preview's roll against the independent pose of `common::camera_axes` (the GPano
+/// convention, worked out without the view frame), not against the panorama: every corner
+/// of the demo in front of the camera lands where the plain-trigonometry pinhole puts it,
+/// and a roll of the other sign would put it elsewhere.
+#[test]
+fn preview_roll_matches_the_independent_pose() {
+    let site = demo();
+    let settings = PreviewSettings::default();
+    let eye = [1.5, -4.0, 1.6];
+    let mut checked = 0;
+    for pose in [(30.0, 8.0, 4.0), (200.0, -5.0, -25.0), (75.0, 20.0, 60.0)] {
+        let standpoint =
+            Standpoint::from_degrees("s", eye[0], eye[1], eye[2], pose.0, pose.1, pose.2);
+        let camera = Pinhole::new(&standpoint, &settings).unwrap();
+        let frame = (1280.0, 800.0, camera.focal_px);
+        for p in corners(&site).into_iter().step_by(5) {
+            let at = [p.x, p.y, p.z];
+            let (Some(image), Some(expected)) = (
+                camera.project(&p),
+                common::predicted_pinhole(eye, pose, at, frame),
+            ) else {
+                continue;
+            };
+            if !(expected.0.abs() < 4000.0 && expected.1.abs() < 4000.0) {
+                continue;
+            }
+            assert_near(image.x, expected.0, 1e-6);
+            assert_near(image.y, expected.1, 1e-6);
+            let flipped =
+                common::predicted_pinhole(eye, (pose.0, pose.1, -pose.2), at, frame).unwrap();
+            let centre = (expected.0 - 640.0).hypot(expected.1 - 400.0);
+            if centre > 50.0 {
+                assert!((flipped.0 - expected.0).hypot(flipped.1 - expected.1) > 1.0);
+            }
+            checked += 1;
+        }
+    }
+    assert!(checked > 100, "only {checked} corners");
 }
 
 #[test]
@@ -367,20 +448,9 @@ fn contact_sheet_holds_every_standpoint_in_order() {
     }
 }
 
-/// A fresh folder for one test, removed when dropped.
-struct Scratch(PathBuf);
-
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
-}
-
+/// A fresh folder for one test (the shared harness's), removed when dropped.
 fn scratch(name: &str) -> Scratch {
-    let dir = std::env::temp_dir().join(format!("pansite-compose-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    Scratch(dir)
+    Scratch::new(&format!("compose-{name}"))
 }
 
 /// The stderr lines of a child, read on a thread, waited for with a timeout.
@@ -431,7 +501,7 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
     save(&scene, starter);
     let output = dir.0.join("out.png");
     let mut child = Child(
-        Command::new(env!("CARGO_BIN_EXE_pansite"))
+        dir.command()
             .args([
                 "watch",
                 "scene.ron",
@@ -442,7 +512,6 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
                 "--interval",
                 "20",
             ])
-            .current_dir(&dir.0)
             .stdout(Stdio::null())
             .stderr(Stdio::piped())
             .spawn()
@@ -500,7 +569,7 @@ fn sheet_command_is_quiet_when_piped() {
     let dir = scratch("sheet");
     let scene = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
     let run = |quiet: bool| {
-        let mut command = Command::new(env!("CARGO_BIN_EXE_pansite"));
+        let mut command = dir.command();
         command
             .args([
                 "sheet",
@@ -581,10 +650,10 @@ fn plan_preview_and_sheet_write_every_format() {
             "path.png",
         ),
     ] {
-        let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+        let out = dir
+            .command()
             .args(args)
             .args(["-o", file, "-q"])
-            .current_dir(&dir.0)
             .output()
             .unwrap();
         assert!(
@@ -601,9 +670,9 @@ fn plan_preview_and_sheet_write_every_format() {
         assert!(bytes.starts_with(magic), "{file}");
     }
     // A plan on A4 (landscape): the page is the paper, and its scale bar still reads true.
-    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+    let out = dir
+        .command()
         .args(["plan", scene, "--page", "a4", "-o", "a4.svg"])
-        .current_dir(&dir.0)
         .output()
         .unwrap();
     assert!(
@@ -635,9 +704,9 @@ fn plan_preview_and_sheet_write_every_format() {
     );
 
     // A field of view a flat picture cannot hold is refused as bad input.
-    let out = Command::new(env!("CARGO_BIN_EXE_pansite"))
+    let out = dir
+        .command()
         .args(["preview", scene, "--fov", "180", "-o", "bad.png"])
-        .current_dir(&dir.0)
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));

@@ -74,11 +74,12 @@ fn a_repeat_too_large_is_refused_after_its_first_copy() {
     assert!(text.contains("100000 copies would make"), "{text}");
 }
 
-/// Absurd but finite numbers all through a scene draw (or are refused) without a panic:
-/// the numbers the pipeline target tried first.
+/// Absurd but finite numbers all through a scene: each must give what is written beside it,
+/// an image of the asked size or a refusal naming what was wrong (the numbers the pipeline
+/// target tried first).
 #[test]
 fn extreme_numbers_in_every_item_draw_or_are_refused() {
-    for x in ["1e9", "-1e9", "1e-300", "0.000001", "999999999"] {
+    for (x, expected) in EXTREMES {
         let scene = format!(
             "Scene(standpoints: [(name: \"s\", x: {x}, y: {x}, heading: {x}, pitch: {x}, roll: {x})], items: [\
              Block(at: Corner({x}, {x}), width: 1e-6, depth: 1e9, height: 1e-6, roof: Hip(ridge: 1e9)),\
@@ -87,18 +88,47 @@ fn extreme_numbers_in_every_item_draw_or_are_refused() {
              Line(from: ({x}, {x}, {x}), to: (0, 0, 0)),\
              Point(at: ({x}, 0, 0))])"
         );
-        let Ok(site) = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding") else {
-            continue;
+        let outcome = match parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding") {
+            Err(error) => {
+                assert!(error.is_bad_input(), "{x}: {error}");
+                format!("refused: {error}")
+            }
+            Ok(site) => {
+                let settings = RenderSettings {
+                    width: 128,
+                    height: 64,
+                    ..RenderSettings::default()
+                };
+                let mut png = Vec::new();
+                match render_png_to(&site, &site.standpoints[0], &settings, &mut png) {
+                    Ok(_) => {
+                        let info = png::Decoder::new(std::io::Cursor::new(&png))
+                            .read_info()
+                            .expect("a PNG")
+                            .info()
+                            .clone();
+                        format!("image {}x{}", info.width, info.height)
+                    }
+                    Err(error) => format!("refused: {error}"),
+                }
+            }
         };
-        let settings = RenderSettings {
-            width: 128,
-            height: 64,
-            ..RenderSettings::default()
-        };
-        let mut png = Vec::new();
-        let _ = render_png_to(&site, &site.standpoints[0], &settings, &mut png);
+        assert!(
+            outcome.starts_with(expected),
+            "{x}: expected {expected:?}, got {outcome:?}"
+        );
     }
 }
+
+/// Each extreme number and the start of what it must give: every one is a scene that can
+/// be drawn (tiny or huge but finite sizes are legal), so each must give the whole image.
+const EXTREMES: [(&str, &str); 5] = [
+    ("1e9", "image 128x64"),
+    ("-1e9", "image 128x64"),
+    ("1e-300", "image 128x64"),
+    ("0.000001", "image 128x64"),
+    ("999999999", "image 128x64"),
+];
 
 /// The pipeline target's timeout: an arcade on piers of 2e-305 m, thinner than the
 /// arithmetic can tell from nothing, so its openings shared corners and triangulating its

@@ -3,7 +3,9 @@
 //! not fail the test, while any real change in the drawing does).
 //!
 //! On failure `target/golden/NAME.png` shows expected | difference | actual side by side.
-//! Regenerate the references with `PANSITE_BLESS=1 cargo test --test golden`.
+//! Regenerate the references with `PANSITE_BLESS=1 cargo test --test golden` (that run
+//! fails on purpose, naming each rewritten file: it compared nothing). A control test turns
+//! one view by 0.3 pixel and requires the comparison to fail.
 
 use pansite::output::{encode_grey_png, GreyCanvas};
 use pansite::render::{draw, raster, RenderSettings};
@@ -57,19 +59,15 @@ fn check_scene(scene: &str, name: &str, standpoint: &str, settings: RenderSettin
     let reference = golden_dir().join(format!("{name}.png"));
     if std::env::var_os("PANSITE_BLESS").is_some() {
         write_png(&actual, &reference);
-        return;
+        // A bless run compares nothing, so it must not pass as if it had.
+        panic!(
+            "{name}: reference rewritten from this run ({}); nothing was compared: \
+             look at it, then run again without PANSITE_BLESS",
+            reference.display()
+        );
     }
     let expected = read_png(&reference);
-    assert_eq!(
-        (expected.width, expected.height),
-        (actual.width, actual.height)
-    );
-    let differing = expected
-        .pixels
-        .iter()
-        .zip(&actual.pixels)
-        .filter(|(e, a)| e.abs_diff(**a) > CHANNEL_TOLERANCE)
-        .count();
+    let differing = differing_pixels(&expected, &actual);
     if differing > MAX_DIFFERING_PIXELS {
         let (w, h) = (actual.width as usize, actual.height as usize);
         let mut side_by_side = GreyCanvas {
@@ -93,6 +91,43 @@ fn check_scene(scene: &str, name: &str, standpoint: &str, settings: RenderSettin
             report.display()
         );
     }
+}
+
+/// How many pixels differ by more than [`CHANNEL_TOLERANCE`].
+fn differing_pixels(expected: &GreyCanvas, actual: &GreyCanvas) -> usize {
+    assert_eq!(
+        (expected.width, expected.height),
+        (actual.width, actual.height)
+    );
+    expected
+        .pixels
+        .iter()
+        .zip(&actual.pixels)
+        .filter(|(e, a)| e.abs_diff(**a) > CHANNEL_TOLERANCE)
+        .count()
+}
+
+/// The control: the same view turned by 0.3 pixel (0.3 x 360 / 1024 degrees of heading)
+/// must fail the comparison, so the tolerances cannot hide a real shift of the drawing.
+#[test]
+fn a_shift_of_three_tenths_of_a_pixel_fails() {
+    let site = load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join(CORE_SCENE)).unwrap();
+    let mut standpoint = site.standpoint("hall steps").unwrap().clone();
+    standpoint.heading += (0.3 * 360.0 / 1024.0f64).to_radians();
+    let settings = RenderSettings {
+        width: 1024,
+        height: 512,
+        overlays: false,
+        hidden: Some(HiddenEdges::Solid),
+        ..RenderSettings::default()
+    };
+    let actual = raster(&mut draw(&site, &standpoint, &settings).unwrap());
+    let expected = read_png(&golden_dir().join("wexcombe-steps-bare.png"));
+    let differing = differing_pixels(&expected, &actual);
+    assert!(
+        differing > MAX_DIFFERING_PIXELS,
+        "a 0.3 px turn changed only {differing} pixels"
+    );
 }
 
 #[test]
@@ -253,5 +288,22 @@ fn exterior_demo_with_every_aid() {
             aids,
             ..RenderSettings::default()
         },
+    );
+}
+
+/// The hill-town demo: streets meeting at a junction with kerb returns, sloping ground
+/// hiding what lies behind the hill, drawn as renders are by default (hidden parts faint).
+#[test]
+fn hill_town_from_the_high_street() {
+    let settings = RenderSettings {
+        width: 1024,
+        height: 512,
+        ..RenderSettings::default()
+    };
+    check_scene(
+        "scenes/stannock-hill.ron",
+        "stannock-high-street",
+        "high street",
+        settings,
     );
 }

@@ -4,8 +4,9 @@
 //! the sight line nearer than the point's distance less the depth bias (and less a curved
 //! facet's slack, measured along the sight line).
 //!
-//! Scenes: a round tower in front of a hall, the interior demo with its columns, and the
-//! exterior demo from a standpoint inside the arcade.
+//! Scenes: a round tower in front of a hall, the interior demo with its columns, the
+//! exterior demo from a standpoint inside the arcade, and a room whose pointed and round
+//! windows are looked through.
 
 use nalgebra::{Point3, Vector3};
 use pansite::scene::{load_scene, parse_scene, Face, Site, SiteCurve, Standpoint};
@@ -229,4 +230,81 @@ fn an_interior_with_columns() {
 fn a_standpoint_inside_an_arcade() {
     let site = scene("scenes/wexcombe-square.ron");
     check_scene("loggia", &site, site.standpoint("loggia").unwrap(), 4);
+}
+
+#[test]
+fn looking_out_through_a_pointed_window_and_an_oculus() {
+    // Inside a room, facing its front wall: a pointed window (and, on the left, a round
+    // one) through a wall 0.4 thick; a hall across the street and a tower beyond the
+    // left wall are seen through them and hidden by the walls round them.
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"inside\", x: 3, y: 3.5, heading: 200)], items: [
+            Room(at: Corner(0, 0), width: 6, depth: 5, height: 4,
+                 openings: [(wall: Front, width: 1.6, height: 3, sill: 0.5, head: Pointed(),
+                             reveal: 0.4, surround: 0.1)],
+                 round_windows: [(wall: Left, centre: 2.2, diameter: 1.2, reveal: 0.4)]),
+            Block(at: Corner(-4, -14), width: 14, depth: 4, height: 9, roof: Gable(ridge: 12),
+                  openings: [(wall: Front, count: 4, width: 1.2, height: 2.2, sill: 1,
+                              head: Semicircular, reveal: 0.2)]),
+            Tower(at: (-7, 2.5), diameter: 3, height: 8, roof: Cone(height: 3)),
+        ])",
+        Path::new("window.ron"),
+        "window",
+    )
+    .unwrap();
+    check_scene("window", &site, &site.standpoints[0], 1);
+}
+
+/// A small town of gabled houses as an OBJ model (the benchmark's houses, 8 x 8 on a 14 m
+/// grid, sizes from a fixed rule), seen from a street corner at 1.6 m: almost everything
+/// is hidden behind the first row, the view the occlusion shortcuts are for.
+#[test]
+fn a_small_town_from_a_street_corner() {
+    use pansite::scene::{add_mesh, parse_obj, MeshPlacement};
+    use std::fmt::Write;
+    let mut text = String::new();
+    for i in 0..8 {
+        for j in 0..8 {
+            let (cx, cy) = (
+                -56.0 + 14.0 * (i as f64 + 0.5),
+                -56.0 + 14.0 * (j as f64 + 0.5),
+            );
+            let k = (i * 8 + j) as f64;
+            let (w, d) = (6.0 + (k * 0.37) % 4.0, 6.0 + (k * 0.53) % 4.0);
+            let eaves = 4.0 + (k * 1.7) % 8.0;
+            let ridge = eaves + 0.5 * w * (35.0 + (k * 3.1) % 10.0).to_radians().tan();
+            let turn = ((k * 0.9) % 10.0 - 5.0).to_radians();
+            let (c, s) = (turn.cos(), turn.sin());
+            let at = |x: f64, y: f64| (cx + c * x - s * y, cy + s * x + c * y);
+            let plan = [
+                at(-w / 2.0, -d / 2.0),
+                at(w / 2.0, -d / 2.0),
+                at(w / 2.0, d / 2.0),
+                at(-w / 2.0, d / 2.0),
+            ];
+            for z in [0.0, eaves] {
+                for (x, y) in plan {
+                    writeln!(text, "v {x} {y} {z}").unwrap();
+                }
+            }
+            for (x, y) in [at(0.0, -d / 2.0), at(0.0, d / 2.0)] {
+                writeln!(text, "v {x} {y} {ridge}").unwrap();
+            }
+            text.push_str(
+                "f -10 -7 -8\nf -10 -8 -9\nf -9 -8 -4\nf -9 -4 -5\nf -7 -10 -6\nf -7 -6 -3\n\
+                 f -10 -9 -5\nf -10 -5 -6\nf -6 -5 -2\nf -8 -7 -3\nf -8 -3 -4\nf -4 -3 -1\n\
+                 f -6 -2 -1\nf -6 -1 -3\nf -5 -4 -1\nf -5 -1 -2\n",
+            );
+        }
+    }
+    let obj = parse_obj(text.as_bytes(), Path::new("town.obj")).unwrap();
+    let mut site = Site::default();
+    let placement = MeshPlacement {
+        up: pansite::scene::UpAxis::Z,
+        ..MeshPlacement::default()
+    };
+    add_mesh(&mut site, &obj, &placement, "town.obj");
+    assert_eq!(site.faces.len(), 64 * 16);
+    let corner = Standpoint::from_degrees("corner", 0.0, 0.0, 1.6, 30.0, 0.0, 0.0);
+    check_scene("small town", &site, &corner, 1);
 }

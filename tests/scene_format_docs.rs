@@ -97,6 +97,9 @@ fn every_kind_of_item_has_a_section() {
         "Group",
         "Repeat",
         "Model",
+        "Figure",
+        "Car",
+        "Tree",
     ];
     for kind in kinds {
         let heading = text

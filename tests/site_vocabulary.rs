@@ -347,6 +347,56 @@ fn equilateral_pointed_arch_apex() {
     );
 }
 
+/// A window head follows the same curves. A segmental head of width s rising h: radius
+/// (s^2/4 + h^2) / 2h (intersecting chords, any geometry handbook), crown at the
+/// opening's height; the reveal's back and the surround draw the same arc again, the
+/// surround's radius longer by its width.
+#[test]
+fn segmental_window_head_crown_and_radius() {
+    let (width, rise, sill, height, surround) = (1.6, 0.4, 1.0, 2.5, 0.2);
+    let site = scene_with(&format!(
+        "Block(at: Corner(0, 0), width: 8, depth: 6, height: 6, openings: [(wall: Front, \
+         width: {width}, height: {height}, sill: {sill}, reveal: 0.3, surround: {surround}, \
+         head: Segmental(rise: {rise}))])"
+    ));
+    let radius = (width * width / 4.0 + rise * rise) / (2.0 * rise);
+    let mut radii: Vec<f64> = Vec::new();
+    for edge in &site.edges {
+        if let SiteCurve::Ellipse { u, v, .. } = edge.curve {
+            assert_near(u.norm(), v.norm(), 1e-12);
+            radii.push(u.norm());
+        }
+    }
+    radii.sort_by(f64::total_cmp);
+    assert_eq!(radii.len(), 3);
+    assert_near(radii[0], radius, 1e-12);
+    assert_near(radii[1], radius, 1e-12);
+    assert_near(radii[2], radius + surround, 1e-12);
+    // The surround's crown is the head's crown raised by its width.
+    assert_near(highest_curve_point(&site), sill + height + surround, 1e-9);
+}
+
+/// An equilateral pointed window head: its apex stands width x sin 60 degrees above the
+/// springing (common practice), so at the opening's height with the springing that much
+/// lower.
+#[test]
+fn equilateral_pointed_window_head_apex() {
+    let (width, sill, height) = (1.2, 2.0, 3.4);
+    let site = scene_with(&format!(
+        "Block(at: Corner(0, 0), width: 8, depth: 6, height: 7, openings: [(wall: Front, \
+         width: {width}, height: {height}, sill: {sill}, head: Pointed())])"
+    ));
+    assert_near(highest_curve_point(&site), sill + height, 1e-12);
+    let springing = sill + height - width * 60f64.to_radians().sin();
+    for edge in &site.edges {
+        if let SiteCurve::Ellipse { centre, u, .. } = edge.curve {
+            // Each arc's radius is the width, its centre on the springing line.
+            assert_near(u.norm(), width, 1e-12);
+            assert_near(centre.z, springing, 1e-12);
+        }
+    }
+}
+
 // --- Curved items flattened from random standpoints --------------------------------------
 
 const WIDTH: f64 = 2048.0;
@@ -386,16 +436,16 @@ fn standpoint() -> impl Strategy<Value = Standpoint> {
 }
 
 /// The distance from the drawing to the true image of the curve, sampled densely
-/// (the image of P(t) / |P(t)|, the definition itself), away from the pole rows.
-fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> f64 {
+/// (the image of P(t) / |P(t)|, the definition itself), away from the pole rows, with the
+/// number of points compared; `None` when the curve has no image to compare.
+fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> Option<(f64, usize)> {
     let map = Equirect::from_size_px(WIDTH, WIDTH / 2.0);
-    let Ok(sphere) = view.sphere_curve(curve) else {
-        return 0.0;
-    };
+    let sphere = view.sphere_curve(curve).ok()?;
     let mut set = PolylineSet::new();
     flatten(&sphere, map, TOLERANCE, &mut set);
     let lines: Vec<Vec<ImagePoint>> = set.iter().map(|l| l.to_vec()).collect();
     let mut worst: f64 = 0.0;
+    let mut compared = 0;
     for i in 0..=1000 {
         let t = sphere.t0 + (sphere.t1 - sphere.t0) * i as f64 / 1000.0;
         let (az, el) = azimuth_elevation(&sphere.position(t));
@@ -413,8 +463,9 @@ fn worst_miss(view: &ViewFrame, curve: &SiteCurve) -> f64 {
             })
             .fold(f64::INFINITY, f64::min);
         worst = worst.max(miss);
+        compared += 1;
     }
-    worst
+    Some((worst, compared))
 }
 
 proptest! {
@@ -428,10 +479,18 @@ proptest! {
         let curved = site.edges.iter().chain(&outlines).filter(|e| {
             matches!(e.curve, SiteCurve::Ellipse { .. }) || outlines.contains(e)
         });
+        // Every curve is built and compared: none may slip through as "no image".
+        let (mut curves, mut points) = (0, 0);
         for edge in curved {
-            let miss = worst_miss(&view, &edge.curve);
+            let built = worst_miss(&view, &edge.curve);
+            prop_assert!(built.is_some(), "{:?} has no image from {:?}", edge.curve, standpoint);
+            let (miss, compared) = built.unwrap();
             prop_assert!(miss <= TOLERANCE * 1.001 + 1e-9, "{:?} missed by {} px", edge.curve, miss);
+            curves += 1;
+            points += compared;
         }
+        prop_assert!(curves >= 10, "only {} curves checked", curves);
+        prop_assert!(points >= 500 * curves, "only {} points on {} curves", points, curves);
     }
 }
 

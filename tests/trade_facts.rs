@@ -388,3 +388,117 @@ fn verticals_are_vertical_lines_and_the_horizon_is_the_middle_row() {
         - xs.iter().cloned().fold(f64::INFINITY, f64::min);
     assert!(spread > 10.0, "spread {spread} px");
 }
+
+/// Common practice, and plain trigonometry: a street climbing at angle `a` runs to a
+/// vanishing point at elevation `a` above the horizon (its lines' direction makes that
+/// angle with the level). Here the street has no heights of its own: it follows sloping
+/// ground that rises 1 in 10 (a = atan 0.1, 5.71 degrees) north of a level stretch.
+#[test]
+fn a_street_climbing_at_an_angle_vanishes_at_that_elevation() {
+    let scene = "Scene(standpoints: [(name: \"foot\", x: -2, y: -5, heading: 0)], \
+        ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 10, 0), (40, 10, 0), \
+                         (-40, 110, 10), (40, 110, 10)]), \
+        items: [Road(points: [(0, -15), (0, 100)], width: 6, kerb: 0.15, pavement: 2)])";
+    let site =
+        pansite::scene::parse_scene(scene.as_bytes(), std::path::Path::new("hill.ron"), "hill")
+            .unwrap();
+    // Every line of the street along the climb (kerbs, kerb tops, pavement backs) runs
+    // at that angle: their common direction is the vanishing point's.
+    let climbing: Vec<Vector3<f64>> = site
+        .edges
+        .iter()
+        .filter(|e| site.items[e.item.0 as usize].kind == "road")
+        .filter_map(|e| match e.curve {
+            pansite::scene::SiteCurve::Segment { start, end } if start.y > 10.0 && end.y > 10.0 => {
+                let d = if end.y > start.y {
+                    end - start
+                } else {
+                    start - end
+                };
+                (d.y > 1.0).then_some(d.normalize())
+            }
+            _ => None,
+        })
+        .collect();
+    assert!(climbing.len() >= 4, "{climbing:?}");
+    for d in &climbing {
+        let (azimuth, elevation) = azimuth_elevation(d);
+        assert_near(elevation, 0.1f64.atan(), 1e-9);
+        assert_near(wrap(azimuth), 0.0, 1e-9);
+    }
+    // Points far up the street's kerb seen from the foot of the hill close in on that
+    // elevation (the vanishing point as the limit of the line's images).
+    let eye = site.standpoints[0].eye();
+    let far = Point3::new(3.0, 10.0, 0.15) + climbing[0] * 1e7;
+    let (_, seen) = azimuth_elevation(&(far - eye));
+    assert_near(seen, 0.1f64.atan(), 1e-6);
+}
+
+/// Figures whose eyes are at the viewer's eye height, standing on the same level ground,
+/// have their eyes on the horizon whatever their distance; only their size changes
+/// (common practice: the sketcher's rule for placing figures). A seated viewer sees
+/// standing figures' eyes above the horizon, seated figures' on it.
+#[test]
+fn figures_eyes_lie_on_the_horizon_at_any_distance() {
+    let scene = |posture: &str| {
+        pansite::scene::parse_scene(
+            format!(
+                "Scene(standpoints: [(name: \"here\", x: 0, y: 0, heading: 30{posture})], items: [
+                    Figure(label: \"near\", at: (1, 3)),
+                    Figure(label: \"middle\", at: (-4, 12), facing: 120),
+                    Figure(label: \"far\", at: (25, 60), facing: 250),
+                    Figure(label: \"very far\", at: (-180, 240)),
+                    Figure(label: \"on a bench\", at: (6, 9), pose: Seated),
+                ])"
+            )
+            .as_bytes(),
+            std::path::Path::new("figures.ron"),
+            "figures",
+        )
+        .unwrap()
+    };
+    // The eyes of each figure (its head's ellipse at parameters 0 and pi, level with its
+    // centre) and the head's half-height seen from the standpoint, in radians.
+    let eyes = |site: &pansite::scene::Site| -> Vec<(String, [f64; 2], f64)> {
+        let view = ViewFrame::new(&site.standpoints[0]);
+        site.edges
+            .iter()
+            .filter_map(|edge| {
+                let pansite::scene::SiteCurve::Ellipse { v, .. } = edge.curve else {
+                    return None;
+                };
+                let label = site.items[edge.item.0 as usize]
+                    .label
+                    .clone()
+                    .unwrap_or_default();
+                let curve = view.sphere_curve(&edge.curve).unwrap();
+                let middle = (curve.t0 + curve.t1) / 2.0;
+                let elevation = |t: f64| azimuth_elevation(&curve.position(t)).1;
+                let size = (v.norm() / curve.centre.norm()).atan();
+                Some((label, [elevation(curve.t0), elevation(middle)], size))
+            })
+            .collect()
+    };
+    let standing = eyes(&scene(""));
+    assert_eq!(standing.len(), 5);
+    for (label, [a, b], _) in &standing {
+        if label != "on a bench" {
+            assert_near(*a, 0.0, 1e-12);
+            assert_near(*b, 0.0, 1e-12);
+        } else {
+            assert!(*a < -0.01 && *b < -0.01, "{label}: {a} {b}");
+        }
+    }
+    // Nearer figures are bigger.
+    let sizes: Vec<f64> = standing.iter().map(|(_, _, s)| *s).collect();
+    assert!(sizes[0] > sizes[1] && sizes[1] > sizes[2] && sizes[2] > sizes[3]);
+    let seated = eyes(&scene(", posture: Seated"));
+    for (label, [a, b], _) in &seated {
+        if label == "on a bench" {
+            assert_near(*a, 0.0, 1e-12);
+            assert_near(*b, 0.0, 1e-12);
+        } else {
+            assert!(*a > 0.0 && *b > 0.0, "{label}: {a} {b}");
+        }
+    }
+}

@@ -37,6 +37,7 @@ fn awkward_sheet() -> Sheet {
             lines.push(line);
         }
         Layer {
+            text: None,
             name: name.to_owned(),
             stroke: Stroke {
                 colour,
@@ -307,27 +308,57 @@ fn media_box(doc: &lopdf::Document, page: lopdf::ObjectId) -> Vec<f64> {
         .collect()
 }
 
+/// A dictionary given inline or by reference.
+fn dictionary<'a>(doc: &'a lopdf::Document, object: &'a lopdf::Object) -> &'a lopdf::Dictionary {
+    match object {
+        lopdf::Object::Reference(id) => doc.get_dictionary(*id).expect("dictionary"),
+        other => other.as_dict().expect("dictionary"),
+    }
+}
+
 /// Every point of every path operator (`m`, `l`) on the page, in millimetres from the
-/// sheet's top-left corner.
+/// sheet's top-left corner, by the name of the optional content group it is marked with
+/// (ISO 32000-1 §14.6: `/OC /tag BDC ... EMC`, the tag a key of the page's `/Properties`
+/// resource naming the group's dictionary, whose `/Name` is the layer's).
 fn pdf_path_points_mm(
     doc: &lopdf::Document,
     page: lopdf::ObjectId,
     height_mm: f64,
-) -> Vec<(f64, f64)> {
+) -> std::collections::HashMap<String, Vec<(f64, f64)>> {
+    let page_dict = doc.get_dictionary(page).expect("page dictionary");
+    let resources = dictionary(doc, page_dict.get(b"Resources").expect("Resources"));
+    let properties = dictionary(doc, resources.get(b"Properties").expect("Properties"));
     let content = doc
         .get_and_decode_page_content(page)
         .expect("content decodes");
-    content
-        .operations
-        .iter()
-        .filter(|op| op.operator == "m" || op.operator == "l")
-        .map(|op| {
-            let x = op.operands[0].as_float().expect("x") as f64;
-            let y = op.operands[1].as_float().expect("y") as f64;
-            // ISO 32000-1 §8.3.2.3: default user space is 1/72 inch a unit, y up.
-            (x * 25.4 / 72.0, height_mm - y * 25.4 / 72.0)
-        })
-        .collect()
+    let mut by_layer: std::collections::HashMap<String, Vec<(f64, f64)>> = Default::default();
+    let mut current: Option<String> = None;
+    for op in &content.operations {
+        match op.operator.as_str() {
+            "BDC" => {
+                let tag = op.operands[1].as_name().expect("a named property list");
+                let group = dictionary(doc, properties.get(tag).expect("the tag's group"));
+                let name = group
+                    .get(b"Name")
+                    .and_then(lopdf::Object::as_str)
+                    .expect("Name");
+                current = Some(String::from_utf8(name.to_vec()).expect("ASCII names"));
+            }
+            "EMC" => current = None,
+            "m" | "l" => {
+                let x = op.operands[0].as_float().expect("x") as f64;
+                let y = op.operands[1].as_float().expect("y") as f64;
+                let layer = current.clone().expect("every path inside a layer's group");
+                // ISO 32000-1 §8.3.2.3: default user space is 1/72 inch a unit, y up.
+                by_layer
+                    .entry(layer)
+                    .or_default()
+                    .push((x * 25.4 / 72.0, height_mm - y * 25.4 / 72.0));
+            }
+            _ => {}
+        }
+    }
+    by_layer
 }
 
 #[test]
@@ -342,6 +373,7 @@ fn pdf_has_a_page_per_sheet_at_its_size_and_is_reproducible() {
     let doc = lopdf::Document::load_mem(&bytes).expect("lopdf parses the PDF");
     let pages = doc.get_pages();
     assert_eq!(pages.len(), sheets.len());
+    let mut compared = 0;
     for (sheet, (_, &page)) in sheets.iter().zip(&pages) {
         // ISO 32000-1 §7.7.3.3 (Table 30, MediaBox) in default user space units, 1/72 inch.
         let mm: Vec<f64> = media_box(&doc, page)
@@ -356,19 +388,25 @@ fn pdf_has_a_page_per_sheet_at_its_size_and_is_reproducible() {
             mm[3]
         );
 
-        // Sampled vertices are on the page where the sheet puts them, within half a pixel.
-        let points = pdf_path_points_mm(&doc, page, sheet.height_mm);
+        // Sampled vertices are on the page where the sheet puts them, within half a pixel,
+        // among the points of their own layer (a point of another layer does not count).
+        let by_layer = pdf_path_points_mm(&doc, page, sheet.height_mm);
         for layer in &sheet.drawing.layers {
+            let none = Vec::new();
+            let points = by_layer.get(&layer.name).unwrap_or(&none);
             for p in sample_vertices(layer, 29) {
                 let (x, y) = (p.x * sheet.mm_per_px, p.y * sheet.mm_per_px);
-                let off = nearest(&points, x, y);
+                let off = nearest(points, x, y);
                 assert!(
                     off <= 0.5 * sheet.mm_per_px,
-                    "({x:.3}, {y:.3}) mm is {off:.4} mm off"
+                    "layer {}: ({x:.3}, {y:.3}) mm is {off:.4} mm off",
+                    layer.name
                 );
+                compared += 1;
             }
         }
     }
+    assert!(compared > 50, "only {compared} vertices compared");
     // The layers are optional content groups named as the layers (ISO 32000-1 §8.11.2).
     let catalog = doc.catalog().expect("catalog");
     let groups = catalog
@@ -411,8 +449,9 @@ fn least_value_drop(stroke: &Stroke, pixel: (u32, u32), sample: (f64, f64), slac
     (reach - d).clamp(0.0, 1.0) * ink
 }
 
-#[test]
-fn svg_positions_agree_with_the_raster_within_half_a_pixel() {
+/// The SVG's stroke samples, moved by `shift` pixels, checked against the raster: how many
+/// were checked and the ones lighter than the rasteriser's rule allows.
+fn lighter_than_their_strokes(shift: (f64, f64)) -> (usize, Vec<String>) {
     let sheet = demo_sheet();
     let canvas: GreyCanvas = rasterize(&sheet.drawing);
     let (_, _, paths) = parse_svg(&svg_bytes(sheet));
@@ -426,7 +465,7 @@ fn svg_positions_agree_with_the_raster_within_half_a_pixel() {
         let px: Vec<(f64, f64)> = path
             .points_mm
             .iter()
-            .map(|&(x, y)| (x / sheet.mm_per_px, y / sheet.mm_per_px))
+            .map(|&(x, y)| (x / sheet.mm_per_px + shift.0, y / sheet.mm_per_px + shift.1))
             .collect();
         // The vertices and the middle of every segment, a sample of each path.
         let samples = px.iter().copied().chain(
@@ -449,11 +488,24 @@ fn svg_positions_agree_with_the_raster_within_half_a_pixel() {
             }
         }
     }
+    (checked, failures)
+}
+
+#[test]
+fn svg_positions_agree_with_the_raster_within_half_a_pixel() {
+    let (checked, failures) = lighter_than_their_strokes((0.0, 0.0));
     assert!(checked > 1000, "only {checked} samples");
     assert!(
         failures.is_empty(),
         "{} of {checked} samples lighter than their stroke:\n{}",
         failures.len(),
         failures.join("\n")
+    );
+    // The control: the same samples moved 0.3 px across and down fail the rule.
+    let (moved, failures) = lighter_than_their_strokes((0.3, 0.3));
+    assert!(
+        failures.len() * 20 > moved,
+        "a 0.3 px shift failed only {} of {moved} samples",
+        failures.len()
     );
 }

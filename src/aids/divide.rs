@@ -7,7 +7,7 @@
 //! Each point is marked by a tick across the image of the segment; the midpoint's tick is
 //! longer.
 
-use crate::drawing::{letter, Align};
+use crate::drawing::{Align, Label, LabelKind, Spot};
 use crate::plane::image_of_point;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
 use crate::scene::{label_matches, Division, Site, SiteCurve};
@@ -70,10 +70,11 @@ pub fn draw(
     division: &Division,
     text: f64,
     out: &mut PolylineSet,
+    labels: &mut Vec<Label>,
 ) {
     let map = flattener.map();
     let half = 0.45 * text;
-    let ticks =
+    let mut ticks =
         |from: Point3<f64>, to: Point3<f64>, parts: u32, extend: u32, out: &mut PolylineSet| {
             let along = to - from;
             for (k, p) in division_points(from, to, parts, extend).iter().enumerate() {
@@ -83,12 +84,13 @@ pub fn draw(
                 if k > parts {
                     if let Some(at) = at {
                         let words = format!("{}\u{d7}", k - parts + 1);
-                        letter(
-                            &words,
-                            ImagePoint::new(at.x + half, at.y - half),
-                            text,
-                            Align::Start,
-                            out,
+                        labels.push(
+                            Label::fixed(words, at, LabelKind::Division, text, Align::Start)
+                                .with_spots(vec![
+                                    Spot::new(half, -half, Align::Start),
+                                    Spot::new(-half, -half, Align::End),
+                                    Spot::new(half, half + text, Align::Start),
+                                ]),
                         );
                     }
                 }

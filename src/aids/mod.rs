@@ -72,14 +72,16 @@ mod labels;
 mod marks;
 mod pole;
 mod settings;
+mod sun;
 mod table;
 mod vanishing;
 
 pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
+pub use sun::{sun_layers, SunDrawing, SunLabel, SUN, SUN_HOURS, SUN_PATH, SUN_SEASONS};
 pub use table::{angle_table, to_csv, to_json, to_text, AngleRow, PagePlacement, TableChoice};
 
-use crate::drawing::{Layer, Stroke};
-use crate::plane::{Flattener, PolylineSet};
+use crate::drawing::{label_layers, Label, LabelInk, LabelPlacer, Layer, Stroke};
+use crate::plane::{Flattener, PolylineSet, Rect};
 use crate::scene::{Guides, Site};
 use crate::sphere::ViewFrame;
 
@@ -139,48 +141,103 @@ pub fn under(
     layers
 }
 
-/// The layers drawn over the wireframe: vanishing points, poles, divisions, then the
-/// lettering, which keeps clear of everything drawn before it (`drawn`) where it can.
+/// The layers drawn over the wireframe, and what became of their labels.
+#[derive(Clone, Debug, Default)]
+pub struct Over {
+    /// The layers, in painting order.
+    pub layers: Vec<Layer>,
+    /// Labels left out for want of room (see [`crate::drawing::labels`]).
+    pub labels_left_out: usize,
+    /// Characters drawn as the placeholder, for a warning.
+    pub unlettered: Vec<char>,
+}
+
+/// The layers drawn over the wireframe: vanishing points, poles, divisions, then every
+/// label, placed by one [`LabelPlacer`] that keeps them apart, whole inside the label area
+/// and clear of the lines drawn before (`drawn`) where it can.
 pub fn over(
     site: &Site,
     view: &ViewFrame,
     flattener: &mut Flattener,
     settings: &AidSettings,
     drawn: &[Layer],
-) -> Vec<Layer> {
+) -> Over {
     let guides = guides_of(site, settings);
     let map = flattener.map();
     let text = settings.text_height(&map);
     let mut layers = Vec::new();
+    let mut labels: Vec<Label> = Vec::new();
     let mut marks = PolylineSet::new();
     let directions = vanishing::directions(site, &guides, settings);
-    vanishing::draw(view, &map, &directions, text, &mut marks);
+    vanishing::draw(view, &map, &directions, text, &mut marks, &mut labels);
     push_if_any(&mut layers, "vanishing points", strokes::MARKS, marks);
     let mut poles = PolylineSet::new();
     for pole in &guides.poles {
-        pole::draw(view, flattener, pole, text, &mut poles);
+        pole::draw(view, flattener, pole, text, &mut poles, &mut labels);
     }
     push_if_any(&mut layers, "poles", strokes::MARKS, poles);
     let mut divisions = PolylineSet::new();
     for division in &guides.divisions {
-        divide::draw(site, view, flattener, division, text, &mut divisions);
+        divide::draw(
+            site,
+            view,
+            flattener,
+            division,
+            text,
+            &mut divisions,
+            &mut labels,
+        );
     }
     push_if_any(&mut layers, "divisions", strokes::MARKS, divisions);
+    let area = settings
+        .label_area
+        .unwrap_or_else(|| Rect::from_ltrb(0.0, 0.0, map.width(), map.height()));
     if settings.labels {
-        let mut lettering = PolylineSet::new();
-        labels::grid_labels(view, &map, settings, text, &mut lettering);
-        push_if_any(&mut layers, "grid labels", strokes::LABELS, lettering);
+        let mut notches = PolylineSet::new();
+        labels.extend(labels::grid_labels(
+            view,
+            &map,
+            settings,
+            text,
+            &area,
+            &mut notches,
+        ));
+        push_if_any(&mut layers, "heading marks", strokes::LABELS, notches);
     }
     if settings.item_labels {
-        let mut room = labels::Occupancy::new(&map, text);
-        for layer in drawn.iter().chain(&layers) {
-            room.mark_lines(&layer.lines);
-        }
-        let mut lettering = PolylineSet::new();
-        labels::item_labels(site, view, &map, text, &mut room, &mut lettering);
-        push_if_any(&mut layers, "item labels", strokes::LABELS, lettering);
+        labels.extend(labels::item_labels(site, view, &map, text));
     }
-    layers
+    if labels.is_empty() {
+        return Over {
+            layers,
+            ..Over::default()
+        };
+    }
+    let mut unlettered: Vec<char> = Vec::new();
+    for label in &labels {
+        for c in crate::drawing::unlettered(&label.text) {
+            if !unlettered.contains(&c) {
+                unlettered.push(c);
+            }
+        }
+    }
+    let mut placer = LabelPlacer::new(area, 0.25 * text);
+    placer.cut_along(&settings.label_cuts.0, &settings.label_cuts.1);
+    for layer in drawn.iter().chain(&layers) {
+        placer.avoid_lines(&layer.lines, (text / 3.0).max(2.0));
+    }
+    placer.place(labels);
+    let placed = placer.finish();
+    let ink = LabelInk {
+        stroke: strokes::LABELS,
+        halo_px: settings.halo_px,
+    };
+    layers.extend(label_layers(&placed.labels, ink));
+    Over {
+        layers,
+        labels_left_out: placed.left_out,
+        unlettered,
+    }
 }
 
 /// The scene's guides and those asked for on the command line.
@@ -192,6 +249,7 @@ fn guides_of(site: &Site, settings: &AidSettings) -> Guides {
 
 fn layer(name: &str, stroke: Stroke, lines: PolylineSet) -> Layer {
     Layer {
+        text: None,
         name: name.to_owned(),
         stroke,
         lines,

@@ -7,7 +7,7 @@
 //! why a figure's eyes, drawn on the horizon, fix its size (common practice). That tick is
 //! marked `EYE`.
 
-use crate::drawing::{letter, Align};
+use crate::drawing::{Align, Label, LabelKind, Spot};
 use crate::plane::image_of_point;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
 use crate::scene::{Pole, SiteCurve};
@@ -38,6 +38,7 @@ pub fn draw(
     pole: &Pole,
     text: f64,
     out: &mut PolylineSet,
+    labels: &mut Vec<Label>,
 ) {
     let map = flattener.map();
     let top = pole.foot + Vector3::z() * pole.height;
@@ -61,8 +62,19 @@ pub fn draw(
         ]);
         // Numbers where there is room between them.
         if last_label.is_none_or(|y| (y - p.y).abs() >= 1.5 * text) {
-            let at = ImagePoint::new(p.x + 2.5 * tick, p.y + 0.5 * text);
-            letter(&height_text(h, pole.unit), at, text, Align::Start, out);
+            labels.push(
+                Label::fixed(
+                    height_text(h, pole.unit),
+                    p,
+                    LabelKind::Pole,
+                    text,
+                    Align::Start,
+                )
+                .with_spots(vec![
+                    Spot::new(2.5 * tick, 0.5 * text, Align::Start),
+                    Spot::new(-2.5 * tick, 0.5 * text, Align::End),
+                ]),
+            );
             last_label = Some(p.y);
         }
     }
@@ -75,12 +87,12 @@ pub fn draw(
                 ImagePoint::new(p.x + 3.0 * tick, p.y),
             ]);
             let words = format!("EYE {}", height_text(eye_height, pole.unit));
-            letter(
-                &words,
-                ImagePoint::new(p.x - 3.5 * tick, p.y - 0.3 * text),
-                text,
-                Align::End,
-                out,
+            labels.push(
+                Label::fixed(words, p, LabelKind::Pole, text, Align::End).with_spots(vec![
+                    Spot::new(-3.5 * tick, -0.3 * text, Align::End),
+                    Spot::new(-3.5 * tick, 1.3 * text, Align::End),
+                    Spot::new(3.5 * tick, -0.3 * text, Align::Start),
+                ]),
             );
         }
     }
@@ -91,12 +103,13 @@ pub fn draw(
             Some(label) => format!("{label}: {away}"),
             None => away,
         };
-        letter(
-            &name,
-            ImagePoint::new(p.x, p.y - 0.8 * text),
-            text,
-            Align::Middle,
-            out,
+        labels.push(
+            Label::fixed(name, p, LabelKind::Pole, text, Align::Middle).with_spots(vec![
+                Spot::new(0.0, -0.8 * text, Align::Middle),
+                Spot::new(0.0, -2.0 * text, Align::Middle),
+                Spot::new(0.6 * text, -0.6 * text, Align::Start),
+                Spot::new(-0.6 * text, -0.6 * text, Align::End),
+            ]),
         );
     }
 }

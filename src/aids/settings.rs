@@ -1,7 +1,7 @@
 //! Which aids a drawing asks for, checked.
 
 use crate::error::{Error, Result};
-use crate::plane::Equirect;
+use crate::plane::{Equirect, Rect};
 use crate::scene::Guides;
 
 /// Which aids to draw, and how. `Default` is the plain underlay: the 10-degree grid and the
@@ -25,6 +25,14 @@ pub struct AidSettings {
     pub guides: Guides,
     /// Cap height of the lettering, pixels; by default a hundredth of the image height.
     pub text_height_px: Option<f64>,
+    /// Where labels may stand, image pixels: the part of the panorama shown (a band of
+    /// it); `None` for the whole image.
+    pub label_area: Option<Rect>,
+    /// Lines no label may cross, image pixels: x of vertical ones, y of horizontal ones
+    /// (the edges of tiled sheets).
+    pub label_cuts: (Vec<f64>, Vec<f64>),
+    /// A white halo behind labels, pixels each side of their strokes; `None` for none.
+    pub halo_px: Option<f64>,
 }
 
 impl Default for AidSettings {
@@ -38,6 +46,9 @@ impl Default for AidSettings {
             merge_deg: DEFAULT_MERGE_DEG,
             guides: Guides::default(),
             text_height_px: None,
+            label_area: None,
+            label_cuts: (Vec::new(), Vec::new()),
+            halo_px: None,
         }
     }
 }

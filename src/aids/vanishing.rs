@@ -11,7 +11,7 @@
 
 use super::marks::{degrees_text, normal_azimuth_deg, ring};
 use super::settings::AidSettings;
-use crate::drawing::{letter, Align};
+use crate::drawing::{Align, Label, LabelKind, Spot};
 use crate::plane::image_of_direction;
 use crate::plane::{Equirect, ImagePoint, PolylineSet};
 use crate::scene::{Guides, Site, SiteCurve};
@@ -212,13 +212,14 @@ fn label(d: &Vector3<f64>) -> String {
 }
 
 /// Marks both vanishing points of each direction: a ring with a short vertical stroke through
-/// it, and the bearing (and climb) above it.
+/// it, and the bearing (and climb) as a label beside it.
 pub fn draw(
     view: &ViewFrame,
     map: &Equirect,
     directions: &[Direction],
     text: f64,
     out: &mut PolylineSet,
+    labels: &mut Vec<Label>,
 ) {
     let radius = 0.6 * text;
     for direction in directions {
@@ -229,14 +230,21 @@ pub fn draw(
                 ImagePoint::new(p.x, p.y - 2.0 * radius),
                 ImagePoint::new(p.x, p.y + 2.0 * radius),
             ]);
-            let y = (p.y - 2.4 * radius).max(text + 1.0);
-            letter(
-                &label(&d),
-                ImagePoint::new(p.x, y),
-                text,
-                Align::Middle,
-                out,
-            );
+            let lift = 2.4 * radius;
+            labels.push(Label {
+                text: label(&d),
+                anchor: p,
+                kind: LabelKind::VanishingPoint,
+                height: text,
+                spots: vec![
+                    Spot::new(0.0, -lift, Align::Middle),
+                    Spot::new(0.0, lift + text, Align::Middle),
+                    Spot::new(1.6 * radius, -0.4 * text, Align::Start),
+                    Spot::new(-1.6 * radius, -0.4 * text, Align::End),
+                    Spot::new(1.6 * radius, text, Align::Start),
+                    Spot::new(-1.6 * radius, text, Align::End),
+                ],
+            });
         }
     }
 }

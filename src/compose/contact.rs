@@ -11,7 +11,7 @@ use crate::error::{Error, Result};
 use crate::page::{clip_and_move, Rect, Sheet};
 use crate::plane::{ImagePoint, PolylineSet};
 use crate::render::{draw, RenderSettings};
-use crate::scene::{Site, Standpoint};
+use crate::scene::{LocalMoment, Site, Standpoint};
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// The most thumbnails on one sheet.
@@ -26,6 +26,9 @@ pub struct ContactSettings {
     pub columns: Option<u32>,
     /// Pixels per inch of the sheet.
     pub dpi: f64,
+    /// The local date and time of the sun and shadows of each thumbnail, in order (a sweep
+    /// of times, [`sweep_times`]); thumbnails beyond the list keep `thumbnail`'s.
+    pub moments: Vec<LocalMoment>,
 }
 
 impl Default for ContactSettings {
@@ -39,6 +42,7 @@ impl Default for ContactSettings {
             },
             columns: None,
             dpi: 150.0,
+            moments: Vec::new(),
         }
     }
 }
@@ -63,6 +67,41 @@ pub fn sweep_headings(base: &Standpoint, from: f64, to: f64, step: f64) -> Resul
             }
         })
         .collect())
+}
+
+/// The same standpoint at local times from `from` to `to` (both on `day`, both included
+/// when the steps land on it) every `step_minutes`: the standpoints, named by their time,
+/// and the moments to put in [`ContactSettings::moments`].
+pub fn sweep_times(
+    base: &Standpoint,
+    day: &LocalMoment,
+    to: jiff::civil::Time,
+    step_minutes: f64,
+) -> Result<(Vec<Standpoint>, Vec<LocalMoment>)> {
+    let minutes = |t: jiff::civil::Time| t.hour() as f64 * 60.0 + t.minute() as f64;
+    let (from, to) = (minutes(day.time), minutes(to));
+    if !(step_minutes.is_finite() && step_minutes >= 1.0 && to >= from) {
+        return Err(Error::Setting(format!(
+            "times {} to {} every {step_minutes} minutes: need FROM <= TO and a step of a \
+             minute or more",
+            day.time, to
+        )));
+    }
+    let count = ((to - from) / step_minutes + 1e-9).floor() as usize + 1;
+    check_count(count)?;
+    let mut standpoints = Vec::with_capacity(count);
+    let mut moments = Vec::with_capacity(count);
+    for k in 0..count {
+        let m = (from + step_minutes * k as f64).round() as i64;
+        let time = jiff::civil::Time::new((m / 60) as i8, (m % 60) as i8, 0, 0)
+            .map_err(|e| Error::Setting(e.to_string()))?;
+        standpoints.push(Standpoint {
+            name: format!("{} {} {}", base.name, day.date, time.strftime("%H:%M")),
+            ..base.clone()
+        });
+        moments.push(day.at(time));
+    }
+    Ok((standpoints, moments))
 }
 
 /// `count` standpoints evenly spaced along the path through `points` (plan positions,
@@ -196,8 +235,15 @@ pub fn contact_sheet(
                         let Some(standpoint) = standpoints.get(k) else {
                             break;
                         };
-                        let drawing =
-                            draw(site, standpoint, &settings.thumbnail).map(|r| r.drawing);
+                        let drawing = match settings.moments.get(k) {
+                            None => draw(site, standpoint, &settings.thumbnail),
+                            Some(moment) => {
+                                let mut thumbnail = settings.thumbnail.clone();
+                                thumbnail.sun.moment = Some(*moment);
+                                draw(site, standpoint, &thumbnail)
+                            }
+                        }
+                        .map(|r| r.drawing);
                         mine.push((k, drawing));
                         progress(done.fetch_add(1, Ordering::Relaxed) + 1, n);
                     }
@@ -254,6 +300,7 @@ pub fn contact_sheet(
                     existing.lines.append(&mut lines);
                 }
                 None => layers.push(Layer {
+                    text: None,
                     name: layer.name,
                     stroke: layer.stroke,
                     lines,
@@ -294,11 +341,13 @@ pub fn contact_sheet(
         }
     }
     layers.push(Layer {
+        text: None,
         name: "frame".to_owned(),
         stroke: Stroke::black(0.7, 1.0),
         lines: frames,
     });
     layers.push(Layer {
+        text: None,
         name: "labels".to_owned(),
         stroke: Stroke::black(0.9, 1.0),
         lines: labels,

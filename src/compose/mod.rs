@@ -75,6 +75,8 @@ mod contact;
 mod plan;
 mod preview;
 
-pub use contact::{contact_sheet, sweep_grid, sweep_headings, sweep_path, ContactSettings};
+pub use contact::{
+    contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, ContactSettings,
+};
 pub use plan::{beside, plan_map, Plan, PlanSettings};
-pub use preview::{preview, Pinhole, PreviewSettings};
+pub use preview::{preview, preview_with_hidden_lines, Pinhole, PreviewSettings};

@@ -16,10 +16,13 @@ use crate::scene::{bounds, Site, SiteCurve, Standpoint};
 /// The size of the plan and its paper resolution.
 #[derive(Clone, Debug, PartialEq)]
 pub struct PlanSettings {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
     /// Pixels per inch: how big a pixel is on paper (SVG, PDF, PNG pHYs).
     pub dpi: f64,
+    /// Width of the edges' lines, pixels.
     pub line_weight_px: f64,
     /// Largest distance between a true arc and its drawn chords, pixels.
     pub tolerance_px: f64,
@@ -54,6 +57,7 @@ impl Default for PlanSettings {
 /// A plan map and the numbers it was drawn with.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Plan {
+    /// The plan's layers.
     pub drawing: Drawing,
     /// Pixels per site metre.
     pub px_per_metre: f64,
@@ -61,6 +65,7 @@ pub struct Plan {
     pub origin: (f64, f64),
     /// The scale bar's length, metres (a round number).
     pub bar_metres: f64,
+    /// Pixels per inch on paper.
     pub dpi: f64,
 }
 
@@ -97,6 +102,7 @@ impl Plan {
                     lines.push(&moved);
                 }
                 Layer {
+                    text: None,
                     name: layer.name.clone(),
                     stroke: layer.stroke,
                     lines,
@@ -281,6 +287,32 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
         &mut north,
     );
 
+    // True north beside it when the scene's plan is turned from it: the sun uses true north.
+    if let Some(bearing) = site
+        .location
+        .as_ref()
+        .map(|l| l.north_deg.to_radians())
+        .filter(|b| b.sin().abs() > 1e-9 || b.cos() < 0.0)
+    {
+        let (sx, sy) = (bearing.sin(), -bearing.cos());
+        let (cx, cy) = (nx - 1.6 * shaft, ny - 0.5 * shaft);
+        let at = |along: f64, side: f64| {
+            ImagePoint::new(
+                cx + shaft * (along * sx - side * sy),
+                cy + shaft * (along * sy + side * sx),
+            )
+        };
+        north.push(&[at(-0.5, 0.0), at(0.5, 0.0)]);
+        north.push(&[at(0.2, -0.2), at(0.5, 0.0), at(0.2, 0.2)]);
+        letter(
+            "TRUE N",
+            ImagePoint::new(cx - 0.7 * shaft, ny),
+            0.7 * letter_px,
+            Align::End,
+            &mut north,
+        );
+    }
+
     plan.drawing.layers = vec![
         layer(PLAN_EDGES, 1.0, weight, edges),
         layer(SEAMS, 0.7, weight, seams),
@@ -295,6 +327,7 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
 
 fn layer(name: &str, opacity: f64, width: f64, lines: PolylineSet) -> Layer {
     Layer {
+        text: None,
         name: name.to_owned(),
         stroke: Stroke::black(opacity, width),
         lines,
@@ -374,6 +407,7 @@ pub fn beside(left: &Sheet, right: &Sheet, gap_mm: f64) -> Result<Sheet> {
             lines.push(&moved);
         }
         layers.push(Layer {
+            text: None,
             name: layer.name.clone(),
             stroke: layer.stroke,
             lines,

@@ -6,10 +6,10 @@
 //! standpoint's heading and pitch; roll turns the image): a point `(x, y, z)` of the view
 //! frame in front of the eye lands at `u = cx + f x / y`, `v = cy - f z / y` with
 //! `f = (W / 2) / tan(fov / 2)`. This is the gnomonic projection of the viewing sphere
-//! onto the tangent plane at the view's centre (Snyder 1987, eq. 22-4 and 22-5), which
-//! `tests/composition.rs` checks. A segment's image is a segment, cut where it crosses the
-//! near plane; an elliptic arc is sampled until every chord is within the tolerance of
-//! the true image.
+//! onto the tangent plane at the view's centre (Snyder 1987: x and y by eq. 22-4 and 22-5,
+//! cos c by 5-3), which `tests/composition.rs` checks, with Snyder's worked example. A
+//! segment's image is a segment, cut where it crosses the near plane; an elliptic arc is
+//! sampled until every chord is within the tolerance of the true image.
 
 use crate::drawing::{dashed, hidden_dash_px, hidden_layer};
 use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
@@ -293,6 +293,22 @@ pub fn preview(
     standpoint: &Standpoint,
     settings: &PreviewSettings,
 ) -> Result<Drawing> {
+    preview_with_hidden_lines(
+        site,
+        &HiddenLines::new(site, settings.hidden),
+        standpoint,
+        settings,
+    )
+}
+
+/// [`preview`] with the hidden-line set-up made once by the caller
+/// (`HiddenLines::new(site, settings.hidden)`) and kept for many standpoints of one site.
+pub fn preview_with_hidden_lines(
+    site: &Site,
+    hidden_lines: &HiddenLines,
+    standpoint: &Standpoint,
+    settings: &PreviewSettings,
+) -> Result<Drawing> {
     if !(settings.line_weight_px.is_finite() && settings.line_weight_px > 0.0) {
         return Err(Error::Setting(format!(
             "line weight {} px must be more than 0",
@@ -303,7 +319,6 @@ pub fn preview(
     let (mut seen, mut hidden) = (Vec::new(), Vec::new());
     let eye = camera.view.eye();
     let outlines = site.outline_edges_from(&eye);
-    let hidden_lines = HiddenLines::new(site, settings.hidden);
     let occluders = hidden_lines.occluders(site, &camera.view);
     // The angle of a pixel at the picture's centre (smaller towards its edges).
     let pixel = 1.0 / camera.focal_px;
@@ -353,6 +368,7 @@ pub fn preview(
     }
     let width = settings.line_weight_px;
     let mut layers = vec![Layer {
+        text: None,
         name: "horizon".to_owned(),
         stroke: Stroke::black(0.5, 1.25),
         lines: horizon,
@@ -363,6 +379,7 @@ pub fn preview(
         layers.push(hidden_layer(dashed(&join(&hidden), on, off), width));
     }
     layers.push(Layer {
+        text: None,
         name: WIREFRAME.to_owned(),
         stroke: Stroke::black(1.0, width),
         lines: join(&seen),

@@ -2,12 +2,17 @@
 //! the overlays, that every output backend reads.
 
 mod dash;
+mod glyphs;
+pub mod labels;
 mod lettering;
 mod style;
 mod wireframe;
 
 pub use dash::dashed;
-pub use lettering::{letter, text_width, Align};
+pub use labels::{
+    label_layers, Label, LabelInk, LabelKind, LabelPlacer, Placed, PlacedLabel, Spot, HALO,
+};
+pub use lettering::{letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
@@ -23,6 +28,7 @@ pub struct Stroke {
     pub colour: [u8; 3],
     /// 0 = invisible, 1 = the full colour.
     pub opacity: f64,
+    /// Width of the line, pixels.
     pub width_px: f64,
 }
 
@@ -46,18 +52,28 @@ impl Stroke {
     }
 }
 
+/// Lines drawn alike, under a name that styles and vector layers use.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Layer {
+    /// The words, when the layer is one label (see [`labels`]): an SVG writes them beside
+    /// the strokes, and a page keeps the label whole or leaves it out.
+    pub text: Option<String>,
+    /// The layer's name (`wireframe`, `hidden`, `grid`, ...): styles are given by it.
     pub name: String,
+    /// How its lines are inked.
     pub stroke: Stroke,
+    /// Its polylines, in drawing pixels.
     pub lines: PolylineSet,
 }
 
 /// Layers in painting order over a `width` x `height` pixel panorama.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Drawing {
+    /// Pixels across.
     pub width: u32,
+    /// Pixels down.
     pub height: u32,
+    /// The layers, in painting order.
     pub layers: Vec<Layer>,
 }
 
@@ -76,6 +92,7 @@ pub const HIDDEN: &str = "hidden";
 /// lighter and thinner than the seen edges it goes under (dashed by [`hidden_dash_px`]).
 pub fn hidden_layer(lines: PolylineSet, line_weight_px: f64) -> Layer {
     Layer {
+        text: None,
         name: HIDDEN.to_owned(),
         stroke: Stroke::black(0.4, (0.75 * line_weight_px).max(0.75)),
         lines,
@@ -101,6 +118,7 @@ impl Drawing {
             .sum()
     }
 
+    /// How many points all the layers hold.
     pub fn vertex_count(&self) -> usize {
         self.layers.iter().map(|l| l.lines.vertex_count()).sum()
     }

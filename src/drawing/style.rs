@@ -100,6 +100,7 @@ mod tests {
         let mut lines = PolylineSet::new();
         lines.push(&[ImagePoint::new(0.0, 0.0), ImagePoint::new(100.0, 0.0)]);
         Layer {
+            text: None,
             name: name.to_owned(),
             stroke: Stroke::black(1.0, 1.0),
             lines,

@@ -12,8 +12,11 @@ use nalgebra::{Point3, Vector3};
 /// An edge left out because it has no drawable image from the standpoint.
 #[derive(Clone, Debug, PartialEq)]
 pub struct SkippedEdge {
+    /// The item the edge belongs to.
     pub item: ItemId,
+    /// Its index among the site's edges (eye-dependent edges numbered after them).
     pub edge_index: usize,
+    /// Why it has no image.
     pub why: Degeneracy,
 }
 
@@ -209,9 +212,11 @@ pub fn marker_cross(marker: &Marker, eye: &Point3<f64>, arm: f64) -> Vec<Edge> {
 /// site's layers (the first for items on no layer), and the edges left out.
 #[derive(Clone, Debug, Default)]
 pub struct Wireframe {
+    /// One set of polylines for each of the site's layers.
     pub layers: Vec<WireLayer>,
     /// The parts of edges hidden behind faces (empty unless hidden parts are looked for).
     pub hidden: PolylineSet,
+    /// Edges left out, with why.
     pub skipped: Vec<SkippedEdge>,
 }
 
@@ -222,11 +227,15 @@ pub struct Wireframe {
 pub enum Distance {
     /// Between near and far, or every edge when lines are not weighed by distance.
     Middle,
+    /// Nearer than [`NEAR_METRES`]: drawn heavier.
     Near,
+    /// Beyond [`FAR_METRES`]: drawn lighter.
     Far,
 }
 
+/// Edges nearer than this (metres, at their nearest point) are near.
 pub const NEAR_METRES: f64 = 8.0;
+/// Edges farther than this (metres, at their nearest point) are far.
 pub const FAR_METRES: f64 = 30.0;
 
 impl Distance {
@@ -266,8 +275,11 @@ impl Distance {
 /// The polylines of one site layer (`None`: items on no layer), in one band of distance.
 #[derive(Clone, Debug)]
 pub struct WireLayer {
+    /// The site layer (`None`: items on no layer).
     pub site_layer: Option<String>,
+    /// The distance band, when lines are weighed by distance.
     pub distance: Distance,
+    /// The polylines.
     pub lines: PolylineSet,
 }
 

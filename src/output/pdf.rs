@@ -190,6 +190,7 @@ mod tests {
                 width: 100,
                 height: 50,
                 layers: vec![Layer {
+                    text: None,
                     name: "wireframe".to_owned(),
                     stroke: Stroke {
                         colour: [255, 0, 0],

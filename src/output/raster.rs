@@ -208,7 +208,10 @@ impl Pen {
     fn of(stroke: Stroke, channels: usize) -> Pen {
         let thin = stroke.width_px.min(1.0);
         let opacity = stroke.opacity.clamp(0.0, 1.0);
-        let ink = if channels == 1 {
+        let ink = if stroke.colour == [255, 255, 255] {
+            // White paper laid over what is drawn (a label's halo): a negative ink.
+            [-255.0 * opacity; 3]
+        } else if channels == 1 {
             [255.0 * stroke.darkness() * thin; 3]
         } else {
             stroke.colour.map(|c| (255.0 - c as f64) * opacity * thin)
@@ -480,12 +483,18 @@ impl<const C: usize> Band<'_, C> {
 }
 
 /// Darkens each channel of a pixel to `255 - clamp(coverage) * ink`, rounded, if that is
-/// darker.
+/// darker; a negative ink (white, a halo) lightens it towards white instead.
 #[inline(always)]
 fn ink<const C: usize>(pixel: &mut [u8], coverage: f64, ink: &[f64; 3]) {
     let coverage = coverage.clamp(0.0, 1.0);
     for (channel, value) in pixel.iter_mut().zip(ink) {
-        *channel = (*channel).min((255.5 - coverage * value) as u8);
+        if *value >= 0.0 {
+            *channel = (*channel).min((255.5 - coverage * value) as u8);
+        } else {
+            // Knock-out: towards white by the coverage.
+            let c = *channel as f64;
+            *channel = (c + (255.0 - c) * coverage * (-value / 255.0) + 0.5) as u8;
+        }
     }
 }
 
@@ -536,6 +545,7 @@ mod tests {
             width: size.0,
             height: size.1,
             layers: vec![Layer {
+                text: None,
                 name: "test".to_owned(),
                 stroke: Stroke::black(1.0, width_px),
                 lines: set,

@@ -16,7 +16,8 @@ use std::io::{self, BufWriter, Write};
 ///
 /// Each layer becomes `<g id="…" data-layer="…">` (the id made from the layer's name, unique
 /// in the document; `data-layer` the name as it is) carrying the stroke: `#rrggbb` colour,
-/// opacity, width in mm, round caps and joins, no fill. The layers paint in order over a
+/// opacity, width in mm, round caps and joins, no fill. A layer that is one label also
+/// carries its words, as `data-text` and as a `<title>` (so editors show them). The layers paint in order over a
 /// white rectangle the size of the sheet.
 pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
     check_sheet(sheet).map_err(|message| io::Error::new(io::ErrorKind::InvalidInput, message))?;
@@ -41,10 +42,19 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
         let opacity = Mm(stroke.opacity.clamp(0.0, 1.0));
         write!(out, r#"<g id="{id}" data-layer=""#)?;
         write_escaped(&mut out, &layer.name)?;
+        if let Some(text) = &layer.text {
+            out.write_all(br#"" data-text=""#)?;
+            write_escaped(&mut out, text)?;
+        }
         writeln!(
             out,
             r##"" fill="none" stroke="#{r:02x}{g:02x}{b:02x}" stroke-opacity="{opacity}" stroke-width="{stroke_width}" stroke-linecap="round" stroke-linejoin="round">"##
         )?;
+        if let Some(text) = &layer.text {
+            out.write_all(b"<title>")?;
+            write_escaped(&mut out, text)?;
+            out.write_all(b"</title>\n")?;
+        }
         for line in layer.lines.iter() {
             let Some((first, rest)) = line.split_first() else {
                 continue;
@@ -59,8 +69,23 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
             // (SVG 1.1, implementation notes F.5), as the raster draws it.
             let rest = if rest.is_empty() { line } else { rest };
             out.write_all(b" L")?;
+            // Each point once: a point that rounds to the one before adds nothing.
+            let mut last = (
+                Mm(first.x * scale).to_string(),
+                Mm(first.y * scale).to_string(),
+            );
+            let mut wrote = false;
             for p in rest {
-                write!(out, " {} {}", Mm(p.x * scale), Mm(p.y * scale))?;
+                let here = (Mm(p.x * scale).to_string(), Mm(p.y * scale).to_string());
+                if here != last || (!wrote && std::ptr::eq(rest, line)) {
+                    write!(out, " {} {}", here.0, here.1)?;
+                    wrote = true;
+                }
+                last = here;
+            }
+            if !wrote {
+                // All of it rounds to one point: a dot, as a lone point is.
+                write!(out, " {} {}", last.0, last.1)?;
             }
             writeln!(out, r#""/>"#)?;
         }
@@ -159,6 +184,7 @@ mod tests {
         lines.push(&[ImagePoint::new(10.0, 20.0), ImagePoint::new(30.5, 40.25)]);
         lines.push(&[ImagePoint::new(5.0, 5.0)]);
         let layer = |name: &str, lines: PolylineSet| Layer {
+            text: None,
             name: name.to_owned(),
             stroke: Stroke {
                 colour: [255, 0, 16],

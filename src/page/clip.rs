@@ -2,25 +2,7 @@
 
 use crate::plane::{ImagePoint, PolylineSet};
 
-/// An axis-aligned rectangle in drawing pixels.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Rect {
-    /// The left edge.
-    pub left: f64,
-    /// The top edge (y grows downwards).
-    pub top: f64,
-    /// The right edge.
-    pub right: f64,
-    /// The bottom edge.
-    pub bottom: f64,
-}
-
-impl Rect {
-    /// Whether `p` lies inside or on the edge.
-    pub fn contains(&self, p: ImagePoint) -> bool {
-        p.x >= self.left && p.x <= self.right && p.y >= self.top && p.y <= self.bottom
-    }
-}
+pub use crate::plane::Rect;
 
 /// The part of the segment from `a` to `b` inside `rect`, as parameters `(t0, t1)` along
 /// it, if any (Liang and Barsky, "A new concept and method for line clipping", ACM

@@ -3,8 +3,12 @@
 //! several sheets when asked.
 
 use super::clip::{clip_and_move, Rect};
+use super::title::{title_block, title_layout, TitleLayout, GAP_MM};
 use super::{Paper, Sheet};
-use crate::drawing::{letter, Align, Drawing, Layer, Stroke};
+use crate::drawing::{
+    label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, Stroke,
+};
+use crate::error::{Error, Result};
 use crate::plane::{ImagePoint, PolylineSet};
 
 /// How the panorama goes on paper.
@@ -12,6 +16,7 @@ use crate::plane::{ImagePoint, PolylineSet};
 pub struct PageSettings {
     /// The sheet, already turned as wanted.
     pub paper: Paper,
+    /// The margin kept clear round the sheet, millimetres.
     pub margin_mm: f64,
     /// Pixels per inch of the raster output; also the precision of the vector outputs.
     pub dpi: f64,
@@ -20,6 +25,7 @@ pub struct PageSettings {
     /// The lines of the title block (scene, standpoint, ...); the scale is added to them.
     /// `None`: no title block.
     pub title: Option<Vec<String>>,
+    /// Several sheets to print and join, or `None` for one.
     pub tiles: Option<Tiling>,
 }
 
@@ -27,52 +33,66 @@ pub struct PageSettings {
 /// `overlap_mm` so that they can be trimmed and joined.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Tiling {
+    /// Sheets across.
     pub columns: u32,
+    /// Sheets down.
     pub rows: u32,
+    /// How far neighbouring sheets overlap, millimetres.
     pub overlap_mm: f64,
 }
 
 /// Where the panorama lands: the size to render it at (the whole sphere, `width` x
 /// `height` pixels at the page's resolution), the rows of it shown, and its top-left
 /// corner on the whole layout, in layout pixels.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct Placement {
+    /// Pixels across the whole sphere at the page's resolution.
     pub width: u32,
+    /// Pixels down the whole sphere.
     pub height: u32,
+    /// The first row of the band shown.
     pub band_top_px: f64,
+    /// The row after the band's last.
     pub band_bottom_px: f64,
+    /// The panorama's left edge on the layout, pixels.
     pub left_px: f64,
+    /// The band's top edge on the layout, pixels.
     pub top_px: f64,
+    /// The scale: millimetres of paper per degree of angle.
     pub mm_per_degree: f64,
     /// The whole layout (all sheets together), millimetres.
     pub layout_width_mm: f64,
+    /// The whole layout's height, millimetres.
     pub layout_height_mm: f64,
+    /// The title block's rows and size, if there is one, and its top-left corner
+    /// (layout millimetres).
+    pub title: Option<(TitleLayout, f64, f64)>,
 }
 
-/// Height of the title block, millimetres, and its gap above.
-const TITLE_MM: f64 = 16.0;
-const TITLE_GAP_MM: f64 = 3.0;
-/// Cap height of the title lettering, millimetres.
+/// Cap height of the sheet marks' lettering (tiled sheets), millimetres.
 const LETTER_MM: f64 = 2.5;
+/// Width of a label's white halo each side of its strokes, millimetres.
+pub const HALO_MM: f64 = 0.3;
 
 impl PageSettings {
+    /// Pixels per millimetre of paper.
     pub fn px_per_mm(&self) -> f64 {
         self.dpi / 25.4
     }
 
     /// Checks the settings and works out where the panorama goes.
-    pub fn place(&self) -> Result<Placement, String> {
+    pub fn place(&self) -> Result<Placement> {
         let (low, high) = self.band_deg;
         if !(low.is_finite() && high.is_finite() && -90.0 <= low && low < high && high <= 90.0) {
-            return Err(format!(
+            return Err(Error::Setting(format!(
                 "expected a band of elevations from low to high within -90..90 degrees, found {low}..{high}"
-            ));
+            )));
         }
         if !(self.dpi.is_finite() && (10.0..=2400.0).contains(&self.dpi)) {
-            return Err(format!(
+            return Err(Error::Setting(format!(
                 "expected a resolution from 10 to 2400 dpi, found {}",
                 self.dpi
-            ));
+            )));
         }
         let (columns, rows, overlap) = match self.tiles {
             Some(t) => (t.columns.max(1) as f64, t.rows.max(1) as f64, t.overlap_mm),
@@ -82,27 +102,38 @@ impl PageSettings {
         let printable_h = self.paper.height_mm - 2.0 * self.margin_mm;
         let margin_ok = self.margin_mm.is_finite() && self.margin_mm >= 0.0;
         if !margin_ok || printable_w <= 0.0 || printable_h <= 0.0 {
-            return Err(format!(
+            return Err(Error::Setting(format!(
                 "margins of {} mm leave nothing of a {} x {} mm sheet",
                 self.margin_mm, self.paper.width_mm, self.paper.height_mm
-            ));
+            )));
         }
         if overlap.is_nan() || overlap < 0.0 || overlap >= printable_w.min(printable_h) / 2.0 {
-            return Err(format!(
+            return Err(Error::Setting(format!(
                 "an overlap of {overlap} mm is more than half a sheet"
-            ));
+            )));
         }
         // The layout's printable area: the sheets' printable areas, overlapped.
         let area_w = columns * printable_w - (columns - 1.0) * overlap;
         let area_h = rows * printable_h - (rows - 1.0) * overlap;
-        let title = if self.title.is_some() {
-            TITLE_MM + TITLE_GAP_MM
-        } else {
-            0.0
-        };
+        // The title block spans the printable width of one sheet (on tiled sheets, the
+        // bottom-left one, so no tile edge crosses it), at the bottom of the area.
+        let block_w = area_w.min(printable_w);
+        let layout = self.title.as_ref().map(|fields| {
+            let mut all = fields.clone();
+            all.push(scale_line(0.0).replace('.', "0."));
+            title_layout(&all, block_w, area_w / 36.0)
+        });
+        let title = layout.as_ref().map_or(0.0, |l| l.height_mm + GAP_MM);
+        if title > printable_h - overlap {
+            return Err(Error::Setting(
+                "the title block leaves no room for the panorama".to_owned(),
+            ));
+        }
         let pano_h_room = area_h - title;
         if pano_h_room <= 0.0 {
-            return Err("the title block leaves no room for the panorama".to_owned());
+            return Err(Error::Setting(
+                "the title block leaves no room for the panorama".to_owned(),
+            ));
         }
         let span = high - low;
         let mm_per_degree = (area_w / 360.0).min(pano_h_room / span);
@@ -125,6 +156,10 @@ impl PageSettings {
             mm_per_degree: pano_w_mm / 360.0,
             layout_width_mm: area_w + 2.0 * self.margin_mm,
             layout_height_mm: area_h + 2.0 * self.margin_mm,
+            title: layout.map(|l| {
+                let top = self.margin_mm + area_h - l.height_mm;
+                (l, self.margin_mm, top)
+            }),
         })
     }
 
@@ -150,12 +185,42 @@ impl PageSettings {
         let mut frame_lines = PolylineSet::new();
         frame_lines.push(&rectangle(&frame));
         layers.push(Layer {
+            text: None,
             name: "frame".to_owned(),
             stroke: Stroke::black(0.7, (0.25 * px).max(1.0)),
             lines: frame_lines,
         });
-        if let Some(lines) = &self.title {
-            layers.push(self.title_block(lines, placement, frame.bottom));
+        if let (Some(fields), Some((plan, left_mm, top_mm))) = (&self.title, &placement.title) {
+            let mut all = fields.clone();
+            all.push(scale_line(placement.mm_per_degree));
+            let plan = title_layout(&all, plan.width_mm, 10.0 * placement.mm_per_degree)
+                .with_height_of(plan);
+            let block = title_block(
+                &plan,
+                ImagePoint::new(left_mm * px, top_mm * px),
+                px,
+                placement.mm_per_degree,
+            );
+            let stroke = Stroke::black(0.9, (0.25 * px).max(1.0));
+            layers.push(Layer {
+                text: None,
+                name: "scale bar".to_owned(),
+                stroke,
+                lines: block.bar,
+            });
+            for (stroke, lines) in block.samples {
+                layers.push(Layer {
+                    text: None,
+                    name: "legend".to_owned(),
+                    stroke,
+                    lines,
+                });
+            }
+            let ink = LabelInk {
+                stroke,
+                halo_px: None,
+            };
+            layers.extend(label_layers(&block.labels, ink));
         }
         let layout = Drawing {
             width: (placement.layout_width_mm * px).ceil() as u32,
@@ -170,58 +235,6 @@ impl PageSettings {
                 mm_per_px: 1.0 / px,
             }],
             Some(tiling) => self.cut(&layout, tiling),
-        }
-    }
-
-    /// The title block under the panorama: the given lines, the scale, and a scale bar
-    /// ten degrees long.
-    fn title_block(&self, lines: &[String], placement: &Placement, pano_bottom: f64) -> Layer {
-        let px = self.px_per_mm();
-        let mut strokes = PolylineSet::new();
-        let left = placement.left_px;
-        let top = pano_bottom + TITLE_GAP_MM * px;
-        let height = LETTER_MM * px;
-        let mut all: Vec<String> = lines.to_vec();
-        all.push(format!(
-            "SCALE 1\u{b0} = {:.3} MM; 10\u{b0} = {:.2} MM",
-            placement.mm_per_degree,
-            10.0 * placement.mm_per_degree
-        ));
-        for (row, text) in all.iter().take(4).enumerate() {
-            let baseline = top + height + row as f64 * 1.6 * height;
-            letter(
-                text,
-                ImagePoint::new(left, baseline),
-                height,
-                Align::Start,
-                &mut strokes,
-            );
-        }
-        // The scale bar at the right of the block, ticked every degree.
-        let bar = 10.0 * placement.mm_per_degree * px;
-        let right = left + placement.width as f64;
-        let y = top + 2.0 * height;
-        strokes.push(&[ImagePoint::new(right - bar, y), ImagePoint::new(right, y)]);
-        for degree in 0..=10 {
-            let x = right - bar + bar * degree as f64 / 10.0;
-            let tick = if degree % 5 == 0 {
-                height
-            } else {
-                height / 2.0
-            };
-            strokes.push(&[ImagePoint::new(x, y), ImagePoint::new(x, y - tick)]);
-        }
-        letter(
-            "10\u{b0}",
-            ImagePoint::new(right, y + 1.6 * height),
-            height,
-            Align::End,
-            &mut strokes,
-        );
-        Layer {
-            name: "title".to_owned(),
-            stroke: Stroke::black(0.9, (0.25 * px).max(1.0)),
-            lines: strokes,
         }
     }
 
@@ -310,18 +323,37 @@ impl PageSettings {
                     tiling.overlap_mm
                 );
                 let height = (LETTER_MM * px).min(margin * 0.4);
-                letter(
-                    &label,
-                    ImagePoint::new(margin, margin + printable_h + margin * 0.6),
+                let mut placer = LabelPlacer::new(
+                    Rect::from_ltrb(
+                        0.0,
+                        margin + printable_h,
+                        margin + printable_w / 2.0 - 2.0 * ring,
+                        margin + printable_h + margin,
+                    ),
+                    0.0,
+                );
+                placer.place(vec![Label::fixed(
+                    label,
+                    ImagePoint::new(
+                        margin + reach.max(height),
+                        margin + printable_h + margin * 0.6,
+                    ),
+                    LabelKind::Title,
                     height,
                     Align::Start,
-                    &mut marks,
-                );
+                )]);
+                let ink = LabelInk {
+                    stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
+                    halo_px: None,
+                };
+                let sheet_labels = label_layers(&placer.finish().labels, ink);
                 layers.push(Layer {
+                    text: None,
                     name: "sheet marks".to_owned(),
                     stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
                     lines: marks,
                 });
+                layers.extend(sheet_labels);
                 sheets.push(Sheet {
                     drawing: Drawing {
                         width: (self.paper.width_mm * px).ceil() as u32,
@@ -338,16 +370,59 @@ impl PageSettings {
     }
 }
 
-/// Every layer cut to `rect` and moved by `(dx, dy)`, keeping its name and stroke.
+/// Every layer cut to `rect` and moved by `(dx, dy)`, keeping its name and stroke. A label
+/// is kept whole or left out: never shown cut, where it could read as another word.
 fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
     layers
         .iter()
+        .filter(|layer| {
+            layer.text.is_none() || layer.lines.points().iter().all(|p| rect.contains(*p))
+        })
         .map(|layer| Layer {
+            text: layer.text.clone(),
             name: layer.name.clone(),
             stroke: layer.stroke,
             lines: clip_and_move(&layer.lines, rect, dx, dy),
         })
         .collect()
+}
+
+/// The scale written in the title block.
+fn scale_line(mm_per_degree: f64) -> String {
+    format!(
+        "SCALE 1\u{b0} = {:.3} MM; 10\u{b0} = {:.2} MM",
+        mm_per_degree,
+        10.0 * mm_per_degree
+    )
+}
+
+/// The label area and the cut lines for the panorama's labels on this page, in the
+/// panorama's pixels: the band shown, and the edges of the tiled sheets.
+pub fn label_frame(page: &PageSettings, placement: &Placement) -> (Rect, Vec<f64>, Vec<f64>) {
+    let px = page.px_per_mm();
+    let area = Rect::from_ltrb(
+        0.0,
+        placement.band_top_px,
+        placement.width as f64,
+        placement.band_bottom_px,
+    );
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    if let Some(t) = page.tiles {
+        let margin = page.margin_mm * px;
+        let pw = (page.paper.width_mm - 2.0 * page.margin_mm) * px;
+        let ph = (page.paper.height_mm - 2.0 * page.margin_mm) * px;
+        let overlap = t.overlap_mm * px;
+        let (dx, dy) = (placement.left_px, placement.top_px - placement.band_top_px);
+        for c in 0..t.columns {
+            let x0 = margin + c as f64 * (pw - overlap);
+            xs.extend([x0 - dx, x0 + pw - dx]);
+        }
+        for r in 0..t.rows {
+            let y0 = margin + r as f64 * (ph - overlap);
+            ys.extend([y0 - dy, y0 + ph - dy]);
+        }
+    }
+    (area, xs, ys)
 }
 
 /// The corners of a rectangle, closed.
@@ -408,9 +483,13 @@ mod tests {
     fn bad_settings_are_refused_in_words() {
         let mut settings = a3_landscape();
         settings.band_deg = (40.0, 10.0);
-        assert!(settings.place().unwrap_err().contains("band"));
+        assert!(settings.place().unwrap_err().to_string().contains("band"));
         let mut settings = a3_landscape();
         settings.margin_mm = 200.0;
-        assert!(settings.place().unwrap_err().contains("margins"));
+        assert!(settings
+            .place()
+            .unwrap_err()
+            .to_string()
+            .contains("margins"));
     }
 }

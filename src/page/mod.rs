@@ -44,10 +44,15 @@
 mod clip;
 mod layout;
 mod paper;
+mod title;
 
 pub use clip::{clip_and_move, clip_segment, Rect};
-pub use layout::{PageSettings, Placement, Tiling};
+pub use layout::{label_frame, PageSettings, Placement, Tiling, HALO_MM};
 pub use paper::{preset_names, Paper, MAX_SIDE_MM, MM_PER_INCH};
+pub use title::{
+    civil_date, title_block, title_layout, title_lines, today, wrap, TitleBlock, TitleLayout,
+    LEGEND, LETTER_MM, MIN_LETTER_MM,
+};
 
 use crate::drawing::Drawing;
 
@@ -56,9 +61,13 @@ use crate::drawing::Drawing;
 /// `width_mm` x `height_mm` (its drawing is that size in pixels, rounded up).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Sheet {
+    /// What is drawn on the sheet, in its own pixels.
     pub drawing: Drawing,
+    /// The sheet's width, millimetres.
     pub width_mm: f64,
+    /// The sheet's height, millimetres.
     pub height_mm: f64,
+    /// How big a pixel is on paper, millimetres.
     pub mm_per_px: f64,
 }
 

@@ -3,7 +3,9 @@
 /// A paper size in millimetres, portrait (width at most height) as the standards list them.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Paper {
+    /// Width, millimetres.
     pub width_mm: f64,
+    /// Height, millimetres.
     pub height_mm: f64,
 }
 
@@ -65,7 +67,7 @@ impl Paper {
 
     /// A preset name, or a size `WIDTHxHEIGHT` followed by `mm` (the default) or `in`:
     /// `a3`, `420x297mm`, `11x17in`.
-    pub fn parse(text: &str) -> Result<Paper, String> {
+    pub fn parse(text: &str) -> crate::Result<Paper> {
         if let Some(paper) = Paper::named(text) {
             return Ok(paper);
         }
@@ -86,11 +88,13 @@ impl Paper {
                 width_mm: w * unit,
                 height_mm: h * unit,
             }),
-            Some(_) => Err(format!("a sheet larger than {MAX_SIDE_MM} mm a side")),
-            None => Err(format!(
+            Some(_) => Err(crate::Error::Setting(format!(
+                "a sheet larger than {MAX_SIDE_MM} mm a side"
+            ))),
+            None => Err(crate::Error::Setting(format!(
                 "expected a paper name ({}) or a size such as 420x297mm or 11x17in, found \"{text}\"",
                 preset_names()
-            )),
+            ))),
         }
     }
 

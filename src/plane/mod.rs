@@ -4,7 +4,9 @@
 mod equirect;
 mod flatten;
 mod polyline;
+mod rect;
 
 pub use equirect::{image_of_direction, image_of_point, Equirect, ImagePoint};
 pub use flatten::{check_tolerance, flatten, Flattener, DEFAULT_TOLERANCE_PX, TOLERANCE_RANGE_PX};
 pub use polyline::PolylineSet;
+pub use rect::Rect;

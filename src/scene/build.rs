@@ -143,10 +143,35 @@ impl<'a> ItemBuilder<'a> {
         });
     }
 
+    /// Adds a placed road, to be joined with the others and drawn at the end.
+    pub fn add_road(&mut self, road: super::items::RoadLine) {
+        self.site.roads.push(road);
+    }
+
+    /// The site's sloping ground, if it has one.
+    pub fn ground(&self) -> Option<&super::ground::Ground> {
+        self.site.ground.as_ref()
+    }
+
+    /// The item being built.
+    pub fn item(&self) -> ItemId {
+        self.item
+    }
+
+    /// Where this builder puts the item's coordinates in the site.
+    pub fn placement(&self) -> Placement {
+        self.place
+    }
+
     /// Shapes given in a frame of their own: `offset` (in this builder's coordinates) is
     /// their origin and `turn` (radians clockwise seen from above) their rotation.
     pub fn move_by(&mut self, offset: Vector3<f64>, turn: f64) {
         self.place = self.place.then_move(offset, turn);
+    }
+
+    /// Metres per unit of the scene file: for items of true size, given in metres.
+    pub fn metres_per_unit(&self) -> f64 {
+        self.place.scale
     }
 
     pub fn segment(&mut self, start: Point3<f64>, end: Point3<f64>) {
@@ -292,6 +317,10 @@ impl<'a> ItemBuilder<'a> {
                 base: self.place.point(&base),
                 radius: self.place.length(radius),
                 height: self.place.length(height),
+            },
+            RoundOutline::Sphere { centre, radius } => RoundOutline::Sphere {
+                centre: self.place.point(&centre),
+                radius: self.place.length(radius),
             },
             RoundOutline::Dome { centre, radius } => RoundOutline::Dome {
                 centre: self.place.point(&centre),

@@ -63,13 +63,23 @@ pub fn expand(
         .location
         .as_ref()
         .map(super::location::Location::from_spec);
+    let ground_edges = match &file.ground {
+        Some(ground) => Some(super::ground::add_ground(&mut site, ground, unit).map_err(
+            |message| ExpandError::Field {
+                field: "ground",
+                message,
+            },
+        )?),
+        None => None,
+    };
+    site.sun = file.sun.clone();
     let frame = site.location.as_ref().map(|l| {
         super::opendata::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0)
     });
     site.standpoints = file
         .standpoints
         .iter()
-        .map(|s| standpoint(s, unit, frame.as_ref()))
+        .map(|s| standpoint(s, unit, frame.as_ref(), &site))
         .collect::<Result<_, _>>()?;
     if let Some(name) = &file.default_standpoint {
         match site.standpoints.iter().position(|s| &s.name == name) {
@@ -87,8 +97,18 @@ pub fn expand(
         scene_path,
         path: Vec::new(),
         visits: 0,
+        road_paths: Vec::new(),
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
+    let road_paths = std::mem::take(&mut walker.road_paths);
+    let roads = std::mem::take(&mut site.roads);
+    super::streets::draw_streets(&mut site, &roads).map_err(|e| ExpandError::Item {
+        path: road_paths[e.road].clone(),
+        message: e.message,
+    })?;
+    if let (Some(spec), Some(edges)) = (&file.ground, ground_edges) {
+        super::ground::draw_ground(&mut site, spec, edges);
+    }
     if let Some(guides) = &file.guides {
         site.guides =
             super::guides::resolve(guides, unit).map_err(|message| ExpandError::Field {
@@ -121,6 +141,9 @@ struct Walker<'a> {
     /// Items and copies visited so far, groups and repeats included, so that nested
     /// repeats of nothing cannot spin for hours either.
     visits: usize,
+    /// Where each road placed so far (`Site::roads`) is written; they are drawn together
+    /// at the end so that those that meet are joined.
+    road_paths: Vec<Vec<usize>>,
 }
 
 impl Walker<'_> {
@@ -199,6 +222,10 @@ impl Walker<'_> {
         if let Some(built) = item.build(&mut b) {
             built.map_err(|message| self.fail(message))?;
         }
+        // A road is placed, not drawn: it waits to be joined with the others.
+        while self.road_paths.len() < self.site.roads.len() {
+            self.road_paths.push(self.path.clone());
+        }
         self.check_size()
     }
 
@@ -251,6 +278,9 @@ impl Walker<'_> {
             label: label.clone(),
             source: Box::new(source),
         })?;
+        if !self.site.sources.contains(&path) {
+            self.site.sources.push(path.clone());
+        }
         let placement = MeshPlacement {
             up: model.up,
             unit: model.unit,
@@ -344,6 +374,8 @@ impl Walker<'_> {
                                 kerb: None,
                                 centre_line: CentreLine::default(),
                                 corner_radius: None,
+                                kerb_radius: None,
+                                crossing: None,
                             });
                             self.item(&road, metres, layer, None)?;
                             let id = ItemId(self.site.items.len() as u32 - 1);
@@ -362,12 +394,22 @@ impl Walker<'_> {
                     ..MeshPlacement::default()
                 };
                 add_mesh(self.site, &model.mesh, &placement, "");
-                for (item, (id, kind)) in
-                    self.site.items[first..].iter_mut().zip(&model.group_names)
-                {
-                    item.kind = "city object";
-                    item.label = Some(id.clone());
-                    item.layer = Some(layer.map_or_else(|| kind.clone(), str::to_owned));
+                // The mesh puts each group's faces on a layer named after the group (and
+                // makes no item for a group whose faces were all dropped).
+                let group_of: std::collections::HashMap<&str, usize> = model
+                    .mesh
+                    .groups
+                    .iter()
+                    .enumerate()
+                    .map(|(g, name)| (name.as_str(), g))
+                    .collect();
+                for item in &mut self.site.items[first..] {
+                    let group = item.layer.as_deref().and_then(|l| group_of.get(l));
+                    if let Some((id, kind)) = group.map(|&g| &model.group_names[g]) {
+                        item.kind = "city object";
+                        item.label = Some(id.clone());
+                        item.layer = Some(layer.map_or_else(|| kind.clone(), str::to_owned));
+                    }
                 }
             }
         }
@@ -390,6 +432,7 @@ fn standpoint(
     spec: &StandpointSpec,
     unit: f64,
     frame: Option<&super::opendata::LocalFrame>,
+    site: &Site,
 ) -> Result<Standpoint, ExpandError> {
     let field = |message: String| ExpandError::Field {
         field: "standpoints",
@@ -424,7 +467,10 @@ fn standpoint(
         name: spec.name.clone(),
         x,
         y,
-        ground: spec.ground.0 * unit,
+        ground: match spec.ground {
+            Some(ground) => ground.0 * unit,
+            None => super::ground::ground_height(site, x, y),
+        },
         eye_height,
         heading: spec.heading.0.to_radians(),
         pitch: spec.pitch.0.to_radians(),

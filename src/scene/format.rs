@@ -60,6 +60,12 @@ pub struct SceneFile {
     /// Where the plan's origin is on the earth (`location.rs`).
     #[serde(default)]
     pub location: Option<super::location::LocationSpec>,
+    /// Sloping ground from spot heights, contours and break lines (`ground.rs`).
+    #[serde(default)]
+    pub ground: Option<super::ground::GroundSpec>,
+    /// The date and local time of the sun and shadows drawn (`when.rs`).
+    #[serde(default)]
+    pub sun: Option<super::when::SunSpec>,
     pub items: Vec<ItemSpec>,
 }
 
@@ -85,8 +91,9 @@ pub struct StandpointSpec {
     pub latitude: Option<super::location::Latitude>,
     #[serde(default)]
     pub longitude: Option<super::location::Longitude>,
-    #[serde(default = "zero")]
-    pub ground: Finite,
+    /// Height of the ground under the viewer; on the scene's `ground` (or 0) if not given.
+    #[serde(default)]
+    pub ground: Option<Finite>,
     /// In the scene's unit; by default the posture's eye height.
     #[serde(default)]
     pub eye_height: Option<NonNegative>,

@@ -259,6 +259,21 @@ pub fn load_style_sheet(path: &Path) -> Result<StyleSheet> {
         })
 }
 
+/// The length of a scene file's unit in metres (`unit: Foot` gives 0.3048), for writing
+/// positions back into the file in its own unit.
+pub fn scene_unit_metres(bytes: &[u8], path: &Path) -> Result<f64> {
+    let text = text_of(bytes, path)?;
+    let options = ron::Options::default()
+        .with_default_extension(Extensions::IMPLICIT_SOME | Extensions::UNWRAP_VARIANT_NEWTYPES);
+    let file: SceneFile = options.from_str(text).map_err(|e| Error::Scene {
+        path: path.to_owned(),
+        line: e.span.start.line,
+        column: e.span.start.col,
+        message: explain(&e.code),
+    })?;
+    Ok(file.unit.metres())
+}
+
 /// The text of a RON file: UTF-8 (a binary file is refused where its first bad byte is),
 /// without a byte-order mark, which is legal UTF-8 but not RON.
 fn text_of<'a>(bytes: &'a [u8], path: &Path) -> Result<&'a str> {

@@ -8,6 +8,7 @@
 //! ```
 
 use super::numbers::{zero, Finite};
+use jiff::tz::{TimeZone, TimeZoneDatabase};
 use serde::{Deserialize, Deserializer};
 
 /// The `location` block as written in a scene file.
@@ -25,8 +26,9 @@ pub struct LocationSpec {
     /// plan's y axis is true north.
     #[serde(default = "zero")]
     pub north: Finite,
-    /// An IANA time-zone name such as "Europe/Paris", for local times.
-    #[serde(default)]
+    /// An IANA time-zone name such as "Europe/Paris", for local times; checked against the
+    /// database bundled with the program.
+    #[serde(default, deserialize_with = "zone_name")]
     pub time_zone: Option<String>,
 }
 
@@ -56,6 +58,37 @@ impl Location {
             time_zone: spec.time_zone.clone(),
         }
     }
+}
+
+fn zone_name<'de, D: Deserializer<'de>>(deserializer: D) -> Result<Option<String>, D::Error> {
+    let name = String::deserialize(deserializer)?;
+    find_time_zone(&name).map_err(serde::de::Error::custom)?;
+    Ok(Some(name))
+}
+
+/// The time zone of an IANA name in the database bundled with the program (so results do
+/// not depend on the machine's copy); an unknown name is refused with the nearest known one.
+pub fn find_time_zone(name: &str) -> crate::Result<TimeZone> {
+    static DATABASE: std::sync::OnceLock<TimeZoneDatabase> = std::sync::OnceLock::new();
+    let database = DATABASE.get_or_init(TimeZoneDatabase::bundled);
+    database.get(name).map_err(|_| {
+        let lower = name.to_lowercase();
+        let nearest = database
+            .available()
+            .map(|known| {
+                let known = known.as_str().to_owned();
+                (strsim::jaro_winkler(&known.to_lowercase(), &lower), known)
+            })
+            .filter(|(score, _)| *score > 0.8)
+            .max_by(|a, b| a.0.total_cmp(&b.0));
+        let hint = nearest.map_or(String::new(), |(_, known)| {
+            format!(" (did you mean \"{known}\"?)")
+        });
+        crate::Error::Sun(format!(
+            "\"{name}\" is not a time zone of the IANA database{hint}: expected a name such \
+             as \"Europe/Paris\" or \"America/Denver\""
+        ))
+    })
 }
 
 /// A latitude in degrees, from -90 to 90.
@@ -104,6 +137,21 @@ mod tests {
         assert_eq!(location.longitude_deg, -3.25);
         assert_eq!((location.height_m, location.north_deg), (0.0, 0.0));
         assert_eq!(location.time_zone, None);
+    }
+
+    #[test]
+    fn time_zones_are_checked_on_reading() {
+        let spec: LocationSpec =
+            ron::from_str("(latitude: 1, longitude: 2, time_zone: \"Asia/Tokyo\")").unwrap();
+        assert_eq!(spec.time_zone.as_deref(), Some("Asia/Tokyo"));
+        let error =
+            ron::from_str::<LocationSpec>("(latitude: 1, longitude: 2, time_zone: \"Asia/Tokio\")")
+                .unwrap_err()
+                .to_string();
+        assert!(
+            error.contains("not a time zone") && error.contains("Asia/Tokyo"),
+            "{error}"
+        );
     }
 
     #[test]

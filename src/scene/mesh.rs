@@ -42,9 +42,10 @@
 //! - **Layers**: each `g` group (or `o` object) becomes an item on a layer of that name, and
 //!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
 
-use super::obj::ObjFile;
+use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
 use super::site::{Face, ItemId, SilhouetteEdge, Site};
 use nalgebra::{Point3, Rotation3, Vector3};
+use std::collections::HashMap;
 
 /// Which axis of the file points up.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
@@ -59,11 +60,16 @@ pub enum UpAxis {
 /// Units of the file's coordinates.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
 pub enum Unit {
+    /// Metres.
     #[default]
     Metre,
+    /// Centimetres.
     Centimetre,
+    /// Millimetres.
     Millimetre,
+    /// Inches (25.4 mm exactly).
     Inch,
+    /// Feet (0.3048 m exactly).
     Foot,
 }
 
@@ -84,7 +90,9 @@ impl Unit {
 /// Where and how a mesh is placed in the site, and which of its edges are creases.
 #[derive(Clone, Debug, PartialEq)]
 pub struct MeshPlacement {
+    /// Which of the file's axes points up.
     pub up: UpAxis,
+    /// The unit of its coordinates.
     pub unit: Unit,
     /// Edges whose faces meet at more than this angle (degrees) are drawn as creases.
     pub crease_deg: f64,
@@ -96,9 +104,12 @@ pub struct MeshPlacement {
     pub offset: Vector3<f64>,
 }
 
-/// The default crease angle, degrees: corners of buildings are drawn, the facets of a
-/// smooth curved surface are not.
-pub const DEFAULT_CREASE_DEG: f64 = 30.0;
+/// The default crease angle, degrees, for edges the file says nothing about (no smoothing
+/// groups, no normals): corners of buildings are drawn, the facets of a smooth curved
+/// surface are not. 20 degrees keeps the eaves of a pyramid roof whose faces rise 63
+/// degrees (their normals are 27 degrees from the walls'), which 30 lost; a surface needs
+/// 18 or more facets around to stay smooth under it.
+pub const DEFAULT_CREASE_DEG: f64 = 20.0;
 
 impl Default for MeshPlacement {
     fn default() -> Self {
@@ -120,16 +131,23 @@ pub struct MeshStats {
     pub vertices: usize,
     /// Faces kept, and faces of no area left out.
     pub faces: usize,
+    /// Faces of no area left out.
     pub dropped_faces: usize,
     /// The triangles the kept faces make.
     pub triangles: usize,
     /// Distinct face edges, and how they were classed.
     pub edges: usize,
+    /// Edges of one face only (drawn).
     pub boundary: usize,
+    /// Edges where faces meet at a hard edge (drawn).
     pub creases: usize,
+    /// Edges of three or more faces (drawn).
     pub non_manifold: usize,
     /// Smooth edges that can become silhouettes.
     pub smooth: usize,
+    /// Edges between two faces that the file's smoothing groups or normals called smooth
+    /// or hard (the crease angle decided the rest).
+    pub by_file: usize,
     /// Segments of `l` polylines.
     pub line_segments: usize,
 }
@@ -141,8 +159,17 @@ const COPLANAR: f64 = 1e-6;
 /// Positions closer than this fraction of the model's bounding-box diagonal are welded.
 const WELD_FRACTION: f64 = 1e-7;
 
-/// Adds a mesh to the site: one item per group of the file (named `name` or `name: group`,
-/// with the group as its layer), its drawn edges, its silhouette candidates and its faces.
+/// Normals closer than this (as unit vectors) are the same normal: exporters that split a
+/// vertex write the same vector twice, to the digits they print.
+const SAME_NORMAL: f64 = 1e-5;
+
+/// The corner index given to a hole's edges in the sorted edge list: they belong to the face
+/// the hole is cut from, and the file gives them no normals.
+const HOLE_CORNER: u32 = u32::MAX >> 1;
+
+/// Adds a mesh to the site: one item per group and material of the file (named `name`,
+/// `name: group`, `name: group (material)`; its layer is the material where the face has
+/// one, else the group), its drawn edges, its silhouette candidates and its faces.
 pub fn add_mesh(
     site: &mut Site,
     obj: &ObjFile,
@@ -151,71 +178,84 @@ pub fn add_mesh(
 ) -> MeshStats {
     let positions = place(&obj.positions, placement);
     let mut used = vec![false; positions.len()];
-    let holes = obj.holes.iter().map(|(_, ring)| ring);
-    for indices in obj
-        .faces
+    let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
+    for &i in obj
+        .corners
         .iter()
-        .chain(&obj.lines)
-        .map(|(r, _)| r)
-        .chain(holes)
+        .chain(&obj.line_points)
+        .chain(hole_points)
     {
-        for &i in indices {
-            used[i as usize] = true;
-        }
+        used[i as usize] = true;
     }
     let (weld, vertices) = weld(&positions, &used);
-    let items: Vec<ItemId> = obj
-        .groups
-        .iter()
-        .map(|group| {
-            let label = if group.is_empty() {
-                name.to_owned()
-            } else {
-                format!("{name}: {group}")
-            };
-            site.add_item_on_layer(
-                "model",
-                Some(label),
-                (!group.is_empty()).then(|| group.clone()),
-            )
-        })
-        .collect();
+    let first_item = site.items.len() as u32;
+    let mut items: HashMap<(u32, u32), ItemId> = HashMap::new();
+    let mut item_of = |site: &mut Site, element: &ObjElement| -> ItemId {
+        *items
+            .entry((element.group, element.material))
+            .or_insert_with(|| {
+                let group = &obj.groups[element.group as usize];
+                let material = &obj.materials[element.material as usize];
+                let label = match (group.is_empty(), material.is_empty()) {
+                    (true, true) => name.to_owned(),
+                    (false, true) => format!("{name}: {group}"),
+                    (true, false) => format!("{name} ({material})"),
+                    (false, false) => format!("{name}: {group} ({material})"),
+                };
+                let layer = [material, group].into_iter().find(|s| !s.is_empty());
+                site.add_item_on_layer("model", Some(label), layer.cloned())
+            })
+    };
     let mut stats = MeshStats {
         vertices,
         ..MeshStats::default()
     };
     let points = representative(&weld, &positions, vertices);
 
-    // Holes, by face: welded rings without repeats.
-    let mut holes_of: std::collections::HashMap<u32, Vec<Vec<u32>>> =
-        std::collections::HashMap::new();
+    // Holes, by face: welded rings without repeats (CityJSON surfaces have them, OBJ none).
+    let mut holes_of: HashMap<u32, Vec<Vec<u32>>> = HashMap::new();
     for (face, ring) in &obj.holes {
         let ring = welded_ring(ring, &weld);
         if ring.len() >= 3 {
             holes_of.entry(*face).or_default().push(ring);
         }
     }
-    // Faces: welded corner lists without repeats, their normals, and their triangles.
-    let mut faces: Vec<(Vec<u32>, Vector3<f64>, ItemId)> = Vec::with_capacity(obj.faces.len());
+    // Faces: welded corner lists without repeats (flat, with each corner's normal index),
+    // their normals, and their triangles.
+    let mut faces: Vec<MeshFace> = Vec::with_capacity(obj.faces.len());
+    let mut corners: Vec<(u32, u32)> = Vec::with_capacity(obj.corners.len());
     let mut face_holes: Vec<(usize, Vec<u32>)> = Vec::new();
-    for (index, (corners, group)) in obj.faces.iter().enumerate() {
-        let welded = welded_ring(corners, &weld);
+    site.faces
+        .reserve(obj.corners.len().saturating_sub(2 * obj.faces.len()));
+    for (index, face) in obj.faces.iter().enumerate() {
+        let first = corners.len();
+        for (&c, &n) in obj.face_corners(face).iter().zip(obj.face_normals(face)) {
+            let w = weld[c as usize];
+            if corners.len() == first || corners.last().map(|l| l.0) != Some(w) {
+                corners.push((w, n));
+            }
+        }
+        while corners.len() > first + 1 && corners[first].0 == corners[corners.len() - 1].0 {
+            corners.pop();
+        }
+        let welded = &corners[first..];
         let normal = if welded.len() < 3 {
             None
         } else {
-            newell_normal(&welded, &points)
+            newell_normal(welded.iter().map(|c| c.0), welded.len(), &points)
         };
         let Some(normal) = normal else {
             stats.dropped_faces += 1;
+            corners.truncate(first);
             continue;
         };
-        let item = items[*group as usize];
+        let item = item_of(site, face);
         let p = |i: u32| points[i as usize];
         let holes = holes_of.remove(&(index as u32)).unwrap_or_default();
-        if holes.is_empty() && (welded.len() == 3 || is_convex_face(&welded, &points, &normal)) {
+        if holes.is_empty() && (welded.len() == 3 || is_convex_face(welded, &points, &normal)) {
             for k in 1..welded.len() - 1 {
                 site.faces.push(Face {
-                    corners: [p(welded[0]), p(welded[k]), p(welded[k + 1])],
+                    corners: [p(welded[0].0), p(welded[k].0), p(welded[k + 1].0)],
                     item,
                     slack: 0.0,
                 });
@@ -223,7 +263,7 @@ pub fn add_mesh(
             stats.triangles += welded.len() - 2;
         } else {
             // A concave face, or one with holes: the general triangulator.
-            let mut ring_points: Vec<Point3<f64>> = welded.iter().map(|&i| p(i)).collect();
+            let mut ring_points: Vec<Point3<f64>> = welded.iter().map(|&(i, _)| p(i)).collect();
             let mut hole_starts = Vec::with_capacity(holes.len());
             for hole in &holes {
                 hole_starts.push(ring_points.len());
@@ -240,34 +280,53 @@ pub fn add_mesh(
         for hole in holes {
             face_holes.push((faces.len(), hole));
         }
-        faces.push((welded, normal, item));
+        faces.push(MeshFace {
+            first: first as u32,
+            count: welded.len() as u32,
+            normal,
+            item,
+            smoothing: face.smoothing,
+        });
     }
     stats.faces = faces.len();
 
-    // Every face edge as (low, high, face, runs low -> high); sorted, equal edges are adjacent.
-    let mut face_edges: Vec<(u32, u32, u32, bool)> = Vec::with_capacity(faces.len() * 4);
-    let rings = faces
-        .iter()
-        .enumerate()
-        .map(|(f, (corners, _, _))| (f, corners))
-        .chain(face_holes.iter().map(|(f, ring)| (*f, ring)));
-    for (f, corners) in rings {
-        for k in 0..corners.len() {
-            let (a, b) = (corners[k], corners[(k + 1) % corners.len()]);
-            face_edges.push((a.min(b), a.max(b), f as u32, a < b));
+    // Every face edge as (low, high, face, corner index in the face * 2 + runs low -> high);
+    // sorted, equal edges are adjacent. A hole's edges belong to its face, at HOLE_CORNER.
+    let mut face_edges: Vec<(u32, u32, u32, u32)> = Vec::with_capacity(corners.len());
+    for (f, face) in faces.iter().enumerate() {
+        let welded = &corners[face.first as usize..(face.first + face.count) as usize];
+        for k in 0..welded.len() {
+            let (a, b) = (welded[k].0, welded[(k + 1) % welded.len()].0);
+            face_edges.push((
+                a.min(b),
+                a.max(b),
+                f as u32,
+                (k as u32) << 1 | (a < b) as u32,
+            ));
+        }
+    }
+    for (f, ring) in &face_holes {
+        for k in 0..ring.len() {
+            let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
+            face_edges.push((
+                a.min(b),
+                a.max(b),
+                *f as u32,
+                HOLE_CORNER << 1 | (a < b) as u32,
+            ));
         }
     }
     face_edges.sort_unstable();
     let crease = placement.crease_deg.to_radians();
     let mut start = 0;
     while start < face_edges.len() {
-        let (a, b, first_face, first_forward) = face_edges[start];
+        let (a, b, first_face, first_code) = face_edges[start];
         let mut end = start + 1;
         while end < face_edges.len() && face_edges[end].0 == a && face_edges[end].1 == b {
             end += 1;
         }
         stats.edges += 1;
-        let item = faces[first_face as usize].2;
+        let item = faces[first_face as usize].item;
         let (pa, pb) = (points[a as usize], points[b as usize]);
         match end - start {
             1 => {
@@ -275,29 +334,38 @@ pub fn add_mesh(
                 site.add_segment(item, pa, pb);
             }
             2 => {
-                let (_, _, second_face, second_forward) = face_edges[start + 1];
-                let n1 = faces[first_face as usize].1;
+                let (_, _, second_face, second_code) = face_edges[start + 1];
+                let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
+                let n1 = f1.normal;
                 // Consistently wound neighbours run a shared edge in opposite directions;
                 // where they do not, one of them is turned over.
-                let flip = if first_forward == second_forward {
+                let flip = if first_code & 1 == second_code & 1 {
                     -1.0
                 } else {
                     1.0
                 };
-                let n2 = faces[second_face as usize].1 * flip;
+                let n2 = f2.normal * flip;
                 // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
                 let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
-                if angle > crease {
-                    stats.creases += 1;
-                    site.add_segment(item, pa, pb);
-                } else if angle > COPLANAR {
-                    stats.smooth += 1;
-                    site.silhouette_candidates.push(SilhouetteEdge {
-                        start: pa,
-                        end: pb,
-                        normals: [n1, n2],
-                        item,
-                    });
+                if angle <= COPLANAR {
+                    // A triangulation diagonal or a subdivided flat wall: never drawn.
+                } else {
+                    let said = file_says_smooth(obj, &corners, (f1, first_code), (f2, second_code));
+                    if said.is_some() {
+                        stats.by_file += 1;
+                    }
+                    if !said.unwrap_or(angle <= crease) {
+                        stats.creases += 1;
+                        site.add_segment(item, pa, pb);
+                    } else {
+                        stats.smooth += 1;
+                        site.silhouette_candidates.push(SilhouetteEdge {
+                            start: pa,
+                            end: pb,
+                            normals: [n1, n2],
+                            item,
+                        });
+                    }
                 }
             }
             _ => {
@@ -308,14 +376,24 @@ pub fn add_mesh(
         start = end;
     }
 
-    for (line, group) in &obj.lines {
-        let item = items[*group as usize];
-        for pair in line.windows(2) {
+    for line in &obj.lines {
+        let item = item_of(site, line);
+        for pair in obj.line_indices(line).windows(2) {
             let (a, b) = (weld[pair[0] as usize], weld[pair[1] as usize]);
             if a != b {
                 site.add_segment(item, points[a as usize], points[b as usize]);
                 stats.line_segments += 1;
             }
+        }
+    }
+    let last_item = site.items.len() as u32;
+    // A closed surface (every edge between exactly two faces) is a solid one cannot stand in.
+    if stats.boundary == 0 && stats.non_manifold == 0 && stats.faces > 0 {
+        site.closed_models.push(first_item..last_item);
+    }
+    if let Some(&item) = items.values().min_by_key(|i| i.0) {
+        for warning in &obj.warnings {
+            site.warnings.push((item, warning.clone()));
         }
     }
     stats
@@ -334,16 +412,73 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
 
 /// Whether a face turns the same way at every corner about its normal (a fan of triangles
 /// from its first corner then covers it exactly).
-fn is_convex_face(corners: &[u32], points: &[Point3<f64>], normal: &Vector3<f64>) -> bool {
+fn is_convex_face(corners: &[(u32, u32)], points: &[Point3<f64>], normal: &Vector3<f64>) -> bool {
     let n = corners.len();
     (0..n).all(|k| {
         let (a, b, c) = (
-            points[corners[k] as usize],
-            points[corners[(k + 1) % n] as usize],
-            points[corners[(k + 2) % n] as usize],
+            points[corners[k].0 as usize],
+            points[corners[(k + 1) % n].0 as usize],
+            points[corners[(k + 2) % n].0 as usize],
         );
         (b - a).cross(&(c - b)).dot(normal) >= 0.0
     })
+}
+
+/// A face of the mesh after welding: its corners are `corners[first..first + count]`.
+struct MeshFace {
+    first: u32,
+    count: u32,
+    normal: Vector3<f64>,
+    item: ItemId,
+    smoothing: Smoothing,
+}
+
+/// Whether the file says two faces meet smoothly along their shared edge, `None` if it
+/// says nothing. `code` is the edge's corner index in the face times two, plus one if the
+/// face runs it from the lower vertex to the higher.
+///
+/// The normals decide where both faces give them at both ends: the same normal at each end
+/// (by index, or the same vector) is smooth, a split one is hard. Otherwise the smoothing
+/// groups: the same group is smooth; different groups, or no group (`s off`), hard.
+fn file_says_smooth(
+    obj: &ObjFile,
+    corners: &[(u32, u32)],
+    (f1, code1): (&MeshFace, u32),
+    (f2, code2): (&MeshFace, u32),
+) -> Option<bool> {
+    // Each face's normal indices at the edge's low and high vertex.
+    let ends = |face: &MeshFace, code: u32| {
+        let welded = &corners[face.first as usize..(face.first + face.count) as usize];
+        if code >> 1 == HOLE_CORNER {
+            return (NO_NORMAL, NO_NORMAL);
+        }
+        let k = (code >> 1) as usize;
+        let (start, next) = (welded[k].1, welded[(k + 1) % welded.len()].1);
+        if code & 1 == 1 {
+            (start, next)
+        } else {
+            (next, start)
+        }
+    };
+    let (low1, high1) = ends(f1, code1);
+    let (low2, high2) = ends(f2, code2);
+    if [low1, high1, low2, high2].iter().all(|&n| n != NO_NORMAL) {
+        let same = |i: u32, j: u32| {
+            i == j || {
+                let (a, b) = (obj.normals[i as usize], obj.normals[j as usize]);
+                match (a.try_normalize(0.0), b.try_normalize(0.0)) {
+                    (Some(a), Some(b)) => (a - b).norm() <= SAME_NORMAL,
+                    _ => false,
+                }
+            }
+        };
+        return Some(same(low1, low2) && same(high1, high2));
+    }
+    match (f1.smoothing, f2.smoothing) {
+        (Smoothing::Unsaid, _) | (_, Smoothing::Unsaid) => None,
+        (Smoothing::Group(a), Smoothing::Group(b)) => Some(a == b),
+        _ => Some(false),
+    }
 }
 
 /// The file's positions in the site frame: axes, units, scale, turn, offset.
@@ -416,14 +551,16 @@ fn representative(weld: &[u32], positions: &[Point3<f64>], count: usize) -> Vec<
 
 /// The unit normal of a polygon by Newell's method, `None` for a polygon of no area (its
 /// doubled area below a billionth of its longest edge squared: a sliver or a line).
-fn newell_normal(corners: &[u32], points: &[Point3<f64>]) -> Option<Vector3<f64>> {
+fn newell_normal(
+    corners: impl Iterator<Item = u32> + Clone,
+    count: usize,
+    points: &[Point3<f64>],
+) -> Option<Vector3<f64>> {
     let mut n: Vector3<f64> = Vector3::zeros();
     let mut longest_sq = 0.0f64;
-    for k in 0..corners.len() {
-        let (a, b) = (
-            points[corners[k] as usize],
-            points[corners[(k + 1) % corners.len()] as usize],
-        );
+    let next = corners.clone().cycle().skip(1);
+    for (a, b) in corners.zip(next).take(count) {
+        let (a, b) = (points[a as usize], points[b as usize]);
         n.x += (a.y - b.y) * (a.z + b.z);
         n.y += (a.z - b.z) * (a.x + b.x);
         n.z += (a.x - b.x) * (a.y + b.y);
@@ -635,6 +772,119 @@ mod tests {
         assert_eq!(stats.non_manifold, 1, "the edge 1-2 has three faces");
         assert_eq!(stats.line_segments, 2);
         let layers: Vec<Option<&str>> = site.items.iter().map(|i| i.layer.as_deref()).collect();
-        assert_eq!(layers, vec![None, Some("fin"), Some("mast")]);
+        assert_eq!(layers, vec![Some("fin"), Some("mast")]);
+    }
+
+    /// A square tower of side 2 and height 4 with a pyramid roof whose faces rise
+    /// `pitch_deg` from the horizontal, quads and triangles wound outwards, z up.
+    fn tower(pitch_deg: f64) -> String {
+        let apex = 4.0 + pitch_deg.to_radians().tan();
+        format!(
+            "v 0 0 0\nv 2 0 0\nv 2 2 0\nv 0 2 0\nv 0 0 4\nv 2 0 4\nv 2 2 4\nv 0 2 4\nv 1 1 {apex}\n\
+             f 1 4 3 2\nf 1 2 6 5\nf 2 3 7 6\nf 3 4 8 7\nf 4 1 5 8\n\
+             f 5 6 9\nf 6 7 9\nf 7 8 9\nf 8 5 9\n"
+        )
+    }
+
+    #[test]
+    fn the_default_crease_keeps_the_eaves_of_a_steep_pyramid_roof() {
+        // Faces rising 63 degrees meet the walls at 27 degrees between normals (90 - 63),
+        // the case of the issue; 30 degrees lost the eaves.
+        let (site, stats) = import(&tower(63.0), &z_up());
+        // 4 base + 4 corners + 4 eaves + 4 hips.
+        assert_eq!((stats.creases, stats.smooth, stats.boundary), (16, 0, 0));
+        assert_eq!(site.edges.len(), 16);
+        let old = MeshPlacement {
+            crease_deg: 30.0,
+            ..z_up()
+        };
+        assert_eq!(import(&tower(63.0), &old).1.creases, 12);
+        // Closed: one solid, and a standpoint inside it is found.
+        assert_eq!(site.closed_models, vec![0..1]);
+        let inside = crate::scene::solids_enclosing(&site, &Point3::new(1.0, 1.0, 1.6));
+        assert_eq!(inside, vec![ItemId(0)]);
+        assert!(crate::scene::solids_enclosing(&site, &Point3::new(5.0, 1.0, 1.6)).is_empty());
+    }
+
+    #[test]
+    fn smoothing_groups_decide_whatever_the_angle() {
+        // The whole cylinder in one group: sides smooth, and the caps' rims too (a rounded
+        // can): no creases at all.
+        let text = format!("s 1\n{}", cylinder(64));
+        let (site, stats) = import(&text, &z_up());
+        assert_eq!((stats.creases, stats.smooth, stats.by_file), (0, 192, 192));
+        assert!(site.edges.is_empty());
+        // Caps in their own groups: the rims come back, the sides stay smooth.
+        let mut text = String::from("s 1\n");
+        for line in cylinder(64).lines() {
+            if line.starts_with("f") && line.split_whitespace().count() > 5 {
+                text.push_str("s 2\n");
+            }
+            text.push_str(line);
+            text.push('\n');
+        }
+        let (_, stats) = import(&text, &z_up());
+        assert_eq!((stats.creases, stats.smooth), (128, 64));
+        // `s off` (no smoothing group, by the Wavefront appendix): every facet is hard,
+        // 5.6 degrees apart and all.
+        let (_, stats) = import(&format!("s off\n{}", cylinder(64)), &z_up());
+        assert_eq!((stats.creases, stats.smooth), (192, 0));
+        let (_, stats) = import(&format!("s 0\n{}", cylinder(64)), &z_up());
+        assert_eq!((stats.creases, stats.smooth), (192, 0));
+        // The tower's roof in one group with the walls: the eaves and hips are smooth
+        // (silhouettes only), though the crease angle would draw them.
+        let (_, stats) = import(&format!("s 3\n{}", tower(63.0)), &z_up());
+        assert_eq!((stats.creases, stats.smooth), (0, 16));
+    }
+
+    #[test]
+    fn normals_decide_where_both_faces_give_them() {
+        // Two quads folded 10 degrees (below any crease angle) along x = 1.
+        let fold = |normals: &str, faces: &str| {
+            let z = 10f64.to_radians().tan();
+            format!("v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nv 2 0 {z}\nv 2 1 {z}\n{normals}{faces}")
+        };
+        // Split normals along the fold: hard.
+        let split = fold(
+            "vn 0 0 1\nvn -0.17 0 0.98\n",
+            "f 1//1 2//1 3//1 4//1\nf 2//2 5//2 6//2 3//2\n",
+        );
+        let (site, stats) = import(&split, &z_up());
+        assert_eq!((stats.creases, stats.by_file), (1, 1));
+        assert_eq!(site.edges.len(), 7);
+        // Shared (averaged) normals at both ends of the fold, though written twice: smooth.
+        let shared = fold(
+            "vn 0 0 1\nvn -0.17 0 0.98\nvn -0.087 0 0.996\nvn -0.087 0 0.996\n",
+            "f 1//1 2//3 3//4 4//1\nf 2//3 5//2 6//2 3//3\n",
+        );
+        let (_, stats) = import(&shared, &z_up());
+        assert_eq!((stats.creases, stats.smooth, stats.by_file), (0, 1, 1));
+        // Normals beat smoothing groups; without normals the groups decide.
+        let (_, stats) = import(&format!("s 1\n{split}"), &z_up());
+        assert_eq!(stats.creases, 1);
+        let plain = fold("", "s 1\nf 1 2 3 4\ns 2\nf 2 5 6 3\n");
+        assert_eq!(import(&plain, &z_up()).1.creases, 1);
+        // A fold of 10 degrees with nothing said: the crease angle leaves it smooth.
+        let bare = fold("", "f 1 2 3 4\nf 2 5 6 3\n");
+        assert_eq!(import(&bare, &z_up()).1.creases, 0);
+    }
+
+    #[test]
+    fn materials_and_groups_become_items_and_layers() {
+        let text = "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\ng wall\nusemtl brick\nf 1 2 3\ng roof\nf 1 3 4\nusemtl slate\nf 1 2 4\n";
+        let (site, _) = import(text, &z_up());
+        let items: Vec<(Option<&str>, Option<&str>)> = site
+            .items
+            .iter()
+            .map(|i| (i.label.as_deref(), i.layer.as_deref()))
+            .collect();
+        assert_eq!(
+            items,
+            [
+                (Some("t.obj: wall (brick)"), Some("brick")),
+                (Some("t.obj: roof (brick)"), Some("brick")),
+                (Some("t.obj: roof (slate)"), Some("slate")),
+            ]
+        );
     }
 }

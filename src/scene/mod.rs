@@ -10,6 +10,7 @@ mod curve;
 mod expand;
 mod file;
 mod format;
+mod ground;
 mod guides;
 mod items;
 mod load;
@@ -21,23 +22,26 @@ mod obj;
 mod opendata;
 mod outline;
 mod site;
+pub mod streets;
 mod style;
 mod suggest;
 mod survey;
+mod when;
 
 pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
-pub use file::MAX_INPUT_BYTES;
+pub use file::{read_input, MAX_INPUT_BYTES};
+pub use ground::{Ground, GroundDraw};
 pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{
     load_obj, load_obj_timed, load_open_data, load_scene, load_scene_timed, load_style_sheet,
-    parse_scene, parse_scene_timed, LoadTimings,
+    parse_scene, parse_scene_timed, scene_unit_metres, LoadTimings,
 };
-pub use location::{Location, LocationSpec};
+pub use location::{find_time_zone, Location, LocationSpec};
 pub use mesh::{add_mesh, MeshPlacement, MeshStats, Unit, UpAxis, DEFAULT_CREASE_DEG};
-pub use obj::{parse_obj, ObjFile};
+pub use obj::{parse_obj, ObjElement, ObjFile, Smoothing, NO_NORMAL};
 pub use opendata::{
     curvature_drop, radius_of_curvature, read_cityjson, read_geojson, read_open_data, CityModel,
     DataKind, GeoJsonScene, Heights, LocalFrame, OpenData, OpenDataContent, OpenDataError,
@@ -51,3 +55,4 @@ pub use site::{
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};
+pub use when::{parse_date, parse_time, LocalMoment, SunSpec, YEARS};

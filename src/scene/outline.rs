@@ -36,6 +36,13 @@ pub enum RoundOutline {
         /// Its radius.
         radius: f64,
     },
+    /// A whole sphere (a tree's crown).
+    Sphere {
+        /// Its centre.
+        centre: Point3<f64>,
+        /// Its radius.
+        radius: f64,
+    },
 }
 
 /// The points where the two tangents from `from` touch the circle of `radius` about
@@ -96,6 +103,9 @@ impl RoundOutline {
             RoundOutline::Dome { centre, radius } => {
                 dome_rim(centre, radius, eye).into_iter().collect()
             }
+            RoundOutline::Sphere { centre, radius } => {
+                sphere_rim(centre, radius, eye).into_iter().collect()
+            }
         }
     }
 }
@@ -147,6 +157,34 @@ fn cone_generators(
 /// The lines of sight from an eye at distance D from the centre touch a sphere of radius R
 /// on a circle of radius R sqrt(1 - R^2 / D^2) whose centre lies R^2 / D from the sphere's
 /// centre towards the eye (the tangent cone; same right-angle fact as for a circle).
+/// The whole rim of a sphere seen from `eye`: the circle where the cone of sight lines
+/// from the eye touches it, centred r^2 / d from the centre towards the eye, of radius
+/// r sqrt(d^2 - r^2) / d (right angle between radius and tangent, any geometry handbook).
+fn sphere_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteCurve> {
+    let towards = eye - centre;
+    let distance = towards.norm();
+    if distance <= radius * (1.0 + 1e-12) {
+        return None;
+    }
+    let n = towards / distance;
+    let rim_centre = centre + n * (radius * radius / distance);
+    let rim_radius = radius * ((distance - radius) * (distance + radius)).sqrt() / distance;
+    let horizontal = Vector3::new(-n.y, n.x, 0.0);
+    let u = if horizontal.norm() < 1e-12 {
+        Vector3::x()
+    } else {
+        horizontal.normalize()
+    };
+    let v = n.cross(&u);
+    Some(SiteCurve::Ellipse {
+        centre: rim_centre,
+        u: u * rim_radius,
+        v: v * rim_radius,
+        start: 0.0,
+        sweep: 2.0 * PI,
+    })
+}
+
 fn dome_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteCurve> {
     let towards = eye - centre;
     let distance = towards.norm();

@@ -210,6 +210,19 @@ pub struct Site {
     pub guides: super::guides::Guides,
     /// Where the plan's origin is on the earth, if the scene says.
     pub location: Option<super::location::Location>,
+    /// Roads placed but not yet drawn: they are joined where they meet and drawn together
+    /// (`streets::draw_streets`) once every road is known, which leaves this empty.
+    pub roads: Vec<super::items::RoadLine>,
+    /// The sloping ground, if the scene has one.
+    pub ground: Option<super::ground::Ground>,
+    /// The date and local time of the sun and shadows the scene asks for.
+    pub sun: Option<super::when::SunSpec>,
+    /// The items of each mesh whose surface is closed (every edge between two faces),
+    /// together a solid that one cannot stand in.
+    pub closed_models: Vec<std::ops::Range<u32>>,
+    /// The files the site was read from besides the scene itself (the models it names), for
+    /// `watch` to watch.
+    pub sources: Vec<std::path::PathBuf>,
 }
 
 impl Site {

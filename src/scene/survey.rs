@@ -36,6 +36,9 @@ pub struct Survey {
     pub bounds: Option<(Point3<f64>, Point3<f64>)>,
     /// What each standpoint looks like from the site, in file order.
     pub standpoints: Vec<StandpointCheck>,
+    /// The box holding the sloping ground, if the scene has one: its plan extent and its
+    /// lowest and highest points.
+    pub ground: Option<(Point3<f64>, Point3<f64>)>,
 }
 
 /// What `check` says of one standpoint.
@@ -69,6 +72,7 @@ pub fn survey(site: &Site) -> Survey {
             .iter()
             .map(|s| check_standpoint(site, s))
             .collect(),
+        ground: site.ground.as_ref().map(|g| (g.min, g.max)),
     }
 }
 
@@ -78,7 +82,7 @@ fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
         name: standpoint.name.clone(),
         eye,
         inside: solids_enclosing(site, &eye),
-        underground: eye.z < 0.0,
+        underground: eye.z < super::ground::ground_height(site, eye.x, eye.y),
     }
 }
 
@@ -86,16 +90,32 @@ fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
 /// number of times (the parity rule of point-in-polyhedron tests). The ray's direction is
 /// fixed and oblique so that it does not run along the level and upright faces of
 /// buildings.
+///
+/// A closed mesh counts as one solid, named by its first item, whatever groups and
+/// materials split it into (a group alone, a roof say, need not be closed).
 pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
     let ray = Vector3::new(0.280_573, 0.496_614, 0.821_411).normalize();
     let mut crossings: BTreeMap<u32, usize> = BTreeMap::new();
+    // Each item's solid: itself for solid kinds, its mesh's first item for closed meshes.
+    let mut solid_of: Vec<Option<u32>> = site
+        .items
+        .iter()
+        .enumerate()
+        .map(|(i, item)| SOLID_KINDS.contains(&item.kind).then_some(i as u32))
+        .collect();
+    for model in &site.closed_models {
+        for item in model.clone() {
+            if let Some(solid) = solid_of.get_mut(item as usize) {
+                *solid = Some(model.start);
+            }
+        }
+    }
     for face in &site.faces {
-        let solid = site
-            .items
-            .get(face.item.0 as usize)
-            .is_some_and(|item| SOLID_KINDS.contains(&item.kind));
-        if solid && ray_hits_triangle(point, &ray, &face.corners) {
-            *crossings.entry(face.item.0).or_insert(0) += 1;
+        let solid = solid_of.get(face.item.0 as usize).copied().flatten();
+        if let Some(solid) = solid {
+            if ray_hits_triangle(point, &ray, &face.corners) {
+                *crossings.entry(solid).or_insert(0) += 1;
+            }
         }
     }
     crossings

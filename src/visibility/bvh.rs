@@ -120,9 +120,6 @@ impl Bvh {
         limit: f64,
         blocks: impl Fn(&Face, f64) -> bool,
     ) -> Option<u32> {
-        if self.nodes.is_empty() {
-            return None;
-        }
         let o = [origin.x as f32, origin.y as f32, origin.z as f32];
         let inverse = [
             (1.0 / direction.x) as f32,
@@ -132,42 +129,20 @@ impl Bvh {
         // f32 rounding of the ray itself is absorbed by a little slack on the boxes.
         let pad = 1e-5 * (1.0 + origin.coords.abs().max() as f32);
         let limit32 = limit as f32 * (1.0 + 1e-5) + pad;
-        let mut stack = [0u32; 64];
-        let mut depth = 1;
-        while depth > 0 {
-            depth -= 1;
-            let at = stack[depth];
-            let node = &self.nodes[at as usize];
-            if !ray_meets_box(&o, &inverse, &node.lo, &node.hi, pad, limit32) {
-                continue;
-            }
-            if node.count > 0 {
-                let first = node.index as usize;
-                for &index in &self.order[first..first + node.count as usize] {
-                    let face = &faces[index as usize];
-                    if let Some(distance) = ray_hits_triangle(origin, direction, &face.corners) {
-                        if distance < limit && blocks(face, distance) {
-                            return Some(index);
-                        }
-                    }
-                }
-            } else if depth + 2 <= stack.len() {
-                // Both children; the first one (stored right after its parent) on top.
-                stack[depth] = node.index;
-                stack[depth + 1] = at + 1;
-                depth += 2;
-            }
-        }
-        None
+        self.search(
+            |node| ray_meets_box(&o, &inverse, &node.lo, &node.hi, pad, limit32),
+            |index| {
+                let face = &faces[index as usize];
+                ray_hits_triangle(origin, direction, &face.corners)
+                    .is_some_and(|distance| distance < limit && blocks(face, distance))
+            },
+        )
     }
 
     /// Whether any face crosses the triangle `wedge` (a fan of sight lines from the eye to a
     /// piece of an edge): if none does, nothing stands between the eye and that piece.
     /// Faces in the wedge's own plane are seen edge-on and do not count.
     pub fn crosses(&self, faces: &[Face], wedge: &[Point3<f64>; 3]) -> bool {
-        if self.nodes.is_empty() {
-            return false;
-        }
         let mut lo = wedge[0].coords;
         let mut hi = lo;
         for p in wedge {
@@ -177,32 +152,46 @@ impl Bvh {
         let (lo, hi) = outward(lo, hi);
         let normal = (wedge[1] - wedge[0]).cross(&(wedge[2] - wedge[0]));
         let offset = normal.dot(&wedge[0].coords);
+        self.search(
+            |node| {
+                let apart = (0..3).any(|k| node.hi[k] < lo[k] || node.lo[k] > hi[k]);
+                !apart && box_meets_plane(node, &normal, offset)
+            },
+            |i| triangles_cross(&faces[i as usize].corners, wedge),
+        )
+        .is_some()
+    }
+
+    /// The one traversal both questions share: depth first through the nodes whose box
+    /// `meets`, testing the faces of each leaf reached with `hit`; the first face for which
+    /// `hit` holds, if any.
+    fn search(&self, meets: impl Fn(&Node) -> bool, hit: impl Fn(u32) -> bool) -> Option<u32> {
+        if self.nodes.is_empty() {
+            return None;
+        }
         let mut stack = [0u32; 64];
         let mut depth = 1;
         while depth > 0 {
             depth -= 1;
             let at = stack[depth];
             let node = &self.nodes[at as usize];
-            let apart = (0..3).any(|k| node.hi[k] < lo[k] || node.lo[k] > hi[k]);
-            if apart || !box_meets_plane(node, &normal, offset) {
+            if !meets(node) {
                 continue;
             }
             if node.count > 0 {
                 let first = node.index as usize;
                 let leaf = &self.order[first..first + node.count as usize];
-                if leaf
-                    .iter()
-                    .any(|&i| triangles_cross(&faces[i as usize].corners, wedge))
-                {
-                    return true;
+                if let Some(&index) = leaf.iter().find(|&&i| hit(i)) {
+                    return Some(index);
                 }
             } else if depth + 2 <= stack.len() {
+                // Both children; the first one (stored right after its parent) on top.
                 stack[depth] = node.index;
                 stack[depth + 1] = at + 1;
                 depth += 2;
             }
         }
-        false
+        None
     }
 }
 
@@ -345,5 +334,33 @@ mod tests {
                 );
             }
         }
+    }
+
+    #[test]
+    fn wedges_cross_the_faces_a_brute_force_search_finds() {
+        let faces: Vec<Face> = (0..300)
+            .map(|i| {
+                let mut f = triangle(1.0 + (i % 11) as f64 * 0.4, (i % 17) as f64 * 0.9 - 7.0);
+                for p in &mut f.corners {
+                    p.y += (i / 17) as f64 * 0.8 - 7.0;
+                    p.z += 0.3 * p.x.sin();
+                }
+                f
+            })
+            .collect();
+        let bvh = Bvh::new(&faces);
+        let eye = Point3::new(0.3, -0.2, 0.0);
+        let mut crossed = 0;
+        for k in 0..400 {
+            let a = k as f64 * 0.61;
+            let p = Point3::new(6.0 * a.cos(), 6.0 * a.sin(), 1.0 + (k % 13) as f64 * 0.4);
+            let q = p + Vector3::new(0.7 * (k as f64).sin(), 0.9, 0.2 * (k % 3) as f64);
+            let wedge = [eye, p, q];
+            let brute = faces.iter().any(|f| triangles_cross(&f.corners, &wedge));
+            assert_eq!(bvh.crosses(&faces, &wedge), brute, "wedge {k}");
+            crossed += brute as usize;
+        }
+        // Both answers are exercised.
+        assert!(crossed > 20 && crossed < 380, "{crossed}");
     }
 }

@@ -8,7 +8,7 @@ mod commands;
 
 use args::{Cli, Command};
 use clap::Parser;
-use commands::{angles, check, new, plan, preview, render, sheet, watch};
+use commands::{angles, check, daylight, explore, new, plan, preview, render, sheet, watch};
 use pansite::output::interrupt::{abandon_temporaries, completed_writes};
 use pansite::Error;
 use std::process::ExitCode;
@@ -49,6 +49,8 @@ fn main() -> ExitCode {
         Command::Plan(args) => plan::plan(&args),
         Command::Preview(args) => preview::preview_command(&args),
         Command::Watch(args) => watch::watch(&args),
+        Command::Daylight(args) => daylight::daylight(&args),
+        Command::Explore(args) => explore::explore(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

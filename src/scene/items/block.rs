@@ -4,7 +4,9 @@
 use super::super::build::{plan_direction, ItemBuilder};
 use super::super::numbers::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
-use super::walls::{openings_in_wall, OpeningsSpec, WallChoice};
+use super::walls::{
+    openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
+};
 use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 use std::f64::consts::PI;
@@ -91,12 +93,19 @@ pub struct BlockSpec {
     /// Height of the block's foot.
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the ground at the
+    /// block's lowest corner, and the walls run down into the slope (hidden by it).
+    #[serde(default)]
+    pub on_ground: bool,
     #[serde(default)]
     pub roof: RoofSpec,
     #[serde(default)]
     pub parapet: Option<ParapetSpec>,
     #[serde(default)]
     pub openings: Vec<OpeningsSpec>,
+    /// Round windows (oculi), on walls named as for `openings`.
+    #[serde(default)]
+    pub round_windows: Vec<RoundWindowSpec>,
     /// Heights of storey lines (string courses) above the base.
     #[serde(default)]
     pub storeys: Vec<Positive>,
@@ -208,7 +217,31 @@ fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: 
 pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
-    b.move_by(Vector3::new(corner.x, corner.y, block.base.0), turn);
+    let mut base = block.base.0;
+    if block.on_ground {
+        let frame = b
+            .placement()
+            .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+        let Some(ground) = b.ground() else {
+            return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+        };
+        let mut lowest = f64::INFINITY;
+        for p in rectangle_plan(width, depth) {
+            let q = frame.point(&Point3::new(p.x, p.y, 0.0));
+            match ground.height_at(q.x, q.y) {
+                Some(z) => lowest = lowest.min(z),
+                None => {
+                    return Err(format!(
+                        "stands on the ground, but its corner at ({:.2}, {:.2}) lies \
+                         outside the ground",
+                        q.x, q.y
+                    ))
+                }
+            }
+        }
+        base += (lowest - frame.shift.z) / frame.scale;
+    }
+    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");
         let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)
@@ -280,6 +313,81 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
             openings[wall].extend(openings_in_wall(spec, &walls[wall])?);
         }
     }
+    for spec in &block.round_windows {
+        for wall in rectangle_walls(spec.wall)? {
+            openings[wall].push(round_window_in_wall(spec, &walls[wall], false)?);
+        }
+    }
     let storeys: Vec<f64> = block.storeys.iter().map(|s| s.0).collect();
     build_mass(b, &mass, &walls, &openings, &storeys)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::super::site::Site;
+    use super::super::checks::{built, edge_counts, unpaired_sides};
+    use super::*;
+
+    fn block(openings: &str) -> BlockSpec {
+        let text = format!(
+            "(at: Corner(0, 0), width: 12, depth: 8, height: 7, roof: Gable(ridge: 10), {openings})"
+        );
+        ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
+            .from_str(&text)
+            .unwrap_or_else(|e| panic!("{text}: {e}"))
+    }
+
+    fn build(spec: &BlockSpec) -> Result<Site, String> {
+        built("block", |b| build_block(b, spec))
+    }
+
+    #[test]
+    fn shaped_heads_with_reveals_surrounds_and_sills_keep_the_block_closed() {
+        assert_eq!(unpaired_sides(&build(&block("")).unwrap()), 0);
+        for head in [
+            "Square",
+            "Semicircular",
+            "Segmental(rise: 0.3)",
+            "Pointed()",
+            "Pointed(rise: 1.2)",
+            "Elliptical(rise: 0.4)",
+            "ThreeCentred(rise: 0.4)",
+        ] {
+            let spec = block(&format!(
+                "openings: [(wall: Front, count: 2, width: 1.2, height: 2.4, sill: 1, \
+                 reveal: 0.25, head: {head}, surround: 0.15, sill_projection: 0.06), \
+                 (wall: Right, width: 1.2, height: 2.4, sill: 1, reveal: 0.25, head: {head}, \
+                 surround: 0.15, sill_projection: 0.06)], \
+                 round_windows: [(wall: Front, centre: 5.5, diameter: 1.4, reveal: 0.3, \
+                 surround: 0.1)]"
+            ));
+            let site = build(&spec).unwrap_or_else(|e| panic!("{head}: {e}"));
+            assert_eq!(unpaired_sides(&site), 0, "{head}: the block is not closed");
+        }
+    }
+
+    #[test]
+    fn a_round_headed_window_draws_its_arcs_exactly() {
+        // One window on the front, a half circle over jambs; with a reveal the arc is
+        // drawn on the face and at the back, with a surround once more: 3 arcs. A round
+        // window adds a circle on the face, at the back and round its surround.
+        let plain = build(&block("")).unwrap();
+        let spec = block(
+            "openings: [(wall: Front, width: 1, height: 2, sill: 1, reveal: 0.2, \
+             head: Semicircular, surround: 0.1)], \
+             round_windows: [(wall: Front, along: 2, centre: 5, diameter: 1, reveal: 0.2, \
+             surround: 0.1)]",
+        );
+        let site = build(&spec).unwrap();
+        assert_eq!(edge_counts(&site).1 - edge_counts(&plain).1, 6);
+    }
+
+    #[test]
+    fn a_head_taller_than_the_opening_is_refused() {
+        let spec =
+            block("openings: [(wall: Front, width: 2, height: 0.9, sill: 1, head: Semicircular)]");
+        let error = build(&spec).unwrap_err();
+        assert!(error.contains("head"), "{error}");
+    }
 }

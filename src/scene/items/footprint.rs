@@ -6,7 +6,9 @@ use super::super::numbers::{plan, zero, Finite, NonNegative, Plan, Positive};
 use super::block::ParapetSpec;
 use super::mass::{build_mass, Mass};
 use super::plan::{is_convex, simple_polygon_problem, twice_signed_area};
-use super::walls::{openings_in_wall, OpeningsSpec, WallChoice};
+use super::walls::{
+    openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
+};
 use nalgebra::{Vector2, Vector3};
 use serde::Deserialize;
 
@@ -43,6 +45,9 @@ pub struct FootprintSpec {
     /// Walls are named `Side(n)`, side n running from corner n to the next; or `All`.
     #[serde(default)]
     pub openings: Vec<OpeningsSpec>,
+    /// Round windows, on walls named as for `openings`.
+    #[serde(default)]
+    pub round_windows: Vec<RoundWindowSpec>,
     #[serde(default)]
     pub storeys: Vec<Positive>,
 }
@@ -105,8 +110,8 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
     };
     let walls = mass.walls();
     let mut openings = vec![Vec::new(); n];
-    for opening in &spec.openings {
-        let sides: Vec<usize> = match opening.wall {
+    let sides_of = |wall: WallChoice| -> Result<Vec<usize>, String> {
+        Ok(match wall {
             WallChoice::All => (0..n).collect(),
             WallChoice::Side(k) if (1..=n as u32).contains(&k.0) => {
                 // Reversing the corners makes the user's side k run the other way between
@@ -124,9 +129,16 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
                     "a footprint's walls are named Side(1) to Side({n}) or All, not {other:?}"
                 ))
             }
-        };
-        for side in sides {
+        })
+    };
+    for opening in &spec.openings {
+        for side in sides_of(opening.wall)? {
             openings[side].extend(openings_in_wall(opening, &walls[side])?);
+        }
+    }
+    for window in &spec.round_windows {
+        for side in sides_of(window.wall)? {
+            openings[side].push(round_window_in_wall(window, &walls[side], reversed)?);
         }
     }
     let storeys: Vec<f64> = spec.storeys.iter().map(|s| s.0).collect();

@@ -59,12 +59,14 @@ mod barrel;
 mod block;
 #[cfg(test)]
 mod checks;
+mod figures;
 mod footprint;
 mod group;
+mod heads;
 mod marks;
 mod mass;
 mod model;
-mod plan;
+pub mod plan;
 mod road;
 mod room;
 mod round;
@@ -75,13 +77,19 @@ mod walls;
 
 pub use arch::{build_arcade, ArcadeSpec};
 pub use block::{build_block, BlockSpec};
+pub use figures::{build_car, build_figure, build_tree, CarSpec, FigureSpec, TreeSpec};
 pub use footprint::{build_footprint, FootprintSpec};
 pub use group::{GroupSpec, RepeatSpec};
 pub use marks::{build_line, build_point, build_polyline, LineSpec, PointSpec, PolylineSpec};
 pub use mass::{build_mass, Mass};
 pub use model::ModelSpec;
 pub use plan::{clip_polygon, is_convex, simple_polygon_problem, turn_angle, twice_signed_area};
-pub use road::{build_road, CentreLine, RoadSpec};
+#[cfg(test)]
+pub use road::road_line;
+pub use road::{
+    build_road, draw_kerb, draw_pavement_back, draw_piece, CentreLine, Piece, PieceEnd, RoadLine,
+    RoadSpec,
+};
 pub use room::{build_room, RoomSpec};
 pub use round::{build_column, build_dome, build_tower, ColumnSpec, DomeSpec, TowerSpec};
 pub use stairs::{build_stairs, StairsSpec};
@@ -162,6 +170,9 @@ item_kinds! {
         Polyline: "polyline", PolylineSpec, build_polyline;
         Line: "line", LineSpec, build_line;
         Point: "point", PointSpec, build_point;
+        Figure: "figure", FigureSpec, build_figure;
+        Car: "car", CarSpec, build_car;
+        Tree: "tree", TreeSpec, build_tree;
     }
     holding {
         Group: "group", GroupSpec;

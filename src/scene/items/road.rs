@@ -14,8 +14,9 @@
 //! square across a straight part is level. A section through the middle of a corner is
 //! level too, so the road is never tilted sideways (no superelevation).
 
-use super::super::build::{ellipse_points, facet_count, ItemBuilder};
-use super::super::numbers::{plan, Finite, Plan, Positive, MAX_COUNT};
+use super::super::build::{ellipse_points, facet_count, ItemBuilder, Placement};
+use super::super::numbers::{plan, Finite, NonNegative, Plan, Positive, MAX_COUNT};
+use super::super::site::ItemId;
 use super::plan::{dash_spans, left_of, offset_polyline, turn_angle, Fillet, PathPiece};
 use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
@@ -60,6 +61,46 @@ pub struct RoadSpec {
     /// Radius of the centreline round each corner.
     #[serde(default)]
     pub corner_radius: Option<Positive>,
+    /// Radius of the kerb's circular return round each corner of a junction this road
+    /// meets (the smaller of the two roads' radii where both give one); without one on
+    /// either road the kerbs meet in a sharp corner.
+    #[serde(default)]
+    pub kerb_radius: Option<Positive>,
+    /// Stripes of a pedestrian crossing across the carriageway at each junction the road
+    /// opens into.
+    #[serde(default)]
+    pub crossing: Option<CrossingSpec>,
+}
+
+/// A pedestrian crossing: stripes along the road, side by side across the carriageway.
+#[derive(Clone, Copy, Debug, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct CrossingSpec {
+    /// Length of each stripe along the road (3 if not given).
+    #[serde(default = "three")]
+    pub depth: Positive,
+    /// Width of each stripe (0.5 if not given).
+    #[serde(default = "half")]
+    pub stripe: Positive,
+    /// Gap between stripes (0.5 if not given).
+    #[serde(default = "half")]
+    pub gap: Positive,
+    /// How far from the mouth of the junction, where the kerb returns end, the stripes
+    /// begin (1 if not given).
+    #[serde(default = "one")]
+    pub set_back: NonNegative,
+}
+
+fn three() -> Positive {
+    Positive(3.0)
+}
+
+fn half() -> Positive {
+    Positive(0.5)
+}
+
+fn one() -> NonNegative {
+    NonNegative(1.0)
 }
 
 /// A piece of one of the road's lines, with the heights at its start and end (the same
@@ -163,6 +204,28 @@ struct Centreline {
 impl Centreline {
     fn new(spec: &RoadSpec) -> Result<Centreline, String> {
         let points: Vec<Vector2<f64>> = spec.points.iter().map(plan).collect();
+        let heights = match &spec.elevations {
+            None => vec![0.0; points.len()],
+            Some(elevations) if elevations.len() == points.len() => {
+                elevations.iter().map(|e| e.0).collect()
+            }
+            Some(elevations) => {
+                return Err(format!(
+                    "`elevations` has {} heights but `points` has {} points: give one \
+                     height for each point",
+                    elevations.len(),
+                    points.len()
+                ))
+            }
+        };
+        Centreline::from_parts(points, heights, spec.corner_radius.map(|r| r.0))
+    }
+
+    fn from_parts(
+        points: Vec<Vector2<f64>>,
+        heights: Vec<f64>,
+        corner_radius: Option<f64>,
+    ) -> Result<Centreline, String> {
         let n = points.len();
         if n < 2 {
             return Err(format!(
@@ -178,17 +241,6 @@ impl Centreline {
                 ));
             }
         }
-        let heights = match &spec.elevations {
-            None => vec![0.0; n],
-            Some(elevations) if elevations.len() == n => elevations.iter().map(|e| e.0).collect(),
-            Some(elevations) => {
-                return Err(format!(
-                    "`elevations` has {} heights but `points` has {n} points: give one \
-                     height for each point",
-                    elevations.len()
-                ))
-            }
-        };
         let mut fillets = vec![None; n];
         for j in 1..n - 1 {
             let turn = turn_angle(points[j - 1], points[j], points[j + 1]);
@@ -200,8 +252,8 @@ impl Centreline {
                     j + 1
                 ));
             }
-            if let Some(radius) = spec.corner_radius {
-                fillets[j] = Fillet::round(points[j - 1], points[j], points[j + 1], radius.0);
+            if let Some(radius) = corner_radius {
+                fillets[j] = Fillet::round(points[j - 1], points[j], points[j + 1], radius);
             }
         }
         let centreline = Centreline {
@@ -311,14 +363,265 @@ impl Centreline {
     }
 }
 
+/// A road resolved into site coordinates (metres), ready to be joined with the others at
+/// the junctions where they meet ([`crate::scene`]'s street network) and drawn.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RoadLine {
+    pub item: ItemId,
+    pub points: Vec<Vector2<f64>>,
+    pub heights: Vec<f64>,
+    pub half_width: f64,
+    pub pavement: f64,
+    pub kerb: f64,
+    pub centre_line: CentreLine,
+    pub corner_radius: Option<f64>,
+    pub kerb_radius: Option<f64>,
+    pub crossing: Option<CrossingSpec>,
+}
+
+impl RoadLine {
+    /// How far the road reaches to each side of its centreline, pavements included.
+    pub fn reach(&self) -> f64 {
+        self.half_width + self.pavement
+    }
+}
+
+/// Checks a road as written and places it in the site. Nothing is drawn yet: a road is
+/// drawn once every road of the scene is known, so that those that meet are joined.
 pub fn build_road(b: &mut ItemBuilder, spec: &RoadSpec) -> Result<(), String> {
+    let road = road_line(b, spec)?;
+    b.add_road(road);
+    Ok(())
+}
+
+/// A road as written, checked and placed in the site.
+pub fn road_line(b: &ItemBuilder, spec: &RoadSpec) -> Result<RoadLine, String> {
     let centreline = Centreline::new(spec)?;
+    // The lines must fit round the road's own corners.
     let half = spec.width.0 / 2.0;
-    let kerb = spec.kerb.map_or(0.0, |k| k.0);
     let pavement = spec.pavement.map_or(0.0, |p| p.0);
+    for offset in [half, -half, half + pavement, -half - pavement] {
+        centreline.line(offset)?;
+    }
+    let place: Placement = b.placement();
+    let length = |l: f64| place.length(l);
+    let scaled = |p: Positive| Positive(length(p.0));
+    let mut points = centreline
+        .points
+        .iter()
+        .zip(&centreline.heights)
+        .map(|(p, &h)| place.point(&at(*p, h)))
+        .collect::<Vec<_>>();
+    if let (None, Some(ground)) = (&spec.elevations, b.ground()) {
+        points = on_ground(&points, ground);
+    }
+    Ok(RoadLine {
+        item: b.item(),
+        heights: points.iter().map(|p| p.z).collect(),
+        points: points.iter().map(|p| Vector2::new(p.x, p.y)).collect(),
+        half_width: length(half),
+        pavement: length(pavement),
+        kerb: spec.kerb.map_or(0.0, |k| length(k.0)),
+        centre_line: match spec.centre_line {
+            CentreLine::Dashed { dash, gap } => CentreLine::Dashed {
+                dash: scaled(dash),
+                gap: scaled(gap),
+            },
+            other => other,
+        },
+        corner_radius: spec.corner_radius.map(|r| length(r.0)),
+        kerb_radius: spec.kerb_radius.map(|r| length(r.0)),
+        crossing: spec.crossing.map(|c| CrossingSpec {
+            depth: scaled(c.depth),
+            stripe: scaled(c.stripe),
+            gap: scaled(c.gap),
+            set_back: NonNegative(length(c.set_back.0)),
+        }),
+    })
+}
+
+/// A centreline without heights laid on the ground: a point where it crosses each edge of
+/// the ground's triangles, and every point at the ground's height there (0 off the ground).
+fn on_ground(points: &[Point3<f64>], ground: &crate::scene::Ground) -> Vec<Point3<f64>> {
+    let plan_of = |p: &Point3<f64>| Vector2::new(p.x, p.y);
+    let height = |q: Vector2<f64>| ground.height_at(q.x, q.y).unwrap_or(0.0);
+    let mut laid = Vec::with_capacity(points.len());
+    for pair in points.windows(2) {
+        let (a, b) = (plan_of(&pair[0]), plan_of(&pair[1]));
+        laid.push(at(a, height(a)));
+        for t in ground.bends(a, b) {
+            let q = a + (b - a) * t;
+            laid.push(at(q, height(q)));
+        }
+    }
+    let last = plan_of(&points[points.len() - 1]);
+    laid.push(at(last, height(last)));
+    laid
+}
+
+/// One end of a piece of road: open (the road stops there) or opening into a junction.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum PieceEnd {
+    Open,
+    /// Each line starts this far along the piece from the junction's centre (negative:
+    /// it reaches back past it), `[left, right]` as seen looking from the junction along
+    /// the piece; the centre line and crossing start at `mouth`, where the kerb returns end.
+    Junction {
+        edge: [f64; 2],
+        back: [f64; 2],
+        mouth: f64,
+    },
+}
+
+/// A stretch of a road between two of its ends or junctions.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Piece {
+    pub points: Vec<Vector2<f64>>,
+    pub heights: Vec<f64>,
+    pub ends: [PieceEnd; 2],
+}
+
+impl Piece {
+    /// Where the line `side` (+1 left, -1 right of the piece's direction) starts and ends,
+    /// measured from each end; `back` for the back of the pavement.
+    fn trims(&self, side: f64, back: bool) -> (f64, f64) {
+        let trim = |end: PieceEnd, left_is_left: bool| match end {
+            PieceEnd::Open => 0.0,
+            PieceEnd::Junction {
+                edge, back: rear, ..
+            } => {
+                let lines = if back { rear } else { edge };
+                let left = (side > 0.0) == left_is_left;
+                lines[if left { 0 } else { 1 }]
+            }
+        };
+        (trim(self.ends[0], true), trim(self.ends[1], false))
+    }
+
+    fn mouths(&self) -> (f64, f64) {
+        let mouth = |end: PieceEnd| match end {
+            PieceEnd::Open => 0.0,
+            PieceEnd::Junction { mouth, .. } => mouth,
+        };
+        (mouth(self.ends[0]), mouth(self.ends[1]))
+    }
+}
+
+/// The runs cut to start `from` after the first run's start and end `to` before the last
+/// run's end; a negative distance reaches back along the end's straight direction. On
+/// failure, the straight length that was there to be cut into.
+fn cut_runs(runs: &[Run], from: f64, to: f64) -> Result<Vec<Run>, (bool, f64)> {
+    let lengths: Vec<f64> = runs.iter().map(|r| r.piece.length()).collect();
+    let total: f64 = lengths.iter().sum();
+    let tolerance = 1e-9 * (total + from.abs() + to.abs());
+    let straight = |run: Option<&Run>| match run {
+        Some(
+            run @ Run {
+                piece: PathPiece::Line { .. },
+                ..
+            },
+        ) => run.piece.length(),
+        _ => 0.0,
+    };
+    if from > straight(runs.first()) + tolerance {
+        return Err((true, straight(runs.first())));
+    }
+    if to > straight(runs.last()) + tolerance {
+        return Err((false, straight(runs.last())));
+    }
+    if from + to > total + tolerance {
+        return Err((true, total - to.max(0.0)));
+    }
+    let mut cut = Vec::with_capacity(runs.len() + 2);
+    if from < 0.0 {
+        if let Some(PathPiece::Line { start, end }) = runs.first().map(|r| r.piece) {
+            let back = start - (end - start).normalize() * -from;
+            let height = runs[0].heights.0;
+            cut.push(Run {
+                piece: PathPiece::Line {
+                    start: back,
+                    end: start,
+                },
+                heights: (height, height),
+            });
+        }
+    }
+    let (keep_from, keep_to) = (from.max(0.0), total - to.max(0.0));
+    let mut along = 0.0;
+    for (run, length) in runs.iter().zip(&lengths) {
+        let (a, b) = ((keep_from - along).max(0.0), (keep_to - along).min(*length));
+        if b - a > tolerance {
+            cut.push(run.part(a, b));
+        }
+        along += length;
+    }
+    if to < 0.0 {
+        if let Some(PathPiece::Line { start, end }) = runs.last().map(|r| r.piece) {
+            let on = end + (end - start).normalize() * -to;
+            let height = runs[runs.len() - 1].heights.1;
+            cut.push(Run {
+                piece: PathPiece::Line {
+                    start: end,
+                    end: on,
+                },
+                heights: (height, height),
+            });
+        }
+    }
+    Ok(cut)
+}
+
+/// Draws the line along a kerb: on the carriageway, on the kerb's top and the kerb's face.
+pub fn draw_kerb(b: &mut ItemBuilder, piece: PathPiece, height: f64, kerb: f64) {
+    let run = Run {
+        piece,
+        heights: (height, height),
+    };
+    run.draw(b, 0.0);
+    if kerb > 0.0 {
+        run.draw(b, kerb);
+        run.upright_face(b, kerb);
+    }
+}
+
+/// Draws the back of a pavement, `kerb` above the carriageway.
+pub fn draw_pavement_back(b: &mut ItemBuilder, piece: PathPiece, height: f64, kerb: f64) {
+    Run {
+        piece,
+        heights: (height, height),
+    }
+    .draw(b, kerb);
+}
+
+/// Draws a stretch of road: its edges and kerbs, its pavements, its centre line, a
+/// section across each open end and the crossings at its junctions.
+pub fn draw_piece(b: &mut ItemBuilder, road: &RoadLine, piece: &Piece) -> Result<(), String> {
+    let centreline = Centreline::from_parts(
+        piece.points.clone(),
+        piece.heights.clone(),
+        road.corner_radius,
+    )?;
+    let (half, kerb, pavement) = (road.half_width, road.kerb, road.pavement);
+    let junction_at = |first: bool| {
+        let p = if first {
+            piece.points[0]
+        } else {
+            piece.points[piece.points.len() - 1]
+        };
+        format!("({}, {})", short(p.x), short(p.y))
+    };
+    let misfit = |(first, room): (bool, f64)| {
+        format!(
+            "the kerb returns of the junction at {} do not fit: they need more straight \
+             road than the {} there is along this road; make `kerb_radius` smaller or the \
+             road longer",
+            junction_at(first),
+            short(room)
+        )
+    };
     for side in [1.0, -1.0] {
-        let edge = centreline.line(side * half)?;
-        for run in &edge {
+        let (from, to) = piece.trims(side, false);
+        for run in cut_runs(&centreline.line(side * half)?, from, to).map_err(misfit)? {
             run.draw(b, 0.0);
             if kerb > 0.0 {
                 run.draw(b, kerb);
@@ -326,20 +629,36 @@ pub fn build_road(b: &mut ItemBuilder, spec: &RoadSpec) -> Result<(), String> {
             }
         }
         if pavement > 0.0 {
-            for run in centreline.line(side * (half + pavement))? {
+            let (from, to) = piece.trims(side, true);
+            let runs = centreline.line(side * (half + pavement))?;
+            for run in cut_runs(&runs, from, to).map_err(misfit)? {
                 run.draw(b, kerb);
             }
         }
     }
-    match spec.centre_line {
-        CentreLine::None => {}
+    let (mouth_start, mouth_end) = piece.mouths();
+    let middle = || -> Result<Vec<Run>, String> {
+        let runs = centreline.line(0.0)?;
+        cut_runs(&runs, mouth_start, mouth_end).map_err(|_| {
+            format!(
+                "the junctions at {} and {} are too close together for their kerb returns; \
+                 make `kerb_radius` smaller or move the roads apart",
+                junction_at(true),
+                junction_at(false)
+            )
+        })
+    };
+    match road.centre_line {
+        CentreLine::None => {
+            middle()?;
+        }
         CentreLine::Solid => {
-            for run in centreline.line(0.0)? {
+            for run in middle()? {
                 run.draw(b, 0.0);
             }
         }
         CentreLine::Dashed { dash, gap } => {
-            let runs = centreline.line(0.0)?;
+            let runs = middle()?;
             let lengths: Vec<f64> = runs.iter().map(|run| run.piece.length()).collect();
             let dashes = lengths.iter().sum::<f64>() / (dash.0 + gap.0);
             if dashes > MAX_COUNT as f64 {
@@ -354,40 +673,118 @@ pub fn build_road(b: &mut ItemBuilder, spec: &RoadSpec) -> Result<(), String> {
             }
         }
     }
-    // The ends: a line square across the carriageway, stepping up the kerbs onto the
-    // pavements.
     let last = centreline.points.len() - 1;
-    for (point, segment) in [(0, 0), (last, last - 1)] {
+    for (end, point, segment) in [(0, 0, 0), (1, last, last - 1)] {
         let across = left_of(centreline.direction(segment));
         let (middle, height) = (centreline.points[point], centreline.heights[point]);
-        let spot = |offset: f64, lift: f64| at(middle + across * offset, height + lift);
-        let outer = half + pavement;
-        let section = if kerb > 0.0 {
-            let mut section = Vec::with_capacity(6);
-            if pavement > 0.0 {
-                section.push(spot(outer, kerb));
+        match piece.ends[end] {
+            PieceEnd::Open => draw_end(b, middle, across, height, road),
+            PieceEnd::Junction { mouth, .. } => {
+                if let Some(crossing) = road.crossing {
+                    let outward = if end == 0 {
+                        centreline.direction(0)
+                    } else {
+                        -centreline.direction(segment)
+                    };
+                    let next = if end == 0 { 1 } else { last - 1 };
+                    let room = (centreline.points[next] - middle).norm();
+                    let slope = (centreline.heights[next] - height) / room;
+                    let start = mouth + crossing.set_back.0;
+                    if start + crossing.depth.0 > room {
+                        return Err(format!(
+                            "the crossing at the junction at {} does not fit: it needs {} of \
+                             straight road from the junction, but there is only {}",
+                            junction_at(end == 0),
+                            short(start + crossing.depth.0),
+                            short(room)
+                        ));
+                    }
+                    draw_crossing(b, middle, outward, height, slope, start, half, &crossing);
+                }
             }
-            section.extend([
-                spot(half, kerb),
-                spot(half, 0.0),
-                spot(-half, 0.0),
-                spot(-half, kerb),
-            ]);
-            if pavement > 0.0 {
-                section.push(spot(-outer, kerb));
-            }
-            section
-        } else {
-            vec![spot(outer, 0.0), spot(-outer, 0.0)]
-        };
-        b.path(&section, false);
+        }
     }
     Ok(())
 }
 
+/// The open end of a road: a line square across the carriageway, stepping up the kerbs
+/// onto the pavements.
+fn draw_end(
+    b: &mut ItemBuilder,
+    middle: Vector2<f64>,
+    across: Vector2<f64>,
+    height: f64,
+    road: &RoadLine,
+) {
+    let (half, kerb, pavement) = (road.half_width, road.kerb, road.pavement);
+    let spot = |offset: f64, lift: f64| at(middle + across * offset, height + lift);
+    let outer = half + pavement;
+    let section = if kerb > 0.0 {
+        let mut section = Vec::with_capacity(6);
+        if pavement > 0.0 {
+            section.push(spot(outer, kerb));
+        }
+        section.extend([
+            spot(half, kerb),
+            spot(half, 0.0),
+            spot(-half, 0.0),
+            spot(-half, kerb),
+        ]);
+        if pavement > 0.0 {
+            section.push(spot(-outer, kerb));
+        }
+        section
+    } else {
+        vec![spot(outer, 0.0), spot(-outer, 0.0)]
+    };
+    b.path(&section, false);
+}
+
+/// Where the stripes of a crossing lie across a carriageway `half` wide each side of the
+/// centreline: as many whole stripes as fit, with their gaps, centred. Offsets of each
+/// stripe's two sides from the centreline.
+pub fn stripe_offsets(half: f64, stripe: f64, gap: f64) -> Vec<(f64, f64)> {
+    let count = ((2.0 * half + gap) / (stripe + gap)).floor().max(0.0) as usize;
+    let used = count as f64 * (stripe + gap) - gap;
+    (0..count)
+        .map(|k| {
+            let from = -used / 2.0 + k as f64 * (stripe + gap);
+            (from, from + stripe)
+        })
+        .collect()
+}
+
+/// The stripes of a crossing, each a closed outline on the carriageway, from `start` to
+/// `start + depth` along `outward` from the junction's centre `middle`.
+#[allow(clippy::too_many_arguments)]
+fn draw_crossing(
+    b: &mut ItemBuilder,
+    middle: Vector2<f64>,
+    outward: Vector2<f64>,
+    height: f64,
+    slope: f64,
+    start: f64,
+    half: f64,
+    crossing: &CrossingSpec,
+) {
+    let across = left_of(outward);
+    let spot = |along: f64, offset: f64| {
+        at(
+            middle + outward * along + across * offset,
+            height + slope * along,
+        )
+    };
+    let end = start + crossing.depth.0;
+    for (a, c) in stripe_offsets(half, crossing.stripe.0, crossing.gap.0) {
+        b.path(
+            &[spot(start, a), spot(end, a), spot(end, c), spot(start, c)],
+            true,
+        );
+    }
+}
+
 #[cfg(test)]
 mod tests {
-    use super::super::super::build::Placement;
     use super::super::super::site::{Site, SiteCurve};
     use super::*;
     use std::f64::consts::FRAC_PI_2;
@@ -400,8 +797,9 @@ mod tests {
             .expect("a road as written in a scene");
         let mut site = Site::default();
         let id = site.add_item("road", None);
-        let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
-        build_road(&mut b, &spec)?;
+        let b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+        let line = road_line(&b, &spec)?;
+        super::super::super::streets::draw_streets(&mut site, &[line]).map_err(|e| e.message)?;
         Ok(site)
     }
 

@@ -5,7 +5,10 @@ use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::barrel::BarrelVault;
 use super::block::{rectangle_frame, rectangle_plan, rectangle_walls, Anchor};
-use super::walls::{build_walls, openings_in_wall, OpeningKind, OpeningsSpec, Wall};
+use super::walls::{
+    build_walls, openings_in_wall, round_window_in_wall, OpeningKind, OpeningsSpec,
+    RoundWindowSpec, Wall,
+};
 use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 
@@ -47,6 +50,9 @@ pub struct RoomSpec {
     /// Doors and windows; their `reveal` is the depth of the wall they pass through.
     #[serde(default)]
     pub openings: Vec<OpeningsSpec>,
+    /// Round windows through the walls; their `reveal` is the depth of the wall.
+    #[serde(default)]
+    pub round_windows: Vec<RoundWindowSpec>,
     #[serde(default)]
     pub storeys: Vec<Positive>,
 }
@@ -107,6 +113,7 @@ pub fn build_interior(
     b: &mut ItemBuilder,
     room: &Interior,
     openings: &[OpeningsSpec],
+    round_windows: &[RoundWindowSpec],
     storeys: &[f64],
 ) -> Result<(), String> {
     let walls = room.walls();
@@ -114,6 +121,11 @@ pub fn build_interior(
     for spec in openings {
         for wall in rectangle_walls(spec.wall)? {
             cut[wall].extend(openings_in_wall(spec, &walls[wall])?);
+        }
+    }
+    for spec in round_windows {
+        for wall in rectangle_walls(spec.wall)? {
+            cut[wall].push(round_window_in_wall(spec, &walls[wall], false)?);
         }
     }
     // Openings go through: from inside one looks out through them. Their reveals run
@@ -153,7 +165,7 @@ pub fn build_room(b: &mut ItemBuilder, spec: &RoomSpec) -> Result<(), String> {
         vault,
     };
     let storeys: Vec<f64> = spec.storeys.iter().map(|s| s.0).collect();
-    build_interior(b, &room, &spec.openings, &storeys)
+    build_interior(b, &room, &spec.openings, &spec.round_windows, &storeys)
 }
 
 #[cfg(test)]
@@ -180,6 +192,7 @@ mod tests {
             base: zero(),
             ceiling,
             openings: Vec::new(),
+            round_windows: Vec::new(),
             storeys: Vec::new(),
         }
     }
@@ -197,6 +210,9 @@ mod tests {
             rows: Count(1),
             row_step: None,
             reveal: Some(NonNegative(reveal)),
+            head: Default::default(),
+            surround: None,
+            sill_projection: None,
         }
     }
 

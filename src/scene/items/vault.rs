@@ -43,7 +43,7 @@ pub fn build_vault(b: &mut ItemBuilder, spec: &VaultSpec) -> Result<(), String> 
     let (corner, turn) = rectangle_frame(spec.at, width, depth, spec.facing.0);
     b.move_by(Vector3::new(corner.x, corner.y, spec.base.0), turn);
     let vault = BarrelVault::new(width, depth, spec.springing.0, spec.rise, spec.bays);
-    build_interior(b, &vault_room(vault), &[], &[])
+    build_interior(b, &vault_room(vault), &[], &[], &[])
 }
 
 #[cfg(test)]

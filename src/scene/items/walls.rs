@@ -3,8 +3,9 @@
 //! this.
 
 use super::super::build::ItemBuilder;
-use super::super::numbers::{Count, NonNegative, Positive, SideNumber};
-use nalgebra::{Point3, Vector2};
+use super::super::numbers::{Count, Finite, NonNegative, Positive, SideNumber};
+use super::heads::{checked_head, outline, Head, Outline, Piece, Shape};
+use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 
 /// Which walls a row of openings goes in. A block's and a room's walls are named from the
@@ -49,6 +50,32 @@ pub struct OpeningsSpec {
     /// Depth of the reveal: the opening is set back this far into the wall.
     #[serde(default)]
     pub reveal: Option<NonNegative>,
+    /// The head: `Square` (the default) or an arch curve, its crown at `height`.
+    #[serde(default)]
+    pub head: Head,
+    /// Width of a flat surround (architrave) drawn round the jambs and the head.
+    #[serde(default)]
+    pub surround: Option<Positive>,
+    /// A sill standing out this far from the face, as deep as it stands out, under the
+    /// opening and its surround and this far beyond them at each end.
+    #[serde(default)]
+    pub sill_projection: Option<Positive>,
+}
+
+/// A round window (an oculus) in a wall: a circle of `diameter` about a centre `along`
+/// the wall (by default its middle) and `centre` up from its foot.
+#[derive(Debug, Deserialize)]
+#[serde(rename = "RoundWindow", deny_unknown_fields)]
+pub struct RoundWindowSpec {
+    pub wall: WallChoice,
+    #[serde(default)]
+    pub along: Option<Finite>,
+    pub centre: Positive,
+    pub diameter: Positive,
+    #[serde(default)]
+    pub reveal: Option<NonNegative>,
+    #[serde(default)]
+    pub surround: Option<Positive>,
 }
 
 /// A wall on the plan line from `start` to `end`; `top` is its top edge as (distance along
@@ -92,15 +119,73 @@ impl Wall {
     }
 }
 
-/// An opening's rectangle on its wall: along the wall from `left` to `right`, from `bottom`
-/// to `top`, set back `reveal`.
-#[derive(Clone, Copy, Debug, PartialEq)]
+/// An opening on its wall: along the wall from `left` to `right`, from `bottom` to `top`
+/// (the crown of a shaped head), set back `reveal`, with a surround `surround` wide and a
+/// sill standing out `ledge` (0 for none); its outline and the outer edge of its surround
+/// (its own outline when it has none).
+#[derive(Clone, Debug, PartialEq)]
 pub struct Opening {
     pub left: f64,
     pub right: f64,
     pub bottom: f64,
     pub top: f64,
     pub reveal: f64,
+    pub surround: f64,
+    pub ledge: f64,
+    pub outline: Outline,
+    pub outer: Outline,
+}
+
+impl Opening {
+    /// An opening of the given shape filling the box (left, right, bottom, top).
+    pub fn new(
+        (left, right, bottom, top): (f64, f64, f64, f64),
+        shape: &Shape,
+        reveal: f64,
+        surround: f64,
+        ledge: f64,
+    ) -> Result<Opening, String> {
+        let corners = (left, right, bottom, top);
+        Ok(Opening {
+            left,
+            right,
+            bottom,
+            top,
+            reveal,
+            surround,
+            ledge,
+            outline: outline(shape, corners, 0.0)?,
+            outer: outline(shape, corners, surround)?,
+        })
+    }
+
+    /// A square-headed opening, with no surround or sill.
+    #[cfg(test)]
+    pub fn square(left: f64, right: f64, bottom: f64, top: f64, reveal: f64) -> Opening {
+        let outline = super::heads::rectangle((left, right, bottom, top), 0.0);
+        Opening {
+            left,
+            right,
+            bottom,
+            top,
+            reveal,
+            surround: 0.0,
+            ledge: 0.0,
+            outer: outline.clone(),
+            outline,
+        }
+    }
+
+    /// What it takes up on the wall, surround and sill included: (left, right, bottom, top).
+    fn extent(&self) -> (f64, f64, f64, f64) {
+        let reach = self.surround + self.ledge;
+        (
+            self.left - reach,
+            self.right + reach,
+            self.bottom - self.ledge,
+            self.outer.top(),
+        )
+    }
 }
 
 /// Whether openings are holes right through (a room seen from inside, where one looks out
@@ -169,28 +254,89 @@ pub fn openings_in_wall(spec: &OpeningsSpec, wall: &Wall) -> Result<Vec<Opening>
     };
     let sill = spec.sill.map_or(0.0, |s| s.0);
     let half = spec.width.0 / 2.0;
+    let shape = match checked_head(spec.head, spec.width.0, spec.height.0)? {
+        Some(arch) => Shape::Arched(arch),
+        None => Shape::Square,
+    };
+    let ledge = spec.sill_projection.map_or(0.0, |p| p.0);
+    if ledge > sill {
+        return Err(format!(
+            "a sill standing out {ledge} (as deep as it stands out) does not fit under an \
+             opening {sill} above the foot of its wall"
+        ));
+    }
     let mut openings = Vec::new();
     for centre in opening_centres(spec, wall.length())? {
         for row in 0..rows {
             let bottom = sill + step * row as f64;
-            let opening = Opening {
-                left: centre - half,
-                right: centre + half,
-                bottom,
-                top: bottom + spec.height.0,
-                reveal: spec.reveal.map_or(0.0, |r| r.0),
-            };
-            let under = wall.top_at(opening.left).min(wall.top_at(opening.right));
-            if opening.top >= under {
-                return Err(format!(
-                    "an opening reaching {:.3} up does not fit under the top of its wall ({under:.3})",
-                    opening.top
-                ));
-            }
+            let opening = Opening::new(
+                (centre - half, centre + half, bottom, bottom + spec.height.0),
+                &shape,
+                spec.reveal.map_or(0.0, |r| r.0),
+                spec.surround.map_or(0.0, |s| s.0),
+                ledge,
+            )?;
+            fits_under_top(&opening, wall)?;
             openings.push(opening);
         }
     }
     Ok(openings)
+}
+
+/// The round window a spec puts in one wall, checked to fit on it; `mirrored` when the
+/// wall runs the other way from the side the user named (its `along` then counts from the
+/// wall's end).
+pub fn round_window_in_wall(
+    spec: &RoundWindowSpec,
+    wall: &Wall,
+    mirrored: bool,
+) -> Result<Opening, String> {
+    let radius = spec.diameter.0 / 2.0;
+    let length = wall.length();
+    let along = match (spec.along, mirrored) {
+        (None, _) => length / 2.0,
+        (Some(a), false) => a.0,
+        (Some(a), true) => length - a.0,
+    };
+    let centre = spec.centre.0;
+    if centre - radius <= 0.0 {
+        return Err(format!(
+            "a round window {} across centred {centre} up reaches below the foot of its wall",
+            spec.diameter.0
+        ));
+    }
+    let opening = Opening::new(
+        (
+            along - radius,
+            along + radius,
+            centre - radius,
+            centre + radius,
+        ),
+        &Shape::Round,
+        spec.reveal.map_or(0.0, |r| r.0),
+        spec.surround.map_or(0.0, |s| s.0),
+        0.0,
+    )?;
+    fits_under_top(&opening, wall)?;
+    Ok(opening)
+}
+
+fn fits_under_top(opening: &Opening, wall: &Wall) -> Result<(), String> {
+    let (left, right, _, top) = opening.extent();
+    let under = wall
+        .top_at(left.max(0.0))
+        .min(wall.top_at(right.min(wall.length())));
+    if top >= under {
+        let what = if opening.surround > 0.0 {
+            "an opening with its surround"
+        } else {
+            "an opening"
+        };
+        return Err(format!(
+            "{what} reaching {top:.3} up does not fit under the top of its wall ({under:.3})"
+        ));
+    }
+    Ok(())
 }
 
 /// Draws walls with their openings and storey lines. `inward` is +1 when the inside of the
@@ -206,41 +352,19 @@ pub fn build_walls(
 ) -> Result<(), String> {
     for (index, wall) in walls.iter().enumerate() {
         let here = &openings[index];
-        check_apart(here).map_err(|e| format!("wall {}: {e}", index + 1))?;
+        check_apart(here, wall.length()).map_err(|e| format!("wall {}: {e}", index + 1))?;
         let direction = (wall.end - wall.start) / wall.length();
         // The left of the wall's direction, towards the inside of a counter-clockwise plan.
         let left = Vector2::new(-direction.y, direction.x);
-        let sign = match kind {
-            OpeningKind::Recess => 1.0,
-            OpeningKind::Through => -1.0,
+        let setback = match kind {
+            OpeningKind::Recess => left,
+            OpeningKind::Through => -left,
         };
+        let setback = Vector3::new(setback.x, setback.y, 0.0);
         let mut holes = Vec::new();
         for opening in here {
-            let corners = [
-                wall.point(opening.left, opening.bottom),
-                wall.point(opening.right, opening.bottom),
-                wall.point(opening.right, opening.top),
-                wall.point(opening.left, opening.top),
-            ];
-            b.path(&corners, true);
-            let cut = kind == OpeningKind::Through || opening.reveal > 0.0;
-            if opening.reveal > 0.0 {
-                let set_back = left * (sign * opening.reveal);
-                let back = corners.map(|p| p + nalgebra::Vector3::new(set_back.x, set_back.y, 0.0));
-                b.path(&back, true);
-                for i in 0..4 {
-                    b.segment(corners[i], back[i]);
-                    b.face(
-                        &[corners[i], corners[(i + 1) % 4], back[(i + 1) % 4], back[i]],
-                        &[],
-                    );
-                }
-                if kind == OpeningKind::Recess {
-                    b.face(&back, &[]);
-                }
-            }
-            if cut {
-                holes.push(corners.to_vec());
+            if let Some(hole) = build_opening(b, wall, opening, kind, setback) {
+                holes.push(hole);
             }
         }
         b.face(&wall.outline(), &holes);
@@ -264,12 +388,112 @@ pub fn build_walls(
     Ok(())
 }
 
+/// Draws one opening on its wall: its outline (straight lines and exact arcs), its
+/// surround, its reveal set back along the unit vector `setback` (the soffit following a
+/// shaped head, lines across at the corners and creases, a closed back for a recess) and
+/// its sill. Returns the hole it cuts in the wall's face, if it cuts one.
+fn build_opening(
+    b: &mut ItemBuilder,
+    wall: &Wall,
+    opening: &Opening,
+    kind: OpeningKind,
+    setback: Vector3<f64>,
+) -> Option<Vec<Point3<f64>>> {
+    let along =
+        Vector3::new(wall.end.x - wall.start.x, wall.end.y - wall.start.y, 0.0) / wall.length();
+    let on_wall = |p: Vector2<f64>, depth: f64| wall.point(p.x, p.y) + setback * depth;
+    let draw = |b: &mut ItemBuilder, outline: &Outline, depth: f64| {
+        for piece in &outline.pieces {
+            match *piece {
+                Piece::Line { from, to } => b.segment(on_wall(from, depth), on_wall(to, depth)),
+                Piece::Arc { arc, .. } => b.ellipse(
+                    on_wall(arc.centre, depth),
+                    along * arc.radii.x,
+                    Vector3::z() * arc.radii.y,
+                    arc.start,
+                    arc.sweep,
+                ),
+            }
+        }
+    };
+    draw(b, &opening.outline, 0.0);
+    if opening.surround > 0.0 {
+        draw(b, &opening.outer, 0.0);
+    }
+    if opening.ledge > 0.0 {
+        build_sill(b, wall, opening, -setback);
+    }
+    let depth = opening.reveal;
+    let front: Vec<Point3<f64>> = opening
+        .outline
+        .polygon()
+        .iter()
+        .map(|&p| on_wall(p, 0.0))
+        .collect();
+    if depth > 0.0 {
+        draw(b, &opening.outline, depth);
+        for &corner in &opening.outline.creases {
+            b.segment(on_wall(corner, 0.0), on_wall(corner, depth));
+        }
+        for piece in &opening.outline.pieces {
+            let points = piece.points();
+            let near: Vec<Point3<f64>> = points.iter().map(|&p| on_wall(p, 0.0)).collect();
+            let far: Vec<Point3<f64>> = points.iter().map(|&p| on_wall(p, depth)).collect();
+            match piece {
+                Piece::Line { .. } => b.face(&[near[0], near[1], far[1], far[0]], &[]),
+                Piece::Arc { .. } => b.strip(&near, &far),
+            }
+        }
+        if kind == OpeningKind::Recess {
+            let back: Vec<Point3<f64>> = front.iter().map(|&p| p + setback * depth).collect();
+            b.face(&back, &[]);
+        }
+    }
+    (kind == OpeningKind::Through || depth > 0.0).then_some(front)
+}
+
+/// A sill under an opening: a bar of square section standing out `ledge` along `out`
+/// from the wall, its top level with the opening's bottom, running under the opening and
+/// its surround and `ledge` beyond them at each end; its edges and its six faces.
+fn build_sill(b: &mut ItemBuilder, wall: &Wall, opening: &Opening, out: Vector3<f64>) {
+    let ledge = opening.ledge;
+    let (left, right, bottom, _) = opening.extent();
+    let top = opening.bottom;
+    let corner = |x: f64, z: f64, o: f64| wall.point(x, z) + out * o;
+    let face = [
+        corner(left, bottom, 0.0),
+        corner(right, bottom, 0.0),
+        corner(right, top, 0.0),
+        corner(left, top, 0.0),
+    ];
+    let front = face.map(|p| p + out * ledge);
+    b.path(&face, true);
+    b.path(&front, true);
+    for i in 0..4 {
+        b.segment(face[i], front[i]);
+        b.face(
+            &[face[i], face[(i + 1) % 4], front[(i + 1) % 4], front[i]],
+            &[],
+        );
+    }
+    // Its back against the wall as well, so that it is a closed solid of its own.
+    b.face(&front, &[]);
+    b.face(&face, &[]);
+}
+
 /// The stretches of a line across a wall at `height` that no opening interrupts.
 fn gaps_between(openings: &[Opening], height: f64, length: f64) -> Vec<(f64, f64)> {
     let mut cuts: Vec<(f64, f64)> = openings
         .iter()
-        .filter(|o| o.bottom < height && height < o.top)
-        .map(|o| (o.left, o.right))
+        .filter_map(|o| {
+            let (left, right, bottom, _) = o.extent();
+            if bottom < height && height < o.bottom {
+                // Through the sill.
+                Some((left, right))
+            } else {
+                o.outer.span_at(height)
+            }
+        })
         .collect();
     cuts.sort_by(|a, b| a.0.total_cmp(&b.0));
     let mut gaps = Vec::new();
@@ -286,18 +510,22 @@ fn gaps_between(openings: &[Opening], height: f64, length: f64) -> Vec<(f64, f64
     gaps
 }
 
-fn check_apart(openings: &[Opening]) -> Result<(), String> {
-    for (i, a) in openings.iter().enumerate() {
-        if a.left < 0.0 {
+/// Openings (with their surrounds and sills) must lie on the wall and apart.
+fn check_apart(openings: &[Opening], length: f64) -> Result<(), String> {
+    let extents: Vec<(f64, f64, f64, f64)> = openings.iter().map(Opening::extent).collect();
+    for (i, a) in extents.iter().enumerate() {
+        if a.0 < 0.0 {
             return Err("an opening starts before the wall does (check the margins)".into());
         }
-        for b in &openings[i + 1..] {
-            let apart =
-                a.right <= b.left || b.right <= a.left || a.top <= b.bottom || b.top <= a.bottom;
+        if a.1 > length {
+            return Err("an opening runs past the end of the wall (check the margins)".into());
+        }
+        for b in &extents[i + 1..] {
+            let apart = a.1 <= b.0 || b.1 <= a.0 || a.3 <= b.2 || b.3 <= a.2;
             if !apart {
                 return Err(format!(
-                    "openings overlap (one from {:.3} to {:.3} along the wall, one from {:.3} to {:.3})",
-                    a.left, a.right, b.left, b.right
+                    "openings overlap (one from {:.3} to {:.3} along the wall, one from {:.3} to {:.3}, surrounds and sills included)",
+                    a.0, a.1, b.0, b.1
                 ));
             }
         }
@@ -321,6 +549,9 @@ mod tests {
             rows: Count(1),
             row_step: None,
             reveal: None,
+            head: Head::Square,
+            surround: None,
+            sill_projection: None,
         }
     }
 
@@ -345,14 +576,11 @@ mod tests {
 
     #[test]
     fn storey_lines_stop_at_openings() {
-        let o = Opening {
-            left: 2.0,
-            right: 3.0,
-            bottom: 1.0,
-            top: 2.0,
-            reveal: 0.0,
-        };
-        assert_eq!(gaps_between(&[o], 1.5, 10.0), vec![(0.0, 2.0), (3.0, 10.0)]);
+        let o = Opening::square(2.0, 3.0, 1.0, 2.0, 0.0);
+        assert_eq!(
+            gaps_between(std::slice::from_ref(&o), 1.5, 10.0),
+            vec![(0.0, 2.0), (3.0, 10.0)]
+        );
         assert_eq!(gaps_between(&[o], 2.5, 10.0), vec![(0.0, 10.0)]);
     }
 

@@ -475,9 +475,9 @@ pub fn read_cityjson(
                         model.group_names.push((id.clone(), layer.clone()));
                         next
                     });
-                    let shift = |ring: &Vec<u32>| ring.iter().map(|i| i + base).collect();
+                    let shift = |ring: &Vec<u32>| ring.iter().map(|i| i + base).collect::<Vec<_>>();
                     let face = model.mesh.faces.len() as u32;
-                    model.mesh.faces.push((shift(&rings[0]), group));
+                    model.mesh.push_face(&shift(&rings[0]), group);
                     for hole in &rings[1..] {
                         model.mesh.holes.push((face, shift(hole)));
                     }
@@ -646,7 +646,7 @@ mod tests {
         let model = read_cityjson(seq.as_bytes(), true, None, shift([0.0; 3])).unwrap();
         assert_eq!(model.mesh.faces.len(), 2);
         // The second feature's indices point at its own vertices.
-        assert_eq!(model.mesh.faces[1].0, vec![3, 4, 5]);
+        assert_eq!(model.mesh.face_corners(&model.mesh.faces[1]), [3, 4, 5]);
         assert_eq!(model.mesh.positions[3], Point3::new(12.0, 0.0, 0.0));
         let broken = seq.replace("\"b\", \"CityObjects\"", "\"b\" \"CityObjects\"");
         let error = read_cityjson(broken.as_bytes(), true, None, shift([0.0; 3])).unwrap_err();

@@ -114,6 +114,11 @@ pub struct AnglesArgs {
 
     #[command(flatten)]
     pub view: ViewArgs,
+
+    /// With --date and --time: list the corners of the shadows' outlines too (item
+    /// `shadows`).
+    #[command(flatten)]
+    pub sun: super::SunArgs,
 }
 
 fn parse_positive(text: &str) -> Result<f64, String> {

@@ -44,6 +44,13 @@ pub struct SheetArgs {
     /// Sweep a grid of CxR positions over the rectangle X0,Y0:X1,Y1:CxR.
     #[arg(long, value_name = "X0,Y0:X1,Y1:CxR", value_parser = parse_grid, allow_hyphen_values = true, group = "sweep")]
     pub grid: Option<GridSweep>,
+
+    /// Sweep local times of day on the --date: FROM,TO,MINUTES (08:00,18:00,60).
+    #[arg(long, value_name = "FROM,TO,MINUTES", group = "sweep")]
+    pub times: Option<String>,
+
+    #[command(flatten)]
+    pub sun: super::SunArgs,
     /// How many standpoints along --path.
     #[arg(long, value_name = "N", default_value_t = 8)]
     pub count: usize,

@@ -3,14 +3,18 @@
 
 mod aids;
 mod compose;
+mod explore;
 mod render;
+mod sun;
 mod values;
 mod view;
 
 pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
 pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
+pub use explore::ExploreArgs;
 pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
+pub use sun::{DaylightArgs, SunArgs};
 pub use values::PathSweep;
 pub use view::ViewArgs;
 
@@ -49,6 +53,12 @@ pub enum Command {
     Preview(Box<PreviewArgs>),
     /// Render, then render again whenever the scene or style file is saved.
     Watch(Box<WatchArgs>),
+    /// List sunrise, transit and sunset, the sun's azimuth and elevation at a step, and the
+    /// times an item's walls are in sun (needs the scene's `location`).
+    Daylight(DaylightArgs),
+    /// Serve a page on this computer where the standpoint is dragged across the plan and
+    /// the underlay and a look-around view follow; keep standpoints and print from it.
+    Explore(Box<ExploreArgs>),
 }
 
 #[cfg(test)]
@@ -74,7 +84,7 @@ mod tests {
         assert!(r.output.is_none() && r.view.standpoint.is_none() && r.view.at.is_none());
         assert_eq!(
             (r.model.up, r.model.unit, r.model.crease),
-            (UpArg::Y, UnitArg::M, 30.0)
+            (UpArg::Y, UnitArg::M, 20.0)
         );
     }
 

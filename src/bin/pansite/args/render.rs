@@ -124,6 +124,9 @@ pub struct RenderArgs {
 
     #[command(flatten)]
     pub aids: AidArgs,
+
+    #[command(flatten)]
+    pub sun: super::SunArgs,
 }
 
 /// How a Wavefront OBJ model given instead of a scene is read.

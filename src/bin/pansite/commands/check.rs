@@ -59,6 +59,13 @@ pub fn report(site: &Site, path: &Path) -> String {
             let _ = writeln!(out, "extent: nothing drawn");
         }
     }
+    if let Some((lo, hi)) = survey.ground {
+        let _ = writeln!(
+            out,
+            "ground: x {:.2} to {:.2}, y {:.2} to {:.2}, heights {:.2} to {:.2} m",
+            lo.x, hi.x, lo.y, hi.y, lo.z, hi.z
+        );
+    }
     // Where each block's walls stand, so a `facing` or an anchor that put the block
     // elsewhere than meant shows at once.
     let blocks: Vec<_> = site

@@ -5,6 +5,8 @@
 pub mod angles;
 pub mod check;
 pub mod common;
+pub mod daylight;
+pub mod explore;
 pub mod new;
 pub mod plan;
 pub mod preview;

@@ -80,6 +80,9 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         for (item, message) in &site.warnings {
             eprintln!("pansite: warning: {} {message}", site.describe_item(*item));
         }
+        for note in &render.notes {
+            eprintln!("pansite: warning: {note}");
+        }
         for skipped in render.skipped.iter().take(MAX_NAMED_SKIPS) {
             eprintln!(
                 "pansite: warning: skipped an edge of {}: {}",

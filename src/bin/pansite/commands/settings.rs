@@ -2,16 +2,20 @@
 //! exactly one function, so an option means the same thing in every command.
 
 use crate::args::{
-    AidArgs, AnglesArgs, ModelArgs, PlanArgs, PreviewArgs, RenderArgs, SheetArgs, UnitArg, UpArg,
+    AidArgs, AnglesArgs, DaylightArgs, ModelArgs, PlanArgs, PreviewArgs, RenderArgs, SheetArgs,
+    SunArgs, UnitArg, UpArg,
 };
 use pansite::aids::AidSettings;
 use pansite::compose::{ContactSettings, PlanSettings, PreviewSettings};
+use pansite::page::{title_lines, today};
 use pansite::page::{PageSettings, Paper, Tiling};
 use pansite::plane::Equirect;
-use pansite::render::{title_lines, today, RenderSettings};
+use pansite::render::{RenderSettings, SunChoice};
 use pansite::scene::{
-    load_style_sheet, HiddenEdges, MeshPlacement, Site, Standpoint, Unit, UpAxis,
+    load_style_sheet, parse_date, parse_time, HiddenEdges, LocalMoment, MeshPlacement, Site,
+    Standpoint, Unit, UpAxis,
 };
+use pansite::sun::TableRequest;
 use pansite::Error;
 use std::time::Duration;
 
@@ -49,6 +53,7 @@ pub fn render_settings(args: &RenderArgs) -> pansite::Result<RenderSettings> {
         weight_by_distance: args.weigh_by_distance,
         aids: aid_settings(&args.aids),
         time_limit: Some(Duration::from_secs_f64(args.time_limit)),
+        sun: sun_choice(&args.sun)?,
     };
     settings.validate()?;
     Ok(settings)
@@ -88,7 +93,7 @@ pub fn page_settings(
 
 /// A paper by name, landscape unless `portrait`.
 pub fn paper(name: &str, portrait: bool) -> pansite::Result<Paper> {
-    let paper = Paper::parse(name).map_err(Error::Setting)?;
+    let paper = Paper::parse(name)?;
     Ok(if portrait {
         paper.portrait()
     } else {
@@ -136,6 +141,7 @@ pub fn contact_settings(args: &SheetArgs) -> pansite::Result<ContactSettings> {
         overlays: !args.bare,
         hidden: args.hidden.map(HiddenEdges::from),
         dpi: args.out.dpi,
+        sun: sun_choice(&args.sun)?,
         ..RenderSettings::default()
     };
     thumbnail.validate()?;
@@ -143,6 +149,7 @@ pub fn contact_settings(args: &SheetArgs) -> pansite::Result<ContactSettings> {
         thumbnail,
         columns: args.columns,
         dpi: args.out.dpi,
+        moments: Vec::new(),
     })
 }
 
@@ -177,6 +184,104 @@ pub fn preview_settings(args: &PreviewArgs) -> PreviewSettings {
         hidden: args.hidden.map(HiddenEdges::from),
         ..PreviewSettings::default()
     }
+}
+
+/// The sun and shadows asked for: `--date` and `--time` go together.
+pub fn sun_choice(args: &SunArgs) -> pansite::Result<SunChoice> {
+    let moment = match (&args.date, &args.time) {
+        (Some(date), Some(time)) => Some(LocalMoment::parse(date, time)?),
+        (None, None) => None,
+        _ => {
+            return Err(Error::Setting(
+                "--date and --time go together: give both".into(),
+            ))
+        }
+    };
+    if let Some(h) = args.hatch {
+        if !(h.is_finite() && (0.01..=100.0).contains(&h)) {
+            return Err(Error::Setting(format!(
+                "--hatch {h}: expected a spacing from 0.01 to 100 metres"
+            )));
+        }
+    }
+    Ok(SunChoice {
+        moment,
+        path: args.no_sun_path.then_some(false),
+        seasons: args.seasons.then_some(true),
+        shadows: args.no_shadows.then_some(false),
+        hatch_m: args.hatch,
+    })
+}
+
+/// A sweep of times for `sheet --times FROM,TO,MINUTES`, on the --date (or the scene's).
+pub fn time_sweep(
+    text: &str,
+    args: &SunArgs,
+    site: &Site,
+) -> pansite::Result<(LocalMoment, jiff::civil::Time, f64)> {
+    let bad = || {
+        Error::Setting(format!(
+            "--times {text}: expected FROM,TO,MINUTES such as 08:00,18:00,60"
+        ))
+    };
+    let parts: Vec<&str> = text.split(',').collect();
+    let [from, to, step] = parts[..] else {
+        return Err(bad());
+    };
+    let date = match (&args.date, &site.sun) {
+        (Some(date), _) => parse_date(date)?,
+        (None, Some(sun)) => sun.date.0,
+        (None, None) => {
+            return Err(Error::Setting(
+                "--times needs a day: give --date or a `sun` block in the scene".into(),
+            ))
+        }
+    };
+    let (from, _) = parse_time(from)?;
+    let (to, _) = parse_time(to)?;
+    let step: f64 = step.trim().parse().map_err(|_| bad())?;
+    Ok((
+        LocalMoment {
+            date,
+            time: from,
+            offset_s: None,
+        },
+        to,
+        step,
+    ))
+}
+
+/// What `daylight` lists.
+pub fn daylight_request(args: &DaylightArgs, site: &Site) -> pansite::Result<TableRequest> {
+    let from = match (&args.date, &site.sun) {
+        (Some(date), _) => parse_date(date)?,
+        (None, Some(sun)) => sun.date.0,
+        (None, None) => {
+            return Err(Error::Setting(
+                "give the day with --date (or a `sun` block in the scene)".into(),
+            ))
+        }
+    };
+    let to = args
+        .to
+        .as_deref()
+        .map(parse_date)
+        .transpose()?
+        .unwrap_or(from);
+    if let Some(step) = args.step {
+        if !(step.is_finite() && step >= 1.0) {
+            return Err(Error::Setting(format!(
+                "--step {step}: expected at least one minute"
+            )));
+        }
+    }
+    Ok(TableRequest {
+        from,
+        to,
+        step_s: args.step.map(|minutes| minutes * 60.0),
+        item: args.item.clone(),
+        blocking: args.blocking,
+    })
 }
 
 /// The image `angles` gives pixel positions in.

@@ -1,9 +1,9 @@
 //! `pansite sheet`: many standpoints as labelled thumbnails on one sheet.
 
 use super::common::{choose_view, read_site, write_one, Progress};
-use super::settings::contact_settings;
+use super::settings::{contact_settings, time_sweep};
 use crate::args::{PathSweep, SheetArgs, ViewArgs};
-use pansite::compose::{contact_sheet, sweep_grid, sweep_headings, sweep_path};
+use pansite::compose::{contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times};
 use pansite::scene::Standpoint;
 use pansite::Error;
 use std::time::Instant;
@@ -17,7 +17,13 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
         args.out.quiet,
     )?;
     let base = choose_view(&site, &args.view)?;
-    let standpoints: Vec<Standpoint> = if let Some((from, to, step)) = args.headings {
+    let mut settings = contact_settings(args)?;
+    let standpoints: Vec<Standpoint> = if let Some(text) = &args.times {
+        let (day, to, step) = time_sweep(text, &args.sun, &site)?;
+        let (standpoints, moments) = sweep_times(&base, &day, to, step)?;
+        settings.moments = moments;
+        standpoints
+    } else if let Some((from, to, step)) = args.headings {
         sweep_headings(&base, from, to, step)?
     } else if let Some(PathSweep(path)) = &args.path {
         sweep_path(&base, path, args.count)?
@@ -42,7 +48,6 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     if standpoints.is_empty() {
         return Err(Error::NoStandpoint.into());
     }
-    let settings = contact_settings(args)?;
     let progress = Progress::new("thumbnails", args.out.quiet);
     let started = Instant::now();
     let sheet = contact_sheet(&site, &standpoints, &settings, &|done, total| {

@@ -91,6 +91,13 @@ pub fn watch(args: &WatchArgs) -> anyhow::Result<()> {
         )
         .map_err(anyhow::Error::from)
         .and_then(|site| {
+            // The models a scene names are watched too, from the first time it names them.
+            for source in &site.0.sources {
+                if !files.contains(source) {
+                    files.push(source.clone());
+                    stamps.push(stamp(source));
+                }
+            }
             let summary = Summary::of(&site.0);
             super::render::render(render_args).map(|()| summary)
         });

@@ -1,0 +1,91 @@
+//! The sun's cases (issue 17's targets):
+//! - `shadows`: the demo at 8192x4096 drawn, rasterised and encoded with the shadows of a
+//!   summer afternoon, against the same without them: the difference, at most 2 x F;
+//! - `year table`: a year of the sun's positions at 10-minute steps (52,560 positions,
+//!   with each day's sunrise, transit and sunset), under 1 s.
+//!
+//! Run alone with `PANSITE_BENCH_ONLY=sun cargo bench`.
+
+use pansite::render::{render_png_to, RenderSettings, SunChoice};
+use pansite::scene::{parse_scene, LocalMoment, Location};
+use pansite::sun::Sky;
+use pansite::sun::{sun_table, TableRequest};
+use std::path::Path;
+use std::time::{Duration, Instant};
+
+const RUNS: usize = 5;
+
+fn best(runs: usize, mut f: impl FnMut()) -> Duration {
+    (0..runs)
+        .map(|_| {
+            let started = Instant::now();
+            f();
+            started.elapsed()
+        })
+        .min()
+        .unwrap_or_default()
+}
+
+pub fn run(floor_time: Duration) {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap();
+    let mut site = parse_scene(text.as_bytes(), Path::new("demo.ron"), "demo").unwrap();
+    // The invented town placed at an invented spot in a temperate latitude.
+    site.location = Some(Location {
+        latitude_deg: 51.2,
+        longitude_deg: -2.1,
+        height_m: 80.0,
+        north_deg: 4.0,
+        time_zone: Some("Europe/London".into()),
+    });
+    let standpoint = site.standpoints[0].clone();
+    let plain = RenderSettings {
+        width: 8192,
+        height: 4096,
+        ..RenderSettings::default()
+    };
+    let shadowed = RenderSettings {
+        sun: SunChoice {
+            moment: Some(LocalMoment::parse("2026-06-21", "16:00").unwrap()),
+            path: Some(false),
+            seasons: Some(false),
+            shadows: Some(true),
+            hatch_m: None,
+        },
+        ..plain.clone()
+    };
+    let render = |settings: &RenderSettings| {
+        render_png_to(&site, &standpoint, settings, std::io::sink()).unwrap();
+    };
+    render(&shadowed);
+    let without = best(RUNS, || render(&plain));
+    let with = best(RUNS, || render(&shadowed));
+    let added = with.saturating_sub(without);
+    let f = floor_time.as_secs_f64();
+    println!();
+    println!("sun (2 cores shared; best of {RUNS}):");
+    println!(
+        "  shadows, demo at 8192x4096: {:.1} ms with, {:.1} ms without, {:.1} ms added = {:.2} x F (target <= 2 x F)",
+        with.as_secs_f64() * 1e3,
+        without.as_secs_f64() * 1e3,
+        added.as_secs_f64() * 1e3,
+        added.as_secs_f64() / f
+    );
+    let sky = Sky::of_site(&site).unwrap();
+    let request = TableRequest {
+        from: "2026-01-01".parse().unwrap(),
+        to: "2026-12-31".parse().unwrap(),
+        step_s: Some(600.0),
+        item: None,
+        blocking: false,
+    };
+    let mut rows = 0;
+    let year = best(3, || rows = sun_table(&site, &sky, &request).unwrap().len());
+    println!(
+        "  a year's table at 10-minute steps ({rows} rows): {:.0} ms = {:.2} x F (target < 1 s)",
+        year.as_secs_f64() * 1e3,
+        year.as_secs_f64() / f
+    );
+}

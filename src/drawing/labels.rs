@@ -1,0 +1,555 @@
+//! The label placer: every word written on a sheet (grid values, compass points, vanishing
+//! points, pole ticks, item labels, captions, the title block) is a [`Label`] handed to one
+//! [`LabelPlacer`], which knows every label placed before and the lines already drawn.
+//!
+//! A label is data: its text, the point it belongs to (its anchor), its kind (which sets
+//! its priority and its layer) and the places beside the anchor where it may stand
+//! ([`Spot`]s, in order of preference). The placer puts labels in order of their kind's
+//! priority, each at the first of its spots that
+//! - lies wholly inside the placer's area (the frame of the panorama or its band, the
+//!   sheet's printable area), so no label is cut by a frame, a band edge or the seam;
+//! - crosses none of the cut lines (the edges of tiled sheets);
+//! - overlaps no label placed before it and no blocked box (a scale bar, a title block);
+//!
+//! and, for labels that should keep clear of the drawing (items, captions), crosses the
+//! fewest drawn lines among those spots. A label with no such spot is left out and counted
+//! ([`Placed::left_out`]), never drawn over another. Because a value's spots all stand
+//! beside its own anchor (an azimuth to the right or the left of its meridian, never
+//! across another), a value is shown whole and beside the line it names, or not at all.
+//!
+//! [`label_layers`] turns the placed labels into layers: one layer per label, carrying its
+//! text (an SVG writes it as `data-text` and a `<title>`), and under them, when asked, a
+//! white halo: the labels' strokes drawn wider in white, which knocks out the lines behind
+//! the letters.
+
+use super::lettering::{letter, stroke_width, text_extent, text_width, Align};
+use super::{Layer, Stroke};
+use crate::plane::{ImagePoint, PolylineSet, Rect};
+
+/// What a label names; the order is the order of placing (earlier kinds win a place).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum LabelKind {
+    /// The title block's fields and the sheet's own marks.
+    Title,
+    /// The heading written at the top of the centre column.
+    Heading,
+    /// Compass points on the horizon.
+    Compass,
+    /// Values of the grid: azimuths and elevations.
+    GridValue,
+    /// Bearings (and climbs) of vanishing points.
+    VanishingPoint,
+    /// Heights on a measuring pole, its name, the eye height.
+    Pole,
+    /// Multiples of a divided segment.
+    Division,
+    /// Items of the site.
+    Item,
+    /// Captions of thumbnails and of plans.
+    Caption,
+}
+
+impl LabelKind {
+    /// The layer a label of this kind is drawn on (styles address it by this name).
+    pub fn layer_name(self) -> &'static str {
+        match self {
+            LabelKind::Title => "title",
+            LabelKind::Heading | LabelKind::Compass | LabelKind::GridValue => "grid labels",
+            LabelKind::VanishingPoint => "vanishing point labels",
+            LabelKind::Pole => "pole labels",
+            LabelKind::Division => "division labels",
+            LabelKind::Item => "item labels",
+            LabelKind::Caption => "captions",
+        }
+    }
+
+    /// Whether the placer looks for the spot crossing the fewest lines, rather than the
+    /// first free spot (values belong on their line; names may move to clear space).
+    fn avoids_lines(self) -> bool {
+        matches!(self, LabelKind::Item | LabelKind::Caption | LabelKind::Pole)
+    }
+}
+
+/// Where a label may stand: its baseline point relative to the anchor, and how the text is
+/// aligned on it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Spot {
+    /// Pixels right of the anchor.
+    pub dx: f64,
+    /// Pixels below the anchor.
+    pub dy: f64,
+    /// How the text is aligned on that point.
+    pub align: Align,
+}
+
+impl Spot {
+    /// A spot `dx`, `dy` pixels from the anchor, aligned.
+    pub const fn new(dx: f64, dy: f64, align: Align) -> Spot {
+        Spot { dx, dy, align }
+    }
+}
+
+/// A label to place: the words, the point they belong to, what they name, the cap height
+/// (pixels) and the spots they may take, best first.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Label {
+    /// The words.
+    pub text: String,
+    /// The point they belong to, in drawing pixels.
+    pub anchor: ImagePoint,
+    /// What they name, which sets their priority and layer.
+    pub kind: LabelKind,
+    /// Cap height, pixels.
+    pub height: f64,
+    /// The places they may stand, best first.
+    pub spots: Vec<Spot>,
+}
+
+impl Label {
+    /// A label that stands in one place only: its baseline through `anchor`, aligned.
+    pub fn fixed(
+        text: impl Into<String>,
+        anchor: ImagePoint,
+        kind: LabelKind,
+        height: f64,
+        align: Align,
+    ) -> Label {
+        Label {
+            text: text.into(),
+            anchor,
+            kind,
+            height,
+            spots: vec![Spot::new(0.0, 0.0, align)],
+        }
+    }
+
+    /// A label for a point mark: above right, above left, below right, below left, above,
+    /// below, then the same a little further out.
+    pub fn around(
+        text: impl Into<String>,
+        anchor: ImagePoint,
+        kind: LabelKind,
+        height: f64,
+    ) -> Label {
+        let mut spots = Vec::new();
+        for reach in [0.6, 1.5] {
+            let d = reach * height;
+            spots.extend([
+                Spot::new(d, -d, Align::Start),
+                Spot::new(-d, -d, Align::End),
+                Spot::new(d, d + height, Align::Start),
+                Spot::new(-d, d + height, Align::End),
+                Spot::new(0.0, -d - 0.4 * height, Align::Middle),
+                Spot::new(0.0, d + 1.4 * height, Align::Middle),
+            ]);
+        }
+        Label {
+            text: text.into(),
+            anchor,
+            kind,
+            height,
+            spots,
+        }
+    }
+
+    /// The same label with these spots instead.
+    pub fn with_spots(mut self, spots: Vec<Spot>) -> Label {
+        self.spots = spots;
+        self
+    }
+
+    /// The box of the label's ink at `spot`: the strokes' centre lines grown by half a
+    /// stroke width.
+    pub fn bounds_at(&self, spot: &Spot) -> Rect {
+        let width = text_width(&self.text, self.height);
+        let (up, down) = text_extent(&self.text, self.height);
+        let x = self.anchor.x + spot.dx;
+        let y = self.anchor.y + spot.dy;
+        let left = match spot.align {
+            Align::Start => x,
+            Align::Middle => x - width / 2.0,
+            Align::End => x - width,
+        };
+        Rect::from_ltrb(left, y - up, left + width, y + down).grown(stroke_width(self.height) / 2.0)
+    }
+}
+
+/// A label where the placer put it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlacedLabel {
+    /// The words.
+    pub text: String,
+    /// What they name.
+    pub kind: LabelKind,
+    /// The point they belong to.
+    pub anchor: ImagePoint,
+    /// Its baseline point and alignment.
+    pub at: ImagePoint,
+    /// How the text is aligned on its baseline point.
+    pub align: Align,
+    /// Cap height, pixels.
+    pub height: f64,
+    /// The box of its ink.
+    pub bounds: Rect,
+}
+
+/// What the placer did: the labels it placed, and how many it left out for want of room.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Placed {
+    /// The labels placed, in the order they were placed.
+    pub labels: Vec<PlacedLabel>,
+    /// How many were left out for want of room.
+    pub left_out: usize,
+}
+
+/// Places labels without overlap inside an area; see the module's docs.
+#[derive(Clone, Debug)]
+pub struct LabelPlacer {
+    area: Rect,
+    /// Clear space kept round every label, pixels (room for the halo).
+    clearance: f64,
+    cuts_x: Vec<f64>,
+    cuts_y: Vec<f64>,
+    blocked: Vec<Rect>,
+    lines: LineCells,
+    placed: Placed,
+}
+
+impl LabelPlacer {
+    /// A placer for labels wholly inside `area`, each kept `clearance` pixels from the
+    /// others.
+    pub fn new(area: Rect, clearance: f64) -> LabelPlacer {
+        LabelPlacer {
+            area,
+            clearance: clearance.max(0.0),
+            cuts_x: Vec::new(),
+            cuts_y: Vec::new(),
+            blocked: Vec::new(),
+            lines: LineCells::new(area, 4.0),
+            placed: Placed::default(),
+        }
+    }
+
+    /// Lines no label may cross: the edges of tiled sheets, at these x (vertical lines)
+    /// and y (horizontal lines).
+    pub fn cut_along(&mut self, xs: &[f64], ys: &[f64]) {
+        self.cuts_x.extend_from_slice(xs);
+        self.cuts_y.extend_from_slice(ys);
+    }
+
+    /// A box no label may overlap.
+    pub fn block(&mut self, rect: Rect) {
+        self.blocked.push(rect);
+    }
+
+    /// Drawn lines that labels keep clear of where they can; cells of `cell` pixels.
+    pub fn avoid_lines(&mut self, lines: &PolylineSet, cell: f64) {
+        if self.lines.cell != cell.max(1.0) && self.lines.is_empty() {
+            self.lines = LineCells::new(self.area, cell);
+        }
+        self.lines.mark(lines);
+    }
+
+    /// The labels placed so far.
+    pub fn placed(&self) -> &[PlacedLabel] {
+        &self.placed.labels
+    }
+
+    /// Places `labels` in order of their kind (stable within a kind). A label whose anchor
+    /// lies outside the area is not for this area and is neither placed nor counted.
+    pub fn place(&mut self, mut labels: Vec<Label>) {
+        labels.sort_by_key(|l| l.kind);
+        for label in labels {
+            if !self.area.contains(label.anchor) || label.text.trim().is_empty() {
+                continue;
+            }
+            let mut best: Option<(usize, Spot, Rect)> = None;
+            for spot in &label.spots {
+                let bounds = label.bounds_at(spot);
+                if !self.fits(&bounds) {
+                    continue;
+                }
+                let crossed = if label.kind.avoids_lines() {
+                    self.lines.count(&bounds)
+                } else {
+                    0
+                };
+                if best.as_ref().is_none_or(|(c, ..)| crossed < *c) {
+                    best = Some((crossed, *spot, bounds));
+                    if crossed == 0 {
+                        break;
+                    }
+                }
+            }
+            match best {
+                Some((_, spot, bounds)) => self.placed.labels.push(PlacedLabel {
+                    at: ImagePoint::new(label.anchor.x + spot.dx, label.anchor.y + spot.dy),
+                    align: spot.align,
+                    text: label.text,
+                    kind: label.kind,
+                    anchor: label.anchor,
+                    height: label.height,
+                    bounds,
+                }),
+                None => self.placed.left_out += 1,
+            }
+        }
+    }
+
+    fn fits(&self, bounds: &Rect) -> bool {
+        let spaced = bounds.grown(self.clearance);
+        self.area.encloses(bounds)
+            && !self
+                .cuts_x
+                .iter()
+                .any(|&x| spaced.left < x && x < spaced.right)
+            && !self
+                .cuts_y
+                .iter()
+                .any(|&y| spaced.top < y && y < spaced.bottom)
+            && !self.blocked.iter().any(|b| b.overlaps(&spaced))
+            && !self
+                .placed
+                .labels
+                .iter()
+                .any(|p| p.bounds.overlaps(&spaced))
+    }
+
+    /// What was placed, and how many were left out.
+    pub fn finish(self) -> Placed {
+        self.placed
+    }
+}
+
+/// How labels are inked: their stroke (its width is set from each label's height) and the
+/// halo behind them (its width each side of the strokes, pixels; `None` for none).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LabelInk {
+    /// The letters' ink.
+    pub stroke: Stroke,
+    /// The halo's width each side of the strokes, pixels; `None` for none.
+    pub halo_px: Option<f64>,
+}
+
+/// The layers of placed labels: the halo (if any) under them all, then one layer per label
+/// with its text.
+pub fn label_layers(labels: &[PlacedLabel], ink: LabelInk) -> Vec<Layer> {
+    let mut layers = Vec::with_capacity(labels.len() + 1);
+    if let Some(halo) = ink.halo_px {
+        // The halo of each height in one layer of its width.
+        let mut heights: Vec<f64> = labels.iter().map(|l| l.height).collect();
+        heights.sort_by(f64::total_cmp);
+        heights.dedup();
+        for h in heights {
+            let mut lines = PolylineSet::new();
+            for l in labels.iter().filter(|l| l.height == h) {
+                letter(&l.text, l.at, l.height, l.align, &mut lines);
+            }
+            layers.push(Layer {
+                text: None,
+                name: HALO.to_owned(),
+                stroke: Stroke {
+                    colour: [255, 255, 255],
+                    opacity: 1.0,
+                    width_px: stroke_width(h) + 2.0 * halo,
+                },
+                lines,
+            });
+        }
+    }
+    for l in labels {
+        let mut lines = PolylineSet::new();
+        letter(&l.text, l.at, l.height, l.align, &mut lines);
+        layers.push(Layer {
+            text: Some(l.text.clone()),
+            name: l.kind.layer_name().to_owned(),
+            stroke: Stroke {
+                width_px: stroke_width(l.height).max(ink.stroke.width_px.min(1.0)),
+                ..ink.stroke
+            },
+            lines,
+        });
+    }
+    layers
+}
+
+/// The name of the layer of label halos.
+pub const HALO: &str = "label halo";
+
+/// A coarse map of the cells of an area that drawn lines pass through.
+#[derive(Clone, Debug)]
+struct LineCells {
+    origin: ImagePoint,
+    cell: f64,
+    columns: usize,
+    rows: usize,
+    taken: Vec<bool>,
+    any: bool,
+}
+
+impl LineCells {
+    fn new(area: Rect, cell: f64) -> LineCells {
+        let cell = cell.max(1.0);
+        let columns = (area.width() / cell).ceil().clamp(1.0, 1e5) as usize + 1;
+        let rows = (area.height() / cell).ceil().clamp(1.0, 1e5) as usize + 1;
+        LineCells {
+            origin: ImagePoint::new(area.left, area.top),
+            cell,
+            columns,
+            rows,
+            taken: vec![false; columns * rows],
+            any: false,
+        }
+    }
+
+    fn is_empty(&self) -> bool {
+        !self.any
+    }
+
+    fn mark(&mut self, lines: &PolylineSet) {
+        for line in lines.iter() {
+            for pair in line.windows(2) {
+                let (a, b) = (pair[0], pair[1]);
+                let steps = ((b.x - a.x).hypot(b.y - a.y) / (0.5 * self.cell)).ceil() as usize;
+                for k in 0..=steps.min(1 << 16) {
+                    let s = k as f64 / steps.max(1) as f64;
+                    let (x, y) = (a.x + (b.x - a.x) * s, a.y + (b.y - a.y) * s);
+                    let c = ((x - self.origin.x) / self.cell).floor();
+                    let r = ((y - self.origin.y) / self.cell).floor();
+                    if c >= 0.0
+                        && r >= 0.0
+                        && (c as usize) < self.columns
+                        && (r as usize) < self.rows
+                    {
+                        self.taken[r as usize * self.columns + c as usize] = true;
+                        self.any = true;
+                    }
+                }
+            }
+        }
+    }
+
+    fn count(&self, b: &Rect) -> usize {
+        let span = |lo: f64, hi: f64, origin: f64, n: usize| {
+            let a = ((lo - origin) / self.cell).floor().max(0.0) as usize;
+            let z = (((hi - origin) / self.cell).floor().max(0.0) as usize).min(n - 1);
+            a..=z
+        };
+        let columns = span(b.left, b.right, self.origin.x, self.columns);
+        span(b.top, b.bottom, self.origin.y, self.rows)
+            .flat_map(|r| columns.clone().map(move |c| r * self.columns + c))
+            .filter(|&i| self.taken[i])
+            .count()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn area() -> Rect {
+        Rect::from_ltrb(0.0, 0.0, 400.0, 200.0)
+    }
+
+    #[test]
+    fn labels_never_overlap_and_the_loser_is_counted() {
+        let mut placer = LabelPlacer::new(area(), 1.0);
+        let p = ImagePoint::new(100.0, 100.0);
+        placer.place(vec![
+            Label::fixed("AAAA", p, LabelKind::GridValue, 10.0, Align::Start),
+            Label::fixed("BBBB", p, LabelKind::Item, 10.0, Align::Start),
+        ]);
+        let placed = placer.finish();
+        assert_eq!(placed.labels.len(), 1);
+        assert_eq!(placed.labels[0].text, "AAAA", "grid values come first");
+        assert_eq!(placed.left_out, 1);
+    }
+
+    #[test]
+    fn a_label_at_the_edge_stays_whole_on_its_side() {
+        // An azimuth at the left border: it may stand right or left of its line, and only
+        // the right is inside the frame.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let spots = vec![
+            Spot::new(-3.0, 12.0, Align::End),
+            Spot::new(3.0, 12.0, Align::Start),
+        ];
+        let label = Label::fixed(
+            "180",
+            ImagePoint::new(0.0, 100.0),
+            LabelKind::GridValue,
+            10.0,
+            Align::Start,
+        )
+        .with_spots(spots);
+        placer.place(vec![label]);
+        let placed = placer.finish();
+        assert_eq!(placed.labels.len(), 1);
+        assert!(placed.labels[0].bounds.left >= 0.0);
+        assert_eq!(placed.labels[0].at, ImagePoint::new(3.0, 112.0));
+    }
+
+    #[test]
+    fn cuts_and_blocks_are_kept_clear() {
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.cut_along(&[110.0], &[]);
+        placer.block(Rect::from_ltrb(0.0, 150.0, 400.0, 200.0));
+        placer.place(vec![
+            Label::fixed(
+                "ACROSS",
+                ImagePoint::new(100.0, 50.0),
+                LabelKind::Item,
+                10.0,
+                Align::Start,
+            ),
+            Label::fixed(
+                "LOW",
+                ImagePoint::new(10.0, 160.0),
+                LabelKind::Item,
+                10.0,
+                Align::Start,
+            ),
+        ]);
+        assert_eq!(placer.finish().left_out, 2);
+    }
+
+    #[test]
+    fn names_move_off_the_lines() {
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let mut lines = PolylineSet::new();
+        // A line through the anchor, up and to the right, blocks the first spot.
+        lines.push(&[ImagePoint::new(200.0, 100.0), ImagePoint::new(300.0, 0.0)]);
+        placer.avoid_lines(&lines, 3.0);
+        placer.place(vec![Label::around(
+            "WELL",
+            ImagePoint::new(200.0, 100.0),
+            LabelKind::Item,
+            10.0,
+        )]);
+        let placed = placer.finish();
+        let b = placed.labels[0].bounds;
+        assert!(b.right <= 200.0 && b.bottom <= 100.0, "above left: {b:?}");
+    }
+
+    #[test]
+    fn layers_carry_the_text_over_a_halo() {
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.place(vec![Label::fixed(
+            "N",
+            ImagePoint::new(10.0, 50.0),
+            LabelKind::Compass,
+            10.0,
+            Align::Start,
+        )]);
+        let ink = LabelInk {
+            stroke: Stroke::black(0.8, 1.0),
+            halo_px: Some(2.0),
+        };
+        let layers = label_layers(&placer.finish().labels, ink);
+        assert_eq!(layers.len(), 2);
+        assert_eq!(layers[0].name, HALO);
+        assert_eq!(layers[0].stroke.width_px, 5.0);
+        assert_eq!(layers[1].text.as_deref(), Some("N"));
+        assert_eq!(layers[1].stroke.width_px, 1.0);
+    }
+}

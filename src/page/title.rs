@@ -1,0 +1,355 @@
+//! The title block: what the sheet shows (scene, standpoint, date), its scale and a scale
+//! bar, and a legend of the line kinds, laid out for the paper: the fields wrap to the
+//! width there is, at a cap height never below 2 mm, so that the block fits any sheet from
+//! A6 portrait to A0 and ASME E.
+
+use crate::drawing::{line_pitch, text_width, Align, Label, LabelKind, LabelPlacer, Stroke};
+use crate::plane::{ImagePoint, PolylineSet, Rect};
+use crate::scene::{Site, Standpoint};
+
+/// Cap height of the title lettering, millimetres: 2.5 mm, a preferred size of ISO 3098
+/// (from memory), and never below [`MIN_LETTER_MM`].
+pub const LETTER_MM: f64 = 2.5;
+/// The smallest cap height the block is written at, millimetres (the floor; 2.0 mm is
+/// also a preferred ISO 3098 size, from memory).
+pub const MIN_LETTER_MM: f64 = 2.0;
+/// Gap between the panorama's frame and the block, millimetres.
+pub const GAP_MM: f64 = 3.0;
+/// Length of a legend's sample line, millimetres.
+const SAMPLE_MM: f64 = 6.0;
+
+/// The line kinds a legend shows: its words, and how its sample is drawn (ink and whether
+/// dashed). The inks are the panorama's own (see [`crate::aids::strokes`] and the render).
+pub const LEGEND: [(&str, f64, bool); 5] = [
+    ("SEEN", 1.0, false),
+    ("HIDDEN", 0.4, true),
+    ("GRID", 0.22, false),
+    ("HORIZON", 0.5, false),
+    ("AIDS", 0.75, false),
+];
+
+/// The block's rows, wrapped to a width, and its height.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TitleLayout {
+    /// Cap height, millimetres.
+    pub letter_mm: f64,
+    /// The rows of text, wrapped to fit.
+    pub rows: Vec<String>,
+    /// The legend's entries, in rows.
+    pub legend_rows: Vec<Vec<usize>>,
+    /// Width of the column of text (left of the scale bar), millimetres.
+    pub text_width_mm: f64,
+    /// The whole block, millimetres.
+    pub width_mm: f64,
+    /// The whole block's height, millimetres.
+    pub height_mm: f64,
+    /// Room kept at the right for the scale bar, millimetres.
+    pub bar_box_mm: f64,
+}
+
+impl TitleLayout {
+    /// The same rows in a block as tall as `planned` (the page was placed with it).
+    pub fn with_height_of(mut self, planned: &TitleLayout) -> TitleLayout {
+        self.height_mm = self.height_mm.max(planned.height_mm);
+        self
+    }
+}
+
+/// Lays the block out in `width_mm`, its scale bar at most `bar_mm` long.
+pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: f64) -> TitleLayout {
+    let letter_mm = if width_mm < 120.0 {
+        MIN_LETTER_MM
+    } else {
+        LETTER_MM
+    };
+    let bar_box_mm = bar_mm + 4.0 * letter_mm;
+    let text_width_mm = (width_mm - bar_box_mm - 2.0 * letter_mm).max(20.0 * letter_mm);
+    let mut rows = Vec::new();
+    for field in fields {
+        rows.extend(wrap(field, text_width_mm, letter_mm));
+    }
+    // Legend entries: a sample line and the words, as many to a row as fit.
+    let mut legend_rows: Vec<Vec<usize>> = vec![Vec::new()];
+    let mut used = 0.0;
+    for (k, (words, ..)) in LEGEND.iter().enumerate() {
+        let entry = legend_entry_mm(words, letter_mm);
+        if used + entry > text_width_mm && !legend_rows.last().is_some_and(Vec::is_empty) {
+            legend_rows.push(Vec::new());
+            used = 0.0;
+        }
+        if let Some(row) = legend_rows.last_mut() {
+            row.push(k);
+        }
+        used += entry;
+    }
+    let pitch = line_pitch(letter_mm) + 0.4 * letter_mm;
+    let text_rows = rows.len() + legend_rows.len();
+    // The scale bar needs three rows of its own at the right.
+    let height_mm = pitch * text_rows.max(3) as f64 + 0.5 * letter_mm;
+    TitleLayout {
+        letter_mm,
+        rows,
+        legend_rows,
+        text_width_mm,
+        width_mm,
+        height_mm,
+        bar_box_mm,
+    }
+}
+
+/// A legend entry's width: sample, gap, words, and the gap before the next.
+fn legend_entry_mm(words: &str, letter_mm: f64) -> f64 {
+    SAMPLE_MM + letter_mm + text_width(words, letter_mm) + 2.0 * letter_mm
+}
+
+/// A field broken at spaces into rows no wider than `width_mm` (a word wider than that is
+/// broken between its characters).
+pub fn wrap(field: &str, width_mm: f64, letter_mm: f64) -> Vec<String> {
+    let fits = |s: &str| text_width(s, letter_mm) + 0.1 * letter_mm <= width_mm;
+    let mut rows: Vec<String> = Vec::new();
+    let mut row = String::new();
+    for word in field.split_whitespace() {
+        let candidate = if row.is_empty() {
+            word.to_owned()
+        } else {
+            format!("{row} {word}")
+        };
+        if fits(&candidate) {
+            row = candidate;
+            continue;
+        }
+        if !row.is_empty() {
+            rows.push(std::mem::take(&mut row));
+        }
+        for c in word.chars() {
+            let longer = format!("{row}{c}");
+            if !fits(&longer) && !row.is_empty() {
+                rows.push(std::mem::take(&mut row));
+            }
+            row.push(c);
+        }
+    }
+    if !row.is_empty() {
+        rows.push(row);
+    }
+    rows
+}
+
+/// The drawn block: its labels (placed by a [`LabelPlacer`] over the block's box, so they
+/// are whole and apart), the scale bar and the legend's samples; `px` pixels a millimetre,
+/// the block's top-left corner at `origin`, the panorama's scale `mm_per_degree`.
+pub struct TitleBlock {
+    /// The lettering, placed.
+    pub labels: Vec<crate::drawing::PlacedLabel>,
+    /// The scale bar's strokes.
+    pub bar: PolylineSet,
+    /// Legend samples, one polyline set per entry of [`LEGEND`].
+    pub samples: Vec<(Stroke, PolylineSet)>,
+    /// The block's box, and the scale bar's, pixels.
+    pub bounds: Rect,
+    /// The scale bar's box, pixels.
+    pub bar_bounds: Rect,
+    /// Labels left out for want of room.
+    pub left_out: usize,
+}
+
+/// Draws the block laid out by `layout` (see [`TitleBlock`]).
+pub fn title_block(
+    layout: &TitleLayout,
+    origin: ImagePoint,
+    px: f64,
+    mm_per_degree: f64,
+) -> TitleBlock {
+    let h = layout.letter_mm * px;
+    let pitch = (line_pitch(layout.letter_mm) + 0.4 * layout.letter_mm) * px;
+    let bounds = Rect::from_ltrb(
+        origin.x,
+        origin.y,
+        origin.x + layout.width_mm * px,
+        origin.y + layout.height_mm * px,
+    );
+    // The scale bar at the right of the block, ticked every degree, in a box of its own.
+    let bar = 10.0 * mm_per_degree * px;
+    let right = bounds.right - h;
+    let y = origin.y + 1.6 * pitch;
+    let mut bar_lines = PolylineSet::new();
+    bar_lines.push(&[ImagePoint::new(right - bar, y), ImagePoint::new(right, y)]);
+    for degree in 0..=10 {
+        let x = right - bar + bar * degree as f64 / 10.0;
+        let tick = if degree % 5 == 0 { h } else { h / 2.0 };
+        bar_lines.push(&[ImagePoint::new(x, y), ImagePoint::new(x, y - tick)]);
+    }
+    let bar_bounds = Rect::from_ltrb(right - bar, y - h, right, y).grown(0.3 * h);
+    let mut placer = LabelPlacer::new(bounds, 0.0);
+    placer.block(bar_bounds);
+    let mut labels = Vec::new();
+    labels.push(Label::fixed(
+        "10\u{b0}",
+        ImagePoint::new(right, y + 1.4 * h),
+        LabelKind::Title,
+        h,
+        Align::End,
+    ));
+    let left = origin.x;
+    for (row, text) in layout.rows.iter().enumerate() {
+        labels.push(Label::fixed(
+            text.clone(),
+            ImagePoint::new(left, origin.y + h + row as f64 * pitch),
+            LabelKind::Title,
+            h,
+            Align::Start,
+        ));
+    }
+    let mut samples = Vec::new();
+    for (r, entries) in layout.legend_rows.iter().enumerate() {
+        let baseline = origin.y + h + (layout.rows.len() + r) as f64 * pitch;
+        let mut x = left;
+        for &k in entries {
+            let (words, opacity, dashed) = LEGEND[k];
+            let mid = baseline - 0.5 * h;
+            let mut lines = PolylineSet::new();
+            let sample = SAMPLE_MM * px;
+            if dashed {
+                let dash = sample / 5.0;
+                for d in (0..5).step_by(2) {
+                    let a = x + d as f64 * dash;
+                    lines.push(&[ImagePoint::new(a, mid), ImagePoint::new(a + dash, mid)]);
+                }
+            } else {
+                lines.push(&[ImagePoint::new(x, mid), ImagePoint::new(x + sample, mid)]);
+            }
+            samples.push((Stroke::black(opacity, (0.25 * px).max(1.0)), lines));
+            labels.push(Label::fixed(
+                words,
+                ImagePoint::new(x + sample + h, baseline),
+                LabelKind::Title,
+                h,
+                Align::Start,
+            ));
+            x += legend_entry_mm(words, layout.letter_mm) * px;
+        }
+    }
+    placer.place(labels);
+    let placed = placer.finish();
+    TitleBlock {
+        labels: placed.labels,
+        bar: bar_lines,
+        samples,
+        bounds,
+        bar_bounds,
+        left_out: placed.left_out,
+    }
+}
+
+/// The title block's lines for a drawing of `site` from `standpoint`, dated `date`
+/// (year, month, day).
+pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
+    let (year, month, day) = date;
+    let mut lines = vec![
+        format!("{}: STANDPOINT {}", site.name, standpoint.name),
+        format!(
+            "HEADING {:.1}\u{b0}  PITCH {:.1}\u{b0}  ROLL {:.1}\u{b0}  EYE {:.2} M ABOVE GROUND AT {:.2} M, AT ({:.2}, {:.2})",
+            standpoint.heading.to_degrees().rem_euclid(360.0),
+            standpoint.pitch.to_degrees(),
+            standpoint.roll.to_degrees(),
+            standpoint.eye_height,
+            standpoint.ground,
+            standpoint.x,
+            standpoint.y
+        ),
+        format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
+    ];
+    if let Some(location) = &site.location {
+        if location.north_deg.rem_euclid(360.0) != 0.0 {
+            lines.push(format!(
+                "TRUE NORTH {:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)",
+                location.north_deg.rem_euclid(360.0)
+            ));
+        }
+    }
+    if let Some(sun) = &site.sun {
+        lines.push(format!(
+            "SUN AND SHADOWS AT {} {} LOCAL TIME ({}) FROM THE MODEL ALONE",
+            sun.date.0,
+            sun.time.0.strftime("%H:%M"),
+            site.location
+                .as_ref()
+                .and_then(|l| l.time_zone.as_deref())
+                .unwrap_or("UTC")
+        ));
+    }
+    lines
+}
+
+/// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way
+/// to ask for reproducible output).
+pub fn today() -> (i64, u32, u32) {
+    let seconds = std::env::var("SOURCE_DATE_EPOCH")
+        .ok()
+        .and_then(|s| s.trim().parse::<i64>().ok())
+        .unwrap_or_else(|| {
+            std::time::SystemTime::now()
+                .duration_since(std::time::UNIX_EPOCH)
+                .map_or(0, |d| d.as_secs() as i64)
+        });
+    civil_date(seconds.div_euclid(86_400))
+}
+
+/// The proleptic Gregorian date of a day counted from 1970-01-01 (Howard Hinnant,
+/// "chrono-Compatible Low-Level Date Algorithms", `civil_from_days`).
+pub fn civil_date(days: i64) -> (i64, u32, u32) {
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let day_of_era = z.rem_euclid(146_097);
+    let year_of_era =
+        (day_of_era - day_of_era / 1460 + day_of_era / 36_524 - day_of_era / 146_096) / 365;
+    let day_of_year = day_of_era - (365 * year_of_era + year_of_era / 4 - year_of_era / 100);
+    let month_index = (5 * day_of_year + 2) / 153;
+    let day = (day_of_year - (153 * month_index + 2) / 5 + 1) as u32;
+    let month = if month_index < 10 {
+        month_index + 3
+    } else {
+        month_index - 9
+    } as u32;
+    let year = year_of_era + era * 400 + i64::from(month <= 2);
+    (year, month, day)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn civil_dates_of_known_days() {
+        // 1970-01-01 is day 0; 2000-03-01 is day 11017; 2026-12-02 is day 20789 (counted
+        // with the algorithm's own inverse, `days_from_civil`, in the same paper).
+        assert_eq!(civil_date(0), (1970, 1, 1));
+        assert_eq!(civil_date(11_017), (2000, 3, 1));
+        assert_eq!(civil_date(20_789), (2026, 12, 2));
+        assert_eq!(civil_date(-1), (1969, 12, 31));
+    }
+
+    #[test]
+    fn fields_wrap_to_the_width() {
+        let field = "HEADING 45.0\u{b0}  PITCH 0.0\u{b0}  ROLL 0.0\u{b0}  EYE 1.60 M ABOVE GROUND";
+        let rows = wrap(field, 60.0, 2.0);
+        assert!(rows.len() > 1, "{rows:?}");
+        for row in &rows {
+            assert!(text_width(row, 2.0) <= 60.0, "{row}");
+        }
+        assert_eq!(
+            rows.join(" "),
+            field.split_whitespace().collect::<Vec<_>>().join(" ")
+        );
+    }
+
+    #[test]
+    fn narrow_paper_gets_the_smallest_letters_and_more_rows() {
+        let fields = vec!["A LONG SCENE NAME: STANDPOINT AT THE NORTH GATE".to_owned()];
+        let narrow = title_layout(&fields, 85.0, 25.0);
+        let wide = title_layout(&fields, 400.0, 100.0);
+        assert_eq!(narrow.letter_mm, MIN_LETTER_MM);
+        assert_eq!(wide.letter_mm, LETTER_MM);
+        assert!(narrow.rows.len() > wide.rows.len());
+    }
+}

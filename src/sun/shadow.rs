@@ -1,0 +1,597 @@
+//! The outlines of the shadows the site's solids cast, at one direction of the sun.
+//!
+//! A shadow's outline on a plane face is made of the images, carried along the sun's rays,
+//! of the edges that outline the solids as seen from the sun (their silhouette edges): an
+//! edge both of whose faces lie on one side of the plane through it and the sun's
+//! direction. Each such edge is carried to every face behind it (and to the ground, the
+//! plane z = 0) and cut to the face; what is left is a line of the outline where the
+//! ray from its point to the sun grazes the edge and meets nothing else on the way (a ray
+//! cast through the hierarchy of faces the hidden lines use). Where that changes along
+//! the line (another shadow falls across it) the change is found by bisection to
+//! [`BREAK_TOLERANCE_M`]. The lines are straight segments in the site frame, so they are
+//! drawn, and hidden behind nearer faces, exactly like the site's own edges.
+//!
+//! Curved surfaces cast the shadows of their facets (7.5 degrees); a change along a line
+//! shorter than the sampling step ([`SAMPLE_STEP_M`]) can be missed.
+
+use crate::scene::{Face, Site};
+use crate::visibility::Bvh;
+use nalgebra::{Point3, Vector3};
+use std::collections::HashMap;
+
+/// Where a line of an outline starts or stops being one is found to this length, metres.
+pub const BREAK_TOLERANCE_M: f64 = 1e-6;
+/// Lines of an outline are tested for light at least this often, metres (and at least at
+/// [`MIN_SAMPLES`] points).
+pub const SAMPLE_STEP_M: f64 = 0.25;
+const MIN_SAMPLES: usize = 6;
+const MAX_SAMPLES: usize = 400;
+/// Corners closer than this (metres) are one corner when faces are joined along edges.
+const WELD_M: f64 = 1e-6;
+/// A face nearly edge-on to the sun (|n . s| below this) receives no outline.
+const EDGE_ON: f64 = 1e-9;
+
+/// A straight piece of a shadow's outline, in the site frame.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ShadowLine {
+    /// One end.
+    pub start: Point3<f64>,
+    /// The other end.
+    pub end: Point3<f64>,
+}
+
+/// A silhouette edge from the sun and the faces it joins.
+#[derive(Clone, Debug)]
+struct Silhouette {
+    a: Point3<f64>,
+    b: Point3<f64>,
+    faces: Vec<u32>,
+}
+
+/// Where a receiving plane is cut off: a triangle (an index into the faces) or the
+/// unbounded ground.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Receiver {
+    Face(u32),
+    Ground,
+}
+
+/// The outlines of the shadows at a sun in the unit direction `towards_sun` (site frame,
+/// above the horizon), on the site's faces and on the ground plane z = 0.
+pub fn shadow_outlines(site: &Site, bvh: &Bvh, towards_sun: &Vector3<f64>) -> Vec<ShadowLine> {
+    let s = towards_sun.normalize();
+    let mut out = Vec::new();
+    if s.z <= 0.0 {
+        return out;
+    }
+    let silhouettes = silhouettes(&site.faces, &s);
+    let planes: Vec<Option<(Vector3<f64>, f64)>> = site.faces.iter().map(plane_of).collect();
+    let receivers = (0..site.faces.len() as u32)
+        .map(Receiver::Face)
+        .chain([Receiver::Ground]);
+    let receivers: Vec<(Receiver, Vector3<f64>, f64)> = receivers
+        .filter_map(|r| match r {
+            Receiver::Ground => Some((r, Vector3::z(), 0.0)),
+            Receiver::Face(i) => planes[i as usize].map(|(n, d)| (r, n, d)),
+        })
+        .filter(|(_, n, _)| n.dot(&s).abs() > EDGE_ON)
+        .collect();
+    for edge in &silhouettes {
+        for &(receiver, n, d) in &receivers {
+            if let Receiver::Face(i) = receiver {
+                if edge.faces.contains(&i) {
+                    continue;
+                }
+            }
+            let Some((u0, u1)) = carried_span(edge, receiver, &n, d, &s, &site.faces) else {
+                continue;
+            };
+            let on_plane = |u: f64| {
+                let p = edge.a + (edge.b - edge.a) * u;
+                p - s * ((n.dot(&p.coords) - d) / n.dot(&s))
+            };
+            let lit = |u: f64| grazes(site, bvh, &on_plane(u), &s, edge, receiver);
+            for (from, to) in runs(u0, u1, (edge.b - edge.a).norm(), lit) {
+                out.push(ShadowLine {
+                    start: on_plane(from),
+                    end: on_plane(to),
+                });
+            }
+        }
+    }
+    out
+}
+
+/// The layer (and the label) of the shadows' outlines.
+pub const SHADOWS: &str = "shadows";
+
+/// The site with the outlines of its shadows at a sun in the direction `towards_sun` added
+/// as one item, labelled and layered [`SHADOWS`], so that they are drawn, hidden and
+/// listed (`pansite angles --item shadows`) like any item's edges.
+pub fn with_shadows(site: &Site, towards_sun: &Vector3<f64>) -> Site {
+    with_shadows_and_hatching(site, towards_sun, None)
+}
+
+/// [`with_shadows`], and with `hatch_spacing_m` the [`hatching`] as a second item on its
+/// own layer ([`HATCHING`]).
+pub fn with_shadows_and_hatching(
+    site: &Site,
+    towards_sun: &Vector3<f64>,
+    hatch_spacing_m: Option<f64>,
+) -> Site {
+    let bvh = Bvh::new(&site.faces);
+    let lines = shadow_outlines(site, &bvh, towards_sun);
+    let hatch = hatch_spacing_m.map(|spacing| hatching(site, &bvh, towards_sun, spacing));
+    let mut shadowed = site.clone();
+    let item =
+        shadowed.add_item_on_layer("shadow", Some(SHADOWS.to_owned()), Some(SHADOWS.to_owned()));
+    for line in lines {
+        shadowed.add_segment(item, line.start, line.end);
+    }
+    if let Some(hatch) = hatch {
+        let item = shadowed.add_item_on_layer(
+            "shadow",
+            Some(HATCHING.to_owned()),
+            Some(HATCHING.to_owned()),
+        );
+        for line in hatch {
+            shadowed.add_segment(item, line.start, line.end);
+        }
+    }
+    shadowed
+}
+
+/// The layer of the shadows' hatching.
+pub const HATCHING: &str = "shadow hatching";
+
+/// Hatching of everything in shadow or turned from the sun, on the faces and on the
+/// ground, for prints in black and white: parallel lines `spacing_m` apart on each plane
+/// (at 45 degrees on upright faces and across the plan elsewhere), kept where the ray
+/// from their points to the sun meets a face, their ends found like the outlines' breaks.
+pub fn hatching(
+    site: &Site,
+    bvh: &Bvh,
+    towards_sun: &Vector3<f64>,
+    spacing_m: f64,
+) -> Vec<ShadowLine> {
+    let s = towards_sun.normalize();
+    let mut out = Vec::new();
+    if s.z <= 0.0 || !(spacing_m.is_finite() && spacing_m > 0.0) {
+        return out;
+    }
+    let mut hatch = |receiver: Receiver, a: Point3<f64>, b: Point3<f64>| {
+        let length = (b - a).norm();
+        if length < 1e-9 {
+            return;
+        }
+        let at = |u: f64| a + (b - a) * u;
+        let shaded = |u: f64| shaded_from(site, bvh, &at(u), &s, receiver);
+        for (from, to) in runs(0.0, 1.0, length, shaded) {
+            out.push(ShadowLine {
+                start: at(from),
+                end: at(to),
+            });
+        }
+    };
+    for (index, face) in site.faces.iter().enumerate() {
+        let Some((n, _)) = plane_of(face) else {
+            continue;
+        };
+        // Along: 45 degrees up an upright face; the plan's diagonal projected elsewhere.
+        let along = if n.z.abs() < 0.5 {
+            (n.cross(&Vector3::z()).normalize() + Vector3::z()).normalize()
+        } else {
+            let d = Vector3::new(1.0, 1.0, 0.0);
+            (d - n * n.dot(&d)).normalize()
+        };
+        let across = n.cross(&along);
+        let offsets = face.corners.map(|c| across.dot(&c.coords));
+        let (lo, hi) = offsets
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &o| {
+                (l.min(o), h.max(o))
+            });
+        let first = (lo / spacing_m).ceil() as i64;
+        let last = (hi / spacing_m).floor() as i64;
+        for k in first..=last.min(first + 100_000) {
+            if let Some((a, b)) = cut_triangle(&face.corners, &across, k as f64 * spacing_m) {
+                hatch(Receiver::Face(index as u32), a, b);
+            }
+        }
+    }
+    // The ground: over the plan's extent of the solids and their shadows.
+    let mut lo = (f64::INFINITY, f64::INFINITY);
+    let mut hi = (f64::NEG_INFINITY, f64::NEG_INFINITY);
+    for corner in site.faces.iter().flat_map(|f| f.corners) {
+        if corner.z < 0.0 {
+            continue;
+        }
+        let foot = corner - s * (corner.z / s.z);
+        for p in [corner, foot] {
+            lo = (lo.0.min(p.x), lo.1.min(p.y));
+            hi = (hi.0.max(p.x), hi.1.max(p.y));
+        }
+    }
+    if lo.0.is_finite() {
+        // Lines x - y = c, cut to the extent.
+        let first = ((lo.0 - hi.1) / spacing_m).ceil() as i64;
+        let last = ((hi.0 - lo.1) / spacing_m).floor() as i64;
+        for k in first..=last.min(first + 100_000) {
+            let c = k as f64 * spacing_m;
+            let x0 = lo.0.max(lo.1 + c);
+            let x1 = hi.0.min(hi.1 + c);
+            if x1 > x0 {
+                hatch(
+                    Receiver::Ground,
+                    Point3::new(x0, x0 - c, 0.0),
+                    Point3::new(x1, x1 - c, 0.0),
+                );
+            }
+        }
+    }
+    out
+}
+
+/// The piece of the line {p : across . p = offset} inside a triangle, if any.
+fn cut_triangle(
+    corners: &[Point3<f64>; 3],
+    across: &Vector3<f64>,
+    offset: f64,
+) -> Option<(Point3<f64>, Point3<f64>)> {
+    let mut ends = Vec::with_capacity(2);
+    for k in 0..3 {
+        let (p, q) = (corners[k], corners[(k + 1) % 3]);
+        let (fp, fq) = (
+            across.dot(&p.coords) - offset,
+            across.dot(&q.coords) - offset,
+        );
+        if (fp < 0.0) != (fq < 0.0) {
+            ends.push(p + (q - p) * (fp / (fp - fq)));
+        }
+    }
+    (ends.len() == 2).then(|| (ends[0], ends[1]))
+}
+
+/// Whether the ray from `p` on a receiver towards the sun meets a face (other than the
+/// receiver): the point is in shadow, or on a face turned from the sun.
+fn shaded_from(
+    site: &Site,
+    bvh: &Bvh,
+    p: &Point3<f64>,
+    s: &Vector3<f64>,
+    receiver: Receiver,
+) -> bool {
+    let base = site.faces.as_ptr() as usize;
+    let size = std::mem::size_of::<Face>();
+    let start = 1e-7 * (1.0 + p.coords.abs().max());
+    bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
+        let index = ((face as *const Face as usize - base) / size) as u32;
+        distance > start && receiver != Receiver::Face(index)
+    })
+    .is_some()
+}
+
+/// The unit normal and offset (n . p = d) of a face's plane; `None` for a sliver.
+fn plane_of(face: &Face) -> Option<(Vector3<f64>, f64)> {
+    let [a, b, c] = face.corners;
+    let n = (b - a).cross(&(c - a)).try_normalize(1e-12)?;
+    Some((n, n.dot(&a.coords)))
+}
+
+/// An edge's two ends and, for each face along it, the face's index and third corner.
+type EdgeFaces = (Point3<f64>, Point3<f64>, Vec<(u32, Point3<f64>)>);
+
+/// The silhouette edges of the faces from the sun: edges of one face, or of faces on one
+/// side of the plane through the edge and the sun's direction.
+fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
+    let key = |p: &Point3<f64>| [p.x, p.y, p.z].map(|v| (v / WELD_M).round() as i64);
+    let mut sides: HashMap<([i64; 3], [i64; 3]), EdgeFaces> = HashMap::new();
+    for (index, face) in faces.iter().enumerate() {
+        for k in 0..3 {
+            let (a, b, c) = (
+                face.corners[k],
+                face.corners[(k + 1) % 3],
+                face.corners[(k + 2) % 3],
+            );
+            let (ka, kb) = (key(&a), key(&b));
+            if ka == kb {
+                continue;
+            }
+            let (entry_key, a, b) = if ka < kb {
+                ((ka, kb), a, b)
+            } else {
+                ((kb, ka), b, a)
+            };
+            sides
+                .entry(entry_key)
+                .or_insert_with(|| (a, b, Vec::new()))
+                .2
+                .push((index as u32, c));
+        }
+    }
+    let mut out: Vec<Silhouette> = sides
+        .into_values()
+        .filter_map(|(a, b, around)| {
+            let m = (b - a).cross(s);
+            if m.norm() < 1e-12 * (b - a).norm() {
+                return None; // Along the sun's rays: its shadow is a point.
+            }
+            let side = |c: &Point3<f64>| m.dot(&(c - a));
+            let first = side(&around[0].1);
+            let one_side = around.iter().all(|(_, c)| side(c) * first > 0.0);
+            (around.len() == 1 || one_side).then(|| Silhouette {
+                a,
+                b,
+                faces: around.iter().map(|(i, _)| *i).collect(),
+            })
+        })
+        .collect();
+    // A fixed order, so that drawings do not depend on the hash map's.
+    out.sort_by(|p, q| {
+        let k = |e: &Silhouette| [e.a.x, e.a.y, e.a.z, e.b.x, e.b.y, e.b.z];
+        k(p).partial_cmp(&k(q)).unwrap_or(std::cmp::Ordering::Equal)
+    });
+    out
+}
+
+/// The part (parameters along the edge, 0 at `a`) of a silhouette edge whose image carried
+/// away from the sun onto the receiver's plane lies on the receiver, behind the edge.
+fn carried_span(
+    edge: &Silhouette,
+    receiver: Receiver,
+    n: &Vector3<f64>,
+    d: f64,
+    s: &Vector3<f64>,
+    faces: &[Face],
+) -> Option<(f64, f64)> {
+    let ns = n.dot(s);
+    // How far along the ray back from the sun each end travels to the plane: positive
+    // when the plane is behind the edge.
+    let travel = |p: &Point3<f64>| (n.dot(&p.coords) - d) / ns;
+    let (ta, tb) = (travel(&edge.a), travel(&edge.b));
+    let mut span = (0.0, 1.0);
+    let scale = 1.0 + edge.a.coords.abs().max();
+    clip_linear(&mut span, ta - 1e-9 * scale, tb - 1e-9 * scale)?;
+    if let Receiver::Face(i) = receiver {
+        let carried = |p: &Point3<f64>, t: f64| p - s * t;
+        let (pa, pb) = (carried(&edge.a, ta), carried(&edge.b, tb));
+        let c = faces[i as usize].corners;
+        for k in 0..3 {
+            let (from, to) = (c[k], c[(k + 1) % 3]);
+            // Inside is where (n x side) . (p - from) >= 0, the corners turning about n.
+            let inward = n.cross(&(to - from));
+            clip_linear(
+                &mut span,
+                inward.dot(&(pa - from)),
+                inward.dot(&(pb - from)),
+            )?;
+        }
+    }
+    (span.1 - span.0 > 1e-12).then_some(span)
+}
+
+/// Narrows `span` to where the linear function with values `at0` (u = 0) and `at1`
+/// (u = 1) is non-negative; `None` when nothing is left.
+fn clip_linear(span: &mut (f64, f64), at0: f64, at1: f64) -> Option<()> {
+    if at0 < 0.0 && at1 < 0.0 {
+        return None;
+    }
+    if at0 < 0.0 || at1 < 0.0 {
+        let root = at0 / (at0 - at1);
+        if at0 < 0.0 {
+            span.0 = span.0.max(root);
+        } else {
+            span.1 = span.1.min(root);
+        }
+    }
+    (span.0 < span.1).then_some(())
+}
+
+/// Whether the ray from `p` (on the receiver) towards the sun meets nothing but the
+/// silhouette edge it grazes: then `p` is on the outline.
+fn grazes(
+    site: &Site,
+    bvh: &Bvh,
+    p: &Point3<f64>,
+    s: &Vector3<f64>,
+    edge: &Silhouette,
+    receiver: Receiver,
+) -> bool {
+    let base = site.faces.as_ptr() as usize;
+    let size = std::mem::size_of::<Face>();
+    let start = 1e-7 * (1.0 + p.coords.abs().max());
+    bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
+        let index = ((face as *const Face as usize - base) / size) as u32;
+        distance > start && !edge.faces.contains(&index) && receiver != Receiver::Face(index)
+    })
+    .is_none()
+}
+
+/// The stretches of [u0, u1] (an edge of length `length`) where `inside` holds: sampled
+/// at least every [`SAMPLE_STEP_M`], each change found by bisection.
+fn runs(u0: f64, u1: f64, length: f64, inside: impl Fn(f64) -> bool) -> Vec<(f64, f64)> {
+    let span = u1 - u0;
+    let count = ((span * length / SAMPLE_STEP_M).ceil() as usize).clamp(MIN_SAMPLES, MAX_SAMPLES);
+    // The ends themselves are nudged inwards: there the ray meets corners exactly.
+    let nudge = 1e-9 * span;
+    let at = |k: usize| (u0 + span * k as f64 / count as f64).clamp(u0 + nudge, u1 - nudge);
+    let tolerance = BREAK_TOLERANCE_M / length.max(1e-12);
+    let change = |mut lo: f64, mut hi: f64, lo_inside: bool| {
+        while hi - lo > tolerance {
+            let mid = 0.5 * (lo + hi);
+            if inside(mid) == lo_inside {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        0.5 * (lo + hi)
+    };
+    let mut out = Vec::new();
+    let mut previous = (at(0), inside(at(0)));
+    let mut open = previous.1.then_some(u0);
+    for k in 1..=count {
+        let u = at(k);
+        let now = inside(u);
+        if now != previous.1 {
+            let x = change(previous.0, u, previous.1);
+            match open.take() {
+                Some(from) => out.push((from, x)),
+                None => open = Some(x),
+            }
+        }
+        previous = (u, now);
+    }
+    if let Some(from) = open {
+        out.push((from, u1));
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scene::parse_scene;
+    use std::path::Path;
+
+    fn site(items: &str) -> Site {
+        let text = format!("Scene(items: [{items}])");
+        parse_scene(text.as_bytes(), Path::new("test.ron"), "test").unwrap()
+    }
+
+    /// Whether a point on a surface is in shadow, by a ray cast of the test's own: the ray
+    /// from just off the surface (on the side of the sun) towards the sun meets any face.
+    fn shaded(site: &Site, p: &Point3<f64>, off: &Vector3<f64>, s: &Vector3<f64>) -> bool {
+        let o = p + off * 1e-4;
+        site.faces.iter().any(|f| {
+            crate::visibility::ray_hits_triangle(&o, s, &f.corners).is_some_and(|t| t > 1e-9)
+        })
+    }
+
+    fn sun(azimuth_deg: f64, elevation_deg: f64) -> Vector3<f64> {
+        let (a, e) = (azimuth_deg.to_radians(), elevation_deg.to_radians());
+        Vector3::new(a.sin() * e.cos(), a.cos() * e.cos(), e.sin())
+    }
+
+    #[test]
+    fn a_block_on_the_ground_casts_its_outline_and_points_beside_it_agree() {
+        let site = site("Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)");
+        let bvh = Bvh::new(&site.faces);
+        let s = sun(140.0, 35.0);
+        let lines = shadow_outlines(&site, &bvh, &s);
+        assert!(!lines.is_empty());
+        let up = Vector3::z();
+        let mut checked = 0;
+        for line in &lines {
+            assert!(
+                line.start.z.abs() < 1e-9 && line.end.z.abs() < 1e-9,
+                "{line:?}"
+            );
+            let along = line.end - line.start;
+            if along.norm() < 0.05 {
+                continue;
+            }
+            // Points just either side of the middle of each line: one shaded, one lit.
+            let across = up.cross(&along).normalize() * 0.01;
+            let middle = line.start + along * 0.5;
+            let (left, right) = (middle + across, middle - across);
+            assert_ne!(
+                shaded(&site, &left, &up, &s),
+                shaded(&site, &right, &up, &s),
+                "{line:?}"
+            );
+            checked += 1;
+        }
+        assert!(checked >= 3, "{checked}");
+    }
+
+    #[test]
+    fn a_shadow_on_a_wall_agrees_with_a_ray_cast() {
+        // A tall block south of a long wall-like block, the sun low in the south: the
+        // first's shadow climbs the second's south wall (y = 6).
+        let site = site(
+            "Block(at: Corner(0, 0), width: 3, depth: 3, height: 12),
+             Block(at: Corner(-6, 6), width: 15, depth: 2, height: 8)",
+        );
+        let bvh = Bvh::new(&site.faces);
+        let s = sun(170.0, 30.0);
+        let lines = shadow_outlines(&site, &bvh, &s);
+        let on_wall: Vec<_> = lines
+            .iter()
+            .filter(|l| (l.start.y - 6.0).abs() < 1e-6 && (l.end.y - 6.0).abs() < 1e-6)
+            .collect();
+        assert!(!on_wall.is_empty(), "{lines:?}");
+        let south = -Vector3::y();
+        for line in on_wall {
+            let along = line.end - line.start;
+            if along.norm() < 0.05 {
+                continue;
+            }
+            let across = south.cross(&along).normalize() * 0.01;
+            let middle = line.start + along * 0.5;
+            assert_ne!(
+                shaded(&site, &(middle + across), &south, &s),
+                shaded(&site, &(middle - across), &south, &s),
+                "{line:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_pole_casts_a_line_of_its_height_over_the_tangent_of_the_elevation() {
+        // Plain trigonometry: a vertical pole of height h on level ground casts a shadow
+        // h / tan(elevation) long, pointing to the sun's azimuth plus 180 degrees.
+        let site = site("Block(at: Centre(0, 0), width: 0.1, depth: 0.1, height: 6)");
+        let bvh = Bvh::new(&site.faces);
+        let (azimuth, elevation) = (125.0f64, 28.0f64);
+        let lines = shadow_outlines(&site, &bvh, &sun(azimuth, elevation));
+        let far = lines
+            .iter()
+            .flat_map(|l| [l.start, l.end])
+            .max_by(|a, b| a.coords.xy().norm().total_cmp(&b.coords.xy().norm()))
+            .unwrap();
+        let length = 6.0 / elevation.to_radians().tan();
+        let expected = (azimuth + 180.0).to_radians();
+        let tip = Vector3::new(expected.sin(), expected.cos(), 0.0) * length;
+        // The block's far corner is within half its width's diagonal of the pole's line.
+        assert!((far.coords - tip).norm() < 0.08, "{far} vs {tip}");
+    }
+
+    #[test]
+    fn hatching_lies_in_shadow_by_a_ray_cast() {
+        let site = site("Block(at: Corner(0, 0), width: 4, depth: 3, height: 5)");
+        let bvh = Bvh::new(&site.faces);
+        let s = sun(200.0, 40.0);
+        let lines = hatching(&site, &bvh, &s, 0.5);
+        let on_ground: Vec<_> = lines.iter().filter(|l| l.start.z.abs() < 1e-9).collect();
+        assert!(on_ground.len() > 5, "{}", on_ground.len());
+        for line in on_ground {
+            let middle = line.start + (line.end - line.start) * 0.5;
+            assert!(shaded(&site, &middle, &Vector3::z(), &s), "{line:?}");
+            // Just beyond either end along the line, the ground is lit (unless the end is
+            // at the block's foot, where the line meets the wall).
+            let along = (line.end - line.start).normalize() * 0.01;
+            for (end, out) in [(line.end, along), (line.start, -along)] {
+                let beyond = end + out;
+                let at_foot =
+                    (-0.02..=4.02).contains(&beyond.x) && (-0.02..=3.02).contains(&beyond.y);
+                assert!(
+                    at_foot || !shaded(&site, &beyond, &Vector3::z(), &s),
+                    "{line:?}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn runs_find_their_ends() {
+        let r = runs(0.0, 1.0, 10.0, |u| (0.3..0.62).contains(&u));
+        assert_eq!(r.len(), 1);
+        assert!(
+            (r[0].0 - 0.3).abs() < 1e-6 && (r[0].1 - 0.62).abs() < 1e-6,
+            "{r:?}"
+        );
+        assert_eq!(runs(0.2, 0.4, 10.0, |_| true), vec![(0.2, 0.4)]);
+        assert!(runs(0.0, 1.0, 10.0, |_| false).is_empty());
+    }
+}

@@ -1,0 +1,487 @@
+//! The explorer's server over plain HTTP (a hand-written client on a TCP socket, so that
+//! malformed requests can be sent too): the door checks, range checks, keeping a standpoint
+//! byte for byte, printing into the output folder only, and a load of 1,000 renders.
+
+use pansite::explore::{ExploreSettings, Explorer, Source};
+use pansite::scene::{load_obj, MeshPlacement};
+use std::io::{Read, Write};
+use std::net::TcpStream;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::time::Duration;
+
+fn demo() -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap()
+}
+
+fn temp_dir(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("pansite-explorer-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+/// A scene file in a fresh folder, and an explorer on it writing into `out/`.
+fn start(name: &str) -> (Explorer, PathBuf, PathBuf) {
+    let dir = temp_dir(name);
+    let scene = dir.join("square.ron");
+    std::fs::write(&scene, demo()).unwrap();
+    let out = dir.join("out");
+    let explorer = Explorer::start(ExploreSettings::new(
+        Source::Scene(scene.clone()),
+        out.clone(),
+    ))
+    .unwrap();
+    (explorer, scene, out)
+}
+
+struct Answer {
+    status: u16,
+    head: String,
+    body: Vec<u8>,
+}
+
+impl Answer {
+    fn text(&self) -> String {
+        String::from_utf8_lossy(&self.body).into_owned()
+    }
+}
+
+/// Sends `raw` as it is and reads the whole answer (the server closes after it).
+fn send(explorer: &Explorer, raw: &[u8]) -> Answer {
+    let mut stream = TcpStream::connect(explorer.address()).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(60)))
+        .unwrap();
+    // A server that refuses early may close before all of a huge request is written.
+    let _ = stream.write_all(raw);
+    let mut bytes = Vec::new();
+    let _ = stream.read_to_end(&mut bytes);
+    let split = bytes
+        .windows(4)
+        .position(|w| w == b"\r\n\r\n")
+        .unwrap_or_else(|| panic!("no answer: {}", String::from_utf8_lossy(&bytes)));
+    let head = String::from_utf8_lossy(&bytes[..split]).into_owned();
+    let status = head[9..12].parse().unwrap();
+    let mut body = bytes[split + 4..].to_vec();
+    if head
+        .to_ascii_lowercase()
+        .contains("transfer-encoding: chunked")
+    {
+        body = unchunk(&body);
+    }
+    Answer { status, head, body }
+}
+
+fn unchunk(mut data: &[u8]) -> Vec<u8> {
+    let mut out = Vec::new();
+    loop {
+        let line_end = data.windows(2).position(|w| w == b"\r\n").unwrap();
+        let size =
+            usize::from_str_radix(std::str::from_utf8(&data[..line_end]).unwrap().trim(), 16)
+                .unwrap();
+        if size == 0 {
+            return out;
+        }
+        out.extend_from_slice(&data[line_end + 2..line_end + 2 + size]);
+        data = &data[line_end + 4 + size..];
+    }
+}
+
+fn host(explorer: &Explorer) -> String {
+    format!("127.0.0.1:{}", explorer.address().port())
+}
+
+fn get(explorer: &Explorer, path: &str) -> Answer {
+    let raw = format!(
+        "GET {path} HTTP/1.1\r\nHost: {}\r\nConnection: close\r\n\r\n",
+        host(explorer)
+    );
+    send(explorer, raw.as_bytes())
+}
+
+fn post(
+    explorer: &Explorer,
+    path: &str,
+    token: Option<&str>,
+    origin: Option<&str>,
+    body: &str,
+) -> Answer {
+    let mut raw = format!(
+        "POST {path} HTTP/1.1\r\nHost: {}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: {}\r\n",
+        host(explorer),
+        body.len()
+    );
+    if let Some(token) = token {
+        raw += &format!("X-Pansite-Token: {token}\r\n");
+    }
+    if let Some(origin) = origin {
+        raw += &format!("Origin: {origin}\r\n");
+    }
+    raw += "\r\n";
+    raw += body;
+    send(explorer, raw.as_bytes())
+}
+
+fn own_origin(explorer: &Explorer) -> String {
+    format!("http://{}", host(explorer))
+}
+
+const UNDERLAY: &str = "/underlay.png?x=1.5&y=-4&heading=10&w=256&h=128";
+
+/// Nothing but the scene and the (absent) output folder in the scene's folder.
+fn files_in(dir: &Path) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    names
+}
+
+#[test]
+fn the_page_and_images_are_served_with_a_strict_policy() {
+    let (explorer, _, _) = start("serve");
+    let page = get(&explorer, "/");
+    assert_eq!(page.status, 200);
+    assert!(page.text().contains("<canvas id=\"underlay\""));
+    // Nothing from elsewhere: no address of another host anywhere in the page's files.
+    for asset in ["/", "/explore.js", "/explore.css"] {
+        let text = get(&explorer, asset).text();
+        assert!(
+            !text.contains("http://") && !text.contains("https://") && !text.contains("//cdn"),
+            "{asset}"
+        );
+    }
+    assert!(
+        page.head
+            .contains("Content-Security-Policy: default-src 'none'"),
+        "{}",
+        page.head
+    );
+    let image = get(&explorer, UNDERLAY);
+    assert_eq!(image.status, 200, "{}", image.text());
+    assert_eq!(&image.body[1..4], b"PNG");
+    let plan = get(&explorer, "/plan.png?w=300&h=300");
+    assert_eq!(plan.status, 200);
+    assert!(plan.head.contains("X-Plan-Px-Per-Metre"));
+    let look = get(
+        &explorer,
+        "/look.png?x=1.5&y=-4&heading=10&w=320&h=180&fov=80",
+    );
+    assert_eq!(look.status, 200, "{}", look.text());
+    let scene = get(&explorer, "/scene");
+    let json: serde_json::Value = serde_json::from_slice(&scene.body).unwrap();
+    assert_eq!(json["name"], "Wexcombe Market Square");
+    assert_eq!(json["standpoints"].as_array().unwrap().len(), 4);
+    explorer.stop();
+}
+
+#[test]
+fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_written() {
+    let (explorer, scene, out) = start("door");
+    let before = std::fs::read(&scene).unwrap();
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    let body = r#"{"name":"by the well","x":2,"y":-3,"heading":40}"#;
+    // DNS rebinding: a name of the attacker's pointed at 127.0.0.1.
+    for bad_host in ["evil.example:80", "", "127.0.0.1", "localhost:1"] {
+        let raw = format!("GET /scene HTTP/1.1\r\nHost: {bad_host}\r\nConnection: close\r\n\r\n");
+        assert_eq!(
+            send(&explorer, raw.as_bytes()).status,
+            403,
+            "host {bad_host:?}"
+        );
+    }
+    let raw = "GET /scene HTTP/1.1\r\nConnection: close\r\n\r\n";
+    assert_eq!(send(&explorer, raw.as_bytes()).status, 403, "no Host");
+    let localhost = format!(
+        "GET /scene HTTP/1.1\r\nHost: localhost:{}\r\nConnection: close\r\n\r\n",
+        explorer.address().port()
+    );
+    assert_eq!(send(&explorer, localhost.as_bytes()).status, 200);
+    // State-changing requests: token and origin.
+    for (token, origin, what) in [
+        (None, Some(origin.as_str()), "no token"),
+        (
+            Some("0123456789abcdef0123456789abcdef"),
+            Some(origin.as_str()),
+            "wrong token",
+        ),
+        (Some(token.as_str()), None, "no origin"),
+        (
+            Some(token.as_str()),
+            Some("http://evil.example"),
+            "foreign origin",
+        ),
+        (Some(token.as_str()), Some("null"), "opaque origin"),
+    ] {
+        for path in ["/keep", "/print"] {
+            let answer = post(&explorer, path, token, origin, body);
+            assert_eq!(answer.status, 403, "{what} {path}: {}", answer.text());
+        }
+    }
+    // GET on a state-changing route, POST on a reading one.
+    assert_eq!(get(&explorer, "/keep").status, 405);
+    assert_eq!(
+        post(&explorer, "/scene", Some(&token), Some(&origin), "{}").status,
+        405
+    );
+    assert_eq!(std::fs::read(&scene).unwrap(), before);
+    assert!(!out.exists());
+    assert_eq!(files_in(scene.parent().unwrap()), ["square.ron"]);
+    // Still serving.
+    assert_eq!(get(&explorer, UNDERLAY).status, 200);
+    explorer.stop();
+}
+
+#[test]
+fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
+    let (explorer, scene, out) = start("params");
+    let cases = [
+        ("/underlay.png?x=../../etc/passwd&y=0&w=256&h=128", "'x'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&file=/etc/passwd",
+            "'file'",
+        ),
+        ("/underlay.png?x=0&y=0&w=256&h=128&pane=../../x", "'pane'"),
+        ("/underlay.png?x=NaN&y=0&w=256&h=128", "'x'"),
+        ("/underlay.png?x=inf&y=0&w=256&h=128", "'x'"),
+        ("/underlay.png?x=1e300&y=0&w=256&h=128", "'x'"),
+        ("/underlay.png?x=0&y=0&w=-256&h=128", "'w'"),
+        ("/underlay.png?x=0&y=0&w=100000&h=50000", "'w'"),
+        ("/underlay.png?x=0&y=0&w=300&h=100", "twice as wide"),
+        ("/underlay.png?x=0&y=0&w=256&h=128&eye=-1", "'eye'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&hidden=%2Fetc",
+            "'hidden'",
+        ),
+        ("/look.png?x=0&y=0&w=256&h=128&fov=179", "'fov'"),
+        ("/probe?x=0&y=0&w=256&h=128&u=999&v=1", "'u'"),
+        ("/underlay.png?x=0&x=1&y=0&w=256&h=128", "twice"),
+        ("/underlay.png?x=%ZZ", "hex"),
+    ];
+    for (path, named) in cases {
+        let answer = get(&explorer, path);
+        assert_eq!(answer.status, 400, "{path}: {}", answer.text());
+        assert!(answer.text().contains(named), "{path}: {}", answer.text());
+    }
+    for path in [
+        "/../../etc/passwd",
+        "/square.ron",
+        "/%2e%2e/square.ron",
+        "/out/",
+        "//etc/passwd",
+    ] {
+        assert_eq!(get(&explorer, path).status, 404, "{path}");
+    }
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    for body in [
+        r#"{"name":"a","x":"../../etc/passwd","y":0}"#,
+        r#"{"name":"a","x":0,"y":0,"paper":"../../../tmp/x"}"#,
+        r#"{"name":"a","x":0,"y":0,"format":"sh"}"#,
+        r#"{"name":"a","x":1e300,"y":0}"#,
+        "not json",
+        "[1, 2]",
+    ] {
+        let answer = post(&explorer, "/print", Some(&token), Some(&origin), body);
+        assert_eq!(answer.status, 400, "{body}: {}", answer.text());
+    }
+    assert!(!out.exists());
+    assert_eq!(files_in(scene.parent().unwrap()), ["square.ron"]);
+    assert_eq!(get(&explorer, UNDERLAY).status, 200);
+    explorer.stop();
+}
+
+#[test]
+fn malformed_and_huge_requests_are_refused_and_the_server_carries_on() {
+    let (explorer, scene, _) = start("huge");
+    let before = std::fs::read(&scene).unwrap();
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    // A request line far too long.
+    let long = format!(
+        "GET /underlay.png?x={} HTTP/1.1\r\nHost: {}\r\nConnection: close\r\n\r\n",
+        "9".repeat(20_000),
+        host(&explorer)
+    );
+    assert_eq!(send(&explorer, long.as_bytes()).status, 414);
+    // A body far too large, announced and sent.
+    let body = format!(r#"{{"name":"{}","x":0,"y":0}}"#, "a".repeat(2_000_000));
+    let answer = post(&explorer, "/keep", Some(&token), Some(&origin), &body);
+    assert_eq!(answer.status, 413, "{}", answer.text());
+    // Garbage instead of HTTP, and a request cut short.
+    let garbage = send_quietly(&explorer, b"\x00\x01\x02 not http at all\r\n\r\n");
+    assert!(garbage.is_none_or(|status| status == 400), "{garbage:?}");
+    let _ = send_quietly(&explorer, b"GET /underlay.png?x=1");
+    assert_eq!(std::fs::read(&scene).unwrap(), before);
+    assert_eq!(get(&explorer, UNDERLAY).status, 200);
+    explorer.stop();
+}
+
+/// Sends bytes the server may answer with 400 or simply close on.
+fn send_quietly(explorer: &Explorer, raw: &[u8]) -> Option<u16> {
+    let mut stream = TcpStream::connect(explorer.address()).unwrap();
+    stream
+        .set_read_timeout(Some(Duration::from_secs(5)))
+        .unwrap();
+    let _ = stream.write_all(raw);
+    let _ = stream.shutdown(std::net::Shutdown::Write);
+    let mut bytes = Vec::new();
+    let _ = stream.read_to_end(&mut bytes);
+    std::str::from_utf8(bytes.get(9..12)?).ok()?.parse().ok()
+}
+
+/// The old text is the new text with one run of bytes taken out, and that run holds `name`.
+fn one_insertion(old: &[u8], new: &[u8], name: &str) -> bool {
+    let prefix = old.iter().zip(new).take_while(|(a, b)| a == b).count();
+    let suffix = old[prefix..]
+        .iter()
+        .rev()
+        .zip(new[prefix..].iter().rev())
+        .take_while(|(a, b)| a == b)
+        .count();
+    let inserted = &new[prefix..new.len() - suffix];
+    prefix + suffix == old.len() && String::from_utf8_lossy(inserted).contains(name)
+}
+
+#[test]
+fn keeping_a_standpoint_inserts_one_line_and_refuses_when_the_file_changed() {
+    let (explorer, scene, _) = start("keep");
+    let before = std::fs::read(&scene).unwrap();
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    let body = r#"{"name":"by the well","x":2.25,"y":-3.5,"eye":1.2,"heading":40}"#;
+    let answer = post(&explorer, "/keep", Some(&token), Some(&origin), body);
+    assert_eq!(answer.status, 200, "{}", answer.text());
+    let after = std::fs::read(&scene).unwrap();
+    assert!(one_insertion(&before, &after, "by the well"));
+    let site = pansite::scene::load_scene(&scene).unwrap();
+    let kept = site.standpoint("by the well").unwrap();
+    assert_eq!((kept.x, kept.y, kept.eye_height), (2.25, -3.5, 1.2));
+    // The same name again is refused; so is a file edited since it was read.
+    let again = post(&explorer, "/keep", Some(&token), Some(&origin), body);
+    assert_eq!(again.status, 400, "{}", again.text());
+    let mut edited = after.clone();
+    edited.extend_from_slice(b"\n// edited elsewhere\n");
+    std::fs::write(&scene, &edited).unwrap();
+    let other = r#"{"name":"elsewhere","x":0,"y":0}"#;
+    let refused = post(&explorer, "/keep", Some(&token), Some(&origin), other);
+    // Unless the watch has already read the edit again.
+    if refused.status == 409 {
+        assert!(
+            refused.text().contains("changed on disk"),
+            "{}",
+            refused.text()
+        );
+        assert_eq!(std::fs::read(&scene).unwrap(), edited);
+    }
+    explorer.stop();
+}
+
+#[test]
+fn a_scene_from_standard_input_cannot_keep_and_says_why() {
+    let site =
+        pansite::scene::parse_scene(demo().as_bytes(), Path::new("<stdin>"), "stdin").unwrap();
+    let dir = temp_dir("stdin");
+    let source = Source::Fixed {
+        site: Box::new(site),
+        reason: "the scene was read from standard input".into(),
+    };
+    let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
+    let scene: serde_json::Value = serde_json::from_slice(&get(&explorer, "/scene").body).unwrap();
+    assert_eq!(scene["keep"], false);
+    assert!(scene["no_keep_reason"]
+        .as_str()
+        .unwrap()
+        .contains("standard input"));
+    let token = explorer.token().to_owned();
+    let answer = post(
+        &explorer,
+        "/keep",
+        Some(&token),
+        Some(&own_origin(&explorer)),
+        r#"{"name":"a","x":0,"y":0}"#,
+    );
+    assert_eq!(answer.status, 409);
+    assert!(answer.text().contains("standard input"));
+    assert_eq!(files_in(&dir), Vec::<String>::new());
+    explorer.stop();
+}
+
+#[test]
+fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
+    let dir = temp_dir("model");
+    let model = dir.join("cube.obj");
+    let fixture =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/obj/cube_triangles.obj");
+    std::fs::copy(&fixture, &model).unwrap();
+    let model_bytes = std::fs::read(&model).unwrap();
+    let source = Source::Model {
+        path: model.clone(),
+        load: Arc::new(|path: &Path| {
+            load_obj(path, &MeshPlacement::default()).map(|(site, _)| site)
+        }),
+        model_item: Some("Model(file: \"cube.obj\")".into()),
+    };
+    let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    for (name, x) in [("first", 5.0), ("second", -5.0)] {
+        let body = format!(r#"{{"name":"{name}","x":{x},"y":-4,"heading":10}}"#);
+        let answer = post(&explorer, "/keep", Some(&token), Some(&origin), &body);
+        assert_eq!(answer.status, 200, "{}", answer.text());
+    }
+    assert_eq!(std::fs::read(&model).unwrap(), model_bytes);
+    let beside = dir.join("cube-standpoints.ron");
+    let site = pansite::scene::load_scene(&beside).unwrap();
+    let names: Vec<&str> = site.standpoints.iter().map(|s| s.name.as_str()).collect();
+    assert_eq!(names, ["first", "second"]);
+    assert!(!site.edges.is_empty(), "the new scene places the model");
+    explorer.stop();
+}
+
+#[test]
+fn print_writes_into_the_output_folder_only() {
+    let (explorer, scene, out) = start("print");
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    let body = r#"{"x":1.5,"y":-4,"heading":10,"paper":"A4","format":"pdf"}"#;
+    let answer = post(&explorer, "/print", Some(&token), Some(&origin), body);
+    assert_eq!(answer.status, 200, "{}", answer.text());
+    assert_eq!(files_in(&out), ["square-view-1.pdf"]);
+    let pdf = std::fs::read(out.join("square-view-1.pdf")).unwrap();
+    assert!(pdf.starts_with(b"%PDF-"));
+    assert_eq!(files_in(scene.parent().unwrap()), ["out", "square.ron"]);
+    explorer.stop();
+}
+
+#[test]
+fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
+    let (explorer, _, _) = start("replace");
+    // Many requests for one pane at once: each is answered, by an image or as replaced.
+    let explorer = Arc::new(explorer);
+    let threads: Vec<_> = (0..12)
+        .map(|k| {
+            let explorer = explorer.clone();
+            std::thread::spawn(move || {
+                let path = format!(
+                    "/underlay.png?x={}&y=-4&w=512&h=256&pane=same",
+                    k as f64 * 0.1
+                );
+                get(&explorer, &path).status
+            })
+        })
+        .collect();
+    let statuses: Vec<u16> = threads.into_iter().map(|t| t.join().unwrap()).collect();
+    assert!(
+        statuses.iter().all(|s| *s == 200 || *s == 204),
+        "{statuses:?}"
+    );
+    assert!(statuses.contains(&200));
+    Arc::try_unwrap(explorer).ok().unwrap().stop();
+}

@@ -1,0 +1,515 @@
+//! The explorer's page in a real browser: Debian's `chromium`, headless, driven over the
+//! DevTools protocol by `headless_chrome` (its download feature off: the system's browser
+//! is used, and a missing browser fails the test). One browser session walks through the
+//! page: the layout at 1366x768, dragging the standpoint (the underlay shown must equal
+//! `pansite render` for the standpoint reached), the hover read-out against azimuth and
+//! elevation computed here, the keyboard, saving the scene, a broken scene, and keeping a
+//! standpoint. Screenshots go to target/test-artefacts/explorer/.
+
+use headless_chrome::protocol::cdp::Input;
+use headless_chrome::protocol::cdp::Page::CaptureScreenshotFormatOption;
+use headless_chrome::{Browser, LaunchOptions, Tab};
+use pansite::compose::{plan_map, PlanSettings};
+use pansite::explore::{ExploreSettings, Explorer, Source};
+use std::ffi::OsStr;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+/// The browser the tests use: Debian's package (installed by .ci/run).
+fn chromium() -> PathBuf {
+    for path in ["/usr/bin/chromium", "/usr/lib/chromium/chromium"] {
+        if Path::new(path).exists() {
+            return PathBuf::from(path);
+        }
+    }
+    panic!(
+        "Debian's chromium is not installed (apt-get install chromium); the browser tests need it"
+    );
+}
+
+fn artefacts() -> PathBuf {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/test-artefacts/explorer");
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn launch(profile: &Path) -> Browser {
+    let args: Vec<&OsStr> = [
+        "--headless",
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        "--force-device-scale-factor=1",
+    ]
+    .iter()
+    .map(OsStr::new)
+    .collect();
+    let options = LaunchOptions::default_builder()
+        .path(Some(chromium()))
+        .headless(true)
+        .sandbox(false)
+        .user_data_dir(Some(profile.to_owned()))
+        .window_size(Some((1366, 768)))
+        .args(args)
+        .idle_browser_timeout(Duration::from_secs(120))
+        .build()
+        .unwrap();
+    Browser::new(options).expect("chromium starts")
+}
+
+/// The value of `js` in the page. Arrays and objects come back by reference over the
+/// DevTools protocol, so the page hands everything over as JSON text.
+fn eval(tab: &Tab, js: &str) -> serde_json::Value {
+    // `eval` of the quoted text keeps statement lists (`a = 1; true`) working: the value is
+    // the last statement's.
+    let quoted = serde_json::Value::String(js.to_owned()).to_string();
+    let wrapped = format!("JSON.stringify(eval({quoted}))");
+    match tab
+        .evaluate(&wrapped, true)
+        .unwrap_or_else(|e| panic!("{js}: {e}"))
+        .value
+    {
+        Some(serde_json::Value::String(text)) => {
+            serde_json::from_str(&text).unwrap_or_else(|e| panic!("{js}: {e}: {text}"))
+        }
+        _ => serde_json::Value::Null,
+    }
+}
+
+/// Waits until `js` is true (it is evaluated every 50 ms for up to 30 s).
+fn wait_for(tab: &Tab, js: &str, what: &str) {
+    let started = Instant::now();
+    while started.elapsed() < Duration::from_secs(30) {
+        if eval(tab, js) == serde_json::Value::Bool(true) {
+            return;
+        }
+        std::thread::sleep(Duration::from_millis(50));
+    }
+    let said = eval(tab, "document.getElementById('message').textContent");
+    let problem = eval(tab, "document.getElementById('problem').textContent");
+    panic!("waited 30 s for {what}: {js} (the page says {said}; problem: {problem})");
+}
+
+/// Both panes have answered their latest request.
+const SETTLED: &str = "(() => { const e = window.pansiteExplorer; return !!(e && e.plan) && \
+    document.getElementById('underlay').dataset.shown !== undefined && \
+    !document.querySelector('#status').textContent.startsWith('...') && \
+    window.pansiteSettled && window.pansiteSettled(); })()";
+
+fn mouse(tab: &Tab, kind: Input::DispatchMouseEventTypeOption, x: f64, y: f64, down: bool) {
+    let released = matches!(kind, Input::DispatchMouseEventTypeOption::MouseReleased);
+    tab.call_method(Input::DispatchMouseEvent {
+        Type: kind,
+        x,
+        y,
+        modifiers: None,
+        timestamp: None,
+        button: Some(if down || released {
+            Input::MouseButton::Left
+        } else {
+            Input::MouseButton::None
+        }),
+        buttons: Some(if down { 1 } else { 0 }),
+        click_count: Some(1),
+        force: None,
+        tangential_pressure: None,
+        tilt_x: None,
+        tilt_y: None,
+        twist: None,
+        delta_x: None,
+        delta_y: None,
+        pointer_Type: None,
+    })
+    .unwrap();
+}
+
+fn screenshot(tab: &Tab, name: &str) {
+    let png = tab
+        .capture_screenshot(CaptureScreenshotFormatOption::Png, None, None, true)
+        .unwrap();
+    std::fs::write(artefacts().join(name), png).unwrap();
+}
+
+/// The canvas's pixels as the page holds them (red channel: the images are grey).
+fn canvas_pixels(tab: &Tab, id: &str) -> (u32, u32, Vec<u8>) {
+    let js = format!(
+        "(() => {{ const c = document.getElementById('{id}'); \
+         const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data; \
+         let s = ''; for (let i = 0; i < d.length; i += 4) s += String.fromCharCode(d[i]); \
+         return [c.width, c.height, btoa(s)]; }})()"
+    );
+    let value = eval(tab, &js);
+    let (w, h) = (
+        value[0].as_u64().unwrap() as u32,
+        value[1].as_u64().unwrap() as u32,
+    );
+    let pixels = base64_decode(value[2].as_str().unwrap());
+    assert_eq!(pixels.len(), (w * h) as usize);
+    (w, h, pixels)
+}
+
+/// Standard base64 (RFC 4648, section 4), enough for the page's answers.
+fn base64_decode(text: &str) -> Vec<u8> {
+    let value = |c: u8| match c {
+        b'A'..=b'Z' => c - b'A',
+        b'a'..=b'z' => c - b'a' + 26,
+        b'0'..=b'9' => c - b'0' + 52,
+        b'+' => 62,
+        b'/' => 63,
+        _ => panic!("not base64"),
+    };
+    let bytes: Vec<u8> = text.bytes().filter(|b| *b != b'=').collect();
+    let mut out = Vec::with_capacity(bytes.len() * 3 / 4);
+    for chunk in bytes.chunks(4) {
+        let v: Vec<u32> = chunk.iter().map(|&c| value(c) as u32).collect();
+        let n = v
+            .iter()
+            .enumerate()
+            .fold(0u32, |n, (i, x)| n | (x << (18 - 6 * i)));
+        out.extend_from_slice(&n.to_be_bytes()[1..chunk.len()]);
+    }
+    out
+}
+
+/// The grey pixels of a PNG file written by `pansite render`, decoded by the `png` crate.
+fn png_grey(path: &Path) -> (u32, u32, Vec<u8>) {
+    let decoder = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(path).unwrap()));
+    let mut reader = decoder.read_info().unwrap();
+    let mut buffer = vec![0; reader.output_buffer_size().unwrap()];
+    let info = reader.next_frame(&mut buffer).unwrap();
+    let channels = info.color_type.samples();
+    let grey = buffer[..info.buffer_size()]
+        .chunks(channels)
+        .map(|p| p[0])
+        .collect();
+    (info.width, info.height, grey)
+}
+
+/// Where a site position lands on the screen, from the plan drawn here the way the server
+/// draws it (same size) and the plan canvas's place on the page.
+fn screen_of_site(tab: &Tab, site: &pansite::scene::Site, x: f64, y: f64) -> (f64, f64) {
+    let plan = plan_map(
+        site,
+        &site.standpoints,
+        &PlanSettings {
+            width: 360,
+            height: 360,
+            ..PlanSettings::default()
+        },
+    )
+    .unwrap();
+    let p = plan.to_px(x, y);
+    let rect = eval(
+        tab,
+        "(() => { const r = document.getElementById('plan').getBoundingClientRect(); return [r.left, r.top, r.width]; })()",
+    );
+    let (left, top, width) = (
+        rect[0].as_f64().unwrap(),
+        rect[1].as_f64().unwrap(),
+        rect[2].as_f64().unwrap(),
+    );
+    let scale = width / 360.0;
+    (left + p.x * scale, top + p.y * scale)
+}
+
+#[test]
+fn the_page_in_chromium() {
+    let dir = std::env::temp_dir().join(format!("pansite-explorer-browser-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let scene = dir.join("square.ron");
+    let original = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap();
+    std::fs::write(&scene, &original).unwrap();
+    let site = pansite::scene::load_scene(&scene).unwrap();
+    let mut settings = ExploreSettings::new(Source::Scene(scene.clone()), dir.join("out"));
+    settings.poll = Duration::from_millis(100);
+    let explorer = Arc::new(Explorer::start(settings).unwrap());
+
+    let browser = launch(&dir.join("profile"));
+    let tab = browser.new_tab().unwrap();
+    tab.set_default_timeout(Duration::from_secs(30));
+    tab.navigate_to(&explorer.url())
+        .unwrap()
+        .wait_until_navigated()
+        .unwrap();
+    wait_for(&tab, SETTLED, "the first drawing");
+
+    // The page fits 1366x768 without scrolling sideways.
+    let fits = eval(
+        &tab,
+        "document.documentElement.scrollWidth <= window.innerWidth",
+    );
+    assert_eq!(fits, serde_json::Value::Bool(true));
+    assert_eq!(eval(&tab, "window.innerWidth"), 1366);
+    screenshot(&tab, "page-1366x768.png");
+
+    // Drag the standpoint from the fountain to a point across the square.
+    let start = site.standpoint("fountain").unwrap();
+    let (from_x, from_y) = screen_of_site(&tab, &site, start.x, start.y);
+    let target = (6.0, -9.0);
+    let (to_x, to_y) = screen_of_site(&tab, &site, target.0, target.1);
+    use Input::DispatchMouseEventTypeOption::{MouseMoved, MousePressed, MouseReleased};
+    mouse(&tab, MouseMoved, from_x, from_y, false);
+    mouse(&tab, MousePressed, from_x, from_y, true);
+    for step in 1..=20 {
+        let s = step as f64 / 20.0;
+        mouse(
+            &tab,
+            MouseMoved,
+            from_x + s * (to_x - from_x),
+            from_y + s * (to_y - from_y),
+            true,
+        );
+        std::thread::sleep(Duration::from_millis(15));
+    }
+    mouse(&tab, MouseReleased, to_x, to_y, false);
+    wait_for(&tab, SETTLED, "the drawing after the drag");
+    let view = eval(&tab, "window.pansiteExplorer.view");
+    let (x, y) = (view["x"].as_f64().unwrap(), view["y"].as_f64().unwrap());
+    let heading = view["heading"].as_f64().unwrap();
+    let eye = view["eye"].as_f64().unwrap();
+    // Within a pixel of the plan (its scale is px_per_metre) of the point dragged to.
+    let px_per_metre = eval(&tab, "window.pansiteExplorer.plan.pxPerMetre")
+        .as_f64()
+        .unwrap();
+    assert!(
+        (x - target.0).abs() <= 1.5 / px_per_metre && (y - target.1).abs() <= 1.5 / px_per_metre,
+        "dragged to ({x}, {y}), wanted {target:?}"
+    );
+    screenshot(&tab, "after-drag.png");
+
+    // The underlay shown equals `pansite render` for that standpoint.
+    let (w, h, shown) = canvas_pixels(&tab, "underlay");
+    let rendered = dir.join("render.png");
+    let status = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .arg("render")
+        .arg(&scene)
+        .args(["--at", &format!("{},{}", round3(x), round3(y))])
+        .args(["--heading", &format!("{}", round2(heading))])
+        .args(["--eye-height", &format!("{}", round3(eye))])
+        .args(["--size", &format!("{w}x{h}")])
+        .arg("-o")
+        .arg(&rendered)
+        .status()
+        .unwrap();
+    assert!(status.success());
+    let (rw, rh, expected) = png_grey(&rendered);
+    assert_eq!((rw, rh), (w, h));
+    let differing = shown
+        .iter()
+        .zip(&expected)
+        .filter(|(a, b)| (**a as i32 - **b as i32).abs() > 8)
+        .count();
+    let dark = expected.iter().filter(|p| **p < 128).count();
+    assert!(dark > 1000, "the render is nearly blank");
+    // Tolerance: decoding and drawing may round a grey level; no pixel may differ by more
+    // than 8 levels in more than 0.1 % of the image.
+    assert!(
+        differing * 1000 <= shown.len(),
+        "{differing} of {} pixels differ from `pansite render`",
+        shown.len()
+    );
+
+    // Hover over a corner of the clock tower's pyramid roof: its apex is at (-17, -3, 24)
+    // (the scene says Centre(-17, -3), apex 24). Azimuth and elevation from the eye,
+    // computed here with atan2 (clockwise from north, as the crate's conventions say).
+    let apex = (-17.0, -3.0, 24.0);
+    let (dx, dy, dz) = (apex.0 - x, apex.1 - y, apex.2 - eye);
+    let azimuth = dx.atan2(dy).to_degrees().rem_euclid(360.0);
+    let elevation = dz.atan2(dx.hypot(dy)).to_degrees();
+    let relative = (azimuth - heading + 180.0).rem_euclid(360.0);
+    let u = relative / 360.0 * w as f64;
+    let v = (90.0 - elevation) / 180.0 * h as f64;
+    let rect = eval(
+        &tab,
+        "(() => { const r = document.getElementById('underlay').getBoundingClientRect(); return [r.left, r.top, r.width]; })()",
+    );
+    let scale = rect[2].as_f64().unwrap() / w as f64;
+    let (sx, sy) = (
+        rect[0].as_f64().unwrap() + u * scale,
+        rect[1].as_f64().unwrap() + v * scale,
+    );
+    mouse(&tab, MouseMoved, sx, sy, false);
+    wait_for(
+        &tab,
+        "document.getElementById('readout').dataset.azimuth !== undefined",
+        "the hover read-out",
+    );
+    std::thread::sleep(Duration::from_millis(300));
+    let read_az: f64 = eval(
+        &tab,
+        "Number(document.getElementById('readout').dataset.azimuth)",
+    )
+    .as_f64()
+    .unwrap();
+    let read_el: f64 = eval(
+        &tab,
+        "Number(document.getElementById('readout').dataset.elevation)",
+    )
+    .as_f64()
+    .unwrap();
+    // One screen pixel is (360 / w) / scale degrees; the mouse lands on whole pixels.
+    let pixel_deg = 360.0 / w as f64 / scale;
+    assert!(
+        angle_diff(read_az, azimuth) <= pixel_deg && (read_el - elevation).abs() <= pixel_deg,
+        "read {read_az}, {read_el}; computed {azimuth}, {elevation} (a pixel is {pixel_deg} degrees)"
+    );
+    let readout = eval(&tab, "document.getElementById('readout').textContent");
+    assert!(
+        readout.as_str().unwrap().contains("clock tower"),
+        "{readout}"
+    );
+    // A click keeps the point in the table.
+    mouse(&tab, MousePressed, sx, sy, true);
+    mouse(&tab, MouseReleased, sx, sy, false);
+    wait_for(
+        &tab,
+        "document.querySelectorAll('#picks tbody tr').length === 1",
+        "a kept point",
+    );
+
+    // Keyboard: an arrow moves half a metre north; Alt with an arrow turns 5 degrees.
+    eval(&tab, "document.getElementById('plan').focus(); true");
+    tab.press_key("ArrowUp").unwrap();
+    wait_for(
+        &tab,
+        &format!("Math.abs(window.pansiteExplorer.view.y - ({y} + 0.5)) < 1e-9"),
+        "the arrow key",
+    );
+    tab.press_key_with_modifiers(
+        "ArrowRight",
+        Some(&[headless_chrome::browser::tab::ModifierKey::Alt]),
+    )
+    .unwrap();
+    wait_for(
+        &tab,
+        &format!(
+            "Math.abs(window.pansiteExplorer.view.heading - ({} % 360)) < 1e-9",
+            heading + 5.0
+        ),
+        "Alt with an arrow key",
+    );
+    wait_for(&tab, SETTLED, "the drawing after the keys");
+
+    // Saving the scene (by renaming, as editors do) updates the page.
+    let version = eval(&tab, "document.getElementById('underlay').dataset.version");
+    let renamed = original.replace("Wexcombe Market Square\"", "Wexcombe Square, saved\"");
+    save(&dir, &scene, &renamed);
+    wait_for(
+        &tab,
+        "document.getElementById('scene-name').textContent === 'Wexcombe Square, saved'",
+        "the page to show the saved scene",
+    );
+    wait_for(
+        &tab,
+        &format!("document.getElementById('underlay').dataset.version !== {version}"),
+        "a new underlay of the saved scene",
+    );
+    wait_for(&tab, SETTLED, "the drawing of the saved scene");
+
+    // A broken scene: its error is shown (file, line, column) and the drawing stays.
+    let (_, _, before_break) = canvas_pixels(&tab, "underlay");
+    let broken = renamed.replacen("width: 25,", "width: 25,,", 1);
+    save(&dir, &scene, &broken);
+    wait_for(
+        &tab,
+        "!document.getElementById('problem').hidden",
+        "the error to show",
+    );
+    let problem = eval(&tab, "document.getElementById('problem').textContent");
+    let problem = problem.as_str().unwrap();
+    let line = broken
+        .lines()
+        .position(|l| l.contains("width: 25,,"))
+        .unwrap()
+        + 1;
+    assert!(
+        problem.contains(&format!("square.ron:{line}:")),
+        "{problem}"
+    );
+    screenshot(&tab, "broken-scene.png");
+    let (_, _, after_break) = canvas_pixels(&tab, "underlay");
+    assert_eq!(before_break, after_break, "the last good drawing stays");
+
+    // Mended, then keep this standpoint: one line inserted, every other byte unchanged.
+    save(&dir, &scene, &renamed);
+    wait_for(
+        &tab,
+        "document.getElementById('problem').hidden",
+        "the error to clear",
+    );
+    wait_for(&tab, SETTLED, "the mended scene");
+    eval(
+        &tab,
+        "document.getElementById('keep-name').value = 'across the square'; true",
+    );
+    eval(&tab, "document.getElementById('keep').click(); true");
+    wait_for(
+        &tab,
+        "document.getElementById('message').textContent.startsWith('kept')",
+        "the standpoint to be kept",
+    );
+    let kept = std::fs::read(&scene).unwrap();
+    let old = renamed.as_bytes();
+    let prefix = old.iter().zip(&kept).take_while(|(a, b)| a == b).count();
+    let suffix = old[prefix..]
+        .iter()
+        .rev()
+        .zip(kept[prefix..].iter().rev())
+        .take_while(|(a, b)| a == b)
+        .count();
+    assert_eq!(prefix + suffix, old.len(), "only an insertion");
+    let inserted = String::from_utf8_lossy(&kept[prefix..kept.len() - suffix]).into_owned();
+    assert!(
+        inserted.contains("(name: \"across the square\""),
+        "{inserted}"
+    );
+    assert_eq!(inserted.matches('\n').count(), 1, "one line: {inserted:?}");
+    wait_for(
+        &tab,
+        "[...document.getElementById('standpoints').options].some(o => o.textContent === 'across the square')",
+        "the kept standpoint in the list",
+    );
+    screenshot(&tab, "kept.png");
+
+    // Timings, as the page measured them (request to decoded image; test profile).
+    let stats = eval(
+        &tab,
+        "[window.pansiteExplorer.p95(window.pansiteExplorer.stats.underlay), window.pansiteExplorer.p95(window.pansiteExplorer.stats.look), window.pansiteExplorer.stats.underlay.length]",
+    );
+    eprintln!(
+        "browser: p95 request to decoded image, underlay {} ms, look-around {} ms, over {} underlays (unoptimised test build; see cargo bench)",
+        stats[0], stats[1], stats[2]
+    );
+    drop(tab);
+    drop(browser);
+    Arc::try_unwrap(explorer).ok().unwrap().stop();
+}
+
+fn save(dir: &Path, scene: &Path, text: &str) {
+    let temporary = dir.join(".square.ron.saving");
+    std::fs::write(&temporary, text).unwrap();
+    std::fs::rename(&temporary, scene).unwrap();
+}
+
+fn angle_diff(a: f64, b: f64) -> f64 {
+    let d = (a - b).rem_euclid(360.0);
+    d.min(360.0 - d)
+}
+
+/// The page sends positions to the millimetre and angles to a hundredth of a degree.
+fn round3(v: f64) -> f64 {
+    (v * 1000.0).round() / 1000.0
+}
+
+fn round2(v: f64) -> f64 {
+    (v * 100.0).round() / 100.0
+}

@@ -1,0 +1,208 @@
+//! Print-ready sheets read back from their SVG: every paper preset in both orientations,
+//! with every aid on. Label groups (`data-text`) must lie inside the printable area and
+//! apart; the title block's labels must keep clear of the panorama's frame and of the
+//! scale bar; azimuth labels must name the azimuth of the meridian beside them.
+//!
+//! Sources: ISO 216 and ASME Y14.1 sheet sizes (the presets, checked in tests/pages.rs);
+//! the SVG is parsed with roxmltree, a general XML parser, so nothing of ours reads it.
+
+use pansite::aids::AidSettings;
+use pansite::page::{PageSettings, Paper};
+use pansite::render::{draw_sheets, RenderSettings};
+use pansite::scene::load_scene;
+use std::path::Path;
+
+/// A box in millimetres: left, top, right, bottom.
+type MmBox = [f64; 4];
+
+/// The boxes of every path's points in a group, millimetres.
+fn group_box(group: roxmltree::Node) -> Option<MmBox> {
+    let mut b = [
+        f64::INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::NEG_INFINITY,
+    ];
+    for path in group.children().filter(|n| n.has_tag_name("path")) {
+        let d = path.attribute("d")?;
+        let numbers: Vec<f64> = d
+            .split_whitespace()
+            .filter_map(|t| t.parse().ok())
+            .collect();
+        for xy in numbers.chunks_exact(2) {
+            b = [
+                b[0].min(xy[0]),
+                b[1].min(xy[1]),
+                b[2].max(xy[0]),
+                b[3].max(xy[1]),
+            ];
+        }
+    }
+    b[0].is_finite().then_some(b)
+}
+
+fn overlap(a: &MmBox, b: &MmBox) -> bool {
+    a[0] < b[2] && b[0] < a[2] && a[1] < b[3] && b[1] < a[3]
+}
+
+struct ReadBack {
+    labels: Vec<(String, String, MmBox)>,
+    frame: MmBox,
+    bar: Option<MmBox>,
+}
+
+fn read_back(svg: &str) -> ReadBack {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    let mut labels = Vec::new();
+    let (mut frame, mut bar) = (None, None);
+    for g in doc.descendants().filter(|n| n.has_tag_name("g")) {
+        let layer = g.attribute("data-layer").unwrap_or("").to_owned();
+        if let Some(text) = g.attribute("data-text") {
+            if let Some(b) = group_box(g) {
+                labels.push((layer, text.to_owned(), b));
+            }
+            // Each label group has its words as a title too.
+            let title = g.children().find(|n| n.has_tag_name("title")).unwrap();
+            assert_eq!(title.text(), Some(text));
+        } else if layer == "frame" {
+            frame = group_box(g);
+        } else if layer == "scale bar" {
+            bar = group_box(g);
+        }
+    }
+    ReadBack {
+        labels,
+        frame: frame.unwrap(),
+        bar,
+    }
+}
+
+fn sheet_svg(paper: Paper, band: (f64, f64)) -> (String, PageSettings) {
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let page = PageSettings {
+        paper,
+        margin_mm: 10.0,
+        dpi: 100.0,
+        band_deg: band,
+        title: Some(vec![
+            "WEXCOMBE SQUARE WITH A LONG NAME FOR A SMALL SHEET: STANDPOINT BY THE FOUNTAIN".to_owned(),
+            "HEADING 45.0\u{b0}  PITCH 0.0\u{b0}  ROLL 0.0\u{b0}  EYE 1.60 M ABOVE GROUND AT 0.00 M, AT (12.00, -3.00)".to_owned(),
+            "DRAWN 2026-12-02 WITH PANSITE".to_owned(),
+        ]),
+        tiles: None,
+    };
+    let settings = RenderSettings {
+        aids: AidSettings::all(),
+        ..RenderSettings::default()
+    };
+    let (sheets, _) =
+        draw_sheets(&site, &site.standpoints[0], &settings, Some(&page), 100.0).unwrap();
+    let mut svg = Vec::new();
+    pansite::output::write_svg(&sheets[0], &mut svg).unwrap();
+    (String::from_utf8(svg).unwrap(), page)
+}
+
+#[test]
+fn every_preset_both_ways_keeps_its_labels_whole_apart_and_clear() {
+    for name in pansite::page::preset_names().split(", ") {
+        let paper = Paper::named(name).unwrap();
+        for turned in [paper.portrait(), paper.landscape()] {
+            let (svg, page) = sheet_svg(turned, (-90.0, 90.0));
+            let back = read_back(&svg);
+            let m = page.margin_mm;
+            let printable = [m, m, turned.width_mm - m, turned.height_mm - m];
+            // The lettering's strokes are drawn with round caps: allow half a stroke.
+            let slack = 0.1;
+            assert!(!back.labels.is_empty(), "{name}");
+            for (layer, text, b) in &back.labels {
+                assert!(
+                    b[0] >= printable[0] - slack
+                        && b[1] >= printable[1] - slack
+                        && b[2] <= printable[2] + slack
+                        && b[3] <= printable[3] + slack,
+                    "{name} {turned:?}: {layer} {text:?} at {b:?} leaves the printable area"
+                );
+                if layer == "title" {
+                    assert!(
+                        !overlap(b, &back.frame),
+                        "{name}: {text:?} over the drawing"
+                    );
+                    if let Some(bar) = &back.bar {
+                        assert!(!overlap(b, bar), "{name}: {text:?} over the scale bar");
+                    }
+                }
+            }
+            for (i, (_, ta, a)) in back.labels.iter().enumerate() {
+                for (_, tb, b) in &back.labels[i + 1..] {
+                    // Boxes of stroke centre lines; touching is not overlapping.
+                    assert!(
+                        !overlap(&[a[0] + 0.01, a[1] + 0.01, a[2] - 0.01, a[3] - 0.01], b),
+                        "{name} {turned:?}: {ta:?} {a:?} overlaps {tb:?} {b:?}"
+                    );
+                }
+            }
+        }
+    }
+}
+
+/// The cases of the issue: A3, a band from -30 to +40 degrees, every aid. Each azimuth
+/// label (unsigned degrees on the grid) stands just right or just left of its meridian;
+/// the azimuth there, worked out from the frame alone (heading at the middle, 360 degrees
+/// across, the seam behind), is the label's value. No label crosses the frame.
+#[test]
+fn azimuth_labels_name_the_meridian_beside_them() {
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let heading = site.standpoints[0].heading.to_degrees();
+    for band in [(-30.0, 40.0), (-90.0, 90.0)] {
+        let (svg, _) = sheet_svg(Paper::named("A3").unwrap().landscape(), band);
+        let back = read_back(&svg);
+        let [fl, ft, fr, fb] = back.frame;
+        let per_degree = (fr - fl) / 360.0;
+        let azimuth_at = |x: f64| (heading + (x - fl) / per_degree - 180.0).rem_euclid(360.0);
+        let mut checked = 0;
+        for (layer, text, b) in &back.labels {
+            assert!(
+                b[0] >= fl - 0.1 && b[2] <= fr + 0.1,
+                "{text:?} crosses the frame"
+            );
+            if layer != "grid labels" {
+                continue;
+            }
+            assert!(
+                b[1] >= ft - 0.1 && b[3] <= fb + 0.1,
+                "{text:?} crosses the band edge"
+            );
+            let Some(value) = text
+                .strip_suffix('\u{b0}')
+                .and_then(|v| v.parse::<f64>().ok())
+            else {
+                continue;
+            };
+            if text.starts_with(['+', '-']) {
+                continue;
+            }
+            // The gap between a label and its line is 0.4 of the cap height; the box's
+            // near edge is half a stroke nearer.
+            let gap = 0.45 * (b[3] - b[1]).min(4.0);
+            let near = |az: f64| {
+                let d = (az - value).rem_euclid(360.0);
+                d.min(360.0 - d) < 0.6
+            };
+            assert!(
+                near(azimuth_at(b[0] - gap))
+                    || near(azimuth_at(b[2] + gap))
+                    || near(azimuth_at(b[0]))
+                    || near(azimuth_at(b[2])),
+                "{text:?} at {b:?}: meridians beside it are {:.1} and {:.1}",
+                azimuth_at(b[0] - gap),
+                azimuth_at(b[2] + gap)
+            );
+            checked += 1;
+        }
+        assert!(checked >= 8, "{checked} azimuth labels");
+    }
+}

@@ -1,0 +1,174 @@
+//! The sun and shadows through the library's public face: scenes with a `location` and a
+//! `sun` block, drawn and listed.
+
+use pansite::aids::{angle_table, TableChoice};
+use pansite::plane::Equirect;
+use pansite::render::{draw, RenderSettings, SunChoice};
+use pansite::scene::{parse_scene, LocalMoment, Site};
+use pansite::sun::Sky;
+use pansite::sun::{with_shadows, SHADOWS};
+use std::path::Path;
+
+/// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
+/// pole 6 m tall at the origin and a standpoint south-west of it.
+fn pole_scene(north: f64, sun: &str) -> Site {
+    let text = format!(
+        r#"Scene(
+            name: "pole",
+            location: (latitude: 47.3, longitude: 8.1, north: {north}, time_zone: "Europe/Zurich"),
+            {sun}
+            standpoints: [(name: "corner", x: -9, y: -14, heading: 30)],
+            items: [Block(label: "pole", at: Centre(0, 0), width: 0.02, depth: 0.02, height: 6)],
+        )"#
+    );
+    parse_scene(text.as_bytes(), Path::new("pole.ron"), "pole").unwrap()
+}
+
+/// The corner of the shadows' outline farthest from the pole's foot, from `angles`' rows.
+fn shadow_tip(site: &Site) -> pansite::aids::AngleRow {
+    let map = Equirect::from_size_px(4096.0, 2048.0);
+    let choice = TableChoice {
+        item: Some(SHADOWS.to_owned()),
+        points_only: false,
+    };
+    let rows = angle_table(site, &site.standpoints[0], &map, None, &choice);
+    assert!(!rows.is_empty());
+    rows.into_iter()
+        .max_by(|a, b| a.at.coords.xy().norm().total_cmp(&b.at.coords.xy().norm()))
+        .unwrap()
+}
+
+#[test]
+fn a_poles_shadow_tip_is_where_trigonometry_puts_it_and_angles_lists_it() {
+    // Plain trigonometry: a vertical pole of height h on level ground casts a shadow of
+    // length h / tan(elevation) towards the sun's azimuth plus 180 degrees.
+    let site = pole_scene(12.0, "");
+    let sky = Sky::of_site(&site).unwrap();
+    let moment = LocalMoment::parse("2026-05-04", "16:10").unwrap();
+    let sun = sky.at(&moment).unwrap();
+    let shadowed = with_shadows(&site, &sky.direction(&sun));
+    let tip = shadow_tip(&shadowed);
+    let length = 6.0 / sun.place.elevation_deg.to_radians().tan();
+    // The plan's y axis is 12 degrees anticlockwise of true north.
+    let bearing = (sun.place.azimuth_deg + 180.0 + 12.0).to_radians();
+    let (x, y) = (length * bearing.sin(), length * bearing.cos());
+    // The pole is 2 cm thick: its far corner lies within 2 cm of the line's tip.
+    assert!(
+        (tip.at.x - x).hypot(tip.at.y - y) < 0.02,
+        "{:?} vs ({x}, {y})",
+        tip.at
+    );
+    // And `angles` gives the azimuth and elevation the test finds from the eye itself.
+    let eye = site.standpoints[0].eye();
+    let (dx, dy, dz) = (x - eye.x, y - eye.y, -eye.z);
+    let azimuth = dx.atan2(dy).to_degrees().rem_euclid(360.0);
+    let elevation = dz.atan2(dx.hypot(dy)).to_degrees();
+    assert!(
+        (tip.azimuth_deg - azimuth).abs() < 0.1,
+        "{} vs {azimuth}",
+        tip.azimuth_deg
+    );
+    assert!((tip.elevation_deg - elevation).abs() < 0.1);
+}
+
+#[test]
+fn at_transit_a_poles_shadow_points_to_true_north() {
+    // Common practice: north of the Tropic of Cancer the noon shadow points true north;
+    // the scene's plan is turned so that true north is 25 degrees clockwise of its y axis.
+    let site = pole_scene(25.0, "");
+    let sky = Sky::of_site(&site).unwrap();
+    for date in ["2026-02-10", "2026-06-21", "2026-10-01"] {
+        let events = sky.events(date.parse().unwrap()).unwrap();
+        let transit = events.transit.unwrap();
+        let tip = shadow_tip(&with_shadows(&site, &sky.direction(&transit)));
+        let bearing = tip.at.x.atan2(tip.at.y).to_degrees();
+        assert!((bearing - 25.0).abs() < 0.3, "{date}: {bearing}");
+    }
+}
+
+#[test]
+fn a_scene_with_a_sun_block_draws_the_sun_its_path_and_the_shadows() {
+    let site = pole_scene(
+        0.0,
+        r#"sun: (date: "2026-06-21", time: "15:00", seasons: true),"#,
+    );
+    let settings = RenderSettings {
+        width: 1024,
+        height: 512,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let names: Vec<&str> = render
+        .drawing
+        .layers
+        .iter()
+        .map(|l| l.name.as_str())
+        .collect();
+    for wanted in [
+        "sun",
+        "sun path",
+        "sun hours",
+        "sun paths of the solstices and equinox",
+        "wireframe: shadows",
+    ] {
+        assert!(names.contains(&wanted), "{wanted} not in {names:?}");
+    }
+    assert!(render.notes.is_empty(), "{:?}", render.notes);
+    // At night: no shadows, and it is said.
+    let settings = RenderSettings {
+        sun: SunChoice {
+            moment: Some(LocalMoment::parse("2026-06-21", "23:30").unwrap()),
+            ..SunChoice::default()
+        },
+        ..settings
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    assert!(
+        render.notes[0].contains("below the horizon"),
+        "{:?}",
+        render.notes
+    );
+    assert!(!render
+        .drawing
+        .layers
+        .iter()
+        .any(|l| l.name == "wireframe: shadows" || l.name == "sun"));
+}
+
+#[test]
+fn a_skipped_local_time_is_refused_as_bad_input() {
+    let site = pole_scene(0.0, r#"sun: (date: "2026-03-29", time: "02:30"),"#);
+    let error = draw(&site, &site.standpoints[0], &RenderSettings::default()).unwrap_err();
+    assert!(error.is_bad_input());
+    assert!(
+        error.to_string().contains("before 02:00 or from 03:00"),
+        "{error}"
+    );
+}
+
+#[test]
+fn a_contact_sheet_over_times_of_day_shows_the_light_change() {
+    use pansite::compose::{contact_sheet, sweep_times, ContactSettings};
+    let site = pole_scene(0.0, "");
+    let day = LocalMoment::parse("2026-06-21", "06:00").unwrap();
+    let to = pansite::scene::parse_time("22:00").unwrap().0;
+    let (standpoints, moments) = sweep_times(&site.standpoints[0], &day, to, 240.0).unwrap();
+    assert_eq!(standpoints.len(), 5);
+    assert!(
+        standpoints[2].name.ends_with("2026-06-21 14:00"),
+        "{}",
+        standpoints[2].name
+    );
+    let settings = ContactSettings {
+        moments,
+        ..ContactSettings::default()
+    };
+    let sheet = contact_sheet(&site, &standpoints, &settings, &|_, _| {}).unwrap();
+    let shadows = sheet
+        .drawing
+        .layers
+        .iter()
+        .find(|l| l.name == "wireframe: shadows")
+        .expect("shadows on the sheet");
+    assert!(!shadows.lines.is_empty());
+}
