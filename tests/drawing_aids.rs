@@ -285,13 +285,13 @@ fn angles_between_table_entries_agree_with_geographiclib() {
         .skip(1)
         .map(|l| {
             l.rsplit(',')
-                .skip(2)
+                .skip(4)
                 .take(9)
                 .filter_map(|c| c.parse().ok())
                 .collect()
         })
         .collect();
-    // Reversed: [y_px, x_px, distance, elevation, relative, azimuth, ...].
+    // Reversed, after y_mm, x_mm and the empty latitude and longitude: [y_px, x_px, distance, elevation, relative, azimuth, ...].
     let s12: f64 = sphere.inverse(cells[0][3], cells[0][5], cells[1][3], cells[1][5]);
     let truth = angle_between(&(rows[0].at - eye), &(rows[1].at - eye));
     assert!((s12 - truth).abs() < 2e-5, "{s12} {truth}");
@@ -406,7 +406,7 @@ fn angles_command_writes_a_table() {
     assert_eq!(
         text.lines().nth(1),
         Some(
-            "well,point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,360.00,180.00"
+            "well,point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,360.00,180.00,,"
         )
     );
     let out = run(&["--item", "pump"]);

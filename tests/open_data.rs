@@ -284,3 +284,35 @@ fn every_footprint_corner_in_angles_where_it_is_computed_here() {
         }
     }
 }
+
+/// A mapped street that cannot be joined where it meets another (here the demo's lane, whose
+/// last mapped piece is 1 m long at an acute corner) is drawn on its own with a warning that
+/// names it: one awkward mapped corner must not refuse the whole block. A road written in
+/// the scene is still refused (the bad-input corpus's kerb files).
+#[test]
+fn a_mapped_street_that_cannot_be_joined_is_drawn_alone_with_a_warning() {
+    let site =
+        pansite::scene::load_scene(std::path::Path::new("scenes/opendata/saltmarsh-row.ron"))
+            .unwrap();
+    let lane = site
+        .items
+        .iter()
+        .position(|i| i.label.as_deref() == Some("Harbour Lane"))
+        .expect("the demo's lane");
+    let warned: Vec<&String> = site
+        .warnings
+        .iter()
+        .filter(|(item, _)| item.0 as usize == lane)
+        .map(|(_, w)| w)
+        .collect();
+    assert!(
+        warned
+            .iter()
+            .any(|w| w.starts_with("not joined to the streets it meets")),
+        "{warned:?}"
+    );
+    assert!(
+        site.edges.iter().any(|e| e.item.0 as usize == lane),
+        "the lane is still drawn"
+    );
+}

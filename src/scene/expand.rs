@@ -98,11 +98,13 @@ pub fn expand(
         path: Vec::new(),
         visits: 0,
         road_paths: Vec::new(),
+        data_roads: Vec::new(),
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
     let road_paths = std::mem::take(&mut walker.road_paths);
+    let data_roads = std::mem::take(&mut walker.data_roads);
     let roads = std::mem::take(&mut site.roads);
-    super::streets::draw_streets(&mut site, &roads).map_err(|e| ExpandError::Item {
+    join_streets(&mut site, roads, &data_roads).map_err(|e| ExpandError::Item {
         path: road_paths[e.road].clone(),
         message: e.message,
     })?;
@@ -144,6 +146,8 @@ struct Walker<'a> {
     /// Where each road placed so far (`Site::roads`) is written; they are drawn together
     /// at the end so that those that meet are joined.
     road_paths: Vec<Vec<usize>>,
+    /// The roads (by their index in `Site::roads`) that came from open data.
+    data_roads: Vec<usize>,
 }
 
 impl Walker<'_> {
@@ -377,6 +381,7 @@ impl Walker<'_> {
                                 kerb_radius: None,
                                 crossing: None,
                             });
+                            self.data_roads.push(self.site.roads.len());
                             self.item(&road, metres, layer, None)?;
                             let id = ItemId(self.site.items.len() as u32 - 1);
                             for assumption in assumptions {
@@ -414,6 +419,79 @@ impl Walker<'_> {
             }
         }
         self.check_size()
+    }
+}
+
+/// Joins the scene's roads where they meet (`streets::draw_streets`). A road written in the
+/// scene that cannot be joined is an error, reported at its item. A road from open data
+/// (mapped as many short pieces that often meet at odd angles) that cannot be joined is
+/// drawn on its own instead, with a warning naming it, so that one awkward mapped corner
+/// does not refuse a whole town.
+fn join_streets(
+    site: &mut Site,
+    mut roads: Vec<super::items::RoadLine>,
+    data_roads: &[usize],
+) -> Result<(), super::streets::StreetError> {
+    // Each road's index as written, beside it, for the error's place.
+    let mut written: Vec<usize> = (0..roads.len()).collect();
+    let mut alone = Vec::new();
+    loop {
+        let mark = SiteLengths::of(site);
+        match super::streets::draw_streets(site, &roads) {
+            Ok(_) => break,
+            Err(e) if data_roads.contains(&written[e.road]) => {
+                mark.restore(site);
+                written.remove(e.road);
+                let road = roads.remove(e.road);
+                site.warnings.push((
+                    road.item,
+                    format!("not joined to the streets it meets ({})", e.message),
+                ));
+                alone.push(road);
+            }
+            Err(e) => {
+                return Err(super::streets::StreetError {
+                    road: written[e.road],
+                    message: e.message,
+                })
+            }
+        }
+    }
+    for road in alone {
+        let mark = SiteLengths::of(site);
+        if let Err(e) = super::streets::draw_streets(site, std::slice::from_ref(&road)) {
+            mark.restore(site);
+            site.warnings
+                .push((road.item, format!("not drawn: {}", e.message)));
+        }
+    }
+    Ok(())
+}
+
+/// How many edges, faces and marks a site holds, to take back what a failed drawing added
+/// (drawing only ever appends).
+struct SiteLengths([usize; 6]);
+
+impl SiteLengths {
+    fn of(site: &Site) -> Self {
+        Self([
+            site.edges.len(),
+            site.silhouette_candidates.len(),
+            site.faces.len(),
+            site.outlines.len(),
+            site.markers.len(),
+            site.named_points.len(),
+        ])
+    }
+
+    fn restore(&self, site: &mut Site) {
+        let [edges, silhouettes, faces, outlines, markers, named] = self.0;
+        site.edges.truncate(edges);
+        site.silhouette_candidates.truncate(silhouettes);
+        site.faces.truncate(faces);
+        site.outlines.truncate(outlines);
+        site.markers.truncate(markers);
+        site.named_points.truncate(named);
     }
 }
 

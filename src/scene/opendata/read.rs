@@ -26,7 +26,7 @@ pub enum OpenDataContent {
     /// Buildings and streets from GeoJSON, placed in the plan.
     Map(Vec<Placed>),
     /// A city model's mesh, placed in the plan.
-    City(CityModel),
+    City(Box<CityModel>),
 }
 
 /// Reads the data file at `path` as `spec` asks, around `location` (the scene's origin).
@@ -88,7 +88,7 @@ pub fn read_open_data(
                 );
             }
             notes.extend(model.notes.iter().cloned());
-            OpenDataContent::City(model)
+            OpenDataContent::City(Box::new(model))
         }
     };
     Ok(OpenData { content, notes })
