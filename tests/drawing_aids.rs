@@ -372,22 +372,16 @@ fn bare_mode_draws_no_aid() {
 /// The command: a CSV table with the page columns, and a refusal for an unknown item.
 #[test]
 fn angles_command_writes_a_table() {
-    let dir = std::env::temp_dir().join(format!("pansite-angles-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let scene = dir.join("s.ron");
-    std::fs::write(
-        &scene,
+    let dir = common::Scratch::new("angles");
+    dir.write(
+        "s.ron",
         "Scene(standpoints: [(name: \"gate\", x: 0, y: 0, heading: 90)],
                items: [Point(label: \"well\", at: (10, 0, 1.6))])",
-    )
-    .unwrap();
+    );
     let run = |args: &[&str]| {
-        std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
-            .arg("angles")
-            .arg(&scene)
-            .args(args)
-            .output()
-            .unwrap()
+        let mut all = vec!["angles", "s.ron"];
+        all.extend_from_slice(args);
+        common::pansite(&dir, &all)
     };
     let out = run(&[
         "--format",
@@ -411,5 +405,4 @@ fn angles_command_writes_a_table() {
     );
     let out = run(&["--item", "pump"]);
     assert_eq!(out.status.code(), Some(2));
-    let _ = std::fs::remove_dir_all(&dir);
 }

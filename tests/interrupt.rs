@@ -3,32 +3,23 @@
 //! no temporary or partial file left, the earlier output byte for byte intact.
 #![cfg(unix)]
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
-const EARLIER: &[u8] = b"\x89PNG\r\n\x1a\nan earlier good output";
+mod common;
+use common::Scratch;
 
-fn names(dir: &Path) -> Vec<String> {
-    let mut names: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
-        .collect();
-    names.sort();
-    names
-}
+const EARLIER: &[u8] = b"\x89PNG\r\n\x1a\nan earlier good output";
 
 #[test]
 fn ctrl_c_mid_render_leaves_no_temporary_file_and_keeps_the_earlier_output() {
-    let dir: PathBuf =
-        std::env::temp_dir().join(format!("pansite-interrupt-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = Scratch::new("interrupt");
     let scene = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
-    std::fs::write(dir.join("out.png"), EARLIER).unwrap();
+    let earlier = dir.write("out.png", EARLIER);
     // 450 megapixels: seconds of rasterising and encoding, long enough to be caught.
-    let mut child = Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .current_dir(&dir)
+    let mut child = dir
+        .command()
         .args(["render", scene.to_str().unwrap(), "-o", "out.png"])
         .args(["--size", "30000x15000", "--hidden", "solid"])
         .stderr(Stdio::piped())
@@ -36,7 +27,7 @@ fn ctrl_c_mid_render_leaves_no_temporary_file_and_keeps_the_earlier_output() {
         .unwrap();
     let started = Instant::now();
     let temporary = format!(".out.png.pansite-{}.tmp", child.id());
-    while !dir.join(&temporary).exists() {
+    while !dir.path(&temporary).exists() {
         assert!(
             child.try_wait().unwrap().is_none(),
             "the render ended before its temporary file was seen"
@@ -56,7 +47,6 @@ fn ctrl_c_mid_render_leaves_no_temporary_file_and_keeps_the_earlier_output() {
     let text = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(130), "{text}");
     assert!(text.contains("interrupted"), "{text}");
-    assert_eq!(names(&dir), ["out.png"]);
-    assert_eq!(std::fs::read(dir.join("out.png")).unwrap(), EARLIER);
-    std::fs::remove_dir_all(&dir).unwrap();
+    assert_eq!(dir.files(), ["out.png"]);
+    assert_eq!(std::fs::read(earlier).unwrap(), EARLIER);
 }
