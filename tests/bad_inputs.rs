@@ -179,6 +179,10 @@ corpus! {
     self_intersecting_footprint: "self-intersecting-footprint.ron" => refused("self-intersecting-footprint.ron:4:9:", &["crosses side 3", "must not cross itself"]);
     footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
     kerb_radius_too_big: "kerb-radius-too-big.ron" => refused("kerb-radius-too-big.ron:5:9:", &["kerb returns of the junction at (0, 0) do not fit", "kerb_radius"]);
+    place_radius_too_small: "place-radius-too-small.ron" => refused("place-radius-too-small.ron:5:9:", &["RoundPlace \"Kiln Circle\"", "radius 3 is too small for the arm \"Weir Street\""]);
+    place_returns_overlap: "place-returns-overlap.ron" => refused("place-returns-overlap.ron:6:9:", &["kerb returns overlap round the circle"]);
+    place_arm_short: "place-arm-short.ron" => refused("place-arm-short.ron:5:9:", &["\"Weir Street\" does not reach the place", "4 outside the circle of radius 10"]);
+    junction_name_astray: "junction-name-astray.ron" => refused("junction-name-astray.ron:6:9:", &["Junction \"Saddler's Cross\"", "no junction at (30, 0)"]);
     ground_crossing_contours: "ground-crossing-contours.ron" => refused("ground-crossing-contours.ron:3:5:", &["contour 2 (height 2) crosses contour 1 (height 1)"]);
     ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
     ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
