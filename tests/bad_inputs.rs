@@ -196,6 +196,7 @@ corpus! {
     round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
     figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
     figure_taller_than_people: "figure-taller-than-people.ron" => refused("figure-taller-than-people.ron:4:9:", &["16.000 m", "taller than any person"]);
+    tower_shaped_head: "tower-shaped-head.ron" => refused("tower-shaped-head.ron:4:9:", &["Semicircular head cannot be set in a round wall", "Square heads"]);
     unknown_head: "unknown-head.ron" => refused("unknown-head.ron:5:76:", &["Gothic", "Pointed"]);
     // Models named in a scene.
     model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);

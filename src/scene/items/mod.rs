@@ -74,6 +74,7 @@ mod room;
 mod round;
 mod stairs;
 mod tiles;
+mod tower_openings;
 mod vault;
 mod walls;
 
