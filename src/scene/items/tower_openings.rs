@@ -167,8 +167,8 @@ pub fn build_pierced_side(
             cuts[0] + TAU
         }
     };
-    for i in 0..cuts.len() {
-        let (a, c) = (cuts[i], next(i));
+    for (i, &a) in cuts.iter().enumerate() {
+        let c = next(i);
         let middle = (a + c) / 2.0;
         // The heights of this facet that no opening takes.
         let mut from = 0.0;
