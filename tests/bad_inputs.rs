@@ -179,6 +179,10 @@ corpus! {
     self_intersecting_footprint: "self-intersecting-footprint.ron" => refused("self-intersecting-footprint.ron:4:9:", &["crosses side 3", "must not cross itself"]);
     footprint_of_two_points: "footprint-two-points.ron" => refused("footprint-two-points.ron:4:9:", &["expected at least three corners, found 2"]);
     kerb_radius_too_big: "kerb-radius-too-big.ron" => refused("kerb-radius-too-big.ron:5:9:", &["kerb returns of the junction at (0, 0) do not fit", "kerb_radius"]);
+    place_radius_too_small: "place-radius-too-small.ron" => refused("place-radius-too-small.ron:5:9:", &["RoundPlace \"Kiln Circle\"", "radius 3 is too small for the arm \"Weir Street\""]);
+    place_returns_overlap: "place-returns-overlap.ron" => refused("place-returns-overlap.ron:6:9:", &["kerb returns overlap round the circle"]);
+    place_arm_short: "place-arm-short.ron" => refused("place-arm-short.ron:5:9:", &["\"Weir Street\" does not reach the place", "4 outside the circle of radius 10"]);
+    junction_name_astray: "junction-name-astray.ron" => refused("junction-name-astray.ron:6:9:", &["Junction \"Saddler's Cross\"", "no junction at (30, 0)"]);
     ground_crossing_contours: "ground-crossing-contours.ron" => refused("ground-crossing-contours.ron:3:5:", &["contour 2 (height 2) crosses contour 1 (height 1)"]);
     ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
     ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
@@ -192,6 +196,7 @@ corpus! {
     round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
     figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
     figure_taller_than_people: "figure-taller-than-people.ron" => refused("figure-taller-than-people.ron:4:9:", &["16.000 m", "taller than any person"]);
+    tower_shaped_head: "tower-shaped-head.ron" => refused("tower-shaped-head.ron:4:9:", &["Semicircular head cannot be set in a round wall", "Square heads"]);
     unknown_head: "unknown-head.ron" => refused("unknown-head.ron:5:76:", &["Gothic", "Pointed"]);
     // Models named in a scene.
     model_missing: "model-missing-file.ron" => refused("model-missing-file.ron:4:9:", &["in the model", "cannot read no-such-model.obj"]);

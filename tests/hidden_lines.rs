@@ -219,6 +219,25 @@ fn a_tower_in_front_of_a_hall() {
 }
 
 #[test]
+fn a_round_tower_with_recessed_openings() {
+    // Square-headed openings set 0.5 into a round tower (their sills and lintels arcs of
+    // its circle): their reveals and backs hide and are hidden like any face, and the
+    // hall behind is hidden by the tower, against the brute-force ray caster.
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"lane\", x: 4, y: -16, heading: 350)], items: [
+            Block(at: Corner(-10, 6), width: 20, depth: 8, height: 7, roof: Gable(ridge: 10)),
+            Tower(at: (0, 0), diameter: 6, height: 12, storeys: [4, 8], roof: Cone(height: 4),
+                  openings: [(count: 4, facing: 170, width: 1.2, height: 2, sill: 1,
+                              rows: 2, row_step: 4, reveal: 0.5)]),
+        ])",
+        Path::new("round-tower.ron"),
+        "round tower",
+    )
+    .unwrap();
+    check_scene("round tower", &site, &site.standpoints[0], 1);
+}
+
+#[test]
 fn an_interior_with_columns() {
     let site = scene("scenes/wexcombe-corn-exchange.ron");
     for standpoint in &site.standpoints {

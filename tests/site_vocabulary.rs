@@ -556,3 +556,41 @@ fn runaway_repeats_and_opening_grids_are_refused_quickly() {
         assert!(error.contains("more than"), "{error}");
     }
 }
+
+#[test]
+fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
+    // A vertical wall meets each flat triangle of the ground in a straight line (two planes
+    // meet in a line, plane geometry), so the foot line is straight between the points
+    // where a wall crosses the triangles' edges, and lies on the ground all along: checked
+    // at every segment's ends and middle against the ground's own heights, and round the
+    // whole plan (its perimeter, 2 x (8 + 12) = 40 m, by hand).
+    let site = site(
+        "Scene(ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)],
+                        contours: [(height: 2, points: [(-40, 10), (0, 12), (40, 10)]),
+                                   (height: 4, points: [(-40, 30), (0, 33), (40, 30)])]),
+               items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
+                             on_ground: true, roof: Gable(ridge: 11, along: Depth))])",
+    );
+    let ground = site.ground.as_ref().expect("a ground");
+    let block = site.items.iter().position(|i| i.kind == "block").unwrap() as u32;
+    let on_ground = |p: &Point3<f64>| {
+        ground
+            .height_at(p.x, p.y)
+            .is_some_and(|z| (z - p.z).abs() < 1e-9)
+    };
+    let mut length = 0.0;
+    let mut slopes = 0;
+    for edge in site.edges.iter().filter(|e| e.item == ItemId(block)) {
+        if let SiteCurve::Segment { start, end } = edge.curve {
+            let middle = Point3::from((start.coords + end.coords) / 2.0);
+            if on_ground(&start) && on_ground(&end) && (start - end).xy().norm() > 1e-9 {
+                assert!(on_ground(&middle), "{start} to {end} leaves the ground");
+                length += (end - start).xy().norm();
+                slopes += usize::from((start.z - end.z).abs() > 1e-6);
+            }
+        }
+    }
+    assert_near(length, 40.0, 1e-9);
+    // The side walls run up the slope, so parts of the foot line slope.
+    assert!(slopes >= 2, "{slopes}");
+}

@@ -229,4 +229,39 @@ mod tests {
         assert_eq!(label_step(&settings, 4.0, text_width("360", 10.0)), 30.0);
         assert_eq!(label_step(&settings, 40.0, text_width("360", 10.0)), 30.0);
     }
+
+    #[test]
+    fn a_junction_and_a_round_place_are_named_through_the_item_labels() {
+        // The junction's name hangs at the junction's centre (where the centrelines meet),
+        // at its image by the mapping x = (r + 180) / 360 W, y = (90 - e) / 180 H; the
+        // round place's beside its kerbs. Both are item labels, for the one placer.
+        let site = crate::scene::parse_scene(
+            b"Scene(standpoints: [(name: \"s\", x: 0, y: -20, heading: 0)], items: [
+                Road(label: \"Long Row\", points: [(-40, 0), (60, 0)], width: 6),
+                Road(points: [(0, 0), (0, 40)], width: 6),
+                Junction(label: \"Five Lamps\", at: (1, -1)),
+                Road(label: \"Weir Walk\", points: [(60, 0), (60, -40)], width: 6),
+                RoundPlace(label: \"Mill Circle\", centre: (60, 0), radius: 10,
+                           arms: [\"Long Row\", \"Weir Walk\"]),
+            ])",
+            std::path::Path::new("named.ron"),
+            "named",
+        )
+        .unwrap();
+        let view = ViewFrame::new(&site.standpoints[0]);
+        let map = Equirect::from_size_px(3600.0, 1800.0);
+        let labels = item_labels(&site, &view, &map, 10.0);
+        let named = |text: &str| labels.iter().find(|l| l.text == text).map(|l| l.anchor);
+        // The junction at (0, 0, 0) from an eye at (0, -20, 1.6): straight ahead, at an
+        // elevation of -atan(1.6 / 20).
+        let anchor = named("Five Lamps").expect("the junction's name");
+        let elevation = -(1.6f64 / 20.0).atan().to_degrees();
+        assert!((anchor.x - 1800.0).abs() < 1e-6, "{anchor:?}");
+        assert!(
+            (anchor.y - (90.0 - elevation) * 10.0).abs() < 1e-6,
+            "{anchor:?}"
+        );
+        assert!(named("Mill Circle").is_some());
+        assert!(labels.iter().all(|l| l.kind == LabelKind::Item));
+    }
 }

@@ -148,6 +148,16 @@ impl<'a> ItemBuilder<'a> {
         self.site.roads.push(road);
     }
 
+    /// Adds a placed round place, drawn at the end with the roads that end in it.
+    pub fn add_place(&mut self, place: super::items::PlaceLine) {
+        self.site.places.push(place);
+    }
+
+    /// Names the junction at (or near) `at` in plan, site coordinates, with this item.
+    pub fn add_junction_name(&mut self, at: nalgebra::Vector2<f64>) {
+        self.site.junction_names.push((self.item, at));
+    }
+
     /// The site's sloping ground, if it has one.
     pub fn ground(&self) -> Option<&super::ground::Ground> {
         self.site.ground.as_ref()

@@ -14,6 +14,7 @@ use super::opendata::{
 };
 use super::site::ItemId;
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
+use super::streets::Culprit;
 use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
 use crate::error::Error;
 use std::path::Path;
@@ -99,15 +100,27 @@ pub fn expand(
         visits: 0,
         road_paths: Vec::new(),
         data_roads: Vec::new(),
+        place_paths: Vec::new(),
+        name_paths: Vec::new(),
     };
     walker.items(&file.items, Placement::in_unit(unit), None, None)?;
     let road_paths = std::mem::take(&mut walker.road_paths);
     let data_roads = std::mem::take(&mut walker.data_roads);
+    let place_paths = std::mem::take(&mut walker.place_paths);
+    let name_paths = std::mem::take(&mut walker.name_paths);
     let roads = std::mem::take(&mut site.roads);
-    join_streets(&mut site, roads, &data_roads).map_err(|e| ExpandError::Item {
-        path: road_paths[e.road].clone(),
+    let places = std::mem::take(&mut site.places);
+    let blame = |e: super::streets::StreetError| ExpandError::Item {
+        path: match e.at {
+            Culprit::Road(k) => road_paths[k].clone(),
+            Culprit::Place(k) => place_paths[k].clone(),
+            Culprit::Name(k) => name_paths[k].clone(),
+        },
         message: e.message,
-    })?;
+    };
+    let (junctions, joined) =
+        join_streets(&mut site, roads, &places, &data_roads).map_err(blame)?;
+    super::streets::name_junctions(&mut site, &junctions, &joined).map_err(blame)?;
     if let (Some(spec), Some(edges)) = (&file.ground, ground_edges) {
         super::ground::draw_ground(&mut site, spec, edges);
     }
@@ -148,6 +161,10 @@ struct Walker<'a> {
     road_paths: Vec<Vec<usize>>,
     /// The roads (by their index in `Site::roads`) that came from open data.
     data_roads: Vec<usize>,
+    /// Where each round place (`Site::places`) is written.
+    place_paths: Vec<Vec<usize>>,
+    /// Where each junction name (`Site::junction_names`) is written.
+    name_paths: Vec<Vec<usize>>,
 }
 
 impl Walker<'_> {
@@ -229,6 +246,12 @@ impl Walker<'_> {
         // A road is placed, not drawn: it waits to be joined with the others.
         while self.road_paths.len() < self.site.roads.len() {
             self.road_paths.push(self.path.clone());
+        }
+        while self.place_paths.len() < self.site.places.len() {
+            self.place_paths.push(self.path.clone());
+        }
+        while self.name_paths.len() < self.site.junction_names.len() {
+            self.name_paths.push(self.path.clone());
         }
         self.check_size()
     }
@@ -430,28 +453,40 @@ impl Walker<'_> {
 fn join_streets(
     site: &mut Site,
     mut roads: Vec<super::items::RoadLine>,
+    places: &[super::items::PlaceLine],
     data_roads: &[usize],
-) -> Result<(), super::streets::StreetError> {
+) -> Result<(Vec<super::streets::Junction>, Vec<super::items::RoadLine>), super::streets::StreetError>
+{
     // Each road's index as written, beside it, for the error's place.
     let mut written: Vec<usize> = (0..roads.len()).collect();
     let mut alone = Vec::new();
+    let junctions;
     loop {
         let mark = SiteLengths::of(site);
-        match super::streets::draw_streets(site, &roads) {
-            Ok(_) => break,
-            Err(e) if data_roads.contains(&written[e.road]) => {
+        match super::streets::draw_streets(site, &roads, places) {
+            Ok(found) => {
+                junctions = found;
+                break;
+            }
+            Err(super::streets::StreetError {
+                at: Culprit::Road(k),
+                message,
+            }) if data_roads.contains(&written[k]) => {
                 mark.restore(site);
-                written.remove(e.road);
-                let road = roads.remove(e.road);
+                written.remove(k);
+                let road = roads.remove(k);
                 site.warnings.push((
                     road.item,
-                    format!("not joined to the streets it meets ({})", e.message),
+                    format!("not joined to the streets it meets ({message})"),
                 ));
                 alone.push(road);
             }
             Err(e) => {
                 return Err(super::streets::StreetError {
-                    road: written[e.road],
+                    at: match e.at {
+                        Culprit::Road(k) => Culprit::Road(written[k]),
+                        other => other,
+                    },
                     message: e.message,
                 })
             }
@@ -459,13 +494,13 @@ fn join_streets(
     }
     for road in alone {
         let mark = SiteLengths::of(site);
-        if let Err(e) = super::streets::draw_streets(site, std::slice::from_ref(&road)) {
+        if let Err(e) = super::streets::draw_streets(site, std::slice::from_ref(&road), &[]) {
             mark.restore(site);
             site.warnings
                 .push((road.item, format!("not drawn: {}", e.message)));
         }
     }
-    Ok(())
+    Ok((junctions, roads))
 }
 
 /// How many edges, faces and marks a site holds, to take back what a failed drawing added

@@ -21,6 +21,7 @@ mod numbers;
 mod obj;
 mod opendata;
 mod outline;
+mod places;
 mod site;
 pub mod streets;
 mod style;

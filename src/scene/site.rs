@@ -213,6 +213,11 @@ pub struct Site {
     /// Roads placed but not yet drawn: they are joined where they meet and drawn together
     /// (`streets::draw_streets`) once every road is known, which leaves this empty.
     pub roads: Vec<super::items::RoadLine>,
+    /// Round places placed but not yet drawn: drawn with the roads, whose arms end in them.
+    pub places: Vec<super::items::PlaceLine>,
+    /// Junction names placed (the naming item, and where in plan), matched to the
+    /// junctions once the roads are joined; this is then left empty.
+    pub junction_names: Vec<(ItemId, nalgebra::Vector2<f64>)>,
     /// The sloping ground, if the scene has one.
     pub ground: Option<super::ground::Ground>,
     /// The date and local time of the sun and shadows the scene asks for.

@@ -16,8 +16,11 @@
 
 use super::build::{ItemBuilder, Placement};
 use super::items::plan::{left_of, PathPiece};
-use super::items::{draw_kerb, draw_pavement_back, draw_piece, Piece, PieceEnd, RoadLine};
-use super::site::Site;
+use super::items::{
+    draw_kerb, draw_pavement_back, draw_piece, Piece, PieceEnd, PlaceLine, RoadLine,
+};
+use super::places::{attach_arms, draw_places, PlaceArm};
+use super::site::{Marker, Site};
 use nalgebra::Vector2;
 use std::f64::consts::{PI, TAU};
 
@@ -31,11 +34,22 @@ pub const PASS_OVER: f64 = 0.5;
 /// going straight on.
 const STRAIGHT: f64 = 1e-9;
 
-/// What is wrong, and with which of the roads (an index into the list given).
+/// Which item of the street network is at fault.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Culprit {
+    /// A road, an index into the roads given.
+    Road(usize),
+    /// A round place, an index into the places given.
+    Place(usize),
+    /// A junction's name, an index into the site's junction names.
+    Name(usize),
+}
+
+/// What is wrong, and with which item.
 #[derive(Debug, PartialEq)]
 pub struct StreetError {
-    /// The road at fault, an index into the list given.
-    pub road: usize,
+    /// The item at fault.
+    pub at: Culprit,
     /// What is wrong, in words.
     pub message: String,
 }
@@ -150,9 +164,12 @@ pub fn corner(
 /// Moves a road end that stops on another road (within that road's reach, pavements
 /// included, of its centreline, or short of it by as much) along its own line onto the
 /// other's centreline, so that the two meet in a junction.
-fn snap_ends(roads: &mut [RoadLine]) {
+fn snap_ends(roads: &mut [RoadLine], arms: &[PlaceArm]) {
     for r in 0..roads.len() {
         for first in [true, false] {
+            if arms.iter().any(|a| a.road == r && a.first == first) {
+                continue;
+            }
             let n = roads[r].points.len();
             let (end, inner) = if first { (0, 1) } else { (n - 1, n - 2) };
             let (e, before) = (roads[r].points[end], roads[r].points[inner]);
@@ -297,11 +314,16 @@ struct Arm {
     outward: Vector2<f64>,
 }
 
-/// Joins the roads where they meet and draws them all into the site. Returns the
-/// junctions found.
-pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>, StreetError> {
+/// Joins the roads where they meet and ends the arms of the round places in them, and
+/// draws them all into the site. Returns the junctions found.
+pub fn draw_streets(
+    site: &mut Site,
+    roads: &[RoadLine],
+    places: &[PlaceLine],
+) -> Result<Vec<Junction>, StreetError> {
     let mut roads = roads.to_vec();
-    snap_ends(&mut roads);
+    let arms = attach_arms(&mut roads, places, &site.items)?;
+    snap_ends(&mut roads, &arms);
     let (junctions, stations) = find_junctions(&roads);
     // Cut each road into pieces at its junctions.
     let mut pieces: Vec<(usize, Piece, [Option<usize>; 2])> = Vec::new();
@@ -374,7 +396,7 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
             let (la, lb) = (&roads[road_a], &roads[road_b]);
             if angle_between(a.outward, b.outward) < 1e-6 {
                 return Err(StreetError {
-                    road: road_a.max(road_b),
+                    at: Culprit::Road(road_a.max(road_b)),
                     message: format!(
                         "two roads leave the junction at ({}, {}) in the same direction, one \
                          on top of the other",
@@ -442,10 +464,25 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
             };
         }
     }
+    // The arms' ends in the round places: the first piece of the road, or its last.
+    let place_ends = draw_places(site, places, &roads, &arms)?;
+    for (arm, end) in arms.iter().zip(place_ends) {
+        let mut of_road = pieces.iter_mut().filter(|p| p.0 == arm.road);
+        let piece = if arm.first {
+            of_road.next()
+        } else {
+            of_road.last()
+        };
+        if let Some(piece) = piece {
+            piece.1.ends[if arm.first { 0 } else { 1 }] = end;
+        }
+    }
     for (r, piece, _) in &pieces {
         let mut b = ItemBuilder::new(site, roads[*r].item, Placement::in_unit(1.0));
-        draw_piece(&mut b, &roads[*r], piece)
-            .map_err(|message| StreetError { road: *r, message })?;
+        draw_piece(&mut b, &roads[*r], piece).map_err(|message| StreetError {
+            at: Culprit::Road(*r),
+            message,
+        })?;
     }
     for (r, height, arc, is_back) in corners_drawn.into_iter().chain(steps) {
         let road = &roads[r];
@@ -460,6 +497,47 @@ pub fn draw_streets(site: &mut Site, roads: &[RoadLine]) -> Result<Vec<Junction>
         .into_iter()
         .filter(|j| j.roads.len() > 1)
         .collect())
+}
+
+/// Gives each junction name (`Site::junction_names`) its junction: the one whose centre
+/// is nearest the name's point, within the reach (pavements included) of the widest road
+/// there. The name is drawn as its item's label, at a mark at the junction's centre.
+pub fn name_junctions(
+    site: &mut Site,
+    junctions: &[Junction],
+    roads: &[RoadLine],
+) -> Result<(), StreetError> {
+    let names = std::mem::take(&mut site.junction_names);
+    for (k, (item, at)) in names.into_iter().enumerate() {
+        let found = junctions
+            .iter()
+            .map(|j| {
+                let reach = j
+                    .roads
+                    .iter()
+                    .map(|&r| roads[r].reach())
+                    .fold(0.0, f64::max);
+                (j, (j.at - at).norm(), reach)
+            })
+            .filter(|(_, gap, reach)| gap <= reach)
+            .min_by(|x, y| x.1.total_cmp(&y.1));
+        let Some((junction, _, _)) = found else {
+            return Err(StreetError {
+                at: Culprit::Name(k),
+                message: format!(
+                    "there is no junction at ({}, {}): no two roads meet within their width \
+                     of it",
+                    short(at.x),
+                    short(at.y)
+                ),
+            });
+        };
+        site.markers.push(Marker {
+            at: nalgebra::Point3::new(junction.at.x, junction.at.y, junction.height),
+            item,
+        });
+    }
+    Ok(())
 }
 
 /// A length for a message: to a thousandth, without trailing zeros.
@@ -491,7 +569,7 @@ mod tests {
             let b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
             lines.push(road_line(&b, &spec)?);
         }
-        let junctions = draw_streets(&mut site, &lines).map_err(|e| e.message)?;
+        let junctions = draw_streets(&mut site, &lines, &[]).map_err(|e| e.message)?;
         Ok((site, junctions))
     }
 

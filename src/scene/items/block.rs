@@ -214,6 +214,37 @@ fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: 
     }
 }
 
+/// The line where the walls of a plan (corners in the builder's frame) meet the scene's
+/// ground: round the plan, a point at each corner and wherever a wall crosses an edge of
+/// the ground's triangles, each at the ground's height there. A vertical wall meets each
+/// flat triangle in a straight line (two planes meet in a line), so between those points
+/// the line is straight and lies on the ground. In the builder's frame.
+fn wall_foot(b: &ItemBuilder, plan: &[Vector2<f64>]) -> Vec<Point3<f64>> {
+    let place = b.placement();
+    let Some(ground) = b.ground() else {
+        return Vec::new();
+    };
+    let site = |p: Vector2<f64>| {
+        let q = place.point(&Point3::new(p.x, p.y, 0.0));
+        Vector2::new(q.x, q.y)
+    };
+    // Back from the site's heights to the frame's (the frame keeps the vertical).
+    let lift = |p: Vector2<f64>, q: Vector2<f64>| {
+        let z = ground.height_at(q.x, q.y).unwrap_or(place.shift.z);
+        Point3::new(p.x, p.y, (z - place.shift.z) / place.scale)
+    };
+    let mut foot = Vec::new();
+    for (k, &p) in plan.iter().enumerate() {
+        let q = plan[(k + 1) % plan.len()];
+        foot.push(lift(p, site(p)));
+        for t in ground.bends(site(p), site(q)) {
+            let r = p + (q - p) * t;
+            foot.push(lift(r, site(r)));
+        }
+    }
+    foot
+}
+
 pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
@@ -242,6 +273,10 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
         base += (lowest - frame.shift.z) / frame.scale;
     }
     b.move_by(Vector3::new(corner.x, corner.y, base), turn);
+    if block.on_ground {
+        let foot = wall_foot(b, &rectangle_plan(width, depth));
+        b.path(&foot, true);
+    }
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");
         let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)

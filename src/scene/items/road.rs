@@ -799,7 +799,8 @@ mod tests {
         let id = site.add_item("road", None);
         let b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
         let line = road_line(&b, &spec)?;
-        super::super::super::streets::draw_streets(&mut site, &[line]).map_err(|e| e.message)?;
+        super::super::super::streets::draw_streets(&mut site, &[line], &[])
+            .map_err(|e| e.message)?;
         Ok(site)
     }
 

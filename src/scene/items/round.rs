@@ -4,6 +4,7 @@
 use super::super::build::{ellipse_points, facet_count, ItemBuilder};
 use super::super::numbers::{plan, zero, Finite, Plan, Positive};
 use super::super::outline::RoundOutline;
+use super::tower_openings::{build_pierced_side, tower_slots, Slot, TowerOpeningsSpec};
 use nalgebra::{Point3, Vector3};
 use serde::Deserialize;
 use std::f64::consts::{PI, TAU};
@@ -59,6 +60,9 @@ pub struct TowerSpec {
     /// Heights of storey lines above the base.
     #[serde(default)]
     pub storeys: Vec<Positive>,
+    /// Square-headed openings spaced round the wall.
+    #[serde(default)]
+    pub openings: Vec<TowerOpeningsSpec>,
 }
 
 /// A hemisphere on a round drum.
@@ -87,13 +91,11 @@ fn drum(
     radius: f64,
     height: f64,
     rings: &[f64],
+    openings: &[Slot],
 ) -> Vec<Point3<f64>> {
     let top = foot + Vector3::z() * height;
     b.circle(foot, radius);
     b.circle(top, radius);
-    for &ring in rings {
-        b.circle(foot + Vector3::z() * ring, radius);
-    }
     b.round_outline(RoundOutline::Cylinder {
         base: foot,
         radius,
@@ -101,11 +103,26 @@ fn drum(
     });
     let count = facet_count(TAU);
     let (u, v) = (Vector3::x() * radius, Vector3::y() * radius);
-    let bottom = ellipse_points(foot, u, v, 0.0, TAU, count);
+    let bottom = if openings.is_empty() {
+        for &ring in rings {
+            b.circle(foot + Vector3::z() * ring, radius);
+        }
+        ellipse_points(foot, u, v, 0.0, TAU, count)
+    } else {
+        // The floor and whatever closes the top share the side's facet corners, the
+        // openings' jambs among them.
+        let cuts = build_pierced_side(b, foot, radius, height, rings, openings);
+        cuts.iter()
+            .chain(cuts.first())
+            .map(|t| foot + u * t.cos() + v * t.sin())
+            .collect()
+    };
     // The top is the bottom lifted: no second round of sines and cosines.
     let upper: Vec<Point3<f64>> = bottom.iter().map(|p| p + (top - foot)).collect();
-    b.strip(&bottom, &upper);
-    b.convex_face(&bottom[..count]);
+    if openings.is_empty() {
+        b.strip(&bottom, &upper);
+    }
+    b.convex_face(&bottom[..bottom.len() - 1]);
     upper
 }
 
@@ -171,7 +188,7 @@ pub fn build_column(b: &mut ItemBuilder, spec: &ColumnSpec) -> Result<(), String
     let centre = plan(&spec.at);
     let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
-    let rim = drum(b, foot, radius, height, &rings);
+    let rim = drum(b, foot, radius, height, &rings, &[]);
     b.convex_face(&rim[..rim.len() - 1]);
     Ok(())
 }
@@ -184,7 +201,8 @@ pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> 
     let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
     let top = foot + Vector3::z() * height;
-    let rim = drum(b, foot, radius, height, &rings);
+    let slots = tower_slots(&spec.openings, radius, height)?;
+    let rim = drum(b, foot, radius, height, &rings, &slots);
     match spec.roof {
         TowerRoof::Flat => b.convex_face(&rim[..rim.len() - 1]),
         TowerRoof::Cone { height: rise } => {
@@ -208,7 +226,7 @@ pub fn build_dome(b: &mut ItemBuilder, spec: &DomeSpec) -> Result<(), String> {
     let springing = match spec.drum {
         Some(drum_height) => {
             // The dome closes the drum's top.
-            drum(b, foot, radius, drum_height.0, &[]);
+            drum(b, foot, radius, drum_height.0, &[], &[]);
             foot + Vector3::z() * drum_height.0
         }
         None => {
