@@ -827,3 +827,31 @@ fn check_reports_the_ground_and_what_lies_off_it() {
     let all = format!("{report}{}", stderr(&out));
     assert!(all.contains("does not reach standpoint \"off\""), "{all}");
 }
+
+#[test]
+fn dividing_the_edges_of_no_item_is_refused() {
+    // As `angles --item` refuses a label that names nothing: a division that would draw
+    // nothing is a mistake to report, not a silent empty aid.
+    let dir = Scratch::new("divide-nothing");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    assert_refused(
+        &dir,
+        &["render", demo, "--divide-edges", "nowhere:3"],
+        &["--divide-edges", "\"nowhere\"", "\"hall platform\""],
+    );
+    // A label the demo has is drawn.
+    succeeds(
+        &dir,
+        &[
+            "render",
+            demo,
+            "--divide-edges",
+            "house 1:3",
+            "-o",
+            "ok.png",
+            "--size",
+            "512x256",
+        ],
+    );
+}

@@ -22,6 +22,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
     let (site, load) = read_site(&args.scene, &args.model, args.view.at_latlon, args.quiet)?;
     let standpoint = choose_view(&site, &args.view)?;
     let settings = render_settings(args)?;
+    pansite::aids::check_divisions(&site, &settings.aids.guides.divisions)?;
     let output = match &args.output {
         Some(path) => path.clone(),
         None => default_output(&args.scene, &standpoint.name, args.format),
