@@ -23,7 +23,7 @@
 //! the letters.
 
 use super::lettering::{letter, stroke_width, text_extent, text_width, Align};
-use super::{Layer, Stroke};
+use super::{Layer, LayerText, Stroke};
 use crate::plane::{ImagePoint, PolylineSet, Rect};
 
 /// What a label names; the order is the order of placing (earlier kinds win a place).
@@ -361,7 +361,12 @@ pub fn label_layers(labels: &[PlacedLabel], ink: LabelInk) -> Vec<Layer> {
         let mut lines = PolylineSet::new();
         letter(&l.text, l.at, l.height, l.align, &mut lines);
         layers.push(Layer {
-            text: Some(l.text.clone()),
+            text: Some(LayerText {
+                words: l.text.clone(),
+                at: l.at,
+                height: l.height,
+                align: l.align,
+            }),
             name: l.kind.layer_name().to_owned(),
             stroke: Stroke {
                 width_px: stroke_width(l.height).max(ink.stroke.width_px.min(1.0)),
@@ -549,7 +554,7 @@ mod tests {
         assert_eq!(layers.len(), 2);
         assert_eq!(layers[0].name, HALO);
         assert_eq!(layers[0].stroke.width_px, 5.0);
-        assert_eq!(layers[1].text.as_deref(), Some("N"));
+        assert_eq!(layers[1].text.as_ref().map(|t| t.words.as_str()), Some("N"));
         assert_eq!(layers[1].stroke.width_px, 1.0);
     }
 }

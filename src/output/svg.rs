@@ -44,7 +44,7 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
         write_escaped(&mut out, &layer.name)?;
         if let Some(text) = &layer.text {
             out.write_all(br#"" data-text=""#)?;
-            write_escaped(&mut out, text)?;
+            write_escaped(&mut out, &text.words)?;
         }
         writeln!(
             out,
@@ -52,7 +52,7 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
         )?;
         if let Some(text) = &layer.text {
             out.write_all(b"<title>")?;
-            write_escaped(&mut out, text)?;
+            write_escaped(&mut out, &text.words)?;
             out.write_all(b"</title>\n")?;
         }
         for line in layer.lines.iter() {
