@@ -43,6 +43,8 @@ pub enum LabelKind {
     Pole,
     /// Multiples of a divided segment.
     Division,
+    /// Standpoints on a plan.
+    Standpoint,
     /// Items of the site.
     Item,
     /// Captions of thumbnails and of plans.
@@ -58,6 +60,7 @@ impl LabelKind {
             LabelKind::VanishingPoint => "vanishing point labels",
             LabelKind::Pole => "pole labels",
             LabelKind::Division => "division labels",
+            LabelKind::Standpoint => "standpoint labels",
             LabelKind::Item => "item labels",
             LabelKind::Caption => "captions",
         }
@@ -66,7 +69,10 @@ impl LabelKind {
     /// Whether the placer looks for the spot crossing the fewest lines, rather than the
     /// first free spot (values belong on their line; names may move to clear space).
     fn avoids_lines(self) -> bool {
-        matches!(self, LabelKind::Item | LabelKind::Caption | LabelKind::Pole)
+        matches!(
+            self,
+            LabelKind::Item | LabelKind::Caption | LabelKind::Pole | LabelKind::Standpoint
+        )
     }
 }
 
@@ -212,6 +218,8 @@ pub struct LabelPlacer {
     cuts_y: Vec<f64>,
     blocked: Vec<Rect>,
     lines: LineCells,
+    off_lines: Vec<LabelKind>,
+    forbidden: LineCells,
     placed: Placed,
 }
 
@@ -226,6 +234,8 @@ impl LabelPlacer {
             cuts_y: Vec::new(),
             blocked: Vec::new(),
             lines: LineCells::new(area, 4.0),
+            off_lines: Vec::new(),
+            forbidden: LineCells::new(area, 4.0),
             placed: Placed::default(),
         }
     }
@@ -250,6 +260,20 @@ impl LabelPlacer {
         self.lines.mark(lines);
     }
 
+    /// Labels of `kind` take only spots that cross none of `lines` (checked on cells of
+    /// `cell` pixels over a box a cell wider all round than the label, so a line grazing a
+    /// cell is not missed); with none such they are left out and counted. The lines are
+    /// kept off by every kind so asked.
+    pub fn keep_off(&mut self, kind: LabelKind, lines: &PolylineSet, cell: f64) {
+        if !self.off_lines.contains(&kind) {
+            self.off_lines.push(kind);
+        }
+        if self.forbidden.cell != cell.max(1.0) && self.forbidden.is_empty() {
+            self.forbidden = LineCells::new(self.area, cell);
+        }
+        self.forbidden.mark(lines);
+    }
+
     /// The labels placed so far.
     pub fn placed(&self) -> &[PlacedLabel] {
         &self.placed.labels
@@ -267,6 +291,11 @@ impl LabelPlacer {
             for spot in &label.spots {
                 let bounds = label.bounds_at(spot);
                 if !self.fits(&bounds) {
+                    continue;
+                }
+                if self.off_lines.contains(&label.kind)
+                    && self.forbidden.count(&bounds.grown(self.forbidden.cell)) > 0
+                {
                     continue;
                 }
                 let crossed = if label.kind.avoids_lines() {
@@ -534,6 +563,40 @@ mod tests {
         let placed = placer.finish();
         let b = placed.labels[0].bounds;
         assert!(b.right <= 200.0 && b.bottom <= 100.0, "above left: {b:?}");
+    }
+
+    #[test]
+    fn labels_kept_off_lines_never_cross_one() {
+        // A grid of lines 60 px apart leaves 60 px squares: a 6 px label fits in one, a
+        // 40 px high one (about 140 px wide) fits nowhere and is left out.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let mut lines = PolylineSet::new();
+        for k in 0..=6 {
+            let x = 60.0 * k as f64;
+            lines.push(&[ImagePoint::new(x, 0.0), ImagePoint::new(x, 200.0)]);
+        }
+        for k in 0..=3 {
+            let y = 60.0 * k as f64;
+            lines.push(&[ImagePoint::new(0.0, y), ImagePoint::new(400.0, y)]);
+        }
+        placer.keep_off(LabelKind::Standpoint, &lines, 3.0);
+        let at = ImagePoint::new(90.0, 90.0);
+        placer.place(vec![
+            Label::around("AB", at, LabelKind::Standpoint, 6.0),
+            Label::around(
+                "TALL",
+                ImagePoint::new(200.0, 100.0),
+                LabelKind::Standpoint,
+                40.0,
+            ),
+        ]);
+        let placed = placer.finish();
+        assert_eq!(placed.left_out, 1);
+        let b = placed.labels[0].bounds;
+        assert!(
+            b.left > 60.0 && b.right < 120.0 && b.top > 60.0 && b.bottom < 120.0,
+            "{b:?}"
+        );
     }
 
     #[test]
