@@ -855,3 +855,53 @@ fn dividing_the_edges_of_no_item_is_refused() {
         ],
     );
 }
+
+#[test]
+fn plans_and_sheets_on_paper_and_a_scale_that_does_not_fit() {
+    let dir = Scratch::new("plan-paper");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    // The demo with its margins is about 85 x 72 m: at 1:100 that is 850 mm across, more
+    // than A4 holds; the message says what it needs and which standard scale fits.
+    assert_refused(
+        &dir,
+        &["plan", demo, "--page", "a4", "--scale", "1:100"],
+        &["1:100", "mm", "largest standard scale that fits"],
+    );
+    assert_refused(&dir, &["plan", demo, "--scale", "1:0"], &["1:N"]);
+    let out = succeeds(
+        &dir,
+        &[
+            "plan", demo, "--page", "a4", "--scale", "1:1000", "-o", "p.svg",
+        ],
+    );
+    assert!(stderr(&out).contains("297 x 210 mm"), "{}", stderr(&out));
+    let svg = std::fs::read_to_string(dir.path("p.svg")).unwrap();
+    assert!(
+        svg.contains("SCALE 1:1000 PRINTED"),
+        "the scale asked for is the scale written"
+    );
+    // ISO 216: A3 is 420 x 297 mm; the panorama and its plan side by side on it.
+    succeeds(
+        &dir,
+        &["plan", demo, "--beside", "--page", "a3", "-o", "b.svg"],
+    );
+    let svg = std::fs::read_to_string(dir.path("b.svg")).unwrap();
+    assert!(svg.contains(r#"width="420mm" height="297mm""#));
+    succeeds(
+        &dir,
+        &[
+            "sheet",
+            demo,
+            "--page",
+            "a4",
+            "--portrait",
+            "--hidden",
+            "solid",
+            "-o",
+            "s.svg",
+        ],
+    );
+    let svg = std::fs::read_to_string(dir.path("s.svg")).unwrap();
+    assert!(svg.contains(r#"width="210mm" height="297mm""#));
+}

@@ -206,3 +206,196 @@ fn azimuth_labels_name_the_meridian_beside_them() {
         assert!(checked >= 8, "{checked} azimuth labels");
     }
 }
+
+/// Whether the segment `a`-`b` meets the box `r` (left, top, right, bottom): Liang-Barsky
+/// clipping (Liang and Barsky 1984), written here so nothing of ours decides it.
+fn segment_meets_box(a: (f64, f64), b: (f64, f64), r: &MmBox) -> bool {
+    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for (p, q) in [
+        (-dx, a.0 - r[0]),
+        (dx, r[2] - a.0),
+        (-dy, a.1 - r[1]),
+        (dy, r[3] - a.1),
+    ] {
+        if p == 0.0 {
+            if q < 0.0 {
+                return false;
+            }
+        } else {
+            let t = q / p;
+            if p < 0.0 {
+                t0 = t0.max(t);
+            } else {
+                t1 = t1.min(t);
+            }
+        }
+    }
+    t0 <= t1
+}
+
+/// The plan of the demo on A3, read back from its SVG: the standpoints' names are all
+/// there, apart from every other label and crossed by no building's outline (the outlines
+/// worked out here from the scene's edges and the plan's own origin and scale); the scale
+/// is one of the standard series and the printed bar measures true at it.
+#[test]
+fn plan_names_keep_off_each_other_and_the_buildings_and_its_bar_reads_true() {
+    use pansite::compose::{plan_map, PlanSettings, STANDARD_SCALES};
+    use pansite::scene::SiteCurve;
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let paper = Paper::named("A3").unwrap().landscape();
+    let settings = PlanSettings::for_paper(&paper, 10.0, 150.0);
+    let plan = plan_map(&site, &site.standpoints, &settings).unwrap();
+    let sheet = plan.on_paper(&paper, 10.0);
+    let mut svg = Vec::new();
+    pansite::output::write_svg(&sheet, &mut svg).unwrap();
+    let svg = String::from_utf8(svg).unwrap();
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let mut labels: Vec<(String, String, MmBox)> = Vec::new();
+    let mut bar = None;
+    for g in doc.descendants().filter(|n| n.has_tag_name("g")) {
+        let layer = g.attribute("data-layer").unwrap_or("").to_owned();
+        match (g.attribute("data-text"), group_box(g)) {
+            (Some(text), Some(b)) => labels.push((layer, text.to_owned(), b)),
+            (None, Some(b)) if layer == "scale bar" => bar = Some(b),
+            _ => {}
+        }
+    }
+    for s in &site.standpoints {
+        assert!(
+            labels
+                .iter()
+                .any(|(l, t, _)| l == "standpoint labels" && *t == s.name.to_uppercase()),
+            "{} has no name on the plan",
+            s.name
+        );
+    }
+    for (i, (_, ta, a)) in labels.iter().enumerate() {
+        for (_, tb, b) in &labels[i + 1..] {
+            assert!(
+                !overlap(&[a[0] + 0.01, a[1] + 0.01, a[2] - 0.01, a[3] - 0.01], b),
+                "{ta:?} {a:?} overlaps {tb:?} {b:?}"
+            );
+        }
+    }
+    // Buildings' outlines in millimetres on the sheet: the plan's pixels plus the margin.
+    let mm = 25.4 / 150.0;
+    let on_sheet = |x: f64, y: f64| {
+        let p = plan.to_px(x, y);
+        (10.0 + p.x * mm, 10.0 + p.y * mm)
+    };
+    let buildings = ["block", "footprint", "tower", "arcade", "room", "dome"];
+    let mut outlines = 0;
+    for edge in &site.edges {
+        let kind = site.items[edge.item.0 as usize].kind;
+        let SiteCurve::Segment { start, end } = edge.curve else {
+            continue;
+        };
+        if !buildings.contains(&kind) {
+            continue;
+        }
+        outlines += 1;
+        let (a, b) = (on_sheet(start.x, start.y), on_sheet(end.x, end.y));
+        for (layer, text, r) in &labels {
+            if layer == "standpoint labels" {
+                assert!(
+                    !segment_meets_box(a, b, r),
+                    "{text:?} at {r:?} crosses an outline of a {kind} from {a:?} to {b:?}"
+                );
+            }
+        }
+    }
+    assert!(outlines > 50, "{outlines} outline segments");
+    // The scale: "SCALE 1:N ..." with N of the standard series, and the bar's "L M".
+    let scale_text = labels
+        .iter()
+        .find_map(|(_, t, _)| t.strip_prefix("SCALE 1:"))
+        .expect("a scale is written");
+    let n: f64 = scale_text
+        .split_whitespace()
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!(STANDARD_SCALES.contains(&n), "1:{n}");
+    let metres: f64 = labels
+        .iter()
+        .find_map(|(_, t, _)| t.strip_suffix(" M").and_then(|v| v.parse().ok()))
+        .expect("the bar's length is written");
+    // At 1:N a length of L metres is L * 1000 / N millimetres on paper (the definition of
+    // a scale); the bar's box is its length plus nothing across (its ticks are upright).
+    let bar = bar.expect("a scale bar");
+    let printed = bar[2] - bar[0];
+    assert!(
+        (printed - metres * 1000.0 / n).abs() < 0.05,
+        "{metres} m at 1:{n} printed {printed} mm"
+    );
+}
+
+/// A contact sheet fitted to A4: each row of each caption is a group of its own (a name and
+/// its numbers never read as one line), the groups apart and inside the printable area;
+/// path thumbnails are named after the path.
+#[test]
+fn contact_sheet_on_paper_keeps_its_captions_apart_and_named_after_the_sweep() {
+    use pansite::compose::{contact_sheet, sweep_path, ContactSettings, SheetGrid};
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let paper = Paper::named("A4").unwrap().landscape();
+    let standpoints = sweep_path(
+        &site.standpoints[0],
+        &[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0)],
+        5,
+    )
+    .unwrap();
+    let px_per_mm = 100.0 / 25.4;
+    let (grid, (tw, th)) = SheetGrid::fit(
+        standpoints.len(),
+        None,
+        277.0 * px_per_mm,
+        190.0 * px_per_mm,
+    )
+    .unwrap();
+    let mut settings = ContactSettings {
+        dpi: 100.0,
+        columns: Some(grid.columns as u32),
+        ..ContactSettings::default()
+    };
+    (settings.thumbnail.width, settings.thumbnail.height) = (tw, th);
+    settings.thumbnail.hidden = Some(pansite::scene::HiddenEdges::Solid);
+    settings.thumbnail.dpi = 100.0;
+    let sheet = contact_sheet(&site, &standpoints, &settings, &|_, _| {})
+        .unwrap()
+        .on_paper(&paper, 10.0)
+        .expect("fitted to the paper");
+    // ISO 216: A4 is 297 x 210 mm.
+    assert_eq!((sheet.width_mm, sheet.height_mm), (297.0, 210.0));
+    let mut svg = Vec::new();
+    pansite::output::write_svg(&sheet, &mut svg).unwrap();
+    let back = read_back_labels(&String::from_utf8(svg).unwrap());
+    assert_eq!(back.len(), 2 * standpoints.len());
+    for (k, (text, b)) in back.iter().enumerate() {
+        if k % 2 == 0 {
+            assert_eq!(*text, format!("{}. PATH {} OF 5", k / 2 + 1, k / 2 + 1));
+        } else {
+            assert!(text.starts_with("HEADING "), "{text}");
+        }
+        assert!(
+            b[0] >= 9.9 && b[1] >= 9.9 && b[2] <= 287.1 && b[3] <= 200.1,
+            "{text}"
+        );
+        for (tb, c) in &back[k + 1..] {
+            assert!(!overlap(b, c), "{text:?} {b:?} overlaps {tb:?} {c:?}");
+        }
+    }
+}
+
+fn read_back_labels(svg: &str) -> Vec<(String, MmBox)> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    doc.descendants()
+        .filter(|n| n.has_tag_name("g"))
+        .filter_map(|g| Some((g.attribute("data-text")?.to_owned(), group_box(g)?)))
+        .collect()
+}

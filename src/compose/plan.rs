@@ -221,7 +221,9 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
         labels_left_out: 0,
     };
     let weight = settings.line_weight_px;
-    let letter_px = (0.018 * h).clamp(7.0, 40.0);
+    // Lettering a fiftieth of the height, at most 3.5 mm on paper (a preferred height of
+    // ISO 3098, from memory): a large sheet gets more room, not larger words.
+    let letter_px = (0.018 * h).min(3.5 / mm_per_px).clamp(7.0, 40.0);
     let mut labels: Vec<Label> = Vec::new();
 
     let (mut edges, mut outlines) = (PolylineSet::new(), PolylineSet::new());
@@ -511,7 +513,7 @@ fn building_labels(site: &Site, plan: &Plan, letter_px: f64) -> Vec<Label> {
 /// A standpoint's name round its marker (of `radius` pixels), nearest first.
 fn standpoint_label(name: &str, at: ImagePoint, radius: f64, h: f64) -> Label {
     let mut spots = Vec::new();
-    for reach in [1.4, 2.6, 4.0, 6.0] {
+    for reach in [1.4, 2.6, 4.0, 6.0, 9.0, 13.0] {
         let d = radius * reach;
         spots.extend([
             Spot::new(d, -d, Align::Start),
