@@ -905,3 +905,59 @@ fn plans_and_sheets_on_paper_and_a_scale_that_does_not_fit() {
     let svg = std::fs::read_to_string(dir.path("s.svg")).unwrap();
     assert!(svg.contains(r#"width="210mm" height="297mm""#));
 }
+
+#[test]
+fn render_says_what_the_lettering_and_the_placer_could_not_do() {
+    let dir = Scratch::new("labels-summary");
+    // U+03A9 (Greek capital omega) is outside Latin-1 Supplement and Latin Extended-A, the
+    // ranges the lettering covers (Unicode 15 code charts); it is drawn as a placeholder
+    // and named.
+    let scene = dir.write(
+        "omega.ron",
+        "Scene(standpoints: [(name: \"s\", x: 0, y: -10)], items: [\n  Block(label: \"Stoa \u{3a9}\", at: Centre(0, 0), width: 4, depth: 3, height: 3),\n])",
+    );
+    let out = succeeds(
+        &dir,
+        &[
+            "render",
+            scene.to_str().unwrap(),
+            "--item-labels",
+            "--size",
+            "1024x512",
+            "-o",
+            "o.png",
+        ],
+    );
+    let text = stderr(&out);
+    assert!(
+        text.contains("no letterform for \"\u{3a9}\" (U+03A9)"),
+        "{text}"
+    );
+    assert!(!text.contains("left out"), "{text}");
+    // Every aid on a small panorama in large letters: not every label finds room, and the
+    // run says how many were left out.
+    let demo = demo();
+    let out = succeeds(
+        &dir,
+        &[
+            "render",
+            demo.to_str().unwrap(),
+            "--aids",
+            "--size",
+            "512x256",
+            "--text-height",
+            "14",
+            "-o",
+            "d.png",
+        ],
+    );
+    let text = stderr(&out);
+    assert!(
+        text.lines().any(|l| l.contains("left out for want of room")
+            && l.split_whitespace()
+                .nth(1)
+                .and_then(|n| n.parse::<u32>().ok())
+                .is_some_and(|n| n > 0)),
+        "{text}"
+    );
+}

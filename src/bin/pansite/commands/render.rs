@@ -97,6 +97,24 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
                 render.skipped.len() - MAX_NAMED_SKIPS
             );
         }
+        if !render.unlettered.is_empty() {
+            let chars: Vec<String> = render
+                .unlettered
+                .iter()
+                .map(|c| format!("\"{c}\" (U+{:04X})", *c as u32))
+                .collect();
+            eprintln!(
+                "pansite: warning: no letterform for {}: drawn as a crossed box",
+                chars.join(", ")
+            );
+        }
+        if render.labels_left_out > 0 {
+            eprintln!(
+                "pansite: {} label{} left out for want of room (a larger size or page, or a smaller --text-height, makes room)",
+                render.labels_left_out,
+                if render.labels_left_out == 1 { "" } else { "s" }
+            );
+        }
         let names: Vec<String> = if written.is_empty() {
             vec!["standard output".to_owned()]
         } else {
