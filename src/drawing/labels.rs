@@ -39,6 +39,8 @@ pub enum LabelKind {
     GridValue,
     /// Bearings (and climbs) of vanishing points.
     VanishingPoint,
+    /// The sun's hours along its path.
+    SunHour,
     /// Heights on a measuring pole, its name, the eye height.
     Pole,
     /// Multiples of a divided segment.
@@ -58,6 +60,7 @@ impl LabelKind {
             LabelKind::Title => "title",
             LabelKind::Heading | LabelKind::Compass | LabelKind::GridValue => "grid labels",
             LabelKind::VanishingPoint => "vanishing point labels",
+            LabelKind::SunHour => "sun hour labels",
             LabelKind::Pole => "pole labels",
             LabelKind::Division => "division labels",
             LabelKind::Standpoint => "standpoint labels",
