@@ -961,3 +961,31 @@ fn render_says_what_the_lettering_and_the_placer_could_not_do() {
         "{text}"
     );
 }
+
+#[test]
+fn text_lettering_is_for_svg() {
+    let dir = Scratch::new("lettering");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    assert_refused(
+        &dir,
+        &["render", demo, "--lettering", "text", "--aids"],
+        &["--lettering text", "SVG"],
+    );
+    succeeds(
+        &dir,
+        &[
+            "render",
+            demo,
+            "--aids",
+            "--size",
+            "1024x512",
+            "--lettering",
+            "text",
+            "-o",
+            "t.svg",
+        ],
+    );
+    let svg = std::fs::read_to_string(dir.path("t.svg")).unwrap();
+    assert!(svg.contains("<text "), "text elements written");
+}

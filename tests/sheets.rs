@@ -399,3 +399,81 @@ fn read_back_labels(svg: &str) -> Vec<(String, MmBox)> {
         .filter_map(|g| Some((g.attribute("data-text")?.to_owned(), group_box(g)?)))
         .collect()
 }
+
+/// `--lettering text`: the same sheet with each label's strokes replaced by one SVG text
+/// element holding its words, where the strokes stood. usvg (a general SVG reader) accepts
+/// the document; roxmltree reads the elements. The text's anchor point is compared with the
+/// stroked label's box: its x at the box's start, middle or end as `text-anchor` says, its
+/// baseline between the box's top and a little below its bottom (SVG 1.1, 10.9.1, for
+/// `text-anchor`; the baseline is the `y` of a `<text>`, 10.4).
+#[test]
+fn text_lettering_puts_editable_words_where_the_strokes_were() {
+    use pansite::output::{write_svg_with, Lettering, EM_PER_CAP};
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let page = PageSettings {
+        paper: Paper::named("A3").unwrap().landscape(),
+        margin_mm: 10.0,
+        dpi: 100.0,
+        band_deg: (-90.0, 90.0),
+        title: Some(vec!["WEXCOMBE: FOUNTAIN & STEPS <EAST>".to_owned()]),
+        tiles: None,
+    };
+    let settings = RenderSettings {
+        aids: AidSettings::all(),
+        ..RenderSettings::default()
+    };
+    let (sheets, _) =
+        draw_sheets(&site, &site.standpoints[0], &settings, Some(&page), 100.0).unwrap();
+    let mut strokes = Vec::new();
+    write_svg_with(&sheets[0], Lettering::Strokes, &mut strokes).unwrap();
+    let mut text = Vec::new();
+    write_svg_with(&sheets[0], Lettering::Text, &mut text).unwrap();
+    usvg::Tree::from_data(&text, &usvg::Options::default()).expect("usvg reads it");
+    let stroked = read_back_labels(&String::from_utf8(strokes).unwrap());
+    let text = String::from_utf8(text).unwrap();
+    let doc = roxmltree::Document::parse(&text).unwrap();
+    let groups: Vec<roxmltree::Node> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("g") && n.attribute("data-text").is_some())
+        .collect();
+    assert_eq!(groups.len(), stroked.len());
+    assert!(groups.len() > 20);
+    for (g, (words, b)) in groups.iter().zip(&stroked) {
+        assert_eq!(g.attribute("data-text"), Some(words.as_str()));
+        assert!(
+            !g.children().any(|n| n.has_tag_name("path")),
+            "{words}: strokes left"
+        );
+        let t = g
+            .children()
+            .find(|n| n.has_tag_name("text"))
+            .unwrap_or_else(|| panic!("{words}: no text element"));
+        assert_eq!(t.text(), Some(words.as_str()), "the words, unescaped");
+        let number = |name: &str| t.attribute(name).unwrap().parse::<f64>().unwrap();
+        let (x, y, size) = (number("x"), number("y"), number("font-size"));
+        let cap = size / EM_PER_CAP;
+        let stand = match t.attribute("text-anchor") {
+            Some("start") => b[0],
+            Some("middle") => (b[0] + b[2]) / 2.0,
+            Some("end") => b[2],
+            other => panic!("{words}: text-anchor {other:?}"),
+        };
+        assert!(
+            (x - stand).abs() < 0.3 * cap,
+            "{words}: x {x} against {b:?}"
+        );
+        assert!(
+            y >= b[1] && y <= b[3] + 0.1 * cap,
+            "{words}: y {y} against {b:?}"
+        );
+    }
+    // The halos were for our letters: none is drawn round a font's.
+    for g in doc
+        .descendants()
+        .filter(|n| n.attribute("data-layer") == Some("label halo"))
+    {
+        assert_eq!(g.children().filter(|n| n.is_element()).count(), 0);
+    }
+}

@@ -1,6 +1,6 @@
 //! The options of the composition commands: `sheet`, `plan`, `preview` and `watch`.
 
-use super::render::{FormatArg, HiddenArg, ModelArgs, RenderArgs};
+use super::render::{FormatArg, HiddenArg, LetteringArg, ModelArgs, RenderArgs};
 use super::values::{
     parse_finite, parse_grid, parse_path, parse_scale, parse_size, parse_triple, GridSweep,
     PathSweep,
@@ -24,6 +24,10 @@ pub struct OutArgs {
     /// Print nothing but errors (and no progress bar).
     #[arg(short, long)]
     pub quiet: bool,
+    /// How labels' words are written in SVG: our single-stroke letters, or SVG text
+    /// elements a vector editor can edit (in its sans-serif font).
+    #[arg(long, value_enum, value_name = "HOW", default_value = "strokes")]
+    pub lettering: LetteringArg,
 }
 
 #[derive(Debug, Args)]

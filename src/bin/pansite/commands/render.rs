@@ -1,8 +1,8 @@
 //! `pansite render`: draw a scene from a standpoint, as a panorama or laid out on paper.
 
 use super::common::{
-    choose_view, create_parent, default_output, is_standard_stream, output_format, output_paths,
-    read_site, write_sheets, write_stdout,
+    check_lettering, choose_view, create_parent, default_output, is_standard_stream, output_format,
+    output_paths, read_site, write_sheets, write_stdout,
 };
 use super::settings::{page_settings, render_settings};
 use crate::args::{FormatArg, RenderArgs};
@@ -28,6 +28,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         None => default_output(&args.scene, &standpoint.name, args.format),
     };
     let format = output_format(&output, args.format)?;
+    check_lettering(args.lettering, format)?;
     let page = page_settings(args, &site, &standpoint)?;
     let (sheets, render) = draw_sheets(&site, &standpoint, &settings, page.as_ref(), args.dpi)
         .with_context(|| format!("rendering {}", output.display()))?;
@@ -55,7 +56,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         }
         // Standard output cannot be replaced atomically: encode in memory, then send it.
         let mut bytes = Vec::new();
-        write_sheets(&sheets, format, &png, &mut bytes, 0)?;
+        write_sheets(&sheets, format, &png, args.lettering, &mut bytes, 0)?;
         write_stdout(&bytes)?;
     } else {
         if args.output.is_none() {
@@ -63,7 +64,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         }
         for (path, first) in output_paths(&output, format, sheets.len(), columns) {
             write_atomically(&path, |file| {
-                write_sheets(&sheets, format, &png, file, first)
+                write_sheets(&sheets, format, &png, args.lettering, file, first)
             })
             .with_context(|| format!("rendering {}", path.display()))?;
             written.push(path);
