@@ -77,7 +77,62 @@ fn read_back(svg: &str) -> ReadBack {
     }
 }
 
+/// The names of the layers that hold one label each (the label placer's kinds).
+const LABEL_LAYERS: [&str; 9] = [
+    "title",
+    "grid labels",
+    "vanishing point labels",
+    "sun hour labels",
+    "pole labels",
+    "division labels",
+    "standpoint labels",
+    "item labels",
+    "captions",
+];
+
+/// Every marked section of the first page of a PDF (ISO 32000-1 §14.6: `/OC /tag BDC ...
+/// EMC`, the tag a key of the page's `/Properties`, whose group's `/Name` is the layer's)
+/// with the box of its path points (`m`, `l`) in millimetres from the sheet's top-left
+/// corner (§8.3.2.3: default user space is 1/72 inch a unit, y up), read with lopdf.
+fn pdf_sections(bytes: &[u8], height_mm: f64) -> Vec<(String, Option<MmBox>)> {
+    let doc = lopdf::Document::load_mem(bytes).expect("lopdf parses the PDF");
+    let page = *doc.get_pages().values().next().expect("a page");
+    let dict_of = |o: &lopdf::Object| match o {
+        lopdf::Object::Reference(id) => doc.get_dictionary(*id).unwrap().clone(),
+        other => other.as_dict().unwrap().clone(),
+    };
+    let page_dict = doc.get_dictionary(page).unwrap();
+    let resources = dict_of(page_dict.get(b"Resources").unwrap());
+    let properties = dict_of(resources.get(b"Properties").unwrap());
+    let content = doc.get_and_decode_page_content(page).unwrap();
+    let mut sections: Vec<(String, Option<MmBox>)> = Vec::new();
+    for op in &content.operations {
+        match op.operator.as_str() {
+            "BDC" => {
+                let tag = op.operands[1].as_name().unwrap();
+                let group = dict_of(properties.get(tag).unwrap());
+                let name = group.get(b"Name").and_then(lopdf::Object::as_str).unwrap();
+                sections.push((String::from_utf8(name.to_vec()).unwrap(), None));
+            }
+            "m" | "l" => {
+                let x = op.operands[0].as_float().unwrap() as f64 * 25.4 / 72.0;
+                let y = height_mm - op.operands[1].as_float().unwrap() as f64 * 25.4 / 72.0;
+                let (_, b) = sections.last_mut().expect("paths inside a layer");
+                let b = b.get_or_insert([x, y, x, y]);
+                *b = [b[0].min(x), b[1].min(y), b[2].max(x), b[3].max(y)];
+            }
+            _ => {}
+        }
+    }
+    sections
+}
+
 fn sheet_svg(paper: Paper, band: (f64, f64)) -> (String, PageSettings) {
+    let (svg, _, page) = sheet_svg_and_pdf(paper, band, false);
+    (svg, page)
+}
+
+fn sheet_svg_and_pdf(paper: Paper, band: (f64, f64), pdf: bool) -> (String, Vec<u8>, PageSettings) {
     let site =
         load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
             .unwrap();
@@ -101,7 +156,11 @@ fn sheet_svg(paper: Paper, band: (f64, f64)) -> (String, PageSettings) {
         draw_sheets(&site, &site.standpoints[0], &settings, Some(&page), 100.0).unwrap();
     let mut svg = Vec::new();
     pansite::output::write_svg(&sheets[0], &mut svg).unwrap();
-    (String::from_utf8(svg).unwrap(), page)
+    let mut bytes = Vec::new();
+    if pdf {
+        pansite::output::write_pdf(&sheets[..1], &mut bytes).unwrap();
+    }
+    (String::from_utf8(svg).unwrap(), bytes, page)
 }
 
 #[test]
@@ -109,8 +168,33 @@ fn every_preset_both_ways_keeps_its_labels_whole_apart_and_clear() {
     for name in pansite::page::preset_names().split(", ") {
         let paper = Paper::named(name).unwrap();
         for turned in [paper.portrait(), paper.landscape()] {
-            let (svg, page) = sheet_svg(turned, (-90.0, 90.0));
+            let (svg, pdf, page) = sheet_svg_and_pdf(turned, (-90.0, 90.0), true);
             let back = read_back(&svg);
+            // The PDF holds the same labels, in the same places: each label's marked
+            // section has the box of the SVG's group, so every check below holds for it.
+            let in_pdf: Vec<MmBox> = pdf_sections(&pdf, turned.height_mm)
+                .into_iter()
+                .filter(|(layer, _)| LABEL_LAYERS.contains(&layer.as_str()))
+                .filter_map(|(_, b)| b)
+                .collect();
+            let in_svg: Vec<MmBox> = back
+                .labels
+                .iter()
+                .filter(|(layer, ..)| LABEL_LAYERS.contains(&layer.as_str()))
+                .map(|(.., b)| *b)
+                .collect();
+            assert_eq!(
+                in_pdf.len(),
+                in_svg.len(),
+                "{name} {turned:?}: labels in the PDF"
+            );
+            for (p, v) in in_pdf.iter().zip(&in_svg) {
+                // The PDF rounds to 0.001 pt, the SVG to 0.001 mm.
+                assert!(
+                    p.iter().zip(v).all(|(a, b)| (a - b).abs() < 0.002),
+                    "{name} {turned:?}: PDF {p:?} against SVG {v:?}"
+                );
+            }
             let m = page.margin_mm;
             let printable = [m, m, turned.width_mm - m, turned.height_mm - m];
             // The lettering's strokes are drawn with round caps: allow half a stroke.
