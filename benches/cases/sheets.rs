@@ -54,20 +54,22 @@ pub fn run(floor_time: Duration) {
         },
         ..RenderSettings::default()
     };
-    let mut placed = 0;
-    let mut draw = |settings: &RenderSettings| {
+    let draw = |settings: &RenderSettings| {
         let (sheets, _) = draw_sheets(&site, &standpoint, settings, Some(&page), 150.0).unwrap();
-        placed = sheets[0]
+        sheets[0]
             .drawing
             .layers
             .iter()
             .filter(|l| l.text.is_some())
-            .count();
+            .count()
     };
-    draw(&labelled);
-    let with = best(RUNS, || draw(&labelled));
-    let labels = placed;
-    let without = best(RUNS, || draw(&unlabelled));
+    let labels = draw(&labelled);
+    let with = best(RUNS, || {
+        draw(&labelled);
+    });
+    let without = best(RUNS, || {
+        draw(&unlabelled);
+    });
     let added = with.saturating_sub(without);
     let f = floor_time.as_secs_f64();
     println!();
