@@ -48,6 +48,8 @@ use std::time::{Duration, Instant};
 
 #[path = "cases/bigmodels.rs"]
 mod bigmodels;
+#[path = "cases/sheets.rs"]
+mod sheets;
 #[path = "cases/sun.rs"]
 mod sun;
 
@@ -456,6 +458,11 @@ fn main() {
     if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("streets") {
         floor();
         streets::run(time(floor));
+        return;
+    }
+    if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sheets") {
+        floor();
+        sheets::run(time(floor));
         return;
     }
     if std::env::var("PANSITE_BENCH_ONLY").as_deref() == Ok("sun") {

@@ -256,6 +256,7 @@ pub fn draw_with_hidden_lines(
         layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
     }
     let mut notes = Vec::new();
+    let mut sun_labels = Vec::new();
     let shadowed;
     let site = match settings.sun.resolve(site) {
         None => site,
@@ -263,8 +264,9 @@ pub fn draw_with_hidden_lines(
             let sky = Sky::of_site(site)?;
             if settings.overlays {
                 let text = settings.aids.text_height(&map);
-                let (sun, _labels) = sun_layers(&sky, &view, &mut flattener, &drawing, text)?;
+                let (sun, hours) = sun_layers(&sky, &view, &mut flattener, &drawing, text)?;
                 layers.extend(sun);
+                sun_labels = hours;
             }
             let moment = drawing.moment.expect("resolved with a moment");
             let now = sky.at(&moment)?;
@@ -326,7 +328,14 @@ pub fn draw_with_hidden_lines(
     }
     let (mut labels_left_out, mut unlettered) = (0, Vec::new());
     if settings.overlays {
-        let over = aids::over(site, &view, &mut flattener, &settings.aids, &layers);
+        let over = aids::over(
+            site,
+            &view,
+            &mut flattener,
+            &settings.aids,
+            &layers,
+            sun_labels,
+        );
         labels_left_out = over.labels_left_out;
         unlettered = over.unlettered;
         layers.extend(over.layers);

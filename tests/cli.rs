@@ -827,3 +827,165 @@ fn check_reports_the_ground_and_what_lies_off_it() {
     let all = format!("{report}{}", stderr(&out));
     assert!(all.contains("does not reach standpoint \"off\""), "{all}");
 }
+
+#[test]
+fn dividing_the_edges_of_no_item_is_refused() {
+    // As `angles --item` refuses a label that names nothing: a division that would draw
+    // nothing is a mistake to report, not a silent empty aid.
+    let dir = Scratch::new("divide-nothing");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    assert_refused(
+        &dir,
+        &["render", demo, "--divide-edges", "nowhere:3"],
+        &["--divide-edges", "\"nowhere\"", "\"hall platform\""],
+    );
+    // A label the demo has is drawn.
+    succeeds(
+        &dir,
+        &[
+            "render",
+            demo,
+            "--divide-edges",
+            "house 1:3",
+            "-o",
+            "ok.png",
+            "--size",
+            "512x256",
+        ],
+    );
+}
+
+#[test]
+fn plans_and_sheets_on_paper_and_a_scale_that_does_not_fit() {
+    let dir = Scratch::new("plan-paper");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    // The demo with its margins is about 85 x 72 m: at 1:100 that is 850 mm across, more
+    // than A4 holds; the message says what it needs and which standard scale fits.
+    assert_refused(
+        &dir,
+        &["plan", demo, "--page", "a4", "--scale", "1:100"],
+        &["1:100", "mm", "largest standard scale that fits"],
+    );
+    assert_refused(&dir, &["plan", demo, "--scale", "1:0"], &["1:N"]);
+    let out = succeeds(
+        &dir,
+        &[
+            "plan", demo, "--page", "a4", "--scale", "1:1000", "-o", "p.svg",
+        ],
+    );
+    assert!(stderr(&out).contains("297 x 210 mm"), "{}", stderr(&out));
+    let svg = std::fs::read_to_string(dir.path("p.svg")).unwrap();
+    assert!(
+        svg.contains("SCALE 1:1000 PRINTED"),
+        "the scale asked for is the scale written"
+    );
+    // ISO 216: A3 is 420 x 297 mm; the panorama and its plan side by side on it.
+    succeeds(
+        &dir,
+        &["plan", demo, "--beside", "--page", "a3", "-o", "b.svg"],
+    );
+    let svg = std::fs::read_to_string(dir.path("b.svg")).unwrap();
+    assert!(svg.contains(r#"width="420mm" height="297mm""#));
+    succeeds(
+        &dir,
+        &[
+            "sheet",
+            demo,
+            "--page",
+            "a4",
+            "--portrait",
+            "--hidden",
+            "solid",
+            "-o",
+            "s.svg",
+        ],
+    );
+    let svg = std::fs::read_to_string(dir.path("s.svg")).unwrap();
+    assert!(svg.contains(r#"width="210mm" height="297mm""#));
+}
+
+#[test]
+fn render_says_what_the_lettering_and_the_placer_could_not_do() {
+    let dir = Scratch::new("labels-summary");
+    // U+03A9 (Greek capital omega) is outside Latin-1 Supplement and Latin Extended-A, the
+    // ranges the lettering covers (Unicode 15 code charts); it is drawn as a placeholder
+    // and named.
+    let scene = dir.write(
+        "omega.ron",
+        "Scene(standpoints: [(name: \"s\", x: 0, y: -10)], items: [\n  Block(label: \"Stoa \u{3a9}\", at: Centre(0, 0), width: 4, depth: 3, height: 3),\n])",
+    );
+    let out = succeeds(
+        &dir,
+        &[
+            "render",
+            scene.to_str().unwrap(),
+            "--item-labels",
+            "--size",
+            "1024x512",
+            "-o",
+            "o.png",
+        ],
+    );
+    let text = stderr(&out);
+    assert!(
+        text.contains("no letterform for \"\u{3a9}\" (U+03A9)"),
+        "{text}"
+    );
+    assert!(!text.contains("left out"), "{text}");
+    // Every aid on a small panorama in large letters: not every label finds room, and the
+    // run says how many were left out.
+    let demo = demo();
+    let out = succeeds(
+        &dir,
+        &[
+            "render",
+            demo.to_str().unwrap(),
+            "--aids",
+            "--size",
+            "512x256",
+            "--text-height",
+            "14",
+            "-o",
+            "d.png",
+        ],
+    );
+    let text = stderr(&out);
+    assert!(
+        text.lines().any(|l| l.contains("left out for want of room")
+            && l.split_whitespace()
+                .nth(1)
+                .and_then(|n| n.parse::<u32>().ok())
+                .is_some_and(|n| n > 0)),
+        "{text}"
+    );
+}
+
+#[test]
+fn text_lettering_is_for_svg() {
+    let dir = Scratch::new("lettering");
+    let demo = demo();
+    let demo = demo.to_str().unwrap();
+    assert_refused(
+        &dir,
+        &["render", demo, "--lettering", "text", "--aids"],
+        &["--lettering text", "SVG"],
+    );
+    succeeds(
+        &dir,
+        &[
+            "render",
+            demo,
+            "--aids",
+            "--size",
+            "1024x512",
+            "--lettering",
+            "text",
+            "-o",
+            "t.svg",
+        ],
+    );
+    let svg = std::fs::read_to_string(dir.path("t.svg")).unwrap();
+    assert!(svg.contains("<text "), "text elements written");
+}

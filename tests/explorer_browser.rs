@@ -199,6 +199,7 @@ fn screen_of_site(tab: &Tab, site: &pansite::scene::Site, x: f64, y: f64) -> (f6
         &PlanSettings {
             width: 360,
             height: 360,
+            scale: pansite::compose::PlanScale::Fill,
             ..PlanSettings::default()
         },
     )

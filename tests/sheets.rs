@@ -77,7 +77,62 @@ fn read_back(svg: &str) -> ReadBack {
     }
 }
 
+/// The names of the layers that hold one label each (the label placer's kinds).
+const LABEL_LAYERS: [&str; 9] = [
+    "title",
+    "grid labels",
+    "vanishing point labels",
+    "sun hour labels",
+    "pole labels",
+    "division labels",
+    "standpoint labels",
+    "item labels",
+    "captions",
+];
+
+/// Every marked section of the first page of a PDF (ISO 32000-1 §14.6: `/OC /tag BDC ...
+/// EMC`, the tag a key of the page's `/Properties`, whose group's `/Name` is the layer's)
+/// with the box of its path points (`m`, `l`) in millimetres from the sheet's top-left
+/// corner (§8.3.2.3: default user space is 1/72 inch a unit, y up), read with lopdf.
+fn pdf_sections(bytes: &[u8], height_mm: f64) -> Vec<(String, Option<MmBox>)> {
+    let doc = lopdf::Document::load_mem(bytes).expect("lopdf parses the PDF");
+    let page = *doc.get_pages().values().next().expect("a page");
+    let dict_of = |o: &lopdf::Object| match o {
+        lopdf::Object::Reference(id) => doc.get_dictionary(*id).unwrap().clone(),
+        other => other.as_dict().unwrap().clone(),
+    };
+    let page_dict = doc.get_dictionary(page).unwrap();
+    let resources = dict_of(page_dict.get(b"Resources").unwrap());
+    let properties = dict_of(resources.get(b"Properties").unwrap());
+    let content = doc.get_and_decode_page_content(page).unwrap();
+    let mut sections: Vec<(String, Option<MmBox>)> = Vec::new();
+    for op in &content.operations {
+        match op.operator.as_str() {
+            "BDC" => {
+                let tag = op.operands[1].as_name().unwrap();
+                let group = dict_of(properties.get(tag).unwrap());
+                let name = group.get(b"Name").and_then(lopdf::Object::as_str).unwrap();
+                sections.push((String::from_utf8(name.to_vec()).unwrap(), None));
+            }
+            "m" | "l" => {
+                let x = op.operands[0].as_float().unwrap() as f64 * 25.4 / 72.0;
+                let y = height_mm - op.operands[1].as_float().unwrap() as f64 * 25.4 / 72.0;
+                let (_, b) = sections.last_mut().expect("paths inside a layer");
+                let b = b.get_or_insert([x, y, x, y]);
+                *b = [b[0].min(x), b[1].min(y), b[2].max(x), b[3].max(y)];
+            }
+            _ => {}
+        }
+    }
+    sections
+}
+
 fn sheet_svg(paper: Paper, band: (f64, f64)) -> (String, PageSettings) {
+    let (svg, _, page) = sheet_svg_and_pdf(paper, band, false);
+    (svg, page)
+}
+
+fn sheet_svg_and_pdf(paper: Paper, band: (f64, f64), pdf: bool) -> (String, Vec<u8>, PageSettings) {
     let site =
         load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
             .unwrap();
@@ -101,7 +156,11 @@ fn sheet_svg(paper: Paper, band: (f64, f64)) -> (String, PageSettings) {
         draw_sheets(&site, &site.standpoints[0], &settings, Some(&page), 100.0).unwrap();
     let mut svg = Vec::new();
     pansite::output::write_svg(&sheets[0], &mut svg).unwrap();
-    (String::from_utf8(svg).unwrap(), page)
+    let mut bytes = Vec::new();
+    if pdf {
+        pansite::output::write_pdf(&sheets[..1], &mut bytes).unwrap();
+    }
+    (String::from_utf8(svg).unwrap(), bytes, page)
 }
 
 #[test]
@@ -109,8 +168,33 @@ fn every_preset_both_ways_keeps_its_labels_whole_apart_and_clear() {
     for name in pansite::page::preset_names().split(", ") {
         let paper = Paper::named(name).unwrap();
         for turned in [paper.portrait(), paper.landscape()] {
-            let (svg, page) = sheet_svg(turned, (-90.0, 90.0));
+            let (svg, pdf, page) = sheet_svg_and_pdf(turned, (-90.0, 90.0), true);
             let back = read_back(&svg);
+            // The PDF holds the same labels, in the same places: each label's marked
+            // section has the box of the SVG's group, so every check below holds for it.
+            let in_pdf: Vec<MmBox> = pdf_sections(&pdf, turned.height_mm)
+                .into_iter()
+                .filter(|(layer, _)| LABEL_LAYERS.contains(&layer.as_str()))
+                .filter_map(|(_, b)| b)
+                .collect();
+            let in_svg: Vec<MmBox> = back
+                .labels
+                .iter()
+                .filter(|(layer, ..)| LABEL_LAYERS.contains(&layer.as_str()))
+                .map(|(.., b)| *b)
+                .collect();
+            assert_eq!(
+                in_pdf.len(),
+                in_svg.len(),
+                "{name} {turned:?}: labels in the PDF"
+            );
+            for (p, v) in in_pdf.iter().zip(&in_svg) {
+                // The PDF rounds to 0.001 pt, the SVG to 0.001 mm.
+                assert!(
+                    p.iter().zip(v).all(|(a, b)| (a - b).abs() < 0.002),
+                    "{name} {turned:?}: PDF {p:?} against SVG {v:?}"
+                );
+            }
             let m = page.margin_mm;
             let printable = [m, m, turned.width_mm - m, turned.height_mm - m];
             // The lettering's strokes are drawn with round caps: allow half a stroke.
@@ -205,4 +289,327 @@ fn azimuth_labels_name_the_meridian_beside_them() {
         }
         assert!(checked >= 8, "{checked} azimuth labels");
     }
+}
+
+/// Whether the segment `a`-`b` meets the box `r` (left, top, right, bottom): Liang-Barsky
+/// clipping (Liang and Barsky 1984), written here so nothing of ours decides it.
+fn segment_meets_box(a: (f64, f64), b: (f64, f64), r: &MmBox) -> bool {
+    let (dx, dy) = (b.0 - a.0, b.1 - a.1);
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for (p, q) in [
+        (-dx, a.0 - r[0]),
+        (dx, r[2] - a.0),
+        (-dy, a.1 - r[1]),
+        (dy, r[3] - a.1),
+    ] {
+        if p == 0.0 {
+            if q < 0.0 {
+                return false;
+            }
+        } else {
+            let t = q / p;
+            if p < 0.0 {
+                t0 = t0.max(t);
+            } else {
+                t1 = t1.min(t);
+            }
+        }
+    }
+    t0 <= t1
+}
+
+/// The plan of the demo on A3, read back from its SVG: the standpoints' names are all
+/// there, apart from every other label and crossed by no building's outline (the outlines
+/// worked out here from the scene's edges and the plan's own origin and scale); the scale
+/// is one of the standard series and the printed bar measures true at it.
+#[test]
+fn plan_names_keep_off_each_other_and_the_buildings_and_its_bar_reads_true() {
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    for name in ["A3", "A4", "A5", "A6"] {
+        check_plan(&site, Paper::named(name).unwrap().landscape());
+    }
+}
+
+fn check_plan(site: &pansite::scene::Site, paper: Paper) {
+    use pansite::compose::{plan_map, PlanSettings, STANDARD_SCALES};
+    use pansite::scene::SiteCurve;
+    let settings = PlanSettings::for_paper(&paper, 10.0, 150.0);
+    let plan = plan_map(site, &site.standpoints, &settings).unwrap();
+    let sheet = plan.on_paper(&paper, 10.0);
+    let mut svg = Vec::new();
+    pansite::output::write_svg(&sheet, &mut svg).unwrap();
+    let svg = String::from_utf8(svg).unwrap();
+    let doc = roxmltree::Document::parse(&svg).unwrap();
+    let mut labels: Vec<(String, String, MmBox)> = Vec::new();
+    let mut bar = None;
+    for g in doc.descendants().filter(|n| n.has_tag_name("g")) {
+        let layer = g.attribute("data-layer").unwrap_or("").to_owned();
+        match (g.attribute("data-text"), group_box(g)) {
+            (Some(text), Some(b)) => labels.push((layer, text.to_owned(), b)),
+            (None, Some(b)) if layer == "scale bar" => bar = Some(b),
+            _ => {}
+        }
+    }
+    for s in &site.standpoints {
+        assert!(
+            labels
+                .iter()
+                .any(|(l, t, _)| l == "standpoint labels" && *t == s.name.to_uppercase()),
+            "{} has no name on the plan",
+            s.name
+        );
+    }
+    for (i, (_, ta, a)) in labels.iter().enumerate() {
+        for (_, tb, b) in &labels[i + 1..] {
+            assert!(
+                !overlap(&[a[0] + 0.01, a[1] + 0.01, a[2] - 0.01, a[3] - 0.01], b),
+                "{ta:?} {a:?} overlaps {tb:?} {b:?}"
+            );
+        }
+    }
+    // Buildings' outlines in millimetres on the sheet: the plan's pixels plus the margin.
+    let mm = 25.4 / 150.0;
+    let on_sheet = |x: f64, y: f64| {
+        let p = plan.to_px(x, y);
+        (10.0 + p.x * mm, 10.0 + p.y * mm)
+    };
+    let buildings = ["block", "footprint", "tower", "arcade", "room", "dome"];
+    let mut outlines = 0;
+    for edge in &site.edges {
+        let kind = site.items[edge.item.0 as usize].kind;
+        let SiteCurve::Segment { start, end } = edge.curve else {
+            continue;
+        };
+        if !buildings.contains(&kind) {
+            continue;
+        }
+        outlines += 1;
+        let (a, b) = (on_sheet(start.x, start.y), on_sheet(end.x, end.y));
+        for (layer, text, r) in &labels {
+            if layer == "standpoint labels" {
+                assert!(
+                    !segment_meets_box(a, b, r),
+                    "{text:?} at {r:?} crosses an outline of a {kind} from {a:?} to {b:?}"
+                );
+            }
+        }
+    }
+    assert!(outlines > 50, "{outlines} outline segments");
+    // The scale: "SCALE 1:N ..." with N of the standard series, and the bar's "L M".
+    let scale_text = labels
+        .iter()
+        .find_map(|(_, t, _)| t.strip_prefix("SCALE 1:"))
+        .expect("a scale is written");
+    let n: f64 = scale_text
+        .split_whitespace()
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!(STANDARD_SCALES.contains(&n), "1:{n}");
+    let metres: f64 = labels
+        .iter()
+        .find_map(|(_, t, _)| t.strip_suffix(" M").and_then(|v| v.parse().ok()))
+        .expect("the bar's length is written");
+    // At 1:N a length of L metres is L * 1000 / N millimetres on paper (the definition of
+    // a scale); the bar's box is its length plus nothing across (its ticks are upright).
+    let bar = bar.expect("a scale bar");
+    let printed = bar[2] - bar[0];
+    assert!(
+        (printed - metres * 1000.0 / n).abs() < 0.05,
+        "{metres} m at 1:{n} printed {printed} mm"
+    );
+}
+
+/// A contact sheet fitted to A4: each row of each caption is a group of its own (a name and
+/// its numbers never read as one line), the groups apart and inside the printable area;
+/// path thumbnails are named after the path.
+#[test]
+fn contact_sheet_on_paper_keeps_its_captions_apart_and_named_after_the_sweep() {
+    use pansite::compose::{contact_sheet, sweep_path, ContactSettings, SheetGrid};
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let paper = Paper::named("A4").unwrap().landscape();
+    let standpoints = sweep_path(
+        &site.standpoints[0],
+        &[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0)],
+        5,
+    )
+    .unwrap();
+    let px_per_mm = 100.0 / 25.4;
+    let (grid, (tw, th)) = SheetGrid::fit(
+        standpoints.len(),
+        None,
+        277.0 * px_per_mm,
+        190.0 * px_per_mm,
+    )
+    .unwrap();
+    let mut settings = ContactSettings {
+        dpi: 100.0,
+        columns: Some(grid.columns as u32),
+        ..ContactSettings::default()
+    };
+    (settings.thumbnail.width, settings.thumbnail.height) = (tw, th);
+    settings.thumbnail.hidden = Some(pansite::scene::HiddenEdges::Solid);
+    settings.thumbnail.dpi = 100.0;
+    let sheet = contact_sheet(&site, &standpoints, &settings, &|_, _| {})
+        .unwrap()
+        .on_paper(&paper, 10.0)
+        .expect("fitted to the paper");
+    // ISO 216: A4 is 297 x 210 mm.
+    assert_eq!((sheet.width_mm, sheet.height_mm), (297.0, 210.0));
+    let mut svg = Vec::new();
+    pansite::output::write_svg(&sheet, &mut svg).unwrap();
+    let back = read_back_labels(&String::from_utf8(svg).unwrap());
+    assert_eq!(back.len(), 2 * standpoints.len());
+    for (k, (text, b)) in back.iter().enumerate() {
+        if k % 2 == 0 {
+            assert_eq!(*text, format!("{}. PATH {} OF 5", k / 2 + 1, k / 2 + 1));
+        } else {
+            assert!(text.starts_with("HEADING "), "{text}");
+        }
+        assert!(
+            b[0] >= 9.9 && b[1] >= 9.9 && b[2] <= 287.1 && b[3] <= 200.1,
+            "{text}"
+        );
+        for (tb, c) in &back[k + 1..] {
+            assert!(!overlap(b, c), "{text:?} {b:?} overlaps {tb:?} {c:?}");
+        }
+    }
+}
+
+fn read_back_labels(svg: &str) -> Vec<(String, MmBox)> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    doc.descendants()
+        .filter(|n| n.has_tag_name("g"))
+        .filter_map(|g| Some((g.attribute("data-text")?.to_owned(), group_box(g)?)))
+        .collect()
+}
+
+/// `--lettering text`: the same sheet with each label's strokes replaced by one SVG text
+/// element holding its words, where the strokes stood. usvg (a general SVG reader) accepts
+/// the document; roxmltree reads the elements. The text's anchor point is compared with the
+/// stroked label's box: its x at the box's start, middle or end as `text-anchor` says, its
+/// baseline between the box's top and a little below its bottom (SVG 1.1, 10.9.1, for
+/// `text-anchor`; the baseline is the `y` of a `<text>`, 10.4).
+#[test]
+fn text_lettering_puts_editable_words_where_the_strokes_were() {
+    use pansite::output::{write_svg_with, Lettering, EM_PER_CAP};
+    let site =
+        load_scene(&Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"))
+            .unwrap();
+    let page = PageSettings {
+        paper: Paper::named("A3").unwrap().landscape(),
+        margin_mm: 10.0,
+        dpi: 100.0,
+        band_deg: (-90.0, 90.0),
+        title: Some(vec!["WEXCOMBE: FOUNTAIN & STEPS <EAST>".to_owned()]),
+        tiles: None,
+    };
+    let settings = RenderSettings {
+        aids: AidSettings::all(),
+        ..RenderSettings::default()
+    };
+    let (sheets, _) =
+        draw_sheets(&site, &site.standpoints[0], &settings, Some(&page), 100.0).unwrap();
+    let mut strokes = Vec::new();
+    write_svg_with(&sheets[0], Lettering::Strokes, &mut strokes).unwrap();
+    let mut text = Vec::new();
+    write_svg_with(&sheets[0], Lettering::Text, &mut text).unwrap();
+    usvg::Tree::from_data(&text, &usvg::Options::default()).expect("usvg reads it");
+    let stroked = read_back_labels(&String::from_utf8(strokes).unwrap());
+    let text = String::from_utf8(text).unwrap();
+    let doc = roxmltree::Document::parse(&text).unwrap();
+    let groups: Vec<roxmltree::Node> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("g") && n.attribute("data-text").is_some())
+        .collect();
+    assert_eq!(groups.len(), stroked.len());
+    assert!(groups.len() > 20);
+    for (g, (words, b)) in groups.iter().zip(&stroked) {
+        assert_eq!(g.attribute("data-text"), Some(words.as_str()));
+        assert!(
+            !g.children().any(|n| n.has_tag_name("path")),
+            "{words}: strokes left"
+        );
+        let t = g
+            .children()
+            .find(|n| n.has_tag_name("text"))
+            .unwrap_or_else(|| panic!("{words}: no text element"));
+        assert_eq!(t.text(), Some(words.as_str()), "the words, unescaped");
+        let number = |name: &str| t.attribute(name).unwrap().parse::<f64>().unwrap();
+        let (x, y, size) = (number("x"), number("y"), number("font-size"));
+        let cap = size / EM_PER_CAP;
+        let stand = match t.attribute("text-anchor") {
+            Some("start") => b[0],
+            Some("middle") => (b[0] + b[2]) / 2.0,
+            Some("end") => b[2],
+            other => panic!("{words}: text-anchor {other:?}"),
+        };
+        assert!(
+            (x - stand).abs() < 0.3 * cap,
+            "{words}: x {x} against {b:?}"
+        );
+        assert!(
+            y >= b[1] && y <= b[3] + 0.1 * cap,
+            "{words}: y {y} against {b:?}"
+        );
+    }
+    // The halos were for our letters: none is drawn round a font's.
+    for g in doc
+        .descendants()
+        .filter(|n| n.attribute("data-layer") == Some("label halo"))
+    {
+        assert_eq!(g.children().filter(|n| n.is_element()).count(), 0);
+    }
+}
+
+/// A standpoint in the middle of a close grid of small buildings: no place round it is
+/// clear of their outlines, so its name is left out and counted, never drawn across a
+/// building (the placer's promise; the outlines worked out here as above).
+#[test]
+fn a_name_with_no_clear_place_is_left_out_not_drawn_over_a_building() {
+    use pansite::compose::{plan_map, PlanSettings};
+    use pansite::scene::{parse_scene, SiteCurve};
+    let mut items = String::new();
+    for row in 0..6 {
+        for column in 0..6 {
+            let (x, y) = (column as f64 * 2.5 - 6.25, row as f64 * 2.5 - 6.25);
+            items.push_str(&format!(
+                "Block(label: \"b\", at: Centre({x}, {y}), width: 2, depth: 2, height: 3),\n"
+            ));
+        }
+    }
+    let text = format!(
+        "Scene(standpoints: [(name: \"middle of the yard\", x: 0, y: 0)], items: [{items}])"
+    );
+    let site = parse_scene(text.as_bytes(), Path::new("yard.ron"), "yard").unwrap();
+    let plan = plan_map(&site, &site.standpoints, &PlanSettings::default()).unwrap();
+    let mut crossings = 0;
+    for layer in &plan.drawing.layers {
+        let Some(words) = &layer.text else { continue };
+        if layer.name != "standpoint labels" {
+            continue;
+        }
+        let p = layer.lines.points();
+        let b = p
+            .iter()
+            .fold([f64::MAX, f64::MAX, f64::MIN, f64::MIN], |b, q| {
+                [b[0].min(q.x), b[1].min(q.y), b[2].max(q.x), b[3].max(q.y)]
+            });
+        for edge in &site.edges {
+            if let SiteCurve::Segment { start, end } = edge.curve {
+                let (a, c) = (plan.to_px(start.x, start.y), plan.to_px(end.x, end.y));
+                if segment_meets_box((a.x, a.y), (c.x, c.y), &b) {
+                    crossings += 1;
+                    eprintln!("{:?} crosses an outline", words.words);
+                }
+            }
+        }
+    }
+    assert_eq!(crossings, 0);
+    assert!(plan.labels_left_out >= 1, "the name has no clear place");
 }

@@ -172,3 +172,90 @@ fn a_contact_sheet_over_times_of_day_shows_the_light_change() {
         .expect("shadows on the sheet");
     assert!(!shadows.lines.is_empty());
 }
+
+/// The hours along the sun's path are labels like any other, placed by the one placer: a
+/// layer each, apart from every other label, each beside a tick of its own, and in the
+/// order of the day from east to west (at 47 degrees north in June the sun's azimuth grows
+/// through the day: common practice, the sun-path diagram of any latitude beyond the tropic).
+#[test]
+fn the_suns_hours_are_placed_labels_in_the_order_of_the_day() {
+    let mut site = pole_scene(0.0, r#"sun: (date: "2026-06-21", time: "15:00"),"#);
+    // Facing south, the seam is north, where the June sun never is by day: x grows with
+    // azimuth across the whole path.
+    site.standpoints[0].heading = std::f64::consts::PI;
+    let settings = RenderSettings {
+        width: 2048,
+        height: 1024,
+        sun: SunChoice {
+            path: Some(true),
+            ..SunChoice::default()
+        },
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let box_of = |l: &pansite::drawing::Layer| {
+        let p = l.lines.points();
+        let (mut b0, mut b1, mut b2, mut b3) = (f64::MAX, f64::MAX, f64::MIN, f64::MIN);
+        for q in p {
+            (b0, b1, b2, b3) = (b0.min(q.x), b1.min(q.y), b2.max(q.x), b3.max(q.y));
+        }
+        [b0, b1, b2, b3]
+    };
+    let ticks: Vec<[f64; 4]> = render
+        .drawing
+        .layers
+        .iter()
+        .filter(|l| l.name == "sun hours")
+        .flat_map(|l| {
+            l.lines
+                .iter()
+                .map(|t| [t[0].x, t[0].y, t[1].x, t[1].y])
+                .collect::<Vec<_>>()
+        })
+        .collect();
+    let labels: Vec<(String, [f64; 4])> = render
+        .drawing
+        .layers
+        .iter()
+        .filter_map(|l| Some((l.text.as_ref()?.words.clone(), box_of(l), l.name.clone())))
+        .map(|(t, b, name)| {
+            (
+                if name == "sun hour labels" {
+                    t
+                } else {
+                    format!("other {t}")
+                },
+                b,
+            )
+        })
+        .collect();
+    let hours: Vec<(u32, [f64; 4])> = labels
+        .iter()
+        .filter_map(|(t, b)| Some((t.parse::<u32>().ok()?, *b)))
+        .collect();
+    assert!(hours.len() >= 10, "{} hour labels", hours.len());
+    assert_eq!(render.labels_left_out + hours.len(), ticks.len());
+    for (hour, b) in &hours {
+        let (cx, cy) = ((b[0] + b[2]) / 2.0, (b[1] + b[3]) / 2.0);
+        let h = b[3] - b[1];
+        assert!(
+            ticks
+                .iter()
+                .any(|t| (t[0] - cx).abs() < 3.0 * h && (cy - (t[1] + t[3]) / 2.0).abs() < 3.0 * h),
+            "{hour:02} at {b:?} is beside no tick"
+        );
+    }
+    let mut by_x = hours.clone();
+    by_x.sort_by(|a, b| a.1[0].total_cmp(&b.1[0]));
+    assert!(
+        by_x.windows(2).all(|w| w[0].0 < w[1].0),
+        "{:?}",
+        by_x.iter().map(|h| h.0).collect::<Vec<_>>()
+    );
+    for (i, (ta, a)) in labels.iter().enumerate() {
+        for (tb, b) in &labels[i + 1..] {
+            let apart = a[2] <= b[0] || b[2] <= a[0] || a[3] <= b[1] || b[3] <= a[1];
+            assert!(apart, "{ta} {a:?} overlaps {tb} {b:?}");
+        }
+    }
+}

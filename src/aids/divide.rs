@@ -126,6 +126,49 @@ pub fn draw(
     }
 }
 
+/// Checks that every division of items (`Division::Edges`) names an item with a straight
+/// edge: a label that matches nothing would otherwise draw nothing, silently.
+pub fn check_divisions(site: &Site, divisions: &[Division]) -> crate::error::Result<()> {
+    for division in divisions {
+        let Division::Edges { item, .. } = division else {
+            continue;
+        };
+        let found = site.edges.iter().any(|edge| {
+            matches!(edge.curve, SiteCurve::Segment { .. })
+                && label_matches(
+                    site.items
+                        .get(edge.item.0 as usize)
+                        .and_then(|i| i.label.as_deref()),
+                    item,
+                )
+        });
+        if !found {
+            let mut labels: Vec<&str> = site
+                .items
+                .iter()
+                .filter_map(|i| i.label.as_deref())
+                .collect();
+            labels.sort_unstable();
+            labels.dedup();
+            let known = if labels.is_empty() {
+                "the scene labels no item".to_owned()
+            } else {
+                let shown: Vec<String> =
+                    labels.iter().take(12).map(|l| format!("\"{l}\"")).collect();
+                format!(
+                    "labelled items: {}{}",
+                    shown.join(", "),
+                    if labels.len() > 12 { ", ..." } else { "" }
+                )
+            };
+            return Err(crate::error::Error::Setting(format!(
+                "--divide-edges: no item labelled \"{item}\" has a straight edge to divide ({known})"
+            )));
+        }
+    }
+    Ok(())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

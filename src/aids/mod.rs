@@ -76,8 +76,9 @@ mod sun;
 mod table;
 mod vanishing;
 
+pub use divide::check_divisions;
 pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
-pub use sun::{sun_layers, SunDrawing, SunLabel, SUN, SUN_HOURS, SUN_PATH, SUN_SEASONS};
+pub use sun::{sun_layers, SunDrawing, SUN, SUN_HOURS, SUN_PATH, SUN_SEASONS};
 pub use table::{angle_table, to_csv, to_json, to_text, AngleRow, PagePlacement, TableChoice};
 
 use crate::drawing::{label_layers, Label, LabelInk, LabelPlacer, Layer, Stroke};
@@ -153,20 +154,22 @@ pub struct Over {
 }
 
 /// The layers drawn over the wireframe: vanishing points, poles, divisions, then every
-/// label, placed by one [`LabelPlacer`] that keeps them apart, whole inside the label area
-/// and clear of the lines drawn before (`drawn`) where it can.
+/// label (these aids' own and `given`, such as the sun's hours), placed by one
+/// [`LabelPlacer`] that keeps them apart, whole inside the label area and clear of the
+/// lines drawn before (`drawn`) where it can.
 pub fn over(
     site: &Site,
     view: &ViewFrame,
     flattener: &mut Flattener,
     settings: &AidSettings,
     drawn: &[Layer],
+    given: Vec<Label>,
 ) -> Over {
     let guides = guides_of(site, settings);
     let map = flattener.map();
     let text = settings.text_height(&map);
     let mut layers = Vec::new();
-    let mut labels: Vec<Label> = Vec::new();
+    let mut labels: Vec<Label> = given;
     let mut marks = PolylineSet::new();
     let directions = vanishing::directions(site, &guides, settings);
     vanishing::draw(view, &map, &directions, text, &mut marks, &mut labels);

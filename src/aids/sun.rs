@@ -4,12 +4,12 @@
 //! own. The path is drawn as short great-circle arcs between positions two minutes apart:
 //! the sun's daily circle leaves such a chord by less than 0.001 degrees.
 //!
-//! The hour labels are kept as data ([`SunLabel`]: text, anchor and kind) and lettered at
-//! the end, so that a label placer can take them instead.
+//! The hour labels are [`Label`]s for the one label placer (`aids::over`), like every other
+//! label: above the hour's tick, or below or beside it when that is taken, or left out.
 
 use super::marks::ring;
 use super::strokes;
-use crate::drawing::{letter, Align, Layer};
+use crate::drawing::{Align, Label, LabelKind, Layer, Spot};
 use crate::error::Result;
 use crate::plane::image_of_direction;
 use crate::plane::{Flattener, ImagePoint, PolylineSet};
@@ -44,26 +44,14 @@ pub struct SunDrawing {
     pub seasons: bool,
 }
 
-/// What a label on the sun's layers says and where it is anchored (the placer's input).
-#[derive(Clone, Debug, PartialEq)]
-pub struct SunLabel {
-    /// What the label says.
-    pub text: String,
-    /// The image point the label belongs to.
-    pub anchor: ImagePoint,
-    /// What kind of label it is (`sun hour`).
-    pub kind: &'static str,
-}
-
-/// The sun's layers for `sky` seen from `view`, and their labels (already lettered on the
-/// hours layer).
+/// The sun's layers for `sky` seen from `view`, and the hours' labels for the placer.
 pub fn sun_layers(
     sky: &Sky,
     view: &ViewFrame,
     flattener: &mut Flattener,
     drawing: &SunDrawing,
     text: f64,
-) -> Result<(Vec<Layer>, Vec<SunLabel>)> {
+) -> Result<(Vec<Layer>, Vec<Label>)> {
     let mut layers = Vec::new();
     let mut labels = Vec::new();
     let Some(moment) = drawing.moment else {
@@ -89,21 +77,8 @@ pub fn sun_layers(
                 continue;
             }
             let at = image_of_direction(view, &map, &sky.direction(&sample));
-            let anchor = hour_tick(at, text, &mut ticks);
-            labels.push(SunLabel {
-                text: format!("{:02}", local.hour()),
-                anchor,
-                kind: "sun hour",
-            });
-        }
-        for label in &labels {
-            letter(
-                &label.text,
-                label.anchor,
-                0.8 * text,
-                Align::Middle,
-                &mut ticks,
-            );
+            hour_tick(at, text, &mut ticks);
+            labels.push(hour_label(format!("{:02}", local.hour()), at, text));
         }
         push(&mut layers, SUN_HOURS, strokes::MARKS, ticks);
     }
@@ -138,15 +113,30 @@ fn path(
     Ok(())
 }
 
-/// An upright tick through the sun's place at an hour, and the anchor of its label
-/// (above the tick).
-fn hour_tick(at: ImagePoint, text: f64, out: &mut PolylineSet) -> ImagePoint {
-    let (half, gap) = (0.6 * text, 0.9 * text);
+/// Half the length of an hour's tick, in cap heights of the lettering.
+const TICK_HALF: f64 = 0.6;
+
+/// An upright tick through the sun's place at an hour.
+fn hour_tick(at: ImagePoint, text: f64, out: &mut PolylineSet) {
+    let half = TICK_HALF * text;
     out.push(&[
         ImagePoint::new(at.x, at.y - half),
         ImagePoint::new(at.x, at.y + half),
     ]);
-    ImagePoint::new(at.x, at.y - half - gap)
+}
+
+/// An hour's label, anchored at the sun's place: above its tick, else below it, else to
+/// the right or the left of it (0.8 of the lettering's height).
+fn hour_label(words: String, at: ImagePoint, text: f64) -> Label {
+    let h = 0.8 * text;
+    let half = TICK_HALF * text;
+    let gap = 0.3 * h;
+    Label::fixed(words, at, LabelKind::SunHour, h, Align::Middle).with_spots(vec![
+        Spot::new(0.0, -half - gap, Align::Middle),
+        Spot::new(0.0, half + gap + h, Align::Middle),
+        Spot::new(gap + 0.2 * h, 0.5 * h, Align::Start),
+        Spot::new(-gap - 0.2 * h, 0.5 * h, Align::End),
+    ])
 }
 
 /// The sun's mark: a ring the size of a capital letter with eight short rays.

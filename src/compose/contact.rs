@@ -6,7 +6,10 @@
 //! all cores, one standpoint at a time per core (a thumbnail is too small for the
 //! wireframe's own runs to split it), and placed in a grid in the order given.
 
-use crate::drawing::{letter, text_width, Align, Drawing, Layer, Stroke};
+use crate::drawing::{
+    label_layers, text_width, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer,
+    Stroke,
+};
 use crate::error::{Error, Result};
 use crate::page::{clip_and_move, Rect, Sheet};
 use crate::plane::{ImagePoint, PolylineSet};
@@ -105,7 +108,8 @@ pub fn sweep_times(
 }
 
 /// `count` standpoints evenly spaced along the path through `points` (plan positions,
-/// metres), the ends included, each facing along the path, at `base`'s eye height.
+/// metres), the ends included, each facing along the path, at `base`'s eye height, named
+/// after the path (`PATH 3 OF 8`), not after `base`, whose place they do not share.
 pub fn sweep_path(
     base: &Standpoint,
     points: &[(f64, f64)],
@@ -145,7 +149,7 @@ pub fn sweep_path(
             0.0
         };
         out.push(Standpoint {
-            name: format!("{} {}", base.name, k + 1),
+            name: format!("PATH {} OF {count}", k + 1),
             x: a.0 + (b.0 - a.0) * t,
             y: a.1 + (b.1 - a.1) * t,
             // Azimuth of the leg: atan2(east, north).
@@ -158,7 +162,7 @@ pub fn sweep_path(
 
 /// A grid of `columns` x `rows` standpoints over the rectangle from `corner` to
 /// `opposite` (plan positions, both included), each with `base`'s heading and eye height,
-/// named by row and column, north row first.
+/// named by row and column (`GRID R1C2`), north row first.
 pub fn sweep_grid(
     base: &Standpoint,
     corner: (f64, f64),
@@ -185,7 +189,7 @@ pub fn sweep_grid(
     for row in 0..rows {
         for column in 0..columns {
             out.push(Standpoint {
-                name: format!("{} R{}C{}", base.name, row + 1, column + 1),
+                name: format!("GRID R{}C{}", row + 1, column + 1),
                 x: at(west, east, column, columns),
                 y: at(north, south, row, rows),
                 ..base.clone()
@@ -202,6 +206,96 @@ fn check_count(count: usize) -> Result<()> {
         Err(Error::Setting(format!(
             "{count} standpoints: a contact sheet holds 1 to {MAX_THUMBNAILS}"
         )))
+    }
+}
+
+/// Room for the two rows of caption under a thumbnail, in its captions' cap heights: the
+/// first baseline 1.35 below the thumbnail, the second (0.8 high) 1.5 below that, more than
+/// the ISO 3098 pitch of 1.4 (from memory), and its descenders.
+const CAPTION_ROOM: f64 = 3.1;
+
+/// How thumbnails are laid out on a sheet: a grid of cells, each a thumbnail with two rows
+/// of caption under it, a gap round them.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SheetGrid {
+    /// Thumbnails across.
+    pub columns: usize,
+    /// Rows of thumbnails.
+    pub rows: usize,
+    /// Cap height of the captions' first row, pixels.
+    pub letter_px: f64,
+    /// Gap round each thumbnail, pixels.
+    pub gap: f64,
+    /// A cell's width, pixels.
+    pub cell_w: f64,
+    /// A cell's height, pixels.
+    pub cell_h: f64,
+    /// The whole sheet, pixels.
+    pub width: f64,
+    /// The whole sheet's height, pixels.
+    pub height: f64,
+}
+
+impl SheetGrid {
+    /// The grid of `n` thumbnails of `tw` x `th` pixels, `columns` across (near-square by
+    /// default).
+    pub fn new(n: usize, columns: Option<u32>, tw: u32, th: u32) -> SheetGrid {
+        let n = n.max(1);
+        let (tw, th) = (tw as f64, th as f64);
+        // Near-square sheets: thumbnails are twice as wide as tall.
+        let columns = columns
+            .unwrap_or_else(|| ((n as f64 * 0.7).sqrt().ceil() as u32).max(1))
+            .clamp(1, n as u32) as usize;
+        let rows = n.div_ceil(columns);
+        let letter_px = (th / 14.0).max(7.0);
+        let gap = (0.06 * th).max(6.0);
+        let (cell_w, cell_h) = (tw + gap, th + CAPTION_ROOM * letter_px + gap);
+        SheetGrid {
+            columns,
+            rows,
+            letter_px,
+            gap,
+            cell_w,
+            cell_h,
+            width: gap + columns as f64 * cell_w,
+            height: gap + rows as f64 * cell_h,
+        }
+    }
+
+    /// The largest thumbnails of 2:1 that put `n` of them on `width` x `height` pixels,
+    /// with the grid they make (trying every number of columns unless `columns` is given);
+    /// `None` when not even the smallest thumbnail (64 x 32) fits.
+    pub fn fit(
+        n: usize,
+        columns: Option<u32>,
+        width: f64,
+        height: f64,
+    ) -> Option<(SheetGrid, (u32, u32))> {
+        let n = n.max(1);
+        let choices: Vec<u32> = match columns {
+            Some(c) => vec![c.clamp(1, n as u32)],
+            None => (1..=n as u32).collect(),
+        };
+        let mut best: Option<(SheetGrid, (u32, u32))> = None;
+        for c in choices {
+            // From above: the height the width and the height allow, then down until it fits.
+            let rows = n.div_ceil(c as usize) as f64;
+            let mut th = (width / (2.06 * c as f64 + 0.06))
+                .min(height / (1.27 * rows + 0.06))
+                .floor()
+                .min(8192.0);
+            while th >= 32.0 {
+                let grid = SheetGrid::new(n, Some(c), 2 * th as u32, th as u32);
+                if grid.width <= width && grid.height <= height {
+                    if best.is_none_or(|(_, (_, h))| (th as u32) > h) {
+                        best = Some((grid, (2 * th as u32, th as u32)));
+                    }
+                    break;
+                }
+                th -= 1.0;
+            }
+        }
+        best
     }
 }
 
@@ -267,18 +361,18 @@ pub fn contact_sheet(
         settings.thumbnail.width as f64,
         settings.thumbnail.height as f64,
     );
-    // Near-square sheets: thumbnails are twice as wide as tall.
-    let columns = settings
-        .columns
-        .unwrap_or_else(|| ((n as f64 * 0.7).sqrt().ceil() as u32).max(1))
-        .clamp(1, n as u32) as usize;
-    let rows = n.div_ceil(columns);
-    let letter_px = (th / 14.0).max(7.0);
-    let gap = (0.06 * th).max(6.0);
-    let (cell_w, cell_h) = (tw + gap, th + 2.6 * letter_px + gap);
+    let grid = SheetGrid::new(
+        n,
+        settings.columns,
+        settings.thumbnail.width,
+        settings.thumbnail.height,
+    );
+    let columns = grid.columns;
+    let (letter_px, gap) = (grid.letter_px, grid.gap);
+    let (cell_w, cell_h) = (grid.cell_w, grid.cell_h);
     let mut layers: Vec<Layer> = Vec::new();
     let mut frames = PolylineSet::new();
-    let mut labels = PolylineSet::new();
+    let mut captions: Vec<Label> = Vec::new();
     for ((k, drawing), standpoint) in drawn.into_iter().zip(standpoints) {
         let drawing = drawing?;
         let (left, top) = (
@@ -314,9 +408,9 @@ pub fn contact_sheet(
             ImagePoint::new(left, top + th),
             ImagePoint::new(left, top),
         ]);
-        let baseline = top + th + 1.3 * letter_px;
-        let lines = [
-            (format!("{}. {}", k + 1, standpoint.name), letter_px),
+        let baseline = top + th + 1.35 * letter_px;
+        let rows = [
+            (format!("{}. {}", k + 1, standpoint.name), letter_px, 0.0),
             (
                 format!(
                     "HEADING {:.0}\u{b0}  AT {:.1}, {:.1}  EYE {:.2} M",
@@ -326,35 +420,48 @@ pub fn contact_sheet(
                     standpoint.eye_height
                 ),
                 0.8 * letter_px,
+                1.5 * letter_px,
             ),
         ];
-        for (row, (text, height)) in lines.iter().enumerate() {
-            // Long names are lettered smaller rather than run into the next thumbnail.
-            let height = height.min(height * tw / text_width(text, *height).max(1e-9));
-            letter(
+        for (text, height, down) in rows {
+            // Long captions are lettered smaller rather than run into the next thumbnail.
+            let height = height.min(height * tw / text_width(&text, height).max(1e-9));
+            captions.push(Label::fixed(
                 text,
-                ImagePoint::new(left, baseline + row as f64 * 1.3 * letter_px),
+                ImagePoint::new(left, baseline + down),
+                LabelKind::Caption,
                 height,
                 Align::Start,
-                &mut labels,
-            );
+            ));
         }
     }
+    // Each row of each caption is a label of its own, placed by the one placer: whole,
+    // apart, and found by its words in a vector file.
+    let sheet_box = Rect {
+        left: 0.0,
+        top: 0.0,
+        right: grid.width.ceil(),
+        bottom: grid.height.ceil(),
+    };
+    let mut placer = LabelPlacer::new(sheet_box, 0.0);
+    placer.place(captions);
+    let placed = placer.finish();
     layers.push(Layer {
         text: None,
         name: "frame".to_owned(),
         stroke: Stroke::black(0.7, 1.0),
         lines: frames,
     });
-    layers.push(Layer {
-        text: None,
-        name: "labels".to_owned(),
-        stroke: Stroke::black(0.9, 1.0),
-        lines: labels,
-    });
+    layers.extend(label_layers(
+        &placed.labels,
+        LabelInk {
+            stroke: Stroke::black(0.9, 1.0),
+            halo_px: None,
+        },
+    ));
     let drawing = Drawing {
-        width: (gap + columns as f64 * cell_w).ceil() as u32,
-        height: (gap + rows as f64 * cell_h).ceil() as u32,
+        width: grid.width.ceil() as u32,
+        height: grid.height.ceil() as u32,
         layers,
     };
     Ok(Sheet::full_bleed(drawing, settings.dpi))

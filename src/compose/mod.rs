@@ -26,11 +26,18 @@
 //!   (vertical segments vanish; ellipses are chords of angle `sqrt(8 tol / r)`, within the
 //!   tolerance); north up. The extent is the site's and the standpoints', with 6 % margins
 //!   and a footer a tenth of the height for the scale bar (a 1, 2 or 5 times a power of ten
-//!   metres, about a quarter of the width, ticked at its ends and middle, with the paper scale
-//!   1:N at the dpi) and the north arrow. Each standpoint is a circle, its heading an arrow
+//!   metres, about a quarter of the width, ticked at its ends and middle, with the scale) and
+//!   the north arrow. The scale is the largest standard one that fits (`STANDARD_SCALES`:
+//!   ISO 5455's 1, 2, 5 series with 1:250, 1:1250 and 1:2500; on paper at the dpi), or
+//!   `--scale 1:N`, refused when the site does not fit; the explorer's screen plan fills its
+//!   box (`PlanScale::Fill`). Each standpoint is a circle, its heading an arrow
 //!   8 % of the shorter side long (the direction at the panorama's centre), and the seam a
-//!   dashed line the opposite way; its name beside it. Layers `plan`, `seams`, `headings`,
-//!   `standpoints`, `scale bar`, `north arrow`, `plan labels`. `--beside` draws the panorama
+//!   dashed line the opposite way. Every word goes through the label placer: standpoint
+//!   names never cross a drawn line (`LabelPlacer::keep_off_lines`) nor each other, labelled
+//!   buildings are named at the middle of their plan where there is room, and what finds
+//!   no room is left out and counted. Layers `plan`, `seams`, `headings`, `standpoints`,
+//!   `scale bar`, `north arrow`, one layer per label (`title`, `standpoint labels`,
+//!   `item labels`) over a `label halo`. `--beside` draws the panorama
 //!   of the chosen standpoint (`--panorama-size`) and the plan at the panorama's height and
 //!   resolution to its right on one sheet (`compose::beside`, a translation only, so the
 //!   plan's printed scale holds). `--page PAPER` (with `--portrait`, `--margin`) draws the plan at
@@ -76,7 +83,9 @@ mod plan;
 mod preview;
 
 pub use contact::{
-    contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, ContactSettings,
+    contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, ContactSettings, SheetGrid,
 };
-pub use plan::{beside, plan_map, Plan, PlanSettings};
+pub use plan::{
+    beside, largest_standard_scale, plan_map, Plan, PlanScale, PlanSettings, STANDARD_SCALES,
+};
 pub use preview::{preview, preview_with_hidden_lines, Pinhole, PreviewSettings};

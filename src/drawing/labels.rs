@@ -23,7 +23,7 @@
 //! the letters.
 
 use super::lettering::{letter, stroke_width, text_extent, text_width, Align};
-use super::{Layer, Stroke};
+use super::{Layer, LayerText, Stroke};
 use crate::plane::{ImagePoint, PolylineSet, Rect};
 
 /// What a label names; the order is the order of placing (earlier kinds win a place).
@@ -39,10 +39,14 @@ pub enum LabelKind {
     GridValue,
     /// Bearings (and climbs) of vanishing points.
     VanishingPoint,
+    /// The sun's hours along its path.
+    SunHour,
     /// Heights on a measuring pole, its name, the eye height.
     Pole,
     /// Multiples of a divided segment.
     Division,
+    /// Standpoints on a plan.
+    Standpoint,
     /// Items of the site.
     Item,
     /// Captions of thumbnails and of plans.
@@ -56,8 +60,10 @@ impl LabelKind {
             LabelKind::Title => "title",
             LabelKind::Heading | LabelKind::Compass | LabelKind::GridValue => "grid labels",
             LabelKind::VanishingPoint => "vanishing point labels",
+            LabelKind::SunHour => "sun hour labels",
             LabelKind::Pole => "pole labels",
             LabelKind::Division => "division labels",
+            LabelKind::Standpoint => "standpoint labels",
             LabelKind::Item => "item labels",
             LabelKind::Caption => "captions",
         }
@@ -66,7 +72,10 @@ impl LabelKind {
     /// Whether the placer looks for the spot crossing the fewest lines, rather than the
     /// first free spot (values belong on their line; names may move to clear space).
     fn avoids_lines(self) -> bool {
-        matches!(self, LabelKind::Item | LabelKind::Caption | LabelKind::Pole)
+        matches!(
+            self,
+            LabelKind::Item | LabelKind::Caption | LabelKind::Pole | LabelKind::Standpoint
+        )
     }
 }
 
@@ -212,6 +221,8 @@ pub struct LabelPlacer {
     cuts_y: Vec<f64>,
     blocked: Vec<Rect>,
     lines: LineCells,
+    off_lines: Vec<LabelKind>,
+    forbidden: LineCells,
     placed: Placed,
 }
 
@@ -226,6 +237,8 @@ impl LabelPlacer {
             cuts_y: Vec::new(),
             blocked: Vec::new(),
             lines: LineCells::new(area, 4.0),
+            off_lines: Vec::new(),
+            forbidden: LineCells::new(area, 4.0),
             placed: Placed::default(),
         }
     }
@@ -250,6 +263,20 @@ impl LabelPlacer {
         self.lines.mark(lines);
     }
 
+    /// Labels of `kind` take only spots that cross none of `lines` (checked on cells of
+    /// `cell` pixels over a box a cell wider all round than the label, so a line grazing a
+    /// cell is not missed); with none such they are left out and counted. The lines are
+    /// kept off by every kind so asked.
+    pub fn keep_off(&mut self, kind: LabelKind, lines: &PolylineSet, cell: f64) {
+        if !self.off_lines.contains(&kind) {
+            self.off_lines.push(kind);
+        }
+        if self.forbidden.cell != cell.max(1.0) && self.forbidden.is_empty() {
+            self.forbidden = LineCells::new(self.area, cell);
+        }
+        self.forbidden.mark(lines);
+    }
+
     /// The labels placed so far.
     pub fn placed(&self) -> &[PlacedLabel] {
         &self.placed.labels
@@ -267,6 +294,11 @@ impl LabelPlacer {
             for spot in &label.spots {
                 let bounds = label.bounds_at(spot);
                 if !self.fits(&bounds) {
+                    continue;
+                }
+                if self.off_lines.contains(&label.kind)
+                    && self.forbidden.count(&bounds.grown(self.forbidden.cell)) > 0
+                {
                     continue;
                 }
                 let crossed = if label.kind.avoids_lines() {
@@ -361,7 +393,12 @@ pub fn label_layers(labels: &[PlacedLabel], ink: LabelInk) -> Vec<Layer> {
         let mut lines = PolylineSet::new();
         letter(&l.text, l.at, l.height, l.align, &mut lines);
         layers.push(Layer {
-            text: Some(l.text.clone()),
+            text: Some(LayerText {
+                words: l.text.clone(),
+                at: l.at,
+                height: l.height,
+                align: l.align,
+            }),
             name: l.kind.layer_name().to_owned(),
             stroke: Stroke {
                 width_px: stroke_width(l.height).max(ink.stroke.width_px.min(1.0)),
@@ -532,6 +569,40 @@ mod tests {
     }
 
     #[test]
+    fn labels_kept_off_lines_never_cross_one() {
+        // A grid of lines 60 px apart leaves 60 px squares: a 6 px label fits in one, a
+        // 40 px high one (about 140 px wide) fits nowhere and is left out.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let mut lines = PolylineSet::new();
+        for k in 0..=6 {
+            let x = 60.0 * k as f64;
+            lines.push(&[ImagePoint::new(x, 0.0), ImagePoint::new(x, 200.0)]);
+        }
+        for k in 0..=3 {
+            let y = 60.0 * k as f64;
+            lines.push(&[ImagePoint::new(0.0, y), ImagePoint::new(400.0, y)]);
+        }
+        placer.keep_off(LabelKind::Standpoint, &lines, 3.0);
+        let at = ImagePoint::new(90.0, 90.0);
+        placer.place(vec![
+            Label::around("AB", at, LabelKind::Standpoint, 6.0),
+            Label::around(
+                "TALL",
+                ImagePoint::new(200.0, 100.0),
+                LabelKind::Standpoint,
+                40.0,
+            ),
+        ]);
+        let placed = placer.finish();
+        assert_eq!(placed.left_out, 1);
+        let b = placed.labels[0].bounds;
+        assert!(
+            b.left > 60.0 && b.right < 120.0 && b.top > 60.0 && b.bottom < 120.0,
+            "{b:?}"
+        );
+    }
+
+    #[test]
     fn layers_carry_the_text_over_a_halo() {
         let mut placer = LabelPlacer::new(area(), 0.0);
         placer.place(vec![Label::fixed(
@@ -549,7 +620,7 @@ mod tests {
         assert_eq!(layers.len(), 2);
         assert_eq!(layers[0].name, HALO);
         assert_eq!(layers[0].stroke.width_px, 5.0);
-        assert_eq!(layers[1].text.as_deref(), Some("N"));
+        assert_eq!(layers[1].text.as_ref().map(|t| t.words.as_str()), Some("N"));
         assert_eq!(layers[1].stroke.width_px, 1.0);
     }
 }

@@ -18,7 +18,7 @@ pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
 };
 
-use crate::plane::PolylineSet;
+use crate::plane::{ImagePoint, PolylineSet};
 
 /// How a layer's lines are drawn: colour, opacity over white paper, and width in the
 /// drawing's pixels.
@@ -52,12 +52,26 @@ impl Stroke {
     }
 }
 
+/// The words of a layer that is one label, and where they stand: an SVG writes them beside
+/// the strokes (or as text instead of them), and a page keeps the label whole or leaves it
+/// out.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LayerText {
+    /// The words.
+    pub words: String,
+    /// The point on the baseline the words are aligned on, drawing pixels.
+    pub at: ImagePoint,
+    /// Cap height, pixels.
+    pub height: f64,
+    /// How the words are aligned on `at`.
+    pub align: Align,
+}
+
 /// Lines drawn alike, under a name that styles and vector layers use.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Layer {
-    /// The words, when the layer is one label (see [`labels`]): an SVG writes them beside
-    /// the strokes, and a page keeps the label whole or leaves it out.
-    pub text: Option<String>,
+    /// The words, when the layer is one label (see [`labels`]).
+    pub text: Option<LayerText>,
     /// The layer's name (`wireframe`, `hidden`, `grid`, ...): styles are given by it.
     pub name: String,
     /// How its lines are inked.
@@ -107,6 +121,29 @@ pub fn hidden_dash_px(line_weight_px: f64) -> (f64, f64) {
 
 /// Layer names start with this for the site's edges.
 pub const WIREFRAME: &str = "wireframe";
+
+impl Layer {
+    /// The same layer moved `dx`, `dy` pixels (its words with it).
+    pub fn moved(&self, dx: f64, dy: f64) -> Layer {
+        let mut lines = PolylineSet::new();
+        for line in self.lines.iter() {
+            let moved: Vec<ImagePoint> = line
+                .iter()
+                .map(|p| ImagePoint::new(p.x + dx, p.y + dy))
+                .collect();
+            lines.push(&moved);
+        }
+        Layer {
+            text: self.text.as_ref().map(|t| LayerText {
+                at: ImagePoint::new(t.at.x + dx, t.at.y + dy),
+                ..t.clone()
+            }),
+            name: self.name.clone(),
+            stroke: self.stroke,
+            lines,
+        }
+    }
+}
 
 impl Drawing {
     /// The polylines of the site's edges (every wireframe layer), not the overlays.

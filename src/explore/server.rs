@@ -684,6 +684,8 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             let settings = PlanSettings {
                 width: size.0,
                 height: size.1,
+                // A screen, not paper: as large as fits.
+                scale: crate::compose::PlanScale::Fill,
                 ..PlanSettings::default()
             };
             let plan = plan_map(site, &site.standpoints, &settings)?;

@@ -18,5 +18,5 @@ pub use self::png::{
 pub use atomic::write_atomically;
 pub use pdf::write_pdf;
 pub use raster::{rasterize, rasterize_in_bands, GreyCanvas, MAX_PIXELS};
-pub use svg::write_svg;
+pub use svg::{write_svg, write_svg_with, Lettering, EM_PER_CAP};
 pub use xmp::{panorama_xmp, Panorama};

@@ -9,6 +9,7 @@
 //! a drawing of a million vertices never becomes one string.
 
 use super::vector::{check_sheet, layer_ids};
+use crate::drawing::{Align, LayerText, HALO};
 use crate::page::Sheet;
 use std::io::{self, BufWriter, Write};
 
@@ -20,6 +21,30 @@ use std::io::{self, BufWriter, Write};
 /// carries its words, as `data-text` and as a `<title>` (so editors show them). The layers paint in order over a
 /// white rectangle the size of the sheet.
 pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
+    write_svg_with(sheet, Lettering::Strokes, out)
+}
+
+/// How the words of labels are written in an SVG.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Lettering {
+    /// As our single-stroke letters: every output shows the same lines, no font needed.
+    #[default]
+    Strokes,
+    /// As SVG `<text>` elements in the reader's sans-serif font, which a vector editor
+    /// can edit as words; their look and width depend on that font, and the halos go.
+    Text,
+}
+
+/// The em of a sans-serif font is about 1/0.7 of its cap height (common practice; fonts
+/// differ by a few hundredths, from memory): the font size that gives a cap height.
+pub const EM_PER_CAP: f64 = 1.0 / 0.7;
+
+/// [`write_svg`], with the words of labels written as `lettering` says. With
+/// [`Lettering::Text`] each label's group holds a `<text>` element in place of its strokes:
+/// at the label's baseline point, `text-anchor` from its alignment, `font-size` its cap
+/// height times [`EM_PER_CAP`], filled with the label's ink; the halo layers are left
+/// empty (a halo drawn for our letters would not fit the font's).
+pub fn write_svg_with(sheet: &Sheet, lettering: Lettering, out: impl Write) -> io::Result<()> {
     check_sheet(sheet).map_err(|message| io::Error::new(io::ErrorKind::InvalidInput, message))?;
     let mut out = BufWriter::new(out);
     let (width, height) = (Mm(sheet.width_mm), Mm(sheet.height_mm));
@@ -44,7 +69,7 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
         write_escaped(&mut out, &layer.name)?;
         if let Some(text) = &layer.text {
             out.write_all(br#"" data-text=""#)?;
-            write_escaped(&mut out, text)?;
+            write_escaped(&mut out, &text.words)?;
         }
         writeln!(
             out,
@@ -52,8 +77,19 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
         )?;
         if let Some(text) = &layer.text {
             out.write_all(b"<title>")?;
-            write_escaped(&mut out, text)?;
+            write_escaped(&mut out, &text.words)?;
             out.write_all(b"</title>\n")?;
+        }
+        if lettering == Lettering::Text {
+            if let Some(text) = &layer.text {
+                write_text(&mut out, text, scale, (r, g, b), &opacity)?;
+                writeln!(out, "</g>")?;
+                continue;
+            }
+            if layer.name == HALO {
+                writeln!(out, "</g>")?;
+                continue;
+            }
         }
         for line in layer.lines.iter() {
             let Some((first, rest)) = line.split_first() else {
@@ -93,6 +129,31 @@ pub fn write_svg(sheet: &Sheet, out: impl Write) -> io::Result<()> {
     }
     writeln!(out, "</svg>")?;
     out.flush()
+}
+
+/// A label's words as an SVG `<text>` element (see [`write_svg_with`]).
+fn write_text(
+    out: &mut impl Write,
+    text: &LayerText,
+    scale: f64,
+    (r, g, b): (u8, u8, u8),
+    opacity: &Mm,
+) -> io::Result<()> {
+    let anchor = match text.align {
+        Align::Start => "start",
+        Align::Middle => "middle",
+        Align::End => "end",
+    };
+    write!(
+        out,
+        r##"<text x="{}" y="{}" font-family="sans-serif" font-size="{}" text-anchor="{anchor}" fill="#{r:02x}{g:02x}{b:02x}" fill-opacity="{opacity}" stroke="none">"##,
+        Mm(text.at.x * scale),
+        Mm(text.at.y * scale),
+        Mm(text.height * EM_PER_CAP * scale)
+    )?;
+    // Element content: the same escapes as an attribute do no harm.
+    write_escaped(out, &text.words)?;
+    writeln!(out, "</text>")
 }
 
 /// A length in millimetres, shown with three decimals at most (0.001 mm), trailing zeros

@@ -6,7 +6,7 @@ use super::clip::{clip_and_move, Rect};
 use super::title::{title_block, title_layout, TitleLayout, GAP_MM};
 use super::{Paper, Sheet};
 use crate::drawing::{
-    label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, Stroke,
+    label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, LayerText, Stroke,
 };
 use crate::error::{Error, Result};
 use crate::plane::{ImagePoint, PolylineSet};
@@ -379,7 +379,10 @@ fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
             layer.text.is_none() || layer.lines.points().iter().all(|p| rect.contains(*p))
         })
         .map(|layer| Layer {
-            text: layer.text.clone(),
+            text: layer.text.as_ref().map(|t| LayerText {
+                at: ImagePoint::new(t.at.x + dx, t.at.y + dy),
+                ..t.clone()
+            }),
             name: layer.name.clone(),
             stroke: layer.stroke,
             lines: clip_and_move(&layer.lines, rect, dx, dy),

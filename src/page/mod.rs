@@ -72,6 +72,33 @@ pub struct Sheet {
 }
 
 impl Sheet {
+    /// The same drawing on a sheet of `paper`, `margin_mm` in from its top-left corner (a
+    /// translation only, so printed lengths hold); `None` if it does not fit inside the
+    /// margins.
+    pub fn on_paper(&self, paper: &Paper, margin_mm: f64) -> Option<Sheet> {
+        let fits = self.width_mm <= paper.width_mm - 2.0 * margin_mm + 1e-6
+            && self.height_mm <= paper.height_mm - 2.0 * margin_mm + 1e-6;
+        if !(fits && margin_mm >= 0.0) {
+            return None;
+        }
+        let shift = margin_mm / self.mm_per_px;
+        Some(Sheet {
+            drawing: Drawing {
+                width: (paper.width_mm / self.mm_per_px).ceil() as u32,
+                height: (paper.height_mm / self.mm_per_px).ceil() as u32,
+                layers: self
+                    .drawing
+                    .layers
+                    .iter()
+                    .map(|l| l.moved(shift, shift))
+                    .collect(),
+            },
+            width_mm: paper.width_mm,
+            height_mm: paper.height_mm,
+            mm_per_px: self.mm_per_px,
+        })
+    }
+
     /// A sheet holding the panorama alone, edge to edge, at `dpi` pixels per inch.
     pub fn full_bleed(drawing: Drawing, dpi: f64) -> Sheet {
         let mm_per_px = 25.4 / dpi;

@@ -1,8 +1,9 @@
 //! The options of the composition commands: `sheet`, `plan`, `preview` and `watch`.
 
-use super::render::{FormatArg, HiddenArg, ModelArgs, RenderArgs};
+use super::render::{FormatArg, HiddenArg, LetteringArg, ModelArgs, RenderArgs};
 use super::values::{
-    parse_finite, parse_grid, parse_path, parse_size, parse_triple, GridSweep, PathSweep,
+    parse_finite, parse_grid, parse_path, parse_scale, parse_size, parse_triple, GridSweep,
+    PathSweep,
 };
 use super::view::ViewArgs;
 use clap::Args;
@@ -23,6 +24,10 @@ pub struct OutArgs {
     /// Print nothing but errors (and no progress bar).
     #[arg(short, long)]
     pub quiet: bool,
+    /// How labels' words are written in SVG: our single-stroke letters, or SVG text
+    /// elements a vector editor can edit (in its sans-serif font).
+    #[arg(long, value_enum, value_name = "HOW", default_value = "strokes")]
+    pub lettering: LetteringArg,
 }
 
 #[derive(Debug, Args)]
@@ -63,6 +68,16 @@ pub struct SheetArgs {
     /// The wireframes alone, without grid and horizon.
     #[arg(long)]
     pub bare: bool,
+    /// Fit the sheet to paper (a4, a3, letter, 420x297mm ...): the thumbnails are drawn as
+    /// large as the printable area allows (--thumb is then ignored).
+    #[arg(long, value_name = "PAPER")]
+    pub page: Option<String>,
+    /// Turn the paper upright (the default is landscape).
+    #[arg(long, requires = "page")]
+    pub portrait: bool,
+    /// Margin round the sheet, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
+    pub margin: f64,
     /// How edges hidden behind faces are drawn [default: the scene's choice, or faint];
     /// solid is about ten times quicker, for a first look at many standpoints.
     #[arg(long, value_enum, value_name = "HOW")]
@@ -81,9 +96,14 @@ pub struct PlanArgs {
     /// panorama's).
     #[arg(long, value_name = "WxH", default_value = "1600x1200", value_parser = parse_size)]
     pub size: (u32, u32),
-    /// Lay the plan out on paper (a4, a3, letter, 420x297mm ...), filling the printable area.
-    #[arg(long, value_name = "PAPER", conflicts_with = "beside")]
+    /// Lay the plan out on paper (a4, a3, letter, 420x297mm ...), filling the printable area
+    /// (with --beside: the panorama and the plan side by side on it).
+    #[arg(long, value_name = "PAPER")]
     pub page: Option<String>,
+    /// The plan's scale, 1:N (refused if the site does not fit) [default: the largest
+    /// standard scale that fits: 1:50, 1:100, 1:200, 1:250, 1:500, 1:1000, 1:1250 ...].
+    #[arg(long, value_name = "1:N", value_parser = parse_scale)]
+    pub scale: Option<f64>,
     /// Turn the paper upright (the default is landscape).
     #[arg(long, requires = "page")]
     pub portrait: bool,

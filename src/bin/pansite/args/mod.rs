@@ -13,7 +13,9 @@ pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
 pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
 pub use explore::ExploreArgs;
-pub use render::{CheckArgs, FormatArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg};
+pub use render::{
+    CheckArgs, FormatArg, LetteringArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg,
+};
 pub use sun::{DaylightArgs, SunArgs};
 pub use values::PathSweep;
 pub use view::ViewArgs;

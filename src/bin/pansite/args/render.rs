@@ -75,6 +75,11 @@ pub struct RenderArgs {
     #[arg(long)]
     pub colour: bool,
 
+    /// How labels' words are written in SVG: our single-stroke letters, or SVG text
+    /// elements a vector editor can edit (in its sans-serif font).
+    #[arg(long, value_enum, value_name = "HOW", default_value = "strokes")]
+    pub lettering: LetteringArg,
+
     /// Weigh lines by distance: edges nearer than 8 m heavier, beyond 30 m lighter.
     #[arg(long)]
     pub weigh_by_distance: bool,
@@ -150,6 +155,15 @@ pub struct ModelArgs {
     /// model's middle (CityJSON)].
     #[arg(long, value_name = "LAT,LON", value_parser = parse_latlon, allow_hyphen_values = true)]
     pub origin_latlon: Option<(f64, f64)>,
+}
+
+/// How the words of labels are written in an SVG.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum LetteringArg {
+    /// Single-stroke letters, the same lines in every format.
+    Strokes,
+    /// SVG text elements, editable as words (SVG only).
+    Text,
 }
 
 /// What kind of file to write.

@@ -13,6 +13,27 @@ pub fn parse_finite(text: &str) -> Result<f64, String> {
     }
 }
 
+/// A scale `1:N` (or `N`), as its denominator N: a plan at 1:N shows a metre as 1000 / N mm.
+pub fn parse_scale(text: &str) -> Result<f64, String> {
+    let number = match text.trim().split_once(':') {
+        Some((one, n)) if one.trim() == "1" => n,
+        Some(_) => {
+            return Err(format!(
+                "expected a scale 1:N such as 1:200, found \"{text}\""
+            ))
+        }
+        None => text,
+    };
+    let n = parse_finite(number)?;
+    if (1.0..=1e7).contains(&n) {
+        Ok(n)
+    } else {
+        Err(format!(
+            "expected a scale from 1:1 to 1:10000000 (a reduction), found \"{text}\""
+        ))
+    }
+}
+
 pub fn parse_non_negative(text: &str) -> Result<f64, String> {
     let value = parse_finite(text)?;
     if value >= 0.0 {

@@ -1,9 +1,11 @@
 //! What several commands share: reading the scene, choosing the standpoint, naming and
 //! writing the output files, and the progress line.
 
-use crate::args::{FormatArg, ModelArgs, OutArgs, ViewArgs};
+use crate::args::{FormatArg, LetteringArg, ModelArgs, OutArgs, ViewArgs};
 use anyhow::Context;
-use pansite::output::{write_atomically, write_pdf, write_png, write_svg, PngOptions};
+use pansite::output::{
+    write_atomically, write_pdf, write_png, write_svg_with, Lettering, PngOptions,
+};
 use pansite::page::Sheet;
 use pansite::scene::{
     load_obj_timed, load_open_data, load_scene_timed, parse_scene_timed, DataKind, LoadTimings,
@@ -194,18 +196,34 @@ pub fn default_output(scene: &Path, word: &str, format: Option<FormatArg>) -> Pa
     PathBuf::from("renders").join(format!("{stem}-{word}.{}", extension(format)))
 }
 
+/// `--lettering text` writes SVG text elements: refused for the other formats, which draw
+/// the strokes.
+pub fn check_lettering(lettering: LetteringArg, format: FormatArg) -> pansite::Result<()> {
+    if lettering == LetteringArg::Text && format != FormatArg::Svg {
+        return Err(Error::Setting(
+            "--lettering text writes SVG text elements and needs SVG output (.svg or --format svg); PNG and PDF draw the single-stroke letters".into(),
+        ));
+    }
+    Ok(())
+}
+
 /// Writes the sheets from `first` on that one file holds: all of them in a PDF, one in a
 /// PNG or an SVG.
 pub fn write_sheets(
     sheets: &[Sheet],
     format: FormatArg,
     png: &PngOptions,
+    lettering: LetteringArg,
     out: &mut impl Write,
     first: usize,
 ) -> pansite::Result<()> {
+    let lettering = match lettering {
+        LetteringArg::Strokes => Lettering::Strokes,
+        LetteringArg::Text => Lettering::Text,
+    };
     match format {
         FormatArg::Png => write_png(&sheets[first].drawing, png, out),
-        FormatArg::Svg => write_svg(&sheets[first], out).map_err(Error::Output),
+        FormatArg::Svg => write_svg_with(&sheets[first], lettering, out).map_err(Error::Output),
         FormatArg::Pdf => write_pdf(sheets, out),
     }
 }
@@ -259,6 +277,7 @@ pub fn write_one(sheet: &Sheet, out: &OutArgs, scene: &Path, kind: &str) -> anyh
         }
     };
     let format = output_format(&path, out.format)?;
+    check_lettering(out.lettering, format)?;
     let png = PngOptions {
         colour: false,
         dpi: Some(out.dpi),
@@ -267,12 +286,14 @@ pub fn write_one(sheet: &Sheet, out: &OutArgs, scene: &Path, kind: &str) -> anyh
     let sheets = std::slice::from_ref(sheet);
     if is_standard_stream(&path) {
         let mut bytes = Vec::new();
-        write_sheets(sheets, format, &png, &mut bytes, 0)?;
+        write_sheets(sheets, format, &png, out.lettering, &mut bytes, 0)?;
         write_stdout(&bytes)?;
         return Ok("standard output".to_owned());
     }
-    write_atomically(&path, |file| write_sheets(sheets, format, &png, file, 0))
-        .with_context(|| format!("writing {}", path.display()))?;
+    write_atomically(&path, |file| {
+        write_sheets(sheets, format, &png, out.lettering, file, 0)
+    })
+    .with_context(|| format!("writing {}", path.display()))?;
     Ok(path.display().to_string())
 }
 

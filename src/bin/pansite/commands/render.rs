@@ -1,8 +1,8 @@
 //! `pansite render`: draw a scene from a standpoint, as a panorama or laid out on paper.
 
 use super::common::{
-    choose_view, create_parent, default_output, is_standard_stream, output_format, output_paths,
-    read_site, write_sheets, write_stdout,
+    check_lettering, choose_view, create_parent, default_output, is_standard_stream, output_format,
+    output_paths, read_site, write_sheets, write_stdout,
 };
 use super::settings::{page_settings, render_settings};
 use crate::args::{FormatArg, RenderArgs};
@@ -22,11 +22,13 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
     let (site, load) = read_site(&args.scene, &args.model, args.view.at_latlon, args.quiet)?;
     let standpoint = choose_view(&site, &args.view)?;
     let settings = render_settings(args)?;
+    pansite::aids::check_divisions(&site, &settings.aids.guides.divisions)?;
     let output = match &args.output {
         Some(path) => path.clone(),
         None => default_output(&args.scene, &standpoint.name, args.format),
     };
     let format = output_format(&output, args.format)?;
+    check_lettering(args.lettering, format)?;
     let page = page_settings(args, &site, &standpoint)?;
     let (sheets, render) = draw_sheets(&site, &standpoint, &settings, page.as_ref(), args.dpi)
         .with_context(|| format!("rendering {}", output.display()))?;
@@ -54,7 +56,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         }
         // Standard output cannot be replaced atomically: encode in memory, then send it.
         let mut bytes = Vec::new();
-        write_sheets(&sheets, format, &png, &mut bytes, 0)?;
+        write_sheets(&sheets, format, &png, args.lettering, &mut bytes, 0)?;
         write_stdout(&bytes)?;
     } else {
         if args.output.is_none() {
@@ -62,7 +64,7 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         }
         for (path, first) in output_paths(&output, format, sheets.len(), columns) {
             write_atomically(&path, |file| {
-                write_sheets(&sheets, format, &png, file, first)
+                write_sheets(&sheets, format, &png, args.lettering, file, first)
             })
             .with_context(|| format!("rendering {}", path.display()))?;
             written.push(path);
@@ -94,6 +96,24 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
             eprintln!(
                 "pansite: warning: ... and {} more",
                 render.skipped.len() - MAX_NAMED_SKIPS
+            );
+        }
+        if !render.unlettered.is_empty() {
+            let chars: Vec<String> = render
+                .unlettered
+                .iter()
+                .map(|c| format!("\"{c}\" (U+{:04X})", *c as u32))
+                .collect();
+            eprintln!(
+                "pansite: warning: no letterform for {}: drawn as a crossed box",
+                chars.join(", ")
+            );
+        }
+        if render.labels_left_out > 0 {
+            eprintln!(
+                "pansite: {} label{} left out for want of room (a larger size or page, or a smaller --text-height, makes room)",
+                render.labels_left_out,
+                if render.labels_left_out == 1 { "" } else { "s" }
             );
         }
         let names: Vec<String> = if written.is_empty() {

@@ -6,7 +6,7 @@ use crate::args::{
     SunArgs, UnitArg, UpArg,
 };
 use pansite::aids::AidSettings;
-use pansite::compose::{ContactSettings, PlanSettings, PreviewSettings};
+use pansite::compose::{ContactSettings, PlanScale, PlanSettings, PreviewSettings};
 use pansite::page::{title_lines, today};
 use pansite::page::{PageSettings, Paper, Tiling};
 use pansite::plane::Equirect;
@@ -159,6 +159,7 @@ pub fn plan_settings(args: &PlanArgs) -> pansite::Result<(PlanSettings, RenderSe
         width: args.size.0,
         height: args.size.1,
         dpi: args.out.dpi,
+        scale: args.scale.map_or(PlanScale::Standard, PlanScale::Exact),
         ..PlanSettings::default()
     };
     let panorama = RenderSettings {

@@ -1,9 +1,11 @@
 //! `pansite sheet`: many standpoints as labelled thumbnails on one sheet.
 
 use super::common::{choose_view, read_site, write_one, Progress};
-use super::settings::{contact_settings, time_sweep};
+use super::settings::{contact_settings, paper, time_sweep};
 use crate::args::{PathSweep, SheetArgs, ViewArgs};
-use pansite::compose::{contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times};
+use pansite::compose::{
+    contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, SheetGrid,
+};
 use pansite::scene::Standpoint;
 use pansite::Error;
 use std::time::Instant;
@@ -48,11 +50,45 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     if standpoints.is_empty() {
         return Err(Error::NoStandpoint.into());
     }
+    // On paper: thumbnails as large as the printable area allows.
+    let paper = match &args.page {
+        Some(name) => {
+            let paper = paper(name, args.portrait)?;
+            let px_per_mm = args.out.dpi / 25.4;
+            let (w, h) = (
+                (paper.width_mm - 2.0 * args.margin) * px_per_mm,
+                (paper.height_mm - 2.0 * args.margin) * px_per_mm,
+            );
+            let fitted = (args.margin >= 0.0 && w > 0.0 && h > 0.0)
+                .then(|| SheetGrid::fit(standpoints.len(), args.columns, w, h))
+                .flatten();
+            let Some((grid, (tw, th))) = fitted else {
+                return Err(Error::Setting(format!(
+                    "{} thumbnails do not fit {} less a margin of {} mm: choose larger paper, a smaller margin or fewer standpoints",
+                    standpoints.len(),
+                    name,
+                    args.margin
+                ))
+                .into());
+            };
+            (settings.thumbnail.width, settings.thumbnail.height) = (tw, th);
+            settings.columns = Some(grid.columns as u32);
+            settings.thumbnail.validate()?;
+            Some(paper)
+        }
+        None => None,
+    };
     let progress = Progress::new("thumbnails", args.out.quiet);
     let started = Instant::now();
     let sheet = contact_sheet(&site, &standpoints, &settings, &|done, total| {
         progress.update(done, total)
     })?;
+    let sheet = match &paper {
+        Some(paper) => sheet
+            .on_paper(paper, args.margin)
+            .ok_or_else(|| Error::Setting("the thumbnails do not fit the paper".into()))?,
+        None => sheet,
+    };
     let written = write_one(&sheet, &args.out, &args.scene, "sheet")?;
     if !args.out.quiet {
         eprintln!(
