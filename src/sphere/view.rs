@@ -164,4 +164,56 @@ mod tests {
         assert_eq!(seg(p, behind), Err(Degeneracy::SeenEndOn));
         assert!(seg(p, Point3::new(6.0, 5.0, 0.0)).is_ok());
     }
+
+    #[test]
+    fn the_tolerances_scale_with_distance_and_size() {
+        // Looking along +y from the eye at (1, 2, 1.5).
+        let view = ViewFrame::new(&standpoint(0.0, 0.0, 0.0));
+        let eye = view.eye();
+        let seg = |a: Vector3<f64>, b: Vector3<f64>| {
+            view.sphere_curve(&SiteCurve::Segment {
+                start: eye + a,
+                end: eye + b,
+            })
+        };
+        // Half a nanometre a kilometre off is a point (under a part in 1e12 of its distance)...
+        let far = Vector3::new(0.0, 1000.0, 0.0);
+        let half_nanometre = Vector3::new(5e-10, 0.0, 0.0);
+        assert_eq!(seg(far, far + half_nanometre), Err(Degeneracy::ZeroLength));
+        // ...and "seen end-on" is an angle (under 1e-12 rad between the ends' directions),
+        // whatever the distance: here 5e-13 rad at one and two kilometres, then 5e-11 rad.
+        let farther = Vector3::new(0.0, 2000.0, 1e-9);
+        assert_eq!(seg(far, farther), Err(Degeneracy::SeenEndOn));
+        let curve = seg(far, Vector3::new(0.0, 2000.0, 1e-7)).expect("a thin but true arc");
+        let angle = curve.t1 - curve.t0;
+        assert!((angle - 5e-11).abs() < 1e-13, "{angle}");
+
+        let ellipse = |u: Vector3<f64>, v: Vector3<f64>, sweep: f64| {
+            let centre = eye + far;
+            view.sphere_curve(&SiteCurve::Ellipse {
+                centre,
+                u,
+                v,
+                start: 0.0,
+                sweep,
+            })
+        };
+        let (u, v) = (Vector3::new(1.0, 0.0, 0.0), Vector3::new(0.0, 0.0, 1.0));
+        assert_eq!(ellipse(u, v, 0.0), Err(Degeneracy::ZeroLength));
+        assert!(ellipse(u, v, 1.0).is_ok());
+        // Kilometre semi-axes 1e-10 m out of line: flat to a part in 1e13 of their product.
+        let (long_u, nearly_along) = (u * 1000.0, Vector3::new(1000.0, 0.0, 1e-10));
+        assert_eq!(
+            ellipse(long_u, nearly_along, 1.0),
+            Err(Degeneracy::ZeroLength)
+        );
+    }
+
+    #[test]
+    fn the_reasons_read_as_sentences_for_the_warning() {
+        // The command line warns "skipped an edge of <item>: {reason}".
+        assert_eq!(Degeneracy::ZeroLength.to_string(), "it has zero length");
+        assert!(Degeneracy::EndAtEye.to_string().contains("at the eye"));
+        assert!(Degeneracy::SeenEndOn.to_string().contains("end-on"));
+    }
 }
