@@ -403,6 +403,20 @@ fn angles_command_writes_a_table() {
             "well,point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,360.00,180.00,,"
         )
     );
+    // The same table as JSON (RFC 8259), read back with serde_json: the well stands 10 m
+    // due east of an eye at 1.6 m, so azimuth 90 and elevation 0 (plain trigonometry).
+    let out = run(&["--format", "json"]);
+    assert!(out.status.success());
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
+    assert_eq!(json["standpoint"], "gate");
+    let well = &json["rows"][0];
+    assert_eq!(
+        (&well["item"], &well["what"]),
+        (&"well".into(), &"point".into())
+    );
+    assert_eq!(well["azimuth"].as_f64(), Some(90.0));
+    assert_eq!(well["elevation"].as_f64(), Some(0.0));
+    assert!(well["x_mm"].is_null(), "no page was asked for");
     let out = run(&["--item", "pump"]);
     assert_eq!(out.status.code(), Some(2));
 }

@@ -54,6 +54,23 @@ fn daylight_lists_events_walls_and_the_cautions() {
     assert!(
         text.contains(",sunrise,") && text.contains(",sunset,") && text.contains("wall in sun")
     );
+    // As JSON, read back with serde_json: the cautions travel with the numbers.
+    let out = pansite(&["daylight", p, "--date", "2026-06-21", "--format", "json"]);
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
+    assert!(json["cautions"][0]
+        .as_str()
+        .unwrap()
+        .contains("Never look at the sun"));
+    let events: Vec<&str> = json["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|r| r["event"].as_str())
+        .collect();
+    assert!(
+        events.contains(&"sunrise") && events.contains(&"sunset"),
+        "{events:?}"
+    );
     // An unknown item and a missing day are bad input.
     let out = pansite(&["daylight", p, "--date", "2026-06-21", "--item", "barn"]);
     assert_eq!(out.status.code(), Some(2));

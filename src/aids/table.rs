@@ -17,7 +17,6 @@ use crate::sphere::{azimuth_elevation, ViewFrame};
 use nalgebra::Point3;
 use std::collections::HashSet;
 use std::f64::consts::PI;
-use std::fmt::Write;
 
 /// One row of the table.
 #[derive(Clone, Debug, PartialEq)]
@@ -255,64 +254,54 @@ pub fn to_csv(rows: &[AngleRow]) -> String {
     out
 }
 
-/// A JSON string (RFC 8259): quotes, backslashes and control characters escaped.
-fn json_string(text: &str) -> String {
-    let mut out = String::with_capacity(text.len() + 2);
-    out.push('"');
-    for c in text.chars() {
-        match c {
-            '"' => out.push_str("\\\""),
-            '\\' => out.push_str("\\\\"),
-            '\n' => out.push_str("\\n"),
-            '\r' => out.push_str("\\r"),
-            '\t' => out.push_str("\\t"),
-            c if (c as u32) < 0x20 => {
-                let _ = write!(out, "\\u{:04x}", c as u32);
-            }
-            c => out.push(c),
-        }
-    }
-    out.push('"');
+/// A JSON object (RFC 8259, written by serde_json): the standpoint and image, then `rows`,
+/// an array of objects with the columns as keys (numbers as numbers; the page columns
+/// `null` without a page).
+pub fn to_json(rows: &[AngleRow], standpoint: &Standpoint, map: &Equirect) -> String {
+    let eye = standpoint.eye();
+    let rows: Vec<serde_json::Value> = rows
+        .iter()
+        .map(|row| {
+            let fields =
+                COLUMNS
+                    .iter()
+                    .zip(cells(row))
+                    .enumerate()
+                    .map(|(k, ((name, _), cell))| {
+                        // The first two columns (item, what) are words; the rest are numbers or blank.
+                        let value = if k < 2 {
+                            serde_json::Value::String(cell)
+                        } else {
+                            json_number(&cell)
+                        };
+                        (name.to_string(), value)
+                    });
+            serde_json::Value::Object(fields.collect())
+        })
+        .collect();
+    let table = serde_json::json!({
+        "standpoint": standpoint.name,
+        "eye": [round(standpoint.x, 3), round(standpoint.y, 3), round(eye.z, 3)],
+        "heading": round(super::marks::normal_azimuth_deg(standpoint.heading.to_degrees()), 3),
+        "image_px": [map.width(), map.height()],
+        "rows": rows,
+    });
+    let mut out = serde_json::to_string_pretty(&table).expect("a JSON value always serialises");
+    out.push('\n');
     out
 }
 
-/// A JSON object: the standpoint and image, then `rows`, an array of objects with the
-/// columns as keys (numbers as numbers; the page columns `null` without a page).
-pub fn to_json(rows: &[AngleRow], standpoint: &Standpoint, map: &Equirect) -> String {
-    let mut out = String::new();
-    let _ = write!(
-        out,
-        "{{\n  \"standpoint\": {},\n  \"eye\": [{}, {}, {}],\n  \"heading\": {},\n  \"image_px\": [{}, {}],\n  \"rows\": [",
-        json_string(&standpoint.name),
-        fixed(standpoint.x, 3),
-        fixed(standpoint.y, 3),
-        fixed(standpoint.eye().z, 3),
-        fixed(super::marks::normal_azimuth_deg(standpoint.heading.to_degrees()), 3),
-        map.width(),
-        map.height()
-    );
-    for (i, row) in rows.iter().enumerate() {
-        let cells = cells(row);
-        let fields: Vec<String> = COLUMNS
-            .iter()
-            .zip(&cells)
-            .enumerate()
-            .map(|(k, ((name, _), cell))| {
-                let value = if k < 2 {
-                    json_string(cell)
-                } else if cell.is_empty() {
-                    "null".to_owned()
-                } else {
-                    cell.clone()
-                };
-                format!("\"{name}\": {value}")
-            })
-            .collect();
-        let comma = if i + 1 < rows.len() { "," } else { "" };
-        let _ = write!(out, "\n    {{{}}}{comma}", fields.join(", "));
-    }
-    out.push_str("\n  ]\n}\n");
-    out
+/// A cell written by [`fixed`] as a JSON number, or `null` when blank.
+fn json_number(cell: &str) -> serde_json::Value {
+    cell.parse::<f64>()
+        .ok()
+        .and_then(serde_json::Number::from_f64)
+        .map_or(serde_json::Value::Null, serde_json::Value::Number)
+}
+
+/// `value` rounded to `decimals` places, as the text columns show it.
+fn round(value: f64, decimals: usize) -> f64 {
+    fixed(value, decimals).parse().unwrap_or(value)
 }
 
 /// An aligned text table: names to the left, numbers to the right, a header and a rule.
@@ -406,11 +395,14 @@ mod tests {
             Some("\"well, \"\"old\"\"\",point,10.000,0.000,1.600,90.000,0.000,0.000,10.000,1800.00,900.00,,,,")
         );
         let json = to_json(&rows, &s, &Equirect::from_size_px(3600.0, 1800.0));
-        assert!(
-            json.contains("\"item\": \"well, \\\"old\\\"\", \"what\": \"point\""),
-            "{json}"
-        );
-        assert!(json.contains("\"x_mm\": null"));
+        let parsed: serde_json::Value = serde_json::from_str(&json).expect("valid JSON");
+        let first = &parsed["rows"][0];
+        assert_eq!(first["item"], "well, \"old\"");
+        assert_eq!(first["what"], "point");
+        assert_eq!(first["azimuth"], 90.0);
+        assert_eq!(first["x_px"], 1800.0);
+        assert!(first["x_mm"].is_null());
+        assert_eq!(parsed["image_px"], serde_json::json!([3600.0, 1800.0]));
         let text = to_text(&rows);
         let widths: Vec<usize> = text.lines().skip(2).map(|l| l.len()).collect();
         assert!(widths.iter().all(|&w| w == widths[0]), "{text}");

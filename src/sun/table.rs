@@ -10,7 +10,6 @@ use crate::error::{Error, Result};
 use crate::scene::{label_matches, ItemId, Site};
 use crate::visibility::Bvh;
 use jiff::civil::Date;
-use std::fmt::Write as _;
 
 /// The longest table, rows: a year at one-minute steps.
 pub const MAX_ROWS: usize = 600_000;
@@ -290,55 +289,42 @@ pub fn table_csv(sky: &Sky, rows: &[SunRow]) -> String {
     out
 }
 
-/// JSON: the place, the zone, the cautions and `rows` (numbers as numbers, missing
-/// ones `null`).
+/// JSON (RFC 8259, written by serde_json): the place, the zone, the cautions and `rows`
+/// (numbers as numbers, missing ones `null`).
 pub fn table_json(sky: &Sky, rows: &[SunRow]) -> String {
-    let text = |s: &str| {
-        let mut out = String::from('"');
-        for c in s.chars() {
-            match c {
-                '"' => out.push_str("\\\""),
-                '\\' => out.push_str("\\\\"),
-                c if (c as u32) < 0x20 => {
-                    let _ = write!(out, "\\u{:04x}", c as u32);
-                }
-                c => out.push(c),
-            }
-        }
-        out.push('"');
-        out
-    };
-    let cautions: Vec<String> = CAUTIONS.iter().map(|c| text(c)).collect();
-    let mut out = format!(
-        "{{\n  \"latitude\": {},\n  \"longitude\": {},\n  \"height\": {},\n  \"north\": {},\n  \"time_zone\": {},\n  \"cautions\": [{}],\n  \"rows\": [",
-        sky.location.latitude_deg,
-        sky.location.longitude_deg,
-        sky.location.height_m,
-        sky.location.north_deg,
-        text(sky.clock.name()),
-        cautions.join(", ")
-    );
-    for (i, row) in rows.iter().enumerate() {
-        let cells = cells(row);
-        let fields: Vec<String> = COLUMNS
-            .iter()
-            .zip(&cells)
-            .enumerate()
-            .map(|(k, (name, cell))| {
-                let value = if !(4..7).contains(&k) {
-                    text(cell)
-                } else if cell.is_empty() {
-                    "null".to_owned()
-                } else {
-                    cell.clone()
-                };
-                format!("\"{name}\": {value}")
-            })
-            .collect();
-        let comma = if i + 1 < rows.len() { "," } else { "" };
-        let _ = write!(out, "\n    {{{}}}{comma}", fields.join(", "));
-    }
-    out.push_str("\n  ]\n}\n");
+    let rows: Vec<serde_json::Value> = rows
+        .iter()
+        .map(|row| {
+            let fields = COLUMNS
+                .iter()
+                .zip(cells(row))
+                .enumerate()
+                .map(|(k, (name, cell))| {
+                    // Columns 4 to 6 are the angles; the others are words.
+                    let value = if (4..7).contains(&k) {
+                        cell.parse::<f64>()
+                            .ok()
+                            .and_then(serde_json::Number::from_f64)
+                            .map_or(serde_json::Value::Null, serde_json::Value::Number)
+                    } else {
+                        serde_json::Value::String(cell)
+                    };
+                    (name.to_string(), value)
+                });
+            serde_json::Value::Object(fields.collect())
+        })
+        .collect();
+    let table = serde_json::json!({
+        "latitude": sky.location.latitude_deg,
+        "longitude": sky.location.longitude_deg,
+        "height": sky.location.height_m,
+        "north": sky.location.north_deg,
+        "time_zone": sky.clock.name(),
+        "cautions": CAUTIONS,
+        "rows": rows,
+    });
+    let mut out = serde_json::to_string_pretty(&table).expect("a JSON value always serialises");
+    out.push('\n');
     out
 }
 
@@ -416,8 +402,18 @@ mod tests {
             csv.lines().filter(|l| l.starts_with("2026-")).count(),
             rows.len()
         );
-        let json = table_json(&sky, &rows);
-        assert!(json.contains("\"cautions\"") && json.contains("\"event\": \"transit\""));
+        let json: serde_json::Value = serde_json::from_str(&table_json(&sky, &rows)).unwrap();
+        assert!(json["cautions"][0]
+            .as_str()
+            .unwrap()
+            .contains("Never look at the sun"));
+        let table = json["rows"].as_array().unwrap();
+        assert_eq!(table.len(), rows.len());
+        let transit = table
+            .iter()
+            .find(|r| r["event"] == "transit")
+            .expect("a transit");
+        assert!(transit["elevation"].as_f64().unwrap() > 0.0);
         assert!(sun_table(&site, &sky, &request(Some("nothing"), false)).is_err());
     }
 }
