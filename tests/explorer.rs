@@ -2,6 +2,8 @@
 //! malformed requests can be sent too): the door checks, range checks, keeping a standpoint
 //! byte for byte, printing into the output folder only, and a load of 1,000 renders.
 
+mod common;
+use common::Scratch;
 use pansite::explore::{ExploreSettings, Explorer, Source};
 use pansite::scene::{load_obj, MeshPlacement};
 use std::io::{Read, Write};
@@ -17,25 +19,19 @@ fn demo() -> String {
     .unwrap()
 }
 
-fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("pansite-explorer-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
-
 /// A scene file in a fresh folder, and an explorer on it writing into `out/`.
-fn start(name: &str) -> (Explorer, PathBuf, PathBuf) {
-    let dir = temp_dir(name);
-    let scene = dir.join("square.ron");
+/// The folder comes first so that it outlives the explorer (bindings drop in reverse).
+fn start(name: &str) -> (Scratch, Explorer, PathBuf, PathBuf) {
+    let dir = Scratch::new(&format!("explorer-{name}"));
+    let scene = dir.path("square.ron");
     std::fs::write(&scene, demo()).unwrap();
-    let out = dir.join("out");
+    let out = dir.path("out");
     let explorer = Explorer::start(ExploreSettings::new(
         Source::Scene(scene.clone()),
         out.clone(),
     ))
     .unwrap();
-    (explorer, scene, out)
+    (dir, explorer, scene, out)
 }
 
 struct Answer {
@@ -144,7 +140,7 @@ fn files_in(dir: &Path) -> Vec<String> {
 
 #[test]
 fn the_page_and_images_are_served_with_a_strict_policy() {
-    let (explorer, _, _) = start("serve");
+    let (_dir, explorer, _, _) = start("serve");
     let page = get(&explorer, "/");
     assert_eq!(page.status, 200);
     assert!(page.text().contains("<canvas id=\"underlay\""));
@@ -182,7 +178,7 @@ fn the_page_and_images_are_served_with_a_strict_policy() {
 
 #[test]
 fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_written() {
-    let (explorer, scene, out) = start("door");
+    let (_dir, explorer, scene, out) = start("door");
     let before = std::fs::read(&scene).unwrap();
     let token = explorer.token().to_owned();
     let origin = own_origin(&explorer);
@@ -240,7 +236,7 @@ fn wrong_hosts_missing_tokens_and_foreign_origins_are_refused_and_nothing_is_wri
 
 #[test]
 fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
-    let (explorer, scene, out) = start("params");
+    let (_dir, explorer, scene, out) = start("params");
     let cases = [
         ("/underlay.png?x=../../etc/passwd&y=0&w=256&h=128", "'x'"),
         (
@@ -299,7 +295,7 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
 
 #[test]
 fn malformed_and_huge_requests_are_refused_and_the_server_carries_on() {
-    let (explorer, scene, _) = start("huge");
+    let (_dir, explorer, scene, _) = start("huge");
     let before = std::fs::read(&scene).unwrap();
     let token = explorer.token().to_owned();
     let origin = own_origin(&explorer);
@@ -351,7 +347,7 @@ fn one_insertion(old: &[u8], new: &[u8], name: &str) -> bool {
 
 #[test]
 fn keeping_a_standpoint_inserts_one_line_and_refuses_when_the_file_changed() {
-    let (explorer, scene, _) = start("keep");
+    let (_dir, explorer, scene, _) = start("keep");
     let before = std::fs::read(&scene).unwrap();
     let token = explorer.token().to_owned();
     let origin = own_origin(&explorer);
@@ -387,12 +383,12 @@ fn keeping_a_standpoint_inserts_one_line_and_refuses_when_the_file_changed() {
 fn a_scene_from_standard_input_cannot_keep_and_says_why() {
     let site =
         pansite::scene::parse_scene(demo().as_bytes(), Path::new("<stdin>"), "stdin").unwrap();
-    let dir = temp_dir("stdin");
+    let dir = Scratch::new("explorer-stdin");
     let source = Source::Fixed {
         site: Box::new(site),
         reason: "the scene was read from standard input".into(),
     };
-    let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
+    let explorer = Explorer::start(ExploreSettings::new(source, dir.path("out"))).unwrap();
     let scene: serde_json::Value = serde_json::from_slice(&get(&explorer, "/scene").body).unwrap();
     assert_eq!(scene["keep"], false);
     assert!(scene["no_keep_reason"]
@@ -409,14 +405,14 @@ fn a_scene_from_standard_input_cannot_keep_and_says_why() {
     );
     assert_eq!(answer.status, 409);
     assert!(answer.text().contains("standard input"));
-    assert_eq!(files_in(&dir), Vec::<String>::new());
+    assert_eq!(files_in(&dir.0), Vec::<String>::new());
     explorer.stop();
 }
 
 #[test]
 fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
-    let dir = temp_dir("model");
-    let model = dir.join("cube.obj");
+    let dir = Scratch::new("explorer-model");
+    let model = dir.path("cube.obj");
     let fixture =
         Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/obj/cube_triangles.obj");
     std::fs::copy(&fixture, &model).unwrap();
@@ -428,7 +424,7 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
         }),
         model_item: Some("Model(file: \"cube.obj\")".into()),
     };
-    let explorer = Explorer::start(ExploreSettings::new(source, dir.join("out"))).unwrap();
+    let explorer = Explorer::start(ExploreSettings::new(source, dir.path("out"))).unwrap();
     let token = explorer.token().to_owned();
     let origin = own_origin(&explorer);
     for (name, x) in [("first", 5.0), ("second", -5.0)] {
@@ -437,7 +433,7 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
         assert_eq!(answer.status, 200, "{}", answer.text());
     }
     assert_eq!(std::fs::read(&model).unwrap(), model_bytes);
-    let beside = dir.join("cube-standpoints.ron");
+    let beside = dir.path("cube-standpoints.ron");
     let site = pansite::scene::load_scene(&beside).unwrap();
     let names: Vec<&str> = site.standpoints.iter().map(|s| s.name.as_str()).collect();
     assert_eq!(names, ["first", "second"]);
@@ -447,7 +443,7 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
 
 #[test]
 fn print_writes_into_the_output_folder_only() {
-    let (explorer, scene, out) = start("print");
+    let (_dir, explorer, scene, out) = start("print");
     let token = explorer.token().to_owned();
     let origin = own_origin(&explorer);
     let body = r#"{"x":1.5,"y":-4,"heading":10,"paper":"A4","format":"pdf"}"#;
@@ -462,7 +458,7 @@ fn print_writes_into_the_output_folder_only() {
 
 #[test]
 fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
-    let (explorer, _, _) = start("replace");
+    let (_dir, explorer, _, _) = start("replace");
     // Many requests for one pane at once: each is answered, by an image or as replaced.
     let explorer = Arc::new(explorer);
     let threads: Vec<_> = (0..12)

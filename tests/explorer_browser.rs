@@ -9,6 +9,8 @@
 use headless_chrome::protocol::cdp::Input;
 use headless_chrome::protocol::cdp::Page::CaptureScreenshotFormatOption;
 use headless_chrome::{Browser, LaunchOptions, Tab};
+mod common;
+use common::Scratch;
 use pansite::compose::{plan_map, PlanSettings};
 use pansite::explore::{ExploreSettings, Explorer, Source};
 use std::ffi::OsStr;
@@ -220,21 +222,19 @@ fn screen_of_site(tab: &Tab, site: &pansite::scene::Site, x: f64, y: f64) -> (f6
 
 #[test]
 fn the_page_in_chromium() {
-    let dir = std::env::temp_dir().join(format!("pansite-explorer-browser-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let scene = dir.join("square.ron");
+    let dir = Scratch::new("explorer-browser");
+    let scene = dir.path("square.ron");
     let original = std::fs::read_to_string(
         Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
     )
     .unwrap();
     std::fs::write(&scene, &original).unwrap();
     let site = pansite::scene::load_scene(&scene).unwrap();
-    let mut settings = ExploreSettings::new(Source::Scene(scene.clone()), dir.join("out"));
+    let mut settings = ExploreSettings::new(Source::Scene(scene.clone()), dir.path("out"));
     settings.poll = Duration::from_millis(100);
     let explorer = Arc::new(Explorer::start(settings).unwrap());
 
-    let browser = launch(&dir.join("profile"));
+    let browser = launch(&dir.path("profile"));
     let tab = browser.new_tab().unwrap();
     tab.set_default_timeout(Duration::from_secs(30));
     tab.navigate_to(&explorer.url())
@@ -289,7 +289,7 @@ fn the_page_in_chromium() {
 
     // The underlay shown equals `pansite render` for that standpoint.
     let (w, h, shown) = canvas_pixels(&tab, "underlay");
-    let rendered = dir.join("render.png");
+    let rendered = dir.path("render.png");
     let status = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
         .arg("render")
         .arg(&scene)
@@ -403,7 +403,7 @@ fn the_page_in_chromium() {
     // Saving the scene (by renaming, as editors do) updates the page.
     let version = eval(&tab, "document.getElementById('underlay').dataset.version");
     let renamed = original.replace("Wexcombe Market Square\"", "Wexcombe Square, saved\"");
-    save(&dir, &scene, &renamed);
+    save(&dir.0, &scene, &renamed);
     wait_for(
         &tab,
         "document.getElementById('scene-name').textContent === 'Wexcombe Square, saved'",
@@ -419,7 +419,7 @@ fn the_page_in_chromium() {
     // A broken scene: its error is shown (file, line, column) and the drawing stays.
     let (_, _, before_break) = canvas_pixels(&tab, "underlay");
     let broken = renamed.replacen("width: 25,", "width: 25,,", 1);
-    save(&dir, &scene, &broken);
+    save(&dir.0, &scene, &broken);
     wait_for(
         &tab,
         "!document.getElementById('problem').hidden",
@@ -441,7 +441,7 @@ fn the_page_in_chromium() {
     assert_eq!(before_break, after_break, "the last good drawing stays");
 
     // Mended, then keep this standpoint: one line inserted, every other byte unchanged.
-    save(&dir, &scene, &renamed);
+    save(&dir.0, &scene, &renamed);
     wait_for(
         &tab,
         "document.getElementById('problem').hidden",

@@ -3,6 +3,8 @@
 //! 10 % of that after the first 100. In a test binary of its own, so that no other test
 //! shares the process whose memory is measured.
 
+mod common;
+use common::Scratch;
 use pansite::explore::{ExploreSettings, Explorer, Source};
 use std::io::{Read, Write};
 use std::net::TcpStream;
@@ -10,17 +12,18 @@ use std::path::Path;
 use std::sync::Arc;
 use std::time::Duration;
 
-fn start() -> Explorer {
-    let dir = std::env::temp_dir().join(format!("pansite-explorer-load-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let scene = dir.join("square.ron");
+/// The demo in a fresh folder and an explorer on it; the folder outlives the explorer.
+fn start() -> (Scratch, Explorer) {
+    let dir = Scratch::new("explorer-load");
+    let scene = dir.path("square.ron");
     std::fs::copy(
         Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
         &scene,
     )
     .unwrap();
-    Explorer::start(ExploreSettings::new(Source::Scene(scene), dir.join("out"))).unwrap()
+    let explorer =
+        Explorer::start(ExploreSettings::new(Source::Scene(scene), dir.path("out"))).unwrap();
+    (dir, explorer)
 }
 
 /// A GET over a fresh connection: the status and the body (images come whole, with a
@@ -56,7 +59,7 @@ fn resident_bytes() -> u64 {
 
 #[test]
 fn twenty_clients_and_a_thousand_renders_all_answered_without_growth() {
-    let explorer = start();
+    let (_dir, explorer) = start();
     let explorer = Arc::new(explorer);
     let done = Arc::new(std::sync::atomic::AtomicUsize::new(0));
     let memory = Arc::new(std::sync::Mutex::new((0u64, 0u64)));

@@ -1,8 +1,9 @@
 //! The sun on the command line: `pansite daylight`, `render --date --time`, `angles` with
 //! shadows, refused clock times, run for real.
 
+mod common;
+use common::{pansite, Scratch};
 use std::path::PathBuf;
-use std::process::{Command, Output};
 
 const SCENE: &str = r#"Scene(
     name: "Saltmarsh Yard",
@@ -14,36 +15,30 @@ const SCENE: &str = r#"Scene(
     ],
 )"#;
 
-fn scene(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("pansite-sun-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("yard.ron");
-    std::fs::write(&path, SCENE).unwrap();
-    path
-}
-
-fn pansite(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .args(args)
-        .output()
-        .unwrap()
+/// The yard in a fresh folder (removed when the folder is dropped).
+fn scene(name: &str) -> (Scratch, PathBuf) {
+    let dir = Scratch::new(&format!("sun-{name}"));
+    let path = dir.write("yard.ron", SCENE);
+    (dir, path)
 }
 
 #[test]
 fn daylight_lists_events_walls_and_the_cautions() {
-    let path = scene("daylight");
+    let (dir, path) = scene("daylight");
     let p = path.to_str().unwrap();
-    let out = pansite(&[
-        "daylight",
-        p,
-        "--date",
-        "2026-06-21",
-        "--item",
-        "store",
-        "--format",
-        "csv",
-    ]);
+    let out = pansite(
+        &dir,
+        &[
+            "daylight",
+            p,
+            "--date",
+            "2026-06-21",
+            "--item",
+            "store",
+            "--format",
+            "csv",
+        ],
+    );
     assert!(
         out.status.success(),
         "{}",
@@ -55,7 +50,10 @@ fn daylight_lists_events_walls_and_the_cautions() {
         text.contains(",sunrise,") && text.contains(",sunset,") && text.contains("wall in sun")
     );
     // As JSON, read back with serde_json: the cautions travel with the numbers.
-    let out = pansite(&["daylight", p, "--date", "2026-06-21", "--format", "json"]);
+    let out = pansite(
+        &dir,
+        &["daylight", p, "--date", "2026-06-21", "--format", "json"],
+    );
     let json: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
     assert!(json["cautions"][0]
         .as_str()
@@ -72,29 +70,35 @@ fn daylight_lists_events_walls_and_the_cautions() {
         "{events:?}"
     );
     // An unknown item and a missing day are bad input.
-    let out = pansite(&["daylight", p, "--date", "2026-06-21", "--item", "barn"]);
+    let out = pansite(
+        &dir,
+        &["daylight", p, "--date", "2026-06-21", "--item", "barn"],
+    );
     assert_eq!(out.status.code(), Some(2));
-    let out = pansite(&["daylight", p]);
+    let out = pansite(&dir, &["daylight", p]);
     assert_eq!(out.status.code(), Some(2));
 }
 
 #[test]
 fn render_with_a_date_and_time_draws_shadows_and_refuses_a_skipped_hour() {
-    let path = scene("render");
+    let (dir, path) = scene("render");
     let p = path.to_str().unwrap();
     let svg = path.with_file_name("yard.svg");
-    let out = pansite(&[
-        "render",
-        p,
-        "--size",
-        "1024x512",
-        "--date",
-        "2026-06-21",
-        "--time",
-        "16:00",
-        "-o",
-        svg.to_str().unwrap(),
-    ]);
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            p,
+            "--size",
+            "1024x512",
+            "--date",
+            "2026-06-21",
+            "--time",
+            "16:00",
+            "-o",
+            svg.to_str().unwrap(),
+        ],
+    );
     assert!(
         out.status.success(),
         "{}",
@@ -103,16 +107,19 @@ fn render_with_a_date_and_time_draws_shadows_and_refuses_a_skipped_hour() {
     let text = std::fs::read_to_string(&svg).unwrap();
     assert!(text.contains("shadows") && text.contains("sun path"));
     let refused = path.with_file_name("refused.png");
-    let out = pansite(&[
-        "render",
-        p,
-        "--date",
-        "2026-03-29",
-        "--time",
-        "01:30",
-        "-o",
-        refused.to_str().unwrap(),
-    ]);
+    let out = pansite(
+        &dir,
+        &[
+            "render",
+            p,
+            "--date",
+            "2026-03-29",
+            "--time",
+            "01:30",
+            "-o",
+            refused.to_str().unwrap(),
+        ],
+    );
     assert_eq!(out.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.contains("before 01:00 or from 02:00"), "{stderr}");
@@ -121,20 +128,23 @@ fn render_with_a_date_and_time_draws_shadows_and_refuses_a_skipped_hour() {
 
 #[test]
 fn angles_lists_the_shadows_corners() {
-    let path = scene("angles");
+    let (dir, path) = scene("angles");
     let p = path.to_str().unwrap();
-    let out = pansite(&[
-        "angles",
-        p,
-        "--date",
-        "2026-06-21",
-        "--time",
-        "16:00",
-        "--item",
-        "shadows",
-        "--format",
-        "csv",
-    ]);
+    let out = pansite(
+        &dir,
+        &[
+            "angles",
+            p,
+            "--date",
+            "2026-06-21",
+            "--time",
+            "16:00",
+            "--item",
+            "shadows",
+            "--format",
+            "csv",
+        ],
+    );
     assert!(
         out.status.success(),
         "{}",
