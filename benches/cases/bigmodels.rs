@@ -130,15 +130,10 @@ pub fn child() {
     let _ = end_to_end(&text, &standpoint, HiddenEdges::Faint);
 }
 
-fn median(mut values: Vec<Duration>) -> Duration {
-    values.sort();
-    values[values.len() / 2]
-}
-
 pub fn run(floor_time: Duration, peak: Option<u64>) {
     let (text, standpoint) = town_obj();
     let f = |d: Duration| d.as_secs_f64() / floor_time.as_secs_f64();
-    let ms = |d: Duration| d.as_secs_f64() * 1e3;
+    let ms = super::ms;
     let faint: Vec<Stages> = (0..RUNS)
         .map(|_| end_to_end(&text, &standpoint, HiddenEdges::Faint).0)
         .collect();
@@ -146,10 +141,10 @@ pub fn run(floor_time: Duration, peak: Option<u64>) {
         let runs: Vec<(Stages, Site)> = (0..RUNS)
             .map(|_| end_to_end(&text, &standpoint, HiddenEdges::Solid))
             .collect();
-        let visibility = median(runs.iter().map(|r| r.0.visibility).collect());
+        let visibility = super::median(runs.iter().map(|r| r.0.visibility).collect());
         (visibility, runs.into_iter().next().unwrap().1)
     };
-    let pick = |g: fn(&Stages) -> Duration| median(faint.iter().map(g).collect());
+    let pick = |g: fn(&Stages) -> Duration| super::median(faint.iter().map(g).collect());
     let (parse, mesh, visibility, hierarchy, raster_encode, total) = (
         pick(|s| s.parse),
         pick(|s| s.mesh),

@@ -12,26 +12,12 @@ use pansite::page::{PageSettings, Paper};
 use pansite::render::{draw_sheets, RenderSettings};
 use pansite::scene::parse_scene;
 use std::path::Path;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 const RUNS: usize = 5;
 
-fn best(runs: usize, mut f: impl FnMut()) -> Duration {
-    (0..runs)
-        .map(|_| {
-            let started = Instant::now();
-            f();
-            started.elapsed()
-        })
-        .min()
-        .unwrap_or_default()
-}
-
 pub fn run(floor_time: Duration) {
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
-    )
-    .unwrap();
+    let text = super::demo_scene();
     let site = parse_scene(text.as_bytes(), Path::new("demo.ron"), "demo").unwrap();
     let standpoint = site.standpoints[0].clone();
     let page = PageSettings {
@@ -64,10 +50,10 @@ pub fn run(floor_time: Duration) {
             .count()
     };
     let labels = draw(&labelled);
-    let with = best(RUNS, || {
+    let with = super::best(RUNS, || {
         draw(&labelled);
     });
-    let without = best(RUNS, || {
+    let without = super::best(RUNS, || {
         draw(&unlabelled);
     });
     let added = with.saturating_sub(without);

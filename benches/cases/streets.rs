@@ -56,15 +56,6 @@ fn ground_scene(draw: &str) -> String {
     )
 }
 
-fn median(mut values: Vec<Duration>) -> Duration {
-    values.sort();
-    values[values.len() / 2]
-}
-
-fn ms(d: Duration) -> f64 {
-    d.as_secs_f64() * 1e3
-}
-
 pub fn run(floor_time: Duration) {
     let demo = std::fs::read_to_string(
         Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/stannock-hill.ron"),
@@ -76,27 +67,27 @@ pub fn run(floor_time: Duration) {
     );
     whole(&demo);
     let runs: Vec<(Duration, Duration)> = (0..RUNS).map(|_| whole(&demo)).collect();
-    let parse = median(runs.iter().map(|r| r.0).collect());
-    let render = median(runs.iter().map(|r| r.1).collect());
+    let parse = super::median(runs.iter().map(|r| r.0).collect());
+    let render = super::median(runs.iter().map(|r| r.1).collect());
     let total = parse + render;
     println!(
         "hill-town demo: parse {:.1} ms, render {:.1} ms, together {:.1} ms = {:.2} x F (target: within 4 x F)",
-        ms(parse),
-        ms(render),
-        ms(total),
+        super::ms(parse),
+        super::ms(render),
+        super::ms(total),
         total.as_secs_f64() / floor_time.as_secs_f64()
     );
     for draw in ["Grid", "Outline"] {
         let scene = ground_scene(draw);
         let runs: Vec<(Duration, Duration)> = (0..RUNS).map(|_| whole(&scene)).collect();
-        let parse = median(runs.iter().map(|r| r.0).collect());
-        let render = median(runs.iter().map(|r| r.1).collect());
+        let parse = super::median(runs.iter().map(|r| r.0).collect());
+        let render = super::median(runs.iter().map(|r| r.1).collect());
         let total = parse + render;
         println!(
             "ground of 10,000 spot heights, drawn as {draw}: triangulate (with parse) {:.1} ms, render {:.1} ms, together {:.1} ms = {:.2} x F (target: under 400 ms)",
-            ms(parse),
-            ms(render),
-            ms(total),
+            super::ms(parse),
+            super::ms(render),
+            super::ms(total),
             total.as_secs_f64() / floor_time.as_secs_f64()
         );
     }

@@ -11,26 +11,12 @@ use pansite::scene::{parse_scene, LocalMoment, Location};
 use pansite::sun::Sky;
 use pansite::sun::{sun_table, TableRequest};
 use std::path::Path;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 const RUNS: usize = 5;
 
-fn best(runs: usize, mut f: impl FnMut()) -> Duration {
-    (0..runs)
-        .map(|_| {
-            let started = Instant::now();
-            f();
-            started.elapsed()
-        })
-        .min()
-        .unwrap_or_default()
-}
-
 pub fn run(floor_time: Duration) {
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
-    )
-    .unwrap();
+    let text = super::demo_scene();
     let mut site = parse_scene(text.as_bytes(), Path::new("demo.ron"), "demo").unwrap();
     // The invented town placed at an invented spot in a temperate latitude.
     site.location = Some(Location {
@@ -60,8 +46,8 @@ pub fn run(floor_time: Duration) {
         render_png_to(&site, &standpoint, settings, std::io::sink()).unwrap();
     };
     render(&shadowed);
-    let without = best(RUNS, || render(&plain));
-    let with = best(RUNS, || render(&shadowed));
+    let without = super::best(RUNS, || render(&plain));
+    let with = super::best(RUNS, || render(&shadowed));
     let added = with.saturating_sub(without);
     let f = floor_time.as_secs_f64();
     println!();
@@ -82,7 +68,7 @@ pub fn run(floor_time: Duration) {
         blocking: false,
     };
     let mut rows = 0;
-    let year = best(3, || rows = sun_table(&site, &sky, &request).unwrap().len());
+    let year = super::best(3, || rows = sun_table(&site, &sky, &request).unwrap().len());
     println!(
         "  a year's table at 10-minute steps ({rows} rows): {:.0} ms = {:.2} x F (target < 1 s)",
         year.as_secs_f64() * 1e3,
