@@ -315,6 +315,7 @@ pub fn draw_with_hidden_lines(
             let name = wireframe_layer_name(wire.site_layer.as_deref());
             by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
+                filled: false,
                 text: None,
                 name: match wire.distance {
                     Distance::Middle => name,
