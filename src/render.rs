@@ -96,7 +96,7 @@ impl SunChoice {
             drawing,
             pick(self.shadows, scene.map(|s| s.shadows), true),
             hatch,
-            self.tone,
+            self.tone || scene.is_some_and(|s| s.tone),
         ))
     }
 }
