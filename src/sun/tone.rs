@@ -14,7 +14,7 @@
 //! as their union.
 //!
 //! The work grows with the square of the faces (the pairs are culled by their extents
-//! across the sun's rays and on the plane).
+//! across the sun's rays, by cones from the eye round each face, and on the plane).
 
 use crate::scene::{Face, Site};
 use nalgebra::{Point3, Vector2, Vector3};
@@ -79,6 +79,44 @@ pub fn seen_shade(
     let extents: Vec<_> = site.faces.iter().map(|f| across(&f.corners)).collect();
     let overlaps = |a: &((f64, f64), (f64, f64)), b: &((f64, f64), (f64, f64))| {
         a.0 .0 <= b.0 .1 && b.0 .0 <= a.0 .1 && a.1 .0 <= b.1 .1 && b.1 .0 <= a.1 .1
+    };
+    // Cones from the eye round each face's bounding sphere, to cull the faces that cannot
+    // stand in front of a receiver: (unit direction, angular radius, nearest and farthest
+    // distance).
+    let cones: Vec<(Vector3<f64>, f64, f64, f64)> = site
+        .faces
+        .iter()
+        .map(|f| {
+            let centre = Point3::from(
+                (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0,
+            );
+            let radius = f
+                .corners
+                .iter()
+                .map(|c| (c - centre).norm())
+                .fold(0.0, f64::max);
+            let to = centre - eye;
+            let distance = to.norm();
+            let angle = if distance > radius {
+                (radius / distance).asin()
+            } else {
+                std::f64::consts::PI
+            };
+            (
+                to / distance.max(1e-300),
+                angle,
+                distance - radius,
+                distance + radius,
+            )
+        })
+        .collect();
+    let may_hide = |hider: usize, receiver: usize| {
+        let (h, r) = (&cones[hider], &cones[receiver]);
+        if h.2 > r.3 {
+            return false; // wholly beyond the receiver
+        }
+        let reach = h.1 + r.1;
+        reach >= std::f64::consts::PI || h.0.dot(&r.0).clamp(-1.0, 1.0).acos() <= reach
     };
     let mut receivers: Vec<(Option<usize>, PlaneFrame)> = Vec::new();
     if site.ground.is_none() {
@@ -147,7 +185,7 @@ pub fn seen_shade(
             continue;
         }
         for (j, face) in site.faces.iter().enumerate() {
-            if Some(j) == *index || shade.is_empty() {
+            if Some(j) == *index || shade.is_empty() || index.is_some_and(|i| !may_hide(j, i)) {
                 continue;
             }
             let Some(hider) = carried_from_eye(face, plane, eye, eye_height) else {
