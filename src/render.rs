@@ -13,12 +13,13 @@ use crate::output::{
     rasterize, rasterize_grey_png_within, write_atomically, GreyCanvas, MAX_PIXELS,
 };
 use crate::page::{label_frame, PageSettings, Sheet, HALO_MM};
-use crate::plane::{Equirect, Flattener, DEFAULT_TOLERANCE_PX};
+use crate::plane::{area_outlines, Equirect, Flattener, PolylineSet, DEFAULT_TOLERANCE_PX};
 use crate::scene::{HiddenEdges, LocalMoment, Site, Standpoint, StyleSheet};
 use crate::sphere::ViewFrame;
-use crate::sun::with_shadows_and_hatching;
 use crate::sun::Sky;
+use crate::sun::{seen_shade, with_shadows_and_hatching};
 use crate::visibility::HiddenLines;
+use nalgebra::Point3;
 use std::io::Write;
 use std::path::Path;
 use std::time::{Duration, Instant};
@@ -69,12 +70,15 @@ pub struct SunChoice {
     pub shadows: Option<bool>,
     /// Hatching of what is in shadow, lines this many metres apart.
     pub hatch_m: Option<f64>,
+    /// A filled tone over the shade the eye sees (layer [`SHADOW_TONE`]).
+    pub tone: bool,
 }
 
 impl SunChoice {
     /// What to draw of the sun for `site`: nothing without a date and time.
-    /// Also whether to draw the shadows' outlines, and the hatching's spacing if any.
-    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool, Option<f64>)> {
+    /// Also whether to draw the shadows' outlines, the hatching's spacing if any, and
+    /// whether to lay the tone.
+    pub fn resolve(&self, site: &Site) -> Option<(SunDrawing, bool, Option<f64>, bool)> {
         let scene = site.sun.as_ref();
         let moment = self.moment.or_else(|| scene.map(|s| s.moment()))?;
         let pick = |asked: Option<bool>, of_scene: Option<bool>, default: bool| {
@@ -92,6 +96,7 @@ impl SunChoice {
             drawing,
             pick(self.shadows, scene.map(|s| s.shadows), true),
             hatch,
+            self.tone || scene.is_some_and(|s| s.tone),
         ))
     }
 }
@@ -260,7 +265,7 @@ pub fn draw_with_hidden_lines(
     let shadowed;
     let site = match settings.sun.resolve(site) {
         None => site,
-        Some((drawing, shadows, hatch)) => {
+        Some((drawing, shadows, hatch, tone)) => {
             let sky = Sky::of_site(site)?;
             if settings.overlays {
                 let text = settings.aids.text_height(&map);
@@ -279,11 +284,17 @@ pub fn draw_with_hidden_lines(
                     sky.clock.name()
                 ));
                 site
-            } else if shadows || hatch.is_some() {
-                shadowed = with_shadows_and_hatching(site, &sky.direction(&now), hatch);
-                &shadowed
             } else {
-                site
+                if tone {
+                    let shade = seen_shade(site, &sky.direction(&now), &view.eye());
+                    layers.push(tone_layer(&shade, &view, &mut flattener));
+                }
+                if shadows || hatch.is_some() {
+                    shadowed = with_shadows_and_hatching(site, &sky.direction(&now), hatch);
+                    &shadowed
+                } else {
+                    site
+                }
             }
         }
     };
@@ -315,6 +326,7 @@ pub fn draw_with_hidden_lines(
             let name = wireframe_layer_name(wire.site_layer.as_deref());
             by_distance.push((layers.len(), wire.distance));
             layers.push(Layer {
+                filled: false,
                 text: None,
                 name: match wire.distance {
                     Distance::Middle => name,
@@ -380,6 +392,31 @@ pub fn draw_with_hidden_lines(
         labels_left_out,
         unlettered,
     })
+}
+
+/// The layer of the filled tone over the shade the eye sees.
+pub const SHADOW_TONE: &str = "shadow tone";
+
+/// The seen shade's polygons as one filled layer: a quiet slate, light enough to draw
+/// over and to print in black and white as a pale grey.
+fn tone_layer(shade: &[Vec<Point3<f64>>], view: &ViewFrame, flattener: &mut Flattener) -> Layer {
+    let mut lines = PolylineSet::new();
+    for polygon in shade {
+        for ring in area_outlines(view, flattener, polygon) {
+            lines.push(&ring);
+        }
+    }
+    Layer {
+        filled: true,
+        text: None,
+        name: SHADOW_TONE.to_owned(),
+        stroke: Stroke {
+            colour: [112, 122, 150],
+            opacity: 0.3,
+            width_px: 0.0,
+        },
+        lines,
+    }
 }
 
 /// Rasterises a drawing, timing it into `render`.

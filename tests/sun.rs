@@ -6,7 +6,8 @@ use pansite::plane::Equirect;
 use pansite::render::{draw, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Site};
 use pansite::sun::Sky;
-use pansite::sun::{with_shadows, SHADOWS};
+use pansite::sun::{seen_shade, shadow_outlines, with_shadows, SHADOWS};
+use pansite::visibility::Bvh;
 use std::path::Path;
 
 /// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
@@ -257,5 +258,66 @@ fn the_suns_hours_are_placed_labels_in_the_order_of_the_day() {
             let apart = a[2] <= b[0] || b[2] <= a[0] || a[3] <= b[1] || b[3] <= a[1];
             assert!(apart, "{ta} {a:?} overlaps {tb} {b:?}");
         }
+    }
+}
+
+#[test]
+fn on_sloping_ground_a_poles_shadow_falls_on_the_slope() {
+    // A plane rising northwards at 1 in 4 (z = y / 4) and a thin pole 6 m tall standing
+    // on it at the origin, the sun due south at 30 degrees. Plain trigonometry (the law of
+    // sines in the triangle of the pole, its shadow up the slope and the ray past its top,
+    // the angle at the shadow's tip being elevation + slope): the shadow runs up the slope
+    // h cos(e) / sin(e + a) long, where a = atan(1/4) is the slope's angle.
+    let text = "Scene(
+        ground: (spots: [(-30, -30, -7.5), (30, -30, -7.5), (-30, 60, 15), (30, 60, 15)]),
+        standpoints: [(name: \"below\", x: 8, y: -10)],
+        items: [Block(label: \"pole\", at: Centre(0, 0), width: 0.02, depth: 0.02, height: 6,
+                      on_ground: true)],
+    )";
+    let site = parse_scene(text.as_bytes(), Path::new("slope.ron"), "slope").unwrap();
+    let top = site
+        .faces
+        .iter()
+        .flat_map(|f| f.corners)
+        .filter(|c| c.x.abs() < 0.05 && c.y.abs() < 0.05)
+        .map(|c| c.z)
+        .fold(f64::NEG_INFINITY, f64::max);
+    assert!((top - 6.0).abs() < 0.01, "the pole's top is at {top}");
+    let (elevation, slope) = (30f64.to_radians(), 0.25f64.atan());
+    let bvh = Bvh::new(&site.faces);
+    // Due south, the shadow runs up the slope; due north, down it, and the angle at the
+    // tip is elevation - slope.
+    for (north, angle_at_tip) in [(-1.0, elevation + slope), (1.0, elevation - slope)] {
+        let towards_sun = nalgebra::Vector3::new(0.0, north * elevation.cos(), elevation.sin());
+        let lines = shadow_outlines(&site, &bvh, &towards_sun);
+        assert!(!lines.is_empty());
+        // Every line lies on the slope, none on the plane z = 0 beyond the pole's foot.
+        for line in &lines {
+            for p in [line.start, line.end] {
+                assert!((p.z - p.y / 4.0).abs() < 1e-6, "{line:?} is off the slope");
+            }
+        }
+        let tip = lines
+            .iter()
+            .flat_map(|l| [l.start, l.end])
+            .max_by(|a, b| a.coords.norm().total_cmp(&b.coords.norm()))
+            .unwrap();
+        let expected = 6.0 * elevation.cos() / angle_at_tip.sin();
+        // The pole is 2 cm thick: its far corner lies within 2 cm of the line's tip.
+        assert!(
+            (tip.coords.norm() - expected).abs() < 0.03 && tip.x.abs() < 0.02,
+            "{tip} vs {expected} m up the slope"
+        );
+        // The tone's polygons lie on the slope too.
+        let eye = site.standpoints[0].eye();
+        let shade = seen_shade(&site, &towards_sun, &eye);
+        let on_slope = shade
+            .iter()
+            .filter(|p| p.iter().all(|c| (c.z - c.y / 4.0).abs() < 1e-6))
+            .count();
+        assert!(on_slope > 0);
+        assert!(shade
+            .iter()
+            .all(|p| !p.iter().all(|c| c.z.abs() < 1e-9 && c.y.abs() > 0.1)));
     }
 }

@@ -37,6 +37,7 @@ fn awkward_sheet() -> Sheet {
             lines.push(line);
         }
         Layer {
+            filled: false,
             text: None,
             name: name.to_owned(),
             stroke: Stroke {

@@ -252,6 +252,7 @@ fn guides_of(site: &Site, settings: &AidSettings) -> Guides {
 
 fn layer(name: &str, stroke: Stroke, lines: PolylineSet) -> Layer {
     Layer {
+        filled: false,
         text: None,
         name: name.to_owned(),
         stroke,

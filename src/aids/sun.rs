@@ -156,6 +156,7 @@ fn sun_mark(at: ImagePoint, text: f64, out: &mut PolylineSet) {
 fn push(layers: &mut Vec<Layer>, name: &str, stroke: crate::drawing::Stroke, lines: PolylineSet) {
     if !lines.is_empty() {
         layers.push(Layer {
+            filled: false,
             name: name.to_owned(),
             stroke,
             lines,

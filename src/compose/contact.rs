@@ -394,6 +394,7 @@ pub fn contact_sheet(
                     existing.lines.append(&mut lines);
                 }
                 None => layers.push(Layer {
+                    filled: false,
                     text: None,
                     name: layer.name,
                     stroke: layer.stroke,
@@ -447,6 +448,7 @@ pub fn contact_sheet(
     placer.place(captions);
     let placed = placer.finish();
     layers.push(Layer {
+        filled: false,
         text: None,
         name: "frame".to_owned(),
         stroke: Stroke::black(0.7, 1.0),

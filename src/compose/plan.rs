@@ -538,6 +538,7 @@ fn standpoint_label(name: &str, at: ImagePoint, radius: f64, h: f64) -> Label {
 
 fn layer(name: &str, opacity: f64, width: f64, lines: PolylineSet) -> Layer {
     Layer {
+        filled: false,
         text: None,
         name: name.to_owned(),
         stroke: Stroke::black(opacity, width),

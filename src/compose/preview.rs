@@ -368,6 +368,7 @@ pub fn preview_with_hidden_lines(
     }
     let width = settings.line_weight_px;
     let mut layers = vec![Layer {
+        filled: false,
         text: None,
         name: "horizon".to_owned(),
         stroke: Stroke::black(0.5, 1.25),
@@ -379,6 +380,7 @@ pub fn preview_with_hidden_lines(
         layers.push(hidden_layer(dashed(&join(&hidden), on, off), width));
     }
     layers.push(Layer {
+        filled: false,
         text: None,
         name: WIREFRAME.to_owned(),
         stroke: Stroke::black(1.0, width),

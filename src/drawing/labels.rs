@@ -378,6 +378,7 @@ pub fn label_layers(labels: &[PlacedLabel], ink: LabelInk) -> Vec<Layer> {
                 letter(&l.text, l.at, l.height, l.align, &mut lines);
             }
             layers.push(Layer {
+                filled: false,
                 text: None,
                 name: HALO.to_owned(),
                 stroke: Stroke {
@@ -393,6 +394,7 @@ pub fn label_layers(labels: &[PlacedLabel], ink: LabelInk) -> Vec<Layer> {
         let mut lines = PolylineSet::new();
         letter(&l.text, l.at, l.height, l.align, &mut lines);
         layers.push(Layer {
+            filled: false,
             text: Some(LayerText {
                 words: l.text.clone(),
                 at: l.at,

@@ -78,6 +78,10 @@ pub struct Layer {
     pub stroke: Stroke,
     /// Its polylines, in drawing pixels.
     pub lines: PolylineSet,
+    /// The polylines are closed outlines of areas, filled in the stroke's colour and
+    /// opacity (one area the union of its outlines: the non-zero winding rule, every
+    /// outline turning the same way), not stroked.
+    pub filled: bool,
 }
 
 /// Layers in painting order over a `width` x `height` pixel panorama.
@@ -106,6 +110,7 @@ pub const HIDDEN: &str = "hidden";
 /// lighter and thinner than the seen edges it goes under (dashed by [`hidden_dash_px`]).
 pub fn hidden_layer(lines: PolylineSet, line_weight_px: f64) -> Layer {
     Layer {
+        filled: false,
         text: None,
         name: HIDDEN.to_owned(),
         stroke: Stroke::black(0.4, (0.75 * line_weight_px).max(0.75)),
@@ -134,6 +139,7 @@ impl Layer {
             lines.push(&moved);
         }
         Layer {
+            filled: self.filled,
             text: self.text.as_ref().map(|t| LayerText {
                 at: ImagePoint::new(t.at.x + dx, t.at.y + dy),
                 ..t.clone()

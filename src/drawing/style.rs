@@ -65,7 +65,8 @@ pub fn apply_styles(
             }
         }
         if let Some((on, off)) = dash {
-            if on > 0.0 && off > 0.0 {
+            // Areas are filled, never dashed.
+            if on > 0.0 && off > 0.0 && !layer.filled {
                 layer.lines = dashed(&layer.lines, on, off);
             }
         }
@@ -100,6 +101,7 @@ mod tests {
         let mut lines = PolylineSet::new();
         lines.push(&[ImagePoint::new(0.0, 0.0), ImagePoint::new(100.0, 0.0)]);
         Layer {
+            filled: false,
             text: None,
             name: name.to_owned(),
             stroke: Stroke::black(1.0, 1.0),

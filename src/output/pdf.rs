@@ -82,7 +82,9 @@ pub fn write_pdf(sheets: &[Sheet], mut out: impl Write) -> Result<()> {
         .kids(page_ids.iter().map(|&(page, _)| page))
         .count(sheets.len() as i32);
     for (&id, &opacity) in state_ids.iter().zip(&opacities) {
-        pdf.ext_graphics(id).stroking_alpha(opacity as f32);
+        pdf.ext_graphics(id)
+            .stroking_alpha(opacity as f32)
+            .non_stroking_alpha(opacity as f32);
     }
     for (&id, name) in group_ids.iter().zip(&names) {
         pdf.indirect(id)
@@ -157,6 +159,25 @@ fn page_content(sheet: &Sheet, opacities: &[f64], names: &[&str]) -> Vec<u8> {
             .set_parameters(Name(state_name(state).as_bytes()))
             .set_stroke_rgb(r, g, b)
             .set_line_width(pt(stroke.width_px * scale));
+        if layer.filled {
+            // The areas as one path filled once by the non-zero winding rule (ISO 32000-1
+            // §8.5.3.3), so that where outlines overlap the tone is laid once.
+            content.set_fill_rgb(r, g, b);
+            let mut any = false;
+            for ring in layer.lines.iter().filter(|ring| ring.len() >= 3) {
+                content.move_to(x(ring[0].x), y(ring[0].y));
+                for p in &ring[1..] {
+                    content.line_to(x(p.x), y(p.y));
+                }
+                content.close_path();
+                any = true;
+            }
+            if any {
+                content.fill_nonzero();
+            }
+            content.end_marked_content();
+            continue;
+        }
         for line in layer.lines.iter() {
             let Some((first, rest)) = line.split_first() else {
                 continue;
@@ -190,6 +211,7 @@ mod tests {
                 width: 100,
                 height: 50,
                 layers: vec![Layer {
+                    filled: false,
                     text: None,
                     name: "wireframe".to_owned(),
                     stroke: Stroke {

@@ -165,6 +165,7 @@ mod tests {
             width: 512,
             height: 300,
             layers: vec![Layer {
+                filled: false,
                 text: None,
                 name: "test".to_owned(),
                 stroke: Stroke::black(0.8, 1.7),

@@ -126,7 +126,17 @@ fn rasterize_channels_in_bands<const C: usize, E>(
     let pens: Vec<Pen> = drawing
         .layers
         .iter()
-        .map(|layer| Pen::of(layer.stroke, C))
+        .map(|layer| match layer.filled {
+            // An area's ink is its colour at full strength, whatever a line's width.
+            true => Pen::of(
+                Stroke {
+                    width_px: 1.0,
+                    ..layer.stroke
+                },
+                C,
+            ),
+            false => Pen::of(layer.stroke, C),
+        })
         .collect();
     let by_band = strokes_by_band(drawing, &pens);
     let band_count = height.div_ceil(BAND_ROWS);
@@ -164,7 +174,8 @@ fn rasterize_channels_in_bands<const C: usize, E>(
                     top: index * BAND_ROWS,
                     rows: band_rows,
                 }
-                .draw_strokes(drawing, pens, by_band);
+                .draw_strokes(drawing, pens, by_band)
+                .draw_areas(drawing, pens);
                 if finished.send((index, buffer)).is_err() {
                     break;
                 }
@@ -247,7 +258,8 @@ fn strokes_by_band(drawing: &Drawing, pens: &[Pen]) -> StrokesByBand {
         first..last.max(first)
     };
     let strokes = || {
-        drawing.layers.iter().enumerate().flat_map(|(layer, l)| {
+        let stroked = drawing.layers.iter().enumerate().filter(|(_, l)| !l.filled);
+        stroked.flat_map(|(layer, l)| {
             let points = l.lines.points();
             let reach = pens[layer].reach;
             l.lines.segment_indices().map(move |(from, to)| {
@@ -376,7 +388,12 @@ struct Band<'a, const C: usize> {
 
 impl<const C: usize> Band<'_, C> {
     /// Draws every stroke that reaches into this band.
-    fn draw_strokes(&mut self, drawing: &Drawing, pens: &[Pen], by_band: &StrokesByBand) {
+    fn draw_strokes(
+        &mut self,
+        drawing: &Drawing,
+        pens: &[Pen],
+        by_band: &StrokesByBand,
+    ) -> &mut Self {
         let index = self.top / BAND_ROWS;
         let canvas_width = drawing.width as f64;
         for stroke in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
@@ -394,6 +411,59 @@ impl<const C: usize> Band<'_, C> {
             }
             if segment.right > canvas_width {
                 self.draw(&segment.shifted(-canvas_width));
+            }
+        }
+        self
+    }
+
+    /// Fills the areas of the filled layers that reach into the band: tiny-skia's
+    /// anti-aliased coverage (non-zero winding) into a mask of the band, then inked like a
+    /// stroke (the darkest wins). The outlines are already cut at the seam, so nothing wraps.
+    fn draw_areas(&mut self, drawing: &Drawing, pens: &[Pen]) {
+        let band_rows = self.rows.len() / (self.width * C).max(1);
+        let (top, bottom) = (self.top as f64, (self.top + band_rows) as f64);
+        for (layer, pen) in drawing.layers.iter().zip(pens) {
+            if !layer.filled {
+                continue;
+            }
+            let mut path = tiny_skia::PathBuilder::new();
+            for ring in layer.lines.iter() {
+                let (lo, hi) = ring
+                    .iter()
+                    .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
+                        (lo.min(p.y), hi.max(p.y))
+                    });
+                if ring.len() < 3 || hi <= top || lo >= bottom {
+                    continue;
+                }
+                path.move_to(ring[0].x as f32, (ring[0].y - top) as f32);
+                for p in &ring[1..] {
+                    path.line_to(p.x as f32, (p.y - top) as f32);
+                }
+                path.close();
+            }
+            let (Some(path), Some(mut mask)) = (
+                path.finish(),
+                tiny_skia::Mask::new(self.width as u32, band_rows as u32),
+            ) else {
+                continue;
+            };
+            mask.fill_path(
+                &path,
+                tiny_skia::FillRule::Winding,
+                true,
+                tiny_skia::Transform::identity(),
+            );
+            for (k, &coverage) in mask.data().iter().enumerate() {
+                if coverage == 0 {
+                    continue;
+                }
+                let coverage = coverage as f64 / 255.0;
+                for (channel, ink) in pen.ink.iter().take(C).enumerate() {
+                    let value = (255.0 - ink * coverage).clamp(0.0, 255.0) as u8;
+                    let pixel = &mut self.rows[k * C + channel];
+                    *pixel = (*pixel).min(value);
+                }
             }
         }
     }
@@ -545,6 +615,7 @@ mod tests {
             width: size.0,
             height: size.1,
             layers: vec![Layer {
+                filled: false,
                 text: None,
                 name: "test".to_owned(),
                 stroke: Stroke::black(1.0, width_px),

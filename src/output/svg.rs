@@ -71,6 +71,25 @@ pub fn write_svg_with(sheet: &Sheet, lettering: Lettering, out: impl Write) -> i
             out.write_all(br#"" data-text=""#)?;
             write_escaped(&mut out, &text.words)?;
         }
+        if layer.filled {
+            // The areas as one path, so that where outlines overlap the tone is laid once
+            // (SVG 1.1 §11.3, fill-rule nonzero: every outline turns the same way).
+            writeln!(
+                out,
+                r##"" fill="#{r:02x}{g:02x}{b:02x}" fill-opacity="{opacity}" fill-rule="nonzero" stroke="none">"##
+            )?;
+            out.write_all(br#"<path d=""#)?;
+            for ring in layer.lines.iter().filter(|ring| ring.len() >= 3) {
+                out.write_all(b"M")?;
+                for p in ring {
+                    write!(out, " {} {}", Mm(p.x * scale), Mm(p.y * scale))?;
+                }
+                out.write_all(b" Z ")?;
+            }
+            writeln!(out, r#""/>"#)?;
+            writeln!(out, "</g>")?;
+            continue;
+        }
         writeln!(
             out,
             r##"" fill="none" stroke="#{r:02x}{g:02x}{b:02x}" stroke-opacity="{opacity}" stroke-width="{stroke_width}" stroke-linecap="round" stroke-linejoin="round">"##
@@ -245,6 +264,7 @@ mod tests {
         lines.push(&[ImagePoint::new(10.0, 20.0), ImagePoint::new(30.5, 40.25)]);
         lines.push(&[ImagePoint::new(5.0, 5.0)]);
         let layer = |name: &str, lines: PolylineSet| Layer {
+            filled: false,
             text: None,
             name: name.to_owned(),
             stroke: Stroke {

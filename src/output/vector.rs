@@ -3,8 +3,10 @@
 //! ## Vector outputs (design notes)
 //!
 //! `output::write_svg(&Sheet, out)` and `output::write_pdf(&[Sheet], out)` write the drawing
-//! at its size on paper, for printing at scale and for vector editors. Both draw only stroked
-//! polylines (text and dashes are already polylines in the drawing), with round caps and joins
+//! at its size on paper, for printing at scale and for vector editors. Both draw stroked
+//! polylines (text and dashes are already polylines in the drawing) and, for a filled layer,
+//! its closed outlines as one path filled by the non-zero rule (`fill-rule="nonzero"`; PDF's
+//! `f`, with the layer's opacity as `ca`), with round caps and joins
 //! like the raster's capsules; a polyline of one point is a zero-length segment, which round
 //! caps paint as a dot in both formats. Neither writes the command line's files yet (the
 //! `render` command is wired separately).

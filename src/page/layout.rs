@@ -185,6 +185,7 @@ impl PageSettings {
         let mut frame_lines = PolylineSet::new();
         frame_lines.push(&rectangle(&frame));
         layers.push(Layer {
+            filled: false,
             text: None,
             name: "frame".to_owned(),
             stroke: Stroke::black(0.7, (0.25 * px).max(1.0)),
@@ -203,6 +204,7 @@ impl PageSettings {
             );
             let stroke = Stroke::black(0.9, (0.25 * px).max(1.0));
             layers.push(Layer {
+                filled: false,
                 text: None,
                 name: "scale bar".to_owned(),
                 stroke,
@@ -210,6 +212,7 @@ impl PageSettings {
             });
             for (stroke, lines) in block.samples {
                 layers.push(Layer {
+                    filled: false,
                     text: None,
                     name: "legend".to_owned(),
                     stroke,
@@ -348,6 +351,7 @@ impl PageSettings {
                 };
                 let sheet_labels = label_layers(&placer.finish().labels, ink);
                 layers.push(Layer {
+                    filled: false,
                     text: None,
                     name: "sheet marks".to_owned(),
                     stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
@@ -370,6 +374,22 @@ impl PageSettings {
     }
 }
 
+/// The closed outlines of areas cut to `rect` (each stays closed) and moved by `(dx, dy)`.
+fn clip_areas(rings: &PolylineSet, rect: &Rect, dx: f64, dy: f64) -> PolylineSet {
+    let mut out = PolylineSet::new();
+    for ring in rings.iter() {
+        let clipped = rect.clip_polygon(ring);
+        if clipped.len() >= 3 {
+            let moved: Vec<ImagePoint> = clipped
+                .iter()
+                .map(|p| ImagePoint::new(p.x + dx, p.y + dy))
+                .collect();
+            out.push(&moved);
+        }
+    }
+    out
+}
+
 /// Every layer cut to `rect` and moved by `(dx, dy)`, keeping its name and stroke. A label
 /// is kept whole or left out: never shown cut, where it could read as another word.
 fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
@@ -379,13 +399,18 @@ fn clip_layers(layers: &[Layer], rect: &Rect, dx: f64, dy: f64) -> Vec<Layer> {
             layer.text.is_none() || layer.lines.points().iter().all(|p| rect.contains(*p))
         })
         .map(|layer| Layer {
+            filled: layer.filled,
             text: layer.text.as_ref().map(|t| LayerText {
                 at: ImagePoint::new(t.at.x + dx, t.at.y + dy),
                 ..t.clone()
             }),
             name: layer.name.clone(),
             stroke: layer.stroke,
-            lines: clip_and_move(&layer.lines, rect, dx, dy),
+            lines: if layer.filled {
+                clip_areas(&layer.lines, rect, dx, dy)
+            } else {
+                clip_and_move(&layer.lines, rect, dx, dy)
+            },
         })
         .collect()
 }

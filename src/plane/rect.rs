@@ -26,6 +26,39 @@ impl Rect {
         }
     }
 
+    /// The part of the closed polygon `ring` inside the rectangle, as one closed polygon
+    /// (Sutherland and Hodgman, "Reentrant polygon clipping", CACM 17(1), 1974): a concave
+    /// ring that leaves and comes back is joined along the edge by a bridge of no area,
+    /// which fills nothing. Empty when nothing is inside.
+    pub fn clip_polygon(&self, ring: &[ImagePoint]) -> Vec<ImagePoint> {
+        let mut out = ring.to_vec();
+        // Each side as (signed distance inside, where a segment crosses it).
+        let sides: [&dyn Fn(ImagePoint) -> f64; 4] = [
+            &|p| p.x - self.left,
+            &|p| self.right - p.x,
+            &|p| p.y - self.top,
+            &|p| self.bottom - p.y,
+        ];
+        for inside in sides {
+            let input = std::mem::take(&mut out);
+            for (k, &b) in input.iter().enumerate() {
+                let a = input[(k + input.len() - 1) % input.len()];
+                let (da, db) = (inside(a), inside(b));
+                if (da >= 0.0) != (db >= 0.0) {
+                    let t = da / (da - db);
+                    out.push(ImagePoint::new(
+                        a.x + (b.x - a.x) * t,
+                        a.y + (b.y - a.y) * t,
+                    ));
+                }
+                if db >= 0.0 {
+                    out.push(b);
+                }
+            }
+        }
+        out
+    }
+
     /// Whether `p` lies inside or on the edge.
     pub fn contains(&self, p: ImagePoint) -> bool {
         p.x >= self.left && p.x <= self.right && p.y >= self.top && p.y <= self.bottom
@@ -82,6 +115,27 @@ impl Rect {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_polygon_is_clipped_to_the_rectangle() {
+        // A square half outside on the right: the part inside is a rectangle of half its
+        // area (the shoelace formula).
+        let r = Rect::from_ltrb(0.0, 0.0, 10.0, 10.0);
+        let ring =
+            [(5.0, 2.0), (15.0, 2.0), (15.0, 8.0), (5.0, 8.0)].map(|(x, y)| ImagePoint::new(x, y));
+        let clipped = r.clip_polygon(&ring);
+        let area: f64 = (0..clipped.len())
+            .map(|k| {
+                let (a, b) = (clipped[k], clipped[(k + 1) % clipped.len()]);
+                a.x * b.y - b.x * a.y
+            })
+            .sum::<f64>()
+            / 2.0;
+        assert!((area - 30.0).abs() < 1e-9, "{clipped:?}");
+        assert!(clipped.iter().all(|p| r.contains(*p)));
+        let outside = ring.map(|p| ImagePoint::new(p.x + 20.0, p.y));
+        assert!(r.clip_polygon(&outside).is_empty());
+    }
 
     #[test]
     fn overlap_and_enclosure() {

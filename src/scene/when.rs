@@ -158,6 +158,9 @@ pub struct SunSpec {
     /// Hatching of what is in shadow, lines this many metres apart (none if not given).
     #[serde(default)]
     pub hatch: Option<super::numbers::Positive>,
+    /// A pale filled tone over the shade the eye sees.
+    #[serde(default)]
+    pub tone: bool,
 }
 
 fn yes() -> bool {

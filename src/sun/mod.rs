@@ -19,6 +19,7 @@ mod day;
 mod position;
 mod shadow;
 mod table;
+mod tone;
 
 pub use clock::{Clock, LocalMoment};
 pub use day::{wall_in_sun, walls, DayEvents, Sky, SunSample, Wall};
@@ -28,6 +29,7 @@ pub use shadow::{
     BREAK_TOLERANCE_M, HATCHING, SAMPLE_STEP_M, SHADOWS,
 };
 pub use table::{sun_table, table_csv, table_json, table_text, SunRow, TableRequest, MAX_ROWS};
+pub use tone::seen_shade;
 
 /// The cautions that go with every sun table and the README: said once, here.
 pub const CAUTIONS: [&str; 2] = [

@@ -3,8 +3,8 @@
 //! A shadow's outline on a plane face is made of the images, carried along the sun's rays,
 //! of the edges that outline the solids as seen from the sun (their silhouette edges): an
 //! edge both of whose faces lie on one side of the plane through it and the sun's
-//! direction. Each such edge is carried to every face behind it (and to the ground, the
-//! plane z = 0) and cut to the face; what is left is a line of the outline where the
+//! direction. Each such edge is carried to every face behind it (and to the ground: the
+//! plane z = 0, or the sloping ground's triangles, which are faces) and cut to the face; what is left is a line of the outline where the
 //! ray from its point to the sun grazes the edge and meets nothing else on the way (a ray
 //! cast through the hierarchy of faces the hidden lines use). Where that changes along
 //! the line (another shadow falls across it) the change is found by bisection to
@@ -57,7 +57,8 @@ enum Receiver {
 }
 
 /// The outlines of the shadows at a sun in the unit direction `towards_sun` (site frame,
-/// above the horizon), on the site's faces and on the ground plane z = 0.
+/// above the horizon), on the site's faces and on the ground plane z = 0 (where the scene
+/// has no sloping ground; its triangles are faces).
 pub fn shadow_outlines(site: &Site, bvh: &Bvh, towards_sun: &Vector3<f64>) -> Vec<ShadowLine> {
     let s = towards_sun.normalize();
     let mut out = Vec::new();
@@ -66,9 +67,12 @@ pub fn shadow_outlines(site: &Site, bvh: &Bvh, towards_sun: &Vector3<f64>) -> Ve
     }
     let silhouettes = silhouettes(&site.faces, &s);
     let planes: Vec<Option<(Vector3<f64>, f64)>> = site.faces.iter().map(plane_of).collect();
+    // The plane z = 0 receives only where the scene has no sloping ground: then the
+    // ground's triangles, faces like any other, receive instead.
+    let level = site.ground.is_none().then_some(Receiver::Ground);
     let receivers = (0..site.faces.len() as u32)
         .map(Receiver::Face)
-        .chain([Receiver::Ground]);
+        .chain(level);
     let receivers: Vec<(Receiver, Vector3<f64>, f64)> = receivers
         .filter_map(|r| match r {
             Receiver::Ground => Some((r, Vector3::z(), 0.0)),
@@ -199,7 +203,11 @@ pub fn hatching(
             }
         }
     }
-    // The ground: over the plan's extent of the solids and their shadows.
+    // The level ground (sloping ground is hatched as faces): over the plan's extent of
+    // the solids and their shadows.
+    if site.ground.is_some() {
+        return out;
+    }
     let mut lo = (f64::INFINITY, f64::INFINITY);
     let mut hi = (f64::NEG_INFINITY, f64::NEG_INFINITY);
     for corner in site.faces.iter().flat_map(|f| f.corners) {

@@ -33,6 +33,11 @@ pub struct SunArgs {
     /// Hatch what is in shadow, lines this many metres apart.
     #[arg(long, value_name = "METRES")]
     pub hatch: Option<f64>,
+
+    /// Lay a pale tone over the shade the eye sees (faces turned from the sun and the
+    /// shadows on them and on the ground), on its own layer `shadow tone`.
+    #[arg(long)]
+    pub shade_tone: bool,
 }
 
 /// `pansite daylight`.

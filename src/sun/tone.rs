@@ -1,0 +1,398 @@
+//! The parts of the site in shade that the eye sees, as flat polygons, for a filled tone.
+//!
+//! On each receiving plane (each face, and the ground plane z = 0 where the scene has no
+//! sloping ground, whose triangles are faces) the shade is the union of the shadows of the
+//! other faces, each face carried along the sun's rays onto the plane (the part of it in
+//! front of the plane, towards the sun) and cut to the receiver: convex polygons, since a
+//! parallel projection keeps a triangle's convexity. A receiver whose seen side is turned
+//! from the sun is in shade whole. What the eye cannot see is then taken away: every face
+//! between the eye and the plane is carried from the eye (a central projection, again
+//! convex for the part of the face strictly between them) onto the plane, and subtracted
+//! from each polygon, one side of the hiding polygon at a time (the part of a convex polygon
+//! outside a convex one is at most one convex piece per side). The polygons left are the
+//! seen shade, exactly, on plane faces; they overlap where shadows overlap, and are filled
+//! as their union.
+//!
+//! The work grows with the square of the faces (the pairs are culled by their extents
+//! across the sun's rays, by cones from the eye round each face, and on the plane).
+
+use crate::scene::{Face, Site};
+use nalgebra::{Point3, Vector2, Vector3};
+
+/// A receiving plane nearly edge-on to the sun or the eye (|n . s| below this, or the eye
+/// this close to it in metres) shows no shade.
+const EDGE_ON: f64 = 1e-9;
+/// Pieces smaller than this (square metres) are dropped.
+const LEAST_AREA_M2: f64 = 1e-10;
+
+/// A convex polygon in a receiver's plane coordinates.
+type Polygon = Vec<Vector2<f64>>;
+
+/// A plane with coordinates: `origin + e1 x + e2 y`, unit normal `n`.
+struct PlaneFrame {
+    origin: Point3<f64>,
+    e1: Vector3<f64>,
+    e2: Vector3<f64>,
+    n: Vector3<f64>,
+}
+
+impl PlaneFrame {
+    fn to_plane(&self, p: &Point3<f64>) -> Vector2<f64> {
+        let d = p - self.origin;
+        Vector2::new(d.dot(&self.e1), d.dot(&self.e2))
+    }
+
+    fn to_site(&self, q: &Vector2<f64>) -> Point3<f64> {
+        self.origin + self.e1 * q.x + self.e2 * q.y
+    }
+
+    /// Signed height of `p` above the plane.
+    fn height(&self, p: &Point3<f64>) -> f64 {
+        self.n.dot(&(p - self.origin))
+    }
+}
+
+/// The seen parts of everything in shade at a sun in the unit direction `towards_sun`,
+/// from `eye`: flat convex polygons in the site frame, corners in order.
+pub fn seen_shade(
+    site: &Site,
+    towards_sun: &Vector3<f64>,
+    eye: &Point3<f64>,
+) -> Vec<Vec<Point3<f64>>> {
+    let s = towards_sun.normalize();
+    let mut out = Vec::new();
+    if s.z <= 0.0 {
+        return out;
+    }
+    // Extents across the sun's rays, to cull pairs of faces.
+    let u = s
+        .cross(&Vector3::z())
+        .try_normalize(1e-9)
+        .unwrap_or_else(Vector3::x);
+    let v = s.cross(&u);
+    let across = |corners: &[Point3<f64>; 3]| {
+        let us = corners.map(|c| u.dot(&c.coords));
+        let vs = corners.map(|c| v.dot(&c.coords));
+        let range = |x: [f64; 3]| (x[0].min(x[1]).min(x[2]), x[0].max(x[1]).max(x[2]));
+        (range(us), range(vs))
+    };
+    let extents: Vec<_> = site.faces.iter().map(|f| across(&f.corners)).collect();
+    let overlaps = |a: &((f64, f64), (f64, f64)), b: &((f64, f64), (f64, f64))| {
+        a.0 .0 <= b.0 .1 && b.0 .0 <= a.0 .1 && a.1 .0 <= b.1 .1 && b.1 .0 <= a.1 .1
+    };
+    // Cones from the eye round each face's bounding sphere, to cull the faces that cannot
+    // stand in front of a receiver: (unit direction, angular radius, nearest and farthest
+    // distance).
+    let cones: Vec<(Vector3<f64>, f64, f64, f64)> = site
+        .faces
+        .iter()
+        .map(|f| {
+            let centre = Point3::from(
+                (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0,
+            );
+            let radius = f
+                .corners
+                .iter()
+                .map(|c| (c - centre).norm())
+                .fold(0.0, f64::max);
+            let to = centre - eye;
+            let distance = to.norm();
+            let angle = if distance > radius {
+                (radius / distance).asin()
+            } else {
+                std::f64::consts::PI
+            };
+            (
+                to / distance.max(1e-300),
+                angle,
+                distance - radius,
+                distance + radius,
+            )
+        })
+        .collect();
+    let may_hide = |hider: usize, receiver: usize| {
+        let (h, r) = (&cones[hider], &cones[receiver]);
+        if h.2 > r.3 {
+            return false; // wholly beyond the receiver
+        }
+        let reach = h.1 + r.1;
+        reach >= std::f64::consts::PI || h.0.dot(&r.0).clamp(-1.0, 1.0).acos() <= reach
+    };
+    let mut receivers: Vec<(Option<usize>, PlaneFrame)> = Vec::new();
+    if site.ground.is_none() {
+        receivers.push((
+            None,
+            PlaneFrame {
+                origin: Point3::origin(),
+                e1: Vector3::x(),
+                e2: Vector3::y(),
+                n: Vector3::z(),
+            },
+        ));
+    }
+    for (i, face) in site.faces.iter().enumerate() {
+        let [a, b, c] = face.corners;
+        let (Some(n), Some(e1)) = (
+            (b - a).cross(&(c - a)).try_normalize(1e-12),
+            (b - a).try_normalize(1e-12),
+        ) else {
+            continue;
+        };
+        receivers.push((
+            Some(i),
+            PlaneFrame {
+                origin: a,
+                e1,
+                e2: n.cross(&e1),
+                n,
+            },
+        ));
+    }
+    for (index, plane) in &receivers {
+        let (ns, eye_height) = (plane.n.dot(&s), plane.height(eye));
+        if ns.abs() < EDGE_ON || eye_height.abs() < EDGE_ON {
+            continue;
+        }
+        let outline: Option<Polygon> = index.map(|i| {
+            let mut t: Polygon = site.faces[i]
+                .corners
+                .iter()
+                .map(|c| plane.to_plane(c))
+                .collect();
+            if area(&t) < 0.0 {
+                t.reverse();
+            }
+            t
+        });
+        let mut shade: Vec<Polygon> = Vec::new();
+        if (ns > 0.0) != (eye_height > 0.0) {
+            // The seen side is turned from the sun.
+            match &outline {
+                Some(t) => shade.push(t.clone()),
+                None => continue,
+            }
+        } else {
+            for (j, face) in site.faces.iter().enumerate() {
+                if Some(j) == *index || index.is_some_and(|i| !overlaps(&extents[i], &extents[j])) {
+                    continue;
+                }
+                if let Some(piece) = carried_by_sun(face, plane, &s, ns, outline.as_ref()) {
+                    shade.push(piece);
+                }
+            }
+        }
+        if shade.is_empty() {
+            continue;
+        }
+        for (j, face) in site.faces.iter().enumerate() {
+            if Some(j) == *index || shade.is_empty() || index.is_some_and(|i| !may_hide(j, i)) {
+                continue;
+            }
+            let Some(hider) = carried_from_eye(face, plane, eye, eye_height) else {
+                continue;
+            };
+            let (lo, hi) = bounds(&hider);
+            shade = shade
+                .into_iter()
+                .flat_map(|p| {
+                    let (plo, phi) = bounds(&p);
+                    if phi.x < lo.x || plo.x > hi.x || phi.y < lo.y || plo.y > hi.y {
+                        vec![p]
+                    } else {
+                        difference(p, &hider)
+                    }
+                })
+                .collect();
+        }
+        for piece in shade {
+            out.push(piece.iter().map(|q| plane.to_site(q)).collect());
+        }
+    }
+    out
+}
+
+/// The shadow of `face` on the plane (the part of the face in front of it towards the sun,
+/// carried along the rays), cut to the receiver's `outline`; turned counter-clockwise.
+fn carried_by_sun(
+    face: &Face,
+    plane: &PlaneFrame,
+    s: &Vector3<f64>,
+    ns: f64,
+    outline: Option<&Polygon>,
+) -> Option<Polygon> {
+    let scale = 1.0
+        + face
+            .corners
+            .iter()
+            .map(|c| c.coords.abs().max())
+            .fold(0.0, f64::max);
+    // Travel back along the ray to the plane: positive in front of it.
+    let travel = |p: &Point3<f64>| plane.height(p) / ns;
+    let front = clip_3d(&face.corners, |p| travel(p) - EDGE_ON * scale)?;
+    let mut piece: Polygon = front
+        .iter()
+        .map(|p| plane.to_plane(&(p - s * travel(p))))
+        .collect();
+    if area(&piece) < 0.0 {
+        piece.reverse();
+    }
+    if let Some(t) = outline {
+        piece = intersection(piece, t);
+    }
+    (area(&piece) > LEAST_AREA_M2).then_some(piece)
+}
+
+/// What `face` hides of the plane from `eye` (at `eye_height` above it): the part of the
+/// face strictly between them, carried from the eye onto the plane; counter-clockwise.
+fn carried_from_eye(
+    face: &Face,
+    plane: &PlaneFrame,
+    eye: &Point3<f64>,
+    eye_height: f64,
+) -> Option<Polygon> {
+    let side = eye_height.signum();
+    let reach = eye_height.abs();
+    let scale = 1.0
+        + face
+            .corners
+            .iter()
+            .map(|c| c.coords.abs().max())
+            .fold(0.0, f64::max);
+    let eps = EDGE_ON * scale;
+    // Height towards the eye: between 0 (on the plane) and `reach` (the eye's).
+    let between = clip_3d(&face.corners, |p| side * plane.height(p) - eps)?;
+    let between = clip_polygon_3d(between, |p| reach - side * plane.height(p) - eps)?;
+    let mut piece: Polygon = between
+        .iter()
+        .map(|p| {
+            let b = side * plane.height(p);
+            plane.to_plane(&(eye + (p - eye) * (reach / (reach - b))))
+        })
+        .collect();
+    if area(&piece) < 0.0 {
+        piece.reverse();
+    }
+    (area(&piece) > LEAST_AREA_M2).then_some(piece)
+}
+
+/// The part of a triangle where `inside` (linear) is non-negative.
+fn clip_3d(
+    corners: &[Point3<f64>; 3],
+    inside: impl Fn(&Point3<f64>) -> f64,
+) -> Option<Vec<Point3<f64>>> {
+    clip_polygon_3d(corners.to_vec(), inside)
+}
+
+fn clip_polygon_3d(
+    polygon: Vec<Point3<f64>>,
+    inside: impl Fn(&Point3<f64>) -> f64,
+) -> Option<Vec<Point3<f64>>> {
+    let mut out = Vec::with_capacity(polygon.len() + 1);
+    for (k, b) in polygon.iter().enumerate() {
+        let a = polygon[(k + polygon.len() - 1) % polygon.len()];
+        let (da, db) = (inside(&a), inside(b));
+        if (da >= 0.0) != (db >= 0.0) {
+            out.push(a + (b - a) * (da / (da - db)));
+        }
+        if db >= 0.0 {
+            out.push(*b);
+        }
+    }
+    (out.len() >= 3).then_some(out)
+}
+
+/// The part of a polygon on the left of the directed line from `a` to `b` (inside of a
+/// counter-clockwise polygon), or on its right with `left` false.
+fn clip_side(polygon: &[Vector2<f64>], a: Vector2<f64>, b: Vector2<f64>, left: bool) -> Polygon {
+    let d = b - a;
+    let sign = if left { 1.0 } else { -1.0 };
+    let inside = |p: &Vector2<f64>| sign * (d.x * (p.y - a.y) - d.y * (p.x - a.x));
+    let mut out = Vec::with_capacity(polygon.len() + 1);
+    for (k, q) in polygon.iter().enumerate() {
+        let p = polygon[(k + polygon.len() - 1) % polygon.len()];
+        let (dp, dq) = (inside(&p), inside(q));
+        if (dp >= 0.0) != (dq >= 0.0) {
+            out.push(p + (q - p) * (dp / (dp - dq)));
+        }
+        if dq >= 0.0 {
+            out.push(*q);
+        }
+    }
+    out
+}
+
+/// Two convex counter-clockwise polygons' common part.
+fn intersection(mut polygon: Polygon, convex: &Polygon) -> Polygon {
+    for k in 0..convex.len() {
+        if polygon.len() < 3 {
+            return Vec::new();
+        }
+        polygon = clip_side(&polygon, convex[k], convex[(k + 1) % convex.len()], true);
+    }
+    polygon
+}
+
+/// A convex polygon less a convex counter-clockwise one: a convex piece outside each side
+/// of the second, in turn.
+fn difference(mut polygon: Polygon, convex: &Polygon) -> Vec<Polygon> {
+    let mut out = Vec::new();
+    for k in 0..convex.len() {
+        let (a, b) = (convex[k], convex[(k + 1) % convex.len()]);
+        let outside = clip_side(&polygon, a, b, false);
+        if area(&outside) > LEAST_AREA_M2 {
+            out.push(outside);
+        }
+        polygon = clip_side(&polygon, a, b, true);
+        if area(&polygon) <= LEAST_AREA_M2 {
+            break;
+        }
+    }
+    out
+}
+
+/// Signed area (counter-clockwise positive), the shoelace formula.
+fn area(polygon: &[Vector2<f64>]) -> f64 {
+    let n = polygon.len();
+    (0..n)
+        .map(|k| {
+            let (a, b) = (polygon[k], polygon[(k + 1) % n]);
+            a.x * b.y - b.x * a.y
+        })
+        .sum::<f64>()
+        / 2.0
+}
+
+fn bounds(polygon: &[Vector2<f64>]) -> (Vector2<f64>, Vector2<f64>) {
+    polygon.iter().fold(
+        (
+            Vector2::repeat(f64::INFINITY),
+            Vector2::repeat(f64::NEG_INFINITY),
+        ),
+        |(lo, hi), p| (lo.inf(p), hi.sup(p)),
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn square(x0: f64, y0: f64, side: f64) -> Polygon {
+        [(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0)]
+            .iter()
+            .map(|&(x, y)| Vector2::new(x0 + x * side, y0 + y * side))
+            .collect()
+    }
+
+    #[test]
+    fn a_difference_keeps_the_area_outside() {
+        // Areas of squares by the shoelace formula: 4 less the overlap of 1.
+        let pieces = difference(square(0.0, 0.0, 2.0), &square(1.0, 1.0, 2.0));
+        let total: f64 = pieces.iter().map(|p| area(p)).sum();
+        assert!((total - 3.0).abs() < 1e-12, "{pieces:?}");
+        assert!(
+            (area(&intersection(square(0.0, 0.0, 2.0), &square(1.0, 1.0, 2.0))) - 1.0).abs()
+                < 1e-12
+        );
+        assert!(difference(square(0.0, 0.0, 1.0), &square(-1.0, -1.0, 3.0)).is_empty());
+    }
+}
