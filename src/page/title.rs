@@ -261,12 +261,15 @@ pub fn title_block(
 /// in the block's ink.
 pub fn title_layers(block: TitleBlock, px: f64) -> Vec<Layer> {
     let stroke = Stroke::black(0.9, (0.25 * px).max(1.0));
-    let mut layers = vec![Layer {
-        text: None,
-        name: "scale bar".to_owned(),
-        stroke,
-        lines: block.bar,
-    }];
+    let mut layers = Vec::new();
+    if !block.bar.is_empty() {
+        layers.push(Layer {
+            text: None,
+            name: "scale bar".to_owned(),
+            stroke,
+            lines: block.bar,
+        });
+    }
     for (stroke, lines) in block.samples {
         layers.push(Layer {
             text: None,
