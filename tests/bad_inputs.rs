@@ -187,6 +187,8 @@ corpus! {
     ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
     ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
     block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
+    plinth_without_on_ground: "plinth-without-on-ground.ron" => refused("plinth-without-on-ground.ron:5:9:", &["`plinth` needs `on_ground: true`"]);
+    plinth_course_too_fine: "plinth-course-too-fine.ron" => refused("plinth-course-too-fine.ron:5:9:", &["course of 0.001", "at most 1000"]);
     road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
     arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);

@@ -685,18 +685,18 @@ fn plan_preview_and_sheet_write_every_format() {
     let root = document.root_element();
     assert_eq!(root.attribute("width"), Some("297mm"));
     assert_eq!(root.attribute("height"), Some("210mm"));
-    let settings = PlanSettings::for_paper(
-        &pansite::page::Paper::parse("a4").unwrap().landscape(),
-        10.0,
-        150.0,
-    );
+    // The plan fills the room above the title block (sized with the widest scale line)
+    // and is centred in it.
+    let a4 = pansite::page::Paper::parse("a4").unwrap().landscape();
+    let planned =
+        pansite::page::plan_title_lines(&demo(), &demo().standpoints, 1e7, 150.0, (2026, 1, 1));
+    let (room_w, room_h) = pansite::page::room_above_title(&a4, 10.0, &planned, None).unwrap();
+    let settings = PlanSettings::for_room(room_w, room_h, 150.0);
     let plan = plan_map(&demo(), &demo().standpoints, &settings).unwrap();
+    let plan_w_mm = settings.width as f64 * 25.4 / 150.0;
+    let left = pansite::page::centred(10.0, room_w, plan_w_mm);
     let bar = &svg_layer(&svg, "scale bar")[0];
-    assert_near(
-        bar[0].0,
-        10.0 + 0.04 * settings.width as f64 * 25.4 / 150.0,
-        0.002,
-    );
+    assert_near(bar[0].0, left + 0.04 * plan_w_mm, 0.002);
     assert_near(
         bar[1].0 - bar[0].0,
         plan.bar_metres * plan.px_per_metre * 25.4 / 150.0,

@@ -219,6 +219,26 @@ fn a_tower_in_front_of_a_hall() {
 }
 
 #[test]
+fn a_plinth_on_a_slope_hides_and_is_hidden() {
+    // A hall on a plinth with course lines on a slope, and a lower block behind it: the
+    // plinth's faces (closed along the foot) hide the block's foot, and the ground hides
+    // what lies below it, against the brute-force ray caster.
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"below\", x: 4, y: -6, heading: 10)],
+               ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),
+               items: [
+            Block(at: Centre(3, 22), width: 8, depth: 12, height: 6, on_ground: true,
+                  plinth: (course: 0.3), roof: Gable(ridge: 9, along: Depth)),
+            Block(at: Centre(4, 34), width: 14, depth: 5, height: 3, on_ground: true),
+        ])",
+        Path::new("plinth.ron"),
+        "plinth",
+    )
+    .unwrap();
+    check_scene("plinth", &site, &site.standpoints[0], 1);
+}
+
+#[test]
 fn a_round_tower_with_recessed_openings() {
     // Square-headed openings set 0.5 into a round tower (their sills and lintels arcs of
     // its circle): their reveals and backs hide and are hidden like any face, and the

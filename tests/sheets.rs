@@ -12,6 +12,8 @@ use pansite::render::{draw_sheets, RenderSettings};
 use pansite::scene::load_scene;
 use std::path::Path;
 
+mod common;
+
 /// A box in millimetres: left, top, right, bottom.
 type MmBox = [f64; 4];
 
@@ -612,4 +614,148 @@ fn a_name_with_no_clear_place_is_left_out_not_drawn_over_a_building() {
     }
     assert_eq!(crossings, 0);
     assert!(plan.labels_left_out >= 1, "the name has no clear place");
+}
+
+/// `plan --page`, `plan --beside --page` and `sheet --page` carry a title block: its words
+/// are there (scene, standpoints, the plan's scale, the date) and every label lies inside
+/// the printable area of the ISO 216 sheet (A4 210 x 297 mm, A3 297 x 420 mm, A5
+/// 148 x 210 mm, from the standard's table) less the 10 mm margin.
+#[test]
+fn plans_and_sheets_on_paper_carry_a_title_block_inside_the_printable_area() {
+    let dir = common::Scratch::new("titled-pages");
+    let scene = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/stannock-hill.ron");
+    let scene = scene.to_str().unwrap();
+    // The arguments, the paper (mm), the words the block must hold.
+    type Case<'a> = (&'a [&'a str], (f64, f64), &'a [&'a str]);
+    let cases: [Case; 3] = [
+        (
+            &["plan", "--page", "a4", "--portrait"],
+            (210.0, 297.0),
+            &[": PLAN", "STANDPOINTS high street", "SCALE 1:", "DRAWN "],
+        ),
+        (
+            &["plan", "--beside", "--page", "a3"],
+            (420.0, 297.0),
+            &[
+                ": STANDPOINT high street",
+                "PLAN SCALE 1:",
+                "DRAWN ",
+                "10\u{b0}",
+            ],
+        ),
+        (
+            &["sheet", "--page", "a5", "--portrait"],
+            (148.0, 210.0),
+            &[
+                ": 3 VIEWS",
+                "STANDPOINTS high street, church hill",
+                "DRAWN ",
+            ],
+        ),
+    ];
+    for (k, (args, (w, h), words)) in cases.iter().enumerate() {
+        let out = format!("page{k}.svg");
+        let mut all: Vec<&str> = args.to_vec();
+        all.extend([scene, "--dpi", "60", "-q", "-o", &out]);
+        common::succeeds(&dir, &all);
+        let svg = std::fs::read_to_string(dir.path(&out)).unwrap();
+        let labels = read_back_labels(&svg);
+        for word in *words {
+            assert!(
+                labels.iter().any(|(text, _)| text.contains(word)),
+                "{args:?}: no {word:?} in {:?}",
+                labels.iter().map(|l| &l.0).collect::<Vec<_>>()
+            );
+        }
+        let printable = [10.0, 10.0, w - 10.0, h - 10.0];
+        for (text, b) in &labels {
+            assert!(
+                b[0] >= printable[0] - 0.05
+                    && b[1] >= printable[1] - 0.05
+                    && b[2] <= printable[2] + 0.05
+                    && b[3] <= printable[3] + 0.05,
+                "{args:?}: {text:?} at {b:?} leaves {printable:?}"
+            );
+        }
+    }
+}
+
+/// A drawing on titled paper is centred in the room above the block: the margins left and
+/// right of it are equal, and so are those above and below it, within a pixel (ISO 216 A3
+/// landscape, 420 x 297 mm).
+#[test]
+fn a_drawing_on_titled_paper_is_centred_above_the_block() {
+    use pansite::drawing::{Drawing, Layer, Stroke};
+    use pansite::page::{on_titled_paper, Sheet};
+    use pansite::plane::{ImagePoint, PolylineSet};
+    let dpi = 100.0;
+    let px = dpi / 25.4;
+    // A 2:1 panorama and a square plan with 10 mm between, as `plan --beside` lays them.
+    let (width, height) = ((3.0 * 80.0 + 10.0) * px, 80.0 * px);
+    let mut outline = PolylineSet::new();
+    outline.push(&[
+        ImagePoint::new(0.0, 0.0),
+        ImagePoint::new(width, 0.0),
+        ImagePoint::new(width, height),
+        ImagePoint::new(0.0, height),
+        ImagePoint::new(0.0, 0.0),
+    ]);
+    let content = Sheet::full_bleed(
+        Drawing {
+            width: width.ceil() as u32,
+            height: height.ceil() as u32,
+            layers: vec![Layer {
+                filled: false,
+                text: None,
+                name: "content".to_owned(),
+                stroke: Stroke::black(1.0, 1.0),
+                lines: outline,
+            }],
+        },
+        dpi,
+    );
+    let content = Sheet {
+        width_mm: width / px,
+        height_mm: height / px,
+        ..content
+    };
+    let a3 = Paper::named("A3").unwrap().landscape();
+    let fields = vec![
+        "STANNOCK: STANDPOINT HIGH STREET".to_owned(),
+        "DRAWN 2026-12-03".to_owned(),
+    ];
+    let sheet = on_titled_paper(&content, &a3, 10.0, &fields, &fields, Some(0.5)).unwrap();
+    let mut drawn = [
+        f64::INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::NEG_INFINITY,
+    ];
+    for layer in sheet.drawing.layers.iter().filter(|l| l.name == "content") {
+        for line in layer.lines.iter() {
+            for p in line {
+                drawn = [
+                    drawn[0].min(p.x),
+                    drawn[1].min(p.y),
+                    drawn[2].max(p.x),
+                    drawn[3].max(p.y),
+                ];
+            }
+        }
+    }
+    let margin = 10.0 * px;
+    let (left, right) = (drawn[0] - margin, 420.0 * px - margin - drawn[2]);
+    assert!(
+        left > 1.0 && (left - right).abs() <= 1.0,
+        "{left} vs {right}"
+    );
+    // The block across the printable width, at the foot; the gap above it.
+    let block = pansite::page::title_layout(&fields, 400.0, Some(5.0));
+    let block_top = (297.0 - 10.0 - block.height_mm) * px;
+    let gap = pansite::page::TITLE_GAP_MM * px;
+    let (above, below) = (drawn[1] - margin, block_top - gap - drawn[3]);
+    assert!(
+        above > 1.0 && (above - below).abs() <= 1.0,
+        "{above} vs {below}"
+    );
 }

@@ -557,22 +557,11 @@ fn runaway_repeats_and_opening_grids_are_refused_quickly() {
     }
 }
 
-#[test]
-fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
-    // A vertical wall meets each flat triangle of the ground in a straight line (two planes
-    // meet in a line, plane geometry), so the foot line is straight between the points
-    // where a wall crosses the triangles' edges, and lies on the ground all along: checked
-    // at every segment's ends and middle against the ground's own heights, and round the
-    // whole plan (its perimeter, 2 x (8 + 12) = 40 m, by hand).
-    let site = site(
-        "Scene(ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)],
-                        contours: [(height: 2, points: [(-40, 10), (0, 12), (40, 10)]),
-                                   (height: 4, points: [(-40, 30), (0, 33), (40, 30)])]),
-               items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
-                             on_ground: true, roof: Gable(ridge: 11, along: Depth))])",
-    );
+/// The length of an item's segments lying on the ground at both ends and the middle (the
+/// foot line), and how many of them slope; panics if one leaves the ground in between.
+fn foot_on_ground(site: &Site, kind: &str) -> (f64, usize) {
     let ground = site.ground.as_ref().expect("a ground");
-    let block = site.items.iter().position(|i| i.kind == "block").unwrap() as u32;
+    let item = site.items.iter().position(|i| i.kind == kind).unwrap() as u32;
     let on_ground = |p: &Point3<f64>| {
         ground
             .height_at(p.x, p.y)
@@ -580,7 +569,7 @@ fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
     };
     let mut length = 0.0;
     let mut slopes = 0;
-    for edge in site.edges.iter().filter(|e| e.item == ItemId(block)) {
+    for edge in site.edges.iter().filter(|e| e.item == ItemId(item)) {
         if let SiteCurve::Segment { start, end } = edge.curve {
             let middle = Point3::from((start.coords + end.coords) / 2.0);
             if on_ground(&start) && on_ground(&end) && (start - end).xy().norm() > 1e-9 {
@@ -590,7 +579,111 @@ fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
             }
         }
     }
+    (length, slopes)
+}
+
+const HILL: &str = "ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)],
+                        contours: [(height: 2, points: [(-40, 10), (0, 12), (40, 10)]),
+                                   (height: 4, points: [(-40, 30), (0, 33), (40, 30)])])";
+
+#[test]
+fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
+    // A vertical wall meets each flat triangle of the ground in a straight line (two planes
+    // meet in a line, plane geometry), so the foot line is straight between the points
+    // where a wall crosses the triangles' edges, and lies on the ground all along: checked
+    // at every segment's ends and middle against the ground's own heights, and round the
+    // whole plan (its perimeter, 2 x (8 + 12) = 40 m, by hand).
+    let site = site(&format!(
+        "Scene({HILL},
+               items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
+                             on_ground: true, roof: Gable(ridge: 11, along: Depth))])"
+    ));
+    let (length, slopes) = foot_on_ground(&site, "block");
     assert_near(length, 40.0, 1e-9);
     // The side walls run up the slope, so parts of the foot line slope.
     assert!(slopes >= 2, "{slopes}");
+}
+
+#[test]
+fn a_footprint_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
+    // The same plane geometry as for a block; an L-shaped plan whose perimeter is, by
+    // hand, 10 + 4 + 6 + 8 + 4 + 12 = 44 m.
+    let site = site(&format!(
+        "Scene({HILL},
+               items: [Footprint(points: [(0, 14), (10, 14), (10, 18), (4, 18), (4, 26),
+                                          (0, 26)], height: 6, on_ground: true)])"
+    ));
+    let (length, slopes) = foot_on_ground(&site, "footprint");
+    assert_near(length, 44.0, 1e-9);
+    assert!(slopes >= 2, "{slopes}");
+    // It stands at its lowest corner, as a block does: the lowest wall foot is there.
+    let ground = site.ground.as_ref().unwrap();
+    let lowest = [(0.0, 14.0), (10.0, 14.0)]
+        .map(|(x, y)| ground.height_at(x, y).unwrap())
+        .into_iter()
+        .fold(f64::INFINITY, f64::min);
+    let item = site
+        .items
+        .iter()
+        .position(|i| i.kind == "footprint")
+        .unwrap() as u32;
+    let lowest_edge = site
+        .edges
+        .iter()
+        .filter(|e| e.item == ItemId(item))
+        .filter_map(|e| match e.curve {
+            SiteCurve::Segment { start, end } => Some(start.z.min(end.z)),
+            _ => None,
+        })
+        .filter(|z| z.is_finite())
+        .fold(f64::INFINITY, f64::min);
+    assert_near(lowest_edge, lowest, 1e-9);
+}
+
+#[test]
+fn a_plinth_carries_a_level_floor_and_its_courses_stop_at_the_ground() {
+    // A plane ground z = 0.075 (y + 20) (four coplanar spot heights). A linear function on
+    // a rectangle is highest at a corner (plane geometry), so the floor is at the back,
+    // y = 28: 3.6 m; the front, y = 16, is at 2.7 m. Course lines every 0.3 m down from the
+    // floor: at 3.3 and 3.0 m (the one at 2.7 m touches the front's ground and is not drawn).
+    // Each runs the whole front (8 m) and up each side until the ground reaches it, at
+    // (H - 2.7) / 0.075 from the front by similar triangles: 8 m for 3.3, 4 m for 3.0.
+    let site = site(
+        "Scene(ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),
+               items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
+                             on_ground: true, plinth: (course: 0.3))])",
+    );
+    let segments: Vec<(Point3<f64>, Point3<f64>)> = site
+        .edges
+        .iter()
+        .filter_map(|e| match e.curve {
+            SiteCurve::Segment { start, end } => Some((start, end)),
+            _ => None,
+        })
+        .collect();
+    let level_length = |z: f64| -> f64 {
+        segments
+            .iter()
+            .filter(|(a, b)| (a.z - z).abs() < 1e-9 && (b.z - z).abs() < 1e-9)
+            .map(|(a, b)| (b - a).norm())
+            .sum()
+    };
+    // The floor: the foot of the walls, round the whole plan at 3.6 m.
+    assert_near(level_length(3.6), 40.0, 1e-9);
+    assert_near(level_length(3.3), 8.0 + 2.0 * 8.0, 1e-9);
+    assert_near(level_length(3.0), 8.0 + 2.0 * 4.0, 1e-9);
+    // At 2.7 m only the foot along the front (8 m): no course drawn on the ground.
+    assert_near(level_length(2.7), 8.0, 1e-9);
+    // The foot line still runs round the plinth on the ground.
+    let (length, _) = foot_on_ground(&site, "block");
+    assert_near(length, 40.0, 1e-9);
+    // The front corners' plinth edges drop from the floor the full 0.9 m to the ground.
+    let corner_drops = segments
+        .iter()
+        .filter(|(a, b)| {
+            let (low, high) = (a.z.min(b.z), a.z.max(b.z));
+            (a.xy() - b.xy()).norm() < 1e-9 && (high - 3.6).abs() < 1e-9 && (low - 2.7).abs() < 1e-9
+        })
+        .count();
+    assert_eq!(corner_drops, 2);
 }

@@ -47,11 +47,20 @@ pub enum PlanScale {
 impl PlanSettings {
     /// The size of the printable area of `paper` less `margin_mm` on every side, at `dpi`.
     pub fn for_paper(paper: &Paper, margin_mm: f64, dpi: f64) -> PlanSettings {
+        PlanSettings::for_room(
+            paper.width_mm - 2.0 * margin_mm,
+            paper.height_mm - 2.0 * margin_mm,
+            dpi,
+        )
+    }
+
+    /// The size of a room `width_mm` x `height_mm` on paper, at `dpi`.
+    pub fn for_room(width_mm: f64, height_mm: f64, dpi: f64) -> PlanSettings {
         let px = dpi / 25.4;
-        let side = |mm: f64| ((mm - 2.0 * margin_mm) * px).max(0.0).floor() as u32;
+        let side = |mm: f64| (mm * px).max(0.0).floor() as u32;
         PlanSettings {
-            width: side(paper.width_mm),
-            height: side(paper.height_mm),
+            width: side(width_mm),
+            height: side(height_mm),
             dpi,
             ..PlanSettings::default()
         }

@@ -3,7 +3,7 @@
 //! several sheets when asked.
 
 use super::clip::{clip_and_move, Rect};
-use super::title::{title_block, title_layout, TitleLayout, GAP_MM};
+use super::title::{title_block, title_layers, title_layout, TitleLayout, GAP_MM};
 use super::{Paper, Sheet};
 use crate::drawing::{
     label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, LayerText, Stroke,
@@ -121,7 +121,7 @@ impl PageSettings {
         let layout = self.title.as_ref().map(|fields| {
             let mut all = fields.clone();
             all.push(scale_line(0.0).replace('.', "0."));
-            title_layout(&all, block_w, area_w / 36.0)
+            title_layout(&all, block_w, Some(area_w / 36.0))
         });
         let title = layout.as_ref().map_or(0.0, |l| l.height_mm + GAP_MM);
         if title > printable_h - overlap {
@@ -194,36 +194,15 @@ impl PageSettings {
         if let (Some(fields), Some((plan, left_mm, top_mm))) = (&self.title, &placement.title) {
             let mut all = fields.clone();
             all.push(scale_line(placement.mm_per_degree));
-            let plan = title_layout(&all, plan.width_mm, 10.0 * placement.mm_per_degree)
+            let plan = title_layout(&all, plan.width_mm, Some(10.0 * placement.mm_per_degree))
                 .with_height_of(plan);
             let block = title_block(
                 &plan,
                 ImagePoint::new(left_mm * px, top_mm * px),
                 px,
-                placement.mm_per_degree,
+                Some(placement.mm_per_degree),
             );
-            let stroke = Stroke::black(0.9, (0.25 * px).max(1.0));
-            layers.push(Layer {
-                filled: false,
-                text: None,
-                name: "scale bar".to_owned(),
-                stroke,
-                lines: block.bar,
-            });
-            for (stroke, lines) in block.samples {
-                layers.push(Layer {
-                    filled: false,
-                    text: None,
-                    name: "legend".to_owned(),
-                    stroke,
-                    lines,
-                });
-            }
-            let ink = LabelInk {
-                stroke,
-                halo_px: None,
-            };
-            layers.extend(label_layers(&block.labels, ink));
+            layers.extend(title_layers(block, px));
         }
         let layout = Drawing {
             width: (placement.layout_width_mm * px).ceil() as u32,

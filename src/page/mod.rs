@@ -45,14 +45,17 @@ mod clip;
 mod layout;
 mod paper;
 mod title;
+mod titled;
 
 pub use clip::{clip_and_move, clip_segment, Rect};
 pub use layout::{label_frame, PageSettings, Placement, Tiling, HALO_MM};
 pub use paper::{preset_names, Paper, MAX_SIDE_MM, MM_PER_INCH};
 pub use title::{
-    civil_date, title_block, title_layout, title_lines, today, wrap, TitleBlock, TitleLayout,
-    LEGEND, LETTER_MM, MIN_LETTER_MM,
+    civil_date, plan_title_lines, sheet_title_lines, title_block, title_layers, title_layout,
+    title_lines, today, wrap, TitleBlock, TitleLayout, GAP_MM as TITLE_GAP_MM, LEGEND, LETTER_MM,
+    MIN_LETTER_MM,
 };
+pub use titled::{centred, on_titled_paper, room_above_title};
 
 use crate::drawing::Drawing;
 

@@ -3,7 +3,10 @@
 //! width there is, at a cap height never below 2 mm, so that the block fits any sheet from
 //! A6 portrait to A0 and ASME E.
 
-use crate::drawing::{line_pitch, text_width, Align, Label, LabelKind, LabelPlacer, Stroke};
+use crate::drawing::{
+    label_layers, line_pitch, text_width, Align, Label, LabelInk, LabelKind, LabelPlacer, Layer,
+    Stroke,
+};
 use crate::plane::{ImagePoint, PolylineSet, Rect};
 use crate::scene::{Site, Standpoint};
 
@@ -55,14 +58,15 @@ impl TitleLayout {
     }
 }
 
-/// Lays the block out in `width_mm`, its scale bar at most `bar_mm` long.
-pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: f64) -> TitleLayout {
+/// Lays the block out in `width_mm`, its scale bar at most `bar_mm` long (none for a
+/// sheet without one scale of degrees: a plan, a sheet of thumbnails).
+pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: Option<f64>) -> TitleLayout {
     let letter_mm = if width_mm < 120.0 {
         MIN_LETTER_MM
     } else {
         LETTER_MM
     };
-    let bar_box_mm = bar_mm + 4.0 * letter_mm;
+    let bar_box_mm = bar_mm.map_or(0.0, |bar| bar + 4.0 * letter_mm);
     let text_width_mm = (width_mm - bar_box_mm - 2.0 * letter_mm).max(20.0 * letter_mm);
     let mut rows = Vec::new();
     for field in fields {
@@ -85,7 +89,8 @@ pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: f64) -> TitleLayou
     let pitch = line_pitch(letter_mm) + 0.4 * letter_mm;
     let text_rows = rows.len() + legend_rows.len();
     // The scale bar needs three rows of its own at the right.
-    let height_mm = pitch * text_rows.max(3) as f64 + 0.5 * letter_mm;
+    let least_rows = if bar_mm.is_some() { 3 } else { 1 };
+    let height_mm = pitch * text_rows.max(least_rows) as f64 + 0.5 * letter_mm;
     TitleLayout {
         letter_mm,
         rows,
@@ -137,7 +142,8 @@ pub fn wrap(field: &str, width_mm: f64, letter_mm: f64) -> Vec<String> {
 
 /// The drawn block: its labels (placed by a [`LabelPlacer`] over the block's box, so they
 /// are whole and apart), the scale bar and the legend's samples; `px` pixels a millimetre,
-/// the block's top-left corner at `origin`, the panorama's scale `mm_per_degree`.
+/// the block's top-left corner at `origin`, the panorama's scale `mm_per_degree` (none: no
+/// scale bar).
 pub struct TitleBlock {
     /// The lettering, placed.
     pub labels: Vec<crate::drawing::PlacedLabel>,
@@ -158,7 +164,7 @@ pub fn title_block(
     layout: &TitleLayout,
     origin: ImagePoint,
     px: f64,
-    mm_per_degree: f64,
+    mm_per_degree: Option<f64>,
 ) -> TitleBlock {
     let h = layout.letter_mm * px;
     let pitch = (line_pitch(layout.letter_mm) + 0.4 * layout.letter_mm) * px;
@@ -169,32 +175,42 @@ pub fn title_block(
         origin.y + layout.height_mm * px,
     );
     // The scale bar at the right of the block, ticked every degree, in a box of its own.
-    let bar = 10.0 * mm_per_degree * px;
     let right = bounds.right - h;
     let y = origin.y + 1.6 * pitch;
     let mut bar_lines = PolylineSet::new();
-    bar_lines.push(&[ImagePoint::new(right - bar, y), ImagePoint::new(right, y)]);
-    for degree in 0..=10 {
-        let x = right - bar + bar * degree as f64 / 10.0;
-        let tick = if degree % 5 == 0 { h } else { h / 2.0 };
-        bar_lines.push(&[ImagePoint::new(x, y), ImagePoint::new(x, y - tick)]);
-    }
-    let bar_bounds = Rect::from_ltrb(right - bar, y - h, right, y).grown(0.3 * h);
-    let mut placer = LabelPlacer::new(bounds, 0.0);
-    placer.block(bar_bounds);
+    let mut bar_bounds = Rect::from_ltrb(right, y, right, y);
     let mut labels = Vec::new();
-    labels.push(Label::fixed(
-        "10\u{b0}",
-        ImagePoint::new(right, y + 1.4 * h),
-        LabelKind::Title,
-        h,
-        Align::End,
-    ));
-    let left = origin.x;
+    if let Some(mm_per_degree) = mm_per_degree {
+        let bar = 10.0 * mm_per_degree * px;
+        bar_lines.push(&[ImagePoint::new(right - bar, y), ImagePoint::new(right, y)]);
+        for degree in 0..=10 {
+            let x = right - bar + bar * degree as f64 / 10.0;
+            let tick = if degree % 5 == 0 { h } else { h / 2.0 };
+            bar_lines.push(&[ImagePoint::new(x, y), ImagePoint::new(x, y - tick)]);
+        }
+        bar_bounds = Rect::from_ltrb(right - bar, y - h, right, y).grown(0.3 * h);
+        labels.push(Label::fixed(
+            "10\u{b0}",
+            ImagePoint::new(right, y + 1.4 * h),
+            LabelKind::Title,
+            h,
+            Align::End,
+        ));
+    }
+    let mut placer = LabelPlacer::new(bounds, 0.0);
+    if mm_per_degree.is_some() {
+        placer.block(bar_bounds);
+    }
+    // The letters' ink reaches half a stroke (about h / 20) beyond their box; kept in from
+    // the block's edge by more than that, or the placer, which keeps every label whole
+    // inside its area, leaves the rows out.
+    let inset = 0.1 * h;
+    let left = origin.x + inset;
+    let first = origin.y + h + inset;
     for (row, text) in layout.rows.iter().enumerate() {
         labels.push(Label::fixed(
             text.clone(),
-            ImagePoint::new(left, origin.y + h + row as f64 * pitch),
+            ImagePoint::new(left, first + row as f64 * pitch),
             LabelKind::Title,
             h,
             Align::Start,
@@ -202,7 +218,7 @@ pub fn title_block(
     }
     let mut samples = Vec::new();
     for (r, entries) in layout.legend_rows.iter().enumerate() {
-        let baseline = origin.y + h + (layout.rows.len() + r) as f64 * pitch;
+        let baseline = first + (layout.rows.len() + r) as f64 * pitch;
         let mut x = left;
         for &k in entries {
             let (words, opacity, dashed) = LEGEND[k];
@@ -241,6 +257,37 @@ pub fn title_block(
     }
 }
 
+/// The drawn block as layers: the scale bar, the legend's samples and the lettering, all
+/// in the block's ink.
+pub fn title_layers(block: TitleBlock, px: f64) -> Vec<Layer> {
+    let stroke = Stroke::black(0.9, (0.25 * px).max(1.0));
+    let mut layers = Vec::new();
+    if !block.bar.is_empty() {
+        layers.push(Layer {
+            filled: false,
+            text: None,
+            name: "scale bar".to_owned(),
+            stroke,
+            lines: block.bar,
+        });
+    }
+    for (stroke, lines) in block.samples {
+        layers.push(Layer {
+            filled: false,
+            text: None,
+            name: "legend".to_owned(),
+            stroke,
+            lines,
+        });
+    }
+    let ink = LabelInk {
+        stroke,
+        halo_px: None,
+    };
+    layers.extend(label_layers(&block.labels, ink));
+    layers
+}
+
 /// The title block's lines for a drawing of `site` from `standpoint`, dated `date`
 /// (year, month, day).
 pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
@@ -259,14 +306,7 @@ pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) 
         ),
         format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
     ];
-    if let Some(location) = &site.location {
-        if location.north_deg.rem_euclid(360.0) != 0.0 {
-            lines.push(format!(
-                "TRUE NORTH {:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)",
-                location.north_deg.rem_euclid(360.0)
-            ));
-        }
-    }
+    lines.extend(north_line(site));
     if let Some(sun) = &site.sun {
         lines.push(format!(
             "SUN AND SHADOWS AT {} {} LOCAL TIME ({}) FROM THE MODEL ALONE",
@@ -278,6 +318,72 @@ pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) 
                 .unwrap_or("UTC")
         ));
     }
+    lines
+}
+
+/// Where true north lies, when the scene's `location` turns it from plan north.
+fn north_line(site: &Site) -> Option<String> {
+    let north = site.location.as_ref()?.north_deg.rem_euclid(360.0);
+    (north != 0.0).then(|| {
+        format!(
+            "TRUE NORTH {north:.1}\u{b0} CLOCKWISE FROM PLAN NORTH (HEADINGS FROM PLAN NORTH; THE SUN FROM TRUE NORTH)"
+        )
+    })
+}
+
+/// The standpoints' names in one field, the first few and a count of the rest.
+fn standpoint_names(standpoints: &[Standpoint]) -> String {
+    const SHOWN: usize = 8;
+    let names: Vec<&str> = standpoints
+        .iter()
+        .take(SHOWN)
+        .map(|s| s.name.as_str())
+        .collect();
+    let word = if standpoints.len() == 1 {
+        "STANDPOINT"
+    } else {
+        "STANDPOINTS"
+    };
+    let mut field = format!("{word} {}", names.join(", "));
+    if standpoints.len() > SHOWN {
+        field.push_str(&format!(" AND {} MORE", standpoints.len() - SHOWN));
+    }
+    field
+}
+
+/// The title block's lines for a plan of `site` with `standpoints` marked, printed at 1 : N
+/// (`scale`) and `dpi`, dated `date`.
+pub fn plan_title_lines(
+    site: &Site,
+    standpoints: &[Standpoint],
+    scale: f64,
+    dpi: f64,
+    date: (i64, u32, u32),
+) -> Vec<String> {
+    let (year, month, day) = date;
+    let mut lines = vec![
+        format!("{}: PLAN", site.name),
+        standpoint_names(standpoints),
+        format!("SCALE 1:{scale:.0} PRINTED AT {dpi:.0} DPI; PLAN NORTH UP THE SHEET"),
+        format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
+    ];
+    lines.extend(north_line(site));
+    lines
+}
+
+/// The title block's lines for a sheet of thumbnails of `site`, one for each standpoint.
+pub fn sheet_title_lines(
+    site: &Site,
+    standpoints: &[Standpoint],
+    date: (i64, u32, u32),
+) -> Vec<String> {
+    let (year, month, day) = date;
+    let mut lines = vec![
+        format!("{}: {} VIEWS", site.name, standpoints.len()),
+        standpoint_names(standpoints),
+        format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
+    ];
+    lines.extend(north_line(site));
     lines
 }
 
@@ -346,8 +452,8 @@ mod tests {
     #[test]
     fn narrow_paper_gets_the_smallest_letters_and_more_rows() {
         let fields = vec!["A LONG SCENE NAME: STANDPOINT AT THE NORTH GATE".to_owned()];
-        let narrow = title_layout(&fields, 85.0, 25.0);
-        let wide = title_layout(&fields, 400.0, 100.0);
+        let narrow = title_layout(&fields, 85.0, Some(25.0));
+        let wide = title_layout(&fields, 400.0, Some(100.0));
         assert_eq!(narrow.letter_mm, MIN_LETTER_MM);
         assert_eq!(wide.letter_mm, LETTER_MM);
         assert!(narrow.rows.len() > wide.rows.len());

@@ -4,6 +4,7 @@
 use super::super::build::{plan_direction, ItemBuilder};
 use super::super::numbers::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
+use super::standing::{build_plinth, draw_foot, ground_under, plinth_floor, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -97,6 +98,10 @@ pub struct BlockSpec {
     /// block's lowest corner, and the walls run down into the slope (hidden by it).
     #[serde(default)]
     pub on_ground: bool,
+    /// With `on_ground`: a level floor at the highest ground under the block, on a plinth
+    /// running down to the slope.
+    #[serde(default)]
+    pub plinth: Option<PlinthSpec>,
     #[serde(default)]
     pub roof: RoofSpec,
     #[serde(default)]
@@ -214,68 +219,29 @@ fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: 
     }
 }
 
-/// The line where the walls of a plan (corners in the builder's frame) meet the scene's
-/// ground: round the plan, a point at each corner and wherever a wall crosses an edge of
-/// the ground's triangles, each at the ground's height there. A vertical wall meets each
-/// flat triangle in a straight line (two planes meet in a line), so between those points
-/// the line is straight and lies on the ground. In the builder's frame.
-fn wall_foot(b: &ItemBuilder, plan: &[Vector2<f64>]) -> Vec<Point3<f64>> {
-    let place = b.placement();
-    let Some(ground) = b.ground() else {
-        return Vec::new();
-    };
-    let site = |p: Vector2<f64>| {
-        let q = place.point(&Point3::new(p.x, p.y, 0.0));
-        Vector2::new(q.x, q.y)
-    };
-    // Back from the site's heights to the frame's (the frame keeps the vertical).
-    let lift = |p: Vector2<f64>, q: Vector2<f64>| {
-        let z = ground.height_at(q.x, q.y).unwrap_or(place.shift.z);
-        Point3::new(p.x, p.y, (z - place.shift.z) / place.scale)
-    };
-    let mut foot = Vec::new();
-    for (k, &p) in plan.iter().enumerate() {
-        let q = plan[(k + 1) % plan.len()];
-        foot.push(lift(p, site(p)));
-        for t in ground.bends(site(p), site(q)) {
-            let r = p + (q - p) * t;
-            foot.push(lift(r, site(r)));
-        }
-    }
-    foot
-}
-
 pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
+    let plan = rectangle_plan(width, depth);
     let mut base = block.base.0;
+    if block.plinth.is_some() && !block.on_ground {
+        return Err("a `plinth` needs `on_ground: true`".to_owned());
+    }
     if block.on_ground {
         let frame = b
             .placement()
             .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-        let Some(ground) = b.ground() else {
-            return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+        let (lowest, highest) = ground_under(b, &frame, &plan)?;
+        base = match block.plinth {
+            Some(_) => plinth_floor(highest, base)?,
+            None => lowest + base,
         };
-        let mut lowest = f64::INFINITY;
-        for p in rectangle_plan(width, depth) {
-            let q = frame.point(&Point3::new(p.x, p.y, 0.0));
-            match ground.height_at(q.x, q.y) {
-                Some(z) => lowest = lowest.min(z),
-                None => {
-                    return Err(format!(
-                        "stands on the ground, but its corner at ({:.2}, {:.2}) lies \
-                         outside the ground",
-                        q.x, q.y
-                    ))
-                }
-            }
-        }
-        base += (lowest - frame.shift.z) / frame.scale;
     }
     b.move_by(Vector3::new(corner.x, corner.y, base), turn);
-    if block.on_ground {
-        let foot = wall_foot(b, &rectangle_plan(width, depth));
-        b.path(&foot, true);
+    match block.plinth {
+        Some(plinth) => build_plinth(b, &plan, &plinth)?,
+        None if block.on_ground => draw_foot(b, &plan),
+        None => {}
     }
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");

@@ -6,6 +6,7 @@ use super::super::numbers::{plan, zero, Finite, NonNegative, Plan, Positive};
 use super::block::ParapetSpec;
 use super::mass::{build_mass, Mass};
 use super::plan::{is_convex, simple_polygon_problem, twice_signed_area};
+use super::standing::{build_plinth, draw_foot, ground_under, plinth_floor, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -38,6 +39,13 @@ pub struct FootprintSpec {
     pub height: Positive,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground, as a block does: `base` from the ground at its lowest
+    /// corner, the line where its walls meet the ground drawn.
+    #[serde(default)]
+    pub on_ground: bool,
+    /// With `on_ground`: a level floor at the highest ground under it, on a plinth.
+    #[serde(default)]
+    pub plinth: Option<PlinthSpec>,
     #[serde(default)]
     pub roof: FootprintRoof,
     #[serde(default)]
@@ -100,7 +108,23 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
         } => o.0,
         _ => 0.0,
     };
-    b.move_by(Vector3::new(0.0, 0.0, spec.base.0), 0.0);
+    let mut base = spec.base.0;
+    if spec.plinth.is_some() && !spec.on_ground {
+        return Err("a `plinth` needs `on_ground: true`".to_owned());
+    }
+    if spec.on_ground {
+        let (lowest, highest) = ground_under(b, &b.placement(), &points)?;
+        base = match spec.plinth {
+            Some(_) => plinth_floor(highest, base)?,
+            None => lowest + base,
+        };
+    }
+    b.move_by(Vector3::new(0.0, 0.0, base), 0.0);
+    match spec.plinth {
+        Some(plinth) => build_plinth(b, &points, &plinth)?,
+        None if spec.on_ground => draw_foot(b, &points),
+        None => {}
+    }
     let mass = Mass {
         plan: points,
         eaves: spec.height.0,

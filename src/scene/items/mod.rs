@@ -73,6 +73,7 @@ mod road;
 mod room;
 mod round;
 mod stairs;
+mod standing;
 mod tiles;
 mod tower_openings;
 mod vault;

@@ -5,6 +5,7 @@ use super::common::{choose_view, read_site, write_one};
 use super::settings::{paper, plan_settings};
 use crate::args::PlanArgs;
 use pansite::compose::{beside, plan_map, PlanSettings};
+use pansite::page::{on_titled_paper, plan_title_lines, room_above_title, title_lines, today};
 use pansite::render::draw_sheets;
 use pansite::Error;
 
@@ -34,39 +35,70 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         }
         None => None,
     };
-    let px_per_mm = args.out.dpi / 25.4;
+    let (dpi, margin) = (args.out.dpi, args.margin);
+    let px_per_mm = dpi / 25.4;
+    let date = today();
+    let no_room = || Error::Setting("the drawing and its title block do not fit the paper".into());
     let (sheet, left_out) = if args.beside {
+        let standpoint = choose_view(&site, &args.view)?;
+        // The title: the standpoint's lines, then both scales. Its room is measured with
+        // the widest plan scale this could print, so the real one never needs more rows.
+        let fields = |mm_per_degree: f64, scale: f64| {
+            let mut fields = title_lines(&site, &standpoint, date);
+            fields.push(format!(
+                "PANORAMA 1\u{b0} = {mm_per_degree:.3} MM; PLAN SCALE 1:{scale:.0} PRINTED AT {dpi:.0} DPI"
+            ));
+            fields
+        };
+        let mut planned = Vec::new();
+        let mut bar = None;
         if let Some(paper) = &paper {
-            // The printable area holds a 2:1 panorama and a square plan of its height,
-            // with the gap between: 3 h + gap across, h down.
-            let (w, h) = (
-                paper.width_mm - 2.0 * args.margin,
-                paper.height_mm - 2.0 * args.margin,
-            );
-            let side_mm = ((w - BESIDE_GAP_MM) / 3.0).min(h);
-            let side = (side_mm * px_per_mm).floor() as u32;
+            // The printable area less the title holds a 2:1 panorama and a square plan of
+            // its height, with the gap between: 3 h + gap across, h down. The bar of ten
+            // degrees is measured first on the whole printable area (it only gets shorter).
+            // (Less a pixel: the gap is rounded to whole pixels.)
+            let w = paper.width_mm - 2.0 * margin - 1.0 / px_per_mm;
+            let side_of = |h: f64| ((w - BESIDE_GAP_MM) / 3.0).min(h);
+            let first = side_of(paper.height_mm - 2.0 * margin) / 180.0;
+            planned = fields(first, 1e7);
+            let (_, h) =
+                room_above_title(paper, margin, &planned, Some(first)).ok_or_else(no_room)?;
+            let side = (side_of(h) * px_per_mm).floor() as u32;
             (panorama.width, panorama.height) = (2 * side, side);
             (settings.width, settings.height) = (side, side);
             panorama.validate()?;
+            bar = Some(side as f64 / px_per_mm / 180.0);
         }
-        let standpoint = choose_view(&site, &args.view)?;
-        let (sheets, _) = draw_sheets(&site, &standpoint, &panorama, None, args.out.dpi)?;
+        let (sheets, _) = draw_sheets(&site, &standpoint, &panorama, None, dpi)?;
         let plan = plan_map(&site, std::slice::from_ref(&standpoint), &settings)?;
         let both = beside(&sheets[0], &plan.sheet(), BESIDE_GAP_MM)?;
-        let sheet = match &paper {
-            Some(paper) => both.on_paper(paper, args.margin).ok_or_else(|| {
-                Error::Setting("the panorama and the plan do not fit the paper".into())
-            })?,
-            None => both,
+        let sheet = match (&paper, bar) {
+            (Some(paper), Some(bar)) => {
+                let fields = fields(bar, plan.scale_denominator());
+                on_titled_paper(&both, paper, margin, &fields, &planned, Some(bar))
+                    .ok_or_else(no_room)?
+            }
+            _ => both,
         };
         (sheet, plan.labels_left_out)
     } else if let Some(paper) = &paper {
+        let planned = plan_title_lines(&site, &site.standpoints, 1e7, dpi, date);
+        let (w, h) = room_above_title(paper, margin, &planned, None).ok_or_else(no_room)?;
         let settings = PlanSettings {
             scale: settings.scale,
-            ..PlanSettings::for_paper(paper, args.margin, args.out.dpi)
+            ..PlanSettings::for_room(w, h, dpi)
         };
         let plan = plan_map(&site, &site.standpoints, &settings)?;
-        (plan.on_paper(paper, args.margin), plan.labels_left_out)
+        let fields = plan_title_lines(
+            &site,
+            &site.standpoints,
+            plan.scale_denominator(),
+            dpi,
+            date,
+        );
+        let sheet = on_titled_paper(&plan.sheet(), paper, margin, &fields, &planned, None)
+            .ok_or_else(no_room)?;
+        (sheet, plan.labels_left_out)
     } else {
         let plan = plan_map(&site, &site.standpoints, &settings)?;
         (plan.sheet(), plan.labels_left_out)

@@ -6,6 +6,7 @@ use crate::args::{PathSweep, SheetArgs, ViewArgs};
 use pansite::compose::{
     contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, SheetGrid,
 };
+use pansite::page::{on_titled_paper, room_above_title, sheet_title_lines, today};
 use pansite::scene::Standpoint;
 use pansite::Error;
 use std::time::Instant;
@@ -50,21 +51,23 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     if standpoints.is_empty() {
         return Err(Error::NoStandpoint.into());
     }
-    // On paper: thumbnails as large as the printable area allows.
+    // On paper: thumbnails as large as the room above the title block allows.
+    let fields = sheet_title_lines(&site, &standpoints, today());
     let paper = match &args.page {
         Some(name) => {
             let paper = paper(name, args.portrait)?;
             let px_per_mm = args.out.dpi / 25.4;
-            let (w, h) = (
-                (paper.width_mm - 2.0 * args.margin) * px_per_mm,
-                (paper.height_mm - 2.0 * args.margin) * px_per_mm,
-            );
-            let fitted = (args.margin >= 0.0 && w > 0.0 && h > 0.0)
-                .then(|| SheetGrid::fit(standpoints.len(), args.columns, w, h))
-                .flatten();
+            let fitted = room_above_title(&paper, args.margin, &fields, None).and_then(|(w, h)| {
+                SheetGrid::fit(
+                    standpoints.len(),
+                    args.columns,
+                    w * px_per_mm,
+                    h * px_per_mm,
+                )
+            });
             let Some((grid, (tw, th))) = fitted else {
                 return Err(Error::Setting(format!(
-                    "{} thumbnails do not fit {} less a margin of {} mm: choose larger paper, a smaller margin or fewer standpoints",
+                    "{} thumbnails and the title block do not fit {} less a margin of {} mm: choose larger paper, a smaller margin or fewer standpoints",
                     standpoints.len(),
                     name,
                     args.margin
@@ -84,8 +87,7 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
         progress.update(done, total)
     })?;
     let sheet = match &paper {
-        Some(paper) => sheet
-            .on_paper(paper, args.margin)
+        Some(paper) => on_titled_paper(&sheet, paper, args.margin, &fields, &fields, None)
             .ok_or_else(|| Error::Setting("the thumbnails do not fit the paper".into()))?,
         None => sheet,
     };

@@ -1,0 +1,299 @@
+//! How a building with `on_ground: true` meets the scene's sloping ground: the ground's
+//! heights under its plan, the foot line where its walls meet the ground, and the plinth
+//! that carries a level floor over the slope. Shared by `Block` and `Footprint`.
+//!
+//! The plinth is our answer to "a block on a slope": the floor is level at the highest
+//! ground under the plan, and below it the plinth runs down to the ground, its face closed
+//! along the foot line. Course lines, every `course` metres down from the floor, run round
+//! the plinth and each stops where the ground rises to meet it, so the plinth reads as
+//! stepping down the slope in courses, as a sketcher draws a stone base on a hillside.
+
+use super::super::build::{ItemBuilder, Placement};
+use super::super::numbers::Positive;
+use nalgebra::{Point3, Vector2};
+use serde::Deserialize;
+
+/// Below this (metres, in the builder's frame) a height difference is no difference: a
+/// course line this close to the ground is not drawn, a plinth corner this short is none.
+const LEVEL_EPSILON: f64 = 1e-9;
+
+/// Course lines beyond this many on one plinth are refused (a course of a millimetre on a
+/// steep hill would be a grey smear, and slow).
+pub const MAX_COURSES: usize = 1000;
+
+/// A level plinth under a building on sloping ground.
+#[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct PlinthSpec {
+    /// Height of one course: lines drawn round the plinth every `course` down from the
+    /// floor, each stopping where the ground meets it. None: only the plinth's top and foot.
+    #[serde(default)]
+    pub course: Option<Positive>,
+}
+
+/// The lowest and highest ground under a plan, in the units of `frame` and measured from
+/// its origin: the lowest at the plan's corners (where a block without a plinth stands),
+/// the highest anywhere under the plan. The ground is flat on each triangle, so its highest
+/// point over the plan lies at a corner of the plan, where a wall crosses a triangle's
+/// edge, or at a triangle's corner inside the plan (a linear function on a convex polygon
+/// takes its maximum at a vertex; the plan cut by the triangles is such polygons).
+pub fn ground_under(
+    b: &ItemBuilder,
+    frame: &Placement,
+    plan: &[Vector2<f64>],
+) -> Result<(f64, f64), String> {
+    let Some(ground) = b.ground() else {
+        return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+    };
+    let local = |z: f64| (z - frame.shift.z) / frame.scale;
+    let site = |p: Vector2<f64>| {
+        let q = frame.point(&Point3::new(p.x, p.y, 0.0));
+        Vector2::new(q.x, q.y)
+    };
+    let mut lowest = f64::INFINITY;
+    let mut highest = f64::NEG_INFINITY;
+    for &p in plan {
+        let q = site(p);
+        let Some(z) = ground.height_at(q.x, q.y) else {
+            return Err(format!(
+                "stands on the ground, but its corner at ({:.2}, {:.2}) lies outside the ground",
+                q.x, q.y
+            ));
+        };
+        lowest = lowest.min(local(z));
+        highest = highest.max(local(z));
+    }
+    for (k, &p) in plan.iter().enumerate() {
+        let q = plan[(k + 1) % plan.len()];
+        for t in ground.bends(site(p), site(q)) {
+            let r = site(p + (q - p) * t);
+            if let Some(z) = ground.height_at(r.x, r.y) {
+                highest = highest.max(local(z));
+            }
+        }
+    }
+    let site_plan: Vec<Vector2<f64>> = plan.iter().map(|&p| site(p)).collect();
+    for corner in ground.triangles.iter().flatten() {
+        if inside(&site_plan, Vector2::new(corner.x, corner.y)) {
+            highest = highest.max(local(corner.z));
+        }
+    }
+    Ok((lowest, highest))
+}
+
+/// The floor of a building on a plinth: `base` above the highest ground under it. A
+/// negative `base` would sink the floor into the slope, under the plinth's own top.
+pub fn plinth_floor(highest: f64, base: f64) -> Result<f64, String> {
+    if base < 0.0 {
+        return Err(format!(
+            "a plinth's floor stands `base` above the highest ground under it, so `base` \
+             must not be negative; found {base}"
+        ));
+    }
+    Ok(highest + base)
+}
+
+/// Whether `p` lies strictly inside the polygon (crossing number: a ray to +x crosses the
+/// outline an odd number of times; O'Rourke, Computational Geometry in C, 7.4).
+fn inside(polygon: &[Vector2<f64>], p: Vector2<f64>) -> bool {
+    let mut odd = false;
+    for (k, &a) in polygon.iter().enumerate() {
+        let b = polygon[(k + 1) % polygon.len()];
+        if (a.y > p.y) != (b.y > p.y) {
+            let x = a.x + (p.y - a.y) / (b.y - a.y) * (b.x - a.x);
+            if x > p.x {
+                odd = !odd;
+            }
+        }
+    }
+    odd
+}
+
+/// The foot of each wall of a plan (corners in the builder's frame): where the wall meets
+/// the ground, from its first corner to the next, a point at each end and wherever the wall
+/// crosses an edge of the ground's triangles, each at the ground's height there. A vertical
+/// wall meets each flat triangle in a straight line (two planes meet in a line), so between
+/// those points the foot is straight and lies on the ground. In the builder's frame.
+pub fn wall_feet(b: &ItemBuilder, plan: &[Vector2<f64>]) -> Vec<Vec<Point3<f64>>> {
+    let place = b.placement();
+    let Some(ground) = b.ground() else {
+        return Vec::new();
+    };
+    let site = |p: Vector2<f64>| {
+        let q = place.point(&Point3::new(p.x, p.y, 0.0));
+        Vector2::new(q.x, q.y)
+    };
+    // Back from the site's heights to the frame's (the frame keeps the vertical).
+    let lift = |p: Vector2<f64>| {
+        let q = site(p);
+        let z = ground.height_at(q.x, q.y).unwrap_or(place.shift.z);
+        Point3::new(p.x, p.y, (z - place.shift.z) / place.scale)
+    };
+    plan.iter()
+        .enumerate()
+        .map(|(k, &p)| {
+            let q = plan[(k + 1) % plan.len()];
+            let mut foot = vec![lift(p)];
+            foot.extend(
+                ground
+                    .bends(site(p), site(q))
+                    .into_iter()
+                    .map(|t| lift(p + (q - p) * t)),
+            );
+            foot.push(lift(q));
+            foot
+        })
+        .collect()
+}
+
+/// Draws the line where the walls of a plan meet the ground, as one closed path.
+pub fn draw_foot(b: &mut ItemBuilder, plan: &[Vector2<f64>]) {
+    let mut line = Vec::new();
+    for foot in wall_feet(b, plan) {
+        line.extend_from_slice(&foot[..foot.len() - 1]);
+    }
+    if !line.is_empty() {
+        b.path(&line, true);
+    }
+}
+
+/// Draws a plinth under a floor at the builder's z = 0, whose plan (corners in the
+/// builder's frame) stands over ground no higher than the floor: the foot line, a face for
+/// each side closed along its foot (so it hides what is behind it, and nothing below the
+/// ground is a face), the corners down to the ground and the course lines.
+pub fn build_plinth(
+    b: &mut ItemBuilder,
+    plan: &[Vector2<f64>],
+    spec: &PlinthSpec,
+) -> Result<(), String> {
+    let feet = wall_feet(b, plan);
+    let deepest = feet.iter().flatten().map(|p| p.z).fold(0.0_f64, f64::min);
+    let courses = match spec.course {
+        Some(course) => {
+            let count = (-deepest / course.0 - LEVEL_EPSILON).floor().max(0.0) as usize;
+            if count > MAX_COURSES {
+                return Err(format!(
+                    "a plinth course of {} makes {count} course lines over the slope \
+                     (at most {MAX_COURSES}); give a larger `course`",
+                    course.0
+                ));
+            }
+            (1..=count).map(|k| -(k as f64) * course.0).collect()
+        }
+        None => Vec::new(),
+    };
+    draw_foot(b, plan);
+    for foot in &feet {
+        let (first, last) = (foot[0], foot[foot.len() - 1]);
+        let top = |p: Point3<f64>| Point3::new(p.x, p.y, 0.0);
+        if first.z < -LEVEL_EPSILON {
+            b.segment(top(first), first);
+        }
+        // Top edge along the floor, then back along the foot: one flat face.
+        let mut face = vec![top(first), top(last)];
+        face.extend(foot.iter().rev().copied());
+        face.dedup_by(|p, q| (*p - *q).norm() < LEVEL_EPSILON);
+        if face.len() > 1 && (face[0] - face[face.len() - 1]).norm() < LEVEL_EPSILON {
+            face.pop();
+        }
+        if face.len() >= 3 {
+            b.face(&face, &[]);
+        }
+        for &level in &courses {
+            for (start, end) in above_ground(foot, level) {
+                b.segment(start, end);
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The stretches of a horizontal line at `level`, running along a wall whose foot is
+/// `foot`, that lie above the ground: where the foot is below the level. The foot is
+/// straight between its points, so each stretch ends where a straight piece of it crosses
+/// the level (linear interpolation).
+pub fn above_ground(foot: &[Point3<f64>], level: f64) -> Vec<(Point3<f64>, Point3<f64>)> {
+    let at = |p: Point3<f64>| Point3::new(p.x, p.y, level);
+    let below = |p: &Point3<f64>| p.z < level - LEVEL_EPSILON;
+    let mut stretches = Vec::new();
+    let mut start = below(&foot[0]).then(|| at(foot[0]));
+    for pair in foot.windows(2) {
+        let (p, q) = (pair[0], pair[1]);
+        let crossing = || {
+            let t = (level - p.z) / (q.z - p.z);
+            at(p + (q - p) * t)
+        };
+        match (below(&p), below(&q), start) {
+            (true, false, Some(s)) => {
+                stretches.push((s, crossing()));
+                start = None;
+            }
+            (false, true, _) => start = Some(crossing()),
+            _ => {}
+        }
+    }
+    if let Some(s) = start {
+        stretches.push((s, at(foot[foot.len() - 1])));
+    }
+    stretches
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn assert_near(a: f64, b: f64, tolerance: f64) {
+        assert!((a - b).abs() <= tolerance, "{a} vs {b}");
+    }
+
+    #[test]
+    fn a_course_line_stops_where_the_ground_rises_to_it() {
+        // A foot rising 0 -> -2 -> 0 (a valley under the wall), a course at -1: by similar
+        // triangles it is above ground from a quarter to three quarters of the way.
+        let foot = [
+            Point3::new(0.0, 0.0, 0.0),
+            Point3::new(4.0, 0.0, -2.0),
+            Point3::new(8.0, 0.0, 0.0),
+        ];
+        let stretches = above_ground(&foot, -1.0);
+        assert_eq!(stretches.len(), 1);
+        assert_near(stretches[0].0.x, 2.0, 1e-12);
+        assert_near(stretches[0].1.x, 6.0, 1e-12);
+        assert_near(stretches[0].0.z, -1.0, 1e-12);
+    }
+
+    #[test]
+    fn a_course_line_above_all_the_ground_runs_the_whole_wall() {
+        let foot = [Point3::new(0.0, 0.0, -3.0), Point3::new(5.0, 0.0, -2.0)];
+        let stretches = above_ground(&foot, -1.0);
+        assert_eq!(stretches.len(), 1);
+        assert_near(stretches[0].0.x, 0.0, 1e-12);
+        assert_near(stretches[0].1.x, 5.0, 1e-12);
+        assert!(above_ground(&foot, -3.5).is_empty());
+    }
+
+    #[test]
+    fn a_course_line_over_a_ridge_breaks_in_two() {
+        let foot = [
+            Point3::new(0.0, 0.0, -2.0),
+            Point3::new(2.0, 0.0, 0.0),
+            Point3::new(4.0, 0.0, -2.0),
+        ];
+        let stretches = above_ground(&foot, -1.0);
+        assert_eq!(stretches.len(), 2);
+        assert_near(stretches[0].1.x, 1.0, 1e-12);
+        assert_near(stretches[1].0.x, 3.0, 1e-12);
+    }
+
+    #[test]
+    fn inside_counts_crossings() {
+        let square = [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(2.0, 0.0),
+            Vector2::new(2.0, 2.0),
+            Vector2::new(0.0, 2.0),
+        ];
+        assert!(inside(&square, Vector2::new(1.0, 1.0)));
+        assert!(!inside(&square, Vector2::new(3.0, 1.0)));
+    }
+}
