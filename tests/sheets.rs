@@ -457,6 +457,8 @@ fn contact_sheet_on_paper_keeps_its_captions_apart_and_named_after_the_sweep() {
     (settings.thumbnail.width, settings.thumbnail.height) = (tw, th);
     settings.thumbnail.hidden = Some(pansite::scene::HiddenEdges::Solid);
     settings.thumbnail.dpi = 100.0;
+    settings.thumbnail.aids.labels = true;
+    settings.thumbnail.aids.item_labels = true;
     let sheet = contact_sheet(&site, &standpoints, &settings, &|_, _| {})
         .unwrap()
         .on_paper(&paper, 10.0)
@@ -465,8 +467,20 @@ fn contact_sheet_on_paper_keeps_its_captions_apart_and_named_after_the_sweep() {
     assert_eq!((sheet.width_mm, sheet.height_mm), (297.0, 210.0));
     let mut svg = Vec::new();
     pansite::output::write_svg(&sheet, &mut svg).unwrap();
-    let back = read_back_labels(&String::from_utf8(svg).unwrap());
-    assert_eq!(back.len(), 2 * standpoints.len());
+    let all = read_back_labels(&String::from_utf8(svg).unwrap());
+    // The thumbnails' own labels (grid values, compass letters) keep a group each too, and
+    // lie inside their thumbnails; the captions are the groups below the thumbnails' rows.
+    let is_caption =
+        |t: &str| t.contains(". PATH ") || (t.starts_with("HEADING ") && t.contains("  AT "));
+    let (back, own): (Vec<_>, Vec<_>) = all.into_iter().partition(|(t, _)| is_caption(t));
+    assert!(own.len() >= standpoints.len(), "thumbnail labels: {own:?}");
+    for ((text, b), (caption, c)) in own.iter().flat_map(|o| back.iter().map(move |k| (o, k))) {
+        assert!(
+            !overlap(b, c),
+            "{text:?} {b:?} overlaps the caption {caption:?} {c:?}"
+        );
+    }
+    assert_eq!(back.len(), 2 * standpoints.len(), "{back:?}");
     for (k, (text, b)) in back.iter().enumerate() {
         if k % 2 == 0 {
             assert_eq!(*text, format!("{}. PATH {} OF 5", k / 2 + 1, k / 2 + 1));

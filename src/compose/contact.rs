@@ -8,7 +8,7 @@
 
 use crate::drawing::{
     label_layers, text_width, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer,
-    Stroke,
+    LayerText, Stroke,
 };
 use crate::error::{Error, Result};
 use crate::page::{clip_and_move, Rect, Sheet};
@@ -387,19 +387,24 @@ pub fn contact_sheet(
         };
         for layer in drawing.layers {
             let lines = clip_and_move(&layer.lines, &window, left, top);
-            // Thumbnails share layers by name, so each kind of line is one layer.
+            // A label stays a layer of its own, so the sheet's SVG keeps it as one group
+            // with its words; the placer kept it inside the thumbnail.
+            if let Some(text) = layer.text {
+                let at = ImagePoint::new(text.at.x + left, text.at.y + top);
+                layers.push(Layer {
+                    text: Some(LayerText { at, ..text }),
+                    lines,
+                    ..layer
+                });
+                continue;
+            }
+            // Other lines share layers by name, so each kind of line is one layer.
             match layers.iter_mut().find(|l| l.name == layer.name) {
                 Some(existing) => {
                     let mut lines = lines;
                     existing.lines.append(&mut lines);
                 }
-                None => layers.push(Layer {
-                    filled: false,
-                    text: None,
-                    name: layer.name,
-                    stroke: layer.stroke,
-                    lines,
-                }),
+                None => layers.push(Layer { lines, ..layer }),
             }
         }
         frames.push(&[
