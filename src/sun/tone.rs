@@ -287,18 +287,30 @@ fn clip_polygon_3d(
     polygon: Vec<Point3<f64>>,
     inside: impl Fn(&Point3<f64>) -> f64,
 ) -> Option<Vec<Point3<f64>>> {
+    let out = keep_inside(&polygon, inside);
+    (out.len() >= 3).then_some(out)
+}
+
+/// One Sutherland-Hodgman step (Sutherland and Hodgman, "Reentrant polygon clipping",
+/// CACM 17(1), 1974): the part of a polygon where `inside` is not negative, `inside` being
+/// linear along each side, so a side crossing zero is cut where it crosses.
+fn keep_inside<P, D>(polygon: &[P], inside: impl Fn(&P) -> f64) -> Vec<P>
+where
+    P: Copy + std::ops::Sub<Output = D> + std::ops::Add<D, Output = P>,
+    D: std::ops::Mul<f64, Output = D>,
+{
     let mut out = Vec::with_capacity(polygon.len() + 1);
-    for (k, b) in polygon.iter().enumerate() {
+    for (k, &b) in polygon.iter().enumerate() {
         let a = polygon[(k + polygon.len() - 1) % polygon.len()];
-        let (da, db) = (inside(&a), inside(b));
+        let (da, db) = (inside(&a), inside(&b));
         if (da >= 0.0) != (db >= 0.0) {
             out.push(a + (b - a) * (da / (da - db)));
         }
         if db >= 0.0 {
-            out.push(*b);
+            out.push(b);
         }
     }
-    (out.len() >= 3).then_some(out)
+    out
 }
 
 /// The part of a polygon on the left of the directed line from `a` to `b` (inside of a
@@ -306,19 +318,9 @@ fn clip_polygon_3d(
 fn clip_side(polygon: &[Vector2<f64>], a: Vector2<f64>, b: Vector2<f64>, left: bool) -> Polygon {
     let d = b - a;
     let sign = if left { 1.0 } else { -1.0 };
-    let inside = |p: &Vector2<f64>| sign * (d.x * (p.y - a.y) - d.y * (p.x - a.x));
-    let mut out = Vec::with_capacity(polygon.len() + 1);
-    for (k, q) in polygon.iter().enumerate() {
-        let p = polygon[(k + polygon.len() - 1) % polygon.len()];
-        let (dp, dq) = (inside(&p), inside(q));
-        if (dp >= 0.0) != (dq >= 0.0) {
-            out.push(p + (q - p) * (dp / (dp - dq)));
-        }
-        if dq >= 0.0 {
-            out.push(*q);
-        }
-    }
-    out
+    keep_inside(polygon, |p: &Vector2<f64>| {
+        sign * (d.x * (p.y - a.y) - d.y * (p.x - a.x))
+    })
 }
 
 /// Two convex counter-clockwise polygons' common part.
