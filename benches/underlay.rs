@@ -299,7 +299,7 @@ fn page_render(paper: &str, colour: bool) -> Duration {
         margin_mm: 10.0,
         dpi: 300.0,
         band_deg: (-90.0, 90.0),
-        title: Some(vec!["BENCHMARK".to_owned()]),
+        title: Some(vec!["BENCHMARK".to_owned()].into()),
         tiles: None,
     };
     let started = Instant::now();

@@ -152,7 +152,7 @@ fn a_page_prints_at_true_size() {
         margin_mm: 10.0,
         dpi: 150.0,
         band_deg: (-90.0, 90.0),
-        title: Some(vec!["TEST".to_owned()]),
+        title: Some(vec!["TEST".to_owned()].into()),
         tiles: None,
     };
     let (sheets, _) = draw_sheets(

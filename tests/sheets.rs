@@ -147,7 +147,8 @@ fn sheet_svg_and_pdf(paper: Paper, band: (f64, f64), pdf: bool) -> (String, Vec<
             "WEXCOMBE SQUARE WITH A LONG NAME FOR A SMALL SHEET: STANDPOINT BY THE FOUNTAIN".to_owned(),
             "HEADING 45.0\u{b0}  PITCH 0.0\u{b0}  ROLL 0.0\u{b0}  EYE 1.60 M ABOVE GROUND AT 0.00 M, AT (12.00, -3.00)".to_owned(),
             "DRAWN 2026-12-02 WITH PANSITE".to_owned(),
-        ]),
+        ]
+        .into()),
         tiles: None,
     };
     let settings = RenderSettings {
@@ -522,7 +523,7 @@ fn text_lettering_puts_editable_words_where_the_strokes_were() {
         margin_mm: 10.0,
         dpi: 100.0,
         band_deg: (-90.0, 90.0),
-        title: Some(vec!["WEXCOMBE: FOUNTAIN & STEPS <EAST>".to_owned()]),
+        title: Some(vec!["WEXCOMBE: FOUNTAIN & STEPS <EAST>".to_owned()].into()),
         tiles: None,
     };
     let settings = RenderSettings {
@@ -734,10 +735,11 @@ fn a_drawing_on_titled_paper_is_centred_above_the_block() {
         ..content
     };
     let a3 = Paper::named("A3").unwrap().landscape();
-    let fields = vec![
+    let fields: pansite::page::TitleText = vec![
         "STANNOCK: STANDPOINT HIGH STREET".to_owned(),
         "DRAWN 2026-12-03".to_owned(),
-    ];
+    ]
+    .into();
     let sheet = on_titled_paper(&content, &a3, 10.0, &fields, &fields, Some(0.5)).unwrap();
     let mut drawn = [
         f64::INFINITY,
@@ -772,4 +774,120 @@ fn a_drawing_on_titled_paper_is_centred_above_the_block() {
         above > 1.0 && (above - below).abs() <= 1.0,
         "{above} vs {below}"
     );
+}
+
+/// The paths of the layer `name` as lists of points, millimetres (roxmltree reads the SVG).
+fn layer_paths(svg: &str, name: &str) -> Vec<Vec<(f64, f64)>> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    let Some(group) = doc
+        .descendants()
+        .find(|n| n.has_tag_name("g") && n.attribute("data-layer") == Some(name))
+    else {
+        return Vec::new();
+    };
+    group
+        .children()
+        .filter(|n| n.has_tag_name("path"))
+        .map(|path| {
+            let numbers: Vec<f64> = path
+                .attribute("d")
+                .unwrap()
+                .split_whitespace()
+                .filter_map(|t| t.trim_start_matches(['M', 'L']).parse().ok())
+                .collect();
+            numbers.chunks_exact(2).map(|c| (c[0], c[1])).collect()
+        })
+        .collect()
+}
+
+/// The title block of a rendered page carries a north key: plan north up the sheet, and
+/// when the scene's `location` turns true north from it, a second arrow along that bearing
+/// (clockwise from plan north, as docs/scene-format.md defines `north`), measured here from
+/// the SVG's own coordinates with atan2; the key lies in the block, below the frame, and
+/// no title row crosses it. A plan page's block has none: the plan draws its own.
+#[test]
+fn the_title_block_shows_plan_north_and_true_north_when_they_differ() {
+    let dir = common::Scratch::new("north-key");
+    let square = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron"),
+    )
+    .unwrap();
+    let turned = square.replacen(
+        "standpoints: [",
+        "location: (latitude: 50.9, longitude: -1.4, north: -37.5),\n    standpoints: [",
+        1,
+    );
+    assert_ne!(turned, square);
+    dir.write("turned.ron", &turned);
+    dir.write("square.ron", &square);
+    let bearing = |from: (f64, f64), to: (f64, f64)| {
+        (to.0 - from.0)
+            .atan2(from.1 - to.1)
+            .to_degrees()
+            .rem_euclid(360.0)
+    };
+    for (scene, shafts) in [("turned.ron", 2), ("square.ron", 1)] {
+        let out = format!("{scene}.svg");
+        common::succeeds(&dir, &["render", scene, "--page", "a4", "-q", "-o", &out]);
+        let svg = std::fs::read_to_string(dir.path(&out)).unwrap();
+        let key = layer_paths(&svg, "north key");
+        // The ring (the longest path) and its centre.
+        let ring = key.iter().max_by_key(|p| p.len()).unwrap();
+        let (xs, ys): (Vec<f64>, Vec<f64>) = ring.iter().copied().unzip();
+        let box_of = |v: &[f64]| {
+            v.iter()
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| {
+                    (a.min(x), b.max(x))
+                })
+        };
+        let ((left, right), (top, bottom)) = (box_of(&xs), box_of(&ys));
+        let centre = (0.5 * (left + right), 0.5 * (top + bottom));
+        // Straight shafts of two points: plan north's runs up through the centre; true
+        // north's starts at the centre.
+        let straight: Vec<&Vec<(f64, f64)>> = key.iter().filter(|p| p.len() == 2).collect();
+        let through = straight
+            .iter()
+            .filter(|p| {
+                (p[0].0 - centre.0).abs() < 0.05
+                    && (p[1].0 - centre.0).abs() < 0.05
+                    && p[0].1 > centre.1
+                    && p[1].1 < centre.1
+            })
+            .count();
+        assert_eq!(through, 1, "{scene}: one plan-north shaft up the sheet");
+        let from_centre: Vec<f64> = straight
+            .iter()
+            .filter(|p| (p[0].0 - centre.0).hypot(p[0].1 - centre.1) < 0.05)
+            .map(|p| bearing(p[0], p[1]))
+            .collect();
+        assert_eq!(from_centre.len(), shafts - 1, "{scene}");
+        if let Some(b) = from_centre.first() {
+            assert!(
+                (b - (360.0 - 37.5)).abs() < 0.1,
+                "{scene}: true north at {b}"
+            );
+        }
+        let labels = read_back_labels(&svg);
+        let words: Vec<&str> = labels.iter().map(|(t, _)| t.as_str()).collect();
+        assert!(words.contains(&"N"), "{words:?}");
+        assert_eq!(words.contains(&"TRUE N"), shafts == 2, "{words:?}");
+        // In the block: below the frame, inside the printable area (A4 landscape, 10 mm
+        // margins), and no title row over the ring.
+        let frame = read_back(&svg).frame;
+        assert!(top > frame[3] && bottom < 200.0 && left > 10.0 && right < 287.0);
+        let ring_box = [left, top, right, bottom];
+        for (text, b) in &labels {
+            assert!(
+                text == "N" || text == "TRUE N" || !overlap(b, &ring_box),
+                "{text:?} over the key"
+            );
+        }
+    }
+    common::succeeds(
+        &dir,
+        &["plan", "turned.ron", "--page", "a4", "-q", "-o", "plan.svg"],
+    );
+    let plan = std::fs::read_to_string(dir.path("plan.svg")).unwrap();
+    assert!(layer_paths(&plan, "north key").is_empty());
+    assert!(!layer_paths(&plan, "north arrow").is_empty());
 }

@@ -25,7 +25,7 @@ pub fn run(floor_time: Duration) {
         margin_mm: 10.0,
         dpi: 150.0,
         band_deg: (-90.0, 90.0),
-        title: Some(vec!["WEXCOMBE SQUARE: STANDPOINT FOUNTAIN".to_owned()]),
+        title: Some(vec!["WEXCOMBE SQUARE: STANDPOINT FOUNTAIN".to_owned()].into()),
         tiles: None,
     };
     let labelled = RenderSettings {

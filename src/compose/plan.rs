@@ -8,8 +8,8 @@
 //! North is up: site `x` (east) to the right, site `y` (north) up the page.
 
 use crate::drawing::{
-    dashed, label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, Spot,
-    Stroke,
+    dashed, label_layers, north_key, north_key_half_extent, Align, Drawing, Label, LabelInk,
+    LabelKind, LabelPlacer, Layer, Spot, Stroke,
 };
 use crate::error::{Error, Result};
 use crate::page::{Paper, Sheet};
@@ -314,49 +314,19 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
         Align::Start,
     ));
 
-    // North arrow at the bottom right: a shaft, a head and an N.
-    let mut north = PolylineSet::new();
-    let (nx, ny) = (w - 0.05 * w, h - 0.25 * footer);
-    let shaft = 0.6 * footer;
-    north.push(&[ImagePoint::new(nx, ny), ImagePoint::new(nx, ny - shaft)]);
-    north.push(&[
-        ImagePoint::new(nx - 0.2 * shaft, ny - 0.7 * shaft),
-        ImagePoint::new(nx, ny - shaft),
-        ImagePoint::new(nx + 0.2 * shaft, ny - 0.7 * shaft),
-    ]);
-    labels.push(Label::fixed(
-        "N",
-        ImagePoint::new(nx - 0.4 * shaft, ny - 0.5 * shaft),
-        LabelKind::Title,
+    // The north key at the bottom right (true north beside plan north when the scene's
+    // `location` turns it: the sun uses true north), as in the title block.
+    let true_north_deg = site.location.as_ref().map_or(0.0, |l| l.north_deg);
+    let radius = ((0.5 * footer - 1.35 * letter_px) / 1.5).max(1.2 * letter_px);
+    let (half_w, half_h) = north_key_half_extent(radius, letter_px, true_north_deg);
+    let key = north_key(
+        ImagePoint::new(w - 0.04 * w - half_w, h - half_h - 0.1 * letter_px),
+        radius,
         letter_px,
-        Align::End,
-    ));
-
-    // True north beside it when the scene's plan is turned from it: the sun uses true north.
-    if let Some(bearing) = site
-        .location
-        .as_ref()
-        .map(|l| l.north_deg.to_radians())
-        .filter(|b| b.sin().abs() > 1e-9 || b.cos() < 0.0)
-    {
-        let (sx, sy) = (bearing.sin(), -bearing.cos());
-        let (cx, cy) = (nx - 1.6 * shaft, ny - 0.5 * shaft);
-        let at = |along: f64, side: f64| {
-            ImagePoint::new(
-                cx + shaft * (along * sx - side * sy),
-                cy + shaft * (along * sy + side * sx),
-            )
-        };
-        north.push(&[at(-0.5, 0.0), at(0.5, 0.0)]);
-        north.push(&[at(0.2, -0.2), at(0.5, 0.0), at(0.2, 0.2)]);
-        labels.push(Label::fixed(
-            "TRUE N",
-            ImagePoint::new(cx - 0.7 * shaft, ny),
-            LabelKind::Title,
-            0.7 * letter_px,
-            Align::End,
-        ));
-    }
+        true_north_deg,
+    );
+    let north = key.lines;
+    labels.extend(key.labels);
 
     // Every word through one placer: no two overlap; standpoint names never cross the
     // buildings' outlines or the marks of the plan, and keep off other lines where they can.

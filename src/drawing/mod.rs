@@ -5,6 +5,7 @@ mod dash;
 mod glyphs;
 pub mod labels;
 mod lettering;
+mod north;
 mod style;
 mod wireframe;
 
@@ -13,6 +14,10 @@ pub use labels::{
     label_layers, Label, LabelInk, LabelKind, LabelPlacer, Placed, PlacedLabel, Spot, HALO,
 };
 pub use lettering::{letter, line_pitch, stroke_width, text_extent, text_width, unlettered, Align};
+pub use north::{
+    north_key, north_key_half_extent, true_north_differs, up_turned, NorthKey, PLAN_NORTH,
+    TRUE_NORTH,
+};
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
     wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,

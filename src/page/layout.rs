@@ -3,7 +3,7 @@
 //! several sheets when asked.
 
 use super::clip::{clip_and_move, Rect};
-use super::title::{title_block, title_layers, title_layout, TitleLayout, GAP_MM};
+use super::title::{title_block, title_layers, title_layout, TitleLayout, TitleText, GAP_MM};
 use super::{Paper, Sheet};
 use crate::drawing::{
     label_layers, Align, Drawing, Label, LabelInk, LabelKind, LabelPlacer, Layer, LayerText, Stroke,
@@ -24,7 +24,7 @@ pub struct PageSettings {
     pub band_deg: (f64, f64),
     /// The lines of the title block (scene, standpoint, ...); the scale is added to them.
     /// `None`: no title block.
-    pub title: Option<Vec<String>>,
+    pub title: Option<TitleText>,
     /// Several sheets to print and join, or `None` for one.
     pub tiles: Option<Tiling>,
 }
@@ -120,7 +120,7 @@ impl PageSettings {
         let block_w = area_w.min(printable_w);
         let layout = self.title.as_ref().map(|fields| {
             let mut all = fields.clone();
-            all.push(scale_line(0.0).replace('.', "0."));
+            all.fields.push(scale_line(0.0).replace('.', "0."));
             title_layout(&all, block_w, Some(area_w / 36.0))
         });
         let title = layout.as_ref().map_or(0.0, |l| l.height_mm + GAP_MM);
@@ -193,7 +193,7 @@ impl PageSettings {
         });
         if let (Some(fields), Some((plan, left_mm, top_mm))) = (&self.title, &placement.title) {
             let mut all = fields.clone();
-            all.push(scale_line(placement.mm_per_degree));
+            all.fields.push(scale_line(placement.mm_per_degree));
             let plan = title_layout(&all, plan.width_mm, Some(10.0 * placement.mm_per_degree))
                 .with_height_of(plan);
             let block = title_block(
@@ -453,7 +453,7 @@ mod tests {
             margin_mm: 10.0,
             dpi: 300.0,
             band_deg: (-90.0, 90.0),
-            title: Some(vec!["TEST".to_owned()]),
+            title: Some(vec!["TEST".to_owned()].into()),
             tiles: None,
         }
     }

@@ -52,8 +52,8 @@ pub use layout::{label_frame, PageSettings, Placement, Tiling, HALO_MM};
 pub use paper::{preset_names, Paper, MAX_SIDE_MM, MM_PER_INCH};
 pub use title::{
     civil_date, plan_title_lines, sheet_title_lines, title_block, title_layers, title_layout,
-    title_lines, today, wrap, TitleBlock, TitleLayout, GAP_MM as TITLE_GAP_MM, LEGEND, LETTER_MM,
-    MIN_LETTER_MM,
+    title_lines, today, wrap, TitleBlock, TitleLayout, TitleText, GAP_MM as TITLE_GAP_MM, LEGEND,
+    LETTER_MM, MIN_LETTER_MM,
 };
 pub use titled::{centred, on_titled_paper, room_above_title};
 

@@ -1,11 +1,11 @@
 //! The title block: what the sheet shows (scene, standpoint, date), its scale and a scale
-//! bar, and a legend of the line kinds, laid out for the paper: the fields wrap to the
+//! bar, a north key and a legend of the line kinds, laid out for the paper: the fields wrap to the
 //! width there is, at a cap height never below 2 mm, so that the block fits any sheet from
 //! A6 portrait to A0 and ASME E.
 
 use crate::drawing::{
-    label_layers, line_pitch, text_width, Align, Label, LabelInk, LabelKind, LabelPlacer, Layer,
-    Stroke,
+    label_layers, line_pitch, north_key, north_key_half_extent, text_width, Align, Label, LabelInk,
+    LabelKind, LabelPlacer, Layer, Stroke,
 };
 use crate::plane::{ImagePoint, PolylineSet, Rect};
 use crate::scene::{Site, Standpoint};
@@ -31,6 +31,31 @@ pub const LEGEND: [(&str, f64, bool); 5] = [
     ("AIDS", 0.75, false),
 ];
 
+/// What a title block says: its fields (each wrapped to the width there is), and its north
+/// key.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct TitleText {
+    /// The fields, in order.
+    pub fields: Vec<String>,
+    /// The bearing of true north from plan north that the block's north key shows,
+    /// degrees clockwise (0 when the plan's north is true north); `None`: no key, for a
+    /// sheet whose drawing carries its own (a plan).
+    pub north_key: Option<f64>,
+}
+
+impl From<Vec<String>> for TitleText {
+    /// Fields of a scene whose plan north is true north, with the key.
+    fn from(fields: Vec<String>) -> TitleText {
+        TitleText {
+            fields,
+            north_key: Some(0.0),
+        }
+    }
+}
+
+/// The north key's ring radius, in cap heights.
+const KEY_RADIUS: f64 = 1.6;
+
 /// The block's rows, wrapped to a width, and its height.
 #[derive(Clone, Debug, PartialEq)]
 pub struct TitleLayout {
@@ -48,6 +73,11 @@ pub struct TitleLayout {
     pub height_mm: f64,
     /// Room kept at the right for the scale bar, millimetres.
     pub bar_box_mm: f64,
+    /// Room kept left of the scale bar for the north key, millimetres (0: no key).
+    pub key_box_mm: f64,
+    /// The bearing of true north from plan north the key shows, degrees clockwise; `None`:
+    /// no key.
+    pub north_key: Option<f64>,
 }
 
 impl TitleLayout {
@@ -59,17 +89,27 @@ impl TitleLayout {
 }
 
 /// Lays the block out in `width_mm`, its scale bar at most `bar_mm` long (none for a
-/// sheet without one scale of degrees: a plan, a sheet of thumbnails).
-pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: Option<f64>) -> TitleLayout {
+/// sheet without one scale of degrees: a plan, a sheet of thumbnails), the north key left
+/// of the bar.
+pub fn title_layout(text: &TitleText, width_mm: f64, bar_mm: Option<f64>) -> TitleLayout {
     let letter_mm = if width_mm < 120.0 {
         MIN_LETTER_MM
     } else {
         LETTER_MM
     };
     let bar_box_mm = bar_mm.map_or(0.0, |bar| bar + 4.0 * letter_mm);
-    let text_width_mm = (width_mm - bar_box_mm - 2.0 * letter_mm).max(20.0 * letter_mm);
+    let (key_half_w, key_half_h) = text.north_key.map_or((0.0, 0.0), |bearing| {
+        north_key_half_extent(KEY_RADIUS * letter_mm, letter_mm, bearing)
+    });
+    let key_box_mm = if text.north_key.is_some() {
+        2.0 * key_half_w + letter_mm
+    } else {
+        0.0
+    };
+    let text_width_mm =
+        (width_mm - bar_box_mm - key_box_mm - 2.0 * letter_mm).max(20.0 * letter_mm);
     let mut rows = Vec::new();
-    for field in fields {
+    for field in &text.fields {
         rows.extend(wrap(field, text_width_mm, letter_mm));
     }
     // Legend entries: a sample line and the words, as many to a row as fit.
@@ -88,8 +128,9 @@ pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: Option<f64>) -> Ti
     }
     let pitch = line_pitch(letter_mm) + 0.4 * letter_mm;
     let text_rows = rows.len() + legend_rows.len();
-    // The scale bar needs three rows of its own at the right.
-    let least_rows = if bar_mm.is_some() { 3 } else { 1 };
+    // The scale bar needs three rows of its own at the right, the key its whole height.
+    let key_rows = ((2.0 * key_half_h - 0.5 * letter_mm) / pitch).ceil() as usize;
+    let least_rows = if bar_mm.is_some() { 3 } else { 1 }.max(key_rows);
     let height_mm = pitch * text_rows.max(least_rows) as f64 + 0.5 * letter_mm;
     TitleLayout {
         letter_mm,
@@ -99,6 +140,8 @@ pub fn title_layout(fields: &[String], width_mm: f64, bar_mm: Option<f64>) -> Ti
         width_mm,
         height_mm,
         bar_box_mm,
+        key_box_mm,
+        north_key: text.north_key,
     }
 }
 
@@ -149,6 +192,8 @@ pub struct TitleBlock {
     pub labels: Vec<crate::drawing::PlacedLabel>,
     /// The scale bar's strokes.
     pub bar: PolylineSet,
+    /// The north key's strokes (its words are among the labels).
+    pub key: PolylineSet,
     /// Legend samples, one polyline set per entry of [`LEGEND`].
     pub samples: Vec<(Stroke, PolylineSet)>,
     /// The block's box, and the scale bar's, pixels.
@@ -245,11 +290,23 @@ pub fn title_block(
             x += legend_entry_mm(words, layout.letter_mm) * px;
         }
     }
+    // The north key, centred in its box between the text and the scale bar.
+    let mut key_lines = PolylineSet::new();
+    if let Some(bearing) = layout.north_key {
+        let centre = ImagePoint::new(
+            bounds.right - (layout.bar_box_mm + 0.5 * layout.key_box_mm) * px,
+            0.5 * (bounds.top + bounds.bottom),
+        );
+        let key = north_key(centre, KEY_RADIUS * h, h, bearing);
+        key_lines = key.lines;
+        labels.extend(key.labels);
+    }
     placer.place(labels);
     let placed = placer.finish();
     TitleBlock {
         labels: placed.labels,
         bar: bar_lines,
+        key: key_lines,
         samples,
         bounds,
         bar_bounds,
@@ -271,6 +328,15 @@ pub fn title_layers(block: TitleBlock, px: f64) -> Vec<Layer> {
             lines: block.bar,
         });
     }
+    if !block.key.is_empty() {
+        layers.push(Layer {
+            filled: false,
+            text: None,
+            name: "north key".to_owned(),
+            stroke,
+            lines: block.key,
+        });
+    }
     for (stroke, lines) in block.samples {
         layers.push(Layer {
             filled: false,
@@ -290,7 +356,7 @@ pub fn title_layers(block: TitleBlock, px: f64) -> Vec<Layer> {
 
 /// The title block's lines for a drawing of `site` from `standpoint`, dated `date`
 /// (year, month, day).
-pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> Vec<String> {
+pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) -> TitleText {
     let (year, month, day) = date;
     let mut lines = vec![
         format!("{}: STANDPOINT {}", site.name, standpoint.name),
@@ -318,7 +384,15 @@ pub fn title_lines(site: &Site, standpoint: &Standpoint, date: (i64, u32, u32)) 
                 .unwrap_or("UTC")
         ));
     }
-    lines
+    with_north(site, lines)
+}
+
+/// `fields` with a north key showing the bearing of true north of `site`.
+fn with_north(site: &Site, fields: Vec<String>) -> TitleText {
+    TitleText {
+        fields,
+        north_key: Some(site.location.as_ref().map_or(0.0, |l| l.north_deg)),
+    }
 }
 
 /// Where true north lies, when the scene's `location` turns it from plan north.
@@ -359,7 +433,7 @@ pub fn plan_title_lines(
     scale: f64,
     dpi: f64,
     date: (i64, u32, u32),
-) -> Vec<String> {
+) -> TitleText {
     let (year, month, day) = date;
     let mut lines = vec![
         format!("{}: PLAN", site.name),
@@ -368,7 +442,11 @@ pub fn plan_title_lines(
         format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
     ];
     lines.extend(north_line(site));
-    lines
+    // The plan draws its own key.
+    TitleText {
+        fields: lines,
+        north_key: None,
+    }
 }
 
 /// The title block's lines for a sheet of thumbnails of `site`, one for each standpoint.
@@ -376,7 +454,7 @@ pub fn sheet_title_lines(
     site: &Site,
     standpoints: &[Standpoint],
     date: (i64, u32, u32),
-) -> Vec<String> {
+) -> TitleText {
     let (year, month, day) = date;
     let mut lines = vec![
         format!("{}: {} VIEWS", site.name, standpoints.len()),
@@ -384,7 +462,7 @@ pub fn sheet_title_lines(
         format!("DRAWN {year:04}-{month:02}-{day:02} WITH PANSITE"),
     ];
     lines.extend(north_line(site));
-    lines
+    with_north(site, lines)
 }
 
 /// Today's date (UTC), or the date of `SOURCE_DATE_EPOCH` when that is set (the usual way
@@ -452,6 +530,7 @@ mod tests {
     #[test]
     fn narrow_paper_gets_the_smallest_letters_and_more_rows() {
         let fields = vec!["A LONG SCENE NAME: STANDPOINT AT THE NORTH GATE".to_owned()];
+        let fields = TitleText::from(fields);
         let narrow = title_layout(&fields, 85.0, Some(25.0));
         let wide = title_layout(&fields, 400.0, Some(100.0));
         assert_eq!(narrow.letter_mm, MIN_LETTER_MM);

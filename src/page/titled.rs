@@ -2,7 +2,7 @@
 //! with the title block of the rendered pages across the foot of the printable area, the
 //! drawing centred in the room left above it.
 
-use super::title::{title_block, title_layers, title_layout, GAP_MM};
+use super::title::{title_block, title_layers, title_layout, TitleText, GAP_MM};
 use super::{Paper, Sheet};
 use crate::drawing::Drawing;
 use crate::plane::ImagePoint;
@@ -14,7 +14,7 @@ use crate::plane::ImagePoint;
 pub fn room_above_title(
     paper: &Paper,
     margin_mm: f64,
-    fields: &[String],
+    fields: &TitleText,
     mm_per_degree: Option<f64>,
 ) -> Option<(f64, f64)> {
     let width = paper.width_mm - 2.0 * margin_mm;
@@ -37,8 +37,8 @@ pub fn on_titled_paper(
     content: &Sheet,
     paper: &Paper,
     margin_mm: f64,
-    fields: &[String],
-    planned: &[String],
+    fields: &TitleText,
+    planned: &TitleText,
     mm_per_degree: Option<f64>,
 ) -> Option<Sheet> {
     let (room_w, room_h) = room_above_title(paper, margin_mm, planned, mm_per_degree)?;
@@ -97,7 +97,7 @@ mod tests {
             width_mm: 297.0,
             height_mm: 210.0,
         };
-        let fields = vec!["HILL: PLAN".to_owned(), "DRAWN 2026-01-01".to_owned()];
+        let fields = TitleText::from(vec!["HILL: PLAN".to_owned(), "DRAWN 2026-01-01".to_owned()]);
         let (w, h) = room_above_title(&a4, 10.0, &fields, None).unwrap();
         assert!((w - 277.0).abs() < 1e-12);
         let block = title_layout(&fields, 277.0, None);

@@ -5,7 +5,9 @@ use super::common::{choose_view, read_site, write_one};
 use super::settings::{paper, plan_settings};
 use crate::args::PlanArgs;
 use pansite::compose::{beside, plan_map, PlanSettings};
-use pansite::page::{on_titled_paper, plan_title_lines, room_above_title, title_lines, today};
+use pansite::page::{
+    on_titled_paper, plan_title_lines, room_above_title, title_lines, today, TitleText,
+};
 use pansite::render::draw_sheets;
 use pansite::Error;
 
@@ -45,12 +47,13 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         // the widest plan scale this could print, so the real one never needs more rows.
         let fields = |mm_per_degree: f64, scale: f64| {
             let mut fields = title_lines(&site, &standpoint, date);
-            fields.push(format!(
+            fields.north_key = None; // the plan beside the panorama draws its own
+            fields.fields.push(format!(
                 "PANORAMA 1\u{b0} = {mm_per_degree:.3} MM; PLAN SCALE 1:{scale:.0} PRINTED AT {dpi:.0} DPI"
             ));
             fields
         };
-        let mut planned = Vec::new();
+        let mut planned = TitleText::default();
         let mut bar = None;
         if let Some(paper) = &paper {
             // The printable area less the title holds a 2:1 panorama and a square plan of
