@@ -489,7 +489,8 @@ pub fn draw_sheets(
         base_styles: Some(page_style()),
         ..settings.clone()
     };
-    let render = draw(site, standpoint, &sized)?;
-    let sheets = page.lay_out(&render.drawing, &placement);
+    let mut render = draw(site, standpoint, &sized)?;
+    let (sheets, title_left_out) = page.lay_out(&render.drawing, &placement);
+    render.labels_left_out += title_left_out;
     Ok((sheets, render))
 }

@@ -740,7 +740,9 @@ fn a_drawing_on_titled_paper_is_centred_above_the_block() {
         "DRAWN 2026-12-03".to_owned(),
     ]
     .into();
-    let sheet = on_titled_paper(&content, &a3, 10.0, &fields, &fields, Some(0.5)).unwrap();
+    let (sheet, left_out) =
+        on_titled_paper(&content, &a3, 10.0, &fields, &fields, Some(0.5)).unwrap();
+    assert_eq!(left_out, 0);
     let mut drawn = [
         f64::INFINITY,
         f64::INFINITY,

@@ -94,27 +94,10 @@ impl PageSettings {
                 self.dpi
             )));
         }
-        let (columns, rows, overlap) = match self.tiles {
-            Some(t) => (t.columns.max(1) as f64, t.rows.max(1) as f64, t.overlap_mm),
-            None => (1.0, 1.0, 0.0),
-        };
+        let (area_w, area_h) = tiled_area(&self.paper, self.margin_mm, self.tiles)?;
         let printable_w = self.paper.width_mm - 2.0 * self.margin_mm;
         let printable_h = self.paper.height_mm - 2.0 * self.margin_mm;
-        let margin_ok = self.margin_mm.is_finite() && self.margin_mm >= 0.0;
-        if !margin_ok || printable_w <= 0.0 || printable_h <= 0.0 {
-            return Err(Error::Setting(format!(
-                "margins of {} mm leave nothing of a {} x {} mm sheet",
-                self.margin_mm, self.paper.width_mm, self.paper.height_mm
-            )));
-        }
-        if overlap.is_nan() || overlap < 0.0 || overlap >= printable_w.min(printable_h) / 2.0 {
-            return Err(Error::Setting(format!(
-                "an overlap of {overlap} mm is more than half a sheet"
-            )));
-        }
-        // The layout's printable area: the sheets' printable areas, overlapped.
-        let area_w = columns * printable_w - (columns - 1.0) * overlap;
-        let area_h = rows * printable_h - (rows - 1.0) * overlap;
+        let overlap = self.tiles.map_or(0.0, |t| t.overlap_mm);
         // The title block spans the printable width of one sheet (on tiled sheets, the
         // bottom-left one, so no tile edge crosses it), at the bottom of the area.
         let block_w = area_w.min(printable_w);
@@ -165,8 +148,9 @@ impl PageSettings {
 
     /// Lays the panorama's drawing (the whole sphere, rendered at the placement's size) out
     /// on the sheets: its band, a frame round it, the title block, and on tiled sheets
-    /// crop marks and a label.
-    pub fn lay_out(&self, panorama: &Drawing, placement: &Placement) -> Vec<Sheet> {
+    /// crop marks and a label. Also the number of the title block's labels left out for
+    /// want of room, for the run's count.
+    pub fn lay_out(&self, panorama: &Drawing, placement: &Placement) -> (Vec<Sheet>, usize) {
         let px = self.px_per_mm();
         let window = Rect {
             left: 0.0,
@@ -191,6 +175,7 @@ impl PageSettings {
             stroke: Stroke::black(0.7, (0.25 * px).max(1.0)),
             lines: frame_lines,
         });
+        let mut left_out = 0;
         if let (Some(fields), Some((plan, left_mm, top_mm))) = (&self.title, &placement.title) {
             let mut all = fields.clone();
             all.fields.push(scale_line(placement.mm_per_degree));
@@ -202,6 +187,7 @@ impl PageSettings {
                 px,
                 Some(placement.mm_per_degree),
             );
+            left_out = block.left_out;
             layers.extend(title_layers(block, px));
         }
         let layout = Drawing {
@@ -209,148 +195,187 @@ impl PageSettings {
             height: (placement.layout_height_mm * px).ceil() as u32,
             layers,
         };
-        match self.tiles {
+        let sheets = match self.tiles {
             None => vec![Sheet {
                 drawing: layout,
                 width_mm: self.paper.width_mm,
                 height_mm: self.paper.height_mm,
                 mm_per_px: 1.0 / px,
             }],
-            Some(tiling) => self.cut(&layout, tiling),
-        }
+            Some(tiling) => cut_into_sheets(&layout, &self.paper, self.margin_mm, px, tiling),
+        };
+        (sheets, left_out)
     }
+}
 
-    /// Cuts the layout into sheets: each shows its part of the layout's printable area in
-    /// its own printable area, with crop marks at the corners of that area and a label.
-    fn cut(&self, layout: &Drawing, tiling: Tiling) -> Vec<Sheet> {
-        let px = self.px_per_mm();
-        let margin = self.margin_mm * px;
-        let (printable_w, printable_h) = (
-            self.paper.width_mm * px - 2.0 * margin,
-            self.paper.height_mm * px - 2.0 * margin,
-        );
-        let overlap = tiling.overlap_mm * px;
-        let total = tiling.columns * tiling.rows;
-        let mut sheets = Vec::new();
-        for row in 0..tiling.rows {
-            for column in 0..tiling.columns {
-                // This sheet's printable area, in layout pixels.
-                let x0 = margin + column as f64 * (printable_w - overlap);
-                let y0 = margin + row as f64 * (printable_h - overlap);
-                let part = Rect {
-                    left: x0,
-                    top: y0,
-                    right: x0 + printable_w,
-                    bottom: y0 + printable_h,
-                };
-                let (dx, dy) = (margin - x0, margin - y0);
-                let mut layers = clip_layers(&layout.layers, &part, dx, dy);
-                let mut marks = PolylineSet::new();
-                let reach = (margin * 0.8).min(8.0 * px);
-                for (x, y, sx, sy) in [
-                    (margin, margin, -1.0, -1.0),
-                    (margin + printable_w, margin, 1.0, -1.0),
-                    (margin, margin + printable_h, -1.0, 1.0),
-                    (margin + printable_w, margin + printable_h, 1.0, 1.0),
-                ] {
-                    // Crop marks in the margin, in line with the edges of the printable
-                    // area, that meet there: cut along them to trim the sheet.
-                    marks.push(&[
-                        ImagePoint::new(x, y + sy * 1.0),
-                        ImagePoint::new(x, y + sy * reach),
-                    ]);
-                    marks.push(&[
-                        ImagePoint::new(x + sx * 1.0, y),
-                        ImagePoint::new(x + sx * reach, y),
-                    ]);
-                }
-                // Registration targets in the middle of each margin: a ring and a cross, so
-                // that neighbouring sheets can be lined up by eye through their overlap.
-                let ring = (margin * 0.25).min(3.0 * px);
-                for (x, y) in [
-                    (margin + printable_w / 2.0, margin / 2.0),
-                    (
-                        margin + printable_w / 2.0,
-                        margin + printable_h + margin / 2.0,
-                    ),
-                    (margin / 2.0, margin + printable_h / 2.0),
-                    (
-                        margin + printable_w + margin / 2.0,
-                        margin + printable_h / 2.0,
-                    ),
-                ] {
-                    let circle: Vec<ImagePoint> = (0..=32)
-                        .map(|k| {
-                            let a = std::f64::consts::TAU * k as f64 / 32.0;
-                            ImagePoint::new(x + ring * a.cos(), y + ring * a.sin())
-                        })
-                        .collect();
-                    marks.push(&circle);
-                    marks.push(&[
-                        ImagePoint::new(x - 1.5 * ring, y),
-                        ImagePoint::new(x + 1.5 * ring, y),
-                    ]);
-                    marks.push(&[
-                        ImagePoint::new(x, y - 1.5 * ring),
-                        ImagePoint::new(x, y + 1.5 * ring),
-                    ]);
-                }
-                // Short enough to stay left of the registration target in the margin.
-                let label = format!(
-                    "ROW {}/{}, COLUMN {}/{} ({total}), OVERLAP {} MM",
-                    row + 1,
-                    tiling.rows,
-                    column + 1,
-                    tiling.columns,
-                    tiling.overlap_mm
-                );
-                let height = (LETTER_MM * px).min(margin * 0.4);
-                let mut placer = LabelPlacer::new(
-                    Rect::from_ltrb(
-                        0.0,
-                        margin + printable_h,
-                        margin + printable_w / 2.0 - 2.0 * ring,
-                        margin + printable_h + margin,
-                    ),
-                    0.0,
-                );
-                placer.place(vec![Label::fixed(
-                    label,
-                    ImagePoint::new(
-                        margin + reach.max(height),
-                        margin + printable_h + margin * 0.6,
-                    ),
-                    LabelKind::Title,
-                    height,
-                    Align::Start,
-                )]);
-                let ink = LabelInk {
-                    stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
-                    halo_px: None,
-                };
-                let sheet_labels = label_layers(&placer.finish().labels, ink);
-                layers.push(Layer {
-                    filled: false,
-                    text: None,
-                    name: "sheet marks".to_owned(),
-                    stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
-                    lines: marks,
-                });
-                layers.extend(sheet_labels);
-                sheets.push(Sheet {
-                    drawing: Drawing {
-                        width: (self.paper.width_mm * px).ceil() as u32,
-                        height: (self.paper.height_mm * px).ceil() as u32,
-                        layers,
-                    },
-                    width_mm: self.paper.width_mm,
-                    height_mm: self.paper.height_mm,
-                    mm_per_px: 1.0 / px,
-                });
-            }
-        }
-        sheets
+/// The printable area of a layout on `paper` kept `margin_mm` clear of its edges, spread
+/// over the sheets of `tiles` (overlapped), millimetres; an error for margins that leave
+/// nothing or an overlap of more than half a sheet.
+pub(super) fn tiled_area(
+    paper: &Paper,
+    margin_mm: f64,
+    tiles: Option<Tiling>,
+) -> Result<(f64, f64)> {
+    let (columns, rows, overlap) = match tiles {
+        Some(t) => (t.columns.max(1) as f64, t.rows.max(1) as f64, t.overlap_mm),
+        None => (1.0, 1.0, 0.0),
+    };
+    let printable_w = paper.width_mm - 2.0 * margin_mm;
+    let printable_h = paper.height_mm - 2.0 * margin_mm;
+    let margin_ok = margin_mm.is_finite() && margin_mm >= 0.0;
+    if !margin_ok || printable_w <= 0.0 || printable_h <= 0.0 {
+        return Err(Error::Setting(format!(
+            "margins of {} mm leave nothing of a {} x {} mm sheet",
+            margin_mm, paper.width_mm, paper.height_mm
+        )));
     }
+    if overlap.is_nan() || overlap < 0.0 || overlap >= printable_w.min(printable_h) / 2.0 {
+        return Err(Error::Setting(format!(
+            "an overlap of {overlap} mm is more than half a sheet"
+        )));
+    }
+    // The layout's printable area: the sheets' printable areas, overlapped.
+    let area_w = columns * printable_w - (columns - 1.0) * overlap;
+    let area_h = rows * printable_h - (rows - 1.0) * overlap;
+    Ok((area_w, area_h))
+}
+
+/// Cuts a layout (`px` pixels a millimetre, kept `margin_mm` clear of the edges of each
+/// sheet of `paper`) into sheets: each shows its part of the layout's printable area in its
+/// own printable area, with crop marks at the corners of that area and a label.
+pub(super) fn cut_into_sheets(
+    layout: &Drawing,
+    paper: &Paper,
+    margin_mm: f64,
+    px: f64,
+    tiling: Tiling,
+) -> Vec<Sheet> {
+    let margin = margin_mm * px;
+    let (printable_w, printable_h) = (
+        paper.width_mm * px - 2.0 * margin,
+        paper.height_mm * px - 2.0 * margin,
+    );
+    let overlap = tiling.overlap_mm * px;
+    let total = tiling.columns * tiling.rows;
+    let mut sheets = Vec::new();
+    for row in 0..tiling.rows {
+        for column in 0..tiling.columns {
+            // This sheet's printable area, in layout pixels.
+            let x0 = margin + column as f64 * (printable_w - overlap);
+            let y0 = margin + row as f64 * (printable_h - overlap);
+            let part = Rect {
+                left: x0,
+                top: y0,
+                right: x0 + printable_w,
+                bottom: y0 + printable_h,
+            };
+            let (dx, dy) = (margin - x0, margin - y0);
+            let mut layers = clip_layers(&layout.layers, &part, dx, dy);
+            let mut marks = PolylineSet::new();
+            let reach = (margin * 0.8).min(8.0 * px);
+            for (x, y, sx, sy) in [
+                (margin, margin, -1.0, -1.0),
+                (margin + printable_w, margin, 1.0, -1.0),
+                (margin, margin + printable_h, -1.0, 1.0),
+                (margin + printable_w, margin + printable_h, 1.0, 1.0),
+            ] {
+                // Crop marks in the margin, in line with the edges of the printable
+                // area, that meet there: cut along them to trim the sheet.
+                marks.push(&[
+                    ImagePoint::new(x, y + sy * 1.0),
+                    ImagePoint::new(x, y + sy * reach),
+                ]);
+                marks.push(&[
+                    ImagePoint::new(x + sx * 1.0, y),
+                    ImagePoint::new(x + sx * reach, y),
+                ]);
+            }
+            // Registration targets in the middle of each margin: a ring and a cross, so
+            // that neighbouring sheets can be lined up by eye through their overlap.
+            let ring = (margin * 0.25).min(3.0 * px);
+            for (x, y) in [
+                (margin + printable_w / 2.0, margin / 2.0),
+                (
+                    margin + printable_w / 2.0,
+                    margin + printable_h + margin / 2.0,
+                ),
+                (margin / 2.0, margin + printable_h / 2.0),
+                (
+                    margin + printable_w + margin / 2.0,
+                    margin + printable_h / 2.0,
+                ),
+            ] {
+                let circle: Vec<ImagePoint> = (0..=32)
+                    .map(|k| {
+                        let a = std::f64::consts::TAU * k as f64 / 32.0;
+                        ImagePoint::new(x + ring * a.cos(), y + ring * a.sin())
+                    })
+                    .collect();
+                marks.push(&circle);
+                marks.push(&[
+                    ImagePoint::new(x - 1.5 * ring, y),
+                    ImagePoint::new(x + 1.5 * ring, y),
+                ]);
+                marks.push(&[
+                    ImagePoint::new(x, y - 1.5 * ring),
+                    ImagePoint::new(x, y + 1.5 * ring),
+                ]);
+            }
+            // Short enough to stay left of the registration target in the margin.
+            let label = format!(
+                "ROW {}/{}, COLUMN {}/{} ({total}), OVERLAP {} MM",
+                row + 1,
+                tiling.rows,
+                column + 1,
+                tiling.columns,
+                tiling.overlap_mm
+            );
+            let height = (LETTER_MM * px).min(margin * 0.4);
+            let mut placer = LabelPlacer::new(
+                Rect::from_ltrb(
+                    0.0,
+                    margin + printable_h,
+                    margin + printable_w / 2.0 - 2.0 * ring,
+                    margin + printable_h + margin,
+                ),
+                0.0,
+            );
+            placer.place(vec![Label::fixed(
+                label,
+                ImagePoint::new(
+                    margin + reach.max(height),
+                    margin + printable_h + margin * 0.6,
+                ),
+                LabelKind::Title,
+                height,
+                Align::Start,
+            )]);
+            let ink = LabelInk {
+                stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
+                halo_px: None,
+            };
+            let sheet_labels = label_layers(&placer.finish().labels, ink);
+            layers.push(Layer {
+                filled: false,
+                text: None,
+                name: "sheet marks".to_owned(),
+                stroke: Stroke::black(1.0, (0.2 * px).max(1.0)),
+                lines: marks,
+            });
+            layers.extend(sheet_labels);
+            sheets.push(Sheet {
+                drawing: Drawing {
+                    width: (paper.width_mm * px).ceil() as u32,
+                    height: (paper.height_mm * px).ceil() as u32,
+                    layers,
+                },
+                width_mm: paper.width_mm,
+                height_mm: paper.height_mm,
+                mm_per_px: 1.0 / px,
+            });
+        }
+    }
+    sheets
 }
 
 /// The closed outlines of areas cut to `rect` (each stays closed) and moved by `(dx, dy)`.

@@ -301,16 +301,19 @@ pub fn title_block(
         key_lines = key.lines;
         labels.extend(key.labels);
     }
+    // Every word offered and not placed counts as left out, also one whose anchor fell
+    // outside the block (which the placer passes over without counting).
+    let offered = labels.len();
     placer.place(labels);
     let placed = placer.finish();
     TitleBlock {
+        left_out: offered - placed.labels.len(),
         labels: placed.labels,
         bar: bar_lines,
         key: key_lines,
         samples,
         bounds,
         bar_bounds,
-        left_out: placed.left_out,
     }
 }
 
@@ -536,5 +539,34 @@ mod tests {
         assert_eq!(narrow.letter_mm, MIN_LETTER_MM);
         assert_eq!(wide.letter_mm, LETTER_MM);
         assert!(narrow.rows.len() > wide.rows.len());
+    }
+
+    #[test]
+    fn rows_without_room_are_counted_as_left_out() {
+        // A block cut to two pitches of height keeps what fits and counts the rest: the
+        // placer never draws a row over the block's edge.
+        let fields = TitleText::from(vec![
+            "FIRST ROW".to_owned(),
+            "SECOND ROW".to_owned(),
+            "THIRD ROW".to_owned(),
+        ]);
+        let full = title_layout(&fields, 300.0, None);
+        let whole = title_block(&full, ImagePoint::new(0.0, 0.0), 10.0, None);
+        assert_eq!(whole.left_out, 0);
+        let pitch = line_pitch(full.letter_mm) + 0.4 * full.letter_mm;
+        let cut = TitleLayout {
+            height_mm: 2.0 * pitch,
+            ..full.clone()
+        };
+        let block = title_block(&cut, ImagePoint::new(0.0, 0.0), 10.0, None);
+        let kept: Vec<&str> = block.labels.iter().map(|l| l.text.as_str()).collect();
+        assert!(
+            kept.contains(&"FIRST ROW") && kept.contains(&"SECOND ROW"),
+            "{kept:?}"
+        );
+        assert!(!kept.contains(&"THIRD ROW"));
+        let offered = 3 + LEGEND.len() + 1; // the rows, the legend's words and the key's "N"
+        assert_eq!(block.labels.len() + block.left_out, offered);
+        assert!(block.left_out >= 1 + LEGEND.len(), "{}", block.left_out);
     }
 }

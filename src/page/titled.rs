@@ -32,7 +32,8 @@ pub fn centred(start: f64, room: f64, content: f64) -> f64 {
 /// `content` on `paper`: a title block of `fields` along the foot of the printable area,
 /// as tall as one of `planned` fields (the room was measured with those, see
 /// [`room_above_title`]), and the drawing centred in the room above it, by a translation
-/// only so printed lengths hold. `None` if the drawing does not fit that room.
+/// only so printed lengths hold; with the number of the block's labels left out for want
+/// of room. `None` if the drawing does not fit that room.
 pub fn on_titled_paper(
     content: &Sheet,
     paper: &Paper,
@@ -40,7 +41,7 @@ pub fn on_titled_paper(
     fields: &TitleText,
     planned: &TitleText,
     mm_per_degree: Option<f64>,
-) -> Option<Sheet> {
+) -> Option<(Sheet, usize)> {
     let (room_w, room_h) = room_above_title(paper, margin_mm, planned, mm_per_degree)?;
     let fits = content.width_mm <= room_w + 1e-6 && content.height_mm <= room_h + 1e-6;
     if !fits {
@@ -65,8 +66,9 @@ pub fn on_titled_paper(
         px,
         mm_per_degree,
     );
+    let left_out = drawn.left_out;
     layers.extend(title_layers(drawn, px));
-    Some(Sheet {
+    let sheet = Sheet {
         drawing: Drawing {
             width: (paper.width_mm * px).ceil() as u32,
             height: (paper.height_mm * px).ceil() as u32,
@@ -75,7 +77,8 @@ pub fn on_titled_paper(
         width_mm: paper.width_mm,
         height_mm: paper.height_mm,
         mm_per_px: content.mm_per_px,
-    })
+    };
+    Some((sheet, left_out))
 }
 
 #[cfg(test)]

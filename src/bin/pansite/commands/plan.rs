@@ -75,15 +75,15 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         let (sheets, _) = draw_sheets(&site, &standpoint, &panorama, None, dpi)?;
         let plan = plan_map(&site, std::slice::from_ref(&standpoint), &settings)?;
         let both = beside(&sheets[0], &plan.sheet(), BESIDE_GAP_MM)?;
-        let sheet = match (&paper, bar) {
+        let (sheet, title_left_out) = match (&paper, bar) {
             (Some(paper), Some(bar)) => {
                 let fields = fields(bar, plan.scale_denominator());
                 on_titled_paper(&both, paper, margin, &fields, &planned, Some(bar))
                     .ok_or_else(no_room)?
             }
-            _ => both,
+            _ => (both, 0),
         };
-        (sheet, plan.labels_left_out)
+        (sheet, plan.labels_left_out + title_left_out)
     } else if let Some(paper) = &paper {
         let planned = plan_title_lines(&site, &site.standpoints, 1e7, dpi, date);
         let (w, h) = room_above_title(paper, margin, &planned, None).ok_or_else(no_room)?;
@@ -99,9 +99,10 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
             dpi,
             date,
         );
-        let sheet = on_titled_paper(&plan.sheet(), paper, margin, &fields, &planned, None)
-            .ok_or_else(no_room)?;
-        (sheet, plan.labels_left_out)
+        let (sheet, title_left_out) =
+            on_titled_paper(&plan.sheet(), paper, margin, &fields, &planned, None)
+                .ok_or_else(no_room)?;
+        (sheet, plan.labels_left_out + title_left_out)
     } else {
         let plan = plan_map(&site, &site.standpoints, &settings)?;
         (plan.sheet(), plan.labels_left_out)

@@ -86,13 +86,19 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let sheet = contact_sheet(&site, &standpoints, &settings, &|done, total| {
         progress.update(done, total)
     })?;
-    let sheet = match &paper {
+    let (sheet, left_out) = match &paper {
         Some(paper) => on_titled_paper(&sheet, paper, args.margin, &fields, &fields, None)
             .ok_or_else(|| Error::Setting("the thumbnails do not fit the paper".into()))?,
-        None => sheet,
+        None => (sheet, 0),
     };
     let written = write_one(&sheet, &args.out, &args.scene, "sheet")?;
     if !args.out.quiet {
+        if left_out > 0 {
+            eprintln!(
+                "pansite: {left_out} title label{} left out for want of room",
+                if left_out == 1 { "" } else { "s" }
+            );
+        }
         eprintln!(
             "pansite: wrote {written} ({} standpoints, {}x{} px, {:.2} s)",
             standpoints.len(),
