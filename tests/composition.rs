@@ -690,7 +690,10 @@ fn plan_preview_and_sheet_write_every_format() {
     let a4 = pansite::page::Paper::parse("a4").unwrap().landscape();
     let planned =
         pansite::page::plan_title_lines(&demo(), &demo().standpoints, 1e7, 150.0, (2026, 1, 1));
-    let (room_w, room_h) = pansite::page::room_above_title(&a4, 10.0, &planned, None).unwrap();
+    let (room_w, room_h) = pansite::page::TitledPaper::new(a4, 10.0, None)
+        .unwrap()
+        .room_above_title(&planned, None)
+        .unwrap();
     let settings = PlanSettings::for_room(room_w, room_h, 150.0);
     let plan = plan_map(&demo(), &demo().standpoints, &settings).unwrap();
     let plan_w_mm = settings.width as f64 * 25.4 / 150.0;

@@ -701,7 +701,7 @@ fn plans_and_sheets_on_paper_carry_a_title_block_inside_the_printable_area() {
 #[test]
 fn a_drawing_on_titled_paper_is_centred_above_the_block() {
     use pansite::drawing::{Drawing, Layer, Stroke};
-    use pansite::page::{on_titled_paper, Sheet};
+    use pansite::page::{Sheet, TitledPaper};
     use pansite::plane::{ImagePoint, PolylineSet};
     let dpi = 100.0;
     let px = dpi / 25.4;
@@ -740,9 +740,12 @@ fn a_drawing_on_titled_paper_is_centred_above_the_block() {
         "DRAWN 2026-12-03".to_owned(),
     ]
     .into();
-    let (sheet, left_out) =
-        on_titled_paper(&content, &a3, 10.0, &fields, &fields, Some(0.5)).unwrap();
-    assert_eq!(left_out, 0);
+    let (sheets, left_out) = TitledPaper::new(a3, 10.0, None)
+        .unwrap()
+        .lay_out(&content, &fields, &fields, Some(0.5))
+        .unwrap();
+    assert_eq!((sheets.len(), left_out), (1, 0));
+    let sheet = &sheets[0];
     let mut drawn = [
         f64::INFINITY,
         f64::INFINITY,
@@ -892,4 +895,111 @@ fn the_title_block_shows_plan_north_and_true_north_when_they_differ() {
     let plan = std::fs::read_to_string(dir.path("plan.svg")).unwrap();
     assert!(layer_paths(&plan, "north key").is_empty());
     assert!(!layer_paths(&plan, "north arrow").is_empty());
+}
+
+/// `plan` and `sheet` on tiled paper, as `render` is: a plan over 2 x 1 sheets of A4
+/// landscape (ISO 216: 297 x 210 mm; 10 mm margins and overlap) is written one SVG a sheet
+/// named by row and column, each with its crop marks; every label whole inside its
+/// sheet's printable area; the title block on the bottom-left sheet only; a standard scale
+/// at least as large as on one sheet; and the printed scale bar measures true (its words
+/// "N M" at the scale 1:S: N metres are N * 1000 / S millimetres). The PDF holds both
+/// sheets (read with lopdf), and a tiled contact sheet is cut the same way.
+#[test]
+fn plans_and_sheets_tile_like_panoramas() {
+    let dir = common::Scratch::new("tiled-plans");
+    let scene = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/stannock-hill.ron");
+    let scene = scene.to_str().unwrap();
+    let scale_of = |labels: &[(String, MmBox)]| -> f64 {
+        let words = labels
+            .iter()
+            .find_map(|(t, _)| t.strip_prefix("SCALE 1:"))
+            .expect("a scale");
+        words.split_whitespace().next().unwrap().parse().unwrap()
+    };
+    let args = ["--dpi", "60", "-q"];
+    common::succeeds(
+        &dir,
+        &[&["plan", scene, "--page", "a4", "-o", "one.svg"], &args[..]].concat(),
+    );
+    let one = read_back_labels(&std::fs::read_to_string(dir.path("one.svg")).unwrap());
+    common::succeeds(
+        &dir,
+        &[
+            &[
+                "plan", scene, "--page", "a4", "--tiles", "2x1", "-o", "two.svg",
+            ],
+            &args[..],
+        ]
+        .concat(),
+    );
+    assert!(!dir.path("two.svg").exists());
+    let mut titles = Vec::new();
+    let mut scales = Vec::new();
+    for (k, name) in ["two-r1c1.svg", "two-r1c2.svg"].iter().enumerate() {
+        let svg = std::fs::read_to_string(dir.path(name)).expect(name);
+        let doc = roxmltree::Document::parse(&svg).unwrap();
+        assert_eq!(doc.root_element().attribute("width"), Some("297mm"));
+        assert!(!layer_paths(&svg, "sheet marks").is_empty(), "{name}");
+        let labels = read_back_labels(&svg);
+        // (The sheet's own label, "ROW r/R, COLUMN ...", stands in the margin.)
+        for (text, b) in labels.iter().filter(|(t, _)| !t.starts_with("ROW ")) {
+            assert!(
+                b[0] >= 9.95 && b[1] >= 9.95 && b[2] <= 287.05 && b[3] <= 200.05,
+                "{name}: {text:?} at {b:?}"
+            );
+        }
+        titles.push(labels.iter().any(|(t, _)| t.starts_with("DRAWN ")));
+        if labels.iter().any(|(t, _)| t.starts_with("SCALE 1:")) {
+            scales.push((k, labels, svg));
+        }
+    }
+    assert_eq!(
+        titles,
+        [true, false],
+        "the block on the bottom-left sheet only"
+    );
+    let (_, labels, svg) = scales.first().expect("the plan's scale on a sheet");
+    let tiled = scale_of(labels);
+    assert!(tiled <= scale_of(&one), "1:{tiled} vs 1:{}", scale_of(&one));
+    let metres: f64 = labels
+        .iter()
+        .find_map(|(t, _)| t.strip_suffix(" M")?.parse().ok())
+        .expect("the bar's length in metres");
+    let bar = &layer_paths(svg, "scale bar")[0];
+    let length = (bar[1].0 - bar[0].0).abs();
+    common::assert_near(length, metres * 1000.0 / tiled, 0.05);
+
+    common::succeeds(
+        &dir,
+        &[
+            &[
+                "plan", scene, "--page", "a4", "--tiles", "2x1", "-o", "two.pdf",
+            ],
+            &args[..],
+        ]
+        .concat(),
+    );
+    let pdf = lopdf::Document::load(dir.path("two.pdf")).unwrap();
+    assert_eq!(pdf.get_pages().len(), 2);
+
+    common::succeeds(
+        &dir,
+        &[
+            &[
+                "sheet",
+                scene,
+                "--page",
+                "a5",
+                "--tiles",
+                "1x2",
+                "-o",
+                "views.svg",
+            ],
+            &args[..],
+        ]
+        .concat(),
+    );
+    for name in ["views-r1c1.svg", "views-r2c1.svg"] {
+        assert!(dir.path(name).exists(), "{name}");
+    }
 }

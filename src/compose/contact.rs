@@ -32,6 +32,9 @@ pub struct ContactSettings {
     /// The local date and time of the sun and shadows of each thumbnail, in order (a sweep
     /// of times, [`sweep_times`]); thumbnails beyond the list keep `thumbnail`'s.
     pub moments: Vec<LocalMoment>,
+    /// Lines (x, y in the sheet's pixels) that captions must not cross: the edges of the
+    /// sheets a tiled page is cut into.
+    pub label_cuts: (Vec<f64>, Vec<f64>),
 }
 
 impl Default for ContactSettings {
@@ -46,6 +49,7 @@ impl Default for ContactSettings {
             columns: None,
             dpi: 150.0,
             moments: Vec::new(),
+            label_cuts: (Vec::new(), Vec::new()),
         }
     }
 }
@@ -450,6 +454,7 @@ pub fn contact_sheet(
         bottom: grid.height.ceil(),
     };
     let mut placer = LabelPlacer::new(sheet_box, 0.0);
+    placer.cut_along(&settings.label_cuts.0, &settings.label_cuts.1);
     placer.place(captions);
     let placed = placer.finish();
     layers.push(Layer {

@@ -31,6 +31,9 @@ pub struct PlanSettings {
     pub tolerance_px: f64,
     /// How the scale is chosen.
     pub scale: PlanScale,
+    /// Lines (x, y in the plan's pixels) that labels must not cross: the edges of the
+    /// sheets a tiled page is cut into.
+    pub label_cuts: (Vec<f64>, Vec<f64>),
 }
 
 /// How a plan's scale is chosen.
@@ -76,6 +79,7 @@ impl Default for PlanSettings {
             line_weight_px: 1.0,
             tolerance_px: 0.1,
             scale: PlanScale::Standard,
+            label_cuts: (Vec::new(), Vec::new()),
         }
     }
 }
@@ -331,6 +335,7 @@ pub fn plan_map(site: &Site, standpoints: &[Standpoint], settings: &PlanSettings
     // Every word through one placer: no two overlap; standpoint names never cross the
     // buildings' outlines or the marks of the plan, and keep off other lines where they can.
     let mut placer = LabelPlacer::new(Rect::from_ltrb(0.0, 0.0, w, h), 0.2 * letter_px);
+    placer.cut_along(&settings.label_cuts.0, &settings.label_cuts.1);
     let cell = (letter_px / 3.0).max(2.0);
     for lines in [&edges, &markers, &headings, &seams, &bar, &north] {
         placer.avoid_lines(lines, cell);

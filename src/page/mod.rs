@@ -55,7 +55,7 @@ pub use title::{
     title_lines, today, wrap, TitleBlock, TitleLayout, TitleText, GAP_MM as TITLE_GAP_MM, LEGEND,
     LETTER_MM, MIN_LETTER_MM,
 };
-pub use titled::{centred, on_titled_paper, room_above_title};
+pub use titled::{centred, TitledPaper};
 
 use crate::drawing::Drawing;
 

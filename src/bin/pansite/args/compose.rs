@@ -2,8 +2,8 @@
 
 use super::render::{FormatArg, HiddenArg, LetteringArg, ModelArgs, RenderArgs};
 use super::values::{
-    parse_finite, parse_grid, parse_path, parse_scale, parse_size, parse_triple, GridSweep,
-    PathSweep,
+    parse_finite, parse_grid, parse_non_negative, parse_path, parse_scale, parse_size, parse_tiles,
+    parse_triple, GridSweep, PathSweep,
 };
 use super::view::ViewArgs;
 use clap::Args;
@@ -78,6 +78,13 @@ pub struct SheetArgs {
     /// Margin round the sheet, millimetres.
     #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
     pub margin: f64,
+    /// Split the page over COLUMNSxROWS sheets of the paper, to print large and assemble
+    /// (one file a sheet for PNG and SVG, named by row and column; one PDF of them all).
+    #[arg(long, value_name = "CxR", value_parser = parse_tiles, requires = "page")]
+    pub tiles: Option<(u32, u32)>,
+    /// Overlap between neighbouring sheets, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
+    pub overlap: f64,
     /// How edges hidden behind faces are drawn [default: the scene's choice, or faint];
     /// solid is about ten times quicker, for a first look at many standpoints.
     #[arg(long, value_enum, value_name = "HOW")]
@@ -110,6 +117,13 @@ pub struct PlanArgs {
     /// Margin round the sheet, millimetres.
     #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
     pub margin: f64,
+    /// Split the page over COLUMNSxROWS sheets of the paper, to print large and assemble
+    /// (one file a sheet for PNG and SVG, named by row and column; one PDF of them all).
+    #[arg(long, value_name = "CxR", value_parser = parse_tiles, requires = "page")]
+    pub tiles: Option<(u32, u32)>,
+    /// Overlap between neighbouring sheets, millimetres.
+    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
+    pub overlap: f64,
     /// Print the panorama of the standpoint (-s) with the plan beside it on one sheet.
     #[arg(long)]
     pub beside: bool,

@@ -1,7 +1,9 @@
 //! The options of `render` (shared by `watch`) and of the small commands, and their checks.
 
 use super::aids::AidArgs;
-use super::values::{parse_finite, parse_latlon, parse_non_negative, parse_pair, parse_size};
+use super::values::{
+    parse_finite, parse_latlon, parse_non_negative, parse_pair, parse_size, parse_tiles,
+};
 use super::view::ViewArgs;
 use clap::{Args, ValueEnum};
 use std::path::PathBuf;
@@ -220,21 +222,6 @@ fn parse_crease(text: &str) -> Result<f64, String> {
         Err(format!(
             "expected an angle from 0 to 180 degrees, found {value}"
         ))
-    }
-}
-
-fn parse_tiles(text: &str) -> Result<(u32, u32), String> {
-    let bad = || format!("expected COLUMNSxROWS from 1x1 to 20x20, such as 3x2, found \"{text}\"");
-    let (c, r) = text.split_once(['x', 'X']).ok_or_else(bad)?;
-    let count = |s: &str| {
-        s.trim()
-            .parse::<u32>()
-            .ok()
-            .filter(|n| (1..=20).contains(n))
-    };
-    match (count(c), count(r)) {
-        (Some(c), Some(r)) => Ok((c, r)),
-        _ => Err(bad()),
     }
 }
 

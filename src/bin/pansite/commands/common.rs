@@ -268,6 +268,20 @@ pub fn create_parent(path: &Path) -> anyhow::Result<()> {
 /// Writes one sheet atomically where `out` says (or `renders/SCENE-KIND.EXT`), or to
 /// standard output for `-o -`.
 pub fn write_one(sheet: &Sheet, out: &OutArgs, scene: &Path, kind: &str) -> anyhow::Result<String> {
+    write_pages(std::slice::from_ref(sheet), 1, out, scene, kind)
+}
+
+/// Writes sheets cut from one layout `columns` across where `out` says (or
+/// `renders/SCENE-KIND.EXT`): one PDF of them all, or for PNG and SVG one file a sheet
+/// named by row and column, each atomically; or to standard output for `-o -` (one sheet,
+/// or a PDF). Returns what was written, for the summary.
+pub fn write_pages(
+    sheets: &[Sheet],
+    columns: u32,
+    out: &OutArgs,
+    scene: &Path,
+    kind: &str,
+) -> anyhow::Result<String> {
     let path = match &out.output {
         Some(path) => path.clone(),
         None => {
@@ -283,18 +297,27 @@ pub fn write_one(sheet: &Sheet, out: &OutArgs, scene: &Path, kind: &str) -> anyh
         dpi: Some(out.dpi),
         panorama: None,
     };
-    let sheets = std::slice::from_ref(sheet);
     if is_standard_stream(&path) {
+        if sheets.len() > 1 && format != FormatArg::Pdf {
+            return Err(Error::Setting(
+                "several sheets cannot go to standard output as one PNG or SVG; give a file name, or use PDF".into(),
+            )
+            .into());
+        }
         let mut bytes = Vec::new();
         write_sheets(sheets, format, &png, out.lettering, &mut bytes, 0)?;
         write_stdout(&bytes)?;
         return Ok("standard output".to_owned());
     }
-    write_atomically(&path, |file| {
-        write_sheets(sheets, format, &png, out.lettering, file, 0)
-    })
-    .with_context(|| format!("writing {}", path.display()))?;
-    Ok(path.display().to_string())
+    let mut written = Vec::new();
+    for (path, first) in output_paths(&path, format, sheets.len(), columns) {
+        write_atomically(&path, |file| {
+            write_sheets(sheets, format, &png, out.lettering, file, first)
+        })
+        .with_context(|| format!("writing {}", path.display()))?;
+        written.push(path.display().to_string());
+    }
+    Ok(written.join(", "))
 }
 
 /// Sends bytes to standard output (which cannot be replaced atomically: callers encode in

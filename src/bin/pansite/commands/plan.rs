@@ -1,13 +1,11 @@
 //! `pansite plan`: the site from above with the standpoints marked, alone, on paper, or
 //! beside a panorama.
 
-use super::common::{choose_view, read_site, write_one};
+use super::common::{choose_view, read_site, write_pages};
 use super::settings::{paper, plan_settings};
 use crate::args::PlanArgs;
 use pansite::compose::{beside, plan_map, PlanSettings};
-use pansite::page::{
-    on_titled_paper, plan_title_lines, room_above_title, title_lines, today, TitleText,
-};
+use pansite::page::{plan_title_lines, title_lines, today, Tiling, TitleText, TitledPaper};
 use pansite::render::draw_sheets;
 use pansite::Error;
 
@@ -25,23 +23,24 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
     let (mut settings, mut panorama) = plan_settings(args)?;
     let paper = match &args.page {
         Some(name) => {
-            let paper = paper(name, args.portrait)?;
-            if !(args.margin >= 0.0 && 2.0 * args.margin < paper.width_mm.min(paper.height_mm)) {
-                return Err(Error::Setting(format!(
-                    "a margin of {} mm does not leave room on the paper",
-                    args.margin
-                ))
-                .into());
-            }
-            Some(paper)
+            let tiles = args.tiles.map(|(columns, rows)| Tiling {
+                columns,
+                rows,
+                overlap_mm: args.overlap,
+            });
+            Some(TitledPaper::new(
+                paper(name, args.portrait)?,
+                args.margin,
+                tiles,
+            )?)
         }
         None => None,
     };
-    let (dpi, margin) = (args.out.dpi, args.margin);
+    let dpi = args.out.dpi;
     let px_per_mm = dpi / 25.4;
     let date = today();
     let no_room = || Error::Setting("the drawing and its title block do not fit the paper".into());
-    let (sheet, left_out) = if args.beside {
+    let (sheets, left_out) = if args.beside {
         let standpoint = choose_view(&site, &args.view)?;
         // The title: the standpoint's lines, then both scales. Its room is measured with
         // the widest plan scale this could print, so the real one never needs more rows.
@@ -60,12 +59,14 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
             // its height, with the gap between: 3 h + gap across, h down. The bar of ten
             // degrees is measured first on the whole printable area (it only gets shorter).
             // (Less a pixel: the gap is rounded to whole pixels.)
-            let w = paper.width_mm - 2.0 * margin - 1.0 / px_per_mm;
+            let (area_w, area_h) = paper.area_mm();
+            let w = area_w - 1.0 / px_per_mm;
             let side_of = |h: f64| ((w - BESIDE_GAP_MM) / 3.0).min(h);
-            let first = side_of(paper.height_mm - 2.0 * margin) / 180.0;
+            let first = side_of(area_h) / 180.0;
             planned = fields(first, 1e7);
-            let (_, h) =
-                room_above_title(paper, margin, &planned, Some(first)).ok_or_else(no_room)?;
+            let (_, h) = paper
+                .room_above_title(&planned, Some(first))
+                .ok_or_else(no_room)?;
             let side = (side_of(h) * px_per_mm).floor() as u32;
             (panorama.width, panorama.height) = (2 * side, side);
             (settings.width, settings.height) = (side, side);
@@ -78,18 +79,32 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         let (sheet, title_left_out) = match (&paper, bar) {
             (Some(paper), Some(bar)) => {
                 let fields = fields(bar, plan.scale_denominator());
-                on_titled_paper(&both, paper, margin, &fields, &planned, Some(bar))
+                paper
+                    .lay_out(&both, &fields, &planned, Some(bar))
                     .ok_or_else(no_room)?
             }
-            _ => (both, 0),
+            _ => (vec![both], 0),
         };
         (sheet, plan.labels_left_out + title_left_out)
     } else if let Some(paper) = &paper {
         let planned = plan_title_lines(&site, &site.standpoints, 1e7, dpi, date);
-        let (w, h) = room_above_title(paper, margin, &planned, None).ok_or_else(no_room)?;
+        let (w, h) = paper.room_above_title(&planned, None).ok_or_else(no_room)?;
+        let room = PlanSettings::for_room(w, h, dpi);
+        // Words kept off the edges of the sheets a tiled page is cut into.
+        let px_per_mm = dpi / 25.4;
+        let (xs, ys) = paper.tile_edges(
+            (
+                room.width as f64 / px_per_mm,
+                room.height as f64 / px_per_mm,
+            ),
+            &planned,
+            None,
+        );
+        let to_px = |mm: Vec<f64>| mm.into_iter().map(|v| v * px_per_mm).collect();
         let settings = PlanSettings {
             scale: settings.scale,
-            ..PlanSettings::for_room(w, h, dpi)
+            label_cuts: (to_px(xs), to_px(ys)),
+            ..room
         };
         let plan = plan_map(&site, &site.standpoints, &settings)?;
         let fields = plan_title_lines(
@@ -99,15 +114,16 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
             dpi,
             date,
         );
-        let (sheet, title_left_out) =
-            on_titled_paper(&plan.sheet(), paper, margin, &fields, &planned, None)
-                .ok_or_else(no_room)?;
+        let (sheet, title_left_out) = paper
+            .lay_out(&plan.sheet(), &fields, &planned, None)
+            .ok_or_else(no_room)?;
         (sheet, plan.labels_left_out + title_left_out)
     } else {
         let plan = plan_map(&site, &site.standpoints, &settings)?;
-        (plan.sheet(), plan.labels_left_out)
+        (vec![plan.sheet()], plan.labels_left_out)
     };
-    let written = write_one(&sheet, &args.out, &args.scene, "plan")?;
+    let columns = paper.as_ref().map_or(1, TitledPaper::columns);
+    let written = write_pages(&sheets, columns, &args.out, &args.scene, "plan")?;
     if !args.out.quiet {
         if left_out > 0 {
             eprintln!(
@@ -115,9 +131,16 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
                 if left_out == 1 { "" } else { "s" }
             );
         }
+        let (sheet, count) = (&sheets[0], sheets.len());
         eprintln!(
-            "pansite: wrote {written} ({:.0} x {:.0} mm)",
-            sheet.width_mm, sheet.height_mm
+            "pansite: wrote {written} ({:.0} x {:.0} mm{})",
+            sheet.width_mm,
+            sheet.height_mm,
+            if count > 1 {
+                format!(", {count} sheets")
+            } else {
+                String::new()
+            }
         );
     }
     Ok(())

@@ -150,6 +150,7 @@ pub fn contact_settings(args: &SheetArgs) -> pansite::Result<ContactSettings> {
         columns: args.columns,
         dpi: args.out.dpi,
         moments: Vec::new(),
+        label_cuts: (Vec::new(), Vec::new()),
     })
 }
 

@@ -1,12 +1,12 @@
 //! `pansite sheet`: many standpoints as labelled thumbnails on one sheet.
 
-use super::common::{choose_view, read_site, write_one, Progress};
+use super::common::{choose_view, read_site, write_pages, Progress};
 use super::settings::{contact_settings, paper, time_sweep};
 use crate::args::{PathSweep, SheetArgs, ViewArgs};
 use pansite::compose::{
     contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, SheetGrid,
 };
-use pansite::page::{on_titled_paper, room_above_title, sheet_title_lines, today};
+use pansite::page::{sheet_title_lines, today, Tiling, TitledPaper};
 use pansite::scene::Standpoint;
 use pansite::Error;
 use std::time::Instant;
@@ -55,9 +55,14 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let fields = sheet_title_lines(&site, &standpoints, today());
     let paper = match &args.page {
         Some(name) => {
-            let paper = paper(name, args.portrait)?;
+            let tiles = args.tiles.map(|(columns, rows)| Tiling {
+                columns,
+                rows,
+                overlap_mm: args.overlap,
+            });
+            let paper = TitledPaper::new(paper(name, args.portrait)?, args.margin, tiles)?;
             let px_per_mm = args.out.dpi / 25.4;
-            let fitted = room_above_title(&paper, args.margin, &fields, None).and_then(|(w, h)| {
+            let fitted = paper.room_above_title(&fields, None).and_then(|(w, h)| {
                 SheetGrid::fit(
                     standpoints.len(),
                     args.columns,
@@ -77,6 +82,14 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
             (settings.thumbnail.width, settings.thumbnail.height) = (tw, th);
             settings.columns = Some(grid.columns as u32);
             settings.thumbnail.validate()?;
+            // Captions kept off the edges of the sheets a tiled page is cut into.
+            let size_mm = (
+                grid.width.ceil() / px_per_mm,
+                grid.height.ceil() / px_per_mm,
+            );
+            let (xs, ys) = paper.tile_edges(size_mm, &fields, None);
+            let to_px = |mm: Vec<f64>| mm.into_iter().map(|v| v * px_per_mm).collect();
+            settings.label_cuts = (to_px(xs), to_px(ys));
             Some(paper)
         }
         None => None,
@@ -86,12 +99,14 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let sheet = contact_sheet(&site, &standpoints, &settings, &|done, total| {
         progress.update(done, total)
     })?;
-    let (sheet, left_out) = match &paper {
-        Some(paper) => on_titled_paper(&sheet, paper, args.margin, &fields, &fields, None)
+    let (sheets, left_out) = match &paper {
+        Some(paper) => paper
+            .lay_out(&sheet, &fields, &fields, None)
             .ok_or_else(|| Error::Setting("the thumbnails do not fit the paper".into()))?,
-        None => (sheet, 0),
+        None => (vec![sheet], 0),
     };
-    let written = write_one(&sheet, &args.out, &args.scene, "sheet")?;
+    let columns = paper.as_ref().map_or(1, TitledPaper::columns);
+    let written = write_pages(&sheets, columns, &args.out, &args.scene, "sheet")?;
     if !args.out.quiet {
         if left_out > 0 {
             eprintln!(
@@ -102,8 +117,8 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
         eprintln!(
             "pansite: wrote {written} ({} standpoints, {}x{} px, {:.2} s)",
             standpoints.len(),
-            sheet.drawing.width,
-            sheet.drawing.height,
+            sheets[0].drawing.width,
+            sheets[0].drawing.height,
             started.elapsed().as_secs_f64()
         );
     }
