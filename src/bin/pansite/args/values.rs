@@ -115,6 +115,22 @@ pub fn parse_grid(text: &str) -> Result<GridSweep, String> {
     }
 }
 
+/// COLUMNSxROWS sheets to split a page over, 1x1 to 20x20.
+pub fn parse_tiles(text: &str) -> Result<(u32, u32), String> {
+    let bad = || format!("expected COLUMNSxROWS from 1x1 to 20x20, such as 3x2, found \"{text}\"");
+    let (c, r) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let count = |s: &str| {
+        s.trim()
+            .parse::<u32>()
+            .ok()
+            .filter(|n| (1..=20).contains(n))
+    };
+    match (count(c), count(r)) {
+        (Some(c), Some(r)) => Ok((c, r)),
+        _ => Err(bad()),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -133,21 +149,5 @@ mod tests {
         assert!(parse_triple("0:345").is_err());
         assert!(parse_path("0,0").is_err());
         assert!(parse_grid("0,0:1,1").is_err());
-    }
-}
-
-/// COLUMNSxROWS sheets to split a page over, 1x1 to 20x20.
-pub fn parse_tiles(text: &str) -> Result<(u32, u32), String> {
-    let bad = || format!("expected COLUMNSxROWS from 1x1 to 20x20, such as 3x2, found \"{text}\"");
-    let (c, r) = text.split_once(['x', 'X']).ok_or_else(bad)?;
-    let count = |s: &str| {
-        s.trim()
-            .parse::<u32>()
-            .ok()
-            .filter(|n| (1..=20).contains(n))
-    };
-    match (count(c), count(r)) {
-        (Some(c), Some(r)) => Ok((c, r)),
-        _ => Err(bad()),
     }
 }
