@@ -604,6 +604,49 @@ fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
     assert!(slopes >= 2, "{slopes}");
 }
 
+/// The height of the lowest level edge of the first item of `kind`: the foot of its walls
+/// (the foot line drawn on sloping ground is level only where the ground is).
+fn lowest_level_edge_of(site: &Site, kind: &str) -> f64 {
+    let item = site.items.iter().position(|i| i.kind == kind).unwrap() as u32;
+    site.edges
+        .iter()
+        .filter(|e| e.item == ItemId(item))
+        .filter_map(|e| match e.curve {
+            SiteCurve::Segment { start, end } if start.z == end.z => Some(start.z),
+            _ => None,
+        })
+        .fold(f64::INFINITY, f64::min)
+}
+
+#[test]
+fn a_hollow_across_a_wall_does_not_leave_the_wall_short_of_the_ground() {
+    // A V-shaped valley along x = 0 (a break line at height 0; the sides rise 4 m in
+    // 40 m, 1 in 10). A block 16 m across it has its corners at x = -8 and 8, on ground
+    // 0.8 m high (by hand: 4 x 8 / 40), but its front and back walls cross the valley's
+    // floor at height 0: it stands there, so no wall stops above the ground, and its foot
+    // line still lies on the ground all round (perimeter 2 x (16 + 8) = 48 m).
+    let valley = "ground: (spots: [(-40, -20, 4), (40, -20, 4), (-40, 60, 4), (40, 60, 4)],
+                           break_lines: [[(0, -20, 0), (0, 60, 0)]])";
+    for (kind, item) in [
+        (
+            "block",
+            "Block(at: Centre(0, 20), width: 16, depth: 8, height: 6, on_ground: true)",
+        ),
+        (
+            "footprint",
+            "Footprint(points: [(-8, 16), (8, 16), (8, 24), (-8, 24)], height: 6,
+                       on_ground: true)",
+        ),
+    ] {
+        let site = site(&format!("Scene({valley}, items: [{item}])"));
+        let ground = site.ground.as_ref().unwrap();
+        assert_near(ground.height_at(8.0, 16.0).unwrap(), 0.8, 1e-9);
+        assert_near(lowest_level_edge_of(&site, kind), 0.0, 1e-9);
+        let (length, _) = foot_on_ground(&site, kind);
+        assert_near(length, 48.0, 1e-9);
+    }
+}
+
 #[test]
 fn a_footprint_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
     // The same plane geometry as for a block; an L-shaped plan whose perimeter is, by

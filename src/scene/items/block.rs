@@ -94,8 +94,9 @@ pub struct BlockSpec {
     /// Height of the block's foot.
     #[serde(default = "zero")]
     pub base: Finite,
-    /// Stands on the scene's ground: `base` is then measured from the ground at the
-    /// block's lowest corner, and the walls run down into the slope (hidden by it).
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground along
+    /// the block's walls (its lowest corner, or lower where a hollow crosses a wall), and
+    /// the walls run down into the slope (hidden by it).
     #[serde(default)]
     pub on_ground: bool,
     /// With `on_ground`: a level floor at the highest ground under the block, on a plinth

@@ -39,8 +39,8 @@ pub struct FootprintSpec {
     pub height: Positive,
     #[serde(default = "zero")]
     pub base: Finite,
-    /// Stands on the scene's ground, as a block does: `base` from the ground at its lowest
-    /// corner, the line where its walls meet the ground drawn.
+    /// Stands on the scene's ground, as a block does: `base` from the lowest ground along
+    /// its walls, the line where its walls meet the ground drawn.
     #[serde(default)]
     pub on_ground: bool,
     /// With `on_ground`: a level floor at the highest ground under it, on a plinth.

@@ -32,11 +32,13 @@ pub struct PlinthSpec {
 }
 
 /// The lowest and highest ground under a plan, in the units of `frame` and measured from
-/// its origin: the lowest at the plan's corners (where a block without a plinth stands),
-/// the highest anywhere under the plan. The ground is flat on each triangle, so its highest
-/// point over the plan lies at a corner of the plan, where a wall crosses a triangle's
-/// edge, or at a triangle's corner inside the plan (a linear function on a convex polygon
-/// takes its maximum at a vertex; the plan cut by the triangles is such polygons).
+/// its origin: the lowest along its walls (where a block without a plinth stands, so that
+/// no wall stops short of the ground where a hollow crosses it between two corners), the
+/// highest anywhere under the plan. The ground is flat on each triangle, so along a wall it
+/// is lowest and highest at a corner or where the wall crosses a triangle's edge, and over
+/// the plan it is highest at one of those or at a triangle's corner inside the plan (a
+/// linear function on a convex polygon takes its extremes at vertices; the plan cut by the
+/// triangles is such polygons).
 pub fn ground_under(
     b: &ItemBuilder,
     frame: &Placement,
@@ -68,6 +70,7 @@ pub fn ground_under(
         for t in ground.bends(site(p), site(q)) {
             let r = site(p + (q - p) * t);
             if let Some(z) = ground.height_at(r.x, r.y) {
+                lowest = lowest.min(local(z));
                 highest = highest.max(local(z));
             }
         }
