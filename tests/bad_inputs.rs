@@ -189,6 +189,7 @@ corpus! {
     block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
     plinth_without_on_ground: "plinth-without-on-ground.ron" => refused("plinth-without-on-ground.ron:5:9:", &["`plinth` needs `on_ground: true`"]);
     plinth_course_too_fine: "plinth-course-too-fine.ron" => refused("plinth-course-too-fine.ron:5:9:", &["course of 0.001", "at most 1000"]);
+    plinth_setback_too_deep: "plinth-setback-too-deep.ron" => refused("plinth-setback-too-deep.ron:5:9:", &["set back 2.5", "turns inside out"]);
     road_of_one_point: "road-one-point.ron" => refused("road-one-point.ron:4:9:", &["at least two points", "found 1"]);
     polyline_of_one_point: "polyline-one-point.ron" => refused("polyline-one-point.ron:4:36:", &["expected at least two points", "found 1"]);
     arcade_piers_too_thin: "arcade-piers-too-thin.ron" => refused("arcade-piers-too-thin.ron:4:9:", &["at least a billionth of the arcade's length"]);

@@ -239,6 +239,32 @@ fn a_plinth_on_a_slope_hides_and_is_hidden() {
 }
 
 #[test]
+fn a_plinth_standing_out_or_set_back_hides_and_is_hidden() {
+    // A ledge round a hall on a projecting plinth, and the underside of a hall overhanging
+    // a plinth set back under it, seen from a little above its floor and from below it: their faces (with the
+    // walls' plan as a hole) hide and are hidden like any other, against the brute-force
+    // ray caster.
+    for projection in ["0.6", "-0.4"] {
+        let text = format!(
+            "Scene(standpoints: [(name: \"above\", x: 6, y: 10, heading: 10),
+                                 (name: \"below\", x: 5, y: 2, heading: 10)],
+                   ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),
+                   items: [
+                Block(at: Centre(3, 22), width: 8, depth: 12, height: 6, on_ground: true,
+                      plinth: (course: 0.3, projection: {projection}),
+                      roof: Gable(ridge: 9, along: Depth)),
+                Block(at: Centre(4, 34), width: 14, depth: 5, height: 3, on_ground: true),
+            ])"
+        );
+        let site = parse_scene(text.as_bytes(), Path::new("ledge.ron"), "ledge").unwrap();
+        // Eyes 0.2 m above the floor (3.6 m or more) and 0.6 m below it.
+        for standpoint in &site.standpoints {
+            check_scene("ledge", &site, standpoint, 1);
+        }
+    }
+}
+
+#[test]
 fn a_round_tower_with_recessed_openings() {
     // Square-headed openings set 0.5 into a round tower (their sills and lintels arcs of
     // its circle): their reveals and backs hide and are hidden like any face, and the

@@ -730,3 +730,62 @@ fn a_plinth_carries_a_level_floor_and_its_courses_stop_at_the_ground() {
         .count();
     assert_eq!(corner_drops, 2);
 }
+
+#[test]
+fn a_projecting_plinth_carries_a_ledge_and_stands_on_the_highest_ground_under_it() {
+    // The plane ground z = 0.075 (y + 20) of the plinth test above; the block spans
+    // y = 16..28, its plinth projects 0.5 beyond the walls, to y = 15.5..28.5. A linear
+    // function on a rectangle is highest at a corner (plane geometry): the floor is at
+    // 0.075 x 48.5 = 3.6375 m. At the floor: the walls' foot, 2 x (8 + 12) = 40 m, and the
+    // ledge's edge, 2 x (9 + 13) = 44 m. The plinth's front corners drop to the ground at
+    // y = 15.5, 0.075 x 35.5 = 2.6625 m. Set back 0.5 instead, the floor is at the
+    // building's back, 3.6 m, and the plinth's outline at the floor 2 x (7 + 11) = 36 m.
+    for (projection, floor, outline, front) in [
+        (0.5, 0.075 * 48.5, 44.0, 0.075 * 35.5),
+        (-0.5, 3.6, 36.0, 0.075 * 36.5),
+    ] {
+        let site = site(&format!(
+            "Scene(ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),
+                   items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
+                                 on_ground: true, plinth: (projection: {projection}))])"
+        ));
+        let segments: Vec<(Point3<f64>, Point3<f64>)> = site
+            .edges
+            .iter()
+            .filter_map(|e| match e.curve {
+                SiteCurve::Segment { start, end } => Some((start, end)),
+                _ => None,
+            })
+            .collect();
+        let level_length: f64 = segments
+            .iter()
+            .filter(|(a, b)| (a.z - floor).abs() < 1e-9 && (b.z - floor).abs() < 1e-9)
+            .map(|(a, b)| (b - a).norm())
+            .sum();
+        assert_near(level_length, 40.0 + outline, 1e-9);
+        let corner_drops = segments
+            .iter()
+            .filter(|(a, b)| {
+                let (low, high) = (a.z.min(b.z), a.z.max(b.z));
+                (a.xy() - b.xy()).norm() < 1e-9
+                    && (high - floor).abs() < 1e-9
+                    && (low - front).abs() < 1e-9
+            })
+            .count();
+        assert_eq!(corner_drops, 2, "{projection}");
+        // The ledge (or the overhang's underside) is a face at the floor between the two
+        // outlines: 9 x 13 - 8 x 12 = 21 m2 standing out, 8 x 12 - 7 x 11 = 19 m2 set back;
+        // beside the block's own floor, 8 x 12 = 96 m2.
+        let ring: f64 = site
+            .faces
+            .iter()
+            .filter(|f| f.corners.iter().all(|c| (c.z - floor).abs() < 1e-9))
+            .map(|f| {
+                let [a, b, c] = f.corners;
+                0.5 * (b - a).cross(&(c - a)).norm()
+            })
+            .sum();
+        let expected = 96.0 + if projection > 0.0 { 21.0 } else { 19.0 };
+        assert_near(ring, expected, 1e-9);
+    }
+}

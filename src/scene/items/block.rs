@@ -4,7 +4,7 @@
 use super::super::build::{plan_direction, ItemBuilder};
 use super::super::numbers::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
-use super::standing::{build_plinth, draw_foot, ground_under, plinth_floor, PlinthSpec};
+use super::standing::{build_plinth, draw_foot, standing_base, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -232,11 +232,7 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
         let frame = b
             .placement()
             .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-        let (lowest, highest) = ground_under(b, &frame, &plan)?;
-        base = match block.plinth {
-            Some(_) => plinth_floor(highest, base)?,
-            None => lowest + base,
-        };
+        base = standing_base(b, &frame, &plan, base, block.plinth.as_ref())?;
     }
     b.move_by(Vector3::new(corner.x, corner.y, base), turn);
     match block.plinth {

@@ -6,7 +6,7 @@ use super::super::numbers::{plan, zero, Finite, NonNegative, Plan, Positive};
 use super::block::ParapetSpec;
 use super::mass::{build_mass, Mass};
 use super::plan::{is_convex, simple_polygon_problem, twice_signed_area};
-use super::standing::{build_plinth, draw_foot, ground_under, plinth_floor, PlinthSpec};
+use super::standing::{build_plinth, draw_foot, standing_base, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -113,11 +113,7 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
         return Err("a `plinth` needs `on_ground: true`".to_owned());
     }
     if spec.on_ground {
-        let (lowest, highest) = ground_under(b, &b.placement(), &points)?;
-        base = match spec.plinth {
-            Some(_) => plinth_floor(highest, base)?,
-            None => lowest + base,
-        };
+        base = standing_base(b, &b.placement(), &points, base, spec.plinth.as_ref())?;
     }
     b.move_by(Vector3::new(0.0, 0.0, base), 0.0);
     match spec.plinth {

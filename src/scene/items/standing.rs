@@ -9,7 +9,7 @@
 //! stepping down the slope in courses, as a sketcher draws a stone base on a hillside.
 
 use super::super::build::{ItemBuilder, Placement};
-use super::super::numbers::Positive;
+use super::super::numbers::{zero, Finite, Positive};
 use nalgebra::{Point3, Vector2};
 use serde::Deserialize;
 
@@ -22,13 +22,120 @@ const LEVEL_EPSILON: f64 = 1e-9;
 pub const MAX_COURSES: usize = 1000;
 
 /// A level plinth under a building on sloping ground.
-#[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]
+#[derive(Clone, Copy, Debug, Deserialize, PartialEq)]
 #[serde(deny_unknown_fields)]
 pub struct PlinthSpec {
     /// Height of one course: lines drawn round the plinth every `course` down from the
     /// floor, each stopping where the ground meets it. None: only the plinth's top and foot.
     #[serde(default)]
     pub course: Option<Positive>,
+    /// How far the plinth stands out beyond the walls, a ledge round the building at its
+    /// floor (negative: set back under them, the building overhanging it).
+    #[serde(default = "zero")]
+    pub projection: Finite,
+}
+
+impl Default for PlinthSpec {
+    fn default() -> Self {
+        PlinthSpec {
+            course: None,
+            projection: Finite(0.0),
+        }
+    }
+}
+
+/// The height of the foot of a building of `plan` (corners in `frame`) standing on the
+/// ground, `base` above it: the lowest ground along its walls, or with a plinth the
+/// highest ground under the building and under the plinth (so neither is sunk in the
+/// slope).
+pub fn standing_base(
+    b: &ItemBuilder,
+    frame: &Placement,
+    plan: &[Vector2<f64>],
+    base: f64,
+    plinth: Option<&PlinthSpec>,
+) -> Result<f64, String> {
+    let (lowest, mut highest) = ground_under(b, frame, plan)?;
+    match plinth {
+        None => Ok(lowest + base),
+        Some(plinth) => {
+            let outline = plinth_outline(plan, plinth)?;
+            highest = highest.max(ground_under(b, frame, &outline)?.1);
+            plinth_floor(highest, base)
+        }
+    }
+}
+
+/// The plinth's plan: the building's `plan` with every side moved out by the projection
+/// (in by a setback), each corner where the moved sides meet (a mitred offset). Refused
+/// when a setback is so deep that the outline turns inside out or crosses itself.
+pub fn plinth_outline(
+    plan: &[Vector2<f64>],
+    plinth: &PlinthSpec,
+) -> Result<Vec<Vector2<f64>>, String> {
+    let distance = plinth.projection.0;
+    if distance == 0.0 {
+        return Ok(plan.to_vec());
+    }
+    offset_outline(plan, distance).ok_or_else(|| {
+        format!(
+            "a plinth set back {} under this plan turns inside out; give a smaller setback",
+            -distance
+        )
+    })
+}
+
+/// A simple polygon with every side moved `distance` outwards (negative: inwards), the
+/// corners mitred: the new corner k is where the moved sides before and after it meet,
+/// `p + d (n1 + n2) / (1 + n1 . n2)` for the sides' outward unit normals n1 and n2 (the
+/// point at distance d from both lines). `None` if a side would turn round or the outline
+/// would cross itself, or two sides at a corner are parallel and opposite.
+pub fn offset_outline(plan: &[Vector2<f64>], distance: f64) -> Option<Vec<Vector2<f64>>> {
+    let n = plan.len();
+    let area2: f64 = (0..n).map(|k| plan[k].perp(&plan[(k + 1) % n])).sum();
+    // Outward normal of the side from a to b: to its right for a counter-clockwise plan.
+    let outward = |a: Vector2<f64>, b: Vector2<f64>| {
+        let d = (b - a).normalize();
+        let right = Vector2::new(d.y, -d.x);
+        if area2 > 0.0 {
+            right
+        } else {
+            -right
+        }
+    };
+    let mut moved = Vec::with_capacity(n);
+    for k in 0..n {
+        let (before, at, after) = (plan[(k + n - 1) % n], plan[k], plan[(k + 1) % n]);
+        let (n1, n2) = (outward(before, at), outward(at, after));
+        let cos = n1.dot(&n2);
+        if cos <= -1.0 + 1e-9 {
+            return None;
+        }
+        moved.push(at + (n1 + n2) * (distance / (1.0 + cos)));
+    }
+    // Every side keeps its direction, and no two sides cross.
+    for k in 0..n {
+        let (a, b) = (plan[k], plan[(k + 1) % n]);
+        let (p, q) = (moved[k], moved[(k + 1) % n]);
+        if (q - p).dot(&(b - a)) <= 0.0 {
+            return None;
+        }
+    }
+    let crosses = |a: Vector2<f64>, b: Vector2<f64>, c: Vector2<f64>, d: Vector2<f64>| {
+        let side = |p: Vector2<f64>, q: Vector2<f64>, r: Vector2<f64>| (q - p).perp(&(r - p));
+        side(a, b, c) * side(a, b, d) < 0.0 && side(c, d, a) * side(c, d, b) < 0.0
+    };
+    for i in 0..n {
+        for j in i + 2..n {
+            if i == 0 && j == n - 1 {
+                continue;
+            }
+            if crosses(moved[i], moved[(i + 1) % n], moved[j], moved[(j + 1) % n]) {
+                return None;
+            }
+        }
+    }
+    Some(moved)
 }
 
 /// The lowest and highest ground under a plan, in the units of `frame` and measured from
@@ -160,15 +267,32 @@ pub fn draw_foot(b: &mut ItemBuilder, plan: &[Vector2<f64>]) {
     }
 }
 
-/// Draws a plinth under a floor at the builder's z = 0, whose plan (corners in the
-/// builder's frame) stands over ground no higher than the floor: the foot line, a face for
-/// each side closed along its foot (so it hides what is behind it, and nothing below the
-/// ground is a face), the corners down to the ground and the course lines.
+/// Draws a plinth under a floor at the builder's z = 0, under a building whose plan
+/// (corners in the builder's frame) stands over ground no higher than the floor: the foot
+/// line, a face for each side closed along its foot (so it hides what is behind it, and
+/// nothing below the ground is a face), the corners down to the ground and the course
+/// lines; with a projection or setback, the plinth's own outline at the floor and the
+/// ledge (or the overhang's underside) between it and the walls, a face with the walls'
+/// plan as its hole.
 pub fn build_plinth(
     b: &mut ItemBuilder,
-    plan: &[Vector2<f64>],
+    building: &[Vector2<f64>],
     spec: &PlinthSpec,
 ) -> Result<(), String> {
+    let outline = plinth_outline(building, spec)?;
+    let plan = outline.as_slice();
+    if spec.projection.0 != 0.0 {
+        let at_floor = |points: &[Vector2<f64>]| -> Vec<Point3<f64>> {
+            points.iter().map(|p| Point3::new(p.x, p.y, 0.0)).collect()
+        };
+        let (outer, inner) = if spec.projection.0 > 0.0 {
+            (at_floor(plan), at_floor(building))
+        } else {
+            (at_floor(building), at_floor(plan))
+        };
+        b.path(&at_floor(plan), true);
+        b.face(&outer, &[inner]);
+    }
     let feet = wall_feet(b, plan);
     let deepest = feet.iter().flatten().map(|p| p.z).fold(0.0_f64, f64::min);
     let courses = match spec.course {
@@ -244,6 +368,71 @@ pub fn above_ground(foot: &[Point3<f64>], level: f64) -> Vec<(Point3<f64>, Point
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn outline(points: &[(f64, f64)]) -> Vec<Vector2<f64>> {
+        points.iter().map(|&(x, y)| Vector2::new(x, y)).collect()
+    }
+
+    fn assert_outline(got: &[Vector2<f64>], expected: &[(f64, f64)]) {
+        assert_eq!(got.len(), expected.len());
+        for (g, e) in got.iter().zip(expected) {
+            assert!(
+                (g.x - e.0).abs() < 1e-12 && (g.y - e.1).abs() < 1e-12,
+                "{got:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_rectangle_moved_out_and_in_by_hand() {
+        // Every side 0.5 further out: a 10 x 6 rectangle becomes 11 x 7 about the same
+        // centre; in, 9 x 5. Either way round the plan is given.
+        let plan = outline(&[(0.0, 0.0), (10.0, 0.0), (10.0, 6.0), (0.0, 6.0)]);
+        let out = offset_outline(&plan, 0.5).unwrap();
+        assert_outline(
+            &out,
+            &[(-0.5, -0.5), (10.5, -0.5), (10.5, 6.5), (-0.5, 6.5)],
+        );
+        let reversed: Vec<_> = plan.iter().rev().copied().collect();
+        let out = offset_outline(&reversed, 0.5).unwrap();
+        assert_outline(
+            &out,
+            &[(-0.5, 6.5), (10.5, 6.5), (10.5, -0.5), (-0.5, -0.5)],
+        );
+        let inward = offset_outline(&plan, -0.5).unwrap();
+        assert_outline(&inward, &[(0.5, 0.5), (9.5, 0.5), (9.5, 5.5), (0.5, 5.5)]);
+        // Set back 3.5 under a plan 6 deep: the sides would pass each other.
+        assert!(offset_outline(&plan, -3.5).is_none());
+    }
+
+    #[test]
+    fn an_l_plan_moves_its_inner_corner_too() {
+        // The re-entrant corner at (4, 4) moves out along both its sides' normals to
+        // (5, 5); the convex corners diagonally by 1 each way (by hand).
+        let plan = outline(&[
+            (0.0, 0.0),
+            (10.0, 0.0),
+            (10.0, 4.0),
+            (4.0, 4.0),
+            (4.0, 10.0),
+            (0.0, 10.0),
+        ]);
+        let out = offset_outline(&plan, 1.0).unwrap();
+        assert_outline(
+            &out,
+            &[
+                (-1.0, -1.0),
+                (11.0, -1.0),
+                (11.0, 5.0),
+                (5.0, 5.0),
+                (5.0, 11.0),
+                (-1.0, 11.0),
+            ],
+        );
+        // The arms are 4 wide: a setback of 2.5 turns them inside out.
+        assert!(offset_outline(&plan, -2.5).is_none());
+        assert!(offset_outline(&plan, -1.5).is_some());
+    }
 
     fn assert_near(a: f64, b: f64, tolerance: f64) {
         assert!((a - b).abs() <= tolerance, "{a} vs {b}");
