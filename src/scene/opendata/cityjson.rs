@@ -1,7 +1,8 @@
 //! Reading CityJSON 2.0 city models (and the line-delimited CityJSONSeq form): the
 //! transform, the vertices, Building and BuildingPart objects with MultiSurface,
 //! CompositeSurface, Solid, MultiSolid and CompositeSolid geometries at one level of detail,
-//! their semantic surfaces (roof, wall, ground...) as layers, and holes in surfaces.
+//! their semantic surfaces (roof, wall, ground...) as layers, and holes in surfaces; and
+//! GeometryInstance geometries, a template placed by a matrix at a reference point.
 //!
 //! A vertex is its integers times the scale plus the translate (CityJSON 2.0, section
 //! "Transform object"). The model becomes a mesh like an OBJ model (`mesh.rs`): the edges
@@ -148,6 +149,23 @@ pub struct Geometry {
     pub boundaries: Option<Tree>,
     #[serde(default)]
     pub semantics: Option<Semantics>,
+    /// A GeometryInstance's template, an index into the file's templates.
+    #[serde(default)]
+    pub template: Option<usize>,
+    /// A GeometryInstance's 4 x 4 matrix, row by row.
+    #[serde(rename = "transformationMatrix", default)]
+    pub transformation_matrix: Option<Vec<f64>>,
+}
+
+/// Geometries defined once and placed many times by GeometryInstance geometries
+/// (CityJSON 2.0, "Geometry templates"): their vertices are real coordinates relative to
+/// each instance's reference point, not compressed by the transform.
+#[derive(Clone, Debug, Default, Deserialize)]
+pub struct Templates {
+    #[serde(default)]
+    pub templates: Vec<Geometry>,
+    #[serde(rename = "vertices-templates", default)]
+    pub vertices: Vec<[f64; 3]>,
 }
 
 #[derive(Clone, Debug, Deserialize)]
@@ -187,6 +205,8 @@ pub struct CityFile {
     pub city_objects: BTreeMap<String, CityObject>,
     #[serde(default)]
     pub vertices: Vec<[i64; 3]>,
+    #[serde(rename = "geometry-templates", default)]
+    pub geometry_templates: Option<Templates>,
 }
 
 /// How the file's coordinates reach the plan.
@@ -237,6 +257,7 @@ impl Placing {
         }
     }
 
+    /// A point of the file (grid metres and height) on the plan.
     fn place(&self, p: [f64; 3]) -> Point3<f64> {
         match self {
             Placing::Geodesic { map, height } => {
@@ -378,6 +399,9 @@ pub fn read_cityjson(
         ..CityModel::default()
     };
     let mut skipped_kinds: BTreeMap<String, usize> = BTreeMap::new();
+    // Templates live in the file's (or the sequence's first line's) root.
+    let templates = parts[0].1.geometry_templates.clone();
+    let templates = templates.as_ref();
     for (line, part) in &parts {
         let base = model.mesh.positions.len() as u32;
         model
@@ -412,7 +436,7 @@ pub fn read_cityjson(
             let lods: Vec<f64> = object
                 .geometry
                 .iter()
-                .filter_map(|g| g.lod.as_ref().and_then(Lod::value))
+                .filter_map(|g| resolved(g, templates).lod.as_ref().and_then(Lod::value))
                 .collect();
             let chosen = match wanted_lod {
                 Some(l) => l,
@@ -420,9 +444,38 @@ pub fn read_cityjson(
             };
             let mut drawn = false;
             for (g, geometry) in object.geometry.iter().enumerate() {
-                let at = format!("{object_path}.geometry[{g}]");
+                let mut at = format!("{object_path}.geometry[{g}]");
+                let (mut base, mut count) = (base, count);
+                let instance = geometry;
+                let geometry = resolved(geometry, templates);
+                // An instance's template vertices where it puts them (checked whatever
+                // its level of detail, so that a broken instance is never passed over).
+                let placed = match instance.kind.as_str() {
+                    "GeometryInstance" => Some(place_instance(
+                        instance,
+                        templates,
+                        &part.vertices,
+                        &real,
+                        &at,
+                    )?),
+                    _ => None,
+                };
                 if geometry.lod.as_ref().and_then(Lod::value) != Some(chosen) {
                     continue;
+                }
+                if let Some(placed) = placed {
+                    // The placed vertices join the mesh; the template's boundaries index
+                    // them.
+                    base = model.mesh.positions.len() as u32;
+                    count = placed.len() as u32;
+                    model
+                        .mesh
+                        .positions
+                        .extend(placed.into_iter().map(|p| placing.place(p)));
+                    at = format!(
+                        "$.geometry-templates.templates[{}]",
+                        instance.template.unwrap_or(0)
+                    );
                 }
                 let depth = match geometry.kind.as_str() {
                     "MultiSurface" | "CompositeSurface" => 3,
@@ -512,6 +565,89 @@ pub fn read_cityjson(
         model.mesh.groups.push(String::new());
     }
     Ok(model)
+}
+
+/// The geometry a city object's geometry stands for: a GeometryInstance's template (when
+/// the file has it), any other geometry itself.
+fn resolved<'a>(geometry: &'a Geometry, templates: Option<&'a Templates>) -> &'a Geometry {
+    if geometry.kind != "GeometryInstance" {
+        return geometry;
+    }
+    geometry
+        .template
+        .and_then(|t| templates?.templates.get(t))
+        .unwrap_or(geometry)
+}
+
+/// The vertices of a GeometryInstance's template where the instance puts them, in the
+/// file's coordinates: each template vertex `v` taken through the instance's 4 x 4 matrix
+/// (row by row, `v` as the column (x, y, z, 1)), then moved by the instance's reference
+/// point, its one boundary index into the file's vertices (CityJSON 2.0, "Geometry
+/// templates"; the order, matrix then reference point, from memory).
+fn place_instance(
+    instance: &Geometry,
+    templates: Option<&Templates>,
+    vertices: &[[i64; 3]],
+    real: &impl Fn(&[i64; 3]) -> [f64; 3],
+    at: &str,
+) -> Result<Vec<[f64; 3]>, OpenDataError> {
+    let templates = templates.ok_or_else(|| {
+        OpenDataError::plain(
+            at,
+            "a GeometryInstance, but the file has no geometry-templates",
+        )
+    })?;
+    let index = instance
+        .template
+        .ok_or_else(|| OpenDataError::plain(at, "a GeometryInstance needs a \"template\" index"))?;
+    if index >= templates.templates.len() {
+        return Err(OpenDataError::plain(
+            &format!("{at}.template"),
+            &format!(
+                "template {index} is beyond the file's {} templates",
+                templates.templates.len()
+            ),
+        ));
+    }
+    let reference = match &instance.boundaries {
+        Some(Tree::Ring(ring)) if ring.len() == 1 => ring[0],
+        _ => {
+            return Err(OpenDataError::plain(
+                &format!("{at}.boundaries"),
+                "expected one vertex index, the instance's reference point, such as [0]",
+            ))
+        }
+    };
+    let reference = vertices.get(reference as usize).ok_or_else(|| {
+        OpenDataError::plain(
+            &format!("{at}.boundaries[0]"),
+            &format!(
+                "vertex index {reference} is beyond the {} vertices",
+                vertices.len()
+            ),
+        )
+    })?;
+    let m = instance
+        .transformation_matrix
+        .as_deref()
+        .filter(|m| m.len() == 16 && m.iter().all(|v| v.is_finite()))
+        .ok_or_else(|| {
+            OpenDataError::plain(
+                &format!("{at}.transformationMatrix"),
+                "expected 16 finite numbers, a 4 x 4 matrix row by row",
+            )
+        })?;
+    let origin = real(reference);
+    Ok(templates
+        .vertices
+        .iter()
+        .map(|v| {
+            let row = |r: usize| {
+                m[4 * r] * v[0] + m[4 * r + 1] * v[1] + m[4 * r + 2] * v[2] + m[4 * r + 3]
+            };
+            [0, 1, 2].map(|k| row(k) + origin[k])
+        })
+        .collect())
 }
 
 /// Calls `surface(rings, semantic value, path)` for every surface of a boundary tree of
@@ -651,5 +787,81 @@ mod tests {
         let broken = seq.replace("\"b\", \"CityObjects\"", "\"b\" \"CityObjects\"");
         let error = read_cityjson(broken.as_bytes(), true, None, shift([0.0; 3])).unwrap_err();
         assert_eq!(error.line_column.map(|(l, _)| l), Some(3));
+    }
+
+    /// A template (a unit square, a MultiSurface with a wall and a roof triangle, lod 2)
+    /// placed twice in one building: once as it is at the reference point (10, 20, 0), once
+    /// turned a quarter clockwise seen from above, doubled in x and y and lifted 0.5 by its
+    /// matrix at (30, 20, 0). The vertex (1, 0, 0) goes, by hand, to (0 x 1 + 2 x 0 + 0,
+    /// -2 x 1 + 0, 0.5) = (0, -2, 0.5) before the reference point is added.
+    const INSTANCES: &str = r#"{"type": "CityJSON", "version": "2.0",
+      "transform": {"scale": [0.01, 0.01, 0.01], "translate": [0, 0, 0]},
+      "CityObjects": {"kiosks": {"type": "Building", "geometry": [
+        {"type": "GeometryInstance", "template": 0, "boundaries": [0],
+         "transformationMatrix": [1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1]},
+        {"type": "GeometryInstance", "template": 0, "boundaries": [1],
+         "transformationMatrix": [0, 2, 0, 0, -2, 0, 0, 0, 0, 0, 1, 0.5, 0, 0, 0, 1]}]}},
+      "vertices": [[1000, 2000, 0], [3000, 2000, 0]],
+      "geometry-templates": {
+        "templates": [{"type": "MultiSurface", "lod": "2",
+          "boundaries": [[[0, 1, 2, 3]], [[0, 1, 4]]],
+          "semantics": {"surfaces": [{"type": "WallSurface"}, {"type": "RoofSurface"}],
+                        "values": [0, 1]}}],
+        "vertices-templates": [[0, 0, 0], [1, 0, 0], [1, 0, 1], [0, 0, 1], [0.5, 0.5, 1.5]]}}"#;
+
+    #[test]
+    fn an_instance_places_its_template_by_matrix_then_reference_point() {
+        let model = read_cityjson(INSTANCES.as_bytes(), false, None, shift([0.0; 3])).unwrap();
+        // Two instances of two surfaces each; five vertices each after the file's own two.
+        assert_eq!(model.mesh.faces.len(), 4);
+        assert_eq!(model.mesh.positions.len(), 2 + 5 + 5);
+        let near = |p: Point3<f64>, q: [f64; 3]| (p - Point3::from(q)).norm() < 1e-9;
+        // The first as it is, at (10, 20, 0).
+        assert!(near(model.mesh.positions[2 + 1], [11.0, 20.0, 0.0]));
+        assert!(near(model.mesh.positions[2 + 4], [10.5, 20.5, 1.5]));
+        // The second turned, doubled and lifted, at (30, 20, 0).
+        assert!(near(model.mesh.positions[7 + 1], [30.0, 18.0, 0.5]));
+        assert!(near(model.mesh.positions[7 + 4], [31.0, 19.0, 2.0]));
+        // Its faces index its own placed vertices, with the template's semantics.
+        assert_eq!(model.mesh.face_corners(&model.mesh.faces[2]), [7, 8, 9, 10]);
+        let layers: Vec<&str> = model.group_names.iter().map(|(_, l)| l.as_str()).collect();
+        assert_eq!(layers, ["wall", "roof", "wall", "roof"]);
+        assert!(model.notes.is_empty(), "{:?}", model.notes);
+    }
+
+    #[test]
+    fn a_broken_instance_is_named_by_its_path() {
+        for (from, to, at, words) in [
+            (
+                r#""template": 0, "boundaries": [1]"#,
+                r#""template": 3, "boundaries": [1]"#,
+                r#"geometry[1].template"#,
+                "template 3 is beyond the file's 1 templates",
+            ),
+            (
+                r#""boundaries": [1]"#,
+                r#""boundaries": [7]"#,
+                r#"geometry[1].boundaries[0]"#,
+                "vertex index 7",
+            ),
+            (
+                r#"0, 0, 1, 0.5, 0, 0, 0, 1]"#,
+                r#"0, 0, 1, 0.5]"#,
+                r#"geometry[1].transformationMatrix"#,
+                "16 finite numbers",
+            ),
+            (
+                r#"[[0, 1, 2, 3]], [[0, 1, 4]]"#,
+                r#"[[0, 1, 2, 3]], [[0, 1, 5]]"#,
+                r#"$.geometry-templates.templates[0].boundaries[1][0]"#,
+                "vertex index 5",
+            ),
+        ] {
+            let bad = INSTANCES.replace(from, to);
+            assert_ne!(bad, INSTANCES);
+            let error = read_cityjson(bad.as_bytes(), false, None, shift([0.0; 3])).unwrap_err();
+            assert!(error.at.contains(at), "{error:?}");
+            assert!(error.message.contains(words), "{error:?}");
+        }
     }
 }
