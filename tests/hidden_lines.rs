@@ -94,12 +94,7 @@ fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
     let view = ViewFrame::new(standpoint);
     let eye = view.eye();
     let bvh = Bvh::new(&site.faces);
-    let occluders = Occluders {
-        faces: &site.faces,
-        bvh: &bvh,
-        view: &view,
-        eye,
-    };
+    let occluders = Occluders::new(&site.faces, &bvh, &view);
     let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve).collect();
     edges.extend(site.outline_edges_from(&eye).iter().map(|e| e.curve));
     let mut tally = Tally {

@@ -56,8 +56,10 @@
 
 mod bvh;
 mod hidden;
+mod occlusion;
 mod sight;
 
 pub use bvh::{ray_hits_triangle, Bvh};
 pub use hidden::HiddenLines;
+pub use occlusion::OcclusionMap;
 pub use sight::{Depth, Occluders, Spans, DEPTH_BIAS};
