@@ -23,6 +23,21 @@ struct Node {
     count: u32,
 }
 
+/// What [`Bvh::front_to_back`] hands out: a node's box (site coordinates, rounded outwards)
+/// or a face of a leaf.
+#[derive(Clone, Copy, Debug)]
+pub enum Visit {
+    /// A box holding every face under a node.
+    Box {
+        /// Its lowest corner.
+        lo: Point3<f64>,
+        /// Its highest corner.
+        hi: Point3<f64>,
+    },
+    /// A face (its index).
+    Face(u32),
+}
+
 /// The hierarchy: nodes in depth-first order and the faces' indices in leaf order.
 pub struct Bvh {
     nodes: Vec<Node>,
@@ -66,28 +81,91 @@ impl Bvh {
 
     /// The hierarchy, with this many levels of splits handing a half to a thread.
     fn with_split_levels(faces: &[Face], split_levels: u32) -> Bvh {
-        let centres: Vec<[f32; 3]> = faces
+        // Each face's centre travels with its index, so that the splits read memory in order.
+        let mut items: Vec<Item> = faces
             .iter()
-            .map(|f| {
+            .zip(0..)
+            .map(|(f, face)| {
                 let c = (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0;
-                [c.x as f32, c.y as f32, c.z as f32]
+                Item {
+                    centre: [c.x as f32, c.y as f32, c.z as f32],
+                    face,
+                }
             })
             .collect();
-        let mut order: Vec<u32> = (0..faces.len() as u32).collect();
         let mut nodes = Vec::with_capacity(2 * faces.len() / LEAF_FACES + 1);
         if !faces.is_empty() {
-            let build = Build {
-                faces,
-                centres: &centres,
-            };
-            build.node(&mut nodes, &mut order, 0, split_levels);
+            Build { faces }.node(&mut nodes, &mut items, 0, split_levels);
         }
-        Bvh { nodes, order }
+        Bvh {
+            nodes,
+            order: items.into_iter().map(|item| item.face).collect(),
+        }
     }
 
     /// The memory the hierarchy holds, bytes.
     pub fn memory_bytes(&self) -> usize {
         self.nodes.capacity() * std::mem::size_of::<Node>() + self.order.capacity() * 4
+    }
+
+    /// Walks the hierarchy nearest box first as seen from `eye` (by the distance from the eye
+    /// to each box), asking `visit` about each node's box (`Visit::Box`: false skips
+    /// everything under it) and handing it each face of the leaves reached (`Visit::Face`).
+    pub fn front_to_back(&self, eye: &Point3<f64>, visit: impl FnMut(Visit) -> bool) {
+        self.front_to_back_under(0, eye, visit);
+    }
+
+    /// The two nodes under the root, when the root is not a leaf: each holds about half
+    /// the faces, for two cores to walk apart.
+    pub fn halves(&self) -> Option<[u32; 2]> {
+        let root = self.nodes.first()?;
+        (root.count == 0).then_some([1, root.index])
+    }
+
+    /// [`Bvh::front_to_back`] under the node `root` only.
+    pub fn front_to_back_under(
+        &self,
+        root: u32,
+        eye: &Point3<f64>,
+        mut visit: impl FnMut(Visit) -> bool,
+    ) {
+        let distance = |node: &Node| {
+            let nearest =
+                Point3::from([0, 1, 2].map(|k| eye[k].clamp(node.lo[k] as f64, node.hi[k] as f64)));
+            (nearest - eye).norm_squared()
+        };
+        let as_box = |node: &Node| Visit::Box {
+            lo: Point3::from(node.lo.map(f64::from)),
+            hi: Point3::from(node.hi.map(f64::from)),
+        };
+        if root as usize >= self.nodes.len() {
+            return;
+        }
+        let mut stack = vec![root];
+        while let Some(at) = stack.pop() {
+            let node = &self.nodes[at as usize];
+            if !visit(as_box(node)) {
+                continue;
+            }
+            if node.count > 0 {
+                let first = node.index as usize;
+                for &index in &self.order[first..first + node.count as usize] {
+                    visit(Visit::Face(index));
+                }
+                continue;
+            }
+            let (a, b) = (at + 1, node.index);
+            let (near, far) =
+                if distance(&self.nodes[a as usize]) <= distance(&self.nodes[b as usize]) {
+                    (a, b)
+                } else {
+                    (b, a)
+                };
+            // The far child waits under the near one; each is asked about when it is reached,
+            // after everything nearer has been handed out.
+            stack.push(far);
+            stack.push(near);
+        }
     }
 
     /// A face for which `blocks(face, distance)` holds that meets the ray from `origin`
@@ -193,25 +271,33 @@ impl Bvh {
     }
 }
 
-/// What building the hierarchy reads: the faces and their centres.
+/// What building the hierarchy reads: the faces.
 struct Build<'a> {
     faces: &'a [Face],
-    centres: &'a [[f32; 3]],
+}
+
+/// A face being placed in the hierarchy: its centre and its index.
+#[derive(Clone, Copy, Debug)]
+struct Item {
+    centre: [f32; 3],
+    face: u32,
 }
 
 impl Build<'_> {
     /// Appends to `nodes` the node for the faces in `order` (which start at `first` in the
     /// hierarchy's whole order) and everything under it, depth first; its box.
     ///
-    /// The faces are split at the median of their centres along the longest side of the
-    /// centres' box. A leaf's box is taken from its corners, in f64 rounded outwards; an
+    /// The faces are split at the middle of the longest side of their centres' box (one
+    /// pass), or, when that leaves fewer than a quarter on one side, at the median of their
+    /// centres along it, so that the tree stays within about log(n) / log(4/3) levels (the
+    /// searches' stacks hold 64). A leaf's box is taken from its corners, in f64 rounded outwards; an
     /// inner node's is the union of its children's, so each corner is read once. With
     /// `split_levels` left, the second half is built on a thread of its own, into nodes of
     /// its own that are moved in after the first half's.
     fn node(
         &self,
         nodes: &mut Vec<Node>,
-        order: &mut [u32],
+        order: &mut [Item],
         first: usize,
         split_levels: u32,
     ) -> Bounds {
@@ -225,8 +311,8 @@ impl Build<'_> {
         if order.len() <= LEAF_FACES {
             let mut lo = Vector3::repeat(f64::INFINITY);
             let mut hi = Vector3::repeat(f64::NEG_INFINITY);
-            for &i in order.iter() {
-                for p in &self.faces[i as usize].corners {
+            for item in order.iter() {
+                for p in &self.faces[item.face as usize].corners {
                     lo = lo.inf(&p.coords);
                     hi = hi.sup(&p.coords);
                 }
@@ -235,19 +321,21 @@ impl Build<'_> {
             (nodes[at].lo, nodes[at].hi) = (lo, hi);
             return (lo, hi);
         }
-        let (centre_lo, centre_hi) = order.iter().fold(EMPTY, |bounds, &i| {
-            let c = self.centres[i as usize];
-            union(bounds, (c, c))
+        let (centre_lo, centre_hi) = order.iter().fold(EMPTY, |bounds, item| {
+            union(bounds, (item.centre, item.centre))
         });
         let axis = (0..3)
             .max_by(|&a, &b| {
                 (centre_hi[a] - centre_lo[a]).total_cmp(&(centre_hi[b] - centre_lo[b]))
             })
             .unwrap_or(0);
-        let (middle, count) = (order.len() / 2, order.len());
-        order.select_nth_unstable_by(middle, |&a, &b| {
-            self.centres[a as usize][axis].total_cmp(&self.centres[b as usize][axis])
-        });
+        let count = order.len();
+        let halfway = centre_lo[axis] + 0.5 * (centre_hi[axis] - centre_lo[axis]);
+        let mut middle = partition(order, |item| item.centre[axis] < halfway);
+        if middle < count / 4 || middle > count - count / 4 {
+            middle = count / 2;
+            order.select_nth_unstable_by(middle, |a, b| a.centre[axis].total_cmp(&b.centre[axis]));
+        }
         let (left, right) = order.split_at_mut(middle);
         let (left_box, right_box) = if split_levels > 0 && count >= FACES_FOR_THREADS {
             let mut right_nodes = Vec::with_capacity(2 * right.len() / LEAF_FACES + 1);
@@ -281,6 +369,18 @@ impl Build<'_> {
         (nodes[at].lo, nodes[at].hi) = bounds;
         bounds
     }
+}
+
+/// Moves the items for which `left` holds before the others; how many there are.
+fn partition(items: &mut [Item], left: impl Fn(&Item) -> bool) -> usize {
+    let mut end = 0;
+    for i in 0..items.len() {
+        if left(&items[i]) {
+            items.swap(i, end);
+            end += 1;
+        }
+    }
+    end
 }
 
 /// Whether the plane `normal . x = offset` passes through the box (its corners are not all

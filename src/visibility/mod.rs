@@ -59,7 +59,7 @@ mod hidden;
 mod occlusion;
 mod sight;
 
-pub use bvh::{ray_hits_triangle, Bvh};
+pub use bvh::{ray_hits_triangle, Bvh, Visit};
 pub use hidden::HiddenLines;
 pub use occlusion::OcclusionMap;
 pub use sight::{Depth, Occluders, Spans, DEPTH_BIAS};

@@ -29,10 +29,9 @@
 //! - Queries widen every angle by `ANGLE_MARGIN` and shrink every distance by `ROUNDING`, far
 //!   more than the rounding of the few operations between.
 
+use super::bvh::{Bvh, Visit};
 use crate::scene::Face;
-use crate::sphere::{
-    angle_between, azimuth_elevation, direction_from_azimuth_elevation, ViewFrame,
-};
+use crate::sphere::{angle_between, direction_from_azimuth_elevation, SphereCurve, ViewFrame};
 use nalgebra::{Point3, Vector3};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 
@@ -52,11 +51,11 @@ const EDGE_ON: f64 = 1e-6;
 const MIN_ROWS: usize = 64;
 const MAX_ROWS: usize = 1024;
 
+/// Faces from which the map is filled on two cores.
+const FACES_FOR_THREADS: usize = 50_000;
+
 /// The mark of a cell covered by two faces together, `index` and `index + 1`.
 const PAIR: u32 = 1 << 31;
-
-/// Faces over which the map is filled on two cores.
-const FACES_FOR_THREADS: usize = 50_000;
 
 /// The map of certain cover from one eye (see the module docs).
 pub struct OcclusionMap {
@@ -81,6 +80,13 @@ struct RowCap {
     cos_radius: f64,
     sin_elevation: f64,
     cos_elevation: f64,
+}
+
+/// Azimuth and elevation of a unit view-frame direction, as `sphere::azimuth_elevation`
+/// gives them but with a plain square root for the horizontal length (the caps round them
+/// are widened by far more than the difference).
+fn azimuth_elevation(d: &Vector3<f64>) -> (f64, f64) {
+    (d.x.atan2(d.y), d.z.atan2((d.x * d.x + d.y * d.y).sqrt()))
 }
 
 /// The half-open range of rows, and of columns (possibly past either end: they wrap round
@@ -159,6 +165,11 @@ fn cone_sides<const N: usize>(corners: &[Vector3<f64>; N]) -> Option<[Vector3<f6
         sides[k] = side.try_normalize(0.0)? * orientation;
     }
     Some(sides)
+}
+
+/// Whether two triangles share a side: two corners, the very same points.
+fn share_side(a: &Face, b: &Face) -> bool {
+    a.corners.iter().filter(|p| b.corners.contains(p)).count() == 2
 }
 
 /// The sides of the cone through the quadrilateral that two triangles sharing a side make,
@@ -273,26 +284,36 @@ pub(super) fn segment_distance(a: &Vector3<f64>, b: &Vector3<f64>) -> f64 {
 }
 
 impl OcclusionMap {
-    /// The map of these faces from the eye of `view`, sized to the number of faces.
-    pub fn new(faces: &[Face], view: &ViewFrame) -> OcclusionMap {
+    /// The map of these faces (with their hierarchy) from the eye of `view`, sized to the
+    /// number of faces.
+    pub fn new(faces: &[Face], bvh: &Bvh, view: &ViewFrame) -> OcclusionMap {
         let rows = ((faces.len() as f64).sqrt() as usize)
             .next_power_of_two()
             .clamp(MIN_ROWS, MAX_ROWS);
-        OcclusionMap::with_rows(faces, view, rows)
+        OcclusionMap::with_rows(faces, bvh, view, rows)
     }
 
     /// The map with `rows` rows of cells (and twice as many columns).
-    pub fn with_rows(faces: &[Face], view: &ViewFrame, rows: usize) -> OcclusionMap {
+    ///
+    /// The faces are entered nearest first, through their hierarchy: a box of faces whose
+    /// every sight line is already covered nearer than the box could add nothing, and is
+    /// passed over with everything in it. From a street that is most of a town.
+    pub fn with_rows(faces: &[Face], bvh: &Bvh, view: &ViewFrame, rows: usize) -> OcclusionMap {
         let mut map = OcclusionMap::empty(rows.max(2), 2 * rows.max(2));
-        if faces.len() < FACES_FOR_THREADS {
-            map.cover_all(faces, 0, view);
+        let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+        let halves = bvh
+            .halves()
+            .filter(|_| cores > 1 && faces.len() >= FACES_FOR_THREADS);
+        let Some([first, second]) = halves else {
+            map.fill(faces, bvh, 0, view);
             return map;
-        }
-        let half = faces.len() / 2;
+        };
+        // Each half of the hierarchy in a map of its own on its own core (each passes over
+        // what its own near faces hide), then the nearer cover of the two in each cell.
         let mut other = OcclusionMap::empty(map.rows, map.columns);
         std::thread::scope(|scope| {
-            scope.spawn(|| other.cover_all(&faces[half..], half as u32, view));
-            map.cover_all(&faces[..half], 0, view);
+            scope.spawn(|| other.fill(faces, bvh, second, view));
+            map.fill(faces, bvh, first, view);
         });
         for (cell, (&depth, &face)) in other.depth.iter().zip(&other.face).enumerate() {
             if depth < map.depth[cell] {
@@ -301,6 +322,76 @@ impl OcclusionMap {
             }
         }
         map
+    }
+
+    /// Enters the faces under the node `root` of their hierarchy, nearest first.
+    fn fill(&mut self, faces: &[Face], bvh: &Bvh, root: u32, view: &ViewFrame) {
+        let eye = view.eye();
+        bvh.front_to_back_under(root, &eye, |visit| match visit {
+            Visit::Box { lo, hi } => !self.hides_box(&lo, &hi, &eye, view),
+            Visit::Face(index) => {
+                self.enter(faces, index, view);
+                true
+            }
+        });
+    }
+
+    /// Whether the map covers every sight line to the box (site coordinates) nearer than
+    /// any point of it.
+    fn hides_box(
+        &self,
+        lo: &Point3<f64>,
+        hi: &Point3<f64>,
+        eye: &Point3<f64>,
+        view: &ViewFrame,
+    ) -> bool {
+        let middle = Point3::from((lo.coords + hi.coords) * 0.5);
+        let half_diagonal = 0.5 * (hi - lo).norm();
+        let to_middle = middle - eye;
+        let distance = to_middle.norm();
+        // The box's ball seen from the eye: a cap of radius asin(r / d).
+        if !(distance > half_diagonal * (1.0 + ROUNDING)) {
+            return false;
+        }
+        let radius = (half_diagonal / distance).asin() * (1.0 + ROUNDING) + ANGLE_MARGIN;
+        let nearest = Point3::from([0, 1, 2].map(|k| eye[k].clamp(lo[k], hi[k])));
+        let centre = view.direction_to_view(&(to_middle / distance));
+        self.covers_cap(&centre, radius, (nearest - eye).norm() * (1.0 - ROUNDING))
+    }
+
+    /// Enters a face in the map: with the next one when the two share a side (a
+    /// quadrilateral split in two, as modellers and the scene's builders write them), so
+    /// that they cover the cells along that side together; not at all when it shares a side
+    /// with the one before (it was entered with that one).
+    fn enter(&mut self, faces: &[Face], index: u32, view: &ViewFrame) {
+        let i = index as usize;
+        let flat = |face: &Face| face.slack == 0.0;
+        if !flat(&faces[i])
+            || (i > 0 && flat(&faces[i - 1]) && share_side(&faces[i - 1], &faces[i]))
+        {
+            return;
+        }
+        let corners = faces[i].corners.map(|p| view.to_view(&p));
+        let plate = Plate::of(&corners);
+        let Some(next) = faces
+            .get(i + 1)
+            .filter(|next| flat(next) && share_side(&faces[i], next))
+        else {
+            if let Some(plate) = plate {
+                self.cover(index, &[plate], None);
+            }
+            return;
+        };
+        let next_corners = next.corners.map(|p| view.to_view(&p));
+        match (plate, Plate::of(&next_corners)) {
+            (Some(plate), Some(next_plate)) => {
+                let outline = quad_sides(&faces[i].corners, &next.corners, &corners, &next_corners);
+                self.cover(index, &[plate, next_plate], outline.as_ref());
+            }
+            (Some(plate), None) => self.cover(index, &[plate], None),
+            (None, Some(next_plate)) => self.cover(index + 1, &[next_plate], None),
+            (None, None) => {}
+        }
     }
 
     fn empty(rows: usize, columns: usize) -> OcclusionMap {
@@ -346,49 +437,16 @@ impl OcclusionMap {
         )
     }
 
-    fn cover_all(&mut self, faces: &[Face], first: u32, view: &ViewFrame) {
-        let mut i = 0;
-        while i < faces.len() {
-            let index = first + i as u32;
-            let corners = faces[i].corners.map(|p| view.to_view(&p));
-            let this = (faces[i].slack == 0.0)
-                .then(|| Plate::of(&corners))
-                .flatten();
-            // A face and the next that share a side (a quadrilateral split in two, as
-            // modellers and the scene's builders write them) cover the cells along their
-            // shared side together.
-            if let (Some(this), Some(next)) = (&this, faces.get(i + 1)) {
-                let next_corners = next.corners.map(|p| view.to_view(&p));
-                let pair = (next.slack == 0.0)
-                    .then(|| Plate::of(&next_corners))
-                    .flatten()
-                    .and_then(|plate| {
-                        quad_sides(&faces[i].corners, &next.corners, &corners, &next_corners)
-                            .map(|sides| (plate, sides))
-                    });
-                if let Some((plate, sides)) = pair {
-                    self.cover(index, &[this.clone(), plate], Some(&sides));
-                    i += 2;
-                    continue;
-                }
-            }
-            if let Some(this) = this {
-                self.cover(index, &[this], None);
-            }
-            i += 1;
-        }
-    }
-
     /// Enters the face `index` (and with two plates, also `index + 1`; `outline`: the sides
     /// of their union's cone) in the cells it covers.
     fn cover(&mut self, index: u32, plates: &[Plate], outline: Option<&[Vector3<f64>; 4]>) {
         // The cap round the corners' mean direction holds the whole face when it is under
         // a quarter turn (caps that small are convex).
-        let units: Vec<Vector3<f64>> = plates.iter().flat_map(|p| p.units).collect();
-        let Some(centre) = units.iter().sum::<Vector3<f64>>().try_normalize(0.0) else {
+        let units = || plates.iter().flat_map(|p| p.units);
+        let Some(centre) = units().sum::<Vector3<f64>>().try_normalize(0.0) else {
             return;
         };
-        let cos_radius = units.iter().map(|u| u.dot(&centre)).fold(1.0, f64::min);
+        let cos_radius = units().map(|u| u.dot(&centre)).fold(1.0, f64::min);
         let radius = if cos_radius > 0.0 {
             cos_radius.min(1.0).acos() + ANGLE_MARGIN
         } else {
@@ -478,10 +536,18 @@ impl OcclusionMap {
         })
     }
 
-    /// The angle a cell spans in elevation: caps this wide or narrower are checked a few
-    /// cells at a time.
-    pub fn cell_angle(&self) -> f64 {
-        PI / self.rows as f64
+    /// Whether every direction of the great arc `curve` from `a` to `b` (its parameter is
+    /// its angle) meets a face nearer than `limit`: checked in pieces about two cells long,
+    /// each within half its length of its middle direction.
+    pub fn covers_great_arc(&self, curve: &SphereCurve, a: f64, b: f64, limit: f64) -> bool {
+        let pieces = ((b - a) / (2.0 * PI / self.rows as f64)).ceil().max(1.0);
+        let length = (b - a) / pieces;
+        (0..pieces as usize).all(|k| {
+            curve
+                .position(a + (k as f64 + 0.5) * length)
+                .try_normalize(0.0)
+                .is_some_and(|middle| self.covers_cap(&middle, 0.5 * length, limit))
+        })
     }
 }
 
@@ -507,6 +573,11 @@ mod tests {
     /// The eye at the origin, looking north, level.
     fn level_view() -> ViewFrame {
         ViewFrame::new(&Standpoint::from_degrees("o", 0.0, 0.0, 0.0, 0.0, 0.0, 0.0))
+    }
+
+    /// The map of these faces from `level_view`, with `rows` rows.
+    fn map_of(faces: &[Face], rows: usize) -> OcclusionMap {
+        OcclusionMap::with_rows(faces, &Bvh::new(faces), &level_view(), rows)
     }
 
     /// Directions spread over a cell: its corners, the middles of its sides and an inner grid.
@@ -593,7 +664,7 @@ mod tests {
             face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 6.0]]),
             face([[-10.0, 10.0, -2.0], [10.0, 10.0, 6.0], [-10.0, 10.0, 6.0]]),
         ];
-        let map = OcclusionMap::with_rows(&faces, &level_view(), 64);
+        let map = map_of(&faces, 64);
         let covered = assert_cover_is_true(&map, &faces);
         // The wall spans 90 degrees of azimuth and about 11 below to 31 above, at best
         // (straight ahead): a good part of it is covered, nothing beside it.
@@ -621,7 +692,7 @@ mod tests {
             [10.0, 10.0, -5.0],
             [0.0, 10.0, 10.0],
         ])];
-        let map = OcclusionMap::with_rows(&faces, &level_view(), 256);
+        let map = map_of(&faces, 256);
         let (row, column) = map.cell_of(&Vector3::new(0.0, 1.0, 0.0));
         let depth = map.depth[row * map.columns + column] as f64;
         assert!((10.0..10.1).contains(&depth), "{depth}");
@@ -638,7 +709,7 @@ mod tests {
             ]),
             face([[10.0, -10.0, -3.0], [-10.0, -10.0, 3.0], [10.0, -10.0, 3.0]]),
         ];
-        let map = OcclusionMap::with_rows(&faces, &level_view(), 64);
+        let map = map_of(&faces, 64);
         assert_cover_is_true(&map, &faces);
         let equator = map.rows / 2;
         let row = &map.depth[equator * map.columns..(equator + 1) * map.columns];
@@ -659,7 +730,7 @@ mod tests {
             face([[-20.0, -20.0, 3.0], [20.0, -20.0, 3.0], [20.0, 20.0, 3.0]]),
             face([[-20.0, -20.0, 3.0], [20.0, 20.0, 3.0], [-20.0, 20.0, 3.0]]),
         ];
-        let map = OcclusionMap::with_rows(&faces, &level_view(), 64);
+        let map = map_of(&faces, 64);
         assert_cover_is_true(&map, &faces);
         // The top row's tiny cells, in every column.
         assert!(map.depth[..map.columns].iter().all(|d| d.is_finite()));
@@ -674,7 +745,7 @@ mod tests {
         let mut curved = face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [0.0, 10.0, 6.0]]);
         curved.slack = 0.01;
         let edge_on = face([[-10.0, 10.0, 0.0], [10.0, 10.0, 0.0], [0.0, 20.0, 0.0]]);
-        let map = OcclusionMap::with_rows(&[curved, edge_on], &level_view(), 64);
+        let map = map_of(&[curved, edge_on], 64);
         assert!(map.depth.iter().all(|d| d.is_infinite()));
     }
 

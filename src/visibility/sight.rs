@@ -80,7 +80,7 @@ impl<'a> Occluders<'a> {
             bvh,
             view,
             eye: view.eye(),
-            map: OcclusionMap::new(faces, view),
+            map: OcclusionMap::new(faces, bvh, view),
         }
     }
 
@@ -155,17 +155,9 @@ impl<'a> Occluders<'a> {
         else {
             return false;
         };
-        let limit = segment_distance(&(da * ra), &(db * rb)) * (1.0 - DEPTH_BIAS);
-        // A great arc's parameter is its angle: pieces about a cell long, each within half
-        // its length of its middle direction.
-        let pieces = ((b - a) / self.map.cell_angle()).ceil().max(1.0);
-        let length = (b - a) / pieces;
-        (0..pieces as usize).all(|k| {
-            let middle = curve.position(a + (k as f64 + 0.5) * length);
-            middle
-                .try_normalize(0.0)
-                .is_some_and(|middle| self.map.covers_cap(&middle, 0.5 * length, limit))
-        })
+        let nearest = segment_distance(&(da * ra), &(db * rb));
+        self.map
+            .covers_great_arc(curve, a, b, nearest * (1.0 - DEPTH_BIAS))
     }
 
     /// The stretches of the edge seen and hidden. `step` is the angle (radians) below
@@ -180,10 +172,15 @@ impl<'a> Occluders<'a> {
     /// are sampled every `step`.
     pub fn spans(&self, curve: &SphereCurve, depth: &Depth, step: f64, precision: f64) -> Spans {
         let mut spans: Spans = Vec::new();
-        if matches!(depth, Depth::Segment { .. })
-            && self.piece_covered(curve, depth, curve.t0, curve.t1)
-        {
-            return vec![(curve.t0, curve.t1, false)];
+        // The whole segment at once: no point of it is nearer than its nearest point.
+        if let Depth::Segment { a, b } = depth {
+            let nearest = segment_distance(a, b) * (1.0 - DEPTH_BIAS);
+            if self
+                .map
+                .covers_great_arc(curve, curve.t0, curve.t1, nearest)
+            {
+                return vec![(curve.t0, curve.t1, false)];
+            }
         }
         let first = self.look(curve, depth, curve.t0);
         match depth {
