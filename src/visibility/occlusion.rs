@@ -811,4 +811,138 @@ mod tests {
             "{largest} {bound}"
         );
     }
+
+    /// Houses of four walls and a roof as loose triangles (no two share a side), on a grid
+    /// round the eye, with a fixed rule for their sizes.
+    fn loose_houses() -> Vec<Face> {
+        let mut faces = Vec::new();
+        for i in -6..=6 {
+            for j in -6..=6 {
+                if i == 0 && j == 0 {
+                    continue;
+                }
+                let (x, y) = (14.0 * i as f64, 14.0 * j as f64);
+                let (w, h) = (
+                    3.0 + ((i * 7 + j * 3) as f64).sin().abs() * 2.0,
+                    4.0 + (j as f64).cos().abs() * 6.0,
+                );
+                let c = |dx: f64, dy: f64, z: f64| [x + dx, y + dy, z];
+                for (a, b) in [
+                    ((-w, -w), (w, -w)),
+                    ((w, -w), (w, w)),
+                    ((w, w), (-w, w)),
+                    ((-w, w), (-w, -w)),
+                ] {
+                    // Each wall as two triangles a hair apart: they share no side.
+                    faces.push(face([c(a.0, a.1, 0.0), c(b.0, b.1, 0.0), c(b.0, b.1, h)]));
+                    faces.push(face([
+                        c(a.0, a.1, -0.001),
+                        c(b.0, b.1, h + 0.001),
+                        c(a.0, a.1, h + 0.001),
+                    ]));
+                }
+                faces.push(face([c(-w, -w, h), c(w, -w, h), c(0.0, 0.0, h + 3.0)]));
+            }
+        }
+        faces
+    }
+
+    #[test]
+    fn passing_over_hidden_boxes_changes_nothing() {
+        // The map filled through the hierarchy (skipping boxes already hidden) against every
+        // face entered one by one.
+        let faces = loose_houses();
+        let bvh = Bvh::new(&faces);
+        let view = ViewFrame::new(&Standpoint::from_degrees(
+            "o", 3.0, 4.0, 1.6, 20.0, 0.0, 0.0,
+        ));
+        let culled = OcclusionMap::with_rows(&faces, &bvh, &view, 128);
+        let mut every = OcclusionMap::empty(128, 256);
+        for index in 0..faces.len() as u32 {
+            every.enter(&faces, index, &view);
+        }
+        assert!(culled.depth == every.depth);
+        let covered = culled.depth.iter().filter(|d| d.is_finite()).count();
+        assert!(covered > culled.depth.len() / 10, "{covered}");
+    }
+
+    #[test]
+    fn an_arc_declared_hidden_really_lies_behind() {
+        // Random short arcs at random distances; wherever the map says hidden, every point
+        // of the arc has a face nearer than the limit along its sight line (brute force).
+        let faces = loose_houses();
+        let bvh = Bvh::new(&faces);
+        let view = ViewFrame::new(&Standpoint::from_degrees(
+            "o", 3.0, 4.0, 1.6, 20.0, 0.0, 0.0,
+        ));
+        let map = OcclusionMap::with_rows(&faces, &bvh, &view, 128);
+        let (mut hidden, mut state) = (0, 0x2545_f491_4f6c_dd1du64);
+        let mut next = || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for _ in 0..3000 {
+            let a = direction_from_azimuth_elevation(TAU * next() - PI, 0.6 * next() - 0.2);
+            let b = direction_from_azimuth_elevation(TAU * next() - PI, 0.6 * next() - 0.2);
+            let b = (a + (b - a) * 0.05 * next()).normalize();
+            let Some(arc) = SphereCurve::great_arc(&a, &b) else {
+                continue;
+            };
+            let limit = 10.0 + 80.0 * next();
+            if !map.covers_great_arc(&arc, arc.t0, arc.t1, limit) {
+                continue;
+            }
+            hidden += 1;
+            for k in 0..=20 {
+                let d = view
+                    .direction_to_site(&arc.position(arc.t0 + (arc.t1 - arc.t0) * k as f64 / 20.0));
+                let behind = faces.iter().any(|f| {
+                    ray_hits_triangle(&view.eye(), &d, &f.corners).is_some_and(|t| t < limit)
+                });
+                assert!(behind, "an arc declared hidden is seen at {d:?}");
+            }
+        }
+        assert!(hidden > 100, "{hidden}");
+    }
+
+    #[test]
+    fn two_triangles_of_a_convex_quadrilateral_cover_together() {
+        let square = [
+            face([[-1.0, 5.0, -1.0], [1.0, 5.0, -1.0], [1.0, 5.0, 1.0]]),
+            face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [-1.0, 5.0, 1.0]]),
+        ];
+        assert!(share_side(&square[0], &square[1]));
+        let view = |f: &Face| f.corners.map(|p| p.coords);
+        let sides = quad_sides(
+            &square[0].corners,
+            &square[1].corners,
+            &view(&square[0]),
+            &view(&square[1]),
+        );
+        let sides = sides.expect("a square is convex");
+        // Its middle is inside, a point beyond its side is not.
+        assert!(cap_in_cone(&sides, &Vector3::new(0.0, 1.0, 0.0), 0.1));
+        assert!(!cap_in_cone(
+            &sides,
+            &Vector3::new(0.3, 1.0, 0.0).normalize(),
+            0.0
+        ));
+        // An arrowhead (the fourth corner pulled inside) is not convex.
+        let arrow = [
+            square[0],
+            face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [0.5, 5.0, -0.5]]),
+        ];
+        assert!(quad_sides(
+            &arrow[0].corners,
+            &arrow[1].corners,
+            &view(&arrow[0]),
+            &view(&arrow[1])
+        )
+        .is_none());
+        // Triangles sharing one corner only are no pair.
+        let apart = face([[1.0, 5.0, 1.0], [3.0, 5.0, 1.0], [3.0, 5.0, 3.0]]);
+        assert!(!share_side(&square[0], &apart));
+    }
 }
