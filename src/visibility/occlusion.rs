@@ -82,6 +82,11 @@ struct RowCap {
     cos_elevation: f64,
 }
 
+/// Whether `a > b`: false when either is NaN, so that a NaN refuses what it guards.
+fn exceeds(a: f64, b: f64) -> bool {
+    a > b
+}
+
 /// Azimuth and elevation of a unit view-frame direction, as `sphere::azimuth_elevation`
 /// gives them but with a plain square root for the horizontal length (the caps round them
 /// are widened by far more than the difference).
@@ -158,7 +163,7 @@ fn cone_sides<const N: usize>(corners: &[Vector3<f64>; N]) -> Option<[Vector3<f6
             if orientation == 0.0 {
                 orientation = other.signum();
             }
-            if !(other * orientation > 0.0) {
+            if !exceeds(other * orientation, 0.0) {
                 return None;
             }
         }
@@ -217,7 +222,7 @@ impl Plate {
             .cross(&(corners[2] - corners[0]))
             .try_normalize(0.0)?;
         let h = normal.dot(&corners[0]);
-        if !(h.abs() > EDGE_ON * farthest) {
+        if !exceeds(h.abs(), EDGE_ON * farthest) {
             return None;
         }
         Some(Plate {
@@ -350,7 +355,7 @@ impl OcclusionMap {
         let to_middle = middle - eye;
         let distance = to_middle.norm();
         // The box's ball seen from the eye: a cap of radius asin(r / d).
-        if !(distance > half_diagonal * (1.0 + ROUNDING)) {
+        if !exceeds(distance, half_diagonal * (1.0 + ROUNDING)) {
             return false;
         }
         let radius = (half_diagonal / distance).asin() * (1.0 + ROUNDING) + ANGLE_MARGIN;
