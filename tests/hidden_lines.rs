@@ -94,12 +94,7 @@ fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
     let view = ViewFrame::new(standpoint);
     let eye = view.eye();
     let bvh = Bvh::new(&site.faces);
-    let occluders = Occluders {
-        faces: &site.faces,
-        bvh: &bvh,
-        view: &view,
-        eye,
-    };
+    let occluders = Occluders::new(&site.faces, &bvh, &view);
     let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve).collect();
     edges.extend(site.outline_edges_from(&eye).iter().map(|e| e.curve));
     let mut tally = Tally {
@@ -321,10 +316,8 @@ fn looking_out_through_a_pointed_window_and_an_oculus() {
 }
 
 /// A small town of gabled houses as an OBJ model (the benchmark's houses, 8 x 8 on a 14 m
-/// grid, sizes from a fixed rule), seen from a street corner at 1.6 m: almost everything
-/// is hidden behind the first row, the view the occlusion shortcuts are for.
-#[test]
-fn a_small_town_from_a_street_corner() {
+/// grid, sizes from a fixed rule), streets along x = 0 and y = 0.
+fn small_town() -> Site {
     use pansite::scene::{add_mesh, parse_obj, MeshPlacement};
     use std::fmt::Write;
     let mut text = String::new();
@@ -370,6 +363,44 @@ fn a_small_town_from_a_street_corner() {
     };
     add_mesh(&mut site, &obj, &placement, "town.obj");
     assert_eq!(site.faces.len(), 64 * 16);
+    site
+}
+
+/// The small town seen from a street corner at 1.6 m: almost everything is hidden behind
+/// the first row, the view the occlusion shortcuts are for.
+#[test]
+fn a_small_town_from_a_street_corner() {
+    let site = small_town();
     let corner = Standpoint::from_degrees("corner", 0.0, 0.0, 1.6, 30.0, 0.0, 0.0);
     check_scene("small town", &site, &corner, 1);
+}
+
+/// The small town from the middle of a lane, the view pitched and rolled so that the
+/// seam (azimuth 180) and both poles of the drawing fall on nearby walls and roofs: the
+/// occlusion shortcuts across the seam and round the poles, against the ray caster.
+#[test]
+fn a_small_town_with_the_seam_and_the_poles_on_near_walls() {
+    let site = small_town();
+    let lane = Standpoint::from_degrees("lane", 0.0, 17.0, 1.6, 15.0, -15.0, 60.0);
+    let view = ViewFrame::new(&lane);
+    // The drawing's zenith and nadir, and its seam at three elevations, look at faces.
+    let bvh = Bvh::new(&site.faces);
+    for d in [
+        Vector3::new(0.0, 0.0, 1.0),
+        Vector3::new(0.0, 0.0, -1.0),
+        Vector3::new(0.0, -1.0, 0.0),
+        Vector3::new(0.0, -1.0, 0.6),
+        Vector3::new(0.0, -1.0, -0.6),
+    ] {
+        let towards = view.direction_to_site(&d.normalize());
+        let blocked = bvh.first_hit(&site.faces, &view.eye(), &towards, 1e9, |_, _| true);
+        assert!(blocked.is_some(), "{d:?} looks at the sky");
+        // And the map of certain cover has it, so the shortcuts are taken there.
+        let occluders = Occluders::new(&site.faces, &bvh, &view);
+        assert!(
+            occluders.map().blockers(&d.normalize(), 1e9).is_some(),
+            "{d:?} not in the map"
+        );
+    }
+    check_scene("lane", &site, &lane, 1);
 }

@@ -12,7 +12,7 @@ use nalgebra::{Point3, Vector3};
 /// Faces in a leaf: more saves nodes, fewer saves triangle tests.
 const LEAF_FACES: usize = 4;
 
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 struct Node {
     lo: [f32; 3],
     hi: [f32; 3],
@@ -21,6 +21,21 @@ struct Node {
     index: u32,
     /// Faces in a leaf; 0 for an inner node.
     count: u32,
+}
+
+/// What [`Bvh::front_to_back`] hands out: a node's box (site coordinates, rounded outwards)
+/// or a face of a leaf.
+#[derive(Clone, Copy, Debug)]
+pub enum Visit {
+    /// A box holding every face under a node.
+    Box {
+        /// Its lowest corner.
+        lo: Point3<f64>,
+        /// Its highest corner.
+        hi: Point3<f64>,
+    },
+    /// A face (its index).
+    Face(u32),
 }
 
 /// The hierarchy: nodes in depth-first order and the faces' indices in leaf order.
@@ -41,72 +56,116 @@ fn outward(lo: Vector3<f64>, hi: Vector3<f64>) -> ([f32; 3], [f32; 3]) {
     )
 }
 
+/// A box of f32: lowest and highest corners.
+type Bounds = ([f32; 3], [f32; 3]);
+
+const EMPTY: Bounds = ([f32::INFINITY; 3], [f32::NEG_INFINITY; 3]);
+
+fn union((lo, hi): Bounds, (other_lo, other_hi): Bounds) -> Bounds {
+    (
+        [0, 1, 2].map(|k| lo[k].min(other_lo[k])),
+        [0, 1, 2].map(|k| hi[k].max(other_hi[k])),
+    )
+}
+
+/// Faces below which a subtree is built on one core: a thread costs more than it saves.
+const FACES_FOR_THREADS: usize = 50_000;
+
 impl Bvh {
-    /// The hierarchy of these faces.
+    /// The hierarchy of these faces, built on all cores when there are many.
     pub fn new(faces: &[Face]) -> Bvh {
-        let centres: Vec<[f32; 3]> = faces
-            .iter()
-            .map(|f| {
-                let c = (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0;
-                [c.x as f32, c.y as f32, c.z as f32]
-            })
-            .collect();
-        let mut bvh = Bvh {
-            nodes: Vec::with_capacity(2 * faces.len() / LEAF_FACES + 1),
-            order: (0..faces.len() as u32).collect(),
-        };
-        if !faces.is_empty() {
-            bvh.build(faces, &centres, 0, faces.len());
-        }
-        bvh
+        let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+        // Each split below the root may hand one half to a thread of its own.
+        Bvh::with_split_levels(faces, usize::BITS - (cores - 1).leading_zeros())
     }
 
-    /// Builds the node for `order[first..end]` and everything under it.
-    fn build(&mut self, faces: &[Face], centres: &[[f32; 3]], first: usize, end: usize) {
-        let mut lo = Vector3::repeat(f64::INFINITY);
-        let mut hi = Vector3::repeat(f64::NEG_INFINITY);
-        let mut centre_lo = [f32::INFINITY; 3];
-        let mut centre_hi = [f32::NEG_INFINITY; 3];
-        for &i in &self.order[first..end] {
-            for p in &faces[i as usize].corners {
-                lo = lo.inf(&p.coords);
-                hi = hi.sup(&p.coords);
-            }
-            for k in 0..3 {
-                centre_lo[k] = centre_lo[k].min(centres[i as usize][k]);
-                centre_hi[k] = centre_hi[k].max(centres[i as usize][k]);
-            }
-        }
-        let (lo, hi) = outward(lo, hi);
-        let at = self.nodes.len();
-        self.nodes.push(Node {
-            lo,
-            hi,
-            index: first as u32,
-            count: (end - first) as u32,
-        });
-        if end - first <= LEAF_FACES {
-            return;
-        }
-        let axis = (0..3)
-            .max_by(|&a, &b| {
-                (centre_hi[a] - centre_lo[a]).total_cmp(&(centre_hi[b] - centre_lo[b]))
+    /// The hierarchy, with this many levels of splits handing a half to a thread.
+    fn with_split_levels(faces: &[Face], split_levels: u32) -> Bvh {
+        // Each face's centre travels with its index, so that the splits read memory in order.
+        let mut items: Vec<Item> = faces
+            .iter()
+            .zip(0..)
+            .map(|(f, face)| {
+                let c = (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0;
+                Item {
+                    centre: [c.x as f32, c.y as f32, c.z as f32],
+                    face,
+                }
             })
-            .unwrap_or(0);
-        let middle = (first + end) / 2;
-        self.order[first..end].select_nth_unstable_by(middle - first, |&a, &b| {
-            centres[a as usize][axis].total_cmp(&centres[b as usize][axis])
-        });
-        self.build(faces, centres, first, middle);
-        let second = self.nodes.len() as u32;
-        self.build(faces, centres, middle, end);
-        self.nodes[at].index = second;
-        self.nodes[at].count = 0;
+            .collect();
+        let mut nodes = Vec::with_capacity(2 * faces.len() / LEAF_FACES + 1);
+        if !faces.is_empty() {
+            Build { faces }.node(&mut nodes, &mut items, 0, split_levels);
+        }
+        Bvh {
+            nodes,
+            order: items.into_iter().map(|item| item.face).collect(),
+        }
     }
 
     /// The memory the hierarchy holds, bytes.
     pub fn memory_bytes(&self) -> usize {
         self.nodes.capacity() * std::mem::size_of::<Node>() + self.order.capacity() * 4
+    }
+
+    /// Walks the hierarchy nearest box first as seen from `eye` (by the distance from the eye
+    /// to each box), asking `visit` about each node's box (`Visit::Box`: false skips
+    /// everything under it) and handing it each face of the leaves reached (`Visit::Face`).
+    pub fn front_to_back(&self, eye: &Point3<f64>, visit: impl FnMut(Visit) -> bool) {
+        self.front_to_back_under(0, eye, visit);
+    }
+
+    /// The two nodes under the root, when the root is not a leaf: each holds about half
+    /// the faces, for two cores to walk apart.
+    pub fn halves(&self) -> Option<[u32; 2]> {
+        let root = self.nodes.first()?;
+        (root.count == 0).then_some([1, root.index])
+    }
+
+    /// [`Bvh::front_to_back`] under the node `root` only.
+    pub fn front_to_back_under(
+        &self,
+        root: u32,
+        eye: &Point3<f64>,
+        mut visit: impl FnMut(Visit) -> bool,
+    ) {
+        let distance = |node: &Node| {
+            let nearest =
+                Point3::from([0, 1, 2].map(|k| eye[k].clamp(node.lo[k] as f64, node.hi[k] as f64)));
+            (nearest - eye).norm_squared()
+        };
+        let as_box = |node: &Node| Visit::Box {
+            lo: Point3::from(node.lo.map(f64::from)),
+            hi: Point3::from(node.hi.map(f64::from)),
+        };
+        if root as usize >= self.nodes.len() {
+            return;
+        }
+        let mut stack = vec![root];
+        while let Some(at) = stack.pop() {
+            let node = &self.nodes[at as usize];
+            if !visit(as_box(node)) {
+                continue;
+            }
+            if node.count > 0 {
+                let first = node.index as usize;
+                for &index in &self.order[first..first + node.count as usize] {
+                    visit(Visit::Face(index));
+                }
+                continue;
+            }
+            let (a, b) = (at + 1, node.index);
+            let (near, far) =
+                if distance(&self.nodes[a as usize]) <= distance(&self.nodes[b as usize]) {
+                    (a, b)
+                } else {
+                    (b, a)
+                };
+            // The far child waits under the near one; each is asked about when it is reached,
+            // after everything nearer has been handed out.
+            stack.push(far);
+            stack.push(near);
+        }
     }
 
     /// A face for which `blocks(face, distance)` holds that meets the ray from `origin`
@@ -155,7 +214,7 @@ impl Bvh {
         self.search(
             |node| {
                 let apart = (0..3).any(|k| node.hi[k] < lo[k] || node.lo[k] > hi[k]);
-                !apart && box_meets_plane(node, &normal, offset)
+                (!apart && box_meets_plane(node, &normal, offset)).then_some(0.0)
             },
             |i| triangles_cross(&faces[i as usize].corners, wedge),
         )
@@ -163,10 +222,16 @@ impl Bvh {
     }
 
     /// The one traversal both questions share: depth first through the nodes whose box
-    /// `meets`, testing the faces of each leaf reached with `hit`; the first face for which
-    /// `hit` holds, if any.
-    fn search(&self, meets: impl Fn(&Node) -> bool, hit: impl Fn(u32) -> bool) -> Option<u32> {
-        if self.nodes.is_empty() {
+    /// `meets` (giving a distance along the question's ray at which it is entered, or 0),
+    /// nearer children first, testing the faces of each leaf reached with `hit`; the first
+    /// face for which `hit` holds, if any. Nearer first, a ray to a hidden point finds the
+    /// first row of what hides it before the rows behind.
+    fn search(
+        &self,
+        meets: impl Fn(&Node) -> Option<f32>,
+        hit: impl Fn(u32) -> bool,
+    ) -> Option<u32> {
+        if self.nodes.is_empty() || meets(&self.nodes[0]).is_none() {
             return None;
         }
         let mut stack = [0u32; 64];
@@ -175,24 +240,147 @@ impl Bvh {
             depth -= 1;
             let at = stack[depth];
             let node = &self.nodes[at as usize];
-            if !meets(node) {
-                continue;
-            }
             if node.count > 0 {
                 let first = node.index as usize;
                 let leaf = &self.order[first..first + node.count as usize];
                 if let Some(&index) = leaf.iter().find(|&&i| hit(i)) {
                     return Some(index);
                 }
-            } else if depth + 2 <= stack.len() {
-                // Both children; the first one (stored right after its parent) on top.
-                stack[depth] = node.index;
-                stack[depth + 1] = at + 1;
-                depth += 2;
+                continue;
+            }
+            // The first child is stored right after its parent.
+            let (a, b) = (at + 1, node.index);
+            let children = match (
+                meets(&self.nodes[a as usize]),
+                meets(&self.nodes[b as usize]),
+            ) {
+                (Some(near_a), Some(near_b)) if near_a <= near_b => [b, a],
+                (Some(_), Some(_)) => [a, b],
+                (Some(_), None) => [a, a],
+                (None, Some(_)) => [b, b],
+                (None, None) => continue,
+            };
+            // The nearer on top; one child is pushed once.
+            let count = if children[0] == children[1] { 1 } else { 2 };
+            if depth + count <= stack.len() {
+                stack[depth..depth + count].copy_from_slice(&children[2 - count..]);
+                depth += count;
             }
         }
         None
     }
+}
+
+/// What building the hierarchy reads: the faces.
+struct Build<'a> {
+    faces: &'a [Face],
+}
+
+/// A face being placed in the hierarchy: its centre and its index.
+#[derive(Clone, Copy, Debug)]
+struct Item {
+    centre: [f32; 3],
+    face: u32,
+}
+
+impl Build<'_> {
+    /// Appends to `nodes` the node for the faces in `order` (which start at `first` in the
+    /// hierarchy's whole order) and everything under it, depth first; its box.
+    ///
+    /// The faces are split at the middle of the longest side of their centres' box (one
+    /// pass), or, when that leaves fewer than a quarter on one side, at the median of their
+    /// centres along it, so that the tree stays within about log(n) / log(4/3) levels (the
+    /// searches' stacks hold 64). A leaf's box is taken from its corners, in f64 rounded outwards; an
+    /// inner node's is the union of its children's, so each corner is read once. With
+    /// `split_levels` left, the second half is built on a thread of its own, into nodes of
+    /// its own that are moved in after the first half's.
+    fn node(
+        &self,
+        nodes: &mut Vec<Node>,
+        order: &mut [Item],
+        first: usize,
+        split_levels: u32,
+    ) -> Bounds {
+        let at = nodes.len();
+        nodes.push(Node {
+            lo: EMPTY.0,
+            hi: EMPTY.1,
+            index: first as u32,
+            count: order.len() as u32,
+        });
+        if order.len() <= LEAF_FACES {
+            let mut lo = Vector3::repeat(f64::INFINITY);
+            let mut hi = Vector3::repeat(f64::NEG_INFINITY);
+            for item in order.iter() {
+                for p in &self.faces[item.face as usize].corners {
+                    lo = lo.inf(&p.coords);
+                    hi = hi.sup(&p.coords);
+                }
+            }
+            let (lo, hi) = outward(lo, hi);
+            (nodes[at].lo, nodes[at].hi) = (lo, hi);
+            return (lo, hi);
+        }
+        let (centre_lo, centre_hi) = order.iter().fold(EMPTY, |bounds, item| {
+            union(bounds, (item.centre, item.centre))
+        });
+        let axis = (0..3)
+            .max_by(|&a, &b| {
+                (centre_hi[a] - centre_lo[a]).total_cmp(&(centre_hi[b] - centre_lo[b]))
+            })
+            .unwrap_or(0);
+        let count = order.len();
+        let halfway = centre_lo[axis] + 0.5 * (centre_hi[axis] - centre_lo[axis]);
+        let mut middle = partition(order, |item| item.centre[axis] < halfway);
+        if middle < count / 4 || middle > count - count / 4 {
+            middle = count / 2;
+            order.select_nth_unstable_by(middle, |a, b| a.centre[axis].total_cmp(&b.centre[axis]));
+        }
+        let (left, right) = order.split_at_mut(middle);
+        let (left_box, right_box) = if split_levels > 0 && count >= FACES_FOR_THREADS {
+            let mut right_nodes = Vec::with_capacity(2 * right.len() / LEAF_FACES + 1);
+            let (left_box, right_box) = std::thread::scope(|scope| {
+                let handle = scope
+                    .spawn(|| self.node(&mut right_nodes, right, first + middle, split_levels - 1));
+                let left_box = self.node(nodes, left, first, split_levels - 1);
+                let right_box = handle
+                    .join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+                (left_box, right_box)
+            });
+            // The second half's inner nodes point at their second children by position.
+            let offset = nodes.len() as u32;
+            nodes.extend(right_nodes.into_iter().map(|mut node| {
+                if node.count == 0 {
+                    node.index += offset;
+                }
+                node
+            }));
+            nodes[at].index = offset;
+            (left_box, right_box)
+        } else {
+            let left_box = self.node(nodes, left, first, split_levels);
+            nodes[at].index = nodes.len() as u32;
+            let right_box = self.node(nodes, right, first + middle, split_levels);
+            (left_box, right_box)
+        };
+        let bounds = union(left_box, right_box);
+        nodes[at].count = 0;
+        (nodes[at].lo, nodes[at].hi) = bounds;
+        bounds
+    }
+}
+
+/// Moves the items for which `left` holds before the others; how many there are.
+fn partition(items: &mut [Item], left: impl Fn(&Item) -> bool) -> usize {
+    let mut end = 0;
+    for i in 0..items.len() {
+        if left(&items[i]) {
+            items.swap(i, end);
+            end += 1;
+        }
+    }
+    end
 }
 
 /// Whether the plane `normal . x = offset` passes through the box (its corners are not all
@@ -230,7 +418,8 @@ fn triangles_cross(a: &[Point3<f64>; 3], b: &[Point3<f64>; 3]) -> bool {
 }
 
 /// The slab test (Kay and Kajiya, "Ray tracing complex scenes", SIGGRAPH 1986), on a box
-/// grown by `pad`, for the part of the ray from 0 to `limit`.
+/// grown by `pad`, for the part of the ray from 0 to `limit`: where the ray enters it, if
+/// it meets it.
 fn ray_meets_box(
     o: &[f32; 3],
     inverse: &[f32; 3],
@@ -238,7 +427,7 @@ fn ray_meets_box(
     hi: &[f32; 3],
     pad: f32,
     limit: f32,
-) -> bool {
+) -> Option<f32> {
     let (mut near, mut far) = (0.0f32, limit);
     for k in 0..3 {
         let a = (lo[k] - pad - o[k]) * inverse[k];
@@ -252,10 +441,10 @@ fn ray_meets_box(
             far = b;
         }
         if near > far {
-            return false;
+            return None;
         }
     }
-    true
+    Some(near)
 }
 
 /// The distance along the ray to the triangle, if the ray crosses it ahead of the origin
@@ -334,6 +523,35 @@ mod tests {
                 );
             }
         }
+    }
+
+    #[test]
+    fn built_on_threads_or_on_one_the_hierarchy_is_the_same() {
+        let faces: Vec<Face> = (0..3 * FACES_FOR_THREADS)
+            .map(|i| {
+                let (x, y) = ((i % 400) as f64, (i / 400) as f64);
+                triangle(0.5 * (x * 0.37).sin(), x + 0.1 * y)
+            })
+            .collect();
+        let one = Bvh::with_split_levels(&faces, 0);
+        for levels in [1, 2, 3] {
+            let threaded = Bvh::with_split_levels(&faces, levels);
+            assert!(threaded.nodes == one.nodes && threaded.order == one.order);
+        }
+        // Every face in exactly one leaf, every box holding its faces.
+        let mut seen = vec![false; faces.len()];
+        for node in one.nodes.iter().filter(|n| n.count > 0) {
+            for &i in &one.order[node.index as usize..(node.index + node.count) as usize] {
+                assert!(!seen[i as usize]);
+                seen[i as usize] = true;
+                for p in &faces[i as usize].corners {
+                    for k in 0..3 {
+                        assert!(node.lo[k] as f64 <= p[k] && p[k] <= node.hi[k] as f64);
+                    }
+                }
+            }
+        }
+        assert!(seen.iter().all(|&s| s));
     }
 
     #[test]

@@ -36,12 +36,9 @@ impl HiddenLines {
 
     /// What hides things from the eye of `view`, if anything is to be hidden.
     pub fn occluders<'a>(&'a self, site: &'a Site, view: &'a ViewFrame) -> Option<Occluders<'a>> {
-        self.bvh.as_ref().map(|bvh| Occluders {
-            faces: &site.faces,
-            bvh,
-            view,
-            eye: view.eye(),
-        })
+        self.bvh
+            .as_ref()
+            .map(|bvh| Occluders::new(&site.faces, bvh, view))
     }
 }
 

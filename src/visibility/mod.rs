@@ -1,7 +1,11 @@
 //! Hidden lines: which parts of each edge the eye sees past the site's faces.
 //!
 //! Method. The faces (triangles of every solid item and mesh) go into a bounding-volume
-//! hierarchy once per drawing (`bvh.rs`). Each edge, as a curve on the viewing sphere, is
+//! hierarchy once per drawing (`bvh.rs`), and, once per eye, into a coarse map of certain
+//! cover over the viewing sphere (`occlusion.rs`): an edge whose every direction lies in
+//! cells wholly covered by faces nearer than its nearest point is hidden, with no ray cast
+//! (from a street, nearly every edge of a town). Every other edge goes to the exact test,
+//! so the drawing does not depend on the map. Each edge, as a curve on the viewing sphere, is
 //! sampled about one output pixel apart in angle; at each sample a ray from the eye towards
 //! the edge's point asks whether any face stands in front of it, nearer than the point's
 //! distance less a depth bias (0.02 % of the distance: an edge lying on a face, or shared by
@@ -32,8 +36,16 @@
 //!   (at least 0.05), because the drawn curves lie on the true surface, outside the inscribed
 //!   facets (the ribs of a vault seen from inside would otherwise hide behind their own vault).
 //! - **Method** (`visibility/`). One bounding-volume hierarchy of all faces per drawing
-//!   (median splits on the longest axis of the face centres, leaves of four, f32 boxes
-//!   rounded outwards, 32-byte nodes). A straight edge is divided recursively: a piece whose
+//!   (splits at the middle of the longest side of the face centres' box, or at their median
+//!   when that is lopsided; leaves of four, f32 boxes rounded outwards, 32-byte nodes; the
+//!   two halves built on two cores). Per eye, a map of certain cover (`occlusion.rs`): cells
+//!   of azimuth and elevation (about one for two faces, 64 to 1,024 rows), each with the
+//!   nearest face (or two faces that make a convex quadrilateral) whose cone of sight lines
+//!   holds the cell's circumscribed cap, and a bound on that face's distance over the cell;
+//!   filled nearest first through the hierarchy, passing over boxes already hidden. A
+//!   segment whose arc lies in cells covered nearer than its nearest point is hidden
+//!   throughout; a looked-at point in such a cell tries the cell's face before the
+//!   hierarchy. A straight edge the map does not settle is divided recursively: a piece whose
 //!   ends are both seen is seen throughout when no face crosses the triangle of sight lines
 //!   from the eye to it (one query); a piece whose ends are both hidden by one face is hidden
 //!   throughout (a triangle meets the plane of the sight lines in a segment; two segments in a
@@ -56,8 +68,10 @@
 
 mod bvh;
 mod hidden;
+mod occlusion;
 mod sight;
 
-pub use bvh::{ray_hits_triangle, Bvh};
+pub use bvh::{ray_hits_triangle, Bvh, Visit};
 pub use hidden::HiddenLines;
+pub use occlusion::OcclusionMap;
 pub use sight::{Depth, Occluders, Spans, DEPTH_BIAS};

@@ -2,6 +2,7 @@
 //! each change between seen and hidden found by bisection to a small fraction of a pixel.
 
 use super::bvh::{ray_hits_triangle, Bvh};
+use super::occlusion::{segment_distance, OcclusionMap};
 use crate::scene::Face;
 use crate::sphere::{SphereCurve, ViewFrame};
 use nalgebra::{Point3, Vector3};
@@ -25,6 +26,8 @@ pub struct Occluders<'a> {
     pub view: &'a ViewFrame,
     /// Where the eye is, in site coordinates.
     pub eye: Point3<f64>,
+    /// What certainly hides, cell by cell, from this eye.
+    map: OcclusionMap,
 }
 
 /// How far from the eye the edge is at each parameter of its curve on the sphere.
@@ -68,7 +71,24 @@ impl Look {
     }
 }
 
-impl Occluders<'_> {
+impl<'a> Occluders<'a> {
+    /// What hides things from the eye of `view`: the faces, their hierarchy, and the map of
+    /// certain cover made for this eye.
+    pub fn new(faces: &'a [Face], bvh: &'a Bvh, view: &'a ViewFrame) -> Occluders<'a> {
+        Occluders {
+            faces,
+            bvh,
+            view,
+            eye: view.eye(),
+            map: OcclusionMap::new(faces, bvh, view),
+        }
+    }
+
+    /// The map of certain cover.
+    pub fn map(&self) -> &OcclusionMap {
+        &self.map
+    }
+
     /// The point of the edge at `t`, in site coordinates, and its direction from the eye.
     fn point(&self, curve: &SphereCurve, depth: &Depth, t: f64) -> Option<(Vector3<f64>, f64)> {
         let direction = curve.position(t).try_normalize(0.0)?;
@@ -96,12 +116,25 @@ impl Occluders<'_> {
         };
         let limit = distance * (1.0 - DEPTH_BIAS);
         let towards = self.view.direction_to_site(&direction);
+        // The map names the faces to try first; the hierarchy answers when it cannot.
         let blocker = self
-            .bvh
-            .first_hit(self.faces, &self.eye, &towards, limit, |face, hit| {
-                self.hides(face, &towards, hit, limit)
+            .map
+            .blockers(&direction, limit)
+            .and_then(|mut faces| faces.find(|&face| self.blocks(face, &towards, limit)))
+            .or_else(|| {
+                self.bvh
+                    .first_hit(self.faces, &self.eye, &towards, limit, |face, hit| {
+                        self.hides(face, &towards, hit, limit)
+                    })
             });
         Look { t, blocker }
+    }
+
+    /// Whether the face hides the point at `limit` along the site direction `towards`.
+    fn blocks(&self, face: u32, towards: &Vector3<f64>, limit: f64) -> bool {
+        let face = &self.faces[face as usize];
+        ray_hits_triangle(&self.eye, towards, &face.corners)
+            .is_some_and(|hit| self.hides(face, towards, hit, limit))
     }
 
     /// Whether the face hides the point of the edge at `t`.
@@ -111,9 +144,20 @@ impl Occluders<'_> {
         };
         let limit = distance * (1.0 - DEPTH_BIAS);
         let towards = self.view.direction_to_site(&direction);
-        let face = &self.faces[face as usize];
-        ray_hits_triangle(&self.eye, &towards, &face.corners)
-            .is_some_and(|hit| self.hides(face, &towards, hit, limit))
+        self.blocks(face, &towards, limit)
+    }
+
+    /// Whether the map shows the piece of a straight edge from `a` to `b` hidden
+    /// throughout: every direction of it in cells covered nearer than its nearest point.
+    fn piece_covered(&self, curve: &SphereCurve, depth: &Depth, a: f64, b: f64) -> bool {
+        let (Some((da, ra)), Some((db, rb))) =
+            (self.point(curve, depth, a), self.point(curve, depth, b))
+        else {
+            return false;
+        };
+        let nearest = segment_distance(&(da * ra), &(db * rb));
+        self.map
+            .covers_great_arc(curve, a, b, nearest * (1.0 - DEPTH_BIAS))
     }
 
     /// The stretches of the edge seen and hidden. `step` is the angle (radians) below
@@ -128,6 +172,16 @@ impl Occluders<'_> {
     /// are sampled every `step`.
     pub fn spans(&self, curve: &SphereCurve, depth: &Depth, step: f64, precision: f64) -> Spans {
         let mut spans: Spans = Vec::new();
+        // The whole segment at once: no point of it is nearer than its nearest point.
+        if let Depth::Segment { a, b } = depth {
+            let nearest = segment_distance(a, b) * (1.0 - DEPTH_BIAS);
+            if self
+                .map
+                .covers_great_arc(curve, curve.t0, curve.t1, nearest)
+            {
+                return vec![(curve.t0, curve.t1, false)];
+            }
+        }
         let first = self.look(curve, depth, curve.t0);
         match depth {
             Depth::Segment { .. } => {
@@ -172,7 +226,8 @@ impl Occluders<'_> {
             (Some(fa), Some(fb))
                 if fa == fb
                     || self.face_hides(curve, depth, b.t, fa)
-                    || self.face_hides(curve, depth, a.t, fb) =>
+                    || self.face_hides(curve, depth, a.t, fb)
+                    || self.piece_covered(curve, depth, a.t, b.t) =>
             {
                 spans.push((a.t, b.t, false));
                 return;
