@@ -190,8 +190,16 @@ pub fn add_mesh(
     let (weld, vertices) = weld(&positions, &used);
     let first_item = site.items.len() as u32;
     let mut items: HashMap<(u32, u32), ItemId> = HashMap::new();
+    // Runs of faces share their group and material: the last answer is kept at hand.
+    let mut last: Option<((u32, u32), ItemId)> = None;
     let mut item_of = |site: &mut Site, element: &ObjElement| -> ItemId {
-        *items
+        let key = (element.group, element.material);
+        if let Some((k, item)) = last {
+            if k == key {
+                return item;
+            }
+        }
+        let item = *items
             .entry((element.group, element.material))
             .or_insert_with(|| {
                 let group = &obj.groups[element.group as usize];
@@ -204,7 +212,9 @@ pub fn add_mesh(
                 };
                 let layer = [material, group].into_iter().find(|s| !s.is_empty());
                 site.add_item_on_layer("model", Some(label), layer.cloned())
-            })
+            });
+        last = Some((key, item));
+        item
     };
     let mut stats = MeshStats {
         vertices,
@@ -251,7 +261,11 @@ pub fn add_mesh(
         };
         let item = item_of(site, face);
         let p = |i: u32| points[i as usize];
-        let holes = holes_of.remove(&(index as u32)).unwrap_or_default();
+        let holes = if holes_of.is_empty() {
+            Vec::new()
+        } else {
+            holes_of.remove(&(index as u32)).unwrap_or_default()
+        };
         if holes.is_empty() && (welded.len() == 3 || is_convex_face(welded, &points, &normal)) {
             for k in 1..welded.len() - 1 {
                 site.faces.push(Face {
@@ -292,31 +306,7 @@ pub fn add_mesh(
 
     // Every face edge as (low, high, face, corner index in the face * 2 + runs low -> high);
     // sorted, equal edges are adjacent. A hole's edges belong to its face, at HOLE_CORNER.
-    let mut face_edges: Vec<(u32, u32, u32, u32)> = Vec::with_capacity(corners.len());
-    for (f, face) in faces.iter().enumerate() {
-        let welded = &corners[face.first as usize..(face.first + face.count) as usize];
-        for k in 0..welded.len() {
-            let (a, b) = (welded[k].0, welded[(k + 1) % welded.len()].0);
-            face_edges.push((
-                a.min(b),
-                a.max(b),
-                f as u32,
-                (k as u32) << 1 | (a < b) as u32,
-            ));
-        }
-    }
-    for (f, ring) in &face_holes {
-        for k in 0..ring.len() {
-            let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
-            face_edges.push((
-                a.min(b),
-                a.max(b),
-                *f as u32,
-                HOLE_CORNER << 1 | (a < b) as u32,
-            ));
-        }
-    }
-    face_edges.sort_unstable();
+    let face_edges = sorted_face_edges(&faces, &corners, &face_holes, vertices);
     let crease = placement.crease_deg.to_radians();
     let mut start = 0;
     while start < face_edges.len() {
@@ -408,6 +398,60 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
         welded.pop();
     }
     welded
+}
+
+/// Every face edge as (low vertex, high vertex, face, code), in the order `sort_unstable`
+/// gives them (the tuples are distinct but for repeated hole edges, which are equal), so
+/// that equal edges are adjacent. `code` is the corner index in the face times two, plus
+/// one if the face runs the edge from the low vertex to the high; a hole's edges carry
+/// [`HOLE_CORNER`]. A counting sort on the low vertex (two passes over the faces: count,
+/// then place) leaves only a handful of edges at each vertex to sort: linear time, where
+/// sorting all the edges at once was the costliest step of a large model.
+fn sorted_face_edges(
+    faces: &[MeshFace],
+    corners: &[(u32, u32)],
+    face_holes: &[(usize, Vec<u32>)],
+    vertices: usize,
+) -> Vec<(u32, u32, u32, u32)> {
+    // Calls `visit(low, high, face, code)` for every edge, faces first, then holes.
+    let each_edge = |visit: &mut dyn FnMut(u32, u32, u32, u32)| {
+        for (f, face) in faces.iter().enumerate() {
+            let ring = &corners[face.first as usize..(face.first + face.count) as usize];
+            for k in 0..ring.len() {
+                let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
+                visit(a.min(b), a.max(b), f as u32, (k as u32) << 1 | (a < b) as u32);
+            }
+        }
+        for (f, ring) in face_holes {
+            for k in 0..ring.len() {
+                let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
+                visit(
+                    a.min(b),
+                    a.max(b),
+                    *f as u32,
+                    HOLE_CORNER << 1 | (a < b) as u32,
+                );
+            }
+        }
+    };
+    // starts[v]: where the edges whose low vertex is v begin.
+    let mut starts = vec![0u32; vertices + 1];
+    each_edge(&mut |low, _, _, _| starts[low as usize + 1] += 1);
+    for v in 0..vertices {
+        starts[v + 1] += starts[v];
+    }
+    let total = starts[vertices] as usize;
+    let mut sorted = vec![(0u32, 0u32, 0u32, 0u32); total];
+    let mut next = starts.clone();
+    each_edge(&mut |low, high, face, code| {
+        let at = &mut next[low as usize];
+        sorted[*at as usize] = (low, high, face, code);
+        *at += 1;
+    });
+    for v in 0..vertices {
+        sorted[starts[v] as usize..starts[v + 1] as usize].sort_unstable();
+    }
+    sorted
 }
 
 /// Whether a face turns the same way at every corner about its normal (a fan of triangles
