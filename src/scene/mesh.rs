@@ -560,24 +560,44 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
     // The largest side rather than the diagonal: no squares to overflow.
     let size = (high - low).amax();
     let tolerance = size * WELD_FRACTION;
-    let mut index = std::collections::HashMap::with_capacity(positions.len());
-    let mut weld = Vec::with_capacity(positions.len());
-    for p in positions {
-        // Beyond what rounding to the tolerance can key (a model spanning 1e300, say), only
-        // identical positions weld.
-        let key = if tolerance.is_finite()
-            && tolerance > 0.0
-            && p.iter().all(|c| (c / tolerance).abs() < 9e18)
-        {
-            [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
-        } else {
-            [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
-        };
-        let next = index.len() as u32;
-        weld.push(*index.entry(key).or_insert(next));
+    let keyable = tolerance.is_finite() && tolerance > 0.0;
+    let mut keyed: Vec<([i64; 3], u32)> = positions
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            // Beyond what rounding to the tolerance can key (a model spanning 1e300, say),
+            // only identical positions weld.
+            let key = if keyable && p.iter().all(|c| (c / tolerance).abs() < 9e18) {
+                [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
+            } else {
+                [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
+            };
+            (key, i as u32)
+        })
+        .collect();
+    // Sorted by key, then by position index: each run of equal keys is one vertex, led by
+    // the first position that has it. (Sorting is cheaper than a hash map of a million
+    // keys, whose every insert misses the cache.)
+    keyed.sort_unstable();
+    let mut leader: Vec<u32> = vec![0; positions.len()];
+    for run in keyed.chunk_by(|a, b| a.0 == b.0) {
+        for &(_, i) in run {
+            leader[i as usize] = run[0].1;
+        }
     }
-    let count = index.len();
-    (weld, count)
+    drop(keyed);
+    // Vertices numbered in order of first appearance, as the file lists them.
+    let mut weld = Vec::with_capacity(positions.len());
+    let mut count = 0u32;
+    for (i, &first) in leader.iter().enumerate() {
+        if first as usize == i {
+            weld.push(count);
+            count += 1;
+        } else {
+            weld.push(weld[first as usize]);
+        }
+    }
+    (weld, count as usize)
 }
 
 /// One position for each welded vertex (the first that welded into it).
