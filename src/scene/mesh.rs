@@ -419,7 +419,12 @@ fn sorted_face_edges(
             let ring = &corners[face.first as usize..(face.first + face.count) as usize];
             for k in 0..ring.len() {
                 let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
-                visit(a.min(b), a.max(b), f as u32, (k as u32) << 1 | (a < b) as u32);
+                visit(
+                    a.min(b),
+                    a.max(b),
+                    f as u32,
+                    (k as u32) << 1 | (a < b) as u32,
+                );
             }
         }
         for (f, ring) in face_holes {
