@@ -43,7 +43,7 @@
 //!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Face, ItemId, SilhouetteEdge, Site};
+use super::site::{Edge, Face, ItemId, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use std::collections::HashMap;
 
@@ -307,63 +307,52 @@ pub fn add_mesh(
     // Every face edge as (low, high, face, corner index in the face * 2 + runs low -> high);
     // sorted, equal edges are adjacent. A hole's edges belong to its face, at HOLE_CORNER.
     let face_edges = sorted_face_edges(&faces, &corners, &face_holes, vertices);
-    let crease = placement.crease_deg.to_radians();
-    let mut start = 0;
-    while start < face_edges.len() {
-        let (a, b, first_face, first_code) = face_edges[start];
-        let mut end = start + 1;
-        while end < face_edges.len() && face_edges[end].0 == a && face_edges[end].1 == b {
-            end += 1;
-        }
-        stats.edges += 1;
-        let item = faces[first_face as usize].item;
-        let (pa, pb) = (points[a as usize], points[b as usize]);
-        match end - start {
-            1 => {
-                stats.boundary += 1;
-                site.add_segment(item, pa, pb);
-            }
-            2 => {
-                let (_, _, second_face, second_code) = face_edges[start + 1];
-                let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
-                let n1 = f1.normal;
-                // Consistently wound neighbours run a shared edge in opposite directions;
-                // where they do not, one of them is turned over.
-                let flip = if first_code & 1 == second_code & 1 {
-                    -1.0
-                } else {
-                    1.0
-                };
-                let n2 = f2.normal * flip;
-                // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
-                let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
-                if angle <= COPLANAR {
-                    // A triangulation diagonal or a subdivided flat wall: never drawn.
-                } else {
-                    let said = file_says_smooth(obj, &corners, (f1, first_code), (f2, second_code));
-                    if said.is_some() {
-                        stats.by_file += 1;
-                    }
-                    if !said.unwrap_or(angle <= crease) {
-                        stats.creases += 1;
-                        site.add_segment(item, pa, pb);
-                    } else {
-                        stats.smooth += 1;
-                        site.silhouette_candidates.push(SilhouetteEdge {
-                            start: pa,
-                            end: pb,
-                            normals: [n1, n2],
-                            item,
-                        });
-                    }
-                }
-            }
-            _ => {
-                stats.non_manifold += 1;
-                site.add_segment(item, pa, pb);
-            }
-        }
-        start = end;
+    let classes = EdgeClasses {
+        obj,
+        faces: &faces,
+        corners: &corners,
+        points: &points,
+        crease: placement.crease_deg.to_radians(),
+    };
+    // A large model's edges in two halves on two cores, cut between two vertices' edges
+    // (equal edges share their low vertex); the second half's edges follow the first's, as
+    // one pass gives them.
+    let cut = if face_edges.len() < PARALLEL_EDGES {
+        face_edges.len()
+    } else {
+        let middle = face_edges.len() / 2;
+        middle
+            + face_edges[middle..]
+                .iter()
+                .position(|e| e.0 != face_edges[middle].0)
+                .unwrap_or(face_edges.len() - middle)
+    };
+    let (first, second) = face_edges.split_at(cut);
+    let later = std::thread::scope(|scope| {
+        let later = (!second.is_empty()).then(|| {
+            scope.spawn(|| {
+                let mut later = (Vec::new(), Vec::new(), MeshStats::default());
+                classes.classify(second, &mut later.0, &mut later.1, &mut later.2);
+                later
+            })
+        });
+        classes.classify(
+            first,
+            &mut site.edges,
+            &mut site.silhouette_candidates,
+            &mut stats,
+        );
+        later.map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+    });
+    if let Some((mut edges, mut silhouettes, counts)) = later {
+        site.edges.append(&mut edges);
+        site.silhouette_candidates.append(&mut silhouettes);
+        stats.edges += counts.edges;
+        stats.boundary += counts.boundary;
+        stats.creases += counts.creases;
+        stats.non_manifold += counts.non_manifold;
+        stats.smooth += counts.smooth;
+        stats.by_file += counts.by_file;
     }
 
     for line in &obj.lines {
@@ -387,6 +376,101 @@ pub fn add_mesh(
         }
     }
     stats
+}
+
+/// Below this many face edges a model's edges are classed on one core.
+const PARALLEL_EDGES: usize = 200_000;
+
+/// What classing the edges needs: the faces after welding, their corners, the welded
+/// positions, and the crease angle (radians).
+struct EdgeClasses<'a> {
+    obj: &'a ObjFile,
+    faces: &'a [MeshFace],
+    corners: &'a [(u32, u32)],
+    points: &'a [Point3<f64>],
+    crease: f64,
+}
+
+impl EdgeClasses<'_> {
+    /// Walks the runs of equal edges in `sorted` (from [`sorted_face_edges`]), adding the
+    /// drawn ones to `edges`, the smooth ones to `silhouettes`, and counting them.
+    fn classify(
+        &self,
+        sorted: &[(u32, u32, u32, u32)],
+        edges: &mut Vec<Edge>,
+        silhouettes: &mut Vec<SilhouetteEdge>,
+        stats: &mut MeshStats,
+    ) {
+        let (faces, points) = (self.faces, self.points);
+        let mut draw = |item, start, end| {
+            edges.push(Edge {
+                curve: SiteCurve::Segment { start, end },
+                item,
+            })
+        };
+        let mut start = 0;
+        while start < sorted.len() {
+            let (a, b, first_face, first_code) = sorted[start];
+            let mut end = start + 1;
+            while end < sorted.len() && sorted[end].0 == a && sorted[end].1 == b {
+                end += 1;
+            }
+            stats.edges += 1;
+            let item = faces[first_face as usize].item;
+            let (pa, pb) = (points[a as usize], points[b as usize]);
+            match end - start {
+                1 => {
+                    stats.boundary += 1;
+                    draw(item, pa, pb);
+                }
+                2 => {
+                    let (_, _, second_face, second_code) = sorted[start + 1];
+                    let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
+                    let n1 = f1.normal;
+                    // Consistently wound neighbours run a shared edge in opposite
+                    // directions; where they do not, one of them is turned over.
+                    let flip = if first_code & 1 == second_code & 1 {
+                        -1.0
+                    } else {
+                        1.0
+                    };
+                    let n2 = f2.normal * flip;
+                    // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
+                    let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
+                    if angle <= COPLANAR {
+                        // A triangulation diagonal or a subdivided flat wall: never drawn.
+                    } else {
+                        let said = file_says_smooth(
+                            self.obj,
+                            self.corners,
+                            (f1, first_code),
+                            (f2, second_code),
+                        );
+                        if said.is_some() {
+                            stats.by_file += 1;
+                        }
+                        if !said.unwrap_or(angle <= self.crease) {
+                            stats.creases += 1;
+                            draw(item, pa, pb);
+                        } else {
+                            stats.smooth += 1;
+                            silhouettes.push(SilhouetteEdge {
+                                start: pa,
+                                end: pb,
+                                normals: [n1, n2],
+                                item,
+                            });
+                        }
+                    }
+                }
+                _ => {
+                    stats.non_manifold += 1;
+                    draw(item, pa, pb);
+                }
+            }
+            start = end;
+        }
+    }
 }
 
 /// A ring of position indices through the weld, without repeated corners (nor the first
