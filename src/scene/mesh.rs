@@ -667,7 +667,7 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
     // Sorted by key, then by position index: each run of equal keys is one vertex, led by
     // the first position that has it. (Sorting is cheaper than a hash map of a million
     // keys, whose every insert misses the cache.)
-    keyed.sort_unstable();
+    sort_on_two_cores(&mut keyed);
     let mut leader: Vec<u32> = vec![0; positions.len()];
     for run in keyed.chunk_by(|a, b| a.0 == b.0) {
         for &(_, i) in run {
@@ -687,6 +687,22 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
         }
     }
     (weld, count as usize)
+}
+
+/// Sorts a long slice on two cores: each half sorted on its own, then the two runs merged
+/// in one pass (the standard library's stable sort finds runs already in order and only
+/// merges them). The elements here are distinct, so the order is the one sorting gives.
+fn sort_on_two_cores<T: Ord + Send>(items: &mut [T]) {
+    if items.len() < 100_000 {
+        items.sort_unstable();
+        return;
+    }
+    let (low, high) = items.split_at_mut(items.len() / 2);
+    std::thread::scope(|scope| {
+        scope.spawn(|| high.sort_unstable());
+        low.sort_unstable();
+    });
+    items.sort();
 }
 
 /// One position for each welded vertex (the first that welded into it).
