@@ -43,7 +43,7 @@
 //!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Face, ItemId, SilhouetteEdge, Site};
+use super::site::{Edge, Face, ItemId, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use std::collections::HashMap;
 
@@ -190,8 +190,16 @@ pub fn add_mesh(
     let (weld, vertices) = weld(&positions, &used);
     let first_item = site.items.len() as u32;
     let mut items: HashMap<(u32, u32), ItemId> = HashMap::new();
+    // Runs of faces share their group and material: the last answer is kept at hand.
+    let mut last: Option<((u32, u32), ItemId)> = None;
     let mut item_of = |site: &mut Site, element: &ObjElement| -> ItemId {
-        *items
+        let key = (element.group, element.material);
+        if let Some((k, item)) = last {
+            if k == key {
+                return item;
+            }
+        }
+        let item = *items
             .entry((element.group, element.material))
             .or_insert_with(|| {
                 let group = &obj.groups[element.group as usize];
@@ -204,7 +212,9 @@ pub fn add_mesh(
                 };
                 let layer = [material, group].into_iter().find(|s| !s.is_empty());
                 site.add_item_on_layer("model", Some(label), layer.cloned())
-            })
+            });
+        last = Some((key, item));
+        item
     };
     let mut stats = MeshStats {
         vertices,
@@ -251,7 +261,11 @@ pub fn add_mesh(
         };
         let item = item_of(site, face);
         let p = |i: u32| points[i as usize];
-        let holes = holes_of.remove(&(index as u32)).unwrap_or_default();
+        let holes = if holes_of.is_empty() {
+            Vec::new()
+        } else {
+            holes_of.remove(&(index as u32)).unwrap_or_default()
+        };
         if holes.is_empty() && (welded.len() == 3 || is_convex_face(welded, &points, &normal)) {
             for k in 1..welded.len() - 1 {
                 site.faces.push(Face {
@@ -292,88 +306,53 @@ pub fn add_mesh(
 
     // Every face edge as (low, high, face, corner index in the face * 2 + runs low -> high);
     // sorted, equal edges are adjacent. A hole's edges belong to its face, at HOLE_CORNER.
-    let mut face_edges: Vec<(u32, u32, u32, u32)> = Vec::with_capacity(corners.len());
-    for (f, face) in faces.iter().enumerate() {
-        let welded = &corners[face.first as usize..(face.first + face.count) as usize];
-        for k in 0..welded.len() {
-            let (a, b) = (welded[k].0, welded[(k + 1) % welded.len()].0);
-            face_edges.push((
-                a.min(b),
-                a.max(b),
-                f as u32,
-                (k as u32) << 1 | (a < b) as u32,
-            ));
-        }
-    }
-    for (f, ring) in &face_holes {
-        for k in 0..ring.len() {
-            let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
-            face_edges.push((
-                a.min(b),
-                a.max(b),
-                *f as u32,
-                HOLE_CORNER << 1 | (a < b) as u32,
-            ));
-        }
-    }
-    face_edges.sort_unstable();
-    let crease = placement.crease_deg.to_radians();
-    let mut start = 0;
-    while start < face_edges.len() {
-        let (a, b, first_face, first_code) = face_edges[start];
-        let mut end = start + 1;
-        while end < face_edges.len() && face_edges[end].0 == a && face_edges[end].1 == b {
-            end += 1;
-        }
-        stats.edges += 1;
-        let item = faces[first_face as usize].item;
-        let (pa, pb) = (points[a as usize], points[b as usize]);
-        match end - start {
-            1 => {
-                stats.boundary += 1;
-                site.add_segment(item, pa, pb);
-            }
-            2 => {
-                let (_, _, second_face, second_code) = face_edges[start + 1];
-                let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
-                let n1 = f1.normal;
-                // Consistently wound neighbours run a shared edge in opposite directions;
-                // where they do not, one of them is turned over.
-                let flip = if first_code & 1 == second_code & 1 {
-                    -1.0
-                } else {
-                    1.0
-                };
-                let n2 = f2.normal * flip;
-                // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
-                let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
-                if angle <= COPLANAR {
-                    // A triangulation diagonal or a subdivided flat wall: never drawn.
-                } else {
-                    let said = file_says_smooth(obj, &corners, (f1, first_code), (f2, second_code));
-                    if said.is_some() {
-                        stats.by_file += 1;
-                    }
-                    if !said.unwrap_or(angle <= crease) {
-                        stats.creases += 1;
-                        site.add_segment(item, pa, pb);
-                    } else {
-                        stats.smooth += 1;
-                        site.silhouette_candidates.push(SilhouetteEdge {
-                            start: pa,
-                            end: pb,
-                            normals: [n1, n2],
-                            item,
-                        });
-                    }
-                }
-            }
-            _ => {
-                stats.non_manifold += 1;
-                site.add_segment(item, pa, pb);
-            }
-        }
-        start = end;
+    let face_edges = sorted_face_edges(&faces, &corners, &face_holes, vertices);
+    let classes = EdgeClasses {
+        obj,
+        faces: &faces,
+        corners: &corners,
+        points: &points,
+        crease: placement.crease_deg.to_radians(),
+    };
+    // A large model's edges in two halves on two cores, cut between two vertices' edges
+    // (equal edges share their low vertex); the second half's edges follow the first's, as
+    // one pass gives them.
+    let cut = if face_edges.len() < PARALLEL_EDGES {
+        face_edges.len()
+    } else {
+        let middle = face_edges.len() / 2;
+        middle
+            + face_edges[middle..]
+                .iter()
+                .position(|e| e.0 != face_edges[middle].0)
+                .unwrap_or(face_edges.len() - middle)
+    };
+    let (first, second) = face_edges.split_at(cut);
+    let later = std::thread::scope(|scope| {
+        let later = (!second.is_empty()).then(|| {
+            scope.spawn(|| {
+                let mut later = (Vec::new(), Vec::new(), MeshStats::default());
+                classes.classify(second, &mut later.0, &mut later.1, &mut later.2);
+                later
+            })
+        });
+        classes.classify(
+            first,
+            &mut site.edges,
+            &mut site.silhouette_candidates,
+            &mut stats,
+        );
+        later.map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+    });
+    if let Some((mut edges, mut silhouettes, counts)) = later {
+        site.edges.append(&mut edges);
+        site.silhouette_candidates.append(&mut silhouettes);
+        stats.edges += counts.edges;
+        stats.boundary += counts.boundary;
+        stats.creases += counts.creases;
+        stats.non_manifold += counts.non_manifold;
+        stats.smooth += counts.smooth;
+        stats.by_file += counts.by_file;
     }
 
     for line in &obj.lines {
@@ -399,6 +378,101 @@ pub fn add_mesh(
     stats
 }
 
+/// Below this many face edges a model's edges are classed on one core.
+const PARALLEL_EDGES: usize = 200_000;
+
+/// What classing the edges needs: the faces after welding, their corners, the welded
+/// positions, and the crease angle (radians).
+struct EdgeClasses<'a> {
+    obj: &'a ObjFile,
+    faces: &'a [MeshFace],
+    corners: &'a [(u32, u32)],
+    points: &'a [Point3<f64>],
+    crease: f64,
+}
+
+impl EdgeClasses<'_> {
+    /// Walks the runs of equal edges in `sorted` (from [`sorted_face_edges`]), adding the
+    /// drawn ones to `edges`, the smooth ones to `silhouettes`, and counting them.
+    fn classify(
+        &self,
+        sorted: &[(u32, u32, u32, u32)],
+        edges: &mut Vec<Edge>,
+        silhouettes: &mut Vec<SilhouetteEdge>,
+        stats: &mut MeshStats,
+    ) {
+        let (faces, points) = (self.faces, self.points);
+        let mut draw = |item, start, end| {
+            edges.push(Edge {
+                curve: SiteCurve::Segment { start, end },
+                item,
+            })
+        };
+        let mut start = 0;
+        while start < sorted.len() {
+            let (a, b, first_face, first_code) = sorted[start];
+            let mut end = start + 1;
+            while end < sorted.len() && sorted[end].0 == a && sorted[end].1 == b {
+                end += 1;
+            }
+            stats.edges += 1;
+            let item = faces[first_face as usize].item;
+            let (pa, pb) = (points[a as usize], points[b as usize]);
+            match end - start {
+                1 => {
+                    stats.boundary += 1;
+                    draw(item, pa, pb);
+                }
+                2 => {
+                    let (_, _, second_face, second_code) = sorted[start + 1];
+                    let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
+                    let n1 = f1.normal;
+                    // Consistently wound neighbours run a shared edge in opposite
+                    // directions; where they do not, one of them is turned over.
+                    let flip = if first_code & 1 == second_code & 1 {
+                        -1.0
+                    } else {
+                        1.0
+                    };
+                    let n2 = f2.normal * flip;
+                    // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
+                    let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
+                    if angle <= COPLANAR {
+                        // A triangulation diagonal or a subdivided flat wall: never drawn.
+                    } else {
+                        let said = file_says_smooth(
+                            self.obj,
+                            self.corners,
+                            (f1, first_code),
+                            (f2, second_code),
+                        );
+                        if said.is_some() {
+                            stats.by_file += 1;
+                        }
+                        if !said.unwrap_or(angle <= self.crease) {
+                            stats.creases += 1;
+                            draw(item, pa, pb);
+                        } else {
+                            stats.smooth += 1;
+                            silhouettes.push(SilhouetteEdge {
+                                start: pa,
+                                end: pb,
+                                normals: [n1, n2],
+                                item,
+                            });
+                        }
+                    }
+                }
+                _ => {
+                    stats.non_manifold += 1;
+                    draw(item, pa, pb);
+                }
+            }
+            start = end;
+        }
+    }
+}
+
 /// A ring of position indices through the weld, without repeated corners (nor the first
 /// repeated at the end).
 fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
@@ -408,6 +482,65 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
         welded.pop();
     }
     welded
+}
+
+/// Every face edge as (low vertex, high vertex, face, code), in the order `sort_unstable`
+/// gives them (the tuples are distinct but for repeated hole edges, which are equal), so
+/// that equal edges are adjacent. `code` is the corner index in the face times two, plus
+/// one if the face runs the edge from the low vertex to the high; a hole's edges carry
+/// [`HOLE_CORNER`]. A counting sort on the low vertex (two passes over the faces: count,
+/// then place) leaves only a handful of edges at each vertex to sort: linear time, where
+/// sorting all the edges at once was the costliest step of a large model.
+fn sorted_face_edges(
+    faces: &[MeshFace],
+    corners: &[(u32, u32)],
+    face_holes: &[(usize, Vec<u32>)],
+    vertices: usize,
+) -> Vec<(u32, u32, u32, u32)> {
+    // Calls `visit(low, high, face, code)` for every edge, faces first, then holes.
+    let each_edge = |visit: &mut dyn FnMut(u32, u32, u32, u32)| {
+        for (f, face) in faces.iter().enumerate() {
+            let ring = &corners[face.first as usize..(face.first + face.count) as usize];
+            for k in 0..ring.len() {
+                let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
+                visit(
+                    a.min(b),
+                    a.max(b),
+                    f as u32,
+                    (k as u32) << 1 | (a < b) as u32,
+                );
+            }
+        }
+        for (f, ring) in face_holes {
+            for k in 0..ring.len() {
+                let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
+                visit(
+                    a.min(b),
+                    a.max(b),
+                    *f as u32,
+                    HOLE_CORNER << 1 | (a < b) as u32,
+                );
+            }
+        }
+    };
+    // starts[v]: where the edges whose low vertex is v begin.
+    let mut starts = vec![0u32; vertices + 1];
+    each_edge(&mut |low, _, _, _| starts[low as usize + 1] += 1);
+    for v in 0..vertices {
+        starts[v + 1] += starts[v];
+    }
+    let total = starts[vertices] as usize;
+    let mut sorted = vec![(0u32, 0u32, 0u32, 0u32); total];
+    let mut next = starts.clone();
+    each_edge(&mut |low, high, face, code| {
+        let at = &mut next[low as usize];
+        sorted[*at as usize] = (low, high, face, code);
+        *at += 1;
+    });
+    for v in 0..vertices {
+        sorted[starts[v] as usize..starts[v + 1] as usize].sort_unstable();
+    }
+    sorted
 }
 
 /// Whether a face turns the same way at every corner about its normal (a fan of triangles
@@ -516,24 +649,60 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
     // The largest side rather than the diagonal: no squares to overflow.
     let size = (high - low).amax();
     let tolerance = size * WELD_FRACTION;
-    let mut index = std::collections::HashMap::with_capacity(positions.len());
-    let mut weld = Vec::with_capacity(positions.len());
-    for p in positions {
-        // Beyond what rounding to the tolerance can key (a model spanning 1e300, say), only
-        // identical positions weld.
-        let key = if tolerance.is_finite()
-            && tolerance > 0.0
-            && p.iter().all(|c| (c / tolerance).abs() < 9e18)
-        {
-            [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
-        } else {
-            [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
-        };
-        let next = index.len() as u32;
-        weld.push(*index.entry(key).or_insert(next));
+    let keyable = tolerance.is_finite() && tolerance > 0.0;
+    let mut keyed: Vec<([i64; 3], u32)> = positions
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            // Beyond what rounding to the tolerance can key (a model spanning 1e300, say),
+            // only identical positions weld.
+            let key = if keyable && p.iter().all(|c| (c / tolerance).abs() < 9e18) {
+                [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
+            } else {
+                [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
+            };
+            (key, i as u32)
+        })
+        .collect();
+    // Sorted by key, then by position index: each run of equal keys is one vertex, led by
+    // the first position that has it. (Sorting is cheaper than a hash map of a million
+    // keys, whose every insert misses the cache.)
+    sort_on_two_cores(&mut keyed);
+    let mut leader: Vec<u32> = vec![0; positions.len()];
+    for run in keyed.chunk_by(|a, b| a.0 == b.0) {
+        for &(_, i) in run {
+            leader[i as usize] = run[0].1;
+        }
     }
-    let count = index.len();
-    (weld, count)
+    drop(keyed);
+    // Vertices numbered in order of first appearance, as the file lists them.
+    let mut weld = Vec::with_capacity(positions.len());
+    let mut count = 0u32;
+    for (i, &first) in leader.iter().enumerate() {
+        if first as usize == i {
+            weld.push(count);
+            count += 1;
+        } else {
+            weld.push(weld[first as usize]);
+        }
+    }
+    (weld, count as usize)
+}
+
+/// Sorts a long slice on two cores: each half sorted on its own, then the two runs merged
+/// in one pass (the standard library's stable sort finds runs already in order and only
+/// merges them). The elements here are distinct, so the order is the one sorting gives.
+fn sort_on_two_cores<T: Ord + Send>(items: &mut [T]) {
+    if items.len() < 100_000 {
+        items.sort_unstable();
+        return;
+    }
+    let (low, high) = items.split_at_mut(items.len() / 2);
+    std::thread::scope(|scope| {
+        scope.spawn(|| high.sort_unstable());
+        low.sort_unstable();
+    });
+    items.sort();
 }
 
 /// One position for each welded vertex (the first that welded into it).

@@ -11,7 +11,9 @@
 //! Faces before the first `s` carry no word either way.
 //!
 //! Speed: a large file is cut at line ends into one piece per core, each piece read on its
-//! own thread into flat arrays (no allocation per line; numbers by `fast-float2`), then the
+//! own thread into flat arrays (no allocation per line; numbers by `fast-float2`; lines
+//! scanned once for their end and comment; a plainly written `v` line read in one pass, and
+//! anything unusual by the general, careful path), then the
 //! pieces are joined: indices relative to the vertices so far, and the group, material and
 //! smoothing in force where a piece begins, are settled in the join. Anything wrong in any
 //! piece sends the whole file through the one-piece reader again, which finds the first
@@ -308,17 +310,6 @@ struct Mistake {
 /// Group, material or smoothing in force when a piece begins, not yet known.
 const INHERITED: u32 = u32::MAX;
 
-/// An index written relative to the vertices (or normals) read so far, in a piece that
-/// does not know how many came before it.
-#[derive(Clone, Copy, Debug)]
-struct Relative {
-    /// Where the resolved index goes.
-    slot: Slot,
-    at: u32,
-    /// The piece's own count before the index, plus the (negative) index.
-    local: i64,
-}
-
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Slot {
     Corner,
@@ -349,7 +340,11 @@ struct Piece {
     groups: Vec<GroupName>,
     materials: Vec<String>,
     libraries: Vec<(String, usize)>,
-    relative: Vec<Relative>,
+    /// Indices written relative to the vertices (or normals) read so far, in a piece that
+    /// does not know how many came before it: where they are in `corners`,
+    /// `corner_normals` and `line_points`, which hold for now the piece's own count before
+    /// the index plus the (negative) index, as an `i32`.
+    relative: [Vec<u32>; 3],
     /// The largest absolute position and normal index (1-based; 0 for none).
     largest_position: i64,
     largest_normal: i64,
@@ -369,6 +364,80 @@ fn mistake(line: usize, byte: usize, message: String) -> Mistake {
         byte,
         message,
     }
+}
+
+/// The lines of `text` as `text.split('\n')` gives them (a last empty line too), each cut at
+/// its first `#`: one pass over the bytes, where splitting and then searching each short
+/// line cost more than reading the numbers.
+fn lines(text: &str) -> impl Iterator<Item = &str> {
+    let bytes = text.as_bytes();
+    let mut at = 0;
+    let mut done = false;
+    std::iter::from_fn(move || {
+        if done {
+            return None;
+        }
+        let start = at;
+        let mut comment = None;
+        while at < bytes.len() && bytes[at] != b'\n' {
+            if bytes[at] == b'#' && comment.is_none() {
+                comment = Some(at);
+            }
+            at += 1;
+        }
+        let end = comment.unwrap_or(at);
+        if at == bytes.len() {
+            done = true;
+        } else {
+            at += 1;
+        }
+        // Cut at ASCII bytes: always on character boundaries.
+        Some(&text[start..end])
+    })
+}
+
+/// A face corner's position index and its normal index, as `v`, `v/vt`, `v/vt/vn` or
+/// `v//vn` write them: the first and third of its `/`-separated parts (`None`: no third).
+fn corner_parts(word: &str) -> (&str, Option<&str>) {
+    let slash = |text: &str| text.bytes().position(|b| b == b'/');
+    let Some(first) = slash(word) else {
+        return (word, None);
+    };
+    let after_texture = &word[first + 1..];
+    let normal = slash(after_texture).map(|second| {
+        let normal = &after_texture[second + 1..];
+        slash(normal).map_or(normal, |third| &normal[..third])
+    });
+    (&word[..first], normal)
+}
+
+/// The coordinates of a `v` line written plainly (`v` at its start, then three numbers that
+/// are fine as coordinates), in one pass: most of a large file. `None` for anything else,
+/// which the general reader reads and words any mistake in; for every line this accepts,
+/// the general reader reads the same three numbers.
+fn plain_vertex(line: &[u8]) -> Option<[f64; 3]> {
+    if line.first() != Some(&b'v') || !line.get(1)?.is_ascii_whitespace() {
+        return None;
+    }
+    let mut at = 1;
+    let mut coordinates = [0.0; 3];
+    for coordinate in &mut coordinates {
+        while line.get(at)?.is_ascii_whitespace() {
+            at += 1;
+        }
+        let (value, used) = fast_float2::parse_partial::<f64, _>(&line[at..]).ok()?;
+        at += used;
+        // The number must be the whole word, as the general reader takes it.
+        if line.get(at).is_some_and(|b| !b.is_ascii_whitespace()) {
+            return None;
+        }
+        // Not NaN, not infinite, and within the range the general reader allows.
+        if value.is_nan() || value.abs() > MAX_COORDINATE {
+            return None;
+        }
+        *coordinate = value;
+    }
+    Some(coordinates)
 }
 
 /// The ASCII-whitespace-separated words of a line with their byte offsets.
@@ -413,12 +482,14 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
     let mut forward: Vec<(usize, usize, i64, bool)> = Vec::new();
     let (mut triangles, mut line_edges) = (0usize, 0usize);
     let mut number = 0;
-    for raw in text.split('\n') {
+    for line in lines(text) {
         number += 1;
-        let line = match raw.find('#') {
-            Some(hash) => &raw[..hash],
-            None => raw,
-        };
+        if let Some(coordinates) = plain_vertex(line.as_bytes()) {
+            if piece.positions.len() < MAX_TRIANGLES {
+                piece.positions.push(Point3::from(coordinates));
+                continue;
+            }
+        }
         let mut words = words(line);
         let Some((_, keyword)) = words.next() else {
             continue;
@@ -464,8 +535,7 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
                     piece.line_points.len()
                 };
                 for (byte, word) in words {
-                    let mut parts = word.split('/');
-                    let position = parts.next().unwrap_or("");
+                    let (position, normal) = corner_parts(word);
                     let index = parse_index(position).ok_or_else(|| {
                         mistake(
                             number,
@@ -489,8 +559,7 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
                     )?;
                     if is_face {
                         piece.corners.push(resolved);
-                        let _texture = parts.next();
-                        let normal = match parts.next() {
+                        let normal = match normal {
                             None | Some("") => NO_NORMAL,
                             Some(text) => {
                                 let at = text.as_ptr() as usize - line.as_ptr() as usize;
@@ -661,22 +730,27 @@ fn rest_of<'a>(line: &'a str, mut words: impl Iterator<Item = (usize, &'a str)>)
 /// A 1-based index as written (`-3`, `12`): `None` if it is not a whole number in `i64`.
 fn parse_index(word: &str) -> Option<i64> {
     let (negative, digits) = match word.as_bytes().first()? {
-        b'-' => (true, &word[1..]),
-        b'+' => (false, &word[1..]),
-        _ => (false, word),
+        b'-' => (true, &word.as_bytes()[1..]),
+        b'+' => (false, &word.as_bytes()[1..]),
+        _ => (false, word.as_bytes()),
     };
-    if digits.is_empty() || !digits.bytes().all(|b| b.is_ascii_digit()) {
+    if digits.is_empty() {
         return None;
     }
     let mut value: i64 = 0;
-    for b in digits.bytes() {
-        value = value.checked_mul(10)?.checked_add((b - b'0') as i64)?;
+    for &b in digits {
+        let digit = b.wrapping_sub(b'0');
+        if digit > 9 {
+            return None;
+        }
+        value = value.checked_mul(10)?.checked_add(digit as i64)?;
     }
     Some(if negative { -value } else { value })
 }
 
 /// Resolves a position or normal index to 0-based, or records it for the join where the
 /// piece's place in the file is needed.
+#[inline]
 fn resolve(
     piece: &mut Piece,
     index: i64,
@@ -717,8 +791,10 @@ fn resolve(
                 Slot::CornerNormal => piece.corner_normals.len(),
                 Slot::LinePoint => piece.line_points.len(),
             } as u32;
-            piece.relative.push(Relative { slot, at, local });
-            Ok(0)
+            piece.relative[slot as usize].push(at);
+            // Further back than any file can reach: wrong, and the one-piece reader says so.
+            let local = i32::try_from(local).map_err(|_| Mistake::default())?;
+            Ok(local as u32)
         }
         i => {
             let resolved = u32::try_from(i - 1)
@@ -758,6 +834,17 @@ fn name_index<N: Clone + Eq + std::hash::Hash>(
     i
 }
 
+/// Appends a piece's part to the file's, room made for `total` at first: the first piece's
+/// own vector becomes the file's, so its contents are never copied.
+fn gather<T>(all: &mut Vec<T>, mut part: Vec<T>, total: usize) {
+    if all.is_empty() {
+        part.reserve_exact(total.saturating_sub(part.len()));
+        *all = part;
+    } else {
+        all.append(&mut part);
+    }
+}
+
 /// Joins the pieces of a file in order; `None` if anything is wrong that only the whole
 /// file shows (an index out of range, a limit passed), for the one-piece reader to report.
 fn join(pieces: Vec<Piece>) -> Option<ObjFile> {
@@ -776,11 +863,8 @@ fn join(pieces: Vec<Piece>) -> Option<ObjFile> {
     {
         return None;
     }
-    obj.positions.reserve_exact(positions);
-    obj.normals.reserve_exact(normals);
-    obj.faces.reserve_exact(sum(|p| p.faces.len()));
-    obj.corners.reserve_exact(sum(|p| p.corners.len()));
-    obj.corner_normals.reserve_exact(sum(|p| p.corners.len()));
+    let (face_count, corner_count) = (sum(|p| p.faces.len()), sum(|p| p.corners.len()));
+    let point_count = sum(|p| p.line_points.len());
     let mut group_index = HashMap::from([(String::new(), 0u32)]);
     let mut material_index = HashMap::from([(String::new(), 0u32)]);
     let (mut group, mut material, mut smoothing) = (0u32, 0u32, Smoothing::Unsaid);
@@ -789,19 +873,15 @@ fn join(pieces: Vec<Piece>) -> Option<ObjFile> {
     let mut lines_before = 0;
     for mut piece in pieces {
         let (base, normal_base) = (obj.positions.len() as i64, obj.normals.len() as i64);
-        for relative in &piece.relative {
-            let local = relative.local
-                + if relative.slot == Slot::CornerNormal {
-                    normal_base
-                } else {
-                    base
-                };
-            let resolved = u32::try_from(local).ok()?;
-            let at = relative.at as usize;
-            match relative.slot {
-                Slot::Corner => piece.corners[at] = resolved,
-                Slot::CornerNormal => piece.corner_normals[at] = resolved,
-                Slot::LinePoint => piece.line_points[at] = resolved,
+        let [corners, corner_normals, line_points] = &piece.relative;
+        for (slots, values, base) in [
+            (corners, &mut piece.corners, base),
+            (corner_normals, &mut piece.corner_normals, normal_base),
+            (line_points, &mut piece.line_points, base),
+        ] {
+            for &at in slots {
+                let value = &mut values[at as usize];
+                *value = u32::try_from(*value as i32 as i64 + base).ok()?;
             }
         }
         let groups: Vec<u32> = piece
@@ -837,25 +917,25 @@ fn join(pieces: Vec<Piece>) -> Option<ObjFile> {
             }
         };
         let first_corner = obj.corners.len() as u32;
-        for mut face in piece.faces {
-            settle(&mut face, first_corner);
+        for face in &mut piece.faces {
+            settle(face, first_corner);
             triangles += face.count as usize - 2;
-            obj.faces.push(face);
         }
         let first_point = obj.line_points.len() as u32;
-        for mut line in piece.lines {
-            settle(&mut line, first_point);
+        for line in &mut piece.lines {
+            settle(line, first_point);
             line_edges += line.count as usize - 1;
-            obj.lines.push(line);
         }
         if triangles > MAX_TRIANGLES || line_edges > MAX_EDGES {
             return None;
         }
-        obj.positions.append(&mut piece.positions);
-        obj.normals.append(&mut piece.normals);
-        obj.corners.append(&mut piece.corners);
-        obj.corner_normals.append(&mut piece.corner_normals);
-        obj.line_points.append(&mut piece.line_points);
+        gather(&mut obj.positions, piece.positions, positions);
+        gather(&mut obj.normals, piece.normals, normals);
+        gather(&mut obj.faces, piece.faces, face_count);
+        gather(&mut obj.lines, piece.lines, 0);
+        gather(&mut obj.corners, piece.corners, corner_count);
+        gather(&mut obj.corner_normals, piece.corner_normals, corner_count);
+        gather(&mut obj.line_points, piece.line_points, point_count);
         obj.material_libraries.extend(
             piece
                 .libraries
@@ -928,6 +1008,44 @@ mod tests {
             words("  f\t1 22").collect::<Vec<_>>(),
             vec![(2, "f"), (4, "1"), (6, "22")]
         );
+    }
+
+    #[test]
+    fn the_fast_paths_read_as_the_general_reader_does() {
+        // Lines as `str::split` gives them, each cut at its first `#`.
+        for text in ["", "\n", "a\nb", "v 1 # x\n#\n\nf 1#2\n", "a\r\n# b\nc#d#e"] {
+            let expected: Vec<&str> = text
+                .split('\n')
+                .map(|l| l.split('#').next().unwrap_or(""))
+                .collect();
+            assert_eq!(lines(text).collect::<Vec<_>>(), expected, "{text:?}");
+        }
+        // A corner's first and third `/` parts, as `split('/')` gives them.
+        for word in [
+            "1", "1/2", "1//3", "1/2/3", "1/2/3/4", "/", "//", "-1//-2", "1/",
+        ] {
+            let mut parts = word.split('/');
+            let expected = (parts.next().unwrap_or(""), parts.nth(1));
+            assert_eq!(corner_parts(word), expected, "{word}");
+        }
+        // Plain vertices: what the general reader reads; the rest is left to it.
+        let plain = |line: &str| plain_vertex(line.as_bytes());
+        assert_eq!(plain("v 1 -2.5 3e2"), Some([1.0, -2.5, 300.0]));
+        assert_eq!(plain("v\t1  2 3 0.5\r"), Some([1.0, 2.0, 3.0]));
+        for other in [
+            "v 1 2",
+            "v 1 2 x",
+            "v 1.5x 2 3",
+            "v 1e13 0 0",
+            "v nan 0 0",
+            "v inf 0 0",
+            " v 1 2 3",
+            "vn 0 0 1",
+            "v",
+            "v1 2 3 4",
+        ] {
+            assert_eq!(plain(other), None, "{other}");
+        }
     }
 
     // Cases written from the Wavefront "Object Files (.obj)" appendix of the Advanced
