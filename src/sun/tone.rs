@@ -495,7 +495,9 @@ mod tests {
         // in turn, and so is their total area.
         let mut seed = 7u64;
         let mut next = || {
-            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
             (seed >> 11) as f64 / (1u64 << 53) as f64
         };
         let mut shapes = |count: usize, side: f64| -> Vec<Polygon> {
@@ -531,4 +533,3 @@ mod tests {
         assert_eq!(a, b);
     }
 }
-
