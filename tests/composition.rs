@@ -306,25 +306,9 @@ fn preview_and_panorama_agree_on_directions() {
 
 /// The paths of a layer of an SVG page, as lists of points in millimetres.
 fn svg_layer(svg: &str, layer: &str) -> Vec<Vec<(f64, f64)>> {
-    let document = roxmltree::Document::parse(svg).unwrap();
-    let group = document
-        .descendants()
-        .find(|n| n.attribute("data-layer") == Some(layer))
-        .unwrap_or_else(|| panic!("no layer {layer}"));
-    group
-        .children()
-        .filter(|n| n.has_tag_name("path"))
-        .map(|path| {
-            let numbers: Vec<f64> = path
-                .attribute("d")
-                .unwrap()
-                .split_whitespace()
-                .filter(|t| *t != "M" && *t != "L")
-                .map(|t| t.trim_start_matches(['M', 'L']).parse().unwrap())
-                .collect();
-            numbers.chunks(2).map(|c| (c[0], c[1])).collect()
-        })
-        .collect()
+    let paths = common::svg_layer_paths(svg, layer);
+    assert!(!paths.is_empty(), "no layer {layer}");
+    paths
 }
 
 #[test]

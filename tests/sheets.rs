@@ -781,30 +781,6 @@ fn a_drawing_on_titled_paper_is_centred_above_the_block() {
     );
 }
 
-/// The paths of the layer `name` as lists of points, millimetres (roxmltree reads the SVG).
-fn layer_paths(svg: &str, name: &str) -> Vec<Vec<(f64, f64)>> {
-    let doc = roxmltree::Document::parse(svg).unwrap();
-    let Some(group) = doc
-        .descendants()
-        .find(|n| n.has_tag_name("g") && n.attribute("data-layer") == Some(name))
-    else {
-        return Vec::new();
-    };
-    group
-        .children()
-        .filter(|n| n.has_tag_name("path"))
-        .map(|path| {
-            let numbers: Vec<f64> = path
-                .attribute("d")
-                .unwrap()
-                .split_whitespace()
-                .filter_map(|t| t.trim_start_matches(['M', 'L']).parse().ok())
-                .collect();
-            numbers.chunks_exact(2).map(|c| (c[0], c[1])).collect()
-        })
-        .collect()
-}
-
 /// The title block of a rendered page carries a north key: plan north up the sheet, and
 /// when the scene's `location` turns true north from it, a second arrow along that bearing
 /// (clockwise from plan north, as docs/scene-format.md defines `north`), measured here from
@@ -835,7 +811,7 @@ fn the_title_block_shows_plan_north_and_true_north_when_they_differ() {
         let out = format!("{scene}.svg");
         common::succeeds(&dir, &["render", scene, "--page", "a4", "-q", "-o", &out]);
         let svg = std::fs::read_to_string(dir.path(&out)).unwrap();
-        let key = layer_paths(&svg, "north key");
+        let key = common::svg_layer_paths(&svg, "north key");
         // The ring (the longest path) and its centre.
         let ring = key.iter().max_by_key(|p| p.len()).unwrap();
         let (xs, ys): (Vec<f64>, Vec<f64>) = ring.iter().copied().unzip();
@@ -893,8 +869,8 @@ fn the_title_block_shows_plan_north_and_true_north_when_they_differ() {
         &["plan", "turned.ron", "--page", "a4", "-q", "-o", "plan.svg"],
     );
     let plan = std::fs::read_to_string(dir.path("plan.svg")).unwrap();
-    assert!(layer_paths(&plan, "north key").is_empty());
-    assert!(!layer_paths(&plan, "north arrow").is_empty());
+    assert!(common::svg_layer_paths(&plan, "north key").is_empty());
+    assert!(!common::svg_layer_paths(&plan, "north arrow").is_empty());
 }
 
 /// `plan` and `sheet` on tiled paper, as `render` is: a plan over 2 x 1 sheets of A4
@@ -939,7 +915,10 @@ fn plans_and_sheets_tile_like_panoramas() {
         let svg = std::fs::read_to_string(dir.path(name)).expect(name);
         let doc = roxmltree::Document::parse(&svg).unwrap();
         assert_eq!(doc.root_element().attribute("width"), Some("297mm"));
-        assert!(!layer_paths(&svg, "sheet marks").is_empty(), "{name}");
+        assert!(
+            !common::svg_layer_paths(&svg, "sheet marks").is_empty(),
+            "{name}"
+        );
         let labels = read_back_labels(&svg);
         // (The sheet's own label, "ROW r/R, COLUMN ...", stands in the margin.)
         for (text, b) in labels.iter().filter(|(t, _)| !t.starts_with("ROW ")) {
@@ -965,7 +944,7 @@ fn plans_and_sheets_tile_like_panoramas() {
         .iter()
         .find_map(|(t, _)| t.strip_suffix(" M")?.parse().ok())
         .expect("the bar's length in metres");
-    let bar = &layer_paths(svg, "scale bar")[0];
+    let bar = &common::svg_layer_paths(svg, "scale bar")[0];
     let length = (bar[1].0 - bar[0].0).abs();
     common::assert_near(length, metres * 1000.0 / tiled, 0.05);
 

@@ -604,6 +604,17 @@ fn a_block_on_sloping_ground_is_drawn_where_its_walls_meet_the_ground() {
     assert!(slopes >= 2, "{slopes}");
 }
 
+/// The site's straight edges, as their two ends.
+fn straight_edges(site: &Site) -> Vec<(Point3<f64>, Point3<f64>)> {
+    site.edges
+        .iter()
+        .filter_map(|e| match e.curve {
+            SiteCurve::Segment { start, end } => Some((start, end)),
+            _ => None,
+        })
+        .collect()
+}
+
 /// The height of the lowest level edge of the first item of `kind`: the foot of its walls
 /// (the foot line drawn on sloping ground is level only where the ground is).
 fn lowest_level_edge_of(site: &Site, kind: &str) -> f64 {
@@ -696,14 +707,7 @@ fn a_plinth_carries_a_level_floor_and_its_courses_stop_at_the_ground() {
                items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
                              on_ground: true, plinth: (course: 0.3))])",
     );
-    let segments: Vec<(Point3<f64>, Point3<f64>)> = site
-        .edges
-        .iter()
-        .filter_map(|e| match e.curve {
-            SiteCurve::Segment { start, end } => Some((start, end)),
-            _ => None,
-        })
-        .collect();
+    let segments = straight_edges(&site);
     let level_length = |z: f64| -> f64 {
         segments
             .iter()
@@ -749,14 +753,7 @@ fn a_projecting_plinth_carries_a_ledge_and_stands_on_the_highest_ground_under_it
                    items: [Block(at: Centre(3, 22), width: 8, depth: 12, height: 7,
                                  on_ground: true, plinth: (projection: {projection}))])"
         ));
-        let segments: Vec<(Point3<f64>, Point3<f64>)> = site
-            .edges
-            .iter()
-            .filter_map(|e| match e.curve {
-                SiteCurve::Segment { start, end } => Some((start, end)),
-                _ => None,
-            })
-            .collect();
+        let segments = straight_edges(&site);
         let level_length: f64 = segments
             .iter()
             .filter(|(a, b)| (a.z - floor).abs() < 1e-9 && (b.z - floor).abs() < 1e-9)

@@ -239,3 +239,29 @@ pub fn predicted_pinhole(
         )
     })
 }
+
+/// The paths of the SVG layer `name` (its group's `data-layer`) as lists of points, in the
+/// SVG's units; empty when there is no such layer. roxmltree reads the document.
+#[allow(dead_code)]
+pub fn svg_layer_paths(svg: &str, name: &str) -> Vec<Vec<(f64, f64)>> {
+    let doc = roxmltree::Document::parse(svg).unwrap();
+    let Some(group) = doc
+        .descendants()
+        .find(|n| n.has_tag_name("g") && n.attribute("data-layer") == Some(name))
+    else {
+        return Vec::new();
+    };
+    group
+        .children()
+        .filter(|n| n.has_tag_name("path"))
+        .map(|path| {
+            let numbers: Vec<f64> = path
+                .attribute("d")
+                .unwrap()
+                .split_whitespace()
+                .filter_map(|t| t.trim_start_matches(['M', 'L']).parse().ok())
+                .collect();
+            numbers.chunks_exact(2).map(|c| (c[0], c[1])).collect()
+        })
+        .collect()
+}
