@@ -78,6 +78,17 @@ pub struct SheetArgs {
     /// Margin round the sheet, millimetres.
     #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
     pub margin: f64,
+    #[command(flatten)]
+    pub tiling: TileArgs,
+    /// How edges hidden behind faces are drawn [default: the scene's choice, or faint];
+    /// solid is about ten times quicker, for a first look at many standpoints.
+    #[arg(long, value_enum, value_name = "HOW")]
+    pub hidden: Option<HiddenArg>,
+}
+
+/// A page split over several sheets of the paper (for `plan` and `sheet`).
+#[derive(Debug, Args)]
+pub struct TileArgs {
     /// Split the page over COLUMNSxROWS sheets of the paper, to print large and assemble
     /// (one file a sheet for PNG and SVG, named by row and column; one PDF of them all).
     #[arg(long, value_name = "CxR", value_parser = parse_tiles, requires = "page")]
@@ -85,10 +96,6 @@ pub struct SheetArgs {
     /// Overlap between neighbouring sheets, millimetres.
     #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
     pub overlap: f64,
-    /// How edges hidden behind faces are drawn [default: the scene's choice, or faint];
-    /// solid is about ten times quicker, for a first look at many standpoints.
-    #[arg(long, value_enum, value_name = "HOW")]
-    pub hidden: Option<HiddenArg>,
 }
 
 #[derive(Debug, Args)]
@@ -117,13 +124,8 @@ pub struct PlanArgs {
     /// Margin round the sheet, millimetres.
     #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_finite)]
     pub margin: f64,
-    /// Split the page over COLUMNSxROWS sheets of the paper, to print large and assemble
-    /// (one file a sheet for PNG and SVG, named by row and column; one PDF of them all).
-    #[arg(long, value_name = "CxR", value_parser = parse_tiles, requires = "page")]
-    pub tiles: Option<(u32, u32)>,
-    /// Overlap between neighbouring sheets, millimetres.
-    #[arg(long, value_name = "MM", default_value_t = 10.0, value_parser = parse_non_negative)]
-    pub overlap: f64,
+    #[command(flatten)]
+    pub tiling: TileArgs,
     /// Print the panorama of the standpoint (-s) with the plan beside it on one sheet.
     #[arg(long)]
     pub beside: bool,

@@ -11,7 +11,7 @@ mod view;
 
 pub use aids::{AidArgs, AnglesArgs, TableFormat};
 use clap::{Parser, Subcommand};
-pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, WatchArgs};
+pub use compose::{OutArgs, PlanArgs, PreviewArgs, SheetArgs, TileArgs, WatchArgs};
 pub use explore::ExploreArgs;
 pub use render::{
     CheckArgs, FormatArg, LetteringArg, ModelArgs, NewArgs, RenderArgs, UnitArg, UpArg,

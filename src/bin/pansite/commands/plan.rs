@@ -2,10 +2,10 @@
 //! beside a panorama.
 
 use super::common::{choose_view, read_site, write_pages};
-use super::settings::{paper, plan_settings};
+use super::settings::{paper, plan_settings, tiling};
 use crate::args::PlanArgs;
 use pansite::compose::{beside, plan_map, PlanSettings};
-use pansite::page::{plan_title_lines, title_lines, today, Tiling, TitleText, TitledPaper};
+use pansite::page::{plan_title_lines, title_lines, today, TitleText, TitledPaper};
 use pansite::render::draw_sheets;
 use pansite::Error;
 
@@ -23,11 +23,7 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
     let (mut settings, mut panorama) = plan_settings(args)?;
     let paper = match &args.page {
         Some(name) => {
-            let tiles = args.tiles.map(|(columns, rows)| Tiling {
-                columns,
-                rows,
-                overlap_mm: args.overlap,
-            });
+            let tiles = tiling(&args.tiling);
             Some(TitledPaper::new(
                 paper(name, args.portrait)?,
                 args.margin,

@@ -3,7 +3,7 @@
 
 use crate::args::{
     AidArgs, AnglesArgs, DaylightArgs, ModelArgs, PlanArgs, PreviewArgs, RenderArgs, SheetArgs,
-    SunArgs, UnitArg, UpArg,
+    SunArgs, TileArgs, UnitArg, UpArg,
 };
 use pansite::aids::AidSettings;
 use pansite::compose::{ContactSettings, PlanScale, PlanSettings, PreviewSettings};
@@ -299,4 +299,13 @@ pub fn table_map(args: &AnglesArgs) -> pansite::Result<Equirect> {
         args.size.0 as f64,
         args.size.1 as f64,
     ))
+}
+
+/// The sheets a `plan` or `sheet` page is split over, if any.
+pub fn tiling(args: &TileArgs) -> Option<Tiling> {
+    args.tiles.map(|(columns, rows)| Tiling {
+        columns,
+        rows,
+        overlap_mm: args.overlap,
+    })
 }

@@ -1,12 +1,12 @@
 //! `pansite sheet`: many standpoints as labelled thumbnails on one sheet.
 
 use super::common::{choose_view, read_site, write_pages, Progress};
-use super::settings::{contact_settings, paper, time_sweep};
+use super::settings::{contact_settings, paper, tiling, time_sweep};
 use crate::args::{PathSweep, SheetArgs, ViewArgs};
 use pansite::compose::{
     contact_sheet, sweep_grid, sweep_headings, sweep_path, sweep_times, SheetGrid,
 };
-use pansite::page::{sheet_title_lines, today, Tiling, TitledPaper};
+use pansite::page::{sheet_title_lines, today, TitledPaper};
 use pansite::scene::Standpoint;
 use pansite::Error;
 use std::time::Instant;
@@ -55,11 +55,7 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
     let fields = sheet_title_lines(&site, &standpoints, today());
     let paper = match &args.page {
         Some(name) => {
-            let tiles = args.tiles.map(|(columns, rows)| Tiling {
-                columns,
-                rows,
-                overlap_mm: args.overlap,
-            });
+            let tiles = tiling(&args.tiling);
             let paper = TitledPaper::new(paper(name, args.portrait)?, args.margin, tiles)?;
             let px_per_mm = args.out.dpi / 25.4;
             let fitted = paper.room_above_title(&fields, None).and_then(|(w, h)| {
