@@ -70,13 +70,14 @@ impl TitledPaper {
         (width > 0.0 && height > 0.0).then_some((width, height))
     }
 
-    /// Where the edges of the tiled sheets cross a drawing of `content_mm` (width, height)
-    /// laid out by [`TitledPaper::lay_out`] with `planned` fields: x and y in millimetres
-    /// from the drawing's top-left corner (none on one sheet), so that its label placer
-    /// keeps its words off them.
+    /// Where the edges of the tiled sheets cross a drawing `content_px` (width, height) big
+    /// at `px_per_mm`, laid out by [`TitledPaper::lay_out`] with `planned` fields: x and y
+    /// in the drawing's pixels from its top-left corner (none on one sheet), the lines its
+    /// label placer keeps words off.
     pub fn tile_edges(
         &self,
-        content_mm: (f64, f64),
+        content_px: (f64, f64),
+        px_per_mm: f64,
         planned: &TitleText,
         mm_per_degree: Option<f64>,
     ) -> (Vec<f64>, Vec<f64>) {
@@ -86,8 +87,8 @@ impl TitledPaper {
             return (Vec::new(), Vec::new());
         };
         let m = self.margin_mm;
-        let left = centred(m, room_w, content_mm.0);
-        let top = centred(m, room_h, content_mm.1);
+        let left = centred(m, room_w, content_px.0 / px_per_mm);
+        let top = centred(m, room_h, content_px.1 / px_per_mm);
         let (pw, ph) = (
             self.paper.width_mm - 2.0 * m,
             self.paper.height_mm - 2.0 * m,
@@ -96,7 +97,7 @@ impl TitledPaper {
             (0..count)
                 .flat_map(|k| {
                     let near = m + k as f64 * (printable - t.overlap_mm);
-                    [near - start, near + printable - start]
+                    [near - start, near + printable - start].map(|mm| mm * px_per_mm)
                 })
                 .collect()
         };
@@ -220,9 +221,9 @@ mod tests {
         let block = title_layout(&fields, 277.0, None);
         assert!((w - 544.0).abs() < 1e-12);
         assert!((h - (190.0 - block.height_mm - GAP_MM)).abs() < 1e-12);
-        // A drawing 500 mm wide is centred: its left at 10 + 22 = 32 mm. The sheets'
+        // A drawing 500 mm wide (at a pixel a millimetre) is centred: its left at 10 + 22 = 32 mm. The sheets'
         // printable areas run 10..287 and 277..554 mm on the layout.
-        let (xs, ys) = page.tile_edges((500.0, 100.0), &fields, None);
+        let (xs, ys) = page.tile_edges((500.0, 100.0), 1.0, &fields, None);
         let expected = [10.0 - 32.0, 287.0 - 32.0, 277.0 - 32.0, 554.0 - 32.0];
         for (x, e) in xs.iter().zip(expected) {
             assert!((x - e).abs() < 1e-9, "{xs:?}");
@@ -230,7 +231,7 @@ mod tests {
         assert_eq!(ys.len(), 2);
         let untiled = TitledPaper::new(a4, 10.0, None).unwrap();
         assert_eq!(
-            untiled.tile_edges((100.0, 100.0), &fields, None),
+            untiled.tile_edges((100.0, 100.0), 1.0, &fields, None),
             (vec![], vec![])
         );
         // An overlap of half a sheet is refused, as on a panorama's page.

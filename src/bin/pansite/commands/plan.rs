@@ -87,19 +87,10 @@ pub fn plan(args: &PlanArgs) -> anyhow::Result<()> {
         let (w, h) = paper.room_above_title(&planned, None).ok_or_else(no_room)?;
         let room = PlanSettings::for_room(w, h, dpi);
         // Words kept off the edges of the sheets a tiled page is cut into.
-        let px_per_mm = dpi / 25.4;
-        let (xs, ys) = paper.tile_edges(
-            (
-                room.width as f64 / px_per_mm,
-                room.height as f64 / px_per_mm,
-            ),
-            &planned,
-            None,
-        );
-        let to_px = |mm: Vec<f64>| mm.into_iter().map(|v| v * px_per_mm).collect();
+        let size = (room.width as f64, room.height as f64);
         let settings = PlanSettings {
             scale: settings.scale,
-            label_cuts: (to_px(xs), to_px(ys)),
+            label_cuts: paper.tile_edges(size, px_per_mm, &planned, None),
             ..room
         };
         let plan = plan_map(&site, &site.standpoints, &settings)?;

@@ -79,13 +79,8 @@ pub fn sheet(args: &SheetArgs) -> anyhow::Result<()> {
             settings.columns = Some(grid.columns as u32);
             settings.thumbnail.validate()?;
             // Captions kept off the edges of the sheets a tiled page is cut into.
-            let size_mm = (
-                grid.width.ceil() / px_per_mm,
-                grid.height.ceil() / px_per_mm,
-            );
-            let (xs, ys) = paper.tile_edges(size_mm, &fields, None);
-            let to_px = |mm: Vec<f64>| mm.into_iter().map(|v| v * px_per_mm).collect();
-            settings.label_cuts = (to_px(xs), to_px(ys));
+            let size = (grid.width.ceil(), grid.height.ceil());
+            settings.label_cuts = paper.tile_edges(size, px_per_mm, &fields, None);
             Some(paper)
         }
         None => None,
