@@ -14,6 +14,7 @@
 //! Headings, azimuth labels and compass letters stay measured from the plan's y axis; only
 //! the sun uses the `location`'s bearing of true north.
 
+mod boxes;
 mod clock;
 mod day;
 mod position;

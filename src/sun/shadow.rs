@@ -14,9 +14,10 @@
 //! Curved surfaces cast the shadows of their facets (7.5 degrees); a change along a line
 //! shorter than the sampling step ([`SAMPLE_STEP_M`]) can be missed.
 
+use super::boxes::{Bounds, BoxGrid};
 use crate::scene::{Face, Site};
 use crate::visibility::Bvh;
-use nalgebra::{Point3, Vector3};
+use nalgebra::{Point3, Vector2, Vector3};
 use std::collections::HashMap;
 
 /// Where a line of an outline starts or stops being one is found to this length, metres.
@@ -139,20 +140,16 @@ fn outlines(
 }
 
 /// The faces as the sun sees them: each triangle projected along the sun's rays onto a
-/// plane across them, its box entered in the cells of a grid over that plane. An edge's
-/// shadow can fall on a face only where the edge's projection crosses the face's (carrying
-/// a point along the rays does not move its projection), so the faces in the cells that
-/// the edge's projection passes through are all the faces that may receive it.
+/// plane across them, its box entered in a grid over that plane. An edge's shadow can fall
+/// on a face only where the edge's projection crosses the face's (carrying a point along
+/// the rays does not move its projection), so the faces in the cells that the edge's
+/// projection passes through are all the faces that may receive it.
 struct SunView {
     /// Two unit vectors across the sun's rays.
     u: Vector3<f64>,
     v: Vector3<f64>,
-    /// The grid's corner in (u, v), its cell size, and its cells across and down.
-    origin: (f64, f64),
-    cell: f64,
-    size: (usize, usize),
-    /// For each cell (row by row), the faces whose projected boxes reach it, ascending.
-    cells: Vec<Vec<u32>>,
+    /// The faces' projected boxes; `None` without faces.
+    grid: Option<BoxGrid>,
 }
 
 impl SunView {
@@ -163,117 +160,32 @@ impl SunView {
             Vector3::y().cross(s).normalize()
         };
         let v = s.cross(&u);
-        let project = |p: &Point3<f64>| (u.dot(&p.coords), v.dot(&p.coords));
-        let boxes: Vec<[f64; 4]> = faces
+        let view = SunView { u, v, grid: None };
+        let boxes: Vec<Bounds> = faces
             .iter()
             .map(|f| {
-                let [a, b, c] = f.corners.map(|p| project(&p));
-                [
-                    a.0.min(b.0).min(c.0),
-                    a.1.min(b.1).min(c.1),
-                    a.0.max(b.0).max(c.0),
-                    a.1.max(b.1).max(c.1),
-                ]
+                let [a, b, c] = f.corners.map(|p| view.project(&p));
+                (a.inf(&b).inf(&c), a.sup(&b).sup(&c))
             })
             .collect();
-        let (mut lo, mut hi) = (
-            (f64::INFINITY, f64::INFINITY),
-            (f64::NEG_INFINITY, f64::NEG_INFINITY),
-        );
-        for b in &boxes {
-            lo = (lo.0.min(b[0]), lo.1.min(b[1]));
-            hi = (hi.0.max(b[2]), hi.1.max(b[3]));
-        }
-        if !lo.0.is_finite() {
-            return SunView {
-                u,
-                v,
-                origin: (0.0, 0.0),
-                cell: 1.0,
-                size: (0, 0),
-                cells: Vec::new(),
-            };
-        }
-        // About as many cells as faces, square, no more than 512 a side.
-        let (w, h) = ((hi.0 - lo.0).max(1e-9), (hi.1 - lo.1).max(1e-9));
-        let side = ((faces.len() as f64).sqrt().ceil() as usize).clamp(1, 512);
-        let cell = (w.max(h) / side as f64).max(1e-9);
-        let size = (
-            ((w / cell).floor() as usize + 1).min(side + 1),
-            ((h / cell).floor() as usize + 1).min(side + 1),
-        );
-        let mut cells = vec![Vec::new(); size.0 * size.1];
-        let index = |x: f64, across: usize, start: f64| {
-            (((x - start) / cell).floor().max(0.0) as usize).min(across - 1)
-        };
-        for (face, b) in boxes.iter().enumerate() {
-            let (x0, x1) = (index(b[0], size.0, lo.0), index(b[2], size.0, lo.0));
-            let (y0, y1) = (index(b[1], size.1, lo.1), index(b[3], size.1, lo.1));
-            for y in y0..=y1 {
-                for x in x0..=x1 {
-                    cells[y * size.0 + x].push(face as u32);
-                }
-            }
-        }
         SunView {
-            u,
-            v,
-            origin: lo,
-            cell,
-            size,
-            cells,
+            grid: BoxGrid::new(&boxes),
+            ..view
         }
     }
 
-    /// The faces in the cells the projection of the segment from `a` to `b` passes
-    /// through (its bounding band in each row of cells), ascending and each once.
+    /// A point's place across the sun's rays.
+    fn project(&self, p: &Point3<f64>) -> Vector2<f64> {
+        Vector2::new(self.u.dot(&p.coords), self.v.dot(&p.coords))
+    }
+
+    /// The faces whose projected boxes the projection of the segment from `a` to `b` may
+    /// meet, ascending and each once.
     fn faces_under(&self, a: &Point3<f64>, b: &Point3<f64>, out: &mut Vec<u32>) {
-        out.clear();
-        if self.cells.is_empty() {
-            return;
+        match &self.grid {
+            Some(grid) => grid.along(self.project(a), self.project(b), out),
+            None => out.clear(),
         }
-        let project = |p: &Point3<f64>| {
-            (
-                (self.u.dot(&p.coords) - self.origin.0) / self.cell,
-                (self.v.dot(&p.coords) - self.origin.1) / self.cell,
-            )
-        };
-        let (pa, pb) = (project(a), project(b));
-        let (w, h) = (self.size.0 as f64, self.size.1 as f64);
-        // A little wider than the segment, so that a projection on a cell's border is
-        // not lost to rounding.
-        let pad = 1e-6;
-        let (ylo, yhi) = (pa.1.min(pb.1) - pad, pa.1.max(pb.1) + pad);
-        if yhi < 0.0 || ylo >= h {
-            return;
-        }
-        let rows = (ylo.floor().max(0.0) as usize)..=(yhi.floor().min(h - 1.0) as usize);
-        for row in rows {
-            // The segment's x over this row's band [row, row + 1] (clamped to the ends).
-            let x_at = |y: f64| {
-                if (pb.1 - pa.1).abs() < 1e-300 {
-                    None
-                } else {
-                    let t = ((y - pa.1) / (pb.1 - pa.1)).clamp(0.0, 1.0);
-                    Some(pa.0 + (pb.0 - pa.0) * t)
-                }
-            };
-            let (x0, x1) = match (x_at(row as f64), x_at(row as f64 + 1.0)) {
-                (Some(p), Some(q)) => (p.min(q), p.max(q)),
-                _ => (pa.0.min(pb.0), pa.0.max(pb.0)),
-            };
-            let (x0, x1) = (x0 - pad, x1 + pad);
-            if x1 < 0.0 || x0 >= w {
-                continue;
-            }
-            let from = x0.floor().max(0.0) as usize;
-            let to = x1.floor().min(w - 1.0) as usize;
-            for x in from..=to {
-                out.extend_from_slice(&self.cells[row * self.size.0 + x]);
-            }
-        }
-        out.sort_unstable();
-        out.dedup();
     }
 }
 

@@ -16,6 +16,7 @@
 //! The work grows with the square of the faces (the pairs are culled by their extents
 //! across the sun's rays, by cones from the eye round each face, and on the plane).
 
+use super::boxes::{Bounds, BoxGrid};
 use crate::scene::{Face, Site};
 use nalgebra::{Point3, Vector2, Vector3};
 
@@ -208,15 +209,18 @@ fn take_away(shade: Vec<Polygon>, hiders: &[Polygon]) -> Vec<Polygon> {
     if hiders.is_empty() {
         return shade;
     }
-    let boxes: Vec<(Vector2<f64>, Vector2<f64>)> = hiders.iter().map(|h| bounds(h)).collect();
+    let boxes: Vec<Bounds> = hiders.iter().map(|h| bounds(h)).collect();
     let grid = BoxGrid::new(&boxes);
-    let apart = |a: &(Vector2<f64>, Vector2<f64>), b: &(Vector2<f64>, Vector2<f64>)| {
-        a.1.x < b.0.x || a.0.x > b.1.x || a.1.y < b.0.y || a.0.y > b.1.y
-    };
+    let apart =
+        |a: &Bounds, b: &Bounds| a.1.x < b.0.x || a.0.x > b.1.x || a.1.y < b.0.y || a.0.y > b.1.y;
     let mut out = Vec::new();
     let mut near = Vec::new();
     for piece in shade {
-        grid.overlapping(&bounds(&piece), &mut near);
+        match &grid {
+            Some(grid) => grid.overlapping(&bounds(&piece), &mut near),
+            // Boxes beyond any grid (not finite): every hider is tried.
+            None => near = (0..hiders.len() as u32).collect(),
+        }
         let mut stack = vec![(piece, 0usize)];
         while let Some((piece, mut next)) = stack.pop() {
             let own = bounds(&piece);
@@ -232,73 +236,6 @@ fn take_away(shade: Vec<Polygon>, hiders: &[Polygon]) -> Vec<Polygon> {
         }
     }
     out
-}
-
-/// Boxes entered in the cells of a uniform grid over them, to find those that may overlap
-/// a given box.
-struct BoxGrid {
-    origin: Vector2<f64>,
-    cell: f64,
-    size: (usize, usize),
-    cells: Vec<Vec<u32>>,
-}
-
-impl BoxGrid {
-    fn new(boxes: &[(Vector2<f64>, Vector2<f64>)]) -> BoxGrid {
-        let (lo, hi) = boxes.iter().fold(
-            (
-                Vector2::repeat(f64::INFINITY),
-                Vector2::repeat(f64::NEG_INFINITY),
-            ),
-            |(lo, hi), b| (lo.inf(&b.0), hi.sup(&b.1)),
-        );
-        let extent = hi - lo;
-        let side = ((boxes.len() as f64).sqrt().ceil() as usize).clamp(1, 256);
-        let cell = (extent.x.max(extent.y) / side as f64).max(1e-9);
-        let size = (
-            ((extent.x / cell) as usize + 1).min(side + 1),
-            ((extent.y / cell) as usize + 1).min(side + 1),
-        );
-        let mut grid = BoxGrid {
-            origin: lo,
-            cell,
-            size,
-            cells: vec![Vec::new(); size.0 * size.1],
-        };
-        for (k, b) in boxes.iter().enumerate() {
-            let ((x0, y0), (x1, y1)) = (grid.at(&b.0), grid.at(&b.1));
-            for y in y0..=y1 {
-                for x in x0..=x1 {
-                    grid.cells[y * size.0 + x].push(k as u32);
-                }
-            }
-        }
-        grid
-    }
-
-    /// The cell holding `p`, clamped to the grid.
-    fn at(&self, p: &Vector2<f64>) -> (usize, usize) {
-        let index = |v: f64, start: f64, across: usize| {
-            (((v - start) / self.cell).floor().max(0.0) as usize).min(across - 1)
-        };
-        (
-            index(p.x, self.origin.x, self.size.0),
-            index(p.y, self.origin.y, self.size.1),
-        )
-    }
-
-    /// The boxes in the cells `b` reaches, ascending and each once.
-    fn overlapping(&self, b: &(Vector2<f64>, Vector2<f64>), out: &mut Vec<u32>) {
-        out.clear();
-        let ((x0, y0), (x1, y1)) = (self.at(&b.0), self.at(&b.1));
-        for y in y0..=y1 {
-            for x in x0..=x1 {
-                out.extend_from_slice(&self.cells[y * self.size.0 + x]);
-            }
-        }
-        out.sort_unstable();
-        out.dedup();
-    }
 }
 
 /// The shadow of `face` on the plane (the part of the face in front of it towards the sun,
