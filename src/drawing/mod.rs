@@ -171,3 +171,112 @@ impl Drawing {
         self.layers.iter().map(|l| l.lines.vertex_count()).sum()
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn assert_near(a: f64, b: f64) {
+        assert!((a - b).abs() < 1e-12, "{a} against {b}");
+    }
+
+    #[test]
+    fn darkness_is_opacity_times_one_less_the_luminance() {
+        // The luminance weights of ITU-R BT.709 (and sRGB, IEC 61966-2-1): red 0.2126,
+        // green 0.7152, blue 0.0722; white paper under no ink is 0, black ink its opacity.
+        let ink = |colour, opacity| Stroke {
+            colour,
+            opacity,
+            width_px: 1.0,
+        };
+        assert_near(ink([255, 0, 0], 1.0).darkness(), 1.0 - 0.2126);
+        assert_near(ink([0, 255, 0], 0.5).darkness(), 0.5 * (1.0 - 0.7152));
+        assert_near(ink([0, 0, 255], 1.0).darkness(), 1.0 - 0.0722);
+        assert_near(ink([255, 255, 255], 1.0).darkness(), 0.0);
+        assert_near(Stroke::black(0.3, 2.0).darkness(), 0.3);
+        assert_near(
+            ink([51, 102, 153], 1.0).darkness(),
+            1.0 - (0.2126 * 0.2 + 0.7152 * 0.4 + 0.0722 * 0.6),
+        );
+        // More than full opacity is as dark as ink gets.
+        assert_near(Stroke::black(1.7, 1.0).darkness(), 1.0);
+    }
+
+    #[test]
+    fn a_moved_layer_carries_its_points_and_words_and_nothing_else_changes() {
+        let mut lines = PolylineSet::new();
+        lines.push(&[ImagePoint::new(1.0, 2.0), ImagePoint::new(3.0, 5.0)]);
+        lines.push(&[ImagePoint::new(-1.0, 0.5)]);
+        let layer = Layer {
+            text: Some(LayerText {
+                words: "N".to_owned(),
+                at: ImagePoint::new(10.0, 20.0),
+                height: 4.0,
+                align: Align::Middle,
+            }),
+            name: "labels".to_owned(),
+            stroke: Stroke::black(0.8, 1.5),
+            lines,
+            filled: true,
+        };
+        let moved = layer.moved(2.5, -1.0);
+        let points: Vec<Vec<ImagePoint>> = moved.lines.iter().map(|l| l.to_vec()).collect();
+        assert_eq!(
+            points,
+            vec![
+                vec![ImagePoint::new(3.5, 1.0), ImagePoint::new(5.5, 4.0)],
+                vec![ImagePoint::new(1.5, -0.5)],
+            ]
+        );
+        let text = moved.text.as_ref().unwrap();
+        assert_eq!(
+            (text.at, text.words.as_str(), text.height),
+            (ImagePoint::new(12.5, 19.0), "N", 4.0)
+        );
+        assert_eq!(
+            (moved.name.as_str(), moved.stroke, moved.filled),
+            ("labels", layer.stroke, true)
+        );
+    }
+
+    #[test]
+    fn the_counts_take_every_wireframe_layer_and_every_point() {
+        let layer = |name: &str, lines: &[&[ImagePoint]]| {
+            let mut set = PolylineSet::new();
+            for line in lines {
+                set.push(line);
+            }
+            Layer {
+                text: None,
+                name: name.to_owned(),
+                stroke: Stroke::black(1.0, 1.0),
+                lines: set,
+                filled: false,
+            }
+        };
+        let p = ImagePoint::new(0.0, 0.0);
+        let drawing = Drawing {
+            width: 10,
+            height: 5,
+            layers: vec![
+                layer(&wireframe_layer_name(None), &[&[p, p], &[p, p, p]]),
+                layer(&wireframe_layer_name(Some("walls")), &[&[p, p]]),
+                layer("grid", &[&[p, p, p, p]]),
+                hidden_layer(PolylineSet::new(), 2.0),
+            ],
+        };
+        assert_eq!(wireframe_layer_name(Some("walls")), "wireframe: walls");
+        assert_eq!(drawing.wireframe_lines(), 3);
+        assert_eq!(drawing.vertex_count(), 2 + 3 + 2 + 4);
+    }
+
+    #[test]
+    fn hidden_parts_are_lighter_thinner_and_broken() {
+        let layer = hidden_layer(PolylineSet::new(), 2.0);
+        assert_eq!(layer.name, HIDDEN);
+        assert_near(layer.stroke.opacity, 0.4);
+        assert_near(layer.stroke.width_px, 1.5);
+        assert_near(hidden_layer(PolylineSet::new(), 0.5).stroke.width_px, 0.75);
+        assert_eq!(hidden_dash_px(2.0), (9.0, 6.0));
+    }
+}
