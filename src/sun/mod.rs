@@ -16,6 +16,7 @@
 
 mod boxes;
 mod clock;
+mod cores;
 mod day;
 mod position;
 mod shadow;
@@ -24,7 +25,9 @@ mod tone;
 
 pub use clock::{Clock, LocalMoment};
 pub use day::{wall_in_sun, walls, DayEvents, Sky, SunSample, Wall};
-pub use position::{decimal_year, estimated_delta_t, sun_place, sun_place_with, Air, SunPlace};
+pub use position::{
+    across_rays, decimal_year, estimated_delta_t, sun_place, sun_place_with, Air, SunPlace,
+};
 pub use shadow::{
     hatching, shadow_outlines, with_shadows, with_shadows_and_hatching, ShadowLine,
     BREAK_TOLERANCE_M, HATCHING, SAMPLE_STEP_M, SHADOWS,

@@ -75,6 +75,20 @@ impl SunPlace {
     }
 }
 
+/// Two unit directions across the sun's rays, square to each other and to the unit
+/// direction `towards_sun`: the plane a parallel projection along the rays lands in.
+/// `u` is square to the x axis (to the y axis when the sun is near the x axis, so the
+/// cross product never vanishes), `v = s x u`, so (u, v, s) is right-handed.
+pub fn across_rays(towards_sun: &Vector3<f64>) -> (Vector3<f64>, Vector3<f64>) {
+    let s = towards_sun;
+    let u = if s.x.abs() < 0.9 {
+        Vector3::x().cross(s).normalize()
+    } else {
+        Vector3::y().cross(s).normalize()
+    };
+    (u, s.cross(&u))
+}
+
 /// The instant's decimal year, for the delta-T estimate.
 pub fn decimal_year(instant_s: f64) -> f64 {
     1970.0 + instant_s / SECONDS_PER_DAY / DAYS_PER_YEAR
@@ -175,6 +189,28 @@ mod tests {
         assert_near(d.x, 30f64.to_radians().cos(), 1e-12);
         assert_near(d.z, 0.5, 1e-12);
         assert_near(d.norm(), 1.0, 1e-12);
+    }
+
+    #[test]
+    fn the_directions_across_the_rays_are_square_to_them_and_each_other() {
+        // An orthonormal right-handed frame: u . s = v . s = u . v = 0, |u| = |v| = 1 and
+        // u x v = s (vector algebra), for suns high, low, and along either plan axis.
+        for s in [
+            Vector3::new(0.3, -0.5, 0.8),
+            Vector3::new(0.999, 0.0, 0.045),
+            Vector3::new(-0.95, 0.2, 0.1),
+            Vector3::new(0.0, 1.0, 0.0),
+            Vector3::z(),
+        ] {
+            let s = s.normalize();
+            let (u, v) = across_rays(&s);
+            for (a, b) in [(u.dot(&s), 0.0), (v.dot(&s), 0.0), (u.dot(&v), 0.0)] {
+                assert_near(a, b, 1e-12);
+            }
+            assert_near(u.norm(), 1.0, 1e-12);
+            assert_near(v.norm(), 1.0, 1e-12);
+            assert_near((u.cross(&v) - s).norm(), 0.0, 1e-12);
+        }
     }
 
     #[test]

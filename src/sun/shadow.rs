@@ -15,8 +15,10 @@
 //! shorter than the sampling step ([`SAMPLE_STEP_M`]) can be missed.
 
 use super::boxes::{Bounds, BoxGrid};
+use super::cores;
+use super::position::across_rays;
 use crate::scene::{Face, Site};
-use crate::visibility::Bvh;
+use crate::visibility::{ray_hits_triangle, Bvh};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::collections::HashMap;
 
@@ -29,6 +31,10 @@ const MIN_SAMPLES: usize = 6;
 const MAX_SAMPLES: usize = 400;
 /// Corners closer than this (metres) are one corner when faces are joined along edges.
 const WELD_M: f64 = 1e-6;
+/// How far (relative to the size of a point's coordinates) beyond a face's box, across
+/// the sun's rays, a ray to the sun is still tried against the face: far more than the
+/// rounding of the projections (about 1e-15), far less than a face.
+const VIEW_PAD: f64 = 1e-6;
 /// A face nearly edge-on to the sun (|n . s| below this) receives no outline.
 const EDGE_ON: f64 = 1e-9;
 
@@ -64,8 +70,10 @@ pub fn shadow_outlines(site: &Site, bvh: &Bvh, towards_sun: &Vector3<f64>) -> Ve
     outlines(site, bvh, towards_sun, true)
 }
 
-/// [`shadow_outlines`], the receivers of each edge found through the sun's view of the
-/// faces (`through_grid`) or, to check that, every face tried.
+/// [`shadow_outlines`], the receivers of each edge and the faces each ray to the sun may
+/// meet found through the sun's view of the faces (`through_grid`) or, to check that,
+/// every face tried as a receiver and the rays cast through the hierarchy `bvh`. The
+/// silhouette edges are shared out among the cores and their lines put back in order.
 fn outlines(
     site: &Site,
     bvh: &Bvh,
@@ -73,9 +81,8 @@ fn outlines(
     through_grid: bool,
 ) -> Vec<ShadowLine> {
     let s = towards_sun.normalize();
-    let mut out = Vec::new();
     if s.z <= 0.0 {
-        return out;
+        return Vec::new();
     }
     let silhouettes = silhouettes(&site.faces, &s);
     let planes: Vec<Option<(Vector3<f64>, f64)>> = site.faces.iter().map(plane_of).collect();
@@ -102,8 +109,9 @@ fn outlines(
     // Only the faces whose shapes seen from the sun the edge's crosses can receive its
     // shadow: found through a grid over that view, in the faces' order as before.
     let grid = SunView::new(&site.faces, &s);
-    let mut candidates = Vec::new();
-    for edge in &silhouettes {
+    let lines_of = |edge: &Silhouette| {
+        let mut out = Vec::new();
+        let mut candidates = Vec::new();
         if through_grid {
             grid.faces_under(&edge.a, &edge.b, &mut candidates);
         } else {
@@ -127,7 +135,19 @@ fn outlines(
                 let p = edge.a + (edge.b - edge.a) * u;
                 p - s * ((n.dot(&p.coords) - d) / n.dot(&s))
             };
-            let lit = |u: f64| grazes(site, bvh, &on_plane(u), &s, edge, receiver);
+            let lit = |u: f64| {
+                let p = on_plane(u);
+                let blocks = |index: u32, distance: f64, start: f64| {
+                    distance > start
+                        && !edge.faces.contains(&index)
+                        && receiver != Receiver::Face(index)
+                };
+                if through_grid {
+                    !grid.ray_meets(&site.faces, &p, &s, blocks)
+                } else {
+                    grazes(site, bvh, &p, &s, blocks)
+                }
+            };
             for (from, to) in runs(u0, u1, (edge.b - edge.a).norm(), lit) {
                 out.push(ShadowLine {
                     start: on_plane(from),
@@ -135,8 +155,12 @@ fn outlines(
                 });
             }
         }
-    }
-    out
+        out
+    };
+    cores::in_order(silhouettes.len(), |k| lines_of(&silhouettes[k]))
+        .into_iter()
+        .flatten()
+        .collect()
 }
 
 /// The faces as the sun sees them: each triangle projected along the sun's rays onto a
@@ -154,12 +178,7 @@ struct SunView {
 
 impl SunView {
     fn new(faces: &[Face], s: &Vector3<f64>) -> SunView {
-        let u = if s.x.abs() < 0.9 {
-            Vector3::x().cross(s).normalize()
-        } else {
-            Vector3::y().cross(s).normalize()
-        };
-        let v = s.cross(&u);
+        let (u, v) = across_rays(s);
         let view = SunView { u, v, grid: None };
         let boxes: Vec<Bounds> = faces
             .iter()
@@ -177,6 +196,31 @@ impl SunView {
     /// A point's place across the sun's rays.
     fn project(&self, p: &Point3<f64>) -> Vector2<f64> {
         Vector2::new(self.u.dot(&p.coords), self.v.dot(&p.coords))
+    }
+
+    /// Whether the ray from `p` towards the sun `s` (the unit direction the view is
+    /// across) meets a face for which `blocks(face, distance, start)` holds, `start` being
+    /// the distance within which a hit is the point's own face. A face the ray meets holds
+    /// the ray's point there, and so the point's projection, within rounding: only the
+    /// faces whose projected boxes come within [`VIEW_PAD`] (relative) of `p`'s projection
+    /// are tried, by the same test ([`ray_hits_triangle`]) the hierarchy's rays use, so the
+    /// answer is the same as casting the ray through it.
+    fn ray_meets(
+        &self,
+        faces: &[Face],
+        p: &Point3<f64>,
+        s: &Vector3<f64>,
+        blocks: impl Fn(u32, f64, f64) -> bool,
+    ) -> bool {
+        let Some(grid) = &self.grid else {
+            return false;
+        };
+        let size = 1.0 + p.coords.abs().max();
+        let start = 1e-7 * size;
+        grid.any_near(self.project(p), VIEW_PAD * size, |index| {
+            ray_hits_triangle(p, s, &faces[index as usize].corners)
+                .is_some_and(|distance| blocks(index, distance, start))
+        })
     }
 
     /// The faces whose projected boxes the projection of the segment from `a` to `b` may
@@ -478,22 +522,22 @@ fn clip_linear(span: &mut (f64, f64), at0: f64, at1: f64) -> Option<()> {
     (span.0 < span.1).then_some(())
 }
 
-/// Whether the ray from `p` (on the receiver) towards the sun meets nothing but the
-/// silhouette edge it grazes: then `p` is on the outline.
+/// Whether the ray from `p` (on the receiver) towards the sun, cast through the hierarchy
+/// of faces, meets no face for which `blocks(face, distance, start)` holds (all but the
+/// silhouette edge's and the receiver's): then `p` is on the outline.
 fn grazes(
     site: &Site,
     bvh: &Bvh,
     p: &Point3<f64>,
     s: &Vector3<f64>,
-    edge: &Silhouette,
-    receiver: Receiver,
+    blocks: impl Fn(u32, f64, f64) -> bool,
 ) -> bool {
     let base = site.faces.as_ptr() as usize;
     let size = std::mem::size_of::<Face>();
     let start = 1e-7 * (1.0 + p.coords.abs().max());
     bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
         let index = ((face as *const Face as usize - base) / size) as u32;
-        distance > start && !edge.faces.contains(&index) && receiver != Receiver::Face(index)
+        blocks(index, distance, start)
     })
     .is_none()
 }

@@ -1,0 +1,66 @@
+//! Work spread over the machine's cores, its results kept in order: the sun's passes
+//! (the shadows' silhouette edges, the tone's receiving planes, the table's days) are each
+//! a list of independent pieces of work, done here in blocks taken in turn by one thread
+//! per core, and put back in the list's order, so the result is the same on any number of
+//! cores.
+
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+/// Pieces of work taken at a time: enough to keep the threads' hand-offs rare, few enough
+/// that the cores finish close together.
+const BLOCK: usize = 8;
+
+/// `work(k)` for every k in 0..count, in order, on all cores.
+pub fn in_order<T: Send>(count: usize, work: impl Fn(usize) -> T + Sync) -> Vec<T> {
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let threads = cores.min(count.div_ceil(BLOCK));
+    if threads <= 1 {
+        return (0..count).map(work).collect();
+    }
+    let next = AtomicUsize::new(0);
+    let mut blocks: Vec<(usize, Vec<T>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..threads)
+            .map(|_| {
+                let (next, work) = (&next, &work);
+                scope.spawn(move || {
+                    let mut done = Vec::new();
+                    loop {
+                        let start = next.fetch_add(BLOCK, Ordering::Relaxed);
+                        if start >= count {
+                            break;
+                        }
+                        let end = (start + BLOCK).min(count);
+                        done.push((start, (start..end).map(work).collect::<Vec<T>>()));
+                    }
+                    done
+                })
+            })
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
+            .collect()
+    });
+    blocks.sort_unstable_by_key(|(start, _)| *start);
+    blocks.into_iter().flat_map(|(_, block)| block).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn results_come_back_in_order_whatever_the_threads_did() {
+        // Work of uneven lengths, so that the blocks finish out of turn.
+        let squares = in_order(1000, |k| {
+            let mut x = k as u64;
+            for _ in 0..(k % 7) * 500 {
+                x = std::hint::black_box(x);
+            }
+            x * x
+        });
+        assert_eq!(squares, (0..1000u64).map(|k| k * k).collect::<Vec<_>>());
+        assert!(in_order(0, |k| k).is_empty());
+        assert_eq!(in_order(3, |k| k), vec![0, 1, 2]);
+    }
+}
