@@ -17,6 +17,8 @@
 //! across the sun's rays, by cones from the eye round each face, and on the plane).
 
 use super::boxes::{Bounds, BoxGrid};
+use super::cores;
+use super::position::across_rays;
 use crate::scene::{Face, Site};
 use nalgebra::{Point3, Vector2, Vector3};
 
@@ -61,16 +63,11 @@ pub fn seen_shade(
     eye: &Point3<f64>,
 ) -> Vec<Vec<Point3<f64>>> {
     let s = towards_sun.normalize();
-    let mut out = Vec::new();
     if s.z <= 0.0 {
-        return out;
+        return Vec::new();
     }
     // Extents across the sun's rays, to cull pairs of faces.
-    let u = s
-        .cross(&Vector3::z())
-        .try_normalize(1e-9)
-        .unwrap_or_else(Vector3::x);
-    let v = s.cross(&u);
+    let (u, v) = across_rays(&s);
     let across = |corners: &[Point3<f64>; 3]| {
         let us = corners.map(|c| u.dot(&c.coords));
         let vs = corners.map(|c| v.dot(&c.coords));
@@ -81,44 +78,18 @@ pub fn seen_shade(
     let overlaps = |a: &((f64, f64), (f64, f64)), b: &((f64, f64), (f64, f64))| {
         a.0 .0 <= b.0 .1 && b.0 .0 <= a.0 .1 && a.1 .0 <= b.1 .1 && b.1 .0 <= a.1 .1
     };
+    // The faces whose extents may overlap a receiver's, through a grid of the extents
+    // (ascending, so the shadows come in the faces' order as when every face was tried).
+    let extent_grid = BoxGrid::new(
+        &extents
+            .iter()
+            .map(|&((u0, u1), (v0, v1))| (Vector2::new(u0, v0), Vector2::new(u1, v1)))
+            .collect::<Vec<Bounds>>(),
+    );
     // Cones from the eye round each face's bounding sphere, to cull the faces that cannot
-    // stand in front of a receiver: (unit direction, angular radius, nearest and farthest
-    // distance).
-    let cones: Vec<(Vector3<f64>, f64, f64, f64)> = site
-        .faces
-        .iter()
-        .map(|f| {
-            let centre = Point3::from(
-                (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0,
-            );
-            let radius = f
-                .corners
-                .iter()
-                .map(|c| (c - centre).norm())
-                .fold(0.0, f64::max);
-            let to = centre - eye;
-            let distance = to.norm();
-            let angle = if distance > radius {
-                (radius / distance).asin()
-            } else {
-                std::f64::consts::PI
-            };
-            (
-                to / distance.max(1e-300),
-                angle,
-                distance - radius,
-                distance + radius,
-            )
-        })
-        .collect();
-    let may_hide = |hider: usize, receiver: usize| {
-        let (h, r) = (&cones[hider], &cones[receiver]);
-        if h.2 > r.3 {
-            return false; // wholly beyond the receiver
-        }
-        let reach = h.1 + r.1;
-        reach >= std::f64::consts::PI || h.0.dot(&r.0).clamp(-1.0, 1.0).acos() <= reach
-    };
+    // stand in front of a receiver.
+    let cones: Vec<Cone> = site.faces.iter().map(|f| Cone::round(f, eye)).collect();
+    let may_hide = |hider: usize, receiver: usize| cones[hider].may_hide(&cones[receiver]);
     let mut receivers: Vec<(Option<usize>, PlaneFrame)> = Vec::new();
     if site.ground.is_none() {
         receivers.push((
@@ -149,10 +120,11 @@ pub fn seen_shade(
             },
         ));
     }
-    for (index, plane) in &receivers {
+    // Each receiving plane's seen shade, the planes shared out among the cores.
+    let seen_on = |index: Option<usize>, plane: &PlaneFrame| -> Vec<Vec<Point3<f64>>> {
         let (ns, eye_height) = (plane.n.dot(&s), plane.height(eye));
         if ns.abs() < EDGE_ON || eye_height.abs() < EDGE_ON {
-            continue;
+            return Vec::new();
         }
         let outline: Option<Polygon> = index.map(|i| {
             let mut t: Polygon = site.faces[i]
@@ -170,34 +142,172 @@ pub fn seen_shade(
             // The seen side is turned from the sun.
             match &outline {
                 Some(t) => shade.push(t.clone()),
-                None => continue,
+                None => return Vec::new(),
             }
         } else {
-            for (j, face) in site.faces.iter().enumerate() {
-                if Some(j) == *index || index.is_some_and(|i| !overlaps(&extents[i], &extents[j])) {
+            let mut casters = Vec::new();
+            match (index, &extent_grid) {
+                (Some(i), Some(grid)) => {
+                    let ((u0, u1), (v0, v1)) = extents[i];
+                    grid.overlapping(
+                        &(Vector2::new(u0, v0), Vector2::new(u1, v1)),
+                        &mut casters,
+                    );
+                }
+                _ => casters = (0..site.faces.len() as u32).collect(),
+            }
+            for &j in &casters {
+                let j = j as usize;
+                if Some(j) == index || index.is_some_and(|i| !overlaps(&extents[i], &extents[j])) {
                     continue;
                 }
+                let face = &site.faces[j];
                 if let Some(piece) = carried_by_sun(face, plane, &s, ns, outline.as_ref()) {
                     shade.push(piece);
                 }
             }
         }
         if shade.is_empty() {
-            continue;
+            return Vec::new();
         }
+        // A face wholly outside the pyramid of sight through the shade's box hides none
+        // of it: it is passed over before it is carried onto the plane.
+        let all = shade
+            .iter()
+            .map(|p| bounds(p))
+            .reduce(|a, b| (a.0.inf(&b.0), a.1.sup(&b.1)));
+        let pyramid = all.and_then(|b| Pyramid::through(plane, eye, &b));
         let hiders: Vec<Polygon> = site
             .faces
             .iter()
             .enumerate()
-            .filter(|(j, _)| Some(*j) != *index && index.is_none_or(|i| may_hide(*j, i)))
+            .filter(|(j, _)| Some(*j) != index && index.is_none_or(|i| may_hide(*j, i)))
+            .filter(|(_, face)| pyramid.as_ref().is_none_or(|p| !p.leaves_out(face)))
             .filter_map(|(_, face)| carried_from_eye(face, plane, eye, eye_height))
             .collect();
-        shade = take_away(shade, &hiders);
-        for piece in shade {
-            out.push(piece.iter().map(|q| plane.to_site(q)).collect());
+        take_away(shade, &hiders)
+            .iter()
+            .map(|piece| piece.iter().map(|q| plane.to_site(q)).collect())
+            .collect()
+    };
+    cores::in_order(receivers.len(), |k| seen_on(receivers[k].0, &receivers[k].1))
+        .into_iter()
+        .flatten()
+        .collect()
+}
+
+/// The pyramid of sight from the eye through a box of a receiving plane: its four sides,
+/// each as a unit normal pointing in and the eye (on every side).
+struct Pyramid {
+    eye: Point3<f64>,
+    inward: [Vector3<f64>; 4],
+}
+
+/// How far (relative to the size of the coordinates) a face's corners must all lie
+/// outside a side of the pyramid of sight for the face to be passed over: far more than
+/// rounding, so that its image on the plane lies clearly outside the box (an image moves
+/// away from the side's line at least as far as the point lies from the side).
+const PYRAMID_MARGIN: f64 = 1e-9;
+
+impl Pyramid {
+    /// The pyramid from `eye` through the box `(lo, hi)` (plane coordinates) of `plane`;
+    /// `None` for a box without width or height.
+    fn through(plane: &PlaneFrame, eye: &Point3<f64>, (lo, hi): &Bounds) -> Option<Pyramid> {
+        let corners = [
+            Vector2::new(lo.x, lo.y),
+            Vector2::new(hi.x, lo.y),
+            Vector2::new(hi.x, hi.y),
+            Vector2::new(lo.x, hi.y),
+        ]
+        .map(|q| plane.to_site(&q) - eye);
+        let middle = plane.to_site(&((lo + hi) / 2.0)) - eye;
+        let mut inward = [Vector3::zeros(); 4];
+        for k in 0..4 {
+            let n = corners[k].cross(&corners[(k + 1) % 4]).try_normalize(1e-300)?;
+            inward[k] = if n.dot(&middle) < 0.0 { -n } else { n };
+            if !inward[k].iter().all(|v| v.is_finite()) {
+                return None;
+            }
+        }
+        Some(Pyramid { eye: *eye, inward })
+    }
+
+    /// Whether every corner of `face` lies outside one side, by more than the margin.
+    fn leaves_out(&self, face: &Face) -> bool {
+        let margin = PYRAMID_MARGIN * (size_scale(face) + self.eye.coords.abs().max());
+        self.inward.iter().any(|n| {
+            face.corners
+                .iter()
+                .all(|c| n.dot(&(c - self.eye)) < -margin)
+        })
+    }
+}
+
+/// A cone from the eye round a face's bounding sphere (about the centre of its corners).
+#[derive(Clone, Copy, Debug)]
+struct Cone {
+    /// The unit direction from the eye to the sphere's centre.
+    direction: Vector3<f64>,
+    /// The half-angle, radians (pi when the eye is inside the sphere), and its cosine and
+    /// sine.
+    angle: f64,
+    cos: f64,
+    sin: f64,
+    /// The nearest and farthest distances of the sphere from the eye.
+    near: f64,
+    far: f64,
+}
+
+/// How far apart (in cosine) the two sides of a comparison of angles must be to be
+/// settled by cosines alone; closer ones are settled by the angles themselves, so the
+/// answer is the same either way (the cosines' rounding is about 1e-16).
+const COSINE_MARGIN: f64 = 1e-9;
+
+impl Cone {
+    fn round(face: &Face, eye: &Point3<f64>) -> Cone {
+        let c = face.corners;
+        let centre = Point3::from((c[0].coords + c[1].coords + c[2].coords) / 3.0);
+        let radius = c.iter().map(|p| (p - centre).norm()).fold(0.0, f64::max);
+        let to = centre - eye;
+        let distance = to.norm();
+        let angle = if distance > radius {
+            (radius / distance).asin()
+        } else {
+            std::f64::consts::PI
+        };
+        Cone {
+            direction: to / distance.max(1e-300),
+            angle,
+            cos: angle.cos(),
+            sin: angle.sin(),
+            near: distance - radius,
+            far: distance + radius,
         }
     }
-    out
+
+    /// Whether a face in this cone may stand in front of one in `receiver`'s: it is not
+    /// wholly beyond it, and the angle between the cones' axes is at most the sum of their
+    /// half-angles. That angle test is `acos(a . b) <= ha + hr`; where the cosine of the
+    /// sum (cos ha cos hr - sin ha sin hr) settles it by more than [`COSINE_MARGIN`] the
+    /// arc cosine is not taken.
+    fn may_hide(&self, receiver: &Cone) -> bool {
+        if self.near > receiver.far {
+            return false; // wholly beyond the receiver
+        }
+        let reach = self.angle + receiver.angle;
+        if reach >= std::f64::consts::PI {
+            return true;
+        }
+        let dot = self.direction.dot(&receiver.direction).clamp(-1.0, 1.0);
+        let cos_reach = self.cos * receiver.cos - self.sin * receiver.sin;
+        if dot > cos_reach + COSINE_MARGIN {
+            true
+        } else if dot < cos_reach - COSINE_MARGIN {
+            false
+        } else {
+            dot.acos() <= reach
+        }
+    }
 }
 
 /// What is left of each convex polygon of `shade` once every one of `hiders` (convex) is
@@ -232,7 +342,7 @@ fn take_away(shade: Vec<Polygon>, hiders: &[Polygon]) -> Vec<Polygon> {
                 continue;
             }
             let hider = &hiders[near[next] as usize];
-            stack.extend(difference(piece, hider).into_iter().map(|p| (p, next + 1)));
+            difference_each(piece, hider, |p| stack.push((p, next + 1)));
         }
     }
     out
@@ -247,12 +357,7 @@ fn carried_by_sun(
     ns: f64,
     outline: Option<&Polygon>,
 ) -> Option<Polygon> {
-    let scale = 1.0
-        + face
-            .corners
-            .iter()
-            .map(|c| c.coords.abs().max())
-            .fold(0.0, f64::max);
+    let scale = size_scale(face);
     // Travel back along the ray to the plane: positive in front of it.
     let travel = |p: &Point3<f64>| plane.height(p) / ns;
     let front = clip_3d(&face.corners, |p| travel(p) - EDGE_ON * scale)?;
@@ -279,13 +384,7 @@ fn carried_from_eye(
 ) -> Option<Polygon> {
     let side = eye_height.signum();
     let reach = eye_height.abs();
-    let scale = 1.0
-        + face
-            .corners
-            .iter()
-            .map(|c| c.coords.abs().max())
-            .fold(0.0, f64::max);
-    let eps = EDGE_ON * scale;
+    let eps = EDGE_ON * size_scale(face);
     // Height towards the eye: between 0 (on the plane) and `reach` (the eye's).
     let between = clip_3d(&face.corners, |p| side * plane.height(p) - eps)?;
     let between = clip_polygon_3d(between, |p| reach - side * plane.height(p) - eps)?;
@@ -300,6 +399,16 @@ fn carried_from_eye(
         piece.reverse();
     }
     (area(&piece) > LEAST_AREA_M2).then_some(piece)
+}
+
+/// The scale of a face's coordinates (1 plus its largest coordinate's size, metres), which
+/// the tolerances of cutting it to a plane grow with, as rounding does.
+fn size_scale(face: &Face) -> f64 {
+    1.0 + face
+        .corners
+        .iter()
+        .map(|c| c.coords.abs().max())
+        .fold(0.0, f64::max)
 }
 
 /// The part of a triangle where `inside` (linear) is non-negative.
@@ -363,20 +472,69 @@ fn intersection(mut polygon: Polygon, convex: &Polygon) -> Polygon {
 
 /// A convex polygon less a convex counter-clockwise one: a convex piece outside each side
 /// of the second, in turn.
-fn difference(mut polygon: Polygon, convex: &Polygon) -> Vec<Polygon> {
+#[cfg(test)]
+fn difference(polygon: Polygon, convex: &Polygon) -> Vec<Polygon> {
     let mut out = Vec::new();
+    difference_each(polygon, convex, |piece| out.push(piece));
+    out
+}
+
+/// [`difference`], each piece handed to `piece` as it is cut. A side with every corner
+/// strictly on one side of its line leaves the polygon as it is (wholly inside: nothing
+/// is cut off) or hands it on whole (wholly outside: nothing is left inside), which is
+/// what the two clips would give, without building either; only a side that crosses the
+/// polygon (or touches a corner) clips it.
+fn difference_each(mut polygon: Polygon, convex: &Polygon, mut piece: impl FnMut(Polygon)) {
     for k in 0..convex.len() {
         let (a, b) = (convex[k], convex[(k + 1) % convex.len()]);
-        let outside = clip_side(&polygon, a, b, false);
-        if area(&outside) > LEAST_AREA_M2 {
-            out.push(outside);
+        match side_of(&polygon, a, b) {
+            Side::Left => {}
+            Side::Right => {
+                if area(&polygon) > LEAST_AREA_M2 {
+                    piece(polygon);
+                }
+                return;
+            }
+            Side::Across => {
+                let outside = clip_side(&polygon, a, b, false);
+                if area(&outside) > LEAST_AREA_M2 {
+                    piece(outside);
+                }
+                polygon = clip_side(&polygon, a, b, true);
+            }
         }
-        polygon = clip_side(&polygon, a, b, true);
         if area(&polygon) <= LEAST_AREA_M2 {
-            break;
+            return;
         }
     }
-    out
+}
+
+/// Where a polygon's corners lie from the directed line from `a` to `b`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Side {
+    /// Every corner strictly on the left.
+    Left,
+    /// Every corner strictly on the right.
+    Right,
+    /// Some on each side, or some on the line.
+    Across,
+}
+
+/// Which side of the line from `a` to `b` the corners of `polygon` lie, by the same
+/// cross product [`clip_side`] cuts by.
+fn side_of(polygon: &[Vector2<f64>], a: Vector2<f64>, b: Vector2<f64>) -> Side {
+    let d = b - a;
+    let (mut left, mut right) = (true, true);
+    for p in polygon {
+        let c = d.x * (p.y - a.y) - d.y * (p.x - a.x);
+        left &= c > 0.0;
+        right &= c < 0.0;
+    }
+    match (left, right) {
+        (true, false) => Side::Left,
+        (false, true) => Side::Right,
+        _ => Side::Across,
+    }
 }
 
 /// Signed area (counter-clockwise positive), the shoelace formula.
@@ -423,6 +581,62 @@ mod tests {
                 < 1e-12
         );
         assert!(difference(square(0.0, 0.0, 1.0), &square(-1.0, -1.0, 3.0)).is_empty());
+    }
+
+    #[test]
+    fn cones_settled_by_cosines_agree_with_the_arc_cosine() {
+        // The cones' test against its definition, acos(a . b) <= ha + hr, over cones
+        // scattered round the sphere (a fixed sequence of our own) and over pairs whose
+        // axes are set at the sum of their half-angles, give or take a hair, where the
+        // cosines alone cannot settle it.
+        let mut seed = 11u64;
+        let mut next = || {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (seed >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let cone = |direction: Vector3<f64>, angle: f64| Cone {
+            direction: direction.normalize(),
+            angle,
+            cos: angle.cos(),
+            sin: angle.sin(),
+            near: 1.0,
+            far: 2.0,
+        };
+        let definition = |h: &Cone, r: &Cone| {
+            let reach = h.angle + r.angle;
+            reach >= std::f64::consts::PI
+                || h.direction.dot(&r.direction).clamp(-1.0, 1.0).acos() <= reach
+        };
+        let (mut near_the_edge, mut both) = (0, [0, 0]);
+        for k in 0..20_000 {
+            let mut unit = || Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
+            let (a, b) = (unit(), unit());
+            let (ha, hr) = (next() * 1.2, next() * 0.4);
+            let h = cone(a, ha);
+            let r = if k % 2 == 0 {
+                cone(b, hr)
+            } else {
+                // The axis turned from h's by ha + hr and a hair (up to 1e-9 radians).
+                let across = a.cross(&b).normalize();
+                let turn = ha + hr + (next() - 0.5) * 2e-9;
+                let axis = nalgebra::Rotation3::from_axis_angle(
+                    &nalgebra::Unit::new_normalize(across),
+                    turn,
+                ) * a.normalize();
+                near_the_edge += 1;
+                cone(axis, hr)
+            };
+            let expected = definition(&h, &r);
+            both[expected as usize] += 1;
+            assert_eq!(h.may_hide(&r), expected, "{h:?} {r:?}");
+        }
+        assert!(near_the_edge > 5000 && both[0] > 1000 && both[1] > 1000, "{both:?}");
+        // Wholly beyond the receiver: never in front of it.
+        let mut far = cone(Vector3::x(), 0.3);
+        far.near = 3.0;
+        assert!(!far.may_hide(&cone(Vector3::x(), 0.3)));
     }
 
     #[test]
