@@ -4,6 +4,7 @@
 //! aligned text, CSV (RFC 4180) or JSON, one flat table whose `event` column says what
 //! each row is; the cautions come with every form.
 
+use super::cores;
 use super::day::{wall_in_sun, walls, Sky, SunSample};
 use super::CAUTIONS;
 use crate::error::{Error, Result};
@@ -88,9 +89,16 @@ pub fn sun_table(site: &Site, sky: &Sky, request: &TableRequest) -> Result<Vec<S
     }
     let bvh = (request.blocking && item.is_some()).then(|| Bvh::new(&site.faces));
     let north = sky.location.north_deg;
-    let mut rows = Vec::new();
-    let mut date = request.from;
-    loop {
+    // The days, then each day's rows on all cores, put back in the days' order.
+    let mut dates = vec![request.from];
+    while let Some(&date) = dates.last().filter(|&&d| d < request.to) {
+        dates.push(
+            date.tomorrow()
+                .map_err(|e| Error::Sun(format!("the day after {date}: {e}")))?,
+        );
+    }
+    let day_rows = |date: Date| -> Result<Vec<SunRow>> {
+        let mut rows = Vec::new();
         let events = sky.events(date)?;
         for (event, sample) in [
             ("sunrise", events.rise),
@@ -157,12 +165,11 @@ pub fn sun_table(site: &Site, sky: &Sky, request: &TableRequest) -> Result<Vec<S
                 }
             }
         }
-        if date >= request.to {
-            break;
-        }
-        date = date
-            .tomorrow()
-            .map_err(|e| Error::Sun(format!("the day after {date}: {e}")))?;
+        Ok(rows)
+    };
+    let mut rows = Vec::new();
+    for day in cores::in_order(dates.len(), |k| day_rows(dates[k])) {
+        rows.extend(day?);
     }
     Ok(rows)
 }
