@@ -71,7 +71,7 @@ pub struct SunChoice {
     /// Hatching of what is in shadow, lines this many metres apart.
     pub hatch_m: Option<f64>,
     /// A filled tone over the shade the eye sees (layer [`SHADOW_TONE`]).
-    pub tone: bool,
+    pub tone: Option<bool>,
 }
 
 impl SunChoice {
@@ -96,7 +96,7 @@ impl SunChoice {
             drawing,
             pick(self.shadows, scene.map(|s| s.shadows), true),
             hatch,
-            self.tone || scene.is_some_and(|s| s.tone),
+            pick(self.tone, scene.map(|s| s.tone), false),
         ))
     }
 }

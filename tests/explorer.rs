@@ -255,6 +255,12 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
             "/underlay.png?x=0&y=0&w=256&h=128&hidden=%2Fetc",
             "'hidden'",
         ),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&tone=..%2Fsun.ron",
+            "'tone'",
+        ),
+        ("/underlay.png?x=0&y=0&w=256&h=128&tone=yes", "'tone'"),
+        ("/look.png?x=0&y=0&w=256&h=128&tone=on", "'tone'"),
         ("/look.png?x=0&y=0&w=256&h=128&fov=179", "'fov'"),
         ("/probe?x=0&y=0&w=256&h=128&u=999&v=1", "'u'"),
         ("/underlay.png?x=0&x=1&y=0&w=256&h=128", "twice"),

@@ -289,35 +289,7 @@ fn the_page_in_chromium() {
 
     // The underlay shown equals `pansite render` for that standpoint.
     let (w, h, shown) = canvas_pixels(&tab, "underlay");
-    let rendered = dir.path("render.png");
-    let status = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .arg("render")
-        .arg(&scene)
-        .args(["--at", &format!("{},{}", round3(x), round3(y))])
-        .args(["--heading", &format!("{}", round2(heading))])
-        .args(["--eye-height", &format!("{}", round3(eye))])
-        .args(["--size", &format!("{w}x{h}")])
-        .arg("-o")
-        .arg(&rendered)
-        .status()
-        .unwrap();
-    assert!(status.success());
-    let (rw, rh, expected) = png_grey(&rendered);
-    assert_eq!((rw, rh), (w, h));
-    let differing = shown
-        .iter()
-        .zip(&expected)
-        .filter(|(a, b)| (**a as i32 - **b as i32).abs() > 8)
-        .count();
-    let dark = expected.iter().filter(|p| **p < 128).count();
-    assert!(dark > 1000, "the render is nearly blank");
-    // Tolerance: decoding and drawing may round a grey level; no pixel may differ by more
-    // than 8 levels in more than 0.1 % of the image.
-    assert!(
-        differing * 1000 <= shown.len(),
-        "{differing} of {} pixels differ from `pansite render`",
-        shown.len()
-    );
+    same_as_render(&dir, &scene, (x, y, heading, eye), (w, h, &shown), &[]);
 
     // Hover over a corner of the clock tower's pyramid roof: its apex is at (-17, -3, 24)
     // (the scene says Centre(-17, -3), apex 24). Azimuth and elevation from the eye,
@@ -481,6 +453,58 @@ fn the_page_in_chromium() {
     );
     screenshot(&tab, "kept.png");
 
+    // The shade tone, switched on from the page, over a yard of our own with a place and a
+    // sun (its `sun` block asks for no tone): the underlay shown equals `pansite render
+    // --shade-tone`, and differs from the one shown before.
+    let yard = "Scene(
+    name: \"Tone yard\",
+    location: (latitude: 51.2, longitude: -2.1, height: 80, north: 4, time_zone: \"Europe/London\"),
+    sun: (date: \"2026-06-21\", time: \"16:00\", path: false, shadows: false),
+    standpoints: [(name: \"gate\", x: 0, y: -12)],
+    items: [
+        Block(label: \"store\", at: Centre(0, 0), width: 8, depth: 5, height: 6),
+        Block(label: \"shed\", at: Centre(7, 4), width: 3, depth: 3, height: 3),
+    ],
+)
+";
+    let version = eval(&tab, "document.getElementById('underlay').dataset.version");
+    save(&dir.0, &scene, yard);
+    wait_for(
+        &tab,
+        "document.getElementById('scene-name').textContent === 'Tone yard'",
+        "the page to show the yard",
+    );
+    wait_for(
+        &tab,
+        &format!("document.getElementById('underlay').dataset.version !== {version}"),
+        "an underlay of the yard",
+    );
+    wait_for(&tab, SETTLED, "the drawing of the yard");
+    let (_, _, bare) = canvas_pixels(&tab, "underlay");
+    eval(
+        &tab,
+        "const t = document.getElementById('tone'); t.value = 'on'; t.dispatchEvent(new Event('change')); true",
+    );
+    wait_for(
+        &tab,
+        "document.getElementById('underlay').dataset.shown.includes('tone=on')",
+        "the underlay with the tone",
+    );
+    wait_for(&tab, SETTLED, "the drawing with the tone");
+    screenshot(&tab, "shade-tone.png");
+    let view = eval(&tab, "window.pansiteExplorer.view");
+    let at = ["x", "y", "heading", "eye"].map(|k| view[k].as_f64().unwrap());
+    let (w, h, toned) = canvas_pixels(&tab, "underlay");
+    same_as_render(
+        &dir,
+        &scene,
+        (at[0], at[1], at[2], at[3]),
+        (w, h, &toned),
+        &["--shade-tone"],
+    );
+    let washed = bare.iter().zip(&toned).filter(|(a, b)| a != b).count();
+    assert!(washed > 1000, "the tone changed only {washed} pixels");
+
     // Timings, as the page measured them (request to decoded image; test profile).
     let stats = eval(
         &tab,
@@ -493,6 +517,47 @@ fn the_page_in_chromium() {
     drop(tab);
     drop(browser);
     Arc::try_unwrap(explorer).ok().unwrap().stop();
+}
+
+/// Asserts that the grey pixels `shown` (w x h) are `pansite render` of `scene` from
+/// (x, y, heading, eye) with `extra` arguments.
+fn same_as_render(
+    dir: &Scratch,
+    scene: &Path,
+    (x, y, heading, eye): (f64, f64, f64, f64),
+    (w, h, shown): (u32, u32, &[u8]),
+    extra: &[&str],
+) {
+    let rendered = dir.path("render.png");
+    let status = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .arg("render")
+        .arg(scene)
+        .args(["--at", &format!("{},{}", round3(x), round3(y))])
+        .args(["--heading", &format!("{}", round2(heading))])
+        .args(["--eye-height", &format!("{}", round3(eye))])
+        .args(["--size", &format!("{w}x{h}")])
+        .args(extra)
+        .arg("-o")
+        .arg(&rendered)
+        .status()
+        .unwrap();
+    assert!(status.success());
+    let (rw, rh, expected) = png_grey(&rendered);
+    assert_eq!((rw, rh), (w, h));
+    let differing = shown
+        .iter()
+        .zip(&expected)
+        .filter(|(a, b)| (**a as i32 - **b as i32).abs() > 8)
+        .count();
+    let dark = expected.iter().filter(|p| **p < 128).count();
+    assert!(dark > 1000, "the render is nearly blank");
+    // Tolerance: decoding and drawing may round a grey level; no pixel may differ by more
+    // than 8 levels in more than 0.1 % of the image.
+    assert!(
+        differing * 1000 <= shown.len(),
+        "{differing} of {} pixels differ from `pansite render` {extra:?}",
+        shown.len()
+    );
 }
 
 fn save(dir: &Path, scene: &Path, text: &str) {

@@ -40,7 +40,7 @@ fn settings(width: u32) -> RenderSettings {
             moment: Some(LocalMoment::parse(WHEN.0, WHEN.1).unwrap()),
             path: Some(false),
             shadows: Some(false),
-            tone: true,
+            tone: Some(true),
             ..SunChoice::default()
         },
         ..RenderSettings::default()

@@ -39,7 +39,7 @@ pub fn run(floor_time: Duration) {
             seasons: Some(false),
             shadows: Some(true),
             hatch_m: None,
-            tone: false,
+            tone: None,
         },
         ..plain.clone()
     };

@@ -220,6 +220,15 @@ pub fn hidden(p: &mut Params) -> Result<Option<HiddenEdges>, String> {
     )
 }
 
+/// The shade tone: `on` or `off`; `scene` leaves it to the scene's `sun` block.
+pub fn tone(p: &mut Params) -> Result<Option<bool>, String> {
+    Ok(match p.word("tone", &["scene", "on", "off"], "scene")? {
+        "on" => Some(true),
+        "off" => Some(false),
+        _ => None,
+    })
+}
+
 /// The size of a pane's image.
 pub fn size(p: &mut Params, max: (u32, u32)) -> Result<(u32, u32), String> {
     let w = p.whole("w", (MIN_PANE_SIDE, max.0), None)?;
@@ -263,6 +272,25 @@ mod tests {
         assert!(p.finish().unwrap_err().contains("'file'"));
         assert!(query("/u?x=1&x=2").unwrap_err().contains("twice"));
         assert!(query("/u?x=%zz").is_err());
+    }
+
+    #[test]
+    fn the_tone_is_one_of_three_words() {
+        for (query, expected) in [
+            ("/u?tone=on", Some(true)),
+            ("/u?tone=off", Some(false)),
+            ("/u?tone=scene", None),
+            ("/u", None),
+        ] {
+            let mut p = params(query);
+            assert_eq!(tone(&mut p).unwrap(), expected, "{query}");
+            assert!(p.finish().is_ok());
+        }
+        for bad in ["yes", "ON", "1", "../tone", ""] {
+            let mut p = params(&format!("/u?tone={bad}"));
+            let error = tone(&mut p).unwrap_err();
+            assert!(error.contains("'tone'") && error.contains("on, off"), "{error}");
+        }
     }
 
     #[test]

@@ -23,7 +23,7 @@ use crate::error::{Error, Result};
 use crate::output::{rasterize, write_atomically, write_pdf, write_png, PngOptions};
 use crate::page::{title_lines, today};
 use crate::page::{PageSettings, Paper};
-use crate::render::{draw_sheets, draw_with_hidden_lines, RenderSettings};
+use crate::render::{draw_sheets, draw_with_hidden_lines, RenderSettings, SunChoice};
 use crate::scene::{HiddenEdges, SiteCurve, Standpoint};
 use crate::sphere::azimuth_elevation;
 use crate::visibility::ray_hits_triangle;
@@ -90,6 +90,8 @@ enum Task {
         size: (u32, u32),
         hidden: Option<HiddenEdges>,
         overlays: bool,
+        /// The shade tone: on, off, or (`None`) as the scene's `sun` block says.
+        tone: Option<bool>,
     },
     Look {
         standpoint: Standpoint,
@@ -537,6 +539,7 @@ fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
                 size,
                 hidden: params::hidden(p)?,
                 overlays: p.word("grid", &["on", "off"], "on")? == "on",
+                tone: params::tone(p)?,
             }
         }
         _ => Task::Look {
@@ -643,12 +646,17 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             size,
             hidden,
             overlays,
+            tone,
         } => {
             let settings = RenderSettings {
                 width: size.0,
                 height: size.1,
                 hidden: *hidden,
                 overlays: *overlays,
+                sun: SunChoice {
+                    tone: *tone,
+                    ..SunChoice::default()
+                },
                 time_limit: Some(PANE_TIME_LIMIT),
                 ..RenderSettings::default()
             };

@@ -40,7 +40,8 @@ const panes = {
   underlay: { busy: false, again: false, url: () => {
     const c = $("underlay");
     return `/underlay.png?${standpointQuery(view.heading, view.pitch)}&w=${c.width}&h=${c.height}` +
-      `&${hiddenQuery()}&grid=${$("grid").checked ? "on" : "off"}&pane=u${pageId}`;
+      `&${hiddenQuery()}&grid=${$("grid").checked ? "on" : "off"}&tone=${$("tone").value}` +
+      `&pane=u${pageId}`;
   } },
   look: { busy: false, again: false, url: () => {
     const c = $("look");
@@ -467,6 +468,7 @@ function start() {
   $("seated").addEventListener("click", () => { view.eye = scene.seated_eye; redraw(); });
   $("hidden").addEventListener("change", redraw);
   $("grid").addEventListener("change", redraw);
+  $("tone").addEventListener("change", () => ask("underlay"));
   $("fov").addEventListener("input", () => { showWhere(); ask("look"); drawPlan(); });
   $("keep").addEventListener("click", keep);
   $("print").addEventListener("click", print);

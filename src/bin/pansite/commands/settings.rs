@@ -212,7 +212,7 @@ pub fn sun_choice(args: &SunArgs) -> pansite::Result<SunChoice> {
         seasons: args.seasons.then_some(true),
         shadows: args.no_shadows.then_some(false),
         hatch_m: args.hatch,
-        tone: args.shade_tone,
+        tone: args.shade_tone.then_some(true),
     })
 }
 
