@@ -174,21 +174,60 @@ struct SunView {
     v: Vector3<f64>,
     /// The faces' projected boxes; `None` without faces.
     grid: Option<BoxGrid>,
+    /// Each face's image across the rays as the three lines of its sides (unit normal
+    /// into the image, offset), or `None` for an image too thin to tell its inside by
+    /// them (a face within about [`THIN_IMAGE`] radians of edge-on to the sun).
+    images: Vec<Option<[(Vector2<f64>, f64); 3]>>,
+}
+
+/// The least |sin| of the angle between a face's sides, as the sun sees it, for its
+/// image to rule rays out: the ray-triangle test's rounding grows as the image thins,
+/// and stays far below [`VIEW_PAD`] above this.
+const THIN_IMAGE: f64 = 1e-6;
+
+/// The sides of the triangle `a`, `b`, `c` as lines with unit normals pointing in, or
+/// `None` when the triangle is too thin for [`THIN_IMAGE`].
+fn image_sides(
+    a: Vector2<f64>,
+    b: Vector2<f64>,
+    c: Vector2<f64>,
+) -> Option<[(Vector2<f64>, f64); 3]> {
+    let twice_area = (b - a).perp(&(c - a));
+    if !(twice_area.abs() > THIN_IMAGE * (b - a).norm() * (c - a).norm()) {
+        return None;
+    }
+    let sign = twice_area.signum();
+    let side = |p: Vector2<f64>, q: Vector2<f64>| {
+        let d = q - p;
+        let n = Vector2::new(-d.y, d.x) * sign / d.norm();
+        (n, n.dot(&p))
+    };
+    Some([side(a, b), side(b, c), side(c, a)])
 }
 
 impl SunView {
     fn new(faces: &[Face], s: &Vector3<f64>) -> SunView {
         let (u, v) = across_rays(s);
-        let view = SunView { u, v, grid: None };
-        let boxes: Vec<Bounds> = faces
+        let view = SunView {
+            u,
+            v,
+            grid: None,
+            images: Vec::new(),
+        };
+        let images: Vec<[Vector2<f64>; 3]> = faces
             .iter()
-            .map(|f| {
-                let [a, b, c] = f.corners.map(|p| view.project(&p));
-                (a.inf(&b).inf(&c), a.sup(&b).sup(&c))
-            })
+            .map(|f| f.corners.map(|p| view.project(&p)))
+            .collect();
+        let boxes: Vec<Bounds> = images
+            .iter()
+            .map(|[a, b, c]| (a.inf(b).inf(c), a.sup(b).sup(c)))
             .collect();
         SunView {
             grid: BoxGrid::new(&boxes),
+            images: images
+                .iter()
+                .map(|&[a, b, c]| image_sides(a, b, c))
+                .collect(),
             ..view
         }
     }
@@ -202,9 +241,10 @@ impl SunView {
     /// across) meets a face for which `blocks(face, distance, start)` holds, `start` being
     /// the distance within which a hit is the point's own face. A face the ray meets holds
     /// the ray's point there, and so the point's projection, within rounding: only the
-    /// faces whose projected boxes come within [`VIEW_PAD`] (relative) of `p`'s projection
-    /// are tried, by the same test ([`ray_hits_triangle`]) the hierarchy's rays use, so the
-    /// answer is the same as casting the ray through it.
+    /// faces whose projected boxes, and then images (where not too thin), come within
+    /// [`VIEW_PAD`] (relative) of `p`'s projection are tried, by the same test
+    /// ([`ray_hits_triangle`]) the hierarchy's rays use, so the answer is the same as
+    /// casting the ray through it.
     fn ray_meets(
         &self,
         faces: &[Face],
@@ -217,7 +257,14 @@ impl SunView {
         };
         let size = 1.0 + p.coords.abs().max();
         let start = 1e-7 * size;
-        grid.any_near(self.project(p), VIEW_PAD * size, |index| {
+        let (q, pad) = (self.project(p), VIEW_PAD * size);
+        grid.any_near(q, pad, |index| {
+            let outside = |sides: &[(Vector2<f64>, f64); 3]| {
+                sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad)
+            };
+            if self.images[index as usize].as_ref().is_some_and(outside) {
+                return false;
+            }
             ray_hits_triangle(p, s, &faces[index as usize].corners)
                 .is_some_and(|distance| blocks(index, distance, start))
         })
@@ -738,6 +785,34 @@ mod tests {
                 );
             }
         }
+    }
+
+    #[test]
+    fn an_image_rules_out_only_points_outside_it() {
+        // A right triangle (0,0), (4,0), (0,3), either way round: points inside or on a
+        // side are within it, points beyond a side by more than a hair are out (plane
+        // geometry: the distance to a side is the dot product with its unit normal).
+        let (a, b, c) = (
+            Vector2::new(0.0, 0.0),
+            Vector2::new(4.0, 0.0),
+            Vector2::new(0.0, 3.0),
+        );
+        for sides in [image_sides(a, b, c), image_sides(a, c, b)] {
+            let sides = sides.unwrap();
+            let distance_out = |q: Vector2<f64>| {
+                sides
+                    .iter()
+                    .map(|(n, o)| o - n.dot(&q))
+                    .fold(f64::NEG_INFINITY, f64::max)
+            };
+            assert!(distance_out(Vector2::new(1.0, 1.0)) < 0.0);
+            assert!(distance_out(Vector2::new(2.0, 1.5)).abs() < 1e-12); // on the slope
+            assert!((distance_out(Vector2::new(1.0, -0.5)) - 0.5).abs() < 1e-12);
+            // Beyond the slope 3x + 4y = 12 by 1: (3, 4) / 5 from its point (2, 1.5).
+            assert!((distance_out(Vector2::new(2.6, 2.3)) - 1.0).abs() < 1e-12);
+        }
+        // Edge-on to the sun: no image to rule anything out by.
+        assert!(image_sides(a, b, Vector2::new(8.0, 1e-9)).is_none());
     }
 
     #[test]
