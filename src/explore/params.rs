@@ -289,7 +289,10 @@ mod tests {
         for bad in ["yes", "ON", "1", "../tone", ""] {
             let mut p = params(&format!("/u?tone={bad}"));
             let error = tone(&mut p).unwrap_err();
-            assert!(error.contains("'tone'") && error.contains("on, off"), "{error}");
+            assert!(
+                error.contains("'tone'") && error.contains("on, off"),
+                "{error}"
+            );
         }
     }
 

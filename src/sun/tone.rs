@@ -149,10 +149,7 @@ pub fn seen_shade(
             match (index, &extent_grid) {
                 (Some(i), Some(grid)) => {
                     let ((u0, u1), (v0, v1)) = extents[i];
-                    grid.overlapping(
-                        &(Vector2::new(u0, v0), Vector2::new(u1, v1)),
-                        &mut casters,
-                    );
+                    grid.overlapping(&(Vector2::new(u0, v0), Vector2::new(u1, v1)), &mut casters);
                 }
                 _ => casters = (0..site.faces.len() as u32).collect(),
             }
@@ -190,10 +187,12 @@ pub fn seen_shade(
             .map(|piece| piece.iter().map(|q| plane.to_site(q)).collect())
             .collect()
     };
-    cores::in_order(receivers.len(), |k| seen_on(receivers[k].0, &receivers[k].1))
-        .into_iter()
-        .flatten()
-        .collect()
+    cores::in_order(receivers.len(), |k| {
+        seen_on(receivers[k].0, &receivers[k].1)
+    })
+    .into_iter()
+    .flatten()
+    .collect()
 }
 
 /// The pyramid of sight from the eye through a box of a receiving plane: its four sides,
@@ -223,7 +222,9 @@ impl Pyramid {
         let middle = plane.to_site(&((lo + hi) / 2.0)) - eye;
         let mut inward = [Vector3::zeros(); 4];
         for k in 0..4 {
-            let n = corners[k].cross(&corners[(k + 1) % 4]).try_normalize(1e-300)?;
+            let n = corners[k]
+                .cross(&corners[(k + 1) % 4])
+                .try_normalize(1e-300)?;
             inward[k] = if n.dot(&middle) < 0.0 { -n } else { n };
             if !inward[k].iter().all(|v| v.is_finite()) {
                 return None;
@@ -632,7 +633,10 @@ mod tests {
             both[expected as usize] += 1;
             assert_eq!(h.may_hide(&r), expected, "{h:?} {r:?}");
         }
-        assert!(near_the_edge > 5000 && both[0] > 1000 && both[1] > 1000, "{both:?}");
+        assert!(
+            near_the_edge > 5000 && both[0] > 1000 && both[1] > 1000,
+            "{both:?}"
+        );
         // Wholly beyond the receiver: never in front of it.
         let mut far = cone(Vector3::x(), 0.3);
         far.near = 3.0;
