@@ -177,8 +177,11 @@ struct SunView {
     /// Each face's image across the rays as the three lines of its sides (unit normal
     /// into the image, offset), or `None` for an image too thin to tell its inside by
     /// them (a face within about [`THIN_IMAGE`] radians of edge-on to the sun).
-    images: Vec<Option<[(Vector2<f64>, f64); 3]>>,
+    images: Vec<Option<Sides>>,
 }
+
+/// A triangle's sides as lines: unit normal pointing in, and offset (n . p on the line).
+type Sides = [(Vector2<f64>, f64); 3];
 
 /// The least |sin| of the angle between a face's sides, as the sun sees it, for its
 /// image to rule rays out: the ray-triangle test's rounding grows as the image thins,
@@ -187,13 +190,11 @@ const THIN_IMAGE: f64 = 1e-6;
 
 /// The sides of the triangle `a`, `b`, `c` as lines with unit normals pointing in, or
 /// `None` when the triangle is too thin for [`THIN_IMAGE`].
-fn image_sides(
-    a: Vector2<f64>,
-    b: Vector2<f64>,
-    c: Vector2<f64>,
-) -> Option<[(Vector2<f64>, f64); 3]> {
+fn image_sides(a: Vector2<f64>, b: Vector2<f64>, c: Vector2<f64>) -> Option<Sides> {
     let twice_area = (b - a).perp(&(c - a));
-    if !(twice_area.abs() > THIN_IMAGE * (b - a).norm() * (c - a).norm()) {
+    // Written so that NaN is thin too.
+    let fat = twice_area.abs() > THIN_IMAGE * (b - a).norm() * (c - a).norm();
+    if !fat {
         return None;
     }
     let sign = twice_area.signum();
@@ -259,9 +260,7 @@ impl SunView {
         let start = 1e-7 * size;
         let (q, pad) = (self.project(p), VIEW_PAD * size);
         grid.any_near(q, pad, |index| {
-            let outside = |sides: &[(Vector2<f64>, f64); 3]| {
-                sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad)
-            };
+            let outside = |sides: &Sides| sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad);
             if self.images[index as usize].as_ref().is_some_and(outside) {
                 return false;
             }
