@@ -46,6 +46,7 @@ use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
 use super::site::{Edge, Face, ItemId, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use std::collections::HashMap;
+use std::ops::Range;
 
 /// Which axis of the file points up.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, serde::Deserialize)]
@@ -176,6 +177,24 @@ pub fn add_mesh(
     placement: &MeshPlacement,
     name: &str,
 ) -> MeshStats {
+    add_mesh_on_cores(site, obj, placement, name, PARALLEL_FACES)
+}
+
+/// From this many faces on, a model's faces are welded and cut into triangles, and its
+/// edges listed and classed, in two halves on two cores: below it threads cost more than
+/// they save.
+const PARALLEL_FACES: usize = 50_000;
+
+/// [`add_mesh`], on two cores from `parallel_from` faces on (the tests force the split on
+/// small models to check that it changes nothing).
+fn add_mesh_on_cores(
+    site: &mut Site,
+    obj: &ObjFile,
+    placement: &MeshPlacement,
+    name: &str,
+    parallel_from: usize,
+) -> MeshStats {
+    let two_cores = obj.faces.len() >= parallel_from;
     let positions = place(&obj.positions, placement);
     let mut used = vec![false; positions.len()];
     let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
@@ -188,39 +207,13 @@ pub fn add_mesh(
         used[i as usize] = true;
     }
     let (weld, vertices) = weld(&positions, &used);
-    let first_item = site.items.len() as u32;
-    let mut items: HashMap<(u32, u32), ItemId> = HashMap::new();
-    // Runs of faces share their group and material: the last answer is kept at hand.
-    let mut last: Option<((u32, u32), ItemId)> = None;
-    let mut item_of = |site: &mut Site, element: &ObjElement| -> ItemId {
-        let key = (element.group, element.material);
-        if let Some((k, item)) = last {
-            if k == key {
-                return item;
-            }
-        }
-        let item = *items
-            .entry((element.group, element.material))
-            .or_insert_with(|| {
-                let group = &obj.groups[element.group as usize];
-                let material = &obj.materials[element.material as usize];
-                let label = match (group.is_empty(), material.is_empty()) {
-                    (true, true) => name.to_owned(),
-                    (false, true) => format!("{name}: {group}"),
-                    (true, false) => format!("{name} ({material})"),
-                    (false, false) => format!("{name}: {group} ({material})"),
-                };
-                let layer = [material, group].into_iter().find(|s| !s.is_empty());
-                site.add_item_on_layer("model", Some(label), layer.cloned())
-            });
-        last = Some((key, item));
-        item
-    };
-    let mut stats = MeshStats {
-        vertices,
-        ..MeshStats::default()
-    };
     let points = representative(&weld, &positions, vertices);
+    drop((positions, used));
+    let first_item = site.items.len() as u32;
+    // The items first, in the order the faces first use them (a face of no area makes
+    // none), so that the faces can then be cut up on two cores.
+    let mut items = MeshItems::new(name);
+    items.add_for_faces(site, obj, &weld, &points);
 
     // Holes, by face: welded rings without repeats (CityJSON surfaces have them, OBJ none).
     let mut holes_of: HashMap<u32, Vec<Vec<u32>>> = HashMap::new();
@@ -231,121 +224,134 @@ pub fn add_mesh(
         }
     }
     // Faces: welded corner lists without repeats (flat, with each corner's normal index),
-    // their normals, and their triangles.
-    let mut faces: Vec<MeshFace> = Vec::with_capacity(obj.faces.len());
-    let mut corners: Vec<(u32, u32)> = Vec::with_capacity(obj.corners.len());
-    let mut face_holes: Vec<(usize, Vec<u32>)> = Vec::new();
-    site.faces
-        .reserve(obj.corners.len().saturating_sub(2 * obj.faces.len()));
-    for (index, face) in obj.faces.iter().enumerate() {
-        let first = corners.len();
-        for (&c, &n) in obj.face_corners(face).iter().zip(obj.face_normals(face)) {
-            let w = weld[c as usize];
-            if corners.len() == first || corners.last().map(|l| l.0) != Some(w) {
-                corners.push((w, n));
-            }
-        }
-        while corners.len() > first + 1 && corners[first].0 == corners[corners.len() - 1].0 {
-            corners.pop();
-        }
-        let welded = &corners[first..];
-        let normal = if welded.len() < 3 {
-            None
-        } else {
-            newell_normal(welded.iter().map(|c| c.0), welded.len(), &points)
-        };
-        let Some(normal) = normal else {
-            stats.dropped_faces += 1;
-            corners.truncate(first);
-            continue;
-        };
-        let item = item_of(site, face);
-        let p = |i: u32| points[i as usize];
-        let holes = if holes_of.is_empty() {
-            Vec::new()
-        } else {
-            holes_of.remove(&(index as u32)).unwrap_or_default()
-        };
-        if holes.is_empty() && (welded.len() == 3 || is_convex_face(welded, &points, &normal)) {
-            for k in 1..welded.len() - 1 {
-                site.faces.push(Face {
-                    corners: [p(welded[0].0), p(welded[k].0), p(welded[k + 1].0)],
-                    item,
-                    slack: 0.0,
+    // their normals, and their triangles; a large model's second half on another core,
+    // its faces and triangles then following the first half's, as one pass gives them.
+    let work = FaceWork {
+        obj,
+        weld: &weld,
+        points: &points,
+        items: &items,
+        holes_of: &holes_of,
+    };
+    site.faces.reserve(triangles_of(&obj.faces));
+    let face = |corners: [u32; 3], item| Face {
+        corners: corners.map(|i| points[i as usize]),
+        item,
+        slack: 0.0,
+    };
+    let all = 0..obj.faces.len();
+    let welded = if two_cores {
+        // The second core lists its triangles by vertex number (a fifth of their size),
+        // and this one writes them out after its own: each triangle written once.
+        let middle = obj.faces.len() / 2;
+        let (mut welded, (second, triangles)) = std::thread::scope(|scope| {
+            let later = scope.spawn(|| {
+                let second = &obj.faces[middle..];
+                let mut triangles = Vec::with_capacity(triangles_of(second));
+                let mut welded = WeldedFaces::with_room(second);
+                work.run(middle..all.end, &mut welded, |t, item| {
+                    triangles.push((t, item))
                 });
-            }
-            stats.triangles += welded.len() - 2;
-        } else {
-            // A concave face, or one with holes: the general triangulator.
-            let mut ring_points: Vec<Point3<f64>> = welded.iter().map(|&(i, _)| p(i)).collect();
-            let mut hole_starts = Vec::with_capacity(holes.len());
-            for hole in &holes {
-                hole_starts.push(ring_points.len());
-                ring_points.extend(hole.iter().map(|&i| p(i)));
-            }
-            let triangles = super::build::triangulate(&ring_points, &hole_starts);
-            stats.triangles += triangles.len();
-            site.faces.extend(triangles.iter().map(|t| Face {
-                corners: t.map(|i| ring_points[i]),
-                item,
-                slack: 0.0,
-            }));
-        }
-        for hole in holes {
-            face_holes.push((faces.len(), hole));
-        }
-        faces.push(MeshFace {
-            first: first as u32,
-            count: welded.len() as u32,
-            normal,
-            item,
-            smoothing: face.smoothing,
+                (welded, triangles)
+            });
+            // Room for every face here: the second half's are appended.
+            let mut welded = WeldedFaces::with_room(&obj.faces);
+            work.run(0..middle, &mut welded, |t, item| {
+                site.faces.push(face(t, item))
+            });
+            (welded, joined(later))
         });
-    }
-    stats.faces = faces.len();
+        welded.append(second);
+        site.faces
+            .extend(triangles.into_iter().map(|(t, item)| face(t, item)));
+        welded
+    } else {
+        let mut welded = WeldedFaces::with_room(&obj.faces);
+        work.run(all, &mut welded, |t, item| site.faces.push(face(t, item)));
+        welded
+    };
+    drop(holes_of);
+    let mut stats = MeshStats {
+        vertices,
+        faces: welded.faces.len(),
+        dropped_faces: welded.dropped,
+        triangles: welded.triangles,
+        ..MeshStats::default()
+    };
 
-    // Every face edge as (low, high, face, corner index in the face * 2 + runs low -> high);
-    // sorted, equal edges are adjacent. A hole's edges belong to its face, at HOLE_CORNER.
-    let face_edges = sorted_face_edges(&faces, &corners, &face_holes, vertices);
+    // Every face edge as (low vertex, high vertex, face, code), grouped by the low vertex
+    // and sorted: equal edges are adjacent. A large model's in two ranges of low vertices
+    // on two cores, cut where half the edges lie on either side (equal edges share their
+    // low vertex); the second range's edges follow the first's, as one pass gives them.
+    let starts = edge_starts(&welded, vertices, two_cores);
+    let total = starts[vertices] as usize;
+    let cut = if two_cores {
+        starts
+            .partition_point(|&s| (s as usize) < total / 2)
+            .min(vertices)
+    } else {
+        vertices
+    };
     let classes = EdgeClasses {
         obj,
-        faces: &faces,
-        corners: &corners,
+        faces: &welded.faces,
+        corners: &welded.corners,
         points: &points,
         crease: placement.crease_deg.to_radians(),
     };
-    // A large model's edges in two halves on two cores, cut between two vertices' edges
-    // (equal edges share their low vertex); the second half's edges follow the first's, as
-    // one pass gives them.
-    let cut = if face_edges.len() < PARALLEL_EDGES {
-        face_edges.len()
-    } else {
-        let middle = face_edges.len() / 2;
-        middle
-            + face_edges[middle..]
-                .iter()
-                .position(|e| e.0 != face_edges[middle].0)
-                .unwrap_or(face_edges.len() - middle)
+    // Room for every edge at once (each distinct edge is at least one face edge): what is
+    // never written costs address space, not memory, and nothing is copied as they grow.
+    site.edges.reserve(total);
+    site.silhouette_candidates.reserve(total);
+    let lows = |range: Range<usize>| {
+        let sorted = face_edges_from(&welded, &starts, range.clone());
+        (range, sorted)
     };
-    let (first, second) = face_edges.split_at(cut);
+    let edge = |a: u32, b: u32, item| Edge {
+        curve: SiteCurve::Segment {
+            start: points[a as usize],
+            end: points[b as usize],
+        },
+        item,
+    };
+    // The second core lists its drawn edges by vertex number, written out here after the
+    // first range's, as with the triangles.
     let later = std::thread::scope(|scope| {
-        let later = (!second.is_empty()).then(|| {
+        let later = (cut < vertices).then(|| {
             scope.spawn(|| {
-                let mut later = (Vec::new(), Vec::new(), MeshStats::default());
-                classes.classify(second, &mut later.0, &mut later.1, &mut later.2);
+                let (range, sorted) = lows(cut..vertices);
+                let room = sorted.len();
+                let mut later = (
+                    Vec::with_capacity(room),
+                    Vec::with_capacity(room),
+                    MeshStats::default(),
+                );
+                let edges = &mut later.0;
+                classes.classify(
+                    &starts,
+                    range,
+                    &sorted,
+                    |a, b, item| edges.push((a, b, item)),
+                    &mut later.1,
+                    &mut later.2,
+                );
                 later
             })
         });
+        let (range, sorted) = lows(0..cut);
         classes.classify(
-            first,
-            &mut site.edges,
+            &starts,
+            range,
+            &sorted,
+            |a, b, item| site.edges.push(edge(a, b, item)),
             &mut site.silhouette_candidates,
             &mut stats,
         );
-        later.map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+        later.map(joined)
     });
-    if let Some((mut edges, mut silhouettes, counts)) = later {
-        site.edges.append(&mut edges);
+    if let Some((edges, mut silhouettes, counts)) = later {
+        site.edges
+            .extend(edges.into_iter().map(|(a, b, item)| edge(a, b, item)));
         site.silhouette_candidates.append(&mut silhouettes);
         stats.edges += counts.edges;
         stats.boundary += counts.boundary;
@@ -356,7 +362,7 @@ pub fn add_mesh(
     }
 
     for line in &obj.lines {
-        let item = item_of(site, line);
+        let item = items.get_or_add(site, obj, line);
         for pair in obj.line_indices(line).windows(2) {
             let (a, b) = (weld[pair[0] as usize], weld[pair[1] as usize]);
             if a != b {
@@ -365,12 +371,14 @@ pub fn add_mesh(
             }
         }
     }
+    site.edges.shrink_to_fit();
+    site.silhouette_candidates.shrink_to_fit();
     let last_item = site.items.len() as u32;
     // A closed surface (every edge between exactly two faces) is a solid one cannot stand in.
     if stats.boundary == 0 && stats.non_manifold == 0 && stats.faces > 0 {
         site.closed_models.push(first_item..last_item);
     }
-    if let Some(&item) = items.values().min_by_key(|i| i.0) {
+    if let Some(item) = items.first() {
         for warning in &obj.warnings {
             site.warnings.push((item, warning.clone()));
         }
@@ -378,8 +386,257 @@ pub fn add_mesh(
     stats
 }
 
-/// Below this many face edges a model's edges are classed on one core.
-const PARALLEL_EDGES: usize = 200_000;
+/// What a scoped thread returned, its panic passed on.
+fn joined<T>(handle: std::thread::ScopedJoinHandle<'_, T>) -> T {
+    handle
+        .join()
+        .unwrap_or_else(|e| std::panic::resume_unwind(e))
+}
+
+/// The site's items for a mesh's groups and materials, made in the order the faces, then
+/// the lines, first use them.
+struct MeshItems<'a> {
+    name: &'a str,
+    of: HashMap<(u32, u32), ItemId>,
+    /// Runs of faces share their group and material: the last answer is kept at hand.
+    last: Option<((u32, u32), ItemId)>,
+}
+
+impl<'a> MeshItems<'a> {
+    fn new(name: &'a str) -> Self {
+        MeshItems {
+            name,
+            of: HashMap::new(),
+            last: None,
+        }
+    }
+
+    /// The item of a group and material, if one is made.
+    fn get(&self, key: (u32, u32)) -> Option<ItemId> {
+        self.of.get(&key).copied()
+    }
+
+    /// The first item made.
+    fn first(&self) -> Option<ItemId> {
+        self.of.values().min_by_key(|i| i.0).copied()
+    }
+
+    /// The item of an element's group and material, made if new.
+    fn get_or_add(&mut self, site: &mut Site, obj: &ObjFile, element: &ObjElement) -> ItemId {
+        let key = (element.group, element.material);
+        if let Some((k, item)) = self.last {
+            if k == key {
+                return item;
+            }
+        }
+        let name = self.name;
+        let item = *self.of.entry(key).or_insert_with(|| {
+            let group = &obj.groups[element.group as usize];
+            let material = &obj.materials[element.material as usize];
+            let label = match (group.is_empty(), material.is_empty()) {
+                (true, true) => name.to_owned(),
+                (false, true) => format!("{name}: {group}"),
+                (true, false) => format!("{name} ({material})"),
+                (false, false) => format!("{name}: {group} ({material})"),
+            };
+            let layer = [material, group].into_iter().find(|s| !s.is_empty());
+            site.add_item_on_layer("model", Some(label), layer.cloned())
+        });
+        self.last = Some((key, item));
+        item
+    }
+
+    /// Makes the item of every group and material that a face of some area uses, in the
+    /// order of those faces. Only a face whose group and material have no item yet is
+    /// welded to see whether it has an area: one or a few per item.
+    fn add_for_faces(
+        &mut self,
+        site: &mut Site,
+        obj: &ObjFile,
+        weld: &[u32],
+        points: &[Point3<f64>],
+    ) {
+        let mut scratch = Vec::new();
+        let mut known = None;
+        for face in &obj.faces {
+            let key = (face.group, face.material);
+            if known == Some(key) {
+                continue;
+            }
+            if self.of.contains_key(&key) {
+                known = Some(key);
+                continue;
+            }
+            scratch.clear();
+            if weld_face(obj, face, weld, points, &mut scratch).is_some() {
+                self.get_or_add(site, obj, face);
+                known = Some(key);
+            }
+        }
+    }
+}
+
+/// A face's corners through the weld without repeats (nor the first repeated at the end),
+/// appended to `corners` with each corner's normal index, and its unit normal; for a face
+/// of no area `None`, and nothing appended.
+fn weld_face(
+    obj: &ObjFile,
+    face: &ObjElement,
+    weld: &[u32],
+    points: &[Point3<f64>],
+    corners: &mut Vec<(u32, u32)>,
+) -> Option<Vector3<f64>> {
+    let first = corners.len();
+    for (&c, &n) in obj.face_corners(face).iter().zip(obj.face_normals(face)) {
+        let w = weld[c as usize];
+        if corners.len() == first || corners.last().map(|l| l.0) != Some(w) {
+            corners.push((w, n));
+        }
+    }
+    while corners.len() > first + 1 && corners[first].0 == corners[corners.len() - 1].0 {
+        corners.pop();
+    }
+    let welded = &corners[first..];
+    let normal = if welded.len() < 3 {
+        None
+    } else {
+        newell_normal(welded.iter().map(|c| c.0), welded.len(), points)
+    };
+    if normal.is_none() {
+        corners.truncate(first);
+    }
+    normal
+}
+
+/// A mesh's faces after welding (those of some area), in file order.
+struct WeldedFaces {
+    faces: Vec<MeshFace>,
+    /// Each face's corners: (vertex after welding, normal index).
+    corners: Vec<(u32, u32)>,
+    /// Holes: the face's place in `faces`, and the welded ring.
+    holes: Vec<(usize, Vec<u32>)>,
+    /// Faces of no area left out.
+    dropped: usize,
+    /// Triangles made.
+    triangles: usize,
+}
+
+impl WeldedFaces {
+    /// Empty, with room for `faces`.
+    fn with_room(faces: &[ObjElement]) -> Self {
+        let corners: usize = faces.iter().map(|f| f.count as usize).sum();
+        WeldedFaces {
+            faces: Vec::with_capacity(faces.len()),
+            corners: Vec::with_capacity(corners),
+            holes: Vec::new(),
+            dropped: 0,
+            triangles: 0,
+        }
+    }
+
+    /// Appends the faces welded after these.
+    fn append(&mut self, later: WeldedFaces) {
+        let (face_base, corner_base) = (self.faces.len(), self.corners.len() as u32);
+        self.faces
+            .extend(later.faces.into_iter().map(|face| MeshFace {
+                first: face.first + corner_base,
+                ..face
+            }));
+        self.corners.extend_from_slice(&later.corners);
+        self.holes.extend(
+            later
+                .holes
+                .into_iter()
+                .map(|(face, ring)| (face + face_base, ring)),
+        );
+        self.dropped += later.dropped;
+        self.triangles += later.triangles;
+    }
+}
+
+/// The triangles `faces` make when none is dropped, concave or holed.
+fn triangles_of(faces: &[ObjElement]) -> usize {
+    faces
+        .iter()
+        .map(|f| (f.count as usize).saturating_sub(2))
+        .sum()
+}
+
+/// What welding faces and cutting them into triangles reads.
+struct FaceWork<'a> {
+    obj: &'a ObjFile,
+    weld: &'a [u32],
+    points: &'a [Point3<f64>],
+    items: &'a MeshItems<'a>,
+    holes_of: &'a HashMap<u32, Vec<Vec<u32>>>,
+}
+
+impl FaceWork<'_> {
+    /// Welds the file's faces `range` into `welded`, and hands each of their triangles
+    /// (its vertices after welding) with its item to `triangle`.
+    fn run(
+        &self,
+        range: Range<usize>,
+        welded: &mut WeldedFaces,
+        mut triangle: impl FnMut([u32; 3], ItemId),
+    ) {
+        let points = self.points;
+        let p = |i: u32| points[i as usize];
+        let mut last: Option<((u32, u32), ItemId)> = None;
+        for (index, face) in range.clone().zip(&self.obj.faces[range]) {
+            let first = welded.corners.len();
+            let normal = weld_face(self.obj, face, self.weld, points, &mut welded.corners);
+            let key = (face.group, face.material);
+            let item = match last {
+                Some((k, item)) if k == key => Some(item),
+                _ => self.items.get(key),
+            };
+            // Every face of some area has its item (`MeshItems::add_for_faces`).
+            let (Some(normal), Some(item)) = (normal, item) else {
+                welded.corners.truncate(first);
+                welded.dropped += 1;
+                continue;
+            };
+            last = Some((key, item));
+            let corners = &welded.corners[first..];
+            let holes = self
+                .holes_of
+                .get(&(index as u32))
+                .map_or(&[][..], |h| h.as_slice());
+            if holes.is_empty() && (corners.len() == 3 || is_convex_face(corners, points, &normal))
+            {
+                for k in 1..corners.len() - 1 {
+                    triangle([corners[0].0, corners[k].0, corners[k + 1].0], item);
+                }
+                welded.triangles += corners.len() - 2;
+            } else {
+                // A concave face, or one with holes: the general triangulator.
+                let mut ring: Vec<u32> = corners.iter().map(|&(i, _)| i).collect();
+                let mut hole_starts = Vec::with_capacity(holes.len());
+                for hole in holes {
+                    hole_starts.push(ring.len());
+                    ring.extend(hole);
+                }
+                let ring_points: Vec<Point3<f64>> = ring.iter().map(|&i| p(i)).collect();
+                let made = super::build::triangulate(&ring_points, &hole_starts);
+                welded.triangles += made.len();
+                for t in made {
+                    triangle(t.map(|i| ring[i]), item);
+                }
+            }
+            for hole in holes {
+                welded.holes.push((welded.faces.len(), hole.clone()));
+            }
+            welded.faces.push(MeshFace {
+                first: first as u32,
+                count: (welded.corners.len() - first) as u32,
+                normal,
+                item,
+                smoothing: face.smoothing,
+            });
+        }
+    }
+}
 
 /// What classing the edges needs: the faces after welding, their corners, the welded
 /// positions, and the crease angle (radians).
@@ -392,83 +649,80 @@ struct EdgeClasses<'a> {
 }
 
 impl EdgeClasses<'_> {
-    /// Walks the runs of equal edges in `sorted` (from [`sorted_face_edges`]), adding the
-    /// drawn ones to `edges`, the smooth ones to `silhouettes`, and counting them.
+    /// Walks the runs of equal edges whose low vertex is in `lows` (`sorted` from
+    /// [`face_edges_from`], `starts` from [`edge_starts`]), handing the drawn ones (their
+    /// vertices and item) to `draw`, adding the smooth ones to `silhouettes`, and counting
+    /// them.
     fn classify(
         &self,
-        sorted: &[(u32, u32, u32, u32)],
-        edges: &mut Vec<Edge>,
+        starts: &[u32],
+        lows: Range<usize>,
+        sorted: &[(u32, u32, u32)],
+        mut draw: impl FnMut(u32, u32, ItemId),
         silhouettes: &mut Vec<SilhouetteEdge>,
         stats: &mut MeshStats,
     ) {
         let (faces, points) = (self.faces, self.points);
-        let mut draw = |item, start, end| {
-            edges.push(Edge {
-                curve: SiteCurve::Segment { start, end },
-                item,
-            })
-        };
-        let mut start = 0;
-        while start < sorted.len() {
-            let (a, b, first_face, first_code) = sorted[start];
-            let mut end = start + 1;
-            while end < sorted.len() && sorted[end].0 == a && sorted[end].1 == b {
-                end += 1;
-            }
-            stats.edges += 1;
-            let item = faces[first_face as usize].item;
-            let (pa, pb) = (points[a as usize], points[b as usize]);
-            match end - start {
-                1 => {
-                    stats.boundary += 1;
-                    draw(item, pa, pb);
-                }
-                2 => {
-                    let (_, _, second_face, second_code) = sorted[start + 1];
-                    let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
-                    let n1 = f1.normal;
-                    // Consistently wound neighbours run a shared edge in opposite
-                    // directions; where they do not, one of them is turned over.
-                    let flip = if first_code & 1 == second_code & 1 {
-                        -1.0
-                    } else {
-                        1.0
-                    };
-                    let n2 = f2.normal * flip;
-                    // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
-                    let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
-                    if angle <= COPLANAR {
-                        // A triangulation diagonal or a subdivided flat wall: never drawn.
-                    } else {
-                        let said = file_says_smooth(
-                            self.obj,
-                            self.corners,
-                            (f1, first_code),
-                            (f2, second_code),
-                        );
-                        if said.is_some() {
-                            stats.by_file += 1;
-                        }
-                        if !said.unwrap_or(angle <= self.crease) {
-                            stats.creases += 1;
-                            draw(item, pa, pb);
+        let base = starts[lows.start] as usize;
+        for a in lows {
+            let pa = points[a];
+            let at_a = &sorted[starts[a] as usize - base..starts[a + 1] as usize - base];
+            for run in at_a.chunk_by(|x, y| x.0 == y.0) {
+                let (b, first_face, first_code) = run[0];
+                stats.edges += 1;
+                let item = faces[first_face as usize].item;
+                let pb = points[b as usize];
+                match run.len() {
+                    1 => {
+                        stats.boundary += 1;
+                        draw(a as u32, b, item);
+                    }
+                    2 => {
+                        let (_, second_face, second_code) = run[1];
+                        let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
+                        let n1 = f1.normal;
+                        // Consistently wound neighbours run a shared edge in opposite
+                        // directions; where they do not, one of them is turned over.
+                        let flip = if first_code & 1 == second_code & 1 {
+                            -1.0
                         } else {
-                            stats.smooth += 1;
-                            silhouettes.push(SilhouetteEdge {
-                                start: pa,
-                                end: pb,
-                                normals: [n1, n2],
-                                item,
-                            });
+                            1.0
+                        };
+                        let n2 = f2.normal * flip;
+                        // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
+                        let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
+                        if angle <= COPLANAR {
+                            // A triangulation diagonal or a subdivided flat wall: never drawn.
+                        } else {
+                            let said = file_says_smooth(
+                                self.obj,
+                                self.corners,
+                                (f1, first_code),
+                                (f2, second_code),
+                            );
+                            if said.is_some() {
+                                stats.by_file += 1;
+                            }
+                            if !said.unwrap_or(angle <= self.crease) {
+                                stats.creases += 1;
+                                draw(a as u32, b, item);
+                            } else {
+                                stats.smooth += 1;
+                                silhouettes.push(SilhouetteEdge {
+                                    start: pa,
+                                    end: pb,
+                                    normals: [n1, n2],
+                                    item,
+                                });
+                            }
                         }
                     }
-                }
-                _ => {
-                    stats.non_manifold += 1;
-                    draw(item, pa, pb);
+                    _ => {
+                        stats.non_manifold += 1;
+                        draw(a as u32, b, item);
+                    }
                 }
             }
-            start = end;
         }
     }
 }
@@ -484,34 +738,29 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
     welded
 }
 
-/// Every face edge as (low vertex, high vertex, face, code), in the order `sort_unstable`
-/// gives them (the tuples are distinct but for repeated hole edges, which are equal), so
-/// that equal edges are adjacent. `code` is the corner index in the face times two, plus
-/// one if the face runs the edge from the low vertex to the high; a hole's edges carry
-/// [`HOLE_CORNER`]. A counting sort on the low vertex (two passes over the faces: count,
-/// then place) leaves only a handful of edges at each vertex to sort: linear time, where
-/// sorting all the edges at once was the costliest step of a large model.
-fn sorted_face_edges(
-    faces: &[MeshFace],
-    corners: &[(u32, u32)],
-    face_holes: &[(usize, Vec<u32>)],
-    vertices: usize,
-) -> Vec<(u32, u32, u32, u32)> {
-    // Calls `visit(low, high, face, code)` for every edge, faces first, then holes.
-    let each_edge = |visit: &mut dyn FnMut(u32, u32, u32, u32)| {
-        for (f, face) in faces.iter().enumerate() {
-            let ring = &corners[face.first as usize..(face.first + face.count) as usize];
-            for k in 0..ring.len() {
-                let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
-                visit(
-                    a.min(b),
-                    a.max(b),
-                    f as u32,
-                    (k as u32) << 1 | (a < b) as u32,
-                );
-            }
+/// Calls `visit(low, high, face, code)` for every face edge, faces first, then holes.
+/// `code` is the corner index in the face times two, plus one if the face runs the edge
+/// from the low vertex to the high; a hole's edges carry [`HOLE_CORNER`].
+fn each_face_edge(
+    welded: &WeldedFaces,
+    faces: Range<usize>,
+    mut visit: impl FnMut(u32, u32, u32, u32),
+) {
+    let holes_too = faces.end == welded.faces.len();
+    for (f, face) in faces.clone().zip(&welded.faces[faces]) {
+        let ring = &welded.corners[face.first as usize..(face.first + face.count) as usize];
+        for k in 0..ring.len() {
+            let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
+            visit(
+                a.min(b),
+                a.max(b),
+                f as u32,
+                (k as u32) << 1 | (a < b) as u32,
+            );
         }
-        for (f, ring) in face_holes {
+    }
+    if holes_too {
+        for (f, ring) in &welded.holes {
             for k in 0..ring.len() {
                 let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
                 visit(
@@ -522,23 +771,62 @@ fn sorted_face_edges(
                 );
             }
         }
+    }
+}
+
+/// Where each vertex's face edges begin when grouped by their low vertex: those of `v`
+/// are `starts[v]..starts[v + 1]` (a counting sort's first pass; on two cores, each
+/// counting half of the faces).
+fn edge_starts(welded: &WeldedFaces, vertices: usize, two_cores: bool) -> Vec<u32> {
+    let count = |faces: Range<usize>| {
+        let mut counts = vec![0u32; vertices + 1];
+        each_face_edge(welded, faces, |low, _, _, _| counts[low as usize + 1] += 1);
+        counts
     };
-    // starts[v]: where the edges whose low vertex is v begin.
-    let mut starts = vec![0u32; vertices + 1];
-    each_edge(&mut |low, _, _, _| starts[low as usize + 1] += 1);
+    let all = 0..welded.faces.len();
+    let mut starts = if two_cores {
+        let middle = all.end / 2;
+        let (mut counts, later) = std::thread::scope(|scope| {
+            let later = scope.spawn(|| count(middle..all.end));
+            (count(0..middle), joined(later))
+        });
+        for (c, l) in counts.iter_mut().zip(later) {
+            *c += l;
+        }
+        counts
+    } else {
+        count(all)
+    };
     for v in 0..vertices {
         starts[v + 1] += starts[v];
     }
-    let total = starts[vertices] as usize;
-    let mut sorted = vec![(0u32, 0u32, 0u32, 0u32); total];
-    let mut next = starts.clone();
-    each_edge(&mut |low, high, face, code| {
-        let at = &mut next[low as usize];
-        sorted[*at as usize] = (low, high, face, code);
-        *at += 1;
+    starts
+}
+
+/// The face edges whose low vertex is in `lows`, as (high vertex, face, code) grouped by
+/// low vertex (`starts` from [`edge_starts`]) and each vertex's sorted: equal edges are
+/// adjacent, in the order `sort_unstable` gives (low, high, face, code) tuples (distinct
+/// but for repeated hole edges, which are equal). The counting sort leaves only a handful
+/// of edges at each vertex to sort: linear time, where sorting all the edges at once was
+/// the costliest step of a large model.
+fn face_edges_from(
+    welded: &WeldedFaces,
+    starts: &[u32],
+    lows: Range<usize>,
+) -> Vec<(u32, u32, u32)> {
+    let base = starts[lows.start];
+    let mut sorted = vec![(0u32, 0u32, 0u32); (starts[lows.end] - base) as usize];
+    let mut next: Vec<u32> = starts[lows.clone()].iter().map(|s| s - base).collect();
+    let (from, to) = (lows.start as u32, lows.end as u32);
+    each_face_edge(welded, 0..welded.faces.len(), |low, high, face, code| {
+        if (from..to).contains(&low) {
+            let at = &mut next[(low - from) as usize];
+            sorted[*at as usize] = (high, face, code);
+            *at += 1;
+        }
     });
-    for v in 0..vertices {
-        sorted[starts[v] as usize..starts[v + 1] as usize].sort_unstable();
+    for v in lows {
+        sorted[(starts[v] - base) as usize..(starts[v + 1] - base) as usize].sort_unstable();
     }
     sorted
 }
@@ -1036,6 +1324,89 @@ mod tests {
         // A fold of 10 degrees with nothing said: the crease angle leaves it smooth.
         let bare = fold("", "f 1 2 3 4\nf 2 5 6 3\n");
         assert_eq!(import(&bare, &z_up()).1.creases, 0);
+    }
+
+    #[test]
+    fn two_cores_give_what_one_gives() {
+        // Groups and materials (one whose first face has no area), smoothing groups,
+        // normals split and shared, concave faces, faces of no area, holes, a non-manifold
+        // fin and a polyline: every path of the two-core split against one core.
+        let mut text = String::from("vn 0 0 1\nvn 0 1 0\n");
+        let mut base = 0;
+        for k in 0..12 {
+            let x = 3.0 * k as f64;
+            let group = ["wall", "roof", "slab"][k % 3];
+            writeln!(text, "g {group}\nusemtl m{}\ns {}", k % 2, k % 4).unwrap();
+            if k == 4 {
+                // A face of no area first: its item comes from the next face.
+                writeln!(text, "g sliver\nf {} {} {}", base + 1, base + 1, base + 2).unwrap();
+            }
+            for line in tower(40.0 + k as f64).lines() {
+                match line.strip_prefix("v ") {
+                    Some(v) => {
+                        let c: Vec<f64> = v.split(' ').map(|w| w.parse().unwrap()).collect();
+                        writeln!(text, "v {} {} {}", c[0] + x, c[1], c[2]).unwrap();
+                    }
+                    None => {
+                        let corners: Vec<String> = line
+                            .split(' ')
+                            .skip(1)
+                            .map(|i| {
+                                let i = i.parse::<usize>().unwrap() + base;
+                                if k % 3 == 1 {
+                                    format!("{i}//{}", 1 + i % 2)
+                                } else {
+                                    i.to_string()
+                                }
+                            })
+                            .collect();
+                        writeln!(text, "f {}", corners.join(" ")).unwrap();
+                    }
+                }
+            }
+            // An L-shaped (concave) lid beside it, and a fin on its base.
+            writeln!(
+                text,
+                "v {x} 5 0\nv {} 5 0\nv {} 6 0\nv {} 6 0\nv {} 7 0\nv {x} 7 0\nf -6 -5 -4 -3 -2 -1\nv {} 0 -1\nf {} {} -1",
+                x + 2.0, x + 2.0, x + 1.0, x + 1.0, x + 1.0, base + 1, base + 2
+            ).unwrap();
+            base += 16;
+        }
+        text.push_str("g mast\nl 1 5 9\n");
+        let mut obj = parse_obj(text.as_bytes(), Path::new("t.obj")).unwrap();
+        // A hole in the first tower's floor (as CityJSON surfaces have them).
+        obj.positions
+            .extend([[0.5, 0.5, 0.0], [1.5, 0.5, 0.0], [1.0, 1.5, 0.0]].map(Point3::from));
+        let n = obj.positions.len() as u32;
+        obj.holes.push((0, vec![n - 3, n - 2, n - 1]));
+        let placement = z_up();
+        let mut one = Site::default();
+        let one_stats = add_mesh_on_cores(&mut one, &obj, &placement, "t.obj", usize::MAX);
+        let mut two = Site::default();
+        let two_stats = add_mesh_on_cores(&mut two, &obj, &placement, "t.obj", 0);
+        assert_eq!(one_stats, two_stats);
+        assert_eq!(one, two);
+        assert!(
+            one_stats.dropped_faces == 1 && one_stats.non_manifold > 0 && one_stats.by_file > 0
+        );
+        assert!(
+            one.items.len() > 6 && one.faces.len() > 12 * 18,
+            "{} {}",
+            one.items.len(),
+            one.faces.len()
+        );
+        // And the smallest models.
+        for text in [
+            CUBE,
+            "v 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n",
+            "v 0 0 0\nv 1 0 0\nl 1 2\n",
+        ] {
+            let obj = parse_obj(text.as_bytes(), Path::new("t.obj")).unwrap();
+            let (mut one, mut two) = (Site::default(), Site::default());
+            let a = add_mesh_on_cores(&mut one, &obj, &placement, "t.obj", usize::MAX);
+            let b = add_mesh_on_cores(&mut two, &obj, &placement, "t.obj", 0);
+            assert_eq!((a, one), (b, two));
+        }
     }
 
     #[test]
