@@ -231,7 +231,11 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
             let handles: Vec<_> = pieces
                 .iter()
                 .enumerate()
-                .map(|(k, piece)| scope.spawn(move || read_piece(piece, k == 0, false)))
+                .map(|(k, piece)| {
+                    // The first piece's arrays become the file's: room for all of it.
+                    let room = if k == 0 { text.len() } else { piece.len() };
+                    scope.spawn(move || read_piece(piece, k == 0, false, room))
+                })
                 .collect();
             handles
                 .into_iter()
@@ -249,7 +253,7 @@ pub fn parse_obj(bytes: &[u8], path: &Path) -> Result<ObjFile> {
         Some(obj) => obj,
         // One piece: every check in file order, so the first mistake is the one reported.
         None => {
-            let piece = read_piece(text, true, true)
+            let piece = read_piece(text, true, true, text.len())
                 .map_err(|m| error(m.line, column_of(text, m.line, m.byte), m.message))?;
             join(vec![piece])
                 .ok_or_else(|| error(1, 1, "internal: the file could not be joined".to_owned()))?
@@ -358,6 +362,24 @@ struct Piece {
     line_count: usize,
 }
 
+impl Piece {
+    /// Empty, with room for the most that `bytes` of text can hold (a `v` or `f` line
+    /// takes at least 7 bytes and its line end, a corner 2), within the limits of one run:
+    /// no array grows (and is copied) while it is read, and what is never written costs
+    /// address space, not memory.
+    fn with_room(bytes: usize) -> Self {
+        let lines = (bytes / 8 + 1).min(MAX_TRIANGLES + 1);
+        let corners = (bytes / 2 + 1).min(3 * MAX_TRIANGLES + 1);
+        Piece {
+            positions: Vec::with_capacity(lines),
+            faces: Vec::with_capacity(lines),
+            corners: Vec::with_capacity(corners),
+            corner_normals: Vec::with_capacity(corners),
+            ..Piece::default()
+        }
+    }
+}
+
 fn mistake(line: usize, byte: usize, message: String) -> Mistake {
     Mistake {
         line,
@@ -440,6 +462,86 @@ fn plain_vertex(line: &[u8]) -> Option<[f64; 3]> {
     Some(coordinates)
 }
 
+/// The most corners of a face that [`plain_face`] reads; longer faces take the general path.
+const PLAIN_CORNERS: usize = 8;
+
+/// A face corner as written: its position index and where the index begins in the line,
+/// and the same for its normal index if it gives one.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+struct PlainCorner {
+    position: i64,
+    position_byte: usize,
+    normal: Option<(i64, usize)>,
+}
+
+/// The corners of an `f` line written plainly (`f` at its start, then 3 to
+/// [`PLAIN_CORNERS`] corners `p`, `p/t`, `p//n` or `p/t/n`, each index a whole number of
+/// at most 18 digits), read in one pass into `corners`: most of a large file. `None` for
+/// anything else, which the general reader reads and words any mistake in; for every line
+/// this accepts, the general reader finds the same indices at the same bytes.
+fn plain_face(line: &[u8], corners: &mut [PlainCorner; PLAIN_CORNERS]) -> Option<usize> {
+    if line.first() != Some(&b'f') || !line.get(1)?.is_ascii_whitespace() {
+        return None;
+    }
+    let space = |at: usize| line.get(at).is_none_or(|b| b.is_ascii_whitespace());
+    let mut at = 1;
+    let mut count = 0;
+    loop {
+        while line.get(at).is_some_and(|b| b.is_ascii_whitespace()) {
+            at += 1;
+        }
+        if at == line.len() {
+            break;
+        }
+        let corner = corners.get_mut(count)?;
+        corner.position_byte = at;
+        corner.position = index_at(line, &mut at)?;
+        corner.normal = None;
+        if line.get(at) == Some(&b'/') {
+            at += 1;
+            // The texture index, not kept.
+            if !space(at) && line[at] != b'/' {
+                index_at(line, &mut at)?;
+            }
+            if line.get(at) == Some(&b'/') {
+                at += 1;
+                if !space(at) {
+                    let byte = at;
+                    corner.normal = Some((index_at(line, &mut at)?, byte));
+                }
+            }
+        }
+        if !space(at) {
+            return None;
+        }
+        count += 1;
+    }
+    (count >= 3).then_some(count)
+}
+
+/// A whole number at `line[*at..]` (a sign, then 1 to 18 digits, so that it cannot
+/// overflow), `at` moved past it.
+fn index_at(line: &[u8], at: &mut usize) -> Option<i64> {
+    let negative = line.get(*at) == Some(&b'-');
+    if negative || line.get(*at) == Some(&b'+') {
+        *at += 1;
+    }
+    let start = *at;
+    let mut value: i64 = 0;
+    while let Some(digit) = line
+        .get(*at)
+        .map(|b| b.wrapping_sub(b'0'))
+        .filter(|&d| d <= 9)
+    {
+        if *at - start == 18 {
+            return None;
+        }
+        value = value * 10 + i64::from(digit);
+        *at += 1;
+    }
+    (*at > start).then_some(if negative { -value } else { value })
+}
+
 /// The ASCII-whitespace-separated words of a line with their byte offsets.
 fn words(line: &str) -> impl Iterator<Item = (usize, &str)> {
     let bytes = line.as_bytes();
@@ -462,8 +564,14 @@ fn words(line: &str) -> impl Iterator<Item = (usize, &str)> {
 /// Reads one piece. `first` says it begins the file (so relative indices and what is in
 /// force are known); `whole` that it is the whole file, checked in full in file order
 /// (absolute indices against the final counts, the limits by the line that passes them).
-fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece, Mistake> {
-    let mut piece = Piece::default();
+/// Its arrays are made with room for the most that `room` bytes of text can hold.
+fn read_piece(
+    text: &str,
+    first: bool,
+    whole: bool,
+    room: usize,
+) -> std::result::Result<Piece, Mistake> {
+    let mut piece = Piece::with_room(room);
     let mut group_index: HashMap<GroupName, u32> = HashMap::new();
     let mut material_index: HashMap<String, u32> = HashMap::new();
     let (mut group, mut material, mut smoothing) = if first {
@@ -482,6 +590,7 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
     let mut forward: Vec<(usize, usize, i64, bool)> = Vec::new();
     let (mut triangles, mut line_edges) = (0usize, 0usize);
     let mut number = 0;
+    let mut plain = [PlainCorner::default(); PLAIN_CORNERS];
     for line in lines(text) {
         number += 1;
         if let Some(coordinates) = plain_vertex(line.as_bytes()) {
@@ -489,6 +598,47 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
                 piece.positions.push(Point3::from(coordinates));
                 continue;
             }
+        }
+        if let Some(count) = plain_face(line.as_bytes(), &mut plain) {
+            // The general path's steps for these corners, in its order.
+            let start = piece.corners.len();
+            for corner in &plain[..count] {
+                let resolved = resolve(
+                    &mut piece,
+                    corner.position,
+                    Slot::Corner,
+                    first,
+                    (number, corner.position_byte),
+                    false,
+                    whole.then_some(&mut forward),
+                )?;
+                piece.corners.push(resolved);
+                let normal = match corner.normal {
+                    None => NO_NORMAL,
+                    Some((index, byte)) => resolve(
+                        &mut piece,
+                        index,
+                        Slot::CornerNormal,
+                        first,
+                        (number, byte),
+                        true,
+                        whole.then_some(&mut forward),
+                    )?,
+                };
+                piece.corner_normals.push(normal);
+            }
+            triangles += count - 2;
+            if triangles > MAX_TRIANGLES {
+                return Err(too_many(number, MAX_TRIANGLES, "triangles"));
+            }
+            piece.faces.push(ObjElement {
+                first: start as u32,
+                count: count as u32,
+                group,
+                material,
+                smoothing,
+            });
+            continue;
         }
         let mut words = words(line);
         let Some((_, keyword)) = words.next() else {
@@ -614,7 +764,7 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
                     (line_edges, MAX_EDGES, "line segments")
                 };
                 if total > limit {
-                    return Err(mistake(number, 0, format!("the model has more than {limit} {what} by this line; pansite draws at most that many")));
+                    return Err(too_many(number, limit, what));
                 }
                 let element = ObjElement {
                     first: start as u32,
@@ -717,6 +867,18 @@ fn read_piece(text: &str, first: bool, whole: bool) -> std::result::Result<Piece
         }
     }
     Ok(piece)
+}
+
+/// A model passing a limit of one run by line `number`.
+#[cold]
+fn too_many(number: usize, limit: usize, what: &str) -> Mistake {
+    mistake(
+        number,
+        0,
+        format!(
+            "the model has more than {limit} {what} by this line; pansite draws at most that many"
+        ),
+    )
 }
 
 /// The words of a line after the keyword, as written (names may hold spaces).
@@ -1046,6 +1208,60 @@ mod tests {
         ] {
             assert_eq!(plain(other), None, "{other}");
         }
+        // Plain faces: the corners the general reader finds, at the same bytes.
+        let general = |line: &str| -> Vec<PlainCorner> {
+            words(line)
+                .skip(1)
+                .map(|(byte, word)| {
+                    let (position, normal) = corner_parts(word);
+                    PlainCorner {
+                        position: parse_index(position).unwrap(),
+                        position_byte: byte,
+                        normal: normal.filter(|n| !n.is_empty()).map(|n| {
+                            let at = n.as_ptr() as usize - line.as_ptr() as usize;
+                            (parse_index(n).unwrap(), at)
+                        }),
+                    }
+                })
+                .collect()
+        };
+        let mut corners = [PlainCorner::default(); PLAIN_CORNERS];
+        for line in [
+            "f 1 2 3",
+            "f -10 -7 -8",
+            "f\t1/1/1  2/2/2 3/3/3\r",
+            "f 1//4 2//5 3//6 7//-8",
+            "f 1/ 2// 3/9 4/-1/",
+            "f +1 2 -3",
+            "f 1 2 3 4 5 6 7 8",
+            "f 123456789012345678 2 3",
+        ] {
+            let count = plain_face(line.as_bytes(), &mut corners);
+            assert_eq!(
+                count.map(|n| corners[..n].to_vec()),
+                Some(general(line)),
+                "{line}"
+            );
+        }
+        for other in [
+            "f 1 2",
+            "f",
+            "f 1 2 x",
+            "f 1/2/3/4 5 6",
+            "f 1/x/3 2 3",
+            "f 1 2 3 4 5 6 7 8 9",
+            "f 1234567890123456789 2 3",
+            "fo 1 2 3",
+            " f 1 2 3",
+            "f 1 2 3a",
+            "f 1 2 //3",
+            "f 1 2 3/4/x",
+            "f 1 2 +-3",
+            "f - 2 3",
+            "l 1 2 3",
+        ] {
+            assert_eq!(plain_face(other.as_bytes(), &mut corners), None, "{other}");
+        }
     }
 
     // Cases written from the Wavefront "Object Files (.obj)" appendix of the Advanced
@@ -1235,7 +1451,7 @@ mod tests {
     #[test]
     fn reading_in_pieces_gives_what_reading_whole_gives() {
         let text = big_file();
-        let whole = read_piece(&text, true, true)
+        let whole = read_piece(&text, true, true, text.len())
             .map(|p| join(vec![p]).unwrap())
             .unwrap();
         let pieces = parse(&text).unwrap();
