@@ -206,7 +206,7 @@ fn add_mesh_on_cores(
     {
         used[i as usize] = true;
     }
-    let (weld, vertices) = weld(&positions, &used);
+    let (weld, vertices) = weld(&positions, &used, two_cores);
     let points = representative(&weld, &positions, vertices);
     drop((positions, used));
     let first_item = site.items.len() as u32;
@@ -923,7 +923,7 @@ fn place(positions: &[Point3<f64>], placement: &MeshPlacement) -> Vec<Point3<f64
 /// Positions are keyed by their coordinates rounded to the weld tolerance, so exact
 /// duplicates (what exporters write) always merge; two positions within the tolerance but
 /// on either side of a rounding boundary stay apart (a limitation, documented).
-fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
+fn weld(positions: &[Point3<f64>], used: &[bool], two_cores: bool) -> (Vec<u32>, usize) {
     // The model's size from the positions its faces and lines use: a stray vertex far away
     // must not widen the tolerance until the model welds into a point.
     let (mut low, mut high) = (
@@ -938,31 +938,61 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
     let size = (high - low).amax();
     let tolerance = size * WELD_FRACTION;
     let keyable = tolerance.is_finite() && tolerance > 0.0;
-    let mut keyed: Vec<([i64; 3], u32)> = positions
-        .iter()
-        .enumerate()
-        .map(|(i, p)| {
-            // Beyond what rounding to the tolerance can key (a model spanning 1e300, say),
-            // only identical positions weld.
-            let key = if keyable && p.iter().all(|c| (c / tolerance).abs() < 9e18) {
-                [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
-            } else {
-                [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
-            };
-            (key, i as u32)
-        })
-        .collect();
-    // Sorted by key, then by position index: each run of equal keys is one vertex, led by
-    // the first position that has it. (Sorting is cheaper than a hash map of a million
-    // keys, whose every insert misses the cache.)
-    sort_on_two_cores(&mut keyed);
-    let mut leader: Vec<u32> = vec![0; positions.len()];
-    for run in keyed.chunk_by(|a, b| a.0 == b.0) {
-        for &(_, i) in run {
-            leader[i as usize] = run[0].1;
+    let key = |p: &Point3<f64>| {
+        // Beyond what rounding to the tolerance can key (a model spanning 1e300, say),
+        // only identical positions weld.
+        if keyable && p.iter().all(|c| (c / tolerance).abs() < 9e18) {
+            [p.x, p.y, p.z].map(|c| (c / tolerance).round() as i64)
+        } else {
+            [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
         }
+    };
+    // (key, position index) sorted: each run of equal keys is one vertex, led by the first
+    // position that has it. (Sorting is cheaper than a hash map of a million keys, whose
+    // every insert misses the cache.) A large model's two halves keyed and sorted on two
+    // cores, then walked together as if merged.
+    let keyed = |range: Range<usize>| {
+        let mut keyed: Vec<([i64; 3], u32)> = positions[range.clone()]
+            .iter()
+            .zip(range)
+            .map(|(p, i)| (key(p), i as u32))
+            .collect();
+        keyed.sort_unstable();
+        keyed
+    };
+    let all = 0..positions.len();
+    let (first, second) = if two_cores {
+        let middle = all.end / 2;
+        std::thread::scope(|scope| {
+            let second = scope.spawn(|| keyed(middle..all.end));
+            (keyed(0..middle), joined(second))
+        })
+    } else {
+        (keyed(all), Vec::new())
+    };
+    let mut leader: Vec<u32> = vec![0; positions.len()];
+    let (mut i, mut j) = (0, 0);
+    while let Some(k) = match (first.get(i), second.get(j)) {
+        (Some(a), Some(b)) => Some(a.0.min(b.0)),
+        (a, b) => a.or(b).map(|e| e.0),
+    } {
+        let run = |list: &[([i64; 3], u32)], from: usize| {
+            from..from + list[from..].iter().take_while(|e| e.0 == k).count()
+        };
+        let (here, there) = (run(&first, i), run(&second, j));
+        // Every index of the first half is below the second half's.
+        let lead = first[here.clone()]
+            .iter()
+            .chain(&second[there.clone()])
+            .map(|e| e.1)
+            .next()
+            .unwrap_or_default();
+        for &(_, p) in first[here.clone()].iter().chain(&second[there.clone()]) {
+            leader[p as usize] = lead;
+        }
+        (i, j) = (here.end, there.end);
     }
-    drop(keyed);
+    drop((first, second));
     // Vertices numbered in order of first appearance, as the file lists them.
     let mut weld = Vec::with_capacity(positions.len());
     let mut count = 0u32;
@@ -975,22 +1005,6 @@ fn weld(positions: &[Point3<f64>], used: &[bool]) -> (Vec<u32>, usize) {
         }
     }
     (weld, count as usize)
-}
-
-/// Sorts a long slice on two cores: each half sorted on its own, then the two runs merged
-/// in one pass (the standard library's stable sort finds runs already in order and only
-/// merges them). The elements here are distinct, so the order is the one sorting gives.
-fn sort_on_two_cores<T: Ord + Send>(items: &mut [T]) {
-    if items.len() < 100_000 {
-        items.sort_unstable();
-        return;
-    }
-    let (low, high) = items.split_at_mut(items.len() / 2);
-    std::thread::scope(|scope| {
-        scope.spawn(|| high.sort_unstable());
-        low.sort_unstable();
-    });
-    items.sort();
 }
 
 /// One position for each welded vertex (the first that welded into it).
