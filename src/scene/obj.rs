@@ -11,11 +11,12 @@
 //! Faces before the first `s` carry no word either way.
 //!
 //! Speed: a large file is cut at line ends into one piece per core, each piece read on its
-//! own thread into flat arrays (no allocation per line; numbers by `fast-float2`; lines
-//! scanned once for their end and comment; a plainly written `v` line read in one pass, and
-//! anything unusual by the general, careful path), then the
-//! pieces are joined: indices relative to the vertices so far, and the group, material and
-//! smoothing in force where a piece begins, are settled in the join. Anything wrong in any
+//! own thread into flat arrays made with room for all the piece can hold (no allocation
+//! per line, no array copied as it grows; numbers by `fast-float2`; lines scanned once for
+//! their end and comment; a plainly written `v` or `f` line read in one pass, and anything
+//! unusual by the general, careful path), then the pieces are joined: indices relative to
+//! the vertices so far, and the group, material and smoothing in force where a piece
+//! begins, are settled in the join. Anything wrong in any
 //! piece sends the whole file through the one-piece reader again, which finds the first
 //! mistake in file order and reports its line and column: errors cost time, good files none.
 //!
