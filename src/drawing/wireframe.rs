@@ -24,6 +24,10 @@ pub struct SkippedEdge {
 /// than it saves.
 const EDGES_PER_RUN: usize = 2048;
 
+/// The same with hidden lines: an edge then costs a hundred times more (its sight lines),
+/// so a square of a few hundred edges is already worth both cores.
+const SEEN_EDGES_PER_RUN: usize = 64;
+
 /// Flattens every edge of the site; degenerate edges are listed, not drawn.
 ///
 /// Large sites are cut into runs of consecutive edges that the cores take one at a time
@@ -45,21 +49,26 @@ pub fn wireframe(
     let mut outlines = site.outline_edges_from(&eye);
     let arm = MARKER_ARM_PX * std::f64::consts::TAU / flattener.map().width();
     outlines.extend(site.markers.iter().flat_map(|m| marker_cross(m, &eye, arm)));
-    let runs: Vec<&[Edge]> = site
-        .edges
-        .chunks(EDGES_PER_RUN)
-        .chain(outlines.chunks(EDGES_PER_RUN))
-        .collect();
-    let fixed_runs = site.edges.len().div_ceil(EDGES_PER_RUN);
-    let first_index = |run: usize| {
-        if run < fixed_runs {
-            run * EDGES_PER_RUN
-        } else {
-            site.edges.len() + (run - fixed_runs) * EDGES_PER_RUN
-        }
-    };
     let occluders = hidden_lines.occluders(site, view);
     let occluders = occluders.as_ref();
+    let per_run = if occluders.is_some() {
+        SEEN_EDGES_PER_RUN
+    } else {
+        EDGES_PER_RUN
+    };
+    let runs: Vec<&[Edge]> = site
+        .edges
+        .chunks(per_run)
+        .chain(outlines.chunks(per_run))
+        .collect();
+    let fixed_runs = site.edges.len().div_ceil(per_run);
+    let first_index = |run: usize| {
+        if run < fixed_runs {
+            run * per_run
+        } else {
+            site.edges.len() + (run - fixed_runs) * per_run
+        }
+    };
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
     let next_run = std::sync::atomic::AtomicUsize::new(0);
