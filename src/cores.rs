@@ -1,8 +1,8 @@
 //! Work spread over the machine's cores, its results kept in order: the sun's passes
-//! (the shadows' silhouette edges, the tone's receiving planes, the table's days) are each
-//! a list of independent pieces of work, done here in blocks taken in turn by one thread
-//! per core, and put back in the list's order, so the result is the same on any number of
-//! cores.
+//! (the shadows' silhouette edges, the tone's receiving planes, the table's days) and the
+//! look-around's runs of edges are each a list of independent pieces of work, done here in
+//! blocks taken in turn by one thread per core, and put back in the list's order, so the
+//! result is the same on any number of cores.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 

@@ -66,6 +66,7 @@
 pub mod aids;
 pub mod budget;
 pub mod compose;
+pub mod cores;
 pub mod drawing;
 pub mod error;
 pub mod explore;

@@ -16,9 +16,9 @@ use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
 use crate::error::{Error, Result};
 use crate::page::{clip_segment, Rect};
 use crate::plane::{ImagePoint, PolylineSet};
-use crate::scene::{HiddenEdges, Site, SiteCurve, Standpoint};
+use crate::scene::{Edge, HiddenEdges, Site, SiteCurve, Standpoint};
 use crate::sphere::ViewFrame;
-use crate::visibility::{Depth, HiddenLines};
+use crate::visibility::{Depth, HiddenLines, Occluders};
 use nalgebra::{Point3, Vector3};
 
 /// Distance in front of the eye (metres, along the view axis) where edges are cut: the
@@ -343,65 +343,35 @@ pub fn preview_with_hidden_lines(
         )));
     }
     let camera = Pinhole::new(standpoint, settings)?;
-    let (mut seen, mut hidden) = (Vec::new(), Vec::new());
     let eye = camera.view.eye();
     let outlines = site.outline_edges_from(&eye);
     let occluders = hidden_lines.occluders(site, &camera.view);
     // The angle of a pixel at the picture's centre (smaller towards its edges).
     let pixel = 1.0 / camera.focal_px;
     let tolerance = settings.tolerance_px;
-    for edge in site.edges.iter().chain(outlines.iter()) {
-        let Some(occluders) = &occluders else {
-            camera.curve(&edge.curve, tolerance, &mut seen);
-            continue;
-        };
-        // The same seen and hidden stretches as the panorama's, found on the sphere
-        // curve, then drawn in the picture.
-        let Ok(curve) = camera.view.sphere_curve(&edge.curve) else {
-            continue;
-        };
-        // What the picture cannot show needs no hidden-line work: the same drawing.
-        let outside = match edge.curve {
-            SiteCurve::Segment { start, end } => camera.wholly_outside(
-                &[camera.view.to_view(&start), camera.view.to_view(&end)],
-                0.0,
-            ),
-            SiteCurve::Ellipse { centre, u, v, .. } => {
-                // |u cos t + v sin t| <= |u| + |v|: a ball round the centre holds it.
-                camera.wholly_outside(&[camera.view.to_view(&centre)], u.norm() + v.norm())
-            }
-        };
-        if outside {
-            continue;
+    // Runs of edges on all cores (with hidden lines an edge costs its sight lines), their
+    // lines joined in edge order.
+    let edges: Vec<&Edge> = site.edges.iter().chain(outlines.iter()).collect();
+    let runs = crate::cores::in_order(edges.len().div_ceil(EDGES_PER_RUN), |run| {
+        let (mut seen, mut hidden) = (Vec::new(), Vec::new());
+        let first = run * EDGES_PER_RUN;
+        for edge in &edges[first..(first + EDGES_PER_RUN).min(edges.len())] {
+            look_at_edge(
+                &camera,
+                edge,
+                occluders.as_ref(),
+                pixel,
+                tolerance,
+                &mut seen,
+                &mut hidden,
+            );
         }
-        match edge.curve {
-            SiteCurve::Segment { start, end } => {
-                let (a, b) = (camera.view.to_view(&start), camera.view.to_view(&end));
-                let depth = Depth::Segment { a, b };
-                for (t0, t1, is_seen) in occluders.spans(&curve, &depth, pixel, 1e-3 * pixel) {
-                    if t1 <= t0 {
-                        continue;
-                    }
-                    // Where the sight lines at t0 and t1 meet the segment.
-                    let (s0, s1) = (
-                        along(&a, &b, &curve.position(t0)),
-                        along(&a, &b, &curve.position(t1)),
-                    );
-                    let out = if is_seen { &mut seen } else { &mut hidden };
-                    camera.segment(a + (b - a) * s0, a + (b - a) * s1, out);
-                }
-            }
-            SiteCurve::Ellipse { .. } => {
-                // An ellipse's sphere curve is its own points relative to the eye.
-                for (t0, t1, is_seen) in occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel)
-                {
-                    if t1 > t0 {
-                        let out = if is_seen { &mut seen } else { &mut hidden };
-                        camera.arc(&|t| curve.position(t), t0, t1, tolerance, out);
-                    }
-                }
-            }
-        }
+        (seen, hidden)
+    });
+    let (mut seen, mut hidden) = (Vec::new(), Vec::new());
+    for (run_seen, run_hidden) in runs {
+        seen.extend(run_seen);
+        hidden.extend(run_hidden);
     }
     let mut horizon = PolylineSet::new();
     if let Some((a, b)) = camera.horizon() {
@@ -432,6 +402,71 @@ pub fn preview_with_hidden_lines(
         height: settings.height,
         layers,
     })
+}
+
+/// Edges a core takes at a time: few, as an edge with hidden lines costs its sight lines.
+const EDGES_PER_RUN: usize = 32;
+
+/// Draws one edge into the look-around's seen and hidden lines: with hidden lines, the same
+/// seen and hidden stretches as the panorama's, found on the sphere curve, then drawn in
+/// the picture.
+fn look_at_edge(
+    camera: &Pinhole,
+    edge: &Edge,
+    occluders: Option<&Occluders>,
+    pixel: f64,
+    tolerance: f64,
+    seen: &mut Vec<[ImagePoint; 2]>,
+    hidden: &mut Vec<[ImagePoint; 2]>,
+) {
+    let Some(occluders) = occluders else {
+        camera.curve(&edge.curve, tolerance, seen);
+        return;
+    };
+    let Ok(curve) = camera.view.sphere_curve(&edge.curve) else {
+        return;
+    };
+    // What the picture cannot show needs no hidden-line work: the same drawing.
+    let outside = match edge.curve {
+        SiteCurve::Segment { start, end } => camera.wholly_outside(
+            &[camera.view.to_view(&start), camera.view.to_view(&end)],
+            0.0,
+        ),
+        SiteCurve::Ellipse { centre, u, v, .. } => {
+            // |u cos t + v sin t| <= |u| + |v|: a ball round the centre holds it.
+            camera.wholly_outside(&[camera.view.to_view(&centre)], u.norm() + v.norm())
+        }
+    };
+    if outside {
+        return;
+    }
+    match edge.curve {
+        SiteCurve::Segment { start, end } => {
+            let (a, b) = (camera.view.to_view(&start), camera.view.to_view(&end));
+            let depth = Depth::Segment { a, b };
+            for (t0, t1, is_seen) in occluders.spans(&curve, &depth, pixel, 1e-3 * pixel) {
+                if t1 <= t0 {
+                    continue;
+                }
+                // Where the sight lines at t0 and t1 meet the segment.
+                let (s0, s1) = (
+                    along(&a, &b, &curve.position(t0)),
+                    along(&a, &b, &curve.position(t1)),
+                );
+                let out = if is_seen { &mut *seen } else { &mut *hidden };
+                camera.segment(a + (b - a) * s0, a + (b - a) * s1, out);
+            }
+        }
+        SiteCurve::Ellipse { .. } => {
+            // An ellipse's sphere curve is its own points relative to the eye.
+            for (t0, t1, is_seen) in occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel) {
+                if t1 > t0 {
+                    let out = if is_seen { &mut *seen } else { &mut *hidden };
+                    camera.arc(&|t| curve.position(t), t0, t1, tolerance, out);
+                }
+            }
+        }
+    }
 }
 
 /// The parameter along the segment from `a` to `b` (view frame, relative to the eye)

@@ -16,7 +16,6 @@
 
 mod boxes;
 mod clock;
-mod cores;
 mod day;
 mod position;
 mod shadow;

@@ -15,8 +15,8 @@
 //! shorter than the sampling step ([`SAMPLE_STEP_M`]) can be missed.
 
 use super::boxes::{Bounds, BoxGrid};
-use super::cores;
 use super::position::across_rays;
+use crate::cores;
 use crate::scene::{Face, Site};
 use crate::visibility::{ray_hits_triangle, Bvh};
 use nalgebra::{Point3, Vector2, Vector3};

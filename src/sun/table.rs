@@ -4,9 +4,9 @@
 //! aligned text, CSV (RFC 4180) or JSON, one flat table whose `event` column says what
 //! each row is; the cautions come with every form.
 
-use super::cores;
 use super::day::{wall_in_sun, walls, Sky, SunSample};
 use super::CAUTIONS;
+use crate::cores;
 use crate::error::{Error, Result};
 use crate::scene::{label_matches, ItemId, Site};
 use crate::visibility::Bvh;

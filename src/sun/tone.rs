@@ -17,8 +17,8 @@
 //! across the sun's rays, by cones from the eye round each face, and on the plane).
 
 use super::boxes::{Bounds, BoxGrid};
-use super::cores;
 use super::position::across_rays;
+use crate::cores;
 use crate::scene::{Face, Site};
 use nalgebra::{Point3, Vector2, Vector3};
 
