@@ -5,8 +5,10 @@
 //! box where the surface-area heuristic says a ray will meet the fewest faces (searched over
 //! a few bins, one pass a level), down to leaves of a few faces. A sight line along a street
 //! then passes the boxes of big ground and wall faces once instead of in every small box
-//! they straddle: on the demo square about half the box tests of a median split. Boxes are stored in f32, rounded outwards,
-//! to keep a node to 32 bytes; the triangle tests are in f64 against the site's own faces.
+//! they straddle: on the demo square about half the box tests of a median split. Models of
+//! more than `SAH_FACES` faces are split at the middle of that side (or the median), which
+//! builds three times faster. Boxes are stored in f32, rounded outwards, to keep a node to
+//! 32 bytes; the triangle tests are in f64 against the site's own faces.
 
 use crate::scene::Face;
 use nalgebra::{Point3, Vector3};
@@ -89,13 +91,8 @@ impl Bvh {
             .zip(0..)
             .map(|(f, face)| {
                 let c = (f.corners[0].coords + f.corners[1].coords + f.corners[2].coords) / 3.0;
-                let [a, b, d] = f.corners;
-                let lo = a.coords.inf(&b.coords).inf(&d.coords);
-                let hi = a.coords.sup(&b.coords).sup(&d.coords);
                 Item {
                     centre: [c.x as f32, c.y as f32, c.z as f32],
-                    lo: [lo.x as f32, lo.y as f32, lo.z as f32],
-                    hi: [hi.x as f32, hi.y as f32, hi.z as f32],
                     face,
                 }
             })
@@ -287,21 +284,32 @@ struct Build<'a> {
 #[derive(Clone, Copy, Debug)]
 struct Item {
     centre: [f32; 3],
-    /// The face's box (for the split's costs only, so f32 rounding does not matter).
-    lo: [f32; 3],
-    hi: [f32; 3],
     face: u32,
 }
 
 impl Build<'_> {
+    /// A face's box in f32 (for the split's costs only, so rounding does not matter).
+    fn face_box(&self, face: u32) -> Bounds {
+        let [a, b, c] = self.faces[face as usize].corners;
+        let (lo, hi) = (
+            a.coords.inf(&b.coords).inf(&c.coords),
+            a.coords.sup(&b.coords).sup(&c.coords),
+        );
+        (
+            [lo.x as f32, lo.y as f32, lo.z as f32],
+            [hi.x as f32, hi.y as f32, hi.z as f32],
+        )
+    }
+
     /// Appends to `nodes` the node for the faces in `order` (which start at `first` in the
     /// hierarchy's whole order) and everything under it, depth first; its box.
     ///
     /// The faces are split along the longest side of their centres' box where
-    /// [`cheapest_split`] says, or at the median of their centres along it when that leaves
-    /// less than a sixteenth on one side or the node lies `SAH_LEVELS` down, so that the tree
-    /// stays within the searches' stacks (64). A leaf's box is taken from its corners, in f64 rounded outwards; an
-    /// inner node's is the union of its children's, so each corner is read once. With
+    /// [`cheapest_split`] says (models of more than `SAH_FACES` faces: at its middle), or at
+    /// the median of their centres along it when that leaves less than a sixteenth (a
+    /// quarter) on one side or the node lies `SAH_LEVELS` down, so that the tree stays
+    /// within the searches' stacks (64). A leaf's box is taken from its corners, in f64
+    /// rounded outwards; an inner node's is the union of its children's, so each corner is read once. With
     /// `split_levels` left, the second half is built on a thread of its own, into nodes of
     /// its own that are moved in after the first half's.
     fn node(
@@ -348,11 +356,20 @@ impl Build<'_> {
         // The split the surface-area heuristic prefers, unless it leaves almost nothing on
         // one side; the median instead, and always below `SAH_LEVELS`, so that the tree
         // stays within the searches' stacks.
-        let cheapest = (level < SAH_LEVELS && extent > 0.0)
-            .then(|| cheapest_split(order, bin))
+        let by_area = self.faces.len() <= SAH_FACES && level < SAH_LEVELS && extent > 0.0;
+        let cheapest = by_area
+            .then(|| cheapest_split(order, bin, |item| self.face_box(item.face)))
             .flatten();
-        let mut middle = cheapest.map_or(0, |split| partition(order, |item| bin(item) < split));
-        if !balanced_enough(middle, count) {
+        // Without it, the middle of the longest side, or the median when that leaves less
+        // than a quarter on one side.
+        let (mut middle, least) = if by_area {
+            let split = cheapest.map_or(0, |split| partition(order, |item| bin(item) < split));
+            (split, 16)
+        } else {
+            let halfway = from + 0.5 * extent;
+            (partition(order, |item| item.centre[axis] < halfway), 4)
+        };
+        if !balanced_enough(middle, count, least) {
             middle = count / 2;
             order.select_nth_unstable_by(middle, |a, b| a.centre[axis].total_cmp(&b.centre[axis]));
         }
@@ -407,16 +424,26 @@ const BINS: usize = 12;
 /// at most log2(faces / 4) levels: under 64 for any count of faces a u32 can index.
 const SAH_LEVELS: u32 = 32;
 
+/// Faces up to which the hierarchy is split by the surface-area heuristic: a scene looked at
+/// again and again (the explorer's panes) repays its build. Above it, the median: on a town
+/// of a million triangles seen once, the heuristic tripled the build (about 220 ms to 700 ms)
+/// and saved no time in the rays, most of which the map of cover settles.
+const SAH_FACES: usize = 200_000;
+
 /// The bin boundary (1..BINS) at which splitting the items costs least by the surface-area
 /// heuristic: the area of each side's box times its faces, summed (MacDonald and Booth,
 /// "Heuristics for ray tracing using space subdivision", The Visual Computer 6(3), 1990; the
 /// binned search of Wald, "On fast construction of SAH-based bounding volume hierarchies",
 /// IEEE Symposium on Interactive Ray Tracing 2007). None when every item falls in one bin.
-fn cheapest_split(items: &[Item], bin: impl Fn(&Item) -> usize) -> Option<usize> {
+fn cheapest_split(
+    items: &[Item],
+    bin: impl Fn(&Item) -> usize,
+    face_box: impl Fn(&Item) -> Bounds,
+) -> Option<usize> {
     let mut bins = [(EMPTY, 0usize); BINS];
     for item in items {
         let (bounds, count) = &mut bins[bin(item)];
-        *bounds = union(*bounds, (item.lo, item.hi));
+        *bounds = union(*bounds, face_box(item));
         *count += 1;
     }
     let area = |(lo, hi): Bounds| {
@@ -447,10 +474,10 @@ fn cheapest_split(items: &[Item], bin: impl Fn(&Item) -> usize) -> Option<usize>
     best.map(|(_, k)| k)
 }
 
-/// Whether a split leaving `left` of `count` faces on one side leaves at least a sixteenth,
-/// and at least one face, on each.
-fn balanced_enough(left: usize, count: usize) -> bool {
-    let least = (count / 16).max(1);
+/// Whether a split leaving `left` of `count` faces on one side leaves at least a
+/// `fraction`th (16 for a sixteenth), and at least one face, on each.
+fn balanced_enough(left: usize, count: usize, fraction: usize) -> bool {
+    let least = (count / fraction).max(1);
     left >= least && left + least <= count
 }
 
@@ -637,13 +664,14 @@ mod tests {
         assert!(seen.iter().all(|&s| s));
     }
 
-    fn item(x: f64, size: f64) -> Item {
-        Item {
+    /// An item at `x` along the axis with a box of half-size `size` round it.
+    fn item(x: f64, size: f64) -> (Item, Bounds) {
+        let item = Item {
             centre: [x as f32, 0.0, 0.0],
-            lo: [(x - size) as f32, -(size as f32), 0.0],
-            hi: [(x + size) as f32, size as f32, 0.0],
             face: 0,
-        }
+        };
+        let (lo, hi) = ((x - size) as f32, (x + size) as f32);
+        (item, ([lo, -(size as f32), 0.0], [hi, size as f32, 0.0]))
     }
 
     #[test]
@@ -652,16 +680,24 @@ mod tests {
         // cheapest boundary lies in the empty stretch between them (bins 2 to 10 of 12), where
         // neither side's box reaches across the gap. By hand: cutting inside a cluster leaves
         // one side a box 9 long; cutting in the gap leaves two boxes about 1 long.
-        let items: Vec<Item> = (0..10)
+        let placed: Vec<(Item, Bounds)> = (0..10)
             .map(|i| item(0.1 * i as f64, 0.05))
             .chain((0..10).map(|i| item(9.1 + 0.1 * i as f64, 0.05)))
             .collect();
+        let items: Vec<Item> = placed.iter().map(|(item, _)| *item).collect();
+        let box_of = |it: &Item| {
+            placed
+                .iter()
+                .find(|(p, _)| p.centre == it.centre)
+                .unwrap()
+                .1
+        };
         let bin = |it: &Item| ((it.centre[0] / 10.0 * BINS as f32) as usize).min(BINS - 1);
-        let split = cheapest_split(&items, bin).unwrap();
+        let split = cheapest_split(&items, bin, box_of).unwrap();
         assert!((2..=10).contains(&split), "{split}");
         // Everything in one bin: no split to choose.
-        let one_place: Vec<Item> = (0..5).map(|_| item(3.0, 1.0)).collect();
-        assert_eq!(cheapest_split(&one_place, |_| 4), None);
+        let (one, one_box) = item(3.0, 1.0);
+        assert_eq!(cheapest_split(&[one; 5], |_| 4, |_| one_box), None);
     }
 
     /// How many levels the hierarchy has below its root.
@@ -675,13 +711,15 @@ mod tests {
 
     #[test]
     fn a_split_leaves_a_sixteenth_on_each_side() {
-        assert!(balanced_enough(50, 100));
-        assert!(balanced_enough(6, 100) && balanced_enough(94, 100));
-        assert!(!balanced_enough(5, 100) && !balanced_enough(95, 100));
-        assert!(!balanced_enough(0, 100) && !balanced_enough(100, 100));
+        assert!(balanced_enough(50, 100, 16));
+        assert!(balanced_enough(6, 100, 16) && balanced_enough(94, 100, 16));
+        assert!(!balanced_enough(5, 100, 16) && !balanced_enough(95, 100, 16));
+        assert!(!balanced_enough(0, 100, 16) && !balanced_enough(100, 100, 16));
         // Under sixteen faces a sixteenth is none, but a side is never left empty.
-        assert!(balanced_enough(1, 10) && balanced_enough(9, 10));
-        assert!(!balanced_enough(0, 10) && !balanced_enough(10, 10));
+        assert!(balanced_enough(1, 10, 16) && balanced_enough(9, 10, 16));
+        assert!(!balanced_enough(0, 10, 16) && !balanced_enough(10, 10, 16));
+        // A quarter, for the median split's guard on large models.
+        assert!(balanced_enough(25, 100, 4) && !balanced_enough(24, 100, 4));
     }
 
     #[test]
