@@ -79,4 +79,7 @@ pub mod sphere;
 pub mod sun;
 pub mod visibility;
 
+#[cfg(test)]
+mod testing;
+
 pub use error::{Error, Result};

@@ -511,13 +511,8 @@ mod tests {
             ..PreviewSettings::default()
         };
         let camera = Pinhole::new(&s, &settings).unwrap();
-        let mut seed = 11u64;
-        let mut next = || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
-        };
+        let mut uniform = crate::testing::numbers(11);
+        let mut next = || uniform() * 2.0 - 1.0;
         let (mut culled, mut total) = (0, 0);
         for _ in 0..20_000 {
             let mut point = || Vector3::new(30.0 * next(), 30.0 * next(), 30.0 * next());

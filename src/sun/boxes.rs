@@ -167,13 +167,7 @@ mod tests {
         // Against trying every box: the closed boxes a query box overlaps, and those a
         // segment passes through (a point of the segment every 1/1000 of it inside one),
         // are all among those found, each once, ascending. A fixed sequence of our own.
-        let mut seed = 3u64;
-        let mut next = || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = crate::testing::numbers(3);
         let mut boxes: Vec<Bounds> = Vec::new();
         for _ in 0..300 {
             let lo = Vector2::new(100.0 * next(), 60.0 * next());

@@ -590,13 +590,7 @@ mod tests {
         // scattered round the sphere (a fixed sequence of our own) and over pairs whose
         // axes are set at the sum of their half-angles, give or take a hair, where the
         // cosines alone cannot settle it.
-        let mut seed = 11u64;
-        let mut next = || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = crate::testing::numbers(11);
         let cone = |direction: Vector3<f64>, angle: f64| Cone {
             direction: direction.normalize(),
             angle,
@@ -648,13 +642,7 @@ mod tests {
         // Shade pieces and hiders scattered over a plane (a fixed sequence of our own):
         // the pieces left are the same, as a set, as taking every hider from every piece
         // in turn, and so is their total area.
-        let mut seed = 7u64;
-        let mut next = || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut next = crate::testing::numbers(7);
         let mut shapes = |count: usize, side: f64| -> Vec<Polygon> {
             (0..count)
                 .map(|_| square(40.0 * next(), 40.0 * next(), side * (0.3 + next())))
