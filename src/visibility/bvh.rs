@@ -213,14 +213,17 @@ impl Bvh {
             hi = hi.sup(&p.coords);
         }
         let (lo, hi) = outward(lo, hi);
-        let normal = (wedge[1] - wedge[0]).cross(&(wedge[2] - wedge[0]));
-        let offset = normal.dot(&wedge[0].coords);
+        let plane = Plane::of(wedge);
+        let offset = plane.normal.dot(&wedge[0].coords);
         self.search(
             |node| {
                 let apart = (0..3).any(|k| node.hi[k] < lo[k] || node.lo[k] > hi[k]);
-                (!apart && box_meets_plane(node, &normal, offset)).then_some(0.0)
+                (!apart && box_meets_plane(node, &plane.normal, offset)).then_some(0.0)
             },
-            |i| triangles_cross(&faces[i as usize].corners, wedge),
+            |i| {
+                let face = &faces[i as usize].corners;
+                triangles_cross_in(face, &Plane::of(face), wedge, &plane)
+            },
         )
         .is_some()
     }
@@ -494,37 +497,125 @@ fn partition(items: &mut [Item], left: impl Fn(&Item) -> bool) -> usize {
 }
 
 /// Whether the plane `normal . x = offset` passes through the box (its corners are not all
-/// on one side).
+/// on one side): the centre's distance from the plane is within the box's reach along the
+/// normal, the half extents weighted by |normal| (Akenine-Möller, Haines and Hoffman,
+/// Real-Time Rendering, box/plane intersection), with a margin against rounding so that a
+/// box touching the plane is never passed over.
 fn box_meets_plane(node: &Node, normal: &Vector3<f64>, offset: f64) -> bool {
-    let (mut below, mut above) = (false, false);
-    for corner in 0..8 {
-        let pick = |k: usize| {
-            if corner >> k & 1 == 1 {
-                node.hi[k] as f64
-            } else {
-                node.lo[k] as f64
-            }
-        };
-        let side = normal.x * pick(0) + normal.y * pick(1) + normal.z * pick(2) - offset;
-        below |= side <= 0.0;
-        above |= side >= 0.0;
+    let (mut centre, mut reach) = (-offset, 0.0);
+    for k in 0..3 {
+        let (lo, hi) = (node.lo[k] as f64, node.hi[k] as f64);
+        centre += normal[k] * 0.5 * (lo + hi);
+        reach += normal[k].abs() * 0.5 * (hi - lo);
     }
-    below && above
+    centre.abs() <= reach + 1e-12 * (reach + offset.abs())
 }
 
-/// Whether two triangles cross: a side of one passes through the other. Triangles in one
-/// plane do not count (a face seen edge-on hides nothing).
+/// [`triangles_cross_in`], finding the planes.
+#[cfg(test)]
 fn triangles_cross(a: &[Point3<f64>; 3], b: &[Point3<f64>; 3]) -> bool {
-    let side_through = |t: &[Point3<f64>; 3], other: &[Point3<f64>; 3]| {
-        (0..3).any(|i| {
-            let (p, q) = (t[i], t[(i + 1) % 3]);
-            let along = q - p;
-            let length = along.norm();
-            length > 0.0
-                && ray_hits_triangle(&p, &(along / length), other).is_some_and(|d| d <= length)
-        })
+    triangles_cross_in(a, &Plane::of(a), b, &Plane::of(b))
+}
+
+/// Whether two triangles, given with their planes, cross: a side of one passes through the
+/// other. Triangles in one plane do not count (a face seen edge-on hides nothing).
+///
+/// Möller's test ("A fast triangle-triangle intersection test", Journal of Graphics Tools
+/// 2(2), 1997): a triangle wholly on one side of the other's plane cannot meet it; two that
+/// each cross the other's plane meet that plane in a segment of the line where the planes
+/// meet, and cross exactly when the two segments overlap. A corner too near the other plane
+/// to tell its side goes to the plain test instead: each side tried as a ray.
+fn triangles_cross_in(
+    a: &[Point3<f64>; 3],
+    plane_a: &Plane,
+    b: &[Point3<f64>; 3],
+    plane_b: &Plane,
+) -> bool {
+    let (Some(against_a), Some(against_b)) = (plane_a.sides_of(b), plane_b.sides_of(a)) else {
+        return false;
     };
-    side_through(a, b) || side_through(b, a)
+    if against_a.touching || against_b.touching {
+        return a_side_passes_through(a, b) || a_side_passes_through(b, a);
+    }
+    let line = plane_a.normal.cross(&plane_b.normal);
+    let (a_from, a_to) = crossing_interval(a, &against_b.distances, &line);
+    let (b_from, b_to) = crossing_interval(b, &against_a.distances, &line);
+    a_from <= b_to && b_from <= a_to
+}
+
+/// The plane of a triangle: a normal (not of unit length) and a point.
+struct Plane {
+    normal: Vector3<f64>,
+    point: Point3<f64>,
+}
+
+/// Where the corners of a triangle lie against a plane.
+struct PlaneSides {
+    /// Each corner's distance from the plane, times the normal's length.
+    distances: [f64; 3],
+    /// Whether a corner lies too near the plane to tell its side.
+    touching: bool,
+}
+
+impl Plane {
+    fn of([p, q, r]: &[Point3<f64>; 3]) -> Plane {
+        Plane {
+            normal: (q - p).cross(&(r - p)),
+            point: *p,
+        }
+    }
+
+    /// The sides of the corners against the plane; `None` when all lie clearly on one side
+    /// (by a margin far above the rounding of the test, so a triangle touching the plane is
+    /// never passed over: passing over must never be wrong).
+    fn sides_of(&self, corners: &[Point3<f64>; 3]) -> Option<PlaneSides> {
+        let offsets = corners.map(|corner| corner - self.point);
+        let reach = offsets.iter().fold(0.0f64, |m, o| m.max(o.amax()));
+        let margin = 1e-9 * self.normal.amax() * reach;
+        let distances = offsets.map(|o| self.normal.dot(&o));
+        if distances.iter().all(|&d| d > margin) || distances.iter().all(|&d| d < -margin) {
+            return None;
+        }
+        Some(PlaneSides {
+            distances,
+            touching: distances.iter().any(|d| d.abs() <= margin),
+        })
+    }
+}
+
+/// Where a triangle whose corners lie at `distances` on both sides of a plane meets it, as
+/// an interval of positions along `line` (the direction the two planes meet in): its two
+/// sides from the corner alone on its side, cut where the distance is zero.
+fn crossing_interval(
+    t: &[Point3<f64>; 3],
+    distances: &[f64; 3],
+    line: &Vector3<f64>,
+) -> (f64, f64) {
+    let along = t.map(|corner| line.dot(&corner.coords));
+    let above = distances.map(|d| d > 0.0);
+    let alone = if above[1] == above[2] {
+        0
+    } else if above[0] == above[2] {
+        1
+    } else {
+        2
+    };
+    let cut = |other: usize| {
+        let (d, e) = (distances[alone], distances[other]);
+        along[alone] + (along[other] - along[alone]) * d / (d - e)
+    };
+    let (x, y) = (cut((alone + 1) % 3), cut((alone + 2) % 3));
+    (x.min(y), x.max(y))
+}
+
+/// Whether a side of `t` passes through `other`, each side tried as a ray.
+fn a_side_passes_through(t: &[Point3<f64>; 3], other: &[Point3<f64>; 3]) -> bool {
+    (0..3).any(|i| {
+        let (p, q) = (t[i], t[(i + 1) % 3]);
+        let along = q - p;
+        let length = along.norm();
+        length > 0.0 && ray_hits_triangle(&p, &(along / length), other).is_some_and(|d| d <= length)
+    })
 }
 
 /// The slab test (Kay and Kajiya, "Ray tracing complex scenes", SIGGRAPH 1986), on a box
@@ -568,7 +659,9 @@ pub fn ray_hits_triangle(
     let (ab, ac) = (b - a, c - a);
     let p = direction.cross(&ac);
     let determinant = ab.dot(&p);
-    if determinant.abs() <= 1e-14 * ab.norm() * ac.norm() {
+    // |det| <= 1e-14 |ab| |ac| (a ray in the triangle's plane, or a sliver), squared to
+    // spare two square roots in the innermost test of every look.
+    if determinant * determinant <= 1e-28 * ab.norm_squared() * ac.norm_squared() {
         return None;
     }
     let inverse = 1.0 / determinant;
@@ -788,5 +881,121 @@ mod tests {
         }
         // Both answers are exercised.
         assert!(crossed > 20 && crossed < 380, "{crossed}");
+    }
+
+    /// Whether two triangles overlap, by the separating axis theorem (Gottschalk, Lin and
+    /// Manocha, "OBBTree", SIGGRAPH 1996): apart exactly when their projections onto one of
+    /// the two normals or the nine cross products of sides do not overlap.
+    fn triangles_overlap(a: &[Point3<f64>; 3], b: &[Point3<f64>; 3]) -> bool {
+        let sides = |t: &[Point3<f64>; 3]| [t[1] - t[0], t[2] - t[1], t[0] - t[2]];
+        let (sa, sb) = (sides(a), sides(b));
+        let mut axes = vec![sa[0].cross(&sa[1]), sb[0].cross(&sb[1])];
+        for u in &sa {
+            for v in &sb {
+                axes.push(u.cross(v));
+            }
+        }
+        let span = |t: &[Point3<f64>; 3], axis: &Vector3<f64>| {
+            let d = t.map(|p| axis.dot(&p.coords));
+            (d[0].min(d[1]).min(d[2]), d[0].max(d[1]).max(d[2]))
+        };
+        axes.iter().filter(|axis| axis.norm() > 1e-12).all(|axis| {
+            let ((alo, ahi), (blo, bhi)) = (span(a, axis), span(b, axis));
+            alo <= bhi && blo <= ahi
+        })
+    }
+
+    #[test]
+    fn triangles_cross_where_no_separating_axis_parts_them() {
+        let mut next = crate::testing::numbers(97);
+        let mut corner = || Point3::new(next(), next(), next());
+        let (mut crossing, mut rejected_early) = (0, 0);
+        for k in 0..4000 {
+            let a = [corner(), corner(), corner()];
+            let b = [corner(), corner(), corner()];
+            let expected = triangles_overlap(&a, &b);
+            assert_eq!(triangles_cross(&a, &b), expected, "pair {k}: {a:?} {b:?}");
+            crossing += expected as usize;
+            rejected_early += (Plane::of(&a).sides_of(&b).is_none()
+                || Plane::of(&b).sides_of(&a).is_none()) as usize;
+        }
+        // Both answers, and the early rejection, are exercised.
+        assert!(crossing > 400 && crossing < 3600, "{crossing}");
+        assert!(rejected_early > 400, "{rejected_early}");
+    }
+
+    #[test]
+    fn a_plane_meets_a_box_when_its_corners_are_not_all_on_one_side() {
+        let mut next = crate::testing::numbers(5);
+        let mut met = 0;
+        for k in 0..2000 {
+            let (x, y, z) = (next() * 4.0, next() * 4.0, next() * 4.0);
+            let node = Node {
+                lo: [x as f32, y as f32, z as f32],
+                hi: [
+                    (x + next()) as f32,
+                    (y + next()) as f32,
+                    (z + next()) as f32,
+                ],
+                index: 0,
+                count: 1,
+            };
+            let normal = Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
+            let offset = normal.dot(&Vector3::new(next(), next(), next()).scale(4.0));
+            // The definition: the eight corners' sides.
+            let sides: Vec<f64> = (0..8)
+                .map(|corner| {
+                    let pick = |k: usize| {
+                        if corner >> k & 1 == 1 {
+                            node.hi[k] as f64
+                        } else {
+                            node.lo[k] as f64
+                        }
+                    };
+                    normal.dot(&Vector3::new(pick(0), pick(1), pick(2))) - offset
+                })
+                .collect();
+            let expected = sides.iter().any(|&d| d <= 0.0) && sides.iter().any(|&d| d >= 0.0);
+            assert_eq!(
+                box_meets_plane(&node, &normal, offset),
+                expected,
+                "case {k}"
+            );
+            met += expected as usize;
+        }
+        assert!(met > 200 && met < 1800, "{met}");
+        // A plane through a corner touches the box.
+        let unit = Node {
+            lo: [0.0; 3],
+            hi: [1.0; 3],
+            index: 0,
+            count: 1,
+        };
+        assert!(box_meets_plane(&unit, &Vector3::new(1.0, 1.0, 1.0), 3.0));
+        assert!(!box_meets_plane(&unit, &Vector3::new(1.0, 1.0, 1.0), 3.001));
+    }
+
+    #[test]
+    fn a_triangle_touching_the_plane_is_not_clear_of_it() {
+        let floor = [
+            Point3::new(0.0, 0.0, 0.0),
+            Point3::new(4.0, 0.0, 0.0),
+            Point3::new(0.0, 4.0, 0.0),
+        ];
+        let standing = |z: f64| {
+            [
+                Point3::new(1.0, 1.0, z),
+                Point3::new(1.5, 1.0, z + 2.0),
+                Point3::new(1.0, 1.5, z + 2.0),
+            ]
+        };
+        let sides = |z: f64| Plane::of(&floor).sides_of(&standing(z));
+        assert!(sides(0.01).is_none());
+        assert!(sides(0.0).is_some_and(|s| s.touching));
+        assert!(sides(-0.01).is_some_and(|s| !s.touching));
+        assert!(sides(-2.01).is_none());
+        // Touching, the plain test answers: the standing triangle's corner is on the floor.
+        assert!(triangles_cross(&floor, &standing(0.0)));
+        assert!(!triangles_cross(&floor, &standing(0.01)));
     }
 }
