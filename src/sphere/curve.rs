@@ -57,6 +57,15 @@ impl TrigRoots {
     }
 }
 
+impl IntoIterator for TrigRoots {
+    type Item = f64;
+    type IntoIter = std::iter::Take<std::array::IntoIter<f64, 2>>;
+
+    fn into_iter(self) -> Self::IntoIter {
+        self.roots.into_iter().take(self.len)
+    }
+}
+
 /// The relative size below which a coefficient counts as zero when deciding that a curve lies
 /// entirely in a plane (a curve drawn along the seam itself, for example).
 const IN_PLANE_EPSILON: f64 = 1e-12;
