@@ -139,6 +139,7 @@ fn rasterize_channels_in_bands<const C: usize, E>(
         })
         .collect();
     let by_band = strokes_by_band(drawing, &pens);
+    let spans = area_spans(drawing);
     let band_count = height.div_ceil(BAND_ROWS);
     let rows_in = |band: usize| BAND_ROWS.min(height - band * BAND_ROWS);
     let threads = std::thread::available_parallelism()
@@ -155,8 +156,14 @@ fn rasterize_channels_in_bands<const C: usize, E>(
     let mut outcome = Ok(());
     std::thread::scope(|scope| {
         for _ in 0..threads {
-            let (by_band, pens, free_buffers, next_band, finished) =
-                (&by_band, &pens, &free_buffers, &next_band, finished.clone());
+            let (by_band, spans, pens, free_buffers, next_band, finished) = (
+                &by_band,
+                &spans,
+                &pens,
+                &free_buffers,
+                &next_band,
+                finished.clone(),
+            );
             scope.spawn(move || loop {
                 let buffer = free_buffers
                     .lock()
@@ -175,7 +182,7 @@ fn rasterize_channels_in_bands<const C: usize, E>(
                     rows: band_rows,
                 }
                 .draw_strokes(drawing, pens, by_band)
-                .draw_areas(drawing, pens);
+                .draw_areas(drawing, pens, spans);
                 if finished.send((index, buffer)).is_err() {
                     break;
                 }
@@ -379,6 +386,28 @@ impl Segment {
     }
 }
 
+/// The rows each ring of each filled layer spans (its lowest and highest y), found once
+/// for all the bands (none for a layer of lines).
+fn area_spans(drawing: &Drawing) -> Vec<Vec<(f64, f64)>> {
+    drawing
+        .layers
+        .iter()
+        .map(|layer| match layer.filled {
+            false => Vec::new(),
+            true => layer
+                .lines
+                .iter()
+                .map(|ring| {
+                    ring.iter()
+                        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
+                            (lo.min(p.y), hi.max(p.y))
+                        })
+                })
+                .collect(),
+        })
+        .collect()
+}
+
 /// A horizontal band of the canvas, `C` bytes a pixel.
 struct Band<'a, const C: usize> {
     width: usize,
@@ -419,20 +448,15 @@ impl<const C: usize> Band<'_, C> {
     /// Fills the areas of the filled layers that reach into the band: tiny-skia's
     /// anti-aliased coverage (non-zero winding) into a mask of the band, then inked like a
     /// stroke (the darkest wins). The outlines are already cut at the seam, so nothing wraps.
-    fn draw_areas(&mut self, drawing: &Drawing, pens: &[Pen]) {
+    fn draw_areas(&mut self, drawing: &Drawing, pens: &[Pen], spans: &[Vec<(f64, f64)>]) {
         let band_rows = self.rows.len() / (self.width * C).max(1);
         let (top, bottom) = (self.top as f64, (self.top + band_rows) as f64);
-        for (layer, pen) in drawing.layers.iter().zip(pens) {
+        for ((layer, pen), spans) in drawing.layers.iter().zip(pens).zip(spans) {
             if !layer.filled {
                 continue;
             }
             let mut path = tiny_skia::PathBuilder::new();
-            for ring in layer.lines.iter() {
-                let (lo, hi) = ring
-                    .iter()
-                    .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
-                        (lo.min(p.y), hi.max(p.y))
-                    });
+            for (ring, &(lo, hi)) in layer.lines.iter().zip(spans) {
                 if ring.len() < 3 || hi <= top || lo >= bottom {
                     continue;
                 }

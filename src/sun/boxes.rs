@@ -10,6 +10,8 @@ pub type Bounds = (Vector2<f64>, Vector2<f64>);
 /// Boxes entered in the cells they reach of a grid over them all (about as many cells as
 /// boxes, square, at most 512 a side).
 pub struct BoxGrid {
+    /// How many boxes.
+    count: usize,
     origin: Vector2<f64>,
     cell: f64,
     size: (usize, usize),
@@ -41,6 +43,7 @@ impl BoxGrid {
             ((extent.y / cell) as usize + 1).min(side + 1),
         );
         let mut grid = BoxGrid {
+            count: boxes.len(),
             origin: lo,
             cell,
             size,
@@ -97,13 +100,18 @@ impl BoxGrid {
     pub fn overlapping(&self, b: &Bounds, out: &mut Vec<u32>) {
         out.clear();
         let ((x0, y0), (x1, y1)) = (self.at(&b.0), self.at(&b.1));
+        if (x0, y0) == (x1, y1) {
+            // One cell's list is already ascending, each box once.
+            out.extend_from_slice(self.cell(x0, y0));
+            return;
+        }
+        let mut seen = Marks::new(self.count);
         for y in y0..=y1 {
             for x in x0..=x1 {
-                out.extend_from_slice(self.cell(x, y));
+                out.extend(self.cell(x, y).iter().filter(|&&k| seen.first(k)));
             }
         }
         out.sort_unstable();
-        out.dedup();
     }
 
     /// Whether `hit` holds for any box in the cells within `pad` of the point `p` (a box
@@ -155,6 +163,24 @@ impl BoxGrid {
         }
         out.sort_unstable();
         out.dedup();
+    }
+}
+
+/// One bit for each of a number of things, to take each once however often it is met
+/// (so that only the things, not their meetings, are sorted).
+pub struct Marks(Vec<u64>);
+
+impl Marks {
+    pub fn new(count: usize) -> Marks {
+        Marks(vec![0; count.div_ceil(64)])
+    }
+
+    /// Whether `k` is met for the first time (and marks it).
+    pub fn first(&mut self, k: u32) -> bool {
+        let (word, bit) = (k as usize / 64, 1u64 << (k % 64));
+        let first = self.0[word] & bit == 0;
+        self.0[word] |= bit;
+        first
     }
 }
 

@@ -16,6 +16,7 @@
 
 mod boxes;
 mod clock;
+mod cones;
 mod day;
 mod position;
 mod shadow;

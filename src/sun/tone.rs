@@ -17,6 +17,7 @@
 //! across the sun's rays, by cones from the eye round each face, and on the plane).
 
 use super::boxes::{Bounds, BoxGrid};
+use super::cones::{Cone, ConeGrid};
 use super::position::across_rays;
 use crate::cores;
 use crate::scene::{Face, Site};
@@ -87,9 +88,11 @@ pub fn seen_shade(
             .collect::<Vec<Bounds>>(),
     );
     // Cones from the eye round each face's bounding sphere, to cull the faces that cannot
-    // stand in front of a receiver.
+    // stand in front of a receiver; a grid of them over the sphere of directions names
+    // the few a receiver's cone may overlap (ascending, so the hiders come in the faces'
+    // order as when every face was tried).
     let cones: Vec<Cone> = site.faces.iter().map(|f| Cone::round(f, eye)).collect();
-    let may_hide = |hider: usize, receiver: usize| cones[hider].may_hide(&cones[receiver]);
+    let cone_grid = ConeGrid::new(&cones);
     let mut receivers: Vec<(Option<usize>, PlaneFrame)> = Vec::new();
     if site.ground.is_none() {
         receivers.push((
@@ -120,11 +123,12 @@ pub fn seen_shade(
             },
         ));
     }
-    // Each receiving plane's seen shade, the planes shared out among the cores.
-    let seen_on = |index: Option<usize>, plane: &PlaneFrame| -> Vec<Vec<Point3<f64>>> {
+    // Each receiving plane's shade and what may hide it, the planes shared out among the
+    // cores.
+    let shade_on = |index: Option<usize>, plane: &PlaneFrame| -> Option<(Vec<Polygon>, Hiders)> {
         let (ns, eye_height) = (plane.n.dot(&s), plane.height(eye));
         if ns.abs() < EDGE_ON || eye_height.abs() < EDGE_ON {
-            return Vec::new();
+            return None;
         }
         let outline: Option<Polygon> = index.map(|i| {
             let mut t: Polygon = site.faces[i]
@@ -142,7 +146,7 @@ pub fn seen_shade(
             // The seen side is turned from the sun.
             match &outline {
                 Some(t) => shade.push(t.clone()),
-                None => return Vec::new(),
+                None => return None,
             }
         } else {
             let mut casters = Vec::new();
@@ -165,7 +169,17 @@ pub fn seen_shade(
             }
         }
         if shade.is_empty() {
-            return Vec::new();
+            return None;
+        }
+        // The faces that may stand in front of the receiver: every face for the ground,
+        // else those the grid of cones names whose cone passes the test.
+        let mut candidates = Vec::new();
+        match index {
+            Some(i) => {
+                cone_grid.near(&cones[i], &mut candidates);
+                candidates.retain(|&j| j as usize != i && cones[j as usize].may_hide(&cones[i]));
+            }
+            None => candidates = (0..site.faces.len() as u32).collect(),
         }
         // A face wholly outside the pyramid of sight through the shade's box hides none
         // of it: it is passed over before it is carried onto the plane.
@@ -174,21 +188,33 @@ pub fn seen_shade(
             .map(|p| bounds(p))
             .reduce(|a, b| (a.0.inf(&b.0), a.1.sup(&b.1)));
         let pyramid = all.and_then(|b| Pyramid::through(plane, eye, &b));
-        let hiders: Vec<Polygon> = site
-            .faces
+        let hiders: Vec<Polygon> = candidates
             .iter()
-            .enumerate()
-            .filter(|(j, _)| Some(*j) != index && index.is_none_or(|i| may_hide(*j, i)))
-            .filter(|(_, face)| pyramid.as_ref().is_none_or(|p| !p.leaves_out(face)))
-            .filter_map(|(_, face)| carried_from_eye(face, plane, eye, eye_height))
+            .map(|&j| &site.faces[j as usize])
+            .filter(|face| pyramid.as_ref().is_none_or(|p| !p.leaves_out(face)))
+            .filter_map(|face| carried_from_eye(face, plane, eye, eye_height))
             .collect();
-        take_away(shade, &hiders)
-            .iter()
-            .map(|piece| piece.iter().map(|q| plane.to_site(q)).collect())
-            .collect()
+        Some((shade, Hiders::new(hiders)))
     };
-    cores::in_order(receivers.len(), |k| {
-        seen_on(receivers[k].0, &receivers[k].1)
+    let shaded: Vec<_> = cores::in_order(receivers.len(), |k| {
+        shade_on(receivers[k].0, &receivers[k].1)
+    });
+    // What the hiders leave of each piece of shade, every piece on its own (one plane,
+    // the ground, may hold thousands), the pieces shared out among the cores and put
+    // back in the planes' and the pieces' order.
+    let pieces: Vec<(&PlaneFrame, &Hiders, &Polygon)> = receivers
+        .iter()
+        .zip(&shaded)
+        .filter_map(|((_, plane), shaded)| shaded.as_ref().map(|(shade, h)| (plane, h, shade)))
+        .flat_map(|(plane, hiders, shade)| shade.iter().map(move |piece| (plane, hiders, piece)))
+        .collect();
+    cores::in_order(pieces.len(), |k| {
+        let (plane, hiders, piece) = pieces[k];
+        let mut left = Vec::new();
+        hiders.take_from(piece.clone(), &mut left);
+        left.iter()
+            .map(|piece| piece.iter().map(|q| plane.to_site(q)).collect::<Vec<_>>())
+            .collect::<Vec<_>>()
     })
     .into_iter()
     .flatten()
@@ -244,107 +270,79 @@ impl Pyramid {
     }
 }
 
-/// A cone from the eye round a face's bounding sphere (about the centre of its corners).
-#[derive(Clone, Copy, Debug)]
-struct Cone {
-    /// The unit direction from the eye to the sphere's centre.
-    direction: Vector3<f64>,
-    /// The half-angle, radians (pi when the eye is inside the sphere), and its cosine and
-    /// sine.
-    angle: f64,
-    cos: f64,
-    sin: f64,
-    /// The nearest and farthest distances of the sphere from the eye.
-    near: f64,
-    far: f64,
+/// The convex polygons that may hide a receiving plane, in their order, with their boxes
+/// in a grid.
+struct Hiders {
+    polygons: Vec<Polygon>,
+    boxes: Vec<Bounds>,
+    grid: Option<BoxGrid>,
 }
 
-/// How far apart (in cosine) the two sides of a comparison of angles must be to be
-/// settled by cosines alone; closer ones are settled by the angles themselves, so the
-/// answer is the same either way (the cosines' rounding is about 1e-16).
-const COSINE_MARGIN: f64 = 1e-9;
-
-impl Cone {
-    fn round(face: &Face, eye: &Point3<f64>) -> Cone {
-        let c = face.corners;
-        let centre = Point3::from((c[0].coords + c[1].coords + c[2].coords) / 3.0);
-        let radius = c.iter().map(|p| (p - centre).norm()).fold(0.0, f64::max);
-        let to = centre - eye;
-        let distance = to.norm();
-        let angle = if distance > radius {
-            (radius / distance).asin()
-        } else {
-            std::f64::consts::PI
-        };
-        Cone {
-            direction: to / distance.max(1e-300),
-            angle,
-            cos: angle.cos(),
-            sin: angle.sin(),
-            near: distance - radius,
-            far: distance + radius,
+impl Hiders {
+    fn new(polygons: Vec<Polygon>) -> Hiders {
+        let boxes: Vec<Bounds> = polygons.iter().map(|h| bounds(h)).collect();
+        let grid = BoxGrid::new(&boxes);
+        Hiders {
+            polygons,
+            boxes,
+            grid,
         }
     }
 
-    /// Whether a face in this cone may stand in front of one in `receiver`'s: it is not
-    /// wholly beyond it, and the angle between the cones' axes is at most the sum of their
-    /// half-angles. That angle test is `acos(a . b) <= ha + hr`; where the cosine of the
-    /// sum (cos ha cos hr - sin ha sin hr) settles it by more than [`COSINE_MARGIN`] the
-    /// arc cosine is not taken.
-    fn may_hide(&self, receiver: &Cone) -> bool {
-        if self.near > receiver.far {
-            return false; // wholly beyond the receiver
+    /// What is left of the convex polygon `piece` once every hider is taken away from it,
+    /// in the hiders' order, added to `out`. The piece meets only the hiders whose boxes
+    /// overlap its own (found through the grid), and each piece a difference leaves goes
+    /// on with the hiders after the one that made it: the same pieces as taking every
+    /// hider from every piece in turn, without trying the pairs that cannot meet. A hider
+    /// that leaves a piece whole leaves its box and area as they were.
+    fn take_from(&self, piece: Polygon, out: &mut Vec<Polygon>) {
+        if self.polygons.is_empty() {
+            out.push(piece);
+            return;
         }
-        let reach = self.angle + receiver.angle;
-        if reach >= std::f64::consts::PI {
-            return true;
+        let apart = |a: &Bounds, b: &Bounds| {
+            a.1.x < b.0.x || a.0.x > b.1.x || a.1.y < b.0.y || a.0.y > b.1.y
+        };
+        let mut near = Vec::new();
+        match &self.grid {
+            Some(grid) => grid.overlapping(&bounds(&piece), &mut near),
+            // Boxes beyond any grid (not finite): every hider is tried.
+            None => near = (0..self.polygons.len() as u32).collect(),
         }
-        let dot = self.direction.dot(&receiver.direction).clamp(-1.0, 1.0);
-        let cos_reach = self.cos * receiver.cos - self.sin * receiver.sin;
-        if dot > cos_reach + COSINE_MARGIN {
-            true
-        } else if dot < cos_reach - COSINE_MARGIN {
-            false
-        } else {
-            dot.acos() <= reach
+        let mut stack = vec![(piece, 0usize)];
+        while let Some((mut piece, mut next)) = stack.pop() {
+            let own = bounds(&piece);
+            let own_area = area(&piece);
+            loop {
+                while next < near.len() && apart(&own, &self.boxes[near[next] as usize]) {
+                    next += 1;
+                }
+                if next == near.len() {
+                    out.push(piece);
+                    break;
+                }
+                let hider = &self.polygons[near[next] as usize];
+                let after = next + 1;
+                match cut_by(piece, own_area, hider, |p| stack.push((p, after))) {
+                    Cut::Whole(whole) => {
+                        piece = whole;
+                        next = after;
+                    }
+                    Cut::Done => break,
+                }
+            }
         }
     }
 }
 
 /// What is left of each convex polygon of `shade` once every one of `hiders` (convex) is
-/// taken away from it, in the hiders' order. Each piece meets only the hiders whose boxes
-/// overlap its own (found through a grid of their boxes), and each piece a difference
-/// leaves goes on with the hiders after the one that made it: the same pieces as taking
-/// every hider from every piece in turn, without trying the pairs that cannot meet.
+/// taken away from it, in the hiders' order (see [`Hiders::take_from`]).
+#[cfg(test)]
 fn take_away(shade: Vec<Polygon>, hiders: &[Polygon]) -> Vec<Polygon> {
-    if hiders.is_empty() {
-        return shade;
-    }
-    let boxes: Vec<Bounds> = hiders.iter().map(|h| bounds(h)).collect();
-    let grid = BoxGrid::new(&boxes);
-    let apart =
-        |a: &Bounds, b: &Bounds| a.1.x < b.0.x || a.0.x > b.1.x || a.1.y < b.0.y || a.0.y > b.1.y;
+    let hiders = Hiders::new(hiders.to_vec());
     let mut out = Vec::new();
-    let mut near = Vec::new();
     for piece in shade {
-        match &grid {
-            Some(grid) => grid.overlapping(&bounds(&piece), &mut near),
-            // Boxes beyond any grid (not finite): every hider is tried.
-            None => near = (0..hiders.len() as u32).collect(),
-        }
-        let mut stack = vec![(piece, 0usize)];
-        while let Some((piece, mut next)) = stack.pop() {
-            let own = bounds(&piece);
-            while next < near.len() && apart(&own, &boxes[near[next] as usize]) {
-                next += 1;
-            }
-            if next == near.len() {
-                out.push(piece);
-                continue;
-            }
-            let hider = &hiders[near[next] as usize];
-            difference_each(piece, hider, |p| stack.push((p, next + 1)));
-        }
+        hiders.take_from(piece, &mut out);
     }
     out
 }
@@ -480,21 +478,49 @@ fn difference(polygon: Polygon, convex: &Polygon) -> Vec<Polygon> {
     out
 }
 
-/// [`difference`], each piece handed to `piece` as it is cut. A side with every corner
-/// strictly on one side of its line leaves the polygon as it is (wholly inside: nothing
-/// is cut off) or hands it on whole (wholly outside: nothing is left inside), which is
-/// what the two clips would give, without building either; only a side that crosses the
-/// polygon (or touches a corner) clips it.
-fn difference_each(mut polygon: Polygon, convex: &Polygon, mut piece: impl FnMut(Polygon)) {
+/// [`difference`], each piece handed to `piece` as it is cut.
+#[cfg(test)]
+fn difference_each(polygon: Polygon, convex: &Polygon, mut piece: impl FnMut(Polygon)) {
+    let polygon_area = area(&polygon);
+    if let Cut::Whole(whole) = cut_by(polygon, polygon_area, convex, &mut piece) {
+        piece(whole);
+    }
+}
+
+/// What a cut left of a polygon besides the pieces it handed on.
+enum Cut {
+    /// The polygon, untouched and not handed on: no side of the hider crossed it and it
+    /// lies outside one of them (and is larger than the least area).
+    Whole(Polygon),
+    /// Every piece is handed on.
+    Done,
+}
+
+/// A convex polygon (of area `polygon_area`) less a convex counter-clockwise one: each
+/// piece outside a side of the second handed to `piece` as it is cut, or the polygon
+/// given back whole. A side with every corner strictly on one side of its line leaves the
+/// polygon as it is (wholly inside: nothing is cut off) or hands it on whole (wholly
+/// outside: nothing is left inside), which is what the two clips would give, without
+/// building either; only a side that crosses the polygon (or touches a corner) clips it.
+fn cut_by(
+    mut polygon: Polygon,
+    mut polygon_area: f64,
+    convex: &Polygon,
+    mut piece: impl FnMut(Polygon),
+) -> Cut {
+    let mut cut = false;
     for k in 0..convex.len() {
         let (a, b) = (convex[k], convex[(k + 1) % convex.len()]);
         match side_of(&polygon, a, b) {
             Side::Left => {}
             Side::Right => {
-                if area(&polygon) > LEAST_AREA_M2 {
+                if polygon_area > LEAST_AREA_M2 {
+                    if !cut {
+                        return Cut::Whole(polygon);
+                    }
                     piece(polygon);
                 }
-                return;
+                return Cut::Done;
             }
             Side::Across => {
                 let outside = clip_side(&polygon, a, b, false);
@@ -502,12 +528,15 @@ fn difference_each(mut polygon: Polygon, convex: &Polygon, mut piece: impl FnMut
                     piece(outside);
                 }
                 polygon = clip_side(&polygon, a, b, true);
+                polygon_area = area(&polygon);
+                cut = true;
             }
         }
-        if area(&polygon) <= LEAST_AREA_M2 {
-            return;
+        if polygon_area <= LEAST_AREA_M2 {
+            return Cut::Done;
         }
     }
+    Cut::Done
 }
 
 /// Where a polygon's corners lie from the directed line from `a` to `b`.
@@ -582,59 +611,6 @@ mod tests {
                 < 1e-12
         );
         assert!(difference(square(0.0, 0.0, 1.0), &square(-1.0, -1.0, 3.0)).is_empty());
-    }
-
-    #[test]
-    fn cones_settled_by_cosines_agree_with_the_arc_cosine() {
-        // The cones' test against its definition, acos(a . b) <= ha + hr, over cones
-        // scattered round the sphere (a fixed sequence of our own) and over pairs whose
-        // axes are set at the sum of their half-angles, give or take a hair, where the
-        // cosines alone cannot settle it.
-        let mut next = crate::testing::numbers(11);
-        let cone = |direction: Vector3<f64>, angle: f64| Cone {
-            direction: direction.normalize(),
-            angle,
-            cos: angle.cos(),
-            sin: angle.sin(),
-            near: 1.0,
-            far: 2.0,
-        };
-        let definition = |h: &Cone, r: &Cone| {
-            let reach = h.angle + r.angle;
-            reach >= std::f64::consts::PI
-                || h.direction.dot(&r.direction).clamp(-1.0, 1.0).acos() <= reach
-        };
-        let (mut near_the_edge, mut both) = (0, [0, 0]);
-        for k in 0..20_000 {
-            let mut unit = || Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
-            let (a, b) = (unit(), unit());
-            let (ha, hr) = (next() * 1.2, next() * 0.4);
-            let h = cone(a, ha);
-            let r = if k % 2 == 0 {
-                cone(b, hr)
-            } else {
-                // The axis turned from h's by ha + hr and a hair (up to 1e-9 radians).
-                let across = a.cross(&b).normalize();
-                let turn = ha + hr + (next() - 0.5) * 2e-9;
-                let axis = nalgebra::Rotation3::from_axis_angle(
-                    &nalgebra::Unit::new_normalize(across),
-                    turn,
-                ) * a.normalize();
-                near_the_edge += 1;
-                cone(axis, hr)
-            };
-            let expected = definition(&h, &r);
-            both[expected as usize] += 1;
-            assert_eq!(h.may_hide(&r), expected, "{h:?} {r:?}");
-        }
-        assert!(
-            near_the_edge > 5000 && both[0] > 1000 && both[1] > 1000,
-            "{both:?}"
-        );
-        // Wholly beyond the receiver: never in front of it.
-        let mut far = cone(Vector3::x(), 0.3);
-        far.near = 3.0;
-        assert!(!far.may_hide(&cone(Vector3::x(), 0.3)));
     }
 
     #[test]
