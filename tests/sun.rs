@@ -7,7 +7,6 @@ use pansite::render::{draw, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Site};
 use pansite::sun::Sky;
 use pansite::sun::{seen_shade, shadow_outlines, with_shadows, SHADOWS};
-use pansite::visibility::Bvh;
 use std::path::Path;
 
 /// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
@@ -284,12 +283,11 @@ fn on_sloping_ground_a_poles_shadow_falls_on_the_slope() {
         .fold(f64::NEG_INFINITY, f64::max);
     assert!((top - 6.0).abs() < 0.01, "the pole's top is at {top}");
     let (elevation, slope) = (30f64.to_radians(), 0.25f64.atan());
-    let bvh = Bvh::new(&site.faces);
     // Due south, the shadow runs up the slope; due north, down it, and the angle at the
     // tip is elevation - slope.
     for (north, angle_at_tip) in [(-1.0, elevation + slope), (1.0, elevation - slope)] {
         let towards_sun = nalgebra::Vector3::new(0.0, north * elevation.cos(), elevation.sin());
-        let lines = shadow_outlines(&site, &bvh, &towards_sun);
+        let lines = shadow_outlines(&site, &towards_sun);
         assert!(!lines.is_empty());
         // Every line lies on the slope, none on the plane z = 0 beyond the pole's foot.
         for line in &lines {
