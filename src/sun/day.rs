@@ -2,6 +2,7 @@
 //! solstices and equinoxes of a year, and the times an item's walls are in sun.
 
 use super::clock::{Clock, LocalMoment};
+use super::hourly::{topocentric, Hourly};
 use super::position::{estimated_delta_t, sun_place_with, Air, SunPlace};
 use crate::error::{Error, Result};
 use crate::scene::{ItemId, Location, Site};
@@ -86,6 +87,23 @@ impl Sky {
             instant_s,
             local,
             place,
+        })
+    }
+
+    /// [`Sky::sample`] with the algorithm's slow part interpolated between the whole
+    /// hours of `hourly` (see [`Hourly`]); the whole algorithm outside them.
+    pub fn sample_between(&self, hourly: &Hourly, instant_s: f64) -> Result<SunSample> {
+        let Some(slow) = hourly.at(instant_s) else {
+            return self.sample(instant_s);
+        };
+        let local = self
+            .clock
+            .local(instant_s)
+            .ok_or_else(|| Error::Sun(format!("no local time for the instant {instant_s} s")))?;
+        Ok(SunSample {
+            instant_s,
+            local,
+            place: topocentric(&self.location, instant_s, &slow, self.air),
         })
     }
 

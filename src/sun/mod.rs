@@ -6,6 +6,8 @@
 //!   ones named;
 //! - [`position`]: the sun's apparent azimuth and elevation by NREL's Solar Position
 //!   Algorithm (the `solar-positioning` crate), and its direction in the plan's frame;
+//! - [`hourly`]: the algorithm's slow part once an hour, interpolated, for the table's
+//!   many rows;
 //! - [`day`]: a day's path at a step, sunrise, transit and sunset, the solstices and
 //!   equinoxes, and the times an item's walls are in sun (`pansite sun`);
 //! - [`shadow`]: the shadows' outlines on the ground and on the faces, as edges in the site
@@ -18,6 +20,7 @@ mod boxes;
 mod clock;
 mod cones;
 mod day;
+mod hourly;
 mod position;
 mod shadow;
 mod table;
