@@ -463,6 +463,63 @@ fn print_writes_into_the_output_folder_only() {
 }
 
 #[test]
+fn print_carries_the_shade_switch() {
+    // A yard of our own with a place and a sun whose `sun` block asks for no tone: a print
+    // with the tone switched off is the print as the scene says, byte for byte; switched
+    // on, the sheet is washed over the shade (many more pixels darker than the paper);
+    // any other word is refused naming `tone`, and nothing is written for it.
+    let dir = Scratch::new("explorer-print-tone");
+    let scene = dir.write(
+        "yard.ron",
+        "Scene(
+    name: \"Tone yard\",
+    location: (latitude: 51.2, longitude: -2.1, height: 80, north: 4, time_zone: \"Europe/London\"),
+    sun: (date: \"2026-06-21\", time: \"16:00\", path: false, shadows: false),
+    standpoints: [(name: \"gate\", x: 0, y: -12)],
+    items: [
+        Block(label: \"store\", at: Centre(0, 0), width: 8, depth: 5, height: 6),
+        Block(label: \"shed\", at: Centre(7, 4), width: 3, depth: 3, height: 3),
+    ],
+)
+",
+    );
+    let out = dir.path("out");
+    let explorer =
+        Explorer::start(ExploreSettings::new(Source::Scene(scene), out.clone())).unwrap();
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    let mut printed = Vec::new();
+    for (n, tone) in ["off", "scene", "on"].iter().enumerate() {
+        let body =
+            format!(r#"{{"x":0,"y":-12,"heading":0,"paper":"A4","format":"png","tone":"{tone}"}}"#);
+        let answer = post(&explorer, "/print", Some(&token), Some(&origin), &body);
+        assert_eq!(answer.status, 200, "tone {tone}: {}", answer.text());
+        let file = out.join(format!("yard-view-{}.png", n + 1));
+        assert!(answer.text().contains("yard-view-"), "{}", answer.text());
+        printed.push(std::fs::read(&file).unwrap());
+    }
+    assert_eq!(
+        printed[0], printed[1],
+        "tone=off differs from the scene's own choice"
+    );
+    let inked = |bytes: &[u8]| {
+        let (_, _, grey) = common::read_png_grey(bytes);
+        grey.iter().filter(|&&g| g < 250).count()
+    };
+    let (bare, washed) = (inked(&printed[0]), inked(&printed[2]));
+    assert!(
+        washed > bare + 1000,
+        "inked pixels: {bare} bare, {washed} with the tone"
+    );
+    let body = r#"{"x":0,"y":-12,"heading":0,"paper":"A4","format":"png","tone":"yes"}"#;
+    let answer = post(&explorer, "/print", Some(&token), Some(&origin), body);
+    assert_eq!(answer.status, 400);
+    assert!(answer.text().contains("'tone'"), "{}", answer.text());
+    assert_eq!(files_in(&out).len(), 3);
+    explorer.stop();
+}
+
+#[test]
 fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
     let (_dir, explorer, _, _) = start("replace");
     // Many requests for one pane at once: each is answered, by an image or as replaced.

@@ -107,6 +107,8 @@ enum Task {
         paper: Paper,
         pdf: bool,
         hidden: Option<HiddenEdges>,
+        /// The shade tone, as for the underlay.
+        tone: Option<bool>,
     },
 }
 
@@ -560,6 +562,7 @@ fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task,
         "A3",
     )?;
     let pdf = p.word("format", &["pdf", "png"], "pdf")? == "pdf";
+    let tone = params::tone(&mut p)?;
     p.finish()?;
     let paper = Paper::named(paper)
         .ok_or(format!("paper {paper} is not known"))?
@@ -569,6 +572,7 @@ fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task,
         paper,
         pdf,
         hidden,
+        tone,
     })
 }
 
@@ -713,7 +717,8 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             paper,
             pdf,
             hidden,
-        } => print(shared, loaded, standpoint, paper, *pdf, *hidden).map(Drawn::Json),
+            tone,
+        } => print(shared, loaded, standpoint, paper, *pdf, *hidden, *tone).map(Drawn::Json),
     }
 }
 
@@ -726,6 +731,7 @@ fn print(
     paper: &Paper,
     pdf: bool,
     hidden: Option<HiddenEdges>,
+    tone: Option<bool>,
 ) -> Result<serde_json::Value> {
     let site = &loaded.site;
     let dpi = if pdf { 300.0 } else { 150.0 };
@@ -739,6 +745,10 @@ fn print(
     };
     let settings = RenderSettings {
         hidden,
+        sun: SunChoice {
+            tone,
+            ..SunChoice::default()
+        },
         time_limit: Some(PRINT_TIME_LIMIT),
         ..RenderSettings::default()
     };

@@ -362,6 +362,7 @@ async function print() {
   const body = viewBody();
   body.paper = $("paper").value;
   body.format = $("format").value;
+  body.tone = $("tone").value;
   say("printing...");
   const [status, answer] = await post("/print", body);
   say(status === 200 ? `written: ${answer.file}` : answer.error || `refused (${status})`, status !== 200);
