@@ -47,12 +47,15 @@
 //!   throughout; a looked-at point in such a cell tries the cell's face before the
 //!   hierarchy. A straight edge the map does not settle is divided recursively: a piece whose
 //!   ends are both seen is seen throughout when no face crosses the triangle of sight lines
-//!   from the eye to it (one query); a piece whose ends are both hidden by one face is hidden
+//!   from the eye to it (one query; each face against that triangle by Möller's interval
+//!   test); a piece whose ends are both hidden by one face is hidden
 //!   throughout (a triangle meets the plane of the sight lines in a segment; two segments in a
 //!   plane ordered the same way at both ends of a fan are ordered so between); other pieces
 //!   are halved down to one pixel of angle. Curved edges are sampled every pixel of angle.
 //!   Wherever neighbouring samples disagree, the change is found by bisection to a thousandth
-//!   of a pixel. Edges are handled on all cores in the same runs as flattening; the seen and
+//!   of a pixel, its first step a guess: where the edge crosses the outline of the face that
+//!   hides its hidden end, tried by two looks either side (right about nine times in ten on
+//!   the demo square; a wrong guess narrows the interval like a halving). Edges are handled on all cores in the same runs as flattening; the seen and
 //!   hidden stretches are flattened as sub-curves of the edge's sphere curve.
 //! - **Accuracy.** Changes are placed to 0.001 px of the ray test. For straight edges nothing
 //!   is missed: the fan test sees any face, however thin, that crosses. For curved edges a
