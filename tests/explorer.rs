@@ -469,20 +469,7 @@ fn print_carries_the_shade_switch() {
     // on, the sheet is washed over the shade (many more pixels darker than the paper);
     // any other word is refused naming `tone`, and nothing is written for it.
     let dir = Scratch::new("explorer-print-tone");
-    let scene = dir.write(
-        "yard.ron",
-        "Scene(
-    name: \"Tone yard\",
-    location: (latitude: 51.2, longitude: -2.1, height: 80, north: 4, time_zone: \"Europe/London\"),
-    sun: (date: \"2026-06-21\", time: \"16:00\", path: false, shadows: false),
-    standpoints: [(name: \"gate\", x: 0, y: -12)],
-    items: [
-        Block(label: \"store\", at: Centre(0, 0), width: 8, depth: 5, height: 6),
-        Block(label: \"shed\", at: Centre(7, 4), width: 3, depth: 3, height: 3),
-    ],
-)
-",
-    );
+    let scene = dir.write("yard.ron", common::TONE_YARD);
     let out = dir.path("out");
     let explorer =
         Explorer::start(ExploreSettings::new(Source::Scene(scene), out.clone())).unwrap();

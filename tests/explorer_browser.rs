@@ -456,17 +456,7 @@ fn the_page_in_chromium() {
     // The shade tone, switched on from the page, over a yard of our own with a place and a
     // sun (its `sun` block asks for no tone): the underlay shown equals `pansite render
     // --shade-tone`, and differs from the one shown before.
-    let yard = "Scene(
-    name: \"Tone yard\",
-    location: (latitude: 51.2, longitude: -2.1, height: 80, north: 4, time_zone: \"Europe/London\"),
-    sun: (date: \"2026-06-21\", time: \"16:00\", path: false, shadows: false),
-    standpoints: [(name: \"gate\", x: 0, y: -12)],
-    items: [
-        Block(label: \"store\", at: Centre(0, 0), width: 8, depth: 5, height: 6),
-        Block(label: \"shed\", at: Centre(7, 4), width: 3, depth: 3, height: 3),
-    ],
-)
-";
+    let yard = common::TONE_YARD;
     let version = eval(&tab, "document.getElementById('underlay').dataset.version");
     save(&dir.0, &scene, yard);
     wait_for(

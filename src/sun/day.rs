@@ -79,10 +79,7 @@ impl Sky {
             estimated_delta_t(instant_s)?,
             self.air,
         )?;
-        let local = self
-            .clock
-            .local(instant_s)
-            .ok_or_else(|| Error::Sun(format!("no local time for the instant {instant_s} s")))?;
+        let local = self.local(instant_s)?;
         Ok(SunSample {
             instant_s,
             local,
@@ -96,15 +93,19 @@ impl Sky {
         let Some(slow) = hourly.at(instant_s) else {
             return self.sample(instant_s);
         };
-        let local = self
-            .clock
-            .local(instant_s)
-            .ok_or_else(|| Error::Sun(format!("no local time for the instant {instant_s} s")))?;
+        let local = self.local(instant_s)?;
         Ok(SunSample {
             instant_s,
             local,
             place: topocentric(&self.location, instant_s, &slow, self.air),
         })
+    }
+
+    /// The local date and time of an instant.
+    fn local(&self, instant_s: f64) -> Result<DateTime> {
+        self.clock
+            .local(instant_s)
+            .ok_or_else(|| Error::Sun(format!("no local time for the instant {instant_s} s")))
     }
 
     /// The sun at a local date and time.

@@ -643,6 +643,14 @@ mod tests {
         })
     }
 
+    /// Blocks, a round tower and a vault: what the sun's view tests cast over.
+    const BLOCKS_TOWER_AND_VAULT: &str =
+        "Block(at: Corner(0, 0), width: 4, depth: 3, height: 5, roof: Gable(ridge: 7)),
+         Block(at: Corner(7, 1), width: 2, depth: 6, height: 9),
+         Tower(at: (2, 9), diameter: 3, height: 6),
+         Arcade(at: Corner(-6, -6), count: 3, span: 2.4, springing: 2.8, pier: 0.6,
+                thickness: 1.5, height: 5)";
+
     fn sun(azimuth_deg: f64, elevation_deg: f64) -> Vector3<f64> {
         let (a, e) = (azimuth_deg.to_radians(), elevation_deg.to_radians());
         Vector3::new(a.sin() * e.cos(), a.cos() * e.cos(), e.sin())
@@ -653,13 +661,7 @@ mod tests {
         // The grid only skips faces that cannot receive an edge's shadow: the outlines
         // are the same lines, in the same order, as with every face tried, for suns
         // high and low, from every side, over blocks, a round tower and a vault.
-        let site = site(
-            "Block(at: Corner(0, 0), width: 4, depth: 3, height: 5, roof: Gable(ridge: 7)),
-             Block(at: Corner(7, 1), width: 2, depth: 6, height: 9),
-             Tower(at: (2, 9), diameter: 3, height: 6),
-             Arcade(at: Corner(-6, -6), count: 3, span: 2.4, springing: 2.8, pier: 0.6,
-                    thickness: 1.5, height: 5)",
-        );
+        let site = site(BLOCKS_TOWER_AND_VAULT);
         let bvh = Bvh::new(&site.faces);
         for (azimuth, elevation) in [(140.0, 35.0), (250.0, 8.0), (10.0, 60.0), (95.0, 3.0)] {
             let s = sun(azimuth, elevation);
@@ -781,13 +783,7 @@ mod tests {
         // The sun's view only skips faces a ray cannot meet: the hatching is the same
         // lines, in the same order, as with the rays cast through the hierarchy, for suns
         // high and low over blocks, a round tower and a vault, on faces and the ground.
-        let site = site(
-            "Block(at: Corner(0, 0), width: 4, depth: 3, height: 5, roof: Gable(ridge: 7)),
-             Block(at: Corner(7, 1), width: 2, depth: 6, height: 9),
-             Tower(at: (2, 9), diameter: 3, height: 6),
-             Arcade(at: Corner(-6, -6), count: 3, span: 2.4, springing: 2.8, pier: 0.6,
-                    thickness: 1.5, height: 5)",
-        );
+        let site = site(BLOCKS_TOWER_AND_VAULT);
         let bvh = Bvh::new(&site.faces);
         for (azimuth, elevation) in [(140.0, 35.0), (250.0, 8.0), (10.0, 60.0)] {
             let s = sun(azimuth, elevation);

@@ -5,6 +5,20 @@ use pansite::plane::{ImagePoint, PolylineSet};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
+/// A yard of our own with a place and a sun whose `sun` block asks for no tone: what the
+/// explorer's shade switch is tried on.
+pub const TONE_YARD: &str = "Scene(
+    name: \"Tone yard\",
+    location: (latitude: 51.2, longitude: -2.1, height: 80, north: 4, time_zone: \"Europe/London\"),
+    sun: (date: \"2026-06-21\", time: \"16:00\", path: false, shadows: false),
+    standpoints: [(name: \"gate\", x: 0, y: -12)],
+    items: [
+        Block(label: \"store\", at: Centre(0, 0), width: 8, depth: 5, height: 6),
+        Block(label: \"shed\", at: Centre(7, 4), width: 3, depth: 3, height: 3),
+    ],
+)
+";
+
 /// Asserts `|a - b| <= eps`, printing both values and the difference.
 #[track_caller]
 pub fn assert_near(a: f64, b: f64, eps: f64) {
