@@ -10,120 +10,47 @@
 //! never the diagonals of a triangulation, and its surfaces hide what is behind them.
 //!
 //! The boundaries are nested arrays whose depth depends on the geometry's type; they are
-//! read into a small tree ([`Tree`]) whose innermost lists are rings of vertex indices, so
-//! that one walk serves every type.
+//! read flat (`boundaries.rs`), one list of numbers per geometry, and one walk serves every
+//! type.
 
+use super::boundaries::{path_text, walk, Boundaries, Node, Values};
 use super::earth::LocalFrame;
 use super::grid::{Grid, GridToPlan};
 use super::OpenDataError;
 use crate::scene::obj::ObjFile;
 use nalgebra::Point3;
-use serde::de::{Deserializer, SeqAccess, Visitor};
+use serde::de::{Deserializer, Error, IgnoredAny, MapAccess, SeqAccess, Visitor};
 use serde::Deserialize;
-use std::collections::BTreeMap;
+use std::borrow::Cow;
+use std::collections::{BTreeMap, HashMap};
 
 /// Faces between surfaces of a city model meeting at more than this angle (degrees) are
 /// drawn: its surfaces are flat, so any fold is a real edge; a flat wall cut into several
 /// surfaces is not. Our own choice.
 pub const CITY_CREASE_DEG: f64 = 1.0;
 
-/// Nested boundary arrays: rings of vertex indices at the bottom.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Tree {
-    Ring(Vec<u32>),
-    List(Vec<Tree>),
-}
-
-/// One element while reading a list: an index or a deeper list.
-enum Element {
-    Index(u32),
-    Tree(Tree),
-}
-
-impl<'de> Deserialize<'de> for Element {
-    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        struct V;
-        impl<'de> Visitor<'de> for V {
-            type Value = Element;
-            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
-                f.write_str("a vertex index or a list of them")
-            }
-            fn visit_u64<E: serde::de::Error>(self, v: u64) -> Result<Element, E> {
-                u32::try_from(v)
-                    .map(Element::Index)
-                    .map_err(|_| E::custom(format!("vertex index {v} is too large")))
-            }
-            fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Element, A::Error> {
-                TreeVisitor.visit_seq(seq).map(Element::Tree)
-            }
-        }
-        d.deserialize_any(V)
-    }
-}
-
-struct TreeVisitor;
-
-impl<'de> Visitor<'de> for TreeVisitor {
-    type Value = Tree;
-    fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
-        f.write_str("nested lists of vertex indices")
-    }
-    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Tree, A::Error> {
-        let mut indices = Vec::new();
-        let mut lists = Vec::new();
-        while let Some(element) = seq.next_element::<Element>()? {
-            match element {
-                Element::Index(i) => indices.push(i),
-                Element::Tree(t) => lists.push(t),
-            }
-        }
-        match (indices.is_empty(), lists.is_empty()) {
-            (_, true) => Ok(Tree::Ring(indices)),
-            (true, false) => Ok(Tree::List(lists)),
-            (false, false) => Err(serde::de::Error::custom(
-                "a list mixes vertex indices and lists",
-            )),
-        }
-    }
-}
-
-impl<'de> Deserialize<'de> for Tree {
-    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        d.deserialize_seq(TreeVisitor)
-    }
-}
-
-/// Nested semantic values: at the bottom, one surface index (or null) per surface.
-#[derive(Clone, Debug, PartialEq, Deserialize)]
-#[serde(untagged)]
-pub enum Values {
-    Surfaces(Vec<Option<u32>>),
-    List(Vec<Values>),
-}
-
 #[derive(Clone, Debug, Deserialize)]
-pub struct Semantics {
-    #[serde(default)]
-    pub surfaces: Vec<SemanticSurface>,
+pub struct Semantics<'a> {
+    #[serde(borrow, default)]
+    pub surfaces: Vec<SemanticSurface<'a>>,
     #[serde(default)]
     pub values: Option<Values>,
 }
 
 #[derive(Clone, Debug, Deserialize)]
-pub struct SemanticSurface {
-    #[serde(rename = "type")]
-    pub kind: String,
+pub struct SemanticSurface<'a> {
+    #[serde(borrow, rename = "type")]
+    pub kind: Cow<'a, str>,
 }
 
 /// A level of detail, written as a string ("2.2") or, in older files, a number.
-#[derive(Clone, Debug, Deserialize)]
-#[serde(untagged)]
-pub enum Lod {
-    Text(String),
+#[derive(Clone, Debug)]
+pub enum Lod<'a> {
+    Text(Cow<'a, str>),
     Number(f64),
 }
 
-impl Lod {
+impl Lod<'_> {
     fn value(&self) -> Option<f64> {
         match self {
             Lod::Text(t) => t.trim().parse().ok(),
@@ -133,22 +60,68 @@ impl Lod {
 
     fn text(&self) -> String {
         match self {
-            Lod::Text(t) => t.clone(),
+            Lod::Text(t) => t.to_string(),
             Lod::Number(n) => n.to_string(),
         }
     }
 }
 
+impl<'de: 'a, 'a> Deserialize<'de> for Lod<'a> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        // As serde's untagged enum of a string and a number read it (its words when
+        // neither), without buffering the value first.
+        struct V;
+        const NEITHER: &str = "data did not match any variant of untagged enum Lod";
+        impl<'de> Visitor<'de> for V {
+            type Value = Option<Lod<'de>>;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("a level of detail")
+            }
+            fn visit_borrowed_str<E: Error>(self, v: &'de str) -> Result<Self::Value, E> {
+                Ok(Some(Lod::Text(Cow::Borrowed(v))))
+            }
+            fn visit_str<E: Error>(self, v: &str) -> Result<Self::Value, E> {
+                Ok(Some(Lod::Text(Cow::Owned(v.to_owned()))))
+            }
+            fn visit_f64<E: Error>(self, v: f64) -> Result<Self::Value, E> {
+                Ok(Some(Lod::Number(v)))
+            }
+            fn visit_u64<E: Error>(self, v: u64) -> Result<Self::Value, E> {
+                Ok(Some(Lod::Number(v as f64)))
+            }
+            fn visit_i64<E: Error>(self, v: i64) -> Result<Self::Value, E> {
+                Ok(Some(Lod::Number(v as f64)))
+            }
+            fn visit_bool<E: Error>(self, _: bool) -> Result<Self::Value, E> {
+                Ok(None)
+            }
+            fn visit_unit<E: Error>(self) -> Result<Self::Value, E> {
+                Ok(None)
+            }
+            fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Self::Value, A::Error> {
+                while seq.next_element::<IgnoredAny>()?.is_some() {}
+                Ok(None)
+            }
+            fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Self::Value, A::Error> {
+                while map.next_entry::<IgnoredAny, IgnoredAny>()?.is_some() {}
+                Ok(None)
+            }
+        }
+        d.deserialize_any(V)?
+            .ok_or_else(|| D::Error::custom(NEITHER))
+    }
+}
+
 #[derive(Clone, Debug, Deserialize)]
-pub struct Geometry {
-    #[serde(rename = "type")]
-    pub kind: String,
+pub struct Geometry<'a> {
+    #[serde(borrow, rename = "type")]
+    pub kind: Cow<'a, str>,
+    #[serde(borrow, default)]
+    pub lod: Option<Lod<'a>>,
     #[serde(default)]
-    pub lod: Option<Lod>,
-    #[serde(default)]
-    pub boundaries: Option<Tree>,
-    #[serde(default)]
-    pub semantics: Option<Semantics>,
+    pub boundaries: Option<Boundaries>,
+    #[serde(borrow, default)]
+    pub semantics: Option<Semantics<'a>>,
     /// A GeometryInstance's template, an index into the file's templates.
     #[serde(default)]
     pub template: Option<usize>,
@@ -161,21 +134,21 @@ pub struct Geometry {
 /// (CityJSON 2.0, "Geometry templates"): their vertices are real coordinates relative to
 /// each instance's reference point, not compressed by the transform.
 #[derive(Clone, Debug, Default, Deserialize)]
-pub struct Templates {
-    #[serde(default)]
-    pub templates: Vec<Geometry>,
+pub struct Templates<'a> {
+    #[serde(borrow, default)]
+    pub templates: Vec<Geometry<'a>>,
     #[serde(rename = "vertices-templates", default)]
     pub vertices: Vec<[f64; 3]>,
 }
 
 #[derive(Clone, Debug, Deserialize)]
-pub struct CityObject {
-    #[serde(rename = "type")]
-    pub kind: String,
-    #[serde(default)]
-    pub geometry: Vec<Geometry>,
-    #[serde(default)]
-    pub children: Vec<String>,
+pub struct CityObject<'a> {
+    #[serde(borrow, rename = "type")]
+    pub kind: Cow<'a, str>,
+    #[serde(borrow, default)]
+    pub geometry: Vec<Geometry<'a>>,
+    #[serde(borrow, default)]
+    pub children: Vec<Cow<'a, str>>,
 }
 
 #[derive(Clone, Debug, Deserialize)]
@@ -190,23 +163,24 @@ pub struct Metadata {
     pub reference_system: Option<String>,
 }
 
-/// A CityJSON object, or one CityJSONFeature of a sequence.
+/// A CityJSON object, or one CityJSONFeature of a sequence. Its words are borrowed from
+/// the file's bytes where they can be (no escapes in them).
 #[derive(Debug, Deserialize)]
-pub struct CityFile {
-    #[serde(rename = "type")]
-    pub kind: String,
+pub struct CityFile<'a> {
+    #[serde(borrow, rename = "type")]
+    pub kind: Cow<'a, str>,
     #[serde(default)]
     pub version: Option<String>,
     #[serde(default)]
     pub transform: Option<Transform>,
     #[serde(default)]
     pub metadata: Option<Metadata>,
-    #[serde(rename = "CityObjects", default)]
-    pub city_objects: BTreeMap<String, CityObject>,
+    #[serde(borrow, rename = "CityObjects", default)]
+    pub city_objects: BTreeMap<Cow<'a, str>, CityObject<'a>>,
     #[serde(default)]
     pub vertices: Vec<[i64; 3]>,
-    #[serde(rename = "geometry-templates", default)]
-    pub geometry_templates: Option<Templates>,
+    #[serde(borrow, rename = "geometry-templates", default)]
+    pub geometry_templates: Option<Templates<'a>>,
 }
 
 /// How the file's coordinates reach the plan.
@@ -402,26 +376,31 @@ pub fn read_cityjson(
     // Templates live in the file's (or the sequence's first line's) root.
     let templates = parts[0].1.geometry_templates.clone();
     let templates = templates.as_ref();
+    // The layer of each semantic surface type met, worked out once.
+    let mut layer_names: HashMap<&str, String> = HashMap::new();
+    // A surface's first ring, its indices moved to the mesh's numbering.
+    let mut outer: Vec<u32> = Vec::new();
     for (line, part) in &parts {
         let base = model.mesh.positions.len() as u32;
         model
             .mesh
             .positions
-            .extend(part.vertices.iter().map(|v| placing.place(real(v))));
+            .extend(place_vertices(&part.vertices, |v| placing.place(real(v))));
         let count = part.vertices.len() as u32;
         let with_parts: std::collections::HashSet<&str> = part
             .city_objects
             .iter()
             .filter(|(_, o)| o.kind == "BuildingPart" && !o.geometry.is_empty())
-            .map(|(id, _)| id.as_str())
+            .map(|(id, _)| id.as_ref())
             .collect();
         for (id, object) in &part.city_objects {
-            let object_path = match line {
+            // Paths are spelled out only for a message.
+            let object_path = || match line {
                 Some(l) => format!("line {l}, $.CityObjects[{id:?}]"),
                 None => format!("$.CityObjects[{id:?}]"),
             };
-            if !matches!(object.kind.as_str(), "Building" | "BuildingPart") {
-                *skipped_kinds.entry(object.kind.clone()).or_default() += 1;
+            if !matches!(object.kind.as_ref(), "Building" | "BuildingPart") {
+                *skipped_kinds.entry(object.kind.to_string()).or_default() += 1;
                 continue;
             }
             // A building drawn by its parts: its own (coarser) geometry is left out.
@@ -429,34 +408,40 @@ pub fn read_cityjson(
                 && object
                     .children
                     .iter()
-                    .any(|c| with_parts.contains(c.as_str()))
+                    .any(|c| with_parts.contains(c.as_ref()))
             {
                 continue;
             }
-            let lods: Vec<f64> = object
-                .geometry
-                .iter()
-                .filter_map(|g| resolved(g, templates).lod.as_ref().and_then(Lod::value))
-                .collect();
+            let lods = || {
+                object
+                    .geometry
+                    .iter()
+                    .filter_map(|g| resolved(g, templates).lod.as_ref().and_then(Lod::value))
+            };
             let chosen = match wanted_lod {
                 Some(l) => l,
-                None => lods.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+                None => lods().fold(f64::NEG_INFINITY, f64::max),
             };
             let mut drawn = false;
             for (g, geometry) in object.geometry.iter().enumerate() {
-                let mut at = format!("{object_path}.geometry[{g}]");
+                let mut template_path = None;
+                let at = |template_path: &Option<String>| {
+                    template_path
+                        .clone()
+                        .unwrap_or_else(|| format!("{}.geometry[{g}]", object_path()))
+                };
                 let (mut base, mut count) = (base, count);
                 let instance = geometry;
                 let geometry = resolved(geometry, templates);
                 // An instance's template vertices where it puts them (checked whatever
                 // its level of detail, so that a broken instance is never passed over).
-                let placed = match instance.kind.as_str() {
+                let placed = match instance.kind.as_ref() {
                     "GeometryInstance" => Some(place_instance(
                         instance,
                         templates,
                         &part.vertices,
                         &real,
-                        &at,
+                        &at(&None),
                     )?),
                     _ => None,
                 };
@@ -472,12 +457,12 @@ pub fn read_cityjson(
                         .mesh
                         .positions
                         .extend(placed.into_iter().map(|p| placing.place(p)));
-                    at = format!(
+                    template_path = Some(format!(
                         "$.geometry-templates.templates[{}]",
                         instance.template.unwrap_or(0)
-                    );
+                    ));
                 }
-                let depth = match geometry.kind.as_str() {
+                let depth = match geometry.kind.as_ref() {
                     "MultiSurface" | "CompositeSurface" => 3,
                     "Solid" => 4,
                     "MultiSolid" | "CompositeSolid" => 5,
@@ -490,27 +475,40 @@ pub fn read_cityjson(
                     }
                 };
                 let Some(boundaries) = &geometry.boundaries else {
-                    return Err(OpenDataError::plain(&at, "the geometry has no boundaries"));
+                    return Err(OpenDataError::plain(
+                        &at(&template_path),
+                        "the geometry has no boundaries",
+                    ));
                 };
-                let layers: Vec<String> = geometry
-                    .semantics
-                    .as_ref()
-                    .map(|s| s.surfaces.iter().map(|k| layer_of(&k.kind)).collect())
-                    .unwrap_or_default();
+                let kinds = geometry.semantics.as_ref().map_or(&[][..], |s| &s.surfaces);
+                for kind in kinds {
+                    if !layer_names.contains_key(kind.kind.as_ref()) {
+                        layer_names.insert(kind.kind.as_ref(), layer_of(&kind.kind));
+                    }
+                }
+                let layers: Vec<&str> = kinds
+                    .iter()
+                    .map(|k| layer_names[k.kind.as_ref()].as_str())
+                    .collect();
                 let values = geometry.semantics.as_ref().and_then(|s| s.values.as_ref());
-                let mut group_of_layer: BTreeMap<String, u32> = BTreeMap::new();
+                // The groups of this geometry, by layer (a handful).
+                let mut group_of_layer: Vec<(&str, u32)> = Vec::new();
                 let mut problem = None;
                 walk(boundaries, values, depth, &mut |rings, semantic, path| {
                     if problem.is_some() {
                         return;
                     }
                     let layer = semantic
-                        .and_then(|s| layers.get(s as usize).cloned())
-                        .unwrap_or_else(|| "building".to_owned());
+                        .and_then(|s| layers.get(s as usize).copied())
+                        .unwrap_or("building");
                     for (r, ring) in rings.iter().enumerate() {
                         if let Some(&bad) = ring.iter().find(|&&i| i >= count) {
                             problem = Some(OpenDataError::plain(
-                                &format!("{at}.boundaries{path}[{r}]"),
+                                &format!(
+                                    "{}.boundaries{}[{r}]",
+                                    at(&template_path),
+                                    path_text(path)
+                                ),
                                 &format!(
                                     "vertex index {bad} is beyond the {count} vertices{}",
                                     if line.is_some() {
@@ -523,16 +521,24 @@ pub fn read_cityjson(
                             return;
                         }
                     }
-                    let next = model.group_names.len() as u32;
-                    let group = *group_of_layer.entry(layer.clone()).or_insert_with(|| {
-                        model.group_names.push((id.clone(), layer.clone()));
-                        next
-                    });
-                    let shift = |ring: &Vec<u32>| ring.iter().map(|i| i + base).collect::<Vec<_>>();
+                    let group = match group_of_layer.iter().find(|(l, _)| *l == layer) {
+                        Some(&(_, group)) => group,
+                        None => {
+                            let group = model.group_names.len() as u32;
+                            model.group_names.push((id.to_string(), layer.to_owned()));
+                            group_of_layer.push((layer, group));
+                            group
+                        }
+                    };
                     let face = model.mesh.faces.len() as u32;
-                    model.mesh.push_face(&shift(&rings[0]), group);
+                    outer.clear();
+                    outer.extend(rings[0].iter().map(|i| i + base));
+                    model.mesh.push_face(&outer, group);
                     for hole in &rings[1..] {
-                        model.mesh.holes.push((face, shift(hole)));
+                        model
+                            .mesh
+                            .holes
+                            .push((face, hole.iter().map(|i| i + base).collect()));
                     }
                 });
                 if let Some(problem) = problem {
@@ -543,10 +549,7 @@ pub fn read_cityjson(
             if !drawn && !object.geometry.is_empty() {
                 model.notes.push(format!(
                     "{id}: no geometry at lod {chosen} (it has {})",
-                    lods.iter()
-                        .map(|l| l.to_string())
-                        .collect::<Vec<_>>()
-                        .join(", ")
+                    lods().map(|l| l.to_string()).collect::<Vec<_>>().join(", ")
                 ));
             }
         }
@@ -569,7 +572,10 @@ pub fn read_cityjson(
 
 /// The geometry a city object's geometry stands for: a GeometryInstance's template (when
 /// the file has it), any other geometry itself.
-fn resolved<'a>(geometry: &'a Geometry, templates: Option<&'a Templates>) -> &'a Geometry {
+fn resolved<'g, 'a>(
+    geometry: &'g Geometry<'a>,
+    templates: Option<&'g Templates<'a>>,
+) -> &'g Geometry<'a> {
     if geometry.kind != "GeometryInstance" {
         return geometry;
     }
@@ -609,8 +615,8 @@ fn place_instance(
             ),
         ));
     }
-    let reference = match &instance.boundaries {
-        Some(Tree::Ring(ring)) if ring.len() == 1 => ring[0],
+    let reference = match instance.boundaries.as_ref().map(Boundaries::root) {
+        Some(Node::Ring(&[reference])) => reference,
         _ => {
             return Err(OpenDataError::plain(
                 &format!("{at}.boundaries"),
@@ -650,58 +656,22 @@ fn place_instance(
         .collect())
 }
 
-/// Calls `surface(rings, semantic value, path)` for every surface of a boundary tree of
-/// `depth` levels (3 for surfaces, 4 for a solid, 5 for several solids), walking the
-/// semantic values alongside.
-fn walk(
-    tree: &Tree,
-    values: Option<&Values>,
-    depth: usize,
-    surface: &mut impl FnMut(&[Vec<u32>], Option<u32>, &str),
-) {
-    fn go(
-        tree: &Tree,
-        values: Option<&Values>,
-        depth: usize,
-        path: &mut String,
-        surface: &mut impl FnMut(&[Vec<u32>], Option<u32>, &str),
-    ) {
-        let Tree::List(items) = tree else {
-            return;
-        };
-        for (k, item) in items.iter().enumerate() {
-            let len = path.len();
-            path.push_str(&format!("[{k}]"));
-            if depth == 3 {
-                // `item` is a surface: a list of rings.
-                let rings: Vec<Vec<u32>> = match item {
-                    Tree::List(rs) => rs
-                        .iter()
-                        .filter_map(|r| match r {
-                            Tree::Ring(ring) => Some(ring.clone()),
-                            Tree::List(_) => None,
-                        })
-                        .collect(),
-                    Tree::Ring(_) => Vec::new(),
-                };
-                let value = match values {
-                    Some(Values::Surfaces(v)) => v.get(k).copied().flatten(),
-                    _ => None,
-                };
-                if !rings.is_empty() {
-                    surface(&rings, value, path);
-                }
-            } else {
-                let inner = match values {
-                    Some(Values::List(v)) => v.get(k),
-                    _ => None,
-                };
-                go(item, inner, depth - 1, path, surface);
-            }
-            path.truncate(len);
-        }
+/// The file's vertices placed in the plan by `place`: a large model's in pieces on every
+/// core, in order.
+fn place_vertices(
+    vertices: &[[i64; 3]],
+    place: impl Fn(&[i64; 3]) -> Point3<f64> + Sync,
+) -> Vec<Point3<f64>> {
+    const PIECE: usize = 1 << 14;
+    let pieces: Vec<&[[i64; 3]]> = vertices.chunks(PIECE).collect();
+    let placed = crate::cores::in_order(pieces.len(), |k| {
+        pieces[k].iter().map(&place).collect::<Vec<_>>()
+    });
+    let mut all = Vec::with_capacity(vertices.len());
+    for piece in placed {
+        all.extend(piece);
     }
-    go(tree, values, depth, &mut String::new(), surface);
+    all
 }
 
 #[cfg(test)]

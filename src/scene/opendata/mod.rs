@@ -10,6 +10,7 @@
 //! Everything the data does not say and pansite assumes (a height from levels, a default
 //! roof, a road's width from its class) is kept beside the item it made, for `check`.
 
+mod boundaries;
 mod building;
 pub mod cityjson;
 pub mod earth;
