@@ -5,14 +5,14 @@ use super::build::{ItemBuilder, Placement};
 use super::format::{ItemSpec, Posture, SceneFile, StandpointSpec};
 use super::items::*;
 use super::mesh::UpAxis;
-use super::mesh::{add_mesh, MeshPlacement};
+use super::mesh::{add_mesh, add_mesh_named, MeshPlacement};
 use super::numbers::spot;
 use super::numbers::{Finite, Positive};
 use super::obj::read_obj;
 use super::opendata::{
     build_building, read_open_data, OpenDataContent, OpenDataSpec, Placed, CITY_CREASE_DEG,
 };
-use super::site::ItemId;
+use super::site::{ItemId, ItemInfo};
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use super::streets::Culprit;
 use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
@@ -415,30 +415,24 @@ impl Walker<'_> {
                 }
             }
             OpenDataContent::City(model) => {
-                let first = self.site.items.len();
                 let placement = MeshPlacement {
                     up: UpAxis::Z,
                     crease_deg: CITY_CREASE_DEG,
                     ..MeshPlacement::default()
                 };
-                add_mesh(self.site, &model.mesh, &placement, "");
-                // The mesh puts each group's faces on a layer named after the group (and
-                // makes no item for a group whose faces were all dropped).
-                let group_of: std::collections::HashMap<&str, usize> = model
-                    .mesh
-                    .groups
-                    .iter()
-                    .enumerate()
-                    .map(|(g, name)| (name.as_str(), g))
-                    .collect();
-                for item in &mut self.site.items[first..] {
-                    let group = item.layer.as_deref().and_then(|l| group_of.get(l));
-                    if let Some((id, kind)) = group.map(|&g| &model.group_names[g]) {
-                        item.kind = "city object";
-                        item.label = Some(id.clone());
-                        item.layer = Some(layer.map_or_else(|| kind.clone(), str::to_owned));
+                // Each group of the mesh is one city object's surfaces of one layer: its
+                // item is named after the object, on that layer (or on the item's own).
+                let names = |group: u32, _| {
+                    let named = model.group_names.get(group as usize);
+                    ItemInfo {
+                        kind: "city object",
+                        label: named.map(|(id, _)| id.clone()),
+                        layer: layer
+                            .map(str::to_owned)
+                            .or_else(|| named.map(|(_, kind)| kind.clone())),
                     }
-                }
+                };
+                add_mesh_named(self.site, &model.mesh, &placement, &names);
             }
         }
         self.check_size()

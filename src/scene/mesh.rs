@@ -43,7 +43,7 @@
 //!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Edge, Face, ItemId, SilhouetteEdge, Site, SiteCurve};
+use super::site::{Edge, Face, ItemId, ItemInfo, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use std::collections::HashMap;
 use std::ops::Range;
@@ -168,6 +168,9 @@ const SAME_NORMAL: f64 = 1e-5;
 /// the hole is cut from, and the file gives them no normals.
 const HOLE_CORNER: u32 = u32::MAX >> 1;
 
+/// Names the item of a mesh's group and material: its kind, label and layer.
+pub type ItemNames<'a> = &'a (dyn Fn(u32, u32) -> ItemInfo + Sync);
+
 /// Adds a mesh to the site: one item per group and material of the file (named `name`,
 /// `name: group`, `name: group (material)`; its layer is the material where the face has
 /// one, else the group), its drawn edges, its silhouette candidates and its faces.
@@ -177,7 +180,38 @@ pub fn add_mesh(
     placement: &MeshPlacement,
     name: &str,
 ) -> MeshStats {
-    add_mesh_on_cores(site, obj, placement, name, PARALLEL_FACES)
+    add_mesh_named(site, obj, placement, &|group, material| {
+        model_item(obj, name, group, material)
+    })
+}
+
+/// [`add_mesh`], its items named by `names`: the kind, label and layer of the item of a
+/// group and material (a city model names its items after its objects and layers).
+pub fn add_mesh_named(
+    site: &mut Site,
+    obj: &ObjFile,
+    placement: &MeshPlacement,
+    names: ItemNames<'_>,
+) -> MeshStats {
+    add_mesh_on_cores(site, obj, placement, names, PARALLEL_FACES)
+}
+
+/// How [`add_mesh`] names the item of a group and material.
+fn model_item(obj: &ObjFile, name: &str, group: u32, material: u32) -> ItemInfo {
+    let group = &obj.groups[group as usize];
+    let material = &obj.materials[material as usize];
+    let label = match (group.is_empty(), material.is_empty()) {
+        (true, true) => name.to_owned(),
+        (false, true) => format!("{name}: {group}"),
+        (true, false) => format!("{name} ({material})"),
+        (false, false) => format!("{name}: {group} ({material})"),
+    };
+    let layer = [material, group].into_iter().find(|s| !s.is_empty());
+    ItemInfo {
+        kind: "model",
+        label: Some(label),
+        layer: layer.cloned(),
+    }
 }
 
 /// From this many faces on, a model's faces are welded and cut into triangles, and its
@@ -185,13 +219,13 @@ pub fn add_mesh(
 /// they save.
 const PARALLEL_FACES: usize = 50_000;
 
-/// [`add_mesh`], on two cores from `parallel_from` faces on (the tests force the split on
-/// small models to check that it changes nothing).
+/// [`add_mesh_named`], on two cores from `parallel_from` faces on (the tests force the
+/// split on small models to check that it changes nothing).
 fn add_mesh_on_cores(
     site: &mut Site,
     obj: &ObjFile,
     placement: &MeshPlacement,
-    name: &str,
+    names: ItemNames<'_>,
     parallel_from: usize,
 ) -> MeshStats {
     let two_cores = obj.faces.len() >= parallel_from;
@@ -212,7 +246,7 @@ fn add_mesh_on_cores(
     let first_item = site.items.len() as u32;
     // The items first, in the order the faces first use them (a face of no area makes
     // none), so that the faces can then be cut up on two cores.
-    let mut items = MeshItems::new(name);
+    let mut items = MeshItems::new(obj, names);
     items.add_for_faces(site, obj, &weld, &points);
 
     // Holes, by face: welded rings without repeats (CityJSON surfaces have them, OBJ none).
@@ -362,7 +396,7 @@ fn add_mesh_on_cores(
     }
 
     for line in &obj.lines {
-        let item = items.get_or_add(site, obj, line);
+        let item = items.get_or_add(site, line);
         for pair in obj.line_indices(line).windows(2) {
             let (a, b) = (weld[pair[0] as usize], weld[pair[1] as usize]);
             if a != b {
@@ -396,52 +430,73 @@ fn joined<T>(handle: std::thread::ScopedJoinHandle<'_, T>) -> T {
 /// The site's items for a mesh's groups and materials, made in the order the faces, then
 /// the lines, first use them.
 struct MeshItems<'a> {
-    name: &'a str,
+    /// The kind, label and layer of the item of a group and material.
+    names: ItemNames<'a>,
+    /// The item of each group and material: a table by group and material where the file
+    /// has few enough of them (a city model has an object and layer per group), else a map.
+    table: Option<(Vec<Option<ItemId>>, usize)>,
     of: HashMap<(u32, u32), ItemId>,
     /// Runs of faces share their group and material: the last answer is kept at hand.
     last: Option<((u32, u32), ItemId)>,
 }
 
 impl<'a> MeshItems<'a> {
-    fn new(name: &'a str) -> Self {
+    fn new(obj: &ObjFile, names: ItemNames<'a>) -> Self {
+        let (groups, materials) = (obj.groups.len().max(1), obj.materials.len().max(1));
+        let cells = groups.saturating_mul(materials);
+        let table = (cells <= 4 * (obj.faces.len() + obj.lines.len()) + 1024)
+            .then(|| (vec![None; cells], materials));
         MeshItems {
-            name,
+            names,
+            table,
             of: HashMap::new(),
             last: None,
         }
     }
 
     /// The item of a group and material, if one is made.
-    fn get(&self, key: (u32, u32)) -> Option<ItemId> {
-        self.of.get(&key).copied()
+    fn get(&self, (group, material): (u32, u32)) -> Option<ItemId> {
+        match &self.table {
+            Some((table, materials)) => table
+                .get(group as usize * materials + material as usize)
+                .copied()
+                .flatten(),
+            None => self.of.get(&(group, material)).copied(),
+        }
     }
 
     /// The first item made.
     fn first(&self) -> Option<ItemId> {
-        self.of.values().min_by_key(|i| i.0).copied()
+        match &self.table {
+            Some((table, _)) => table.iter().flatten().min_by_key(|i| i.0).copied(),
+            None => self.of.values().min_by_key(|i| i.0).copied(),
+        }
     }
 
     /// The item of an element's group and material, made if new.
-    fn get_or_add(&mut self, site: &mut Site, obj: &ObjFile, element: &ObjElement) -> ItemId {
+    fn get_or_add(&mut self, site: &mut Site, element: &ObjElement) -> ItemId {
         let key = (element.group, element.material);
         if let Some((k, item)) = self.last {
             if k == key {
                 return item;
             }
         }
-        let name = self.name;
-        let item = *self.of.entry(key).or_insert_with(|| {
-            let group = &obj.groups[element.group as usize];
-            let material = &obj.materials[element.material as usize];
-            let label = match (group.is_empty(), material.is_empty()) {
-                (true, true) => name.to_owned(),
-                (false, true) => format!("{name}: {group}"),
-                (true, false) => format!("{name} ({material})"),
-                (false, false) => format!("{name}: {group} ({material})"),
-            };
-            let layer = [material, group].into_iter().find(|s| !s.is_empty());
-            site.add_item_on_layer("model", Some(label), layer.cloned())
-        });
+        let item = match self.get(key) {
+            Some(item) => item,
+            None => {
+                let ItemInfo { kind, label, layer } = (self.names)(key.0, key.1);
+                let item = site.add_item_on_layer(kind, label, layer);
+                match &mut self.table {
+                    Some((table, materials)) => {
+                        table[key.0 as usize * *materials + key.1 as usize] = Some(item)
+                    }
+                    None => {
+                        self.of.insert(key, item);
+                    }
+                }
+                item
+            }
+        };
         self.last = Some((key, item));
         item
     }
@@ -463,13 +518,13 @@ impl<'a> MeshItems<'a> {
             if known == Some(key) {
                 continue;
             }
-            if self.of.contains_key(&key) {
+            if self.get(key).is_some() {
                 known = Some(key);
                 continue;
             }
             scratch.clear();
             if weld_face(obj, face, weld, points, &mut scratch).is_some() {
-                self.get_or_add(site, obj, face);
+                self.get_or_add(site, face);
                 known = Some(key);
             }
         }
@@ -1394,10 +1449,11 @@ mod tests {
         let n = obj.positions.len() as u32;
         obj.holes.push((0, vec![n - 3, n - 2, n - 1]));
         let placement = z_up();
+        let names = |g, m| model_item(&obj, "t.obj", g, m);
         let mut one = Site::default();
-        let one_stats = add_mesh_on_cores(&mut one, &obj, &placement, "t.obj", usize::MAX);
+        let one_stats = add_mesh_on_cores(&mut one, &obj, &placement, &names, usize::MAX);
         let mut two = Site::default();
-        let two_stats = add_mesh_on_cores(&mut two, &obj, &placement, "t.obj", 0);
+        let two_stats = add_mesh_on_cores(&mut two, &obj, &placement, &names, 0);
         assert_eq!(one_stats, two_stats);
         assert_eq!(one, two);
         assert!(
@@ -1417,8 +1473,9 @@ mod tests {
         ] {
             let obj = parse_obj(text.as_bytes(), Path::new("t.obj")).unwrap();
             let (mut one, mut two) = (Site::default(), Site::default());
-            let a = add_mesh_on_cores(&mut one, &obj, &placement, "t.obj", usize::MAX);
-            let b = add_mesh_on_cores(&mut two, &obj, &placement, "t.obj", 0);
+            let names = |g, m| model_item(&obj, "t.obj", g, m);
+            let a = add_mesh_on_cores(&mut one, &obj, &placement, &names, usize::MAX);
+            let b = add_mesh_on_cores(&mut two, &obj, &placement, &names, 0);
             assert_eq!((a, one), (b, two));
         }
     }
