@@ -140,83 +140,24 @@ pub fn read_geojson(
     let mut outlines: Vec<usize> = Vec::new();
     let mut pending: Vec<Option<Placed>> = Vec::with_capacity(features.len());
 
-    for (index, feature) in features.iter().enumerate() {
+    // Every position placed and checked first, kept or not (a broken file is refused
+    // whole, at its first fault), the features shared out over the cores: placing is a
+    // geodesic per position.
+    let shapes = crate::cores::in_order(features.len(), |index| {
+        feature_shapes(&features[index], index, frame)
+    });
+    for ((index, feature), shapes) in features.iter().enumerate().zip(shapes) {
+        let Shapes {
+            polygons: placed_polygons,
+            lines: placed_lines,
+            kind,
+        } = shapes?;
         let located = Located::feature(index, feature.id.as_ref().map(id_text));
         let tags = feature.properties.as_ref().unwrap_or(&empty);
-        let Some(geometry) = &feature.geometry else {
-            return Err(located.error(
-                &format!("$.features[{index}].geometry"),
-                "the feature has no geometry (null)",
-            ));
-        };
-        let at = format!("$.features[{index}].geometry.coordinates");
         let label = tag(tags, "name")
             .map(|n| n.into_owned())
             .or_else(|| located.id.clone())
             .unwrap_or_else(|| format!("feature {index}"));
-        let polygons: Vec<(String, &Vec<Vec<Position>>)> = match &geometry.value {
-            GeometryValue::Polygon { coordinates } => vec![(at.clone(), coordinates)],
-            GeometryValue::MultiPolygon { coordinates } => coordinates
-                .iter()
-                .enumerate()
-                .map(|(k, p)| (format!("{at}[{k}]"), p))
-                .collect(),
-            _ => Vec::new(),
-        };
-        let lines: Vec<(String, &Vec<Position>)> = match &geometry.value {
-            GeometryValue::LineString { coordinates } => vec![(at.clone(), coordinates)],
-            GeometryValue::MultiLineString { coordinates } => coordinates
-                .iter()
-                .enumerate()
-                .map(|(k, l)| (format!("{at}[{k}]"), l))
-                .collect(),
-            _ => Vec::new(),
-        };
-        // Every position is checked, kept or not: a broken file is refused whole.
-        let mut placed_polygons = Vec::with_capacity(polygons.len());
-        for (at, rings) in &polygons {
-            let mut placed_rings = Vec::with_capacity(rings.len());
-            for (r, ring) in rings.iter().enumerate() {
-                let at = format!("{at}[{r}]");
-                if ring.len() < 4 {
-                    return Err(located.error(
-                        &at,
-                        &format!(
-                            "a ring needs at least 4 positions (RFC 7946, 3.1.6), found {}",
-                            ring.len()
-                        ),
-                    ));
-                }
-                let points = place_all(ring, frame, &located, &at)?;
-                if points.first() != points.last() {
-                    return Err(located.error(
-                        &at,
-                        "the ring is not closed: its first and last positions differ \
-                         (RFC 7946, 3.1.6)",
-                    ));
-                }
-                let mut plan: Vec<Vector2<f64>> =
-                    points.iter().map(|p| Vector2::new(p.0, p.1)).collect();
-                plan.pop();
-                plan.dedup();
-                if let Some(problem) = simple_polygon_problem(&plan) {
-                    return Err(located.error(&at, &format!("the ring {problem}")));
-                }
-                placed_rings.push((plan, points));
-            }
-            placed_polygons.push(placed_rings);
-        }
-        let mut placed_lines = Vec::with_capacity(lines.len());
-        for (at, line) in &lines {
-            if line.len() < 2 {
-                return Err(located.error(
-                    at,
-                    "a LineString needs at least 2 positions (RFC 7946, 3.1.4)",
-                ));
-            }
-            placed_lines.push(place_all(line, frame, &located, at)?);
-        }
-
         if !selection.keeps(tags) {
             pending.push(None);
             continue;
@@ -297,7 +238,7 @@ pub fn read_geojson(
             scene.skipped.push(format!(
                 "{}: {} {}",
                 located.describe(),
-                geometry.value.type_name(),
+                kind,
                 "without a building, building:part or highway tag pansite draws"
             ));
             pending.push(None);
@@ -306,6 +247,98 @@ pub fn read_geojson(
     drop_outlines_with_parts(&mut pending, &outlines, &parts);
     scene.placed = pending.into_iter().flatten().collect();
     Ok(scene)
+}
+
+/// A feature's geometry placed in the plan: each polygon's rings (in plan without the
+/// closing repeat, beside their placed positions) and each line's positions.
+struct Shapes {
+    polygons: Vec<Vec<(Vec<Vector2<f64>>, Vec<(f64, f64, f64)>)>>,
+    lines: Vec<Vec<(f64, f64, f64)>>,
+    /// The geometry's type, for messages.
+    kind: &'static str,
+}
+
+/// Places and checks every position of a feature (the `index`th): rings closed, of four
+/// positions or more and not crossing themselves, lines of two or more.
+fn feature_shapes(
+    feature: &Feature,
+    index: usize,
+    frame: &LocalFrame,
+) -> Result<Shapes, OpenDataError> {
+    let located = || Located::feature(index, feature.id.as_ref().map(id_text));
+    let Some(geometry) = &feature.geometry else {
+        return Err(located().error(
+            &format!("$.features[{index}].geometry"),
+            "the feature has no geometry (null)",
+        ));
+    };
+    let at = format!("$.features[{index}].geometry.coordinates");
+    let polygons: Vec<(String, &Vec<Vec<Position>>)> = match &geometry.value {
+        GeometryValue::Polygon { coordinates } => vec![(at.clone(), coordinates)],
+        GeometryValue::MultiPolygon { coordinates } => coordinates
+            .iter()
+            .enumerate()
+            .map(|(k, p)| (format!("{at}[{k}]"), p))
+            .collect(),
+        _ => Vec::new(),
+    };
+    let lines: Vec<(String, &Vec<Position>)> = match &geometry.value {
+        GeometryValue::LineString { coordinates } => vec![(at.clone(), coordinates)],
+        GeometryValue::MultiLineString { coordinates } => coordinates
+            .iter()
+            .enumerate()
+            .map(|(k, l)| (format!("{at}[{k}]"), l))
+            .collect(),
+        _ => Vec::new(),
+    };
+    let mut placed_polygons = Vec::with_capacity(polygons.len());
+    for (at, rings) in &polygons {
+        let mut placed_rings = Vec::with_capacity(rings.len());
+        for (r, ring) in rings.iter().enumerate() {
+            let at = format!("{at}[{r}]");
+            if ring.len() < 4 {
+                return Err(located().error(
+                    &at,
+                    &format!(
+                        "a ring needs at least 4 positions (RFC 7946, 3.1.6), found {}",
+                        ring.len()
+                    ),
+                ));
+            }
+            let points = place_all(ring, frame, &located(), &at)?;
+            if points.first() != points.last() {
+                return Err(located().error(
+                    &at,
+                    "the ring is not closed: its first and last positions differ \
+                     (RFC 7946, 3.1.6)",
+                ));
+            }
+            let mut plan: Vec<Vector2<f64>> =
+                points.iter().map(|p| Vector2::new(p.0, p.1)).collect();
+            plan.pop();
+            plan.dedup();
+            if let Some(problem) = simple_polygon_problem(&plan) {
+                return Err(located().error(&at, &format!("the ring {problem}")));
+            }
+            placed_rings.push((plan, points));
+        }
+        placed_polygons.push(placed_rings);
+    }
+    let mut placed_lines = Vec::with_capacity(lines.len());
+    for (at, line) in &lines {
+        if line.len() < 2 {
+            return Err(located().error(
+                at,
+                "a LineString needs at least 2 positions (RFC 7946, 3.1.4)",
+            ));
+        }
+        placed_lines.push(place_all(line, frame, &located(), at)?);
+    }
+    Ok(Shapes {
+        polygons: placed_polygons,
+        lines: placed_lines,
+        kind: geometry.value.type_name(),
+    })
 }
 
 /// A building outline that holds a building part is drawn by its parts alone (the
