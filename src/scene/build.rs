@@ -120,7 +120,38 @@ pub struct ItemBuilder<'a> {
     site: &'a mut Site,
     item: ItemId,
     place: Placement,
-    drawn: HashSet<[i64; 6]>,
+    drawn: Drawn,
+}
+
+/// The segments an item has drawn, by their ends in micrometres: a short list while the
+/// item is small (a house has a dozen or two, and hashing each was a noticeable part of a
+/// town of them), a set once it grows.
+#[derive(Default)]
+struct Drawn {
+    few: Vec<[i64; 6]>,
+    many: HashSet<[i64; 6]>,
+}
+
+/// Segments kept in the list before they move to the set.
+const FEW_SEGMENTS: usize = 32;
+
+impl Drawn {
+    fn contains(&self, key: &[i64; 6]) -> bool {
+        self.few.contains(key) || self.many.contains(key)
+    }
+
+    /// Adds a key; false if it was there.
+    fn insert(&mut self, key: [i64; 6]) -> bool {
+        if self.contains(&key) {
+            return false;
+        }
+        if self.few.len() < FEW_SEGMENTS {
+            self.few.push(key);
+        } else {
+            self.many.insert(key);
+        }
+        true
+    }
 }
 
 impl<'a> ItemBuilder<'a> {
@@ -129,7 +160,7 @@ impl<'a> ItemBuilder<'a> {
             site,
             item,
             place,
-            drawn: HashSet::new(),
+            drawn: Drawn::default(),
         }
     }
 
