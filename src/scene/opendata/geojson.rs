@@ -249,10 +249,14 @@ pub fn read_geojson(
     Ok(scene)
 }
 
-/// A feature's geometry placed in the plan: each polygon's rings (in plan without the
-/// closing repeat, beside their placed positions) and each line's positions.
+/// A ring in plan without its closing repeat, beside its positions placed (plan x, y and
+/// the fall of the ground).
+type PlacedRing = (Vec<Vector2<f64>>, Vec<(f64, f64, f64)>);
+
+/// A feature's geometry placed in the plan: each polygon's rings and each line's
+/// positions.
 struct Shapes {
-    polygons: Vec<Vec<(Vec<Vector2<f64>>, Vec<(f64, f64, f64)>)>>,
+    polygons: Vec<Vec<PlacedRing>>,
     lines: Vec<Vec<(f64, f64, f64)>>,
     /// The geometry's type, for messages.
     kind: &'static str,
