@@ -698,6 +698,43 @@ mod tests {
         move |_| Ok(Some(Placing::Shift { origin }))
     }
 
+    /// The form a level of detail had before: serde's untagged enum, the reference here.
+    mod before {
+        #[derive(Debug, serde::Deserialize)]
+        #[serde(untagged)]
+        pub enum Lod {
+            Text(String),
+            Number(f64),
+        }
+    }
+
+    #[derive(Debug, Deserialize)]
+    struct HeldLod<T> {
+        lod: T,
+    }
+
+    #[test]
+    fn a_level_of_detail_reads_as_the_untagged_enum_did() {
+        for good in [r#""2.2""#, r#"" 1 ""#, "2", "1.5", "-1"] {
+            let text = format!("{{\"lod\": {good}}}");
+            let ours = serde_json::from_str::<HeldLod<Lod>>(&text).unwrap().lod;
+            let serde = serde_json::from_str::<HeldLod<before::Lod>>(&text)
+                .unwrap()
+                .lod;
+            let value = match serde {
+                before::Lod::Text(t) => t.trim().parse().ok(),
+                before::Lod::Number(n) => Some(n),
+            };
+            assert_eq!(ours.value(), value, "{good}");
+        }
+        for bad in ["true", "[1, [2]]", r#"{"a": 1}"#] {
+            let text = format!("{{\"lod\": {bad}, \"after\": 1}}");
+            let ours = serde_json::from_str::<HeldLod<Lod>>(&text).unwrap_err();
+            let serde = serde_json::from_str::<HeldLod<before::Lod>>(&text).unwrap_err();
+            assert_eq!(ours.to_string(), serde.to_string(), "{bad}");
+        }
+    }
+
     #[test]
     fn vertices_are_integers_times_scale_plus_translate() {
         // CityJSON 2.0, "Transform object": v = i * scale + translate.
