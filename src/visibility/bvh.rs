@@ -994,8 +994,19 @@ mod tests {
         assert!(sides(0.0).is_some_and(|s| s.touching));
         assert!(sides(-0.01).is_some_and(|s| !s.touching));
         assert!(sides(-2.01).is_none());
+        // Hanging from the floor by its top side: touching from below.
+        assert!(sides(-2.0).is_some_and(|s| s.touching));
         // Touching, the plain test answers: the standing triangle's corner is on the floor.
         assert!(triangles_cross(&floor, &standing(0.0)));
         assert!(!triangles_cross(&floor, &standing(0.01)));
+        // The margin scales with the plane's normal and the corners' reach: on a floor 400 m
+        // across, a corner 100 m out and 1e-8 m up is within it (1e-9 of the reach), so
+        // touching; 1e-6 m up it is clear.
+        let wide = floor.map(|p| p * 100.0);
+        let far = |z: f64| standing(z).map(|p| p + Vector3::new(99.0, 99.0, 0.0));
+        assert!(Plane::of(&wide)
+            .sides_of(&far(1e-8))
+            .is_some_and(|s| s.touching));
+        assert!(Plane::of(&wide).sides_of(&far(1e-6)).is_none());
     }
 }
