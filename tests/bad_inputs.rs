@@ -250,6 +250,7 @@ corpus! {
     geojson_ring_not_closed: "geojson-ring-not-closed.geojson" => refused("geojson-ring-not-closed.geojson: feature 0 (id \"way/7\"), at $.features[0].geometry.coordinates[0]:", &["not closed", "RFC 7946"]);
     geojson_ring_crosses_itself: "geojson-crosses-itself.geojson" => refused("geojson-crosses-itself.geojson: feature 0 (id \"bow-tie\")", &["crosses"]);
     geojson_latitude_written_first: "geojson-latitude-first.geojson" => refused("geojson-latitude-first.geojson: feature 0 (id \"harbour road\"), at $.features[0].geometry.coordinates[0]:", &["out of range", "longitude first"]);
+    geojson_polygon_without_rings: "geojson-empty-polygon.geojson" => refused("geojson-empty-polygon.geojson: feature 0 (id \"hall\"), at $.features[0].geometry.coordinates[1]:", &["outer ring", "RFC 7946"]);
     geojson_feature_without_geometry: "geojson-no-geometry.geojson" => refused("geojson-no-geometry.geojson: feature 1 (id \"2\"), at $.features[1].geometry:", &["no geometry"]);
     geojson_other_reference_system: "geojson-other-crs.geojson" => refused("geojson-other-crs.geojson: at $.crs:", &["EPSG::27700", "WGS84"]);
     cityjson_vertex_index_out_of_range: "cityjson-index-out-of-range.city.json" => refused("cityjson-index-out-of-range.city.json: at $.CityObjects[\"shed\"].geometry[0].boundaries[1][0]:", &["vertex index 3"]);

@@ -297,6 +297,12 @@ fn feature_shapes(
     };
     let mut placed_polygons = Vec::with_capacity(polygons.len());
     for (at, rings) in &polygons {
+        if rings.is_empty() {
+            return Err(located().error(
+                at,
+                "a polygon needs at least its outer ring (RFC 7946, 3.1.6), found none",
+            ));
+        }
         let mut placed_rings = Vec::with_capacity(rings.len());
         for (r, ring) in rings.iter().enumerate() {
             let at = format!("{at}[{r}]");
