@@ -1,8 +1,8 @@
-//! Work spread over the machine's cores, its results kept in order: the sun's passes
-//! (the shadows' silhouette edges, the tone's receiving planes, the table's days) and the
-//! look-around's runs of edges are each a list of independent pieces of work, done here in
-//! blocks taken in turn by one thread per core, and put back in the list's order, so the
-//! result is the same on any number of cores.
+//! Work spread over the machine's cores, its results kept in order: a list of independent
+//! pieces of work (the sun's passes, the look-around's runs of edges, open data's features
+//! and vertices, among others: see the callers of [`in_order`]) done in blocks taken in
+//! turn by one thread per core, and put back in the list's order, so the result is the
+//! same on any number of cores. A list of one block or less runs on one core.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 

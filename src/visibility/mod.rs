@@ -55,7 +55,8 @@
 //!   Wherever neighbouring samples disagree, the change is found by bisection to a thousandth
 //!   of a pixel, its first step a guess: where the edge crosses the outline of the face that
 //!   hides its hidden end, tried by two looks either side (right about nine times in ten on
-//!   the demo square; a wrong guess narrows the interval like a halving). Edges are handled on all cores in the same runs as flattening; the seen and
+//!   the demo square; a wrong guess costs its two looks, then halving goes on). Edges are
+//!   handled on all cores in the same runs as flattening; the seen and
 //!   hidden stretches are flattened as sub-curves of the edge's sphere curve.
 //! - **Accuracy.** Changes are placed to 0.001 px of the ray test. For straight edges nothing
 //!   is missed: the fan test sees any face, however thin, that crosses. For curved edges a

@@ -280,9 +280,10 @@ impl<'a> Occluders<'a> {
     /// Bisection, helped by a guess: where the curve crosses the outline of the face that
     /// hides the hidden end (as the eye sees it: the planes through the eye and the
     /// triangle's sides) is usually where it comes out from behind it. Two looks just either
-    /// side of that crossing settle it when the guess is right; either way each look
-    /// narrows the interval as a halving would, so the answer is always a bisection's: the
-    /// middle of an interval no wider than `precision` whose ends look different.
+    /// side of that crossing settle it when the guess is right. Either way every look keeps
+    /// the two ends looking different, so the answer is always a bisection's: the middle of
+    /// an interval no wider than `precision` whose ends look different (a wrong guess only
+    /// costs its two looks; there is one guess, then halving).
     fn bisect(&self, curve: &SphereCurve, depth: &Depth, a: Look, b: Look, precision: f64) -> f64 {
         let seen_at_a = a.seen();
         let (mut a, mut b) = (a, b);
