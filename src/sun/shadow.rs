@@ -251,9 +251,8 @@ impl SunView {
         let Some(grid) = &self.grid else {
             return false;
         };
-        let size = 1.0 + p.coords.abs().max();
-        let start = 1e-7 * size;
-        let (q, pad) = (self.project(p), VIEW_PAD * size);
+        let start = own_face_reach(p);
+        let (q, pad) = (self.project(p), VIEW_PAD * (1.0 + p.coords.abs().max()));
         grid.any_near(q, pad, |index| {
             let outside = |sides: &Sides| sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad);
             if self.images[index as usize].as_ref().is_some_and(outside) {
@@ -562,6 +561,13 @@ fn clip_linear(span: &mut (f64, f64), at0: f64, at1: f64) -> Option<()> {
     (span.0 < span.1).then_some(())
 }
 
+/// How far along a ray to the sun from `p` a hit is the point's own face, not a shadow:
+/// relative to the size of the point's coordinates. One function, so that the sun's view
+/// and the hierarchy (which the tests compare) draw the line in the same place.
+fn own_face_reach(p: &Point3<f64>) -> f64 {
+    1e-7 * (1.0 + p.coords.abs().max())
+}
+
 /// Whether the ray from `p` towards the sun, cast through the hierarchy of faces, meets a
 /// face for which `blocks(face, distance, start)` holds, `start` being the distance
 /// within which a hit is the point's own face.
@@ -574,7 +580,7 @@ fn meets(
 ) -> bool {
     let base = site.faces.as_ptr() as usize;
     let size = std::mem::size_of::<Face>();
-    let start = 1e-7 * (1.0 + p.coords.abs().max());
+    let start = own_face_reach(p);
     bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
         let index = ((face as *const Face as usize - base) / size) as u32;
         blocks(index, distance, start)
