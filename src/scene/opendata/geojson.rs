@@ -262,6 +262,15 @@ struct Shapes {
     kind: &'static str,
 }
 
+/// Each part of a multi-part geometry with its JSON path, `at[k]`.
+fn parts_at<'g, T>(at: &str, parts: &'g [T]) -> Vec<(String, &'g T)> {
+    parts
+        .iter()
+        .enumerate()
+        .map(|(k, part)| (format!("{at}[{k}]"), part))
+        .collect()
+}
+
 /// Places and checks every position of a feature (the `index`th): rings closed, of four
 /// positions or more and not crossing themselves, lines of two or more.
 fn feature_shapes(
@@ -279,20 +288,12 @@ fn feature_shapes(
     let at = format!("$.features[{index}].geometry.coordinates");
     let polygons: Vec<(String, &Vec<Vec<Position>>)> = match &geometry.value {
         GeometryValue::Polygon { coordinates } => vec![(at.clone(), coordinates)],
-        GeometryValue::MultiPolygon { coordinates } => coordinates
-            .iter()
-            .enumerate()
-            .map(|(k, p)| (format!("{at}[{k}]"), p))
-            .collect(),
+        GeometryValue::MultiPolygon { coordinates } => parts_at(&at, coordinates),
         _ => Vec::new(),
     };
     let lines: Vec<(String, &Vec<Position>)> = match &geometry.value {
         GeometryValue::LineString { coordinates } => vec![(at.clone(), coordinates)],
-        GeometryValue::MultiLineString { coordinates } => coordinates
-            .iter()
-            .enumerate()
-            .map(|(k, l)| (format!("{at}[{k}]"), l))
-            .collect(),
+        GeometryValue::MultiLineString { coordinates } => parts_at(&at, coordinates),
         _ => Vec::new(),
     };
     let mut placed_polygons = Vec::with_capacity(polygons.len());
