@@ -20,6 +20,9 @@ pub const MAX_ROWS: usize = 600_000;
 const WALL_TIME_TOLERANCE_S: f64 = 1.0;
 /// An hour, seconds.
 const HOUR_S: f64 = 3_600.0;
+/// Degrees: how far an interpolated position may be from the whole algorithm's and still be
+/// printed as it would (ten times the 1e-7 that `hourly.rs`'s year-long test holds it to).
+const INTERPOLATION_MARGIN_DEG: f64 = 1e-6;
 
 /// What the table lists.
 #[derive(Clone, Debug, PartialEq)]
@@ -128,14 +131,26 @@ pub fn sun_table(site: &Site, sky: &Sky, request: &TableRequest) -> Result<Vec<S
         if let Some(step) = request.step_s {
             let (start, end) = sky.day_bounds(date)?;
             // More than a row an hour: the algorithm's slow part once an hour,
-            // interpolated between (within 1e-7 degrees of the whole algorithm).
+            // interpolated between (within 1e-7 degrees of the whole algorithm). A row
+            // whose angles lie near where their printed digits change is worked out whole,
+            // so the table prints exactly what the whole algorithm gives.
             let hourly = (step < HOUR_S)
                 .then(|| Hourly::over(start, end, estimated_delta_t))
                 .transpose()?;
             let mut t = start;
             while t < end {
                 let sample = match &hourly {
-                    Some(hourly) => sky.sample_between(hourly, t)?,
+                    Some(hourly) => {
+                        let quick = sky.sample_between(hourly, t)?;
+                        if prints_the_same_within(
+                            &printed_angles(sky, &quick),
+                            INTERPOLATION_MARGIN_DEG,
+                        ) {
+                            quick
+                        } else {
+                            sky.sample(t)?
+                        }
+                    }
                     None => sky.sample(t)?,
                 };
                 rows.push(row(sky, &sample, "position", String::new()));
@@ -195,20 +210,41 @@ fn find_item(site: &Site, label: &str) -> Result<ItemId> {
         .ok_or_else(|| Error::Setting(format!("the scene has no item labelled \"{label}\"")))
 }
 
+/// The angles a row prints: azimuth, plan azimuth and elevation, degrees.
+fn printed_angles(sky: &Sky, sample: &SunSample) -> [f64; 3] {
+    [
+        sample.place.azimuth_deg,
+        sample.place.plan_azimuth_deg(sky.location.north_deg),
+        sample.place.elevation_deg,
+    ]
+}
+
 fn row(sky: &Sky, sample: &SunSample, event: &'static str, detail: String) -> SunRow {
     let offset = sky.clock.offset_at(sample.instant_s);
     let sign = if offset < 0 { '-' } else { '+' };
     let o = offset.unsigned_abs();
+    let [azimuth, plan_azimuth, elevation] = printed_angles(sky, sample);
     SunRow {
         date: sample.local.date(),
         time: sample.local.strftime("%H:%M:%S").to_string(),
         offset: format!("{sign}{:02}:{:02}", o / 3600, o / 60 % 60),
         event,
-        azimuth_deg: Some(sample.place.azimuth_deg),
-        plan_azimuth_deg: Some(sample.place.plan_azimuth_deg(sky.location.north_deg)),
-        elevation_deg: Some(sample.place.elevation_deg),
+        azimuth_deg: Some(azimuth),
+        plan_azimuth_deg: Some(plan_azimuth),
+        elevation_deg: Some(elevation),
         detail,
     }
+}
+
+/// Whether every angle, moved by up to `margin` degrees either way, would still print the
+/// same to 0.001: none lies that near a rounding boundary (a half thousandth), zero (where
+/// the sign would change) or 360 (where an azimuth wraps to 0).
+fn prints_the_same_within(angles: &[f64; 3], margin: f64) -> bool {
+    angles.iter().all(|&value| {
+        let thousandths = value * 1000.0;
+        let from_half = (thousandths - thousandths.floor() - 0.5).abs();
+        from_half >= margin * 1000.0 && value.abs() >= margin && (360.0 - value).abs() >= margin
+    })
 }
 
 const COLUMNS: [&str; 8] = [
@@ -435,5 +471,38 @@ mod tests {
             .expect("a transit");
         assert!(transit["elevation"].as_f64().unwrap() > 0.0);
         assert!(sun_table(&site, &sky, &request(Some("nothing"), false)).is_err());
+    }
+
+    #[test]
+    fn an_angle_near_where_its_printed_digits_change_is_found() {
+        let with = |azimuth: f64, elevation: f64| [azimuth, azimuth, elevation];
+        let margin = 1e-6;
+        // Well inside a thousandth: "123.456" and "12.345" either way.
+        assert!(prints_the_same_within(&with(123.4561, 12.3452), margin));
+        // 12.3455 lies on the boundary between "12.345" and "12.346"; half a margin off it
+        // is still too near, two margins off it is not.
+        assert!(!prints_the_same_within(&with(123.4561, 12.3455), margin));
+        assert!(!prints_the_same_within(
+            &with(123.4561, 12.3455 + 0.5 * margin),
+            margin
+        ));
+        assert!(prints_the_same_within(
+            &with(123.4561, 12.3455 + 2.0 * margin),
+            margin
+        ));
+        // Below the horizon the same ("-3.210" against "-3.211").
+        assert!(!prints_the_same_within(&with(123.4561, -3.2105), margin));
+        // At zero "-0.000" and "0.000" differ; at 360 an azimuth wraps to "0.000".
+        assert!(!prints_the_same_within(&with(123.4561, 1e-8), margin));
+        assert!(!prints_the_same_within(
+            &with(359.999_999_9, 12.3452),
+            margin
+        ));
+        // Check of the boundaries themselves with Rust's own formatting.
+        assert_ne!(
+            format!("{:.3}", 12.3455 - 1e-7),
+            format!("{:.3}", 12.3455 + 1e-7)
+        );
+        assert_ne!(format!("{:.3}", -1e-8), format!("{:.3}", 1e-8));
     }
 }
