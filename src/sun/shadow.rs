@@ -20,7 +20,6 @@ use crate::cores;
 use crate::scene::{Face, Site};
 use crate::visibility::{ray_hits_triangle, Bvh};
 use nalgebra::{Point3, Vector2, Vector3};
-use std::collections::HashMap;
 
 /// Where a line of an outline starts or stops being one is found to this length, metres.
 pub const BREAK_TOLERANCE_M: f64 = 1e-6;
@@ -452,39 +451,39 @@ fn plane_of(face: &Face) -> Option<(Vector3<f64>, f64)> {
     Some((n, n.dot(&a.coords)))
 }
 
-/// An edge's two ends and, for each face along it, the face's index and third corner.
-type EdgeFaces = (Point3<f64>, Point3<f64>, Vec<(u32, Point3<f64>)>);
-
 /// The silhouette edges of the faces from the sun: edges of one face, or of faces on one
 /// side of the plane through the edge and the sun's direction.
 fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
     let key = |p: &Point3<f64>| [p.x, p.y, p.z].map(|v| (v / WELD_M).round() as i64);
-    let mut sides: HashMap<([i64; 3], [i64; 3]), EdgeFaces> = HashMap::new();
+    // Every side of every face under its welded ends (the lesser first), sorted so that
+    // the faces along one edge come together in the faces' order: a sort of one list
+    // instead of a hash map of lists, in a fraction of the time.
+    let mut sides: Vec<([i64; 3], [i64; 3], u32, usize)> = Vec::with_capacity(3 * faces.len());
     for (index, face) in faces.iter().enumerate() {
         for k in 0..3 {
-            let (a, b, c) = (
-                face.corners[k],
-                face.corners[(k + 1) % 3],
-                face.corners[(k + 2) % 3],
-            );
-            let (ka, kb) = (key(&a), key(&b));
-            if ka == kb {
-                continue;
+            let (ka, kb) = (key(&face.corners[k]), key(&face.corners[(k + 1) % 3]));
+            match ka.cmp(&kb) {
+                std::cmp::Ordering::Less => sides.push((ka, kb, index as u32, k)),
+                std::cmp::Ordering::Greater => sides.push((kb, ka, index as u32, k)),
+                std::cmp::Ordering::Equal => {}
             }
-            let (entry_key, a, b) = if ka < kb {
-                ((ka, kb), a, b)
-            } else {
-                ((kb, ka), b, a)
-            };
-            sides
-                .entry(entry_key)
-                .or_insert_with(|| (a, b, Vec::new()))
-                .2
-                .push((index as u32, c));
         }
     }
-    let mut out: Vec<Silhouette> = sides
-        .into_values()
+    sides.sort_unstable();
+    // An edge's two ends (the first face's, the lesser key first) and, for each face
+    // along it, the face's index and third corner.
+    let edges = sides.chunk_by(|p, q| (p.0, p.1) == (q.0, q.1)).map(|run| {
+        let (ka, _, index, k) = run[0];
+        let corners = faces[index as usize].corners;
+        let (a, b) = (corners[k], corners[(k + 1) % 3]);
+        let (a, b) = if key(&a) == ka { (a, b) } else { (b, a) };
+        let around: Vec<(u32, Point3<f64>)> = run
+            .iter()
+            .map(|&(_, _, index, k)| (index, faces[index as usize].corners[(k + 2) % 3]))
+            .collect();
+        (a, b, around)
+    });
+    let mut out: Vec<Silhouette> = edges
         .filter_map(|(a, b, around)| {
             let m = (b - a).cross(s);
             if m.norm() < 1e-12 * (b - a).norm() {
@@ -500,7 +499,7 @@ fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
             })
         })
         .collect();
-    // A fixed order, so that drawings do not depend on the hash map's.
+    // A fixed order: by the ends' coordinates.
     out.sort_by(|p, q| {
         let k = |e: &Silhouette| [e.a.x, e.a.y, e.a.z, e.b.x, e.b.y, e.b.z];
         k(p).partial_cmp(&k(q)).unwrap_or(std::cmp::Ordering::Equal)
