@@ -123,32 +123,36 @@ impl BoxGrid {
         (y0..=y1).any(|y| (x0..=x1).any(|x| self.cell(x, y).iter().any(|&k| hit(k))))
     }
 
-    /// The boxes in the cells the segment from `a` to `b` passes through (in each row of
-    /// cells, the band of the row it crosses, a little widened so that a segment along a
-    /// cell's border is not lost to rounding), ascending and each once.
-    pub fn along(&self, a: Vector2<f64>, b: Vector2<f64>, out: &mut Vec<u32>) {
+    /// The boxes in the cells that hold a point within `pad` of the segment from `a` to
+    /// `b`, ascending and each once: every box that comes within `pad` of the segment is
+    /// among them. In each row of cells, the cells under the part of the segment within
+    /// `pad` of the row's band, widened by `pad`.
+    pub fn near_segment(&self, a: Vector2<f64>, b: Vector2<f64>, pad: f64, out: &mut Vec<u32>) {
         out.clear();
         let grid = |p: Vector2<f64>| (p - self.origin) / self.cell;
         let (pa, pb) = (grid(a), grid(b));
+        // In cells, with a little more for the rounding of the division.
+        let pad = pad / self.cell + 1e-9;
         let (w, h) = (self.size.0 as f64, self.size.1 as f64);
-        let pad = 1e-6;
         let (ylo, yhi) = (pa.y.min(pb.y) - pad, pa.y.max(pb.y) + pad);
-        if yhi < 0.0 || ylo >= h {
+        if !(yhi >= 0.0 && ylo < h) {
             return;
         }
-        // The segment's x at the height y, its ends clamped; none for a level segment.
-        let x_at = |y: f64| {
-            (pb.y != pa.y).then(|| {
+        // The segment's least and greatest x where its y is within [y0, y1].
+        let x_within = |y0: f64, y1: f64| {
+            if pb.y == pa.y {
+                return (pa.x.min(pb.x), pa.x.max(pb.x));
+            }
+            let x_at = |y: f64| {
                 let t = ((y - pa.y) / (pb.y - pa.y)).clamp(0.0, 1.0);
                 pa.x + (pb.x - pa.x) * t
-            })
+            };
+            let (p, q) = (x_at(y0), x_at(y1));
+            (p.min(q), p.max(q))
         };
         let rows = (ylo.floor().max(0.0) as usize)..=(yhi.floor().min(h - 1.0) as usize);
         for row in rows {
-            let (x0, x1) = match (x_at(row as f64), x_at(row as f64 + 1.0)) {
-                (Some(p), Some(q)) => (p.min(q), p.max(q)),
-                _ => (pa.x.min(pb.x), pa.x.max(pb.x)),
-            };
+            let (x0, x1) = x_within(row as f64 - pad, row as f64 + 1.0 + pad);
             let (x0, x1) = (x0 - pad, x1 + pad);
             if x1 < 0.0 || x0 >= w {
                 continue;
@@ -191,8 +195,9 @@ mod tests {
     #[test]
     fn a_box_or_a_segment_finds_every_box_it_meets() {
         // Against trying every box: the closed boxes a query box overlaps, and those a
-        // segment passes through (a point of the segment every 1/1000 of it inside one),
-        // are all among those found, each once, ascending. A fixed sequence of our own.
+        // segment comes within a pad of (a point of the segment every 1/1000 of it within
+        // the pad of one), are all among those found, each once, ascending. A fixed
+        // sequence of our own.
         let mut next = crate::testing::numbers(3);
         let mut boxes: Vec<Bounds> = Vec::new();
         for _ in 0..300 {
@@ -214,19 +219,41 @@ mod tests {
                 }
             }
         }
-        for _ in 0..50 {
+        for _ in 0..100 {
+            // Within a pad: every box some point of the segment comes within the pad of
+            // (by the distance from a point to a box, in the plane).
             let (a, b) = (
                 Vector2::new(110.0 * next() - 5.0, 70.0 * next() - 5.0),
                 Vector2::new(110.0 * next() - 5.0, 70.0 * next() - 5.0),
             );
-            grid.along(a, b, &mut found);
+            let pad = 3.0 * next();
+            grid.near_segment(a, b, pad, &mut found);
             assert!(found.windows(2).all(|w| w[0] < w[1]));
             for (k, bx) in boxes.iter().enumerate() {
-                let crossed = (0..=1000).any(|i| {
+                let near = (0..=1000).any(|i| {
                     let p = a + (b - a) * (i as f64 / 1000.0);
-                    meets(&(p, p), bx)
+                    let gap = (bx.0 - p).sup(&(p - bx.1)).sup(&Vector2::zeros());
+                    gap.norm() <= pad
                 });
-                if crossed {
+                if near {
+                    assert!(found.contains(&(k as u32)), "{k}");
+                }
+            }
+        }
+        // Level and upright segments, and a point, along cells' borders.
+        for (a, b) in [
+            (Vector2::new(-5.0, 30.0), Vector2::new(105.0, 30.0)),
+            (Vector2::new(40.0, -5.0), Vector2::new(40.0, 65.0)),
+            (Vector2::new(50.0, 20.0), Vector2::new(50.0, 20.0)),
+        ] {
+            grid.near_segment(a, b, 0.7, &mut found);
+            for (k, bx) in boxes.iter().enumerate() {
+                let near = (0..=1000).any(|i| {
+                    let p = a + (b - a) * (i as f64 / 1000.0);
+                    let gap = (bx.0 - p).sup(&(p - bx.1)).sup(&Vector2::zeros());
+                    gap.norm() <= 0.7
+                });
+                if near {
                     assert!(found.contains(&(k as u32)), "{k}");
                 }
             }

@@ -4,10 +4,12 @@
 //! of the edges that outline the solids as seen from the sun (their silhouette edges): an
 //! edge both of whose faces lie on one side of the plane through it and the sun's
 //! direction. Each such edge is carried to every face behind it (and to the ground: the
-//! plane z = 0, or the sloping ground's triangles, which are faces) and cut to the face; what is left is a line of the outline where the
-//! ray from its point to the sun grazes the edge and meets nothing else on the way (a ray
-//! cast through the hierarchy of faces the hidden lines use). Where that changes along
-//! the line (another shadow falls across it) the change is found by bisection to
+//! plane z = 0, or the sloping ground's triangles, which are faces) and cut to the face;
+//! what is left is a line of the outline where the ray from its point to the sun grazes
+//! the edge and meets nothing else on the way. Both the faces behind an edge and the
+//! faces its rays may meet are found once for the edge, as the faces whose images in the
+//! sun's view come near the edge's (see [`SunView`]). Where that changes along the line
+//! (another shadow falls across it) the change is found by bisection to
 //! [`BREAK_TOLERANCE_M`]. The lines are straight segments in the site frame, so they are
 //! drawn, and hidden behind nearer faces, exactly like the site's own edges.
 //!
@@ -101,44 +103,72 @@ fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -
             receiver_index[*i as usize] = Some(k);
         }
     }
-    // Only the faces whose shapes seen from the sun the edge's crosses can receive its
-    // shadow: found through a grid over that view, in the faces' order as before.
+    // Only the faces whose images seen from the sun the edge's comes near can receive its
+    // shadow or stand between it and the sun: found through a grid over that view, in the
+    // faces' order as before.
     let grid = SunView::new(&site.faces, &s);
+    // No point of a face lies farther out than this (largest coordinate): the reach
+    // of every point on a face the outlines are tried at.
+    let faces_reach = site
+        .faces
+        .iter()
+        .flat_map(|f| f.corners)
+        .fold(0.0, |m: f64, c| m.max(c.coords.abs().max()));
     let lines_of = |edge: &Silhouette| {
         let mut out = Vec::new();
-        let mut candidates = Vec::new();
-        if through_grid {
-            grid.faces_under(&edge.a, &edge.b, &mut candidates);
+        // The ground's piece first: its points may lie farther out than any face's.
+        let ground = level.map(|_| receivers.len() - 1);
+        let ground_span = ground.and_then(|k| {
+            let (receiver, n, d) = receivers[k];
+            carried_span(edge, receiver, &n, d, &s, &site.faces)
+        });
+        let near: Vec<u32> = if through_grid {
+            let reach = ground_span.map_or(faces_reach, |(u0, u1)| {
+                let end = |u: f64| {
+                    let p = edge.a + (edge.b - edge.a) * u;
+                    (p - s * (p.z / s.z)).coords.abs().max()
+                };
+                faces_reach.max(end(u0)).max(end(u1))
+            });
+            let mut near = Vec::new();
+            grid.faces_near(&edge.a, &edge.b, reach, &mut near);
+            near
         } else {
-            candidates = (0..site.faces.len() as u32).collect();
-        }
-        let near = candidates
+            (0..site.faces.len() as u32).collect()
+        };
+        let mut blockers = Vec::new();
+        let candidates = near
             .iter()
             .filter_map(|&i| receiver_index[i as usize])
-            .chain(level.map(|_| receivers.len() - 1));
-        for k in near {
+            .chain(ground);
+        for k in candidates {
             let (receiver, n, d) = receivers[k];
             if let Receiver::Face(i) = receiver {
                 if edge.faces.contains(&i) {
                     continue;
                 }
             }
-            let Some((u0, u1)) = carried_span(edge, receiver, &n, d, &s, &site.faces) else {
+            let span = match receiver {
+                Receiver::Ground => ground_span,
+                Receiver::Face(_) => carried_span(edge, receiver, &n, d, &s, &site.faces),
+            };
+            let Some((u0, u1)) = span else {
                 continue;
             };
             let on_plane = |u: f64| {
                 let p = edge.a + (edge.b - edge.a) * u;
                 p - s * ((n.dot(&p.coords) - d) / n.dot(&s))
             };
+            // Its own faces and the receiver never block a point of the outline.
+            let own = |index: u32| edge.faces.contains(&index) || receiver == Receiver::Face(index);
+            blockers.clear();
+            blockers.extend(near.iter().filter(|&&index| !own(index)));
             let lit = |u: f64| {
                 let p = on_plane(u);
-                let blocks = |index: u32, distance: f64, start: f64| {
-                    distance > start
-                        && !edge.faces.contains(&index)
-                        && receiver != Receiver::Face(index)
-                };
+                let blocks =
+                    |index: u32, distance: f64, start: f64| distance > start && !own(index);
                 match every_face {
-                    None => !grid.ray_meets(&site.faces, &p, &s, blocks),
+                    None => !grid.ray_meets_among(&site.faces, &blockers, &p, &s, blocks),
                     Some(bvh) => !meets(site, bvh, &p, &s, blocks),
                 }
             };
@@ -158,16 +188,22 @@ fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -
 }
 
 /// The faces as the sun sees them: each triangle projected along the sun's rays onto a
-/// plane across them, its box entered in a grid over that plane. An edge's shadow can fall
-/// on a face only where the edge's projection crosses the face's (carrying a point along
-/// the rays does not move its projection), so the faces in the cells that the edge's
-/// projection passes through are all the faces that may receive it.
+/// plane across them, its box entered in a grid over that plane. Carrying a point along
+/// the rays does not move its projection, so an edge's shadow can fall on a face only
+/// where the edge's projection crosses the face's, and the ray to the sun from a point of
+/// that shadow can meet only faces whose images hold the point's projection, which lies
+/// on the edge's: the faces whose images come near the edge's projection are all the
+/// faces that may receive its shadow and all those that may stand between it and the sun.
+/// Found once for each edge, they spare the grid a search for each of the many points
+/// tried along the outline.
 struct SunView {
     /// Two unit vectors across the sun's rays.
     u: Vector3<f64>,
     v: Vector3<f64>,
     /// The faces' projected boxes; `None` without faces.
     grid: Option<BoxGrid>,
+    /// The same boxes, face by face.
+    boxes: Vec<Bounds>,
     /// Each face's image across the rays as the three lines of its sides (unit normal
     /// into the image, offset), or `None` for an image too thin to tell its inside by
     /// them (a face within about [`THIN_IMAGE`] radians of edge-on to the sun).
@@ -200,6 +236,31 @@ fn image_sides(a: Vector2<f64>, b: Vector2<f64>, c: Vector2<f64>) -> Option<Side
     Some([side(a, b), side(b, c), side(c, a)])
 }
 
+/// Whether the segment from `a` to `b` meets the closed box from `lo` to `hi` (clipped to
+/// each slab of the box in turn: Liang and Barsky's clipping).
+fn segment_meets_box(a: Vector2<f64>, b: Vector2<f64>, lo: Vector2<f64>, hi: Vector2<f64>) -> bool {
+    let d = b - a;
+    let (mut t0, mut t1) = (0.0f64, 1.0f64);
+    for axis in 0..2 {
+        if d[axis] == 0.0 {
+            if a[axis] < lo[axis] || a[axis] > hi[axis] {
+                return false;
+            }
+            continue;
+        }
+        let (p, q) = (
+            (lo[axis] - a[axis]) / d[axis],
+            (hi[axis] - a[axis]) / d[axis],
+        );
+        t0 = t0.max(p.min(q));
+        t1 = t1.min(p.max(q));
+        if t0 > t1 {
+            return false;
+        }
+    }
+    true
+}
+
 impl SunView {
     fn new(faces: &[Face], s: &Vector3<f64>) -> SunView {
         let (u, v) = across_rays(s);
@@ -207,6 +268,7 @@ impl SunView {
             u,
             v,
             grid: None,
+            boxes: Vec::new(),
             images: Vec::new(),
         };
         let images: Vec<[Vector2<f64>; 3]> = faces
@@ -219,6 +281,7 @@ impl SunView {
             .collect();
         SunView {
             grid: BoxGrid::new(&boxes),
+            boxes,
             images: images
                 .iter()
                 .map(|&[a, b, c]| image_sides(a, b, c))
@@ -253,22 +316,82 @@ impl SunView {
         let start = own_face_reach(p);
         let (q, pad) = (self.project(p), VIEW_PAD * (1.0 + p.coords.abs().max()));
         grid.any_near(q, pad, |index| {
-            let outside = |sides: &Sides| sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad);
-            if self.images[index as usize].as_ref().is_some_and(outside) {
-                return false;
-            }
-            ray_hits_triangle(p, s, &faces[index as usize].corners)
-                .is_some_and(|distance| blocks(index, distance, start))
+            self.tried(faces, index, p, q, pad, s, &blocks, start)
         })
     }
 
-    /// The faces whose projected boxes the projection of the segment from `a` to `b` may
-    /// meet, ascending and each once.
-    fn faces_under(&self, a: &Point3<f64>, b: &Point3<f64>, out: &mut Vec<u32>) {
-        match &self.grid {
-            Some(grid) => grid.along(self.project(a), self.project(b), out),
-            None => out.clear(),
+    /// [`SunView::ray_meets`] with only the faces `among` tried: the same answer when
+    /// they hold every face that comes within [`VIEW_PAD`] of `p` as the sun sees it (as
+    /// [`SunView::faces_near`] lists them for an edge whose shadow holds `p`) and `blocks`
+    /// is false for the rest.
+    fn ray_meets_among(
+        &self,
+        faces: &[Face],
+        among: &[u32],
+        p: &Point3<f64>,
+        s: &Vector3<f64>,
+        blocks: impl Fn(u32, f64, f64) -> bool,
+    ) -> bool {
+        let start = own_face_reach(p);
+        let (q, pad) = (self.project(p), VIEW_PAD * (1.0 + p.coords.abs().max()));
+        among
+            .iter()
+            .any(|&index| self.tried(faces, index, p, q, pad, s, &blocks, start))
+    }
+
+    /// Whether the ray from `p` (seen at `q` across the rays) to the sun meets the face
+    /// `index` where `blocks` holds: ruled out first by the face's image, where it is not
+    /// too thin, lying beyond `pad` of `q`.
+    #[allow(clippy::too_many_arguments)]
+    fn tried(
+        &self,
+        faces: &[Face],
+        index: u32,
+        p: &Point3<f64>,
+        q: Vector2<f64>,
+        pad: f64,
+        s: &Vector3<f64>,
+        blocks: &impl Fn(u32, f64, f64) -> bool,
+        start: f64,
+    ) -> bool {
+        let outside = |sides: &Sides| sides.iter().any(|(n, offset)| n.dot(&q) - offset < -pad);
+        if self.images[index as usize].as_ref().is_some_and(outside) {
+            return false;
         }
+        ray_hits_triangle(p, s, &faces[index as usize].corners)
+            .is_some_and(|distance| blocks(index, distance, start))
+    }
+
+    /// The faces whose images come near the edge from `a` to `b` as the sun sees it,
+    /// ascending: every face that may receive its shadow, and every face a ray to the sun
+    /// may meet from a point of its shadow lying within `reach` (largest coordinate) of
+    /// the origin, so that [`SunView::ray_meets_among`] over them answers as
+    /// [`SunView::ray_meets`]. Carrying a point along the rays does not move its
+    /// projection, so the edge's projection holds every such point's: the faces are found
+    /// once for the edge instead of once for each point, as those in the grid's cells
+    /// within [`VIEW_PAD`] (at `reach`, twice over for the rounding) of the edge's
+    /// projection whose box, so padded, it crosses and whose image no side keeps both its
+    /// ends beyond by the pad; a face with a thin image is kept by its cells alone, as
+    /// [`SunView::ray_meets`] tries it.
+    fn faces_near(&self, a: &Point3<f64>, b: &Point3<f64>, reach: f64, out: &mut Vec<u32>) {
+        let Some(grid) = &self.grid else {
+            out.clear();
+            return;
+        };
+        let pad = 2.0 * VIEW_PAD * (1.0 + reach);
+        let (a, b) = (self.project(a), self.project(b));
+        grid.near_segment(a, b, pad, out);
+        out.retain(|&index| {
+            let Some(sides) = &self.images[index as usize] else {
+                return true;
+            };
+            let (lo, hi) = self.boxes[index as usize];
+            let beyond = |(n, offset): &(Vector2<f64>, f64)| {
+                n.dot(&a) - offset < -pad && n.dot(&b) - offset < -pad
+            };
+            let pad = Vector2::repeat(pad);
+            segment_meets_box(a, b, lo - pad, hi + pad) && !sides.iter().any(beyond)
+        });
     }
 }
 
@@ -826,6 +949,38 @@ mod tests {
         }
         // Edge-on to the sun: no image to rule anything out by.
         assert!(image_sides(a, b, Vector2::new(8.0, 1e-9)).is_none());
+    }
+
+    #[test]
+    fn a_segment_meets_a_box_where_a_point_of_it_lies_inside() {
+        // Against points along the segment (every 1/2000 of it) inside the closed box
+        // from (1, 1) to (3, 2): through, beside, ending inside, along a side, a corner
+        // touched, level and upright, and a point. Plane geometry.
+        let (lo, hi) = (Vector2::new(1.0, 1.0), Vector2::new(3.0, 2.0));
+        let v = Vector2::new;
+        let cases = [
+            (v(0.0, 0.0), v(4.0, 3.0), true),
+            (v(0.0, 0.0), v(4.0, 0.5), false),
+            (v(2.0, 1.5), v(9.0, 9.0), true),
+            (v(0.0, 2.0), v(4.0, 2.0), true),
+            (v(0.0, 2.0001), v(4.0, 2.0001), false),
+            (v(0.0, 3.0), v(3.0, 0.0), true),
+            (v(0.0, 3.5), v(3.5, 0.0), true),
+            (v(0.0, 5.1), v(5.1, 0.0), false),
+            (v(3.5, -1.0), v(3.5, 5.0), false),
+            (v(2.5, -1.0), v(2.5, 5.0), true),
+            (v(2.0, 1.2), v(2.0, 1.2), true),
+            (v(0.5, 1.2), v(0.5, 1.2), false),
+        ];
+        for (a, b, expected) in cases {
+            let inside = (0..=2000).any(|i| {
+                let p = a + (b - a) * (i as f64 / 2000.0);
+                (lo.x..=hi.x).contains(&p.x) && (lo.y..=hi.y).contains(&p.y)
+            });
+            assert_eq!(inside, expected, "{a} {b}");
+            assert_eq!(segment_meets_box(a, b, lo, hi), expected, "{a} {b}");
+            assert_eq!(segment_meets_box(b, a, lo, hi), expected, "{b} {a}");
+        }
     }
 
     #[test]
