@@ -48,7 +48,12 @@ impl Answer {
 
 /// Sends `raw` as it is and reads the whole answer (the server closes after it).
 fn send(explorer: &Explorer, raw: &[u8]) -> Answer {
-    let mut stream = TcpStream::connect(explorer.address()).unwrap();
+    send_to(explorer.address(), raw)
+}
+
+/// [`send`] to a server at `address`.
+fn send_to(address: std::net::SocketAddr, raw: &[u8]) -> Answer {
+    let mut stream = TcpStream::connect(address).unwrap();
     stream
         .set_read_timeout(Some(Duration::from_secs(60)))
         .unwrap();
@@ -429,6 +434,7 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
             load_obj(path, &MeshPlacement::default()).map(|(site, _)| site)
         }),
         model_item: Some("Model(file: \"cube.obj\")".into()),
+        location: None,
     };
     let explorer = Explorer::start(ExploreSettings::new(source, dir.path("out"))).unwrap();
     let token = explorer.token().to_owned();
@@ -445,6 +451,71 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
     assert_eq!(names, ["first", "second"]);
     assert!(!site.edges.is_empty(), "the new scene places the model");
     explorer.stop();
+}
+
+#[test]
+fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
+    // `pansite explore` on a GeoJSON file (the command once refused it as "not a scene"):
+    // it serves the file as `render` reads it, and a standpoint kept goes into a new scene
+    // beside it that places the data around the same origin, the file itself untouched.
+    let dir = Scratch::new("explorer-open-data");
+    let data = dir.path("saltmarsh-row.geojson");
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/opendata/saltmarsh-row.geojson"),
+        &data,
+    )
+    .unwrap();
+    let data_bytes = std::fs::read(&data).unwrap();
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
+        .args(["explore", "--port", "0"])
+        .arg(&data)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut first_line = String::new();
+    std::io::BufRead::read_line(
+        &mut std::io::BufReader::new(child.stdout.take().unwrap()),
+        &mut first_line,
+    )
+    .unwrap();
+    // "pansite: exploring PATH at http://127.0.0.1:PORT/?token=TOKEN"
+    let url = first_line.trim().rsplit(' ').next().unwrap().to_owned();
+    let (address, token) = url
+        .strip_prefix("http://")
+        .and_then(|rest| rest.split_once("/?token="))
+        .unwrap_or_else(|| panic!("no address in {first_line:?}"));
+    let body = r#"{"name":"quay","x":12,"y":-30,"heading":40}"#;
+    let raw = format!(
+        "POST /keep HTTP/1.1\r\nHost: {address}\r\nConnection: close\r\nContent-Type: application/json\r\nContent-Length: {}\r\nX-Pansite-Token: {token}\r\nOrigin: http://{address}\r\n\r\n{body}",
+        body.len()
+    );
+    let answer = send_to(address.parse().unwrap(), raw.as_bytes());
+    let underlay = send_to(
+        address.parse().unwrap(),
+        format!("GET {UNDERLAY} HTTP/1.1\r\nHost: {address}\r\nConnection: close\r\n\r\n")
+            .as_bytes(),
+    );
+    child.kill().unwrap();
+    child.wait().unwrap();
+    assert_eq!(answer.status, 200, "{}", answer.text());
+    assert_eq!(underlay.status, 200, "{}", underlay.text());
+    assert!(underlay.body.starts_with(b"\x89PNG"));
+    assert_eq!(std::fs::read(&data).unwrap(), data_bytes);
+    let direct = pansite::scene::load_open_data(&data, None).unwrap();
+    let kept = pansite::scene::load_scene(&dir.path("saltmarsh-row-standpoints.ron")).unwrap();
+    assert_eq!(kept.standpoints.len(), 1);
+    assert_eq!(kept.standpoints[0].name, "quay");
+    let place = |site: &pansite::scene::Site| {
+        let l = site.location.as_ref().unwrap();
+        (l.latitude_deg, l.longitude_deg)
+    };
+    assert_eq!(place(&kept), place(&direct));
+    assert_eq!(kept.edges.len(), direct.edges.len());
+    assert_eq!(
+        format!("{:?}", kept.edges[0].curve),
+        format!("{:?}", direct.edges[0].curve)
+    );
 }
 
 #[test]

@@ -102,12 +102,21 @@ pub fn keep_in_scene(text: &str, path: &Path, standpoint: &Standpoint) -> Result
     Ok(inserted)
 }
 
-/// A small new scene beside a model given directly: the kept standpoint and `model_item`
-/// (the item that places the model, e.g. `Model(file: "hall.obj")`).
-pub fn new_scene_for_model(model_name: &str, model_item: &str, entry: &str) -> String {
+/// A small new scene beside a model or data file given directly: the kept standpoint,
+/// `model_item` (the item that places the model, e.g. `Model(file: "hall.obj")`) and, for
+/// open data, the `location` (latitude, longitude) of the plan's origin.
+pub fn new_scene_for_model(
+    model_name: &str,
+    model_item: &str,
+    location: Option<(f64, f64)>,
+    entry: &str,
+) -> String {
+    let location = location.map_or(String::new(), |(latitude, longitude)| {
+        format!("    location: (latitude: {latitude:?}, longitude: {longitude:?}),\n")
+    });
     format!(
         "// Standpoints kept for {model_name}; the model file itself is not changed.\n\
-         Scene(\n    standpoints: [\n        {entry},\n    ],\n    items: [\n        {model_item},\n    ],\n)\n"
+         Scene(\n{location}    standpoints: [\n        {entry},\n    ],\n    items: [\n        {model_item},\n    ],\n)\n"
     )
 }
 

@@ -916,7 +916,10 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
             keep_in_scene(text, path, &standpoint).map(|new| (path.clone(), new))
         }
         Source::Model {
-            path, model_item, ..
+            path,
+            model_item,
+            location,
+            ..
         } => {
             let Some(beside) = shared.source.beside_scene() else {
                 return refuse(409, "the model has no file name".into());
@@ -944,7 +947,12 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
                     let name = path
                         .file_name()
                         .map_or(String::new(), |n| n.to_string_lossy().into_owned());
-                    new_scene_for_model(&name, model_item.as_deref().unwrap_or_default(), &entry)
+                    new_scene_for_model(
+                        &name,
+                        model_item.as_deref().unwrap_or_default(),
+                        *location,
+                        &entry,
+                    )
                 }),
             };
             if let Ok(new) = &result {

@@ -28,6 +28,9 @@ pub enum Source {
         load: Loader,
         /// The scene item that places it, for the scene written beside it.
         model_item: Option<String>,
+        /// The latitude and longitude of the plan's origin, for the scene written beside
+        /// it (an open-data file is placed around it).
+        location: Option<(f64, f64)>,
     },
     /// A site read once (from standard input): nothing is watched, nothing can be kept,
     /// for the reason given.

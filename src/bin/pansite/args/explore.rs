@@ -7,8 +7,8 @@ use std::path::PathBuf;
 
 #[derive(Debug, Args)]
 pub struct ExploreArgs {
-    /// The scene (RON), or an .obj model, to explore; `-` reads a scene from standard input
-    /// (standpoints cannot then be kept).
+    /// The scene (RON), an .obj model, or an open-data file (.geojson, .city.json, .jsonl)
+    /// to explore; `-` reads a scene from standard input (standpoints cannot then be kept).
     pub scene: PathBuf,
 
     /// The port to listen on; 0 takes any free one.

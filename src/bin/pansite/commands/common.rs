@@ -62,7 +62,7 @@ pub fn read_site(
 
 /// Whether a path names an open-data file by its name: `.geojson`, `.city.json`, `.jsonl`
 /// (a plain `.json` stays a scene, whose reader explains what a scene looks like).
-fn is_data_file(path: &Path) -> bool {
+pub fn is_data_file(path: &Path) -> bool {
     let plain_json = path
         .file_name()
         .map(|n| n.to_string_lossy().to_ascii_lowercase())

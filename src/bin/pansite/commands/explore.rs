@@ -2,7 +2,7 @@
 //! the library's `pansite::explore`); this file only chooses the source, starts it and
 //! prints where it is.
 
-use super::common::{is_standard_stream, read_site};
+use super::common::{is_data_file, is_standard_stream, read_site};
 use super::settings::mesh_placement;
 use crate::args::{ExploreArgs, ModelArgs, UnitArg, UpArg};
 use pansite::explore::{ExploreSettings, Explorer, Source};
@@ -41,8 +41,8 @@ pub fn explore(args: &ExploreArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-/// A scene file, an .obj model (kept standpoints go into a scene beside it), or a scene
-/// from standard input (nothing can be kept).
+/// A scene file, an .obj model or an open-data file (kept standpoints go into a scene
+/// beside it), or a scene from standard input (nothing can be kept).
 fn source(args: &ExploreArgs) -> pansite::Result<Source> {
     if is_standard_stream(&args.scene) {
         let (site, _) = read_site(&args.scene, &args.model, None, false)?;
@@ -51,6 +51,9 @@ fn source(args: &ExploreArgs) -> pansite::Result<Source> {
             reason: "the scene was read from standard input, so there is no file to keep it in"
                 .into(),
         });
+    }
+    if is_data_file(&args.scene) {
+        return open_data_source(args);
     }
     let is_obj = args
         .scene
@@ -70,12 +73,35 @@ fn source(args: &ExploreArgs) -> pansite::Result<Source> {
             pansite::scene::load_obj(path, &placement).map(|(site, _)| site)
         }),
         model_item,
+        location: None,
+    })
+}
+
+/// An open-data file given directly, read as `render` reads it: placed around
+/// `--origin-latlon`, or else around the file's first position. It is read once here, so
+/// that a file that cannot be read stops the command with its message, and so that the
+/// scene kept beside it places the data around the same origin.
+fn open_data_source(args: &ExploreArgs) -> pansite::Result<Source> {
+    let origin = args.model.origin_latlon;
+    let site = pansite::scene::load_open_data(&args.scene, origin)?;
+    let location = site
+        .location
+        .as_ref()
+        .map(|l| (l.latitude_deg, l.longitude_deg));
+    let model_item = args
+        .scene
+        .file_name()
+        .map(|name| format!("OpenData(file: {})", ron_string(&name.to_string_lossy())));
+    Ok(Source::Model {
+        path: args.scene.clone(),
+        load: Arc::new(move |path: &Path| pansite::scene::load_open_data(path, origin)),
+        model_item,
+        location,
     })
 }
 
 /// The scene item that places the model as the command line did.
 fn model_item(file_name: &str, model: &ModelArgs) -> String {
-    let quoted = file_name.replace('\\', "\\\\").replace('"', "\\\"");
     let up = match model.up {
         UpArg::Y => "Y",
         UpArg::Z => "Z",
@@ -88,8 +114,17 @@ fn model_item(file_name: &str, model: &ModelArgs) -> String {
         UnitArg::Ft => "Foot",
     };
     format!(
-        "Model(file: \"{quoted}\", up: {up}, unit: {unit}, crease: {})",
+        "Model(file: {}, up: {up}, unit: {unit}, crease: {})",
+        ron_string(file_name),
         model.crease
+    )
+}
+
+/// A file name as a RON string, quoted, its backslashes and quotes escaped.
+fn ron_string(file_name: &str) -> String {
+    format!(
+        "\"{}\"",
+        file_name.replace('\\', "\\\\").replace('"', "\\\"")
     )
 }
 
