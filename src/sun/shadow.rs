@@ -78,7 +78,8 @@ pub fn shadow_outlines(site: &Site, towards_sun: &Vector3<f64>) -> Vec<ShadowLin
 fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -> Vec<ShadowLine> {
     let through_grid = every_face.is_none();
     let s = towards_sun.normalize();
-    if s.z <= 0.0 {
+    // (Written so that a direction that is not a number casts nothing either.)
+    if !(s.z > 0.0) {
         return Vec::new();
     }
     let silhouettes = silhouettes(&site.faces, &s);
@@ -116,8 +117,12 @@ fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -
         .fold(0.0, |m: f64, c| m.max(c.coords.abs().max()));
     let lines_of = |edge: &Silhouette| {
         let mut out = Vec::new();
-        // The ground's piece first: its points may lie farther out than any face's.
-        let ground = level.map(|_| receivers.len() - 1);
+        // The ground's piece is found first (its points may lie farther out than any
+        // face's) and tried last. A sun within EDGE_ON of the horizon has left it out.
+        let ground = receivers
+            .last()
+            .is_some_and(|(r, ..)| *r == Receiver::Ground)
+            .then(|| receivers.len() - 1);
         let ground_span = ground.and_then(|k| {
             let (receiver, n, d) = receivers[k];
             carried_span(edge, receiver, &n, d, &s, &site.faces)
@@ -754,7 +759,7 @@ fn runs(u0: f64, u1: f64, length: f64, inside: impl Fn(f64) -> bool) -> Vec<(f64
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::scene::parse_scene;
+    use crate::scene::{parse_scene, ItemId};
     use std::path::Path;
 
     fn site(items: &str) -> Site {
@@ -879,6 +884,32 @@ mod tests {
         let tip = Vector3::new(expected.sin(), expected.cos(), 0.0) * length;
         // The block's far corner is within half its width's diagonal of the pole's line.
         assert!((far.coords - tip).norm() < 0.08, "{far} vs {tip}");
+    }
+
+    #[test]
+    fn a_sun_on_the_horizon_casts_no_outline_on_the_ground_and_does_not_fail() {
+        // A sun 6e-9 degrees up (s.z = 1e-10, below EDGE_ON): the level ground is edge-on
+        // to it and receives nothing; a lone horizontal triangle once took the ground's
+        // place in the list and read past its end. A direction that is not a number casts
+        // nothing.
+        let site = site("Block(at: Centre(0, 0), width: 2, depth: 2, height: 3)");
+        let low = Vector3::new(1.0, 0.3, 1e-10);
+        assert!(shadow_outlines(&site, &low)
+            .iter()
+            .all(|l| l.start.z.abs() > 1e-9 || l.end.z.abs() > 1e-9));
+        let mut flat = site.clone();
+        flat.faces.truncate(0);
+        flat.faces.push(Face {
+            corners: [
+                Point3::new(0.0, 0.0, 1.0),
+                Point3::new(1.0, 0.0, 1.0),
+                Point3::new(0.0, 1.0, 1.0),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        });
+        assert!(shadow_outlines(&flat, &low).is_empty());
+        assert!(shadow_outlines(&site, &Vector3::new(f64::NAN, 0.0, 1.0)).is_empty());
     }
 
     #[test]
