@@ -562,11 +562,9 @@ pub fn read_cityjson(
             "{count} {kind} object(s) left out (pansite draws buildings)"
         ));
     }
-    model.mesh.groups = model
-        .group_names
-        .iter()
-        .map(|(id, layer)| format!("{id}: {layer}"))
-        .collect();
+    // The items take their names from `group_names` (through `add_mesh_named`): the mesh
+    // keeps an empty name per group, for their count.
+    model.mesh.groups = vec![String::new(); model.group_names.len()];
     if model.mesh.groups.is_empty() {
         model.mesh.groups.push(String::new());
     }
