@@ -146,8 +146,10 @@ pub struct Templates<'a> {
 pub struct CityObject<'a> {
     #[serde(borrow, rename = "type")]
     pub kind: Cow<'a, str>,
+    /// Boxed: a list grown one geometry at a time keeps room for four, and a city has
+    /// hundreds of thousands of objects of one geometry.
     #[serde(borrow, default)]
-    pub geometry: Vec<Geometry<'a>>,
+    pub geometry: Box<[Geometry<'a>]>,
     #[serde(borrow, default)]
     pub children: Vec<Cow<'a, str>>,
 }
@@ -594,11 +596,15 @@ const DEEPEST_ON_CORES: usize = 64;
 fn read_on_cores(bytes: &[u8]) -> Option<CityFile<'_>> {
     let outline: CityFile<MemberTexts> = serde_json::from_slice(bytes).ok()?;
     let objects: Vec<Vec<CityObject>> = read_values(&outline.city_objects)?;
-    let too_deep = objects.iter().flatten().flat_map(|o| &o.geometry).any(|g| {
-        let values = g.semantics.as_ref().and_then(|s| s.values.as_ref());
-        g.boundaries.as_ref().map_or(0, Boundaries::depth) > DEEPEST_ON_CORES
-            || values.map_or(0, Values::depth) > DEEPEST_ON_CORES
-    });
+    let too_deep = objects
+        .iter()
+        .flatten()
+        .flat_map(|o| o.geometry.iter())
+        .any(|g| {
+            let values = g.semantics.as_ref().and_then(|s| s.values.as_ref());
+            g.boundaries.as_ref().map_or(0, Boundaries::depth) > DEEPEST_ON_CORES
+                || values.map_or(0, Values::depth) > DEEPEST_ON_CORES
+        });
     if too_deep {
         return None;
     }
