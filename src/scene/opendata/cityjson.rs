@@ -262,7 +262,8 @@ impl Placing {
 /// semantic layer), and what was left out.
 #[derive(Debug, Default)]
 pub struct CityModel {
-    /// The chosen surfaces as a mesh in plan metres.
+    /// The chosen surfaces as a mesh in plan metres (its groups unnamed: their names are
+    /// `group_names`).
     pub mesh: ObjFile,
     /// For each group of the mesh: the city object's id and the layer (`roof`, `wall`,
     /// `ground`... or `building` where the surface has no semantics).
