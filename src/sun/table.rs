@@ -23,6 +23,13 @@ const HOUR_S: f64 = 3_600.0;
 /// Degrees: how far an interpolated position may be from the whole algorithm's and still be
 /// printed as it would (ten times the 1e-7 that `hourly.rs`'s year-long test holds it to).
 const INTERPOLATION_MARGIN_DEG: f64 = 1e-6;
+/// Printed elevations (degrees) about the refraction's cutoff: below it no refraction is
+/// added, above it about 0.58 degrees, so the printed elevation steps from about -0.83 to
+/// about -0.26, and an interpolated row could fall on the other side of the step.
+const REFRACTION_STEP_DEG: std::ops::RangeInclusive<f64> = -1.0..=0.0;
+/// Above this elevation (degrees) the azimuth turns faster than the sun moves, by 1 / cos
+/// of the elevation: 1e-7 degrees of the sun's place could move it by more than the margin.
+const STEEP_DEG: f64 = 84.0;
 
 /// What the table lists.
 #[derive(Clone, Debug, PartialEq)]
@@ -142,10 +149,7 @@ pub fn sun_table(site: &Site, sky: &Sky, request: &TableRequest) -> Result<Vec<S
                 let sample = match &hourly {
                     Some(hourly) => {
                         let quick = sky.sample_between(hourly, t)?;
-                        if prints_the_same_within(
-                            &printed_angles(sky, &quick),
-                            INTERPOLATION_MARGIN_DEG,
-                        ) {
+                        if interpolation_prints_true(&printed_angles(sky, &quick)) {
                             quick
                         } else {
                             sky.sample(t)?
@@ -234,6 +238,16 @@ fn row(sky: &Sky, sample: &SunSample, event: &'static str, detail: String) -> Su
         elevation_deg: Some(elevation),
         detail,
     }
+}
+
+/// Whether a row interpolated between the hours prints as the whole algorithm's would: its
+/// angles lie clear of where their digits change, the elevation clear of the refraction's
+/// step at the horizon, and the sun not so near the zenith that its azimuth turns fast.
+fn interpolation_prints_true(angles: &[f64; 3]) -> bool {
+    let elevation = angles[2];
+    !REFRACTION_STEP_DEG.contains(&elevation)
+        && elevation <= STEEP_DEG
+        && prints_the_same_within(angles, INTERPOLATION_MARGIN_DEG)
 }
 
 /// Whether every angle, moved by up to `margin` degrees either way, would still print the
@@ -498,6 +512,12 @@ mod tests {
             &with(359.999_999_9, 12.3452),
             margin
         ));
+        // Near the horizon's refraction step and near the zenith, never.
+        assert!(interpolation_prints_true(&with(123.4561, 12.3452)));
+        assert!(!interpolation_prints_true(&with(123.4561, -0.2571)));
+        assert!(!interpolation_prints_true(&with(123.4561, -0.8331)));
+        assert!(interpolation_prints_true(&with(123.4561, -1.2571)));
+        assert!(!interpolation_prints_true(&with(123.4561, 86.1234)));
         // Check of the boundaries themselves with Rust's own formatting.
         assert_ne!(
             format!("{:.3}", 12.3455 - 1e-7),
