@@ -786,3 +786,101 @@ fn a_projecting_plinth_carries_a_ledge_and_stands_on_the_highest_ground_under_it
         assert_near(ring, expected, 1e-9);
     }
 }
+
+/// A ground of three spot heights is one flat triangle: the plane through them (any text
+/// on analytic geometry), worked by hand as z = 1 + x / 20 + y / 5 through (0, 0, 1),
+/// (40, 0, 3) and (0, 40, 9).
+const PLANE: &str = "ground: (spots: [(0, 0, 1), (40, 0, 3), (0, 40, 9)])";
+
+fn plane_height(x: f64, y: f64) -> f64 {
+    1.0 + x / 20.0 + y / 5.0
+}
+
+/// The lowest point of an item's edges: segment ends, and the lowest point of each
+/// ellipse (its centre less the length of its axes' vertical parts, sqrt(u_z^2 + v_z^2)).
+fn lowest_point_of(site: &Site, label: &str) -> f64 {
+    let item = site
+        .items
+        .iter()
+        .position(|i| i.label.as_deref() == Some(label))
+        .unwrap() as u32;
+    site.edges
+        .iter()
+        .filter(|e| e.item == ItemId(item))
+        .map(|e| match e.curve {
+            SiteCurve::Segment { start, end } => start.z.min(end.z),
+            SiteCurve::Ellipse { centre, u, v, .. } => centre.z - u.z.hypot(v.z),
+        })
+        .fold(f64::INFINITY, f64::min)
+}
+
+#[test]
+fn figures_cars_and_trees_stand_on_the_sloping_ground_under_them() {
+    // Without a `base`, a figure's soles, a car's wheels and a tree's trunk stand on the
+    // ground at their plan position (the plane worked by hand above); with one, where told.
+    let site = site(&format!(
+        "Scene({PLANE}, items: [
+            Figure(label: \"walker\", at: (10, 10)),
+            Figure(label: \"sitter\", at: (2, 30), pose: Seated),
+            Car(label: \"car\", at: (20, 5), facing: 90),
+            Tree(label: \"lime\", at: (5, 20), height: 9, crown: 5),
+            Figure(label: \"on the wall\", at: (30, 2), base: 4.5),
+        ])"
+    ));
+    for (label, x, y) in [
+        ("walker", 10.0, 10.0),
+        ("sitter", 2.0, 30.0),
+        ("car", 20.0, 5.0),
+        ("lime", 5.0, 20.0),
+    ] {
+        assert_near(lowest_point_of(&site, label), plane_height(x, y), 1e-9);
+    }
+    assert_near(plane_height(10.0, 10.0), 3.5, 1e-12);
+    // Given, the base is kept as written (above the ground there, 2.9: no warning).
+    assert_near(lowest_point_of(&site, "on the wall"), 4.5, 1e-9);
+    assert!(site.warnings.is_empty(), "{:?}", site.warnings);
+    // On a scene without ground they stand at 0, as before.
+    let flat = scene_with("Figure(label: \"walker\", at: (10, 10)), Tree(label: \"lime\", at: (5, 20), height: 9, crown: 5)");
+    assert_near(lowest_point_of(&flat, "walker"), 0.0, 1e-12);
+    assert_near(lowest_point_of(&flat, "lime"), 0.0, 1e-12);
+}
+
+#[test]
+fn a_figure_car_or_tree_sunk_in_the_ground_is_warned_of_by_name() {
+    // The ground at (10, 10) is 3.5 (by hand, above): a base of 3 is half a metre under
+    // it, one of 3.47 within the few centimetres allowed.
+    for (kind, item) in [
+        (
+            "figure",
+            "Figure(label: \"walker\", at: (10, 10), base: BASE)",
+        ),
+        ("car", "Car(label: \"walker\", at: (10, 10), base: BASE)"),
+        (
+            "tree",
+            "Tree(label: \"walker\", at: (10, 10), height: 9, crown: 5, base: BASE)",
+        ),
+    ] {
+        let sunk = site(&format!(
+            "Scene({PLANE}, items: [{}])",
+            item.replace("BASE", "3")
+        ));
+        assert_eq!(sunk.warnings.len(), 1, "{kind}: {:?}", sunk.warnings);
+        let (id, message) = &sunk.warnings[0];
+        assert_eq!(
+            sunk.describe_item(*id),
+            format!("{kind} \"walker\" (item 1)")
+        );
+        assert!(
+            message.contains("stands 0.50 m under the ground at (10.00, 10.00)")
+                && message.contains("the ground there is at 3.50"),
+            "{kind}: {message}"
+        );
+        // Drawn where it is told all the same.
+        assert_near(lowest_point_of(&sunk, "walker"), 3.0, 1e-9);
+        let close = site(&format!(
+            "Scene({PLANE}, items: [{}])",
+            item.replace("BASE", "3.47")
+        ));
+        assert!(close.warnings.is_empty(), "{kind}: {:?}", close.warnings);
+    }
+}

@@ -17,9 +17,10 @@
 //! the crown's sphere.
 
 use super::super::build::{ellipse_points, facet_count, ItemBuilder};
-use super::super::numbers::{default_facing, plan, zero, Finite, Plan, Positive};
+use super::super::numbers::{default_facing, plan, Finite, Plan, Positive};
 use super::super::outline::RoundOutline;
 use super::super::site::DEFAULT_EYE_HEIGHT;
+use super::standing::foot_at;
 use nalgebra::{Point3, Vector3};
 use serde::Deserialize;
 use std::f64::consts::{PI, TAU};
@@ -102,9 +103,9 @@ pub struct FigureSpec {
     /// Height of its eyes above its feet; by default a standpoint's for the pose.
     #[serde(default)]
     pub eye_height: Option<Positive>,
-    /// Height of the ground it stands on.
-    #[serde(default = "zero")]
-    pub base: Finite,
+    /// Height of its feet; by default the ground's under it (0 without a ground).
+    #[serde(default)]
+    pub base: Option<Finite>,
 }
 
 /// A parked car of common size.
@@ -120,8 +121,9 @@ pub struct CarSpec {
     /// The azimuth its front points to.
     #[serde(default = "default_facing")]
     pub facing: Finite,
-    #[serde(default = "zero")]
-    pub base: Finite,
+    /// Height of its wheels' feet; by default the ground's under its centre.
+    #[serde(default)]
+    pub base: Option<Finite>,
 }
 
 /// A tree: a trunk under a round crown.
@@ -140,8 +142,9 @@ pub struct TreeSpec {
     /// Diameter of the trunk; by default a thirtieth of the height.
     #[serde(default)]
     pub trunk: Option<Positive>,
-    #[serde(default = "zero")]
-    pub base: Finite,
+    /// Height of the trunk's foot; by default the ground's under it.
+    #[serde(default)]
+    pub base: Option<Finite>,
 }
 
 /// The closed outline of a figure of stature 1 (across, up), and the height of its eyes.
@@ -179,12 +182,16 @@ fn check_eye_height(eyes: f64, pose: Pose) -> Result<(), String> {
 
 pub fn build_figure(b: &mut ItemBuilder, spec: &FigureSpec) -> Result<(), String> {
     let metres = b.metres_per_unit();
-    if spec.base.0 < 0.0 {
-        return Err(format!(
-            "the figure stands under the ground (`base` {}); figures stand on the ground \
-             (base 0) or on something above it",
-            spec.base.0
-        ));
+    let given = spec.base.map(|base| base.0);
+    if let (Some(base), None) = (given, b.ground()) {
+        // On a scene without a sloping ground the ground is the level z = 0; on one with a
+        // ground, a figure sunk in it is warned of by `foot_at`.
+        if base < 0.0 {
+            return Err(format!(
+                "the figure stands under the ground (`base` {base}); figures stand on the \
+                 ground (base 0) or on something above it"
+            ));
+        }
     }
     let default_eyes = match spec.pose {
         Pose::Standing => STANDING_EYE_HEIGHT,
@@ -195,8 +202,9 @@ pub fn build_figure(b: &mut ItemBuilder, spec: &FigureSpec) -> Result<(), String
     let (outline, share) = figure_outline(spec.pose);
     let stature = eyes / share;
     let centre = plan(&spec.at);
+    let foot = foot_at(b, centre, given);
     b.move_by(
-        Vector3::new(centre.x, centre.y, spec.base.0),
+        Vector3::new(centre.x, centre.y, foot),
         spec.facing.0.to_radians(),
     );
     // The figure stands in its local x-z plane, facing +y.
@@ -256,8 +264,10 @@ fn level(x: f64, y0: f64, y1: f64, z: f64) -> [Point3<f64>; 4] {
 pub fn build_car(b: &mut ItemBuilder, spec: &CarSpec) -> Result<(), String> {
     let unit = 1.0 / b.metres_per_unit();
     let centre = plan(&spec.at);
+    // On a slope the car stands level at the ground under its centre (not tilted to it).
+    let foot = foot_at(b, centre, spec.base.map(|base| base.0));
     b.move_by(
-        Vector3::new(centre.x, centre.y, spec.base.0),
+        Vector3::new(centre.x, centre.y, foot),
         spec.facing.0.to_radians(),
     );
     // Local frame in metres turned into scene units: x across, y towards the front.
@@ -302,7 +312,11 @@ pub fn build_tree(b: &mut ItemBuilder, spec: &TreeSpec) -> Result<(), String> {
         ));
     }
     let centre = plan(&spec.at);
-    let foot = Point3::new(centre.x, centre.y, spec.base.0);
+    let foot = Point3::new(
+        centre.x,
+        centre.y,
+        foot_at(b, centre, spec.base.map(|base| base.0)),
+    );
     let radius = crown / 2.0;
     let middle = foot + Vector3::z() * (height - radius);
     // The trunk runs up into the crown, where the crown's faces hide it.
@@ -358,7 +372,7 @@ mod tests {
             pose,
             facing: default_facing(),
             eye_height: eye_height.map(Positive),
-            base: Finite(base),
+            base: Some(Finite(base)),
         }
     }
 
@@ -434,7 +448,7 @@ mod tests {
             layer: None,
             at: (Finite(0.0), Finite(0.0)),
             facing: Finite(90.0),
-            base: zero(),
+            base: None,
         };
         let site = built("car", |b| build_car(b, &spec)).unwrap();
         let (low, high) = bounds(&edge_points(&site));
@@ -454,7 +468,7 @@ mod tests {
             height: Positive(10.0),
             crown: Positive(6.0),
             trunk: None,
-            base: zero(),
+            base: None,
         };
         let site = built("tree", |b| build_tree(b, &spec)).unwrap();
         // From beside it, level with the crown's centre 7 m up and 20 m away, the rim is

@@ -7,6 +7,10 @@
 //! along the foot line. Course lines, every `course` metres down from the floor, run round
 //! the plinth and each stops where the ground rises to meet it, so the plinth reads as
 //! stepping down the slope in courses, as a sketcher draws a stone base on a hillside.
+//!
+//! Things that stand at one point (a figure, a car, a tree) stand on the ground under that
+//! point unless given a `base` ([`foot_at`]); a given `base` is a height in the item's
+//! frame, as a block's without `on_ground`, and one sunk in the ground is warned of.
 
 use super::super::build::{ItemBuilder, Placement};
 use super::super::numbers::{zero, Finite, Positive};
@@ -20,6 +24,11 @@ const LEVEL_EPSILON: f64 = 1e-9;
 /// Course lines beyond this many on one plinth are refused (a course of a millimetre on a
 /// steep hill would be a grey smear, and slow).
 pub const MAX_COURSES: usize = 1000;
+
+/// Metres: how far a thing's given foot may lie under the scene's ground before `check`
+/// and `render` warn of it. A few centimetres, as the ground's own faces may hide lines
+/// that far behind them (its slack): less is rounding or a kerb, more is a mistake.
+pub const SUNK_TOLERANCE: f64 = 0.05;
 
 /// A level plinth under a building on sloping ground.
 #[derive(Clone, Copy, Debug, Deserialize, PartialEq)]
@@ -189,6 +198,43 @@ pub fn ground_under(
         }
     }
     Ok((lowest, highest))
+}
+
+/// The height of the scene's ground under the plan point `at` of the builder's frame, in
+/// that frame's units and measured from its origin; `None` without a ground or off it.
+pub fn ground_at(b: &ItemBuilder, at: Vector2<f64>) -> Option<f64> {
+    let place = b.placement();
+    let q = place.point(&Point3::new(at.x, at.y, 0.0));
+    let z = b.ground()?.height_at(q.x, q.y)?;
+    Some((z - place.shift.z) / place.scale)
+}
+
+/// The foot of a thing standing at the plan point `at` (a figure, a car, a tree), in the
+/// builder's frame: the `base` given, kept as written; or, with none, the ground under
+/// `at` (0 where the scene has no ground or it does not reach, as before there was one).
+/// A given base more than [`SUNK_TOLERANCE`] under the ground there is warned of, naming
+/// the item; it is still drawn where it is told.
+pub fn foot_at(b: &mut ItemBuilder, at: Vector2<f64>, base: Option<f64>) -> f64 {
+    let ground = ground_at(b, at);
+    let Some(base) = base else {
+        return ground.unwrap_or(0.0);
+    };
+    if let Some(ground) = ground {
+        let sunk = b.placement().length(ground - base);
+        if sunk > SUNK_TOLERANCE {
+            let site = b.placement().point(&Point3::new(at.x, at.y, base));
+            b.warn(format!(
+                "stands {sunk:.2} m under the ground at ({:.2}, {:.2}): its `base` puts its \
+                 foot at height {:.2}, the ground there is at {:.2}; leave `base` out to stand \
+                 on the ground",
+                site.x,
+                site.y,
+                site.z,
+                site.z + sunk
+            ));
+        }
+    }
+    base
 }
 
 /// The floor of a building on a plinth: `base` above the highest ground under it. A
