@@ -828,6 +828,36 @@ fn check_reports_the_ground_and_what_lies_off_it() {
     assert!(all.contains("does not reach standpoint \"off\""), "{all}");
 }
 
+/// `check` and `render` warn of a figure set in the ground by its `base`, naming it; one
+/// without a `base` stands on the ground and is not warned of. The ground is one plane
+/// through three spots, worked by hand: z = 1 + 3 x / 20 + y / 20, 2.25 at (5, 10).
+#[test]
+fn check_and_render_warn_of_a_figure_sunk_in_the_ground() {
+    let dir = Scratch::new("sunk-figure");
+    dir.write(
+        "hill.ron",
+        "Scene(standpoints: [(name: \"on\", x: 5, y: 5)],\n\
+         ground: (spots: [(0, 0, 1), (20, 0, 4), (0, 20, 2)]),\n\
+         items: [Figure(label: \"walker\", at: (5, 10), base: 1),\n\
+                 Figure(label: \"climber\", at: (10, 5))])",
+    );
+    let expected = "figure \"walker\" (item 1) stands 1.25 m under the ground at (5.00, 10.00)";
+    let out = succeeds(&dir, &["check", "hill.ron"]);
+    let all = format!("{}{}", String::from_utf8_lossy(&out.stdout), stderr(&out));
+    assert!(all.contains(expected), "{all}");
+    assert!(!all.contains("climber\" (item 2) stands"), "{all}");
+    let out = succeeds(
+        &dir,
+        &["render", "hill.ron", "--size", "400x200", "-o", "hill.png"],
+    );
+    assert!(
+        stderr(&out).contains(&format!("pansite: warning: {expected}")),
+        "{}",
+        stderr(&out)
+    );
+    assert_eq!(dir.files(), vec!["hill.png", "hill.ron"]);
+}
+
 #[test]
 fn dividing_the_edges_of_no_item_is_refused() {
     // As `angles --item` refuses a label that names nothing: a division that would draw
