@@ -807,14 +807,17 @@ fn check_lists_each_blocks_corners() {
 }
 
 /// `check` reports the sloping ground's extent and height range, and warns of a standpoint
-/// the ground does not reach.
+/// and an item the ground does not reach (a post half off its edge at x = 20), not of one
+/// wholly on it.
 #[test]
 fn check_reports_the_ground_and_what_lies_off_it() {
     let dir = Scratch::new("ground-check");
     dir.write(
         "hill.ron",
         "Scene(standpoints: [(name: \"on\", x: 5, y: 5), (name: \"off\", x: 50, y: 5)],\n\
-         ground: (spots: [(0, 0, 1), (20, 0, 1), (0, 20, 4), (20, 20, 4)]), items: [])",
+         ground: (spots: [(0, 0, 1), (20, 0, 1), (0, 20, 4), (20, 20, 4)]),\n\
+         items: [Column(label: \"post\", at: (20, 5), diameter: 0.4, height: 3),\n\
+                 Figure(label: \"walker\", at: (10, 10))])",
     );
     let out = succeeds(&dir, &["check", "hill.ron"]);
     let report = String::from_utf8_lossy(&out.stdout).into_owned();
@@ -826,6 +829,11 @@ fn check_reports_the_ground_and_what_lies_off_it() {
     assert!(report.contains("above ground at 1.75 m"), "{report}");
     let all = format!("{report}{}", stderr(&out));
     assert!(all.contains("does not reach standpoint \"off\""), "{all}");
+    assert!(
+        all.contains("ground (item 3) does not reach under all of column \"post\" (item 1)"),
+        "{all}"
+    );
+    assert!(!all.contains("all of figure"), "{all}");
 }
 
 /// `check` and `render` warn of a figure set in the ground by its `base`, naming it; one
