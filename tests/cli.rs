@@ -840,7 +840,7 @@ fn check_reports_the_ground_and_what_lies_off_it() {
 /// without a `base` stands on the ground and is not warned of. The ground is one plane
 /// through three spots, worked by hand: z = 1 + 3 x / 20 + y / 20, 2.25 at (5, 10).
 #[test]
-fn check_and_render_warn_of_a_figure_sunk_in_the_ground() {
+fn check_and_render_refuse_a_figure_sunk_in_the_ground() {
     let dir = Scratch::new("sunk-figure");
     dir.write(
         "hill.ron",
@@ -849,21 +849,30 @@ fn check_and_render_warn_of_a_figure_sunk_in_the_ground() {
          items: [Figure(label: \"walker\", at: (5, 10), base: 1),\n\
                  Figure(label: \"climber\", at: (10, 5))])",
     );
-    let expected = "figure \"walker\" (item 1) stands 1.25 m under the ground at (5.00, 10.00)";
-    let out = succeeds(&dir, &["check", "hill.ron"]);
-    let all = format!("{}{}", String::from_utf8_lossy(&out.stdout), stderr(&out));
-    assert!(all.contains(expected), "{all}");
-    assert!(!all.contains("climber\" (item 2) stands"), "{all}");
-    let out = succeeds(
+    let expected = [
+        "hill.ron:3:",
+        "Figure \"walker\" (item 1)",
+        "stands 1.25 m under the ground at (5.00, 10.00)",
+    ];
+    let out = pansite(&dir, &["check", "hill.ron"]);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    for e in expected {
+        assert!(stderr(&out).contains(e), "{e:?} in {}", stderr(&out));
+    }
+    assert_refused(
         &dir,
-        &["render", "hill.ron", "--size", "400x200", "-o", "hill.png"],
+        &["render", "hill.ron", "--size", "400x200"],
+        &expected,
     );
-    assert!(
-        stderr(&out).contains(&format!("pansite: warning: {expected}")),
-        "{}",
-        stderr(&out)
+    // Without its base the same figure stands on the ground, as the climber does.
+    dir.write(
+        "hill.ron",
+        "Scene(standpoints: [(name: \"on\", x: 5, y: 5)],\n\
+         ground: (spots: [(0, 0, 1), (20, 0, 4), (0, 20, 2)]),\n\
+         items: [Figure(label: \"walker\", at: (5, 10)),\n\
+                 Figure(label: \"climber\", at: (10, 5))])",
     );
-    assert_eq!(dir.files(), vec!["hill.png", "hill.ron"]);
+    succeeds(&dir, &["check", "hill.ron"]);
 }
 
 #[test]

@@ -185,7 +185,7 @@ pub fn build_figure(b: &mut ItemBuilder, spec: &FigureSpec) -> Result<(), String
     let given = spec.base.map(|base| base.0);
     if let (Some(base), None) = (given, b.ground()) {
         // On a scene without a sloping ground the ground is the level z = 0; on one with a
-        // ground, a figure sunk in it is warned of by `foot_at`.
+        // ground, a figure sunk in it is refused by `foot_at`.
         if base < 0.0 {
             return Err(format!(
                 "the figure stands under the ground (`base` {base}); figures stand on the \
@@ -202,7 +202,7 @@ pub fn build_figure(b: &mut ItemBuilder, spec: &FigureSpec) -> Result<(), String
     let (outline, share) = figure_outline(spec.pose);
     let stature = eyes / share;
     let centre = plan(&spec.at);
-    let foot = foot_at(b, centre, given);
+    let foot = foot_at(b, centre, given)?;
     b.move_by(
         Vector3::new(centre.x, centre.y, foot),
         spec.facing.0.to_radians(),
@@ -265,7 +265,7 @@ pub fn build_car(b: &mut ItemBuilder, spec: &CarSpec) -> Result<(), String> {
     let unit = 1.0 / b.metres_per_unit();
     let centre = plan(&spec.at);
     // On a slope the car stands level at the ground under its centre (not tilted to it).
-    let foot = foot_at(b, centre, spec.base.map(|base| base.0));
+    let foot = foot_at(b, centre, spec.base.map(|base| base.0))?;
     b.move_by(
         Vector3::new(centre.x, centre.y, foot),
         spec.facing.0.to_radians(),
@@ -315,7 +315,7 @@ pub fn build_tree(b: &mut ItemBuilder, spec: &TreeSpec) -> Result<(), String> {
     let foot = Point3::new(
         centre.x,
         centre.y,
-        foot_at(b, centre, spec.base.map(|base| base.0)),
+        foot_at(b, centre, spec.base.map(|base| base.0))?,
     );
     let radius = crown / 2.0;
     let middle = foot + Vector3::z() * (height - radius);

@@ -10,7 +10,7 @@
 //!
 //! Things that stand at one point (a figure, a car, a tree) stand on the ground under that
 //! point unless given a `base` ([`foot_at`]); a given `base` is a height in the item's
-//! frame, as a block's without `on_ground`, and one sunk in the ground is warned of.
+//! frame, as a block's without `on_ground`, and one sunk in the ground is refused.
 
 use super::super::build::{ItemBuilder, Placement};
 use super::super::numbers::{zero, Finite, Positive};
@@ -25,8 +25,8 @@ const LEVEL_EPSILON: f64 = 1e-9;
 /// steep hill would be a grey smear, and slow).
 pub const MAX_COURSES: usize = 1000;
 
-/// Metres: how far a thing's given foot may lie under the scene's ground before `check`
-/// and `render` warn of it. A few centimetres, as the ground's own faces may hide lines
+/// Metres: how far a thing's given foot may lie under the scene's ground before it is
+/// refused. A few centimetres, as the ground's own faces may hide lines
 /// that far behind them (its slack): less is rounding or a kerb, more is a mistake.
 pub const SUNK_TOLERANCE: f64 = 0.05;
 
@@ -212,19 +212,19 @@ pub fn ground_at(b: &ItemBuilder, at: Vector2<f64>) -> Option<f64> {
 /// The foot of a thing standing at the plan point `at` (a figure, a car, a tree), in the
 /// builder's frame: the `base` given, kept as written; or, with none, the ground under
 /// `at` (0 where the scene has no ground or it does not reach, as before there was one).
-/// A given base more than [`SUNK_TOLERANCE`] under the ground there is warned of, naming
-/// the item; it is still drawn where it is told.
-pub fn foot_at(b: &mut ItemBuilder, at: Vector2<f64>, base: Option<f64>) -> f64 {
+/// A given base more than [`SUNK_TOLERANCE`] under the ground there is refused (the
+/// caller adds the file, line and item): nothing stands inside the ground.
+pub fn foot_at(b: &mut ItemBuilder, at: Vector2<f64>, base: Option<f64>) -> Result<f64, String> {
     let ground = ground_at(b, at);
     let Some(base) = base else {
-        return ground.unwrap_or(0.0);
+        return Ok(ground.unwrap_or(0.0));
     };
     if let Some(ground) = ground {
         let sunk = b.placement().length(ground - base);
         if sunk > SUNK_TOLERANCE {
             let site = b.placement().point(&Point3::new(at.x, at.y, base));
-            b.warn(format!(
-                "stands {sunk:.2} m under the ground at ({:.2}, {:.2}): its `base` puts its \
+            return Err(format!(
+                "it stands {sunk:.2} m under the ground at ({:.2}, {:.2}): its `base` puts its \
                  foot at height {:.2}, the ground there is at {:.2}; leave `base` out to stand \
                  on the ground",
                 site.x,
@@ -234,7 +234,7 @@ pub fn foot_at(b: &mut ItemBuilder, at: Vector2<f64>, base: Option<f64>) -> f64 
             ));
         }
     }
-    base
+    Ok(base)
 }
 
 /// The floor of a building on a plinth: `base` above the highest ground under it. A
