@@ -1,8 +1,13 @@
 //! Dates and clock times as a scene or a command line writes them (`2026-06-21`, `15:30`,
-//! `01:30+01:00`), read strictly; the sun's module resolves them in the site's time zone.
+//! `01:30+01:00`), read strictly, and their offset from UT in the site's time zone
+//! ([`offset_in`]): the loader checks the scene's `sun` block with it, so that a time the
+//! clocks skip is refused where it is written, and the sun's clock turns times into instants
+//! with it.
 
 use crate::error::{Error, Result};
-use jiff::civil::{Date, Time};
+use jiff::civil::{Date, DateTime, Time};
+use jiff::tz::{AmbiguousOffset, Offset, TimeZone};
+use jiff::Timestamp;
 use serde::{Deserialize, Deserializer};
 
 /// The years the sun is found for: those of the delta-T estimate the sun's position uses
@@ -131,6 +136,99 @@ fn parse_offset(text: &str) -> Option<i32> {
     }
     let (hours, minutes): (i32, i32) = (hours.parse().ok()?, minutes.parse().ok()?);
     (hours <= 18 && minutes < 60).then_some(sign * (hours * 3600 + minutes * 60))
+}
+
+/// The offset from UT of a local moment in `zone` (called `zone_name` in messages). A time
+/// the clocks skip is refused, saying which times are valid that day; a time they repeat is
+/// refused unless its written offset picks one of its two readings; a written offset that
+/// is neither reading is refused.
+pub fn offset_in(
+    zone: &TimeZone,
+    zone_name: &str,
+    moment: &LocalMoment,
+) -> std::result::Result<Offset, String> {
+    let local = DateTime::from_parts(moment.date, moment.time);
+    let written = format!("{} {}", moment.date, moment.time.strftime("%H:%M:%S"));
+    let offsets: Vec<Offset> = match zone.to_ambiguous_timestamp(local).offset() {
+        AmbiguousOffset::Unambiguous { offset } => vec![offset],
+        AmbiguousOffset::Gap { before, after } => {
+            let (start, end) = change_times(zone, local, before, after);
+            return Err(format!(
+                "{written} does not exist in {zone_name}: the clocks go forward from {} to {} \
+                 that day, so valid times are before {} or from {} on",
+                clock_text(start),
+                clock_text(end),
+                clock_text(start),
+                clock_text(end)
+            ));
+        }
+        AmbiguousOffset::Fold { before, after } => {
+            if moment.offset_s.is_none() {
+                return Err(format!(
+                    "{written} happens twice in {zone_name}: the clocks go back that day, so \
+                     say which with its offset: {}{} (the first) or {}{} (the second)",
+                    moment.time.strftime("%H:%M"),
+                    offset_text(before),
+                    moment.time.strftime("%H:%M"),
+                    offset_text(after)
+                ));
+            }
+            vec![before, after]
+        }
+    };
+    match moment.offset_s {
+        None => Ok(offsets[0]),
+        Some(seconds) => offsets
+            .iter()
+            .find(|o| o.seconds() == seconds)
+            .copied()
+            .ok_or_else(|| {
+                let valid: Vec<String> = offsets.iter().map(|o| offset_text(*o)).collect();
+                format!(
+                    "{written} in {zone_name} is at UT{}, not at the offset written ({})",
+                    valid.join(" or UT"),
+                    offset_seconds_text(seconds)
+                )
+            }),
+    }
+}
+
+/// The local clock times just before and just after the change around `local` (a time in
+/// a gap): the change happens at one instant, read at the old and the new offset.
+fn change_times(
+    zone: &TimeZone,
+    local: DateTime,
+    before: Offset,
+    after: Offset,
+) -> (DateTime, DateTime) {
+    let at = |offset: Offset| offset.to_timestamp(local).map_or(0, |t| t.as_second());
+    // The change lies between the two readings of the skipped time; find its second.
+    let (mut lo, mut hi) = (at(after).min(at(before)), at(after).max(at(before)));
+    let seconds = |s: i64| Timestamp::from_second(s).map_or(0, |t| zone.to_offset(t).seconds());
+    while hi - lo > 1 {
+        let mid = lo + (hi - lo) / 2;
+        if seconds(mid) == before.seconds() {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    let change = Timestamp::from_second(hi).unwrap_or(Timestamp::UNIX_EPOCH);
+    (before.to_datetime(change), after.to_datetime(change))
+}
+
+fn clock_text(t: DateTime) -> String {
+    t.strftime("%H:%M").to_string()
+}
+
+fn offset_text(offset: Offset) -> String {
+    offset_seconds_text(offset.seconds())
+}
+
+fn offset_seconds_text(seconds: i32) -> String {
+    let sign = if seconds < 0 { '-' } else { '+' };
+    let s = seconds.unsigned_abs();
+    format!("{sign}{:02}:{:02}", s / 3600, s / 60 % 60)
 }
 
 /// The scene's `sun` block: the date and local time of the sun and shadows drawn, and

@@ -7,10 +7,10 @@
 //! times are valid. Without a time zone the clock is universal time.
 
 use crate::error::{Error, Result};
-use crate::scene::find_time_zone;
 pub use crate::scene::LocalMoment;
+use crate::scene::{find_time_zone, offset_in};
 use jiff::civil::{Date, DateTime, Time};
-use jiff::tz::{AmbiguousOffset, Offset, TimeZone};
+use jiff::tz::TimeZone;
 use jiff::Timestamp;
 
 /// The site's clock: a zone of the bundled database, or universal time.
@@ -51,54 +51,14 @@ impl Clock {
     /// clocks skip is refused, and a time they repeat unless its offset picks a reading.
     pub fn instant(&self, moment: &LocalMoment) -> Result<f64> {
         let local = DateTime::from_parts(moment.date, moment.time);
-        let written = format!("{} {}", moment.date, moment.time.strftime("%H:%M:%S"));
-        let offsets: Vec<Offset> = match self.zone.to_ambiguous_timestamp(local).offset() {
-            AmbiguousOffset::Unambiguous { offset } => vec![offset],
-            AmbiguousOffset::Gap { before, after } => {
-                let (start, end) = self.change_times(local, before, after);
-                return Err(Error::Sun(format!(
-                    "{written} does not exist in {}: the clocks go forward from {} to {} \
-                     that day, so valid times are before {} or from {} on",
-                    self.name,
-                    clock_text(start),
-                    clock_text(end),
-                    clock_text(start),
-                    clock_text(end)
-                )));
-            }
-            AmbiguousOffset::Fold { before, after } => {
-                if moment.offset_s.is_none() {
-                    return Err(Error::Sun(format!(
-                        "{written} happens twice in {}: the clocks go back that day, so say \
-                         which with its offset: {}{} (the first) or {}{} (the second)",
-                        self.name,
-                        moment.time.strftime("%H:%M"),
-                        offset_text(before),
-                        moment.time.strftime("%H:%M"),
-                        offset_text(after)
-                    )));
-                }
-                vec![before, after]
-            }
-        };
-        let offset = match moment.offset_s {
-            None => offsets[0],
-            Some(seconds) => *offsets
-                .iter()
-                .find(|o| o.seconds() == seconds)
-                .ok_or_else(|| {
-                    let valid: Vec<String> = offsets.iter().map(|o| offset_text(*o)).collect();
-                    Error::Sun(format!(
-                        "{written} in {} is at UT{}, not at the offset written ({})",
-                        self.name,
-                        valid.join(" or UT"),
-                        offset_seconds_text(seconds)
-                    ))
-                })?,
-        };
-        let timestamp = offset
-            .to_timestamp(local)
-            .map_err(|e| Error::Sun(format!("{written}: {e}")))?;
+        let offset = offset_in(&self.zone, &self.name, moment).map_err(Error::Sun)?;
+        let timestamp = offset.to_timestamp(local).map_err(|e| {
+            Error::Sun(format!(
+                "{} {}: {e}",
+                moment.date,
+                moment.time.strftime("%H:%M:%S")
+            ))
+        })?;
         Ok(timestamp.as_millisecond() as f64 / 1000.0)
     }
 
@@ -124,40 +84,6 @@ impl Clock {
             .map_err(|e| Error::Sun(format!("{date}: {e}")))?;
         Ok(timestamp.as_millisecond() as f64 / 1000.0)
     }
-
-    /// The local clock times just before and just after the change around `local` (a time
-    /// in a gap): the change happens at one instant, read at the old and the new offset.
-    fn change_times(&self, local: DateTime, before: Offset, after: Offset) -> (DateTime, DateTime) {
-        let at = |offset: Offset| offset.to_timestamp(local).map_or(0, |t| t.as_second());
-        // The change lies between the two readings of the skipped time; find its second.
-        let (mut lo, mut hi) = (at(after).min(at(before)), at(after).max(at(before)));
-        let seconds =
-            |s: i64| Timestamp::from_second(s).map_or(0, |t| self.zone.to_offset(t).seconds());
-        while hi - lo > 1 {
-            let mid = lo + (hi - lo) / 2;
-            if seconds(mid) == before.seconds() {
-                lo = mid;
-            } else {
-                hi = mid;
-            }
-        }
-        let change = Timestamp::from_second(hi).unwrap_or(Timestamp::UNIX_EPOCH);
-        (before.to_datetime(change), after.to_datetime(change))
-    }
-}
-
-fn clock_text(t: DateTime) -> String {
-    t.strftime("%H:%M").to_string()
-}
-
-fn offset_text(offset: Offset) -> String {
-    offset_seconds_text(offset.seconds())
-}
-
-fn offset_seconds_text(seconds: i32) -> String {
-    let sign = if seconds < 0 { '-' } else { '+' };
-    let s = seconds.unsigned_abs();
-    format!("{sign}{:02}:{:02}", s / 3600, s / 60 % 60)
 }
 
 #[cfg(test)]
