@@ -210,6 +210,14 @@ corpus! {
     too_many_edges: "too-many-edges.ron" => refused("too-many-edges.ron:4:9:", &["3000 copies would make 5946000 edges", "5000000 edges"]);
     too_many_triangles: "too-many-triangles.ron" => refused("too-many-triangles.ron:4:9:", &["487700000 face triangles", "5000000 triangles"]);
     too_slow_for_the_limit: "too-slow-for-the-limit.ron" ["--time-limit", "0.001", "--size", "8192x4096"] => refused("rendering out.png: stopped in the visibility and flatten stage", &["the time limit is 0.001 s", "--time-limit"]);
+    // Where the scene is on the earth, and its sun's local time (the clock changes in the
+    // IANA database follow the European Union's rule, Directive 2000/84/EC, which the United
+    // Kingdom keeps: forward at 01:00 UT on the last Sunday of March, back at 01:00 UT on the
+    // last Sunday of October; in 2026 the 29th of March and the 25th of October).
+    sun_time_skipped: "sun-time-skipped.ron" => refused("sun-time-skipped.ron:4:37:", &["`sun.time`", "2026-03-29 01:30:00 does not exist in Europe/London", "before 01:00 or from 02:00"]);
+    sun_time_twice: "sun-time-twice.ron" => refused("sun-time-twice.ron:6:15:", &["`sun.time`", "happens twice in Europe/London", "01:30+01:00 (the first) or 01:30+00:00 (the second)"]);
+    time_zone_unknown: "time-zone-unknown.ron" => refused("time-zone-unknown.ron:3:61:", &["\"Europe/Londn\" is not a time zone", "did you mean \"Europe/London\"?"]);
+    latitude_beyond_the_pole: "latitude-beyond-the-pole.ron" => refused("latitude-beyond-the-pole.ron:3:26:", &["expected a latitude from -90 to 90 degrees, found 91.5"]);
     // Standpoints inside solids: warnings, not errors.
     standpoint_inside_block: "standpoint-inside-block.ron" => warned(&["standpoint \"cellar\" is inside block (item 1)"]);
     standpoint_inside_tower: "standpoint-inside-tower.ron" => warned(&["standpoint \"stair\" is inside tower \"keep\""]);

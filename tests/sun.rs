@@ -12,7 +12,13 @@ use std::path::Path;
 /// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
 /// pole 6 m tall at the origin and a standpoint south-west of it.
 fn pole_scene(north: f64, sun: &str) -> Site {
-    let text = format!(
+    let text = pole_text(north, sun);
+    parse_scene(text.as_bytes(), Path::new("pole.ron"), "pole").unwrap()
+}
+
+/// The text of [`pole_scene`]; its `sun` block (if any) on line 4, from column 13.
+fn pole_text(north: f64, sun: &str) -> String {
+    format!(
         r#"Scene(
             name: "pole",
             location: (latitude: 47.3, longitude: 8.1, north: {north}, time_zone: "Europe/Zurich"),
@@ -20,8 +26,7 @@ fn pole_scene(north: f64, sun: &str) -> Site {
             standpoints: [(name: "corner", x: -9, y: -14, heading: 30)],
             items: [Block(label: "pole", at: Centre(0, 0), width: 0.02, depth: 0.02, height: 6)],
         )"#
-    );
-    parse_scene(text.as_bytes(), Path::new("pole.ron"), "pole").unwrap()
+    )
 }
 
 /// The corner of the shadows' outline farthest from the pole's foot, from `angles`' rows.
@@ -137,8 +142,27 @@ fn a_scene_with_a_sun_block_draws_the_sun_its_path_and_the_shadows() {
 
 #[test]
 fn a_skipped_local_time_is_refused_as_bad_input() {
-    let site = pole_scene(0.0, r#"sun: (date: "2026-03-29", time: "02:30"),"#);
-    let error = draw(&site, &site.standpoints[0], &RenderSettings::default()).unwrap_err();
+    // Europe/Zurich goes forward at 01:00 UT on 2026-03-29 (Directive 2000/84/EC), from
+    // 02:00 to 03:00 local. In the scene: refused on loading, where the time is written.
+    let text = pole_text(0.0, r#"sun: (date: "2026-03-29", time: "02:30"),"#);
+    let error = parse_scene(text.as_bytes(), Path::new("pole.ron"), "pole").unwrap_err();
+    assert!(error.is_bad_input());
+    let message = error.to_string();
+    assert!(
+        message.starts_with("pole.ron:4:45: `sun.time`: "),
+        "{message}"
+    );
+    assert!(message.contains("before 02:00 or from 03:00"), "{message}");
+    // Asked for on the command line: refused when drawing.
+    let site = pole_scene(0.0, "");
+    let settings = RenderSettings {
+        sun: SunChoice {
+            moment: Some(LocalMoment::parse("2026-03-29", "02:30").unwrap()),
+            ..SunChoice::default()
+        },
+        ..RenderSettings::default()
+    };
+    let error = draw(&site, &site.standpoints[0], &settings).unwrap_err();
     assert!(error.is_bad_input());
     assert!(
         error.to_string().contains("before 02:00 or from 03:00"),

@@ -4,6 +4,7 @@
 use super::build::{ItemBuilder, Placement};
 use super::format::{ItemSpec, Posture, SceneFile, StandpointSpec};
 use super::items::*;
+use super::location::{find_time_zone, Location};
 use super::mesh::UpAxis;
 use super::mesh::{add_mesh, add_mesh_named, MeshPlacement};
 use super::numbers::spot;
@@ -15,6 +16,7 @@ use super::opendata::{
 use super::site::{ItemId, ItemInfo};
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use super::streets::Culprit;
+use super::when::{offset_in, SunSpec};
 use crate::budget::{MAX_EDGES, MAX_TRIANGLES};
 use crate::error::Error;
 use std::path::Path;
@@ -38,12 +40,37 @@ pub enum ExpandError {
         field: &'static str,
         message: String,
     },
+    /// A value inside a scene-level field is wrong; `path` names it through the fields of
+    /// nested blocks (`["sun", "time"]`).
+    Value {
+        path: &'static [&'static str],
+        message: String,
+    },
     /// A model file could not be read.
     Model {
         path: Vec<usize>,
         label: String,
         source: Box<Error>,
     },
+}
+
+/// Refuses a `sun` block whose local time the clocks of the location's zone (universal
+/// time without one) skip, or repeat without its offset written, where the time is written.
+fn sun_time_exists(sun: &SunSpec, location: &Location) -> Result<(), ExpandError> {
+    let at = |message: String| ExpandError::Value {
+        path: &["sun", "time"],
+        message,
+    };
+    let (zone, name) = match &location.time_zone {
+        Some(name) => (
+            find_time_zone(name).map_err(|e| at(e.to_string()))?,
+            name.as_str(),
+        ),
+        None => (jiff::tz::TimeZone::UTC, "UTC"),
+    };
+    offset_in(&zone, name, &sun.moment())
+        .map(|_| ())
+        .map_err(at)
 }
 
 /// The resolved site of a parsed scene file read from `scene_path` (models are found
@@ -73,6 +100,9 @@ pub fn expand(
         )?),
         None => None,
     };
+    if let (Some(sun), Some(location)) = (&file.sun, &site.location) {
+        sun_time_exists(sun, location)?;
+    }
     site.sun = file.sun.clone();
     let frame = site.location.as_ref().map(|l| {
         super::opendata::LocalFrame::new(l.latitude_deg, l.longitude_deg, l.north_deg, 0.0)

@@ -3,7 +3,7 @@
 use super::expand::{expand, ExpandError};
 use super::file::read_input;
 use super::format::SceneFile;
-use super::locate::{describe_path, item_path_at, item_spans, ItemSpan};
+use super::locate::{describe_path, field_value_at, item_path_at, item_spans, ItemSpan};
 use super::mesh::{add_mesh, MeshPlacement, MeshStats};
 use super::obj::read_obj;
 use super::site::Site;
@@ -203,6 +203,18 @@ pub fn parse_scene_timed(
                 message: format!("`{field}`: {message}"),
             }
         }
+        ExpandError::Value {
+            path: fields,
+            message,
+        } => {
+            let (line, column) = field_value_at(text, fields).unwrap_or((1, 1));
+            Error::Scene {
+                path: path.to_owned(),
+                line,
+                column,
+                message: format!("`{}`: {message}", fields.join(".")),
+            }
+        }
         ExpandError::Model {
             path: at,
             label,
@@ -319,6 +331,28 @@ mod tests {
             }) => (line, column, message),
             other => panic!("expected a scene error, got {other:?}"),
         }
+    }
+
+    #[test]
+    fn a_sun_time_the_clocks_skip_or_repeat_is_refused_where_it_is_written() {
+        let scene = |zone: &str, time: &str| {
+            format!(
+                "Scene(\n  location: (latitude: 40.7, longitude: -105.1{zone}),\n  \
+                 sun: (date: \"2026-03-08\",\n        time: \"{time}\"),\n  \
+                 standpoints: [(name: \"here\", x: 0, y: 0)],\n  items: [],\n)"
+            )
+        };
+        // America/Denver goes forward at 02:00 local on the second Sunday of March (the
+        // Energy Policy Act of 2005): 2026-03-08.
+        let denver = ", time_zone: \"America/Denver\"";
+        let (line, column, message) = error_at(&scene(denver, "02:15"));
+        assert_eq!((line, column), (4, 15), "{message}");
+        assert!(message.starts_with("`sun.time`: 2026-03-08 02:15:00 does not exist"));
+        assert!(message.contains("before 02:00 or from 03:00"), "{message}");
+        // Either side of the gap, and the same time in universal time, are read.
+        assert!(parse(&scene(denver, "01:59")).is_ok());
+        assert!(parse(&scene(denver, "03:00")).is_ok());
+        assert!(parse(&scene("", "02:15")).is_ok());
     }
 
     #[test]

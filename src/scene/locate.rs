@@ -43,29 +43,61 @@ pub(crate) struct ItemSpan {
 /// does before parsing), so that positions match RON's.
 pub(crate) fn item_spans(text: &str) -> Vec<ItemSpan> {
     let scan = Scan::new(text);
-    let toks = &scan.toks;
-    let mut i = 0;
-    // `#![enable(...)]` attributes may come before the scene.
-    while toks.get(i).is_some_and(|t| t.tok == Tok::Other('#')) {
-        i += 1;
-        if toks.get(i).is_some_and(|t| t.tok == Tok::Other('!')) {
-            i += 1;
-        }
-        if toks.get(i).is_some_and(|t| t.tok == Tok::Open('[')) {
-            i = scan.after(i);
-        }
-    }
-    // RON lets the struct name be left out: `(items: [...])` is a scene too.
-    let group = match toks.get(i).map(|t| &t.tok) {
-        Some(Tok::Ident) if scan.is(i + 1, Tok::Open('(')) => i + 1,
-        Some(Tok::Open('(')) => i,
-        _ => return Vec::new(),
+    let Some(group) = scan.scene_group() else {
+        return Vec::new();
     };
     scan.fields(group)
         .into_iter()
         .find(|&(name, value)| name == "items" && scan.is(value, Tok::Open('[')))
         .map(|(_, list)| scan.list(list, 1))
         .unwrap_or_default()
+}
+
+/// Where the value of a scene-level field is written, following the fields of nested
+/// structs: `["sun", "time"]` is the value of `time` in the scene's `sun: (...)` block.
+/// `None` if the text has no such field.
+pub(crate) fn field_value_at(text: &str, path: &[&str]) -> Option<(usize, usize)> {
+    let scan = Scan::new(text);
+    let mut value = scan.scene_group()?;
+    for (depth, name) in path.iter().enumerate() {
+        // A nested struct may be written with its name, `Sun(...)`, or without, `(...)`.
+        let open = match (depth, scan.toks.get(value).map(|t| t.tok)) {
+            (0, _) => value,
+            (_, Some(Tok::Ident)) if scan.is(value + 1, Tok::Open('(')) => value + 1,
+            (_, Some(Tok::Open('('))) => value,
+            _ => return None,
+        };
+        value = scan
+            .fields(open)
+            .into_iter()
+            .find(|&(field, _)| field == *name)?
+            .1;
+    }
+    scan.toks.get(value).map(|t| t.start)
+}
+
+impl Scan {
+    /// The opening parenthesis of the `Scene(...)`, after any `#![enable(...)]`.
+    fn scene_group(&self) -> Option<usize> {
+        let toks = &self.toks;
+        let mut i = 0;
+        // `#![enable(...)]` attributes may come before the scene.
+        while toks.get(i).is_some_and(|t| t.tok == Tok::Other('#')) {
+            i += 1;
+            if toks.get(i).is_some_and(|t| t.tok == Tok::Other('!')) {
+                i += 1;
+            }
+            if toks.get(i).is_some_and(|t| t.tok == Tok::Open('[')) {
+                i = self.after(i);
+            }
+        }
+        // RON lets the struct name be left out: `(items: [...])` is a scene too.
+        match toks.get(i).map(|t| &t.tok) {
+            Some(Tok::Ident) if self.is(i + 1, Tok::Open('(')) => Some(i + 1),
+            Some(Tok::Open('(')) => Some(i),
+            _ => None,
+        }
+    }
 }
 
 /// The path of indices (from 0) to the innermost item whose span contains the position
@@ -849,6 +881,29 @@ Scene(
                 "{text}: {err}"
             );
         }
+    }
+
+    #[test]
+    fn a_field_inside_a_scene_block_is_found_where_written() {
+        // A `time` in a comment, in a string and in another block come first; the one
+        // wanted is the value of `time` in the `sun` block.
+        let text = "#![enable(implicit_some)]\n(\n  // time: \"00:00\"\n  name: \"time: 1\",\n  \
+                    location: (latitude: 1, longitude: 2, time_zone: \"UTC\"),\n  \
+                    sun: Sun(date: \"2026-06-21\",\n    time: \"15:30\"),\n  items: [],\n)\n";
+        assert_eq!(field_value_at(text, &["sun", "time"]), Some((7, 11)));
+        assert_eq!(field_value_at(text, &["sun"]), Some((6, 8)));
+        assert_eq!(
+            field_value_at(text, &["location", "time_zone"]),
+            Some((5, 52))
+        );
+        assert_eq!(field_value_at(text, &["sun", "hatch"]), None);
+        assert_eq!(field_value_at(text, &["name", "time"]), None);
+        // Broken text: what is there is still found, and nothing panics.
+        assert_eq!(
+            field_value_at("Scene(sun: (time: \"01:30\"", &["sun", "time"]),
+            Some((1, 19))
+        );
+        assert_eq!(field_value_at(")(", &["sun", "time"]), None);
     }
 
     /// Enough of the scene format to get RON's error positions.
