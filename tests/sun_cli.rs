@@ -1,5 +1,5 @@
 //! The sun on the command line: `pansite daylight`, `render --date --time`, `angles` with
-//! shadows, refused clock times, run for real.
+//! shadows, refused clock times, the sun up or down all day at 78 N, run for real.
 
 mod common;
 use common::{pansite, Scratch};
@@ -158,4 +158,85 @@ fn angles_lists_the_shadows_corners() {
             >= 4,
         "{text}"
     );
+}
+
+/// An invented hut at 78 degrees north, its clock universal time.
+const POLAR: &str = r#"Scene(
+    name: "Drift Ice Hut",
+    location: (latitude: 78.0, longitude: 16.0),
+    standpoints: [(name: "door", x: 0, y: -6)],
+    items: [Block(label: "hut", at: Centre(0, 0), width: 4, depth: 3, height: 3)],
+)"#;
+
+#[test]
+fn daylight_at_78_north_has_the_sun_up_all_day_at_midsummer_and_down_at_midwinter() {
+    // Common practice (any almanac): at 78 N the sun does not set round the June solstice
+    // and does not rise round the December one. Plain spherical astronomy says by how
+    // much: at a solstice the sun's declination is +-23.44 degrees (the obliquity of the
+    // ecliptic, Astronomical Almanac), so at latitude phi its elevation at transit is
+    // 90 - phi + delta and at the lower transit phi + delta - 90: +35.44 and +11.44 in
+    // June, -11.44 and -35.44 in December (refraction adds at most 0.03 at these heights).
+    let dir = Scratch::new("sun-polar");
+    let path = dir.write("hut.ron", POLAR);
+    let p = path.to_str().unwrap();
+    for (date, event, transit_deg, lowest_deg, highest_deg) in [
+        ("2026-06-21", "up all day", 35.44, 11.44, 35.44),
+        ("2026-12-21", "down all day", -11.44, -35.44, -11.44),
+    ] {
+        let args = |format: &str| {
+            [
+                "daylight", p, "--date", date, "--step", "30", "--format", format,
+            ]
+            .map(str::to_owned)
+        };
+        // As text: the day's row, without a time or angles, and no sunrise or sunset.
+        let out = pansite(&dir, &args("text").each_ref().map(String::as_str));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let text = String::from_utf8(out.stdout).unwrap();
+        let day_rows: Vec<&str> = text.lines().filter(|l| l.contains(event)).collect();
+        assert_eq!(
+            day_rows,
+            [format!("{date}                    {event}")],
+            "{text}"
+        );
+        assert!(
+            !text.contains("sunrise") && !text.contains("sunset"),
+            "{text}"
+        );
+        // As JSON: the same row, its time empty and its angles null; the positions every
+        // half hour all on the one side of the horizon, between the two transits.
+        let out = pansite(&dir, &args("json").each_ref().map(String::as_str));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let json: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
+        let rows = json["rows"].as_array().unwrap();
+        let of = |name: &str| -> Vec<&serde_json::Value> {
+            rows.iter().filter(|r| r["event"] == name).collect()
+        };
+        let day = of(event);
+        assert_eq!(day.len(), 1, "{rows:?}");
+        assert_eq!(
+            (&day[0]["date"], &day[0]["time"]),
+            (&date.into(), &"".into())
+        );
+        assert!(day[0]["azimuth"].is_null() && day[0]["elevation"].is_null());
+        assert_eq!(of("sunrise").len() + of("sunset").len(), 0, "{rows:?}");
+        let transit = of("transit")[0]["elevation"].as_f64().unwrap();
+        assert!((transit - transit_deg).abs() < 0.1, "{transit}");
+        let elevations: Vec<f64> = of("position")
+            .iter()
+            .map(|r| r["elevation"].as_f64().unwrap())
+            .collect();
+        assert_eq!(elevations.len(), 48);
+        for e in elevations {
+            assert!(lowest_deg - 0.1 < e && e < highest_deg + 0.1, "{date}: {e}");
+        }
+    }
 }
