@@ -198,6 +198,7 @@ corpus! {
     segmental_head_too_high: "segmental-head-too-high.ron" => refused("segmental-head-too-high.ron:4:9:", &["the head", "rises at most half its span", "Pointed"]);
     round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
     figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
+    figure_under_the_slope: "figure-under-the-slope.ron" => refused("figure-under-the-slope.ron:5:9:", &["Figure \"walker\"", "stands 1.25 m under the ground at (5.00, 10.00)", "leave `base` out"]);
     figure_taller_than_people: "figure-taller-than-people.ron" => refused("figure-taller-than-people.ron:4:9:", &["16.000 m", "taller than any person"]);
     tower_shaped_head: "tower-shaped-head.ron" => refused("tower-shaped-head.ron:4:9:", &["Semicircular head cannot be set in a round wall", "Square heads"]);
     unknown_head: "unknown-head.ron" => refused("unknown-head.ron:5:76:", &["Gothic", "Pointed"]);
