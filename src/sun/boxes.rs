@@ -240,7 +240,8 @@ mod tests {
                 }
             }
         }
-        // Level and upright segments, and a point, along cells' borders.
+        // Level and upright segments, and a point (the cells' borders are not aimed at:
+        // the grid's cells follow from the boxes).
         for (a, b) in [
             (Vector2::new(-5.0, 30.0), Vector2::new(105.0, 30.0)),
             (Vector2::new(40.0, -5.0), Vector2::new(40.0, 65.0)),
