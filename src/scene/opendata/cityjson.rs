@@ -12,14 +12,6 @@
 //! The boundaries are nested arrays whose depth depends on the geometry's type; they are
 //! read flat (`boundaries.rs`), one list of numbers per geometry, and one walk serves every
 //! type.
-//!
-//! Parsing the JSON was the largest part of reading a large model, on one core. The city
-//! objects are now read on all cores: a first pass reads the file's top level with each
-//! object left as its text (`members.rs`), then the objects are read from their texts in
-//! pieces. Whatever does not read that way (a fault anywhere, lists nested near serde_json's
-//! limit) is read again in one pass, which reports it exactly as before: the first fault
-//! in the text, at its line and column. On the generated 100 MB model the first pass takes
-//! less than half of what the one pass took (`benches/README.md`).
 
 use super::boundaries::{path_text, walk, Boundaries, Node, Values};
 use super::earth::LocalFrame;
