@@ -15,11 +15,7 @@ use std::fmt;
 /// Nested boundary arrays, flat (module docs): a list's header is its length in numbers
 /// after it, shifted up one, with the low bit set for a list of lists.
 #[derive(Clone, Debug, Default, PartialEq)]
-pub struct Boundaries {
-    flat: Vec<u32>,
-    /// How many lists deep the deepest vertex index (or empty list) lies: 1 for `[0]`.
-    depth: usize,
-}
+pub struct Boundaries(Vec<u32>);
 
 /// One list of a [`Boundaries`]: a ring of vertex indices, or lists.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -59,12 +55,7 @@ fn split_node(flat: &[u32]) -> Option<(Node<'_>, &[u32])> {
 impl Boundaries {
     /// The outermost list.
     pub fn root(&self) -> Node<'_> {
-        split_node(&self.flat).map_or(Node::Ring(&[]), |(node, _)| node)
-    }
-
-    /// How many lists deep the deepest vertex index (or empty list) lies: 1 for `[0]`.
-    pub fn depth(&self) -> usize {
-        self.depth
+        split_node(&self.0).map_or(Node::Ring(&[]), |(node, _)| node)
     }
 }
 
@@ -78,26 +69,23 @@ impl<'de> Deserialize<'de> for Boundaries {
             }
             fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Boundaries, A::Error> {
                 let mut flat = Vec::new();
-                let depth = read_list(seq, &mut flat)?;
-                Ok(Boundaries { flat, depth })
+                read_list(seq, &mut flat)?;
+                Ok(Boundaries(flat))
             }
         }
         d.deserialize_seq(Outer)
     }
 }
 
-/// Appends a list (its header, then its contents) to `flat`; how deep it is.
-fn read_list<'de, A: SeqAccess<'de>>(mut seq: A, flat: &mut Vec<u32>) -> Result<usize, A::Error> {
+/// Appends a list (its header, then its contents) to `flat`.
+fn read_list<'de, A: SeqAccess<'de>>(mut seq: A, flat: &mut Vec<u32>) -> Result<(), A::Error> {
     let header = flat.len();
     flat.push(0);
-    let (mut indices, mut lists, mut inside) = (false, false, 0);
+    let (mut indices, mut lists) = (false, false);
     while let Some(element) = seq.next_element_seed(ElementSeed(flat))? {
         match element {
             Element::Index => indices = true,
-            Element::List(depth) => {
-                lists = true;
-                inside = inside.max(depth);
-            }
+            Element::List => lists = true,
         }
     }
     if indices && lists {
@@ -108,14 +96,13 @@ fn read_list<'de, A: SeqAccess<'de>>(mut seq: A, flat: &mut Vec<u32>) -> Result<
         .filter(|&n| n < 1 << 31)
         .ok_or_else(|| A::Error::custom("the boundaries are too long"))?;
     flat[header] = length << 1 | lists as u32;
-    Ok(1 + inside)
+    Ok(())
 }
 
 /// What an element of a list was.
 enum Element {
     Index,
-    /// A list, so many deep.
-    List(usize),
+    List,
 }
 
 /// Reads one element of a list into the flat numbers.
@@ -140,7 +127,8 @@ impl<'de> Visitor<'de> for ElementSeed<'_> {
         Ok(Element::Index)
     }
     fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Element, A::Error> {
-        Ok(Element::List(read_list(seq, self.0)?))
+        read_list(seq, self.0)?;
+        Ok(Element::List)
     }
 }
 
@@ -149,16 +137,6 @@ impl<'de> Visitor<'de> for ElementSeed<'_> {
 pub enum Values {
     Surfaces(Vec<Option<u32>>),
     List(Vec<Values>),
-}
-
-impl Values {
-    /// How many lists deep the deepest surface index lies: 1 for `[0, null]`.
-    pub fn depth(&self) -> usize {
-        match self {
-            Values::Surfaces(_) => 1,
-            Values::List(lists) => 1 + lists.iter().map(Values::depth).max().unwrap_or(0),
-        }
-    }
 }
 
 /// What values that match neither form are called: the words serde gives an untagged enum
@@ -398,17 +376,6 @@ mod tests {
         );
         assert_eq!(read("[7]").root(), Node::Ring(&[7]));
         assert_eq!(read("[]").root(), Node::Ring(&[]));
-    }
-
-    #[test]
-    fn depth_counts_the_lists_around_the_deepest_index() {
-        assert_eq!(read("[0, 1]").depth(), 1);
-        assert_eq!(read("[]").depth(), 1);
-        assert_eq!(read("[[[[0, 1, 2]], [[3]]], [[]]]").depth(), 4);
-        assert_eq!(read("[[], [[[[0]]]], [1]]").depth(), 5);
-        let values = |text| serde_json::from_str::<Values>(text).unwrap().depth();
-        assert_eq!(values("[0, null]"), 1);
-        assert_eq!(values("[[0], [[1], []]]"), 3);
     }
 
     #[test]

@@ -16,7 +16,6 @@
 use super::boundaries::{path_text, walk, Boundaries, Node, Values};
 use super::earth::LocalFrame;
 use super::grid::{Grid, GridToPlan};
-use super::members::{read_values, MemberTexts};
 use super::OpenDataError;
 use crate::scene::obj::ObjFile;
 use nalgebra::Point3;
@@ -167,11 +166,9 @@ pub struct Metadata {
 }
 
 /// A CityJSON object, or one CityJSONFeature of a sequence. Its words are borrowed from
-/// the file's bytes where they can be (no escapes in them). Its city objects are a map by
-/// id, or, read first on the way to reading them on all cores, their texts.
+/// the file's bytes where they can be (no escapes in them).
 #[derive(Debug, Deserialize)]
-#[serde(bound(deserialize = "Objects: Deserialize<'de> + Default"))]
-pub struct CityFile<'a, Objects = BTreeMap<Cow<'a, str>, CityObject<'a>>> {
+pub struct CityFile<'a> {
     #[serde(borrow, rename = "type")]
     pub kind: Cow<'a, str>,
     #[serde(default)]
@@ -180,8 +177,8 @@ pub struct CityFile<'a, Objects = BTreeMap<Cow<'a, str>, CityObject<'a>>> {
     pub transform: Option<Transform>,
     #[serde(default)]
     pub metadata: Option<Metadata>,
-    #[serde(rename = "CityObjects", default)]
-    pub city_objects: Objects,
+    #[serde(borrow, rename = "CityObjects", default)]
+    pub city_objects: BTreeMap<Cow<'a, str>, CityObject<'a>>,
     #[serde(default)]
     pub vertices: Vec<[i64; 3]>,
     #[serde(borrow, rename = "geometry-templates", default)]
@@ -286,7 +283,7 @@ pub fn read_cityjson(
             if line.iter().all(u8::is_ascii_whitespace) {
                 continue;
             }
-            let file = read_city_text(line).map_err(|e| {
+            let file: CityFile = serde_json::from_slice(line).map_err(|e| {
                 let mut error = OpenDataError::json(e);
                 error.line_column = error.line_column.map(|(_, c)| (number + 1, c));
                 error
@@ -294,7 +291,7 @@ pub fn read_cityjson(
             parts.push((Some(number + 1), file));
         }
     } else {
-        let file = read_city_text(bytes).map_err(OpenDataError::json)?;
+        let file: CityFile = serde_json::from_slice(bytes).map_err(OpenDataError::json)?;
         parts.push((None, file));
     }
     let Some((_, header)) = parts.first() else {
@@ -574,57 +571,6 @@ pub fn read_cityjson(
     Ok(model)
 }
 
-/// Reads a CityJSON text (a file, or a line of a sequence): its city objects on all cores
-/// when it can, else the whole text in one pass, which then reports what is wrong as it
-/// always did: the first fault in the text, at its line and column.
-fn read_city_text(bytes: &[u8]) -> Result<CityFile<'_>, serde_json::Error> {
-    match read_on_cores(bytes) {
-        Some(file) => Ok(file),
-        None => serde_json::from_slice(bytes),
-    }
-}
-
-/// Lists nested more deeply than this in a city object's geometry send the text to the
-/// one-pass reading: far beyond any CityJSON geometry (a MultiSolid's boundaries are 5
-/// deep), and far enough inside serde_json's limit of nesting (128) that an object read
-/// alone, which starts two levels higher than in its file, reads exactly as in place.
-const DEEPEST_ON_CORES: usize = 64;
-
-/// The city objects of a CityJSON text read on all cores (their texts split off first by
-/// [`MemberTexts`]), the map then made as serde makes it (in the order written, a later
-/// duplicate id replacing an earlier one); `None` if anything does not read or nests too
-/// deeply to be sure of reading as in place.
-fn read_on_cores(bytes: &[u8]) -> Option<CityFile<'_>> {
-    let outline: CityFile<MemberTexts> = serde_json::from_slice(bytes).ok()?;
-    let objects: Vec<Vec<CityObject>> = read_values(&outline.city_objects)?;
-    let too_deep = objects
-        .iter()
-        .flatten()
-        .flat_map(|o| o.geometry.iter())
-        .any(|g| {
-            let values = g.semantics.as_ref().and_then(|s| s.values.as_ref());
-            g.boundaries.as_ref().map_or(0, Boundaries::depth) > DEEPEST_ON_CORES
-                || values.map_or(0, Values::depth) > DEEPEST_ON_CORES
-        });
-    if too_deep {
-        return None;
-    }
-    let mut city_objects = BTreeMap::new();
-    let ids = outline.city_objects.0.into_iter().map(|(id, _)| id);
-    for (id, object) in ids.zip(objects.into_iter().flatten()) {
-        city_objects.insert(id, object);
-    }
-    Some(CityFile {
-        kind: outline.kind,
-        version: outline.version,
-        transform: outline.transform,
-        metadata: outline.metadata,
-        city_objects,
-        vertices: outline.vertices,
-        geometry_templates: outline.geometry_templates,
-    })
-}
-
 /// The geometry a city object's geometry stands for: a GeometryInstance's template (when
 /// the file has it), any other geometry itself.
 fn resolved<'g, 'a>(
@@ -849,90 +795,6 @@ mod tests {
         let broken = seq.replace("\"b\", \"CityObjects\"", "\"b\" \"CityObjects\"");
         let error = read_cityjson(broken.as_bytes(), true, None, shift([0.0; 3])).unwrap_err();
         assert_eq!(error.line_column.map(|(l, _)| l), Some(3));
-    }
-
-    /// A town of `objects` one-triangle buildings (more than one piece of objects for each
-    /// core), the boundaries of building `k` written by `boundaries(k)`; its last object
-    /// repeats the id "b1", escaped, so that the later one is the one kept.
-    fn town(objects: usize, boundaries: impl Fn(usize) -> String) -> String {
-        let members: Vec<String> = (0..objects)
-            .map(|k| {
-                format!(
-                    r#""b{k}": {{"type": "Building", "attributes": {{"n": [{k}]}},
-                    "children": ["p{k}"], "geometry": [{{"type": "MultiSurface",
-                    "lod": {lod}, "boundaries": {b}, "semantics": {{"surfaces":
-                    [{{"type": "RoofSurface"}}], "values": [0]}}}}]}}"#,
-                    lod = if k % 2 == 0 { "\"2\"" } else { "2" },
-                    b = boundaries(k)
-                )
-            })
-            .chain([r#""b\u0031": {"type": "BuildingPart", "geometry": []}"#.to_owned()])
-            .collect();
-        format!(
-            r#"{{"type": "CityJSON", "version": "2.0", "transform": {{"scale": [1, 1, 1],
-            "translate": [0, 0, 0]}}, "CityObjects": {{{}}},
-            "vertices": [[0, 0, 0], [1, 0, 0], [0, 1, 0]]}}"#,
-            members.join(",\n")
-        )
-    }
-
-    fn one_triangle(_: usize) -> String {
-        "[[[0, 1, 2]]]".to_owned()
-    }
-
-    /// The reading on all cores against serde's one pass over the whole text.
-    fn same_as_one_pass(text: &str) {
-        let one_pass = serde_json::from_slice::<CityFile>(text.as_bytes());
-        match (read_city_text(text.as_bytes()), one_pass) {
-            (Ok(ours), Ok(serde)) => assert_eq!(format!("{ours:?}"), format!("{serde:?}")),
-            (Err(ours), Err(serde)) => assert_eq!(ours.to_string(), serde.to_string()),
-            (ours, serde) => panic!("{ours:?} against {serde:?}"),
-        }
-    }
-
-    #[test]
-    fn city_objects_read_on_all_cores_as_in_one_pass() {
-        let text = town(2000, one_triangle);
-        assert!(read_on_cores(text.as_bytes()).is_some());
-        same_as_one_pass(&text);
-        let file = read_city_text(text.as_bytes()).unwrap();
-        assert_eq!(file.city_objects.len(), 2000);
-        assert_eq!(file.city_objects["b1"].kind, "BuildingPart");
-    }
-
-    #[test]
-    fn a_fault_in_any_city_object_is_reported_as_one_pass_reports_it() {
-        let text = town(2000, one_triangle);
-        for (from, to) in [
-            // Broken JSON (the first pass stops), a wrong type (an object's reading does).
-            (r#""n": [1200]}"#, r#""n": [1200}"#),
-            (r#""children": ["p1300"]"#, r#""children": "p1300""#),
-            (r#""n": [1900]}"#, r#""n": [1900]}, "geometry": 7"#),
-        ] {
-            let bad = text.replace(from, to);
-            assert_ne!(bad, text);
-            assert!(read_on_cores(bad.as_bytes()).is_none());
-            same_as_one_pass(&bad);
-        }
-    }
-
-    #[test]
-    fn deep_boundaries_are_read_in_one_pass() {
-        let nested = |depth: usize| {
-            move |k: usize| match k {
-                1500 => format!("{}0{}", "[".repeat(depth), "]".repeat(depth)),
-                _ => one_triangle(k),
-            }
-        };
-        // Read alone, an object could nest two lists deeper than serde_json allows it in
-        // its file: at 123 the one pass refuses what the object alone would take.
-        for depth in [100, 123, 124, 130] {
-            let text = town(2000, nested(depth));
-            assert!(read_on_cores(text.as_bytes()).is_none(), "{depth}");
-            same_as_one_pass(&text);
-        }
-        let refused = serde_json::from_str::<CityFile>(&town(2000, nested(123))).unwrap_err();
-        assert!(refused.to_string().contains("recursion limit"), "{refused}");
     }
 
     /// A template (a unit square, a MultiSurface with a wall and a roof triangle, lod 2)

@@ -16,7 +16,6 @@ pub mod cityjson;
 pub mod earth;
 pub mod geojson;
 pub mod grid;
-mod members;
 mod read;
 mod tags;
 
