@@ -78,8 +78,8 @@ pub fn shadow_outlines(site: &Site, towards_sun: &Vector3<f64>) -> Vec<ShadowLin
 fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -> Vec<ShadowLine> {
     let through_grid = every_face.is_none();
     let s = towards_sun.normalize();
-    // (Written so that a direction that is not a number casts nothing either.)
-    if !(s.z > 0.0) {
+    // A direction that is not a number casts nothing either.
+    if s.z.is_nan() || s.z <= 0.0 {
         return Vec::new();
     }
     let silhouettes = silhouettes(&site.faces, &s);
