@@ -771,9 +771,28 @@ mod tests {
     /// from just off the surface (on the side of the sun) towards the sun meets any face.
     fn shaded(site: &Site, p: &Point3<f64>, off: &Vector3<f64>, s: &Vector3<f64>) -> bool {
         let o = p + off * 1e-4;
-        site.faces.iter().any(|f| {
-            crate::visibility::ray_hits_triangle(&o, s, &f.corners).is_some_and(|t| t > 1e-9)
-        })
+        site.faces
+            .iter()
+            .any(|f| ray_meets(&o, s, &f.corners).is_some_and(|t| t > 1e-9))
+    }
+
+    /// How far along the ray from `o` in the direction `d` it meets the triangle, if it
+    /// does: where the ray crosses the triangle's plane (t = n . (a - o) / n . d), that
+    /// point lies on the inner side of all three sides (the same-side test of any geometry
+    /// text). Written here, apart from the crate's ray test (Moeller and Trumbore's), so
+    /// that the shadows are checked against a ray cast that shares nothing with them.
+    fn ray_meets(o: &Point3<f64>, d: &Vector3<f64>, [a, b, c]: &[Point3<f64>; 3]) -> Option<f64> {
+        let n = (b - a).cross(&(c - a));
+        let across = n.dot(d);
+        if across.abs() <= 1e-12 * n.norm() * d.norm() {
+            return None;
+        }
+        let t = n.dot(&(a - o)) / across;
+        let p = o + d * t;
+        let inside = [(a, b), (b, c), (c, a)]
+            .iter()
+            .all(|(u, v)| (*v - *u).cross(&(p - *u)).dot(&n) >= 0.0);
+        inside.then_some(t)
     }
 
     /// Blocks, a round tower and a vault: what the sun's view tests cast over.
