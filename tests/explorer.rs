@@ -600,5 +600,9 @@ fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
         "{statuses:?}"
     );
     assert!(statuses.contains(&200));
+    // Twelve asked within a few milliseconds, each render far longer than that (the test
+    // profile is not optimised), and one waiting place for the pane: most are replaced.
+    let replaced = statuses.iter().filter(|s| **s == 204).count();
+    assert!(replaced >= 6, "{statuses:?}");
     Arc::try_unwrap(explorer).ok().unwrap().stop();
 }
