@@ -343,3 +343,81 @@ fn on_sloping_ground_a_poles_shadow_falls_on_the_slope() {
             .all(|p| !p.iter().all(|c| c.z.abs() < 1e-9 && c.y.abs() > 0.1)));
     }
 }
+
+#[test]
+fn the_suns_mark_and_its_local_hour_land_where_its_azimuth_and_elevation_put_them() {
+    // The equirectangular convention of the crate docs, written out here: x = (r + 180) /
+    // 360 W, with r the sun's azimuth less the standpoint's heading (30 degrees), and
+    // y = (90 - e) / 180 H, in pixel-edge coordinates.
+    let site = pole_scene(
+        0.0,
+        r#"sun: (date: "2026-06-21", time: "15:00", seasons: true),"#,
+    );
+    let (width, height) = (1024u32, 512u32);
+    let settings = RenderSettings {
+        width,
+        height,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let sky = Sky::of_site(&site).unwrap();
+    let pixel_of = |time: &str| {
+        let sun = sky
+            .at(&LocalMoment::parse("2026-06-21", time).unwrap())
+            .unwrap();
+        let r = (sun.place.azimuth_deg - 30.0 + 540.0).rem_euclid(360.0) - 180.0;
+        (
+            (r + 180.0) / 360.0 * width as f64,
+            (90.0 - sun.place.elevation_deg) / 180.0 * height as f64,
+        )
+    };
+    // The mark is drawn round the sun's place: the middle of its box.
+    let mark = render
+        .drawing
+        .layers
+        .iter()
+        .find(|l| l.name == "sun")
+        .expect("a sun layer");
+    let points = mark.lines.points();
+    let (lo_x, hi_x) = points.iter().fold((f64::MAX, f64::MIN), |(lo, hi), p| {
+        (lo.min(p.x), hi.max(p.x))
+    });
+    let (lo_y, hi_y) = points.iter().fold((f64::MAX, f64::MIN), |(lo, hi), p| {
+        (lo.min(p.y), hi.max(p.y))
+    });
+    let (x, y) = pixel_of("15:00");
+    assert!(
+        (0.5 * (lo_x + hi_x) - x).abs() < 0.5,
+        "{lo_x}..{hi_x} against {x}"
+    );
+    assert!(
+        (0.5 * (lo_y + hi_y) - y).abs() < 0.5,
+        "{lo_y}..{hi_y} against {y}"
+    );
+    // The hour labels say local time (Zurich in summer: UT + 2): the label "15" stands at
+    // the sun's place at 15:00 local, over its tick (above or below it, or beside it by
+    // about a cap height); at 13:00 local the sun stood tens of pixels away.
+    let label_x = |words: &str| {
+        render
+            .drawing
+            .layers
+            .iter()
+            .filter_map(|l| l.text.as_ref())
+            .find(|t| t.words == words)
+            .map(|t| t.at.x)
+            .unwrap_or_else(|| panic!("no label {words:?}"))
+    };
+    let text = 0.04 * height as f64;
+    assert!(
+        (label_x("15") - x).abs() < 2.0 * text,
+        "{} against {x}",
+        label_x("15")
+    );
+    let (x13, _) = pixel_of("13:00");
+    assert!((x13 - x).abs() > 4.0 * text, "{x13} against {x}");
+    assert!(
+        (label_x("13") - x13).abs() < 2.0 * text,
+        "{} against {x13}",
+        label_x("13")
+    );
+}
