@@ -1049,4 +1049,25 @@ mod tests {
         road("(points: [(0, 0), (10, 0), (10, 10), (20, 10)], width: 2, corner_radius: 5)")
             .unwrap();
     }
+
+    #[test]
+    fn a_crossing_has_as_many_whole_stripes_as_fit_centred_on_the_carriageway() {
+        // Worked by hand: a 7 m carriageway (3.5 m each side), stripes and gaps of 0.5 m:
+        // floor((7 + 0.5) / 1) = 7 stripes using 6.5 m, so 0.25 m clear at each kerb, the
+        // first from -3.25 to -2.75 and the middle one across the centreline.
+        let stripes = stripe_offsets(3.5, 0.5, 0.5);
+        assert_eq!(stripes.len(), 7);
+        for (k, &(from, to)) in stripes.iter().enumerate() {
+            let expected = -3.25 + k as f64;
+            assert!((from - expected).abs() < 1e-12 && (to - from - 0.5).abs() < 1e-12);
+        }
+        assert!((stripes[3].0 + stripes[3].1).abs() < 1e-12);
+        // Stripes of 0.6 m with gaps of 0.4 m on 6 m: floor(6.4 / 1) = 6 stripes using
+        // 5.6 m, 0.2 m clear each side.
+        let stripes = stripe_offsets(3.0, 0.6, 0.4);
+        assert_eq!(stripes.len(), 6);
+        assert!((stripes[0].0 + 2.8).abs() < 1e-12 && (stripes[5].1 - 2.8).abs() < 1e-12);
+        // A carriageway narrower than one stripe has none.
+        assert!(stripe_offsets(0.2, 0.5, 0.5).is_empty());
+    }
 }
