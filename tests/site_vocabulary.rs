@@ -397,6 +397,55 @@ fn equilateral_pointed_window_head_apex() {
     }
 }
 
+/// Shaped heads and round windows on a `Footprint`'s sides, either way round: a
+/// semicircular head of width s is a half circle of radius s / 2 whose crown is at the
+/// opening's height, its centre on the springing line s / 2 lower (common practice); a
+/// round window is a circle of its diameter about its centre, on the side's plane.
+#[test]
+fn a_footprints_sides_take_shaped_heads_and_round_windows() {
+    let (width, sill, height, diameter, centre) = (1.4, 1.0, 2.6, 1.2, 4.5);
+    // An L-shaped plan, counter-clockwise and then clockwise: side 1 runs along y = 0,
+    // from x = 0 to 10 and from 10 to 0.
+    // The round window's centre is `along` 2 m from the side's start: x = 2, then x = 8.
+    for (points, window_x) in [
+        ("[(0, 0), (10, 0), (10, 8), (4, 8), (4, 4), (0, 4)]", 2.0),
+        ("[(10, 0), (0, 0), (0, 4), (4, 4), (4, 8), (10, 8)]", 8.0),
+    ] {
+        let site = scene_with(&format!(
+            "Footprint(points: {points}, height: 7, openings: [(wall: Side(1), width: {width}, \
+             height: {height}, sill: {sill}, head: Semicircular)], round_windows: [(wall: \
+             Side(1), along: 2, centre: {centre}, diameter: {diameter})])"
+        ));
+        let mut half_circles = 0;
+        let mut circles = 0;
+        for edge in &site.edges {
+            if let SiteCurve::Ellipse {
+                centre: c, u, v, ..
+            } = edge.curve
+            {
+                // Every curve stands in the side's plane y = 0.
+                assert_near(c.y, 0.0, 1e-12);
+                assert_near(u.y, 0.0, 1e-12);
+                assert_near(v.y, 0.0, 1e-12);
+                if (u.norm() - width / 2.0).abs() < 1e-9 {
+                    assert_near(c.z, sill + height - width / 2.0, 1e-12);
+                    half_circles += 1;
+                } else {
+                    assert_near(u.norm(), diameter / 2.0, 1e-12);
+                    assert_near(c.z, centre, 1e-12);
+                    assert_near(c.x, window_x, 1e-12);
+                    circles += 1;
+                }
+            }
+        }
+        assert!(
+            half_circles >= 1 && circles >= 1,
+            "{points}: {half_circles} {circles}"
+        );
+        assert_near(highest_curve_point(&site), centre + diameter / 2.0, 1e-9);
+    }
+}
+
 // --- Curved items flattened from random standpoints --------------------------------------
 
 const WIDTH: f64 = 2048.0;
