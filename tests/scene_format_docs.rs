@@ -112,7 +112,8 @@ fn every_kind_of_item_has_a_section() {
 #[test]
 fn example_files_and_bundled_scenes_read_and_draw() {
     let mut files: Vec<PathBuf> = Vec::new();
-    for folder in ["docs/examples", "scenes"] {
+    // The open-data demos (a GeoJSON street and the same street as a CityJSON model) too.
+    for folder in ["docs/examples", "scenes", "scenes/opendata"] {
         for entry in std::fs::read_dir(root().join(folder)).unwrap() {
             let path = entry.unwrap().path();
             if path.extension().is_some_and(|e| e == "ron") {
@@ -121,6 +122,12 @@ fn example_files_and_bundled_scenes_read_and_draw() {
         }
     }
     assert!(files.len() >= 3, "{files:?}");
+    assert!(
+        files
+            .iter()
+            .any(|f| f.ends_with("scenes/opendata/saltmarsh-row-city.ron")),
+        "{files:?}"
+    );
     for path in files {
         let site = load_scene(&path).unwrap_or_else(|e| panic!("{e}"));
         draws(&site, &path.display().to_string());
