@@ -316,3 +316,47 @@ fn a_mapped_street_that_cannot_be_joined_is_drawn_alone_with_a_warning() {
         "the lane is still drawn"
     );
 }
+
+#[test]
+fn an_outline_holding_a_building_part_is_drawn_by_its_parts_alone() {
+    // The simple 3D buildings convention (common practice in mapping): a `building`
+    // outline that holds a `building:part` is left out, its parts drawn instead; an
+    // outline with no part inside stays. Here an outline about 22 m square holds a part
+    // about 11 m square in its middle, and a second outline, 220 m east, holds none.
+    let square = |lon: f64, lat: f64, half: f64| {
+        format!(
+            "[[[{a}, {b}], [{c}, {b}], [{c}, {d}], [{a}, {d}], [{a}, {b}]]]",
+            a = lon - half,
+            b = lat - half,
+            c = lon + half,
+            d = lat + half
+        )
+    };
+    let feature = |tags: &str, rings: String| {
+        format!(
+            r#"{{"type": "Feature", "properties": {{{tags}}}, "geometry": {{"type": "Polygon", "coordinates": {rings}}}}}"#
+        )
+    };
+    let text = format!(
+        r#"{{"type": "FeatureCollection", "features": [{}, {}, {}]}}"#,
+        feature(r#""building": "yes""#, square(0.0, 0.0, 0.0001)),
+        feature(r#""building:part": "yes""#, square(0.0, 0.0, 0.00005)),
+        feature(r#""building": "yes""#, square(0.002, 0.0, 0.0001)),
+    );
+    let frame = LocalFrame::new(0.0, 0.0, 0.0, 0.0);
+    let found = buildings(&text, &frame);
+    assert_eq!(found.len(), 2, "{found:?}");
+    // Sizes in metres: 0.0001 degree is about 11.1 m at the equator.
+    let width = |rings: &Vec<Vec<nalgebra::Vector2<f64>>>| {
+        let xs = rings[0].iter().map(|p| p.x);
+        xs.clone().fold(f64::MIN, f64::max) - xs.fold(f64::MAX, f64::min)
+    };
+    let mut widths: Vec<f64> = found.iter().map(width).collect();
+    widths.sort_by(f64::total_cmp);
+    assert_near(widths[0], 11.13, 0.05);
+    assert_near(widths[1], 22.26, 0.05);
+    // The one left whole is the far one: its middle is about 222.6 m east.
+    let far_one = found.iter().find(|r| width(r) > 20.0).unwrap();
+    let middle = far_one[0].iter().map(|p| p.x).sum::<f64>() / far_one[0].len() as f64;
+    assert!(middle > 200.0, "{middle}");
+}
