@@ -56,4 +56,6 @@ pub use site::{
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};
-pub use when::{offset_in, parse_date, parse_time, LocalMoment, SunSpec, YEARS};
+pub use when::{
+    offset_in, offset_seconds_text, parse_date, parse_time, LocalMoment, SunSpec, YEARS,
+};

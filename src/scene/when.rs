@@ -225,7 +225,8 @@ fn offset_text(offset: Offset) -> String {
     offset_seconds_text(offset.seconds())
 }
 
-fn offset_seconds_text(seconds: i32) -> String {
+/// An offset from UT in seconds as it is written, `+HH:MM` or `-HH:MM`.
+pub fn offset_seconds_text(seconds: i32) -> String {
     let sign = if seconds < 0 { '-' } else { '+' };
     let s = seconds.unsigned_abs();
     format!("{sign}{:02}:{:02}", s / 3600, s / 60 % 60)

@@ -10,7 +10,7 @@ use super::position::estimated_delta_t;
 use super::CAUTIONS;
 use crate::cores;
 use crate::error::{Error, Result};
-use crate::scene::{label_matches, ItemId, Site};
+use crate::scene::{label_matches, offset_seconds_text, ItemId, Site};
 use crate::visibility::Bvh;
 use jiff::civil::Date;
 
@@ -224,14 +224,11 @@ fn printed_angles(sky: &Sky, sample: &SunSample) -> [f64; 3] {
 }
 
 fn row(sky: &Sky, sample: &SunSample, event: &'static str, detail: String) -> SunRow {
-    let offset = sky.clock.offset_at(sample.instant_s);
-    let sign = if offset < 0 { '-' } else { '+' };
-    let o = offset.unsigned_abs();
     let [azimuth, plan_azimuth, elevation] = printed_angles(sky, sample);
     SunRow {
         date: sample.local.date(),
         time: sample.local.strftime("%H:%M:%S").to_string(),
-        offset: format!("{sign}{:02}:{:02}", o / 3600, o / 60 % 60),
+        offset: offset_seconds_text(sky.clock.offset_at(sample.instant_s)),
         event,
         azimuth_deg: Some(azimuth),
         plan_azimuth_deg: Some(plan_azimuth),
