@@ -34,7 +34,7 @@
 //!   own edges are listed as (low, high, face) and sorted; an edge of one face is a boundary,
 //!   of three or more non-manifold, both drawn; of two, a crease (drawn) when their normals
 //!   (Newell's method, orientation mended where neighbours are wound inconsistently) differ by
-//!   more than the crease angle (default 30 degrees), otherwise a silhouette candidate unless
+//!   more than the crease angle (default 20 degrees, [`DEFAULT_CREASE_DEG`]), otherwise a silhouette candidate unless
 //!   the faces are coplanar (within 1e-6 rad). Triangulation diagonals are not face edges of
 //!   the polygon, and between triangles they are coplanar: never drawn. Silhouettes are chosen
 //!   per standpoint (`SilhouetteEdge::is_outline_from`: one face's plane has the eye in front,
@@ -331,7 +331,8 @@ fn add_mesh_on_cores(
         faces: &welded.faces,
         corners: &welded.corners,
         points: &points,
-        crease: placement.crease_deg.to_radians(),
+        coplanar: Bend::of_angle(COPLANAR),
+        crease: Bend::of_angle(placement.crease_deg.to_radians()),
     };
     // Room for every edge at once (each distinct edge is at least one face edge): what is
     // never written costs address space, not memory, and nothing is copied as they grow.
@@ -694,13 +695,15 @@ impl FaceWork<'_> {
 }
 
 /// What classing the edges needs: the faces after welding, their corners, the welded
-/// positions, and the crease angle (radians).
+/// positions, and the two angles that class them: below `coplanar` one plane, above
+/// `crease` a hard edge.
 struct EdgeClasses<'a> {
     obj: &'a ObjFile,
     faces: &'a [MeshFace],
     corners: &'a [(u32, u32)],
     points: &'a [Point3<f64>],
-    crease: f64,
+    coplanar: Bend,
+    crease: Bend,
 }
 
 impl EdgeClasses<'_> {
@@ -744,9 +747,8 @@ impl EdgeClasses<'_> {
                             1.0
                         };
                         let n2 = f2.normal * flip;
-                        // atan2(|a x b|, a . b): full precision near 0 and pi, unlike acos.
-                        let angle = n1.cross(&n2).norm().atan2(n1.dot(&n2));
-                        if angle <= COPLANAR {
+                        let bend = Bend::between(&n1, &n2);
+                        if !bend.exceeds(&self.coplanar) {
                             // A triangulation diagonal or a subdivided flat wall: never drawn.
                         } else {
                             let said = file_says_smooth(
@@ -758,7 +760,7 @@ impl EdgeClasses<'_> {
                             if said.is_some() {
                                 stats.by_file += 1;
                             }
-                            if !said.unwrap_or(angle <= self.crease) {
+                            if !said.unwrap_or_else(|| !bend.exceeds(&self.crease)) {
                                 stats.creases += 1;
                                 draw(a as u32, b, item);
                             } else {
@@ -779,6 +781,39 @@ impl EdgeClasses<'_> {
                 }
             }
         }
+    }
+}
+
+/// An angle between 0 and pi as its sine and cosine, up to a common positive factor: the
+/// angle between two faces' normals is (|n1 x n2|, n1 . n2), which keeps full precision near
+/// 0 and pi (unlike acos of the dot product) and, compared as below, needs no atan2 for
+/// each of a million edges.
+#[derive(Clone, Copy, Debug)]
+struct Bend {
+    sin: f64,
+    cos: f64,
+}
+
+impl Bend {
+    fn between(n1: &Vector3<f64>, n2: &Vector3<f64>) -> Bend {
+        Bend {
+            sin: n1.cross(n2).norm(),
+            cos: n1.dot(n2),
+        }
+    }
+
+    fn of_angle(radians: f64) -> Bend {
+        let (sin, cos) = radians.sin_cos();
+        Bend { sin, cos }
+    }
+
+    /// Whether this angle is greater than `limit`. Both lie in [0, pi], in the upper half
+    /// of the plane, so this one is the greater when it lies anticlockwise of the limit:
+    /// their cross product is positive; zero, the two point the same way (equal) or
+    /// opposite ways (pi against 0: greater when this one is pi).
+    fn exceeds(&self, limit: &Bend) -> bool {
+        let cross = limit.cos * self.sin - limit.sin * self.cos;
+        cross > 0.0 || (cross == 0.0 && self.cos < 0.0 && limit.cos > 0.0)
     }
 }
 
@@ -1104,6 +1139,7 @@ fn newell_normal(
 mod tests {
     use super::*;
     use crate::scene::parse_obj;
+    use std::f64::consts::{FRAC_PI_2, PI};
     use std::fmt::Write;
     use std::path::Path;
 
@@ -1218,6 +1254,44 @@ mod tests {
                 "generator at {angle}, {off} from the tangent"
             );
         }
+    }
+
+    #[test]
+    fn a_bend_exceeds_a_limit_as_its_angle_does() {
+        // Against atan2 (the angle itself) over angles from 0 to pi, each as the sine and
+        // cosine of unit normals rotated by it, and scaled as unnormalised normals are.
+        let angles = [
+            0.0, 1e-9, 1e-6, 2e-6, 0.1, 0.35, 1.0, 1.5, FRAC_PI_2, 2.0, 3.0, PI,
+        ];
+        for &theta in &angles {
+            for &limit in angles.iter().filter(|&&limit| limit != theta) {
+                let n1 = Vector3::new(0.0, 0.0, 1.0);
+                let n2 = Vector3::new(theta.sin(), 0.0, theta.cos()) * 0.999_999_999;
+                let bend = Bend::between(&n1, &n2);
+                let measured = bend.sin.atan2(bend.cos);
+                assert_eq!(
+                    bend.exceeds(&Bend::of_angle(limit)),
+                    measured > limit,
+                    "{theta} against {limit}"
+                );
+            }
+        }
+        // An angle equal to the limit does not exceed it (a crease at exactly the crease
+        // angle stays smooth, as the angle compared with `<=` had it).
+        for &theta in &angles {
+            let bend = Bend::of_angle(theta);
+            assert!(!bend.exceeds(&bend), "{theta}");
+        }
+        // Pi against a limit of 0, though the two are on one line: greater; and not the
+        // other way round.
+        let (pi, zero) = (
+            Bend {
+                sin: 0.0,
+                cos: -1.0,
+            },
+            Bend { sin: 0.0, cos: 1.0 },
+        );
+        assert!(pi.exceeds(&zero) && !zero.exceeds(&pi) && !zero.exceeds(&zero));
     }
 
     #[test]
