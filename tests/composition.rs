@@ -548,6 +548,92 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
     assert_ne!(std::fs::read(&output).unwrap(), second_png);
 }
 
+/// `watch` with a model: a scene that names one renders again when the model is saved
+/// (the scene itself untouched), keeps its output while the model is broken; and a model
+/// given directly is watched the same way.
+#[test]
+fn watch_renders_again_when_a_model_changes() {
+    let dir = scratch("watch-model");
+    let cube = |x: f64| {
+        let mut text = String::new();
+        for (a, b, c) in [(0, 0, 0), (2, 0, 0), (2, 2, 0), (0, 2, 0)]
+            .into_iter()
+            .chain([(0, 0, 2), (2, 0, 2), (2, 2, 2), (0, 2, 2)])
+        {
+            text.push_str(&format!("v {} {b} {c}\n", a as f64 + x));
+        }
+        text + "f -8 -5 -6 -7\nf -4 -3 -2 -1\nf -8 -7 -3 -4\nf -7 -6 -2 -3\nf -6 -5 -1 -2\nf -5 -8 -4 -1\n"
+    };
+    let model = dir.0.join("shed.obj");
+    save(&model, cube(0.0));
+    save(
+        &dir.0.join("yard.ron"),
+        "Scene(standpoints: [(name: \"gate\", x: 1, y: -8)], items: [\n\
+         Model(file: \"shed.obj\", at: (0, 0, 0), up: Z)])",
+    );
+    let start = |args: &[&str]| {
+        let mut child = Child(
+            dir.command()
+                .args(args)
+                .args(["--size", "512x256", "--interval", "20"])
+                .stdout(Stdio::null())
+                .stderr(Stdio::piped())
+                .spawn()
+                .unwrap(),
+        );
+        let stderr = child.0.stderr.take().unwrap();
+        let (send, receive) = mpsc::channel();
+        std::thread::spawn(move || {
+            for line in BufReader::new(stderr).lines().map_while(Result::ok) {
+                if send.send(line).is_err() {
+                    break;
+                }
+            }
+        });
+        (child, Lines(receive, Vec::new()))
+    };
+    let timeout = Duration::from_secs(30);
+    let output = dir.0.join("out.png");
+    {
+        let (_child, mut lines) = start(&["watch", "yard.ron", "-o", "out.png"]);
+        let first = lines.wait_for("first render", timeout);
+        assert!(first.contains("12 edges"), "{first}");
+        let first_png = std::fs::read(&output).unwrap();
+        // A second box in the model: the scene is not touched, yet it renders again.
+        save(&model, cube(0.0) + &cube(5.0));
+        let changed = lines.wait_for("shed.obj changed", timeout);
+        assert!(changed.contains("edges 12 -> 24"), "{changed}");
+        let second_png = std::fs::read(&output).unwrap();
+        assert_ne!(first_png, second_png);
+        // A broken model: the error names the model's line, the output stays.
+        save(&model, cube(0.0) + "f 1 2 99\n");
+        let error = lines.wait_for("error", timeout);
+        assert!(
+            error.contains("shed.obj") && error.contains(":15"),
+            "{error}"
+        );
+        lines.wait_for("the last good output is kept", timeout);
+        assert_eq!(std::fs::read(&output).unwrap(), second_png);
+    }
+    // The model given directly.
+    save(&model, cube(0.0));
+    let (_child, mut lines) = start(&[
+        "watch",
+        "shed.obj",
+        "--up",
+        "z",
+        "--at",
+        "1,-8",
+        "-o",
+        "direct.png",
+    ]);
+    let first = lines.wait_for("first render", timeout);
+    assert!(first.contains("12 edges"), "{first}");
+    save(&model, cube(0.0) + &cube(5.0));
+    let changed = lines.wait_for("shed.obj changed", timeout);
+    assert!(changed.contains("edges 12 -> 24"), "{changed}");
+}
+
 #[test]
 fn sheet_command_is_quiet_when_piped() {
     let dir = scratch("sheet");

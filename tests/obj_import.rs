@@ -5,6 +5,9 @@
 //! converted to OBJ by tests/fixtures/meshes/convert_npm_mesh.py (each file's header names
 //! its source).
 
+mod common;
+
+use common::{succeeds, Scratch};
 use nalgebra::Point3;
 use pansite::render::{draw, RenderSettings};
 use pansite::scene::{load_obj, parse_obj, MeshPlacement, MeshStats, Site, Standpoint};
@@ -365,4 +368,102 @@ fn what_the_default_crease_angle_draws_on_the_bundled_meshes() {
     // teapot 246 -> 467 of 1,520); the cylinder's 64 sides (5.6 degrees) stay smooth and its
     // rims (90 degrees) drawn. Files that carry smoothing groups or normals are not touched.
     assert_eq!(counts, [(357, 841), (246, 467), (128, 128)]);
+}
+
+/// A box 2 m wide, 3 m deep and 4 m high, Z up, its first corner at the origin: 8 corners,
+/// 6 quads wound outwards.
+const BOX_Z_UP: &str = "v 0 0 0\nv 2 0 0\nv 2 3 0\nv 0 3 0\nv 0 0 4\nv 2 0 4\nv 2 3 4\nv 0 3 4\n\
+    f 1 4 3 2\nf 5 6 7 8\nf 1 2 6 5\nf 2 3 7 6\nf 3 4 8 7\nf 4 1 5 8\n";
+
+/// The corners `angles` lists, as (x, y, z, azimuth, elevation, distance) read from its CSV.
+fn angles_rows(csv: &str) -> Vec<[f64; 6]> {
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let column = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    let wanted = ["x", "y", "z", "azimuth", "elevation", "distance"].map(column);
+    lines
+        .map(|line| {
+            let cells: Vec<&str> = line.split(',').collect();
+            wanted.map(|k| cells[k].parse::<f64>().unwrap())
+        })
+        .collect()
+}
+
+/// Where each corner must lie from an eye, worked here by plane trigonometry (common
+/// practice: azimuth clockwise from north, elevation above the level, as the crate docs
+/// state): sorted rows of (x, y, z, azimuth, elevation, distance).
+fn expected_rows(corners: &[[f64; 3]], eye: [f64; 3]) -> Vec<[f64; 6]> {
+    let mut rows: Vec<[f64; 6]> = corners
+        .iter()
+        .map(|&[x, y, z]| {
+            let (dx, dy, dz) = (x - eye[0], y - eye[1], z - eye[2]);
+            let level = dx.hypot(dy);
+            let azimuth = dx.atan2(dy).to_degrees().rem_euclid(360.0);
+            let elevation = dz.atan2(level).to_degrees();
+            [x, y, z, azimuth, elevation, level.hypot(dz)]
+        })
+        .collect();
+    rows.sort_by(|a, b| a.partial_cmp(b).unwrap());
+    rows
+}
+
+fn assert_rows_match(mut found: Vec<[f64; 6]>, expected: &[[f64; 6]], what: &str) {
+    found.sort_by(|a, b| a.partial_cmp(b).unwrap());
+    assert_eq!(found.len(), expected.len(), "{what}: {found:?}");
+    for (f, e) in found.iter().zip(expected) {
+        // The table prints millimetres and thousandths of a degree.
+        for k in 0..6 {
+            assert!(
+                (f[k] - e[k]).abs() <= 6e-4,
+                "{what}: found {f:?}, expected {e:?}"
+            );
+        }
+    }
+}
+
+/// `angles` on a model given directly and on a model a scene names (moved and turned): every
+/// corner of the box, where the trigonometry above puts it.
+#[test]
+fn angles_lists_the_corners_of_a_model_given_directly_or_named_by_a_scene() {
+    let dir = Scratch::new("obj-angles");
+    dir.write("box.obj", BOX_Z_UP);
+    let corners: Vec<[f64; 3]> = BOX_Z_UP
+        .lines()
+        .filter_map(|l| l.strip_prefix("v "))
+        .map(|v| {
+            let c: Vec<f64> = v.split(' ').map(|w| w.parse().unwrap()).collect();
+            [c[0], c[1], c[2]]
+        })
+        .collect();
+    // Given directly, Z up, the eye 1.6 m over (10, 1) (the default eye height).
+    let out = succeeds(
+        &dir,
+        &[
+            "angles", "box.obj", "--up", "z", "--at", "10,1", "--format", "csv",
+        ],
+    );
+    let csv = String::from_utf8_lossy(&out.stdout);
+    assert_rows_match(
+        angles_rows(&csv),
+        &expected_rows(&corners, [10.0, 1.0, 1.6]),
+        "direct",
+    );
+    // Named by a scene: turned 90 degrees clockwise seen from above ((x, y) -> (y, -x)) and
+    // moved to (5, 20, 1); the eye 1.7 m over (-6, 12).
+    dir.write(
+        "yard.ron",
+        "Scene(standpoints: [(name: \"gate\", x: -6, y: 12, eye_height: 1.7)], items: [\n\
+         Model(file: \"box.obj\", at: (5, 20, 1), turn: 90, up: Z)])",
+    );
+    let moved: Vec<[f64; 3]> = corners
+        .iter()
+        .map(|&[x, y, z]| [5.0 + y, 20.0 - x, 1.0 + z])
+        .collect();
+    let out = succeeds(&dir, &["angles", "yard.ron", "--format", "csv"]);
+    let csv = String::from_utf8_lossy(&out.stdout);
+    assert_rows_match(
+        angles_rows(&csv),
+        &expected_rows(&moved, [-6.0, 12.0, 1.7]),
+        "named",
+    );
 }
