@@ -340,3 +340,69 @@ fn render_draws_each_line_where_the_pose_sends_it() {
     }
     assert!(controls > 100, "only {controls} control points were clear");
 }
+
+/// `render` with `--at` and `--eye-height` (and a heading): every sampled point of every
+/// line inked where the eye the options give would see it (predicted without the view-frame
+/// code), and nothing where the scene's own eye would have drawn it, clear of those.
+#[test]
+fn render_draws_each_line_from_the_eye_the_options_put_there() {
+    let dir = Scratch::new("conventions-render-eye");
+    dir.write("scene.ron", LINES);
+    let (w, h) = (1440.0, 720.0);
+    let samples = |eye: [f64; 3], pose: (f64, f64, f64)| -> Vec<(f64, f64)> {
+        line_ends()
+            .iter()
+            .flat_map(|(a, b)| {
+                (0..=10).map(move |k| {
+                    let t = k as f64 / 10.0;
+                    [0, 1, 2].map(|i| a[i] + t * (b[i] - a[i]))
+                })
+            })
+            .map(|p| predicted_pixel(eye, pose, p, w, h))
+            .collect()
+    };
+    let mut controls = 0;
+    for (at, eye_height, heading) in [("3,-2", 2.5, 30.0_f64), ("-1.5,4", 0.9, -75.0)] {
+        let xy: Vec<f64> = at.split(',').map(|v| v.parse().unwrap()).collect();
+        let eye = [xy[0], xy[1], eye_height];
+        succeeds(
+            &dir,
+            &[
+                "render",
+                "scene.ron",
+                "-o",
+                "out.png",
+                "--bare",
+                "--size",
+                "1440x720",
+                "--at",
+                at,
+                "--eye-height",
+                &eye_height.to_string(),
+                "--heading",
+                &heading.to_string(),
+                "-q",
+            ],
+        );
+        let (width, height, grey) = read_png_grey(&std::fs::read(dir.path("out.png")).unwrap());
+        let pose = (heading.rem_euclid(360.0), 0.0, 0.0);
+        let predicted = samples(eye, pose);
+        for p in &predicted {
+            assert!(
+                darkest(&grey, width, height, *p, 1.5) < 128,
+                "--at {at} --eye-height {eye_height}: no ink near the predicted {p:?}"
+            );
+        }
+        // From the scene's own standpoint (x 0, y 0, eye 1.5 m), with the same heading.
+        for q in samples([0.0, 0.0, 1.5], pose) {
+            if predicted.iter().all(|p| (p.0 - q.0).hypot(p.1 - q.1) > 6.0) {
+                assert!(
+                    darkest(&grey, width, height, q, 1.5) > 200,
+                    "--at {at}: ink at {q:?}, where the scene's own eye would draw"
+                );
+                controls += 1;
+            }
+        }
+    }
+    assert!(controls > 20, "only {controls} control points were clear");
+}
