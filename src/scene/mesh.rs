@@ -241,8 +241,8 @@ fn add_mesh_on_cores(
         used[i as usize] = true;
     }
     let (weld, vertices) = weld(&positions, &used, two_cores);
-    let points = representative(&weld, &positions, vertices);
-    drop((positions, used));
+    drop(used);
+    let points = representatives(positions, &weld, vertices);
     let first_item = site.items.len() as u32;
     // The items first, in the order the faces first use them (a face of no area makes
     // none), so that the faces can then be cut up on two cores.
@@ -1097,17 +1097,24 @@ fn weld(positions: &[Point3<f64>], used: &[bool], two_cores: bool) -> (Vec<u32>,
     (weld, count as usize)
 }
 
-/// One position for each welded vertex (the first that welded into it).
-fn representative(weld: &[u32], positions: &[Point3<f64>], count: usize) -> Vec<Point3<f64>> {
-    let mut out = vec![Point3::origin(); count];
-    let mut seen = vec![false; count];
-    for (i, &w) in weld.iter().enumerate() {
-        if !seen[w as usize] {
-            seen[w as usize] = true;
-            out[w as usize] = positions[i];
+/// One position for each welded vertex (the first that welded into it), in the positions'
+/// own list: vertices are numbered in order of first appearance, so vertex `k`'s first
+/// position lies at or after index `k`, and moving each down in one pass overwrites only
+/// positions already read.
+fn representatives(
+    mut positions: Vec<Point3<f64>>,
+    weld: &[u32],
+    count: usize,
+) -> Vec<Point3<f64>> {
+    let mut next = 0;
+    for i in 0..positions.len() {
+        if weld[i] as usize == next {
+            positions[next] = positions[i];
+            next += 1;
         }
     }
-    out
+    positions.truncate(count);
+    positions
 }
 
 /// The unit normal of a polygon by Newell's method, `None` for a polygon of no area (its
@@ -1254,6 +1261,17 @@ mod tests {
                 "generator at {angle}, {off} from the tangent"
             );
         }
+    }
+
+    #[test]
+    fn each_vertex_keeps_the_first_position_welded_into_it() {
+        let p = |x: f64| Point3::new(x, 0.0, 0.0);
+        // Positions 0 and 2 weld into vertex 0, 3 and 4 into vertex 2; 1 is vertex 1.
+        let positions = vec![p(0.0), p(1.0), p(0.1), p(3.0), p(3.1)];
+        let kept = representatives(positions, &[0, 1, 0, 2, 2], 3);
+        assert_eq!(kept, vec![p(0.0), p(1.0), p(3.0)]);
+        assert_eq!(representatives(vec![p(5.0)], &[0], 1), vec![p(5.0)]);
+        assert!(representatives(Vec::new(), &[], 0).is_empty());
     }
 
     #[test]
