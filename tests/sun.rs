@@ -1,8 +1,9 @@
 //! The sun and shadows through the library's public face: scenes with a `location` and a
 //! `sun` block, drawn and listed.
 
+mod common;
 use pansite::aids::{angle_table, TableChoice};
-use pansite::plane::Equirect;
+use pansite::plane::{Equirect, ImagePoint};
 use pansite::render::{draw, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Site};
 use pansite::sun::Sky;
@@ -420,4 +421,158 @@ fn the_suns_mark_and_its_local_hour_land_where_its_azimuth_and_elevation_put_the
         "{} against {x13}",
         label_x("13")
     );
+}
+
+/// The sun's apparent place by an algorithm of its own, for the paths: the Plataforma
+/// Solar de Almeria's (Blanco-Muriel et al., "Computing the solar vector", Solar Energy
+/// 70(5), 2001, about half a minute of arc), through the `spa` crate, with the
+/// refraction of Saemundsson's formula (Meeus, "Astronomical Algorithms", 2nd ed., eq.
+/// 16.4, from memory) in the standard atmosphere at sea level (1013.25 hPa, 15 C, ICAO Doc
+/// 7488). Returns (azimuth, elevation) in degrees.
+fn psa_sun(unix_s: i64, latitude: f64, longitude: f64) -> (f64, f64) {
+    use chrono::TimeZone;
+    let utc = chrono::Utc.timestamp_opt(unix_s, 0).unwrap();
+    let sun = spa::solar_position::<spa::StdFloatOps>(utc, latitude, longitude).unwrap();
+    let e = 90.0 - sun.zenith_angle;
+    let air = (1013.25 / 1010.0) * (283.0 / (273.0 + 15.0));
+    let refraction_arcmin = air * 1.02 / (e + 10.3 / (e + 5.11)).to_radians().tan();
+    (sun.azimuth, e + refraction_arcmin / 60.0)
+}
+
+/// The pixel of an azimuth and elevation by the crate docs' convention, written out:
+/// x = (r + 180) / 360 W with r the azimuth less the heading, y = (90 - e) / 180 H.
+fn pixel(azimuth: f64, elevation: f64, heading: f64, width: f64, height: f64) -> (f64, f64) {
+    let r = (azimuth - heading + 540.0).rem_euclid(360.0) - 180.0;
+    (
+        (r + 180.0) / 360.0 * width,
+        (90.0 - elevation) / 180.0 * height,
+    )
+}
+
+/// The lines of the drawing's layer `name`.
+fn layer_lines<'a>(render: &'a pansite::render::Render, name: &str) -> Vec<&'a [ImagePoint]> {
+    render
+        .drawing
+        .layers
+        .iter()
+        .filter(|l| l.name == name)
+        .flat_map(|l| l.lines.iter())
+        .collect()
+}
+
+#[test]
+fn the_days_path_lies_where_another_solar_algorithm_puts_the_sun() {
+    // The June solstice at the pole's square (47.3 N, 8.1 E; Zurich keeps UT + 2 in summer,
+    // Directive 2000/84/EC), seen with the heading 200 so that the seam (azimuth 20) lies
+    // where the June sun never is by day there.
+    let mut site = pole_scene(0.0, r#"sun: (date: "2026-06-21", time: "15:00"),"#);
+    let heading = 200.0;
+    site.standpoints[0].heading = f64::to_radians(heading);
+    let (width, height) = (2048.0, 1024.0);
+    let settings = RenderSettings {
+        width: width as u32,
+        height: height as u32,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let drawn = layer_lines(&render, "sun path");
+    // The independent path, a minute apart over the local day (2026-06-20 22:00 UT to
+    // 2026-06-21 22:00 UT), cut where it dips under 5 degrees: refraction lower down is
+    // too uncertain for a half pixel.
+    const LOWEST: f64 = 5.0;
+    let midnight = 1_781_992_800; // 2026-06-20 22:00:00 UT
+    let mut reference: Vec<Vec<ImagePoint>> = vec![Vec::new()];
+    for minute in 0..=24 * 60 {
+        let (azimuth, elevation) = psa_sun(midnight + 60 * minute, 47.3, 8.1);
+        if elevation < LOWEST {
+            if !reference.last().unwrap().is_empty() {
+                reference.push(Vec::new());
+            }
+            continue;
+        }
+        let (x, y) = pixel(azimuth, elevation, heading, width, height);
+        reference.last_mut().unwrap().push(ImagePoint::new(x, y));
+    }
+    let reference: Vec<&[ImagePoint]> = reference
+        .iter()
+        .filter(|l| l.len() > 1)
+        .map(|l| l.as_slice())
+        .collect();
+    assert_eq!(reference.len(), 1, "one arc above 5 degrees by day");
+    // Every minute of the other algorithm's path is within half a pixel of the drawn path,
+    // and every drawn point above 5 degrees within half a pixel of the other's.
+    for p in reference[0] {
+        let d = common::distance_to_polylines(*p, drawn.iter().copied());
+        assert!(d < 0.5, "the sun at {p:?} is {d} px off the drawn path");
+    }
+    let lowest_y = (90.0 - LOWEST) / 180.0 * height;
+    let above: Vec<ImagePoint> = drawn
+        .iter()
+        .flat_map(|l| l.iter().copied())
+        .filter(|p| p.y < lowest_y - 0.5)
+        .collect();
+    assert!(above.len() > 100, "{} drawn points", above.len());
+    for p in above {
+        let d = common::distance_to_polylines(p, reference.iter().copied());
+        assert!(
+            d < 0.5,
+            "the drawn {p:?} is {d} px off the other algorithm's path"
+        );
+    }
+}
+
+#[test]
+fn the_season_paths_culminate_where_the_declinations_put_them() {
+    // Common practice (the sun-path diagram): at latitude phi the sun crosses the meridian
+    // at 90 - phi + delta, the declination delta being +23.44 at the June solstice, -23.44
+    // at the December one (the obliquity of the ecliptic, Astronomical Almanac) and about
+    // 0 at the equinoxes. It changes by about 0.4 degrees a day near an equinox and hardly
+    // at all near a solstice, so a path drawn for the day has its noon within 0.2 (0.01) of
+    // those. Refraction (Saemundsson, as above) lifts each by 0.05 at most.
+    let mut site = pole_scene(
+        0.0,
+        r#"sun: (date: "2026-06-21", time: "15:00", seasons: true),"#,
+    );
+    let heading = 200.0;
+    site.standpoints[0].heading = f64::to_radians(heading);
+    let (width, height) = (2048.0, 1024.0);
+    let settings = RenderSettings {
+        width: width as u32,
+        height: height as u32,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let seasons = layer_lines(&render, "sun paths of the solstices and equinox");
+    // Where the paths cross the meridian (azimuth 180): the column of that azimuth.
+    let (meridian_x, _) = pixel(180.0, 0.0, heading, width, height);
+    let mut noons: Vec<f64> = seasons
+        .iter()
+        .flat_map(|l| l.windows(2))
+        .filter(|w| (w[0].x - meridian_x) * (w[1].x - meridian_x) <= 0.0 && w[0].x != w[1].x)
+        .map(|w| {
+            let s = (meridian_x - w[0].x) / (w[1].x - w[0].x);
+            let y = w[0].y + s * (w[1].y - w[0].y);
+            90.0 - 180.0 * y / height
+        })
+        .collect();
+    noons.sort_by(f64::total_cmp);
+    noons.dedup_by(|a, b| (*a - *b).abs() < 1e-9);
+    // Four paths: the December solstice, both equinoxes, the June solstice.
+    assert_eq!(noons.len(), 4, "{noons:?}");
+    let refraction = |e: f64| 1.02 / (e + 10.3 / (e + 5.11)).to_radians().tan() / 60.0;
+    let half_pixel = 0.5 * 180.0 / height;
+    let phi = 47.3;
+    for (noon, delta, slack) in [
+        (noons[0], -23.44, 0.01),
+        (noons[1], 0.0, 0.2),
+        (noons[2], 0.0, 0.2),
+        (noons[3], 23.44, 0.01),
+    ] {
+        let geometric = 90.0 - phi + delta;
+        let expected = geometric + refraction(geometric);
+        assert!(
+            (noon - expected).abs() < half_pixel + slack,
+            "a path culminates at {noon}, expected {expected} (declination {delta})"
+        );
+    }
 }
