@@ -8,6 +8,8 @@
 //! exterior demo from a standpoint inside the arcade, and a room whose pointed and round
 //! windows are looked through.
 
+mod common;
+use common::crossing;
 use nalgebra::{Point3, Vector3};
 use pansite::scene::{load_scene, parse_scene, Face, Site, SiteCurve, Standpoint};
 use pansite::sphere::{SphereCurve, ViewFrame};
@@ -18,26 +20,6 @@ use std::path::Path;
 /// Image width the pixel measures refer to.
 const WIDTH: f64 = 1024.0;
 const PIXEL: f64 = TAU / WIDTH;
-
-/// Moeller-Trumbore again, on its own: the distance at which the ray crosses the triangle.
-fn crossing(origin: &Point3<f64>, d: &Vector3<f64>, f: &Face) -> Option<f64> {
-    let [a, b, c] = f.corners;
-    let (e1, e2) = (b - a, c - a);
-    let h = d.cross(&e2);
-    let det = e1.dot(&h);
-    if det.abs() < 1e-14 * e1.norm() * e2.norm() {
-        return None;
-    }
-    let s = origin - a;
-    let u = s.dot(&h) / det;
-    let q = s.cross(&e1);
-    let v = d.dot(&q) / det;
-    if u < 0.0 || v < 0.0 || u + v > 1.0 || u > 1.0 {
-        return None;
-    }
-    let t = e2.dot(&q) / det;
-    (t > 0.0).then_some(t)
-}
 
 /// The reference: is the site point `p` seen from `eye`, by every face in turn?
 fn seen_by_brute_force(faces: &[Face], eye: &Point3<f64>, p: &Point3<f64>) -> bool {

@@ -2,12 +2,14 @@
 //! `sun` block, drawn and listed.
 
 mod common;
+use nalgebra::{Point3, Vector2, Vector3};
 use pansite::aids::{angle_table, TableChoice};
 use pansite::plane::{Equirect, ImagePoint};
 use pansite::render::{draw, RenderSettings, SunChoice};
 use pansite::scene::{parse_scene, LocalMoment, Site};
 use pansite::sun::Sky;
 use pansite::sun::{seen_shade, shadow_outlines, with_shadows, SHADOWS};
+use pansite::visibility::DEPTH_BIAS;
 use std::path::Path;
 
 /// An invented square at an invented place (latitude 47.3, longitude 8.1), with a thin
@@ -575,4 +577,151 @@ fn the_season_paths_culminate_where_the_declinations_put_them() {
             "a path culminates at {noon}, expected {expected} (declination {delta})"
         );
     }
+}
+
+/// Whether the site point `p` is in the sun: the ray from it towards the sun `s` (unit)
+/// crosses no face, by the tests' own ray caster (Moeller-Trumbore, `common::crossing`).
+fn lit(site: &Site, p: &Point3<f64>, s: &Vector3<f64>) -> bool {
+    !site
+        .faces
+        .iter()
+        .any(|f| common::crossing(p, s, f).is_some())
+}
+
+/// Whether the site point `p` is seen from `eye`: no face crosses the sight line nearer than
+/// the point less the renderer's documented depth bias (as in tests/hidden_lines.rs).
+fn seen_from(site: &Site, eye: &Point3<f64>, p: &Point3<f64>) -> bool {
+    let to = p - eye;
+    let distance = to.norm();
+    let limit = distance * (1.0 - DEPTH_BIAS);
+    !site
+        .faces
+        .iter()
+        .any(|f| common::crossing(eye, &(to / distance), f).is_some_and(|t| t < limit))
+}
+
+/// The pixel of a site point seen from `eye` with the view turned to `heading` (degrees).
+fn pixel_of_point(p: &Point3<f64>, eye: &Point3<f64>, heading: f64, w: f64, h: f64) -> ImagePoint {
+    let d = p - eye;
+    let azimuth = d.x.atan2(d.y).to_degrees();
+    let elevation = d.z.atan2(d.x.hypot(d.y)).to_degrees();
+    let (x, y) = pixel(azimuth, elevation, heading, w, h);
+    ImagePoint::new(x, y)
+}
+
+/// The convex hull of points in the plane, anticlockwise (Andrew's monotone chain).
+fn hull(mut points: Vec<Vector2<f64>>) -> Vec<Vector2<f64>> {
+    points.sort_by(|a, b| a.x.total_cmp(&b.x).then(a.y.total_cmp(&b.y)));
+    let cross = |o: Vector2<f64>, a: Vector2<f64>, b: Vector2<f64>| (a - o).perp(&(b - o));
+    let mut chain: Vec<Vector2<f64>> = Vec::new();
+    for pass in [points.clone(), points.into_iter().rev().collect()] {
+        let start = chain.len();
+        for p in pass {
+            while chain.len() >= start + 2
+                && cross(chain[chain.len() - 2], chain[chain.len() - 1], p) <= 0.0
+            {
+                chain.pop();
+            }
+            chain.push(p);
+        }
+        chain.pop();
+    }
+    chain
+}
+
+#[test]
+fn a_shadow_behind_a_nearer_wall_is_hidden_like_any_edge() {
+    // An invented yard at the pole's square at noon in midwinter: the sun low in the south
+    // (about 19 degrees), so a tower 12 m tall casts a shadow some 34 m long northwards. The
+    // eye stands north of it all, looking south, and a wall taller than the eye stands
+    // between, covering the western half of the shadow (x < 0). Hidden edges are drawn
+    // undashed so that each hidden stretch is a whole line.
+    let text = r#"Scene(
+        name: "winter yard",
+        location: (latitude: 47.3, longitude: 8.1, time_zone: "Europe/Zurich"),
+        sun: (date: "2026-12-21", time: "12:30"),
+        styles: {"hidden": (dash_mm: (0, 0))},
+        standpoints: [(name: "north gate", x: 0, y: 50, heading: 180)],
+        items: [
+            Block(label: "tower", at: Centre(0, 0), width: 6, depth: 6, height: 12),
+            Block(label: "wall", at: Centre(-4, 42), width: 8, depth: 0.3, height: 2.5),
+        ],
+    )"#;
+    let site = parse_scene(text.as_bytes(), Path::new("yard.ron"), "yard").unwrap();
+    let sky = Sky::of_site(&site).unwrap();
+    let sun = sky
+        .at(&LocalMoment::parse("2026-12-21", "12:30").unwrap())
+        .unwrap();
+    let s = sky.direction(&sun);
+    let (w, h) = (2048.0, 1024.0);
+    let settings = RenderSettings {
+        width: w as u32,
+        height: h as u32,
+        ..RenderSettings::default()
+    };
+    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let shadows = layer_lines(&render, "wireframe: shadows");
+    let hidden = layer_lines(&render, "hidden");
+    // The tower's shadow on the ground, worked here: the hull of its foot and of its top
+    // carried along the rays to the ground (p - s p.z / s.z).
+    let mut corners = Vec::new();
+    for (x, y) in [(-3.0, -3.0), (3.0, -3.0), (3.0, 3.0), (-3.0, 3.0)] {
+        corners.push(Vector2::new(x, y));
+        corners.push(Vector2::new(x - s.x * 12.0 / s.z, y - s.y * 12.0 / s.z));
+    }
+    let outline = hull(corners);
+    let eye = site.standpoints[0].eye();
+    let heading = 180.0;
+    let (mut seen_count, mut hidden_count) = (0, 0);
+    for (k, a) in outline.iter().enumerate() {
+        let b = outline[(k + 1) % outline.len()];
+        let along = (b - a).normalize();
+        // Outwards, the hull being anticlockwise.
+        let out = Vector2::new(along.y, -along.x);
+        let length = (b - a).norm();
+        let count = (length / 0.25) as usize;
+        for i in 1..count {
+            let p = a + along * (length * i as f64 / count as f64);
+            // Off the tower's foot, where the outline runs along its walls.
+            if p.x.abs().max(p.y.abs()) < 3.3 {
+                continue;
+            }
+            let at = |q: Vector2<f64>| Point3::new(q.x, q.y, 0.0);
+            // The outline is the shadow's: just inside shaded, just outside lit.
+            assert!(!lit(&site, &at(p - 0.01 * out), &s), "{p:?} inside is lit");
+            assert!(
+                lit(&site, &at(p + 0.01 * out), &s),
+                "{p:?} outside is shaded"
+            );
+            // Seen or hidden by the ray cast, away from where that changes.
+            let seen = seen_from(&site, &eye, &at(p));
+            if [-0.3, 0.3]
+                .iter()
+                .any(|d| seen_from(&site, &eye, &at(p + along * *d)) != seen)
+            {
+                continue;
+            }
+            let pixel = pixel_of_point(&at(p), &eye, heading, w, h);
+            let to_seen = common::distance_to_polylines(pixel, shadows.iter().copied());
+            let to_hidden = common::distance_to_polylines(pixel, hidden.iter().copied());
+            if seen {
+                seen_count += 1;
+                assert!(to_seen < 0.5, "seen {p:?} is {to_seen} px off the shadows");
+            } else {
+                hidden_count += 1;
+                assert!(
+                    to_hidden < 0.5,
+                    "hidden {p:?} is {to_hidden} px off the hidden lines"
+                );
+                assert!(
+                    to_seen > 2.0,
+                    "hidden {p:?} is drawn as seen ({to_seen} px)"
+                );
+            }
+        }
+    }
+    assert!(
+        seen_count > 50 && hidden_count > 50,
+        "{seen_count} seen, {hidden_count} hidden"
+    );
 }

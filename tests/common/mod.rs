@@ -1,7 +1,9 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 
+use nalgebra::{Point3, Vector3};
 use pansite::plane::{ImagePoint, PolylineSet};
+use pansite::scene::Face;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
@@ -27,6 +29,29 @@ pub fn assert_near(a: f64, b: f64, eps: f64) {
         "{a:.17e} vs {b:.17e}: differ by {:.3e} > {eps:.3e}",
         (a - b).abs()
     );
+}
+
+/// The distance along the unit direction `d` from `origin` at which the ray crosses the face,
+/// by Moeller and Trumbore's test ("Fast, minimum storage ray-triangle intersection", Journal
+/// of Graphics Tools 2(1), 1997), written here apart from the library's own: the tests' ray
+/// caster for hidden lines and for shadows.
+pub fn crossing(origin: &Point3<f64>, d: &Vector3<f64>, f: &Face) -> Option<f64> {
+    let [a, b, c] = f.corners;
+    let (e1, e2) = (b - a, c - a);
+    let h = d.cross(&e2);
+    let det = e1.dot(&h);
+    if det.abs() < 1e-14 * e1.norm() * e2.norm() {
+        return None;
+    }
+    let s = origin - a;
+    let u = s.dot(&h) / det;
+    let q = s.cross(&e1);
+    let v = d.dot(&q) / det;
+    if u < 0.0 || v < 0.0 || u + v > 1.0 || u > 1.0 {
+        return None;
+    }
+    let t = e2.dot(&q) / det;
+    (t > 0.0).then_some(t)
 }
 
 /// Distance (pixels) from `p` to the segment from `a` to `b`.
