@@ -725,3 +725,164 @@ fn a_shadow_behind_a_nearer_wall_is_hidden_like_any_edge() {
         "{seen_count} seen, {hidden_count} hidden"
     );
 }
+
+#[test]
+fn shadows_on_and_of_a_round_tower_lie_within_its_facets_tolerance() {
+    // A round tower 4 m across and 12 m tall, and south of it a slab 2 m wide and 8 m tall
+    // whose shadow climbs the tower's south face (and none of it passes the tower); the
+    // sun a little east of south, 25 degrees up. The tower is cut into flat facets 3.75
+    // degrees wide (the scene's `FACET_ANGLE`, a 96th of a turn) whose corners lie on the
+    // true circle, so they stand off it by at most r (1 - cos 1.875 degrees): the shadows
+    // fall on the facets, so they lie within that of the true shapes.
+    let text = r#"Scene(
+        standpoints: [(name: "east", x: 20, y: 0, heading: 270)],
+        items: [
+            Tower(label: "tower", at: (0, 0), diameter: 4, height: 12, roof: Flat),
+            Block(label: "slab", at: Centre(1, -6), width: 2, depth: 1, height: 8),
+        ],
+    )"#;
+    let site = parse_scene(text.as_bytes(), Path::new("tower.ron"), "tower").unwrap();
+    let (azimuth, elevation) = (170f64.to_radians(), 25f64.to_radians());
+    let s = Vector3::new(
+        azimuth.sin() * elevation.cos(),
+        azimuth.cos() * elevation.cos(),
+        elevation.sin(),
+    );
+    let r = 2.0;
+    let gap = r * (1.0 - 1.875f64.to_radians().cos());
+    let lines = shadow_outlines(&site, &s);
+    let radius = |p: &Point3<f64>| p.x.hypot(p.y);
+    let on_tower: Vec<_> = lines
+        .iter()
+        .filter(|l| [l.start, l.end].iter().all(|p| p.z > 1e-6))
+        .collect();
+    let on_ground: Vec<_> = lines
+        .iter()
+        .filter(|l| [l.start, l.end].iter().all(|p| p.z.abs() < 1e-9))
+        .collect();
+    // On the tower: every line on its facets, and the ray cast finds shade on one side of
+    // it and sun on the other (1 cm across the line along the face, 1 mm off it).
+    assert!(on_tower.len() >= 8, "{} lines on the tower", on_tower.len());
+    for line in &on_tower {
+        let along = line.end - line.start;
+        if along.norm() < 0.02 {
+            continue;
+        }
+        for k in 1..10 {
+            let p = line.start + along * (k as f64 / 10.0);
+            let rho = radius(&p);
+            assert!(
+                rho > r - gap - 1e-9 && rho < r + 1e-9,
+                "{p} is {rho} m from the axis"
+            );
+            let out = Vector3::new(p.x, p.y, 0.0) / rho;
+            let across = along.cross(&out).normalize();
+            let [a, b] = [1.0, -1.0].map(|side| p + 0.01 * side * across + 0.001 * out);
+            assert_ne!(
+                lit(&site, &a, &s),
+                lit(&site, &b, &s),
+                "{p}: no edge of shade"
+            );
+        }
+    }
+    // The slab's top edge (y = -5.5, z = 8) on the true cylinder, by plain trigonometry:
+    // the point of the tower at angle t from the south whose ray to the sun reaches the
+    // slab's north face at height 8. Where that ray meets the slab's face (x within it), a
+    // line on the tower passes that height within the facets' gap times the ray's slope,
+    // over the cosine of the angle between the face's normal and the sun.
+    let true_height = |t: f64| {
+        let (x, y) = (r * t.sin(), -r * t.cos());
+        let k = (-5.5 - y) / s.y;
+        (8.0 - k * s.z, x + k * s.x)
+    };
+    let mut crossed = 0;
+    for step in -30..=30 {
+        let t = f64::to_radians(step as f64);
+        let (z, x_at_slab) = true_height(t);
+        if (x_at_slab - 1.0).abs() > 0.9 {
+            continue;
+        }
+        // The lines on the tower crossing the upright half-plane at angle t.
+        let u = Vector2::new(t.sin(), -t.cos());
+        let heights: Vec<f64> = on_tower
+            .iter()
+            .filter_map(|l| {
+                let side = |p: &Point3<f64>| u.perp(&Vector2::new(p.x, p.y));
+                let (a, b) = (side(&l.start), side(&l.end));
+                if a * b > 0.0 || a == b || l.start.coords.xy().dot(&u) < 0.0 {
+                    return None;
+                }
+                Some(l.start.z + (l.end.z - l.start.z) * a / (a - b))
+            })
+            .collect();
+        let nearest = heights
+            .iter()
+            .map(|h| (h - z).abs())
+            .fold(f64::INFINITY, f64::min);
+        let slope = s.z / s.xy().norm();
+        assert!(
+            nearest <= gap * slope / (0.3f64).max(u.dot(&s.xy().normalize())) + 1e-6,
+            "at {step} degrees the slab's shadow is {nearest} m off its height {z}: {heights:?}"
+        );
+        crossed += 1;
+    }
+    assert!(crossed > 40, "{crossed} angles checked");
+    // The tower's own shadow on the ground, north of it: the ground within r of the line
+    // from its foot's centre to its top's centre carried along the rays, so its outline
+    // lies between r and r less the facets' gap from that line, and the ray cast finds
+    // shade just inside and sun just outside.
+    let top = Vector2::new(-s.x, -s.y) * 12.0 / s.z;
+    let from_axis = |p: Vector2<f64>| {
+        let k = (p.dot(&top) / top.norm_squared()).clamp(0.0, 1.0);
+        (p - top * k, k)
+    };
+    let mut checked = 0;
+    for line in &on_ground {
+        for k in 1..10 {
+            let p = line.start + (line.end - line.start) * (k as f64 / 10.0);
+            if p.y < 0.5 {
+                continue; // the slab's shadow, which meets the tower's foot
+            }
+            let (off, _) = from_axis(p.coords.xy());
+            let d = off.norm();
+            assert!(
+                d > r - gap - 1e-9 && d < r + 1e-9,
+                "{p} is {d} m from the axis"
+            );
+            let out = Vector3::new(off.x, off.y, 0.0) / d;
+            assert!(!lit(&site, &(p - 0.01 * out), &s), "{p}: lit inside");
+            assert!(lit(&site, &(p + 0.01 * out), &s), "{p}: shaded outside");
+            checked += 1;
+        }
+    }
+    assert!(checked > 100, "{checked} points of the tower's shadow");
+    // And the whole true outline is drawn: every point of it north of the foot lies within
+    // the gap of a line.
+    let mut outline = 0;
+    for step in 0..720 {
+        let a = f64::to_radians(step as f64 / 2.0);
+        let radial = Vector2::new(a.sin(), a.cos()) * r;
+        for centre in [Vector2::zeros(), top] {
+            let p = centre + radial;
+            let (off, _) = from_axis(p);
+            if p.y < 0.5 || off.norm() < r - 1e-9 {
+                continue; // inside the shadow, not on its outline
+            }
+            let q = Point3::new(p.x, p.y, 0.0);
+            let nearest = on_ground
+                .iter()
+                .map(|l| {
+                    let e = l.end - l.start;
+                    let k = ((q - l.start).dot(&e) / e.norm_squared()).clamp(0.0, 1.0);
+                    (q - (l.start + e * k)).norm()
+                })
+                .fold(f64::INFINITY, f64::min);
+            assert!(
+                nearest <= gap + 1e-9,
+                "{p:?} is {nearest} m from the drawn outline"
+            );
+            outline += 1;
+        }
+    }
+    assert!(outline > 300, "{outline} points of the true outline");
+}
