@@ -502,7 +502,7 @@ fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
     assert_eq!(underlay.status, 200, "{}", underlay.text());
     assert!(underlay.body.starts_with(b"\x89PNG"));
     assert_eq!(std::fs::read(&data).unwrap(), data_bytes);
-    let direct = pansite::scene::load_open_data(&data, None).unwrap();
+    let direct = pansite::scene::load_open_data(&data, None, None).unwrap();
     let kept = pansite::scene::load_scene(&dir.path("saltmarsh-row-standpoints.ron")).unwrap();
     assert_eq!(kept.standpoints.len(), 1);
     assert_eq!(kept.standpoints[0].name, "quay");

@@ -240,3 +240,168 @@ fn daylight_at_78_north_has_the_sun_up_all_day_at_midsummer_and_down_at_midwinte
         }
     }
 }
+
+/// The open-data demo's GeoJSON street, given directly.
+fn demo_geojson() -> String {
+    format!(
+        "{}/scenes/opendata/saltmarsh-row.geojson",
+        env!("CARGO_MANIFEST_DIR")
+    )
+}
+
+/// The rows of a `daylight` CSV table after its header: the events and positions.
+fn table_rows(out: &std::process::Output) -> Vec<String> {
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout.clone()).unwrap();
+    text.lines()
+        .skip_while(|l| !l.starts_with("date,time,"))
+        .skip(1)
+        .map(str::to_owned)
+        .collect()
+}
+
+#[test]
+fn an_open_data_file_given_directly_takes_a_time_zone_like_a_scenes_location() {
+    // The IANA database: the Azores keep UT - 1 and, like the rest of Portugal and the EU,
+    // summer time from the last Sunday of March to the last of October (Directive
+    // 2000/84/EC), so UT + 0 in June.
+    let dir = Scratch::new("sun-open-data-zone");
+    let data = demo_geojson();
+    let scene = dir.write(
+        "here.ron",
+        r#"Scene(
+            location: (latitude: 45.0, longitude: -30.0, time_zone: "Atlantic/Azores"),
+            standpoints: [(name: "origin", x: 0, y: 0)],
+            items: [],
+        )"#,
+    );
+    let table = |file: &str, more: &[&str], date: &str| {
+        let mut args = vec!["daylight", file, "--date", date, "--step", "60"];
+        args.extend_from_slice(&["--format", "csv"]);
+        args.extend_from_slice(more);
+        table_rows(&pansite(&dir, &args))
+    };
+    let zone = [
+        "--origin-latlon",
+        "45.0,-30.0",
+        "--time-zone",
+        "Atlantic/Azores",
+    ];
+    for (date, offset) in [("2026-12-21", "-01:00"), ("2026-06-21", "+00:00")] {
+        let direct = table(&data, &zone, date);
+        assert_eq!(direct, table(scene.to_str().unwrap(), &[], date), "{date}");
+        let sunrise = direct.iter().find(|r| r.contains(",sunrise,")).unwrap();
+        assert!(
+            sunrise.contains(&format!(",{offset},sunrise,")),
+            "{sunrise}"
+        );
+        // Without the zone the clock is universal time: the same sunrise, its clock time
+        // moved by the offset.
+        let universal = table(&data, &["--origin-latlon", "45.0,-30.0"], date);
+        let universal = universal.iter().find(|r| r.contains(",sunrise,")).unwrap();
+        let hour = |row: &str| row[11..13].parse::<i32>().unwrap();
+        let shift: i32 = offset[..3].parse().unwrap();
+        assert_eq!(
+            hour(sunrise) - shift,
+            hour(universal),
+            "{sunrise} / {universal}"
+        );
+        assert_eq!(sunrise[13..19], universal[13..19]);
+    }
+    // `angles` reads the local time in the zone too: noon in the Azores in December is
+    // 13:00 universal time, the same shadows.
+    let angles = |more: &[&str]| {
+        let mut args = vec!["angles", &data, "--origin-latlon", "45.0,-30.0"];
+        args.extend_from_slice(&["--date", "2026-12-21", "--item", "shadows"]);
+        args.extend_from_slice(&["--format", "csv"]);
+        args.extend_from_slice(more);
+        let out = pansite(&dir, &args);
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        out.stdout
+    };
+    let in_zone = angles(&["--time", "12:00", "--time-zone", "Atlantic/Azores"]);
+    assert!(String::from_utf8_lossy(&in_zone).contains("shadows,corner"));
+    assert_eq!(in_zone, angles(&["--time", "13:00"]));
+    assert_ne!(in_zone, angles(&["--time", "12:00"]));
+}
+
+#[test]
+fn a_time_zone_for_open_data_is_refused_when_unknown_or_out_of_place() {
+    let dir = Scratch::new("sun-open-data-zone-refused");
+    let data = demo_geojson();
+    let scene = dir.write("yard.ron", SCENE);
+    let refused = |args: &[&str], words: &str| {
+        let out = pansite(&dir, args);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(stderr.contains(words), "{args:?}: {stderr}");
+        assert!(out.stdout.is_empty(), "{args:?}");
+    };
+    // An unknown name, with the nearest known one.
+    refused(
+        &[
+            "daylight",
+            &data,
+            "--date",
+            "2026-06-21",
+            "--time-zone",
+            "Atlantic/Azorez",
+        ],
+        r#""Atlantic/Azorez" is not a time zone of the IANA database (did you mean "Atlantic/Azores"?)"#,
+    );
+    // A scene names its own zone.
+    refused(
+        &[
+            "daylight",
+            scene.to_str().unwrap(),
+            "--date",
+            "2026-06-21",
+            "--time-zone",
+            "Europe/London",
+        ],
+        "a scene names its zone in its `location` block",
+    );
+    // A city model in a grid gives no latitude and longitude of itself.
+    let city = format!(
+        "{}/scenes/opendata/saltmarsh-row.city.json",
+        env!("CARGO_MANIFEST_DIR")
+    );
+    refused(
+        &[
+            "daylight",
+            &city,
+            "--date",
+            "2026-06-21",
+            "--time-zone",
+            "Atlantic/Azores",
+        ],
+        "need the latitude and longitude of the plan's origin",
+    );
+    // Given them, it is read in the zone.
+    let out = pansite(
+        &dir,
+        &[
+            "daylight",
+            &city,
+            "--date",
+            "2026-12-21",
+            "--time-zone",
+            "Atlantic/Azores",
+            "--origin-latlon",
+            "45.0,-30.0",
+            "--format",
+            "csv",
+        ],
+    );
+    assert!(table_rows(&out)
+        .iter()
+        .any(|r| r.contains(",-01:00,sunrise,")));
+}

@@ -121,7 +121,7 @@ fn city_model(target_bytes: usize) -> PathBuf {
 
 fn footprints_case(path: &Path) -> (Duration, Duration, usize) {
     let started = Instant::now();
-    let site = load_open_data(path, Some(ORIGIN)).unwrap();
+    let site = load_open_data(path, Some(ORIGIN), None).unwrap();
     let load = started.elapsed();
     let settings = RenderSettings {
         width: 8192,
@@ -136,7 +136,7 @@ fn footprints_case(path: &Path) -> (Duration, Duration, usize) {
 
 fn city_case(path: &Path) -> (Duration, usize, usize) {
     let started = Instant::now();
-    let site = load_open_data(path, Some(ORIGIN)).unwrap();
+    let site = load_open_data(path, Some(ORIGIN), None).unwrap();
     (started.elapsed(), site.edges.len(), site.faces.len())
 }
 

@@ -92,8 +92,18 @@ fn looks_like_json(text: &str) -> Option<String> {
 /// Reads an open-data file (GeoJSON, CityJSON, CityJSONSeq) given instead of a scene: a
 /// site of its buildings and streets around `origin` (WGS84 latitude and longitude), or
 /// around a point of the file's own (its first position; a city model's middle), with one
-/// standpoint, `origin`, there.
-pub fn load_open_data(path: &Path, origin: Option<(f64, f64)>) -> Result<Site> {
+/// standpoint, `origin`, there. Its local times are in `time_zone` (an IANA name, looked up
+/// in the bundled database as a scene's `location` is), or universal time without one; a
+/// zone needs the origin's latitude and longitude, which a city model in a grid does not
+/// give of itself.
+pub fn load_open_data(
+    path: &Path,
+    origin: Option<(f64, f64)>,
+    time_zone: Option<&str>,
+) -> Result<Site> {
+    if let Some(zone) = time_zone {
+        super::location::find_time_zone(zone)?;
+    }
     let name = path
         .file_name()
         .map(|s| s.to_string_lossy().into_owned())
@@ -116,9 +126,21 @@ pub fn load_open_data(path: &Path, origin: Option<(f64, f64)>) -> Result<Site> {
         }
         _ => None,
     };
-    let location = origin.map_or(String::new(), |(lat, lon)| {
-        format!("location: (latitude: {lat:?}, longitude: {lon:?}),")
-    });
+    let location = match (origin, time_zone) {
+        (Some((lat, lon)), zone) => {
+            let zone = zone.map_or(String::new(), |z| format!(", time_zone: {z:?}"));
+            format!("location: (latitude: {lat:?}, longitude: {lon:?}{zone}),")
+        }
+        (None, None) => String::new(),
+        (None, Some(zone)) => {
+            return Err(Error::Setting(format!(
+                "{}: local times in \"{zone}\" need the latitude and longitude of the plan's \
+                 origin, and this file gives positions in a grid: name the origin's latitude \
+                 and longitude too",
+                path.display()
+            )))
+        }
+    };
     // The file's name goes into a RON string as Rust writes strings, escapes and all.
     let scene = format!(
         "Scene(name: {name:?}, {location} standpoints: [(name: \"origin\", x: 0, y: 0)], \

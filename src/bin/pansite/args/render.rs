@@ -157,6 +157,11 @@ pub struct ModelArgs {
     /// model's middle (CityJSON)].
     #[arg(long, value_name = "LAT,LON", value_parser = parse_latlon, allow_hyphen_values = true)]
     pub origin_latlon: Option<(f64, f64)>,
+
+    /// For a .geojson, .city.json or .jsonl file: the IANA time zone of its local times, as
+    /// Europe/Paris [default: universal time]. A scene names its own in its `location`.
+    #[arg(long, value_name = "ZONE")]
+    pub time_zone: Option<String>,
 }
 
 /// How the words of labels are written in an SVG.

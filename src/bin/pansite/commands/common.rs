@@ -23,19 +23,29 @@ pub fn is_standard_stream(path: &Path) -> bool {
 
 /// The scene from a RON file, an OBJ model or an open-data file (by its extension) or
 /// standard input (`-`). A data file is placed around `--origin-latlon`, else `at_latlon`
-/// (the standpoint asked for), else a point of its own.
+/// (the standpoint asked for), else a point of its own, its clock in `--time-zone`; any
+/// other scene names its zone itself, so the option is refused there.
 pub fn read_site(
     path: &Path,
     model: &ModelArgs,
     at_latlon: Option<(f64, f64)>,
     quiet: bool,
 ) -> pansite::Result<(Site, LoadTimings)> {
+    let data_file = !is_standard_stream(path) && is_data_file(path);
+    if model.time_zone.is_some() && !data_file {
+        return Err(Error::Setting(
+            "--time-zone is for an open-data file given directly (.geojson, .city.json, \
+             .jsonl); a scene names its zone in its `location` block (`time_zone`)"
+                .to_owned(),
+        ));
+    }
     if is_standard_stream(path) {
         return scene_from_stdin();
     }
-    if is_data_file(path) {
+    if data_file {
         let started = Instant::now();
-        let site = load_open_data(path, model.origin_latlon.or(at_latlon))?;
+        let origin = model.origin_latlon.or(at_latlon);
+        let site = load_open_data(path, origin, model.time_zone.as_deref())?;
         let timings = LoadTimings {
             parse: started.elapsed(),
             ..LoadTimings::default()

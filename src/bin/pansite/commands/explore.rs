@@ -83,7 +83,8 @@ fn source(args: &ExploreArgs) -> pansite::Result<Source> {
 /// scene kept beside it places the data around the same origin.
 fn open_data_source(args: &ExploreArgs) -> pansite::Result<Source> {
     let origin = args.model.origin_latlon;
-    let site = pansite::scene::load_open_data(&args.scene, origin)?;
+    let zone = args.model.time_zone.clone();
+    let site = pansite::scene::load_open_data(&args.scene, origin, zone.as_deref())?;
     let location = site
         .location
         .as_ref()
@@ -94,7 +95,9 @@ fn open_data_source(args: &ExploreArgs) -> pansite::Result<Source> {
         .map(|name| format!("OpenData(file: {})", ron_string(&name.to_string_lossy())));
     Ok(Source::Model {
         path: args.scene.clone(),
-        load: Arc::new(move |path: &Path| pansite::scene::load_open_data(path, origin)),
+        load: Arc::new(move |path: &Path| {
+            pansite::scene::load_open_data(path, origin, zone.as_deref())
+        }),
         model_item,
         location,
     })
