@@ -878,3 +878,74 @@ fn preview_hides_what_the_panorama_hides() {
         "{agree} of {total} agree"
     );
 }
+
+/// The plan's north key read back from its SVG: the bearings on paper (clockwise from up,
+/// as a plan with its y axis up the page is read: common practice) of the strokes leaving
+/// the ring's centre, and the words of the key.
+fn north_key_bearings(north: f64) -> (Vec<f64>, f64, Vec<String>) {
+    let text = format!(
+        r#"Scene(
+            location: (latitude: 47.3, longitude: 8.1, north: {north}),
+            standpoints: [(name: "corner", x: -9, y: -14, heading: 30)],
+            items: [Block(label: "shed", at: Centre(0, 0), width: 6, depth: 4, height: 3)],
+        )"#
+    );
+    let site = pansite::scene::parse_scene(text.as_bytes(), Path::new("key.ron"), "key").unwrap();
+    let plan = plan_map(&site, &site.standpoints, &PlanSettings::default()).unwrap();
+    let mut bytes = Vec::new();
+    write_svg(&plan.sheet(), &mut bytes).unwrap();
+    let key = svg_layer(&String::from_utf8(bytes).unwrap(), "north arrow");
+    // The ring: the stroke of many points, closed; its centre the mean of its points.
+    let ring = key.iter().max_by_key(|p| p.len()).unwrap();
+    let n = (ring.len() - 1) as f64;
+    let cx = ring[..ring.len() - 1].iter().map(|p| p.0).sum::<f64>() / n;
+    let cy = ring[..ring.len() - 1].iter().map(|p| p.1).sum::<f64>() / n;
+    let bearing = |from: (f64, f64), to: (f64, f64)| {
+        (to.0 - from.0)
+            .atan2(-(to.1 - from.1))
+            .to_degrees()
+            .rem_euclid(360.0)
+    };
+    let from_centre: Vec<f64> = key
+        .iter()
+        .filter(|p| p.len() == 2 && (p[0].0 - cx).hypot(p[0].1 - cy) < 1e-3)
+        .map(|p| bearing(p[0], p[1]))
+        .collect();
+    // Plan north: the longest straight stroke, across the ring and beyond it.
+    let plan_shaft = key
+        .iter()
+        .filter(|p| p.len() == 2)
+        .max_by(|a, b| {
+            let length = |p: &Vec<(f64, f64)>| (p[1].0 - p[0].0).hypot(p[1].1 - p[0].1);
+            length(a).total_cmp(&length(b))
+        })
+        .unwrap();
+    let words = plan
+        .drawing
+        .layers
+        .iter()
+        .filter_map(|l| l.text.as_ref().map(|t| t.words.clone()))
+        .filter(|w| w.contains('N') && w.len() <= 6)
+        .collect();
+    (from_centre, bearing(plan_shaft[0], plan_shaft[1]), words)
+}
+
+#[test]
+fn the_plans_north_key_turns_true_north_by_the_locations_bearing() {
+    // The scene's `north` is the bearing of true north clockwise from the plan's y axis
+    // (docs/scene-format.md): on a plan with y up the page, plan north points straight up
+    // and true north that many degrees clockwise of it.
+    for north in [25.0, -60.0, 135.0] {
+        let (from_centre, plan_north, words) = north_key_bearings(north);
+        assert!(plan_north.min(360.0 - plan_north) < 1e-6, "{plan_north}");
+        assert_eq!(from_centre.len(), 1, "{north}: {from_centre:?}");
+        let expected = f64::rem_euclid(north, 360.0);
+        let off = (from_centre[0] - expected).rem_euclid(360.0);
+        assert!(off.min(360.0 - off) < 0.01, "{north}: {from_centre:?}");
+        assert!(words.iter().any(|w| w == "TRUE N"), "{words:?}");
+    }
+    // Where the plan's y axis is true north, one arrow and one "N".
+    let (from_centre, plan_north, words) = north_key_bearings(0.0);
+    assert!(from_centre.is_empty() && plan_north.min(360.0 - plan_north) < 1e-6);
+    assert!(!words.iter().any(|w| w == "TRUE N"), "{words:?}");
+}
