@@ -55,7 +55,7 @@
 //! and the table of angles.
 //!
 //! ## Limitations
-//! - Curved surfaces hide things as facets of 7.5 degrees; their drawn edges stay exact.
+//! - Curved surfaces hide things as facets of 3.75 degrees; their drawn edges stay exact.
 //! - On curved edges, a seen or hidden stretch shorter than a pixel of angle can be missed.
 //! - An elliptic arc whose curve passes exactly through the eye is not detected as
 //!   degenerate (segments are).

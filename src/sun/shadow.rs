@@ -13,7 +13,7 @@
 //! [`BREAK_TOLERANCE_M`]. The lines are straight segments in the site frame, so they are
 //! drawn, and hidden behind nearer faces, exactly like the site's own edges.
 //!
-//! Curved surfaces cast the shadows of their facets (7.5 degrees); a change along a line
+//! Curved surfaces cast the shadows of their facets (3.75 degrees); a change along a line
 //! shorter than the sampling step ([`SAMPLE_STEP_M`]) can be missed.
 
 use super::boxes::{Bounds, BoxGrid};

@@ -18,7 +18,7 @@
 //! it. A hidden or seen stretch shorter than the sampling step (one pixel of angle) can be
 //! missed; near the poles, where the image stretches sideways, a pixel of angle spans more
 //! than a pixel of image. Faces are exact for flat items and meshes; curved items are
-//! faceted every 7.5 degrees (a tenth of a per cent of their radius), which is how far an
+//! faceted every 3.75 degrees (a twentieth of a per cent of their radius), which is how far an
 //! outline of a curved surface can be off when it hides something.
 //!
 //! ## Hidden lines (design notes)
@@ -62,7 +62,7 @@
 //!   is missed: the fan test sees any face, however thin, that crosses. For curved edges a
 //!   hidden or seen stretch shorter than a pixel of angle between two samples can be missed.
 //!   Near the poles a pixel of angle is wider than a pixel of image. Curved faces are facets
-//!   of 7.5 degrees. `tests/hidden_lines.rs` compares with a brute-force ray caster over every
+//!   of 3.75 degrees. `tests/hidden_lines.rs` compares with a brute-force ray caster over every
 //!   face, sampling every quarter pixel: 99.99 to 100 % of samples agree in three scenes and
 //!   five standpoints, every disagreement lies within a pixel of a true change, and every change
 //!   found lies within half a pixel of a true one (stretches under a hundredth of a pixel,

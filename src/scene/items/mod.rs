@@ -24,7 +24,7 @@
 //!   and a segment given twice within one item (a wall top that is also an eave) is drawn once
 //!   (ends equal to a micrometre). Faces are triangles that hide; flat faces with holes (walls
 //!   with openings, arch fronts) go through earcut on the coordinate plane the face is most
-//!   nearly parallel to; curved faces are cut every 7.5 degrees (`FACET_ANGLE`), 0.06 % of the
+//!   nearly parallel to; curved faces are cut every 3.75 degrees (`FACET_ANGLE`), 0.06 % of the
 //!   radius at most, while the drawn edges stay exact curves. Solids are closed, so `check` can
 //!   tell a standpoint inside one by ray parity.
 //! - **Roofs** (`items/mass.rs`): the roof is the lowest of the planes rising from the sloped
