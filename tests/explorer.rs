@@ -268,6 +268,29 @@ fn path_like_and_out_of_range_parameters_get_a_400_that_names_them() {
         ("/look.png?x=0&y=0&w=256&h=128&tone=on", "'tone'"),
         ("/look.png?x=0&y=0&w=256&h=128&fov=179", "'fov'"),
         ("/probe?x=0&y=0&w=256&h=128&u=999&v=1", "'u'"),
+        ("/underlay.png?x=0&y=0&w=256&h=128&grid=15", "'grid'"),
+        ("/underlay.png?x=0&y=0&w=256&h=128&step=0", "'step'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&vanishing=yes",
+            "'vanishing'",
+        ),
+        ("/underlay.png?x=0&y=0&w=256&h=128&fan=NaN", "'fan'"),
+        ("/underlay.png?x=0&y=0&w=256&h=128&pole_x=1", "'pole_y'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&pole_x=1&pole_y=2&pole_step=1e-9",
+            "'pole_step'",
+        ),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&divide=..%2F..%2Fetc%2Fpasswd",
+            "'divide'",
+        ),
+        ("/underlay.png?x=0&y=0&w=256&h=128&divide=a%00b", "'divide'"),
+        (
+            "/underlay.png?x=0&y=0&w=256&h=128&divide=house+1&parts=-1",
+            "'parts'",
+        ),
+        ("/underlay.png?x=0&y=0&w=256&h=128&seasons=1", "'seasons'"),
+        ("/look.png?x=0&y=0&w=256&h=128&labels=on", "'labels'"),
         ("/underlay.png?x=0&x=1&y=0&w=256&h=128", "twice"),
         ("/underlay.png?x=%ZZ", "hex"),
     ];
@@ -574,6 +597,72 @@ fn print_carries_the_shade_switch() {
     assert_eq!(answer.status, 400);
     assert!(answer.text().contains("'tone'"), "{}", answer.text());
     assert_eq!(files_in(&out).len(), 3);
+    explorer.stop();
+}
+
+#[test]
+fn the_aids_reach_the_underlay_and_the_print() {
+    // Each aid asked for changes the underlay; `grid=off` is the bare wireframe (fewer
+    // inked pixels than the plain underlay); a division of an item the scene does not
+    // label is refused naming `divide`, with the labels it does have. A print carries
+    // the aids too.
+    let (_dir, explorer, _, out) = start("aids");
+    let base = "/underlay.png?x=1.5&y=-4&heading=10&w=512&h=256";
+    let inked = |query: &str| {
+        let answer = get(&explorer, &format!("{base}&{query}"));
+        assert_eq!(answer.status, 200, "{query}: {}", answer.text());
+        let (_, _, grey) = common::read_png_grey(&answer.body);
+        grey
+    };
+    let plain = inked("grid=on");
+    assert_eq!(plain, inked("t=1"), "the defaults are the plain underlay");
+    for query in [
+        "step=5",
+        "labels=on",
+        "names=on",
+        "vanishing=on",
+        "fan=30",
+        "pole_x=5&pole_y=-3",
+        "divide=clock+tower&parts=3",
+    ] {
+        let changed = plain
+            .iter()
+            .zip(inked(query))
+            .filter(|(a, b)| **a != *b)
+            .count();
+        assert!(changed > 50, "{query} changed {changed} pixels");
+    }
+    let dark = |grey: &[u8]| grey.iter().filter(|&&g| g < 250).count();
+    let bare = inked("grid=off&labels=on&fan=30");
+    assert!(dark(&bare) * 2 < dark(&plain), "grid=off is not bare");
+    let answer = get(&explorer, &format!("{base}&divide=no+such+thing"));
+    assert_eq!(answer.status, 400);
+    assert!(
+        answer.text().contains("'divide'") && answer.text().contains("clock tower"),
+        "{}",
+        answer.text()
+    );
+    let token = explorer.token().to_owned();
+    let origin = own_origin(&explorer);
+    let mut printed = Vec::new();
+    for aids in [r#""grid":"on""#, r#""grid":"off""#] {
+        let body = format!(r#"{{"x":1.5,"y":-4,"paper":"A4","format":"png",{aids}}}"#);
+        let answer = post(&explorer, "/print", Some(&token), Some(&origin), &body);
+        assert_eq!(answer.status, 200, "{aids}: {}", answer.text());
+        printed.push(
+            std::fs::read(out.join(format!("square-view-{}.png", printed.len() + 1))).unwrap(),
+        );
+    }
+    let (_, _, with_grid) = common::read_png_grey(&printed[0]);
+    let (_, _, without) = common::read_png_grey(&printed[1]);
+    assert!(
+        dark(&without) < dark(&with_grid),
+        "the print ignored grid=off"
+    );
+    let body = r#"{"x":1.5,"y":-4,"format":"png","divide":"nothing here"}"#;
+    let answer = post(&explorer, "/print", Some(&token), Some(&origin), body);
+    assert_eq!(answer.status, 400, "{}", answer.text());
+    assert_eq!(files_in(&out).len(), 2);
     explorer.stop();
 }
 

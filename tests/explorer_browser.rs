@@ -104,12 +104,25 @@ const SETTLED: &str = "(() => { const e = window.pansiteExplorer; return !!(e &&
     window.pansiteSettled && window.pansiteSettled(); })()";
 
 fn mouse(tab: &Tab, kind: Input::DispatchMouseEventTypeOption, x: f64, y: f64, down: bool) {
+    mouse_with(tab, kind, (x, y), down, None);
+}
+
+/// Shift held, as the DevTools protocol numbers modifiers (Alt 1, Ctrl 2, Meta 4, Shift 8).
+const SHIFT: u32 = 8;
+
+fn mouse_with(
+    tab: &Tab,
+    kind: Input::DispatchMouseEventTypeOption,
+    (x, y): (f64, f64),
+    down: bool,
+    modifiers: Option<u32>,
+) {
     let released = matches!(kind, Input::DispatchMouseEventTypeOption::MouseReleased);
     tab.call_method(Input::DispatchMouseEvent {
         Type: kind,
         x,
         y,
-        modifiers: None,
+        modifiers,
         timestamp: None,
         button: Some(if down || released {
             Input::MouseButton::Left
@@ -290,6 +303,86 @@ fn the_page_in_chromium() {
     // The underlay shown equals `pansite render` for that standpoint.
     let (w, h, shown) = canvas_pixels(&tab, "underlay");
     same_as_render(&dir, &scene, (x, y, heading, eye), (w, h, &shown), &[]);
+
+    // The aids switched on from the page: the underlay shown equals `pansite render` with
+    // the options of the same meaning. The pole is placed by Shift-clicking the plan.
+    let pole_at = (5.0, -3.0);
+    let (pole_x, pole_y) = screen_of_site(&tab, &site, pole_at.0, pole_at.1);
+    mouse_with(&tab, MousePressed, (pole_x, pole_y), true, Some(SHIFT));
+    mouse_with(&tab, MouseReleased, (pole_x, pole_y), false, Some(SHIFT));
+    wait_for(
+        &tab,
+        "document.getElementById('aid-pole').checked",
+        "the pole to be placed",
+    );
+    let pole = eval(
+        &tab,
+        "[Number(document.getElementById('pole-x').value), Number(document.getElementById('pole-y').value)]",
+    );
+    let pole = (pole[0].as_f64().unwrap(), pole[1].as_f64().unwrap());
+    assert!(
+        (pole.0 - pole_at.0).abs() <= 1.5 / px_per_metre
+            && (pole.1 - pole_at.1).abs() <= 1.5 / px_per_metre,
+        "the pole went to {pole:?}, wanted {pole_at:?}"
+    );
+    let view_after = eval(&tab, "window.pansiteExplorer.view");
+    assert_eq!(
+        view_after["x"].as_f64(),
+        Some(x),
+        "Shift-click does not move"
+    );
+    set_aids(
+        &tab,
+        "set('grid-step', '15'); tick('aid-labels'); tick('aid-names'); tick('aid-vanishing'); \
+         set('fan-bearing', '30'); set('fan-step', '5'); tick('aid-fan'); \
+         set('divide-item', 'clock tower'); set('divide-parts', '3'); tick('aid-divide');",
+        "divide=clock",
+    );
+    screenshot(&tab, "aids.png");
+    let (w, h, with_aids) = canvas_pixels(&tab, "underlay");
+    let pole_arg = format!("{},{}", pole.0, pole.1);
+    same_as_render(
+        &dir,
+        &scene,
+        (x, y, heading, eye),
+        (w, h, &with_aids),
+        &[
+            "--grid",
+            "15",
+            "--labels",
+            "--item-labels",
+            "--vanishing",
+            "--fan",
+            "30,5",
+            "--pole",
+            &pole_arg,
+            "--divide-edges",
+            "clock tower:3",
+        ],
+    );
+    let changed = shown.iter().zip(&with_aids).filter(|(a, b)| a != b).count();
+    assert!(changed > 1000, "the aids changed only {changed} pixels");
+    // No grid: the bare wireframe, as `render --bare`, the other switches greyed out.
+    set_aids(&tab, "set('grid-step', 'off');", "grid=off");
+    assert_eq!(
+        eval(&tab, "document.getElementById('aids-over').disabled"),
+        serde_json::Value::Bool(true)
+    );
+    let (w, h, bare) = canvas_pixels(&tab, "underlay");
+    same_as_render(
+        &dir,
+        &scene,
+        (x, y, heading, eye),
+        (w, h, &bare),
+        &["--bare"],
+    );
+    // Back to the plain underlay for what follows.
+    set_aids(
+        &tab,
+        "set('grid-step', '10'); for (const id of ['aid-labels', 'aid-names', 'aid-vanishing', \
+         'aid-fan', 'aid-pole', 'aid-divide']) tick(id, false);",
+        "grid=on&step=10&labels=off&names=off&vanishing=off&tone",
+    );
 
     // Hover over a corner of the clock tower's pyramid roof: its apex is at (-17, -3, 24)
     // (the scene says Centre(-17, -3), apex 24). Azimuth and elevation from the eye,
@@ -495,6 +588,27 @@ fn the_page_in_chromium() {
     let washed = bare.iter().zip(&toned).filter(|(a, b)| a != b).count();
     assert!(washed > 1000, "the tone changed only {washed} pixels");
 
+    // The sun's switches show for a scene with a sun, set as its `sun` block says (no
+    // path, no seasons); the seasons switched on equal `render --seasons`.
+    assert_eq!(
+        eval(
+            &tab,
+            "[document.getElementById('sun-aids').hidden, document.getElementById('sun-path').checked, document.getElementById('sun-seasons').checked]"
+        ),
+        serde_json::json!([false, false, false])
+    );
+    set_aids(&tab, "tick('sun-seasons');", "seasons=on");
+    let (w, h, seasons) = canvas_pixels(&tab, "underlay");
+    same_as_render(
+        &dir,
+        &scene,
+        (at[0], at[1], at[2], at[3]),
+        (w, h, &seasons),
+        &["--shade-tone", "--seasons"],
+    );
+    let drawn = toned.iter().zip(&seasons).filter(|(a, b)| a != b).count();
+    assert!(drawn > 500, "the seasons changed only {drawn} pixels");
+
     // Timings, as the page measured them (request to decoded image; test profile).
     let stats = eval(
         &tab,
@@ -507,6 +621,26 @@ fn the_page_in_chromium() {
     drop(tab);
     drop(browser);
     Arc::try_unwrap(explorer).ok().unwrap().stop();
+}
+
+/// Sets the aids' controls by `script` (with `set(id, value)` and `tick(id, on = true)`,
+/// each firing the change the page listens to) and waits for the underlay asked for with
+/// `wanted` in its address.
+fn set_aids(tab: &Tab, script: &str, wanted: &str) {
+    let helpers = "const set = (id, v) => { const e = document.getElementById(id); e.value = v; \
+        e.dispatchEvent(new Event('change')); }; \
+        const tick = (id, on = true) => { const e = document.getElementById(id); e.checked = on; \
+        e.dispatchEvent(new Event('change')); };";
+    eval(tab, &format!("{helpers} {script} true"));
+    wait_for(
+        tab,
+        &format!(
+            "document.getElementById('underlay').dataset.shown.includes({})",
+            serde_json::Value::String(wanted.to_owned())
+        ),
+        wanted,
+    );
+    wait_for(tab, SETTLED, "the underlay with the aids asked for");
 }
 
 /// Asserts that the grey pixels `shown` (w x h) are `pansite render` of `scene` from

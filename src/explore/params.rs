@@ -1,8 +1,12 @@
 //! The page's requests as checked values: every parameter is a number or a word from a
-//! short list, in a stated range; anything else is refused with a message naming the
+//! short list, in a stated range, or (a division's item) a short label that the renderer
+//! looks up among the site's labels; anything else is refused with a message naming the
 //! parameter (the server answers 400). No parameter ever names a file.
 
-use crate::scene::{HiddenEdges, Standpoint};
+use crate::aids::AidSettings;
+use crate::render::SunChoice;
+use crate::scene::{Division, Fan, HiddenEdges, Pole, Slope, Standpoint, DEFAULT_FAN_STEP_DEG};
+use nalgebra::Point3;
 use std::collections::HashMap;
 
 /// The farthest a standpoint may be from the site's origin, metres.
@@ -14,6 +18,10 @@ pub const MAX_GROUND_M: f64 = 10_000.0;
 pub const MAX_PANE_WIDTH: u32 = 4096;
 pub const MAX_PANE_HEIGHT: u32 = 2048;
 pub const MIN_PANE_SIDE: u32 = 16;
+/// The longest item label a division may name, characters.
+pub const MAX_LABEL_CHARS: usize = 80;
+/// The most equal parts a division of the page may ask for.
+pub const MAX_PARTS: u32 = 100;
 /// The longest pane key (the page's name for one of its panes), characters.
 pub const MAX_KEY_CHARS: usize = 32;
 
@@ -149,6 +157,29 @@ impl Params {
         ))
     }
 
+    /// A switch: `on` or `off`, `default` when absent.
+    pub fn switch(&mut self, name: &'static str, default: bool) -> Result<bool, String> {
+        let default = if default { "on" } else { "off" };
+        Ok(self.word(name, &["on", "off"], default)? == "on")
+    }
+
+    /// A short line of text (an item's label): 1 to `MAX_LABEL_CHARS` characters, no
+    /// control characters; `None` when absent.
+    pub fn label(&mut self, name: &'static str) -> Result<Option<String>, String> {
+        self.used.push(name);
+        let Some(text) = self.values.get(name) else {
+            return Ok(None);
+        };
+        let count = text.chars().count();
+        if count == 0 || count > MAX_LABEL_CHARS || text.chars().any(char::is_control) {
+            return Err(format!(
+                "parameter '{name}': expected a label of 1 to {MAX_LABEL_CHARS} characters, got '{}'",
+                shown(text)
+            ));
+        }
+        Ok(Some(text.clone()))
+    }
+
     /// The page's name for a pane: letters, digits, `-` and `_`, at most 32.
     pub fn key(&mut self, name: &'static str) -> Result<String, String> {
         self.used.push(name);
@@ -229,6 +260,85 @@ pub fn tone(p: &mut Params) -> Result<Option<bool>, String> {
     })
 }
 
+/// The drawing aids of the underlay, each as `render`'s option of the same meaning:
+/// `grid=off` is the bare wireframe (`--bare`: no aid at all, the others are still read
+/// and checked); `step` the grid's spacing (`--grid`); `labels` (`--labels`), `names`
+/// (`--item-labels`) and `vanishing` (`--vanishing`) switches; `fan` a bearing with
+/// `fan_step` (`--fan BEARING,STEP`); `pole_x`, `pole_y` with `pole_step` and
+/// `pole_height` (`--pole X,Y,STEP,HEIGHT`); `divide` an item's label with `parts`
+/// (`--divide-edges LABEL:PARTS`).
+pub fn aids(p: &mut Params) -> Result<Option<AidSettings>, String> {
+    let grid = p.switch("grid", true)?;
+    let mut aids = AidSettings {
+        grid_step_deg: p.number("step", (0.5, 90.0), Some(10.0))?,
+        labels: p.switch("labels", false)?,
+        item_labels: p.switch("names", false)?,
+        vanishing_points: p.switch("vanishing", false)?,
+        ..AidSettings::default()
+    };
+    let fan = optional(p, "fan", (-360.0, 360.0))?;
+    let fan_step = p.number("fan_step", (1.0, 90.0), Some(DEFAULT_FAN_STEP_DEG))?;
+    if let Some(bearing_deg) = fan {
+        aids.guides.fans.push(Fan {
+            direction: Slope {
+                bearing_deg,
+                pitch_deg: 0.0,
+            },
+            step_deg: fan_step,
+        });
+    }
+    let reach = (-MAX_POSITION_M, MAX_POSITION_M);
+    let (pole_x, pole_y) = (optional(p, "pole_x", reach)?, optional(p, "pole_y", reach)?);
+    let step = p.number("pole_step", (0.01, 100.0), Some(1.0))?;
+    let height = p.number("pole_height", (0.1, 1000.0), Some(10.0))?;
+    match (pole_x, pole_y) {
+        (Some(x), Some(y)) => aids.guides.poles.push(Pole {
+            label: None,
+            foot: Point3::new(x, y, 0.0),
+            height,
+            step,
+            unit: 1.0,
+        }),
+        (None, None) => {}
+        _ => return Err("parameters 'pole_x' and 'pole_y' go together: give both".into()),
+    }
+    let item = p.label("divide")?;
+    let parts = p.whole("parts", (1, MAX_PARTS), Some(4))?;
+    if let Some(item) = item {
+        aids.guides.divisions.push(Division::Edges { item, parts });
+    }
+    Ok(grid.then_some(aids))
+}
+
+/// A number within `range`, or `None` when absent.
+fn optional(p: &mut Params, name: &'static str, range: (f64, f64)) -> Result<Option<f64>, String> {
+    if p.values.contains_key(name) {
+        p.number(name, range, None).map(Some)
+    } else {
+        p.used.push(name);
+        Ok(None)
+    }
+}
+
+/// The sun's drawing on the underlay: `tone` (see [`tone`]), `sun_path` (`--no-sun-path`
+/// when `off`) and `seasons` (`--seasons` when `on`), each `scene` (the default) leaving it
+/// to the scene's `sun` block.
+pub fn sun(p: &mut Params) -> Result<SunChoice, String> {
+    let either = |p: &mut Params, name| -> Result<Option<bool>, String> {
+        Ok(match p.word(name, &["scene", "on", "off"], "scene")? {
+            "on" => Some(true),
+            "off" => Some(false),
+            _ => None,
+        })
+    };
+    Ok(SunChoice {
+        tone: tone(p)?,
+        path: either(p, "sun_path")?,
+        seasons: either(p, "seasons")?,
+        ..SunChoice::default()
+    })
+}
+
 /// The size of a pane's image.
 pub fn size(p: &mut Params, max: (u32, u32)) -> Result<(u32, u32), String> {
     let w = p.whole("w", (MIN_PANE_SIDE, max.0), None)?;
@@ -294,6 +404,82 @@ mod tests {
                 "{error}"
             );
         }
+    }
+
+    #[test]
+    fn aids_are_read_as_render_reads_its_options() {
+        let mut p = params(
+            "/u?grid=on&step=15&labels=on&names=off&vanishing=on&fan=-30&fan_step=5\
+             &pole_x=4&pole_y=-10.5&pole_step=0.5&divide=clock+tower&parts=3",
+        );
+        let read = aids(&mut p).unwrap().unwrap();
+        assert!(p.finish().is_ok());
+        assert_eq!(read.grid_step_deg, 15.0);
+        assert!(read.labels && !read.item_labels && read.vanishing_points);
+        let fan = &read.guides.fans[0];
+        assert_eq!((fan.direction.bearing_deg, fan.step_deg), (-30.0, 5.0));
+        let pole = &read.guides.poles[0];
+        assert_eq!(
+            (pole.foot.x, pole.foot.y, pole.step, pole.height),
+            (4.0, -10.5, 0.5, 10.0)
+        );
+        assert_eq!(
+            read.guides.divisions,
+            vec![Division::Edges {
+                item: "clock tower".into(),
+                parts: 3
+            }]
+        );
+        // Absent: the plain underlay, the same settings as `render` without options.
+        let mut p = params("/u");
+        assert_eq!(aids(&mut p).unwrap(), Some(AidSettings::default()));
+        // Off: no aid, and the other aid parameters are still checked.
+        let mut p = params("/u?grid=off&labels=on");
+        assert_eq!(aids(&mut p).unwrap(), None);
+        assert!(p.finish().is_ok());
+        assert!(aids(&mut params("/u?grid=off&labels=yes")).is_err());
+    }
+
+    #[test]
+    fn malformed_aids_are_refused_by_name() {
+        for (query, name) in [
+            ("grid=10", "'grid'"),
+            ("step=0", "'step'"),
+            ("step=NaN", "'step'"),
+            ("labels=1", "'labels'"),
+            ("vanishing=ON", "'vanishing'"),
+            ("fan=north", "'fan'"),
+            ("fan=1e300", "'fan'"),
+            ("fan=30&fan_step=0", "'fan_step'"),
+            ("pole_x=3", "'pole_y'"),
+            ("pole_x=3&pole_y=inf", "'pole_y'"),
+            ("pole_x=3&pole_y=1&pole_step=0", "'pole_step'"),
+            ("pole_x=3&pole_y=1&pole_height=-2", "'pole_height'"),
+            ("divide=", "'divide'"),
+            ("divide=a%0Ab", "'divide'"),
+            ("divide=tower&parts=0", "'parts'"),
+            ("divide=tower&parts=100000", "'parts'"),
+        ] {
+            let error = aids(&mut params(&format!("/u?{query}"))).unwrap_err();
+            assert!(error.contains(name), "{query}: {error}");
+        }
+        let long = "x".repeat(MAX_LABEL_CHARS + 1);
+        assert!(aids(&mut params(&format!("/u?divide={long}"))).is_err());
+    }
+
+    #[test]
+    fn the_sun_switches_are_three_words_each() {
+        let mut p = params("/u?sun_path=off&seasons=on&tone=on");
+        let choice = sun(&mut p).unwrap();
+        assert!(p.finish().is_ok());
+        assert_eq!(
+            (choice.path, choice.seasons, choice.tone),
+            (Some(false), Some(true), Some(true))
+        );
+        assert_eq!(sun(&mut params("/u")).unwrap(), SunChoice::default());
+        assert!(sun(&mut params("/u?seasons=yes"))
+            .unwrap_err()
+            .contains("'seasons'"));
     }
 
     #[test]

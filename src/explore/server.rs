@@ -17,6 +17,7 @@ use super::keep::{keep_in_scene, new_scene_for_model, standpoint_entry};
 use super::params::{self, Params, MAX_PANE_HEIGHT, MAX_PANE_WIDTH};
 use super::source::{fingerprint, reload, Loaded, Reload, Source};
 use super::work::{Job, Pushed, Queue, RENDERERS};
+use crate::aids::AidSettings;
 use crate::budget::Budget;
 use crate::compose::{plan_map, preview_with_hidden_lines, PlanSettings, PreviewSettings};
 use crate::error::{Error, Result};
@@ -89,9 +90,11 @@ enum Task {
         standpoint: Standpoint,
         size: (u32, u32),
         hidden: Option<HiddenEdges>,
-        overlays: bool,
-        /// The shade tone: on, off, or (`None`) as the scene's `sun` block says.
-        tone: Option<bool>,
+        /// The drawing aids; `None` for the bare wireframe.
+        aids: Option<AidSettings>,
+        /// The shade tone, the sun's path and the seasons, where the page overrides the
+        /// scene's `sun` block.
+        sun: SunChoice,
     },
     Look {
         standpoint: Standpoint,
@@ -107,8 +110,9 @@ enum Task {
         paper: Paper,
         pdf: bool,
         hidden: Option<HiddenEdges>,
-        /// The shade tone, as for the underlay.
-        tone: Option<bool>,
+        /// The aids and the sun, as for the underlay.
+        aids: Option<AidSettings>,
+        sun: SunChoice,
     },
 }
 
@@ -540,8 +544,8 @@ fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
                 standpoint,
                 size,
                 hidden: params::hidden(p)?,
-                overlays: p.word("grid", &["on", "off"], "on")? == "on",
-                tone: params::tone(p)?,
+                aids: params::aids(p)?,
+                sun: params::sun(p)?,
             }
         }
         _ => Task::Look {
@@ -562,7 +566,8 @@ fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task,
         "A3",
     )?;
     let pdf = p.word("format", &["pdf", "png"], "pdf")? == "pdf";
-    let tone = params::tone(&mut p)?;
+    let aids = params::aids(&mut p)?;
+    let sun = params::sun(&mut p)?;
     p.finish()?;
     let paper = Paper::named(paper)
         .ok_or(format!("paper {paper} is not known"))?
@@ -572,7 +577,8 @@ fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task,
         paper,
         pdf,
         hidden,
-        tone,
+        aids,
+        sun,
     })
 }
 
@@ -649,18 +655,16 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             standpoint,
             size,
             hidden,
-            overlays,
-            tone,
+            aids,
+            sun,
         } => {
             let settings = RenderSettings {
                 width: size.0,
                 height: size.1,
                 hidden: *hidden,
-                overlays: *overlays,
-                sun: SunChoice {
-                    tone: *tone,
-                    ..SunChoice::default()
-                },
+                overlays: aids.is_some(),
+                aids: checked_aids(site, aids)?,
+                sun: sun.clone(),
                 time_limit: Some(PANE_TIME_LIMIT),
                 ..RenderSettings::default()
             };
@@ -717,9 +721,34 @@ fn draw_task(shared: &Shared, loaded: &Loaded, task: &Task) -> Result<Drawn> {
             paper,
             pdf,
             hidden,
-            tone,
-        } => print(shared, loaded, standpoint, paper, *pdf, *hidden, *tone).map(Drawn::Json),
+            aids,
+            sun,
+        } => {
+            let settings = RenderSettings {
+                hidden: *hidden,
+                overlays: aids.is_some(),
+                aids: checked_aids(site, aids)?,
+                sun: sun.clone(),
+                time_limit: Some(PRINT_TIME_LIMIT),
+                ..RenderSettings::default()
+            };
+            print(shared, loaded, standpoint, paper, *pdf, &settings).map(Drawn::Json)
+        }
     }
+}
+
+/// The page's aids (the defaults when the underlay is bare, since none is drawn then),
+/// with a division's label checked against the site as `render` checks it.
+fn checked_aids(site: &crate::scene::Site, aids: &Option<AidSettings>) -> Result<AidSettings> {
+    let Some(aids) = aids else {
+        return Ok(AidSettings::default());
+    };
+    crate::aids::check_divisions(site, &aids.guides.divisions).map_err(|error| {
+        let message = describe(&error);
+        let reason = message.strip_prefix("--divide-edges: ").unwrap_or(&message);
+        Error::Setting(format!("parameter 'divide': {reason}"))
+    })?;
+    Ok(aids.clone())
 }
 
 /// Writes the view on paper into the output folder, under a name made here (the scene's
@@ -730,8 +759,7 @@ fn print(
     standpoint: &Standpoint,
     paper: &Paper,
     pdf: bool,
-    hidden: Option<HiddenEdges>,
-    tone: Option<bool>,
+    settings: &RenderSettings,
 ) -> Result<serde_json::Value> {
     let site = &loaded.site;
     let dpi = if pdf { 300.0 } else { 150.0 };
@@ -743,16 +771,7 @@ fn print(
         title: Some(title_lines(site, standpoint, today())),
         tiles: None,
     };
-    let settings = RenderSettings {
-        hidden,
-        sun: SunChoice {
-            tone,
-            ..SunChoice::default()
-        },
-        time_limit: Some(PRINT_TIME_LIMIT),
-        ..RenderSettings::default()
-    };
-    let (sheets, _) = draw_sheets(site, standpoint, &settings, Some(&page), dpi)?;
+    let (sheets, _) = draw_sheets(site, standpoint, settings, Some(&page), dpi)?;
     std::fs::create_dir_all(&shared.output_dir).map_err(|source| Error::Write {
         path: shared.output_dir.clone(),
         source,
@@ -806,9 +825,24 @@ fn scene_json(shared: &Shared) -> serde_json::Value {
         .lock()
         .unwrap_or_else(|p| p.into_inner())
         .clone();
+    // The labels a division may name: items with a straight edge, as `render` checks.
+    let mut labels: Vec<&str> = site
+        .edges
+        .iter()
+        .filter(|e| matches!(e.curve, SiteCurve::Segment { .. }))
+        .filter_map(|e| site.items.get(e.item.0 as usize)?.label.as_deref())
+        .collect();
+    labels.sort_unstable();
+    labels.dedup();
+    let sun = site
+        .sun
+        .as_ref()
+        .map(|s| serde_json::json!({ "path": s.path, "seasons": s.seasons }));
     serde_json::json!({
         "name": site.name,
         "version": loaded.version,
+        "labels": labels,
+        "sun": sun,
         "standpoints": standpoints,
         "default": site.default_standpoint,
         "problem": problem,

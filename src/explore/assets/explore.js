@@ -34,13 +34,46 @@ function hiddenQuery() {
   return `hidden=${$("hidden").value}`;
 }
 
+// The aids asked of the underlay (and of a print), as the server's parameters: each means
+// what `pansite render`'s option of the same job means, so the page draws what it would.
+function aidParams() {
+  const step = $("grid-step").value;
+  if (step === "off") return { grid: "off" };
+  const on = (id) => ($(id).checked ? "on" : "off");
+  const p = { grid: "on", step, labels: on("aid-labels"), names: on("aid-names"),
+    vanishing: on("aid-vanishing") };
+  const bearing = Number($("fan-bearing").value);
+  if ($("aid-fan").checked && $("fan-bearing").value !== "" && Number.isFinite(bearing)) {
+    p.fan = bearing;
+    p.fan_step = $("fan-step").value;
+  }
+  const [px, py] = [$("pole-x").value, $("pole-y").value];
+  if ($("aid-pole").checked && px !== "" && py !== "") {
+    p.pole_x = Number(px);
+    p.pole_y = Number(py);
+  }
+  if ($("aid-divide").checked && $("divide-item").value) {
+    p.divide = $("divide-item").value;
+    p.parts = $("divide-parts").value;
+  }
+  if (scene && scene.sun) {
+    p.sun_path = on("sun-path");
+    p.seasons = on("sun-seasons");
+  }
+  return p;
+}
+
+function aidQuery() {
+  return new URLSearchParams(aidParams()).toString();
+}
+
 // Each pane has at most one request in flight; while it is out, only the latest wish is
 // remembered and asked for when it returns (the server also replaces waiting requests).
 const panes = {
   underlay: { busy: false, again: false, url: () => {
     const c = $("underlay");
     return `/underlay.png?${standpointQuery(view.heading, view.pitch)}&w=${c.width}&h=${c.height}` +
-      `&${hiddenQuery()}&grid=${$("grid").checked ? "on" : "off"}&tone=${$("tone").value}` +
+      `&${hiddenQuery()}&${aidQuery()}&tone=${$("tone").value}` +
       `&pane=u${pageId}`;
   } },
   look: { busy: false, again: false, url: () => {
@@ -164,6 +197,37 @@ function drawPlan() {
   g.fillStyle = "#fff";
   g.fill();
   g.stroke();
+  // The measuring pole, if one is asked for: a small square.
+  const pole = aidParams();
+  if (pole.pole_x !== undefined) {
+    const [qx, qy] = toPlan(pole.pole_x, pole.pole_y);
+    g.strokeStyle = "#a3402a";
+    g.lineWidth = 2;
+    g.strokeRect(qx - 4, qy - 4, 8, 8);
+  }
+}
+
+// Places the pole (Shift-click on the plan), switching it on.
+function placePole(x, y) {
+  $("pole-x").value = round(x, 2);
+  $("pole-y").value = round(y, 2);
+  $("aid-pole").checked = true;
+}
+
+// A switched-on fan or pole with no values yet starts from the view: the fan towards the
+// heading, the pole ten metres ahead.
+function fillAidDefaults() {
+  if ($("aid-fan").checked && $("fan-bearing").value === "") {
+    $("fan-bearing").value = Math.round(view.heading);
+  }
+  if ($("aid-pole").checked && ($("pole-x").value === "" || $("pole-y").value === "")) {
+    const h = (view.heading * Math.PI) / 180;
+    placePole(view.x + 10 * Math.sin(h), view.y + 10 * Math.cos(h));
+  }
+}
+
+function showAidSwitches() {
+  $("aids-over").disabled = $("grid-step").value === "off";
 }
 
 let drag = null;
@@ -182,6 +246,11 @@ function setLookTo(azimuth) {
 function planDown(event) {
   if (!plan) return;
   const [px, py] = planPoint(event);
+  if (event.shiftKey) {
+    placePole(...fromPlan(px, py));
+    redraw();
+    return;
+  }
   const [tx, ty] = arrowTip();
   $("plan").setPointerCapture(event.pointerId);
   if (Math.hypot(px - tx, py - ty) <= 10) {
@@ -343,6 +412,27 @@ function viewBody() {
     hidden: $("hidden").value };
 }
 
+// The items a division may name, and the sun's switches when the scene has a sun.
+function showSceneAids() {
+  const select = $("divide-item");
+  const chosen = select.value;
+  select.replaceChildren();
+  for (const label of scene.labels || []) {
+    const option = document.createElement("option");
+    option.value = label;
+    option.textContent = label;
+    select.appendChild(option);
+  }
+  if ((scene.labels || []).includes(chosen)) select.value = chosen;
+  $("aid-divide").disabled = !(scene.labels || []).length;
+  const box = $("sun-aids");
+  if (scene.sun && box.hidden) {
+    $("sun-path").checked = scene.sun.path;
+    $("sun-seasons").checked = scene.sun.seasons;
+  }
+  box.hidden = !scene.sun;
+}
+
 async function keep() {
   const name = $("keep-name").value.trim();
   if (!name) { say("give the standpoint a name first", true); return; }
@@ -363,6 +453,7 @@ async function print() {
   body.paper = $("paper").value;
   body.format = $("format").value;
   body.tone = $("tone").value;
+  Object.assign(body, aidParams());
   say("printing...");
   const [status, answer] = await post("/print", body);
   say(status === 200 ? `written: ${answer.file}` : answer.error || `refused (${status})`, status !== 200);
@@ -391,6 +482,7 @@ async function loadScene(first) {
   $("keep").title = scene.keep ? "" : scene.no_keep_reason;
   if (!scene.keep) say(`keeping standpoints is off: ${scene.no_keep_reason}`);
   showProblem(scene.problem);
+  showSceneAids();
   await loadPlan();
   redraw();
 }
@@ -468,7 +560,10 @@ function start() {
   $("standing").addEventListener("click", () => { view.eye = scene.standing_eye; redraw(); });
   $("seated").addEventListener("click", () => { view.eye = scene.seated_eye; redraw(); });
   $("hidden").addEventListener("change", redraw);
-  $("grid").addEventListener("change", redraw);
+  const aidChanged = () => { fillAidDefaults(); showAidSwitches(); ask("underlay"); drawPlan(); };
+  for (const input of document.querySelectorAll("#aids input, #aids select")) {
+    input.addEventListener("change", aidChanged);
+  }
   $("tone").addEventListener("change", () => ask("underlay"));
   $("fov").addEventListener("input", () => { showWhere(); ask("look"); drawPlan(); });
   $("keep").addEventListener("click", keep);
