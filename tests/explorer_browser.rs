@@ -433,7 +433,81 @@ fn the_page_in_chromium() {
         readout.as_str().unwrap().contains("clock tower"),
         "{readout}"
     );
+    // The nearest corner is the apex itself, at the distance worked from the scene.
+    let probe = eval(&tab, "window.pansiteExplorer.probe");
+    let corner = &probe["corner"];
+    let at = ["x", "y", "z"].map(|k| corner[k].as_f64().unwrap());
+    assert!(
+        at.iter()
+            .zip([apex.0, apex.1, apex.2])
+            .all(|(a, b)| (a - b).abs() < 1e-9),
+        "{probe}"
+    );
+    // The page sends positions to the millimetre: the server's eye is there.
+    let (xr, yr, er) = (round3(x), round3(y), round3(eye));
+    let apex_distance =
+        ((apex.0 - xr).powi(2) + (apex.1 - yr).powi(2) + (apex.2 - er).powi(2)).sqrt();
+    assert!(
+        (corner["distance"].as_f64().unwrap() - apex_distance).abs() < 1e-9
+            && corner["off_deg"].as_f64().unwrap() <= 1.5 * pixel_deg,
+        "{probe}: the apex is {apex_distance} m away"
+    );
+
+    // Hover over the south face of the hall platform (the scene: Corner(-12.5, 7.6), 25 by
+    // 13, 0.45 high, so the face is y = 7.6 for x from -12.5 to 12.5, z up to 0.45), with
+    // nothing between the eye and it. The distance read out is where the direction read
+    // out meets that plane; the nearest corner is the corner of the scene whose direction
+    // is closest, both worked out here.
+    let aim = (8.0, 7.6, 0.225);
+    let (sx, sy) = underlay_screen(&tab, (x, y, eye, heading), (w, h), aim);
+    mouse(&tab, MouseMoved, sx, sy, false);
+    wait_for(
+        &tab,
+        &format!("Number(document.getElementById('readout').dataset.azimuth) !== {read_az}"),
+        "the read-out over the platform",
+    );
+    wait_for(
+        &tab,
+        "(() => { const p = window.pansiteExplorer.probe; \
+        return !!p && Math.abs(p.elevation) < 20; })()",
+        "the platform's probe",
+    );
+    std::thread::sleep(Duration::from_millis(300));
+    let probe = eval(&tab, "window.pansiteExplorer.probe");
+    let (az, el) = (
+        probe["azimuth"].as_f64().unwrap().to_radians(),
+        probe["elevation"].as_f64().unwrap().to_radians(),
+    );
+    let direction = [el.cos() * az.sin(), el.cos() * az.cos(), el.sin()];
+    let along = (aim.1 - yr) / direction[1];
+    let hit = [xr + along * direction[0], aim.1, er + along * direction[2]];
+    assert!(
+        hit[0].abs() < 12.5 && (0.0..0.45).contains(&hit[2]),
+        "the direction read out, {probe}, misses the platform's face at {hit:?}"
+    );
+    let distance = probe["distance"]
+        .as_f64()
+        .expect("a face under the pointer");
+    assert!(
+        (distance - along).abs() < 1e-6,
+        "distance {distance}, worked out {along}"
+    );
+    let readout = eval(&tab, "document.getElementById('readout').textContent");
+    assert!(
+        readout
+            .as_str()
+            .unwrap()
+            .contains(&format!("distance {along:.2} m")),
+        "{readout}"
+    );
+    let (nearest, _) = nearest_corner(&site, (xr, yr, er), direction);
+    let corner = &probe["corner"];
+    let at = ["x", "y", "z"].map(|k| corner[k].as_f64().unwrap());
+    assert_eq!(at, nearest, "{probe}");
+
     // A click keeps the point in the table.
+    let (sx, sy) = underlay_screen(&tab, (x, y, eye, heading), (w, h), apex);
+    mouse(&tab, MouseMoved, sx, sy, false);
     mouse(&tab, MousePressed, sx, sy, true);
     mouse(&tab, MouseReleased, sx, sy, false);
     wait_for(
@@ -464,6 +538,120 @@ fn the_page_in_chromium() {
         "Alt with an arrow key",
     );
     wait_for(&tab, SETTLED, "the drawing after the keys");
+
+    // A click on the plan (no drag) stands there: the underlay is then `render` from there.
+    let spot = (-4.0, -1.0);
+    let (cx, cy) = screen_of_site(&tab, &site, spot.0, spot.1);
+    mouse(&tab, MouseMoved, cx, cy, false);
+    mouse(&tab, MousePressed, cx, cy, true);
+    mouse(&tab, MouseReleased, cx, cy, false);
+    wait_for(&tab, SETTLED, "the drawing after the click");
+    let view = eval(&tab, "window.pansiteExplorer.view");
+    let [x, y, heading, eye] = ["x", "y", "heading", "eye"].map(|k| view[k].as_f64().unwrap());
+    assert!(
+        (x - spot.0).abs() <= 1.5 / px_per_metre && (y - spot.1).abs() <= 1.5 / px_per_metre,
+        "clicked at {spot:?}, standing at ({x}, {y})"
+    );
+    let (w, h, shown) = canvas_pixels(&tab, "underlay");
+    same_as_render(&dir, &scene, (x, y, heading, eye), (w, h, &shown), &[]);
+
+    // The look-around turns towards where the standpoint is dragged: dragged south-east
+    // (as many screen pixels right as down) it looks at azimuth 135, and shows the
+    // library's perspective preview for that direction with the field chosen (60 degrees).
+    eval(
+        &tab,
+        "const f = document.getElementById('fov'); f.value = '60'; f.dispatchEvent(new Event('input')); true",
+    );
+    mouse(&tab, MousePressed, cx, cy, true);
+    for step in 1..=4 {
+        let d = 10.0 * step as f64;
+        mouse(&tab, MouseMoved, cx + d, cy + d, true);
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    mouse(&tab, MouseReleased, cx + 40.0, cy + 40.0, false);
+    wait_for(&tab, SETTLED, "the drawings after the south-east drag");
+    let look = eval(&tab, "window.pansiteExplorer.look");
+    assert!(
+        (look["azimuth"].as_f64().unwrap() - 135.0).abs() < 1e-9,
+        "{look}"
+    );
+    let shown_look = eval(&tab, "document.getElementById('look').dataset.shown");
+    let asked = query_numbers(shown_look.as_str().unwrap());
+    assert_eq!(
+        (asked["heading"], asked["fov"]),
+        (135.0, 60.0),
+        "{shown_look}"
+    );
+    let (lw, lh, look_pixels) = canvas_pixels(&tab, "look");
+    assert_eq!((asked["w"], asked["h"]), (lw as f64, lh as f64));
+    let mut looking = pansite::scene::Standpoint::from_degrees(
+        "look",
+        asked["x"],
+        asked["y"],
+        asked["eye"],
+        135.0,
+        asked["pitch"],
+        0.0,
+    );
+    looking.ground = asked["ground"];
+    // The pane's line weight and tolerance are the server's (src/explore/server.rs).
+    let preview = pansite::compose::preview(
+        &site,
+        &looking,
+        &pansite::compose::PreviewSettings {
+            width: lw,
+            height: lh,
+            fov_deg: 60.0,
+            line_weight_px: 1.2,
+            tolerance_px: 0.25,
+            hidden: None,
+        },
+    )
+    .unwrap();
+    let expected = pansite::output::rasterize(&preview).pixels;
+    assert_same_pixels(
+        &look_pixels,
+        &expected,
+        "the library's preview at azimuth 135",
+    );
+    screenshot(&tab, "look-around.png");
+
+    // Dragging the arrow's head turns the heading to point at the pointer (to azimuth 250
+    // here); the look-around follows, and the underlay is `render` with that heading.
+    let view = eval(&tab, "window.pansiteExplorer.view");
+    let [x, y, heading, eye] = ["x", "y", "heading", "eye"].map(|k| view[k].as_f64().unwrap());
+    let (px, py) = screen_of_site(&tab, &site, x, y);
+    let scale = eval(
+        &tab,
+        "document.getElementById('plan').getBoundingClientRect().width / 360",
+    )
+    .as_f64()
+    .unwrap();
+    // The arrow is 34 plan pixels long (explore.js, ARROW_PX).
+    let towards = |bearing: f64, length: f64| {
+        let b = bearing.to_radians();
+        (px + length * scale * b.sin(), py - length * scale * b.cos())
+    };
+    let tip = towards(heading, 34.0);
+    mouse(&tab, MouseMoved, tip.0, tip.1, false);
+    mouse(&tab, MousePressed, tip.0, tip.1, true);
+    for bearing in [heading + 20.0, 200.0, 230.0, 250.0] {
+        let (mx, my) = towards(bearing, 60.0);
+        mouse(&tab, MouseMoved, mx, my, true);
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    let end = towards(250.0, 60.0);
+    mouse(&tab, MouseReleased, end.0, end.1, false);
+    wait_for(&tab, SETTLED, "the drawings after turning");
+    let view = eval(&tab, "window.pansiteExplorer.view");
+    let turned = view["heading"].as_f64().unwrap();
+    // A screen pixel at 60 pixels from the standpoint is about a degree.
+    assert!((turned - 250.0).abs() <= 1.0, "turned to {turned}");
+    assert_eq!(view["x"].as_f64(), Some(x), "turning does not move");
+    let look = eval(&tab, "window.pansiteExplorer.look");
+    assert!((look["azimuth"].as_f64().unwrap() - turned).abs() < 1e-9);
+    let (w, h, shown) = canvas_pixels(&tab, "underlay");
+    same_as_render(&dir, &scene, (x, y, turned, eye), (w, h, &shown), &[]);
 
     // Saving the scene (by renaming, as editors do) updates the page.
     let version = eval(&tab, "document.getElementById('underlay').dataset.version");
@@ -621,6 +809,93 @@ fn the_page_in_chromium() {
     drop(tab);
     drop(browser);
     Arc::try_unwrap(explorer).ok().unwrap().stop();
+}
+
+/// Where the image of the site point `at` lies on the screen, over the underlay drawn from
+/// (x, y, eye, heading) at w x h (the crate's image mapping; azimuth by atan2, clockwise
+/// from north).
+fn underlay_screen(
+    tab: &Tab,
+    (x, y, eye, heading): (f64, f64, f64, f64),
+    (w, h): (u32, u32),
+    at: (f64, f64, f64),
+) -> (f64, f64) {
+    let (dx, dy, dz) = (at.0 - x, at.1 - y, at.2 - eye);
+    let azimuth = dx.atan2(dy).to_degrees();
+    let elevation = dz.atan2(dx.hypot(dy)).to_degrees();
+    let u = (azimuth - heading + 180.0).rem_euclid(360.0) / 360.0 * w as f64;
+    let v = (90.0 - elevation) / 180.0 * h as f64;
+    let rect = eval(
+        tab,
+        "(() => { const r = document.getElementById('underlay').getBoundingClientRect(); return [r.left, r.top, r.width]; })()",
+    );
+    let scale = rect[2].as_f64().unwrap() / w as f64;
+    (
+        rect[0].as_f64().unwrap() + u * scale,
+        rect[1].as_f64().unwrap() + v * scale,
+    )
+}
+
+/// The corner of the scene (an end of a straight edge) whose direction from `eye` is
+/// closest to `direction`, by brute force, the angle as atan2(|a x b|, a . b).
+fn nearest_corner(
+    site: &pansite::scene::Site,
+    eye: (f64, f64, f64),
+    direction: [f64; 3],
+) -> ([f64; 3], f64) {
+    let mut best = ([f64::NAN; 3], f64::INFINITY);
+    for edge in &site.edges {
+        let pansite::scene::SiteCurve::Segment { start, end } = edge.curve else {
+            continue;
+        };
+        for p in [start, end] {
+            let a = [p.x - eye.0, p.y - eye.1, p.z - eye.2];
+            let b = direction;
+            let cross = [
+                a[1] * b[2] - a[2] * b[1],
+                a[2] * b[0] - a[0] * b[2],
+                a[0] * b[1] - a[1] * b[0],
+            ];
+            let dot = a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
+            let angle = (cross[0].powi(2) + cross[1].powi(2) + cross[2].powi(2))
+                .sqrt()
+                .atan2(dot);
+            if angle < best.1 {
+                best = ([p.x, p.y, p.z], angle);
+            }
+        }
+    }
+    best
+}
+
+/// The numbers of a request's query, by name (the page's own addresses: plain numbers).
+fn query_numbers(url: &str) -> std::collections::HashMap<String, f64> {
+    url.split_once('?')
+        .map_or("", |(_, q)| q)
+        .split('&')
+        .filter_map(|pair| {
+            let (name, value) = pair.split_once('=')?;
+            Some((name.to_owned(), value.parse().ok()?))
+        })
+        .collect()
+}
+
+/// No pixel may differ by more than 8 grey levels in more than 0.1 % of the image
+/// (decoding and drawing may round a level), and the image is not blank.
+fn assert_same_pixels(shown: &[u8], expected: &[u8], what: &str) {
+    assert_eq!(shown.len(), expected.len(), "{what}: sizes differ");
+    let differing = shown
+        .iter()
+        .zip(expected)
+        .filter(|(a, b)| (**a as i32 - **b as i32).abs() > 8)
+        .count();
+    let dark = expected.iter().filter(|p| **p < 128).count();
+    assert!(dark > 1000, "{what} is nearly blank");
+    assert!(
+        differing * 1000 <= shown.len(),
+        "{differing} of {} pixels differ from {what}",
+        shown.len()
+    );
 }
 
 /// Sets the aids' controls by `script` (with `set(id, value)` and `tick(id, on = true)`,
