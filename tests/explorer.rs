@@ -1,6 +1,7 @@
 //! The explorer's server over plain HTTP (a hand-written client on a TCP socket, so that
 //! malformed requests can be sent too): the door checks, range checks, keeping a standpoint
-//! byte for byte, printing into the output folder only, and a load of 1,000 renders.
+//! byte for byte, printing into the output folder only, the aids' parameters; and the
+//! `explore` command itself (its warning when it listens beyond this computer, `--open`).
 
 mod common;
 use common::Scratch;
@@ -694,4 +695,127 @@ fn a_newer_request_for_a_pane_replaces_a_waiting_one() {
     let replaced = statuses.iter().filter(|s| **s == 204).count();
     assert!(replaced >= 6, "{statuses:?}");
     Arc::try_unwrap(explorer).ok().unwrap().stop();
+}
+
+/// `pansite explore` run as a command, its output read line by line; killed (by its own
+/// process id) when dropped, so that a failing check leaves nothing running.
+struct Running {
+    child: std::process::Child,
+    stdout: std::io::Lines<std::io::BufReader<std::process::ChildStdout>>,
+}
+
+impl Running {
+    fn start(args: &[&std::ffi::OsStr], path_first: Option<&Path>) -> Running {
+        let mut command = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"));
+        command
+            .arg("explore")
+            .args(args)
+            .stdin(std::process::Stdio::null())
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped());
+        if let Some(dir) = path_first {
+            let path = std::env::var_os("PATH").unwrap_or_default();
+            let mut dirs = vec![dir.to_owned()];
+            dirs.extend(std::env::split_paths(&path));
+            command.env("PATH", std::env::join_paths(dirs).unwrap());
+        }
+        let mut child = command.spawn().unwrap();
+        let stdout = std::io::BufRead::lines(std::io::BufReader::new(child.stdout.take().unwrap()));
+        Running { child, stdout }
+    }
+
+    /// The next line it prints on standard output.
+    fn line(&mut self) -> String {
+        self.stdout
+            .next()
+            .expect("the command printed a line")
+            .unwrap()
+    }
+
+    /// Stops it and returns what it wrote on standard error.
+    fn stop(mut self) -> String {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+        let mut text = String::new();
+        if let Some(mut stderr) = self.child.stderr.take() {
+            stderr.read_to_string(&mut text).unwrap();
+        }
+        text
+    }
+}
+
+impl Drop for Running {
+    fn drop(&mut self) {
+        let _ = self.child.kill();
+        let _ = self.child.wait();
+    }
+}
+
+/// The port of an address printed as `http://127.0.0.1:PORT/?token=...`.
+fn printed_port(line: &str) -> u16 {
+    let (_, after) = line.split_once("http://127.0.0.1:").expect(line);
+    after.split('/').next().unwrap().parse().expect(line)
+}
+
+#[test]
+fn the_command_warns_when_it_listens_beyond_this_computer() {
+    let dir = Scratch::new("explorer-listen");
+    let scene = dir.write("square.ron", demo());
+    let mut running = Running::start(
+        &[
+            scene.as_os_str(),
+            "--listen".as_ref(),
+            "0.0.0.0".as_ref(),
+            "--port".as_ref(),
+            "0".as_ref(),
+        ],
+        None,
+    );
+    let first = running.line();
+    assert!(
+        first.contains("at http://127.0.0.1:") && first.contains("/?token="),
+        "{first}"
+    );
+    // Listening on every address: it serves this computer's loopback too.
+    let port = printed_port(&first);
+    let address = std::net::SocketAddr::from(([127, 0, 0, 1], port));
+    let raw = format!("GET / HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n\r\n");
+    let answer = send_to(address, raw.as_bytes());
+    assert_eq!(answer.status, 200);
+    let stderr = running.stop();
+    assert!(
+        stderr.contains("warning: listening on 0.0.0.0")
+            && stderr.contains("other computers that reach this address can use the page"),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn the_command_opens_the_printed_address_and_warns_of_nothing_on_loopback() {
+    // The desktop's opener (`xdg-open`) replaced by a script that writes down what it was
+    // asked to open.
+    let dir = Scratch::new("explorer-open");
+    let scene = dir.write("square.ron", demo());
+    let bin = dir.path("bin");
+    std::fs::create_dir_all(&bin).unwrap();
+    let opened = dir.path("opened.txt");
+    let opener = dir.write(
+        "bin/xdg-open",
+        format!("#!/bin/sh\nprintf '%s' \"$1\" > '{}'\n", opened.display()),
+    );
+    use std::os::unix::fs::PermissionsExt;
+    std::fs::set_permissions(&opener, std::fs::Permissions::from_mode(0o755)).unwrap();
+    let mut running = Running::start(&[scene.as_os_str(), "--open".as_ref()], Some(&bin));
+    let first = running.line();
+    let url = first.rsplit(' ').next().unwrap().to_owned();
+    assert!(url.starts_with("http://127.0.0.1:"), "{first}");
+    let started = std::time::Instant::now();
+    while !opened.exists() && started.elapsed() < Duration::from_secs(20) {
+        std::thread::sleep(Duration::from_millis(50));
+    }
+    std::thread::sleep(Duration::from_millis(100));
+    let asked = std::fs::read_to_string(&opened).expect("the opener was called");
+    assert_eq!(asked, url);
+    let stderr = running.stop();
+    assert!(!stderr.contains("warning"), "{stderr}");
 }
