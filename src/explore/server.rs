@@ -135,6 +135,9 @@ struct Shared {
     file_lock: Mutex<()>,
     /// The bytes of the scene beside a model as last read or written (None: no file).
     beside_bytes: Mutex<Option<Vec<u8>>>,
+    /// Renders in progress and the most ever at once: counted for the unit tests only.
+    #[cfg(test)]
+    rendering: (AtomicUsize, AtomicUsize),
 }
 
 /// A running explorer.
@@ -187,6 +190,8 @@ impl Explorer {
             stopping: AtomicBool::new(false),
             file_lock: Mutex::new(()),
             beside_bytes: Mutex::new(beside_bytes),
+            #[cfg(test)]
+            rendering: (AtomicUsize::new(0), AtomicUsize::new(0)),
         });
         let server = Arc::new(server);
         let mut threads = Vec::new();
@@ -610,10 +615,17 @@ fn current(shared: &Shared) -> Arc<Loaded> {
 /// and the renderer carries on.
 fn render(shared: &Shared, job: Job<Task, Request>) {
     let loaded = current(shared);
+    #[cfg(test)]
+    {
+        let now = shared.rendering.0.fetch_add(1, Ordering::SeqCst) + 1;
+        shared.rendering.1.fetch_max(now, Ordering::SeqCst);
+    }
     let started = Instant::now();
     let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
         draw_task(shared, &loaded, &job.task)
     }));
+    #[cfg(test)]
+    shared.rendering.0.fetch_sub(1, Ordering::SeqCst);
     let elapsed = started.elapsed().as_secs_f64() * 1000.0;
     let waited = (started - job.received).as_secs_f64() * 1000.0;
     let response = match outcome {
@@ -1127,6 +1139,58 @@ fn open_stream(shared: &Arc<Shared>, request: Request) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use std::net::TcpStream;
+
+    /// A GET over a fresh connection to `explorer`: the answer's status.
+    fn status_of(explorer: &Explorer, path: &str) -> u16 {
+        let mut stream = TcpStream::connect(explorer.address()).unwrap();
+        stream
+            .set_read_timeout(Some(Duration::from_secs(120)))
+            .unwrap();
+        let port = explorer.address().port();
+        let raw =
+            format!("GET {path} HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\nConnection: close\r\n\r\n");
+        stream.write_all(raw.as_bytes()).unwrap();
+        let mut bytes = Vec::new();
+        stream.read_to_end(&mut bytes).unwrap();
+        std::str::from_utf8(&bytes[9..12]).unwrap().parse().unwrap()
+    }
+
+    #[test]
+    fn at_most_two_renders_run_at_once() {
+        // Sixteen panes ask for a large underlay with hidden lines at the same moment: every
+        // one is answered with an image, and the renders in progress, counted as they start
+        // and end, never number more than two (and do reach two: both renderers work).
+        let scene =
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/wexcombe-square.ron");
+        let output =
+            std::env::temp_dir().join(format!("pansite-at-most-two-{}", std::process::id()));
+        let explorer = Arc::new(
+            Explorer::start(ExploreSettings::new(Source::Scene(scene), output.clone())).unwrap(),
+        );
+        let start = Arc::new(std::sync::Barrier::new(16));
+        let clients: Vec<_> = (0..16)
+            .map(|pane| {
+                let (explorer, start) = (explorer.clone(), start.clone());
+                std::thread::spawn(move || {
+                    start.wait();
+                    let path = format!(
+                        "/underlay.png?x={}&y=-4&heading=10&w=1024&h=512&hidden=faint&pane=p{pane}",
+                        pane as f64 * 0.25
+                    );
+                    status_of(&explorer, &path)
+                })
+            })
+            .collect();
+        for client in clients {
+            assert_eq!(client.join().unwrap(), 200);
+        }
+        let shared = &explorer.shared;
+        assert_eq!(shared.rendering.0.load(Ordering::SeqCst), 0);
+        assert_eq!(shared.rendering.1.load(Ordering::SeqCst), 2);
+        assert!(!output.exists(), "nothing is written");
+        Arc::try_unwrap(explorer).ok().unwrap().stop();
+    }
 
     #[test]
     fn tokens_differ_and_compare_whole() {
