@@ -4,9 +4,11 @@
 //!
 //! Routes (every other path is 404):
 //! - `GET /`, `/explore.css`, `/explore.js`: the page, compiled in;
-//! - `GET /scene`: the scene's name, standpoints, version, error and what can be kept (JSON);
+//! - `GET /scene`: the scene's name, standpoints, version, error, what can be kept, the
+//!   labels a division may name and the scene's sun switches (JSON);
 //! - `GET /plan.png?w&h`, `/underlay.png?...`, `/look.png?...`: images, drawn by the
-//!   renderers; the plan's scale and origin come in `X-Plan-*` headers;
+//!   renderers (the underlay's aids and sun switches are `render`'s options of the same
+//!   meaning, see `params::aids`); the plan's scale and origin come in `X-Plan-*` headers;
 //! - `GET /probe?...&u&v&w&h`: the direction under a point of the underlay (JSON);
 //! - `GET /events`: server-sent events, `scene` when the file was read again, `problem`
 //!   when it could not be;

@@ -423,7 +423,12 @@ function showSceneAids() {
     option.textContent = label;
     select.appendChild(option);
   }
-  if ((scene.labels || []).includes(chosen)) select.value = chosen;
+  if ((scene.labels || []).includes(chosen)) {
+    select.value = chosen;
+  } else if (chosen) {
+    // The item divided is gone from the saved scene: divide nothing rather than another.
+    $("aid-divide").checked = false;
+  }
   $("aid-divide").disabled = !(scene.labels || []).length;
   const box = $("sun-aids");
   if (scene.sun && box.hidden) {
