@@ -360,3 +360,109 @@ fn an_outline_holding_a_building_part_is_drawn_by_its_parts_alone() {
     let middle = far_one[0].iter().map(|p| p.x).sum::<f64>() / far_one[0].len() as f64;
     assert!(middle > 200.0, "{middle}");
 }
+
+#[test]
+fn a_mapped_dome_rises_its_roof_height_and_its_outline_is_the_tangent_conics_give() {
+    // A round building mapped as a 32-sided polygon of radius 8 m, 60 m north of the
+    // standpoint, tagged `height=14`, `roof:shape=dome`, `roof:height=6`: by the simple 3D
+    // buildings conventions (common practice in mapping) its walls stand 8 m and the
+    // dome's crown 6 m above them.
+    let (lat0, lon0) = (45.0, -30.0);
+    let geodesic = Geodesic::wgs84();
+    let (centre_lat, centre_lon, _) = geodesic.direct(lat0, lon0, 0.0, 60.0);
+    let ring: Vec<String> = (0..=32)
+        .map(|k| {
+            let azimuth = 360.0 * (k % 32) as f64 / 32.0;
+            let (lat, lon, _) = geodesic.direct(centre_lat, centre_lon, azimuth, 8.0);
+            format!("[{lon}, {lat}]")
+        })
+        .collect();
+    let data = format!(
+        r#"{{"type": "FeatureCollection", "features": [{{"type": "Feature", "properties":
+        {{"building": "yes", "height": "14", "roof:shape": "dome", "roof:height": "6"}},
+        "geometry": {{"type": "Polygon", "coordinates": [[{}]]}}}}]}}"#,
+        ring.join(", ")
+    );
+    let dir = common::Scratch::new("dome");
+    dir.write("dome.geojson", &data);
+    let scene = format!(
+        "Scene(location: (latitude: {lat0}, longitude: {lon0}), \
+         standpoints: [(name: \"here\", x: 0, y: 0, ground: 0, eye_height: 1.6)], \
+         items: [OpenData(file: \"dome.geojson\")])"
+    );
+    let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.path("s.ron"), "s").unwrap();
+    assert!(site.warnings.is_empty(), "{:?}", site.warnings);
+
+    // The ground there has fallen d^2 / 2R with the earth's curve (0.28 mm at 60 m).
+    let fall = 60.0f64.powi(2) / (2.0 * 6_371_000.0);
+    let (centre, r, h) = site
+        .outlines
+        .iter()
+        .find_map(|o| match o.shape {
+            pansite::scene::RoundOutline::Dome {
+                centre,
+                radius,
+                height,
+            } => Some((centre, radius, height)),
+            _ => None,
+        })
+        .expect("a dome");
+    assert_near(h, 6.0, 1e-9);
+    assert_near(centre.z, 8.0 - fall, 5e-4);
+    assert_near(centre.coords.xy().norm(), 60.0, 1e-3);
+    // It stands on the largest circle inside the footprint: the apothem 8 cos(pi / 32).
+    assert_near(r, 8.0 * (std::f64::consts::PI / 32.0).cos(), 1e-3);
+    let crown = site
+        .faces
+        .iter()
+        .flat_map(|f| f.corners)
+        .map(|p| p.z)
+        .fold(f64::MIN, f64::max);
+    assert_near(crown, 14.0 - fall, 5e-4);
+
+    // The crest of its outline from the eye, by conics: in the vertical plane through the
+    // eye and the dome's axis the dome is the half ellipse x^2 / r^2 + z^2 / h^2 = 1 (x
+    // towards the eye, z up from the walls' top), the eye at (D, e). A line z = m x + c
+    // touches it when c^2 = m^2 r^2 + h^2, at (-m r^2 / c, h^2 / c) (the tangent condition
+    // of an ellipse, any handbook of conics). Through the eye, c = e - m D; the crest is
+    // the steeper of the two tangents, the smaller root m.
+    let eye = nalgebra::Point3::new(0.0, 0.0, 1.6);
+    let towards_eye = (eye.coords.xy() - centre.coords.xy()).normalize();
+    let (d, e) = (
+        (eye.coords.xy() - centre.coords.xy()).norm(),
+        eye.z - centre.z,
+    );
+    let (a, b, c) = (d * d - r * r, -2.0 * e * d, e * e - h * h);
+    let m = (-b - (b * b - 4.0 * a * c).sqrt()) / (2.0 * a);
+    let intercept = e - m * d;
+    let (x_t, z_t) = (-m * r * r / intercept, h * h / intercept);
+    let crest = |z_t: f64| {
+        [
+            centre.x + towards_eye.x * x_t,
+            centre.y + towards_eye.y * x_t,
+            centre.z + z_t,
+        ]
+    };
+
+    let (w, hgt) = (4096.0, 2048.0);
+    let settings = pansite::render::RenderSettings {
+        width: w as u32,
+        height: hgt as u32,
+        overlays: false,
+        hidden: Some(pansite::scene::HiddenEdges::Off),
+        ..pansite::render::RenderSettings::default()
+    };
+    let drawing = pansite::render::draw(&site, &site.standpoints[0], &settings)
+        .unwrap()
+        .drawing;
+    let on_drawing = |point: [f64; 3]| {
+        let (x, y) = common::predicted_pixel([0.0, 0.0, 1.6], (0.0, 0.0, 0.0), point, w, hgt);
+        common::distance_to_polylines(
+            pansite::plane::ImagePoint::new(x, y),
+            drawing.layers.iter().flat_map(|l| l.lines.iter()),
+        )
+    };
+    assert!(on_drawing(crest(z_t)) < 0.5, "{}", on_drawing(crest(z_t)));
+    // 0.3 m above it (3 pixels at 60 m): nothing drawn.
+    assert!(on_drawing(crest(z_t + 0.3)) > 2.0);
+}

@@ -363,9 +363,14 @@ impl<'a> ItemBuilder<'a> {
                 centre: self.place.point(&centre),
                 radius: self.place.length(radius),
             },
-            RoundOutline::Dome { centre, radius } => RoundOutline::Dome {
+            RoundOutline::Dome {
+                centre,
+                radius,
+                height,
+            } => RoundOutline::Dome {
                 centre: self.place.point(&centre),
                 radius: self.place.length(radius),
+                height: self.place.length(height),
             },
         };
         self.site.outlines.push(Outline {

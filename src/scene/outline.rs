@@ -29,12 +29,15 @@ pub enum RoundOutline {
         /// The height of its apex above the foot.
         height: f64,
     },
-    /// The upper half of a sphere (a dome standing on its equator).
+    /// The upper half of a spheroid with a vertical axis (a dome standing on its equator):
+    /// a hemisphere when `height` equals `radius`.
     Dome {
         /// The centre of its equator.
         centre: Point3<f64>,
-        /// Its radius.
+        /// The radius of its equator.
         radius: f64,
+        /// The height of its crown above the equator.
+        height: f64,
     },
     /// A whole sphere (a tree's crown).
     Sphere {
@@ -100,9 +103,13 @@ impl RoundOutline {
                 radius,
                 height,
             } => cone_generators(base, radius, height, eye),
-            RoundOutline::Dome { centre, radius } => {
-                dome_rim(centre, radius, eye).into_iter().collect()
-            }
+            RoundOutline::Dome {
+                centre,
+                radius,
+                height,
+            } => spheroid_dome_rim(centre, radius, height, eye)
+                .into_iter()
+                .collect(),
             RoundOutline::Sphere { centre, radius } => {
                 sphere_rim(centre, radius, eye).into_iter().collect()
             }
@@ -185,6 +192,37 @@ fn sphere_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<Sit
     })
 }
 
+/// The rim of the upper half of a spheroid (equator `radius`, crown `height` above it) seen
+/// from `eye`. Stretching heights by radius / height about the equator's plane turns the
+/// spheroid into a sphere; an affine map keeps lines of sight lines and tangency tangency,
+/// so the rim is the sphere's rim seen from the stretched eye, squeezed back.
+fn spheroid_dome_rim(
+    centre: Point3<f64>,
+    radius: f64,
+    height: f64,
+    eye: &Point3<f64>,
+) -> Option<SiteCurve> {
+    let stretch = radius / height;
+    let stretched_eye = Point3::new(eye.x, eye.y, centre.z + (eye.z - centre.z) * stretch);
+    let squeeze = |v: Vector3<f64>| Vector3::new(v.x, v.y, v.z / stretch);
+    match dome_rim(centre, radius, &stretched_eye)? {
+        SiteCurve::Ellipse {
+            centre: rim_centre,
+            u,
+            v,
+            start,
+            sweep,
+        } => Some(SiteCurve::Ellipse {
+            centre: centre + squeeze(rim_centre - centre),
+            u: squeeze(u),
+            v: squeeze(v),
+            start,
+            sweep,
+        }),
+        other => Some(other),
+    }
+}
+
 fn dome_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteCurve> {
     let towards = eye - centre;
     let distance = towards.norm();
@@ -261,6 +299,47 @@ mod tests {
             panic!()
         };
         assert!(start.abs() < 1e-12 && (sweep - PI).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_spheroid_domes_rim_touches_it_along_the_lines_of_sight() {
+        // Equator radius 5 about (1, 2, 3), crown 2 above it. On the surface
+        // (x^2 + y^2) / r^2 + z^2 / h^2 = 1 the normal is (x / r^2, y / r^2, z / h^2); a
+        // line of sight grazes it where that normal is at right angles to it.
+        let (centre, r, h) = (Point3::new(1.0, 2.0, 3.0), 5.0, 2.0);
+        for eye in [
+            Point3::new(20.0, -7.0, 4.5),
+            Point3::new(-12.0, 3.0, 3.0),
+            Point3::new(2.0, 9.0, 30.0),
+        ] {
+            let Some(SiteCurve::Ellipse {
+                centre: c,
+                u,
+                v,
+                start,
+                sweep,
+            }) = spheroid_dome_rim(centre, r, h, &eye)
+            else {
+                panic!("no rim from {eye:?}")
+            };
+            for k in 0..=8 {
+                let t = start + sweep * k as f64 / 8.0;
+                let p = c + u * t.cos() + v * t.sin();
+                let q = p - centre;
+                let on = (q.x * q.x + q.y * q.y) / (r * r) + q.z * q.z / (h * h);
+                assert!((on - 1.0).abs() < 1e-9, "{on}");
+                assert!(q.z >= -1e-9, "below the equator: {q:?}");
+                let normal = Vector3::new(q.x / (r * r), q.y / (r * r), q.z / (h * h));
+                let sight = (eye - p).normalize();
+                assert!(normal.normalize().dot(&sight).abs() < 1e-9);
+            }
+        }
+        // A hemisphere is the spheroid of equal axes.
+        let eye = Point3::new(6.0, -4.0, 5.0);
+        assert_eq!(
+            spheroid_dome_rim(centre, 2.0, 2.0, &eye),
+            dome_rim(centre, 2.0, &eye)
+        );
     }
 
     #[test]

@@ -300,6 +300,7 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
         plan: rectangle_plan(width, depth),
         eaves: height,
         slopes,
+        upper: Vec::new(),
         overhang,
         parapet: block.parapet.map(|p| (p.height.0, p.thickness.0)),
     };

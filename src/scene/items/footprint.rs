@@ -125,6 +125,7 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
         plan: points,
         eaves: spec.height.0,
         slopes,
+        upper: Vec::new(),
         overhang,
         parapet: spec.parapet.map(|p| (p.height.0, p.thickness.0)),
     };

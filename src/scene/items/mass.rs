@@ -24,6 +24,11 @@ pub struct Mass {
     /// One slope (rise per run) for each side of the plan, or `None` for a gable end;
     /// empty for a flat roof. Side i runs from corner i to corner i + 1.
     pub slopes: Vec<Option<f64>>,
+    /// A second plane on a side, `(rise, slope)`: starting `rise` above the eaves over the
+    /// side's wall and rising at `slope`, so that the roof there is the lower of the two
+    /// (a gambrel's or a mansard's upper, shallower slope, or a half-hip's small hip at the
+    /// top of a gable end); empty, or `None` on a side, for none.
+    pub upper: Vec<Option<(f64, f64)>>,
     /// How far the roof reaches out beyond the walls.
     pub overhang: f64,
     /// Height above the eaves and thickness of a parapet round a flat roof.
@@ -44,23 +49,30 @@ impl Affine {
 }
 
 impl Mass {
-    /// The roof planes' heights above the eaves, one for each sloped side.
+    /// The roof planes' heights above the eaves: one for each sloped side, then the upper
+    /// ones.
     fn planes(&self) -> Vec<Affine> {
         let n = self.plan.len();
-        self.slopes
+        let plane = |i: usize, rise: f64, slope: f64| {
+            let (start, end) = (self.plan[i], self.plan[(i + 1) % n]);
+            let along = (end - start).normalize();
+            let inward = Vector2::new(-along.y, along.x);
+            Affine {
+                at_origin: rise - slope * inward.dot(&start),
+                gradient: inward * slope,
+            }
+        };
+        let lower = self
+            .slopes
             .iter()
             .enumerate()
-            .filter_map(|(i, slope)| {
-                let slope = (*slope)?;
-                let (start, end) = (self.plan[i], self.plan[(i + 1) % n]);
-                let along = (end - start).normalize();
-                let inward = Vector2::new(-along.y, along.x);
-                Some(Affine {
-                    at_origin: -slope * inward.dot(&start),
-                    gradient: inward * slope,
-                })
-            })
-            .collect()
+            .filter_map(|(i, slope)| Some(plane(i, 0.0, (*slope)?)));
+        let upper = self
+            .upper
+            .iter()
+            .enumerate()
+            .filter_map(|(i, upper)| upper.map(|(rise, slope)| plane(i, rise, slope)));
+        lower.chain(upper).collect()
     }
 
     /// The height of the roof over a plan point.
@@ -319,6 +331,7 @@ mod tests {
             plan: rectangle(10.0, 6.0),
             eaves: 4.0,
             slopes: vec![Some(1.0), None, Some(1.0), None],
+            upper: Vec::new(),
             overhang: 0.0,
             parapet: None,
         };
@@ -335,6 +348,7 @@ mod tests {
             plan: rectangle(10.0, 6.0),
             eaves: 0.0,
             slopes: vec![Some(1.0); 4],
+            upper: Vec::new(),
             overhang: 0.0,
             parapet: None,
         };

@@ -97,7 +97,9 @@ pub use road::{
     RoadSpec,
 };
 pub use room::{build_room, RoomSpec};
-pub use round::{build_column, build_dome, build_tower, ColumnSpec, DomeSpec, TowerSpec};
+pub use round::{
+    build_column, build_dome, build_tower, cone, spheroid_dome, ColumnSpec, DomeSpec, TowerSpec,
+};
 pub use stairs::{build_stairs, StairsSpec};
 pub use tiles::{build_tiles, TilesSpec};
 pub use vault::{build_vault, VaultSpec};

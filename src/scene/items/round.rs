@@ -139,15 +139,26 @@ fn lid(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
     b.convex_face(&rim[..count]);
 }
 
-/// A hemisphere on the circle of `radius` about `centre`: the outline from each eye, and
-/// faces cut along meridians and parallels.
+/// A hemisphere on the circle of `radius` about `centre`.
 fn dome(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
-    b.round_outline(RoundOutline::Dome { centre, radius });
+    spheroid_dome(b, centre, radius, radius);
+}
+
+/// The upper half of a spheroid on the circle of `radius` about `centre`, its crown
+/// `height` above it (a hemisphere when `height` is `radius`): the outline from each eye,
+/// and faces cut along meridians and parallels (a meridian of the spheroid is the quarter
+/// ellipse `(r cos a, h sin a)`).
+pub fn spheroid_dome(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64, height: f64) {
+    b.round_outline(RoundOutline::Dome {
+        centre,
+        radius,
+        height,
+    });
     let around = facet_count(TAU);
     let up = facet_count(PI / 2.0);
     let ring = |k: usize| {
         let elevation = PI / 2.0 * k as f64 / up as f64;
-        let (r, z) = (radius * elevation.cos(), radius * elevation.sin());
+        let (r, z) = (radius * elevation.cos(), height * elevation.sin());
         ellipse_points(
             centre + Vector3::z() * z,
             Vector3::x() * r,
@@ -160,6 +171,26 @@ fn dome(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
     for k in 0..up {
         b.strip(&ring(k), &ring(k + 1));
     }
+}
+
+/// A cone on the circle of `radius` about `centre`, its apex `height` above it: the
+/// outline from each eye and its faces.
+pub fn cone(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64, height: f64) {
+    b.round_outline(RoundOutline::Cone {
+        base: centre,
+        radius,
+        height,
+    });
+    let rim = ellipse_points(
+        centre,
+        Vector3::x() * radius,
+        Vector3::y() * radius,
+        0.0,
+        TAU,
+        facet_count(TAU),
+    );
+    let apex = centre + Vector3::z() * height;
+    b.strip(&rim, &vec![apex; rim.len()]);
 }
 
 fn check_rings(rings: &[f64], height: f64) -> Result<(), String> {

@@ -5,11 +5,16 @@
 //! at the base and at the top, an upright edge at every corner where the outline turns
 //! (not where a mapper left a node on a straight side), and faces on the walls, the roof
 //! and the floor for hidden lines. Pitched roofs go through the same mass as the scene's
-//! own `Footprint` items (`items/mass.rs`), which needs a convex plan for equal pitches; a
-//! roof that cannot be drawn as tagged is drawn flat with a warning.
+//! own `Footprint` items (`items/mass.rs`), which needs a convex plan for equal pitches (a
+//! gambrel's or mansard's two pitches and a half-hip are its planes too). A dome or a cone
+//! stands on the largest circle inside the footprint, on the prism's flat roof, as the
+//! scene's own domes do (`items/round.rs`). A roof that cannot be drawn as tagged is drawn
+//! flat with a warning.
 
 use super::super::build::ItemBuilder;
-use super::super::items::{build_mass, clip_polygon, is_convex, turn_angle, Mass};
+use super::super::items::{
+    build_mass, clip_polygon, cone, is_convex, spheroid_dome, turn_angle, Mass,
+};
 use super::tags::{Heights, RoofShape};
 use nalgebra::{Point3, Vector2, Vector3};
 
@@ -41,6 +46,22 @@ pub fn build_building(
                 "a {:?} roof over a courtyard is not drawn; drawn flat",
                 heights.roof
             ));
+        } else if matches!(heights.roof, RoofShape::Dome | RoofShape::Cone) {
+            match inscribed_circle(&rings[0], heights.roof) {
+                Ok((centre, radius)) => {
+                    prism(b, rings, wall_top);
+                    let springing = Point3::new(centre.x, centre.y, wall_top);
+                    let rise = heights.top - heights.eaves;
+                    b.circle(springing, radius);
+                    if heights.roof == RoofShape::Dome {
+                        spheroid_dome(b, springing, radius, rise);
+                    } else {
+                        cone(b, springing, radius, rise);
+                    }
+                    return Ok(warnings);
+                }
+                Err(why) => warnings.push(format!("{why}; drawn flat")),
+            }
         } else {
             match pitched_mass(&rings[0], heights, north_deg) {
                 Ok(mass) => {
@@ -114,12 +135,15 @@ fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Res
     }
     let length = |i: usize| (plan[(i + 1) % n] - plan[i]).norm();
     let sloped: Vec<bool> = match heights.roof {
-        RoofShape::Flat => unreachable!("flat roofs are prisms"),
-        RoofShape::Hipped | RoofShape::Pyramidal => vec![true; n],
-        RoofShape::Gabled => {
+        RoofShape::Flat | RoofShape::Dome | RoofShape::Cone => {
+            unreachable!("flat roofs are prisms, round ones stand on a circle")
+        }
+        RoofShape::Hipped | RoofShape::Pyramidal | RoofShape::Mansard => vec![true; n],
+        RoofShape::Gabled | RoofShape::HalfHipped | RoofShape::Gambrel => {
             if n != 4 {
                 return Err(format!(
-                    "a gabled roof needs a footprint of four corners, not {n}"
+                    "a {:?} roof needs a footprint of four corners, not {n}",
+                    heights.roof
                 ));
             }
             let long_first = length(0) + length(2) >= length(1) + length(3);
@@ -154,20 +178,67 @@ fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Res
     if depth <= 0.0 {
         return Err("the footprint has no depth to pitch a roof over".to_owned());
     }
-    let slope = (heights.top - heights.eaves) / depth;
+    let rise = heights.top - heights.eaves;
+    let slope = rise / depth;
+    // Gambrel and mansard: two pitches on each sloped side, broken two thirds of the way
+    // up and a third of the way in: the lower plane rises at twice the mean slope, the
+    // upper one at half of it, starting half the roof's height above the wall. Half-hipped:
+    // a gable whose top half is hipped back at the roof's own pitch. (Our own proportions:
+    // the conventions leave them open.)
+    let two_pitches = matches!(heights.roof, RoofShape::Gambrel | RoofShape::Mansard);
+    let lower = if two_pitches { 2.0 * slope } else { slope };
+    let slopes = sloped.iter().map(|&s| s.then_some(lower)).collect();
+    let upper = sloped
+        .iter()
+        .map(|&s| match heights.roof {
+            _ if two_pitches => s.then_some((rise / 2.0, slope / 2.0)),
+            RoofShape::HalfHipped => (!s).then_some((rise / 2.0, slope)),
+            _ => None,
+        })
+        .collect();
     Ok(Mass {
         plan,
         eaves: heights.eaves - heights.base,
-        slopes: sloped.iter().map(|&s| s.then_some(slope)).collect(),
+        slopes,
+        upper,
         overhang: 0.0,
         parapet: None,
     })
 }
 
+/// The circle a round roof stands on: the largest circle inside the footprint (its centre
+/// midway along the line of centres when there are many, as in a long rectangle), as a
+/// dome stands on its drum; the rest of the roof stays flat at the eaves.
+fn inscribed_circle(ring: &[Vector2<f64>], roof: RoofShape) -> Result<(Vector2<f64>, f64), String> {
+    let plan = corners(ring);
+    if plan.len() < 3 || !is_convex(&plan) {
+        return Err(format!("a {roof:?} roof needs a convex footprint"));
+    }
+    let (radius, centres) = deepest_piece(&plan, &vec![true; plan.len()]);
+    if radius <= 0.0 || centres.is_empty() {
+        return Err("the footprint has no room for a round roof".to_owned());
+    }
+    // The two centres farthest apart: the ends of the line of centres, or one point.
+    let mut ends = (centres[0], centres[0]);
+    for (i, &a) in centres.iter().enumerate() {
+        for &c in &centres[i + 1..] {
+            if (c - a).norm() > (ends.1 - ends.0).norm() {
+                ends = (a, c);
+            }
+        }
+    }
+    Ok(((ends.0 + ends.1) / 2.0, radius))
+}
+
 /// How far into a convex counter-clockwise plan one can go from all the `sloped` sides at
-/// once: max over the plan of the least distance to those sides' lines. Found by halving
-/// the interval of distances, each step clipping the plan by the sides moved inwards.
+/// once: max over the plan of the least distance to those sides' lines.
 fn deepest(plan: &[Vector2<f64>], sloped: &[bool]) -> f64 {
+    deepest_piece(plan, sloped).0
+}
+
+/// [`deepest`], and the corners of the (tiny) piece of the plan that deep: found by halving
+/// the interval of distances, each step clipping the plan by the sides moved inwards.
+fn deepest_piece(plan: &[Vector2<f64>], sloped: &[bool]) -> (f64, Vec<Vector2<f64>>) {
     let n = plan.len();
     let inward: Vec<(Vector2<f64>, Vector2<f64>)> = (0..n)
         .filter(|&i| sloped[i])
@@ -176,31 +247,34 @@ fn deepest(plan: &[Vector2<f64>], sloped: &[bool]) -> f64 {
             (plan[i], Vector2::new(-d.y, d.x))
         })
         .collect();
-    let reaches = |r: f64| {
+    let piece_at = |r: f64| {
         let mut piece = plan.to_vec();
         for &(start, normal) in &inward {
             piece = clip_polygon(&piece, |p| normal.dot(&(p - start)) - r);
             if piece.is_empty() {
-                return false;
+                break;
             }
         }
-        true
+        piece
     };
     let size = plan
         .iter()
         .map(|p| (p - plan[0]).norm())
         .fold(0.0, f64::max);
     let (mut low, mut high) = (0.0, size);
+    let mut piece = plan.to_vec();
     // 60 halvings: below a nanometre for any building.
     for _ in 0..60 {
         let mid = 0.5 * (low + high);
-        if reaches(mid) {
-            low = mid;
-        } else {
+        let at_mid = piece_at(mid);
+        if at_mid.is_empty() {
             high = mid;
+        } else {
+            low = mid;
+            piece = at_mid;
         }
     }
-    low
+    (low, piece)
 }
 
 #[cfg(test)]
@@ -264,6 +338,89 @@ mod tests {
         // Low along the south side (y = 0), 3 m higher along the north side.
         assert!((mass.roof_height(Vector2::new(5.0, 0.0)) - 6.0).abs() < 1e-9);
         assert!((mass.roof_height(Vector2::new(5.0, 6.0)) - 9.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_gambrel_breaks_two_thirds_up_a_third_of_the_way_in() {
+        // 10 x 6 plan, eaves 6, top 9: a run of 3 m from each long side. By our rule the
+        // lower plane climbs 2 m over the first 1 m, the upper one 1 m over the last 2 m.
+        let mass = pitched_mass(&rectangle(10.0, 6.0), &heights(RoofShape::Gambrel), 0.0).unwrap();
+        for (y, z) in [(0.5, 7.0), (1.0, 8.0), (2.0, 8.5), (3.0, 9.0), (5.0, 8.0)] {
+            assert!(
+                (mass.roof_height(Vector2::new(5.0, y)) - z).abs() < 1e-9,
+                "{y}"
+            );
+        }
+        // The gable ends rise to the top: the end walls are five-sided.
+        assert_eq!(mass.walls()[1].top.len(), 5);
+    }
+
+    #[test]
+    fn a_mansard_breaks_the_same_way_on_every_side() {
+        let mass = pitched_mass(&rectangle(12.0, 6.0), &heights(RoofShape::Mansard), 0.0).unwrap();
+        // From the 6 m ends as from the long sides: 2 m up at 1 m in, the top along the
+        // ridge between points 3 m in from the ends.
+        for (x, y, z) in [
+            (1.0, 3.0, 8.0),
+            (0.5, 3.0, 7.0),
+            (6.0, 1.0, 8.0),
+            (6.0, 3.0, 9.0),
+        ] {
+            assert!(
+                (mass.roof_height(Vector2::new(x, y)) - z).abs() < 1e-9,
+                "{x} {y}"
+            );
+        }
+        // Every wall's top is level: no gable.
+        assert!(mass
+            .walls()
+            .iter()
+            .all(|w| w.top.iter().all(|&(_, z)| z == 6.0)));
+    }
+
+    #[test]
+    fn a_half_hip_cuts_the_top_half_of_each_gable() {
+        let mass =
+            pitched_mass(&rectangle(10.0, 6.0), &heights(RoofShape::HalfHipped), 0.0).unwrap();
+        // The end wall's top: up the pitch (1 in 1) to half the roof's height (7.5), level,
+        // and down again: a trapezoid.
+        let end = &mass.walls()[1].top;
+        let expected = [(0.0, 6.0), (1.5, 7.5), (4.5, 7.5), (6.0, 6.0)];
+        assert_eq!(end.len(), 4, "{end:?}");
+        for (got, want) in end.iter().zip(expected) {
+            assert!((got.0 - want.0).abs() < 1e-9 && (got.1 - want.1).abs() < 1e-9);
+        }
+        // The hip rises from 7.5 at the end wall at the roof's pitch, meeting the ridge
+        // 1.5 m in.
+        assert!((mass.roof_height(Vector2::new(0.75, 3.0)) - 8.25).abs() < 1e-9);
+        assert!((mass.roof_height(Vector2::new(1.5, 3.0)) - 9.0).abs() < 1e-9);
+        assert!((mass.roof_height(Vector2::new(5.0, 3.0)) - 9.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_round_roof_stands_on_the_largest_circle_inside() {
+        // A rectangle: the circle across its width, midway along.
+        let (centre, radius) = inscribed_circle(&rectangle(10.0, 6.0), RoofShape::Dome).unwrap();
+        assert!((centre - Vector2::new(5.0, 3.0)).norm() < 1e-6 && (radius - 3.0).abs() < 1e-9);
+        // A 3-4-5 triangle: the incircle, radius (a + b - c) / 2 = 1 about (1, 1) (any
+        // geometry handbook).
+        let triangle = [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(4.0, 0.0),
+            Vector2::new(0.0, 3.0),
+        ];
+        let (centre, radius) = inscribed_circle(&triangle, RoofShape::Cone).unwrap();
+        assert!((centre - Vector2::new(1.0, 1.0)).norm() < 1e-6 && (radius - 1.0).abs() < 1e-9);
+        // A regular 24-gon of circumradius 8: the apothem 8 cos(pi / 24) about its centre.
+        let round: Vec<Vector2<f64>> = (0..24)
+            .map(|k| {
+                let a = std::f64::consts::TAU * k as f64 / 24.0;
+                Vector2::new(3.0 + 8.0 * a.cos(), -2.0 + 8.0 * a.sin())
+            })
+            .collect();
+        let (centre, radius) = inscribed_circle(&round, RoofShape::Dome).unwrap();
+        assert!((centre - Vector2::new(3.0, -2.0)).norm() < 1e-6);
+        assert!((radius - 8.0 * (std::f64::consts::PI / 24.0).cos()).abs() < 1e-9);
     }
 
     #[test]

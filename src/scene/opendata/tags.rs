@@ -62,7 +62,38 @@ pub enum RoofShape {
     Pyramidal,
     /// One plane, falling towards `roof:direction`.
     Skillion,
+    /// A gable whose top is hipped back (`half-hipped`).
+    HalfHipped,
+    /// A gable of two pitches on each side, steep below and shallow above (`gambrel`).
+    Gambrel,
+    /// A hip of two pitches on every side, steep below and shallow above (`mansard`).
+    Mansard,
+    /// Half a spheroid on the largest circle inside the footprint (`dome`, and `onion`
+    /// drawn as one).
+    Dome,
+    /// A cone on the largest circle inside the footprint (`cone`).
+    Cone,
 }
+
+/// The `roof:shape` values we draw, as the OpenStreetMap wiki's Key:roof:shape page spells
+/// them (https://wiki.openstreetmap.org/wiki/Key:roof:shape, its table of common values),
+/// and our roof for each. `onion` is drawn as a dome (its bulge left out), said as an
+/// assumption. The wiki's other shapes (`gabled_height_moved`, `side_hipped`,
+/// `side_half-hipped`, `hipped-and-gabled`, `crosspitched`, `sawtooth`, `butterfly`,
+/// `round`, `saltbox`, `many`) are drawn flat with a warning.
+pub const ROOF_SHAPES: &[(&str, RoofShape)] = &[
+    ("flat", RoofShape::Flat),
+    ("gabled", RoofShape::Gabled),
+    ("hipped", RoofShape::Hipped),
+    ("pyramidal", RoofShape::Pyramidal),
+    ("skillion", RoofShape::Skillion),
+    ("half-hipped", RoofShape::HalfHipped),
+    ("gambrel", RoofShape::Gambrel),
+    ("mansard", RoofShape::Mansard),
+    ("dome", RoofShape::Dome),
+    ("onion", RoofShape::Dome),
+    ("cone", RoofShape::Cone),
+];
 
 /// The vertical shape of one building or building part, in metres above its ground.
 #[derive(Clone, Debug, PartialEq)]
@@ -156,18 +187,23 @@ pub fn heights(
             assumptions.push("no roof:shape: a flat roof".to_owned());
             RoofShape::Flat
         }
-        Some("flat") => RoofShape::Flat,
-        Some("gabled") => RoofShape::Gabled,
-        Some("hipped") => RoofShape::Hipped,
-        Some("pyramidal") => RoofShape::Pyramidal,
-        Some("skillion") => RoofShape::Skillion,
-        Some(other) => {
-            warnings.push(format!(
-                "roof:shape={other:?} is not one pansite draws (flat, gabled, hipped, \
-                 pyramidal, skillion); drawn flat"
-            ));
-            RoofShape::Flat
-        }
+        Some(name) => match ROOF_SHAPES.iter().find(|(known, _)| *known == name) {
+            Some(&(known, shape)) => {
+                if known == "onion" {
+                    assumptions
+                        .push("roof:shape=onion: drawn as a dome, its bulge left out".to_owned());
+                }
+                shape
+            }
+            None => {
+                let drawn: Vec<&str> = ROOF_SHAPES.iter().map(|(known, _)| *known).collect();
+                warnings.push(format!(
+                    "roof:shape={name:?} is not one pansite draws ({}); drawn flat",
+                    drawn.join(", ")
+                ));
+                RoofShape::Flat
+            }
+        },
     };
     let roof_rise = if roof == RoofShape::Flat {
         0.0
@@ -343,11 +379,57 @@ mod tests {
     }
 
     #[test]
+    fn the_wikis_roof_shapes_onto_ours() {
+        // The values as spelt in the OpenStreetMap wiki's Key:roof:shape table of common
+        // values (https://wiki.openstreetmap.org/wiki/Key:roof:shape), written out here
+        // rather than taken from `ROOF_SHAPES`.
+        for (name, shape) in [
+            ("flat", RoofShape::Flat),
+            ("gabled", RoofShape::Gabled),
+            ("hipped", RoofShape::Hipped),
+            ("pyramidal", RoofShape::Pyramidal),
+            ("skillion", RoofShape::Skillion),
+            ("half-hipped", RoofShape::HalfHipped),
+            ("gambrel", RoofShape::Gambrel),
+            ("mansard", RoofShape::Mansard),
+            ("dome", RoofShape::Dome),
+            ("onion", RoofShape::Dome),
+            ("cone", RoofShape::Cone),
+        ] {
+            let (h, assumptions, warnings) =
+                heights_of(json!({"height": 12, "roof:shape": name, "roof:height": 4}));
+            assert_eq!(h.roof, shape, "{name}");
+            assert!(warnings.is_empty(), "{name}: {warnings:?}");
+            // The conventions: `roof:height` is the part of `height` that is roof.
+            let rise = if shape == RoofShape::Flat { 0.0 } else { 4.0 };
+            assert_eq!((h.eaves, h.top), (12.0 - rise, 12.0), "{name}");
+            // Only the onion is drawn otherwise than tagged, and says so.
+            assert_eq!(assumptions.len(), usize::from(name == "onion"), "{name}");
+        }
+        let (_, assumptions, _) = heights_of(json!({"height": 12, "roof:shape": "onion"}));
+        assert!(
+            assumptions
+                .iter()
+                .any(|a| a.contains("onion") && a.contains("dome")),
+            "{assumptions:?}"
+        );
+        // Across the long sides, as for a gable.
+        let (h, _, _) = heights_of(json!({"roof:shape": "gambrel", "roof:orientation": "across"}));
+        assert!(h.across);
+    }
+
+    #[test]
     fn unknown_roofs_are_flat_with_a_warning() {
-        let (h, _, warnings) = heights_of(json!({"height": 9, "roof:shape": "onion"}));
-        assert_eq!(h.roof, RoofShape::Flat);
-        assert_eq!(h.eaves, 9.0);
-        assert!(warnings[0].contains("onion"), "{warnings:?}");
+        // Shapes of the wiki's table that we do not draw, and a value not in it.
+        for name in ["butterfly", "sawtooth", "crosspitched", "many", "tent"] {
+            let (h, _, warnings) = heights_of(json!({"height": 9, "roof:shape": name}));
+            assert_eq!(h.roof, RoofShape::Flat);
+            assert_eq!(h.eaves, 9.0);
+            assert!(
+                warnings[0].contains(name) && warnings[0].contains("drawn flat"),
+                "{warnings:?}"
+            );
+        }
         let (h, _, warnings) =
             heights_of(json!({"height": 3, "roof:shape": "gabled", "roof:height": 5}));
         assert_eq!(h.roof, RoofShape::Flat);
