@@ -1036,3 +1036,174 @@ fn text_lettering_is_for_svg() {
     let svg = std::fs::read_to_string(dir.path("t.svg")).unwrap();
     assert!(svg.contains("<text "), "text elements written");
 }
+
+/// A closed ring of plan offsets (metres east, north) about a point, as GeoJSON
+/// coordinates: each corner by GeographicLib's direct problem from the point (Karney 2013),
+/// at the offset's azimuth and length.
+fn geojson_ring(lat: f64, lon: f64, corners: &[(f64, f64)]) -> String {
+    use geographiclib_rs::{DirectGeodesic, Geodesic};
+    let geodesic = Geodesic::wgs84();
+    let mut ring: Vec<String> = corners
+        .iter()
+        .map(|&(east, north)| {
+            let azimuth = east.atan2(north).to_degrees();
+            let (la, lo, _): (f64, f64, f64) =
+                geodesic.direct(lat, lon, azimuth, east.hypot(north));
+            format!("[{lo}, {la}]")
+        })
+        .collect();
+    ring.push(ring[0].clone());
+    format!("[[{}]]", ring.join(", "))
+}
+
+#[test]
+fn check_lists_what_the_data_did_not_say_feature_by_feature() {
+    // The simple 3D buildings conventions (OpenStreetMap wiki, Simple 3D Buildings and
+    // Key:roof:shape; common practice in mapping): `height` is the ground to the top of
+    // the roof, `building:levels` counts storeys, `roof:shape` names the roof. A feature
+    // that says all of it needs no guess; each one that leaves something out is listed by
+    // its id (or its index in the file) with what was assumed in its place.
+    let dir = Scratch::new("check-assumed");
+    let square = [(-4.0, -4.0), (4.0, -4.0), (4.0, 4.0), (-4.0, 4.0)];
+    let feature = |id: &str, tags: &str, north: f64| {
+        format!(
+            r#"{{"type": "Feature", {id} "properties": {{{tags}}}, "geometry": {{"type": "Polygon", "coordinates": {}}}}}"#,
+            geojson_ring(45.0 + north / 111_000.0, -30.0, &square)
+        )
+    };
+    let data = format!(
+        r#"{{"type": "FeatureCollection", "features": [{}, {}, {}, {}]}}"#,
+        feature(
+            r#""id": "surveyed","#,
+            r#""building": "yes", "height": "9", "roof:shape": "flat""#,
+            30.0
+        ),
+        feature(
+            r#""id": "levels","#,
+            r#""building": "yes", "building:levels": "4", "roof:shape": "flat""#,
+            -30.0
+        ),
+        feature("", r#""building": "yes""#, 60.0),
+        r#"{"type": "Feature", "properties": {"highway": "service", "lanes": "2"},
+            "geometry": {"type": "LineString", "coordinates": [[-30.0005, 45.0], [-29.9995, 45.0]]}}"#,
+    );
+    dir.write("block.geojson", data);
+    dir.write(
+        "block.ron",
+        r#"Scene(location: (latitude: 45.0, longitude: -30.0),
+                 standpoints: [(name: "here", x: 0, y: -10)],
+                 items: [OpenData(file: "block.geojson", storey: 3.5)])"#,
+    );
+    let out = succeeds(&dir, &["check", "block.ron"]);
+    let text = common::stdout(&out);
+    let listed: Vec<&str> = text
+        .lines()
+        .skip_while(|l| !l.starts_with("assumed, not surveyed"))
+        .collect();
+    assert!(listed.first().is_some_and(|l| l.contains("(4)")), "{text}");
+    let lines_of = |name: &str| -> Vec<&str> {
+        listed[1..]
+            .iter()
+            .filter(|l| l.contains(name))
+            .copied()
+            .collect()
+    };
+    // Fully tagged: nothing assumed.
+    assert!(lines_of("\"surveyed\"").is_empty(), "{text}");
+    // Four levels of the scene's 3.5 m storey: 14 m.
+    let levels = lines_of("\"levels\"");
+    assert_eq!(levels.len(), 1, "{text}");
+    assert!(levels[0].contains("building:levels: 4 x 3.5 m"), "{text}");
+    // No id: named by its index (the third feature, 2 from 0). No height, no levels, no
+    // roof: two storeys of 3.5 m and a flat roof, both said.
+    let bare = lines_of("\"feature 2\"");
+    assert_eq!(bare.len(), 2, "{text}");
+    assert!(bare.iter().any(|l| l.contains("no roof:shape")), "{text}");
+    assert!(bare.iter().any(|l| l.contains("7.0 m high")), "{text}");
+    // The road's width from its lanes, our 3 m a lane.
+    let road = lines_of("\"feature 3\"");
+    assert_eq!(road.len(), 1, "{text}");
+    assert!(
+        road[0].contains("road") && road[0].contains("2 x 3 m"),
+        "{text}"
+    );
+}
+
+#[test]
+fn a_data_file_renders_from_a_latitude_and_longitude() {
+    // A tower 2 m square and 30 m high, its middle 40 m north and 30 m east of the
+    // standpoint, which stands 100 m south of the plan's origin. Where each corner appears
+    // is worked here from the standpoint's latitude and longitude alone: GeographicLib's
+    // inverse problem (Karney 2013) gives its azimuth, and the mapping
+    // x = (azimuth + 180) / 360 W (heading 0: north in the middle) its column.
+    use geographiclib_rs::{DirectGeodesic, Geodesic, InverseGeodesic};
+    let geodesic = Geodesic::wgs84();
+    let (lat0, lon0) = (45.0, -30.0);
+    let (at_lat, at_lon, _): (f64, f64, f64) = geodesic.direct(lat0, lon0, 180.0, 100.0);
+    let (mid_lat, mid_lon, _): (f64, f64, f64) = geodesic.direct(at_lat, at_lon, 36.8699, 50.0);
+    let corners = [(-1.0, -1.0), (1.0, -1.0), (1.0, 1.0), (-1.0, 1.0)];
+    let dir = Scratch::new("at-latlon");
+    dir.write(
+        "tower.geojson",
+        format!(
+            r#"{{"type": "FeatureCollection", "features": [{{"type": "Feature",
+            "properties": {{"building": "yes", "height": "30"}},
+            "geometry": {{"type": "Polygon", "coordinates": {}}}}}]}}"#,
+            geojson_ring(mid_lat, mid_lon, &corners)
+        ),
+    );
+    let at = format!("{at_lat},{at_lon}");
+    let origin = format!("{lat0},{lon0}");
+    let (w, h) = (4096usize, 2048usize);
+    succeeds(
+        &dir,
+        &[
+            "render",
+            "tower.geojson",
+            "--at-latlon",
+            &at,
+            "--origin-latlon",
+            &origin,
+            "--bare",
+            "--size",
+            "4096x2048",
+            "-o",
+            "tower.png",
+        ],
+    );
+    assert_eq!(dir.files(), vec!["tower.geojson", "tower.png"]);
+    let (_, _, grey) = common::read_png_grey(&std::fs::read(dir.path("tower.png")).unwrap());
+    let columns: Vec<f64> = corners
+        .iter()
+        .map(|&(east, north)| {
+            let azimuth = east.atan2(north).to_degrees();
+            let (lat, lon, _): (f64, f64, f64) =
+                geodesic.direct(mid_lat, mid_lon, azimuth, east.hypot(north));
+            let (_, azimuth, _, _): (f64, f64, f64, f64) =
+                geodesic.inverse(at_lat, at_lon, lat, lon);
+            (azimuth + 180.0) / 360.0 * w as f64
+        })
+        .collect();
+    // The row 10 degrees above the horizon crosses the tower's upright edges (it reaches
+    // about 30 degrees) and nothing else.
+    let row = (h as f64 / 2.0 - 10.0 / 180.0 * h as f64) as usize;
+    let inked: Vec<usize> = (0..w).filter(|&x| grey[row * w + x] < 128).collect();
+    let (left, right) = (
+        columns.iter().copied().fold(f64::MAX, f64::min),
+        columns.iter().copied().fold(f64::MIN, f64::max),
+    );
+    assert!(!inked.is_empty());
+    for &x in &inked {
+        assert!(
+            x as f64 + 0.5 > left - 1.5 && x as f64 + 0.5 < right + 1.5,
+            "ink at column {x}, the tower's corners at {columns:?}"
+        );
+    }
+    // The nearest corner (south-west), seen in front of the others, is drawn.
+    assert!(
+        inked
+            .iter()
+            .any(|&x| (x as f64 + 0.5 - columns[0]).abs() < 1.5),
+        "{inked:?} against {columns:?}"
+    );
+}
