@@ -466,3 +466,92 @@ fn a_mapped_dome_rises_its_roof_height_and_its_outline_is_the_tangent_conics_giv
     // 0.3 m above it (3 pixels at 60 m): nothing drawn.
     assert!(on_drawing(crest(z_t + 0.3)) > 2.0);
 }
+
+/// A scene standing at 45 N, 30 W over a GeoJSON of two 10 m square buildings 6 m high,
+/// "near" 500 m and "far" 2 km due north of the origin, with the `OpenData` item's extra
+/// fields; the site, and the lowest z of each building's edges by its id.
+fn two_buildings_north(fields: &str) -> (usize, Option<f64>, Option<f64>) {
+    let geodesic = Geodesic::wgs84();
+    let building = |id: &str, north: f64| {
+        let ring: Vec<String> = [
+            (-5.0, -5.0),
+            (5.0, -5.0),
+            (5.0, 5.0),
+            (-5.0, 5.0),
+            (-5.0, -5.0),
+        ]
+        .iter()
+        .map(|&(e, n): &(f64, f64)| {
+            let (lat, lon, _): (f64, f64, f64) = geodesic.direct(
+                45.0,
+                -30.0,
+                e.atan2(north + n).to_degrees(),
+                e.hypot(north + n),
+            );
+            format!("[{lon}, {lat}]")
+        })
+        .collect();
+        format!(
+            r#"{{"type": "Feature", "id": "{id}", "properties": {{"building": "yes", "height": "6"}},
+            "geometry": {{"type": "Polygon", "coordinates": [[{}]]}}}}"#,
+            ring.join(", ")
+        )
+    };
+    let dir = common::Scratch::new("two-north");
+    dir.write(
+        "two.geojson",
+        format!(
+            r#"{{"type": "FeatureCollection", "features": [{}, {}]}}"#,
+            building("near", 500.0),
+            building("far", 2000.0)
+        ),
+    );
+    let scene = format!(
+        "Scene(location: (latitude: 45.0, longitude: -30.0), \
+         items: [OpenData(file: \"two.geojson\"{fields})])"
+    );
+    let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.path("s.ron"), "s").unwrap();
+    let lowest = |id: &str| {
+        site.edges
+            .iter()
+            .filter(|e| site.describe_item(e.item).contains(&format!("\"{id}\"")))
+            .flat_map(|e| match e.curve {
+                pansite::scene::SiteCurve::Segment { start, end } => [start.z, end.z],
+                _ => unreachable!("a footprint's edges are straight"),
+            })
+            .reduce(f64::min)
+    };
+    let buildings = site.items.iter().filter(|i| i.kind == "building").count();
+    (buildings, lowest("near"), lowest("far"))
+}
+
+#[test]
+fn within_drops_what_lies_beyond_and_the_ground_falls_with_the_earth() {
+    // The fall of the ground d metres out is d^2 (1 - k) / 2R (common practice in
+    // surveying; k the refraction coefficient, 0.13 the surveyors' usual value, R the
+    // earth's radius of curvature along the line). Due north R is the meridian's radius
+    // M = a (1 - e^2) / (1 - e^2 sin^2 lat)^(3/2) on WGS84 (a = 6378137 m,
+    // 1/f = 298.257223563; any geodesy text, e.g. EPSG Guidance Note 7-2, from memory).
+    let (a, f) = (6_378_137.0, 1.0 / 298.257_223_563);
+    let e2 = f * (2.0 - f);
+    let sin_lat = 45f64.to_radians().sin();
+    let m = a * (1.0 - e2) / (1.0 - e2 * sin_lat * sin_lat).powf(1.5);
+    let fall = |d: f64, k: f64| d * d * (1.0 - k) / (2.0 * m);
+    // At 2 km: 0.314 m, and 0.273 m through air of k = 0.13: 41 mm apart, so a building
+    // that did not fall, or fell by the wrong rule, is told apart at 2 mm (the spread of
+    // the fall across a 10 m footprint, whose ground is its corners' mean, is 1.6 mm).
+    assert_near(fall(2000.0, 0.0), 0.314, 0.001);
+
+    let (count, near, far) = two_buildings_north(", within: 1000");
+    assert_eq!(count, 1, "the building 2 km out is beyond 1 km");
+    assert!(near.is_some() && far.is_none());
+    assert_near(-near.unwrap(), fall(500.0, 0.0), 0.002);
+
+    let (count, near, far) = two_buildings_north(", within: 3000");
+    assert_eq!(count, 2);
+    assert_near(-far.unwrap(), fall(2000.0, 0.0), 0.002);
+    assert_near(-near.unwrap(), fall(500.0, 0.0), 0.002);
+
+    let (_, _, far) = two_buildings_north(", within: 3000, refraction: 0.13");
+    assert_near(-far.unwrap(), fall(2000.0, 0.13), 0.002);
+}
