@@ -837,6 +837,81 @@ mod tests {
         assert!(model.notes.is_empty(), "{:?}", model.notes);
     }
 
+    /// A Building drawn by two BuildingParts (CityJSON 2.0 specification, "Building,
+    /// BuildingPart and BuildingInstallation": a BuildingPart is a child of its Building,
+    /// listed in the Building's `children` and naming it in `parents`): the first part a
+    /// 10 m box as a CompositeSurface with roof, wall and ground semantics, the second a
+    /// box beside it as a Solid without semantics; the Building itself carries a coarser
+    /// MultiSurface (lod 1, one face over both). The specification's "Geometry objects":
+    /// a CompositeSurface's boundaries are surfaces of rings, as a MultiSurface's; a
+    /// Solid's are shells of such surfaces.
+    const PARTS: &str = r#"{"type": "CityJSON", "version": "2.0",
+      "transform": {"scale": [0.001, 0.001, 0.001], "translate": [0, 0, 0]},
+      "CityObjects": {
+        "hall": {"type": "Building", "children": ["hall-east", "hall-west"],
+          "geometry": [{"type": "MultiSurface", "lod": "1",
+            "boundaries": [[[4, 5, 14, 15]]]}]},
+        "hall-east": {"type": "BuildingPart", "parents": ["hall"],
+          "geometry": [{"type": "CompositeSurface", "lod": "2.2",
+            "boundaries": [[[0, 3, 2, 1]], [[4, 5, 6, 7]], [[0, 1, 5, 4]], [[1, 2, 6, 5]],
+              [[2, 3, 7, 6]], [[3, 0, 4, 7]]],
+            "semantics": {"surfaces": [{"type": "GroundSurface"}, {"type": "RoofSurface"},
+              {"type": "WallSurface"}], "values": [0, 1, 2, 2, 2, 2]}}]},
+        "hall-west": {"type": "BuildingPart", "parents": ["hall"],
+          "geometry": [{"type": "Solid", "lod": "2.2",
+            "boundaries": [[[[8, 11, 10, 9]], [[12, 13, 14, 15]], [[8, 9, 13, 12]],
+              [[9, 10, 14, 13]], [[10, 11, 15, 14]], [[11, 8, 12, 15]]]]}]}},
+      "vertices": [[0, 0, 0], [10000, 0, 0], [10000, 10000, 0], [0, 10000, 0],
+        [0, 0, 10000], [10000, 0, 10000], [10000, 10000, 10000], [0, 10000, 10000],
+        [-10000, 0, 0], [0, 0, 0], [0, 10000, 0], [-10000, 10000, 0],
+        [-10000, 0, 6000], [0, 0, 6000], [0, 10000, 6000], [-10000, 10000, 6000]]}"#;
+
+    #[test]
+    fn a_building_is_drawn_by_its_parts_their_composite_surface_and_solid_read() {
+        let model = read_cityjson(PARTS.as_bytes(), false, None, shift([0.0; 3])).unwrap();
+        assert!(model.notes.is_empty(), "{:?}", model.notes);
+        // Six faces a part; the Building's own face left out.
+        assert_eq!(model.mesh.faces.len(), 12);
+        let mut groups: Vec<(&str, &str)> = model
+            .group_names
+            .iter()
+            .map(|(id, layer)| (id.as_str(), layer.as_str()))
+            .collect();
+        groups.sort();
+        assert_eq!(
+            groups,
+            [
+                ("hall-east", "ground"),
+                ("hall-east", "roof"),
+                ("hall-east", "wall"),
+                ("hall-west", "building")
+            ]
+        );
+        // The CompositeSurface's roof at 10 m and the Solid's at 6 m, as the integers
+        // times the scale give them (and the grounds at 0).
+        let top = |face: usize| {
+            model
+                .mesh
+                .face_corners(&model.mesh.faces[face])
+                .iter()
+                .map(|&i| model.mesh.positions[i as usize].z)
+                .fold(f64::MIN, f64::max)
+        };
+        let mut tops: Vec<f64> = (0..12).map(top).collect();
+        tops.sort_by(f64::total_cmp);
+        tops.dedup();
+        assert_eq!(tops, [0.0, 6.0, 10.0]);
+
+        // A Building that lists no parts is drawn by its own face.
+        let without_parts = PARTS.replace(
+            r#""children": ["hall-east", "hall-west"]"#,
+            r#""children": []"#,
+        );
+        let model = read_cityjson(without_parts.as_bytes(), false, None, shift([0.0; 3])).unwrap();
+        assert_eq!(model.mesh.faces.len(), 13);
+        assert!(model.group_names.iter().any(|(id, _)| id == "hall"));
+    }
+
     #[test]
     fn a_broken_instance_is_named_by_its_path() {
         for (from, to, at, words) in [
