@@ -266,6 +266,9 @@ corpus! {
     cityjson_template_missing: "cityjson-template-missing.city.json" => refused("cityjson-template-missing.city.json: at $.CityObjects[\"kiosk\"].geometry[0].template:", &["template 2 is beyond the file's 1 templates"]);
     cityjson_unread_reference_system: "cityjson-web-mercator.ron" => refused("cityjson-web-mercator.ron:4:15:", &["EPSG:3857", "not a transverse Mercator"]);
     cityjson_unread_reference_system_data: "cityjson-web-mercator.city.json" ["--at-latlon", "48,2"] => refused("cityjson-web-mercator.city.json: at $.metadata.referenceSystem:", &["EPSG:3857"]);
+    // UTM zone 31N (EPSG:32631) is used between 0 and 6 degrees east (its area of use in
+    // the EPSG registry, from memory); 20 degrees east is far outside it.
+    cityjson_outside_the_area_of_use: "cityjson-outside-area-of-use.city.json" ["--at-latlon", "45,20"] => refused("cityjson-outside-area-of-use.city.json: at $.metadata.referenceSystem:", &["outside the area of use", "EPSG:32631", "longitude 20"]);
     cityjson_sequence_broken_line: "cityjson-seq-broken-line.city.jsonl" => refused("cityjson-seq-broken-line.city.jsonl:3:39:", &["expected JSON"]);
 }
 
