@@ -361,6 +361,42 @@ fn an_outline_holding_a_building_part_is_drawn_by_its_parts_alone() {
     assert!(middle > 200.0, "{middle}");
 }
 
+/// The crest of a convex outline seen across a half ellipse x^2 / r^2 + z^2 / h^2 = 1
+/// (z >= 0) from the point (d, e) of its plane: a line z = m x + c touches the ellipse when
+/// c^2 = m^2 r^2 + h^2, at (-m r^2 / c, h^2 / c) (the tangent condition of an ellipse, any
+/// handbook of conics). Through the eye c = e - m d; the crest is the steeper tangent, the
+/// smaller root m.
+fn crest_by_conics(d: f64, e: f64, r: f64, h: f64) -> (f64, f64) {
+    let (a, b, c) = (d * d - r * r, -2.0 * e * d, e * e - h * h);
+    let m = (-b - (b * b - 4.0 * a * c).sqrt()) / (2.0 * a);
+    let intercept = e - m * d;
+    (-m * r * r / intercept, h * h / intercept)
+}
+
+/// Draws the site from its first standpoint (eye 1.6 m above the origin, level, facing
+/// north) at 4096 x 2048 without hidden edges, and gives the distance (pixels) from where a
+/// site point lands, worked here, to the nearest drawn line.
+fn drawn_from_eye_level(site: &pansite::scene::Site) -> impl Fn([f64; 3]) -> f64 {
+    let (w, h) = (4096.0, 2048.0);
+    let settings = pansite::render::RenderSettings {
+        width: w as u32,
+        height: h as u32,
+        overlays: false,
+        hidden: Some(pansite::scene::HiddenEdges::Off),
+        ..pansite::render::RenderSettings::default()
+    };
+    let drawing = pansite::render::draw(site, &site.standpoints[0], &settings)
+        .unwrap()
+        .drawing;
+    move |point: [f64; 3]| {
+        let (x, y) = common::predicted_pixel([0.0, 0.0, 1.6], (0.0, 0.0, 0.0), point, w, h);
+        common::distance_to_polylines(
+            pansite::plane::ImagePoint::new(x, y),
+            drawing.layers.iter().flat_map(|l| l.lines.iter()),
+        )
+    }
+}
+
 #[test]
 fn a_mapped_dome_rises_its_roof_height_and_its_outline_is_the_tangent_conics_give() {
     // A round building mapped as a 32-sided polygon of radius 8 m, 60 m north of the
@@ -422,20 +458,15 @@ fn a_mapped_dome_rises_its_roof_height_and_its_outline_is_the_tangent_conics_giv
 
     // The crest of its outline from the eye, by conics: in the vertical plane through the
     // eye and the dome's axis the dome is the half ellipse x^2 / r^2 + z^2 / h^2 = 1 (x
-    // towards the eye, z up from the walls' top), the eye at (D, e). A line z = m x + c
-    // touches it when c^2 = m^2 r^2 + h^2, at (-m r^2 / c, h^2 / c) (the tangent condition
-    // of an ellipse, any handbook of conics). Through the eye, c = e - m D; the crest is
-    // the steeper of the two tangents, the smaller root m.
+    // towards the eye, z up from the walls' top).
     let eye = nalgebra::Point3::new(0.0, 0.0, 1.6);
     let towards_eye = (eye.coords.xy() - centre.coords.xy()).normalize();
-    let (d, e) = (
+    let (x_t, z_t) = crest_by_conics(
         (eye.coords.xy() - centre.coords.xy()).norm(),
         eye.z - centre.z,
+        r,
+        h,
     );
-    let (a, b, c) = (d * d - r * r, -2.0 * e * d, e * e - h * h);
-    let m = (-b - (b * b - 4.0 * a * c).sqrt()) / (2.0 * a);
-    let intercept = e - m * d;
-    let (x_t, z_t) = (-m * r * r / intercept, h * h / intercept);
     let crest = |z_t: f64| {
         [
             centre.x + towards_eye.x * x_t,
@@ -443,25 +474,7 @@ fn a_mapped_dome_rises_its_roof_height_and_its_outline_is_the_tangent_conics_giv
             centre.z + z_t,
         ]
     };
-
-    let (w, hgt) = (4096.0, 2048.0);
-    let settings = pansite::render::RenderSettings {
-        width: w as u32,
-        height: hgt as u32,
-        overlays: false,
-        hidden: Some(pansite::scene::HiddenEdges::Off),
-        ..pansite::render::RenderSettings::default()
-    };
-    let drawing = pansite::render::draw(&site, &site.standpoints[0], &settings)
-        .unwrap()
-        .drawing;
-    let on_drawing = |point: [f64; 3]| {
-        let (x, y) = common::predicted_pixel([0.0, 0.0, 1.6], (0.0, 0.0, 0.0), point, w, hgt);
-        common::distance_to_polylines(
-            pansite::plane::ImagePoint::new(x, y),
-            drawing.layers.iter().flat_map(|l| l.lines.iter()),
-        )
-    };
+    let on_drawing = drawn_from_eye_level(&site);
     assert!(on_drawing(crest(z_t)) < 0.5, "{}", on_drawing(crest(z_t)));
     // 0.3 m above it (3 pixels at 60 m): nothing drawn.
     assert!(on_drawing(crest(z_t + 0.3)) > 2.0);
@@ -554,4 +567,81 @@ fn within_drops_what_lies_beyond_and_the_ground_falls_with_the_earth() {
 
     let (_, _, far) = two_buildings_north(", within: 3000, refraction: 0.13");
     assert_near(-far.unwrap(), fall(2000.0, 0.13), 0.002);
+}
+
+#[test]
+fn a_mapped_round_roof_rises_its_roof_height_and_its_crest_is_the_tangent_conics_give() {
+    // A hall 20 m east-west and 8 m north-south, its middle 40 m north of the standpoint,
+    // tagged `height=10`, `roof:shape=round`, `roof:height=3` (the simple 3D buildings
+    // conventions, common practice in mapping; a round roof's axis runs along the long
+    // sides): walls 7 m, the crown 3 m above them, over the 8 m span.
+    let geodesic = Geodesic::wgs84();
+    let corners = [
+        (-10.0, 36.0),
+        (10.0, 36.0),
+        (10.0, 44.0),
+        (-10.0, 44.0),
+        (-10.0, 36.0),
+    ];
+    let ring: Vec<String> = corners
+        .iter()
+        .map(|&(east, north): &(f64, f64)| {
+            let (lat, lon, _): (f64, f64, f64) = geodesic.direct(
+                45.0,
+                -30.0,
+                east.atan2(north).to_degrees(),
+                east.hypot(north),
+            );
+            format!("[{lon}, {lat}]")
+        })
+        .collect();
+    let dir = common::Scratch::new("round-roof");
+    dir.write(
+        "hall.geojson",
+        format!(
+            r#"{{"type": "FeatureCollection", "features": [{{"type": "Feature", "properties":
+            {{"building": "yes", "height": "10", "roof:shape": "round", "roof:height": "3"}},
+            "geometry": {{"type": "Polygon", "coordinates": [[{}]]}}}}]}}"#,
+            ring.join(", ")
+        ),
+    );
+    let scene = "Scene(location: (latitude: 45.0, longitude: -30.0), \
+                 standpoints: [(name: \"here\", x: 0, y: 0, ground: 0, eye_height: 1.6)], \
+                 items: [OpenData(file: \"hall.geojson\")])";
+    let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.path("s.ron"), "s").unwrap();
+    assert!(site.warnings.is_empty(), "{:?}", site.warnings);
+    let fall = 40.0f64.powi(2) / (2.0 * 6_371_000.0);
+    let crown = site
+        .faces
+        .iter()
+        .flat_map(|f| f.corners)
+        .map(|p| p.z)
+        .fold(f64::MIN, f64::max);
+    assert_near(crown, 10.0 - fall, 5e-4);
+    // The two ends are exact half ellipses: 4 m across, 3 m up, springing at 7 m.
+    let arches: Vec<_> = site
+        .edges
+        .iter()
+        .filter_map(|e| match e.curve {
+            pansite::scene::SiteCurve::Ellipse { centre, u, v, .. } => Some((centre, u, v)),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(arches.len(), 2);
+    for (centre, u, v) in arches {
+        assert_near(centre.z, 7.0 - fall, 5e-4);
+        assert_near(centre.y, 40.0, 1e-3);
+        assert_near(u.norm(), 4.0, 1e-3);
+        assert_near(v.z, 3.0, 1e-9);
+    }
+    // Across the axis the roof is the half ellipse y^2 / 16 + z^2 / 9 = 1 above the eaves;
+    // the eye is 40 m from the axis and 5.4 m below the eaves.
+    let (y_t, z_t) = crest_by_conics(40.0, 1.6 - (7.0 - fall), 4.0, 3.0);
+    let on_drawing = drawn_from_eye_level(&site);
+    for x in [-6.0, 0.0, 6.0] {
+        let point = [x, 40.0 - y_t, 7.0 - fall + z_t];
+        assert!(on_drawing(point) < 0.5, "{x}: {}", on_drawing(point));
+        // 0.3 m above it (about 3 pixels at 40 m): nothing drawn.
+        assert!(on_drawing([point[0], point[1], point[2] + 0.3]) > 2.0);
+    }
 }

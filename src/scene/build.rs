@@ -359,6 +359,10 @@ impl<'a> ItemBuilder<'a> {
                 radius: self.place.length(radius),
                 height: self.place.length(height),
             },
+            RoundOutline::Barrel { ends, up } => RoundOutline::Barrel {
+                ends: ends.map(|(centre, u)| (self.place.point(&centre), self.place.vector(&u))),
+                up: self.place.vector(&up),
+            },
             RoundOutline::Sphere { centre, radius } => RoundOutline::Sphere {
                 centre: self.place.point(&centre),
                 radius: self.place.length(radius),

@@ -39,6 +39,16 @@ pub enum RoundOutline {
         /// The height of its crown above the equator.
         height: f64,
     },
+    /// A half elliptic cylinder lying along a horizontal axis (a round roof): its
+    /// sections by two vertical end planes are the half ellipses `centre + u cos t +
+    /// up sin t`, t from 0 to pi, the same t on both ends on one straight generator (each
+    /// end's `u` reaches the same distance across the axis, so an end may stand askew).
+    Barrel {
+        /// Each end's section: its centre on the axis and its half-span along the end.
+        ends: [(Point3<f64>, Vector3<f64>); 2],
+        /// The crown's rise above the axis (vertical).
+        up: Vector3<f64>,
+    },
     /// A whole sphere (a tree's crown).
     Sphere {
         /// Its centre.
@@ -113,6 +123,7 @@ impl RoundOutline {
             RoundOutline::Sphere { centre, radius } => {
                 sphere_rim(centre, radius, eye).into_iter().collect()
             }
+            RoundOutline::Barrel { ends, up } => barrel_generators(ends, up, eye),
         }
     }
 }
@@ -153,6 +164,46 @@ fn cone_generators(
                 .map(|t| SiteCurve::Segment {
                     start: apex,
                     end: Point3::new(t.x, t.y, base.z),
+                })
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// The generators of a half elliptic cylinder whose tangent planes hold the eye. A plane
+/// holding a generator holds the axis's direction, so it is tangent where its trace on any
+/// section across the axis is tangent to that section. In the section's own coordinates
+/// (across in units of the half-span, up in units of the rise) the section is the unit
+/// circle, and the affine map keeps tangency: the generators stand at the tangent points
+/// from the eye's own coordinates, on the upper half.
+fn barrel_generators(
+    ends: [(Point3<f64>, Vector3<f64>); 2],
+    up: Vector3<f64>,
+    eye: &Point3<f64>,
+) -> Vec<SiteCurve> {
+    let [(first, u0), (second, u1)] = ends;
+    let axis = Vector2::new(second.x - first.x, second.y - first.y);
+    if axis.norm() == 0.0 || up.norm() == 0.0 {
+        return Vec::new();
+    }
+    let across = Vector2::new(-axis.y, axis.x) / axis.norm();
+    let span = across.dot(&Vector2::new(u0.x, u0.y));
+    if span == 0.0 {
+        return Vec::new();
+    }
+    let from = eye - first;
+    let at = Vector2::new(
+        across.dot(&Vector2::new(from.x, from.y)) / span,
+        from.z / up.norm(),
+    );
+    tangent_points(Vector2::zeros(), 1.0, at)
+        .map(|points| {
+            points
+                .iter()
+                .filter(|t| t.y >= 0.0)
+                .map(|t| SiteCurve::Segment {
+                    start: first + u0 * t.x + up * t.y,
+                    end: second + u1 * t.x + up * t.y,
                 })
                 .collect()
         })
@@ -340,6 +391,42 @@ mod tests {
             spheroid_dome_rim(centre, 2.0, 2.0, &eye),
             dome_rim(centre, 2.0, &eye)
         );
+    }
+
+    #[test]
+    fn a_barrels_generators_are_where_lines_of_sight_graze_it() {
+        // Axis along x at height 4, half-span 3 across (y), rise 2; one end askew. The
+        // cylinder is (y - 5)^2 / 9 + (z - 4)^2 / 4 = 1, its normal (0, (y - 5) / 9,
+        // (z - 4) / 4): a line of sight grazes it where that is at right angles to it.
+        let ends = [
+            (Point3::new(0.0, 5.0, 4.0), Vector3::new(0.0, 3.0, 0.0)),
+            (Point3::new(11.0, 5.0, 4.0), Vector3::new(1.0, 3.0, 0.0)),
+        ];
+        let up = Vector3::new(0.0, 0.0, 2.0);
+        for (eye, count) in [
+            (Point3::new(5.0, -20.0, 1.5), 1),
+            (Point3::new(-8.0, 5.5, 12.0), 2),
+            (Point3::new(30.0, 40.0, 5.0), 1),
+        ] {
+            let curves = barrel_generators(ends, up, &eye);
+            assert_eq!(curves.len(), count, "{eye:?}");
+            for curve in curves {
+                let SiteCurve::Segment { start, end } = curve else {
+                    panic!()
+                };
+                for p in [start, end] {
+                    let (y, z) = (p.y - 5.0, p.z - 4.0);
+                    assert!((y * y / 9.0 + z * z / 4.0 - 1.0).abs() < 1e-12);
+                    assert!(z >= 0.0);
+                    let normal = Vector3::new(0.0, y / 9.0, z / 4.0).normalize();
+                    assert!(normal.dot(&(eye - p).normalize()).abs() < 1e-12);
+                }
+                // A generator runs along the axis.
+                assert!((end.y - start.y).abs() < 1e-12 && (end.z - start.z).abs() < 1e-12);
+            }
+        }
+        // Inside the cylinder, under the roof: no outline.
+        assert!(barrel_generators(ends, up, &Point3::new(5.0, 5.0, 3.0)).is_empty());
     }
 
     #[test]

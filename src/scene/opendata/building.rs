@@ -8,13 +8,15 @@
 //! own `Footprint` items (`items/mass.rs`), which needs a convex plan for equal pitches (a
 //! gambrel's or mansard's two pitches and a half-hip are its planes too). A dome or a cone
 //! stands on the largest circle inside the footprint, on the prism's flat roof, as the
-//! scene's own domes do (`items/round.rs`). A roof that cannot be drawn as tagged is drawn
-//! flat with a warning.
+//! scene's own domes do (`items/round.rs`); a round roof is half an elliptic cylinder from
+//! eaves to eaves, its ends' walls closed up to its half ellipses. A roof that cannot be
+//! drawn as tagged is drawn flat with a warning.
 
-use super::super::build::ItemBuilder;
+use super::super::build::{ellipse_points, facet_count, ItemBuilder};
 use super::super::items::{
     build_mass, clip_polygon, cone, is_convex, spheroid_dome, turn_angle, Mass,
 };
+use super::super::outline::RoundOutline;
 use super::tags::{Heights, RoofShape};
 use nalgebra::{Point3, Vector2, Vector3};
 
@@ -46,6 +48,14 @@ pub fn build_building(
                 "a {:?} roof over a courtyard is not drawn; drawn flat",
                 heights.roof
             ));
+        } else if heights.roof == RoofShape::Round {
+            match barrel_plan(&rings[0], heights.across) {
+                Ok(barrel) => {
+                    build_barrel(b, &barrel, wall_top, heights.top - heights.eaves);
+                    return Ok(warnings);
+                }
+                Err(why) => warnings.push(format!("{why}; drawn flat")),
+            }
         } else if matches!(heights.roof, RoofShape::Dome | RoofShape::Cone) {
             match inscribed_circle(&rings[0], heights.roof) {
                 Ok((centre, radius)) => {
@@ -135,8 +145,8 @@ fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Res
     }
     let length = |i: usize| (plan[(i + 1) % n] - plan[i]).norm();
     let sloped: Vec<bool> = match heights.roof {
-        RoofShape::Flat | RoofShape::Dome | RoofShape::Cone => {
-            unreachable!("flat roofs are prisms, round ones stand on a circle")
+        RoofShape::Flat | RoofShape::Dome | RoofShape::Cone | RoofShape::Round => {
+            unreachable!("flat roofs are prisms, round ones are drawn by their own")
         }
         RoofShape::Hipped | RoofShape::Pyramidal | RoofShape::Mansard => vec![true; n],
         RoofShape::Gabled | RoofShape::HalfHipped | RoofShape::Gambrel => {
@@ -204,6 +214,119 @@ fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Res
         overhang: 0.0,
         parapet: None,
     })
+}
+
+/// How far (radians) the long sides under a round roof may turn from parallel: 0.001, a
+/// centimetre's misfit over 20 m (our own bound; a footprint squared by a map editor is
+/// parallel far closer).
+const BARREL_PARALLEL: f64 = 1e-3;
+
+/// A round roof's plan: a four-cornered footprint counter-clockwise from the first corner
+/// of a long side (its eaves, corners 0 to 1; the other eaves 2 to 3) and each end's half
+/// ellipse in plan: its centre on the axis midway between the long sides, and its half-span
+/// along the end, reaching across to the eaves 2 to 3. First the end from corner 3 to 0,
+/// then the end from 1 to 2.
+#[derive(Clone, Debug, PartialEq)]
+struct BarrelPlan {
+    corners: [Vector2<f64>; 4],
+    ends: [(Vector2<f64>, Vector2<f64>); 2],
+}
+
+/// The plan of a round roof whose axis runs along the long sides (across them with
+/// `roof:orientation=across`): four corners, convex, the eaves parallel.
+fn barrel_plan(ring: &[Vector2<f64>], across: bool) -> Result<BarrelPlan, String> {
+    let plan = corners(ring);
+    if plan.len() != 4 || !is_convex(&plan) {
+        return Err(format!(
+            "a round roof needs a convex footprint of four corners, not {}",
+            plan.len()
+        ));
+    }
+    let length = |i: usize| (plan[(i + 1) % 4] - plan[i]).norm();
+    let long_first = length(0) + length(2) >= length(1) + length(3);
+    let first = if long_first != across { 0 } else { 1 };
+    let c: [Vector2<f64>; 4] = std::array::from_fn(|k| plan[(first + k) % 4]);
+    let (d0, d2) = ((c[1] - c[0]).normalize(), (c[2] - c[3]).normalize());
+    if d0.perp(&d2).abs() > BARREL_PARALLEL || d0.dot(&d2) <= 0.0 {
+        return Err("a round roof needs its two eaves parallel".to_owned());
+    }
+    let axis = (d0 + d2).normalize();
+    let inward = Vector2::new(-axis.y, axis.x);
+    let offset = |a: Vector2<f64>, b: Vector2<f64>| 0.5 * (inward.dot(&a) + inward.dot(&b));
+    let (near, far) = (offset(c[0], c[1]), offset(c[2], c[3]));
+    let half = 0.5 * (far - near);
+    if half <= 0.0 {
+        return Err("the footprint has no width to span with a round roof".to_owned());
+    }
+    // Along an end from its corner on the near eaves towards the far one: where it
+    // crosses the axis, and the step along it that goes `half` across.
+    let end = |from: Vector2<f64>, to: Vector2<f64>| {
+        let along = to - from;
+        let rate = inward.dot(&along);
+        let centre = from + along * ((near + half - inward.dot(&from)) / rate);
+        (centre, along * (half / rate))
+    };
+    Ok(BarrelPlan {
+        corners: c,
+        ends: [end(c[0], c[3]), end(c[1], c[2])],
+    })
+}
+
+/// Walls to `top` under a round roof rising `rise` above them: the eaves and the upright
+/// corners, each end's half ellipse drawn exactly and its wall closed up to it, the roof's
+/// faces running from end to end, and its outline from each eye.
+fn build_barrel(b: &mut ItemBuilder, barrel: &BarrelPlan, top: f64, rise: f64) {
+    let at = |p: Vector2<f64>, z: f64| Point3::new(p.x, p.y, z);
+    let c = &barrel.corners;
+    let foot: Vec<Point3<f64>> = c.iter().map(|&p| at(p, 0.0)).collect();
+    let head: Vec<Point3<f64>> = c.iter().map(|&p| at(p, top)).collect();
+    b.path(&foot, true);
+    for k in 0..4 {
+        b.segment(foot[k], head[k]);
+    }
+    b.segment(head[0], head[1]);
+    b.segment(head[2], head[3]);
+    b.face(&[foot[0], foot[1], head[1], head[0]], &[]);
+    b.face(&[foot[2], foot[3], head[3], head[2]], &[]);
+    let up = Vector3::z() * rise;
+    let count = facet_count(std::f64::consts::PI);
+    // Each end's section from the far eaves (t = 0) over the crown to the near (t = pi),
+    // its springings put exactly on the corners so that walls and roof share them.
+    let section = |(centre, half): (Vector2<f64>, Vector2<f64>), far: usize, near: usize| {
+        let mut points = ellipse_points(
+            at(centre, top),
+            Vector3::new(half.x, half.y, 0.0),
+            up,
+            0.0,
+            std::f64::consts::PI,
+            count,
+        );
+        points[0] = head[far];
+        points[count] = head[near];
+        points
+    };
+    let sections = [section(barrel.ends[0], 3, 0), section(barrel.ends[1], 2, 1)];
+    for (k, &(near, far)) in [(0, 3), (1, 2)].iter().enumerate() {
+        let (centre, half) = barrel.ends[k];
+        b.ellipse(
+            at(centre, top),
+            Vector3::new(half.x, half.y, 0.0),
+            up,
+            0.0,
+            std::f64::consts::PI,
+        );
+        let mut wall = vec![foot[near], foot[far]];
+        wall.extend_from_slice(&sections[k][..count]);
+        b.face(&wall, &[]);
+    }
+    b.strip(&sections[0], &sections[1]);
+    b.face(&foot, &[]);
+    b.round_outline(RoundOutline::Barrel {
+        ends: barrel
+            .ends
+            .map(|(centre, half)| (at(centre, top), Vector3::new(half.x, half.y, 0.0))),
+        up,
+    });
 }
 
 /// The circle a round roof stands on: the largest circle inside the footprint (its centre
@@ -421,6 +544,38 @@ mod tests {
         let (centre, radius) = inscribed_circle(&round, RoofShape::Dome).unwrap();
         assert!((centre - Vector2::new(3.0, -2.0)).norm() < 1e-6);
         assert!((radius - 8.0 * (std::f64::consts::PI / 24.0).cos()).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_round_roof_spans_between_its_eaves_from_end_to_end() {
+        // 10 x 6: the axis along the 10 m sides, 3 m from each; the ends' half ellipses
+        // span 3 m either way from their middles.
+        let barrel = barrel_plan(&rectangle(10.0, 6.0), false).unwrap();
+        assert_eq!(barrel.corners[0], Vector2::new(0.0, 0.0));
+        let close = |a: Vector2<f64>, b: [f64; 2]| (a - Vector2::new(b[0], b[1])).norm() < 1e-12;
+        let [(c0, u0), (c1, u1)] = barrel.ends;
+        assert!(close(c0, [0.0, 3.0]) && close(u0, [0.0, 3.0]), "{c0} {u0}");
+        assert!(close(c1, [10.0, 3.0]) && close(u1, [0.0, 3.0]), "{c1} {u1}");
+        // Across: the axis along the 6 m sides, starting from the second corner.
+        let barrel = barrel_plan(&rectangle(10.0, 6.0), true).unwrap();
+        assert_eq!(barrel.corners[0], Vector2::new(10.0, 0.0));
+        assert!(close(barrel.ends[0].0, [5.0, 0.0]) && close(barrel.ends[0].1, [-5.0, 0.0]));
+        // An end standing askew: from (10, 0) to (12, 6) it crosses the axis (y = 3) at
+        // (11, 3), and reaches the far eaves 3 m across at (12, 6).
+        let askew = [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(10.0, 0.0),
+            Vector2::new(12.0, 6.0),
+            Vector2::new(0.0, 6.0),
+        ];
+        let barrel = barrel_plan(&askew, false).unwrap();
+        assert!(close(barrel.ends[1].0, [11.0, 3.0]) && close(barrel.ends[1].1, [1.0, 3.0]));
+        // Eaves that are not parallel are refused.
+        let mut splayed = rectangle(10.0, 6.0);
+        splayed[2].y = 6.5;
+        assert!(barrel_plan(&splayed, false)
+            .unwrap_err()
+            .contains("parallel"));
     }
 
     #[test]

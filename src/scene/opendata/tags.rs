@@ -73,6 +73,9 @@ pub enum RoofShape {
     Dome,
     /// A cone on the largest circle inside the footprint (`cone`).
     Cone,
+    /// Half an elliptic cylinder over the footprint, its axis along the long sides or,
+    /// `roof:orientation=across`, across them (`round`).
+    Round,
 }
 
 /// The `roof:shape` values we draw, as the OpenStreetMap wiki's Key:roof:shape page spells
@@ -80,7 +83,7 @@ pub enum RoofShape {
 /// and our roof for each. `onion` is drawn as a dome (its bulge left out), said as an
 /// assumption. The wiki's other shapes (`gabled_height_moved`, `side_hipped`,
 /// `side_half-hipped`, `hipped-and-gabled`, `crosspitched`, `sawtooth`, `butterfly`,
-/// `round`, `saltbox`, `many`) are drawn flat with a warning.
+/// `many`) are drawn flat with a warning.
 pub const ROOF_SHAPES: &[(&str, RoofShape)] = &[
     ("flat", RoofShape::Flat),
     ("gabled", RoofShape::Gabled),
@@ -93,6 +96,7 @@ pub const ROOF_SHAPES: &[(&str, RoofShape)] = &[
     ("dome", RoofShape::Dome),
     ("onion", RoofShape::Dome),
     ("cone", RoofShape::Cone),
+    ("round", RoofShape::Round),
 ];
 
 /// The vertical shape of one building or building part, in metres above its ground.
@@ -395,6 +399,7 @@ mod tests {
             ("dome", RoofShape::Dome),
             ("onion", RoofShape::Dome),
             ("cone", RoofShape::Cone),
+            ("round", RoofShape::Round),
         ] {
             let (h, assumptions, warnings) =
                 heights_of(json!({"height": 12, "roof:shape": name, "roof:height": 4}));
