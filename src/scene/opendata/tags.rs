@@ -223,6 +223,10 @@ pub fn heights(
         ));
         DEFAULT_ROOF_STOREYS * storey
     };
+    if roof_rise == 0.0 {
+        // `roof:height=0`: whatever its shape, a roof of no height is flat.
+        roof = RoofShape::Flat;
+    }
     let base = match (min_height, min_level) {
         (Some(h), _) => h,
         (None, Some(l)) => l * storey,
@@ -435,6 +439,8 @@ mod tests {
                 "{warnings:?}"
             );
         }
+        let (h, _, _) = heights_of(json!({"height": 9, "roof:shape": "dome", "roof:height": 0}));
+        assert_eq!((h.roof, h.eaves), (RoofShape::Flat, 9.0));
         let (h, _, warnings) =
             heights_of(json!({"height": 3, "roof:shape": "gabled", "roof:height": 5}));
         assert_eq!(h.roof, RoofShape::Flat);
