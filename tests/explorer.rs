@@ -481,7 +481,8 @@ fn a_model_given_directly_keeps_standpoints_in_a_new_scene_beside_it() {
 fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
     // `pansite explore` on a GeoJSON file (the command once refused it as "not a scene"):
     // it serves the file as `render` reads it, and a standpoint kept goes into a new scene
-    // beside it that places the data around the same origin, the file itself untouched.
+    // beside it that places the data around the same origin, in the time zone given, the
+    // file itself untouched.
     let dir = Scratch::new("explorer-open-data");
     let data = dir.path("saltmarsh-row.geojson");
     std::fs::copy(
@@ -491,7 +492,7 @@ fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
     .unwrap();
     let data_bytes = std::fs::read(&data).unwrap();
     let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_pansite"))
-        .args(["explore", "--port", "0"])
+        .args(["explore", "--port", "0", "--time-zone", "Europe/London"])
         .arg(&data)
         .stdout(std::process::Stdio::piped())
         .stderr(std::process::Stdio::piped())
@@ -526,15 +527,14 @@ fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
     assert_eq!(underlay.status, 200, "{}", underlay.text());
     assert!(underlay.body.starts_with(b"\x89PNG"));
     assert_eq!(std::fs::read(&data).unwrap(), data_bytes);
-    let direct = pansite::scene::load_open_data(&data, None, None).unwrap();
+    let direct = pansite::scene::load_open_data(&data, None, Some("Europe/London")).unwrap();
     let kept = pansite::scene::load_scene(&dir.path("saltmarsh-row-standpoints.ron")).unwrap();
     assert_eq!(kept.standpoints.len(), 1);
     assert_eq!(kept.standpoints[0].name, "quay");
-    let place = |site: &pansite::scene::Site| {
-        let l = site.location.as_ref().unwrap();
-        (l.latitude_deg, l.longitude_deg)
-    };
-    assert_eq!(place(&kept), place(&direct));
+    // The same place and the same time zone (the one given on the command line).
+    let location = direct.location.as_ref().unwrap();
+    assert_eq!(location.time_zone.as_deref(), Some("Europe/London"));
+    assert_eq!(kept.location, direct.location);
     assert_eq!(kept.edges.len(), direct.edges.len());
     assert_eq!(
         format!("{:?}", kept.edges[0].curve),

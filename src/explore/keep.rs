@@ -8,7 +8,7 @@
 //! that may be added is the comma that separates the new entry when the last one had none.
 
 use crate::error::{Error, Result};
-use crate::scene::{parse_scene, scene_unit_metres, Standpoint};
+use crate::scene::{parse_scene, scene_unit_metres, Location, Standpoint};
 use std::path::Path;
 
 /// The longest name a kept standpoint may have, characters.
@@ -108,16 +108,33 @@ pub fn keep_in_scene(text: &str, path: &Path, standpoint: &Standpoint) -> Result
 pub fn new_scene_for_model(
     model_name: &str,
     model_item: &str,
-    location: Option<(f64, f64)>,
+    location: Option<&Location>,
     entry: &str,
 ) -> String {
-    let location = location.map_or(String::new(), |(latitude, longitude)| {
-        format!("    location: (latitude: {latitude:?}, longitude: {longitude:?}),\n")
-    });
+    let location = location.map_or(String::new(), location_block);
     format!(
         "// Standpoints kept for {model_name}; the model file itself is not changed.\n\
          Scene(\n{location}    standpoints: [\n        {entry},\n    ],\n    items: [\n        {model_item},\n    ],\n)\n"
     )
+}
+
+/// A scene's `location` block for `location`: its latitude and longitude, and its height,
+/// the bearing of true north and the time zone where they say something.
+fn location_block(location: &Location) -> String {
+    let mut fields = vec![
+        format!("latitude: {:?}", location.latitude_deg),
+        format!("longitude: {:?}", location.longitude_deg),
+    ];
+    if location.height_m != 0.0 {
+        fields.push(format!("height: {:?}", location.height_m));
+    }
+    if location.north_deg != 0.0 {
+        fields.push(format!("north: {:?}", location.north_deg));
+    }
+    if let Some(zone) = &location.time_zone {
+        fields.push(format!("time_zone: {zone:?}"));
+    }
+    format!("    location: ({}),\n", fields.join(", "))
 }
 
 /// A token of the scene text that matters for its structure.

@@ -998,7 +998,7 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
                     new_scene_for_model(
                         &name,
                         model_item.as_deref().unwrap_or_default(),
-                        *location,
+                        location.as_ref(),
                         &entry,
                     )
                 }),

@@ -4,7 +4,7 @@
 use super::describe;
 use crate::error::Result;
 use crate::scene::HiddenEdges;
-use crate::scene::{parse_scene, read_input, Site};
+use crate::scene::{parse_scene, read_input, Location, Site};
 use crate::visibility::HiddenLines;
 use std::path::{Path, PathBuf};
 use std::sync::{Arc, OnceLock};
@@ -28,9 +28,9 @@ pub enum Source {
         load: Loader,
         /// The scene item that places it, for the scene written beside it.
         model_item: Option<String>,
-        /// The latitude and longitude of the plan's origin, for the scene written beside
-        /// it (an open-data file is placed around it).
-        location: Option<(f64, f64)>,
+        /// Where the plan's origin is on the earth (an open-data file is placed around it)
+        /// and its time zone, for the scene written beside it.
+        location: Option<Location>,
     },
     /// A site read once (from standard input): nothing is watched, nothing can be kept,
     /// for the reason given.

@@ -85,10 +85,7 @@ fn open_data_source(args: &ExploreArgs) -> pansite::Result<Source> {
     let origin = args.model.origin_latlon;
     let zone = args.model.time_zone.clone();
     let site = pansite::scene::load_open_data(&args.scene, origin, zone.as_deref())?;
-    let location = site
-        .location
-        .as_ref()
-        .map(|l| (l.latitude_deg, l.longitude_deg));
+    let location = site.location.clone();
     let model_item = args
         .scene
         .file_name()
