@@ -196,6 +196,7 @@ corpus! {
     windows_that_do_not_fit: "windows-do-not-fit.ron" => refused("windows-do-not-fit.ron:4:9:", &["12 openings 1.2 wide do not fit"]);
     head_taller_than_opening: "head-taller-than-opening.ron" => refused("head-taller-than-opening.ron:4:9:", &["Semicircular head", "rises 1.0000", "height (0.8) must exceed"]);
     segmental_head_too_high: "segmental-head-too-high.ron" => refused("segmental-head-too-high.ron:4:9:", &["the head", "rises at most half its span", "Pointed"]);
+    pointed_head_radius_too_short: "pointed-head-radius-too-short.ron" => refused("pointed-head-radius-too-short.ron:4:9:", &["the head", "radius of more than half its span (0.6), not 0.5", "Semicircular"]);
     round_window_below_foot: "round-window-below-foot.ron" => refused("round-window-below-foot.ron:4:9:", &["round window 1.5 across", "below the foot"]);
     figure_under_the_ground: "figure-under-the-ground.ron" => refused("figure-under-the-ground.ron:4:9:", &["figure", "under the ground", "base` -1.5"]);
     figure_under_the_slope: "figure-under-the-slope.ron" => refused("figure-under-the-slope.ron:5:9:", &["Figure \"walker\"", "stands 1.25 m under the ground at (5.00, 10.00)", "leave `base` out"]);

@@ -347,6 +347,53 @@ fn equilateral_pointed_arch_apex() {
     );
 }
 
+/// A pointed arch given by the radius of its arcs. Each arc is centred on the springing
+/// line r - s/2 beyond the axis (on the far side) and passes through the near springing and
+/// the apex on the axis, so rise^2 + (r - s/2)^2 = r^2 and the rise of a two-centred arch
+/// of span s and radius r is sqrt(r^2 - (r - s/2)^2) (plane geometry, Pythagoras). With
+/// r = s (the equilateral arch, common practice) that is sqrt(s^2 - s^2/4) = s sqrt(3)/2.
+#[test]
+fn pointed_arch_and_window_head_by_radius() {
+    let rise = |span: f64, radius: f64| (radius * radius - (radius - span / 2.0).powi(2)).sqrt();
+    for (span, radius) in [(3.0, 2.4), (3.0, 3.0), (2.0, 7.5)] {
+        let springing = 2.5;
+        let site = scene_with(&format!(
+            "Arch(at: Centre(0, 0), span: {span}, springing: {springing}, pier: 1, \
+             thickness: 0.5, shape: Pointed(radius: {radius}))"
+        ));
+        assert_near(
+            highest_curve_point(&site),
+            springing + rise(span, radius),
+            1e-12,
+        );
+        for edge in &site.edges {
+            if let SiteCurve::Ellipse { u, v, .. } = edge.curve {
+                assert_near(u.norm(), radius, 1e-12);
+                assert_near(v.norm(), radius, 1e-12);
+            }
+        }
+    }
+    assert_near(rise(3.0, 3.0), 3.0 * 3f64.sqrt() / 2.0, 1e-15);
+    // A window head of width 1.2 and radius 0.9 rises sqrt(0.81 - 0.09) = 0.8485 to its
+    // crown at the opening's height.
+    let (width, radius, sill, height) = (1.2, 0.9, 2.0, 3.4);
+    let site = scene_with(&format!(
+        "Block(at: Corner(0, 0), width: 8, depth: 6, height: 7, openings: [(wall: Front, \
+         width: {width}, height: {height}, sill: {sill}, head: Pointed(radius: {radius}))])"
+    ));
+    assert_near(highest_curve_point(&site), sill + height, 1e-12);
+    let springing = sill + height - rise(width, radius);
+    let mut arcs = 0;
+    for edge in &site.edges {
+        if let SiteCurve::Ellipse { centre, u, .. } = edge.curve {
+            assert_near(u.norm(), radius, 1e-12);
+            assert_near(centre.z, springing, 1e-12);
+            arcs += 1;
+        }
+    }
+    assert_eq!(arcs, 2);
+}
+
 /// A window head follows the same curves. A segmental head of width s rising h: radius
 /// (s^2/4 + h^2) / 2h (intersecting chords, any geometry handbook), crown at the
 /// opening's height; the reveal's back and the surround draw the same arc again, the

@@ -17,10 +17,13 @@ pub enum ArchShape {
     /// An arc of a circle less than a half, rising `rise` above the springing.
     Segmental { rise: Positive },
     /// Two arcs meeting at a point (two-centred); equilateral (radius = span) unless a
-    /// `rise` greater than half the span is given.
+    /// `rise` greater than half the span, or the arcs' `radius` (more than half the span),
+    /// is given.
     Pointed {
         #[serde(default)]
         rise: Option<Positive>,
+        #[serde(default)]
+        radius: Option<Positive>,
     },
     /// A half ellipse rising `rise`.
     Elliptical { rise: Positive },
@@ -158,6 +161,16 @@ pub fn pointed_radius(half: f64, rise: f64) -> f64 {
     (half * half + rise * rise) / (2.0 * half)
 }
 
+/// Rise of a pointed arch of half-span `half` whose arcs have `radius`: each arc's centre
+/// lies on the springing line `radius - half` beyond the axis, and the apex on the axis is
+/// `radius` from it, so `rise^2 + (radius - half)^2 = radius^2` (Pythagoras), the inverse
+/// of [`pointed_radius`].
+pub fn pointed_rise(half: f64, radius: f64) -> f64 {
+    // radius^2 - (radius - half)^2, factored as a difference of squares so that a radius
+    // much longer than the span loses no digits.
+    (half * (2.0 * radius - half)).sqrt()
+}
+
 /// The radii (small, big) of a three-centred arch of half-span `half` rising `rise`, with
 /// arcs of 60 degrees each. The small arcs stand on the springing line at `half - small`
 /// from the axis; the big arc's centre is on the axis, on the line from a small centre
@@ -209,18 +222,39 @@ pub fn arch_curve(shape: ArchShape, span: f64) -> Result<ArchCurve, String> {
                 false,
             )
         }
-        ArchShape::Pointed { rise } => {
+        ArchShape::Pointed { rise, radius } => {
             // Equilateral unless told: each arc's radius is the span, so the apex and the
             // two springings make an equilateral triangle and the apex stands
             // span sin(60 degrees) above the springing (common practice).
-            let rise = rise.map_or(span * (PI / 3.0).sin(), |r| r.0);
-            if rise <= half {
-                return Err(format!(
-                    "a pointed arch rises more than half its span ({half}), not {rise}; \
-                     for a lower arch use Segmental, ThreeCentred or Elliptical"
-                ));
-            }
-            let radius = pointed_radius(half, rise);
+            let (rise, radius) = match (rise, radius) {
+                (Some(_), Some(_)) => {
+                    return Err("a pointed arch is given by its `rise` or by its `radius`, \
+                                not both"
+                        .to_owned())
+                }
+                (None, Some(radius)) => {
+                    let radius = radius.0;
+                    if radius <= half {
+                        return Err(format!(
+                            "a pointed arch's arcs need a radius of more than half its span \
+                             ({half}), not {radius}: a shorter one cannot reach from a \
+                             springing to the crown, and one of half the span is Semicircular"
+                        ));
+                    }
+                    (pointed_rise(half, radius), radius)
+                }
+                (rise, None) => {
+                    let rise = rise.map_or(span * (PI / 3.0).sin(), |r| r.0);
+                    if rise <= half {
+                        return Err(format!(
+                            "a pointed arch rises more than half its span ({half}), not \
+                             {rise}; for a lower arch use Segmental, ThreeCentred or \
+                             Elliptical"
+                        ));
+                    }
+                    (rise, pointed_radius(half, rise))
+                }
+            };
             let reach = radius - half;
             // The angle at each centre between the springing line and the apex.
             let to_apex = rise.atan2(reach);
@@ -501,7 +535,14 @@ mod tests {
     #[test]
     fn equilateral_pointed_arch_has_radius_span_and_apex_at_span_sin_60() {
         let span = 3.0;
-        let curve = arch_curve(ArchShape::Pointed { rise: None }, span).unwrap();
+        let curve = arch_curve(
+            ArchShape::Pointed {
+                rise: None,
+                radius: None,
+            },
+            span,
+        )
+        .unwrap();
         // Equilateral pointed arch: each arc's radius is the span and the apex stands
         // span sin(60 deg) above the springing (common practice).
         let rise = span * 3f64.sqrt() / 2.0;
@@ -523,6 +564,7 @@ mod tests {
         let curve = arch_curve(
             ArchShape::Pointed {
                 rise: Some(Positive(4.0)),
+                radius: None,
             },
             4.0,
         )
@@ -534,6 +576,52 @@ mod tests {
         let arriving = right.direction(right.start + right.sweep);
         let leaving = left.direction(left.start);
         assert!(arriving.dot(&leaving) < 0.99);
+    }
+
+    #[test]
+    fn pointed_arch_of_given_radius() {
+        // Each arc is centred on the springing line r - s/2 beyond the axis and reaches the
+        // apex on the axis, so rise^2 + (r - s/2)^2 = r^2 (plane geometry, Pythagoras):
+        // span 4, radius 5 rises sqrt(25 - 9) = 4, the arch of given rise above.
+        assert!((pointed_rise(2.0, 5.0) - 4.0).abs() < CLOSE);
+        let curve = arch_curve(
+            ArchShape::Pointed {
+                rise: None,
+                radius: Some(Positive(5.0)),
+            },
+            4.0,
+        )
+        .unwrap();
+        assert!(near(curve.pieces[0].centre, Vector2::new(-3.0, 0.0)));
+        for piece in &curve.pieces {
+            assert!((piece.radii.x - 5.0).abs() < CLOSE);
+        }
+        assert_well_formed(&curve, 2.0, 4.0);
+        // A radius equal to the span is the equilateral arch: rise s sin 60 degrees.
+        let by_radius = |radius: f64| {
+            arch_curve(
+                ArchShape::Pointed {
+                    rise: None,
+                    radius: Some(Positive(radius)),
+                },
+                3.0,
+            )
+        };
+        assert!((by_radius(3.0).unwrap().rise - 1.5 * 3f64.sqrt()).abs() < CLOSE);
+        // No longer than half the span: no arc reaches the crown (or a half circle).
+        for short in [1.5, 1.2] {
+            let error = by_radius(short).unwrap_err();
+            assert!(error.contains("more than half its span (1.5)"), "{error}");
+        }
+        let both = arch_curve(
+            ArchShape::Pointed {
+                rise: Some(Positive(4.0)),
+                radius: Some(Positive(5.0)),
+            },
+            4.0,
+        )
+        .unwrap_err();
+        assert!(both.contains("not both"), "{both}");
     }
 
     #[test]
@@ -597,6 +685,7 @@ mod tests {
         assert!(error.contains("Pointed"), "{error}");
         let error = refused(ArchShape::Pointed {
             rise: Some(Positive(2.0)),
+            radius: None,
         });
         assert!(error.contains("Segmental"), "{error}");
         // (2 - sqrt 3) x 2 = 0.536: a rise of 0.5 is too flat for 60-degree arcs.
@@ -667,6 +756,7 @@ mod tests {
             1,
             ArchShape::Pointed {
                 rise: Some(Positive(2.0)),
+                radius: None,
             },
         ))
         .unwrap();
@@ -682,7 +772,10 @@ mod tests {
             ArchShape::Segmental {
                 rise: Positive(0.6),
             },
-            ArchShape::Pointed { rise: None },
+            ArchShape::Pointed {
+                rise: None,
+                radius: None,
+            },
             ArchShape::Elliptical {
                 rise: Positive(1.4),
             },

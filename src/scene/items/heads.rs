@@ -30,9 +30,13 @@ pub enum Head {
     Segmental {
         rise: Positive,
     },
+    /// Equilateral (each arc's radius the opening's width) unless given a `rise` or the
+    /// arcs' `radius`.
     Pointed {
         #[serde(default)]
         rise: Option<Positive>,
+        #[serde(default)]
+        radius: Option<Positive>,
     },
     Elliptical {
         rise: Positive,
@@ -49,7 +53,7 @@ impl Head {
             Head::Square => return None,
             Head::Semicircular => ArchShape::Semicircular,
             Head::Segmental { rise } => ArchShape::Segmental { rise },
-            Head::Pointed { rise } => ArchShape::Pointed { rise },
+            Head::Pointed { rise, radius } => ArchShape::Pointed { rise, radius },
             Head::Elliptical { rise } => ArchShape::Elliptical { rise },
             Head::ThreeCentred { rise } => ArchShape::ThreeCentred { rise },
         })
@@ -398,7 +402,14 @@ mod tests {
         // springing (common practice). Grown by 0.25 the arcs keep their centres, radius
         // 2.25, so the outer crown stands sqrt(2.25^2 - 1^2) above the springing
         // (Pythagoras), higher than the inner crown (sqrt 3) plus 0.25.
-        let o = arched(Head::Pointed { rise: None }, (0.0, 2.0, 0.0, 4.0), 0.25);
+        let o = arched(
+            Head::Pointed {
+                rise: None,
+                radius: None,
+            },
+            (0.0, 2.0, 0.0, 4.0),
+            0.25,
+        );
         assert_closed(&o);
         let springing = 4.0 - 3f64.sqrt();
         assert_near(o.top(), springing + (2.25f64 * 2.25 - 1.0).sqrt(), 1e-12);
