@@ -973,3 +973,284 @@ fn a_figure_car_or_tree_sunk_in_the_ground_is_refused_by_name() {
         assert!(close.warnings.is_empty(), "{kind}: {:?}", close.warnings);
     }
 }
+
+/// The horizontal circles (rims) of the item labelled `label`, as (centre height, radius).
+fn level_circles_of(site: &Site, label: &str) -> Vec<(f64, f64)> {
+    let item = site
+        .items
+        .iter()
+        .position(|i| i.label.as_deref() == Some(label))
+        .unwrap() as u32;
+    site.edges
+        .iter()
+        .filter(|e| e.item == ItemId(item))
+        .filter_map(|e| match e.curve {
+            SiteCurve::Ellipse { centre, u, v, .. } if u.z == 0.0 && v.z == 0.0 => {
+                Some((centre.z, u.norm()))
+            }
+            _ => None,
+        })
+        .collect()
+}
+
+/// The sloping ellipse arcs of the item labelled `label`: the line where it meets the
+/// ground.
+fn sloping_arcs_of(site: &Site, label: &str) -> Vec<SiteCurve> {
+    let item = site
+        .items
+        .iter()
+        .position(|i| i.label.as_deref() == Some(label))
+        .unwrap() as u32;
+    site.edges
+        .iter()
+        .filter(|e| e.item == ItemId(item))
+        .filter(|e| matches!(e.curve, SiteCurve::Ellipse { u, v, .. } if u.z != 0.0 || v.z != 0.0))
+        .map(|e| e.curve)
+        .collect()
+}
+
+#[test]
+fn round_items_stand_at_the_lowest_ground_round_their_rims() {
+    // On the plane z = 1 + x / 20 + y / 5 (worked by hand above), a circle of radius r
+    // about c has its lowest point where it runs straight down the slope, r |grad z| below
+    // z(c), |grad z| = sqrt(1/20^2 + 1/5^2) = sqrt(0.0425) (plane geometry, worked by
+    // hand). A vertical cylinder meets the plane in the ellipse
+    // c + r (cos t, sin t, cos t / 20 + sin t / 5) about (c, z(c)), drawn as the foot line.
+    let slope = 0.0425f64.sqrt();
+    for (kind, label, x, y, radius, base) in [
+        ("Column", "column", 10.0, 10.0, 2.0, 0.0),
+        ("Tower", "tower", 20.0, 8.0, 1.5, 1.0),
+        ("Dome", "dome", 8.0, 22.0, 2.0, 0.0),
+    ] {
+        let fields = match kind {
+            "Dome" => "drum: 2",
+            _ => "height: 5",
+        };
+        let site = site(&format!(
+            "Scene({PLANE}, items: [{kind}(label: \"{label}\", at: ({x}, {y}), \
+             diameter: {}, {fields}, base: {base}, on_ground: true)])",
+            2.0 * radius
+        ));
+        let foot = plane_height(x, y) - radius * slope + base;
+        let circles = level_circles_of(&site, label);
+        let lowest = circles.iter().map(|c| c.0).fold(f64::INFINITY, f64::min);
+        assert_near(lowest, foot, 1e-12);
+        let arcs = sloping_arcs_of(&site, label);
+        assert_eq!(
+            arcs.len(),
+            1,
+            "{label}: one flat triangle, one whole ellipse"
+        );
+        let SiteCurve::Ellipse {
+            centre,
+            u,
+            v,
+            sweep,
+            ..
+        } = arcs[0]
+        else {
+            unreachable!()
+        };
+        assert_near(sweep, std::f64::consts::TAU, 1e-12);
+        assert_near(
+            (centre - Point3::new(x, y, plane_height(x, y))).norm(),
+            0.0,
+            1e-12,
+        );
+        assert_near(
+            (u - nalgebra::Vector3::new(radius, 0.0, radius / 20.0)).norm(),
+            0.0,
+            1e-12,
+        );
+        assert_near(
+            (v - nalgebra::Vector3::new(0.0, radius, radius / 5.0)).norm(),
+            0.0,
+            1e-12,
+        );
+    }
+    // Without `on_ground` the scene keeps its meaning: the base as written.
+    let site = site(&format!(
+        "Scene({PLANE}, items: [Tower(label: \"t\", at: (20, 8), diameter: 3, height: 5)])"
+    ));
+    assert_near(level_circles_of(&site, "t")[0].0, 0.0, 0.0);
+    assert!(sloping_arcs_of(&site, "t").is_empty());
+}
+
+#[test]
+fn a_round_item_in_a_turned_group_meets_the_ground_in_the_same_ellipse() {
+    // The column of the test above at (20, 10), placed through a group turned 30 degrees:
+    // its foot line is the same ellipse in the site (the plane's, about (20, 10, 4)), and
+    // every point of it lies on the ground.
+    let site = site(&format!(
+        "Scene({PLANE}, items: [Group(at: (20, 10, 0), turn: 30, items: [
+            Column(label: \"c\", at: (0, 0), diameter: 4, height: 3, on_ground: true)])])"
+    ));
+    let arcs = sloping_arcs_of(&site, "c");
+    assert_eq!(arcs.len(), 1);
+    let SiteCurve::Ellipse {
+        centre,
+        u,
+        v,
+        start,
+        sweep,
+    } = arcs[0]
+    else {
+        unreachable!()
+    };
+    assert_near((centre - Point3::new(20.0, 10.0, 4.0)).norm(), 0.0, 1e-12);
+    let ground = site.ground.as_ref().unwrap();
+    for k in 0..16 {
+        let t = start + sweep * k as f64 / 16.0;
+        let p = centre + u * t.cos() + v * t.sin();
+        assert_near((p.xy() - centre.xy()).norm(), 2.0, 1e-12);
+        assert_near(p.z, ground.height_at(p.x, p.y).unwrap(), 1e-12);
+    }
+    assert_near(
+        level_circles_of(&site, "c")[0].0,
+        4.0 - 2.0 * 0.0425f64.sqrt(),
+        1e-12,
+    );
+}
+
+#[test]
+fn a_round_item_across_a_valley_meets_each_side_in_its_own_arc() {
+    // The V-shaped valley of the hollow test above: floor along x = 0 at height 0, the
+    // sides rising 1 in 10. A column of radius 2 on the floor's line crosses it at
+    // (0, 18) and (0, 22), on ground 0: it stands there, and its foot is two half
+    // ellipses, one on each side. One beside it, centred at x = 5, stands on the lowest
+    // point of its rim, x = 3: 0.3 (by hand).
+    let valley = "ground: (spots: [(-40, -20, 4), (40, -20, 4), (-40, 60, 4), (40, 60, 4)],
+                           break_lines: [[(0, -20, 0), (0, 60, 0)]])";
+    let site = site(&format!(
+        "Scene({valley}, items: [
+            Column(label: \"across\", at: (0, 20), diameter: 4, height: 3, on_ground: true),
+            Column(label: \"beside\", at: (5, 30), diameter: 4, height: 3, on_ground: true)])"
+    ));
+    assert_near(level_circles_of(&site, "across")[0].0, 0.0, 1e-12);
+    assert_near(level_circles_of(&site, "beside")[0].0, 0.3, 1e-12);
+    let arcs = sloping_arcs_of(&site, "across");
+    assert_eq!(arcs.len(), 2);
+    let ground = site.ground.as_ref().unwrap();
+    for arc in arcs {
+        let SiteCurve::Ellipse {
+            centre,
+            u,
+            v,
+            start,
+            sweep,
+        } = arc
+        else {
+            unreachable!()
+        };
+        assert_near(sweep, std::f64::consts::PI, 1e-12);
+        for k in 0..=8 {
+            let t = start + sweep * k as f64 / 8.0;
+            let p = centre + u * t.cos() + v * t.sin();
+            assert_near(p.z, ground.height_at(p.x, p.y).unwrap(), 1e-12);
+        }
+    }
+}
+
+#[test]
+fn arcades_stairs_vaults_and_rooms_stand_on_the_lowest_ground_along_their_sides() {
+    // On the plane z = 1 + x / 20 + y / 5 (by hand above) a linear function on a
+    // rectangle is lowest at a corner (plane geometry): each item's foot is at its
+    // lowest corner, and its foot line runs round its plan on the ground (perimeters by
+    // hand). An arcade stands on its piers: two, 1 x 0.5 each, the first from (2, 2).
+    for (kind, item, corner, perimeter) in [
+        (
+            "arch",
+            "Arch(at: Corner(2, 2), span: 2, springing: 2, pier: 1, thickness: 0.5, \
+             on_ground: true)",
+            (2.0, 2.0),
+            2.0 * 3.0,
+        ),
+        // Going up northwards: 2 wide from x = 24 to 26, 4 treads 0.3 deep from y = 2.
+        (
+            "stairs",
+            "Stairs(at: (25, 2), bearing: 0, steps: 4, rise: 0.2, going: 0.3, width: 2, \
+             on_ground: true)",
+            (24.0, 2.0),
+            2.0 * (2.0 + 1.2),
+        ),
+        (
+            "vault",
+            "Vault(at: Corner(2, 28), width: 3, depth: 4, springing: 2, on_ground: true)",
+            (2.0, 28.0),
+            14.0,
+        ),
+        (
+            "room",
+            "Room(at: Corner(12, 14), width: 4, depth: 3, height: 3, on_ground: true)",
+            (12.0, 14.0),
+            14.0,
+        ),
+    ] {
+        let site = site(&format!("Scene({PLANE}, items: [{item}])"));
+        let (x, y) = corner;
+        assert_near(lowest_level_edge_of(&site, kind), plane_height(x, y), 1e-9);
+        let (length, slopes) = foot_on_ground(&site, kind);
+        assert_near(length, perimeter, 1e-9);
+        assert!(slopes >= 4, "{kind}: {slopes}");
+        // Without `on_ground`, the base as written.
+        let flat = site_without_on_ground(item);
+        assert_near(lowest_level_edge_of(&flat, kind), 0.0, 0.0);
+    }
+    // A room on a plinth has its level floor at the highest corner, (16, 17): 5.2.
+    let site = site(&format!(
+        "Scene({PLANE}, items: [Room(at: Corner(12, 14), width: 4, depth: 3, height: 3,
+                                     on_ground: true, plinth: ())])"
+    ));
+    assert_near(plane_height(16.0, 17.0), 5.2, 1e-12);
+    let floor: f64 = straight_edges(&site)
+        .iter()
+        .filter(|(a, b)| (a.z - 5.2).abs() < 1e-9 && (b.z - 5.2).abs() < 1e-9)
+        .map(|(a, b)| (b - a).norm())
+        .sum();
+    assert_near(floor, 14.0, 1e-9);
+}
+
+fn site_without_on_ground(item: &str) -> Site {
+    site(&format!(
+        "Scene({PLANE}, items: [{}])",
+        item.replace(", on_ground: true", "")
+            .replace("on_ground: true", "")
+    ))
+}
+
+#[test]
+fn standing_on_a_ground_that_is_not_there_is_refused_by_name() {
+    for item in [
+        "Column(at: (0, 0), diameter: 1, height: 3, on_ground: true)",
+        "Tower(at: (0, 0), diameter: 4, height: 9, on_ground: true)",
+        "Dome(at: (0, 0), diameter: 4, on_ground: true)",
+        "Arch(at: Corner(0, 0), span: 2, springing: 2, pier: 1, thickness: 0.5, on_ground: true)",
+        "Stairs(at: (0, 0), bearing: 0, steps: 4, rise: 0.2, going: 0.3, width: 2, on_ground: true)",
+        "Vault(at: Corner(0, 0), width: 3, depth: 4, springing: 2, on_ground: true)",
+        "Room(at: Corner(0, 0), width: 4, depth: 3, height: 3, on_ground: true)",
+    ] {
+        let text = format!("Scene(items: [{item}])");
+        let message = parse_scene(text.as_bytes(), Path::new("test.ron"), "test")
+            .unwrap_err()
+            .to_string();
+        assert!(message.contains("test.ron:1:15:"), "{message}");
+        assert!(message.contains("no `ground`"), "{item}: {message}");
+        // Off the ground's edge: the plane's triangle has its corners at (0, 0), (40, 0)
+        // and (0, 40), and these stand half off it, at x = -1.
+        let off = item.replace("(0, 0)", "(-1, 5)");
+        let text = format!("Scene({PLANE}, items: [{off}])");
+        let message = parse_scene(text.as_bytes(), Path::new("test.ron"), "test")
+            .unwrap_err()
+            .to_string();
+        assert!(message.contains("outside the ground"), "{item}: {message}");
+    }
+    let text =
+        "Scene(items: [Vault(at: Corner(0, 0), width: 3, depth: 4, springing: 2, plinth: ())])";
+    let message = parse_scene(text.as_bytes(), Path::new("test.ron"), "test")
+        .unwrap_err()
+        .to_string();
+    assert!(
+        message.contains("`plinth` needs `on_ground: true`"),
+        "{message}"
+    );
+}

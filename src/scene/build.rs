@@ -60,6 +60,19 @@ impl Placement {
     pub fn length(&self, l: f64) -> f64 {
         l * self.scale
     }
+
+    /// The site point `p` in this placement's own coordinates: the inverse of
+    /// [`Placement::point`].
+    pub fn local_point(&self, p: &Point3<f64>) -> Point3<f64> {
+        Point3::from(self.local_vector(&(p.coords - self.shift)))
+    }
+
+    /// The site displacement `v` in this placement's own coordinates: the inverse of
+    /// [`Placement::vector`] (a turn is undone by its transpose, the scale by dividing).
+    pub fn local_vector(&self, v: &Vector3<f64>) -> Vector3<f64> {
+        let (sin, cos) = self.sin_cos;
+        Vector3::new(v.x * cos - v.y * sin, v.x * sin + v.y * cos, v.z) / self.scale
+    }
 }
 
 /// Sine and cosine, exact at whole quarter turns: buildings square to the compass are
@@ -458,6 +471,21 @@ mod tests {
         let p = group.point(&Point3::new(0.0, 1.0, 2.0));
         let expected = Point3::new(11.0 * 0.3048, 0.0, 2.0 * 0.3048);
         assert!((p - expected).norm() < 1e-12, "{p}");
+    }
+
+    #[test]
+    fn local_coordinates_undo_the_placement() {
+        // A point 1 unit north of a group at (10, 0) turned a quarter clockwise, in feet,
+        // lands at (11, 0, 2) feet (the test above); taken back, it is (0, 1, 2) again.
+        let group = Placement::in_unit(0.3048).then_move(Vector3::new(10.0, 0.0, 0.0), PI / 2.0);
+        let site = Point3::new(11.0 * 0.3048, 0.0, 2.0 * 0.3048);
+        let back = group.local_point(&site);
+        assert!((back - Point3::new(0.0, 1.0, 2.0)).norm() < 1e-12, "{back}");
+        // At any turn, the two are inverses.
+        let turned = Placement::in_unit(2.0).then_move(Vector3::new(3.0, -4.0, 5.0), 0.7);
+        let p = Point3::new(1.5, -2.5, 0.25);
+        let round_trip = turned.local_point(&turned.point(&p));
+        assert!((round_trip - p).norm() < 1e-12, "{round_trip}");
     }
 
     #[test]

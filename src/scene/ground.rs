@@ -72,6 +72,22 @@ pub struct Ground {
 impl Ground {
     /// The ground under the plan point, if the point lies on it.
     pub fn height_at(&self, x: f64, y: f64) -> Option<f64> {
+        self.first_under(x, y, |_, z| z)
+    }
+
+    /// The triangle of the ground under the plan point, if the point lies on the ground.
+    pub fn triangle_at(&self, x: f64, y: f64) -> Option<&[Point3<f64>; 3]> {
+        self.first_under(x, y, |triangle, _| triangle)
+    }
+
+    /// What `found` makes of the first triangle holding the plan point and the height of
+    /// its plane there.
+    fn first_under<'a, T>(
+        &'a self,
+        x: f64,
+        y: f64,
+        found: impl Fn(&'a [Point3<f64>; 3], f64) -> T,
+    ) -> Option<T> {
         let column = ((x - self.min.x) / self.cell).floor();
         let row = ((y - self.min.y) / self.cell).floor();
         let inside = |v: f64, n: usize| v >= -1.0 && v <= n as f64;
@@ -82,8 +98,9 @@ impl Ground {
         let row = (row.max(0.0) as usize).min(self.rows - 1);
         let p = Vector2::new(x, y);
         for &t in &self.cells[row * self.columns + column] {
-            if let Some(z) = height_in(&self.triangles[t as usize], p) {
-                return Some(z);
+            let triangle = &self.triangles[t as usize];
+            if let Some(z) = height_in(triangle, p) {
+                return Some(found(triangle, z));
             }
         }
         None

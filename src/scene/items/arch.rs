@@ -2,7 +2,8 @@
 
 use super::super::build::{facet_count, ItemBuilder};
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
-use super::block::{rectangle_frame, Anchor};
+use super::block::{rectangle_frame, rectangle_plan, Anchor};
+use super::standing::{draw_footing, outline_foot};
 use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 use std::f64::consts::PI;
@@ -50,6 +51,10 @@ pub struct ArcadeSpec {
     pub facing: Finite,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground along
+    /// the piers' sides, and the line where each pier meets the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
     #[serde(default = "one")]
     pub count: Count,
     /// Clear width of each opening.
@@ -335,12 +340,40 @@ pub fn build_arcade(b: &mut ItemBuilder, spec: &ArcadeSpec) -> Result<(), String
         ));
     }
     let (corner, turn) = rectangle_frame(spec.at, length, thickness, spec.facing.0);
-    b.move_by(Vector3::new(corner.x, corner.y, spec.base.0), turn);
+    let pier_starts: Vec<f64> = (0..=count).map(|i| (span + pier) * i as f64).collect();
+    // What stands on the ground is the piers: the openings between them reach down to
+    // the base with nothing across their feet.
+    let piers: Vec<Vec<Vector2<f64>>> = pier_starts
+        .iter()
+        .map(|&start| {
+            rectangle_plan(pier, thickness)
+                .into_iter()
+                .map(|p| p + Vector2::new(start, 0.0))
+                .collect()
+        })
+        .collect();
+    let frame = b
+        .placement()
+        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+    let mut base = f64::INFINITY;
+    for plan in &piers {
+        base = base.min(outline_foot(
+            b,
+            &frame,
+            plan,
+            spec.base.0,
+            spec.on_ground,
+            None,
+        )?);
+    }
+    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
+    for plan in &piers {
+        draw_footing(b, plan, spec.on_ground, None)?;
+    }
 
     let centres: Vec<f64> = (0..count)
         .map(|i| pier + half + (span + pier) * i as f64)
         .collect();
-    let pier_starts: Vec<f64> = (0..=count).map(|i| (span + pier) * i as f64).collect();
     let facets = curve.facet_points();
     let at = |along: f64, y: f64, up: f64| Point3::new(along, y, up);
     // The facet points of an opening's curve on the face at `y`, right to left.
@@ -705,6 +738,7 @@ mod tests {
             at: Anchor::Corner(Finite(0.0), Finite(0.0)),
             facing: default_facing(),
             base: zero(),
+            on_ground: false,
             count: Count(count),
             span: Positive(2.0),
             springing: Positive(3.0),

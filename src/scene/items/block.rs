@@ -4,7 +4,7 @@
 use super::super::build::{plan_direction, ItemBuilder};
 use super::super::numbers::{default_facing, zero, Finite, NonNegative, Positive};
 use super::mass::{build_mass, Mass};
-use super::standing::{build_plinth, draw_foot, standing_base, PlinthSpec};
+use super::standing::{draw_footing, outline_foot, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -224,22 +224,13 @@ pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String>
     let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
     let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
     let plan = rectangle_plan(width, depth);
-    let mut base = block.base.0;
-    if block.plinth.is_some() && !block.on_ground {
-        return Err("a `plinth` needs `on_ground: true`".to_owned());
-    }
-    if block.on_ground {
-        let frame = b
-            .placement()
-            .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-        base = standing_base(b, &frame, &plan, base, block.plinth.as_ref())?;
-    }
+    let frame = b
+        .placement()
+        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+    let (on_ground, plinth) = (block.on_ground, block.plinth.as_ref());
+    let base = outline_foot(b, &frame, &plan, block.base.0, on_ground, plinth)?;
     b.move_by(Vector3::new(corner.x, corner.y, base), turn);
-    match block.plinth {
-        Some(plinth) => build_plinth(b, &plan, &plinth)?,
-        None if block.on_ground => draw_foot(b, &plan),
-        None => {}
-    }
+    draw_footing(b, &plan, on_ground, plinth)?;
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");
         let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)

@@ -6,7 +6,7 @@ use super::super::numbers::{plan, zero, Finite, NonNegative, Plan, Positive};
 use super::block::ParapetSpec;
 use super::mass::{build_mass, Mass};
 use super::plan::{is_convex, simple_polygon_problem, twice_signed_area};
-use super::standing::{build_plinth, draw_foot, standing_base, PlinthSpec};
+use super::standing::{draw_footing, outline_foot, PlinthSpec};
 use super::walls::{
     openings_in_wall, round_window_in_wall, OpeningsSpec, RoundWindowSpec, WallChoice,
 };
@@ -108,19 +108,10 @@ pub fn build_footprint(b: &mut ItemBuilder, spec: &FootprintSpec) -> Result<(), 
         } => o.0,
         _ => 0.0,
     };
-    let mut base = spec.base.0;
-    if spec.plinth.is_some() && !spec.on_ground {
-        return Err("a `plinth` needs `on_ground: true`".to_owned());
-    }
-    if spec.on_ground {
-        base = standing_base(b, &b.placement(), &points, base, spec.plinth.as_ref())?;
-    }
+    let (on_ground, plinth) = (spec.on_ground, spec.plinth.as_ref());
+    let base = outline_foot(b, &b.placement(), &points, spec.base.0, on_ground, plinth)?;
     b.move_by(Vector3::new(0.0, 0.0, base), 0.0);
-    match spec.plinth {
-        Some(plinth) => build_plinth(b, &points, &plinth)?,
-        None if spec.on_ground => draw_foot(b, &points),
-        None => {}
-    }
+    draw_footing(b, &points, on_ground, plinth)?;
     let mass = Mass {
         plan: points,
         eaves: spec.height.0,

@@ -5,6 +5,7 @@ use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::barrel::BarrelVault;
 use super::block::{rectangle_frame, rectangle_plan, rectangle_walls, Anchor};
+use super::standing::{draw_footing, outline_foot, PlinthSpec};
 use super::walls::{
     build_walls, openings_in_wall, round_window_in_wall, OpeningKind, OpeningsSpec,
     RoundWindowSpec, Wall,
@@ -45,6 +46,14 @@ pub struct RoomSpec {
     pub facing: Finite,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground, as a block does: `base` is then measured from the
+    /// lowest ground along its walls, and the line where they meet the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
+    /// With `on_ground`: a level floor at the highest ground under it, on a plinth (as a
+    /// block's), so that no ground rises inside.
+    #[serde(default)]
+    pub plinth: Option<PlinthSpec>,
     #[serde(default)]
     pub ceiling: Ceiling,
     /// Doors and windows; their `reveal` is the depth of the wall they pass through.
@@ -153,7 +162,14 @@ pub fn build_interior(
 pub fn build_room(b: &mut ItemBuilder, spec: &RoomSpec) -> Result<(), String> {
     let (width, depth, height) = (spec.width.0, spec.depth.0, spec.height.0);
     let (corner, turn) = rectangle_frame(spec.at, width, depth, spec.facing.0);
-    b.move_by(Vector3::new(corner.x, corner.y, spec.base.0), turn);
+    let plan = rectangle_plan(width, depth);
+    let frame = b
+        .placement()
+        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+    let (on_ground, plinth) = (spec.on_ground, spec.plinth.as_ref());
+    let base = outline_foot(b, &frame, &plan, spec.base.0, on_ground, plinth)?;
+    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
+    draw_footing(b, &plan, on_ground, plinth)?;
     let vault = match spec.ceiling {
         Ceiling::Flat => None,
         Ceiling::Vault { rise, bays } => Some(BarrelVault::new(width, depth, height, rise, bays)),
@@ -190,6 +206,8 @@ mod tests {
             height: Positive(3.0),
             facing: default_facing(),
             base: zero(),
+            on_ground: false,
+            plinth: None,
             ceiling,
             openings: Vec::new(),
             round_windows: Vec::new(),
@@ -245,6 +263,8 @@ mod tests {
             depth: Positive(4.0),
             facing: default_facing(),
             base: zero(),
+            on_ground: false,
+            plinth: None,
             springing: Positive(3.0),
             rise,
             bays,

@@ -4,6 +4,7 @@
 use super::super::build::{ellipse_points, facet_count, ItemBuilder};
 use super::super::numbers::{plan, zero, Finite, Plan, Positive};
 use super::super::outline::RoundOutline;
+use super::standing::round_foot;
 use super::tower_openings::{build_pierced_side, tower_slots, Slot, TowerOpeningsSpec};
 use nalgebra::{Point3, Vector3};
 use serde::Deserialize;
@@ -22,6 +23,10 @@ pub struct ColumnSpec {
     pub height: Positive,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground round
+    /// its rim, and the line where it meets the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
     /// Height of a ring drawn round the foot (the top of a base moulding).
     #[serde(default)]
     pub plinth: Option<Positive>,
@@ -55,6 +60,10 @@ pub struct TowerSpec {
     pub height: Positive,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground round
+    /// its rim, and the line where it meets the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
     #[serde(default)]
     pub roof: TowerRoof,
     /// Heights of storey lines above the base.
@@ -80,6 +89,10 @@ pub struct DomeSpec {
     pub drum: Option<Positive>,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground round
+    /// its rim, and the line where it meets the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
 }
 
 /// A drum: top and bottom circles and rings drawn; side faces and a floor for hiding; its
@@ -217,10 +230,14 @@ pub fn build_column(b: &mut ItemBuilder, spec: &ColumnSpec) -> Result<(), String
     }
     check_rings(&rings, height)?;
     let centre = plan(&spec.at);
-    let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
+    let (base, on_ground) = round_foot(b, centre, radius, spec.base.0, spec.on_ground)?;
+    let foot = Point3::new(centre.x, centre.y, base);
     let rim = drum(b, foot, radius, height, &rings, &[]);
     b.convex_face(&rim[..rim.len() - 1]);
+    if let Some(ground_line) = on_ground {
+        ground_line.draw(b);
+    }
     Ok(())
 }
 
@@ -229,8 +246,9 @@ pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> 
     let rings: Vec<f64> = spec.storeys.iter().map(|s| s.0).collect();
     check_rings(&rings, height)?;
     let centre = plan(&spec.at);
-    let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
+    let (base, on_ground) = round_foot(b, centre, radius, spec.base.0, spec.on_ground)?;
+    let foot = Point3::new(centre.x, centre.y, base);
     let top = foot + Vector3::z() * height;
     let slots = tower_slots(&spec.openings, radius, height)?;
     let rim = drum(b, foot, radius, height, &rings, &slots);
@@ -247,13 +265,17 @@ pub fn build_tower(b: &mut ItemBuilder, spec: &TowerSpec) -> Result<(), String> 
         }
         TowerRoof::Dome => dome(b, top, radius),
     }
+    if let Some(ground_line) = on_ground {
+        ground_line.draw(b);
+    }
     Ok(())
 }
 
 pub fn build_dome(b: &mut ItemBuilder, spec: &DomeSpec) -> Result<(), String> {
     let centre = plan(&spec.at);
-    let foot = Point3::new(centre.x, centre.y, spec.base.0);
     let radius = spec.diameter.0 / 2.0;
+    let (base, on_ground) = round_foot(b, centre, radius, spec.base.0, spec.on_ground)?;
+    let foot = Point3::new(centre.x, centre.y, base);
     let springing = match spec.drum {
         Some(drum_height) => {
             // The dome closes the drum's top.
@@ -267,5 +289,8 @@ pub fn build_dome(b: &mut ItemBuilder, spec: &DomeSpec) -> Result<(), String> {
         }
     };
     dome(b, springing, radius);
+    if let Some(ground_line) = on_ground {
+        ground_line.draw(b);
+    }
     Ok(())
 }

@@ -7,7 +7,8 @@
 
 use super::super::build::ItemBuilder;
 use super::super::numbers::{plan, zero, Count, Finite, Plan, Positive};
-use nalgebra::{Point3, Vector3};
+use super::standing::{draw_footing, outline_foot};
+use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
 
 /// A level stretch after a step.
@@ -39,6 +40,11 @@ pub struct StairsSpec {
     pub width: Positive,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground: `base` is then measured from the lowest ground along
+    /// the flight's sides (where the flight climbs the slope, at the foot of the first
+    /// riser), and the line where the flight meets the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
     #[serde(default)]
     pub landings: Vec<LandingSpec>,
 }
@@ -85,11 +91,17 @@ pub fn build_stairs(b: &mut ItemBuilder, spec: &StairsSpec) -> Result<(), String
     let steps = spec.steps.0 as usize;
     let (rise, half) = (spec.rise.0, spec.width.0 / 2.0);
     let foot = plan(&spec.at);
+    let turn = spec.bearing.0.to_radians();
+    let back = positions[steps];
+    let outline =
+        [(-half, 0.0), (half, 0.0), (half, back), (-half, back)].map(|(x, y)| Vector2::new(x, y));
+    let frame = b
+        .placement()
+        .then_move(Vector3::new(foot.x, foot.y, 0.0), turn);
+    let base = outline_foot(b, &frame, &outline, spec.base.0, spec.on_ground, None)?;
     // Turning by the bearing takes the local +y onto `plan_direction(bearing)`, the way up.
-    b.move_by(
-        Vector3::new(foot.x, foot.y, spec.base.0),
-        spec.bearing.0.to_radians(),
-    );
+    b.move_by(Vector3::new(foot.x, foot.y, base), turn);
+    draw_footing(b, &outline, spec.on_ground, None)?;
     // The side profile, in (along, height): up each riser and along each tread, down the
     // back of the top step and back along the base; a sawtooth, not convex.
     let mut profile = Vec::with_capacity(2 * steps + 2);
@@ -97,7 +109,7 @@ pub fn build_stairs(b: &mut ItemBuilder, spec: &StairsSpec) -> Result<(), String
         profile.push((riser, step as f64 * rise));
         profile.push((riser, (step + 1) as f64 * rise));
     }
-    let (back, top) = (positions[steps], steps as f64 * rise);
+    let top = steps as f64 * rise;
     profile.push((back, top));
     profile.push((back, 0.0));
     // The rake: the line of the nosings, one going and one rise per step.

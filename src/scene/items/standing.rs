@@ -8,14 +8,22 @@
 //! the plinth and each stops where the ground rises to meet it, so the plinth reads as
 //! stepping down the slope in courses, as a sketcher draws a stone base on a hillside.
 //!
+//! Every other item with a plan outline (an arcade's piers, a flight of stairs, a room, a
+//! vault) stands the same way with `on_ground: true` ([`outline_foot`], [`draw_footing`]);
+//! rooms and vaults may take a plinth too. A round item (a column, a tower, a dome) stands
+//! at the lowest ground round its rim, and its foot line is exact: a vertical cylinder
+//! meets each flat triangle of the ground in an arc of an ellipse ([`Rim`]).
+//!
 //! Things that stand at one point (a figure, a car, a tree) stand on the ground under that
 //! point unless given a `base` ([`foot_at`]); a given `base` is a height in the item's
 //! frame, as a block's without `on_ground`, and one sunk in the ground is refused.
 
 use super::super::build::{ItemBuilder, Placement};
+use super::super::ground::Ground;
 use super::super::numbers::{zero, Finite, Positive};
-use nalgebra::{Point3, Vector2};
+use nalgebra::{Point3, Vector2, Vector3};
 use serde::Deserialize;
+use std::f64::consts::TAU;
 
 /// Below this (metres, in the builder's frame) a height difference is no difference: a
 /// course line this close to the ground is not drawn, a plinth corner this short is none.
@@ -73,6 +81,42 @@ pub fn standing_base(
             plinth_floor(highest, base)
         }
     }
+}
+
+/// The foot of an item with a plan outline (corners in `frame`): `base` as written, or
+/// with `on_ground` measured from the ground under it as a block's is ([`standing_base`]).
+/// A plinth stands only on the ground.
+pub fn outline_foot(
+    b: &ItemBuilder,
+    frame: &Placement,
+    plan: &[Vector2<f64>],
+    base: f64,
+    on_ground: bool,
+    plinth: Option<&PlinthSpec>,
+) -> Result<f64, String> {
+    if plinth.is_some() && !on_ground {
+        return Err("a `plinth` needs `on_ground: true`".to_owned());
+    }
+    if !on_ground {
+        return Ok(base);
+    }
+    standing_base(b, frame, plan, base, plinth)
+}
+
+/// Draws what an item with a plan outline stands on, once the builder is at its foot
+/// (see [`outline_foot`]): its plinth, or the line where its walls meet the ground.
+pub fn draw_footing(
+    b: &mut ItemBuilder,
+    plan: &[Vector2<f64>],
+    on_ground: bool,
+    plinth: Option<&PlinthSpec>,
+) -> Result<(), String> {
+    match plinth {
+        Some(plinth) => build_plinth(b, plan, plinth)?,
+        None if on_ground => draw_foot(b, plan),
+        None => {}
+    }
+    Ok(())
 }
 
 /// The plinth's plan: the building's `plan` with every side moved out by the projection
@@ -247,6 +291,211 @@ pub fn plinth_floor(highest: f64, base: f64) -> Result<f64, String> {
         ));
     }
     Ok(highest + base)
+}
+
+/// Where the rim of a round item (an upright circle in plan, in site coordinates) meets
+/// the ground: arcs round the circle, one over each flat piece of the ground it crosses.
+///
+/// Over a flat triangle whose plane is `z = height + gradient . (p - centre)`, the rim
+/// point `centre + radius (cos t, sin t)` lies on the ground at
+/// `z = height + radius (gradient.x cos t + gradient.y sin t)`: the foot line is
+/// `C + U cos t + V sin t` with `C = (centre, height)`, `U = radius (1, 0, gradient.x)`,
+/// `V = radius (0, 1, gradient.y)`, an arc of the ellipse in which the plane cuts the
+/// cylinder (plane geometry), drawn exactly like any other.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Rim {
+    pub centre: Vector2<f64>,
+    pub radius: f64,
+    /// In order round the circle (counter-clockwise from `arcs[0].start`), covering it.
+    pub arcs: Vec<RimArc>,
+}
+
+/// One arc of a [`Rim`]: the angles `start` through `sweep` (radians counter-clockwise
+/// from east), over a flat piece of ground.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RimArc {
+    pub start: f64,
+    pub sweep: f64,
+    /// The piece's plane: its height over the rim's centre, and its rise per metre east
+    /// and north.
+    pub height: f64,
+    pub gradient: Vector2<f64>,
+}
+
+impl Rim {
+    /// The rim of `radius` about `centre` on the ground, or what is wrong: it must lie on
+    /// the ground all round.
+    ///
+    /// The arcs end where the circle crosses an edge of the ground's triangles (a line
+    /// crossing a circle: the roots of a quadratic); between two such angles the rim lies
+    /// in one triangle, found at the arc's middle. Neighbouring arcs over one plane are
+    /// joined, so a rim on a plane is one whole ellipse.
+    pub fn on(ground: &Ground, centre: Vector2<f64>, radius: f64) -> Result<Rim, String> {
+        let mut angles = rim_crossings(ground, centre, radius);
+        if angles.is_empty() {
+            angles.push(0.0);
+        }
+        let mut arcs: Vec<RimArc> = Vec::with_capacity(angles.len());
+        for (k, &start) in angles.iter().enumerate() {
+            let end = angles.get(k + 1).copied().unwrap_or(angles[0] + TAU);
+            let middle = centre + plan_at((start + end) / 2.0) * radius;
+            let Some(triangle) = ground.triangle_at(middle.x, middle.y) else {
+                return Err(format!(
+                    "stands on the ground, but its rim at ({:.2}, {:.2}) lies outside the \
+                     ground",
+                    middle.x, middle.y
+                ));
+            };
+            let (height, gradient) = plane_over(triangle, centre);
+            let arc = RimArc {
+                start,
+                sweep: end - start,
+                height,
+                gradient,
+            };
+            match arcs.last_mut() {
+                Some(last) if last.same_plane(&arc) => last.sweep += arc.sweep,
+                _ => arcs.push(arc),
+            }
+        }
+        if arcs.len() > 1 && arcs[0].same_plane(&arcs[arcs.len() - 1]) {
+            let last = arcs.pop().expect("more than one arc");
+            arcs[0].start = last.start;
+            arcs[0].sweep += last.sweep;
+        }
+        Ok(Rim {
+            centre,
+            radius,
+            arcs,
+        })
+    }
+
+    /// The lowest ground round the rim: on each arc at an end, or where the rim runs
+    /// straight down the slope, at `-gradient` from the centre (the derivative of
+    /// `gradient . (cos t, sin t)` vanishes there).
+    pub fn lowest(&self) -> f64 {
+        let mut lowest = f64::INFINITY;
+        for arc in &self.arcs {
+            let at = |t: f64| arc.height + self.radius * arc.gradient.dot(&plan_at(t));
+            lowest = lowest.min(at(arc.start)).min(at(arc.start + arc.sweep));
+            if arc.gradient != Vector2::zeros() {
+                let down = (-arc.gradient.y).atan2(-arc.gradient.x);
+                if (down - arc.start).rem_euclid(TAU) <= arc.sweep {
+                    lowest = lowest.min(at(down));
+                }
+            }
+        }
+        lowest
+    }
+
+    /// Draws the foot line, each arc as its exact ellipse, through a builder of any
+    /// placement.
+    pub fn draw(&self, b: &mut ItemBuilder) {
+        let place = b.placement();
+        for arc in &self.arcs {
+            let r = self.radius;
+            let centre = Point3::new(self.centre.x, self.centre.y, arc.height);
+            let u = Vector3::new(r, 0.0, r * arc.gradient.x);
+            let v = Vector3::new(0.0, r, r * arc.gradient.y);
+            b.ellipse(
+                place.local_point(&centre),
+                place.local_vector(&u),
+                place.local_vector(&v),
+                arc.start,
+                arc.sweep,
+            );
+        }
+    }
+}
+
+impl RimArc {
+    fn same_plane(&self, other: &RimArc) -> bool {
+        let close = |a: f64, b: f64| (a - b).abs() <= 1e-12 * (1.0 + a.abs().max(b.abs()));
+        close(self.height, other.height)
+            && close(self.gradient.x, other.gradient.x)
+            && close(self.gradient.y, other.gradient.y)
+    }
+}
+
+/// The unit plan direction at `angle` radians counter-clockwise from east.
+fn plan_at(angle: f64) -> Vector2<f64> {
+    Vector2::new(angle.cos(), angle.sin())
+}
+
+/// The angles (in [0, 2 pi), in order, each once) at which the circle of `radius` about
+/// `centre` crosses an edge of the ground's triangles: `|p + s (q - p) - centre| = radius`
+/// for s in [0, 1], a quadratic in s.
+fn rim_crossings(ground: &Ground, centre: Vector2<f64>, radius: f64) -> Vec<f64> {
+    let mut angles = Vec::new();
+    for triangle in &ground.triangles {
+        let corners = triangle.map(|p| Vector2::new(p.x, p.y));
+        let far = |f: fn(&Vector2<f64>) -> f64, reach: f64| {
+            corners.iter().all(|p| f(p) - f(&centre) > reach)
+        };
+        if far(|p| p.x, radius)
+            || far(|p| -p.x, radius)
+            || far(|p| p.y, radius)
+            || far(|p| -p.y, radius)
+        {
+            continue;
+        }
+        for k in 0..3 {
+            let (p, q) = (corners[k], corners[(k + 1) % 3]);
+            let (d, f) = (q - p, p - centre);
+            let a = d.norm_squared();
+            let half_b = f.dot(&d);
+            let c = f.norm_squared() - radius * radius;
+            let discriminant = half_b * half_b - a * c;
+            if a == 0.0 || discriminant < 0.0 {
+                continue;
+            }
+            for s in [-1.0, 1.0].map(|sign| (-half_b + sign * discriminant.sqrt()) / a) {
+                if (-1e-12..=1.0 + 1e-12).contains(&s) {
+                    let at = f + d * s;
+                    angles.push(at.y.atan2(at.x).rem_euclid(TAU));
+                }
+            }
+        }
+    }
+    angles.sort_by(f64::total_cmp);
+    angles.dedup_by(|a, b| (*a - *b).abs() < 1e-12);
+    if angles.len() > 1 && angles[angles.len() - 1] - angles[0] > TAU - 1e-12 {
+        angles.pop();
+    }
+    angles
+}
+
+/// The plane of a triangle of the ground, as its height over `centre` and its gradient
+/// (rise per metre east and north): from the normal `n = (b - a) x (c - a)`, the gradient
+/// is `-(n.x, n.y) / n.z` (a plane's equation n . (p - a) = 0 solved for z).
+pub fn plane_over(triangle: &[Point3<f64>; 3], centre: Vector2<f64>) -> (f64, Vector2<f64>) {
+    let [a, b, c] = *triangle;
+    let n = (b - a).cross(&(c - a));
+    let gradient = Vector2::new(-n.x / n.z, -n.y / n.z);
+    (a.z + gradient.dot(&(centre - a.coords.xy())), gradient)
+}
+
+/// The foot of a round item of `radius` about the plan point `centre` (in the builder's
+/// frame): `base` as written; or with `on_ground`, `base` above the lowest ground round its
+/// rim, and the rim to draw there.
+pub fn round_foot(
+    b: &ItemBuilder,
+    centre: Vector2<f64>,
+    radius: f64,
+    base: f64,
+    on_ground: bool,
+) -> Result<(f64, Option<Rim>), String> {
+    if !on_ground {
+        return Ok((base, None));
+    }
+    let Some(ground) = b.ground() else {
+        return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+    };
+    let place = b.placement();
+    let site = place.point(&Point3::new(centre.x, centre.y, 0.0));
+    let rim = Rim::on(ground, site.coords.xy(), place.length(radius))?;
+    let lowest = (rim.lowest() - place.shift.z) / place.scale;
+    Ok((lowest + base, Some(rim)))
 }
 
 /// Whether `p` lies strictly inside the polygon (crossing number: a ray to +x crosses the

@@ -3,8 +3,9 @@
 use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::barrel::BarrelVault;
-use super::block::{rectangle_frame, Anchor};
+use super::block::{rectangle_frame, rectangle_plan, Anchor};
 use super::room::{build_interior, vault_room};
+use super::standing::{draw_footing, outline_foot, PlinthSpec};
 use nalgebra::Vector3;
 use serde::Deserialize;
 
@@ -24,6 +25,14 @@ pub struct VaultSpec {
     pub facing: Finite,
     #[serde(default = "zero")]
     pub base: Finite,
+    /// Stands on the scene's ground, as a block does: `base` is then measured from the
+    /// lowest ground along its walls, and the line where they meet the ground is drawn.
+    #[serde(default)]
+    pub on_ground: bool,
+    /// With `on_ground`: a level floor at the highest ground under it, on a plinth (as a
+    /// block's), so that no ground rises inside.
+    #[serde(default)]
+    pub plinth: Option<PlinthSpec>,
     /// Height of the springing lines above the base.
     pub springing: Positive,
     /// Height of the crown above the springing; half the width (a half circle) by default,
@@ -41,7 +50,14 @@ pub struct VaultSpec {
 pub fn build_vault(b: &mut ItemBuilder, spec: &VaultSpec) -> Result<(), String> {
     let (width, depth) = (spec.width.0, spec.depth.0);
     let (corner, turn) = rectangle_frame(spec.at, width, depth, spec.facing.0);
-    b.move_by(Vector3::new(corner.x, corner.y, spec.base.0), turn);
+    let plan = rectangle_plan(width, depth);
+    let frame = b
+        .placement()
+        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
+    let (on_ground, plinth) = (spec.on_ground, spec.plinth.as_ref());
+    let base = outline_foot(b, &frame, &plan, spec.base.0, on_ground, plinth)?;
+    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
+    draw_footing(b, &plan, on_ground, plinth)?;
     let vault = BarrelVault::new(width, depth, spec.springing.0, spec.rise, spec.bays);
     build_interior(b, &vault_room(vault), &[], &[], &[])
 }
@@ -64,6 +80,8 @@ mod tests {
             depth: Positive(6.0),
             facing: default_facing(),
             base: zero(),
+            on_ground: false,
+            plinth: None,
             springing: Positive(3.0),
             rise: rise.map(Positive),
             bays: bays.map(Count),
