@@ -187,6 +187,14 @@ corpus! {
     ground_too_few_spots: "ground-too-few-spots.ron" => refused("ground-too-few-spots.ron:3:5:", &["at least three points", "found 2"]);
     ground_spots_on_one_line: "ground-spots-on-one-line.ron" => refused("ground-spots-on-one-line.ron:3:5:", &["all lie on one line"]);
     block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
+    column_on_ground_without_ground: "column-on-ground-without-ground.ron" => refused("column-on-ground-without-ground.ron:4:9:", &["Column \"pump\" (item 1)", "on_ground", "no `ground`"]);
+    tower_on_ground_without_ground: "tower-on-ground-without-ground.ron" => refused("tower-on-ground-without-ground.ron:4:9:", &["Tower (item 1)", "on_ground", "no `ground`"]);
+    dome_on_ground_without_ground: "dome-on-ground-without-ground.ron" => refused("dome-on-ground-without-ground.ron:4:9:", &["Dome (item 1)", "on_ground", "no `ground`"]);
+    arcade_on_ground_without_ground: "arcade-on-ground-without-ground.ron" => refused("arcade-on-ground-without-ground.ron:4:9:", &["Arcade (item 1)", "on_ground", "no `ground`"]);
+    stairs_on_ground_without_ground: "stairs-on-ground-without-ground.ron" => refused("stairs-on-ground-without-ground.ron:4:9:", &["Stairs (item 1)", "on_ground", "no `ground`"]);
+    vault_on_ground_without_ground: "vault-on-ground-without-ground.ron" => refused("vault-on-ground-without-ground.ron:4:9:", &["Vault (item 1)", "on_ground", "no `ground`"]);
+    room_on_ground_without_ground: "room-on-ground-without-ground.ron" => refused("room-on-ground-without-ground.ron:4:9:", &["Room (item 1)", "on_ground", "no `ground`"]);
+    tower_rim_off_the_ground: "tower-rim-off-the-ground.ron" => refused("tower-rim-off-the-ground.ron:6:9:", &["Tower \"keep\"", "its rim at (-1.00, 20.00) lies outside the ground"]);
     plinth_without_on_ground: "plinth-without-on-ground.ron" => refused("plinth-without-on-ground.ron:5:9:", &["`plinth` needs `on_ground: true`"]);
     plinth_course_too_fine: "plinth-course-too-fine.ron" => refused("plinth-course-too-fine.ron:5:9:", &["course of 0.001", "at most 1000"]);
     plinth_setback_too_deep: "plinth-setback-too-deep.ron" => refused("plinth-setback-too-deep.ron:5:9:", &["set back 2.5", "turns inside out"]);
