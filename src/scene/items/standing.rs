@@ -773,6 +773,45 @@ mod tests {
     }
 
     #[test]
+    fn a_triangle_plane_worked_by_hand() {
+        // Through (0, 0, 1), (40, 0, 3) and (0, 40, 9): z = 1 + x / 20 + y / 5, so 3.5 over
+        // (10, 10), rising 0.05 east and 0.2 north.
+        let triangle = [
+            Point3::new(0.0, 0.0, 1.0),
+            Point3::new(40.0, 0.0, 3.0),
+            Point3::new(0.0, 40.0, 9.0),
+        ];
+        let (height, gradient) = plane_over(&triangle, Vector2::new(10.0, 10.0));
+        assert_near(height, 3.5, 1e-12);
+        assert_near(gradient.x, 0.05, 1e-15);
+        assert_near(gradient.y, 0.2, 1e-15);
+    }
+
+    #[test]
+    fn a_rim_is_lowest_straight_down_the_slope_or_at_an_arc_end() {
+        // The plane above, a rim of radius 2 about (10, 10): all round, lowest 2 |gradient|
+        // below the centre's height; on the quarter from east to north (uphill of it),
+        // lowest at its east end, 3.5 + 2 x 0.05.
+        let arc = |start: f64, sweep: f64| RimArc {
+            start,
+            sweep,
+            height: 3.5,
+            gradient: Vector2::new(0.05, 0.2),
+        };
+        let rim = |arcs: Vec<RimArc>| Rim {
+            centre: Vector2::new(10.0, 10.0),
+            radius: 2.0,
+            arcs,
+        };
+        assert_near(
+            rim(vec![arc(1.0, TAU)]).lowest(),
+            3.5 - 2.0 * 0.0425f64.sqrt(),
+            1e-12,
+        );
+        assert_near(rim(vec![arc(0.0, TAU / 4.0)]).lowest(), 3.6, 1e-12);
+    }
+
+    #[test]
     fn inside_counts_crossings() {
         let square = [
             Vector2::new(0.0, 0.0),
