@@ -242,6 +242,32 @@ fn a_plinth_standing_out_or_set_back_hides_and_is_hidden() {
 }
 
 #[test]
+fn round_items_arcades_and_stairs_standing_on_a_slope_hide_and_are_hidden() {
+    // A tower, a column, a dome, an arcade and a flight of steps with `on_ground` on a
+    // slope: their walls run down into it and the ground hides what lies below it; the
+    // round items' foot lines (ellipse arcs lying on the ground) and the piers' and the
+    // flight's are seen where nothing stands in front, against the brute-force ray caster.
+    let site = parse_scene(
+        b"Scene(standpoints: [(name: \"below\", x: 4, y: -6, heading: 10)],
+               ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)],
+                        contours: [(height: 2, points: [(-40, 10), (0, 12), (40, 10)])]),
+               items: [
+            Tower(at: (-2, 14), diameter: 5, height: 8, on_ground: true, roof: Cone(height: 3)),
+            Column(at: (6, 4), diameter: 0.8, height: 3, on_ground: true),
+            Dome(at: (12, 20), diameter: 6, drum: 2, on_ground: true),
+            Arcade(at: Corner(-12, 2), count: 3, span: 2, springing: 2, pier: 0.6,
+                   thickness: 0.5, on_ground: true),
+            Stairs(at: (4, 0), bearing: 0, steps: 6, rise: 0.15, going: 0.35, width: 2,
+                   on_ground: true),
+        ])",
+        Path::new("standing.ron"),
+        "standing",
+    )
+    .unwrap();
+    check_scene("standing", &site, &site.standpoints[0], 1);
+}
+
+#[test]
 fn a_round_tower_with_recessed_openings() {
     // Square-headed openings set 0.5 into a round tower (their sills and lintels arcs of
     // its circle): their reveals and backs hide and are hidden like any face, and the
