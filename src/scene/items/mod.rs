@@ -43,6 +43,11 @@
 //! - **Arches** (`items/arch.rs`): five shapes, each a few exact arcs from small pure functions
 //!   (segmental radius by the intersecting-chords theorem, pointed and three-centred radii);
 //!   the wall is one face with a notch per opening, plus soffits, jambs and ends.
+//! - **Standing on the ground** (`items/standing.rs`): with `on_ground`, an item with a plan
+//!   outline stands at the lowest ground along its sides (a block's walls, an arcade's piers,
+//!   a flight's sides), the foot line drawn where its sides cross the ground's triangles; a
+//!   round item at the lowest ground round its rim, its foot one exact ellipse arc over each
+//!   flat triangle. Things at a point (figures, cars, trees) stand on the ground under it.
 //! - **Roads** (`items/road.rs`): offset lines of the centreline, concentric fillets at rounded
 //!   corners (mitres where an inner radius vanishes), level over each arc so arcs stay exact
 //!   circles, sloping between; dashes measured along the centreline, exact arcs on bends.
