@@ -1110,6 +1110,29 @@ fn a_round_item_in_a_turned_group_meets_the_ground_in_the_same_ellipse() {
         4.0 - 2.0 * 0.0425f64.sqrt(),
         1e-12,
     );
+    // The same scene in feet is the same shape 0.3048 times the size (a similarity keeps
+    // the plane's slope): the foot line and the rim's lowest point scale with it.
+    let feet = crate::site(&format!(
+        "Scene(unit: Foot, {PLANE}, items: [Group(at: (20, 10, 0), turn: 30, items: [
+            Column(label: \"c\", at: (0, 0), diameter: 4, height: 3, on_ground: true)])])"
+    ));
+    let foot = 0.3048;
+    let SiteCurve::Ellipse {
+        centre: in_feet, ..
+    } = sloping_arcs_of(&feet, "c")[0]
+    else {
+        unreachable!()
+    };
+    assert_near(
+        (in_feet - Point3::new(20.0, 10.0, 4.0) * foot).norm(),
+        0.0,
+        1e-12,
+    );
+    assert_near(
+        level_circles_of(&feet, "c")[0].0,
+        (4.0 - 2.0 * 0.0425f64.sqrt()) * foot,
+        1e-12,
+    );
 }
 
 #[test]
