@@ -406,3 +406,41 @@ fn render_draws_each_line_from_the_eye_the_options_put_there() {
     }
     assert!(controls > 20, "only {controls} control points were clear");
 }
+
+/// `--at` on a sloping ground stands the eye on the ground there, as a standpoint written
+/// without its own `ground` stands: the ground is the plane through the spots (z rises
+/// 6 m over 80 m northwards), so at (0, 20) it is 3 m up and the eye 4.6 m; a mark 20 m
+/// north at 10 m is then atan(5.4 / 20) above the level (plane trigonometry).
+#[test]
+fn at_on_a_slope_stands_the_eye_on_the_ground_there() {
+    let dir = Scratch::new("conventions-at-slope");
+    dir.write(
+        "hill.ron",
+        "Scene(\n\
+         ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),\n\
+         standpoints: [(name: \"foot\", x: 0, y: -10)],\n\
+         items: [Point(label: \"mark\", at: (0, 40, 10))])",
+    );
+    let elevation = |args: &[&str]| {
+        let mut all = vec!["angles", "hill.ron", "--points", "--format", "csv"];
+        all.extend(args);
+        let text = stdout(&succeeds(&dir, &all));
+        let mut lines = text.lines();
+        let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+        let column = head.iter().position(|h| *h == "elevation").unwrap();
+        let row = lines.find(|l| l.contains("mark")).unwrap();
+        row.split(',').nth(column).unwrap().parse::<f64>().unwrap()
+    };
+    let seen_from = |ground: f64, y: f64| (10.0 - ground - 1.6).atan2(40.0 - y).to_degrees();
+    // The named standpoint where it is: the ground 0.75 m up at y = -10.
+    assert!((elevation(&[]) - seen_from(0.75, -10.0)).abs() < 6e-4);
+    // Moved, or made, by --at: on the ground at (0, 20), 3 m up.
+    for args in [&["-s", "foot", "--at", "0,20"][..], &["--at", "0,20"][..]] {
+        let found = elevation(args);
+        assert!(
+            (found - seen_from(3.0, 20.0)).abs() < 6e-4,
+            "{args:?}: {found} against {}",
+            seen_from(3.0, 20.0)
+        );
+    }
+}

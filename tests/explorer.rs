@@ -819,3 +819,38 @@ fn the_command_opens_the_printed_address_and_warns_of_nothing_on_loopback() {
     let stderr = running.stop();
     assert!(!stderr.contains("warning"), "{stderr}");
 }
+
+#[test]
+fn a_standpoint_moved_on_a_hill_stands_on_its_ground() {
+    // On the hill town, a pane asked for without `ground` (as the page asks once the
+    // standpoint is dragged) is drawn from the ground under (x, y), found here from the
+    // ground's spot heights by the library's own reading of the scene: the same picture as
+    // with that height given, another than with the eye 1.6 m over zero.
+    let dir = Scratch::new("explorer-hill");
+    let scene = dir.path("hill.ron");
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/stannock-hill.ron"),
+        &scene,
+    )
+    .unwrap();
+    let site = pansite::scene::load_scene(&scene).unwrap();
+    let (x, y) = (2.0, 60.0);
+    let ground = pansite::scene::ground_height(&site, x, y);
+    assert!(ground > 3.0, "the hill is {ground} m up at ({x}, {y})");
+    let explorer = Explorer::start(ExploreSettings::new(
+        Source::Scene(scene.clone()),
+        dir.path("out"),
+    ))
+    .unwrap();
+    let underlay = |extra: &str| {
+        let answer = get(
+            &explorer,
+            &format!("/underlay.png?x={x}&y={y}&heading=0&w=512&h=256{extra}"),
+        );
+        assert_eq!(answer.status, 200, "{extra}: {}", answer.text());
+        answer.body
+    };
+    let moved = underlay("");
+    assert_eq!(moved, underlay(&format!("&ground={ground}")));
+    assert_ne!(moved, underlay("&ground=0"));
+}

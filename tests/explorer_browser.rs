@@ -593,7 +593,9 @@ fn the_page_in_chromium() {
         asked["pitch"],
         0.0,
     );
-    looking.ground = asked["ground"];
+    // Dragged, the page sends no ground: the server stands the viewer on the scene's.
+    assert!(!asked.contains_key("ground"), "{shown_look}");
+    looking.ground = pansite::scene::ground_height(&site, asked["x"], asked["y"]);
     // The pane's line weight and tolerance are the server's (src/explore/server.rs).
     let preview = pansite::compose::preview(
         &site,

@@ -83,6 +83,20 @@ impl Params {
         }
     }
 
+    /// A number in `range` if the parameter is given, `None` if it is not.
+    pub fn optional_number(
+        &mut self,
+        name: &'static str,
+        range: (f64, f64),
+    ) -> Result<Option<f64>, String> {
+        if self.values.contains_key(name) {
+            self.number(name, range, None).map(Some)
+        } else {
+            self.used.push(name);
+            Ok(None)
+        }
+    }
+
     /// A finite number within `range`; `default` when absent (None: required).
     pub fn number(
         &mut self,
@@ -225,12 +239,21 @@ fn shown(text: &str) -> String {
     out
 }
 
-/// Where the viewer stands and looks: the standpoint parameters every pane shares.
-pub fn standpoint(p: &mut Params) -> Result<Standpoint, String> {
+/// Where the viewer stands and looks: the standpoint parameters every pane shares. Without
+/// a `ground`, the viewer stands on the scene's ground at (x, y), as `ground_under` gives
+/// it (a standpoint dragged across a hill keeps its eye above the slope); with one, on that
+/// height (a balcony, a standpoint that names its own).
+pub fn standpoint(
+    p: &mut Params,
+    ground_under: &dyn Fn(f64, f64) -> f64,
+) -> Result<Standpoint, String> {
     let reach = (-MAX_POSITION_M, MAX_POSITION_M);
     let x = p.number("x", reach, None)?;
     let y = p.number("y", reach, None)?;
-    let ground = p.number("ground", (-MAX_GROUND_M, MAX_GROUND_M), Some(0.0))?;
+    let ground = match p.optional_number("ground", (-MAX_GROUND_M, MAX_GROUND_M))? {
+        Some(ground) => ground,
+        None => ground_under(x, y),
+    };
     let eye = p.number("eye", (0.0, MAX_EYE_HEIGHT_M), Some(1.6))?;
     let heading = p.number("heading", (-720.0, 720.0), Some(0.0))?;
     let pitch = p.number("pitch", (-90.0, 90.0), Some(0.0))?;
@@ -354,6 +377,11 @@ mod tests {
         Params::new(query(url).unwrap())
     }
 
+    /// Level ground at zero.
+    fn level(_x: f64, _y: f64) -> f64 {
+        0.0
+    }
+
     #[test]
     fn numbers_out_of_range_or_not_numbers_are_refused_by_name() {
         for bad in [
@@ -366,19 +394,34 @@ mod tests {
             "0x10",
         ] {
             let mut p = params(&format!("/u?x={bad}&y=0"));
-            let error = standpoint(&mut p).unwrap_err();
+            let error = standpoint(&mut p, &level).unwrap_err();
             assert!(error.contains("'x'"), "{bad}: {error}");
         }
         let mut p = params("/u?x=1.5&y=-4&heading=10&eye=1.2");
-        let s = standpoint(&mut p).unwrap();
+        let s = standpoint(&mut p, &level).unwrap();
         assert_eq!((s.x, s.y, s.eye_height), (1.5, -4.0, 1.2));
         assert!(p.finish().is_ok());
     }
 
     #[test]
+    fn a_standpoint_without_its_own_ground_stands_on_the_scenes() {
+        // A slope rising 1 in 10 eastwards: without `ground`, the ground under (x, y).
+        let slope = |x: f64, _y: f64| x / 10.0;
+        let mut p = params("/u?x=20&y=3");
+        let s = standpoint(&mut p, &slope).unwrap();
+        assert_eq!((s.ground, s.eye().z), (2.0, 3.6));
+        assert!(p.finish().is_ok());
+        // Given, it is kept (a balcony over the slope), and checked like any number.
+        let mut p = params("/u?x=20&y=3&ground=14");
+        assert_eq!(standpoint(&mut p, &slope).unwrap().ground, 14.0);
+        let mut p = params("/u?x=20&y=3&ground=NaN");
+        assert!(standpoint(&mut p, &slope).unwrap_err().contains("'ground'"));
+    }
+
+    #[test]
     fn unknown_and_repeated_names_are_refused() {
         let mut p = params("/u?x=1&y=2&file=/etc/passwd");
-        standpoint(&mut p).unwrap();
+        standpoint(&mut p, &level).unwrap();
         assert!(p.finish().unwrap_err().contains("'file'"));
         assert!(query("/u?x=1&x=2").unwrap_err().contains("twice"));
         assert!(query("/u?x=%zz").is_err());
@@ -498,7 +541,7 @@ mod tests {
     fn messages_do_not_echo_huge_or_control_text() {
         let long = "9".repeat(5000);
         let mut p = params(&format!("/u?x={long}&y=0"));
-        let error = standpoint(&mut p).unwrap_err();
+        let error = standpoint(&mut p, &level).unwrap_err();
         assert!(error.len() < 200, "{error}");
         assert_eq!(shown("a\u{1b}b"), "a?b");
     }

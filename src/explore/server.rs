@@ -435,14 +435,14 @@ fn handle(shared: &Arc<Shared>, mut request: Request) {
                 let (status, value) = keep(shared, p);
                 respond(request, json(status, &value));
             } else {
-                match print_task(p) {
+                match print_task(shared, p) {
                     Ok(task) => enqueue(shared, format!("print-{}", next_print()), task, request),
                     Err(message) => respond(request, text(400, &message)),
                 }
             }
         }
         _ => {
-            let task = image_task(path, &mut p);
+            let task = image_task(shared, path, &mut p);
             let key = p.key("pane");
             match (task, key, p.finish()) {
                 (Ok(task), Ok(key), Ok(())) => {
@@ -533,13 +533,20 @@ fn body_params(body: &[u8]) -> std::result::Result<(Params, Option<String>), Str
     Ok((Params::new(values), name))
 }
 
-fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
+/// The height of the loaded scene's ground at a plan point (0 off it or without one): where
+/// a standpoint given without its own `ground` stands.
+fn ground_under(shared: &Shared) -> impl Fn(f64, f64) -> f64 {
+    let loaded = current(shared);
+    move |x, y| crate::scene::ground_height(&loaded.site, x, y)
+}
+
+fn image_task(shared: &Shared, path: &str, p: &mut Params) -> std::result::Result<Task, String> {
     Ok(match path {
         "/plan.png" => Task::Plan {
             size: params::size(p, (2048, 2048))?,
         },
         "/underlay.png" => {
-            let standpoint = params::standpoint(p)?;
+            let standpoint = params::standpoint(p, &ground_under(shared))?;
             let size = params::size(p, (MAX_PANE_WIDTH, MAX_PANE_HEIGHT))?;
             if size.0 != 2 * size.1 {
                 return Err(format!(
@@ -556,7 +563,7 @@ fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
             }
         }
         _ => Task::Look {
-            standpoint: params::standpoint(p)?,
+            standpoint: params::standpoint(p, &ground_under(shared))?,
             size: params::size(p, (2048, 2048))?,
             fov_deg: p.number("fov", (10.0, 150.0), Some(90.0))?,
             hidden: params::hidden(p)?,
@@ -564,8 +571,11 @@ fn image_task(path: &str, p: &mut Params) -> std::result::Result<Task, String> {
     })
 }
 
-fn print_task((mut p, _): (Params, Option<String>)) -> std::result::Result<Task, String> {
-    let standpoint = params::standpoint(&mut p)?;
+fn print_task(
+    shared: &Shared,
+    (mut p, _): (Params, Option<String>),
+) -> std::result::Result<Task, String> {
+    let standpoint = params::standpoint(&mut p, &ground_under(shared))?;
     let hidden = params::hidden(&mut p)?;
     let paper = p.word(
         "paper",
@@ -871,7 +881,7 @@ fn scene_json(shared: &Shared) -> serde_json::Value {
 /// The direction under a point of the underlay: its azimuth and elevation, the distance to
 /// the first face along it, and the nearest corner of any item.
 fn probe(shared: &Shared, p: &mut Params) -> std::result::Result<serde_json::Value, String> {
-    let standpoint = params::standpoint(p)?;
+    let standpoint = params::standpoint(p, &ground_under(shared))?;
     let (w, h) = params::size(p, (MAX_PANE_WIDTH, MAX_PANE_HEIGHT))?;
     let u = p.number("u", (0.0, w as f64), None)?;
     let v = p.number("v", (0.0, h as f64), None)?;
@@ -935,10 +945,13 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
     if let Some(reason) = shared.source.no_keep_reason() {
         return refuse(409, format!("keeping standpoints is off: {reason}"));
     }
-    let standpoint = match params::standpoint(&mut p).and_then(|s| p.finish().map(|_| s)) {
-        Ok(s) => s,
-        Err(message) => return refuse(400, message),
-    };
+    // A standpoint sent without its own ground is written without one (0 is not written),
+    // so the scene stands it on its ground when read, as it does every such standpoint.
+    let standpoint =
+        match params::standpoint(&mut p, &|_, _| 0.0).and_then(|s| p.finish().map(|_| s)) {
+            Ok(s) => s,
+            Err(message) => return refuse(400, message),
+        };
     let standpoint = Standpoint {
         name: name.unwrap_or_default(),
         ..standpoint

@@ -34,7 +34,7 @@ pub use expand::{label_matches, MAX_ITEMS, SEATED_EYE_HEIGHT};
 /// A commented scene to begin from (`pansite new`).
 pub const STARTER_SCENE: &str = include_str!("starter.ron");
 pub use file::{read_input, MAX_INPUT_BYTES};
-pub use ground::{Ground, GroundDraw};
+pub use ground::{ground_height, Ground, GroundDraw};
 pub use guides::{Division, Fan, Guides, Pole, Slope, DEFAULT_FAN_STEP_DEG};
 pub use load::{
     load_obj, load_obj_timed, load_open_data, load_scene, load_scene_timed, load_style_sheet,

@@ -25,8 +25,19 @@ function round(v, places) {
   return Math.round(v * k) / k;
 }
 
+// The ground under the viewer: a chosen standpoint's own; after a move none is sent, and the
+// server stands the viewer on the scene's ground there (down a hill, the eye follows it).
+function groundQuery() {
+  return view.ground === null ? "" : `&ground=${round(view.ground, 3)}`;
+}
+
+function moveTo(x, y) {
+  [view.x, view.y] = [x, y];
+  view.ground = null;
+}
+
 function standpointQuery(heading, pitch) {
-  return `x=${round(view.x, 3)}&y=${round(view.y, 3)}&ground=${round(view.ground, 3)}` +
+  return `x=${round(view.x, 3)}&y=${round(view.y, 3)}${groundQuery()}` +
     `&eye=${round(view.eye, 3)}&heading=${round(heading, 2)}&pitch=${round(pitch, 2)}`;
 }
 
@@ -257,7 +268,7 @@ function planDown(event) {
     drag = { mode: "turn" };
   } else {
     drag = { mode: "move", last: [px, py] };
-    [view.x, view.y] = fromPlan(px, py);
+    moveTo(...fromPlan(px, py));
   }
   redraw();
 }
@@ -276,7 +287,7 @@ function planMove(event) {
       setLookTo((Math.atan2(px - lx, ly - py) * 180) / Math.PI);
       drag.last = [px, py];
     }
-    [view.x, view.y] = fromPlan(px, py);
+    moveTo(...fromPlan(px, py));
   }
   redraw();
 }
@@ -387,8 +398,7 @@ function onKey(event) {
     setLookTo(view.heading);
     look.pitch = view.pitch;
   } else {
-    view.x += k[0] * 0.5 * big;
-    view.y += k[1] * 0.5 * big;
+    moveTo(view.x + k[0] * 0.5 * big, view.y + k[1] * 0.5 * big);
   }
   redraw();
 }
@@ -407,9 +417,11 @@ async function post(path, body) {
 }
 
 function viewBody() {
-  return { x: round(view.x, 3), y: round(view.y, 3), ground: round(view.ground, 3),
+  const body = { x: round(view.x, 3), y: round(view.y, 3),
     eye: round(view.eye, 3), heading: round(view.heading, 2), pitch: round(view.pitch, 2),
     hidden: $("hidden").value };
+  if (view.ground !== null) body.ground = round(view.ground, 3);
+  return body;
 }
 
 // The items a division may name, and the sun's switches when the scene has a sun.

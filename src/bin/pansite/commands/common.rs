@@ -136,9 +136,12 @@ pub fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> 
             .cloned()
             .ok_or(Error::NoStandpoint)?,
     };
-    if let (Some((x, y)), Some(_)) = (at, &args.standpoint) {
+    // Moved or made by `--at`: standing on the scene's ground there (level scenes: 0), as a
+    // standpoint written in the scene without its own `ground` does.
+    if let Some((x, y)) = at {
         standpoint.x = x;
         standpoint.y = y;
+        standpoint.ground = pansite::scene::ground_height(site, x, y);
     }
     if let Some(eye_height) = args.eye_height {
         standpoint.eye_height = eye_height;
