@@ -220,17 +220,41 @@ fn name_block_points(b: &mut ItemBuilder, block: &BlockSpec, width: f64, depth: 
     }
 }
 
-pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
-    let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
-    let (corner, turn) = rectangle_frame(block.at, width, depth, block.facing.0);
+/// Moves the builder into the frame of a rectangle `width` by `depth` placed by `at` and
+/// `facing_deg` (its first corner the origin, its width along x), standing `base` above
+/// z = 0 or, `on_ground`, on the scene's ground with its foot line or plinth drawn: how a
+/// block, a room and a vault stand.
+pub fn stand_rectangle(
+    b: &mut ItemBuilder,
+    at: Anchor,
+    (width, depth): (f64, f64),
+    facing_deg: f64,
+    base: f64,
+    on_ground: bool,
+    plinth: Option<&PlinthSpec>,
+) -> Result<(), String> {
+    let (corner, turn) = rectangle_frame(at, width, depth, facing_deg);
     let plan = rectangle_plan(width, depth);
     let frame = b
         .placement()
         .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-    let (on_ground, plinth) = (block.on_ground, block.plinth.as_ref());
-    let base = outline_foot(b, &frame, &plan, block.base.0, on_ground, plinth)?;
+    let base = outline_foot(b, &frame, &plan, base, on_ground, plinth)?;
     b.move_by(Vector3::new(corner.x, corner.y, base), turn);
-    draw_footing(b, &plan, on_ground, plinth)?;
+    draw_footing(b, &plan, on_ground, plinth)
+}
+
+pub fn build_block(b: &mut ItemBuilder, block: &BlockSpec) -> Result<(), String> {
+    let (width, depth, height) = (block.width.0, block.depth.0, block.height.0);
+    let (at, facing, base) = (block.at, block.facing.0, block.base.0);
+    stand_rectangle(
+        b,
+        at,
+        (width, depth),
+        facing,
+        base,
+        block.on_ground,
+        block.plinth.as_ref(),
+    )?;
     if height == 0.0 {
         b.warn("has no height: only its plan is drawn, on the ground");
         let plan: Vec<Point3<f64>> = rectangle_plan(width, depth)

@@ -4,13 +4,13 @@
 use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::barrel::BarrelVault;
-use super::block::{rectangle_frame, rectangle_plan, rectangle_walls, Anchor};
-use super::standing::{draw_footing, outline_foot, PlinthSpec};
+use super::block::{rectangle_plan, rectangle_walls, stand_rectangle, Anchor};
+use super::standing::PlinthSpec;
 use super::walls::{
     build_walls, openings_in_wall, round_window_in_wall, OpeningKind, OpeningsSpec,
     RoundWindowSpec, Wall,
 };
-use nalgebra::{Point3, Vector2, Vector3};
+use nalgebra::{Point3, Vector2};
 use serde::Deserialize;
 
 #[derive(Clone, Copy, Debug, Default, Deserialize, PartialEq)]
@@ -161,15 +161,16 @@ pub fn build_interior(
 
 pub fn build_room(b: &mut ItemBuilder, spec: &RoomSpec) -> Result<(), String> {
     let (width, depth, height) = (spec.width.0, spec.depth.0, spec.height.0);
-    let (corner, turn) = rectangle_frame(spec.at, width, depth, spec.facing.0);
-    let plan = rectangle_plan(width, depth);
-    let frame = b
-        .placement()
-        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-    let (on_ground, plinth) = (spec.on_ground, spec.plinth.as_ref());
-    let base = outline_foot(b, &frame, &plan, spec.base.0, on_ground, plinth)?;
-    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
-    draw_footing(b, &plan, on_ground, plinth)?;
+    let (at, facing, base) = (spec.at, spec.facing.0, spec.base.0);
+    stand_rectangle(
+        b,
+        at,
+        (width, depth),
+        facing,
+        base,
+        spec.on_ground,
+        spec.plinth.as_ref(),
+    )?;
     let vault = match spec.ceiling {
         Ceiling::Flat => None,
         Ceiling::Vault { rise, bays } => Some(BarrelVault::new(width, depth, height, rise, bays)),

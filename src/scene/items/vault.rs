@@ -3,10 +3,9 @@
 use super::super::build::ItemBuilder;
 use super::super::numbers::{default_facing, zero, Count, Finite, Positive};
 use super::barrel::BarrelVault;
-use super::block::{rectangle_frame, rectangle_plan, Anchor};
+use super::block::{stand_rectangle, Anchor};
 use super::room::{build_interior, vault_room};
-use super::standing::{draw_footing, outline_foot, PlinthSpec};
-use nalgebra::Vector3;
+use super::standing::PlinthSpec;
 use serde::Deserialize;
 
 #[derive(Debug, Deserialize)]
@@ -49,15 +48,16 @@ pub struct VaultSpec {
 /// and the ribs.
 pub fn build_vault(b: &mut ItemBuilder, spec: &VaultSpec) -> Result<(), String> {
     let (width, depth) = (spec.width.0, spec.depth.0);
-    let (corner, turn) = rectangle_frame(spec.at, width, depth, spec.facing.0);
-    let plan = rectangle_plan(width, depth);
-    let frame = b
-        .placement()
-        .then_move(Vector3::new(corner.x, corner.y, 0.0), turn);
-    let (on_ground, plinth) = (spec.on_ground, spec.plinth.as_ref());
-    let base = outline_foot(b, &frame, &plan, spec.base.0, on_ground, plinth)?;
-    b.move_by(Vector3::new(corner.x, corner.y, base), turn);
-    draw_footing(b, &plan, on_ground, plinth)?;
+    let (at, facing, base) = (spec.at, spec.facing.0, spec.base.0);
+    stand_rectangle(
+        b,
+        at,
+        (width, depth),
+        facing,
+        base,
+        spec.on_ground,
+        spec.plinth.as_ref(),
+    )?;
     let vault = BarrelVault::new(width, depth, spec.springing.0, spec.rise, spec.bays);
     build_interior(b, &vault_room(vault), &[], &[], &[])
 }
