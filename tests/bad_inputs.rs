@@ -189,6 +189,7 @@ corpus! {
     block_on_ground_without_ground: "block-on-ground-without-ground.ron" => refused("block-on-ground-without-ground.ron:4:9:", &["on_ground", "no `ground`"]);
     column_on_ground_without_ground: "column-on-ground-without-ground.ron" => refused("column-on-ground-without-ground.ron:4:9:", &["Column \"pump\" (item 1)", "on_ground", "no `ground`"]);
     tower_on_ground_without_ground: "tower-on-ground-without-ground.ron" => refused("tower-on-ground-without-ground.ron:4:9:", &["Tower (item 1)", "on_ground", "no `ground`"]);
+    model_on_ground_without_ground: "model-on-ground-without-ground.ron" => refused("model-on-ground-without-ground.ron:4:9:", &["\"shed\"", "on_ground", "no `ground`"]);
     dome_on_ground_without_ground: "dome-on-ground-without-ground.ron" => refused("dome-on-ground-without-ground.ron:4:9:", &["Dome (item 1)", "on_ground", "no `ground`"]);
     arcade_on_ground_without_ground: "arcade-on-ground-without-ground.ron" => refused("arcade-on-ground-without-ground.ron:4:9:", &["Arcade (item 1)", "on_ground", "no `ground`"]);
     stairs_on_ground_without_ground: "stairs-on-ground-without-ground.ron" => refused("stairs-on-ground-without-ground.ron:4:9:", &["Stairs (item 1)", "on_ground", "no `ground`"]);

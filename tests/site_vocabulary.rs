@@ -942,6 +942,59 @@ fn figures_cars_and_trees_stand_on_the_sloping_ground_under_them() {
 }
 
 #[test]
+fn a_model_on_the_ground_stands_its_lowest_points_on_the_lowest_ground_under_them() {
+    // A box 2 by 3 by 4 m (Z up, its first corner at its origin) placed at (10, 10) on the
+    // plane worked by hand above: its four foot corners (10..12, 10..13) have the ground
+    // at 3.5 to 4.2, the lowest 3.5 under (10, 10); `at`'s height is then above that.
+    let dir = common::Scratch::new("model-on-ground");
+    dir.write(
+        "box.obj",
+        "v 0 0 0\nv 2 0 0\nv 2 3 0\nv 0 3 0\nv 0 0 4\nv 2 0 4\nv 2 3 4\nv 0 3 4\n\
+         f 1 4 3 2\nf 5 6 7 8\nf 1 2 6 5\nf 2 3 7 6\nf 3 4 8 7\nf 4 1 5 8\n",
+    );
+    let scene = dir.write(
+        "s.ron",
+        format!(
+            "Scene({PLANE}, items: [
+                Model(label: \"shed\", file: \"box.obj\", at: (10, 10, 0), up: Z, on_ground: true),
+                Model(label: \"raised\", file: \"box.obj\", at: (20, 5, 0.5), up: Z, on_ground: true),
+                Model(label: \"as written\", file: \"box.obj\", at: (30, 2, 0.25), up: Z),
+            ])"
+        ),
+    );
+    let site = pansite::scene::load_scene(&scene).unwrap();
+    assert_near(plane_height(10.0, 10.0), 3.5, 1e-12);
+    assert_near(lowest_point_of(&site, "shed"), 3.5, 1e-9);
+    // Its foot corners at (20..22, 5..8): the lowest ground 3.0 under (20, 5), then 0.5 up.
+    assert_near(
+        lowest_point_of(&site, "raised"),
+        plane_height(20.0, 5.0) + 0.5,
+        1e-9,
+    );
+    assert_near(lowest_point_of(&site, "as written"), 0.25, 1e-12);
+    // Without a ground, or reaching past it, refused by name.
+    dir.write(
+        "flat.ron",
+        "Scene(items: [Model(label: \"shed\", file: \"box.obj\", up: Z, on_ground: true)])",
+    );
+    let message = pansite::scene::load_scene(&dir.path("flat.ron"))
+        .unwrap_err()
+        .to_string();
+    assert!(
+        message.contains("\"shed\"") && message.contains("no `ground`"),
+        "{message}"
+    );
+    dir.write(
+        "off.ron",
+        format!("Scene({PLANE}, items: [Model(label: \"shed\", file: \"box.obj\", at: (39, 1, 0), up: Z, on_ground: true)])"),
+    );
+    let message = pansite::scene::load_scene(&dir.path("off.ron"))
+        .unwrap_err()
+        .to_string();
+    assert!(message.contains("lies outside the ground"), "{message}");
+}
+
+#[test]
 fn a_figure_car_or_tree_sunk_in_the_ground_is_refused_by_name() {
     // The ground at (10, 10) is 3.5 (by hand, above): a base of 3 is half a metre under
     // it, one of 3.47 within the few centimetres allowed.

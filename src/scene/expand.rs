@@ -6,7 +6,7 @@ use super::format::{ItemSpec, Posture, SceneFile, StandpointSpec};
 use super::items::*;
 use super::location::{find_time_zone, Location};
 use super::mesh::UpAxis;
-use super::mesh::{add_mesh, add_mesh_named, MeshPlacement};
+use super::mesh::{add_mesh, add_mesh_named, placed_used_positions, MeshPlacement};
 use super::numbers::spot;
 use super::numbers::{Finite, Positive};
 use super::obj::read_obj;
@@ -338,7 +338,7 @@ impl Walker<'_> {
         if !self.site.sources.contains(&path) {
             self.site.sources.push(path.clone());
         }
-        let placement = MeshPlacement {
+        let mut placement = MeshPlacement {
             up: model.up,
             unit: model.unit,
             crease_deg: model.crease.0,
@@ -346,6 +346,13 @@ impl Walker<'_> {
             turn_deg: (place.turn.to_degrees()) + model.turn.0,
             offset: place.point(&spot(&model.at)).coords,
         };
+        if model.on_ground {
+            let placed = placed_used_positions(&obj, &placement);
+            let base = place.length(model.at.2 .0);
+            let lift = model_lift(self.site.ground.as_ref(), &placed, base)
+                .map_err(|message| self.fail(message))?;
+            placement.offset.z += lift;
+        }
         let first = self.site.items.len();
         add_mesh(self.site, &obj, &placement, &label);
         if let Some(layer) = layer {

@@ -992,6 +992,26 @@ fn file_says_smooth(
     }
 }
 
+/// The positions a mesh's faces, holes and lines use, placed in the site frame.
+pub fn placed_used_positions(obj: &ObjFile, placement: &MeshPlacement) -> Vec<Point3<f64>> {
+    let placed = place(&obj.positions, placement);
+    let mut used = vec![false; placed.len()];
+    let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
+    for &i in obj
+        .corners
+        .iter()
+        .chain(&obj.line_points)
+        .chain(hole_points)
+    {
+        used[i as usize] = true;
+    }
+    placed
+        .into_iter()
+        .zip(used)
+        .filter_map(|(p, used)| used.then_some(p))
+        .collect()
+}
+
 /// The file's positions in the site frame: axes, units, scale, turn, offset.
 fn place(positions: &[Point3<f64>], placement: &MeshPlacement) -> Vec<Point3<f64>> {
     let factor = placement.unit.metres() * placement.scale;

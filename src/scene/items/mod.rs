@@ -106,6 +106,7 @@ pub use round::{
     build_column, build_dome, build_tower, cone, spheroid_dome, ColumnSpec, DomeSpec, TowerSpec,
 };
 pub use stairs::{build_stairs, StairsSpec};
+pub use standing::model_lift;
 pub use tiles::{build_tiles, TilesSpec};
 pub use vault::{build_vault, VaultSpec};
 

@@ -39,4 +39,8 @@ pub struct ModelSpec {
     /// Edges whose faces meet at more than this angle (degrees) are drawn.
     #[serde(default = "default_crease")]
     pub crease: HalfTurn,
+    /// Stand on the scene's ground: the model's lowest points on the lowest ground under
+    /// them, `at`'s height above it.
+    #[serde(default)]
+    pub on_ground: bool,
 }

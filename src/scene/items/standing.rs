@@ -281,6 +281,38 @@ pub fn foot_at(b: &mut ItemBuilder, at: Vector2<f64>, base: Option<f64>) -> Resu
     Ok(base)
 }
 
+/// Metres: a model's foot is its points within this of its lowest.
+const FOOT_THICKNESS: f64 = 1e-3;
+
+/// How far to raise a placed model (its points in the site frame) so that it stands on the
+/// ground `base` metres up: its foot, the points within a millimetre of its lowest, on the
+/// lowest ground under them (as a block stands at its lowest corner). A hollow of the
+/// ground between two of its corners may dip lower; no plinth is drawn.
+pub fn model_lift(
+    ground: Option<&Ground>,
+    placed: &[Point3<f64>],
+    base: f64,
+) -> Result<f64, String> {
+    let Some(ground) = ground else {
+        return Err("has `on_ground: true` but the scene has no `ground`".to_owned());
+    };
+    let lowest = placed.iter().map(|p| p.z).fold(f64::INFINITY, f64::min);
+    let mut under = f64::INFINITY;
+    for p in placed.iter().filter(|p| p.z <= lowest + FOOT_THICKNESS) {
+        let Some(z) = ground.height_at(p.x, p.y) else {
+            return Err(format!(
+                "stands on the ground, but its foot at ({:.2}, {:.2}) lies outside the ground",
+                p.x, p.y
+            ));
+        };
+        under = under.min(z);
+    }
+    if !under.is_finite() {
+        return Err("stands on the ground, but has no points to stand on".to_owned());
+    }
+    Ok(under + base - lowest)
+}
+
 /// The floor of a building on a plinth: `base` above the highest ground under it. A
 /// negative `base` would sink the floor into the slope, under the plinth's own top.
 pub fn plinth_floor(highest: f64, base: f64) -> Result<f64, String> {
