@@ -645,3 +645,156 @@ fn a_mapped_round_roof_rises_its_roof_height_and_its_crest_is_the_tangent_conics
         assert!(on_drawing([point[0], point[1], point[2] + 0.3]) > 2.0);
     }
 }
+
+/// A small city model written by hand in CityJSON 2.0's structure (OGC 20-072r5,
+/// "Geometry Objects": a Solid's boundaries are shells of surfaces, a MultiSurface's are
+/// surfaces, each surface a list of rings, the first its outer ring and the others its
+/// holes; "Semantics of geometric primitives": one value per surface; "Transform Object":
+/// a vertex is its integers times the scale plus the translate). Millimetre integers,
+/// the translate the grid origin the scene gives, so plan metres are the integers / 1000.
+///
+/// `house` (a Solid, lod 2): 10 m by 6 m, walls 5 m high, a gable roof of two quads rising
+/// to a ridge 8 m high along x. The south wall is a quad with a window 2 m square cut in it
+/// (an inner ring); the east gable end is one pentagon, the west one is a quad wall and
+/// the triangle of its gable above it, two surfaces in one plane, as files often give it.
+/// `yard-store` (a MultiSurface, lod 1): a flat block 4 m high on an L-shaped ground,
+/// concave at (24, 4).
+const GABLE_AND_L: &str = r#"{"type": "CityJSON", "version": "2.0",
+  "transform": {"scale": [0.001, 0.001, 0.001], "translate": [500000.0, 5400000.0, 0.0]},
+  "CityObjects": {
+    "house": {"type": "Building", "geometry": [{"type": "Solid", "lod": "2",
+      "boundaries": [[
+        [[0, 3, 2, 1]],
+        [[0, 1, 5, 4], [10, 13, 12, 11]],
+        [[1, 2, 6, 9, 5]],
+        [[2, 3, 7, 6]],
+        [[3, 0, 4, 7]],
+        [[7, 4, 8]],
+        [[4, 5, 9, 8]],
+        [[6, 7, 8, 9]]]],
+      "semantics": {"surfaces": [{"type": "GroundSurface"}, {"type": "WallSurface"},
+          {"type": "RoofSurface"}],
+        "values": [[0, 1, 1, 1, 1, 1, 2, 2]]}}]},
+    "yard-store": {"type": "Building", "geometry": [{"type": "MultiSurface", "lod": "1",
+      "boundaries": [
+        [[14, 19, 18, 17, 16, 15]],
+        [[20, 21, 22, 23, 24, 25]],
+        [[14, 15, 21, 20]], [[15, 16, 22, 21]], [[16, 17, 23, 22]],
+        [[17, 18, 24, 23]], [[18, 19, 25, 24]], [[19, 14, 20, 25]]]}]}},
+  "vertices": [
+    [0, 0, 0], [10000, 0, 0], [10000, 6000, 0], [0, 6000, 0],
+    [0, 0, 5000], [10000, 0, 5000], [10000, 6000, 5000], [0, 6000, 5000],
+    [0, 3000, 8000], [10000, 3000, 8000],
+    [4000, 0, 1000], [6000, 0, 1000], [6000, 0, 3000], [4000, 0, 3000],
+    [20000, 0, 0], [32000, 0, 0], [32000, 4000, 0], [24000, 4000, 0], [24000, 10000, 0],
+    [20000, 10000, 0],
+    [20000, 0, 4000], [32000, 0, 4000], [32000, 4000, 4000], [24000, 4000, 4000],
+    [24000, 10000, 4000], [20000, 10000, 4000]]}"#;
+
+/// A segment as its two ends in millimetres, the lower end first.
+type MillimetreSegment = ([i64; 3], [i64; 3]);
+
+fn millimetres(a: nalgebra::Point3<f64>, b: nalgebra::Point3<f64>) -> MillimetreSegment {
+    let mm = |p: nalgebra::Point3<f64>| [p.x, p.y, p.z].map(|v| (v * 1e3).round() as i64);
+    let (a, b) = (mm(a), mm(b));
+    if a < b {
+        (a, b)
+    } else {
+        (b, a)
+    }
+}
+
+#[test]
+fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
+    let dir = std::env::temp_dir().join(format!("pansite-city-edges-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(dir.join("block.city.json"), GABLE_AND_L).unwrap();
+    let scene = "Scene(items: [OpenData(file: \"block.city.json\", origin: (500000, 5400000))])";
+    let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.join("s.ron"), "s");
+    let _ = std::fs::remove_dir_all(&dir);
+    let site = site.unwrap();
+
+    let mut drawn: Vec<MillimetreSegment> = site
+        .edges
+        .iter()
+        .map(|e| match e.curve {
+            pansite::scene::SiteCurve::Segment { start, end } => millimetres(start, end),
+            ref other => panic!("a city model draws straight edges only: {other:?}"),
+        })
+        .collect();
+    drawn.sort();
+    let count = drawn.len();
+    drawn.dedup();
+    assert_eq!(drawn.len(), count, "an edge drawn twice");
+
+    // The sides counted by hand, each once however many surfaces share it (metres).
+    let side = |a: [i64; 3], b: [i64; 3]| {
+        let m = |p: [i64; 3]| nalgebra::Point3::new(p[0] as f64, p[1] as f64, p[2] as f64);
+        millimetres(m(a), m(b))
+    };
+    let mut expected = vec![
+        // The house: the four sides of its ground, its four corner posts, the two eaves,
+        // the four rakes of the gables and the ridge. The side the west wall's quad shares
+        // with its gable triangle lies in one plane: no edge there, as on the east end.
+        side([0, 0, 0], [10, 0, 0]),
+        side([10, 0, 0], [10, 6, 0]),
+        side([10, 6, 0], [0, 6, 0]),
+        side([0, 6, 0], [0, 0, 0]),
+        side([0, 0, 0], [0, 0, 5]),
+        side([10, 0, 0], [10, 0, 5]),
+        side([10, 6, 0], [10, 6, 5]),
+        side([0, 6, 0], [0, 6, 5]),
+        side([0, 0, 5], [10, 0, 5]),
+        side([0, 6, 5], [10, 6, 5]),
+        side([10, 0, 5], [10, 3, 8]),
+        side([10, 3, 8], [10, 6, 5]),
+        side([0, 0, 5], [0, 3, 8]),
+        side([0, 3, 8], [0, 6, 5]),
+        side([0, 3, 8], [10, 3, 8]),
+        // The window: the four sides of the south wall's inner ring.
+        side([4, 0, 1], [6, 0, 1]),
+        side([6, 0, 1], [6, 0, 3]),
+        side([6, 0, 3], [4, 0, 3]),
+        side([4, 0, 3], [4, 0, 1]),
+    ];
+    // The L-shaped store: its six ground sides, six roof sides and six posts.
+    let l = [[20, 0], [32, 0], [32, 4], [24, 4], [24, 10], [20, 10]];
+    for k in 0..6 {
+        let (p, q) = (l[k], l[(k + 1) % 6]);
+        expected.push(side([p[0], p[1], 0], [q[0], q[1], 0]));
+        expected.push(side([p[0], p[1], 4], [q[0], q[1], 4]));
+        expected.push(side([p[0], p[1], 0], [p[0], p[1], 4]));
+    }
+    expected.sort();
+    assert_eq!(expected.len(), 19 + 18);
+    assert_eq!(drawn, expected);
+
+    // Every surface meets its neighbours at 45 or 90 degrees or lies in their plane:
+    // nothing is left to be drawn only as an outline from the eye.
+    assert!(site.silhouette_candidates.is_empty());
+
+    // The surfaces are cut into triangles for the hidden lines (ground 2, holed wall 8,
+    // pentagon 3, north wall 2, west wall 2 + 1, roof 2 + 2; the store's L twice 4 and its
+    // walls 6 x 2): the diagonals exist, among them the store's ground and roof from the
+    // inner corner (24, 4), and none is drawn.
+    assert_eq!(site.faces.len(), 22 + 20);
+    let diagonals: std::collections::BTreeSet<MillimetreSegment> = site
+        .faces
+        .iter()
+        .flat_map(|f| {
+            let [a, b, c] = f.corners;
+            [millimetres(a, b), millimetres(b, c), millimetres(c, a)]
+        })
+        .filter(|s| drawn.binary_search(s).is_err())
+        .collect();
+    assert!(
+        diagonals
+            .iter()
+            .any(|(a, b)| *a == [24000, 4000, 0] || *b == [24000, 4000, 0]),
+        "{diagonals:?}"
+    );
+    // A polygon of n corners cut into n - 2 triangles has n - 3 diagonals; the holed wall
+    // (8 triangles, 8 sides) has (3 x 8 - 8) / 2 = 8. House 1 + 8 + 2 + 1 + 1 + 0 + 1 + 1,
+    // store 3 + 3 + 6 x 1, and the west wall's side in one plane with its gable: 28.
+    assert_eq!(diagonals.len(), 15 + 12 + 1, "{diagonals:?}");
+}
