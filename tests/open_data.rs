@@ -704,16 +704,24 @@ fn millimetres(a: nalgebra::Point3<f64>, b: nalgebra::Point3<f64>) -> Millimetre
     }
 }
 
-#[test]
-fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
-    let dir = std::env::temp_dir().join(format!("pansite-city-edges-{}", std::process::id()));
+/// The site a scene makes of a city model written as `text`, its grid origin at the
+/// model's translate.
+fn city_site(text: &str) -> pansite::scene::Site {
+    // A folder of its own for each call: the tests run side by side.
+    static CALLS: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let call = CALLS.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let dir =
+        std::env::temp_dir().join(format!("pansite-city-edges-{}-{call}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    std::fs::write(dir.join("block.city.json"), GABLE_AND_L).unwrap();
+    std::fs::write(dir.join("block.city.json"), text).unwrap();
     let scene = "Scene(items: [OpenData(file: \"block.city.json\", origin: (500000, 5400000))])";
     let site = pansite::scene::parse_scene(scene.as_bytes(), &dir.join("s.ron"), "s");
     let _ = std::fs::remove_dir_all(&dir);
-    let site = site.unwrap();
+    site.unwrap()
+}
 
+/// The site's drawn edges, sorted, each asserted drawn once.
+fn drawn_segments(site: &pansite::scene::Site) -> Vec<MillimetreSegment> {
     let mut drawn: Vec<MillimetreSegment> = site
         .edges
         .iter()
@@ -726,7 +734,11 @@ fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
     let count = drawn.len();
     drawn.dedup();
     assert_eq!(drawn.len(), count, "an edge drawn twice");
+    drawn
+}
 
+/// The edges of [`GABLE_AND_L`], sorted.
+fn gable_and_l_sides() -> Vec<MillimetreSegment> {
     // The sides counted by hand, each once however many surfaces share it (metres).
     let side = |a: [i64; 3], b: [i64; 3]| {
         let m = |p: [i64; 3]| nalgebra::Point3::new(p[0] as f64, p[1] as f64, p[2] as f64);
@@ -767,6 +779,14 @@ fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
     }
     expected.sort();
     assert_eq!(expected.len(), 19 + 18);
+    expected
+}
+
+#[test]
+fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
+    let site = city_site(GABLE_AND_L);
+    let drawn = drawn_segments(&site);
+    let expected = gable_and_l_sides();
     assert_eq!(drawn, expected);
 
     // Every surface meets its neighbours at 45 or 90 degrees or lies in their plane:
@@ -797,4 +817,36 @@ fn a_city_models_edges_are_its_polygons_sides_never_a_triangulation() {
     // (8 triangles, 8 sides) has (3 x 8 - 8) / 2 = 8. House 1 + 8 + 2 + 1 + 1 + 0 + 1 + 1,
     // store 3 + 3 + 6 x 1, and the west wall's side in one plane with its gable: 28.
     assert_eq!(diagonals.len(), 15 + 12 + 1, "{diagonals:?}");
+}
+
+#[test]
+fn a_city_model_given_as_triangles_draws_the_same_edges() {
+    // Many published models are triangulated before they are shared: each surface cut
+    // into triangles, each triangle a surface of its own. Here the same house and store
+    // written so (every triangle the hidden-line pass made of them, vertices repeated per
+    // triangle): the sides between triangles of one plane are not edges, so the same
+    // edges are drawn, the window's ring among them.
+    let triangles = city_site(GABLE_AND_L).faces;
+    let mut vertices = Vec::new();
+    let mut surfaces = Vec::new();
+    for (k, t) in triangles.iter().enumerate() {
+        for p in t.corners {
+            let mm = [p.x, p.y, p.z].map(|v| (v * 1e3).round() as i64);
+            vertices.push(format!("[{}, {}, {}]", mm[0], mm[1], mm[2]));
+        }
+        surfaces.push(format!("[[{}, {}, {}]]", 3 * k, 3 * k + 1, 3 * k + 2));
+    }
+    let text = format!(
+        r#"{{"type": "CityJSON", "version": "2.0",
+          "transform": {{"scale": [0.001, 0.001, 0.001], "translate": [500000.0, 5400000.0, 0.0]}},
+          "CityObjects": {{"block": {{"type": "Building", "geometry": [{{"type": "MultiSurface",
+            "lod": "2", "boundaries": [{}]}}]}}}},
+          "vertices": [{}]}}"#,
+        surfaces.join(", "),
+        vertices.join(", ")
+    );
+    let site = city_site(&text);
+    assert_eq!(site.faces.len(), 42);
+    assert_eq!(drawn_segments(&site), gable_and_l_sides());
+    assert!(site.silhouette_candidates.is_empty());
 }
