@@ -51,12 +51,14 @@ pub enum Error {
         source: std::io::Error,
     },
 
-    /// A model named in a scene could not be read.
+    /// A model or data file named in a scene could not be read.
     // The cause follows in the chain the command prints (`{:#}`), so it is not repeated here.
-    #[error("{}:{line}:{column}: in the model \"{item}\"", scene.display())]
+    #[error("{}:{line}:{column}: in the {kind} \"{item}\"", scene.display())]
     InModel {
-        /// The scene that names the model.
+        /// The scene that names the file.
         scene: PathBuf,
+        /// What the file is to the scene: `model` (OBJ) or `data file` (GeoJSON, CityJSON).
+        kind: &'static str,
         /// The line of the `Model` item, from 1.
         line: usize,
         /// Its column, from 1.

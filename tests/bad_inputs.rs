@@ -274,7 +274,7 @@ corpus! {
     geojson_other_reference_system: "geojson-other-crs.geojson" => refused("geojson-other-crs.geojson: at $.crs:", &["EPSG::27700", "WGS84"]);
     cityjson_vertex_index_out_of_range: "cityjson-index-out-of-range.city.json" => refused("cityjson-index-out-of-range.city.json: at $.CityObjects[\"shed\"].geometry[0].boundaries[1][0]:", &["vertex index 3"]);
     cityjson_template_missing: "cityjson-template-missing.city.json" => refused("cityjson-template-missing.city.json: at $.CityObjects[\"kiosk\"].geometry[0].template:", &["template 2 is beyond the file's 1 templates"]);
-    cityjson_unread_reference_system: "cityjson-web-mercator.ron" => refused("cityjson-web-mercator.ron:4:15:", &["EPSG:3857", "not a transverse Mercator"]);
+    cityjson_unread_reference_system: "cityjson-web-mercator.ron" => refused("cityjson-web-mercator.ron:4:15: in the data file", &["EPSG:3857", "not a transverse Mercator"]);
     cityjson_unread_reference_system_data: "cityjson-web-mercator.city.json" ["--at-latlon", "48,2"] => refused("cityjson-web-mercator.city.json: at $.metadata.referenceSystem:", &["EPSG:3857"]);
     // UTM zone 31N (EPSG:32631) is used between 0 and 6 degrees east (its area of use in
     // the EPSG registry, from memory); 20 degrees east is far outside it.

@@ -46,9 +46,10 @@ pub enum ExpandError {
         path: &'static [&'static str],
         message: String,
     },
-    /// A model file could not be read.
+    /// A model or data file could not be read; `kind` says which (`model`, `data file`).
     Model {
         path: Vec<usize>,
+        kind: &'static str,
         label: String,
         source: Box<Error>,
     },
@@ -332,6 +333,7 @@ impl Walker<'_> {
             .join(&model.file.0);
         let obj = read_obj(&path).map_err(|source| ExpandError::Model {
             path: self.path.clone(),
+            kind: "model",
             label: label.clone(),
             source: Box::new(source),
         })?;
@@ -377,6 +379,7 @@ impl Walker<'_> {
         let data = read_open_data(&path, spec, self.site.location.as_ref()).map_err(|source| {
             ExpandError::Model {
                 path: self.path.clone(),
+                kind: "data file",
                 label: label.clone(),
                 source: Box::new(source),
             }

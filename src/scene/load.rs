@@ -239,10 +239,12 @@ pub fn parse_scene_timed(
         }
         ExpandError::Model {
             path: at,
+            kind,
             label,
             source,
         } => Error::InModel {
             scene: path.to_owned(),
+            kind,
             // Where the model is named in the scene.
             line: item_start(&item_spans(text), &at).map_or(1, |(line, _)| line),
             column: item_start(&item_spans(text), &at).map_or(1, |(_, column)| column),
