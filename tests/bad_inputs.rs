@@ -296,3 +296,84 @@ fn every_corpus_file_has_a_test() {
     assert_eq!(files, covered);
     assert!(files.len() >= 40);
 }
+
+/// Every file in the folder with its size, and the earlier output's bytes: what a refused
+/// run must leave as it was, without reading a file too large to read.
+fn sizes_and_earlier_output(dir: &Scratch) -> (BTreeMap<String, u64>, Vec<u8>) {
+    let sizes = std::fs::read_dir(&dir.0)
+        .unwrap()
+        .map(|e| {
+            let entry = e.unwrap();
+            let name = entry.file_name().to_string_lossy().into_owned();
+            (name, entry.metadata().unwrap().len())
+        })
+        .collect();
+    (sizes, std::fs::read(dir.path("out.png")).unwrap())
+}
+
+/// A data file larger than any loader reads (`pansite::scene::MAX_INPUT_BYTES`, 2 GiB)
+/// is refused before it is read: exit 2, one line naming the file, its size and the limit,
+/// and the folder as it was. The file cannot live in the corpus: it is made here, sparse
+/// (`File::set_len` writes no data, so it takes no room on disk), one byte over the limit.
+#[test]
+fn a_data_file_over_the_size_limit_is_refused_unread() {
+    let limit = pansite::scene::MAX_INPUT_BYTES;
+    let cases: [(&str, &[&str], &str); 3] = [
+        (
+            "huge.geojson",
+            &["--at-latlon", "48,2"],
+            "cannot read huge.geojson",
+        ),
+        (
+            "huge.city.json",
+            &["--at-latlon", "48,2"],
+            "cannot read huge.city.json",
+        ),
+        (
+            "huge-city.ron",
+            &[],
+            "huge-city.ron:3:5: in the data file \"huge.city.json\": cannot read huge.city.json",
+        ),
+    ];
+    for (file, extra, at) in cases {
+        let dir = Scratch::new(&format!("bad-{file}"));
+        let data = if file.ends_with(".ron") {
+            dir.write(
+                file,
+                "Scene(location: (latitude: 48, longitude: 2),\n    items: [\n    \
+                 OpenData(file: \"huge.city.json\"),\n])\n",
+            );
+            "huge.city.json"
+        } else {
+            file
+        };
+        std::fs::File::create(dir.path(data))
+            .unwrap()
+            .set_len(limit + 1)
+            .unwrap();
+        dir.write("out.png", EARLIER);
+        let before = sizes_and_earlier_output(&dir);
+        let mut args = vec!["render", file, "-o", "out.png", "--size", "256x128"];
+        args.extend(extra);
+        let out = dir.command().args(&args).output().unwrap();
+        let text = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{file}: {text}");
+        assert!(
+            text.starts_with(&format!("pansite: error: {at}: ")),
+            "{file}: {text}"
+        );
+        // The size and the limit to the byte: one byte over is not "as large as" it.
+        assert!(
+            text.contains(&format!(
+                "the file is {} bytes, more than the {limit} bytes (2 GiB) pansite reads",
+                limit + 1
+            )),
+            "{file}: {text}"
+        );
+        assert_eq!(text.lines().count(), 1, "{file}: {text}");
+        assert!(
+            sizes_and_earlier_output(&dir) == before,
+            "{file}: the folder changed"
+        );
+    }
+}

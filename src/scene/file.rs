@@ -25,14 +25,18 @@ pub fn read_input(path: &Path) -> Result<Vec<u8>> {
         ));
     }
     if metadata.len() > MAX_INPUT_BYTES {
-        return Err(refuse(format!(
-            "the file is {} MB, more than the {} MB pansite reads",
-            metadata.len() >> 20,
-            MAX_INPUT_BYTES >> 20
-        )));
+        return Err(refuse(too_large(metadata.len())));
     }
     std::fs::read(path).map_err(|source| Error::Read {
         path: path.to_owned(),
         source,
     })
+}
+
+/// Why a file of `bytes` is refused. Counted in bytes: whole megabytes would call a file
+/// one byte over the limit as large as the limit.
+fn too_large(bytes: u64) -> String {
+    format!(
+        "the file is {bytes} bytes, more than the {MAX_INPUT_BYTES} bytes (2 GiB) pansite reads"
+    )
 }
