@@ -854,3 +854,51 @@ fn a_standpoint_moved_on_a_hill_stands_on_its_ground() {
     assert_eq!(moved, underlay(&format!("&ground={ground}")));
     assert_ne!(moved, underlay("&ground=0"));
 }
+
+#[test]
+fn the_command_refuses_a_time_zone_for_a_scene_or_a_model() {
+    // `--time-zone` names the clock of an open-data file given directly; a scene names its
+    // own and a model has none, so `explore` refuses it as `render` does, before serving.
+    let dir = Scratch::new("explorer-zone");
+    dir.write("square.ron", demo());
+    std::fs::copy(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/obj/cube_triangles.obj"),
+        dir.path("cube.obj"),
+    )
+    .unwrap();
+    for file in ["square.ron", "cube.obj"] {
+        let mut child = dir
+            .command()
+            .args([
+                "explore",
+                file,
+                "--port",
+                "0",
+                "--time-zone",
+                "Europe/London",
+            ])
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        let deadline = std::time::Instant::now() + std::time::Duration::from_secs(20);
+        let status = loop {
+            if let Some(status) = child.try_wait().unwrap() {
+                break status;
+            }
+            if std::time::Instant::now() > deadline {
+                child.kill().unwrap();
+                child.wait().unwrap();
+                panic!("{file}: explore served despite --time-zone");
+            }
+            std::thread::sleep(std::time::Duration::from_millis(20));
+        };
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(status.code(), Some(2), "{file}: {stderr}");
+        assert!(
+            stderr.contains("--time-zone is for an open-data file"),
+            "{file}: {stderr}"
+        );
+    }
+}

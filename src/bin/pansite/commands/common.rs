@@ -21,6 +21,19 @@ pub fn is_standard_stream(path: &Path) -> bool {
     path == Path::new("-")
 }
 
+/// `--time-zone` names the clock of an open-data file given directly; any other scene names
+/// its zone itself, so there the option is refused rather than ignored.
+pub fn refuse_zone_unless_data(model: &ModelArgs, data_file: bool) -> pansite::Result<()> {
+    if model.time_zone.is_some() && !data_file {
+        return Err(Error::Setting(
+            "--time-zone is for an open-data file given directly (.geojson, .city.json, \
+             .jsonl); a scene names its zone in its `location` block (`time_zone`)"
+                .to_owned(),
+        ));
+    }
+    Ok(())
+}
+
 /// The scene from a RON file, an OBJ model or an open-data file (by its extension) or
 /// standard input (`-`). A data file is placed around `--origin-latlon`, else `at_latlon`
 /// (the standpoint asked for), else a point of its own, its clock in `--time-zone`; any
@@ -32,13 +45,7 @@ pub fn read_site(
     quiet: bool,
 ) -> pansite::Result<(Site, LoadTimings)> {
     let data_file = !is_standard_stream(path) && is_data_file(path);
-    if model.time_zone.is_some() && !data_file {
-        return Err(Error::Setting(
-            "--time-zone is for an open-data file given directly (.geojson, .city.json, \
-             .jsonl); a scene names its zone in its `location` block (`time_zone`)"
-                .to_owned(),
-        ));
-    }
+    refuse_zone_unless_data(model, data_file)?;
     if is_standard_stream(path) {
         return scene_from_stdin();
     }

@@ -2,7 +2,7 @@
 //! the library's `pansite::explore`); this file only chooses the source, starts it and
 //! prints where it is.
 
-use super::common::{is_data_file, is_standard_stream, read_site};
+use super::common::{is_data_file, is_standard_stream, read_site, refuse_zone_unless_data};
 use super::settings::mesh_placement;
 use crate::args::{ExploreArgs, ModelArgs, UnitArg, UpArg};
 use pansite::explore::{ExploreSettings, Explorer, Source};
@@ -44,6 +44,8 @@ pub fn explore(args: &ExploreArgs) -> anyhow::Result<()> {
 /// A scene file, an .obj model or an open-data file (kept standpoints go into a scene
 /// beside it), or a scene from standard input (nothing can be kept).
 fn source(args: &ExploreArgs) -> pansite::Result<Source> {
+    let data_file = !is_standard_stream(&args.scene) && is_data_file(&args.scene);
+    refuse_zone_unless_data(&args.model, data_file)?;
     if is_standard_stream(&args.scene) {
         let (site, _) = read_site(&args.scene, &args.model, None, false)?;
         return Ok(Source::Fixed {
