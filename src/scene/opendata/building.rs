@@ -315,8 +315,9 @@ fn build_barrel(b: &mut ItemBuilder, barrel: &BarrelPlan, top: f64, rise: f64) {
             0.0,
             std::f64::consts::PI,
         );
+        // From the far eaves over the crown down to the near eaves' corner, both included.
         let mut wall = vec![foot[near], foot[far]];
-        wall.extend_from_slice(&sections[k][..count]);
+        wall.extend_from_slice(&sections[k]);
         b.face(&wall, &[]);
     }
     b.strip(&sections[0], &sections[1]);
@@ -402,6 +403,8 @@ fn deepest_piece(plan: &[Vector2<f64>], sloped: &[bool]) -> (f64, Vec<Vector2<f6
 
 #[cfg(test)]
 mod tests {
+    use super::super::super::build::Placement;
+    use super::super::super::site::Site;
     use super::*;
 
     fn rectangle(w: f64, d: f64) -> Vec<Vector2<f64>> {
@@ -576,6 +579,33 @@ mod tests {
         assert!(barrel_plan(&splayed, false)
             .unwrap_err()
             .contains("parallel"));
+    }
+
+    #[test]
+    fn a_round_roofed_building_is_a_closed_solid() {
+        // Every side of every triangle shared by exactly two of them: no slit for lines
+        // behind to show through, and a standpoint inside is told by ray parity.
+        let mut site = Site::default();
+        let id = site.add_item("building", None);
+        let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+        let barrel = barrel_plan(&rectangle(20.0, 8.0), false).unwrap();
+        build_barrel(&mut b, &barrel, 7.0, 3.0);
+        let key = |p: &Point3<f64>| [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
+        let mut sides = std::collections::HashMap::new();
+        for face in &site.faces {
+            let c = face.corners.map(|p| key(&p));
+            for (a, b) in [(c[0], c[1]), (c[1], c[2]), (c[2], c[0])] {
+                *sides
+                    .entry(if a < b { (a, b) } else { (b, a) })
+                    .or_insert(0) += 1;
+            }
+        }
+        let open: Vec<_> = sides.iter().filter(|(_, &n)| n != 2).collect();
+        assert!(
+            open.is_empty(),
+            "{} sides not shared by two: {open:?}",
+            open.len()
+        );
     }
 
     #[test]
