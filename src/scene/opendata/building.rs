@@ -45,8 +45,8 @@ pub fn build_building(
     if heights.roof != RoofShape::Flat {
         if rings.len() > 1 {
             warnings.push(format!(
-                "a {:?} roof over a courtyard is not drawn; drawn flat",
-                heights.roof
+                "roof:shape={} over a courtyard is not drawn; drawn flat",
+                heights.roof_tag
             ));
         } else if heights.roof == RoofShape::Round {
             match barrel_plan(&rings[0], heights.across) {
@@ -57,7 +57,7 @@ pub fn build_building(
                 Err(why) => warnings.push(format!("{why}; drawn flat")),
             }
         } else if matches!(heights.roof, RoofShape::Dome | RoofShape::Cone) {
-            match inscribed_circle(&rings[0], heights.roof) {
+            match inscribed_circle(&rings[0], heights.roof_tag) {
                 Ok((centre, radius)) => {
                     prism(b, rings, wall_top);
                     let springing = Point3::new(centre.x, centre.y, wall_top);
@@ -117,6 +117,20 @@ fn prism(b: &mut ItemBuilder, rings: &[Vec<Vector2<f64>>], top: f64) {
     b.face(&outer(0.0), &holes(0.0));
 }
 
+/// The corners of a plan for a roof (`roof` as tagged) that needs at least three.
+fn roof_corners(ring: &[Vector2<f64>], roof: &str) -> Result<Vec<Vector2<f64>>, String> {
+    let plan = corners(ring);
+    if plan.len() < 3 {
+        // A finely mapped circle can turn less than that at every node.
+        return Err(format!(
+            "roof:shape={roof} needs a footprint with corners, but its outline turns by more \
+             than {STRAIGHT_ON} rad at only {} of its nodes",
+            plan.len()
+        ));
+    }
+    Ok(plan)
+}
+
 /// The corners of a plan where its outline turns, counter-clockwise.
 fn corners(ring: &[Vector2<f64>]) -> Vec<Vector2<f64>> {
     let n = ring.len();
@@ -135,12 +149,12 @@ fn corners(ring: &[Vector2<f64>]) -> Vec<Vector2<f64>> {
 /// The mass of a pitched roof: which sides slope, and the slope that gives the roof its
 /// tagged height.
 fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Result<Mass, String> {
-    let plan = corners(ring);
+    let plan = roof_corners(ring, heights.roof_tag)?;
     let n = plan.len();
-    if n < 3 || !is_convex(&plan) {
+    if !is_convex(&plan) {
         return Err(format!(
-            "a {:?} roof needs a convex footprint",
-            heights.roof
+            "roof:shape={} needs a convex footprint",
+            heights.roof_tag
         ));
     }
     let length = |i: usize| (plan[(i + 1) % n] - plan[i]).norm();
@@ -152,8 +166,8 @@ fn pitched_mass(ring: &[Vector2<f64>], heights: &Heights, north_deg: f64) -> Res
         RoofShape::Gabled | RoofShape::HalfHipped | RoofShape::Gambrel => {
             if n != 4 {
                 return Err(format!(
-                    "a {:?} roof needs a footprint of four corners, not {n}",
-                    heights.roof
+                    "roof:shape={} needs a footprint of four corners, not {n}",
+                    heights.roof_tag
                 ));
             }
             let long_first = length(0) + length(2) >= length(1) + length(3);
@@ -235,12 +249,15 @@ struct BarrelPlan {
 /// The plan of a round roof whose axis runs along the long sides (across them with
 /// `roof:orientation=across`): four corners, convex, the eaves parallel.
 fn barrel_plan(ring: &[Vector2<f64>], across: bool) -> Result<BarrelPlan, String> {
-    let plan = corners(ring);
-    if plan.len() != 4 || !is_convex(&plan) {
+    let plan = roof_corners(ring, "round")?;
+    if plan.len() != 4 {
         return Err(format!(
-            "a round roof needs a convex footprint of four corners, not {}",
+            "roof:shape=round needs a footprint of four corners, not {}",
             plan.len()
         ));
+    }
+    if !is_convex(&plan) {
+        return Err("roof:shape=round needs a convex footprint".to_owned());
     }
     let length = |i: usize| (plan[(i + 1) % 4] - plan[i]).norm();
     let long_first = length(0) + length(2) >= length(1) + length(3);
@@ -248,7 +265,7 @@ fn barrel_plan(ring: &[Vector2<f64>], across: bool) -> Result<BarrelPlan, String
     let c: [Vector2<f64>; 4] = std::array::from_fn(|k| plan[(first + k) % 4]);
     let (d0, d2) = ((c[1] - c[0]).normalize(), (c[2] - c[3]).normalize());
     if d0.perp(&d2).abs() > BARREL_PARALLEL || d0.dot(&d2) <= 0.0 {
-        return Err("a round roof needs its two eaves parallel".to_owned());
+        return Err("roof:shape=round needs its two eaves parallel".to_owned());
     }
     let axis = (d0 + d2).normalize();
     let inward = Vector2::new(-axis.y, axis.x);
@@ -333,10 +350,11 @@ fn build_barrel(b: &mut ItemBuilder, barrel: &BarrelPlan, top: f64, rise: f64) {
 /// The circle a round roof stands on: the largest circle inside the footprint (its centre
 /// midway along the line of centres when there are many, as in a long rectangle), as a
 /// dome stands on its drum; the rest of the roof stays flat at the eaves.
-fn inscribed_circle(ring: &[Vector2<f64>], roof: RoofShape) -> Result<(Vector2<f64>, f64), String> {
-    let plan = corners(ring);
-    if plan.len() < 3 || !is_convex(&plan) {
-        return Err(format!("a {roof:?} roof needs a convex footprint"));
+/// `roof` is the shape as tagged, for messages.
+fn inscribed_circle(ring: &[Vector2<f64>], roof: &str) -> Result<(Vector2<f64>, f64), String> {
+    let plan = roof_corners(ring, roof)?;
+    if !is_convex(&plan) {
+        return Err(format!("roof:shape={roof} needs a convex footprint"));
     }
     let (radius, centres) = deepest_piece(&plan, &vec![true; plan.len()]);
     if radius <= 0.0 || centres.is_empty() {
@@ -405,6 +423,7 @@ fn deepest_piece(plan: &[Vector2<f64>], sloped: &[bool]) -> (f64, Vec<Vector2<f6
 mod tests {
     use super::super::super::build::Placement;
     use super::super::super::site::Site;
+    use super::super::tags::ROOF_SHAPES;
     use super::*;
 
     fn rectangle(w: f64, d: f64) -> Vec<Vector2<f64>> {
@@ -431,6 +450,7 @@ mod tests {
             eaves: 6.0,
             top: 9.0,
             roof,
+            roof_tag: ROOF_SHAPES.iter().find(|(_, s)| *s == roof).unwrap().0,
             roof_direction: None,
             across: false,
         }
@@ -526,7 +546,7 @@ mod tests {
     #[test]
     fn a_round_roof_stands_on_the_largest_circle_inside() {
         // A rectangle: the circle across its width, midway along.
-        let (centre, radius) = inscribed_circle(&rectangle(10.0, 6.0), RoofShape::Dome).unwrap();
+        let (centre, radius) = inscribed_circle(&rectangle(10.0, 6.0), "dome").unwrap();
         assert!((centre - Vector2::new(5.0, 3.0)).norm() < 1e-6 && (radius - 3.0).abs() < 1e-9);
         // A 3-4-5 triangle: the incircle, radius (a + b - c) / 2 = 1 about (1, 1) (any
         // geometry handbook).
@@ -535,7 +555,7 @@ mod tests {
             Vector2::new(4.0, 0.0),
             Vector2::new(0.0, 3.0),
         ];
-        let (centre, radius) = inscribed_circle(&triangle, RoofShape::Cone).unwrap();
+        let (centre, radius) = inscribed_circle(&triangle, "cone").unwrap();
         assert!((centre - Vector2::new(1.0, 1.0)).norm() < 1e-6 && (radius - 1.0).abs() < 1e-9);
         // A regular 24-gon of circumradius 8: the apothem 8 cos(pi / 24) about its centre.
         let round: Vec<Vector2<f64>> = (0..24)
@@ -544,7 +564,7 @@ mod tests {
                 Vector2::new(3.0 + 8.0 * a.cos(), -2.0 + 8.0 * a.sin())
             })
             .collect();
-        let (centre, radius) = inscribed_circle(&round, RoofShape::Dome).unwrap();
+        let (centre, radius) = inscribed_circle(&round, "dome").unwrap();
         assert!((centre - Vector2::new(3.0, -2.0)).norm() < 1e-6);
         assert!((radius - 8.0 * (std::f64::consts::PI / 24.0).cos()).abs() < 1e-9);
     }
@@ -605,6 +625,74 @@ mod tests {
             open.is_empty(),
             "{} sides not shared by two: {open:?}",
             open.len()
+        );
+    }
+
+    #[test]
+    fn refusals_name_the_roof_as_tagged_and_what_its_footprint_lacks() {
+        let triangle = [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(4.0, 0.0),
+            Vector2::new(0.0, 3.0),
+        ];
+        let refusal = pitched_mass(&triangle, &heights(RoofShape::HalfHipped), 0.0);
+        assert_eq!(
+            refusal.unwrap_err(),
+            "roof:shape=half-hipped needs a footprint of four corners, not 3"
+        );
+        // A dart: four corners, one turning inwards.
+        let dart = [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(10.0, 3.0),
+            Vector2::new(0.0, 6.0),
+            Vector2::new(3.0, 3.0),
+        ];
+        assert_eq!(
+            barrel_plan(&dart, false).unwrap_err(),
+            "roof:shape=round needs a convex footprint"
+        );
+        let mut five = rectangle(10.0, 6.0);
+        five.insert(1, Vector2::new(5.0, -1.0));
+        assert_eq!(
+            barrel_plan(&five, false).unwrap_err(),
+            "roof:shape=round needs a footprint of four corners, not 5"
+        );
+        assert_eq!(
+            inscribed_circle(&dart, "onion").unwrap_err(),
+            "roof:shape=onion needs a convex footprint"
+        );
+        // A circle of 8000 nodes turns by 2 pi / 8000 < 0.001 rad at each: no corners.
+        let circle: Vec<Vector2<f64>> = (0..8000)
+            .map(|k| {
+                let a = std::f64::consts::TAU * k as f64 / 8000.0;
+                Vector2::new(20.0 * a.cos(), 20.0 * a.sin())
+            })
+            .collect();
+        let refusal = inscribed_circle(&circle, "dome").unwrap_err();
+        assert!(
+            refusal.starts_with("roof:shape=dome needs a footprint with corners")
+                && refusal.contains("at only 0 of its nodes")
+                && !refusal.contains("convex"),
+            "{refusal}"
+        );
+        // Over a courtyard, by its tag's name.
+        let warnings_over_a_courtyard = |heights: &Heights| {
+            let mut site = Site::default();
+            let id = site.add_item("building", None);
+            let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+            let hole: Vec<Vector2<f64>> = rectangle(2.0, 2.0)
+                .iter()
+                .map(|p| p + Vector2::new(4.0, 2.0))
+                .collect();
+            build_building(&mut b, &[rectangle(10.0, 6.0), hole], heights, 0.0, 0.0).unwrap()
+        };
+        let onion = Heights {
+            roof_tag: "onion",
+            ..heights(RoofShape::Dome)
+        };
+        assert_eq!(
+            warnings_over_a_courtyard(&onion),
+            ["roof:shape=onion over a courtyard is not drawn; drawn flat"]
         );
     }
 

@@ -110,6 +110,9 @@ pub struct Heights {
     pub top: f64,
     /// The roof drawn (`roof:shape`, or flat).
     pub roof: RoofShape,
+    /// The roof's `roof:shape` as the tag spells it (`onion` for an onion drawn as a dome),
+    /// for messages; `flat` when it is drawn flat.
+    pub roof_tag: &'static str,
     /// The true azimuth (degrees) a skillion or the slopes of a roof face, if tagged.
     pub roof_direction: Option<f64>,
     /// `roof:orientation=across`: the ridge runs across the long sides.
@@ -186,10 +189,10 @@ pub fn heights(
     let roof_levels = length("roof:levels");
 
     let shape_tag = tag(tags, "roof:shape");
-    let mut roof = match shape_tag.as_deref() {
+    let (mut roof, mut roof_tag) = match shape_tag.as_deref() {
         None => {
             assumptions.push("no roof:shape: a flat roof".to_owned());
-            RoofShape::Flat
+            (RoofShape::Flat, "flat")
         }
         Some(name) => match ROOF_SHAPES.iter().find(|(known, _)| *known == name) {
             Some(&(known, shape)) => {
@@ -197,7 +200,7 @@ pub fn heights(
                     assumptions
                         .push("roof:shape=onion: drawn as a dome, its bulge left out".to_owned());
                 }
-                shape
+                (shape, known)
             }
             None => {
                 let drawn: Vec<&str> = ROOF_SHAPES.iter().map(|(known, _)| *known).collect();
@@ -205,7 +208,7 @@ pub fn heights(
                     "roof:shape={name:?} is not one pansite draws ({}); drawn flat",
                     drawn.join(", ")
                 ));
-                RoofShape::Flat
+                (RoofShape::Flat, "flat")
             }
         },
     };
@@ -225,7 +228,7 @@ pub fn heights(
     };
     if roof_rise == 0.0 {
         // `roof:height=0`: whatever its shape, a roof of no height is flat.
-        roof = RoofShape::Flat;
+        (roof, roof_tag) = (RoofShape::Flat, "flat");
     }
     let base = match (min_height, min_level) {
         (Some(h), _) => h,
@@ -262,7 +265,7 @@ pub fn heights(
              its base); drawn flat",
             top - base
         ));
-        roof = RoofShape::Flat;
+        (roof, roof_tag) = (RoofShape::Flat, "flat");
         eaves = top;
     }
     let roof_direction = match tag(tags, "roof:direction") {
@@ -283,6 +286,7 @@ pub fn heights(
         eaves,
         top,
         roof,
+        roof_tag,
         roof_direction,
         across,
     }
@@ -407,7 +411,7 @@ mod tests {
         ] {
             let (h, assumptions, warnings) =
                 heights_of(json!({"height": 12, "roof:shape": name, "roof:height": 4}));
-            assert_eq!(h.roof, shape, "{name}");
+            assert_eq!((h.roof, h.roof_tag), (shape, name));
             assert!(warnings.is_empty(), "{name}: {warnings:?}");
             // The conventions: `roof:height` is the part of `height` that is roof.
             let rise = if shape == RoofShape::Flat { 0.0 } else { 4.0 };
