@@ -246,7 +246,8 @@ fn sphere_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<Sit
 /// The rim of the upper half of a spheroid (equator `radius`, crown `height` above it) seen
 /// from `eye`. Stretching heights by radius / height about the equator's plane turns the
 /// spheroid into a sphere; an affine map keeps lines of sight lines and tangency tangency,
-/// so the rim is the sphere's rim seen from the stretched eye, squeezed back.
+/// so the rim is the sphere's rim seen from the stretched eye, squeezed back. A dome too
+/// flat to stretch (no height, or so little that the stretch overflows) has no rim.
 fn spheroid_dome_rim(
     centre: Point3<f64>,
     radius: f64,
@@ -254,6 +255,9 @@ fn spheroid_dome_rim(
     eye: &Point3<f64>,
 ) -> Option<SiteCurve> {
     let stretch = radius / height;
+    if !(height > 0.0 && stretch.is_finite()) {
+        return None;
+    }
     let stretched_eye = Point3::new(eye.x, eye.y, centre.z + (eye.z - centre.z) * stretch);
     let squeeze = |v: Vector3<f64>| Vector3::new(v.x, v.y, v.z / stretch);
     match dome_rim(centre, radius, &stretched_eye)? {
@@ -391,6 +395,13 @@ mod tests {
             spheroid_dome_rim(centre, 2.0, 2.0, &eye),
             dome_rim(centre, 2.0, &eye)
         );
+        // No rim (rather than one of NaNs) for a dome of no height, or one so low that
+        // stretching it to a sphere overflows, even seen from its equator's plane.
+        for height in [0.0, 1e-320, -1.0, f64::NAN] {
+            for eye in [Point3::new(20.0, -7.0, 3.0), Point3::new(20.0, -7.0, 4.5)] {
+                assert_eq!(spheroid_dome_rim(centre, r, height, &eye), None, "{height}");
+            }
+        }
     }
 
     #[test]

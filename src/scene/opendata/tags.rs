@@ -21,6 +21,11 @@ pub const DEFAULT_LEVELS: f64 = 2.0;
 /// levels: one storey. Our own choice, listed as an assumption.
 pub const DEFAULT_ROOF_STOREYS: f64 = 1.0;
 
+/// The least rise (metres) of a roof drawn as tagged, a millimetre: below it the roof is
+/// drawn flat with a warning, as its pitches, crown or rim would be lost in rounding (our
+/// own bound, far below anything a mapper measures).
+pub const MIN_ROOF_RISE: f64 = 1e-3;
+
 /// Width (metres) of one lane when a road's width comes from its `lanes`: 3 m (common
 /// practice for town streets; national design manuals give 2.75 to 3.65 m, from memory).
 pub const LANE_WIDTH: f64 = 3.0;
@@ -212,7 +217,7 @@ pub fn heights(
             }
         },
     };
-    let roof_rise = if roof == RoofShape::Flat {
+    let mut roof_rise = if roof == RoofShape::Flat {
         0.0
     } else if let Some(h) = roof_height {
         h
@@ -229,6 +234,11 @@ pub fn heights(
     if roof_rise == 0.0 {
         // `roof:height=0`: whatever its shape, a roof of no height is flat.
         (roof, roof_tag) = (RoofShape::Flat, "flat");
+    } else if roof_rise < MIN_ROOF_RISE {
+        warnings.push(format!(
+            "the roof ({roof_rise:e} m high) is lower than a millimetre; drawn flat"
+        ));
+        (roof, roof_tag, roof_rise) = (RoofShape::Flat, "flat", 0.0);
     }
     let base = match (min_height, min_level) {
         (Some(h), _) => h,
@@ -443,8 +453,29 @@ mod tests {
                 "{warnings:?}"
             );
         }
-        let (h, _, _) = heights_of(json!({"height": 9, "roof:shape": "dome", "roof:height": 0}));
+        let (h, _, warnings) =
+            heights_of(json!({"height": 9, "roof:shape": "dome", "roof:height": 0}));
         assert_eq!((h.roof, h.eaves), (RoofShape::Flat, 9.0));
+        assert!(warnings.is_empty(), "{warnings:?}");
+        // Under a millimetre (here a subnormal number): flat, and said; a millimetre is
+        // drawn as tagged.
+        for rise in ["1e-320", "0.0009", "0.0009 m"] {
+            let (h, _, warnings) =
+                heights_of(json!({"height": 9, "roof:shape": "round", "roof:height": rise}));
+            assert_eq!(
+                (h.roof, h.roof_tag, h.eaves),
+                (RoofShape::Flat, "flat", 9.0)
+            );
+            assert_eq!(warnings.len(), 1, "{warnings:?}");
+            assert!(
+                warnings[0].contains("lower than a millimetre; drawn flat"),
+                "{warnings:?}"
+            );
+        }
+        let (h, _, warnings) =
+            heights_of(json!({"height": 9, "roof:shape": "cone", "roof:height": "0.001"}));
+        assert_eq!((h.roof, h.eaves), (RoofShape::Cone, 8.999));
+        assert!(warnings.is_empty(), "{warnings:?}");
         let (h, _, warnings) =
             heights_of(json!({"height": 3, "roof:shape": "gabled", "roof:height": 5}));
         assert_eq!(h.roof, RoofShape::Flat);
