@@ -347,10 +347,17 @@ fn build_barrel(b: &mut ItemBuilder, barrel: &BarrelPlan, top: f64, rise: f64) {
     });
 }
 
+/// The least share of its footprint the circle under a dome or cone must cover: a tenth.
+/// A square's inscribed circle covers pi / 4 of it, a rectangle n times as long as wide
+/// pi / 4n; below a tenth (longer than about 8 to 1) the roof would be a needle or a
+/// spike standing on a sliver of the roof, which a mapper hardly meant (our own bound).
+const MIN_CIRCLE_COVER: f64 = 0.1;
+
 /// The circle a round roof stands on: the largest circle inside the footprint (its centre
 /// midway along the line of centres when there are many, as in a long rectangle), as a
-/// dome stands on its drum; the rest of the roof stays flat at the eaves.
-/// `roof` is the shape as tagged, for messages.
+/// dome stands on its drum; the rest of the roof stays flat at the eaves. Refused when it
+/// covers less than [`MIN_CIRCLE_COVER`] of the footprint. `roof` is the shape as tagged,
+/// for messages.
 fn inscribed_circle(ring: &[Vector2<f64>], roof: &str) -> Result<(Vector2<f64>, f64), String> {
     let plan = roof_corners(ring, roof)?;
     if !is_convex(&plan) {
@@ -359,6 +366,17 @@ fn inscribed_circle(ring: &[Vector2<f64>], roof: &str) -> Result<(Vector2<f64>, 
     let (radius, centres) = deepest_piece(&plan, &vec![true; plan.len()]);
     if radius <= 0.0 || centres.is_empty() {
         return Err("the footprint has no room for a round roof".to_owned());
+    }
+    let cover = std::f64::consts::PI * radius * radius
+        / (0.5 * super::super::items::twice_signed_area(&plan));
+    if cover < MIN_CIRCLE_COVER {
+        return Err(format!(
+            "roof:shape={roof} stands on the largest circle inside the footprint, {:.2} m \
+             across, which covers {:.1} % of it (less than {} %): too thin a footprint",
+            2.0 * radius,
+            100.0 * cover,
+            100.0 * MIN_CIRCLE_COVER
+        ));
     }
     // The two centres farthest apart: the ends of the line of centres, or one point.
     let mut ends = (centres[0], centres[0]);
@@ -422,7 +440,7 @@ fn deepest_piece(plan: &[Vector2<f64>], sloped: &[bool]) -> (f64, Vec<Vector2<f6
 #[cfg(test)]
 mod tests {
     use super::super::super::build::Placement;
-    use super::super::super::site::Site;
+    use super::super::super::site::{Site, SiteCurve};
     use super::super::tags::ROOF_SHAPES;
     use super::*;
 
@@ -567,6 +585,41 @@ mod tests {
         let (centre, radius) = inscribed_circle(&round, "dome").unwrap();
         assert!((centre - Vector2::new(3.0, -2.0)).norm() < 1e-6);
         assert!((radius - 8.0 * (std::f64::consts::PI / 24.0).cos()).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_dome_or_cone_on_a_sliver_of_a_footprint_is_refused() {
+        // An 8 x 1 rectangle's circle covers pi / 32 = 9.8 % of it; a 7 x 1 one's pi / 28 =
+        // 11.2 %, and a 10 m x 1 um one's 0.00001 %.
+        let refusal = inscribed_circle(&rectangle(8.0, 1.0), "cone").unwrap_err();
+        assert_eq!(
+            refusal,
+            "roof:shape=cone stands on the largest circle inside the footprint, 1.00 m \
+             across, which covers 9.8 % of it (less than 10 %): too thin a footprint"
+        );
+        assert!(inscribed_circle(&rectangle(10.0, 1e-6), "dome").is_err());
+        let (_, radius) = inscribed_circle(&rectangle(7.0, 1.0), "dome").unwrap();
+        assert!((radius - 0.5).abs() < 1e-9);
+        // Drawn flat, and said.
+        let mut site = Site::default();
+        let id = site.add_item("building", None);
+        let mut b = ItemBuilder::new(&mut site, id, Placement::in_unit(1.0));
+        let warnings = build_building(
+            &mut b,
+            &[rectangle(10.0, 0.5)],
+            &heights(RoofShape::Dome),
+            0.0,
+            0.0,
+        )
+        .unwrap();
+        assert!(
+            warnings.len() == 1 && warnings[0].ends_with("too thin a footprint; drawn flat"),
+            "{warnings:?}"
+        );
+        assert!(site.edges.iter().all(|e| matches!(
+            e.curve,
+            SiteCurve::Segment { start, end } if start.z.max(end.z) <= 6.0
+        )));
     }
 
     #[test]
