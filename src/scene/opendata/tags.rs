@@ -457,6 +457,10 @@ mod tests {
             heights_of(json!({"height": 9, "roof:shape": "dome", "roof:height": 0}));
         assert_eq!((h.roof, h.eaves), (RoofShape::Flat, 9.0));
         assert!(warnings.is_empty(), "{warnings:?}");
+        let (h, _, warnings) =
+            heights_of(json!({"height": 9, "roof:shape": "hipped", "roof:levels": "0"}));
+        assert_eq!((h.roof, h.eaves), (RoofShape::Flat, 9.0));
+        assert!(warnings.is_empty(), "{warnings:?}");
         // Under a millimetre (here a subnormal number): flat, and said; a millimetre is
         // drawn as tagged.
         for rise in ["1e-320", "0.0009", "0.0009 m"] {
