@@ -18,8 +18,9 @@ pub fn dashed(lines: &PolylineSet, on: f64, off: f64) -> PolylineSet {
         for pair in line.windows(2) {
             let (a, b) = (pair[0], pair[1]);
             let length = ((b.x - a.x).powi(2) + (b.y - a.y).powi(2)).sqrt();
+            // Only called inside the walk below, where 0 <= walked < length: never 0 / 0.
             let at = |s: f64| {
-                let f = if length > 0.0 { s / length } else { 0.0 };
+                let f = s / length;
                 ImagePoint::new(a.x + (b.x - a.x) * f, a.y + (b.y - a.y) * f)
             };
             let mut walked = 0.0;
@@ -80,5 +81,28 @@ mod tests {
             ]
         );
         assert_eq!(dashes.len(), 2);
+    }
+
+    #[test]
+    fn a_repeated_point_adds_nothing() {
+        // A segment of no length (a polyline that stops twice at one point) is walked past:
+        // the same dashes as without it, no point that is not a number.
+        let with_repeat = |points: &[(f64, f64)]| {
+            let mut lines = PolylineSet::new();
+            let points: Vec<ImagePoint> =
+                points.iter().map(|&(x, y)| ImagePoint::new(x, y)).collect();
+            lines.push(&points);
+            dashed(&lines, 6.0, 4.0)
+        };
+        let plain = with_repeat(&[(0.0, 0.0), (25.0, 0.0)]);
+        let repeated = with_repeat(&[(0.0, 0.0), (8.0, 0.0), (8.0, 0.0), (25.0, 0.0)]);
+        let ends = |set: &PolylineSet| -> Vec<(f64, f64)> {
+            set.iter().map(|d| (d[0].x, d[d.len() - 1].x)).collect()
+        };
+        assert_eq!(ends(&repeated), ends(&plain));
+        assert!(repeated
+            .iter()
+            .flatten()
+            .all(|p| p.x.is_finite() && p.y.is_finite()));
     }
 }
