@@ -230,16 +230,7 @@ fn add_mesh_on_cores(
 ) -> MeshStats {
     let two_cores = obj.faces.len() >= parallel_from;
     let positions = place(&obj.positions, placement);
-    let mut used = vec![false; positions.len()];
-    let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
-    for &i in obj
-        .corners
-        .iter()
-        .chain(&obj.line_points)
-        .chain(hole_points)
-    {
-        used[i as usize] = true;
-    }
+    let used = used_positions(obj);
     let (weld, vertices) = weld(&positions, &used, two_cores);
     drop(used);
     let points = representatives(positions, &weld, vertices);
@@ -992,10 +983,10 @@ fn file_says_smooth(
     }
 }
 
-/// The positions a mesh's faces, holes and lines use, placed in the site frame.
-pub fn placed_used_positions(obj: &ObjFile, placement: &MeshPlacement) -> Vec<Point3<f64>> {
-    let placed = place(&obj.positions, placement);
-    let mut used = vec![false; placed.len()];
+/// Which of the file's positions its faces, holes and lines use (a stray vertex is not part
+/// of the model: it neither widens the weld's tolerance nor stands on the ground).
+fn used_positions(obj: &ObjFile) -> Vec<bool> {
+    let mut used = vec![false; obj.positions.len()];
     let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
     for &i in obj
         .corners
@@ -1005,9 +996,14 @@ pub fn placed_used_positions(obj: &ObjFile, placement: &MeshPlacement) -> Vec<Po
     {
         used[i as usize] = true;
     }
-    placed
+    used
+}
+
+/// The positions a mesh's faces, holes and lines use, placed in the site frame.
+pub fn placed_used_positions(obj: &ObjFile, placement: &MeshPlacement) -> Vec<Point3<f64>> {
+    place(&obj.positions, placement)
         .into_iter()
-        .zip(used)
+        .zip(used_positions(obj))
         .filter_map(|(p, used)| used.then_some(p))
         .collect()
 }
