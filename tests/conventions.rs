@@ -418,7 +418,7 @@ fn at_on_a_slope_stands_the_eye_on_the_ground_there() {
         "hill.ron",
         "Scene(\n\
          ground: (spots: [(-40, -20, 0), (40, -20, 0), (-40, 60, 6), (40, 60, 6)]),\n\
-         standpoints: [(name: \"foot\", x: 0, y: -10)],\n\
+         standpoints: [(name: \"foot\", x: 0, y: -10), (name: \"terrace\", x: 5, y: 0, ground: 7)],\n\
          items: [Point(label: \"mark\", at: (0, 40, 10))])",
     );
     let elevation = |args: &[&str]| {
@@ -443,4 +443,7 @@ fn at_on_a_slope_stands_the_eye_on_the_ground_there() {
             seen_from(3.0, 20.0)
         );
     }
+    // A standpoint with its own ground (a terrace 7 m up) keeps it when moved.
+    let found = elevation(&["-s", "terrace", "--at", "0,20"]);
+    assert!((found - seen_from(7.0, 20.0)).abs() < 6e-4, "{found}");
 }

@@ -853,6 +853,23 @@ fn a_standpoint_moved_on_a_hill_stands_on_its_ground() {
     let moved = underlay("");
     assert_eq!(moved, underlay(&format!("&ground={ground}")));
     assert_ne!(moved, underlay("&ground=0"));
+    // Kept without a ground, it is written without one and stands on the slope when read
+    // again; kept with its own (even 0, a cellar's floor), that is written and kept.
+    let (token, origin) = (explorer.token().to_owned(), own_origin(&explorer));
+    for (name, extra, expected) in [
+        ("on the slope", "", ground),
+        ("in the cellar", r#","ground":0"#, 0.0),
+    ] {
+        let body = format!(r#"{{"name":"{name}","x":{x},"y":{y}{extra}}}"#);
+        let answer = post(&explorer, "/keep", Some(&token), Some(&origin), &body);
+        assert_eq!(answer.status, 200, "{}", answer.text());
+        let text = std::fs::read_to_string(&scene).unwrap();
+        let line = text.lines().find(|l| l.contains(name)).unwrap();
+        assert_eq!(line.contains("ground:"), !extra.is_empty(), "{line}");
+        let site = pansite::scene::load_scene(&scene).unwrap();
+        assert_eq!(site.standpoint(name).unwrap().ground, expected, "{name}");
+    }
+    explorer.stop();
 }
 
 #[test]

@@ -593,9 +593,12 @@ fn the_page_in_chromium() {
         asked["pitch"],
         0.0,
     );
-    // Dragged, the page sends no ground: the server stands the viewer on the scene's.
-    assert!(!asked.contains_key("ground"), "{shown_look}");
-    looking.ground = pansite::scene::ground_height(&site, asked["x"], asked["y"]);
+    // Dragged, the page sends the standpoint's own ground if it has one; if not, none, and
+    // the server stands the viewer on the scene's.
+    looking.ground = asked
+        .get("ground")
+        .copied()
+        .unwrap_or_else(|| pansite::scene::ground_height(&site, asked["x"], asked["y"]));
     // The pane's line weight and tolerance are the server's (src/explore/server.rs).
     let preview = pansite::compose::preview(
         &site,

@@ -18,7 +18,7 @@ pub fn dashed(lines: &PolylineSet, on: f64, off: f64) -> PolylineSet {
         for pair in line.windows(2) {
             let (a, b) = (pair[0], pair[1]);
             let length = ((b.x - a.x).powi(2) + (b.y - a.y).powi(2)).sqrt();
-            // Only called inside the walk below, where 0 <= walked < length: never 0 / 0.
+            // Only called inside the walk below, at 0 < walked <= length: never 0 / 0.
             let at = |s: f64| {
                 let f = s / length;
                 ImagePoint::new(a.x + (b.x - a.x) * f, a.y + (b.y - a.y) * f)

@@ -42,7 +42,9 @@ pub fn standpoint_entry(standpoint: &Standpoint, metres_per_unit: f64) -> Result
         length(standpoint.x),
         length(standpoint.y)
     );
-    if standpoint.ground != 0.0 {
+    // Its own ground only: one found under it is found again when the scene is read, and
+    // follows the scene's ground if that is edited.
+    if standpoint.own_ground {
         entry += &format!(", ground: {}", length(standpoint.ground));
     }
     entry += &format!(

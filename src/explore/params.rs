@@ -250,15 +250,14 @@ pub fn standpoint(
     let reach = (-MAX_POSITION_M, MAX_POSITION_M);
     let x = p.number("x", reach, None)?;
     let y = p.number("y", reach, None)?;
-    let ground = match p.optional_number("ground", (-MAX_GROUND_M, MAX_GROUND_M))? {
-        Some(ground) => ground,
-        None => ground_under(x, y),
-    };
+    let own_ground = p.optional_number("ground", (-MAX_GROUND_M, MAX_GROUND_M))?;
+    let ground = own_ground.unwrap_or_else(|| ground_under(x, y));
     let eye = p.number("eye", (0.0, MAX_EYE_HEIGHT_M), Some(1.6))?;
     let heading = p.number("heading", (-720.0, 720.0), Some(0.0))?;
     let pitch = p.number("pitch", (-90.0, 90.0), Some(0.0))?;
     let mut standpoint = Standpoint::from_degrees("explorer", x, y, eye, heading, pitch, 0.0);
     standpoint.ground = ground;
+    standpoint.own_ground = own_ground.is_some();
     Ok(standpoint)
 }
 
@@ -409,11 +408,12 @@ mod tests {
         let slope = |x: f64, _y: f64| x / 10.0;
         let mut p = params("/u?x=20&y=3");
         let s = standpoint(&mut p, &slope).unwrap();
-        assert_eq!((s.ground, s.eye().z), (2.0, 3.6));
+        assert_eq!((s.ground, s.eye().z, s.own_ground), (2.0, 3.6, false));
         assert!(p.finish().is_ok());
         // Given, it is kept (a balcony over the slope), and checked like any number.
         let mut p = params("/u?x=20&y=3&ground=14");
-        assert_eq!(standpoint(&mut p, &slope).unwrap().ground, 14.0);
+        let s = standpoint(&mut p, &slope).unwrap();
+        assert_eq!((s.ground, s.own_ground), (14.0, true));
         let mut p = params("/u?x=20&y=3&ground=NaN");
         assert!(standpoint(&mut p, &slope).unwrap_err().contains("'ground'"));
     }

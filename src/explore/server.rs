@@ -838,6 +838,7 @@ fn scene_json(shared: &Shared) -> serde_json::Value {
                 "x": s.x,
                 "y": s.y,
                 "ground": s.ground,
+                "own_ground": s.own_ground,
                 "eye": s.eye_height,
                 "heading": s.heading.to_degrees(),
                 "pitch": s.pitch.to_degrees(),
@@ -945,13 +946,12 @@ fn keep(shared: &Shared, (mut p, name): (Params, Option<String>)) -> (u16, serde
     if let Some(reason) = shared.source.no_keep_reason() {
         return refuse(409, format!("keeping standpoints is off: {reason}"));
     }
-    // A standpoint sent without its own ground is written without one (0 is not written),
-    // so the scene stands it on its ground when read, as it does every such standpoint.
-    let standpoint =
-        match params::standpoint(&mut p, &|_, _| 0.0).and_then(|s| p.finish().map(|_| s)) {
-            Ok(s) => s,
-            Err(message) => return refuse(400, message),
-        };
+    let standpoint = match params::standpoint(&mut p, &ground_under(shared))
+        .and_then(|s| p.finish().map(|_| s))
+    {
+        Ok(s) => s,
+        Err(message) => return refuse(400, message),
+    };
     let standpoint = Standpoint {
         name: name.unwrap_or_default(),
         ..standpoint

@@ -618,6 +618,7 @@ fn standpoint(
             Some(ground) => ground.0 * unit,
             None => super::ground::ground_height(site, x, y),
         },
+        own_ground: spec.ground.is_some(),
         eye_height,
         heading: spec.heading.0.to_radians(),
         pitch: spec.pitch.0.to_radians(),

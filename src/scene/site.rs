@@ -20,6 +20,10 @@ pub struct Standpoint {
     pub y: f64,
     /// Height of the ground under the viewer, metres.
     pub ground: f64,
+    /// Whether that height is the standpoint's own (written in the scene or sent with it: a
+    /// balcony, a raised floor) rather than the scene's ground found under it. Moved, a
+    /// standpoint keeps its own ground, and otherwise stands on the scene's where it goes.
+    pub own_ground: bool,
     /// Eye height above that ground, metres.
     pub eye_height: f64,
     /// Azimuth at the centre of the image, radians clockwise from north.
@@ -46,6 +50,7 @@ impl Standpoint {
             x,
             y,
             ground: 0.0,
+            own_ground: false,
             eye_height,
             heading: heading_deg.to_radians(),
             pitch: pitch_deg.to_radians(),

@@ -7,7 +7,7 @@ const pageId = Math.random().toString(36).slice(2, 10);
 const $ = (id) => document.getElementById(id);
 
 // Where the viewer stands and looks (metres, degrees), and what is drawn.
-const view = { x: 0, y: 0, ground: 0, eye: 1.6, heading: 0, pitch: 0 };
+const view = { x: 0, y: 0, ground: null, eye: 1.6, heading: 0, pitch: 0 };
 const look = { azimuth: 0, pitch: 0 };
 let scene = null;
 let plan = null; // { image, pxPerMetre, originX, originY }
@@ -25,15 +25,15 @@ function round(v, places) {
   return Math.round(v * k) / k;
 }
 
-// The ground under the viewer: a chosen standpoint's own; after a move none is sent, and the
-// server stands the viewer on the scene's ground there (down a hill, the eye follows it).
+// The ground under the viewer: a standpoint's own (a balcony, a raised floor), kept as it
+// moves; for any other none is sent, and the server stands the viewer on the scene's ground
+// wherever it goes (down a hill, the eye follows it).
 function groundQuery() {
   return view.ground === null ? "" : `&ground=${round(view.ground, 3)}`;
 }
 
 function moveTo(x, y) {
   [view.x, view.y] = [x, y];
-  view.ground = null;
 }
 
 function standpointQuery(heading, pitch) {
@@ -506,7 +506,8 @@ async function loadScene(first) {
 
 function choose(index) {
   const s = scene.standpoints[index];
-  Object.assign(view, { x: s.x, y: s.y, ground: s.ground, eye: s.eye, heading: s.heading, pitch: s.pitch });
+  Object.assign(view, { x: s.x, y: s.y, ground: s.own_ground ? s.ground : null, eye: s.eye,
+    heading: s.heading, pitch: s.pitch });
   look.azimuth = s.heading;
   look.pitch = s.pitch;
 }

@@ -143,12 +143,15 @@ pub fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> 
             .cloned()
             .ok_or(Error::NoStandpoint)?,
     };
-    // Moved or made by `--at`: standing on the scene's ground there (level scenes: 0), as a
-    // standpoint written in the scene without its own `ground` does.
+    // Moved or made by `--at`: a standpoint with its own `ground` (a balcony, a raised
+    // floor) keeps it; any other stands on the scene's ground there (level scenes: 0), as a
+    // standpoint written in the scene without a `ground` does.
     if let Some((x, y)) = at {
         standpoint.x = x;
         standpoint.y = y;
-        standpoint.ground = pansite::scene::ground_height(site, x, y);
+        if !standpoint.own_ground {
+            standpoint.ground = pansite::scene::ground_height(site, x, y);
+        }
     }
     if let Some(eye_height) = args.eye_height {
         standpoint.eye_height = eye_height;
