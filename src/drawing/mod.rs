@@ -277,6 +277,9 @@ mod tests {
         assert_near(layer.stroke.opacity, 0.4);
         assert_near(layer.stroke.width_px, 1.5);
         assert_near(hidden_layer(PolylineSet::new(), 0.5).stroke.width_px, 0.75);
+        // At a weight of 2 doubling and adding 2 agree; 1 and 3 tell them apart.
         assert_eq!(hidden_dash_px(2.0), (9.0, 6.0));
+        assert_eq!(hidden_dash_px(1.0), (6.0, 4.0));
+        assert_eq!(hidden_dash_px(3.0), (12.0, 8.0));
     }
 }
