@@ -446,4 +446,21 @@ fn at_on_a_slope_stands_the_eye_on_the_ground_there() {
     // A standpoint with its own ground (a terrace 7 m up) keeps it when moved.
     let found = elevation(&["-s", "terrace", "--at", "0,20"]);
     assert!((found - seen_from(7.0, 20.0)).abs() < 6e-4, "{found}");
+    // Past the ground's edge (x beyond 40) it stands at 0, and `render` says so, as it does
+    // for a standpoint written there; on the ground, nothing is said.
+    let warning = |at: &str| {
+        let out = succeeds(
+            &dir,
+            &[
+                "render", "hill.ron", "--at", at, "--size", "256x128", "-o", "o.png",
+            ],
+        );
+        common::stderr(&out)
+    };
+    let off = warning("60,20");
+    assert!(
+        off.contains("does not reach standpoint \"here\" at (60.00, 20.00)"),
+        "{off}"
+    );
+    assert!(!warning("0,20").contains("does not reach"));
 }

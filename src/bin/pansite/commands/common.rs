@@ -168,6 +168,19 @@ pub fn choose_view(site: &Site, args: &ViewArgs) -> pansite::Result<Standpoint> 
     Ok(standpoint)
 }
 
+/// A warning for a standpoint made or moved by `--at` past the edge of the scene's ground,
+/// as a standpoint written there gets one (the ground's own check sees only those).
+pub fn off_the_ground(site: &Site, standpoint: &Standpoint) -> Option<String> {
+    let ground = site.ground.as_ref()?;
+    let off = !standpoint.own_ground && ground.height_at(standpoint.x, standpoint.y).is_none();
+    off.then(|| {
+        format!(
+            "the ground does not reach standpoint {:?} at ({:.2}, {:.2}): it stands at height {:.2} there",
+            standpoint.name, standpoint.x, standpoint.y, standpoint.ground
+        )
+    })
+}
+
 /// The format asked for, or the one the output's extension names (PNG for standard output
 /// and files without an extension).
 pub fn output_format(output: &Path, asked: Option<FormatArg>) -> pansite::Result<FormatArg> {

@@ -1,8 +1,8 @@
 //! `pansite render`: draw a scene from a standpoint, as a panorama or laid out on paper.
 
 use super::common::{
-    check_lettering, choose_view, create_parent, default_output, is_standard_stream, output_format,
-    output_paths, read_site, write_sheets, write_stdout,
+    check_lettering, choose_view, create_parent, default_output, is_standard_stream,
+    off_the_ground, output_format, output_paths, read_site, write_sheets, write_stdout,
 };
 use super::settings::{page_settings, render_settings};
 use crate::args::{FormatArg, RenderArgs};
@@ -81,6 +81,9 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
         }
         for (item, message) in &site.warnings {
             eprintln!("pansite: warning: {} {message}", site.describe_item(*item));
+        }
+        if let Some(warning) = off_the_ground(&site, &standpoint) {
+            eprintln!("pansite: warning: {warning}");
         }
         for note in &render.notes {
             eprintln!("pansite: warning: {note}");
