@@ -122,10 +122,22 @@ mod tests {
         let mut dot = PolylineSet::new();
         dot.move_to(ImagePoint::new(1.0, 1.0));
         assert_eq!(dot.segment_indices().collect::<Vec<_>>(), vec![(0, 0)]);
+        // A dot after a line: a stroke of its own point, wherever it starts.
+        dot.push(&[ImagePoint::new(2.0, 2.0), ImagePoint::new(3.0, 2.0)]);
+        dot.move_to(ImagePoint::new(4.0, 4.0));
+        let strokes: Vec<_> = dot.segment_indices().collect();
+        assert_eq!(strokes, vec![(0, 0), (1, 2), (3, 3)]);
         let mut more = PolylineSet::new();
+        assert!(more.is_empty() && more.last().is_none());
         more.push(&[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)]);
+        assert!(!more.is_empty());
+        assert_eq!(set.last(), Some(&lines[1][..]));
         set.append(&mut more);
         assert!(more.is_empty());
+        assert_eq!(
+            set.last(),
+            Some(&[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)][..])
+        );
         let lines: Vec<_> = set.iter().collect();
         assert_eq!(lines.len(), 3);
         assert_eq!(
