@@ -131,7 +131,7 @@ mod tests {
         assert!(more.is_empty() && more.last().is_none());
         more.push(&[ImagePoint::new(9.0, 9.0), ImagePoint::new(8.0, 8.0)]);
         assert!(!more.is_empty());
-        assert_eq!(set.last(), Some(&lines[1][..]));
+        assert_eq!(set.last(), Some(lines[1]));
         set.append(&mut more);
         assert!(more.is_empty());
         assert_eq!(
