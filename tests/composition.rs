@@ -469,6 +469,30 @@ impl Drop for Child {
     }
 }
 
+/// `pansite watch` started in `dir` with `args` (at 512x256, looking every 20 ms), and its
+/// standard error read line by line; the child is stopped when dropped.
+fn watching(dir: &Scratch, args: &[&str]) -> (Child, Lines) {
+    let mut child = Child(
+        dir.command()
+            .args(args)
+            .args(["--size", "512x256", "--interval", "20"])
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap(),
+    );
+    let stderr = child.0.stderr.take().unwrap();
+    let (send, receive) = mpsc::channel();
+    std::thread::spawn(move || {
+        for line in BufReader::new(stderr).lines().map_while(Result::ok) {
+            if send.send(line).is_err() {
+                break;
+            }
+        }
+    });
+    (child, Lines(receive, Vec::new()))
+}
+
 /// Saves as careful editors do (a temporary file renamed over the scene), so the watcher
 /// never reads a half-written file.
 fn save(path: &Path, text: impl AsRef<[u8]>) {
@@ -484,33 +508,7 @@ fn watch_renders_again_on_save_and_keeps_the_last_good_output() {
     let starter = pansite::scene::STARTER_SCENE;
     save(&scene, starter);
     let output = dir.0.join("out.png");
-    let mut child = Child(
-        dir.command()
-            .args([
-                "watch",
-                "scene.ron",
-                "-o",
-                "out.png",
-                "--size",
-                "512x256",
-                "--interval",
-                "20",
-            ])
-            .stdout(Stdio::null())
-            .stderr(Stdio::piped())
-            .spawn()
-            .unwrap(),
-    );
-    let stderr = child.0.stderr.take().unwrap();
-    let (send, receive) = mpsc::channel();
-    std::thread::spawn(move || {
-        for line in BufReader::new(stderr).lines().map_while(Result::ok) {
-            if send.send(line).is_err() {
-                break;
-            }
-        }
-    });
-    let mut lines = Lines(receive, Vec::new());
+    let (_child, mut lines) = watching(&dir, &["watch", "scene.ron", "-o", "out.png"]);
     let timeout = Duration::from_secs(30);
     let first = lines.wait_for("first render", timeout);
     assert!(first.contains("rendered in"), "{first}");
@@ -571,31 +569,10 @@ fn watch_renders_again_when_a_model_changes() {
         "Scene(standpoints: [(name: \"gate\", x: 1, y: -8)], items: [\n\
          Model(file: \"shed.obj\", at: (0, 0, 0), up: Z)])",
     );
-    let start = |args: &[&str]| {
-        let mut child = Child(
-            dir.command()
-                .args(args)
-                .args(["--size", "512x256", "--interval", "20"])
-                .stdout(Stdio::null())
-                .stderr(Stdio::piped())
-                .spawn()
-                .unwrap(),
-        );
-        let stderr = child.0.stderr.take().unwrap();
-        let (send, receive) = mpsc::channel();
-        std::thread::spawn(move || {
-            for line in BufReader::new(stderr).lines().map_while(Result::ok) {
-                if send.send(line).is_err() {
-                    break;
-                }
-            }
-        });
-        (child, Lines(receive, Vec::new()))
-    };
     let timeout = Duration::from_secs(30);
     let output = dir.0.join("out.png");
     {
-        let (_child, mut lines) = start(&["watch", "yard.ron", "-o", "out.png"]);
+        let (_child, mut lines) = watching(&dir, &["watch", "yard.ron", "-o", "out.png"]);
         let first = lines.wait_for("first render", timeout);
         assert!(first.contains("12 edges"), "{first}");
         let first_png = std::fs::read(&output).unwrap();
@@ -617,16 +594,19 @@ fn watch_renders_again_when_a_model_changes() {
     }
     // The model given directly.
     save(&model, cube(0.0));
-    let (_child, mut lines) = start(&[
-        "watch",
-        "shed.obj",
-        "--up",
-        "z",
-        "--at",
-        "1,-8",
-        "-o",
-        "direct.png",
-    ]);
+    let (_child, mut lines) = watching(
+        &dir,
+        &[
+            "watch",
+            "shed.obj",
+            "--up",
+            "z",
+            "--at",
+            "1,-8",
+            "-o",
+            "direct.png",
+        ],
+    );
     let first = lines.wait_for("first render", timeout);
     assert!(first.contains("12 edges"), "{first}");
     save(&model, cube(0.0) + &cube(5.0));

@@ -245,6 +245,21 @@ fn line_ends() -> Vec<([f64; 3], [f64; 3])> {
     ]
 }
 
+/// Eleven points along each of the short lines, where the eye and pose put them on an
+/// image of `size` (predicted without the view-frame code).
+fn line_samples(eye: [f64; 3], pose: (f64, f64, f64), size: (f64, f64)) -> Vec<(f64, f64)> {
+    line_ends()
+        .iter()
+        .flat_map(|(a, b)| {
+            (0..=10).map(move |k| {
+                let t = k as f64 / 10.0;
+                [0, 1, 2].map(|i| a[i] + t * (b[i] - a[i]))
+            })
+        })
+        .map(|p| predicted_pixel(eye, pose, p, size.0, size.1))
+        .collect()
+}
+
 /// The darkest grey level within `radius` pixels of an image point.
 fn darkest(grey: &[u8], width: u32, height: u32, at: (f64, f64), radius: f64) -> u8 {
     let mut dark = 255;
@@ -269,22 +284,7 @@ fn render_draws_each_line_where_the_pose_sends_it() {
     dir.write("scene.ron", LINES);
     let (w, h) = (1440.0, 720.0);
     let eye = [0.0, 0.0, 1.5];
-    let samples = |pose: (f64, f64, f64)| -> Vec<(f64, f64)> {
-        line_ends()
-            .iter()
-            .flat_map(|(a, b)| {
-                (0..=10).map(move |k| {
-                    let t = k as f64 / 10.0;
-                    [
-                        a[0] + t * (b[0] - a[0]),
-                        a[1] + t * (b[1] - a[1]),
-                        a[2] + t * (b[2] - a[2]),
-                    ]
-                })
-            })
-            .map(|p| predicted_pixel(eye, pose, p, w, h))
-            .collect()
-    };
+    let samples = |pose: (f64, f64, f64)| line_samples(eye, pose, (w, h));
     let mut controls = 0;
     for pose in POSES.into_iter().skip(1) {
         let (heading, pitch, roll) = (pose.0.to_string(), pose.1.to_string(), pose.2.to_string());
@@ -349,18 +349,7 @@ fn render_draws_each_line_from_the_eye_the_options_put_there() {
     let dir = Scratch::new("conventions-render-eye");
     dir.write("scene.ron", LINES);
     let (w, h) = (1440.0, 720.0);
-    let samples = |eye: [f64; 3], pose: (f64, f64, f64)| -> Vec<(f64, f64)> {
-        line_ends()
-            .iter()
-            .flat_map(|(a, b)| {
-                (0..=10).map(move |k| {
-                    let t = k as f64 / 10.0;
-                    [0, 1, 2].map(|i| a[i] + t * (b[i] - a[i]))
-                })
-            })
-            .map(|p| predicted_pixel(eye, pose, p, w, h))
-            .collect()
-    };
+    let samples = |eye: [f64; 3], pose: (f64, f64, f64)| line_samples(eye, pose, (w, h));
     let mut controls = 0;
     for (at, eye_height, heading) in [("3,-2", 2.5, 30.0_f64), ("-1.5,4", 0.9, -75.0)] {
         let xy: Vec<f64> = at.split(',').map(|v| v.parse().unwrap()).collect();
