@@ -892,9 +892,8 @@ fn plane_height(x: f64, y: f64) -> f64 {
     1.0 + x / 20.0 + y / 5.0
 }
 
-/// The lowest point of an item's edges: segment ends, and the lowest point of each
-/// ellipse (its centre less the length of its axes' vertical parts, sqrt(u_z^2 + v_z^2)).
-fn lowest_point_of(site: &Site, label: &str) -> f64 {
+/// The curves of the edges of the item labelled `label`.
+fn curves_of<'a>(site: &'a Site, label: &str) -> impl Iterator<Item = SiteCurve> + 'a {
     let item = site
         .items
         .iter()
@@ -902,8 +901,15 @@ fn lowest_point_of(site: &Site, label: &str) -> f64 {
         .unwrap() as u32;
     site.edges
         .iter()
-        .filter(|e| e.item == ItemId(item))
-        .map(|e| match e.curve {
+        .filter(move |e| e.item == ItemId(item))
+        .map(|e| e.curve)
+}
+
+/// The lowest point of an item's edges: segment ends, and the lowest point of each
+/// ellipse (its centre less the length of its axes' vertical parts, sqrt(u_z^2 + v_z^2)).
+fn lowest_point_of(site: &Site, label: &str) -> f64 {
+    curves_of(site, label)
+        .map(|curve| match curve {
             SiteCurve::Segment { start, end } => start.z.min(end.z),
             SiteCurve::Ellipse { centre, u, v, .. } => centre.z - u.z.hypot(v.z),
         })
@@ -1029,15 +1035,8 @@ fn a_figure_car_or_tree_sunk_in_the_ground_is_refused_by_name() {
 
 /// The horizontal circles (rims) of the item labelled `label`, as (centre height, radius).
 fn level_circles_of(site: &Site, label: &str) -> Vec<(f64, f64)> {
-    let item = site
-        .items
-        .iter()
-        .position(|i| i.label.as_deref() == Some(label))
-        .unwrap() as u32;
-    site.edges
-        .iter()
-        .filter(|e| e.item == ItemId(item))
-        .filter_map(|e| match e.curve {
+    curves_of(site, label)
+        .filter_map(|curve| match curve {
             SiteCurve::Ellipse { centre, u, v, .. } if u.z == 0.0 && v.z == 0.0 => {
                 Some((centre.z, u.norm()))
             }
@@ -1049,16 +1048,10 @@ fn level_circles_of(site: &Site, label: &str) -> Vec<(f64, f64)> {
 /// The sloping ellipse arcs of the item labelled `label`: the line where it meets the
 /// ground.
 fn sloping_arcs_of(site: &Site, label: &str) -> Vec<SiteCurve> {
-    let item = site
-        .items
-        .iter()
-        .position(|i| i.label.as_deref() == Some(label))
-        .unwrap() as u32;
-    site.edges
-        .iter()
-        .filter(|e| e.item == ItemId(item))
-        .filter(|e| matches!(e.curve, SiteCurve::Ellipse { u, v, .. } if u.z != 0.0 || v.z != 0.0))
-        .map(|e| e.curve)
+    curves_of(site, label)
+        .filter(
+            |curve| matches!(curve, SiteCurve::Ellipse { u, v, .. } if u.z != 0.0 || v.z != 0.0),
+        )
         .collect()
 }
 

@@ -139,17 +139,16 @@ fn drum(
     upper
 }
 
+/// The level circle of `radius` about `centre` in facets, its first point repeated at the
+/// end: the rim a lid closes and a cone rises from.
+fn level_rim(centre: Point3<f64>, radius: f64) -> Vec<Point3<f64>> {
+    let (x, y) = (Vector3::x() * radius, Vector3::y() * radius);
+    ellipse_points(centre, x, y, 0.0, TAU, facet_count(TAU))
+}
+
 fn lid(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64) {
-    let count = facet_count(TAU);
-    let rim = ellipse_points(
-        centre,
-        Vector3::x() * radius,
-        Vector3::y() * radius,
-        0.0,
-        TAU,
-        count,
-    );
-    b.convex_face(&rim[..count]);
+    let rim = level_rim(centre, radius);
+    b.convex_face(&rim[..rim.len() - 1]);
 }
 
 /// A hemisphere on the circle of `radius` about `centre`.
@@ -194,14 +193,7 @@ pub fn cone(b: &mut ItemBuilder, centre: Point3<f64>, radius: f64, height: f64) 
         radius,
         height,
     });
-    let rim = ellipse_points(
-        centre,
-        Vector3::x() * radius,
-        Vector3::y() * radius,
-        0.0,
-        TAU,
-        facet_count(TAU),
-    );
+    let rim = level_rim(centre, radius);
     let apex = centre + Vector3::z() * height;
     b.strip(&rim, &vec![apex; rim.len()]);
 }
