@@ -451,6 +451,18 @@ fn pixel(azimuth: f64, elevation: f64, heading: f64, width: f64, height: f64) ->
     )
 }
 
+/// The site drawn from its first standpoint turned to `heading` degrees, on an image of
+/// `size` pixels.
+fn drawn_facing(site: &mut Site, heading: f64, size: (f64, f64)) -> pansite::render::Render {
+    site.standpoints[0].heading = heading.to_radians();
+    let settings = RenderSettings {
+        width: size.0 as u32,
+        height: size.1 as u32,
+        ..RenderSettings::default()
+    };
+    draw(site, &site.standpoints[0], &settings).unwrap()
+}
+
 /// The lines of the drawing's layer `name`.
 fn layer_lines<'a>(render: &'a pansite::render::Render, name: &str) -> Vec<&'a [ImagePoint]> {
     render
@@ -469,14 +481,8 @@ fn the_days_path_lies_where_another_solar_algorithm_puts_the_sun() {
     // where the June sun never is by day there.
     let mut site = pole_scene(0.0, r#"sun: (date: "2026-06-21", time: "15:00"),"#);
     let heading = 200.0;
-    site.standpoints[0].heading = f64::to_radians(heading);
     let (width, height) = (2048.0, 1024.0);
-    let settings = RenderSettings {
-        width: width as u32,
-        height: height as u32,
-        ..RenderSettings::default()
-    };
-    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let render = drawn_facing(&mut site, heading, (width, height));
     let drawn = layer_lines(&render, "sun path");
     // The independent path, a minute apart over the local day (2026-06-20 22:00 UT to
     // 2026-06-21 22:00 UT), cut where it dips under 5 degrees: refraction lower down is
@@ -536,14 +542,8 @@ fn the_season_paths_culminate_where_the_declinations_put_them() {
         r#"sun: (date: "2026-06-21", time: "15:00", seasons: true),"#,
     );
     let heading = 200.0;
-    site.standpoints[0].heading = f64::to_radians(heading);
     let (width, height) = (2048.0, 1024.0);
-    let settings = RenderSettings {
-        width: width as u32,
-        height: height as u32,
-        ..RenderSettings::default()
-    };
-    let render = draw(&site, &site.standpoints[0], &settings).unwrap();
+    let render = drawn_facing(&mut site, heading, (width, height));
     let seasons = layer_lines(&render, "sun paths of the solstices and equinox");
     // Where the paths cross the meridian (azimuth 180): the column of that azimuth.
     let (meridian_x, _) = pixel(180.0, 0.0, heading, width, height);
