@@ -126,37 +126,36 @@ pub fn draw(
     }
 }
 
+/// The labels a division of items may name: those of items with a straight edge, sorted,
+/// each once.
+pub fn dividable_labels(site: &Site) -> Vec<&str> {
+    let mut labels: Vec<&str> = site
+        .edges
+        .iter()
+        .filter(|e| matches!(e.curve, SiteCurve::Segment { .. }))
+        .filter_map(|e| site.items.get(e.item.0 as usize)?.label.as_deref())
+        .collect();
+    labels.sort_unstable();
+    labels.dedup();
+    labels
+}
+
 /// Checks that every division of items (`Division::Edges`) names an item with a straight
 /// edge: a label that matches nothing would otherwise draw nothing, silently.
 pub fn check_divisions(site: &Site, divisions: &[Division]) -> crate::error::Result<()> {
+    let labels = dividable_labels(site);
     for division in divisions {
         let Division::Edges { item, .. } = division else {
             continue;
         };
-        let found = site.edges.iter().any(|edge| {
-            matches!(edge.curve, SiteCurve::Segment { .. })
-                && label_matches(
-                    site.items
-                        .get(edge.item.0 as usize)
-                        .and_then(|i| i.label.as_deref()),
-                    item,
-                )
-        });
-        if !found {
-            let mut labels: Vec<&str> = site
-                .items
-                .iter()
-                .filter_map(|i| i.label.as_deref())
-                .collect();
-            labels.sort_unstable();
-            labels.dedup();
+        if !labels.iter().any(|&label| label_matches(Some(label), item)) {
             let known = if labels.is_empty() {
-                "the scene labels no item".to_owned()
+                "no labelled item has one".to_owned()
             } else {
                 let shown: Vec<String> =
                     labels.iter().take(12).map(|l| format!("\"{l}\"")).collect();
                 format!(
-                    "labelled items: {}{}",
+                    "labelled items that have: {}{}",
                     shown.join(", "),
                     if labels.len() > 12 { ", ..." } else { "" }
                 )

@@ -76,7 +76,7 @@ mod sun;
 mod table;
 mod vanishing;
 
-pub use divide::check_divisions;
+pub use divide::{check_divisions, dividable_labels};
 pub use settings::{AidSettings, DEFAULT_MERGE_DEG};
 pub use sun::{sun_layers, SunDrawing, SUN, SUN_HOURS, SUN_PATH, SUN_SEASONS};
 pub use table::{angle_table, to_csv, to_json, to_text, AngleRow, PagePlacement, TableChoice};

@@ -850,15 +850,8 @@ fn scene_json(shared: &Shared) -> serde_json::Value {
         .lock()
         .unwrap_or_else(|p| p.into_inner())
         .clone();
-    // The labels a division may name: items with a straight edge, as `render` checks.
-    let mut labels: Vec<&str> = site
-        .edges
-        .iter()
-        .filter(|e| matches!(e.curve, SiteCurve::Segment { .. }))
-        .filter_map(|e| site.items.get(e.item.0 as usize)?.label.as_deref())
-        .collect();
-    labels.sort_unstable();
-    labels.dedup();
+    // The labels a division may name, as `render` checks them.
+    let labels = crate::aids::dividable_labels(site);
     let sun = site
         .sun
         .as_ref()
