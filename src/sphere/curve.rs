@@ -384,6 +384,101 @@ mod tests {
         let expected = (-0.25f64).acos();
         assert!((roots.as_slice()[0] - expected).abs() < 1e-14);
         assert!((roots.as_slice()[1] - (TAU - expected)).abs() < 1e-14);
+        // Half the circle holds only the first.
+        let half = SphereCurve { t1: PI, ..circle };
+        assert_eq!(half.plane_crossings(&m).as_slice(), &roots.as_slice()[..1]);
+    }
+
+    #[test]
+    fn crossings_of_a_tilted_plane_satisfy_the_equation() {
+        // Both A and B non-zero, A not 2 (so hypot(A, B) differs from A + A and from
+        // A^2 - B^2 and the like): roots checked against m . P(t) = 0 directly.
+        let circle = SphereCurve::ellipse_arc(
+            v(0.5, 3.0, 0.2),
+            v(2.0, 0.0, 0.0),
+            v(0.0, 0.0, 1.5),
+            0.0,
+            TAU,
+        );
+        let m = v(1.0, 0.3, -0.8);
+        let roots = circle.plane_crossings(&m);
+        assert_eq!(roots.as_slice().len(), 2);
+        for &t in roots.as_slice() {
+            assert!(m.dot(&circle.position(t)).abs() < 1e-14, "root {t}");
+        }
+    }
+
+    #[test]
+    fn a_plane_the_curve_misses_or_touches() {
+        // P(t) = (cos t - 1, sin t, 0): x = cos t - 1 touches x = 0 at t = 0 only.
+        let circle = SphereCurve::ellipse_arc(
+            v(-1.0, 0.0, 0.0),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 1.0, 0.0),
+            -1.0,
+            2.0,
+        );
+        assert_eq!(circle.plane_crossings(&v(1.0, 0.0, 0.0)).as_slice(), &[0.0]);
+        // x = cos t - 1 never reaches 0.5: no crossing, not a tangency at the nearest point.
+        let shifted = SphereCurve::ellipse_arc(
+            v(-1.5, 0.0, 0.0),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 1.0, 0.0),
+            -1.0,
+            2.0,
+        );
+        assert!(shifted
+            .plane_crossings(&v(1.0, 0.0, 0.0))
+            .as_slice()
+            .is_empty());
+    }
+
+    #[test]
+    fn velocity_is_the_derivative_of_position() {
+        let arc = SphereCurve::great_arc(&v(3.0, 4.0, 1.0), &v(-2.0, 5.0, 2.5)).unwrap();
+        let h = 1e-6;
+        for t in [0.1, 0.4, 0.7] {
+            let difference = (arc.position(t + h) - arc.position(t - h)) / (2.0 * h);
+            assert!((arc.velocity(t) - difference).norm() < 1e-9, "t = {t}");
+        }
+    }
+
+    #[test]
+    fn lying_in_a_plane_is_judged_relative_to_the_curve_and_the_normal() {
+        // Coefficients (0, 2e, 0) against m = (2, 0, 0); the scale is 0 + 1 + 1 and |m| is
+        // 2, so the curve lies in the plane while 2e <= 1e-12 * 2 * 2, that is e <= 2e-12.
+        let tilted = |e: f64| SphereCurve {
+            centre: Vector3::zeros(),
+            u: v(e, 1.0, 0.0),
+            v: v(0.0, 0.0, 1.0),
+            t0: 0.0,
+            t1: 1.0,
+            exact_end: None,
+        };
+        let m = v(2.0, 0.0, 0.0);
+        assert!(tilted(1.5e-12).lies_in_plane(&m));
+        assert!(!tilted(2.5e-12).lies_in_plane(&m));
+    }
+
+    #[test]
+    fn the_parallel_threshold_is_strict() {
+        // (1, 1e-12, 0) is a unit vector in f64, and its cross product with x has length
+        // exactly 1e-12: an arc of that angle is still an arc.
+        let arc = SphereCurve::great_arc_between_units(v(1.0, 0.0, 0.0), v(1.0, 1e-12, 0.0));
+        assert!(arc.is_some());
+        assert!(
+            SphereCurve::great_arc_between_units(v(1.0, 0.0, 0.0), v(1.0, 5e-13, 0.0)).is_none()
+        );
+    }
+
+    #[test]
+    fn a_third_root_is_dropped() {
+        // At most two roots exist within one turn; a third push must not write past the end.
+        let mut roots = TrigRoots::default();
+        for t in [0.1, 0.2, 0.3] {
+            roots.push(t);
+        }
+        assert_eq!(roots.as_slice(), &[0.1, 0.2]);
     }
 
     #[test]

@@ -387,6 +387,19 @@ mod tests {
     use crate::scene::{ItemId, SiteCurve, Standpoint};
     use std::f64::consts::TAU;
 
+    #[test]
+    fn a_segment_s_depth_is_where_the_ray_meets_its_line() {
+        // The line x = 2 in the plane z = 0, from y = -1 to y = 1: straight ahead along x it
+        // is 2 away, and towards (2, 1) (its end) sqrt(5) away (plane geometry).
+        let (a, b) = (Vector3::new(2.0, -1.0, 0.0), Vector3::new(2.0, 1.0, 0.0));
+        let curve = SphereCurve::great_arc(&a, &b).unwrap();
+        let depth = Depth::Segment { a, b };
+        let ahead = depth.at(&curve, 0.0, &Vector3::new(1.0, 0.0, 0.0));
+        assert!((ahead - 2.0).abs() < 1e-15, "{ahead}");
+        let to_end = depth.at(&curve, 0.0, &Vector3::new(2.0, 1.0, 0.0).normalize());
+        assert!((to_end - 5f64.sqrt()).abs() < 1e-15, "{to_end}");
+    }
+
     /// The wall of tests/hidden_by_hand.rs seen from (0, 0) at 1.5 m: its face y = 10, x from
     /// -2 to 2, z from 0 to 3, cut into `rows` strips of two triangles each.
     fn wall(rows: usize) -> Vec<Face> {
