@@ -235,9 +235,11 @@ impl SphereCurve {
             if sine >= within.sin() {
                 return Vec::new(); // the whole circle keeps further than `within` away
             }
-            // The point of the circle nearest the pole; inside the arc only if it lies between
-            // the ends (cheap cross-product tests before any trigonometry).
-            let closest = pole - normal * normal.dot(&pole);
+            // The point of the circle nearest the pole is the pole's projection into the
+            // plane; inside the arc only if it lies between the ends (cheap cross-product
+            // tests before any trigonometry, then the parameter's range decides). Both uses
+            // ignore a component along the normal, so the pole stands for its projection.
+            let closest = pole;
             let (start, end) = (self.position(self.t0), self.position(self.t1));
             let inside = self.t1 - self.t0 >= std::f64::consts::PI
                 || (start.cross(&closest).dot(&normal) > 0.0
@@ -528,6 +530,58 @@ mod tests {
         // The first half alone ends before the closest point is reached.
         let half = SphereCurve::great_arc(&a, &v(miss.tan(), 0.1, 1.0)).unwrap();
         assert!(half.pole_approaches(true, 0.1).is_empty());
+    }
+
+    #[test]
+    fn an_arc_longer_than_half_a_turn_reaches_its_nearest_point() {
+        // The great circle through (0, 0.01, 1) direction and the x axis, run from t = -3.5 to
+        // 0.5: its point nearest the zenith, at t = 0, lies more than half a turn from the
+        // start, where cross products with the start no longer tell which side it is on.
+        let tilt = 0.01f64;
+        let arc = SphereCurve {
+            centre: Vector3::zeros(),
+            u: v(0.0, tilt.sin(), tilt.cos()),
+            v: v(1.0, 0.0, 0.0),
+            t0: -3.5,
+            t1: 0.5,
+            exact_end: None,
+        };
+        let found = arc.pole_approaches(true, 0.1);
+        assert_eq!(found.len(), 1);
+        assert!(
+            found[0].0.abs() < 1e-15 && (found[0].1 - tilt).abs() < 1e-15,
+            "{found:?}"
+        );
+    }
+
+    #[test]
+    fn a_meridian_is_a_half_plane_and_the_poles_lie_on_none() {
+        // The horizon meets the meridian plane of azimuth 0 (the y-z plane) straight ahead
+        // (0, 1, 0) and behind; only the first is on the meridian at azimuth 0.
+        let horizon = SphereCurve::ellipse_arc(
+            Vector3::zeros(),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 1.0, 0.0),
+            0.0,
+            TAU,
+        );
+        let ahead = horizon.meridian_crossings(0.0);
+        assert_eq!(ahead.as_slice().len(), 1);
+        assert!((horizon.position(ahead.as_slice()[0]) - v(0.0, 1.0, 0.0)).norm() < 1e-15);
+        // The vertical circle through the zenith and the nadir in the plane y = 0 crosses
+        // the meridian plane of azimuth 0 (x = 0) only at the poles.
+        let vertical = SphereCurve::ellipse_arc(
+            Vector3::zeros(),
+            v(1.0, 0.0, 0.0),
+            v(0.0, 0.0, 1.0),
+            0.0,
+            TAU,
+        );
+        assert_eq!(
+            vertical.plane_crossings(&v(1.0, 0.0, 0.0)).as_slice().len(),
+            2
+        );
+        assert!(vertical.meridian_crossings(0.0).as_slice().is_empty());
     }
 
     #[test]
