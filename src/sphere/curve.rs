@@ -552,6 +552,13 @@ mod tests {
             found[0].0.abs() < 1e-15 && (found[0].1 - tilt).abs() < 1e-15,
             "{found:?}"
         );
+        // The rest of the circle, from t = 0.5 to 4, is as long and passes no nearest point.
+        let rest = SphereCurve {
+            t0: 0.5,
+            t1: 4.0,
+            ..arc
+        };
+        assert!(rest.pole_approaches(true, 0.1).is_empty());
     }
 
     #[test]
