@@ -445,6 +445,110 @@ mod tests {
         (spans, height)
     }
 
+    /// A panel in the plane y = `y`, from x0 to x1 and z0 to z1, as two triangles.
+    fn panel(x: (f64, f64), y: f64, z: (f64, f64), slack: f32) -> [Face; 2] {
+        let corner = |x: f64, z: f64| Point3::new(x, y, z);
+        [
+            [corner(x.0, z.0), corner(x.1, z.0), corner(x.1, z.1)],
+            [corner(x.0, z.0), corner(x.1, z.1), corner(x.0, z.1)],
+        ]
+        .map(|corners| Face {
+            corners,
+            item: ItemId(0),
+            slack,
+        })
+    }
+
+    fn eye_at_1_5() -> ViewFrame {
+        ViewFrame::new(&Standpoint::from_degrees(
+            "here", 0.0, 0.0, 1.5, 0.0, 0.0, 0.0,
+        ))
+    }
+
+    /// The stretches of a straight edge, a pixel apart at 4096 round.
+    fn stretches(faces: &[Face], start: Point3<f64>, end: Point3<f64>) -> (Spans, SphereCurve) {
+        let bvh = Bvh::new(faces);
+        let view = eye_at_1_5();
+        let occluders = Occluders::new(faces, &bvh, &view);
+        let curve = view
+            .sphere_curve(&SiteCurve::Segment { start, end })
+            .unwrap();
+        let depth = Depth::Segment {
+            a: view.to_view(&start),
+            b: view.to_view(&end),
+        };
+        let pixel = TAU / 4096.0;
+        (occluders.spans(&curve, &depth, pixel, 1e-3 * pixel), curve)
+    }
+
+    #[test]
+    fn a_facet_hides_only_what_lies_beyond_its_slack_as_seen_along_the_sight_line() {
+        // A facet in the plane y = 10 (its normal's length 16, not 1) that may stand 0.25 m
+        // in front of the true surface: a point 10 m away hides behind it only if the sight
+        // line meets it more than 0.25 m nearer, or 0.25 / cos 60 deg = 0.5 m when the line
+        // meets it at 60 degrees from the normal.
+        let face = Face {
+            corners: [
+                Point3::new(0.0, 10.0, 0.0),
+                Point3::new(4.0, 10.0, 0.0),
+                Point3::new(0.0, 10.0, 4.0),
+            ],
+            item: ItemId(0),
+            slack: 0.25,
+        };
+        let faces = [face];
+        let bvh = Bvh::new(&faces);
+        let view = eye_at_1_5();
+        let occluders = Occluders::new(&faces, &bvh, &view);
+        let head_on = Vector3::new(0.0, 1.0, 0.0);
+        let hides = |towards: &Vector3<f64>, hit: f64| occluders.hides(&face, towards, hit, 10.0);
+        assert!(hides(&head_on, 9.7));
+        assert!(!hides(&head_on, 9.75)); // exactly the slack: the surface itself
+        assert!(!hides(&head_on, 9.8));
+        let slanting = Vector3::new(3f64.sqrt() / 2.0, 0.5, 0.0);
+        assert!(hides(&slanting, 9.45));
+        assert!(!hides(&slanting, 9.55));
+        // A flat face hides whatever lies beyond the hit.
+        let flat = Face { slack: 0.0, ..face };
+        assert!(occluders.hides(&flat, &head_on, 9.99, 10.0));
+        assert!(!occluders.hides(&flat, &head_on, 10.0, 10.0));
+    }
+
+    #[test]
+    fn an_edge_drawn_on_a_face_is_not_hidden_by_it() {
+        // A line across the middle of a wall, in its plane: the depth bias keeps the wall
+        // from hiding it.
+        let faces = panel((-2.0, 2.0), 10.0, (0.0, 3.0), 0.0);
+        let (spans, curve) = stretches(
+            &faces,
+            Point3::new(-1.0, 10.0, 1.0),
+            Point3::new(1.0, 10.0, 1.0),
+        );
+        assert_eq!(spans, vec![(curve.t0, curve.t1, true)]);
+    }
+
+    #[test]
+    fn a_rail_behind_two_walls_shows_through_the_gap_between_them() {
+        // Walls at y = 10 from x = -4 to -0.5 and 0.5 to 4, 3 m high; a rail at y = 20, 1 m
+        // up, from x = -6 to 6. Seen from (0, 0) at 1.5 m, the rail's sight lines cross the
+        // walls' plane at half its x (similar triangles) and 1.25 m up: its ends hide
+        // behind different walls, and it shows through the gap where |x| < 1.
+        let mut faces = panel((-4.0, -0.5), 10.0, (0.0, 3.0), 0.0).to_vec();
+        faces.extend(panel((0.5, 4.0), 10.0, (0.0, 3.0), 0.0));
+        let (spans, curve) = stretches(
+            &faces,
+            Point3::new(-6.0, 20.0, 1.0),
+            Point3::new(6.0, 20.0, 1.0),
+        );
+        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
+        assert_eq!(seen, [false, true, false], "{spans:?}");
+        let view = eye_at_1_5();
+        for (t, x) in [(spans[0].1, -1.0), (spans[1].1, 1.0)] {
+            let d = view.direction_to_site(&curve.position(t));
+            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
+        }
+    }
+
     #[test]
     fn a_change_is_found_where_plane_trigonometry_puts_it_whether_the_guess_is_right_or_not() {
         // By similar triangles (see tests/hidden_by_hand.rs) the wall hides the post up to
