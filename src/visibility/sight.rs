@@ -385,7 +385,7 @@ fn parameter_step(curve: &SphereCurve, t: f64, angle: f64) -> f64 {
 mod tests {
     use super::*;
     use crate::scene::{ItemId, SiteCurve, Standpoint};
-    use std::f64::consts::TAU;
+    use std::f64::consts::{PI, TAU};
 
     #[test]
     fn a_segment_s_depth_is_where_the_ray_meets_its_line() {
@@ -546,6 +546,35 @@ mod tests {
         for (t, x) in [(spans[0].1, -1.0), (spans[1].1, 1.0)] {
             let d = view.direction_to_site(&curve.position(t));
             assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
+        }
+    }
+
+    #[test]
+    fn a_ring_behind_a_narrow_wall_hides_at_its_near_and_far_points() {
+        // A ring of radius 2 round (0, 20), 1 m up, behind a wall at y = 10 from x = -0.5 to
+        // 0.5: its sight lines cross the wall's plane at x * 10 / y, so the points of the
+        // ring straight ahead and straight behind its centre hide, and its sides show.
+        let faces = panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0);
+        let bvh = Bvh::new(&faces);
+        let view = eye_at_1_5();
+        let occluders = Occluders::new(&faces, &bvh, &view);
+        let ring = SiteCurve::Ellipse {
+            centre: Point3::new(0.0, 20.0, 1.0),
+            u: Vector3::new(2.0, 0.0, 0.0),
+            v: Vector3::new(0.0, 2.0, 0.0),
+            start: -PI / 2.0,
+            sweep: TAU,
+        };
+        let curve = view.sphere_curve(&ring).unwrap();
+        let pixel = TAU / 4096.0;
+        let spans = occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel);
+        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
+        assert_eq!(seen, [false, true, false, true, false], "{spans:?}");
+        assert_eq!((spans[0].0, spans[4].1), (curve.t0, curve.t1));
+        for pair in spans.windows(2) {
+            assert_eq!(pair[0].1, pair[1].0);
+            let d = view.direction_to_site(&curve.position(pair[0].1));
+            assert!(((d.x * 10.0 / d.y).abs() - 0.5).abs() < 1e-4, "{d:?}");
         }
     }
 
