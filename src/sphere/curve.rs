@@ -593,20 +593,56 @@ mod tests {
 
     #[test]
     fn numeric_pole_approach_matches_a_dense_scan() {
-        let ring = SphereCurve::ellipse_arc(
-            v(0.3, 0.1, 5.0),
-            v(2.0, 0.0, 0.0),
-            v(0.0, 1.5, 0.5),
-            0.0,
-            TAU,
-        );
-        let found = ring.pole_approaches(true, 1.0);
-        assert!(!found.is_empty());
+        // A ring off the vertical, whole and in part (a range not starting at 0 and short
+        // of a turn): each approach found must be where the curve is that far from the
+        // zenith, inside the range, and the nearest of them as near as a dense scan finds.
+        let ring = |start: f64, sweep: f64| {
+            SphereCurve::ellipse_arc(
+                v(0.3, 0.1, 5.0),
+                v(2.0, 0.0, 0.0),
+                v(0.0, 1.5, 0.5),
+                start,
+                sweep,
+            )
+        };
         let pole = v(0.0, 0.0, 1.0);
-        let dense = (0..200_000)
-            .map(|i| super::super::angle_between(&ring.position(TAU * i as f64 / 200_000.0), &pole))
-            .fold(f64::INFINITY, f64::min);
-        let best = found.iter().map(|f| f.1).fold(f64::INFINITY, f64::min);
-        assert!(best <= dense + 1e-12, "{best} vs {dense}");
+        for arc in [ring(0.0, TAU), ring(1.0, 3.0)] {
+            let found = arc.pole_approaches(true, 1.0);
+            assert!(!found.is_empty());
+            for &(t, d) in &found {
+                assert!(
+                    t > arc.t0 && t < arc.t1,
+                    "{t} outside {}..{}",
+                    arc.t0,
+                    arc.t1
+                );
+                let there = super::super::angle_between(&arc.position(t), &pole);
+                assert!((d - there).abs() < 1e-15, "{d} vs {there}");
+            }
+            let dense = (0..=200_000)
+                .map(|i| arc.t0 + (arc.t1 - arc.t0) * i as f64 / 200_000.0)
+                .map(|t| super::super::angle_between(&arc.position(t), &pole))
+                .fold(f64::INFINITY, f64::min);
+            let best = found.iter().map(|f| f.1).fold(f64::INFINITY, f64::min);
+            assert!((best - dense).abs() < 1e-9, "{best} vs {dense}");
+        }
+    }
+
+    #[test]
+    fn a_nearest_point_at_an_end_of_the_range_is_not_inside_it() {
+        // The great circle whose point nearest the zenith is at t = 0 (u leans 0.01 rad off
+        // the zenith, v is horizontal), on ranges longer than half a turn that start or
+        // end exactly there.
+        let circle = |t0: f64, t1: f64| SphereCurve {
+            centre: Vector3::zeros(),
+            u: v(0.0, 0.01f64.sin(), 0.01f64.cos()),
+            v: v(1.0, 0.0, 0.0),
+            t0,
+            t1,
+            exact_end: None,
+        };
+        assert_eq!(circle(-0.5, 4.0).pole_approaches(true, 0.1).len(), 1);
+        assert!(circle(0.0, 4.0).pole_approaches(true, 0.1).is_empty());
+        assert!(circle(-4.0, 0.0).pole_approaches(true, 0.1).is_empty());
     }
 }
