@@ -629,6 +629,29 @@ mod tests {
     }
 
     #[test]
+    fn a_parallel_has_no_nearest_point_and_a_nearly_parallel_ring_has_one() {
+        // A ring of radius 2, 5 up, round the vertical keeps atan(2 / 5) from the zenith.
+        // Moved 3.5e-12 m sideways its distance varies by about 0.345 * 3.5e-12 = 1.2e-12
+        // rad (d atan(r / 5) = 5 / 29 dr, r = 2 + dx cos t), more than the relative 1e-12 of
+        // its distance (0.38 rad): nearest at t = pi.
+        let ring = |dx: f64| {
+            SphereCurve::ellipse_arc(
+                v(dx, 0.0, 5.0),
+                v(2.0, 0.0, 0.0),
+                v(0.0, 2.0, 0.0),
+                0.0,
+                TAU,
+            )
+        };
+        assert!(ring(0.0).pole_approaches(true, 1.0).is_empty());
+        let found = ring(3.5e-12).pole_approaches(true, 1.0);
+        assert_eq!(found.len(), 1, "{found:?}");
+        // (So flat a minimum is found only roughly: 0.05 rad off pi, the curve is nearer by
+        // less than 1e-15 rad.)
+        assert!((found[0].0 - PI).abs() < 0.05, "{found:?}");
+    }
+
+    #[test]
     fn a_nearest_point_at_an_end_of_the_range_is_not_inside_it() {
         // The great circle whose point nearest the zenith is at t = 0 (u leans 0.01 rad off
         // the zenith, v is horizontal), on ranges longer than half a turn that start or
