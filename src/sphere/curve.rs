@@ -618,6 +618,14 @@ mod tests {
                 );
                 let there = super::super::angle_between(&arc.position(t), &pole);
                 assert!((d - there).abs() < 1e-15, "{d} vs {there}");
+                // A nearest point: no nearer a little way either side within the range.
+                // (A range that ends while still approaching reports its end, a hair
+                // inside it: checked on its inner side only.)
+                let sides = [t - 1e-4, t + 1e-4];
+                for side in sides.into_iter().filter(|s| *s > arc.t0 && *s < arc.t1) {
+                    let beside = super::super::angle_between(&arc.position(side), &pole);
+                    assert!(beside >= d, "{t}: {beside} < {d}");
+                }
             }
             let dense = (0..=200_000)
                 .map(|i| arc.t0 + (arc.t1 - arc.t0) * i as f64 / 200_000.0)

@@ -550,6 +550,25 @@ mod tests {
     }
 
     #[test]
+    fn a_rail_seen_at_both_ends_hides_in_the_middle_behind_a_pillar() {
+        // The rail of the test above behind a pillar at y = 10 from x = -0.5 to 0.5: both
+        // ends are seen, and the middle, where |x| < 1, is hidden.
+        let faces = panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0);
+        let (spans, curve) = stretches(
+            &faces,
+            Point3::new(-6.0, 20.0, 1.0),
+            Point3::new(6.0, 20.0, 1.0),
+        );
+        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
+        assert_eq!(seen, [true, false, true], "{spans:?}");
+        let view = eye_at_1_5();
+        for (t, x) in [(spans[0].1, -1.0), (spans[1].1, 1.0)] {
+            let d = view.direction_to_site(&curve.position(t));
+            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
+        }
+    }
+
+    #[test]
     fn a_ring_behind_a_narrow_wall_hides_at_its_near_and_far_points() {
         // A ring of radius 2 round (0, 20), 1 m up, behind a wall at y = 10 from x = -0.5 to
         // 0.5: its sight lines cross the wall's plane at x * 10 / y, so the points of the
