@@ -633,6 +633,8 @@ mod tests {
                 .fold(f64::INFINITY, f64::min);
             let best = found.iter().map(|f| f.1).fold(f64::INFINITY, f64::min);
             assert!((best - dense).abs() < 1e-9, "{best} vs {dense}");
+            // None nearer than the nearest.
+            assert!(arc.pole_approaches(true, 0.99 * best).is_empty());
         }
     }
 
