@@ -569,6 +569,30 @@ mod tests {
     }
 
     #[test]
+    fn a_railing_before_a_facade_shows_between_the_posts_in_front_of_it() {
+        // A rail (y = 20, 1 m up, x from -4 to 4) 0.2 m in front of a facade at y = 20.2,
+        // its two ends behind posts at y = 10 (x from -2.25 to -1.75 and 1.75 to 2.25).
+        // The facade covers everything behind the rail, all of it within a metre of the
+        // rail's nearest point, but hides none of it: the rail shows between the posts,
+        // where |x| / 2 < 1.75.
+        let mut faces = panel((-20.0, 20.0), 20.2, (0.0, 10.0), 0.0).to_vec();
+        faces.extend(panel((-2.25, -1.75), 10.0, (0.0, 3.0), 0.0));
+        faces.extend(panel((1.75, 2.25), 10.0, (0.0, 3.0), 0.0));
+        let (spans, curve) = stretches(
+            &faces,
+            Point3::new(-4.0, 20.0, 1.0),
+            Point3::new(4.0, 20.0, 1.0),
+        );
+        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
+        assert_eq!(seen, [false, true, false], "{spans:?}");
+        let view = eye_at_1_5();
+        for (t, x) in [(spans[0].1, -3.5), (spans[1].1, 3.5)] {
+            let d = view.direction_to_site(&curve.position(t));
+            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
+        }
+    }
+
+    #[test]
     fn a_ring_behind_a_narrow_wall_hides_at_its_near_and_far_points() {
         // A ring of radius 2 round (0, 20), 1 m up, behind a wall at y = 10 from x = -0.5 to
         // 0.5: its sight lines cross the wall's plane at x * 10 / y, so the points of the
