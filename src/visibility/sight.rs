@@ -593,6 +593,29 @@ mod tests {
     }
 
     #[test]
+    fn the_direction_turns_at_the_speed_across_the_line_of_sight() {
+        // A level ring of radius 2 round (0, 20, 0): at t = 0 it is at P = (2, 20, 0) going
+        // P' = (0, 2, 0), partly along the sight line. The direction turns at |P x P'| / |P|^2
+        // (the angular speed of a moving point, any mechanics text).
+        let ring = SphereCurve::ellipse_arc(
+            Vector3::new(0.0, 20.0, 0.0),
+            Vector3::new(2.0, 0.0, 0.0),
+            Vector3::new(0.0, 2.0, 0.0),
+            0.0,
+            TAU,
+        );
+        let (p, velocity) = (ring.position(0.0), ring.velocity(0.0));
+        let expected = p.cross(&velocity).norm() / p.norm_squared();
+        assert!((angular_speed(&ring, 0.0) - expected).abs() < 1e-15);
+        // A step of a pixel's angle is that angle over the speed, at most a tenth.
+        assert!((parameter_step(&ring, 0.0, 1e-4) - 1e-4 / expected).abs() < 1e-12);
+        assert_eq!(parameter_step(&ring, 0.0, 1.0), 0.1);
+        let arc = SphereCurve::great_arc(&Vector3::x(), &Vector3::y()).unwrap();
+        assert_eq!(angular_speed(&arc, 0.3), 1.0);
+        assert_eq!(parameter_step(&arc, 0.3, 0.01), 0.01);
+    }
+
+    #[test]
     fn a_ring_behind_a_narrow_wall_hides_at_its_near_and_far_points() {
         // A ring of radius 2 round (0, 20), 1 m up, behind a wall at y = 10 from x = -0.5 to
         // 0.5: its sight lines cross the wall's plane at x * 10 / y, so the points of the
