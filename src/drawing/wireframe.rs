@@ -370,3 +370,67 @@ fn flatten_edges(
     }
     (lines, hidden, skipped)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plane::Equirect;
+    use crate::scene::{parse_scene, HiddenEdges};
+    use std::path::Path;
+
+    fn drawn(scene: &str, width: f64, hidden: HiddenEdges) -> Wireframe {
+        let site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        let view = ViewFrame::new(&site.standpoints[0]);
+        let flattener = Flattener::new(Equirect::from_size_px(width, width / 2.0), 0.1);
+        let hidden_lines = HiddenLines::new(&site, Some(hidden));
+        wireframe(
+            &site,
+            &view,
+            &flattener,
+            &hidden_lines,
+            false,
+            &Budget::new(None),
+        )
+        .unwrap()
+    }
+
+    #[test]
+    fn a_point_marker_is_a_cross_a_fixed_number_of_pixels_across() {
+        // Whatever the image's width, the arms reach MARKER_ARM_PX either side of the point.
+        let scene = "Scene(standpoints: [(name: \"here\", x: 0, y: 0)], \
+            items: [Point(label: \"well\", at: (3, 40, 0.5))])";
+        for width in [2048.0, 8192.0] {
+            let wire = drawn(scene, width, HiddenEdges::Solid);
+            let points: Vec<_> = wire.layers.iter().flat_map(|l| l.lines.points()).collect();
+            assert!(!points.is_empty());
+            let (xs, ys): (Vec<f64>, Vec<f64>) = points.iter().map(|p| (p.x, p.y)).unzip();
+            let spread = |v: &[f64]| {
+                v.iter().cloned().fold(f64::NEG_INFINITY, f64::max)
+                    - v.iter().cloned().fold(f64::INFINITY, f64::min)
+            };
+            assert!(
+                (spread(&xs) - 2.0 * MARKER_ARM_PX).abs() < 0.05,
+                "{width}: {xs:?}"
+            );
+            assert!(
+                (spread(&ys) - 2.0 * MARKER_ARM_PX).abs() < 0.05,
+                "{width}: {ys:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_block_is_drawn_and_its_back_edges_found_hidden() {
+        // A block seen from 20 m off one face: its twelve edges are drawn; with hidden parts
+        // looked for, the three edges meeting at the far bottom corner are hidden, partly
+        // or wholly, and go to the hidden set.
+        let scene = "Scene(standpoints: [(name: \"here\", x: 3, y: -20)], \
+            items: [Block(at: Corner(0, 0), width: 10, depth: 10, height: 9)])";
+        let solid = drawn(scene, 4096.0, HiddenEdges::Solid);
+        let lines: usize = solid.layers.iter().map(|l| l.lines.len()).sum();
+        assert!(lines >= 12, "{lines}");
+        assert!(solid.hidden.is_empty() && solid.skipped.is_empty());
+        let faint = drawn(scene, 4096.0, HiddenEdges::Faint);
+        assert!(!faint.hidden.is_empty());
+    }
+}

@@ -79,4 +79,19 @@ mod tests {
         let empty = parse_scene(b"Scene(items: [])", Path::new("e.ron"), "e").unwrap();
         assert!(HiddenLines::new(&empty, None).bvh.is_none());
     }
+
+    #[test]
+    fn occluders_are_made_when_faces_are_ordered() {
+        let with_faces = site("");
+        let view = ViewFrame::new(&with_faces.standpoints[0]);
+        for (mode, made) in [
+            (HiddenEdges::Faint, true),
+            (HiddenEdges::Off, true),
+            (HiddenEdges::Solid, false),
+        ] {
+            let hidden_lines = HiddenLines::new(&with_faces, Some(mode));
+            let occluders = hidden_lines.occluders(&with_faces, &view);
+            assert_eq!(occluders.is_some(), made, "{mode:?}");
+        }
+    }
 }
