@@ -106,6 +106,33 @@ mod tests {
     }
 
     #[test]
+    fn site_directions_and_points_land_by_the_standpoint_s_heading() {
+        use crate::scene::Standpoint;
+        // Heading 30 degrees (clockwise from north, +y): the direction (sin 30, cos 30, 0)
+        // is the centre column on the horizon row; a point 10 m out that way and 10 m above
+        // the eye is 45 degrees up, 45 * 500 / 180 = 125 px above it.
+        let view = ViewFrame::new(&Standpoint::from_degrees(
+            "here", 0.0, 0.0, 1.5, 30.0, 0.0, 0.0,
+        ));
+        let map = Equirect::from_size_px(1000.0, 500.0);
+        let (sin, cos) = 30f64.to_radians().sin_cos();
+        let ahead = image_of_direction(&view, &map, &Vector3::new(sin, cos, 0.0));
+        assert!((ahead.x - 500.0).abs() < 1e-9 && (ahead.y - 250.0).abs() < 1e-9);
+        let up = image_of_point(&view, &map, &Point3::new(10.0 * sin, 10.0 * cos, 11.5));
+        let up = up.unwrap();
+        assert!(
+            (up.x - 500.0).abs() < 1e-9 && (up.y - 125.0).abs() < 1e-9,
+            "{up:?}"
+        );
+        // The eye, and a point a nanometre from it, have no image; two nanometres do.
+        let level = ViewFrame::new(&Standpoint::from_degrees(
+            "here", 0.0, 0.0, 1.5, 0.0, 0.0, 0.0,
+        ));
+        let near = |dx: f64| image_of_point(&level, &map, &Point3::new(dx, 0.0, 1.5));
+        assert!(near(0.0).is_none() && near(1e-9).is_none() && near(2e-9).is_some());
+    }
+
+    #[test]
     fn heading_is_the_centre_column_and_the_horizon_the_middle_row() {
         let map = Equirect::from_size_px(1000.0, 500.0);
         assert_eq!(map.to_image(0.0, 0.0), ImagePoint::new(500.0, 250.0));
