@@ -617,31 +617,32 @@ mod tests {
 
     #[test]
     fn a_fence_through_a_wall_hides_behind_it_and_behind_a_post_in_front() {
-        // A fence from (-4, 25) behind a wall at y = 15 to (4, 10) in front of it, 1 m up,
-        // passes through the wall where y = 15, at x = -4 + 8 * 2/3. Its near end hides
-        // behind a post at y = 5 (the sight line to it crosses y = 5 at x = 2). Hidden
-        // behind the wall, seen, hidden behind the post: the wall, which hides the far
-        // end, lies behind the near end and must not be taken to hide it.
-        let mut faces = panel((-20.0, 20.0), 15.0, (0.0, 10.0), 0.0).to_vec();
+        // A fence from (-4, 25) behind a wall at y = 10.8 to (4, 10) just in front of it,
+        // 1 m up, passes through the wall at s = 14.2 / 15 of its length (x = 3.57). Its
+        // near end hides behind a post at y = 5, x from 1.75 to 2.25 (the sight line to it
+        // crosses y = 5 at x = 2), which covers the fence from s = 63.75 / 66.25 on (where
+        // x * 5 / y = 1.75, similar triangles). Hidden behind the wall, seen, hidden behind
+        // the post: the wall, which hides the far end, lies 0.86 m behind the near end
+        // along its sight line and must not be taken to hide it.
+        let mut faces = panel((-20.0, 20.0), 10.8, (0.0, 10.0), 0.0).to_vec();
         faces.extend(panel((1.75, 2.25), 5.0, (0.0, 3.0), 0.0));
         let (start, end) = (Point3::new(-4.0, 25.0, 1.0), Point3::new(4.0, 10.0, 1.0));
         let (spans, curve) = stretches(&faces, start, end);
         let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
         assert_eq!(seen, [false, true, false], "{spans:?}");
-        // Where the fence comes through the wall: its point on the sight line there.
+        // Where along the fence each change lies: solve eye + k d = start + s (end - start)
+        // in plan for s.
         let view = eye_at_1_5();
-        let d = view.direction_to_site(&curve.position(spans[0].1));
-        let (along, across) = (end - start, d.xy());
-        // Solve eye + k d = start + s (end - start) in plan for s.
-        let s = (across.x * (start.y - 0.0) - across.y * (start.x - 0.0))
-            / (across.y * along.x - across.x * along.y);
-        // (The depth bias lets the fence show until it is 2e-4 of its distance, 3.3 mm at
-        // 16.5 m, behind the wall.)
-        let behind = start.y + s * along.y - 15.0;
-        assert!(
-            behind > 0.0 && behind < 3.5e-3,
-            "{behind} m behind the wall"
-        );
+        let along = end - start;
+        let fraction = |t: f64| {
+            let d = view.direction_to_site(&curve.position(t));
+            (d.x * start.y - d.y * start.x) / (d.y * along.x - d.x * along.y)
+        };
+        // (The depth bias lets the fence show until it is 2e-4 of its distance, 2.3 mm at
+        // 11.6 m, behind the wall: 1.6e-4 of its length.)
+        let through = fraction(spans[0].1) - 14.2 / 15.0;
+        assert!(through < 0.0 && through > -2e-4, "{through}");
+        assert!((fraction(spans[1].1) - 63.75 / 66.25).abs() < 1e-5);
     }
 
     #[test]
