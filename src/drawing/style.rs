@@ -130,4 +130,41 @@ mod tests {
         // Dashes of 4 px every 6 px along 100 px: 17 dashes.
         assert_eq!(layers[2].lines.len(), 17);
     }
+
+    #[test]
+    fn the_page_style_and_the_default_dashes() {
+        // The page style at 10 px a millimetre: seen edges 0.25 mm, hidden ones dashed
+        // 1.2 mm on and 0.8 mm off (12 and 8 px: 5 dashes along 100 px), the grid in
+        // non-photo blue; the wireframe's entry styles no other layer.
+        let mut layers = vec![
+            layer("wireframe"),
+            layer("hidden"),
+            layer("grid"),
+            layer("labels"),
+        ];
+        apply_styles(&mut layers, &[&page_style()], 10.0, (6.0, 4.0));
+        assert_eq!(layers[0].stroke.width_px, 2.5);
+        assert_eq!(layers[0].lines.len(), 1);
+        assert_eq!(layers[1].lines.len(), 5);
+        assert_eq!(layers[2].stroke.width_px, 1.0);
+        assert_eq!(
+            Some(Colour(layers[2].stroke.colour)),
+            Colour::parse("non-photo blue")
+        );
+        assert_eq!(layers[3].stroke, Stroke::black(1.0, 1.0));
+        // With no sheet, hidden edges take the default dashes and nothing else is dashed.
+        let mut bare = vec![layer("wireframe"), layer("hidden")];
+        apply_styles(&mut bare, &[], 10.0, (6.0, 4.0));
+        assert_eq!((bare[0].lines.len(), bare[1].lines.len()), (1, 10));
+        // A dash with no gap, or on a filled area, leaves the lines whole.
+        let sheet: StyleSheet = ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
+            .from_str("{\"hidden\": (dash_mm: (1, 0)), \"tone\": (dash_mm: (1, 1))}")
+            .unwrap();
+        let mut tone = layer("tone");
+        tone.filled = true;
+        let mut whole = vec![layer("hidden"), tone];
+        apply_styles(&mut whole, &[&sheet], 10.0, (6.0, 4.0));
+        assert_eq!((whole[0].lines.len(), whole[1].lines.len()), (1, 1));
+    }
 }
