@@ -436,6 +436,16 @@ mod tests {
     }
 
     #[test]
+    fn a_plane_through_an_end_is_not_crossed_inside_the_arc() {
+        // The quarter arc from x to y: the plane y = 0 holds its start, the plane x = 0 its
+        // end; the roots lie at exactly 0 and pi / 2, the range's ends, not inside it.
+        let arc = SphereCurve::great_arc(&v(1.0, 0.0, 0.0), &v(0.0, 1.0, 0.0)).unwrap();
+        assert_eq!((arc.t0, arc.t1), (0.0, PI / 2.0));
+        assert!(arc.plane_crossings(&v(0.0, 1.0, 0.0)).as_slice().is_empty());
+        assert!(arc.plane_crossings(&v(1.0, 0.0, 0.0)).as_slice().is_empty());
+    }
+
+    #[test]
     fn velocity_is_the_derivative_of_position() {
         let arc = SphereCurve::great_arc(&v(3.0, 4.0, 1.0), &v(-2.0, 5.0, 2.5)).unwrap();
         let h = 1e-6;
