@@ -135,6 +135,14 @@ mod tests {
         assert!(clipped.iter().all(|p| r.contains(*p)));
         let outside = ring.map(|p| ImagePoint::new(p.x + 20.0, p.y));
         assert!(r.clip_polygon(&outside).is_empty());
+        // A rectangle away from the origin, cut on every side by a ring that reaches past
+        // all four: what is left is the rectangle itself, 20 x 20.
+        let away = Rect::from_ltrb(10.0, 20.0, 30.0, 40.0);
+        let big = [(0.0, 0.0), (50.0, 0.0), (50.0, 60.0), (0.0, 60.0)]
+            .map(|(x, y)| ImagePoint::new(x, y));
+        let clipped = away.clip_polygon(&big);
+        assert!((crate::plane::signed_area(&clipped).abs() - 400.0).abs() < 1e-9);
+        assert!(clipped.iter().all(|p| away.contains(*p)), "{clipped:?}");
     }
 
     #[test]

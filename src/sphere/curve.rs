@@ -582,9 +582,13 @@ mod tests {
             0.0,
             TAU,
         );
-        let ahead = horizon.meridian_crossings(0.0);
-        assert_eq!(ahead.as_slice().len(), 1);
-        assert!((horizon.position(ahead.as_slice()[0]) - v(0.0, 1.0, 0.0)).norm() < 1e-15);
+        // And at any azimuth (clockwise from y): 1 rad, towards (sin 1, cos 1, 0).
+        for azimuth in [0.0f64, 1.0] {
+            let ahead = horizon.meridian_crossings(azimuth);
+            assert_eq!(ahead.as_slice().len(), 1);
+            let towards = v(azimuth.sin(), azimuth.cos(), 0.0);
+            assert!((horizon.position(ahead.as_slice()[0]) - towards).norm() < 1e-15);
+        }
         // The vertical circle through the zenith and the nadir in the plane y = 0 crosses
         // the meridian plane of azimuth 0 (x = 0) only at the poles.
         let vertical = SphereCurve::ellipse_arc(
