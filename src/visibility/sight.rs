@@ -570,23 +570,23 @@ mod tests {
 
     #[test]
     fn a_railing_before_a_facade_shows_between_the_posts_in_front_of_it() {
-        // A rail (y = 20, 1 m up, x from -4 to 4) 0.2 m in front of a facade at y = 20.2,
-        // its two ends behind posts at y = 10 (x from -2.25 to -1.75 and 1.75 to 2.25).
-        // The facade covers everything behind the rail, all of it within a metre of the
-        // rail's nearest point, but hides none of it: the rail shows between the posts,
-        // where |x| / 2 < 1.75.
+        // A rail (y = 20, 3 m up, x from -3 to 3) 0.2 m in front of a facade at y = 20.2,
+        // its two ends behind posts at y = 10 (x from -1.75 to -1.25 and 1.25 to 1.75).
+        // The facade covers every direction near the rail, all of it within a metre of the
+        // rail's nearest point, but hides none of the rail: the rail shows between the
+        // posts, where |x| / 2 < 1.25 (similar triangles).
         let mut faces = panel((-20.0, 20.0), 20.2, (0.0, 10.0), 0.0).to_vec();
-        faces.extend(panel((-2.25, -1.75), 10.0, (0.0, 3.0), 0.0));
-        faces.extend(panel((1.75, 2.25), 10.0, (0.0, 3.0), 0.0));
+        faces.extend(panel((-1.75, -1.25), 10.0, (0.0, 3.0), 0.0));
+        faces.extend(panel((1.25, 1.75), 10.0, (0.0, 3.0), 0.0));
         let (spans, curve) = stretches(
             &faces,
-            Point3::new(-4.0, 20.0, 1.0),
-            Point3::new(4.0, 20.0, 1.0),
+            Point3::new(-3.0, 20.0, 3.0),
+            Point3::new(3.0, 20.0, 3.0),
         );
         let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
         assert_eq!(seen, [false, true, false], "{spans:?}");
         let view = eye_at_1_5();
-        for (t, x) in [(spans[0].1, -3.5), (spans[1].1, 3.5)] {
+        for (t, x) in [(spans[0].1, -2.5), (spans[1].1, 2.5)] {
             let d = view.direction_to_site(&curve.position(t));
             assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
         }
