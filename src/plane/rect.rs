@@ -143,6 +143,15 @@ mod tests {
         let clipped = away.clip_polygon(&big);
         assert!((crate::plane::signed_area(&clipped).abs() - 400.0).abs() < 1e-9);
         assert!(clipped.iter().all(|p| away.contains(*p)), "{clipped:?}");
+        // A diamond |dx| + |dy| <= 15 round the same centre (20, 30) cuts every side
+        // slantwise: the square less four corner triangles with legs of 5, 400 - 4 x 12.5.
+        let diamond = [(5.0, 30.0), (20.0, 15.0), (35.0, 30.0), (20.0, 45.0)]
+            .map(|(x, y)| ImagePoint::new(x, y));
+        let clipped = away.clip_polygon(&diamond);
+        assert!((crate::plane::signed_area(&clipped).abs() - 350.0).abs() < 1e-9);
+        assert!(clipped.iter().all(|p| away.contains(*p)), "{clipped:?}");
+        // The diamond's corners lie outside, one beyond each side.
+        assert!(diamond.iter().all(|p| !away.contains(*p)));
     }
 
     #[test]

@@ -620,7 +620,7 @@ mod tests {
             )
         };
         let pole = v(0.0, 0.0, 1.0);
-        for arc in [ring(0.0, TAU), ring(1.0, 3.0)] {
+        for arc in [ring(0.0, TAU), ring(1.0, 3.0), ring(-3.0, 4.0)] {
             let found = arc.pole_approaches(true, 1.0);
             assert!(!found.is_empty());
             for &(t, d) in &found {
