@@ -367,15 +367,20 @@ mod tests {
         assert!(SphereCurve::great_arc(&v(0.0, 0.0, 0.0), &v(1.0, 0.0, 0.0)).is_none());
     }
 
-    #[test]
-    fn plane_crossings_solve_the_trigonometric_equation() {
-        let circle = SphereCurve::ellipse_arc(
+    /// A whole circle of radius 2 (x) by 1.5 (z) round (0.5, 3, 0.2): it crosses x = 0.
+    fn upright_circle() -> SphereCurve {
+        SphereCurve::ellipse_arc(
             v(0.5, 3.0, 0.2),
             v(2.0, 0.0, 0.0),
             v(0.0, 0.0, 1.5),
             0.0,
             TAU,
-        );
+        )
+    }
+
+    #[test]
+    fn plane_crossings_solve_the_trigonometric_equation() {
+        let circle = upright_circle();
         let m = v(1.0, 0.0, 0.0);
         let roots = circle.plane_crossings(&m);
         assert_eq!(roots.as_slice().len(), 2);
@@ -395,13 +400,7 @@ mod tests {
     fn crossings_of_a_tilted_plane_satisfy_the_equation() {
         // Both A and B non-zero, A not 2 (so hypot(A, B) differs from A + A and from
         // A^2 - B^2 and the like): roots checked against m . P(t) = 0 directly.
-        let circle = SphereCurve::ellipse_arc(
-            v(0.5, 3.0, 0.2),
-            v(2.0, 0.0, 0.0),
-            v(0.0, 0.0, 1.5),
-            0.0,
-            TAU,
-        );
+        let circle = upright_circle();
         let m = v(1.0, 0.3, -0.8);
         let roots = circle.plane_crossings(&m);
         assert_eq!(roots.as_slice().len(), 2);
@@ -412,23 +411,21 @@ mod tests {
 
     #[test]
     fn a_plane_the_curve_misses_or_touches() {
+        // A unit circle round (x, 0, 0) from t = -1 to 1.
+        let round = |x: f64| {
+            SphereCurve::ellipse_arc(
+                v(x, 0.0, 0.0),
+                v(1.0, 0.0, 0.0),
+                v(0.0, 1.0, 0.0),
+                -1.0,
+                2.0,
+            )
+        };
         // P(t) = (cos t - 1, sin t, 0): x = cos t - 1 touches x = 0 at t = 0 only.
-        let circle = SphereCurve::ellipse_arc(
-            v(-1.0, 0.0, 0.0),
-            v(1.0, 0.0, 0.0),
-            v(0.0, 1.0, 0.0),
-            -1.0,
-            2.0,
-        );
+        let circle = round(-1.0);
         assert_eq!(circle.plane_crossings(&v(1.0, 0.0, 0.0)).as_slice(), &[0.0]);
-        // x = cos t - 1 never reaches 0.5: no crossing, not a tangency at the nearest point.
-        let shifted = SphereCurve::ellipse_arc(
-            v(-1.5, 0.0, 0.0),
-            v(1.0, 0.0, 0.0),
-            v(0.0, 1.0, 0.0),
-            -1.0,
-            2.0,
-        );
+        // x = cos t - 1.5 never reaches 0: no crossing, not a tangency at the nearest point.
+        let shifted = round(-1.5);
         assert!(shifted
             .plane_crossings(&v(1.0, 0.0, 0.0))
             .as_slice()

@@ -424,23 +424,13 @@ mod tests {
     /// The stretches of the post at (1, 20) from the ground to 5 m, at 4096 pixels round,
     /// and the height on the post where the first stretch ends.
     fn post_behind(faces: &[Face]) -> (Spans, f64) {
-        let bvh = Bvh::new(faces);
-        let view = ViewFrame::new(&Standpoint::from_degrees(
-            "here", 0.0, 0.0, 1.5, 0.0, 0.0, 0.0,
-        ));
-        let occluders = Occluders::new(faces, &bvh, &view);
-        let (start, end) = (Point3::new(1.0, 20.0, 0.0), Point3::new(1.0, 20.0, 5.0));
-        let curve = view
-            .sphere_curve(&SiteCurve::Segment { start, end })
-            .unwrap();
-        let depth = Depth::Segment {
-            a: view.to_view(&start),
-            b: view.to_view(&end),
-        };
-        let pixel = TAU / 4096.0;
-        let spans = occluders.spans(&curve, &depth, pixel, 1e-3 * pixel);
+        let (spans, curve) = stretches(
+            faces,
+            Point3::new(1.0, 20.0, 0.0),
+            Point3::new(1.0, 20.0, 5.0),
+        );
         // The sight line through the change, followed out to the post's plan distance.
-        let d = view.direction_to_site(&curve.position(spans[0].1));
+        let d = eye_at_1_5().direction_to_site(&curve.position(spans[0].1));
         let height = 1.5 + d.z * 1f64.hypot(20.0) / d.x.hypot(d.y);
         (spans, height)
     }
@@ -479,6 +469,33 @@ mod tests {
         };
         let pixel = TAU / 4096.0;
         (occluders.spans(&curve, &depth, pixel, 1e-3 * pixel), curve)
+    }
+
+    /// A rail along y = 20 at height `z`, from x = -`half` to `half`, behind `faces`: which
+    /// of its stretches are seen, and where along x each change lies (its sight line followed
+    /// out to y = 20).
+    fn rail(faces: &[Face], half: f64, z: f64) -> (Vec<bool>, Vec<f64>) {
+        let (spans, curve) = stretches(
+            faces,
+            Point3::new(-half, 20.0, z),
+            Point3::new(half, 20.0, z),
+        );
+        let view = eye_at_1_5();
+        let changes = spans[..spans.len() - 1]
+            .iter()
+            .map(|span| {
+                let d = view.direction_to_site(&curve.position(span.1));
+                d.x * 20.0 / d.y
+            })
+            .collect();
+        (spans.iter().map(|span| span.2).collect(), changes)
+    }
+
+    fn assert_changes_at(changes: &[f64], expected: &[f64]) {
+        assert_eq!(changes.len(), expected.len(), "{changes:?}");
+        for (x, want) in changes.iter().zip(expected) {
+            assert!((x - want).abs() < 1e-4, "{changes:?} against {expected:?}");
+        }
     }
 
     #[test]
@@ -535,18 +552,9 @@ mod tests {
         // behind different walls, and it shows through the gap where |x| < 1.
         let mut faces = panel((-4.0, -0.5), 10.0, (0.0, 3.0), 0.0).to_vec();
         faces.extend(panel((0.5, 4.0), 10.0, (0.0, 3.0), 0.0));
-        let (spans, curve) = stretches(
-            &faces,
-            Point3::new(-6.0, 20.0, 1.0),
-            Point3::new(6.0, 20.0, 1.0),
-        );
-        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
-        assert_eq!(seen, [false, true, false], "{spans:?}");
-        let view = eye_at_1_5();
-        for (t, x) in [(spans[0].1, -1.0), (spans[1].1, 1.0)] {
-            let d = view.direction_to_site(&curve.position(t));
-            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
-        }
+        let (seen, changes) = rail(&faces, 6.0, 1.0);
+        assert_eq!(seen, [false, true, false]);
+        assert_changes_at(&changes, &[-1.0, 1.0]);
     }
 
     #[test]
@@ -554,18 +562,9 @@ mod tests {
         // The rail of the test above behind a pillar at y = 10 from x = -0.5 to 0.5: both
         // ends are seen, and the middle, where |x| < 1, is hidden.
         let faces = panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0);
-        let (spans, curve) = stretches(
-            &faces,
-            Point3::new(-6.0, 20.0, 1.0),
-            Point3::new(6.0, 20.0, 1.0),
-        );
-        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
-        assert_eq!(seen, [true, false, true], "{spans:?}");
-        let view = eye_at_1_5();
-        for (t, x) in [(spans[0].1, -1.0), (spans[1].1, 1.0)] {
-            let d = view.direction_to_site(&curve.position(t));
-            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
-        }
+        let (seen, changes) = rail(&faces, 6.0, 1.0);
+        assert_eq!(seen, [true, false, true]);
+        assert_changes_at(&changes, &[-1.0, 1.0]);
     }
 
     #[test]
@@ -578,18 +577,9 @@ mod tests {
         let mut faces = panel((-20.0, 20.0), 20.2, (0.0, 10.0), 0.0).to_vec();
         faces.extend(panel((-1.75, -1.25), 10.0, (0.0, 3.0), 0.0));
         faces.extend(panel((1.25, 1.75), 10.0, (0.0, 3.0), 0.0));
-        let (spans, curve) = stretches(
-            &faces,
-            Point3::new(-3.0, 20.0, 3.0),
-            Point3::new(3.0, 20.0, 3.0),
-        );
-        let seen: Vec<bool> = spans.iter().map(|s| s.2).collect();
-        assert_eq!(seen, [false, true, false], "{spans:?}");
-        let view = eye_at_1_5();
-        for (t, x) in [(spans[0].1, -2.5), (spans[1].1, 2.5)] {
-            let d = view.direction_to_site(&curve.position(t));
-            assert!((d.x * 20.0 / d.y - x).abs() < 1e-4, "{t}: {d:?}");
-        }
+        let (seen, changes) = rail(&faces, 3.0, 3.0);
+        assert_eq!(seen, [false, true, false]);
+        assert_changes_at(&changes, &[-2.5, 2.5]);
     }
 
     #[test]
