@@ -63,6 +63,26 @@ mod tests {
     }
 
     #[test]
+    fn a_slanting_line_away_from_the_axes_in_dashes() {
+        // From (3, 4) along (0.6, 0.8) for 10 px (a 3-4-5 triangle doubled), 2 on and 3 off:
+        // dashes over 0..2 and 5..7 px; the third would start at the very end.
+        let mut lines = PolylineSet::new();
+        lines.push(&[ImagePoint::new(3.0, 4.0), ImagePoint::new(9.0, 12.0)]);
+        let dashes = dashed(&lines, 2.0, 3.0);
+        let expected = [[(3.0, 4.0), (4.2, 5.6)], [(6.0, 8.0), (7.2, 9.6)]];
+        assert_eq!(dashes.len(), expected.len());
+        for (dash, ends) in dashes.iter().zip(expected) {
+            assert_eq!(dash.len(), 2);
+            for (p, (x, y)) in dash.iter().zip(ends) {
+                assert!(
+                    (p.x - x).abs() < 1e-12 && (p.y - y).abs() < 1e-12,
+                    "{dash:?}"
+                );
+            }
+        }
+    }
+
+    #[test]
     fn dashes_turn_corners() {
         let mut lines = PolylineSet::new();
         lines.push(&[
