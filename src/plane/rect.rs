@@ -158,10 +158,15 @@ mod tests {
     fn overlap_and_enclosure() {
         let a = Rect::from_ltrb(0.0, 0.0, 10.0, 10.0);
         assert!(a.overlaps(&Rect::from_ltrb(9.0, 9.0, 12.0, 12.0)));
-        assert!(
-            !a.overlaps(&Rect::from_ltrb(10.0, 0.0, 12.0, 12.0)),
-            "touching"
-        );
+        // Touching on any of the four sides is not overlapping.
+        for touching in [
+            Rect::from_ltrb(10.0, 0.0, 12.0, 12.0),
+            Rect::from_ltrb(-2.0, 0.0, 0.0, 10.0),
+            Rect::from_ltrb(0.0, 10.0, 10.0, 12.0),
+            Rect::from_ltrb(0.0, -2.0, 10.0, 0.0),
+        ] {
+            assert!(!a.overlaps(&touching), "{touching:?}");
+        }
         assert!(a.encloses(&Rect::from_ltrb(0.0, 2.0, 10.0, 3.0)));
         assert!(!a.encloses(&Rect::from_ltrb(-0.1, 2.0, 10.0, 3.0)));
     }
