@@ -167,6 +167,16 @@ mod tests {
         ] {
             assert!(!a.overlaps(&touching), "{touching:?}");
         }
+        // Grown by 1 on every side: 12 across and down, round the same centre.
+        let grown = Rect::from_ltrb(2.0, 3.0, 12.0, 13.0).grown(1.0);
+        assert_eq!(grown, Rect::from_ltrb(1.0, 2.0, 13.0, 14.0));
+        assert_eq!((grown.width(), grown.height()), (12.0, 12.0));
+        let [first, second, third, fourth, last] = grown.outline();
+        assert_eq!(first, last);
+        assert_eq!(
+            [first, second, third, fourth].map(|p| (p.x, p.y)),
+            [(1.0, 2.0), (13.0, 2.0), (13.0, 14.0), (1.0, 14.0)]
+        );
         assert!(a.encloses(&Rect::from_ltrb(0.0, 2.0, 10.0, 3.0)));
         assert!(!a.encloses(&Rect::from_ltrb(-0.1, 2.0, 10.0, 3.0)));
     }
