@@ -237,17 +237,16 @@ impl SphereCurve {
             }
             // The point of the circle nearest the pole is the pole's projection into the
             // plane; inside the arc only if it lies between the ends (cheap cross-product
-            // tests before any trigonometry, then the parameter's range decides). Both uses
-            // ignore a component along the normal, so the pole stands for its projection.
-            let closest = pole;
+            // tests before any trigonometry, then the parameter's range decides). Neither
+            // the tests nor the parameter see a component along the normal, so the pole
+            // itself stands for its projection.
             let (start, end) = (self.position(self.t0), self.position(self.t1));
             let inside = self.t1 - self.t0 >= std::f64::consts::PI
-                || (start.cross(&closest).dot(&normal) > 0.0
-                    && closest.cross(&end).dot(&normal) > 0.0);
+                || (start.cross(&pole).dot(&normal) > 0.0 && pole.cross(&end).dot(&normal) > 0.0);
             if !inside {
                 return Vec::new();
             }
-            let t = self.v.dot(&closest).atan2(self.u.dot(&closest));
+            let t = self.v.dot(&pole).atan2(self.u.dot(&pole));
             let t = self.t0 + wrap_turn(t - self.t0);
             return if t > self.t0 && t < self.t1 {
                 vec![(t, sine.min(1.0).asin())]
