@@ -443,6 +443,7 @@ mod tests {
 
     #[test]
     fn velocity_is_the_derivative_of_position() {
+        // Against a central difference of positions (common practice).
         let arc = SphereCurve::great_arc(&v(3.0, 4.0, 1.0), &v(-2.0, 5.0, 2.5)).unwrap();
         let h = 1e-6;
         for t in [0.1, 0.4, 0.7] {
@@ -538,33 +539,34 @@ mod tests {
         assert!(half.pole_approaches(true, 0.1).is_empty());
     }
 
+    /// The great circle whose point nearest the zenith is at t = 0, 0.01 rad from it (u
+    /// leans that far off the zenith, v is horizontal), from `t0` to `t1`.
+    fn leaning_circle(t0: f64, t1: f64) -> SphereCurve {
+        SphereCurve {
+            centre: Vector3::zeros(),
+            u: v(0.0, 0.01f64.sin(), 0.01f64.cos()),
+            v: v(1.0, 0.0, 0.0),
+            t0,
+            t1,
+            exact_end: None,
+        }
+    }
+
     #[test]
     fn an_arc_longer_than_half_a_turn_reaches_its_nearest_point() {
-        // The great circle through (0, 0.01, 1) direction and the x axis, run from t = -3.5 to
-        // 0.5: its point nearest the zenith, at t = 0, lies more than half a turn from the
-        // start, where cross products with the start no longer tell which side it is on.
-        let tilt = 0.01f64;
-        let arc = SphereCurve {
-            centre: Vector3::zeros(),
-            u: v(0.0, tilt.sin(), tilt.cos()),
-            v: v(1.0, 0.0, 0.0),
-            t0: -3.5,
-            t1: 0.5,
-            exact_end: None,
-        };
-        let found = arc.pole_approaches(true, 0.1);
+        // The leaning circle from t = -3.5 to 0.5: its point nearest the zenith, at t = 0,
+        // lies more than half a turn from the start, where cross products with the start no
+        // longer tell which side it is on.
+        let found = leaning_circle(-3.5, 0.5).pole_approaches(true, 0.1);
         assert_eq!(found.len(), 1);
         assert!(
-            found[0].0.abs() < 1e-15 && (found[0].1 - tilt).abs() < 1e-15,
+            found[0].0.abs() < 1e-15 && (found[0].1 - 0.01).abs() < 1e-15,
             "{found:?}"
         );
         // The rest of the circle, from t = 0.5 to 4, is as long and passes no nearest point.
-        let rest = SphereCurve {
-            t0: 0.5,
-            t1: 4.0,
-            ..arc
-        };
-        assert!(rest.pole_approaches(true, 0.1).is_empty());
+        assert!(leaning_circle(0.5, 4.0)
+            .pole_approaches(true, 0.1)
+            .is_empty());
     }
 
     #[test]
@@ -673,19 +675,17 @@ mod tests {
 
     #[test]
     fn a_nearest_point_at_an_end_of_the_range_is_not_inside_it() {
-        // The great circle whose point nearest the zenith is at t = 0 (u leans 0.01 rad off
-        // the zenith, v is horizontal), on ranges longer than half a turn that start or
-        // end exactly there.
-        let circle = |t0: f64, t1: f64| SphereCurve {
-            centre: Vector3::zeros(),
-            u: v(0.0, 0.01f64.sin(), 0.01f64.cos()),
-            v: v(1.0, 0.0, 0.0),
-            t0,
-            t1,
-            exact_end: None,
-        };
-        assert_eq!(circle(-0.5, 4.0).pole_approaches(true, 0.1).len(), 1);
-        assert!(circle(0.0, 4.0).pole_approaches(true, 0.1).is_empty());
-        assert!(circle(-4.0, 0.0).pole_approaches(true, 0.1).is_empty());
+        // The leaning circle on ranges longer than half a turn that start or end exactly
+        // at its point nearest the zenith.
+        assert_eq!(
+            leaning_circle(-0.5, 4.0).pole_approaches(true, 0.1).len(),
+            1
+        );
+        assert!(leaning_circle(0.0, 4.0)
+            .pole_approaches(true, 0.1)
+            .is_empty());
+        assert!(leaning_circle(-4.0, 0.0)
+            .pole_approaches(true, 0.1)
+            .is_empty());
     }
 }
