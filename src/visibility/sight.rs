@@ -405,19 +405,7 @@ mod tests {
     fn wall(rows: usize) -> Vec<Face> {
         let height = |k: usize| 3.0 * k as f64 / rows as f64;
         (0..rows)
-            .flat_map(|k| {
-                let (low, high) = (height(k), height(k + 1));
-                let corner = |x: f64, z: f64| Point3::new(x, 10.0, z);
-                [
-                    [corner(-2.0, low), corner(2.0, low), corner(2.0, high)],
-                    [corner(-2.0, low), corner(2.0, high), corner(-2.0, high)],
-                ]
-            })
-            .map(|corners| Face {
-                corners,
-                item: ItemId(0),
-                slack: 0.0,
-            })
+            .flat_map(|k| panel((-2.0, 2.0), 10.0, (height(k), height(k + 1)), 0.0))
             .collect()
     }
 
