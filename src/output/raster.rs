@@ -22,11 +22,14 @@
 //! that reach into it and hands it to the calling thread, which passes the bands on in order, to
 //! the PNG encoder in `render_png`, and returns the buffer to the pool. So encoding overlaps
 //! rasterising, memory does not grow with the image (a few bands, not the whole canvas), and
-//! the buffers are reused rather than page-faulted in afresh. Along a row the distance to a
-//! segment's line is linear in the column; rows of steep strokes away from their ends take a
-//! short loop of their own. Strokes reaching past the left or right border wrap to the other
-//! side. Hot loops use casts instead of `floor`/`ceil`/`round` (library calls on the baseline
-//! x86-64 target).
+//! the buffers are reused rather than page-faulted in afresh. Pixels are worked four at a
+//! time in `f32` lanes (`wide`'s `f32x4`: one SSE register on x86-64, NEON on ARM), the
+//! distance to a segment as its distance across the line and beyond the nearer end added in
+//! quadrature. Rows of steep strokes away from their ends, most rows of a wireframe, take a
+//! short path of their own: four pixels around the line, their distance the horizontal
+//! offset times the slope's sine.
+//! Strokes reaching past the left or right border wrap to the other side. Hot loops use
+//! casts instead of `floor`/`ceil`/`round` (library calls on the baseline x86-64 target).
 //!
 //! `output::rasterize` (the whole canvas at once) is built on the same banded routine; the
 //! golden tests use it.
@@ -38,6 +41,7 @@
 
 use crate::drawing::{Drawing, Stroke};
 use crate::plane::ImagePoint;
+use wide::f32x4;
 
 /// The largest image pansite draws: 500 megapixels.
 pub const MAX_PIXELS: u64 = 500_000_000;
@@ -259,47 +263,49 @@ struct StrokesByBand {
 
 fn strokes_by_band(drawing: &Drawing, pens: &[Pen]) -> StrokesByBand {
     let bands = (drawing.height as usize).div_ceil(BAND_ROWS);
-    let band_range = |a: ImagePoint, b: ImagePoint, reach: f64| {
-        let first = ((a.y.min(b.y) - reach).max(0.0) as usize / BAND_ROWS).min(bands);
-        let last = ((a.y.max(b.y) + reach).max(0.0) as usize / BAND_ROWS + 1).min(bands);
-        first..last.max(first)
-    };
-    let strokes = || {
-        let stroked = drawing.layers.iter().enumerate().filter(|(_, l)| !l.filled);
-        stroked.flat_map(|(layer, l)| {
-            let points = l.lines.points();
-            let reach = pens[layer].reach;
-            l.lines.segment_indices().map(move |(from, to)| {
-                let range = band_range(points[from as usize], points[to as usize], reach);
-                (
-                    StrokeRef {
-                        layer: layer as u32,
-                        from,
-                        to,
-                    },
-                    range,
-                )
-            })
-        })
-    };
-    let mut starts = vec![0usize; bands + 1];
-    for (_, range) in strokes() {
-        for band in range {
-            starts[band + 1] += 1;
+    // Each segment's bands, found once; and how many segments start and stop reaching
+    // into each band, summed below into each band's count.
+    let mut reaching: Vec<(StrokeRef, u32, u32)> = Vec::new();
+    let mut changes = vec![0isize; bands + 1];
+    for (layer, l) in drawing.layers.iter().enumerate() {
+        if l.filled {
+            continue;
+        }
+        let points = l.lines.points();
+        let reach = pens[layer].reach;
+        for (from, to) in l.lines.segment_indices() {
+            let (a, b) = (points[from as usize], points[to as usize]);
+            let first = ((a.y.min(b.y) - reach).max(0.0) as usize / BAND_ROWS).min(bands);
+            let last = ((a.y.max(b.y) + reach).max(0.0) as usize / BAND_ROWS + 1)
+                .min(bands)
+                .max(first);
+            changes[first] += 1;
+            changes[last] -= 1;
+            let stroke = StrokeRef {
+                layer: layer as u32,
+                from,
+                to,
+            };
+            reaching.push((stroke, first as u32, last as u32));
         }
     }
-    for i in 0..bands {
-        starts[i + 1] += starts[i];
+    let mut starts = Vec::with_capacity(bands + 1);
+    let (mut start, mut count) = (0usize, 0isize);
+    for change in &changes[..bands] {
+        starts.push(start);
+        count += change;
+        start += count as usize;
     }
+    starts.push(start);
     let mut fill = starts.clone();
     let placeholder = StrokeRef {
         layer: 0,
         from: 0,
         to: 0,
     };
-    let mut entries = vec![placeholder; starts[bands]];
-    for (stroke, range) in strokes() {
-        for band in range {
+    let mut entries = vec![placeholder; start];
+    for &(stroke, first, last) in &reaching {
+        for band in first as usize..last as usize {
             entries[fill[band]] = stroke;
             fill[band] += 1;
         }
@@ -320,10 +326,10 @@ struct Segment {
     right: f64,
     top: f64,
     bottom: f64,
-    /// `b - a`, its unit direction and `1 / |b - a|^2` (0 for a dot).
-    d: (f64, f64),
+    /// The unit direction from `a` to `b` and the length; a dot (no length) takes `(1, 0)`,
+    /// for which the distance to the segment is the distance to its point all the same.
     unit: (f64, f64),
-    inverse_length_sq: f64,
+    length: f64,
     /// How far the line moves in x per row (`dx / dy`), and half the width in x of the strip
     /// within `reach` of the line (`reach / |uy|`; infinite for a horizontal line).
     x_per_row: f64,
@@ -334,12 +340,11 @@ impl Segment {
     fn new(a: ImagePoint, b: ImagePoint, pen: Pen) -> Segment {
         let Pen { reach, ink } = pen;
         let d = (b.x - a.x, b.y - a.y);
-        let length_sq = d.0 * d.0 + d.1 * d.1;
-        let length = length_sq.sqrt();
-        let (unit, inverse_length_sq) = if length_sq > 0.0 {
-            ((d.0 / length, d.1 / length), 1.0 / length_sq)
+        let length = d.0.hypot(d.1);
+        let unit = if length > 0.0 {
+            (d.0 / length, d.1 / length)
         } else {
-            ((0.0, 0.0), 0.0)
+            (1.0, 0.0)
         };
         Segment {
             a,
@@ -350,9 +355,8 @@ impl Segment {
             right: a.x.max(b.x) + reach,
             top: a.y.min(b.y) - reach,
             bottom: a.y.max(b.y) + reach,
-            d,
             unit,
-            inverse_length_sq,
+            length,
             x_per_row: if d.1 != 0.0 { d.0 / d.1 } else { 0.0 },
             half_strip: if unit.1 != 0.0 {
                 reach / unit.1.abs()
@@ -383,6 +387,49 @@ impl Segment {
             (x_on_line - self.half_strip).max(self.left),
             (x_on_line + self.half_strip).min(self.right),
         )
+    }
+}
+
+/// Pixels of a row worked at once, in the four `f32` lanes of one SSE register (NEON on
+/// ARM) through `wide`'s `f32x4`.
+const LANES: usize = 4;
+
+/// A segment's coverage rule in `f32` lanes, for points given relative to its start `a`.
+///
+/// `f32` is ample here: the offsets are at most an image width (2^15 px for the widest
+/// 500-megapixel panorama), so their 24-bit significands keep 2^-9 px or better, and the
+/// coverage, one grey level for 1/255 px of distance, moves by about half a level at worst.
+#[derive(Clone, Copy)]
+struct CapsuleLanes {
+    ux: f32x4,
+    uy: f32x4,
+    length: f32x4,
+    reach: f32x4,
+}
+
+impl CapsuleLanes {
+    fn of(s: &Segment) -> CapsuleLanes {
+        CapsuleLanes {
+            ux: f32x4::splat(s.unit.0 as f32),
+            uy: f32x4::splat(s.unit.1 as f32),
+            length: f32x4::splat(s.length as f32),
+            reach: f32x4::splat(s.reach as f32),
+        }
+    }
+
+    /// The coverage `clamp(reach - d, 0, 1)` of four points `(x, y)` relative to the
+    /// segment's start, `d` their distance to the segment: the distance across its line
+    /// and the distance beyond its nearer end along it, added in quadrature (the distance
+    /// to a capsule's core segment, by Pythagoras).
+    fn coverage(&self, x: f32x4, y: f32x4) -> f32x4 {
+        let zero = f32x4::splat(0.0);
+        let along = x * self.ux + y * self.uy;
+        let across = x * self.uy - y * self.ux;
+        let beyond = (along - self.length).fast_max(-along).fast_max(zero);
+        let distance = (across * across + beyond * beyond).sqrt();
+        (self.reach - distance)
+            .fast_max(zero)
+            .fast_min(f32x4::splat(1.0))
     }
 }
 
@@ -498,27 +545,15 @@ impl<const C: usize> Band<'_, C> {
         // this loop: they saturate at zero and compile to single instructions.)
         let first_row = (s.top.max(0.0) as usize).max(self.top);
         let end_row = (s.bottom.max(0.0) as usize + 1).min(self.top + band_rows);
-        let ((dx, dy), (ux, uy)) = (s.d, s.unit);
-        let is_dot = s.inverse_length_sq == 0.0;
-        // Rows of a steep stroke away from its ends (by the reach, in y) hold only pixels
-        // beside the segment, where the distance is the horizontal offset from the line
-        // times |uy|: a few pixels a row, drawn by a short loop (most rows of a wireframe).
-        let steep = !is_dot && uy.abs() >= ux.abs();
-        let (inner_top, inner_bottom) = (s.a.y.min(s.b.y) + s.reach, s.a.y.max(s.b.y) - s.reach);
-        let sine = uy.abs();
+        let capsule = CapsuleLanes::of(s);
+        let steep = SteepRows::of(s);
+        let steps = f32x4::from([0.0, 1.0, 2.0, 3.0]);
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
-            if steep && cy >= inner_top && cy <= inner_bottom {
-                let x_on_line = s.a.x + (cy - s.a.y) * s.x_per_row;
-                let start = ceil_at_least_zero(x_on_line - s.half_strip - 0.5);
-                let end =
-                    (((x_on_line + s.half_strip - 0.5).max(-1.0) + 1.0) as usize).min(self.width);
-                let offset = (row - self.top) * self.width;
-                for column in start..end.max(start) {
-                    let distance = (column as f64 + 0.5 - x_on_line).abs() * sine;
-                    let at = (offset + column) * C;
-                    ink::<C>(&mut self.rows[at..at + C], s.reach - distance, &s.ink);
-                }
+            let offset = (row - self.top) * self.width;
+            if let Some((first, coverage)) = steep.as_ref().and_then(|s| s.row(cy, self.width)) {
+                let at = (offset + first) * C;
+                ink_lanes::<C>(&mut self.rows[at..at + LANES * C], coverage, &s.ink);
                 continue;
             }
             let (x0, x1) = s.row_span(cy);
@@ -528,87 +563,106 @@ impl<const C: usize> Band<'_, C> {
             if start >= end {
                 continue;
             }
-            let offset = (row - self.top) * self.width;
-            let py = cy - s.a.y;
-            // Along the row, the parameter of the nearest point on the segment's line and the
-            // signed distance to that line are linear in the column.
-            let x_first = start as f64 + 0.5 - s.a.x;
-            let t_first = (x_first * dx + py * dy) * s.inverse_length_sq;
-            let step_t = dx * s.inverse_length_sq;
-            let across_first = x_first * uy - py * ux;
             let pixels = &mut self.rows[offset * C..(offset + self.width) * C];
-            let t_last = t_first + (end - 1 - start) as f64 * step_t;
-            if !is_dot && (0.0..=1.0).contains(&t_first) && (0.0..=1.0).contains(&t_last) {
-                // The whole row is beside the segment, not beyond an end: the distance is
-                // |across| throughout (most rows of most strokes).
-                for (k, pixel) in pixels[start * C..end * C].chunks_exact_mut(C).enumerate() {
-                    ink::<C>(
-                        pixel,
-                        s.reach - (across_first + k as f64 * uy).abs(),
-                        &s.ink,
-                    );
-                }
-                continue;
-            }
-            // Columns whose nearest point lies between the ends (the strip, where the distance
-            // is |across|), found from the linear t; the rest are near an end point.
-            let (strip_start, strip_end) = if is_dot {
-                (start, start)
-            } else {
-                strip_columns(start, end, t_first, step_t)
-            };
-            for column in (start..strip_start).chain(strip_end..end) {
-                let t = t_first + (column - start) as f64 * step_t;
-                let end_point = if t > 0.5 { s.b } else { s.a };
-                let (ex, ey) = (column as f64 + 0.5 - end_point.x, cy - end_point.y);
-                ink::<C>(
-                    &mut pixels[column * C..column * C + C],
-                    s.reach - (ex * ex + ey * ey).sqrt(),
+            let x_start = (start as f64 + 0.5 - s.a.x) as f32;
+            let y = f32x4::splat((cy - s.a.y) as f32);
+            // Whole groups of four: the last may reach past `end`, harmlessly (those pixels
+            // lie beyond the capsule, at zero coverage), but not past the row.
+            for first in (start..end).step_by(LANES) {
+                let x = f32x4::splat(x_start + (first - start) as f32) + steps;
+                let last = (first + LANES).min(self.width);
+                ink_lanes::<C>(
+                    &mut pixels[first * C..last * C],
+                    capsule.coverage(x, y),
                     &s.ink,
                 );
             }
-            let strip = &mut pixels[strip_start * C..strip_end * C];
-            for (k, pixel) in strip.chunks_exact_mut(C).enumerate() {
-                let across = across_first + (strip_start - start + k) as f64 * uy;
-                ink::<C>(pixel, s.reach - across.abs(), &s.ink);
+        }
+    }
+}
+
+/// The rows of a steep segment (at least as tall as it is wide) away from its ends, where
+/// every pixel within reach lies beside the segment rather than beyond an end: there the
+/// distance to it is the horizontal offset from its line times `|uy|` (the sine of the
+/// line's slope), and the pixels a row can reach number four at most for a line up to a
+/// pixel wide (the strip within reach is `2 reach / |uy|`, at most `2 sqrt 2` px wide).
+/// Most rows of a wireframe are such rows, so they get this short path of their own.
+struct SteepRows {
+    /// Rows whose centres lie within these y are at least `reach` from both ends.
+    inner: (f64, f64),
+    a: ImagePoint,
+    x_per_row: f64,
+    half_strip: f64,
+    sine: f32x4,
+    reach: f32x4,
+}
+
+impl SteepRows {
+    /// The widest strip the four lanes hold: `2 x 2` px.
+    const MOST_HALF_STRIP: f64 = 2.0;
+
+    fn of(s: &Segment) -> Option<SteepRows> {
+        let (ux, uy) = s.unit;
+        let steep = s.length > 0.0 && uy.abs() >= ux.abs();
+        (steep && s.half_strip <= Self::MOST_HALF_STRIP).then(|| SteepRows {
+            inner: (s.a.y.min(s.b.y) + s.reach, s.a.y.max(s.b.y) - s.reach),
+            a: s.a,
+            x_per_row: s.x_per_row,
+            half_strip: s.half_strip,
+            sine: f32x4::splat(uy.abs() as f32),
+            reach: f32x4::splat(s.reach as f32),
+        })
+    }
+
+    /// For the row through `y`, if it is one of these rows and its four pixels fit inside
+    /// a row of `width`: the first of the four columns, and their coverage.
+    fn row(&self, y: f64, width: usize) -> Option<(usize, f32x4)> {
+        if y < self.inner.0 || y > self.inner.1 {
+            return None;
+        }
+        let x_on_line = self.a.x + (y - self.a.y) * self.x_per_row;
+        // The first column whose centre lies beyond x_on_line - half_strip (one on the
+        // limit itself has no coverage, so flooring the next is enough).
+        let left = x_on_line - self.half_strip + 0.5;
+        if left < 0.0 {
+            return None;
+        }
+        let first = left as usize;
+        if first + LANES > width {
+            return None;
+        }
+        let offsets = f32x4::splat((first as f64 + 0.5 - x_on_line) as f32)
+            + f32x4::from([0.0, 1.0, 2.0, 3.0]);
+        let coverage = (self.reach - offsets.abs() * self.sine)
+            .fast_max(f32x4::splat(0.0))
+            .fast_min(f32x4::splat(1.0));
+        Some((first, coverage))
+    }
+}
+
+/// Darkens each channel of up to four pixels to `255 - coverage * ink`, rounded, where that
+/// is darker; a negative ink (white, a halo) lightens them towards white instead.
+#[inline(always)]
+fn ink_lanes<const C: usize>(pixels: &mut [u8], coverage: f32x4, ink: &[f64; 3]) {
+    for (channel, &value) in ink.iter().take(C).enumerate() {
+        if value >= 0.0 {
+            // 255.5 - coverage * ink lies in [0.5, 255.5] for an ink of at most 255; the
+            // truncation rounds it.
+            let shades = (f32x4::splat(255.5) - coverage * f32x4::splat(value as f32))
+                .fast_max(f32x4::splat(0.0))
+                .fast_trunc_int()
+                .to_array();
+            for (pixel, shade) in pixels.chunks_exact_mut(C).zip(shades) {
+                pixel[channel] = pixel[channel].min(shade as u8);
+            }
+        } else {
+            // Knock-out: towards white by the coverage.
+            for (pixel, coverage) in pixels.chunks_exact_mut(C).zip(coverage.to_array()) {
+                let c = pixel[channel] as f64;
+                pixel[channel] = (c + (255.0 - c) * coverage as f64 * (-value / 255.0) + 0.5) as u8;
             }
         }
     }
-}
-
-/// Darkens each channel of a pixel to `255 - clamp(coverage) * ink`, rounded, if that is
-/// darker; a negative ink (white, a halo) lightens it towards white instead.
-#[inline(always)]
-fn ink<const C: usize>(pixel: &mut [u8], coverage: f64, ink: &[f64; 3]) {
-    let coverage = coverage.clamp(0.0, 1.0);
-    for (channel, value) in pixel.iter_mut().zip(ink) {
-        if *value >= 0.0 {
-            *channel = (*channel).min((255.5 - coverage * value) as u8);
-        } else {
-            // Knock-out: towards white by the coverage.
-            let c = *channel as f64;
-            *channel = (c + (255.0 - c) * coverage * (-value / 255.0) + 0.5) as u8;
-        }
-    }
-}
-
-/// The columns in `start..end` where `t_first + (column - start) * step_t` lies in `[0, 1]`.
-fn strip_columns(start: usize, end: usize, t_first: f64, step_t: f64) -> (usize, usize) {
-    if step_t == 0.0 {
-        return if (0.0..=1.0).contains(&t_first) {
-            (start, end)
-        } else {
-            (start, start)
-        };
-    }
-    // t(k) = t_first + k step_t for k = column - start; the k where 0 <= t <= 1.
-    let (k0, k1) = ((0.0 - t_first) / step_t, (1.0 - t_first) / step_t);
-    let (k_low, k_high) = (k0.min(k1), k0.max(k1));
-    let count = (end - start) as f64;
-    let first = ceil_at_least_zero(k_low).min(end - start);
-    let last = ((k_high.min(count - 1.0)).max(-1.0) + 1.0) as usize;
-    let last = last.max(first).min(end - start);
-    (start + first, start + last)
 }
 
 /// `ceil(v)` for the pixel loop, clamped at zero.
@@ -647,6 +701,198 @@ mod tests {
             }],
         };
         rasterize(&drawing)
+    }
+
+    /// The coverage rule worked directly for one pixel centre, in f64: the distance to the
+    /// segment by projecting onto it and clamping to its ends (the textbook point-segment
+    /// distance), without the rasteriser's rows, strips or lanes.
+    fn coverage_by_the_rule(p: (f64, f64), a: (f64, f64), b: (f64, f64), reach: f64) -> f64 {
+        let d = (b.0 - a.0, b.1 - a.1);
+        let length_sq = d.0 * d.0 + d.1 * d.1;
+        let t = if length_sq > 0.0 {
+            (((p.0 - a.0) * d.0 + (p.1 - a.1) * d.1) / length_sq).clamp(0.0, 1.0)
+        } else {
+            0.0
+        };
+        let distance = (p.0 - a.0 - t * d.0).hypot(p.1 - a.1 - t * d.1);
+        (reach - distance).clamp(0.0, 1.0)
+    }
+
+    #[test]
+    fn every_pixel_follows_the_coverage_rule_worked_directly() {
+        // Steep, shallow, diagonal and upright segments, short and long, a dot, widths
+        // from a hairline to three pixels: every pixel of the canvas against the rule.
+        let segments: [((f64, f64), (f64, f64)); 9] = [
+            ((10.3, 2.0), (12.9, 60.0)),
+            ((2.0, 40.2), (61.0, 47.7)),
+            ((5.0, 5.0), (40.0, 40.0)),
+            ((30.5, 10.0), (30.5, 20.0)),
+            ((50.0, 50.0), (52.0, 58.5)),
+            ((20.25, 55.75), (20.25, 55.75)),
+            ((44.0, 3.0), (41.0, 7.0)),
+            ((60.0, 30.0), (58.2, 12.4)),
+            ((3.3, 20.0), (9.1, 21.0)),
+        ];
+        for width_px in [0.5, 1.0, 1.5, 2.0, 3.0] {
+            for &(a, b) in &segments {
+                let canvas = canvas_with(&[&[a, b]], width_px, (64, 64));
+                let reach = width_px.max(1.0) / 2.0 + 0.5;
+                let ink = 255.0 * width_px.min(1.0);
+                for y in 0..64 {
+                    for x in 0..64 {
+                        let p = (x as f64 + 0.5, y as f64 + 0.5);
+                        let expected = 255.0 - coverage_by_the_rule(p, a, b, reach) * ink;
+                        let got = canvas.pixel(x, y) as f64;
+                        assert!(
+                            (got - expected).abs() <= 0.5 + 1e-3,
+                            "segment {a:?}-{b:?} at width {width_px}: pixel ({x}, {y}) is \
+                             {got}, the rule gives {expected:.3}"
+                        );
+                    }
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_capsule_covers_by_its_distance_across_and_beyond_the_ends() {
+        // The 3-4-5 segment from the origin, for a pen reaching 1 px.
+        let pen = Pen {
+            reach: 1.0,
+            ink: [255.0; 3],
+        };
+        let segment = Segment::new(ImagePoint::new(0.0, 0.0), ImagePoint::new(3.0, 4.0), pen);
+        let capsule = CapsuleLanes::of(&segment);
+        // Beside its middle (1.5, 2) by 0.5 along the normal (0.8, -0.6); 0.5 before its
+        // start, straight back; past its end (3, 4) by 0.3 along and 0.4 across, 0.5 from
+        // it by the 3-4-5 triangle again; far away.
+        let xs = [1.5 + 0.4, -0.3, 3.0 + 0.3 * 0.6 + 0.4 * 0.8, 40.0];
+        let ys = [2.0 - 0.3, -0.4, 4.0 + 0.3 * 0.8 - 0.4 * 0.6, 0.0];
+        let coverage = capsule
+            .coverage(
+                f32x4::from(xs.map(|x| x as f32)),
+                f32x4::from(ys.map(|y| y as f32)),
+            )
+            .to_array();
+        for (got, expected) in coverage.iter().zip([0.5, 0.5, 0.5, 0.0]) {
+            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
+        }
+        // A dot: the distance to its point, whichever way the lanes look.
+        let dot = Segment::new(ImagePoint::new(2.0, 2.0), ImagePoint::new(2.0, 2.0), pen);
+        let coverage = CapsuleLanes::of(&dot)
+            .coverage(
+                f32x4::from([0.3, -0.3, 0.0, 0.6]),
+                f32x4::from([0.4, -0.4, -0.75, 0.8]),
+            )
+            .to_array();
+        for (got, expected) in coverage.iter().zip([0.5, 0.5, 0.25, 0.0]) {
+            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
+        }
+    }
+
+    #[test]
+    fn a_steep_row_takes_four_pixels_around_the_line() {
+        let pen = Pen {
+            reach: 1.0,
+            ink: [255.0; 3],
+        };
+        // An upright line at x = 10.3: the row through y = 50.5 reaches columns 9 and 10
+        // (centres 0.8 and 0.2 from the line), the four starting at column 9.
+        let upright = Segment::new(
+            ImagePoint::new(10.3, 0.0),
+            ImagePoint::new(10.3, 100.0),
+            pen,
+        );
+        let rows = SteepRows::of(&upright).expect("an upright line is steep");
+        let (first, coverage) = rows.row(50.5, 100).expect("a row beside the line");
+        assert_eq!(first, 9);
+        for (got, expected) in coverage.to_array().iter().zip([0.2, 0.8, 0.0, 0.0]) {
+            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
+        }
+        // A row within reach of an end, or whose four pixels would leave the row, goes the
+        // general way.
+        assert!(rows.row(0.5, 100).is_none());
+        assert!(rows.row(99.5, 100).is_none());
+        assert!(rows.row(50.5, 12).is_none());
+        let at_the_border =
+            Segment::new(ImagePoint::new(0.2, 0.0), ImagePoint::new(0.2, 100.0), pen);
+        assert!(SteepRows::of(&at_the_border)
+            .unwrap()
+            .row(50.5, 100)
+            .is_none());
+        // At 45 degrees the strip is 2 sqrt 2 px wide: centres 1, 0, 1 and 2 px off the line
+        // in x, 1/sqrt 2 times that across it.
+        let diagonal = Segment::new(
+            ImagePoint::new(0.0, 0.0),
+            ImagePoint::new(100.0, 100.0),
+            pen,
+        );
+        let (first, coverage) = SteepRows::of(&diagonal).unwrap().row(50.5, 100).unwrap();
+        assert_eq!(first, 49);
+        let off = 0.5f32.sqrt();
+        for (got, expected) in coverage
+            .to_array()
+            .iter()
+            .zip([1.0 - off, 1.0, 1.0 - off, 0.0])
+        {
+            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
+        }
+        // Shallow lines, and lines too thick for four pixels a row, are not steep rows.
+        let shallow = Segment::new(ImagePoint::new(0.0, 0.0), ImagePoint::new(100.0, 99.0), pen);
+        assert!(SteepRows::of(&shallow).is_none());
+        let thick = Pen {
+            reach: 2.5,
+            ink: [255.0; 3],
+        };
+        let thick = Segment::new(
+            ImagePoint::new(10.0, 0.0),
+            ImagePoint::new(10.0, 100.0),
+            thick,
+        );
+        assert!(SteepRows::of(&thick).is_none());
+    }
+
+    #[test]
+    fn a_white_halo_lightens_what_is_under_it_by_its_coverage() {
+        // A black line 3 px wide down column 20 (columns 19 to 21 fully covered), and over
+        // it a white hairline at half strength along row 30 and one at full strength along
+        // row 40, 0.25 px off its row's centre (coverage 0.75).
+        let layer = |colour: [u8; 3], opacity: f64, width_px: f64, line: &[(f64, f64)]| {
+            let mut lines = PolylineSet::new();
+            let points: Vec<ImagePoint> =
+                line.iter().map(|&(x, y)| ImagePoint::new(x, y)).collect();
+            lines.push(&points);
+            Layer {
+                filled: false,
+                text: None,
+                name: "test".to_owned(),
+                stroke: Stroke {
+                    colour,
+                    opacity,
+                    width_px,
+                },
+                lines,
+            }
+        };
+        let drawing = Drawing {
+            width: 40,
+            height: 64,
+            layers: vec![
+                layer([0, 0, 0], 1.0, 3.0, &[(20.5, 0.0), (20.5, 64.0)]),
+                layer([255, 255, 255], 0.5, 1.0, &[(0.0, 30.5), (40.0, 30.5)]),
+                layer([255, 255, 255], 1.0, 1.0, &[(0.0, 40.75), (40.0, 40.75)]),
+            ],
+        };
+        let canvas = rasterize(&drawing);
+        for column in 19..=21 {
+            assert_eq!(canvas.pixel(column, 29), 0);
+            // Black lightened halfway to white: 0 + 255 x 0.5, rounded.
+            assert_eq!(canvas.pixel(column, 30), 128);
+            // Three quarters of the way: 255 x 0.75 = 191.25.
+            assert_eq!(canvas.pixel(column, 40), 191);
+        }
+        // White over white paper stays white.
+        assert_eq!(canvas.pixel(5, 30), 255);
     }
 
     #[test]
