@@ -340,7 +340,7 @@ impl Segment {
     fn new(a: ImagePoint, b: ImagePoint, pen: Pen) -> Segment {
         let Pen { reach, ink } = pen;
         let d = (b.x - a.x, b.y - a.y);
-        let length = d.0.hypot(d.1);
+        let length = (d.0 * d.0 + d.1 * d.1).sqrt();
         let unit = if length > 0.0 {
             (d.0 / length, d.1 / length)
         } else {
@@ -567,15 +567,15 @@ impl<const C: usize> Band<'_, C> {
             let x_start = (start as f64 + 0.5 - s.a.x) as f32;
             let y = f32x4::splat((cy - s.a.y) as f32);
             // Whole groups of four: the last may reach past `end`, harmlessly (those pixels
-            // lie beyond the capsule, at zero coverage), but not past the row.
+            // lie beyond the capsule, at zero coverage), but not past the row. (A group of
+            // exactly four is inked in one go: its length known, the compiler vectorises.)
             for first in (start..end).step_by(LANES) {
                 let x = f32x4::splat(x_start + (first - start) as f32) + steps;
-                let last = (first + LANES).min(self.width);
-                ink_lanes::<C>(
-                    &mut pixels[first * C..last * C],
-                    capsule.coverage(x, y),
-                    &s.ink,
-                );
+                let coverage = capsule.coverage(x, y);
+                match pixels.get_mut(first * C..(first + LANES) * C) {
+                    Some(four) => ink_lanes::<C>(four, coverage, &s.ink),
+                    None => ink_lanes::<C>(&mut pixels[first * C..], coverage, &s.ink),
+                }
             }
         }
     }
