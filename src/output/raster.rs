@@ -584,9 +584,10 @@ impl<const C: usize> Band<'_, C> {
 /// The rows of a steep segment (at least as tall as it is wide) away from its ends, where
 /// every pixel within reach lies beside the segment rather than beyond an end: there the
 /// distance to it is the horizontal offset from its line times `|uy|` (the sine of the
-/// line's slope), and the pixels a row can reach number four at most for a line up to a
-/// pixel wide (the strip within reach is `2 reach / |uy|`, at most `2 sqrt 2` px wide).
-/// Most rows of a wireframe are such rows, so they get this short path of their own.
+/// line's slope). The strip within reach, `2 reach / |uy|` wide, holds at most four pixel
+/// centres while it is at most 4 px wide: always for a line up to a pixel wide (at most
+/// `2 sqrt 2` px), and for wider lines when steep enough. Most rows of a wireframe are
+/// such rows, so they get this short path of their own.
 struct SteepRows {
     /// Rows whose centres lie within these y are at least `reach` from both ends.
     inner: (f64, f64),
@@ -598,7 +599,7 @@ struct SteepRows {
 }
 
 impl SteepRows {
-    /// The widest strip the four lanes hold: `2 x 2` px.
+    /// Half the widest strip whose pixel centres four lanes always hold: 4 px in all.
     const MOST_HALF_STRIP: f64 = 2.0;
 
     fn of(s: &Segment) -> Option<SteepRows> {
