@@ -31,7 +31,14 @@ pub fn area_outlines(
     let mut pieces = PolylineSet::new();
     for k in 0..corners.len() {
         let (a, b) = (corners[k], corners[(k + 1) % corners.len()]);
-        let Some(arc) = SphereCurve::great_arc(&view.to_view(&a), &view.to_view(&b)) else {
+        let (ends_a, ends_b) = (view.to_view(&a), view.to_view(&b));
+        let Some(arc) = SphereCurve::great_arc(&ends_a, &ends_b) else {
+            // A side with an end at the eye, or through it, puts the polygon in a plane
+            // through the eye: seen edge-on, it covers nothing (its other sides would
+            // close into a sliver). A side seen end-on is only skipped.
+            if ends_a.dot(&ends_b) <= 0.0 {
+                return Vec::new();
+            }
             continue;
         };
         pieces = PolylineSet::new();
@@ -384,5 +391,28 @@ mod tests {
         assert!(area_outlines(&view, &mut flattener, &eye).is_empty());
         let level = square_at(0.0, 6.0, 1.5, false);
         assert!(area_outlines(&view, &mut flattener, &level).is_empty());
+    }
+
+    #[test]
+    fn a_triangle_with_a_corner_or_a_side_at_the_eye_is_seen_edge_on() {
+        // The eye lies in its plane, so it is seen edge-on and covers nothing; but the one
+        // or two sides not through the eye still draw a curve, and closing that curve by
+        // a straight chord on the image would fill the sliver between them.
+        let view = view();
+        let map = Equirect::from_size_px(360.0, 180.0);
+        let mut flattener = Flattener::new(map, 0.1);
+        let eye = view.eye();
+        // A corner at the eye, the other two on the ground 5 m ahead, 6 m apart.
+        let corner = [eye, Point3::new(3.0, 5.0, 0.0), Point3::new(-3.0, 5.0, 0.0)];
+        assert!(area_outlines(&view, &mut flattener, &corner).is_empty());
+        // The eye in the middle of a side, 4 m west to 4 m east of it, the third corner on
+        // the ground 5 m ahead: the other two sides run along one great circle, through
+        // due west, 16.7 degrees below due north and due east.
+        let side = [
+            Point3::new(-4.0, 0.0, 1.5),
+            Point3::new(4.0, 0.0, 1.5),
+            Point3::new(0.0, 5.0, 0.0),
+        ];
+        assert!(area_outlines(&view, &mut flattener, &side).is_empty());
     }
 }
