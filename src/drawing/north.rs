@@ -223,4 +223,145 @@ mod tests {
         let expected = 0.9 * 15.0 + 0.35 * 4.0 + text_width(TRUE_NORTH, letter);
         assert!((east_w - expected).abs() < 1e-9, "{east_w} vs {expected}");
     }
+
+    #[test]
+    fn the_ring_is_a_circle_of_the_radius_round_the_centre() {
+        // 48 equal steps of 7.5 degrees, closed, starting due right of the centre; each
+        // chord 2 r sin(3.75 degrees) long.
+        let (centre, radius) = (ImagePoint::new(120.0, 80.0), 10.0);
+        let key = north_key(centre, radius, 4.0, 0.0);
+        let ring = key.lines.iter().next().unwrap();
+        assert_eq!(ring.len(), 49);
+        assert_eq!(ring[0], ImagePoint::new(130.0, 80.0));
+        assert!((ring[48].x - 130.0).abs() < 1e-9 && (ring[48].y - 80.0).abs() < 1e-9);
+        let chord = 2.0 * radius * 3.75f64.to_radians().sin();
+        for (k, p) in ring.iter().enumerate() {
+            assert!(
+                ((p.x - 120.0).hypot(p.y - 80.0) - radius).abs() < 1e-9,
+                "{k}"
+            );
+        }
+        for pair in ring.windows(2) {
+            let d = (pair[1].x - pair[0].x).hypot(pair[1].y - pair[0].y);
+            assert!((d - chord).abs() < 1e-9, "{d} vs {chord}");
+        }
+        // A quarter of the way round, 90 degrees on from the start (y down: below).
+        assert!((ring[12].x - 120.0).abs() < 1e-9 && (ring[12].y - 90.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn the_plan_head_is_closed_and_notched_by_hand() {
+        // The design's head, in radii: from the tip (1.5 above the centre) back half a
+        // radius to barbs 0.28 to either side, and in to the notch on the shaft 0.32 back
+        // from the tip. Radius 10 about (100, 100): the tip at (100, 85), the barbs at
+        // (97.2, 90) and (102.8, 90), the notch at (100, 88.2); the shaft from the ring's
+        // foot (100, 110) to the tip.
+        let key = north_key(ImagePoint::new(100.0, 100.0), 10.0, 4.0, 0.0);
+        let lines: Vec<Vec<ImagePoint>> = key.lines.iter().map(|l| l.to_vec()).collect();
+        let near = |p: ImagePoint, x: f64, y: f64| (p.x - x).abs() < 1e-9 && (p.y - y).abs() < 1e-9;
+        let shaft = &lines[1];
+        assert!(
+            near(shaft[0], 100.0, 110.0) && near(shaft[1], 100.0, 85.0),
+            "{shaft:?}"
+        );
+        // Closed, the notch between the barbs (which way round it goes is not seen).
+        let head = &lines[2];
+        assert_eq!(head.len(), 5, "{head:?}");
+        assert!(
+            near(head[0], 100.0, 85.0) && near(head[4], 100.0, 85.0),
+            "{head:?}"
+        );
+        assert!(near(head[2], 100.0, 88.2), "{head:?}");
+        let barbs = (head[1], head[3]);
+        assert!(
+            (near(barbs.0, 97.2, 90.0) && near(barbs.1, 102.8, 90.0))
+                || (near(barbs.0, 102.8, 90.0) && near(barbs.1, 97.2, 90.0)),
+            "{head:?}"
+        );
+    }
+
+    #[test]
+    fn the_true_north_barb_stands_away_from_plan_north() {
+        // Radius 10, so the true shaft is 0.9 x 15 = 13.5 long, and its barb half a radius
+        // back from its tip and 0.3 radius aside: due east, the tip at (113.5, 100) and the
+        // barb at (108.5, 103), below the shaft; due west, mirrored: (86.5, 100), (91.5,
+        // 103). Whatever the bearing, the barb turns further from plan north than the
+        // shaft: clockwise of it on the east side, anticlockwise on the west.
+        let centre = ImagePoint::new(100.0, 100.0);
+        let near = |p: ImagePoint, x: f64, y: f64| (p.x - x).abs() < 1e-9 && (p.y - y).abs() < 1e-9;
+        for (turn, tip, barb) in [
+            (90.0, (113.5, 100.0), (108.5, 103.0)),
+            (270.0, (86.5, 100.0), (91.5, 103.0)),
+        ] {
+            let key = north_key(centre, 10.0, 4.0, turn);
+            let lines: Vec<Vec<ImagePoint>> = key.lines.iter().map(|l| l.to_vec()).collect();
+            assert_eq!(lines.len(), 5);
+            assert!(near(lines[3][1], tip.0, tip.1), "{turn}: {:?}", lines[3]);
+            assert!(near(lines[4][0], tip.0, tip.1), "{turn}: {:?}", lines[4]);
+            assert!(near(lines[4][1], barb.0, barb.1), "{turn}: {:?}", lines[4]);
+        }
+        let bearing_of = |p: ImagePoint| {
+            (p.x - 100.0)
+                .atan2(100.0 - p.y)
+                .to_degrees()
+                .rem_euclid(360.0)
+        };
+        for turn in [10.0, 45.0, 135.0, 179.0, 181.0, 225.0, 315.0, 350.0] {
+            let key = north_key(centre, 10.0, 4.0, turn);
+            let barb = key.lines.iter().nth(4).unwrap()[1];
+            let off = bearing_of(barb) - turn;
+            if turn < 180.0 {
+                assert!(off > 0.0, "{turn}: {off}");
+            } else {
+                assert!(off < 0.0, "{turn}: {off}");
+            }
+        }
+    }
+
+    #[test]
+    fn the_words_stand_a_gap_beyond_the_tip_or_beside_it() {
+        // Centred words: their box from x - width / 2 to x + width / 2, from the baseline
+        // up a cap height. Plan north: the baseline a gap (0.35 cap height) above the tip.
+        // True north due east: the box's middle a gap plus half its width right of the
+        // tip, level with it. Then, for any bearing, the second and third spots: the box a
+        // gap to the right or to the left of the tip, level with it.
+        let letter = 4.0;
+        let gap = 0.35 * letter;
+        let key = north_key(ImagePoint::new(50.0, 60.0), 10.0, letter, 90.0);
+        let plan = key.labels[0].spots[0];
+        assert_eq!(plan.dx, 0.0);
+        assert!((plan.dy + gap).abs() < 1e-9, "{plan:?}");
+        let width = text_width(TRUE_NORTH, letter);
+        let east = key.labels[1].spots[0];
+        assert!((east.dx - gap - width / 2.0).abs() < 1e-9, "{east:?}");
+        assert!((east.dy - letter / 2.0).abs() < 1e-9, "{east:?}");
+        for turn in [0.0, 90.0, 200.0] {
+            let key = north_key(ImagePoint::new(50.0, 60.0), 10.0, letter, turn);
+            for label in &key.labels {
+                let width = text_width(&label.text, letter);
+                assert_eq!(label.spots.len(), 3);
+                let (right, left) = (label.spots[1], label.spots[2]);
+                assert!((right.dx - width / 2.0 - gap).abs() < 1e-9, "{turn}");
+                assert!((left.dx + width / 2.0 + gap).abs() < 1e-9, "{turn}");
+                assert_eq!((right.dy, left.dy), (letter / 2.0, letter / 2.0));
+                assert_eq!((right.align, left.align), (Align::Middle, Align::Middle));
+            }
+        }
+    }
+
+    #[test]
+    fn true_north_due_west_reaches_as_far_as_due_east() {
+        // The key is symmetric about plan north: "TRUE N" due west stands as far left of
+        // the centre as due east it stands right, the shaft 0.9 x 15, the gap 0.35 x 4,
+        // then the whole width of the words.
+        let (radius, letter) = (10.0, 4.0);
+        let expected = 0.9 * 15.0 + 0.35 * 4.0 + text_width(TRUE_NORTH, letter);
+        for turn in [90.0, 270.0] {
+            let (half_w, _) = north_key_half_extent(radius, letter, turn);
+            assert!(
+                (half_w - expected).abs() < 1e-9,
+                "{turn}: {half_w} vs {expected}"
+            );
+        }
+    }
 }
