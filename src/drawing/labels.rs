@@ -626,114 +626,87 @@ mod tests {
         assert_eq!(layers[1].stroke.width_px, 1.0);
     }
 
-    /// The cells of 10 px over a 400 x 200 px area that `lines` pass through, counted over
-    /// `b`; lines and box given relative to the area's corner, which stands at (100, 50) so
-    /// that the cells are found from the corner, not from the origin.
-    fn cells_counted(lines: &[&[(f64, f64)]], b: Rect) -> usize {
-        let (x0, y0) = (100.0, 50.0);
+    /// A grid of 10 px cells over `grid` with `lines` marked on it.
+    fn marked(grid: Rect, lines: &[&[(f64, f64)]]) -> LineCells {
         let mut set = PolylineSet::new();
         for line in lines {
-            let points: Vec<ImagePoint> = line
-                .iter()
-                .map(|&(x, y)| ImagePoint::new(x0 + x, y0 + y))
-                .collect();
+            let points: Vec<ImagePoint> =
+                line.iter().map(|&(x, y)| ImagePoint::new(x, y)).collect();
             set.push(&points);
         }
-        let mut cells = LineCells::new(Rect::from_ltrb(x0, y0, x0 + 400.0, y0 + 200.0), 10.0);
+        let mut cells = LineCells::new(grid, 10.0);
         cells.mark(&set);
-        cells.count(&Rect::from_ltrb(
-            x0 + b.left,
-            y0 + b.top,
-            x0 + b.right,
-            y0 + b.bottom,
-        ))
+        cells
     }
 
     #[test]
     fn a_line_takes_the_cells_it_passes_through_worked_by_hand() {
-        let whole = area();
-        // Along row 2 (y 20 to 30) from x = 15 to 55: columns 1 to 5, five cells.
+        // A 400 x 200 px area whose corner stands at (100, 50), so that cells are found
+        // from the corner, not from the origin; lines and boxes below are given relative
+        // to that corner.
+        let (x0, y0) = (100.0, 50.0);
+        let moved = |line: &[(f64, f64)]| line.iter().map(|&(x, y)| (x0 + x, y0 + y)).collect();
+        let boxed =
+            |l: f64, t: f64, r: f64, b: f64| Rect::from_ltrb(x0 + l, y0 + t, x0 + r, y0 + b);
+        let whole = boxed(0.0, 0.0, 400.0, 200.0);
+        // Along row 2 (y 20 to 30) from x = 15 to 55: columns 1 to 5.
         let along = [(15.0, 25.0), (55.0, 25.0)];
-        assert_eq!(cells_counted(&[&along], whole), 5);
-        assert_eq!(
-            cells_counted(&[&along], Rect::from_ltrb(0.0, 20.0, 29.0, 29.0)),
-            2
-        );
-        assert_eq!(
-            cells_counted(&[&along], Rect::from_ltrb(60.0, 0.0, 400.0, 200.0)),
-            0
-        );
-        assert_eq!(
-            cells_counted(&[&along], Rect::from_ltrb(0.0, 30.0, 400.0, 200.0)),
-            0
-        );
         // Down column 3 (x 30 to 40) from y = 42 to 78: rows 4 to 7.
         let down = [(35.0, 42.0), (35.0, 78.0)];
-        assert_eq!(cells_counted(&[&down], whole), 4);
-        assert_eq!(
-            cells_counted(&[&down], Rect::from_ltrb(30.0, 60.0, 39.0, 200.0)),
-            2
-        );
         // The diagonal from (5, 5) to (35, 35) stays in the cells (k, k), k = 0 to 3.
         let diagonal = [(5.0, 5.0), (35.0, 35.0)];
-        assert_eq!(cells_counted(&[&diagonal], whole), 4);
-        assert_eq!(
-            cells_counted(&[&diagonal], Rect::from_ltrb(20.0, 0.0, 29.0, 19.0)),
-            0
-        );
-        assert_eq!(
-            cells_counted(&[&diagonal], Rect::from_ltrb(20.0, 20.0, 29.0, 29.0)),
-            1
-        );
-        // A shallow line from (5, 5) to (45, 15) crosses y = 10 at x = 25: columns 0 to 2
-        // of row 0 and 2 to 4 of row 1, six cells (sampled every half cell, none missed).
+        // From (5, 5) to (45, 15) the line crosses y = 10 at x = 25: columns 0 to 2 of
+        // row 0 and 2 to 4 of row 1 (sampled every half cell, none missed).
         let shallow = [(5.0, 5.0), (45.0, 15.0)];
-        assert_eq!(cells_counted(&[&shallow], whole), 6);
-        // Beyond the area's right or bottom edge (the cells' grid has one column and one
-        // row spare), and above or left of it, a line takes no cell, and none of another
-        // row; a box reaching far past the grid counts what lies inside it.
+        // Beyond the area's right or bottom edge (the grid has one column and one row
+        // spare), above it and left of it: no cell, and none of another row.
         let beyond = [(415.0, 55.0), (418.0, 56.0)];
         let below = [(50.0, 215.0), (90.0, 218.0)];
         let above = [(50.0, -15.0), (90.0, -12.0)];
         let left = [(-15.0, 50.0), (-12.0, 90.0)];
-        assert_eq!(cells_counted(&[&beyond, &below, &above, &left], whole), 0);
-        let far = Rect::from_ltrb(-50.0, -50.0, 1000.0, 1000.0);
-        assert_eq!(cells_counted(&[&along, &down], far), 9);
-        // A line entering the area from the left takes only the cells inside it.
+        // Entering from the left: only the cells inside.
         let entering = [(-20.0, 15.0), (25.0, 15.0)];
-        assert_eq!(cells_counted(&[&entering], whole), 3);
+        let cases: [(&[&[(f64, f64)]], Rect, usize); 13] = [
+            (&[&along], whole, 5),
+            (&[&along], boxed(0.0, 20.0, 29.0, 29.0), 2),
+            (&[&along], boxed(60.0, 0.0, 400.0, 200.0), 0),
+            (&[&along], boxed(0.0, 30.0, 400.0, 200.0), 0),
+            (&[&down], whole, 4),
+            (&[&down], boxed(30.0, 60.0, 39.0, 200.0), 2),
+            (&[&diagonal], whole, 4),
+            (&[&diagonal], boxed(20.0, 0.0, 29.0, 19.0), 0),
+            (&[&diagonal], boxed(20.0, 20.0, 29.0, 29.0), 1),
+            (&[&shallow], whole, 6),
+            (&[&beyond, &below, &above, &left], whole, 0),
+            // A box reaching far past the grid counts what lies inside it.
+            (&[&along, &down], boxed(-50.0, -50.0, 1000.0, 1000.0), 9),
+            (&[&entering], whole, 3),
+        ];
+        for (k, (lines, b, expected)) in cases.into_iter().enumerate() {
+            let lines: Vec<Vec<(f64, f64)>> = lines.iter().map(|l| moved(l)).collect();
+            let lines: Vec<&[(f64, f64)]> = lines.iter().map(Vec::as_slice).collect();
+            assert_eq!(marked(whole, &lines).count(&b), expected, "case {k}");
+        }
     }
 
     #[test]
     fn a_cell_grid_is_empty_until_a_line_falls_inside_it() {
-        let mut cells = LineCells::new(area(), 10.0);
-        assert!(cells.is_empty());
-        let mut outside = PolylineSet::new();
-        outside.push(&[ImagePoint::new(-30.0, -30.0), ImagePoint::new(-20.0, -25.0)]);
-        cells.mark(&outside);
-        assert!(cells.is_empty());
-        let mut inside = PolylineSet::new();
-        inside.push(&[ImagePoint::new(30.0, 30.0), ImagePoint::new(50.0, 35.0)]);
-        cells.mark(&inside);
-        assert!(!cells.is_empty());
-        // A line across the image's left edge, from x = -20 to 25 on row 1 of a grid from
-        // the origin, takes the three cells inside (sampled along its whole length).
-        let mut cells = LineCells::new(area(), 10.0);
-        let mut across = PolylineSet::new();
-        across.push(&[ImagePoint::new(-20.0, 15.0), ImagePoint::new(25.0, 15.0)]);
-        cells.mark(&across);
-        assert_eq!(cells.count(&area()), 3);
-        let mut upward = PolylineSet::new();
-        upward.push(&[ImagePoint::new(105.0, -20.0), ImagePoint::new(105.0, 25.0)]);
-        cells.mark(&upward);
-        assert_eq!(cells.count(&area()), 6);
+        assert!(marked(area(), &[]).is_empty());
+        assert!(marked(area(), &[&[(-30.0, -30.0), (-20.0, -25.0)]]).is_empty());
+        assert!(!marked(area(), &[&[(30.0, 30.0), (50.0, 35.0)]]).is_empty());
+    }
+
+    #[test]
+    fn a_line_is_sampled_along_its_whole_length() {
+        // Across the left edge, from x = -20 to 25 on row 1 of a grid from the origin: the
+        // three cells inside; and up across the top edge in column 10: three more.
+        let across = [(-20.0, 15.0), (25.0, 15.0)];
+        let upward = [(105.0, -20.0), (105.0, 25.0)];
+        assert_eq!(marked(area(), &[&across, &upward]).count(&area()), 6);
         // A line 19,990 px long (a wide panorama's horizon) takes every cell along it, to
-        // its far end: columns 0 to 1,999 of 10 px.
+        // its far end: columns 0 to 1,999.
         let wide = Rect::from_ltrb(0.0, 0.0, 20_010.0, 100.0);
-        let mut cells = LineCells::new(wide, 10.0);
-        let mut horizon = PolylineSet::new();
-        horizon.push(&[ImagePoint::new(5.0, 55.0), ImagePoint::new(19_995.0, 55.0)]);
-        cells.mark(&horizon);
-        assert_eq!(cells.count(&wide), 2_000);
+        let horizon = [(5.0, 55.0), (19_995.0, 55.0)];
+        assert_eq!(marked(wide, &[&horizon]).count(&wide), 2_000);
     }
 }
