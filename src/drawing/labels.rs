@@ -626,8 +626,11 @@ mod tests {
         assert_eq!(layers[1].stroke.width_px, 1.0);
     }
 
+    /// A line's points, x and y in pixels.
+    type Points = [(f64, f64)];
+
     /// A grid of 10 px cells over `grid` with `lines` marked on it.
-    fn marked(grid: Rect, lines: &[&[(f64, f64)]]) -> LineCells {
+    fn marked(grid: Rect, lines: &[&Points]) -> LineCells {
         let mut set = PolylineSet::new();
         for line in lines {
             let points: Vec<ImagePoint> =
@@ -645,7 +648,7 @@ mod tests {
         // from the corner, not from the origin; lines and boxes below are given relative
         // to that corner.
         let (x0, y0) = (100.0, 50.0);
-        let moved = |line: &[(f64, f64)]| line.iter().map(|&(x, y)| (x0 + x, y0 + y)).collect();
+        let moved = |line: &Points| line.iter().map(|&(x, y)| (x0 + x, y0 + y)).collect();
         let boxed =
             |l: f64, t: f64, r: f64, b: f64| Rect::from_ltrb(x0 + l, y0 + t, x0 + r, y0 + b);
         let whole = boxed(0.0, 0.0, 400.0, 200.0);
@@ -666,7 +669,7 @@ mod tests {
         let left = [(-15.0, 50.0), (-12.0, 90.0)];
         // Entering from the left: only the cells inside.
         let entering = [(-20.0, 15.0), (25.0, 15.0)];
-        let cases: [(&[&[(f64, f64)]], Rect, usize); 13] = [
+        let cases: [(&[&Points], Rect, usize); 13] = [
             (&[&along], whole, 5),
             (&[&along], boxed(0.0, 20.0, 29.0, 29.0), 2),
             (&[&along], boxed(60.0, 0.0, 400.0, 200.0), 0),
@@ -684,7 +687,7 @@ mod tests {
         ];
         for (k, (lines, b, expected)) in cases.into_iter().enumerate() {
             let lines: Vec<Vec<(f64, f64)>> = lines.iter().map(|l| moved(l)).collect();
-            let lines: Vec<&[(f64, f64)]> = lines.iter().map(Vec::as_slice).collect();
+            let lines: Vec<&Points> = lines.iter().map(Vec::as_slice).collect();
             assert_eq!(marked(whole, &lines).count(&b), expected, "case {k}");
         }
     }
