@@ -755,102 +755,68 @@ mod tests {
         }
     }
 
+    /// A black segment from `a` to `b` whose coverage reaches `reach` px.
+    fn segment(a: (f64, f64), b: (f64, f64), reach: f64) -> Segment {
+        let pen = Pen {
+            reach,
+            ink: [255.0; 3],
+        };
+        Segment::new(ImagePoint::new(a.0, a.1), ImagePoint::new(b.0, b.1), pen)
+    }
+
+    fn assert_lanes(coverage: f32x4, expected: [f32; 4]) {
+        let got = coverage.to_array();
+        for (g, e) in got.iter().zip(expected) {
+            assert!((g - e).abs() < 1e-5, "{got:?}, expected {expected:?}");
+        }
+    }
+
     #[test]
     fn a_capsule_covers_by_its_distance_across_and_beyond_the_ends() {
         // The 3-4-5 segment from the origin, for a pen reaching 1 px.
-        let pen = Pen {
-            reach: 1.0,
-            ink: [255.0; 3],
-        };
-        let segment = Segment::new(ImagePoint::new(0.0, 0.0), ImagePoint::new(3.0, 4.0), pen);
-        let capsule = CapsuleLanes::of(&segment);
+        let capsule = CapsuleLanes::of(&segment((0.0, 0.0), (3.0, 4.0), 1.0));
         // Beside its middle (1.5, 2) by 0.5 along the normal (0.8, -0.6); 0.5 before its
         // start, straight back; past its end (3, 4) by 0.3 along and 0.4 across, 0.5 from
         // it by the 3-4-5 triangle again; far away.
         let xs = [1.5 + 0.4, -0.3, 3.0 + 0.3 * 0.6 + 0.4 * 0.8, 40.0];
         let ys = [2.0 - 0.3, -0.4, 4.0 + 0.3 * 0.8 - 0.4 * 0.6, 0.0];
-        let coverage = capsule
-            .coverage(
-                f32x4::from(xs.map(|x| x as f32)),
-                f32x4::from(ys.map(|y| y as f32)),
-            )
-            .to_array();
-        for (got, expected) in coverage.iter().zip([0.5, 0.5, 0.5, 0.0]) {
-            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
-        }
+        let lanes = |v: [f64; 4]| f32x4::from(v.map(|x| x as f32));
+        assert_lanes(capsule.coverage(lanes(xs), lanes(ys)), [0.5, 0.5, 0.5, 0.0]);
         // A dot: the distance to its point, whichever way the lanes look.
-        let dot = Segment::new(ImagePoint::new(2.0, 2.0), ImagePoint::new(2.0, 2.0), pen);
-        let coverage = CapsuleLanes::of(&dot)
-            .coverage(
-                f32x4::from([0.3, -0.3, 0.0, 0.6]),
-                f32x4::from([0.4, -0.4, -0.75, 0.8]),
-            )
-            .to_array();
-        for (got, expected) in coverage.iter().zip([0.5, 0.5, 0.25, 0.0]) {
-            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
-        }
+        let dot = CapsuleLanes::of(&segment((2.0, 2.0), (2.0, 2.0), 1.0));
+        let coverage = dot.coverage(
+            f32x4::from([0.3, -0.3, 0.0, 0.6]),
+            f32x4::from([0.4, -0.4, -0.75, 0.8]),
+        );
+        assert_lanes(coverage, [0.5, 0.5, 0.25, 0.0]);
     }
 
     #[test]
     fn a_steep_row_takes_four_pixels_around_the_line() {
-        let pen = Pen {
-            reach: 1.0,
-            ink: [255.0; 3],
-        };
         // An upright line at x = 10.3: the row through y = 50.5 reaches columns 9 and 10
         // (centres 0.8 and 0.2 from the line), the four starting at column 9.
-        let upright = Segment::new(
-            ImagePoint::new(10.3, 0.0),
-            ImagePoint::new(10.3, 100.0),
-            pen,
-        );
-        let rows = SteepRows::of(&upright).expect("an upright line is steep");
+        let rows = SteepRows::of(&segment((10.3, 0.0), (10.3, 100.0), 1.0))
+            .expect("an upright line is steep");
         let (first, coverage) = rows.row(50.5, 100).expect("a row beside the line");
         assert_eq!(first, 9);
-        for (got, expected) in coverage.to_array().iter().zip([0.2, 0.8, 0.0, 0.0]) {
-            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
-        }
+        assert_lanes(coverage, [0.2, 0.8, 0.0, 0.0]);
         // A row within reach of an end, or whose four pixels would leave the row, goes the
         // general way.
         assert!(rows.row(0.5, 100).is_none());
         assert!(rows.row(99.5, 100).is_none());
         assert!(rows.row(50.5, 12).is_none());
-        let at_the_border =
-            Segment::new(ImagePoint::new(0.2, 0.0), ImagePoint::new(0.2, 100.0), pen);
-        assert!(SteepRows::of(&at_the_border)
-            .unwrap()
-            .row(50.5, 100)
-            .is_none());
+        let at_the_border = SteepRows::of(&segment((0.2, 0.0), (0.2, 100.0), 1.0)).unwrap();
+        assert!(at_the_border.row(50.5, 100).is_none());
         // At 45 degrees the strip is 2 sqrt 2 px wide: centres 1, 0, 1 and 2 px off the line
         // in x, 1/sqrt 2 times that across it.
-        let diagonal = Segment::new(
-            ImagePoint::new(0.0, 0.0),
-            ImagePoint::new(100.0, 100.0),
-            pen,
-        );
-        let (first, coverage) = SteepRows::of(&diagonal).unwrap().row(50.5, 100).unwrap();
+        let diagonal = SteepRows::of(&segment((0.0, 0.0), (100.0, 100.0), 1.0)).unwrap();
+        let (first, coverage) = diagonal.row(50.5, 100).unwrap();
         assert_eq!(first, 49);
         let off = 0.5f32.sqrt();
-        for (got, expected) in coverage
-            .to_array()
-            .iter()
-            .zip([1.0 - off, 1.0, 1.0 - off, 0.0])
-        {
-            assert!((got - expected).abs() < 1e-5, "{coverage:?}");
-        }
+        assert_lanes(coverage, [1.0 - off, 1.0, 1.0 - off, 0.0]);
         // Shallow lines, and lines too thick for four pixels a row, are not steep rows.
-        let shallow = Segment::new(ImagePoint::new(0.0, 0.0), ImagePoint::new(100.0, 99.0), pen);
-        assert!(SteepRows::of(&shallow).is_none());
-        let thick = Pen {
-            reach: 2.5,
-            ink: [255.0; 3],
-        };
-        let thick = Segment::new(
-            ImagePoint::new(10.0, 0.0),
-            ImagePoint::new(10.0, 100.0),
-            thick,
-        );
-        assert!(SteepRows::of(&thick).is_none());
+        assert!(SteepRows::of(&segment((0.0, 0.0), (100.0, 99.0), 1.0)).is_none());
+        assert!(SteepRows::of(&segment((10.0, 0.0), (10.0, 100.0), 2.5)).is_none());
     }
 
     #[test]
