@@ -45,6 +45,7 @@
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
 use super::site::{Edge, Face, ItemId, ItemInfo, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
+use rayon::prelude::*;
 use std::collections::HashMap;
 use std::ops::Range;
 
@@ -258,49 +259,52 @@ fn add_mesh_on_cores(
         items: &items,
         holes_of: &holes_of,
     };
-    site.faces.reserve(triangles_of(&obj.faces));
-    let face = |corners: [u32; 3], item| Face {
+    let face = |&(corners, item): &([u32; 3], ItemId)| Face {
         corners: corners.map(|i| points[i as usize]),
         item,
         slack: 0.0,
     };
     let all = 0..obj.faces.len();
-    let welded = if two_cores {
-        // The second core lists its triangles by vertex number (a fifth of their size),
-        // and this one writes them out after its own: each triangle written once.
+    let mut welded = if two_cores {
+        // Each core lists its half's triangles by vertex number (a fifth of their size),
+        // then both write them out in place, in file order (rayon's `par_extend` of an
+        // indexed list): no half is left to write out on one core afterwards.
         let middle = obj.faces.len() / 2;
-        let (mut welded, (second, triangles)) = std::thread::scope(|scope| {
-            let later = scope.spawn(|| {
-                let second = &obj.faces[middle..];
-                let mut triangles = Vec::with_capacity(triangles_of(second));
-                let mut welded = WeldedFaces::with_room(second);
-                work.run(middle..all.end, &mut welded, |t, item| {
-                    triangles.push((t, item))
-                });
-                (welded, triangles)
-            });
-            // Room for every face here: the second half's are appended.
-            let mut welded = WeldedFaces::with_room(&obj.faces);
-            work.run(0..middle, &mut welded, |t, item| {
-                site.faces.push(face(t, item))
-            });
-            (welded, joined(later))
+        let half = |range: Range<usize>| {
+            let faces = &obj.faces[range.clone()];
+            let mut triangles = Vec::with_capacity(triangles_of(faces));
+            let mut welded = WeldedFaces::with_room(faces, vertices);
+            work.run(range, &mut welded, |t, item| triangles.push((t, item)));
+            (welded, triangles)
+        };
+        let ((welded, first), (second, later)) = std::thread::scope(|scope| {
+            let later = scope.spawn(|| half(middle..all.end));
+            (half(0..middle), joined(later))
         });
-        welded.append(second);
+        site.faces.reserve(first.len() + later.len());
         site.faces
-            .extend(triangles.into_iter().map(|(t, item)| face(t, item)));
-        welded
+            .par_extend(first.par_iter().chain(later.par_iter()).map(face));
+        WeldedMesh {
+            first: welded,
+            second,
+        }
     } else {
-        let mut welded = WeldedFaces::with_room(&obj.faces);
-        work.run(all, &mut welded, |t, item| site.faces.push(face(t, item)));
-        welded
+        let mut welded = WeldedFaces::with_room(&obj.faces, vertices);
+        site.faces.reserve(triangles_of(&obj.faces));
+        work.run(all, &mut welded, |t, item| {
+            site.faces.push(face(&(t, item)))
+        });
+        WeldedMesh {
+            first: welded,
+            second: WeldedFaces::with_room(&[], 0),
+        }
     };
     drop(holes_of);
     let mut stats = MeshStats {
         vertices,
-        faces: welded.faces.len(),
-        dropped_faces: welded.dropped,
-        triangles: welded.triangles,
+        faces: welded.len(),
+        dropped_faces: welded.first.dropped + welded.second.dropped,
+        triangles: welded.first.triangles + welded.second.triangles,
         ..MeshStats::default()
     };
 
@@ -308,7 +312,7 @@ fn add_mesh_on_cores(
     // and sorted: equal edges are adjacent. A large model's in two ranges of low vertices
     // on two cores, cut where half the edges lie on either side (equal edges share their
     // low vertex); the second range's edges follow the first's, as one pass gives them.
-    let starts = edge_starts(&welded, vertices, two_cores);
+    let starts = edge_starts(&mut welded);
     let total = starts[vertices] as usize;
     let cut = if two_cores {
         starts
@@ -319,66 +323,56 @@ fn add_mesh_on_cores(
     };
     let classes = EdgeClasses {
         obj,
-        faces: &welded.faces,
-        corners: &welded.corners,
+        welded: &welded,
         points: &points,
         coplanar: Bend::of_angle(COPLANAR),
         crease: Bend::of_angle(placement.crease_deg.to_radians()),
     };
-    // Room for every edge at once (each distinct edge is at least one face edge): what is
-    // never written costs address space, not memory, and nothing is copied as they grow.
-    site.edges.reserve(total);
-    site.silhouette_candidates.reserve(total);
-    let lows = |range: Range<usize>| {
+    // Each core lists its range's drawn edges by vertex number and keeps its smooth ones;
+    // then both write the drawn edges out in place, in order, as with the triangles. The
+    // lists have room for every face edge of the range (each distinct edge is at least
+    // one, a smooth one two): what is never written costs address space, not memory.
+    let range_edges = |range: Range<usize>| {
         let sorted = face_edges_from(&welded, &starts, range.clone());
-        (range, sorted)
-    };
-    let edge = |a: u32, b: u32, item| Edge {
-        curve: SiteCurve::Segment {
-            start: points[a as usize],
-            end: points[b as usize],
-        },
-        item,
-    };
-    // The second core lists its drawn edges by vertex number, written out here after the
-    // first range's, as with the triangles.
-    let later = std::thread::scope(|scope| {
-        let later = (cut < vertices).then(|| {
-            scope.spawn(|| {
-                let (range, sorted) = lows(cut..vertices);
-                let room = sorted.len();
-                let mut later = (
-                    Vec::with_capacity(room),
-                    Vec::with_capacity(room),
-                    MeshStats::default(),
-                );
-                let edges = &mut later.0;
-                classes.classify(
-                    &starts,
-                    range,
-                    &sorted,
-                    |a, b, item| edges.push((a, b, item)),
-                    &mut later.1,
-                    &mut later.2,
-                );
-                later
-            })
-        });
-        let (range, sorted) = lows(0..cut);
+        let mut drawn = Vec::with_capacity(sorted.len());
+        let mut smooth = Vec::with_capacity(sorted.len() / 2);
+        let mut counts = MeshStats::default();
         classes.classify(
             &starts,
             range,
             &sorted,
-            |a, b, item| site.edges.push(edge(a, b, item)),
-            &mut site.silhouette_candidates,
-            &mut stats,
+            |a, b, item| drawn.push((a, b, item)),
+            &mut smooth,
+            &mut counts,
         );
-        later.map(joined)
+        (drawn, smooth, counts)
+    };
+    let (first, later) = std::thread::scope(|scope| {
+        let later = (cut < vertices).then(|| scope.spawn(|| range_edges(cut..vertices)));
+        (range_edges(0..cut), later.map(joined))
     });
-    if let Some((edges, mut silhouettes, counts)) = later {
-        site.edges
-            .extend(edges.into_iter().map(|(a, b, item)| edge(a, b, item)));
-        site.silhouette_candidates.append(&mut silhouettes);
+    let (later_drawn, later_smooth) = later
+        .as_ref()
+        .map_or((&[][..], &[][..]), |l| (&l.0[..], &l.1[..]));
+    let line_segments: usize = obj.lines.iter().map(|l| l.count as usize).sum();
+    site.edges
+        .reserve(first.0.len() + later_drawn.len() + line_segments);
+    site.edges.par_extend(
+        first
+            .0
+            .par_iter()
+            .chain(later_drawn)
+            .map(|&(a, b, item)| Edge {
+                curve: SiteCurve::Segment {
+                    start: points[a as usize],
+                    end: points[b as usize],
+                },
+                item,
+            }),
+    );
+    site.silhouette_candidates
+        .par_extend(first.1.par_iter().chain(later_smooth).copied());
+    for (_, _, counts) in [Some(&first), later.as_ref()].into_iter().flatten() {
         stats.edges += counts.edges;
         stats.boundary += counts.boundary;
         stats.creases += counts.creases;
@@ -386,6 +380,7 @@ fn add_mesh_on_cores(
         stats.smooth += counts.smooth;
         stats.by_file += counts.by_file;
     }
+    drop((first, later));
 
     for line in &obj.lines {
         let item = items.get_or_add(site, line);
@@ -397,8 +392,6 @@ fn add_mesh_on_cores(
             }
         }
     }
-    site.edges.shrink_to_fit();
-    site.silhouette_candidates.shrink_to_fit();
     let last_item = site.items.len() as u32;
     // A closed surface (every edge between exactly two faces) is a solid one cannot stand in.
     if stats.boundary == 0 && stats.non_manifold == 0 && stats.faces > 0 {
@@ -558,10 +551,18 @@ fn weld_face(
 /// A mesh's faces after welding (those of some area), in file order.
 struct WeldedFaces {
     faces: Vec<MeshFace>,
+    /// Where each face's corners begin in `corners` (they end where the next face's
+    /// begin): apart from the faces, so that walking every face's edges reads only these
+    /// and the corners.
+    firsts: Vec<u32>,
     /// Each face's corners: (vertex after welding, normal index).
     corners: Vec<(u32, u32)>,
     /// Holes: the face's place in `faces`, and the welded ring.
     holes: Vec<(usize, Vec<u32>)>,
+    /// How many edges of these faces and holes have each vertex as their lower end, at
+    /// the vertex's number plus one: counted as the faces are welded, for
+    /// [`edge_starts`].
+    low_ends: Vec<u32>,
     /// Faces of no area left out.
     dropped: usize,
     /// Triangles made.
@@ -569,35 +570,61 @@ struct WeldedFaces {
 }
 
 impl WeldedFaces {
-    /// Empty, with room for `faces`.
-    fn with_room(faces: &[ObjElement]) -> Self {
+    /// Empty, with room for `faces` on a mesh of `vertices` welded vertices.
+    fn with_room(faces: &[ObjElement], vertices: usize) -> Self {
         let corners: usize = faces.iter().map(|f| f.count as usize).sum();
         WeldedFaces {
             faces: Vec::with_capacity(faces.len()),
+            firsts: Vec::with_capacity(faces.len()),
             corners: Vec::with_capacity(corners),
             holes: Vec::new(),
+            low_ends: vec![0; vertices + 1],
             dropped: 0,
             triangles: 0,
         }
     }
 
-    /// Appends the faces welded after these.
-    fn append(&mut self, later: WeldedFaces) {
-        let (face_base, corner_base) = (self.faces.len(), self.corners.len() as u32);
-        self.faces
-            .extend(later.faces.into_iter().map(|face| MeshFace {
-                first: face.first + corner_base,
-                ..face
-            }));
-        self.corners.extend_from_slice(&later.corners);
-        self.holes.extend(
-            later
-                .holes
-                .into_iter()
-                .map(|(face, ring)| (face + face_base, ring)),
-        );
-        self.dropped += later.dropped;
-        self.triangles += later.triangles;
+    /// Face `f`'s corners: (vertex after welding, normal index), up to the next face's.
+    fn ring(&self, f: usize) -> &[(u32, u32)] {
+        let end = self
+            .firsts
+            .get(f + 1)
+            .map_or(self.corners.len(), |&e| e as usize);
+        &self.corners[self.firsts[f] as usize..end]
+    }
+}
+
+/// A face after welding, and its corners: (vertex after welding, normal index).
+type FaceAndRing<'a> = (&'a MeshFace, &'a [(u32, u32)]);
+
+/// A mesh's faces after welding, as the cores welded them: the file's faces in two runs,
+/// one after the other (the second empty on one core), numbered through both in turn.
+struct WeldedMesh {
+    first: WeldedFaces,
+    second: WeldedFaces,
+}
+
+impl WeldedMesh {
+    /// How many faces.
+    fn len(&self) -> usize {
+        self.first.faces.len() + self.second.faces.len()
+    }
+
+    /// Face number `f`, and its corners.
+    fn face(&self, f: usize) -> FaceAndRing<'_> {
+        let (run, f) = match f.checked_sub(self.first.faces.len()) {
+            None => (&self.first, f),
+            Some(later) => (&self.second, later),
+        };
+        (&run.faces[f], run.ring(f))
+    }
+
+    /// The two runs, each with the number of its first face.
+    fn numbered_runs(&self) -> [(u32, &WeldedFaces); 2] {
+        [
+            (0, &self.first),
+            (self.first.faces.len() as u32, &self.second),
+        ]
     }
 }
 
@@ -671,12 +698,13 @@ impl FaceWork<'_> {
                     triangle(t.map(|i| ring[i]), item);
                 }
             }
+            count_low_ends(&mut welded.low_ends, &welded.corners[first..], |c| c.0);
             for hole in holes {
+                count_low_ends(&mut welded.low_ends, hole, |v| v);
                 welded.holes.push((welded.faces.len(), hole.clone()));
             }
+            welded.firsts.push(first as u32);
             welded.faces.push(MeshFace {
-                first: first as u32,
-                count: (welded.corners.len() - first) as u32,
                 normal,
                 item,
                 smoothing: face.smoothing,
@@ -690,8 +718,7 @@ impl FaceWork<'_> {
 /// `crease` a hard edge.
 struct EdgeClasses<'a> {
     obj: &'a ObjFile,
-    faces: &'a [MeshFace],
-    corners: &'a [(u32, u32)],
+    welded: &'a WeldedMesh,
     points: &'a [Point3<f64>],
     coplanar: Bend,
     crease: Bend,
@@ -711,7 +738,7 @@ impl EdgeClasses<'_> {
         silhouettes: &mut Vec<SilhouetteEdge>,
         stats: &mut MeshStats,
     ) {
-        let (faces, points) = (self.faces, self.points);
+        let points = self.points;
         let base = starts[lows.start] as usize;
         for a in lows {
             let pa = points[a];
@@ -719,7 +746,7 @@ impl EdgeClasses<'_> {
             for run in at_a.chunk_by(|x, y| x.0 == y.0) {
                 let (b, first_face, first_code) = run[0];
                 stats.edges += 1;
-                let item = faces[first_face as usize].item;
+                let item = self.welded.face(first_face as usize).0.item;
                 let pb = points[b as usize];
                 match run.len() {
                     1 => {
@@ -728,8 +755,9 @@ impl EdgeClasses<'_> {
                     }
                     2 => {
                         let (_, second_face, second_code) = run[1];
-                        let (f1, f2) = (&faces[first_face as usize], &faces[second_face as usize]);
-                        let n1 = f1.normal;
+                        let first = self.welded.face(first_face as usize);
+                        let second = self.welded.face(second_face as usize);
+                        let n1 = first.0.normal;
                         // Consistently wound neighbours run a shared edge in opposite
                         // directions; where they do not, one of them is turned over.
                         let flip = if first_code & 1 == second_code & 1 {
@@ -737,16 +765,15 @@ impl EdgeClasses<'_> {
                         } else {
                             1.0
                         };
-                        let n2 = f2.normal * flip;
+                        let n2 = second.0.normal * flip;
                         let bend = Bend::between(&n1, &n2);
                         if !bend.exceeds(&self.coplanar) {
                             // A triangulation diagonal or a subdivided flat wall: never drawn.
                         } else {
                             let said = file_says_smooth(
                                 self.obj,
-                                self.corners,
-                                (f1, first_code),
-                                (f2, second_code),
+                                (first, first_code),
+                                (second, second_code),
                             );
                             if said.is_some() {
                                 stats.by_file += 1;
@@ -819,69 +846,57 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
     welded
 }
 
-/// Calls `visit(low, high, face, code)` for every face edge, faces first, then holes.
-/// `code` is the corner index in the face times two, plus one if the face runs the edge
-/// from the low vertex to the high; a hole's edges carry [`HOLE_CORNER`].
-fn each_face_edge(
-    welded: &WeldedFaces,
-    faces: Range<usize>,
-    mut visit: impl FnMut(u32, u32, u32, u32),
-) {
-    let holes_too = faces.end == welded.faces.len();
-    for (f, face) in faces.clone().zip(&welded.faces[faces]) {
-        let ring = &welded.corners[face.first as usize..(face.first + face.count) as usize];
-        for k in 0..ring.len() {
-            let (a, b) = (ring[k].0, ring[(k + 1) % ring.len()].0);
+/// Calls `visit(low, high, face, code)` for every face edge of a run whose first face is
+/// number `base`, its faces first, then its holes. `code` is the corner index in the face
+/// times two, plus one if the face runs the edge from the low vertex to the high; a hole's
+/// edges carry [`HOLE_CORNER`].
+fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, u32, u32)) {
+    for (f, index) in (base..).zip(0..run.faces.len()) {
+        for (k, (a, _), (b, _)) in sides(run.ring(index)) {
+            visit(a.min(b), a.max(b), f, (k as u32) << 1 | (a < b) as u32);
+        }
+    }
+    for (f, ring) in &run.holes {
+        for (_, a, b) in sides(ring) {
             visit(
                 a.min(b),
                 a.max(b),
-                f as u32,
-                (k as u32) << 1 | (a < b) as u32,
+                base + *f as u32,
+                HOLE_CORNER << 1 | (a < b) as u32,
             );
-        }
-    }
-    if holes_too {
-        for (f, ring) in &welded.holes {
-            for k in 0..ring.len() {
-                let (a, b) = (ring[k], ring[(k + 1) % ring.len()]);
-                visit(
-                    a.min(b),
-                    a.max(b),
-                    *f as u32,
-                    HOLE_CORNER << 1 | (a < b) as u32,
-                );
-            }
         }
     }
 }
 
 /// Where each vertex's face edges begin when grouped by their low vertex: those of `v`
-/// are `starts[v]..starts[v + 1]` (a counting sort's first pass; on two cores, each
-/// counting half of the faces).
-fn edge_starts(welded: &WeldedFaces, vertices: usize, two_cores: bool) -> Vec<u32> {
-    let count = |faces: Range<usize>| {
-        let mut counts = vec![0u32; vertices + 1];
-        each_face_edge(welded, faces, |low, _, _, _| counts[low as usize + 1] += 1);
-        counts
-    };
-    let all = 0..welded.faces.len();
-    let mut starts = if two_cores {
-        let middle = all.end / 2;
-        let (mut counts, later) = std::thread::scope(|scope| {
-            let later = scope.spawn(|| count(middle..all.end));
-            (count(0..middle), joined(later))
-        });
-        for (c, l) in counts.iter_mut().zip(later) {
-            *c += l;
-        }
-        counts
-    } else {
-        count(all)
-    };
-    for v in 0..vertices {
-        starts[v + 1] += starts[v];
+/// are `starts[v]..starts[v + 1]` (a counting sort's first pass, from the counts made
+/// while welding).
+fn edge_starts(welded: &mut WeldedMesh) -> Vec<u32> {
+    let mut starts = std::mem::take(&mut welded.first.low_ends);
+    for (s, c) in starts.iter_mut().zip(&welded.second.low_ends) {
+        *s += c;
+    }
+    for v in 1..starts.len() {
+        starts[v] += starts[v - 1];
     }
     starts
+}
+
+/// Adds one at each side's lower end (plus one) for the sides of a closed ring.
+fn count_low_ends<T: Copy>(low_ends: &mut [u32], ring: &[T], vertex: impl Fn(T) -> u32) {
+    for (_, a, b) in sides(ring) {
+        low_ends[vertex(a).min(vertex(b)) as usize + 1] += 1;
+    }
+}
+
+/// Each side of a closed ring: its place, its start and its end, the last side closing
+/// back to the first corner.
+fn sides<T: Copy>(ring: &[T]) -> impl Iterator<Item = (usize, T, T)> + '_ {
+    let ends = ring.iter().skip(1).chain(ring.first());
+    ring.iter()
+        .zip(ends)
+        .enumerate()
+        .map(|(k, (&a, &b))| (k, a, b))
 }
 
 /// The face edges whose low vertex is in `lows`, as (high vertex, face, code) grouped by
@@ -891,7 +906,7 @@ fn edge_starts(welded: &WeldedFaces, vertices: usize, two_cores: bool) -> Vec<u3
 /// of edges at each vertex to sort: linear time, where sorting all the edges at once was
 /// the costliest step of a large model.
 fn face_edges_from(
-    welded: &WeldedFaces,
+    welded: &WeldedMesh,
     starts: &[u32],
     lows: Range<usize>,
 ) -> Vec<(u32, u32, u32)> {
@@ -899,13 +914,15 @@ fn face_edges_from(
     let mut sorted = vec![(0u32, 0u32, 0u32); (starts[lows.end] - base) as usize];
     let mut next: Vec<u32> = starts[lows.clone()].iter().map(|s| s - base).collect();
     let (from, to) = (lows.start as u32, lows.end as u32);
-    each_face_edge(welded, 0..welded.faces.len(), |low, high, face, code| {
-        if (from..to).contains(&low) {
-            let at = &mut next[(low - from) as usize];
-            sorted[*at as usize] = (high, face, code);
-            *at += 1;
-        }
-    });
+    for (base, run) in welded.numbered_runs() {
+        each_face_edge(run, base, |low, high, face, code| {
+            if (from..to).contains(&low) {
+                let at = &mut next[(low - from) as usize];
+                sorted[*at as usize] = (high, face, code);
+                *at += 1;
+            }
+        });
+    }
     for v in lows {
         sorted[(starts[v] - base) as usize..(starts[v + 1] - base) as usize].sort_unstable();
     }
@@ -926,10 +943,8 @@ fn is_convex_face(corners: &[(u32, u32)], points: &[Point3<f64>], normal: &Vecto
     })
 }
 
-/// A face of the mesh after welding: its corners are `corners[first..first + count]`.
+/// A face of the mesh after welding.
 struct MeshFace {
-    first: u32,
-    count: u32,
     normal: Vector3<f64>,
     item: ItemId,
     smoothing: Smoothing,
@@ -944,13 +959,11 @@ struct MeshFace {
 /// groups: the same group is smooth; different groups, or no group (`s off`), hard.
 fn file_says_smooth(
     obj: &ObjFile,
-    corners: &[(u32, u32)],
-    (f1, code1): (&MeshFace, u32),
-    (f2, code2): (&MeshFace, u32),
+    ((f1, ring1), code1): (FaceAndRing<'_>, u32),
+    ((f2, ring2), code2): (FaceAndRing<'_>, u32),
 ) -> Option<bool> {
     // Each face's normal indices at the edge's low and high vertex.
-    let ends = |face: &MeshFace, code: u32| {
-        let welded = &corners[face.first as usize..(face.first + face.count) as usize];
+    let ends = |welded: &[(u32, u32)], code: u32| {
         if code >> 1 == HOLE_CORNER {
             return (NO_NORMAL, NO_NORMAL);
         }
@@ -962,8 +975,8 @@ fn file_says_smooth(
             (next, start)
         }
     };
-    let (low1, high1) = ends(f1, code1);
-    let (low2, high2) = ends(f2, code2);
+    let (low1, high1) = ends(ring1, code1);
+    let (low2, high2) = ends(ring2, code2);
     if [low1, high1, low2, high2].iter().all(|&n| n != NO_NORMAL) {
         let same = |i: u32, j: u32| {
             i == j || {
@@ -1032,19 +1045,42 @@ fn place(positions: &[Point3<f64>], placement: &MeshPlacement) -> Vec<Point3<f64
 fn weld(positions: &[Point3<f64>], used: &[bool], two_cores: bool) -> (Vec<u32>, usize) {
     // The model's size from the positions its faces and lines use: a stray vertex far away
     // must not widen the tolerance until the model welds into a point.
-    let (mut low, mut high) = (
-        Point3::from([f64::INFINITY; 3]),
-        Point3::from([f64::NEG_INFINITY; 3]),
-    );
+    // Plain comparisons: a third of the time `inf` and `sup` of points took here.
+    let (mut low, mut high) = ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]);
     for (p, _) in positions.iter().zip(used).filter(|(_, &u)| u) {
-        low = low.inf(p);
-        high = high.sup(p);
+        for k in 0..3 {
+            if p[k] < low[k] {
+                low[k] = p[k];
+            }
+            if p[k] > high[k] {
+                high[k] = p[k];
+            }
+        }
     }
     // The largest side rather than the diagonal: no squares to overflow.
-    let size = (high - low).amax();
+    let size = (0..3)
+        .map(|k| high[k] - low[k])
+        .fold(f64::NEG_INFINITY, f64::max);
     let tolerance = size * WELD_FRACTION;
     let keyable = tolerance.is_finite() && tolerance > 0.0;
-    let key = |p: &Point3<f64>| {
+    // A position's coordinates rounded to the tolerance, counted in tolerances from the
+    // model's lowest corner: below 2^24 for every position the model uses (it is 10^7
+    // tolerances across), so they pack with the position's index into one integer, and
+    // sorting keys is sorting integers. A stray position too far away to pack (or every
+    // position, where there is no tolerance) goes the general way.
+    let corner = low.map(|c| (c / tolerance).round());
+    let packed = |p: &Point3<f64>, i: usize| -> Option<u128> {
+        let mut key = i as u128;
+        for k in 0..3 {
+            let counted = (p[k] / tolerance).round() - corner[k];
+            if !(keyable && (0.0..PACKED_SPAN).contains(&counted)) {
+                return None;
+            }
+            key |= u128::from(counted as u32) << (32 * (3 - k));
+        }
+        Some(key)
+    };
+    let general = |p: &Point3<f64>| {
         // Beyond what rounding to the tolerance can key (a model spanning 1e300, say),
         // only identical positions weld.
         if keyable && p.iter().all(|c| (c / tolerance).abs() < 9e18) {
@@ -1053,52 +1089,39 @@ fn weld(positions: &[Point3<f64>], used: &[bool], two_cores: bool) -> (Vec<u32>,
             [p.x, p.y, p.z].map(|c| c.to_bits() as i64)
         }
     };
-    // (key, position index) sorted: each run of equal keys is one vertex, led by the first
-    // position that has it. (Sorting is cheaper than a hash map of a million keys, whose
-    // every insert misses the cache.) A large model's two halves keyed and sorted on two
-    // cores, then walked together as if merged.
+    // Keys sorted: each run of equal keys is one vertex, led by the first position that
+    // has it. (Sorting is cheaper than a hash map of a million keys, whose every insert
+    // misses the cache.) A large model's two halves keyed and sorted on two cores, then
+    // walked together as if merged.
     let keyed = |range: Range<usize>| {
-        let mut keyed: Vec<([i64; 3], u32)> = positions[range.clone()]
-            .iter()
-            .zip(range)
-            .map(|(p, i)| (key(p), i as u32))
-            .collect();
-        keyed.sort_unstable();
-        keyed
+        let mut keys: Vec<u128> = Vec::with_capacity(range.len());
+        let mut strays: Vec<([i64; 3], u32)> = Vec::new();
+        for (p, i) in positions[range.clone()].iter().zip(range) {
+            match packed(p, i) {
+                Some(key) => keys.push(key),
+                None => strays.push((general(p), i as u32)),
+            }
+        }
+        keys.sort_unstable();
+        (keys, strays)
     };
     let all = 0..positions.len();
-    let (first, second) = if two_cores {
+    let ((first, mut strays), (second, later_strays)) = if two_cores {
         let middle = all.end / 2;
         std::thread::scope(|scope| {
             let second = scope.spawn(|| keyed(middle..all.end));
             (keyed(0..middle), joined(second))
         })
     } else {
-        (keyed(all), Vec::new())
+        (keyed(all), Default::default())
     };
     let mut leader: Vec<u32> = vec![0; positions.len()];
-    let (mut i, mut j) = (0, 0);
-    while let Some(k) = match (first.get(i), second.get(j)) {
-        (Some(a), Some(b)) => Some(a.0.min(b.0)),
-        (a, b) => a.or(b).map(|e| e.0),
-    } {
-        let run = |list: &[([i64; 3], u32)], from: usize| {
-            from..from + list[from..].iter().take_while(|e| e.0 == k).count()
-        };
-        let (here, there) = (run(&first, i), run(&second, j));
-        // Every index of the first half is below the second half's.
-        let lead = first[here.clone()]
-            .iter()
-            .chain(&second[there.clone()])
-            .map(|e| e.1)
-            .next()
-            .unwrap_or_default();
-        for &(_, p) in first[here.clone()].iter().chain(&second[there.clone()]) {
-            leader[p as usize] = lead;
-        }
-        (i, j) = (here.end, there.end);
-    }
-    drop((first, second));
+    lead_runs(&first, &second, |&k| k >> 32, |&k| k as u32, &mut leader);
+    // A packed key never equals a stray's: the strays weld among themselves.
+    strays.extend(later_strays);
+    strays.sort_unstable();
+    lead_runs(&strays, &[], |e| e.0, |e| e.1, &mut leader);
+    drop((first, second, strays));
     // Vertices numbered in order of first appearance, as the file lists them.
     let mut weld = Vec::with_capacity(positions.len());
     let mut count = 0u32;
@@ -1111,6 +1134,39 @@ fn weld(positions: &[Point3<f64>], used: &[bool], two_cores: bool) -> (Vec<u32>,
         }
     }
     (weld, count as usize)
+}
+
+/// How many tolerances a packed weld key counts along each axis: 32 bits of it.
+const PACKED_SPAN: f64 = 4_294_967_296.0;
+
+/// Writes each position's leader: the first position of its run of equal keys. `first`
+/// and `second` are sorted by key and index, every index in `first` below those in
+/// `second`; they are walked together as if merged.
+fn lead_runs<T, K: Ord>(
+    first: &[T],
+    second: &[T],
+    key: impl Fn(&T) -> K,
+    index: impl Fn(&T) -> u32,
+    leader: &mut [u32],
+) {
+    let (mut i, mut j) = (0, 0);
+    while let Some(k) = match (first.get(i), second.get(j)) {
+        (Some(a), Some(b)) => Some(key(a).min(key(b))),
+        (a, b) => a.or(b).map(&key),
+    } {
+        let run = |list: &[T], from: usize| {
+            from..from + list[from..].iter().take_while(|e| key(e) == k).count()
+        };
+        let (here, there) = (run(first, i), run(second, j));
+        let mut members = first[here.clone()].iter().chain(&second[there.clone()]);
+        if let Some(lead) = members.next().map(&index) {
+            leader[lead as usize] = lead;
+            for e in members {
+                leader[index(e) as usize] = lead;
+            }
+        }
+        (i, j) = (here.end, there.end);
+    }
 }
 
 /// One position for each welded vertex (the first that welded into it), in the positions'
@@ -1387,6 +1443,43 @@ mod tests {
             (stats.vertices, site.edges.len(), stats.dropped_faces),
             (9, 12, 0)
         );
+    }
+
+    #[test]
+    fn positions_weld_within_the_tolerance_and_strays_among_themselves() {
+        // Worked by hand: the used positions span 1 m in x, so the tolerance is 1e-7 m.
+        // B' lies 0.2 tolerances from B and welds into it. The unused strays lie 10^10
+        // tolerances out, beyond the packed keys' 2^32, and go the general way: S2 is S1
+        // again, S3 0.3 tolerances from them (welds), S4 ten tolerances off (does not).
+        let p = |x: f64| Point3::new(x, 0.0, 0.0);
+        let positions = [
+            p(0.0),           // A
+            p(1000.0),        // S1
+            p(1.0),           // B
+            p(1000.0),        // S2
+            p(1.0 + 2e-8),    // B'
+            p(1000.0 + 3e-8), // S3
+            p(1000.0 + 1e-6), // S4
+        ];
+        let used = [true, false, true, false, true, false, false];
+        for two_cores in [false, true] {
+            // On two cores the halves (0..3 and 3..7) weld across the split.
+            assert_eq!(
+                weld(&positions, &used, two_cores),
+                (vec![0, 1, 2, 1, 2, 1, 3], 4),
+                "two cores: {two_cores}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_ring_has_a_side_from_each_corner_to_the_next_and_back_to_the_first() {
+        assert_eq!(
+            sides(&['a', 'b', 'c']).collect::<Vec<_>>(),
+            [(0, 'a', 'b'), (1, 'b', 'c'), (2, 'c', 'a')]
+        );
+        assert_eq!(sides(&['a']).collect::<Vec<_>>(), [(0, 'a', 'a')]);
+        assert_eq!(sides::<char>(&[]).count(), 0);
     }
 
     #[test]
