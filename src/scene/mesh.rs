@@ -29,9 +29,9 @@
 //!   Z-up files map straight across. Units: metre, centimetre, millimetre, inch (25.4 mm) and
 //!   foot (0.3048 m), exact by the 1959 international yard and pound agreement.
 //! - **Which edges** (`scene/mesh.rs`): positions are welded when their coordinates round to the
-//!   same multiple of 1e-7 of the bounding-box diagonal (exact duplicates always merge; two
+//!   same multiple of 1e-7 of the bounding box's largest side (exact duplicates always merge; two
 //!   points within the tolerance across a rounding boundary do not, a known limit). Each face's
-//!   own edges are listed as (low, high, face) and sorted; an edge of one face is a boundary,
+//!   own edges are listed as (low, high, face), grouped by their low vertex and sorted; an edge of one face is a boundary,
 //!   of three or more non-manifold, both drawn; of two, a crease (drawn) when their normals
 //!   (Newell's method, orientation mended where neighbours are wound inconsistently) differ by
 //!   more than the crease angle (default 20 degrees, [`DEFAULT_CREASE_DEG`]), otherwise a silhouette candidate unless
@@ -158,7 +158,7 @@ pub struct MeshStats {
 /// neither a crease nor ever a silhouette.
 const COPLANAR: f64 = 1e-6;
 
-/// Positions closer than this fraction of the model's bounding-box diagonal are welded.
+/// Positions closer than this fraction of the model's bounding box (its largest side) are welded.
 const WELD_FRACTION: f64 = 1e-7;
 
 /// Normals closer than this (as unit vectors) are the same normal: exporters that split a
@@ -265,7 +265,7 @@ fn add_mesh_on_cores(
         slack: 0.0,
     };
     let all = 0..obj.faces.len();
-    let mut welded = if two_cores {
+    let welded = if two_cores {
         // Each core lists its half's triangles by vertex number (a fifth of their size),
         // then both write them out in place, in file order (rayon's `par_extend` of an
         // indexed list): no half is left to write out on one core afterwards.
@@ -308,16 +308,34 @@ fn add_mesh_on_cores(
         ..MeshStats::default()
     };
 
-    // Every face edge as (low vertex, high vertex, face, code), grouped by the low vertex
-    // and sorted: equal edges are adjacent. A large model's in two ranges of low vertices
-    // on two cores, cut where half the edges lie on either side (equal edges share their
-    // low vertex); the second range's edges follow the first's, as one pass gives them.
-    let starts = edge_starts(&mut welded);
-    let total = starts[vertices] as usize;
+    // Every face edge as (low vertex, high vertex, face, code), grouped by the low vertex:
+    // each run's on the core that welded it. Then the edges at each vertex, from both
+    // runs, sorted (equal edges are adjacent) and classed: a large model's in two ranges
+    // of low vertices on two cores, cut where half the face edges lie on either side
+    // (equal edges share their low vertex); the second range's edges follow the first's,
+    // as one pass gives them.
+    let (first_run, second_run) = std::thread::scope(|scope| {
+        let [(base, first), (later_base, second)] = welded.numbered_runs();
+        let later = (!second.faces.is_empty())
+            .then(|| scope.spawn(move || EdgesByLow::of(second, later_base, vertices)));
+        let first = EdgesByLow::of(first, base, vertices);
+        let second = later.map_or_else(|| EdgesByLow::of(second, later_base, vertices), joined);
+        (first, second)
+    });
+    let edges_at = |a: usize| first_run.at(a).len() + second_run.at(a).len();
+    let edges_below = |v: usize| first_run.starts[v] + second_run.starts[v];
     let cut = if two_cores {
-        starts
-            .partition_point(|&s| (s as usize) < total / 2)
-            .min(vertices)
+        let half = edges_below(vertices) / 2;
+        let (mut low, mut high) = (0, vertices);
+        while low < high {
+            let middle = (low + high) / 2;
+            if edges_below(middle) < half {
+                low = middle + 1;
+            } else {
+                high = middle;
+            }
+        }
+        low
     } else {
         vertices
     };
@@ -333,24 +351,32 @@ fn add_mesh_on_cores(
     // lists have room for every face edge of the range (each distinct edge is at least
     // one, a smooth one two): what is never written costs address space, not memory.
     let range_edges = |range: Range<usize>| {
-        let sorted = face_edges_from(&welded, &starts, range.clone());
-        let mut drawn = Vec::with_capacity(sorted.len());
-        let mut smooth = Vec::with_capacity(sorted.len() / 2);
+        let room = (edges_below(range.end) - edges_below(range.start)) as usize;
+        let mut drawn = Vec::with_capacity(room);
+        let mut smooth = Vec::with_capacity(room / 2);
         let mut counts = MeshStats::default();
-        classes.classify(
-            &starts,
-            range,
-            &sorted,
-            |a, b, item| drawn.push((a, b, item)),
-            &mut smooth,
-            &mut counts,
-        );
+        let mut at_a = Vec::new();
+        for a in range {
+            at_a.clear();
+            at_a.extend_from_slice(first_run.at(a));
+            at_a.extend_from_slice(second_run.at(a));
+            debug_assert_eq!(at_a.len(), edges_at(a));
+            at_a.sort_unstable();
+            classes.classify(
+                a,
+                &at_a,
+                &mut |a, b, item| drawn.push((a, b, item)),
+                &mut smooth,
+                &mut counts,
+            );
+        }
         (drawn, smooth, counts)
     };
     let (first, later) = std::thread::scope(|scope| {
         let later = (cut < vertices).then(|| scope.spawn(|| range_edges(cut..vertices)));
         (range_edges(0..cut), later.map(joined))
     });
+    drop((first_run, second_run));
     let (later_drawn, later_smooth) = later
         .as_ref()
         .map_or((&[][..], &[][..]), |l| (&l.0[..], &l.1[..]));
@@ -561,7 +587,7 @@ struct WeldedFaces {
     holes: Vec<(usize, Vec<u32>)>,
     /// How many edges of these faces and holes have each vertex as their lower end, at
     /// the vertex's number plus one: counted as the faces are welded, for
-    /// [`edge_starts`].
+    /// [`EdgesByLow`].
     low_ends: Vec<u32>,
     /// Faces of no area left out.
     dropped: usize,
@@ -725,77 +751,68 @@ struct EdgeClasses<'a> {
 }
 
 impl EdgeClasses<'_> {
-    /// Walks the runs of equal edges whose low vertex is in `lows` (`sorted` from
-    /// [`face_edges_from`], `starts` from [`edge_starts`]), handing the drawn ones (their
-    /// vertices and item) to `draw`, adding the smooth ones to `silhouettes`, and counting
-    /// them.
+    /// Walks the runs of equal edges at vertex `a` (`at_a`: its face edges as (high
+    /// vertex, face, code), sorted), handing the drawn ones (their vertices and item) to
+    /// `draw`, adding the smooth ones to `silhouettes`, and counting them.
     fn classify(
         &self,
-        starts: &[u32],
-        lows: Range<usize>,
-        sorted: &[(u32, u32, u32)],
-        mut draw: impl FnMut(u32, u32, ItemId),
+        a: usize,
+        at_a: &[(u32, u32, u32)],
+        draw: &mut impl FnMut(u32, u32, ItemId),
         silhouettes: &mut Vec<SilhouetteEdge>,
         stats: &mut MeshStats,
     ) {
         let points = self.points;
-        let base = starts[lows.start] as usize;
-        for a in lows {
-            let pa = points[a];
-            let at_a = &sorted[starts[a] as usize - base..starts[a + 1] as usize - base];
-            for run in at_a.chunk_by(|x, y| x.0 == y.0) {
-                let (b, first_face, first_code) = run[0];
-                stats.edges += 1;
-                let item = self.welded.face(first_face as usize).0.item;
-                let pb = points[b as usize];
-                match run.len() {
-                    1 => {
-                        stats.boundary += 1;
-                        draw(a as u32, b, item);
-                    }
-                    2 => {
-                        let (_, second_face, second_code) = run[1];
-                        let first = self.welded.face(first_face as usize);
-                        let second = self.welded.face(second_face as usize);
-                        let n1 = first.0.normal;
-                        // Consistently wound neighbours run a shared edge in opposite
-                        // directions; where they do not, one of them is turned over.
-                        let flip = if first_code & 1 == second_code & 1 {
-                            -1.0
+        let pa = points[a];
+        for run in at_a.chunk_by(|x, y| x.0 == y.0) {
+            let (b, first_face, first_code) = run[0];
+            stats.edges += 1;
+            let item = self.welded.face(first_face as usize).0.item;
+            let pb = points[b as usize];
+            match run.len() {
+                1 => {
+                    stats.boundary += 1;
+                    draw(a as u32, b, item);
+                }
+                2 => {
+                    let (_, second_face, second_code) = run[1];
+                    let first = self.welded.face(first_face as usize);
+                    let second = self.welded.face(second_face as usize);
+                    let n1 = first.0.normal;
+                    // Consistently wound neighbours run a shared edge in opposite
+                    // directions; where they do not, one of them is turned over.
+                    let flip = if first_code & 1 == second_code & 1 {
+                        -1.0
+                    } else {
+                        1.0
+                    };
+                    let n2 = second.0.normal * flip;
+                    let bend = Bend::between(&n1, &n2);
+                    if !bend.exceeds(&self.coplanar) {
+                        // A triangulation diagonal or a subdivided flat wall: never drawn.
+                    } else {
+                        let said =
+                            file_says_smooth(self.obj, (first, first_code), (second, second_code));
+                        if said.is_some() {
+                            stats.by_file += 1;
+                        }
+                        if !said.unwrap_or_else(|| !bend.exceeds(&self.crease)) {
+                            stats.creases += 1;
+                            draw(a as u32, b, item);
                         } else {
-                            1.0
-                        };
-                        let n2 = second.0.normal * flip;
-                        let bend = Bend::between(&n1, &n2);
-                        if !bend.exceeds(&self.coplanar) {
-                            // A triangulation diagonal or a subdivided flat wall: never drawn.
-                        } else {
-                            let said = file_says_smooth(
-                                self.obj,
-                                (first, first_code),
-                                (second, second_code),
-                            );
-                            if said.is_some() {
-                                stats.by_file += 1;
-                            }
-                            if !said.unwrap_or_else(|| !bend.exceeds(&self.crease)) {
-                                stats.creases += 1;
-                                draw(a as u32, b, item);
-                            } else {
-                                stats.smooth += 1;
-                                silhouettes.push(SilhouetteEdge {
-                                    start: pa,
-                                    end: pb,
-                                    normals: [n1, n2],
-                                    item,
-                                });
-                            }
+                            stats.smooth += 1;
+                            silhouettes.push(SilhouetteEdge {
+                                start: pa,
+                                end: pb,
+                                normals: [n1, n2],
+                                item,
+                            });
                         }
                     }
-                    _ => {
-                        stats.non_manifold += 1;
-                        draw(a as u32, b, item);
-                    }
+                }
+                _ => {
+                    stats.non_manifold += 1;
+                    draw(a as u32, b, item);
                 }
             }
         }
@@ -868,20 +885,6 @@ fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, 
     }
 }
 
-/// Where each vertex's face edges begin when grouped by their low vertex: those of `v`
-/// are `starts[v]..starts[v + 1]` (a counting sort's first pass, from the counts made
-/// while welding).
-fn edge_starts(welded: &mut WeldedMesh) -> Vec<u32> {
-    let mut starts = std::mem::take(&mut welded.first.low_ends);
-    for (s, c) in starts.iter_mut().zip(&welded.second.low_ends) {
-        *s += c;
-    }
-    for v in 1..starts.len() {
-        starts[v] += starts[v - 1];
-    }
-    starts
-}
-
 /// Adds one at each side's lower end (plus one) for the sides of a closed ring.
 fn count_low_ends<T: Copy>(low_ends: &mut [u32], ring: &[T], vertex: impl Fn(T) -> u32) {
     for (_, a, b) in sides(ring) {
@@ -899,34 +902,39 @@ fn sides<T: Copy>(ring: &[T]) -> impl Iterator<Item = (usize, T, T)> + '_ {
         .map(|(k, (&a, &b))| (k, a, b))
 }
 
-/// The face edges whose low vertex is in `lows`, as (high vertex, face, code) grouped by
-/// low vertex (`starts` from [`edge_starts`]) and each vertex's sorted: equal edges are
-/// adjacent, in the order `sort_unstable` gives (low, high, face, code) tuples (distinct
-/// but for repeated hole edges, which are equal). The counting sort leaves only a handful
-/// of edges at each vertex to sort: linear time, where sorting all the edges at once was
-/// the costliest step of a large model.
-fn face_edges_from(
-    welded: &WeldedMesh,
-    starts: &[u32],
-    lows: Range<usize>,
-) -> Vec<(u32, u32, u32)> {
-    let base = starts[lows.start];
-    let mut sorted = vec![(0u32, 0u32, 0u32); (starts[lows.end] - base) as usize];
-    let mut next: Vec<u32> = starts[lows.clone()].iter().map(|s| s - base).collect();
-    let (from, to) = (lows.start as u32, lows.end as u32);
-    for (base, run) in welded.numbered_runs() {
+/// A run's face edges as (high vertex, face, code), grouped by their low vertex: those at
+/// `v` are `edges[starts[v]..starts[v + 1]]` (a counting sort, from the counts made while
+/// welding), in the order the faces give them. Grouping leaves only a handful of edges
+/// at each vertex to sort: linear time, where sorting all the edges at once was the
+/// costliest step of a large model.
+struct EdgesByLow {
+    starts: Vec<u32>,
+    edges: Vec<(u32, u32, u32)>,
+}
+
+impl EdgesByLow {
+    /// The face edges of a run whose first face is number `base`, on a mesh of
+    /// `vertices` welded vertices.
+    fn of(run: &WeldedFaces, base: u32, vertices: usize) -> Self {
+        let mut starts = run.low_ends.clone();
+        starts.resize(vertices + 1, 0);
+        for v in 1..starts.len() {
+            starts[v] += starts[v - 1];
+        }
+        let mut edges = vec![(0, 0, 0); starts[vertices] as usize];
+        let mut next = starts.clone();
         each_face_edge(run, base, |low, high, face, code| {
-            if (from..to).contains(&low) {
-                let at = &mut next[(low - from) as usize];
-                sorted[*at as usize] = (high, face, code);
-                *at += 1;
-            }
+            let at = &mut next[low as usize];
+            edges[*at as usize] = (high, face, code);
+            *at += 1;
         });
+        EdgesByLow { starts, edges }
     }
-    for v in lows {
-        sorted[(starts[v] - base) as usize..(starts[v + 1] - base) as usize].sort_unstable();
+
+    /// The face edges whose low vertex is `v`.
+    fn at(&self, v: usize) -> &[(u32, u32, u32)] {
+        &self.edges[self.starts[v] as usize..self.starts[v + 1] as usize]
     }
-    sorted
 }
 
 /// Whether a face turns the same way at every corner about its normal (a fan of triangles
