@@ -1481,6 +1481,29 @@ mod tests {
     }
 
     #[test]
+    fn face_edges_are_grouped_by_their_lower_vertex_with_direction_and_corner() {
+        // Worked by hand: triangles (0 1 2) and (2 1 3), numbered from 10, share the edge
+        // 1-2, which they run in opposite directions (consistent winding). Each side k of a
+        // face from a to b is (high, face, 2k + [a < b]) at its lower vertex.
+        let mut run = WeldedFaces::with_room(&[], 4);
+        for ring in [[0, 1, 2], [2, 1, 3]] {
+            run.firsts.push(run.corners.len() as u32);
+            run.corners.extend(ring.map(|v| (v, NO_NORMAL)));
+            count_low_ends(&mut run.low_ends, &ring, |v| v);
+            run.faces.push(MeshFace {
+                normal: Vector3::z(),
+                item: ItemId(0),
+                smoothing: Smoothing::Unsaid,
+            });
+        }
+        let grouped = EdgesByLow::of(&run, 10, 4);
+        assert_eq!(grouped.at(0), [(1, 10, 1), (2, 10, 4)]);
+        assert_eq!(grouped.at(1), [(2, 10, 3), (2, 11, 0), (3, 11, 3)]);
+        assert_eq!(grouped.at(2), [(3, 11, 4)]);
+        assert_eq!(grouped.at(3), []);
+    }
+
+    #[test]
     fn a_ring_has_a_side_from_each_corner_to_the_next_and_back_to_the_first() {
         assert_eq!(
             sides(&['a', 'b', 'c']).collect::<Vec<_>>(),
