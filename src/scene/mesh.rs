@@ -372,7 +372,7 @@ fn add_mesh_on_cores(
         }
         (drawn, smooth, counts)
     };
-    let (first, later) = std::thread::scope(|scope| {
+    let (mut first, later) = std::thread::scope(|scope| {
         let later = (cut < vertices).then(|| scope.spawn(|| range_edges(cut..vertices)));
         (range_edges(0..cut), later.map(joined))
     });
@@ -396,6 +396,11 @@ fn add_mesh_on_cores(
                 item,
             }),
     );
+    // The first range's smooth edges become the site's list when it has none yet (a
+    // single model), rather than being copied into it.
+    if site.silhouette_candidates.is_empty() {
+        std::mem::swap(&mut site.silhouette_candidates, &mut first.1);
+    }
     site.silhouette_candidates
         .par_extend(first.1.par_iter().chain(later_smooth).copied());
     for (_, _, counts) in [Some(&first), later.as_ref()].into_iter().flatten() {
