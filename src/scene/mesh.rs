@@ -231,7 +231,7 @@ fn add_mesh_on_cores(
 ) -> MeshStats {
     let two_cores = obj.faces.len() >= parallel_from;
     let positions = place(&obj.positions, placement);
-    let used = used_positions(obj);
+    let used = used_positions(obj, two_cores);
     let (weld, vertices) = weld(&positions, &used, two_cores);
     drop(used);
     let points = representatives(positions, &weld, vertices);
@@ -1011,16 +1011,33 @@ fn file_says_smooth(
 
 /// Which of the file's positions its faces, holes and lines use (a stray vertex is not part
 /// of the model: it neither widens the weld's tolerance nor stands on the ground).
-fn used_positions(obj: &ObjFile) -> Vec<bool> {
-    let mut used = vec![false; obj.positions.len()];
+/// On two cores, each marks half of the faces' corners and the marks are joined.
+fn used_positions(obj: &ObjFile, two_cores: bool) -> Vec<bool> {
+    fn mark<'a>(positions: usize, indices: impl Iterator<Item = &'a u32>) -> Vec<bool> {
+        let mut used = vec![false; positions];
+        for &i in indices {
+            used[i as usize] = true;
+        }
+        used
+    }
+    let positions = obj.positions.len();
+    let middle = if two_cores {
+        obj.corners.len() / 2
+    } else {
+        obj.corners.len()
+    };
+    let (corners, later) = obj.corners.split_at(middle);
     let hole_points = obj.holes.iter().flat_map(|(_, ring)| ring);
-    for &i in obj
-        .corners
-        .iter()
-        .chain(&obj.line_points)
-        .chain(hole_points)
-    {
-        used[i as usize] = true;
+    let rest = corners.iter().chain(&obj.line_points).chain(hole_points);
+    if later.is_empty() {
+        return mark(positions, rest);
+    }
+    let (mut used, later) = std::thread::scope(|scope| {
+        let later = scope.spawn(|| mark(positions, later.iter()));
+        (mark(positions, rest), joined(later))
+    });
+    for (u, l) in used.iter_mut().zip(later) {
+        *u |= l;
     }
     used
 }
@@ -1029,7 +1046,7 @@ fn used_positions(obj: &ObjFile) -> Vec<bool> {
 pub fn placed_used_positions(obj: &ObjFile, placement: &MeshPlacement) -> Vec<Point3<f64>> {
     place(&obj.positions, placement)
         .into_iter()
-        .zip(used_positions(obj))
+        .zip(used_positions(obj, false))
         .filter_map(|(p, used)| used.then_some(p))
         .collect()
 }
