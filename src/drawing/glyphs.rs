@@ -274,3 +274,56 @@ pub enum Place {
 /// The placeholder for a character we have no glyph for: a crossed box, so that a missing
 /// letter is seen on the sheet and never silently dropped.
 pub const PLACEHOLDER: (f64, &str) = (6.0, "0,0 6,0 6,10 0,10 0,0 6,10;0,10 6,0");
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The width and strokes of a glyph drawn with straight lines only.
+    fn straight(c: char) -> (f64, Vec<Vec<(f64, f64)>>) {
+        let (width, text) = glyph(c).expect("a glyph of its own");
+        let point = |p: &str| {
+            let (x, y) = p.split_once(',').expect("x,y");
+            (x.parse().expect("x"), y.parse().expect("y"))
+        };
+        let strokes = text
+            .split(';')
+            .map(|s| s.split_whitespace().map(point).collect())
+            .collect();
+        (width, strokes)
+    }
+
+    #[test]
+    fn the_minus_sign_and_the_en_dash_are_the_plus_without_its_upright() {
+        // Common practice in type: the minus sign is as wide as the plus and lies on its
+        // bar; the en dash (set between figures: 1 to 3) is as wide as a figure.
+        let (plus_width, plus) = straight('+');
+        for c in ['\u{2212}', '\u{2013}'] {
+            let (width, strokes) = straight(c);
+            assert_eq!(width, plus_width, "{c}");
+            assert_eq!(strokes[..], plus[..1], "{c}");
+        }
+        assert_eq!(Some(straight('\u{2013}').0), glyph('0').map(|g| g.0));
+    }
+
+    #[test]
+    fn the_single_quotes_are_one_shape_turned_half_a_turn() {
+        // Common practice: the opening quote is the closing one (the apostrophe's form)
+        // turned half a turn; both hang from the cap line as far down as the straight
+        // apostrophe, so the turn is about the middle of that band.
+        let (_, apostrophe) = straight('\'');
+        let band: Vec<f64> = apostrophe[0].iter().map(|p| p.1).collect();
+        let (top, foot) = (band[0], band[1]);
+        let (width, closing) = straight('\u{2019}');
+        let turned: Vec<(f64, f64)> = closing[0]
+            .iter()
+            .map(|&(x, y)| (width - x, top + foot - y))
+            .collect();
+        assert_eq!(straight('\u{2018}'), (width, vec![turned]));
+        for quote in [&closing[0], &straight('\u{2018}').1[0]] {
+            let ys = quote.iter().map(|p| p.1);
+            assert_eq!(ys.clone().fold(f64::MIN, f64::max), top);
+            assert_eq!(ys.fold(f64::MAX, f64::min), foot);
+        }
+    }
+}

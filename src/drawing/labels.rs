@@ -712,4 +712,246 @@ mod tests {
         let horizon = [(5.0, 55.0), (19_995.0, 55.0)];
         assert_eq!(marked(wide, &[&horizon]).count(&wide), 2_000);
     }
+
+    /// The box round the centre lines of `text` as the lettering draws it at `at`.
+    fn drawn_box(text: &str, at: ImagePoint, height: f64, align: Align) -> Rect {
+        let mut out = PolylineSet::new();
+        letter(text, at, height, align, &mut out);
+        let (xs, ys): (Vec<f64>, Vec<f64>) = out.points().iter().map(|p| (p.x, p.y)).unzip();
+        let low = |v: &[f64]| v.iter().copied().fold(f64::INFINITY, f64::min);
+        let high = |v: &[f64]| v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        Rect::from_ltrb(low(&xs), low(&ys), high(&xs), high(&ys))
+    }
+
+    fn assert_box_near(a: Rect, b: Rect, what: &str) {
+        let sides = [
+            (a.left, b.left),
+            (a.top, b.top),
+            (a.right, b.right),
+            (a.bottom, b.bottom),
+        ];
+        assert!(
+            sides.iter().all(|(p, q)| (p - q).abs() < 1e-9),
+            "{what}: {a:?} != {b:?}"
+        );
+    }
+
+    #[test]
+    fn a_label_box_is_its_drawn_ink_grown_by_half_a_stroke() {
+        // A round cap or join reaches half the stroke's width beyond its centre line on
+        // every side (plane geometry); "Hp" reaches the cap line and the descender.
+        for height in [10.0, 25.0] {
+            for align in [Align::Start, Align::Middle, Align::End] {
+                let label = Label::fixed(
+                    "Hp",
+                    ImagePoint::new(200.0, 100.0),
+                    LabelKind::Item,
+                    height,
+                    align,
+                );
+                let drawn = drawn_box("Hp", ImagePoint::new(207.0, 97.0), height, align);
+                assert_box_near(
+                    label.bounds_at(&Spot::new(7.0, -3.0, align)),
+                    drawn.grown(stroke_width(height) / 2.0),
+                    &format!("{align:?} at {height} px"),
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn a_point_label_stands_clear_of_its_mark_all_round() {
+        // Worked by hand from the design: above right, above left, below right, below
+        // left, the ink d = 0.6 h clear of the anchor across and up or down (its baseline
+        // d above it, or its cap line d below); straight above and below, centred on it,
+        // 0.4 h further; then the same six with d = 1.5 h. "H" has only the cap height.
+        let (h, ax, ay) = (10.0, 200.0, 100.0);
+        let label = Label::around("H", ImagePoint::new(ax, ay), LabelKind::Item, h);
+        let w = drawn_box("H", ImagePoint::new(0.0, 0.0), h, Align::Start).width();
+        // The ink's box from its left edge and its baseline.
+        let ink = |left: f64, base: f64| Rect::from_ltrb(left, base - h, left + w, base);
+        let mut expected = Vec::new();
+        for d in [0.6 * h, 1.5 * h] {
+            expected.extend([
+                ink(ax + d, ay - d),
+                ink(ax - d - w, ay - d),
+                ink(ax + d, ay + d + h),
+                ink(ax - d - w, ay + d + h),
+                ink(ax - w / 2.0, ay - d - 0.4 * h),
+                ink(ax - w / 2.0, ay + d + 0.4 * h + h),
+            ]);
+        }
+        assert_eq!(label.spots.len(), expected.len());
+        for (k, (spot, want)) in label.spots.iter().zip(expected).enumerate() {
+            let at = ImagePoint::new(ax + spot.dx, ay + spot.dy);
+            let drawn = drawn_box("H", at, h, spot.align);
+            assert_box_near(drawn, want, &format!("spot {k}"));
+        }
+    }
+
+    /// "H", 10 px high, anchored at (100, 100): its ink 100 to 107 across and 90 to 100
+    /// down (strokes 1 px wide), at the first spot of `spots` that the placer takes.
+    fn h_at(kind: LabelKind, spots: &[(f64, f64)]) -> Label {
+        let spots = spots
+            .iter()
+            .map(|&(dx, dy)| Spot::new(dx, dy, Align::Start))
+            .collect();
+        Label::fixed("H", ImagePoint::new(100.0, 100.0), kind, 10.0, Align::Start).with_spots(spots)
+    }
+
+    /// Where `label` stands once `placer` has placed it, if it was placed.
+    fn stands(mut placer: LabelPlacer, label: Label) -> Option<(f64, f64)> {
+        placer.place(vec![label]);
+        placer.placed().first().map(|p| (p.at.x, p.at.y))
+    }
+
+    /// A line across the whole area at `y`.
+    fn across(y: f64) -> PolylineSet {
+        let mut lines = PolylineSet::new();
+        lines.push(&[ImagePoint::new(0.0, y), ImagePoint::new(400.0, y)]);
+        lines
+    }
+
+    #[test]
+    fn a_cut_stops_a_label_only_by_passing_through_its_clear_space() {
+        // With 1.5 px clear space round its ink box (the ink grown by half a stroke:
+        // 99.5 to 107.5 across, 89.5 to 100.5 down), the label keeps 98 to 109 across and
+        // 88 to 102 down: a cut through that stops it, one along its edge or far off not.
+        let fits = |xs: &[f64], ys: &[f64]| {
+            let mut placer = LabelPlacer::new(area(), 1.5);
+            placer.cut_along(xs, ys);
+            stands(placer, h_at(LabelKind::Item, &[(0.0, 0.0)])).is_some()
+        };
+        for x in [98.0, 109.0, 20.0, 300.0] {
+            assert!(fits(&[x], &[]), "a cut at x = {x}");
+        }
+        assert!(!fits(&[103.0], &[]));
+        for y in [88.0, 102.0, 20.0, 150.0] {
+            assert!(fits(&[], &[y]), "a cut at y = {y}");
+        }
+        assert!(!fits(&[], &[95.0]));
+    }
+
+    #[test]
+    fn only_names_move_off_the_lines_and_the_earlier_of_equals_wins() {
+        // A line at y = 95 crosses the ink of the spot on the anchor and of the one 50 px
+        // right of it, on cells of 10 px: two cells each (columns 9 and 10, and 14 and
+        // 15, of row 9); 30 px lower the ink (rows 11 to 13) is clear of it.
+        let placer = || {
+            let mut placer = LabelPlacer::new(area(), 0.0);
+            placer.avoid_lines(&across(95.0), 10.0);
+            placer
+        };
+        let (on, right, lower) = ((0.0, 0.0), (50.0, 0.0), (0.0, 30.0));
+        let item = |spots: &[(f64, f64)]| stands(placer(), h_at(LabelKind::Item, spots));
+        assert_eq!(item(&[on, lower]), Some((100.0, 130.0)));
+        assert_eq!(item(&[on, right, lower]), Some((100.0, 130.0)));
+        assert_eq!(
+            item(&[on, right]),
+            Some((100.0, 100.0)),
+            "the first of equals"
+        );
+        // A value belongs on its line: it takes its first free spot.
+        let value = stands(placer(), h_at(LabelKind::GridValue, &[on, lower]));
+        assert_eq!(value, Some((100.0, 100.0)));
+    }
+
+    #[test]
+    fn lines_are_avoided_on_cells_of_the_size_asked_and_none_is_forgotten() {
+        let (on, lower) = ((0.0, 0.0), (0.0, 30.0));
+        // On cells of 50 px a line at y = 80 shares row 1 (50 to 100) with the ink on
+        // the anchor (90 to 100), though 10 px above it; the ink 30 px lower is in row 2.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.avoid_lines(&across(80.0), 50.0);
+        let item = h_at(LabelKind::Item, &[on, lower]);
+        assert_eq!(stands(placer, item.clone()), Some((100.0, 130.0)));
+        // Lines given later on another cell size are added to those given before.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.avoid_lines(&across(95.0), 10.0);
+        placer.avoid_lines(&across(190.0), 5.0);
+        assert_eq!(stands(placer, item), Some((100.0, 130.0)));
+    }
+
+    #[test]
+    fn lines_kept_off_are_kept_a_cell_of_the_size_asked_away() {
+        // Kept a 50 px cell away, a line at y = 60 (row 1) is too near the ink box grown
+        // by a cell (39.5 to 150.5 down: rows 0 to 3): left out.
+        let on = h_at(LabelKind::Standpoint, &[(0.0, 0.0)]);
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.keep_off(LabelKind::Standpoint, &across(60.0), 50.0);
+        assert_eq!(stands(placer, on.clone()), None);
+        // Lines given later on another cell size are added to those given before: the
+        // line at y = 95 through the ink still keeps it out.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        placer.keep_off(LabelKind::Standpoint, &across(95.0), 10.0);
+        placer.keep_off(LabelKind::Standpoint, &across(190.0), 5.0);
+        assert_eq!(stands(placer, on), None);
+    }
+
+    #[test]
+    fn a_label_anchored_outside_the_area_or_blank_is_not_counted() {
+        // Anchored 50 px left of the area, its spot 150 px right of the anchor is inside:
+        // not this area's label all the same. Blank words have nothing to write.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let outside = Label::fixed(
+            "H",
+            ImagePoint::new(-50.0, 100.0),
+            LabelKind::Item,
+            10.0,
+            Align::Start,
+        )
+        .with_spots(vec![Spot::new(150.0, 0.0, Align::Start)]);
+        let blank = Label {
+            text: "   ".into(),
+            ..h_at(LabelKind::Item, &[(0.0, 0.0)])
+        };
+        placer.place(vec![outside, blank]);
+        assert_eq!(placer.finish(), Placed::default());
+    }
+
+    #[test]
+    fn each_height_has_a_halo_of_its_own_wider_by_the_halo_each_side() {
+        // Strokes d = h/10 (ISO 3098-0 type B, from memory): 1 px at 10 px, 2 px at 20 px.
+        // A halo of 3 px each side of the strokes is 6 px wider than them: 7 and 8 px,
+        // each under the letters of its own height only.
+        let mut placer = LabelPlacer::new(area(), 0.0);
+        let at = |x| ImagePoint::new(x, 50.0);
+        placer.place(vec![
+            Label::fixed("N", at(10.0), LabelKind::Compass, 10.0, Align::Start),
+            Label::fixed("E", at(100.0), LabelKind::Compass, 20.0, Align::Start),
+        ]);
+        let ink = LabelInk {
+            stroke: Stroke::black(1.0, 0.8),
+            halo_px: Some(3.0),
+        };
+        let layers = label_layers(&placer.finish().labels, ink);
+        let widths: Vec<f64> = layers.iter().map(|l| l.stroke.width_px).collect();
+        assert_eq!(widths, [7.0, 8.0, 1.0, 2.0]);
+        assert_eq!(layers[0].lines, layers[2].lines, "the 10 px halo");
+        assert_eq!(layers[1].lines, layers[3].lines, "the 20 px halo");
+    }
+
+    #[test]
+    fn each_kind_is_drawn_on_the_layer_its_readers_and_styles_name() {
+        // The names the sheets' read-back looks for (`LABEL_LAYERS` in `tests/sheets.rs`),
+        // which styles address too; heading and compass points go with the grid's values.
+        use LabelKind::*;
+        let grid = "grid labels";
+        let names = [
+            (Title, "title"),
+            (Heading, grid),
+            (Compass, grid),
+            (GridValue, grid),
+            (VanishingPoint, "vanishing point labels"),
+            (SunHour, "sun hour labels"),
+            (Pole, "pole labels"),
+            (Division, "division labels"),
+            (Standpoint, "standpoint labels"),
+            (Item, "item labels"),
+            (Caption, "captions"),
+        ];
+        for (kind, name) in names {
+            assert_eq!(kind.layer_name(), name);
+        }
+    }
 }

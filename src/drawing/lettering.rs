@@ -504,4 +504,89 @@ mod tests {
         // í has no dot under its acute.
         assert_eq!(shape('\u{ed}').strokes.len(), 2);
     }
+
+    fn assert_points_near(a: &[(f64, f64)], b: &[(f64, f64)], what: &str) {
+        let near = |p: &(f64, f64), q: &(f64, f64)| (p.0 - q.0).abs().max((p.1 - q.1).abs());
+        assert!(
+            a.len() == b.len() && a.iter().zip(b).all(|(p, q)| near(p, q) < 1e-9),
+            "{what}: {a:?} != {b:?}"
+        );
+    }
+
+    #[test]
+    fn marks_keep_a_stroke_width_clear_of_their_letter_worked_by_hand() {
+        // Grid units (cap height 10, strokes 1 wide): a mark's centre line stands 2.05
+        // from its letter's, two stroke widths and a little, so one stroke width is clear.
+        // The acute (-0.8,0.8 to 1,2.4) over E (6 wide, 10 high): centred at x = 3, its
+        // foot at 10 + 2.05.
+        let last = |c: char| shape(c).strokes.last().cloned().unwrap_or_default();
+        assert_points_near(&last('\u{c9}'), &[(2.2, 12.05), (4.0, 13.65)], "E acute");
+        // The turned comma over g (x-height 7, 6 wide): its foot (0.4 up the comma) at
+        // 7 + 2.05, centred at x = 3.
+        let g_comma = [(3.4, 9.05), (2.8, 10.05), (2.8, 10.85)];
+        assert_points_near(&last('\u{123}'), &g_comma, "g cedilla");
+        // A caron beside d (stem at x = 6): 2.05 right of the stem, and the letter as wide
+        // as the caron's right end, 6 + 2.05 + 0.6.
+        let d_caron = [(8.65, 10.0), (8.65, 9.0), (8.05, 7.5)];
+        assert_points_near(&last('\u{10f}'), &d_caron, "d caron");
+        assert_near(shape('\u{10f}').width, 8.65, 1e-12);
+        // The ring over a (radius 1.2): centred at x = 3, its foot at 7 + 2.05 = 9.05 and
+        // its centre a radius above that, (3, 10.25).
+        for (x, y) in last('\u{e5}') {
+            assert_near((x - 3.0).hypot(y - 10.25), 1.2, 1e-9);
+        }
+    }
+
+    #[test]
+    fn marks_below_hang_from_the_foot_of_their_letter_worked_by_hand() {
+        // c is an arc about (3.3, 3.5), radii 3.3 and 3.5, from 45 to 315 degrees in
+        // 10-degree steps: its lowest points, within 0.3 of its foot, are those at 255,
+        // 265, 275 and 285 degrees, and the one nearest its middle (x = 2.8) is at 265
+        // (x = 3.3 + 3.3 cos 265 = 3.012, against 2.446 at 255). The cedilla hangs there.
+        let (cos, sin) = (265f64.to_radians().cos(), 265f64.to_radians().sin());
+        let foot = (3.3 + 3.3 * cos, 3.5 + 3.5 * sin);
+        assert_points_near(&shape('\u{e7}').strokes[1][..1], &[foot], "c cedilla");
+        // The ogonek hangs from the foot of a's stem, right (6, 0), its nearest point.
+        assert_points_near(&shape('\u{105}').strokes[2][..1], &[(6.0, 0.0)], "a ogonek");
+    }
+
+    #[test]
+    fn a_mark_above_i_or_j_takes_the_place_of_its_dot() {
+        // Common practice: i and j lose their dot under an accent (the stem and the mark
+        // are left), but keep it over an ogonek (Lithuanian).
+        assert_eq!(shape('\u{ed}').strokes.len(), 2, "i acute");
+        assert_eq!(shape('\u{135}').strokes.len(), 2, "j circumflex");
+        assert_eq!(shape('\u{12f}').strokes.len(), 3, "i ogonek");
+    }
+
+    #[test]
+    fn text_reaches_the_cap_line_and_the_descender_exactly() {
+        // ISO 3098-0 type B (from memory): descenders 3/10 of the cap height; a line
+        // reaches at least the cap height, and an accent over a capital beyond it (the
+        // acute's top at 13.65 units, worked above).
+        assert_eq!(text_extent("p", 20.0), (20.0, 6.0));
+        assert_eq!(text_extent("x x", 20.0), (20.0, 0.0));
+        let (up, down) = text_extent("\u{c9}", 20.0);
+        assert_near(up, 27.3, 1e-9);
+        assert_eq!(down, 0.0);
+    }
+
+    #[test]
+    fn drawn_words_stand_a_word_space_apart_and_centred_text_either_side() {
+        // Two stems 20 px high a word apart: the clear space e = 0.6 h and a stroke width
+        // d = 0.1 h between their centre lines, 14 px (ISO 3098-0 type B, from memory).
+        let drawn = |text: &str, align| {
+            let mut out = PolylineSet::new();
+            letter(text, ImagePoint::new(100.0, 50.0), 20.0, align, &mut out);
+            out.points().iter().map(|p| p.x).collect::<Vec<f64>>()
+        };
+        let stems = drawn("I I", Align::Start);
+        assert_near(stems[2] - stems[0], 14.0, 1e-9);
+        // Centred, "N45" reaches as far left of the anchor as right of it.
+        let xs = drawn("N45", Align::Middle);
+        let right = xs.iter().copied().fold(f64::MIN, f64::max);
+        let left = xs.iter().copied().fold(f64::MAX, f64::min);
+        assert_near(right - 100.0, 100.0 - left, 1e-9);
+        assert!(right - left > 20.0);
+    }
 }
