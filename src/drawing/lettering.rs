@@ -128,12 +128,14 @@ fn shape(c: char) -> Shape {
     if let Some(g) = glyphs::glyph(c) {
         return Shape::from_glyph(g);
     }
+    // A character that decomposes into one other is that character (Unicode's canonical
+    // equivalence: the Kelvin sign is K); one that does not decompose gives itself back,
+    // which has no glyph.
     let mut parts = Vec::new();
     unicode_normalization::char::decompose_canonical(c, |p| parts.push(p));
-    let composed = match parts.split_first() {
-        Some((&base, marks)) if !marks.is_empty() => compose(base, marks),
-        _ => None,
-    };
+    let composed = parts
+        .split_first()
+        .and_then(|(&base, marks)| compose(base, marks));
     composed.unwrap_or_else(|| Shape {
         placeholder: true,
         ..Shape::from_glyph(PLACEHOLDER)
@@ -318,6 +320,21 @@ mod tests {
             &mut out,
         );
         assert_eq!(out.len(), 2, "a crossed box");
+    }
+
+    #[test]
+    fn a_sign_that_unicode_makes_another_character_is_drawn_as_that_character() {
+        // Canonical decompositions of one character, from the Unicode Standard's
+        // UnicodeData.txt (from memory, and as the normalisation crate gives them): the
+        // Kelvin sign U+212A is K, the Greek question mark U+037E a semicolon, the ohm
+        // sign U+2126 the Greek capital omega, which has no glyph of ours.
+        for (sign, character) in [('\u{212a}', 'K'), ('\u{37e}', ';')] {
+            let (drawn, own) = (shape(sign), shape(character));
+            assert!(!drawn.placeholder, "{sign}");
+            assert_eq!((drawn.width, drawn.strokes), (own.width, own.strokes));
+        }
+        assert!(shape('\u{2126}').placeholder);
+        assert_eq!(unlettered("3 \u{212a}, 5 \u{2126}"), vec!['\u{2126}']);
     }
 
     /// Samples of a glyph's strokes every `step` units, each with its stroke and its
