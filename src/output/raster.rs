@@ -394,6 +394,9 @@ impl Segment {
 /// ARM) through `wide`'s `f32x4`.
 const LANES: usize = 4;
 
+/// Each lane's offset in pixels from the first of its group of four.
+const LANE_STEPS: f32x4 = f32x4::new([0.0, 1.0, 2.0, 3.0]);
+
 /// A segment's coverage rule in `f32` lanes, for points given relative to its start `a`.
 ///
 /// `f32` is ample here: the offsets are at most an image width (2^15 px for the widest
@@ -547,7 +550,6 @@ impl<const C: usize> Band<'_, C> {
         let end_row = (s.bottom.max(0.0) as usize + 1).min(self.top + band_rows);
         let capsule = CapsuleLanes::of(s);
         let steep = SteepRows::of(s);
-        let steps = f32x4::from([0.0, 1.0, 2.0, 3.0]);
         for row in first_row..end_row {
             let cy = row as f64 + 0.5;
             let offset = (row - self.top) * self.width;
@@ -570,7 +572,7 @@ impl<const C: usize> Band<'_, C> {
             // lie beyond the capsule, at zero coverage), but not past the row. (A group of
             // exactly four is inked in one go: its length known, the compiler vectorises.)
             for first in (start..end).step_by(LANES) {
-                let x = f32x4::splat(x_start + (first - start) as f32) + steps;
+                let x = f32x4::splat(x_start + (first - start) as f32) + LANE_STEPS;
                 let coverage = capsule.coverage(x, y);
                 match pixels.get_mut(first * C..(first + LANES) * C) {
                     Some(four) => ink_lanes::<C>(four, coverage, &s.ink),
@@ -632,8 +634,7 @@ impl SteepRows {
         if first + LANES > width {
             return None;
         }
-        let offsets = f32x4::splat((first as f64 + 0.5 - x_on_line) as f32)
-            + f32x4::from([0.0, 1.0, 2.0, 3.0]);
+        let offsets = f32x4::splat((first as f64 + 0.5 - x_on_line) as f32) + LANE_STEPS;
         let coverage = (self.reach - offsets.abs() * self.sine)
             .fast_max(f32x4::splat(0.0))
             .fast_min(f32x4::splat(1.0));
