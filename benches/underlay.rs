@@ -4,8 +4,8 @@
 //!
 //! Floor F: allocate and fill a blank 8192x4096 grey canvas and encode it as an 8-bit grey
 //! PNG with the `png` crate's fast compression (its default adaptive filter), into memory.
-//! Also shown, a stricter floor F_up: the same with the `Up` filter pansite itself uses,
-//! which is much cheaper on a blank canvas.
+//! Also shown, a stricter floor F_up: the same through pansite's own grey encoder (the `Up`
+//! filter and its own deflate pieces, on one core), which is much cheaper on a blank canvas.
 //!
 //! Cases:
 //! - `town`: a synthetic town of about 100,000 edges (blocks with window grids over

@@ -190,8 +190,8 @@ pub struct Timings {
     pub raster: Option<Duration>,
     /// Rasterising and encoding, which overlap (set by [`render_png_to`]).
     pub raster_and_encode: Option<Duration>,
-    /// Of which the calling thread spent encoding (set by [`render_png_to`]); the other
-    /// cores rasterise later bands meanwhile.
+    /// Of which the calling thread spent writing the compressed bands out in order (set
+    /// by [`render_png_to`]); the cores that draw the bands also filter and compress them.
     pub encode: Option<Duration>,
 }
 
@@ -443,8 +443,8 @@ pub fn render_png(
     Ok(render.expect("set by the successful write"))
 }
 
-/// Draws, rasterises and encodes a grey PNG into `out` (rasterising and encoding overlap,
-/// so they are timed together).
+/// Draws, rasterises and encodes a grey PNG into `out` (each band is compressed by the
+/// core that drew it, so rasterising and encoding are timed together).
 pub fn render_png_to(
     site: &Site,
     standpoint: &Standpoint,

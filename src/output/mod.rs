@@ -3,6 +3,7 @@
 //! per pixel for SVG and PDF); none holds global state.
 
 mod atomic;
+mod deflate;
 pub mod interrupt;
 mod pdf;
 mod png;

@@ -1,13 +1,17 @@
 //! PNG encoding: 8-bit grey (the default for a monochrome underlay: a quarter of the bytes)
 //! or RGBA, with the print resolution (pHYs) and panorama metadata (XMP) when asked.
 //!
-//! The grey canvas goes to the encoder as it is: no conversion and no copy. `png`'s
-//! `Compression::Fast` (an `fdeflate` encoder tuned for PNG) with the `Up` filter:
-//! wireframes are mostly white rows, which `Up` turns into zeros.
+//! Grey images are filtered and compressed band by band by the cores that draw them
+//! ([`super::deflate`]'s pieces of one zlib stream), and written here in order as IDAT
+//! chunks: wireframes are mostly white rows, which the `Up` filter turns into zeros. A
+//! band's first row is filtered by `Sub` instead, its row above being another band's. RGBA
+//! goes through `png`'s own encoder (`Compression::Fast`, an `fdeflate` encoder tuned for
+//! PNG, with the `Up` filter).
 
-use super::raster::rasterize_rgb_in_bands;
+use super::deflate::{Adler32, Piece, FINAL_EMPTY_BLOCK, ZLIB_HEADER};
+use super::raster::{rasterize_in_bands_then, rasterize_rgb_in_bands, BAND_ROWS};
 use super::xmp::{panorama_xmp, Panorama};
-use super::{rasterize_in_bands, GreyCanvas};
+use super::GreyCanvas;
 use crate::budget::Budget;
 use crate::drawing::Drawing;
 use crate::error::Result;
@@ -23,12 +27,122 @@ fn grey_encoder<W: Write>(out: W, width: u32, height: u32) -> png::Encoder<'stat
     encoder
 }
 
-/// Encodes the canvas as an 8-bit grey PNG into `out`.
+/// Encodes the canvas as an 8-bit grey PNG into `out` (the same bytes as
+/// [`rasterize_grey_png`] of the drawing it was rasterised from).
 pub fn encode_grey_png(canvas: &GreyCanvas, out: impl Write) -> Result<()> {
     let mut writer = grey_encoder(out, canvas.width, canvas.height).write_header()?;
-    writer.write_image_data(&canvas.pixels)?;
+    let mut data = ImageData::new(&mut writer);
+    let stride = canvas.width as usize;
+    if stride > 0 {
+        for band in canvas.pixels.chunks(BAND_ROWS * stride) {
+            data.push(compress_band(band, stride))?;
+        }
+    }
+    data.finish()?;
     writer.finish()?;
     Ok(())
+}
+
+/// PNG's filter types (PNG specification, 9.2): each byte less the one to its left, or
+/// less the one above it.
+const FILTER_SUB: u8 = 1;
+const FILTER_UP: u8 = 2;
+
+/// One band of grey rows filtered and compressed as a piece of the image's zlib stream:
+/// its first row by `Sub`, the others by `Up`. `stride` is the bytes a row.
+fn compress_band(rows: &[u8], stride: usize) -> (Vec<u8>, Adler32) {
+    let mut piece = Piece::new(Vec::with_capacity(rows.len() / 32));
+    for (index, row) in rows.chunks_exact(stride).enumerate() {
+        if index == 0 {
+            piece.byte(FILTER_SUB);
+            piece.byte(row[0]);
+            piece.differences(&row[1..], &row[..stride - 1]);
+        } else {
+            piece.byte(FILTER_UP);
+            piece.differences(row, &rows[(index - 1) * stride..index * stride]);
+        }
+    }
+    piece.finish()
+}
+
+/// The image's zlib stream written as IDAT chunks: the header, then the bands' pieces in
+/// order as they come, then the last block and the combined checksum.
+struct ImageData<'w, W: Write> {
+    writer: &'w mut png::Writer<W>,
+    pending: Vec<u8>,
+    checksum: Adler32,
+}
+
+/// Bytes gathered before an IDAT chunk is written.
+const CHUNK_BYTES: usize = 1 << 20;
+
+impl<'w, W: Write> ImageData<'w, W> {
+    fn new(writer: &'w mut png::Writer<W>) -> Self {
+        ImageData {
+            writer,
+            pending: ZLIB_HEADER.to_vec(),
+            checksum: Adler32::default(),
+        }
+    }
+
+    fn push(
+        &mut self,
+        (bytes, adler): (Vec<u8>, Adler32),
+    ) -> std::result::Result<(), png::EncodingError> {
+        self.checksum = self.checksum.then(&adler);
+        self.pending.extend_from_slice(&bytes);
+        if self.pending.len() >= CHUNK_BYTES {
+            self.writer.write_chunk(png::chunk::IDAT, &self.pending)?;
+            self.pending.clear();
+        }
+        Ok(())
+    }
+
+    fn finish(mut self) -> std::result::Result<(), png::EncodingError> {
+        self.pending.extend_from_slice(&FINAL_EMPTY_BLOCK);
+        self.pending
+            .extend_from_slice(&self.checksum.value().to_be_bytes());
+        self.writer.write_chunk(png::chunk::IDAT, &self.pending)
+    }
+}
+
+/// Rasterises the drawing into the grey image data of `writer` (its header written),
+/// within the time budget, checked before each band is written. Returns the time spent
+/// writing on this thread (the bands are drawn and compressed on the other cores).
+fn write_grey_image<W: Write>(
+    writer: &mut png::Writer<W>,
+    drawing: &Drawing,
+    budget: &Budget,
+) -> Result<Duration> {
+    let stride = drawing.width.max(1) as usize;
+    let height = drawing.height as f64;
+    let (started, mut rows_done, mut writing) = (Instant::now(), 0usize, Duration::ZERO);
+    let mut refused = None;
+    let mut data = ImageData::new(writer);
+    let drawn = rasterize_in_bands_then(
+        drawing,
+        |rows| compress_band(rows, stride),
+        |rows, piece| {
+            rows_done += rows.len() / stride;
+            if let Err(error) = budget.check_time("raster", started, rows_done as f64 / height) {
+                refused = Some(error);
+                return Err(png::EncodingError::from(std::io::Error::other(
+                    "stopped by the time limit",
+                )));
+            }
+            let writing_started = Instant::now();
+            let written = data.push(piece);
+            writing += writing_started.elapsed();
+            written
+        },
+    );
+    if let Some(error) = refused {
+        return Err(error);
+    }
+    drawn?;
+    let writing_started = Instant::now();
+    data.finish()?;
+    Ok(writing + writing_started.elapsed())
 }
 
 /// What a PNG holds besides its pixels, and how its pixels are stored.
@@ -74,8 +188,8 @@ pub fn write_png(drawing: &Drawing, options: &PngOptions, out: impl Write) -> Re
         encoder.add_itxt_chunk("XML:com.adobe.xmp".to_owned(), panorama_xmp(panorama))?;
     }
     let mut writer = encoder.write_header()?;
-    let mut stream = writer.stream_writer()?;
     if options.colour {
+        let mut stream = writer.stream_writer()?;
         let mut rgba: Vec<u8> = Vec::new();
         rasterize_rgb_in_bands(drawing, |rows| {
             rgba.clear();
@@ -85,53 +199,33 @@ pub fn write_png(drawing: &Drawing, options: &PngOptions, out: impl Write) -> Re
             stream.write_all(&rgba)
         })
         .map_err(png::EncodingError::from)?;
+        stream.finish()?;
     } else {
-        rasterize_in_bands(drawing, |rows| stream.write_all(rows))
-            .map_err(png::EncodingError::from)?;
+        write_grey_image(&mut writer, drawing, &Budget::new(None))?;
     }
-    stream.finish()?;
     writer.finish()?;
     Ok(())
 }
 
-/// Rasterises the drawing and encodes it as an 8-bit grey PNG into `out`, compressing the
-/// top of the image on this thread while the other cores still draw the rest (the same
-/// bytes as [`encode_grey_png`] of [`super::rasterize`]).
+/// Rasterises the drawing and encodes it as an 8-bit grey PNG into `out`, each band
+/// compressed by the core that drew it and written here in order (the same bytes as
+/// [`encode_grey_png`] of [`super::rasterize`]).
 pub fn rasterize_grey_png(drawing: &Drawing, out: impl Write) -> Result<()> {
     rasterize_grey_png_within(drawing, out, &Budget::new(None)).map(|_| ())
 }
 
-/// [`rasterize_grey_png`] within a time budget, checked before each band is encoded.
-/// Returns the time spent encoding on this thread (the other cores rasterise meanwhile).
+/// [`rasterize_grey_png`] within a time budget, checked before each band is written.
+/// Returns the time spent writing on this thread (the other cores rasterise and compress).
 pub fn rasterize_grey_png_within(
     drawing: &Drawing,
     out: impl Write,
     budget: &Budget,
 ) -> Result<Duration> {
     let mut writer = grey_encoder(out, drawing.width, drawing.height).write_header()?;
-    let mut stream = writer.stream_writer()?;
-    let (width, height) = (drawing.width.max(1) as usize, drawing.height as f64);
-    let (started, mut rows_done, mut encoding) = (Instant::now(), 0usize, Duration::ZERO);
-    let mut refused = None;
-    let drawn = rasterize_in_bands(drawing, |rows| {
-        rows_done += rows.len() / width;
-        if let Err(error) = budget.check_time("raster", started, rows_done as f64 / height) {
-            refused = Some(error);
-            return Err(std::io::Error::other("stopped by the time limit"));
-        }
-        let encode_started = Instant::now();
-        let written = stream.write_all(rows);
-        encoding += encode_started.elapsed();
-        written
-    });
-    if let Some(error) = refused {
-        return Err(error);
-    }
-    drawn.map_err(png::EncodingError::from)?;
-    let encode_started = Instant::now();
-    stream.finish()?;
+    let writing = write_grey_image(&mut writer, drawing, budget)?;
+    let finishing = Instant::now();
     writer.finish()?;
-    Ok(encoding + encode_started.elapsed())
+    Ok(writing + finishing.elapsed())
 }
 
 #[cfg(test)]
@@ -176,6 +270,8 @@ mod tests {
         rasterize_grey_png(&drawing, &mut streamed).unwrap();
         let mut direct = Vec::new();
         encode_grey_png(&rasterize(&drawing), &mut direct).unwrap();
+        // The bands compressed on several cores give the very bytes of the one-core path.
+        assert!(streamed == direct);
         let (streamed, direct) = (decode(&streamed), decode(&direct));
         assert_eq!((streamed.0, streamed.1), (512, 300));
         assert!(

@@ -65,7 +65,7 @@ impl GreyCanvas {
 }
 
 /// Rows per band handed to a thread.
-const BAND_ROWS: usize = 32;
+pub(super) const BAND_ROWS: usize = 32;
 
 /// Rasterises every layer of the drawing onto white paper, using all cores.
 /// The caller has checked the size against [`MAX_PIXELS`].
@@ -103,9 +103,20 @@ const BUFFERS_PER_CORE: usize = 3;
 /// shares.
 pub fn rasterize_in_bands<E>(
     drawing: &Drawing,
-    rows: impl FnMut(&[u8]) -> Result<(), E>,
+    mut rows: impl FnMut(&[u8]) -> Result<(), E>,
 ) -> Result<(), E> {
-    rasterize_channels_in_bands::<1, E>(drawing, rows)
+    rasterize_channels_in_bands::<1, (), E>(drawing, |_| (), |band, ()| rows(band))
+}
+
+/// [`rasterize_in_bands`] with more work done on each band by the core that drew it:
+/// `on_core(rows)` (compressing it, say), whose result `in_order` gets with the band's rows,
+/// top to bottom, on the calling thread.
+pub fn rasterize_in_bands_then<T: Send, E>(
+    drawing: &Drawing,
+    on_core: impl Fn(&[u8]) -> T + Sync,
+    in_order: impl FnMut(&[u8], T) -> Result<(), E>,
+) -> Result<(), E> {
+    rasterize_channels_in_bands::<1, T, E>(drawing, on_core, in_order)
 }
 
 /// [`rasterize_in_bands`] in colour: rows of red, green and blue bytes. Each channel is
@@ -113,14 +124,15 @@ pub fn rasterize_in_bands<E>(
 /// drawing order as grey.
 pub fn rasterize_rgb_in_bands<E>(
     drawing: &Drawing,
-    rows: impl FnMut(&[u8]) -> Result<(), E>,
+    mut rows: impl FnMut(&[u8]) -> Result<(), E>,
 ) -> Result<(), E> {
-    rasterize_channels_in_bands::<3, E>(drawing, rows)
+    rasterize_channels_in_bands::<3, (), E>(drawing, |_| (), |band, ()| rows(band))
 }
 
-fn rasterize_channels_in_bands<const C: usize, E>(
+fn rasterize_channels_in_bands<const C: usize, T: Send, E>(
     drawing: &Drawing,
-    mut rows: impl FnMut(&[u8]) -> Result<(), E>,
+    on_core: impl Fn(&[u8]) -> T + Sync,
+    mut in_order: impl FnMut(&[u8], T) -> Result<(), E>,
 ) -> Result<(), E> {
     use std::sync::atomic::{AtomicUsize, Ordering};
     use std::sync::mpsc::channel;
@@ -156,16 +168,17 @@ fn rasterize_channels_in_bands<const C: usize, E>(
     }
     let free_buffers = std::sync::Mutex::new(free_buffers);
     let next_band = AtomicUsize::new(0);
-    let (finished, done) = channel::<(usize, Vec<u8>)>();
+    let (finished, done) = channel::<(usize, Vec<u8>, T)>();
     let mut outcome = Ok(());
     std::thread::scope(|scope| {
         for _ in 0..threads {
-            let (by_band, spans, pens, free_buffers, next_band, finished) = (
+            let (by_band, spans, pens, free_buffers, next_band, on_core, finished) = (
                 &by_band,
                 &spans,
                 &pens,
                 &free_buffers,
                 &next_band,
+                &on_core,
                 finished.clone(),
             );
             scope.spawn(move || loop {
@@ -187,19 +200,20 @@ fn rasterize_channels_in_bands<const C: usize, E>(
                 }
                 .draw_strokes(drawing, pens, by_band)
                 .draw_areas(drawing, pens, spans);
-                if finished.send((index, buffer)).is_err() {
+                let done_here = on_core(&buffer[..rows_in(index) * stride]);
+                if finished.send((index, buffer, done_here)).is_err() {
                     break;
                 }
             });
         }
         drop(finished);
         // Write the bands in order as they come in, and hand their buffers back.
-        let mut waiting: Vec<Option<Vec<u8>>> = (0..band_count).map(|_| None).collect();
+        let mut waiting: Vec<Option<(Vec<u8>, T)>> = (0..band_count).map(|_| None).collect();
         let mut next = 0;
-        for (index, buffer) in done.iter() {
-            waiting[index] = Some(buffer);
-            while let Some(buffer) = waiting.get_mut(next).and_then(Option::take) {
-                outcome = rows(&buffer[..rows_in(next) * stride]);
+        for (index, buffer, done_there) in done.iter() {
+            waiting[index] = Some((buffer, done_there));
+            while let Some((buffer, done_there)) = waiting.get_mut(next).and_then(Option::take) {
+                outcome = in_order(&buffer[..rows_in(next) * stride], done_there);
                 next += 1;
                 let _ = free.send(buffer);
                 if outcome.is_err() {

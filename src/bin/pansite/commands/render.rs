@@ -155,8 +155,8 @@ pub fn render(args: &RenderArgs) -> anyhow::Result<()> {
 }
 
 /// The stages' times on standard error. Visibility is found edge by edge in the pass that
-/// flattens, and the encoder compresses early bands while the other cores rasterise later
-/// ones, so those pairs are given together with the part that can be told apart.
+/// flattens, and each band is compressed by the core that drew it, so those pairs are
+/// given together with the part that can be told apart.
 fn print_timings(load: &LoadTimings, t: &Timings) {
     let ms = |d: Duration| d.as_secs_f64() * 1e3;
     let both = t.raster_and_encode.unwrap_or_default();
@@ -164,10 +164,9 @@ fn print_timings(load: &LoadTimings, t: &Timings) {
     // pages and other formats are timed as one.
     let writing = match t.encode {
         Some(encode) => format!(
-            "raster + encode {:.1} ms overlapped (encode {:.1} ms on the writing thread, raster {:.1} ms besides)",
+            "raster + encode {:.1} ms (bands drawn and compressed on every core; {:.1} ms of it writing them out in order)",
             ms(both),
-            ms(encode),
-            ms(both.saturating_sub(encode))
+            ms(encode)
         ),
         None => format!("raster + encode + write {:.1} ms overlapped", ms(both)),
     };
