@@ -279,7 +279,11 @@ fn strokes_by_band(drawing: &Drawing, pens: &[Pen]) -> StrokesByBand {
     let bands = (drawing.height as usize).div_ceil(BAND_ROWS);
     // Each segment's bands, found once; and how many segments start and stop reaching
     // into each band, summed below into each band's count.
-    let mut reaching: Vec<(StrokeRef, u32, u32)> = Vec::new();
+    // Sized once (a segment for each vertex at most): growing it page by page costs more
+    // than the sorting itself.
+    let vertices = drawing.layers.iter().filter(|l| !l.filled);
+    let mut reaching: Vec<(StrokeRef, u32, u32)> =
+        Vec::with_capacity(vertices.map(|l| l.lines.vertex_count()).sum());
     let mut changes = vec![0isize; bands + 1];
     for (layer, l) in drawing.layers.iter().enumerate() {
         if l.filled {
