@@ -154,6 +154,18 @@ pub fn wireframe(
             lines: PolylineSet::new(),
         })
         .collect();
+    // Each layer sized once for all its parts: grown part by part, its points would be
+    // copied and their fresh pages faulted in again at every doubling.
+    let mut sizes = vec![(0, 0); layers.len()];
+    for (_, part_layers, _, _) in &parts {
+        for (slot, part) in part_layers {
+            let size = &mut sizes[*slot as usize];
+            *size = (size.0 + part.len(), size.1 + part.vertex_count());
+        }
+    }
+    for (layer, (lines, points)) in layers.iter_mut().zip(sizes) {
+        layer.lines.reserve(lines, points);
+    }
     let mut skipped = Vec::new();
     let mut hidden = PolylineSet::new();
     for (_, part_layers, mut part_hidden, part_skipped) in parts {
