@@ -41,6 +41,7 @@
 
 use crate::drawing::{Drawing, Stroke};
 use crate::plane::ImagePoint;
+use std::ops::Range;
 use wide::f32x4;
 
 /// The largest image pansite draws: 500 megapixels.
@@ -154,7 +155,7 @@ fn rasterize_channels_in_bands<const C: usize, T: Send, E>(
             false => Pen::of(layer.stroke, C),
         })
         .collect();
-    let by_band = strokes_by_band(drawing, &pens);
+    let by_band = strokes_by_band_on_all_cores(drawing, &pens);
     let spans = area_spans(drawing);
     let band_count = height.div_ceil(BAND_ROWS);
     let rows_in = |band: usize| BAND_ROWS.min(height - band * BAND_ROWS);
@@ -260,7 +261,7 @@ impl Pen {
 }
 
 /// One segment of one layer's polylines: indices into that layer's points.
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 struct StrokeRef {
     layer: u32,
     from: u32,
@@ -275,23 +276,73 @@ struct StrokesByBand {
     entries: Vec<StrokeRef>,
 }
 
-fn strokes_by_band(drawing: &Drawing, pens: &[Pen]) -> StrokesByBand {
+/// Polylines below which the bands' lists are made on one core: a thread costs more than
+/// sorting a few thousand segments.
+const LINES_FOR_CORES: usize = 10_000;
+
+/// The bands' lists in one share a core, each share a stretch of the stroked polylines in
+/// drawing order (the first share's strokes come before the second's, so drawing the
+/// shares' lists one after the other keeps the order, which a white halo needs).
+fn strokes_by_band_on_all_cores(drawing: &Drawing, pens: &[Pen]) -> Vec<StrokesByBand> {
+    let lines: usize = drawing
+        .layers
+        .iter()
+        .filter(|l| !l.filled)
+        .map(|l| l.lines.len())
+        .sum();
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let shares = if lines < LINES_FOR_CORES { 1 } else { cores };
+    if shares == 1 {
+        return vec![strokes_by_band(drawing, pens, 0..lines)];
+    }
+    std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..shares)
+            .map(|k| {
+                let share = lines * k / shares..lines * (k + 1) / shares;
+                scope.spawn(move || strokes_by_band(drawing, pens, share))
+            })
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
+            .collect()
+    })
+}
+
+/// The bands' lists of the stroked polylines numbered in `share` (counted through the
+/// stroked layers in order).
+fn strokes_by_band(drawing: &Drawing, pens: &[Pen], share: Range<usize>) -> StrokesByBand {
     let bands = (drawing.height as usize).div_ceil(BAND_ROWS);
     // Each segment's bands, found once; and how many segments start and stop reaching
     // into each band, summed below into each band's count.
     // Sized once (a segment for each vertex at most): growing it page by page costs more
     // than the sorting itself.
-    let vertices = drawing.layers.iter().filter(|l| !l.filled);
-    let mut reaching: Vec<(StrokeRef, u32, u32)> =
-        Vec::with_capacity(vertices.map(|l| l.lines.vertex_count()).sum());
+    let stroked = || {
+        let mut first_line = 0;
+        drawing
+            .layers
+            .iter()
+            .enumerate()
+            .filter(|(_, l)| !l.filled)
+            .map(move |(layer, l)| {
+                let first = first_line;
+                first_line += l.lines.len();
+                let lines = share.start.clamp(first, first_line) - first
+                    ..share.end.clamp(first, first_line) - first;
+                (layer, l, lines)
+            })
+    };
+    let mut reaching: Vec<(StrokeRef, u32, u32)> = Vec::with_capacity(
+        stroked()
+            .map(|(_, l, lines)| lines.len() * l.lines.vertex_count() / l.lines.len().max(1))
+            .sum::<usize>()
+            + drawing.layers.len(),
+    );
     let mut changes = vec![0isize; bands + 1];
-    for (layer, l) in drawing.layers.iter().enumerate() {
-        if l.filled {
-            continue;
-        }
+    for (layer, l, lines) in stroked() {
         let points = l.lines.points();
         let reach = pens[layer].reach;
-        for (from, to) in l.lines.segment_indices() {
+        for (from, to) in l.lines.segment_indices_of(lines) {
             let (a, b) = (points[from as usize], points[to as usize]);
             let first = ((a.y.min(b.y) - reach).max(0.0) as usize / BAND_ROWS).min(bands);
             let last = ((a.y.max(b.y) + reach).max(0.0) as usize / BAND_ROWS + 1)
@@ -489,11 +540,14 @@ impl<const C: usize> Band<'_, C> {
         &mut self,
         drawing: &Drawing,
         pens: &[Pen],
-        by_band: &StrokesByBand,
+        by_band: &[StrokesByBand],
     ) -> &mut Self {
         let index = self.top / BAND_ROWS;
         let canvas_width = drawing.width as f64;
-        for stroke in &by_band.entries[by_band.starts[index]..by_band.starts[index + 1]] {
+        let strokes = by_band
+            .iter()
+            .flat_map(|list| &list.entries[list.starts[index]..list.starts[index + 1]]);
+        for stroke in strokes {
             let points = drawing.layers[stroke.layer as usize].lines.points();
             let pen = pens[stroke.layer as usize];
             let segment = Segment::new(
@@ -721,6 +775,68 @@ mod tests {
             }],
         };
         rasterize(&drawing)
+    }
+
+    #[test]
+    fn the_bands_lists_made_in_shares_keep_the_drawing_order() {
+        // Three stroked layers (the middle one a white halo, whose order matters) around a
+        // filled one, enough polylines for the lists to be made in shares: each band's
+        // strokes, share after share, are the one-core list's, in its order.
+        let layer = |filled: bool, colour: [u8; 3], lines: usize, shift: f64| {
+            let mut set = PolylineSet::new();
+            for k in 0..lines {
+                let (x, y) = ((k * 37 % 1000) as f64, (k * 53 % 700) as f64 + shift);
+                set.push(&[ImagePoint::new(x, y), ImagePoint::new(x + 9.0, y + 40.0)]);
+            }
+            Layer {
+                filled,
+                text: None,
+                name: "test".to_owned(),
+                stroke: Stroke {
+                    colour,
+                    opacity: 1.0,
+                    width_px: 1.5,
+                },
+                lines: set,
+            }
+        };
+        let drawing = Drawing {
+            width: 1000,
+            height: 760,
+            layers: vec![
+                layer(false, [0, 0, 0], 7000, 0.0),
+                layer(true, [90, 90, 90], 3, 5.0),
+                layer(false, [255, 255, 255], 3000, 3.0),
+                layer(false, [0, 0, 0], 4001, 7.0),
+            ],
+        };
+        let pens: Vec<Pen> = drawing
+            .layers
+            .iter()
+            .map(|l| Pen::of(l.stroke, 1))
+            .collect();
+        let shares = strokes_by_band_on_all_cores(&drawing, &pens);
+        let whole = strokes_by_band(&drawing, &pens, 0..14_001);
+        let bands = 760usize.div_ceil(BAND_ROWS);
+        for band in 0..bands {
+            let of = |list: &StrokesByBand| {
+                list.entries[list.starts[band]..list.starts[band + 1]].to_vec()
+            };
+            let joined: Vec<StrokeRef> = shares.iter().flat_map(of).collect();
+            assert_eq!(joined, of(&whole), "band {band}");
+        }
+        // And in two shares whatever the machine's cores: cut inside the first layer.
+        let halves = [
+            strokes_by_band(&drawing, &pens, 0..5000),
+            strokes_by_band(&drawing, &pens, 5000..14_001),
+        ];
+        for band in 0..bands {
+            let of = |list: &StrokesByBand| {
+                list.entries[list.starts[band]..list.starts[band + 1]].to_vec()
+            };
+            let joined: Vec<StrokeRef> = halves.iter().flat_map(of).collect();
+            assert_eq!(joined, of(&whole), "band {band}");
+        }
     }
 
     /// The coverage rule worked directly for one pixel centre, in f64: the distance to the

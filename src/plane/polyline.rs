@@ -72,13 +72,26 @@ impl PolylineSet {
     /// The strokes to draw, as index pairs into [`PolylineSet::points`]: each pair of
     /// consecutive vertices of a polyline, and `(i, i)` for a polyline of a single point.
     pub fn segment_indices(&self) -> impl Iterator<Item = (u32, u32)> + '_ {
-        self.starts.iter().enumerate().flat_map(|(i, &start)| {
-            let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());
-            let single = (end - start == 1).then_some((start as u32, start as u32));
-            (start..end.saturating_sub(1))
-                .map(|k| (k as u32, k as u32 + 1))
-                .chain(single)
-        })
+        self.segment_indices_of(0..self.len())
+    }
+
+    /// [`PolylineSet::segment_indices`] of the polylines numbered in `lines` alone.
+    pub fn segment_indices_of(
+        &self,
+        lines: std::ops::Range<usize>,
+    ) -> impl Iterator<Item = (u32, u32)> + '_ {
+        let first = lines.start;
+        self.starts[lines]
+            .iter()
+            .enumerate()
+            .flat_map(move |(i, &start)| {
+                let i = first + i;
+                let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());
+                let single = (end - start == 1).then_some((start as u32, start as u32));
+                (start..end.saturating_sub(1))
+                    .map(|k| (k as u32, k as u32 + 1))
+                    .chain(single)
+            })
     }
 
     /// Each polyline's points, in order.
@@ -87,6 +100,12 @@ impl PolylineSet {
             let end = self.starts.get(i + 1).copied().unwrap_or(self.points.len());
             &self.points[start..end]
         })
+    }
+
+    /// Room for `lines` more polylines of `points` more vertices in all.
+    pub fn reserve(&mut self, lines: usize, points: usize) {
+        self.starts.reserve(lines);
+        self.points.reserve(points);
     }
 
     /// Moves every polyline of `other` to the end of this set.
