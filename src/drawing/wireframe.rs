@@ -94,50 +94,56 @@ pub fn wireframe(
         })
         .collect();
     let (names, slot_of_item) = (&names, &slot_of_item);
+    // One thread's share: runs taken in turn until none is left.
+    let work = |mut flattener: Flattener| {
+        let mut done = Vec::new();
+        loop {
+            let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+            let Some(edges) = runs.get(index) else { break };
+            let progress = index as f64 / runs.len() as f64;
+            if let Err(error) = budget.check_time(stage, stage_started, progress) {
+                refuse(&refused, error, &next_run, runs.len());
+                break;
+            }
+            let (lines, hidden, skipped) = flatten_edges(
+                edges,
+                first_index(index),
+                view,
+                &mut flattener,
+                slot_of_item,
+                bands,
+                occluders,
+            );
+            let vertices =
+                hidden.vertex_count() + lines.iter().map(|(_, l)| l.vertex_count()).sum::<usize>();
+            if let Err(error) = budget.add_vertices(vertices) {
+                refuse(&refused, error, &next_run, runs.len());
+                break;
+            }
+            done.push((index, lines, hidden, skipped));
+        }
+        done
+    };
+    // The calling thread takes a share too, from the start: a thread it spawns may wait a
+    // scheduler's time slice (measured: 1.5 to 2.5 ms) before it runs.
     let mut parts: Vec<(usize, RunLines, PolylineSet, Vec<SkippedEdge>)> =
         std::thread::scope(|scope| {
-            let handles: Vec<_> = (0..threads)
+            let work = &work;
+            let handles: Vec<_> = (1..threads)
                 .map(|_| {
-                    let (runs, next_run, mut flattener) = (&runs, &next_run, flattener.clone());
-                    let refused = &refused;
-                    scope.spawn(move || {
-                        let mut done = Vec::new();
-                        loop {
-                            let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                            let Some(edges) = runs.get(index) else { break };
-                            let progress = index as f64 / runs.len() as f64;
-                            if let Err(error) = budget.check_time(stage, stage_started, progress) {
-                                refuse(refused, error, next_run, runs.len());
-                                break;
-                            }
-                            let (lines, hidden, skipped) = flatten_edges(
-                                edges,
-                                first_index(index),
-                                view,
-                                &mut flattener,
-                                slot_of_item,
-                                bands,
-                                occluders,
-                            );
-                            let vertices = hidden.vertex_count()
-                                + lines.iter().map(|(_, l)| l.vertex_count()).sum::<usize>();
-                            if let Err(error) = budget.add_vertices(vertices) {
-                                refuse(refused, error, next_run, runs.len());
-                                break;
-                            }
-                            done.push((index, lines, hidden, skipped));
-                        }
-                        done
-                    })
+                    let flattener = flattener.clone();
+                    scope.spawn(move || work(flattener))
                 })
                 .collect();
-            handles
-                .into_iter()
-                .flat_map(|h| {
-                    h.join()
-                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
-                })
-                .collect()
+            let mut parts = work(flattener.clone());
+            for handle in handles {
+                parts.extend(
+                    handle
+                        .join()
+                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic)),
+                );
+            }
+            parts
         });
     if let Some(error) = refused
         .into_inner()

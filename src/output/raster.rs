@@ -295,17 +295,21 @@ fn strokes_by_band_on_all_cores(drawing: &Drawing, pens: &[Pen]) -> Vec<StrokesB
     if shares == 1 {
         return vec![strokes_by_band(drawing, pens, 0..lines)];
     }
+    let share = |k: usize| lines * k / shares..lines * (k + 1) / shares;
     std::thread::scope(|scope| {
-        let handles: Vec<_> = (0..shares)
-            .map(|k| {
-                let share = lines * k / shares..lines * (k + 1) / shares;
-                scope.spawn(move || strokes_by_band(drawing, pens, share))
-            })
+        let handles: Vec<_> = (1..shares)
+            .map(|k| scope.spawn(move || strokes_by_band(drawing, pens, share(k))))
             .collect();
-        handles
-            .into_iter()
-            .map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
-            .collect()
+        // The first share here, at once (a new thread may wait a time slice to start).
+        let mut lists = vec![strokes_by_band(drawing, pens, share(0))];
+        for handle in handles {
+            lists.push(
+                handle
+                    .join()
+                    .unwrap_or_else(|p| std::panic::resume_unwind(p)),
+            );
+        }
+        lists
     })
 }
 
