@@ -1009,4 +1009,98 @@ mod tests {
             .is_some_and(|s| s.touching));
         assert!(Plane::of(&wide).sides_of(&far(1e-6)).is_none());
     }
+
+    /// The faces under node `at` (the whole hierarchy for `None`), in the order the walk
+    /// from it hands them out, with the boxes it asks about (each as the index of the first
+    /// face after it).
+    fn walk(bvh: &Bvh, at: Option<u32>, eye: &Point3<f64>) -> (Vec<u32>, Vec<usize>) {
+        let (mut faces, mut boxes) = (Vec::new(), Vec::new());
+        let visit = |visit| {
+            match visit {
+                Visit::Box { .. } => boxes.push(faces.len()),
+                Visit::Face(index) => faces.push(index),
+            }
+            true
+        };
+        match at {
+            Some(at) => bvh.front_to_back_under(at, eye, visit),
+            None => bvh.front_to_back(eye, visit),
+        }
+        (faces, boxes)
+    }
+
+    #[test]
+    fn the_memory_held_is_room_for_the_nodes_and_the_order() {
+        // A node is six f32 and two u32, 32 bytes (as the module's notes say), and a face's
+        // place in the order a u32; a list holds room for its capacity.
+        assert_eq!(std::mem::size_of::<Node>(), 32);
+        let faces: Vec<Face> = (0..100).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        assert!(bvh.nodes.capacity() >= bvh.nodes.len() && bvh.order.capacity() >= 100);
+        assert_eq!(
+            bvh.memory_bytes(),
+            32 * bvh.nodes.capacity() + 4 * bvh.order.capacity()
+        );
+    }
+
+    #[test]
+    fn the_halves_are_the_roots_two_children_and_share_every_face() {
+        // Forty faces in a row: the root is split, and the walks from its two children hand
+        // out every face once between them, each some. Four faces make a single leaf (no
+        // halves), and no faces no hierarchy.
+        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        let eye = Point3::new(-5.0, 0.0, 0.0);
+        let [first, second] = bvh.halves().unwrap();
+        let (mut a, _) = walk(&bvh, Some(first), &eye);
+        let (b, _) = walk(&bvh, Some(second), &eye);
+        assert!(!a.is_empty() && !b.is_empty());
+        a.extend(b);
+        a.sort_unstable();
+        assert_eq!(a, (0..40).collect::<Vec<u32>>());
+        assert_eq!(Bvh::new(&faces[..4]).halves(), None);
+        assert_eq!(Bvh::new(&[]).halves(), None);
+        // A node past the end hands out nothing.
+        assert_eq!(
+            walk(&bvh, Some(bvh.nodes.len() as u32), &eye).0,
+            Vec::<u32>::new()
+        );
+    }
+
+    #[test]
+    fn the_walk_hands_out_the_nearest_leaves_first() {
+        // Forty faces 3 m apart in a row along x, seen from either end of it, 5 m beyond: the
+        // leaves come nearest first, so each leaf's faces all lie nearer than the next
+        // leaf's (a leaf's own faces come in the order they were grouped).
+        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        for (eye, toward) in [(-5.0, 1.0), (122.0, -1.0)] {
+            let (order, boxes) = walk(&bvh, None, &Point3::new(eye, 0.0, 0.0));
+            assert_eq!(order.len(), 40);
+            // The faces' distances along the row, grouped by the box asked about before them.
+            let along = |i: u32| toward * 3.0 * i as f64;
+            let mut groups: Vec<Vec<f64>> = Vec::new();
+            for (k, &start) in boxes.iter().enumerate() {
+                let end = boxes.get(k + 1).copied().unwrap_or(order.len());
+                if end > start {
+                    groups.push(order[start..end].iter().map(|&i| along(i)).collect());
+                }
+            }
+            for pair in groups.windows(2) {
+                let last = pair[0].iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+                let next = pair[1].iter().cloned().fold(f64::INFINITY, f64::min);
+                assert!(last < next, "{groups:?}");
+            }
+        }
+        // A box turned down hides everything under it: turning down the root, nothing.
+        let mut handed = 0;
+        bvh.front_to_back(&Point3::origin(), |visit| match visit {
+            Visit::Box { .. } => false,
+            Visit::Face(_) => {
+                handed += 1;
+                true
+            }
+        });
+        assert_eq!(handed, 0);
+    }
 }
