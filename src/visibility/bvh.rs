@@ -1103,4 +1103,54 @@ mod tests {
         });
         assert_eq!(handed, 0);
     }
+
+    #[test]
+    fn a_ray_finds_a_face_closer_than_its_limit_and_no_other() {
+        // A ray straight up from the origin meets a level triangle over it (corners (-5, -5),
+        // (5, -5) and (0, 5)) at its height. At 10 m: the distance is exactly 10 (by hand,
+        // Moeller and Trumbore's terms are -100 for the determinant and -1000 for the
+        // distance's numerator, and -1000 x (1 / -100) rounds to 10), and a face at the
+        // limit is not closer than it. At 99.9995 m a limit of 100 m finds it (5e-6 of the
+        // limit short of it: the boxes' allowance for the ray's f32 rounding must not turn
+        // it away), and a limit of 99.999 m does not.
+        let up = Vector3::z();
+        let origin = Point3::origin();
+        let level = |z: f64| {
+            let mut face = triangle(z, 0.0);
+            for p in &mut face.corners {
+                p.x *= 5.0;
+                p.y *= 5.0;
+            }
+            vec![face]
+        };
+        let first_hit = |faces: &[Face], limit: f64| {
+            Bvh::new(faces).first_hit(faces, &origin, &up, limit, |_, _| true)
+        };
+        let ten = level(10.0);
+        assert_eq!(ray_hits_triangle(&origin, &up, &ten[0].corners), Some(10.0));
+        assert_eq!(first_hit(&ten, 10.0), None);
+        assert_eq!(first_hit(&ten, 10.001), Some(0));
+        let far = level(99.9995);
+        assert_eq!(first_hit(&far, 100.0), Some(0));
+        assert_eq!(first_hit(&far, 99.999), None);
+    }
+
+    #[test]
+    fn an_empty_hierarchy_holds_nothing() {
+        // No faces: no box, no walk, no ray's hit and no wedge crossed.
+        let empty = Bvh::new(&[]);
+        assert!(empty.nodes.is_empty() && empty.order.is_empty());
+        let origin = Point3::origin();
+        assert_eq!(
+            empty.first_hit(&[], &origin, &Vector3::z(), 1e9, |_, _| true),
+            None
+        );
+        let wedge = [
+            origin,
+            Point3::new(1.0, 5.0, 0.0),
+            Point3::new(-1.0, 5.0, 0.0),
+        ];
+        assert!(!empty.crosses(&[], &wedge));
+        assert_eq!(walk(&empty, None, &origin), (vec![], vec![]));
+    }
 }
