@@ -1153,4 +1153,49 @@ mod tests {
         assert!(!empty.crosses(&[], &wedge));
         assert_eq!(walk(&empty, None, &origin), (vec![], vec![]));
     }
+
+    #[test]
+    fn a_ray_through_every_box_of_a_deep_tree_finds_the_face_it_asks_for() {
+        // Upright faces across the x axis, placed so that every split is lopsided: of n
+        // faces, the last n/16 lie within the last thousandth of the span and the rest
+        // within its first sixteenth, in turn placed the same way, thirty times over (then
+        // evenly). Binned in twelve along the span, they fill only the first bin and the
+        // last, so the split is forced, and the tree is over 32 levels deep. A ray along the
+        // axis from x = -1 meets every box: at each level the farther child waits on the
+        // search's stack while the nearer one is searched, so the stack holds about as many
+        // entries as the tree has levels, within its 64. Asked for one face, the ray finds
+        // that face, whichever it is.
+        fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<f64>) {
+            if levels == 0 || n <= 16 {
+                out.extend((1..=n).map(|k| hi * k as f64 / n as f64));
+                return;
+            }
+            let far = n / 16;
+            place(n - far, hi / 16.0, levels - 1, out);
+            out.extend((0..far).map(|k| hi * (1.0 - 0.001 * k as f64 / far as f64)));
+        }
+        let mut xs = Vec::new();
+        place(20_000, 1e15, 30, &mut xs);
+        let faces: Vec<Face> = xs
+            .iter()
+            .map(|&x| Face {
+                corners: [
+                    Point3::new(x - 1.0, -1.0, -1.0),
+                    Point3::new(x + 1.0, -1.0, 1.0),
+                    Point3::new(x, 1.0, 0.0),
+                ],
+                item: ItemId(0),
+                slack: 0.0,
+            })
+            .collect();
+        let bvh = Bvh::new(&faces);
+        assert!(depth(&bvh, 0) > 32, "{}", depth(&bvh, 0));
+        let origin = Point3::new(-1.0, 0.0, 0.0);
+        for (i, face) in faces.iter().enumerate().step_by(97) {
+            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _| {
+                std::ptr::eq(f, face)
+            });
+            assert_eq!(hit, Some(i as u32));
+        }
+    }
 }
