@@ -1198,4 +1198,25 @@ mod tests {
             assert_eq!(hit, Some(i as u32));
         }
     }
+
+    #[test]
+    fn a_ray_from_far_out_finds_a_face_a_few_millimetres_ahead() {
+        // From x = 1000 the boxes are grown by 1e-5 x 1001 m, about 1 cm, for the f32
+        // rounding of the ray; a face 5 mm ahead is found with a limit of 1 cm, and not
+        // with one of 4 mm.
+        let faces = vec![Face {
+            corners: [
+                Point3::new(1000.004, -1.0, -1.0),
+                Point3::new(1000.006, -1.0, 1.0),
+                Point3::new(1000.005, 1.0, 0.0),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        }];
+        let bvh = Bvh::new(&faces);
+        let origin = Point3::new(1000.0, 0.0, 0.0);
+        let first_hit = |limit| bvh.first_hit(&faces, &origin, &Vector3::x(), limit, |_, _| true);
+        assert_eq!(first_hit(0.01), Some(0));
+        assert_eq!(first_hit(0.004), None);
+    }
 }
