@@ -1219,4 +1219,47 @@ mod tests {
         assert_eq!(first_hit(0.01), Some(0));
         assert_eq!(first_hit(0.004), None);
     }
+
+    #[test]
+    fn lopsided_splits_stop_after_sah_levels_so_every_face_is_found() {
+        // Faces placed as in the deep tree above but lopsided sixty times over, each level's
+        // faces scaled with its span (so that none is a sliver to the ray): the binned
+        // heuristic alone would split them sixty times and then halve 416 faces down to
+        // leaves of four, 67 levels, past the searches' stacks of 64. Below `SAH_LEVELS`
+        // the median takes over, and a ray along the axis finds every face asked for.
+        fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<(f64, f64)>) {
+            if levels == 0 || n <= 16 {
+                out.extend((1..=n).map(|k| (hi * k as f64 / n as f64, hi / n as f64)));
+                return;
+            }
+            let far = n / 16;
+            place(n - far, hi / 16.0, levels - 1, out);
+            let size = 1e-4 * hi / far as f64;
+            out.extend((0..far).map(|k| (hi * (1.0 - 0.001 * k as f64 / far as f64), size)));
+        }
+        let mut placed = Vec::new();
+        place(20_000, 3e37, 60, &mut placed);
+        let faces: Vec<Face> = placed
+            .iter()
+            .map(|&(x, w)| Face {
+                corners: [
+                    Point3::new(x - w, -w, -w),
+                    Point3::new(x + w, -w, w),
+                    Point3::new(x, w, 0.0),
+                ],
+                item: ItemId(0),
+                slack: 0.0,
+            })
+            .collect();
+        let bvh = Bvh::new(&faces);
+        let levels = depth(&bvh, 0);
+        assert!(levels < 64, "{levels}");
+        let origin = Point3::new(-1.0, 0.0, 0.0);
+        for (i, face) in faces.iter().enumerate().step_by(97) {
+            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _| {
+                std::ptr::eq(f, face)
+            });
+            assert_eq!(hit, Some(i as u32), "{levels}");
+        }
+    }
 }
