@@ -1220,13 +1220,9 @@ mod tests {
         assert_eq!(first_hit(0.004), None);
     }
 
-    #[test]
-    fn lopsided_splits_stop_after_sah_levels_so_every_face_is_found() {
-        // Faces placed as in the deep tree above but lopsided sixty times over, each level's
-        // faces scaled with its span (so that none is a sliver to the ray): the binned
-        // heuristic alone would split them sixty times and then halve 416 faces down to
-        // leaves of four, 67 levels, past the searches' stacks of 64. Below `SAH_LEVELS`
-        // the median takes over, and a ray along the axis finds every face asked for.
+    /// `n` faces along the x axis split lopsidedly `levels` times over (see below), each
+    /// scaled with its level's span, reaching to `hi` from near the origin.
+    fn lopsided_faces(n: usize, hi: f64, levels: u32) -> Vec<Face> {
         fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<(f64, f64)>) {
             if levels == 0 || n <= 16 {
                 out.extend((1..=n).map(|k| (hi * k as f64 / n as f64, hi / n as f64)));
@@ -1238,8 +1234,8 @@ mod tests {
             out.extend((0..far).map(|k| (hi * (1.0 - 0.001 * k as f64 / far as f64), size)));
         }
         let mut placed = Vec::new();
-        place(20_000, 3e37, 60, &mut placed);
-        let faces: Vec<Face> = placed
+        place(n, hi, levels, &mut placed);
+        placed
             .iter()
             .map(|&(x, w)| Face {
                 corners: [
@@ -1250,7 +1246,17 @@ mod tests {
                 item: ItemId(0),
                 slack: 0.0,
             })
-            .collect();
+            .collect()
+    }
+
+    #[test]
+    fn lopsided_splits_stop_after_sah_levels_so_every_face_is_found() {
+        // Faces placed as in the deep tree above but lopsided sixty times over, each level's
+        // faces scaled with its span (so that none is a sliver to the ray): the binned
+        // heuristic alone would split them sixty times and then halve 416 faces down to
+        // leaves of four, 67 levels, past the searches' stacks of 64. Below `SAH_LEVELS`
+        // the median takes over, and a ray along the axis finds every face asked for.
+        let faces = lopsided_faces(20_000, 3e37, 60);
         let bvh = Bvh::new(&faces);
         let levels = depth(&bvh, 0);
         assert!(levels < 64, "{levels}");
@@ -1261,5 +1267,23 @@ mod tests {
             });
             assert_eq!(hit, Some(i as u32), "{levels}");
         }
+    }
+
+    #[test]
+    fn a_lopsided_tree_built_on_threads_is_the_one_built_on_one() {
+        // The lopsided faces mirrored (x to -x), so that the long chain of splits runs down
+        // the second halves, the ones handed to threads: 100,000 faces, so that the three
+        // top levels are split on threads. Each level is counted the same on a thread, and
+        // the median takes over at the same depth: the same hierarchy.
+        let mut faces = lopsided_faces(100_000, 3e37, 60);
+        for face in &mut faces {
+            for p in &mut face.corners {
+                p.x = -p.x;
+            }
+        }
+        let one = Bvh::with_split_levels(&faces, 0);
+        let threaded = Bvh::with_split_levels(&faces, 3);
+        assert!(depth(&one, 0) > SAH_LEVELS as usize);
+        assert!(threaded.nodes == one.nodes && threaded.order == one.order);
     }
 }
