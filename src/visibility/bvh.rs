@@ -1271,19 +1271,24 @@ mod tests {
 
     #[test]
     fn a_lopsided_tree_built_on_threads_is_the_one_built_on_one() {
-        // The lopsided faces mirrored (x to -x), so that the long chain of splits runs down
-        // the second halves, the ones handed to threads: 100,000 faces, so that the three
-        // top levels are split on threads. Each level is counted the same on a thread, and
-        // the median takes over at the same depth: the same hierarchy.
+        // The lopsided faces, 100,000 of them, so that the three top levels are split on
+        // threads; as they are, the long chain of splits runs down the first halves, and
+        // mirrored (x to -x) down the second, the ones handed to threads. Each level is
+        // counted the same on a thread, and the median takes over at the same depth: the
+        // same hierarchy.
         let mut faces = lopsided_faces(100_000, 3e37, 60);
-        for face in &mut faces {
-            for p in &mut face.corners {
-                p.x = -p.x;
+        for mirrored in [false, true] {
+            if mirrored {
+                for face in &mut faces {
+                    for p in &mut face.corners {
+                        p.x = -p.x;
+                    }
+                }
             }
+            let one = Bvh::with_split_levels(&faces, 0);
+            let threaded = Bvh::with_split_levels(&faces, 3);
+            assert!(depth(&one, 0) > SAH_LEVELS as usize);
+            assert!(threaded.nodes == one.nodes && threaded.order == one.order);
         }
-        let one = Bvh::with_split_levels(&faces, 0);
-        let threaded = Bvh::with_split_levels(&faces, 3);
-        assert!(depth(&one, 0) > SAH_LEVELS as usize);
-        assert!(threaded.nodes == one.nodes && threaded.order == one.order);
     }
 }
