@@ -1255,17 +1255,26 @@ mod tests {
         // faces scaled with its span (so that none is a sliver to the ray): the binned
         // heuristic alone would split them sixty times and then halve 416 faces down to
         // leaves of four, 67 levels, past the searches' stacks of 64. Below `SAH_LEVELS`
-        // the median takes over, and a ray along the axis finds every face asked for.
-        let faces = lopsided_faces(20_000, 3e37, 60);
-        let bvh = Bvh::new(&faces);
-        let levels = depth(&bvh, 0);
-        assert!(levels < 64, "{levels}");
-        let origin = Point3::new(-1.0, 0.0, 0.0);
-        for (i, face) in faces.iter().enumerate().step_by(97) {
-            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _| {
-                std::ptr::eq(f, face)
-            });
-            assert_eq!(hit, Some(i as u32), "{levels}");
+        // the median takes over, and a ray along the axis finds every face asked for; the
+        // same mirrored (x to -x), the chain then running down the second halves.
+        let mut faces = lopsided_faces(20_000, 3e37, 60);
+        for toward in [1.0, -1.0] {
+            for face in &mut faces {
+                for p in &mut face.corners {
+                    p.x = toward * p.x.abs();
+                }
+            }
+            let bvh = Bvh::new(&faces);
+            let levels = depth(&bvh, 0);
+            assert!(levels < 64, "{levels}");
+            let origin = Point3::new(-toward, 0.0, 0.0);
+            let along = Vector3::new(toward, 0.0, 0.0);
+            for (i, face) in faces.iter().enumerate().step_by(97) {
+                let hit = bvh.first_hit(&faces, &origin, &along, f64::INFINITY, |f, _| {
+                    std::ptr::eq(f, face)
+                });
+                assert_eq!(hit, Some(i as u32), "{levels}");
+            }
         }
     }
 
