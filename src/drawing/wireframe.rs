@@ -487,11 +487,8 @@ mod tests {
                     .map(|i| (i, Degeneracy::EndAtEye)),
             )
             .collect();
-        let found: Vec<(usize, Degeneracy)> = wire
-            .skipped
-            .iter()
-            .map(|s| (s.edge_index, s.why.clone()))
-            .collect();
+        let found: Vec<(usize, Degeneracy)> =
+            wire.skipped.iter().map(|s| (s.edge_index, s.why)).collect();
         assert_eq!(found.len(), expected.len());
         for (found, expected) in found.iter().zip(&expected) {
             assert_eq!(found, expected);
