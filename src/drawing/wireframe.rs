@@ -404,23 +404,33 @@ fn flatten_edges(
 mod tests {
     use super::*;
     use crate::plane::Equirect;
-    use crate::scene::{parse_scene, HiddenEdges};
+    use crate::scene::{parse_scene, Face, HiddenEdges};
     use std::path::Path;
 
     fn drawn(scene: &str, width: f64, hidden: HiddenEdges) -> Wireframe {
         let site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        drawn_site(&site, width, hidden, false, &Budget::new(None)).unwrap()
+    }
+
+    /// The wireframe of `site` from its first standpoint, on an image `width` pixels wide.
+    fn drawn_site(
+        site: &Site,
+        width: f64,
+        hidden: HiddenEdges,
+        by_distance: bool,
+        budget: &Budget,
+    ) -> Result<Wireframe> {
         let view = ViewFrame::new(&site.standpoints[0]);
         let flattener = Flattener::new(Equirect::from_size_px(width, width / 2.0), 0.1);
-        let hidden_lines = HiddenLines::new(&site, Some(hidden));
-        wireframe(
-            &site,
-            &view,
-            &flattener,
-            &hidden_lines,
-            false,
-            &Budget::new(None),
-        )
-        .unwrap()
+        let hidden_lines = HiddenLines::new(site, Some(hidden));
+        wireframe(site, &view, &flattener, &hidden_lines, by_distance, budget)
+    }
+
+    fn segment(start: Point3<f64>, end: Point3<f64>) -> Edge {
+        Edge {
+            curve: SiteCurve::Segment { start, end },
+            item: ItemId(0),
+        }
     }
 
     #[test]
@@ -461,5 +471,265 @@ mod tests {
         assert!(solid.hidden.is_empty() && solid.skipped.is_empty());
         let faint = drawn(scene, 4096.0, HiddenEdges::Faint);
         assert!(!faint.hidden.is_empty());
+    }
+
+    #[test]
+    fn skipped_edges_are_numbered_in_the_sites_order_across_runs() {
+        // 2,148 fixed edges (a run of 2,048 and one of 100), every fifth of no length; then
+        // 1,100 point markers (2,200 edges that depend on the eye: a run of 2,048 and one of
+        // 152), every third half a nanometre from the eye, so that both arms of its cross end
+        // at the eye (within 1e-9 m of it). Each edge left out keeps its place in that
+        // order, whichever run and thread took it: fixed edge i is i, marker k's two arms
+        // are 2,148 + 2k and 2,148 + 2k + 1.
+        let scene = "Scene(standpoints: [(name: \"here\", x: 0, y: 0)], \
+            items: [Point(label: \"well\", at: (3, 40, 0.5))])";
+        let mut site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        let eye = ViewFrame::new(&site.standpoints[0]).eye();
+        let fixed = EDGES_PER_RUN + 100;
+        site.edges = (0..fixed)
+            .map(|i| {
+                let start = Point3::new(-10.0 + 0.01 * i as f64, 30.0, 0.0);
+                let rise = if i % 5 == 0 { 0.0 } else { 1.0 };
+                segment(start, start + Vector3::new(0.0, 0.0, rise))
+            })
+            .collect();
+        site.markers = (0..1100)
+            .map(|k| Marker {
+                at: if k % 3 == 0 {
+                    eye + Vector3::new(5e-10, 0.0, 0.0)
+                } else {
+                    let a = k as f64;
+                    Point3::new(20.0 * a.cos(), 20.0 * a.sin(), 1.0)
+                },
+                item: ItemId(0),
+            })
+            .collect();
+        let wire =
+            drawn_site(&site, 2048.0, HiddenEdges::Solid, false, &Budget::new(None)).unwrap();
+        let expected: Vec<(usize, Degeneracy)> = (0..fixed)
+            .filter(|i| i % 5 == 0)
+            .map(|i| (i, Degeneracy::ZeroLength))
+            .chain(
+                (0..1100)
+                    .filter(|k| k % 3 == 0)
+                    .flat_map(|k| [fixed + 2 * k, fixed + 2 * k + 1])
+                    .map(|i| (i, Degeneracy::EndAtEye)),
+            )
+            .collect();
+        let found: Vec<(usize, Degeneracy)> =
+            wire.skipped.iter().map(|s| (s.edge_index, s.why)).collect();
+        assert_eq!(found.len(), expected.len());
+        for (found, expected) in found.iter().zip(&expected) {
+            assert_eq!(found, expected);
+        }
+    }
+
+    #[test]
+    fn the_drawn_vertices_count_against_the_budget() {
+        // Each of the block's twelve edges draws as a polyline of at least its two ends, so
+        // a budget with 20 vertices left refuses the drawing (`MAX_DRAWN_VERTICES`, the
+        // limit the budget's table gives); with all of it left, it is drawn.
+        let scene = "Scene(standpoints: [(name: \"here\", x: 3, y: -20)], \
+            items: [Block(at: Corner(0, 0), width: 10, depth: 10, height: 9)])";
+        let site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        let budget = Budget::new(None);
+        budget
+            .add_vertices(crate::budget::MAX_DRAWN_VERTICES - 20)
+            .unwrap();
+        let refused = drawn_site(&site, 4096.0, HiddenEdges::Solid, false, &budget);
+        assert!(
+            matches!(refused, Err(Error::TooLarge { .. })),
+            "{refused:?}"
+        );
+        let budget = Budget::new(None);
+        assert!(drawn_site(&site, 4096.0, HiddenEdges::Solid, false, &budget).is_ok());
+    }
+
+    #[test]
+    fn an_edge_is_banded_by_its_nearest_point() {
+        // From an eye at (1, 2, 1.5), by hand: a level segment 7 m ahead reaching 40 m to
+        // either side is near by its middle (its ends are 40.6 m off); at 20 m it is middle
+        // and at 35 m far (ends at 44.7 and 53.2 m). A segment from 10 to 40 m straight
+        // along x is middle by its nearer end (its line passes through the eye, beyond that
+        // end). Exactly 8 m and exactly 30 m (the middles (1, 10, 1.5) and (1, 32, 1.5) of
+        // segments 2 m long) are middle: near is nearer than 8 m, far beyond 30 m.
+        let eye = Point3::new(1.0, 2.0, 1.5);
+        let level = |ahead: f64, half: f64| {
+            segment(
+                eye + Vector3::new(-half, ahead, 0.0),
+                eye + Vector3::new(half, ahead, 0.0),
+            )
+        };
+        let band = |edge: Edge| Distance::of(&edge, &eye);
+        assert_eq!(band(level(7.0, 40.0)), Distance::Near);
+        assert_eq!(band(level(20.0, 40.0)), Distance::Middle);
+        assert_eq!(band(level(35.0, 40.0)), Distance::Far);
+        let along = segment(
+            eye + Vector3::new(10.0, 0.0, 0.0),
+            eye + Vector3::new(40.0, 0.0, 0.0),
+        );
+        assert_eq!(band(along), Distance::Middle);
+        assert_eq!(band(level(8.0, 1.0)), Distance::Middle);
+        assert_eq!(band(level(30.0, 1.0)), Distance::Middle);
+        assert_eq!(band(level(7.99, 1.0)), Distance::Near);
+        assert_eq!(band(level(30.01, 1.0)), Distance::Far);
+        // A circle or ellipse by its centre's distance less its larger semi-axis: 9 m off
+        // with semi-axes 1 and 2 m, 7 m (near); 9.5 m off, 7.5 m (near; by its smaller
+        // semi-axis 8.5 m); 40 m off with semi-axes 2 and 1 m, 38 m (far); 3 m off with a
+        // radius of 5 m the eye is inside it, 0 m (near).
+        let ellipse = |ahead: f64, u: f64, v: f64| Edge {
+            curve: SiteCurve::Ellipse {
+                centre: eye + Vector3::new(0.0, ahead, 0.0),
+                u: Vector3::new(u, 0.0, 0.0),
+                v: Vector3::new(0.0, 0.0, v),
+                start: 0.0,
+                sweep: std::f64::consts::TAU,
+            },
+            item: ItemId(0),
+        };
+        assert_eq!(band(ellipse(9.0, 1.0, 2.0)), Distance::Near);
+        assert_eq!(band(ellipse(9.5, 1.0, 2.0)), Distance::Near);
+        assert_eq!(band(ellipse(40.0, 2.0, 1.0)), Distance::Far);
+        assert_eq!(band(ellipse(3.0, 5.0, 5.0)), Distance::Near);
+    }
+
+    #[test]
+    fn with_weights_by_distance_each_layer_has_three_bands() {
+        // Items on no layer and on "rails": the layers are (none, rails) times (middle,
+        // near, far), in that order; a line 5 m ahead on no layer is near, one 20 m ahead
+        // on rails middle and one 50 m ahead on rails far (the eye 1.6 m up at the origin).
+        let scene = "Scene(standpoints: [(name: \"here\", x: 0, y: 0)], items: [\
+            Line(from: (-1, 5, 0), to: (1, 5, 0)), \
+            Line(layer: \"rails\", from: (-1, 20, 0), to: (1, 20, 0)), \
+            Line(layer: \"rails\", from: (-1, 50, 0), to: (1, 50, 0))])";
+        let site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        let wire = drawn_site(&site, 2048.0, HiddenEdges::Solid, true, &Budget::new(None)).unwrap();
+        let found: Vec<(Option<&str>, Distance, usize)> = wire
+            .layers
+            .iter()
+            .map(|l| (l.site_layer.as_deref(), l.distance, l.lines.len()))
+            .collect();
+        let rails = Some("rails");
+        assert_eq!(
+            found,
+            [
+                (None, Distance::Middle, 0),
+                (None, Distance::Near, 1),
+                (None, Distance::Far, 0),
+                (rails, Distance::Middle, 1),
+                (rails, Distance::Near, 0),
+                (rails, Distance::Far, 1),
+            ]
+        );
+    }
+
+    #[test]
+    fn a_marker_cross_is_square_to_the_sight_line_in_every_direction() {
+        // Each arm is centred on the point, reaches d tan(arm) either side of it and is
+        // square to the sight line; the first is level, the second square to the first.
+        // Due east at eye height the level arm runs north and south and the other upright;
+        // straight overhead, where no level direction is singled out, the arms run east-west
+        // (x, the fallback) and north-south. Towards (-3, 4, -2), by hand: the level arm is
+        // (-4, -3, 0) / 5 and the other (-3, 4, -2) x (-0.8, -0.6, 0) = (-1.2, 1.6, 5).
+        let eye = Point3::new(2.0, -1.0, 1.6);
+        let arm = 0.02;
+        for (towards, first, second) in [
+            (Vector3::new(10.0, 0.0, 0.0), Vector3::y(), Vector3::z()),
+            (Vector3::new(0.0, 0.0, 10.0), Vector3::x(), Vector3::y()),
+            (
+                Vector3::new(-3.0, 4.0, -2.0),
+                Vector3::new(-0.8, -0.6, 0.0),
+                Vector3::new(-1.2, 1.6, 5.0),
+            ),
+        ] {
+            let marker = Marker {
+                at: eye + towards,
+                item: ItemId(0),
+            };
+            let cross = marker_cross(&marker, &eye, arm);
+            assert_eq!(cross.len(), 2);
+            let reach = towards.norm() * arm.tan();
+            let arms: Vec<Vector3<f64>> = cross
+                .iter()
+                .map(|edge| {
+                    let SiteCurve::Segment { start, end } = edge.curve else {
+                        panic!("{edge:?}")
+                    };
+                    assert!(((start + (end - start) / 2.0) - marker.at).norm() < 1e-12);
+                    assert!(
+                        ((end - start).norm() - 2.0 * reach).abs() < 1e-12,
+                        "{edge:?}"
+                    );
+                    (end - start) / (2.0 * reach)
+                })
+                .collect();
+            assert!(
+                arms.iter().all(|a| a.dot(&towards).abs() < 1e-12),
+                "{arms:?}"
+            );
+            assert!(
+                arms[0].dot(&arms[1]).abs() < 1e-12 && arms[0].z == 0.0,
+                "{arms:?}"
+            );
+            // Each arm's line, either way along it.
+            let along = |a: &Vector3<f64>, b: &Vector3<f64>| a.cross(b).norm() < 1e-12;
+            assert!(along(&arms[0], &first.normalize()), "{arms:?}");
+            assert!(along(&arms[1], &second.normalize()), "{arms:?}");
+        }
+        // At the eye, none.
+        let at_eye = Marker {
+            at: eye,
+            item: ItemId(0),
+        };
+        assert!(marker_cross(&at_eye, &eye, arm).is_empty());
+    }
+
+    #[test]
+    fn a_line_behind_a_plate_is_cut_where_the_plates_sides_hide_it() {
+        // The eye 1.6 m up at the origin looking north (+y); a plate 2 m wide and 3 m high,
+        // 5 m ahead (x from -1 to 1), hides the middle of a line 10 m ahead from x = -5 to
+        // 5, 1 m up. By similar triangles the sight lines past the plate's sides meet the line
+        // at x = -2 and 2 (the plate's top and foot are above and below it: at y = 5 the sight
+        // line to the line is 1.3 m up). So the line is drawn from azimuth -atan(1/2) to
+        // -atan(1/5) and from atan(1/5) to atan(1/2), and hidden between; on an image 2,048
+        // px wide, 2048 / 2 pi px a radian either side of the middle column, 1,024.
+        let scene = "Scene(standpoints: [(name: \"here\", x: 0, y: 0)], \
+            items: [Line(from: (-5, 10, 1), to: (5, 10, 1))])";
+        let mut site = parse_scene(scene.as_bytes(), Path::new("test.ron"), "test").unwrap();
+        let corner = |x: f64, z: f64| Point3::new(x, 5.0, z);
+        let face = |corners| Face {
+            corners,
+            item: ItemId(0),
+            slack: 0.0,
+        };
+        site.faces = vec![
+            face([corner(-1.0, 0.0), corner(1.0, 0.0), corner(1.0, 3.0)]),
+            face([corner(-1.0, 0.0), corner(1.0, 3.0), corner(-1.0, 3.0)]),
+        ];
+        let width = 2048.0;
+        let column = |x: f64| width / 2.0 + (x / 10.0).atan() * width / std::f64::consts::TAU;
+        let wire = drawn_site(&site, width, HiddenEdges::Faint, false, &Budget::new(None)).unwrap();
+        let ends = |lines: &PolylineSet| -> Vec<(f64, f64)> {
+            lines.iter().map(|l| (l[0].x, l[l.len() - 1].x)).collect()
+        };
+        let seen: Vec<(f64, f64)> = wire.layers.iter().flat_map(|l| ends(&l.lines)).collect();
+        let hidden = ends(&wire.hidden);
+        let near = |found: &[(f64, f64)], expected: &[(f64, f64)]| {
+            found.len() == expected.len()
+                && found
+                    .iter()
+                    .zip(expected)
+                    .all(|(f, e)| (f.0 - e.0).abs() < 0.01 && (f.1 - e.1).abs() < 0.01)
+        };
+        let expected_seen = [(column(-5.0), column(-2.0)), (column(2.0), column(5.0))];
+        assert!(
+            near(&seen, &expected_seen),
+            "{seen:?}, not {expected_seen:?}"
+        );
+        let expected_hidden = [(column(-2.0), column(2.0))];
+        assert!(
+            near(&hidden, &expected_hidden),
+            "{hidden:?}, not {expected_hidden:?}"
+        );
     }
 }

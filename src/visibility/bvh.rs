@@ -1009,4 +1009,295 @@ mod tests {
             .is_some_and(|s| s.touching));
         assert!(Plane::of(&wide).sides_of(&far(1e-6)).is_none());
     }
+
+    /// The faces under node `at` (the whole hierarchy for `None`), in the order the walk
+    /// from it hands them out, with the boxes it asks about (each as the index of the first
+    /// face after it).
+    fn walk(bvh: &Bvh, at: Option<u32>, eye: &Point3<f64>) -> (Vec<u32>, Vec<usize>) {
+        let (mut faces, mut boxes) = (Vec::new(), Vec::new());
+        let visit = |visit| {
+            match visit {
+                Visit::Box { .. } => boxes.push(faces.len()),
+                Visit::Face(index) => faces.push(index),
+            }
+            true
+        };
+        match at {
+            Some(at) => bvh.front_to_back_under(at, eye, visit),
+            None => bvh.front_to_back(eye, visit),
+        }
+        (faces, boxes)
+    }
+
+    #[test]
+    fn the_memory_held_is_room_for_the_nodes_and_the_order() {
+        // A node is six f32 and two u32, 32 bytes (as the module's notes say), and a face's
+        // place in the order a u32; a list holds room for its capacity.
+        assert_eq!(std::mem::size_of::<Node>(), 32);
+        let faces: Vec<Face> = (0..100).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        assert!(bvh.nodes.capacity() >= bvh.nodes.len() && bvh.order.capacity() >= 100);
+        assert_eq!(
+            bvh.memory_bytes(),
+            32 * bvh.nodes.capacity() + 4 * bvh.order.capacity()
+        );
+    }
+
+    #[test]
+    fn the_halves_are_the_roots_two_children_and_share_every_face() {
+        // Forty faces in a row: the root is split, and the walks from its two children hand
+        // out every face once between them, each some. Four faces make a single leaf (no
+        // halves), and no faces no hierarchy.
+        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        let eye = Point3::new(-5.0, 0.0, 0.0);
+        let [first, second] = bvh.halves().unwrap();
+        let (mut a, _) = walk(&bvh, Some(first), &eye);
+        let (b, _) = walk(&bvh, Some(second), &eye);
+        assert!(!a.is_empty() && !b.is_empty());
+        a.extend(b);
+        a.sort_unstable();
+        assert_eq!(a, (0..40).collect::<Vec<u32>>());
+        assert_eq!(Bvh::new(&faces[..4]).halves(), None);
+        assert_eq!(Bvh::new(&[]).halves(), None);
+        // A node past the end hands out nothing.
+        assert_eq!(
+            walk(&bvh, Some(bvh.nodes.len() as u32), &eye).0,
+            Vec::<u32>::new()
+        );
+    }
+
+    #[test]
+    fn the_walk_hands_out_the_nearest_leaves_first() {
+        // Forty faces 3 m apart in a row along x, seen from either end of it, 5 m beyond: the
+        // leaves come nearest first, so each leaf's faces all lie nearer than the next
+        // leaf's (a leaf's own faces come in the order they were grouped).
+        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let bvh = Bvh::new(&faces);
+        for (eye, toward) in [(-5.0, 1.0), (122.0, -1.0)] {
+            let (order, boxes) = walk(&bvh, None, &Point3::new(eye, 0.0, 0.0));
+            assert_eq!(order.len(), 40);
+            // The faces' distances along the row, grouped by the box asked about before them.
+            let along = |i: u32| toward * 3.0 * i as f64;
+            let mut groups: Vec<Vec<f64>> = Vec::new();
+            for (k, &start) in boxes.iter().enumerate() {
+                let end = boxes.get(k + 1).copied().unwrap_or(order.len());
+                if end > start {
+                    groups.push(order[start..end].iter().map(|&i| along(i)).collect());
+                }
+            }
+            for pair in groups.windows(2) {
+                let last = pair[0].iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+                let next = pair[1].iter().cloned().fold(f64::INFINITY, f64::min);
+                assert!(last < next, "{groups:?}");
+            }
+        }
+        // A box turned down hides everything under it: turning down the root, nothing.
+        let mut handed = 0;
+        bvh.front_to_back(&Point3::origin(), |visit| match visit {
+            Visit::Box { .. } => false,
+            Visit::Face(_) => {
+                handed += 1;
+                true
+            }
+        });
+        assert_eq!(handed, 0);
+    }
+
+    #[test]
+    fn a_ray_finds_a_face_closer_than_its_limit_and_no_other() {
+        // A ray straight up from the origin meets a level triangle over it (corners (-5, -5),
+        // (5, -5) and (0, 5)) at its height. At 10 m: the distance is exactly 10 (by hand,
+        // Moeller and Trumbore's terms are -100 for the determinant and -1000 for the
+        // distance's numerator, and -1000 x (1 / -100) rounds to 10), and a face at the
+        // limit is not closer than it. At 99.9995 m a limit of 100 m finds it (5e-6 of the
+        // limit short of it: the boxes' allowance for the ray's f32 rounding must not turn
+        // it away), and a limit of 99.999 m does not.
+        let up = Vector3::z();
+        let origin = Point3::origin();
+        let level = |z: f64| {
+            let mut face = triangle(z, 0.0);
+            for p in &mut face.corners {
+                p.x *= 5.0;
+                p.y *= 5.0;
+            }
+            vec![face]
+        };
+        let first_hit = |faces: &[Face], limit: f64| {
+            Bvh::new(faces).first_hit(faces, &origin, &up, limit, |_, _| true)
+        };
+        let ten = level(10.0);
+        assert_eq!(ray_hits_triangle(&origin, &up, &ten[0].corners), Some(10.0));
+        assert_eq!(first_hit(&ten, 10.0), None);
+        assert_eq!(first_hit(&ten, 10.001), Some(0));
+        let far = level(99.9995);
+        assert_eq!(first_hit(&far, 100.0), Some(0));
+        assert_eq!(first_hit(&far, 99.999), None);
+    }
+
+    #[test]
+    fn an_empty_hierarchy_holds_nothing() {
+        // No faces: no box, no walk, no ray's hit and no wedge crossed.
+        let empty = Bvh::new(&[]);
+        assert!(empty.nodes.is_empty() && empty.order.is_empty());
+        let origin = Point3::origin();
+        assert_eq!(
+            empty.first_hit(&[], &origin, &Vector3::z(), 1e9, |_, _| true),
+            None
+        );
+        let wedge = [
+            origin,
+            Point3::new(1.0, 5.0, 0.0),
+            Point3::new(-1.0, 5.0, 0.0),
+        ];
+        assert!(!empty.crosses(&[], &wedge));
+        assert_eq!(walk(&empty, None, &origin), (vec![], vec![]));
+    }
+
+    #[test]
+    fn a_ray_through_every_box_of_a_deep_tree_finds_the_face_it_asks_for() {
+        // Upright faces across the x axis, placed so that every split is lopsided: of n
+        // faces, the last n/16 lie within the last thousandth of the span and the rest
+        // within its first sixteenth, in turn placed the same way, thirty times over (then
+        // evenly). Binned in twelve along the span, they fill only the first bin and the
+        // last, so the split is forced, and the tree is over 32 levels deep. A ray along the
+        // axis from x = -1 meets every box: at each level the farther child waits on the
+        // search's stack while the nearer one is searched, so the stack holds about as many
+        // entries as the tree has levels, within its 64. Asked for one face, the ray finds
+        // that face, whichever it is.
+        fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<f64>) {
+            if levels == 0 || n <= 16 {
+                out.extend((1..=n).map(|k| hi * k as f64 / n as f64));
+                return;
+            }
+            let far = n / 16;
+            place(n - far, hi / 16.0, levels - 1, out);
+            out.extend((0..far).map(|k| hi * (1.0 - 0.001 * k as f64 / far as f64)));
+        }
+        let mut xs = Vec::new();
+        place(20_000, 1e15, 30, &mut xs);
+        let faces: Vec<Face> = xs
+            .iter()
+            .map(|&x| Face {
+                corners: [
+                    Point3::new(x - 1.0, -1.0, -1.0),
+                    Point3::new(x + 1.0, -1.0, 1.0),
+                    Point3::new(x, 1.0, 0.0),
+                ],
+                item: ItemId(0),
+                slack: 0.0,
+            })
+            .collect();
+        let bvh = Bvh::new(&faces);
+        assert!(depth(&bvh, 0) > 32, "{}", depth(&bvh, 0));
+        let origin = Point3::new(-1.0, 0.0, 0.0);
+        for (i, face) in faces.iter().enumerate().step_by(97) {
+            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _| {
+                std::ptr::eq(f, face)
+            });
+            assert_eq!(hit, Some(i as u32));
+        }
+    }
+
+    #[test]
+    fn a_ray_from_far_out_finds_a_face_a_few_millimetres_ahead() {
+        // From x = 1000 the boxes are grown by 1e-5 x 1001 m, about 1 cm, for the f32
+        // rounding of the ray; a face 5 mm ahead is found with a limit of 1 cm, and not
+        // with one of 4 mm.
+        let faces = vec![Face {
+            corners: [
+                Point3::new(1000.004, -1.0, -1.0),
+                Point3::new(1000.006, -1.0, 1.0),
+                Point3::new(1000.005, 1.0, 0.0),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        }];
+        let bvh = Bvh::new(&faces);
+        let origin = Point3::new(1000.0, 0.0, 0.0);
+        let first_hit = |limit| bvh.first_hit(&faces, &origin, &Vector3::x(), limit, |_, _| true);
+        assert_eq!(first_hit(0.01), Some(0));
+        assert_eq!(first_hit(0.004), None);
+    }
+
+    /// `n` faces along the x axis split lopsidedly `levels` times over (see below), each
+    /// scaled with its level's span, reaching to `hi` from near the origin.
+    fn lopsided_faces(n: usize, hi: f64, levels: u32) -> Vec<Face> {
+        fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<(f64, f64)>) {
+            if levels == 0 || n <= 16 {
+                out.extend((1..=n).map(|k| (hi * k as f64 / n as f64, hi / n as f64)));
+                return;
+            }
+            let far = n / 16;
+            place(n - far, hi / 16.0, levels - 1, out);
+            let size = 1e-4 * hi / far as f64;
+            out.extend((0..far).map(|k| (hi * (1.0 - 0.001 * k as f64 / far as f64), size)));
+        }
+        let mut placed = Vec::new();
+        place(n, hi, levels, &mut placed);
+        placed
+            .iter()
+            .map(|&(x, w)| Face {
+                corners: [
+                    Point3::new(x - w, -w, -w),
+                    Point3::new(x + w, -w, w),
+                    Point3::new(x, w, 0.0),
+                ],
+                item: ItemId(0),
+                slack: 0.0,
+            })
+            .collect()
+    }
+
+    #[test]
+    fn lopsided_splits_stop_after_sah_levels_so_every_face_is_found() {
+        // Faces placed as in the deep tree above but lopsided sixty times over, each level's
+        // faces scaled with its span (so that none is a sliver to the ray): the binned
+        // heuristic alone would split them sixty times and then halve 416 faces down to
+        // leaves of four, 67 levels, past the searches' stacks of 64. Below `SAH_LEVELS`
+        // the median takes over, and a ray along the axis finds every face asked for; the
+        // same mirrored (x to -x), the chain then running down the second halves.
+        let mut faces = lopsided_faces(20_000, 3e37, 60);
+        for toward in [1.0, -1.0] {
+            for face in &mut faces {
+                for p in &mut face.corners {
+                    p.x = toward * p.x.abs();
+                }
+            }
+            let bvh = Bvh::new(&faces);
+            let levels = depth(&bvh, 0);
+            assert!(levels < 64, "{levels}");
+            let origin = Point3::new(-toward, 0.0, 0.0);
+            let along = Vector3::new(toward, 0.0, 0.0);
+            for (i, face) in faces.iter().enumerate().step_by(97) {
+                let hit = bvh.first_hit(&faces, &origin, &along, f64::INFINITY, |f, _| {
+                    std::ptr::eq(f, face)
+                });
+                assert_eq!(hit, Some(i as u32), "{levels}");
+            }
+        }
+    }
+
+    #[test]
+    fn a_lopsided_tree_built_on_threads_is_the_one_built_on_one() {
+        // The lopsided faces, 100,000 of them, so that the three top levels are split on
+        // threads; as they are, the long chain of splits runs down the first halves, and
+        // mirrored (x to -x) down the second, the ones handed to threads. Each level is
+        // counted the same on a thread, and the median takes over at the same depth: the
+        // same hierarchy.
+        let mut faces = lopsided_faces(100_000, 3e37, 60);
+        for mirrored in [false, true] {
+            if mirrored {
+                for face in &mut faces {
+                    for p in &mut face.corners {
+                        p.x = -p.x;
+                    }
+                }
+            }
+            let one = Bvh::with_split_levels(&faces, 0);
+            let threaded = Bvh::with_split_levels(&faces, 3);
+            assert!(depth(&one, 0) > SAH_LEVELS as usize);
+            assert!(threaded.nodes == one.nodes && threaded.order == one.order);
+        }
+    }
 }
