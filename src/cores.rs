@@ -45,6 +45,33 @@ pub fn in_order<T: Send>(count: usize, work: impl Fn(usize) -> T + Sync) -> Vec<
     blocks.into_iter().flat_map(|(_, block)| block).collect()
 }
 
+/// `work(input)` for each input, each on a thread of its own, the results in their order.
+/// With `here`, the calling thread does the first itself instead of only waiting: a thread
+/// it spawns may wait a scheduler's time slice (measured: 1.5 to 2.5 ms) before it runs.
+pub fn each_on_a_thread<I: Send, T: Send>(
+    inputs: Vec<I>,
+    here: bool,
+    work: impl Fn(I) -> T + Sync,
+) -> Vec<T> {
+    let work = &work;
+    let mut inputs = inputs.into_iter();
+    let first = if here { inputs.next() } else { None };
+    std::thread::scope(|scope| {
+        let handles: Vec<_> = inputs
+            .map(|input| scope.spawn(move || work(input)))
+            .collect();
+        let mut results: Vec<T> = first.into_iter().map(work).collect();
+        for handle in handles {
+            results.push(
+                handle
+                    .join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic)),
+            );
+        }
+        results
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -62,5 +89,18 @@ mod tests {
         assert_eq!(squares, (0..1000u64).map(|k| k * k).collect::<Vec<_>>());
         assert!(in_order(0, |k| k).is_empty());
         assert_eq!(in_order(3, |k| k), vec![0, 1, 2]);
+    }
+
+    #[test]
+    fn each_share_on_its_thread_in_order_the_first_here_when_asked() {
+        let caller = std::thread::current().id();
+        for here in [false, true] {
+            let done = each_on_a_thread((0..4).collect(), here, |k| {
+                (k, std::thread::current().id() == caller)
+            });
+            let expected: Vec<(usize, bool)> = (0..4).map(|k| (k, here && k == 0)).collect();
+            assert_eq!(done, expected);
+        }
+        assert!(each_on_a_thread(Vec::<usize>::new(), true, |k| k).is_empty());
     }
 }

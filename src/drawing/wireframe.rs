@@ -124,38 +124,19 @@ pub fn wireframe(
         }
         done
     };
-    // The calling thread takes a share too, from the start: a thread it spawns may wait a
-    // scheduler's time slice (measured: 1.5 to 2.5 ms) before it runs.
+    /// Edges from which the calling thread takes a share of the runs from the start.
     const EDGES_FOR_CALLER: usize = 20_000;
+    // Only a large drawing's calling thread takes a share: a small one is done before a
+    // late thread costs much, and with its calling thread only waiting, the explorer's
+    // memory over a thousand renders for twenty clients grows as little as before (2 to
+    // 5 %, measured, against 6 to 10 % with each client's thread keeping the lists of its
+    // share in a memory arena of its own).
+    let here = threads > 1 && site.edges.len() + outlines.len() >= EDGES_FOR_CALLER;
     let mut parts: Vec<(usize, RunLines, PolylineSet, Vec<SkippedEdge>)> =
-        std::thread::scope(|scope| {
-            let work = &work;
-            // Only a large drawing's calling thread takes a share: a small one is done
-            // before a late thread costs much, and with its calling thread only waiting,
-            // the explorer's memory over a thousand renders for twenty clients grows as
-            // little as before (2 to 5 %, measured, against 6 to 10 % with each client's
-            // thread keeping the lists of its share in a memory arena of its own).
-            let here = threads > 1 && site.edges.len() + outlines.len() >= EDGES_FOR_CALLER;
-            let handles: Vec<_> = (usize::from(here)..threads)
-                .map(|_| {
-                    let flattener = flattener.clone();
-                    scope.spawn(move || work(flattener))
-                })
-                .collect();
-            let mut parts = if here {
-                work(flattener.clone())
-            } else {
-                Vec::new()
-            };
-            for handle in handles {
-                parts.extend(
-                    handle
-                        .join()
-                        .unwrap_or_else(|panic| std::panic::resume_unwind(panic)),
-                );
-            }
-            parts
-        });
+        crate::cores::each_on_a_thread(vec![flattener.clone(); threads], here, work)
+            .into_iter()
+            .flatten()
+            .collect();
     if let Some(error) = refused
         .into_inner()
         .unwrap_or_else(|poisoned| poisoned.into_inner())

@@ -295,22 +295,10 @@ fn strokes_by_band_on_all_cores(drawing: &Drawing, pens: &[Pen]) -> Vec<StrokesB
     if shares == 1 {
         return vec![strokes_by_band(drawing, pens, 0..lines)];
     }
-    let share = |k: usize| lines * k / shares..lines * (k + 1) / shares;
-    std::thread::scope(|scope| {
-        let handles: Vec<_> = (1..shares)
-            .map(|k| scope.spawn(move || strokes_by_band(drawing, pens, share(k))))
-            .collect();
-        // The first share here, at once (a new thread may wait a time slice to start).
-        let mut lists = vec![strokes_by_band(drawing, pens, share(0))];
-        for handle in handles {
-            lists.push(
-                handle
-                    .join()
-                    .unwrap_or_else(|p| std::panic::resume_unwind(p)),
-            );
-        }
-        lists
-    })
+    let shares = (0..shares)
+        .map(|k| lines * k / shares..lines * (k + 1) / shares)
+        .collect();
+    crate::cores::each_on_a_thread(shares, true, |share| strokes_by_band(drawing, pens, share))
 }
 
 /// The bands' lists of the stroked polylines numbered in `share` (counted through the
@@ -319,8 +307,9 @@ fn strokes_by_band(drawing: &Drawing, pens: &[Pen], share: Range<usize>) -> Stro
     let bands = (drawing.height as usize).div_ceil(BAND_ROWS);
     // Each segment's bands, found once; and how many segments start and stop reaching
     // into each band, summed below into each band's count.
-    // Sized once (a segment for each vertex at most): growing it page by page costs more
-    // than the sorting itself.
+    // Sized once, from the share's lines at their layer's average vertices a line (a
+    // segment for each vertex at most): growing it page by page costs more than the
+    // sorting itself.
     let stroked = || {
         let mut first_line = 0;
         drawing
