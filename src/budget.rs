@@ -94,13 +94,21 @@ impl Budget {
         Ok(())
     }
 
-    /// Whether the run may go on, `done` of the way (0 to 1) through `stage`, which began
-    /// at `stage_started`: refused when the limit has passed, or early when the progress so
-    /// far says the run would take several times the limit.
-    pub fn check_time(&self, stage: &'static str, stage_started: Instant, done: f64) -> Result<()> {
+    /// Whether the run may go on, `steps_done` of the `steps` of `stage` done (runs of
+    /// edges, rows of pixels), the stage having begun at `stage_started`: refused when the
+    /// limit has passed, or early when the progress so far says the run would take several
+    /// times the limit.
+    pub fn check_time(
+        &self,
+        stage: &'static str,
+        stage_started: Instant,
+        steps_done: usize,
+        steps: usize,
+    ) -> Result<()> {
         let Some(limit) = self.limit else {
             return Ok(());
         };
+        let done = steps_done as f64 / steps.max(1) as f64;
         let elapsed = self.started.elapsed();
         let before = stage_started
             .saturating_duration_since(self.started)
@@ -140,13 +148,30 @@ mod tests {
         let budget = Budget::new(Some(Duration::ZERO));
         std::thread::sleep(Duration::from_millis(2));
         let error = budget
-            .check_time("flatten", Instant::now(), 0.5)
+            .check_time("flatten", Instant::now(), 1, 2)
             .unwrap_err();
         assert!(error.is_bad_input());
         assert!(error.to_string().contains("flatten"), "{error}");
         assert!(Budget::new(None)
-            .check_time("flatten", Instant::now(), 0.0)
+            .check_time("flatten", Instant::now(), 0, 2)
             .is_ok());
+    }
+
+    #[test]
+    fn the_refusal_reports_the_share_of_steps_done() {
+        // Run 1 of 4 handed out (one done before it): a quarter of the way. A stage of no
+        // steps is reported as not begun rather than divided by zero.
+        let budget = Budget::new(Some(Duration::ZERO));
+        std::thread::sleep(Duration::from_millis(2));
+        let quarter = budget.check_time("flatten", Instant::now(), 1, 4);
+        assert!(quarter.unwrap_err().to_string().contains("25% of the way"));
+        let three_quarters = budget.check_time("flatten", Instant::now(), 3, 4);
+        assert!(three_quarters
+            .unwrap_err()
+            .to_string()
+            .contains("75% of the way"));
+        let none = budget.check_time("flatten", Instant::now(), 0, 0);
+        assert!(none.unwrap_err().to_string().contains("at its start"));
     }
 
     #[test]
@@ -159,7 +184,7 @@ mod tests {
             limit: Some(Duration::from_secs(10)),
             vertices: AtomicUsize::new(0),
         };
-        let error = budget.check_time("raster", started, 0.001).unwrap_err();
+        let error = budget.check_time("raster", started, 1, 1000).unwrap_err();
         let text = error.to_string();
         assert!(
             text.contains("raster") && text.contains("minutes"),
@@ -170,6 +195,6 @@ mod tests {
             limit: Some(Duration::from_secs(36_000)),
             ..budget
         };
-        assert!(budget.check_time("raster", started, 0.001).is_ok());
+        assert!(budget.check_time("raster", started, 1, 1000).is_ok());
     }
 }

@@ -100,8 +100,7 @@ pub fn wireframe(
         loop {
             let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
             let Some(edges) = runs.get(index) else { break };
-            let progress = index as f64 / runs.len() as f64;
-            if let Err(error) = budget.check_time(stage, stage_started, progress) {
+            if let Err(error) = budget.check_time(stage, stage_started, index, runs.len()) {
                 refuse(&refused, error, &next_run, runs.len());
                 break;
             }

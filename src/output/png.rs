@@ -115,7 +115,7 @@ fn write_grey_image<W: Write>(
     budget: &Budget,
 ) -> Result<Duration> {
     let stride = drawing.width.max(1) as usize;
-    let height = drawing.height as f64;
+    let image_rows = drawing.height as usize;
     let (started, mut rows_done, mut writing) = (Instant::now(), 0usize, Duration::ZERO);
     let mut refused = None;
     let mut data = ImageData::new(writer);
@@ -124,7 +124,7 @@ fn write_grey_image<W: Write>(
         |rows| compress_band(rows, stride),
         |rows, piece| {
             rows_done += rows.len() / stride;
-            if let Err(error) = budget.check_time("raster", started, rows_done as f64 / height) {
+            if let Err(error) = budget.check_time("raster", started, rows_done, image_rows) {
                 refused = Some(error);
                 return Err(png::EncodingError::from(std::io::Error::other(
                     "stopped by the time limit",
