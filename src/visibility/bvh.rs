@@ -976,6 +976,41 @@ mod tests {
     }
 
     #[test]
+    fn a_plane_through_a_corner_touches_a_box_far_out_or_tiny() {
+        // A plane through a corner of the box (its offset that corner's dot product, right
+        // to within one rounding) touches it, whatever the rounding of the centre and the
+        // reach: a box a metre across 1 km out (the sums carry about 1e-13 of rounding) and
+        // a box a micrometre across a metre out (reach 1e-6, rounding about 1e-16).
+        let mut next = crate::testing::numbers(41);
+        for (out, size) in [(1000.0, 1.0), (1.0, 1e-6)] {
+            for k in 0..500 {
+                let lo = [0, 1, 2].map(|_| (out * (1.0 + 0.1 * next())) as f32);
+                let hi = lo.map(|x| (x as f64 + size * (0.5 + next())) as f32);
+                let node = Node {
+                    lo,
+                    hi,
+                    index: 0,
+                    count: 1,
+                };
+                let normal = Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
+                let pick = |corner: usize, k: usize| {
+                    if corner >> k & 1 == 1 {
+                        hi[k] as f64
+                    } else {
+                        lo[k] as f64
+                    }
+                };
+                let corner = (k % 8) as usize;
+                let at = Vector3::new(pick(corner, 0), pick(corner, 1), pick(corner, 2));
+                assert!(
+                    box_meets_plane(&node, &normal, normal.dot(&at)),
+                    "{out} m out, case {k}"
+                );
+            }
+        }
+    }
+
+    #[test]
     fn a_triangle_touching_the_plane_is_not_clear_of_it() {
         let floor = [
             Point3::new(0.0, 0.0, 0.0),
