@@ -976,6 +976,41 @@ mod tests {
     }
 
     #[test]
+    fn a_plane_through_a_corner_touches_a_box_far_out_or_tiny() {
+        // A plane through a corner of the box (its offset that corner's dot product, right
+        // to within one rounding) touches it, whatever the rounding of the centre and the
+        // reach: a box a metre across 1 km out (the sums carry about 1e-13 of rounding) and
+        // a box a micrometre across a metre out (reach 1e-6, rounding about 1e-16).
+        let mut next = crate::testing::numbers(41);
+        for (out, size) in [(1000.0, 1.0), (1.0, 1e-6)] {
+            for k in 0..500 {
+                let lo = [0, 1, 2].map(|_| (out * (1.0 + 0.1 * next())) as f32);
+                let hi = lo.map(|x| (x as f64 + size * (0.5 + next())) as f32);
+                let node = Node {
+                    lo,
+                    hi,
+                    index: 0,
+                    count: 1,
+                };
+                let normal = Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
+                let pick = |corner: usize, k: usize| {
+                    if corner >> k & 1 == 1 {
+                        hi[k] as f64
+                    } else {
+                        lo[k] as f64
+                    }
+                };
+                let corner = (k % 8) as usize;
+                let at = Vector3::new(pick(corner, 0), pick(corner, 1), pick(corner, 2));
+                assert!(
+                    box_meets_plane(&node, &normal, normal.dot(&at)),
+                    "{out} m out, case {k}"
+                );
+            }
+        }
+    }
+
+    #[test]
     fn a_triangle_touching_the_plane_is_not_clear_of_it() {
         let floor = [
             Point3::new(0.0, 0.0, 0.0),
@@ -1218,6 +1253,38 @@ mod tests {
         let first_hit = |limit| bvh.first_hit(&faces, &origin, &Vector3::x(), limit, |_, _| true);
         assert_eq!(first_hit(0.01), Some(0));
         assert_eq!(first_hit(0.004), None);
+    }
+
+    #[test]
+    fn a_ray_from_the_origin_with_a_vanishing_component_finds_its_face() {
+        // A triangle in the plane y = 10, from x = x0 (just over the least normal f32,
+        // 2^-126) to x = 1, is met by the ray from the origin along (2e-39, 1, 0) at
+        // (2e-38, 10, 0): x0 < 2e-38 < 1 and z = 0 lies between the corners' -1 and 1, so
+        // inside it, 10 m out. x0 is chosen so that the box's side, rounded outwards, is
+        // exactly 0; and 1 / 2e-39 = 5e38 is past the largest f32 (3.4e38), so the slab
+        // test's inverse is infinite. Without a pad the slab's near side is 0 x infinity, not
+        // a number, and the box would be turned away; the pad (at least 1e-5 m, even at the
+        // origin) keeps it finite.
+        let x0 = f32::MIN_POSITIVE as f64 / (1.0 - 4.0 * f32::EPSILON as f64);
+        let faces = vec![Face {
+            corners: [
+                Point3::new(x0, 10.0, -1.0),
+                Point3::new(x0, 10.0, 1.0),
+                Point3::new(1.0, 10.0, 0.0),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        }];
+        let bvh = Bvh::new(&faces);
+        assert_eq!(bvh.nodes[0].lo[0], 0.0, "the case asked about");
+        let (origin, direction) = (Point3::origin(), Vector3::new(2e-39, 1.0, 0.0));
+        assert!((1.0 / direction.x) as f32 == f32::INFINITY);
+        let hit = ray_hits_triangle(&origin, &direction, &faces[0].corners);
+        assert!(hit.is_some_and(|t| (t - 10.0).abs() < 1e-12), "{hit:?}");
+        assert_eq!(
+            bvh.first_hit(&faces, &origin, &direction, 20.0, |_, _| true),
+            Some(0)
+        );
     }
 
     /// `n` faces along the x axis split lopsidedly `levels` times over (see below), each

@@ -866,9 +866,65 @@ mod tests {
         for index in 0..faces.len() as u32 {
             every.enter(&faces, index, &view);
         }
-        assert!(culled.depth == every.depth);
+        assert!(culled.depth == every.depth && culled.face == every.face);
         let covered = culled.depth.iter().filter(|d| d.is_finite()).count();
         assert!(covered > culled.depth.len() / 10, "{covered}");
+    }
+
+    #[test]
+    fn a_map_filled_on_two_cores_is_the_one_filled_face_by_face() {
+        // Four walls 10 m round the eye (north, south, east, west; 20 m long, 2 m below to
+        // 3 m above it, each two triangles) and 224 x 224 small triangles 30 m below, spread
+        // evenly either side of the eye: 50,184 faces, enough for the two halves of the
+        // hierarchy to be filled on cores of their own where there are two. The halves
+        // part the site down the middle, so each holds a wall the other does not, and the
+        // merged map must be the one every face entered in turn makes, depths and faces.
+        // Its size: floor(sqrt(50,184)) = 224 rounds up to 256 rows, and twice the columns.
+        let wall = |along: [f64; 2], across: [f64; 2]| {
+            // Corners at `across` +- 10 `along`, from z = -2 to 3.
+            let at = |s: f64, z: f64| [across[0] + s * along[0], across[1] + s * along[1], z];
+            [
+                face([at(-10.0, -2.0), at(10.0, -2.0), at(10.0, 3.0)]),
+                face([at(-10.0, -2.0), at(10.0, 3.0), at(-10.0, 3.0)]),
+            ]
+        };
+        let mut faces = Vec::new();
+        for (along, across) in [
+            ([1.0, 0.0], [0.0, 10.0]),
+            ([1.0, 0.0], [0.0, -10.0]),
+            ([0.0, 1.0], [10.0, 0.0]),
+            ([0.0, 1.0], [-10.0, 0.0]),
+        ] {
+            faces.extend(wall(along, across));
+        }
+        for i in 0..224 {
+            for j in 0..224 {
+                let (x, y) = (
+                    -200.0 + (i as f64 + 0.5) * 400.0 / 224.0,
+                    -200.0 + (j as f64 + 0.5) * 400.0 / 224.0,
+                );
+                faces.push(face([
+                    [x, y, -30.0],
+                    [x + 0.5, y, -30.0],
+                    [x, y + 0.5, -30.0],
+                ]));
+            }
+        }
+        assert!(faces.len() >= FACES_FOR_THREADS);
+        let view = level_view();
+        let map = OcclusionMap::new(&faces, &Bvh::new(&faces), &view);
+        assert_eq!(map.size(), (256, 512));
+        let mut every = OcclusionMap::empty(256, 512);
+        for index in 0..faces.len() as u32 {
+            every.enter(&faces, index, &view);
+        }
+        assert!(map.depth == every.depth && map.face == every.face);
+        // Each wall covers the cell straight towards it, at a little over 10 m.
+        for direction in [Vector3::y(), -Vector3::y(), Vector3::x(), -Vector3::x()] {
+            let (row, column) = map.cell_of(&direction);
+            let depth = map.depth[row * map.columns + column] as f64;
+            assert!((10.0..10.1).contains(&depth), "{direction:?}: {depth}");
+        }
     }
 
     #[test]
