@@ -633,7 +633,9 @@ fn ray_meets_box(
     for k in 0..3 {
         let a = (lo[k] - pad - o[k]) * inverse[k];
         let b = (hi[k] + pad - o[k]) * inverse[k];
-        // NaN (a ray parallel to a face of the box, starting on it) keeps the old bounds.
+        // A NaN (0 x infinity: a ray parallel to a face of the box, starting on its padded
+        // side) keeps the old bounds, or, beside an infinity that the swap makes `a`, turns
+        // the box away. Either is right: such a ray runs outside the true box.
         let (a, b) = if a <= b { (a, b) } else { (b, a) };
         if a > near {
             near = a;
