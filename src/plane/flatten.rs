@@ -868,6 +868,142 @@ mod tests {
         assert!(pieces[1].iter().all(|p| p.x == 4096.0));
     }
 
+    /// The true image of a direction, by the mapping written out here (the crate's
+    /// convention, Snyder 1987 eq. 12-1 and 12-2 scaled to pixels): azimuth `atan2(x, y)`
+    /// clockwise from straight ahead, elevation `atan2(z, hypot(x, y))`,
+    /// `x = (r + pi) / 2 pi * W`, `y = (pi/2 - e) / pi * H`.
+    fn true_image(d: &Vector3<f64>) -> ImagePoint {
+        let (r, e) = (d.x.atan2(d.y), d.z.atan2(d.x.hypot(d.y)));
+        ImagePoint::new((r + PI) / TAU * 4096.0, (PI / 2.0 - e) / PI * 2048.0)
+    }
+
+    /// The distance from `p` to the nearest stroke, counting the seam as one line (a point
+    /// on one border is the same direction as on the other).
+    fn distance_to_drawing(p: ImagePoint, lines: &[Vec<ImagePoint>]) -> f64 {
+        let mut nearest = f64::INFINITY;
+        for shift in [0.0, 4096.0, -4096.0] {
+            let q = ImagePoint::new(p.x + shift, p.y);
+            for line in lines {
+                if line.len() == 1 {
+                    nearest = nearest.min((line[0].x - q.x).hypot(line[0].y - q.y));
+                }
+                for w in line.windows(2) {
+                    nearest = nearest.min(distance_to_chord(w[0], w[1], q));
+                }
+            }
+        }
+        nearest
+    }
+
+    /// Checks the drawing of `curve` at the default tolerance against the definition of the
+    /// tolerance (the crate docs: the largest distance between the true image and the
+    /// polyline): every one of 3,000 points of the true image lies within 0.1 px of a stroke,
+    /// but those within half the tolerance of a pole (drawn as the border row); no stroke
+    /// runs across a quarter of the image or off it. Returns the drawing.
+    fn drawn_within_tolerance(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
+        let drawn = lines(curve);
+        let band = 0.5 * DEFAULT_TOLERANCE_PX * PI / 2048.0;
+        for i in 0..=3000 {
+            let t = curve.t0 + (curve.t1 - curve.t0) * i as f64 / 3000.0;
+            let d = curve.position(t);
+            if d.x.hypot(d.y).atan2(d.z.abs()) < band * 1.0001 {
+                continue;
+            }
+            let p = true_image(&d);
+            let off = distance_to_drawing(p, &drawn);
+            assert!(
+                off <= DEFAULT_TOLERANCE_PX * 1.0001 + 1e-9,
+                "t = {t}: {p:?} is {off} px from the drawing {drawn:?}"
+            );
+        }
+        for line in &drawn {
+            for w in line.windows(2) {
+                assert!((w[1].x - w[0].x).abs() <= 1024.0, "{w:?}");
+            }
+            for p in line {
+                assert!((0.0..=4096.0).contains(&p.x) && (0.0..=2048.0).contains(&p.y));
+            }
+        }
+        drawn
+    }
+
+    #[test]
+    fn great_arcs_anywhere_stay_within_the_tolerance() {
+        let arcs = [
+            // Long, ahead, rising from below the eye to well above it.
+            ([-5.0, 2.0, -1.0], [4.0, 3.0, 6.0]),
+            // Across the seam behind the viewer.
+            ([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5]),
+            // Past the zenith 0.02 rad off (13 px below the top row), and the nadir 0.1 off.
+            ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0]),
+            ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0]),
+            // Through the zenith.
+            ([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0]),
+            // Ending in the zenith's pole band, and starting in the nadir's.
+            ([1.0, 2.0, 0.5], [1e-6, 0.0, 1.0]),
+            ([0.0, 1e-6, -1.0], [-3.0, 1.0, 0.2]),
+            // Short, away from the poles; and short near one.
+            ([1.0, 10.0, 1.0], [1.2, 10.0, 1.1]),
+            ([0.5, 0.2, 10.0], [0.6, -0.1, 10.0]),
+            // Along the seam, from the ground up.
+            ([0.0, -4.0, -1.6], [0.0, -4.0, 3.0]),
+        ];
+        for (a, b) in arcs {
+            drawn_within_tolerance(&arc(a, b));
+        }
+    }
+
+    #[test]
+    fn rings_and_ellipses_stay_within_the_tolerance() {
+        let v = Vector3::new;
+        let curves = [
+            // A level ring round the eye, 2 m up, 5 m across: a straight row at elevation
+            // atan(2 / 5), cut at the seam.
+            SphereCurve::ellipse_arc(
+                v(0.0, 0.0, 2.0),
+                v(5.0, 0.0, 0.0),
+                v(0.0, 5.0, 0.0),
+                0.0,
+                TAU,
+            ),
+            // A ring in a vertical plane through the eye, seen edge-on: it runs up and back
+            // down the same column.
+            SphereCurve::ellipse_arc(
+                v(0.0, 10.0, 0.0),
+                v(0.0, 3.0, 0.0),
+                v(0.0, 0.0, 3.0),
+                0.0,
+                TAU,
+            ),
+            // A ring overhead round the zenith: a wave along the top of the image.
+            SphereCurve::ellipse_arc(
+                v(1.0, 1.0, 10.0),
+                v(2.0, 0.0, 0.0),
+                v(0.0, 2.0, 0.0),
+                0.0,
+                TAU,
+            ),
+            // Oblique, and part of one backwards.
+            SphereCurve::ellipse_arc(
+                v(1.0, 4.0, 2.0),
+                v(2.0, 0.5, 0.0),
+                v(0.0, 1.0, 1.5),
+                0.0,
+                TAU,
+            ),
+            SphereCurve::ellipse_arc(
+                v(-3.0, -4.0, -1.0),
+                v(1.0, 0.0, 0.5),
+                v(0.0, 2.0, 0.0),
+                1.0,
+                -4.0,
+            ),
+        ];
+        for curve in &curves {
+            drawn_within_tolerance(curve);
+        }
+    }
+
     #[test]
     fn every_vertex_lies_on_the_curve() {
         let curve = arc([5.0, 2.0, -1.0], [-3.0, 6.0, 4.0]);
