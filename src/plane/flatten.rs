@@ -927,81 +927,159 @@ mod tests {
         drawn
     }
 
+    /// The direction of an image point, by the inverse of `true_image`.
+    fn direction_of(p: ImagePoint) -> Vector3<f64> {
+        let (r, e) = (p.x / 4096.0 * TAU - PI, PI / 2.0 - p.y / 2048.0 * PI);
+        Vector3::new(e.cos() * r.sin(), e.cos() * r.cos(), e.sin())
+    }
+
     #[test]
     fn great_arcs_anywhere_stay_within_the_tolerance() {
+        // Each with the polylines it must make: one, and one more for each seam crossing
+        // and each pass through a pole band (worked from where the ends lie: two ends
+        // ahead, y > 0, or both on one side, x of one sign, cannot cross the seam).
         let arcs = [
             // Long, ahead, rising from below the eye to well above it.
-            ([-5.0, 2.0, -1.0], [4.0, 3.0, 6.0]),
+            ([-5.0, 2.0, -1.0], [4.0, 3.0, 6.0], 1),
             // Across the seam behind the viewer.
-            ([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5]),
+            ([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5], 2),
             // Past the zenith 0.02 rad off (13 px below the top row), and the nadir 0.1 off.
-            ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0]),
-            ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0]),
+            ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0], 1),
+            ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0], 1),
             // Through the zenith.
-            ([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0]),
+            ([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0], 2),
             // Ending in the zenith's pole band, and starting in the nadir's.
-            ([1.0, 2.0, 0.5], [1e-6, 0.0, 1.0]),
-            ([0.0, 1e-6, -1.0], [-3.0, 1.0, 0.2]),
+            ([1.0, 2.0, 0.5], [1e-6, 0.0, 1.0], 1),
+            ([0.0, 1e-6, -1.0], [-3.0, 1.0, 0.2], 1),
             // Short, away from the poles; and short near one.
-            ([1.0, 10.0, 1.0], [1.2, 10.0, 1.1]),
-            ([0.5, 0.2, 10.0], [0.6, -0.1, 10.0]),
-            // Along the seam, from the ground up.
-            ([0.0, -4.0, -1.6], [0.0, -4.0, 3.0]),
+            ([1.0, 10.0, 1.0], [1.2, 10.0, 1.1], 1),
+            ([0.5, 0.2, 10.0], [0.6, -0.1, 10.0], 1),
+            // Along the seam, from the ground up: drawn on both borders.
+            ([0.0, -4.0, -1.6], [0.0, -4.0, 3.0], 2),
         ];
-        for (a, b) in arcs {
-            drawn_within_tolerance(&arc(a, b));
+        let band = 0.5 * DEFAULT_TOLERANCE_PX * PI / 2048.0;
+        for (a, b, count) in arcs {
+            let curve = arc(a, b);
+            let drawn = drawn_within_tolerance(&curve);
+            assert_eq!(drawn.len(), count, "{a:?} {b:?}: {drawn:?}");
+            // The drawing starts and ends at the ends' images (on either border, or on the
+            // border row for an end in a pole band).
+            let (a, b) = (Vector3::from(a), Vector3::from(b));
+            let (first, last) = (drawn[0][0], *drawn[count - 1].last().unwrap());
+            for (end, p) in [(a, first), (b, last)] {
+                if end.x.hypot(end.y).atan2(end.z.abs()) < band {
+                    assert_eq!(p.y, if end.z > 0.0 { 0.0 } else { 2048.0 });
+                } else {
+                    let q = true_image(&end);
+                    let dx = (q.x - p.x).abs();
+                    assert!(dx.min((dx - 4096.0).abs()) < 1e-9 && (q.y - p.y).abs() < 1e-9);
+                }
+            }
+            // And runs along the arc from a to b, never back: the angle from a of each
+            // vertex's direction, in the arc's plane, grows (a vertex on the border row
+            // stands for the pole band's edge, within the band of the arc).
+            let (u, normal) = (a.normalize(), a.cross(&b).normalize());
+            let v = normal.cross(&u);
+            // (An arc along the seam is drawn twice, once on each border.)
+            let mut before = -1e-9;
+            for p in drawn.iter().flatten() {
+                if a.x == 0.0 && b.x == 0.0 && p.x == 4096.0 && p == &drawn[1][0] {
+                    before = -1e-9;
+                }
+                let d = direction_of(*p);
+                let along = d.dot(&v).atan2(d.dot(&u));
+                let slack = if p.y == 0.0 || p.y == 2048.0 {
+                    band
+                } else {
+                    1e-9
+                };
+                assert!(along >= before - slack, "{p:?}: {along} after {before}");
+                before = before.max(along);
+            }
         }
     }
 
     #[test]
     fn rings_and_ellipses_stay_within_the_tolerance() {
         let v = Vector3::new;
+        // Each with the polylines it must make (from where its points lie).
         let curves = [
             // A level ring round the eye, 2 m up, 5 m across: a straight row at elevation
-            // atan(2 / 5), cut at the seam.
-            SphereCurve::ellipse_arc(
-                v(0.0, 0.0, 2.0),
-                v(5.0, 0.0, 0.0),
-                v(0.0, 5.0, 0.0),
-                0.0,
-                TAU,
+            // atan(2 / 5), cut once at the seam.
+            (
+                SphereCurve::ellipse_arc(
+                    v(0.0, 0.0, 2.0),
+                    v(5.0, 0.0, 0.0),
+                    v(0.0, 5.0, 0.0),
+                    0.0,
+                    TAU,
+                ),
+                2,
             ),
-            // A ring in a vertical plane through the eye, seen edge-on: it runs up and back
-            // down the same column.
-            SphereCurve::ellipse_arc(
-                v(0.0, 10.0, 0.0),
-                v(0.0, 3.0, 0.0),
-                v(0.0, 0.0, 3.0),
-                0.0,
-                TAU,
+            // A ring in the vertical plane x = 0 ahead (y from 7 to 13), seen edge-on: it
+            // runs up and back down the middle column.
+            (
+                SphereCurve::ellipse_arc(
+                    v(0.0, 10.0, 0.0),
+                    v(0.0, 3.0, 0.0),
+                    v(0.0, 0.0, 3.0),
+                    0.0,
+                    TAU,
+                ),
+                1,
             ),
-            // A ring overhead round the zenith: a wave along the top of the image.
-            SphereCurve::ellipse_arc(
-                v(1.0, 1.0, 10.0),
-                v(2.0, 0.0, 0.0),
-                v(0.0, 2.0, 0.0),
-                0.0,
-                TAU,
+            // A ring overhead round the zenith (no nearer than 0.59 m to the vertical at 10 m
+            // up): a wave along the top of the image, cut once at the seam.
+            (
+                SphereCurve::ellipse_arc(
+                    v(1.0, 1.0, 10.0),
+                    v(2.0, 0.0, 0.0),
+                    v(0.0, 2.0, 0.0),
+                    0.0,
+                    TAU,
+                ),
+                2,
             ),
-            // Oblique, and part of one backwards.
-            SphereCurve::ellipse_arc(
-                v(1.0, 4.0, 2.0),
-                v(2.0, 0.5, 0.0),
-                v(0.0, 1.0, 1.5),
-                0.0,
-                TAU,
+            // Oblique, all ahead (y = 4 + 0.5 cos t + sin t > 0), and part of one backwards
+            // all to the left (x = -3 + cos t < 0).
+            (
+                SphereCurve::ellipse_arc(
+                    v(1.0, 4.0, 2.0),
+                    v(2.0, 0.5, 0.0),
+                    v(0.0, 1.0, 1.5),
+                    0.0,
+                    TAU,
+                ),
+                1,
             ),
-            SphereCurve::ellipse_arc(
-                v(-3.0, -4.0, -1.0),
-                v(1.0, 0.0, 0.5),
-                v(0.0, 2.0, 0.0),
-                1.0,
-                -4.0,
+            (
+                SphereCurve::ellipse_arc(
+                    v(-3.0, -4.0, -1.0),
+                    v(1.0, 0.0, 0.5),
+                    v(0.0, 2.0, 0.0),
+                    1.0,
+                    -4.0,
+                ),
+                1,
             ),
         ];
-        for curve in &curves {
-            drawn_within_tolerance(curve);
+        for (curve, count) in &curves {
+            let drawn = drawn_within_tolerance(curve);
+            assert_eq!(drawn.len(), *count, "{curve:?}: {drawn:?}");
         }
+        // The level ring is a straight row at elevation atan(2 / 5) from border to border.
+        let row = (PI / 2.0 - (2.0f64 / 5.0).atan()) / PI * 2048.0;
+        let ring = lines(&curves[0].0);
+        assert!(ring.iter().flatten().all(|p| (p.y - row).abs() < 1e-9));
+        let ends = [
+            ring[0][0].x,
+            ring[0].last().unwrap().x,
+            ring[1][0].x,
+            ring[1].last().unwrap().x,
+        ];
+        // It starts due right (t = 0 at (5, 0, 2): x = 3072), runs left to the seam on
+        // the left border, and on from the right border back to its start.
+        assert_eq!(ends, [3072.0, 0.0, 4096.0, 3072.0]);
     }
 
     #[test]
