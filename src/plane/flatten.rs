@@ -946,6 +946,9 @@ mod tests {
             // Past the zenith 0.02 rad off (13 px below the top row), and the nadir 0.1 off.
             ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0], 1),
             ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0], 1),
+            // Past the zenith 5e-4 rad off: 0.33 px below the top row, outside the pole band
+            // (0.05 px), so drawn below the row, not on it.
+            ([5e-4, 1.0, 1.0], [5e-4, -1.0, 1.0], 1),
             // Through the zenith.
             ([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0], 2),
             // Ending in the zenith's pole band, and starting in the nadir's.
@@ -1080,6 +1083,38 @@ mod tests {
         // It starts due right (t = 0 at (5, 0, 2): x = 3072), runs left to the seam on
         // the left border, and on from the right border back to its start.
         assert_eq!(ends, [3072.0, 0.0, 4096.0, 3072.0]);
+    }
+
+    #[test]
+    fn an_end_straight_behind_lies_on_the_border_its_edge_comes_from() {
+        // Level edges (on the horizon row, y = 1024) with one end exactly behind the eye,
+        // where atan2 gives +pi or -pi by the sign of a zero x: the end must be drawn on the
+        // border on the edge's own side, the left (x = 0) for an edge on the left
+        // (azimuth atan2(-4, -3) = -126.9 degrees, x = 604.5), the right (x = 4096) for one
+        // on the right, whichever the zero's sign.
+        let left = (PI + (-4f64).atan2(-3.0)) / TAU * 4096.0;
+        let right = 4096.0 - left;
+        let cases = [
+            ([-4.0, -3.0, 0.0], [0.0, -5.0, 0.0], (left, 0.0)),
+            ([-4.0, -3.0, 0.0], [-0.0, -5.0, 0.0], (left, 0.0)),
+            ([4.0, -3.0, 0.0], [0.0, -5.0, 0.0], (right, 4096.0)),
+            ([4.0, -3.0, 0.0], [-0.0, -5.0, 0.0], (right, 4096.0)),
+            ([0.0, -5.0, 0.0], [-4.0, -3.0, 0.0], (0.0, left)),
+            ([-0.0, -5.0, 0.0], [-4.0, -3.0, 0.0], (0.0, left)),
+            ([0.0, -5.0, 0.0], [4.0, -3.0, 0.0], (4096.0, right)),
+            ([-0.0, -5.0, 0.0], [4.0, -3.0, 0.0], (4096.0, right)),
+        ];
+        for (a, b, (first, last)) in cases {
+            let drawn = lines(&arc(a, b));
+            assert_eq!(drawn.len(), 1, "{a:?} {b:?}: {drawn:?}");
+            let line = &drawn[0];
+            assert!(line.iter().all(|p| (p.y - 1024.0).abs() < 1e-9), "{line:?}");
+            let ends = (line[0].x, line.last().unwrap().x);
+            assert!(
+                (ends.0 - first).abs() < 1e-9 && (ends.1 - last).abs() < 1e-9,
+                "{a:?} {b:?}: {ends:?}"
+            );
+        }
     }
 
     #[test]
