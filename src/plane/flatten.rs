@@ -1118,6 +1118,28 @@ mod tests {
     }
 
     #[test]
+    fn consecutive_edges_meet_at_the_same_point_exactly() {
+        // Edges of a polyline share their ends: the image of a shared end must be the same
+        // bit for bit whichever edge draws it, however long the edge (these are 95 to 150
+        // degrees, cut into three or four equal parts before refining), so a wireframe's
+        // strokes join without a hair's gap.
+        let corners = [
+            [-1.0, 0.1, 0.0],
+            [1.0, 0.3, 0.5],
+            [-0.8, 0.2, 0.9],
+            [0.9, 0.5, -0.7],
+            [-1.0, 0.4, -0.2],
+            [0.7, 0.1, 0.3],
+        ];
+        for w in corners.windows(3) {
+            let first = lines(&arc(w[0], w[1]));
+            let second = lines(&arc(w[1], w[2]));
+            assert_eq!((first.len(), second.len()), (1, 1), "{w:?}");
+            assert_eq!(first[0].last().unwrap(), &second[0][0], "{w:?}");
+        }
+    }
+
+    #[test]
     fn every_vertex_lies_on_the_curve() {
         let curve = arc([5.0, 2.0, -1.0], [-3.0, 6.0, 4.0]);
         let normal = curve.u.cross(&curve.v);
