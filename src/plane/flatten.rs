@@ -868,6 +868,277 @@ mod tests {
         assert!(pieces[1].iter().all(|p| p.x == 4096.0));
     }
 
+    /// The true image of a direction, by the mapping written out here (the crate's
+    /// convention, Snyder 1987 eq. 12-1 and 12-2 scaled to pixels): azimuth `atan2(x, y)`
+    /// clockwise from straight ahead, elevation `atan2(z, hypot(x, y))`,
+    /// `x = (r + pi) / 2 pi * W`, `y = (pi/2 - e) / pi * H`.
+    fn true_image(d: &Vector3<f64>) -> ImagePoint {
+        let (r, e) = (d.x.atan2(d.y), d.z.atan2(d.x.hypot(d.y)));
+        ImagePoint::new((r + PI) / TAU * 4096.0, (PI / 2.0 - e) / PI * 2048.0)
+    }
+
+    /// The distance from `p` to the nearest stroke, counting the seam as one line (a point
+    /// on one border is the same direction as on the other).
+    fn distance_to_drawing(p: ImagePoint, lines: &[Vec<ImagePoint>]) -> f64 {
+        let mut nearest = f64::INFINITY;
+        for shift in [0.0, 4096.0, -4096.0] {
+            let q = ImagePoint::new(p.x + shift, p.y);
+            for line in lines {
+                if line.len() == 1 {
+                    nearest = nearest.min((line[0].x - q.x).hypot(line[0].y - q.y));
+                }
+                for w in line.windows(2) {
+                    nearest = nearest.min(distance_to_chord(w[0], w[1], q));
+                }
+            }
+        }
+        nearest
+    }
+
+    /// Checks the drawing of `curve` at the default tolerance against the definition of the
+    /// tolerance (the crate docs: the largest distance between the true image and the
+    /// polyline): every one of 3,000 points of the true image lies within 0.1 px of a stroke,
+    /// but those within half the tolerance of a pole (drawn as the border row); no stroke
+    /// runs across a quarter of the image or off it. Returns the drawing.
+    fn drawn_within_tolerance(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
+        let drawn = lines(curve);
+        let band = 0.5 * DEFAULT_TOLERANCE_PX * PI / 2048.0;
+        for i in 0..=3000 {
+            let t = curve.t0 + (curve.t1 - curve.t0) * i as f64 / 3000.0;
+            let d = curve.position(t);
+            if d.x.hypot(d.y).atan2(d.z.abs()) < band * 1.0001 {
+                continue;
+            }
+            let p = true_image(&d);
+            let off = distance_to_drawing(p, &drawn);
+            assert!(
+                off <= DEFAULT_TOLERANCE_PX * 1.0001 + 1e-9,
+                "t = {t}: {p:?} is {off} px from the drawing {drawn:?}"
+            );
+        }
+        for line in &drawn {
+            for w in line.windows(2) {
+                assert!((w[1].x - w[0].x).abs() <= 1024.0, "{w:?}");
+            }
+            for p in line {
+                assert!((0.0..=4096.0).contains(&p.x) && (0.0..=2048.0).contains(&p.y));
+            }
+        }
+        drawn
+    }
+
+    /// The direction of an image point, by the inverse of `true_image`.
+    fn direction_of(p: ImagePoint) -> Vector3<f64> {
+        let (r, e) = (p.x / 4096.0 * TAU - PI, PI / 2.0 - p.y / 2048.0 * PI);
+        Vector3::new(e.cos() * r.sin(), e.cos() * r.cos(), e.sin())
+    }
+
+    #[test]
+    fn great_arcs_anywhere_stay_within_the_tolerance() {
+        // Each with the polylines it must make: one, and one more for each seam crossing
+        // and each pass through a pole band (worked from where the ends lie: two ends
+        // ahead, y > 0, or both on one side, x of one sign, cannot cross the seam).
+        let arcs = [
+            // Long, ahead, rising from below the eye to well above it.
+            ([-5.0, 2.0, -1.0], [4.0, 3.0, 6.0], 1),
+            // Across the seam behind the viewer.
+            ([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5], 2),
+            // Past the zenith 0.02 rad off (13 px below the top row), and the nadir 0.1 off.
+            ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0], 1),
+            ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0], 1),
+            // Past the zenith 5e-4 rad off: 0.33 px below the top row, outside the pole band
+            // (0.05 px), so drawn below the row, not on it.
+            ([5e-4, 1.0, 1.0], [5e-4, -1.0, 1.0], 1),
+            // Through the zenith.
+            ([1.0, 1.0, 1.0], [-1.0, -1.0, 1.0], 2),
+            // Ending in the zenith's pole band, and starting in the nadir's.
+            ([1.0, 2.0, 0.5], [1e-6, 0.0, 1.0], 1),
+            ([0.0, 1e-6, -1.0], [-3.0, 1.0, 0.2], 1),
+            // Short, away from the poles; and short near one.
+            ([1.0, 10.0, 1.0], [1.2, 10.0, 1.1], 1),
+            ([0.5, 0.2, 10.0], [0.6, -0.1, 10.0], 1),
+            // Along the seam, from the ground up: drawn on both borders.
+            ([0.0, -4.0, -1.6], [0.0, -4.0, 3.0], 2),
+        ];
+        let band = 0.5 * DEFAULT_TOLERANCE_PX * PI / 2048.0;
+        for (a, b, count) in arcs {
+            let curve = arc(a, b);
+            let drawn = drawn_within_tolerance(&curve);
+            assert_eq!(drawn.len(), count, "{a:?} {b:?}: {drawn:?}");
+            // The drawing starts and ends at the ends' images (on either border, or on the
+            // border row for an end in a pole band).
+            let (a, b) = (Vector3::from(a), Vector3::from(b));
+            let (first, last) = (drawn[0][0], *drawn[count - 1].last().unwrap());
+            for (end, p) in [(a, first), (b, last)] {
+                if end.x.hypot(end.y).atan2(end.z.abs()) < band {
+                    assert_eq!(p.y, if end.z > 0.0 { 0.0 } else { 2048.0 });
+                } else {
+                    let q = true_image(&end);
+                    let dx = (q.x - p.x).abs();
+                    assert!(dx.min((dx - 4096.0).abs()) < 1e-9 && (q.y - p.y).abs() < 1e-9);
+                }
+            }
+            // And runs along the arc from a to b, never back: the angle from a of each
+            // vertex's direction, in the arc's plane, grows (a vertex on the border row
+            // stands for the pole band's edge, within the band of the arc).
+            let (u, normal) = (a.normalize(), a.cross(&b).normalize());
+            let v = normal.cross(&u);
+            // (An arc along the seam is drawn twice, once on each border.)
+            let mut before = -1e-9;
+            for p in drawn.iter().flatten() {
+                if a.x == 0.0 && b.x == 0.0 && p.x == 4096.0 && p == &drawn[1][0] {
+                    before = -1e-9;
+                }
+                let d = direction_of(*p);
+                let along = d.dot(&v).atan2(d.dot(&u));
+                let slack = if p.y == 0.0 || p.y == 2048.0 {
+                    band
+                } else {
+                    1e-9
+                };
+                assert!(along >= before - slack, "{p:?}: {along} after {before}");
+                before = before.max(along);
+            }
+        }
+    }
+
+    #[test]
+    fn rings_and_ellipses_stay_within_the_tolerance() {
+        let v = Vector3::new;
+        // Each with the polylines it must make (from where its points lie).
+        let curves = [
+            // A level ring round the eye, 2 m up, 5 m across: a straight row at elevation
+            // atan(2 / 5), cut once at the seam.
+            (
+                SphereCurve::ellipse_arc(
+                    v(0.0, 0.0, 2.0),
+                    v(5.0, 0.0, 0.0),
+                    v(0.0, 5.0, 0.0),
+                    0.0,
+                    TAU,
+                ),
+                2,
+            ),
+            // A ring in the vertical plane x = 0 ahead (y from 7 to 13), seen edge-on: it
+            // runs up and back down the middle column.
+            (
+                SphereCurve::ellipse_arc(
+                    v(0.0, 10.0, 0.0),
+                    v(0.0, 3.0, 0.0),
+                    v(0.0, 0.0, 3.0),
+                    0.0,
+                    TAU,
+                ),
+                1,
+            ),
+            // A ring overhead round the zenith (no nearer than 0.59 m to the vertical at 10 m
+            // up): a wave along the top of the image, cut once at the seam.
+            (
+                SphereCurve::ellipse_arc(
+                    v(1.0, 1.0, 10.0),
+                    v(2.0, 0.0, 0.0),
+                    v(0.0, 2.0, 0.0),
+                    0.0,
+                    TAU,
+                ),
+                2,
+            ),
+            // Oblique, all ahead (y = 4 + 0.5 cos t + sin t > 0), and part of one backwards
+            // all to the left (x = -3 + cos t < 0).
+            (
+                SphereCurve::ellipse_arc(
+                    v(1.0, 4.0, 2.0),
+                    v(2.0, 0.5, 0.0),
+                    v(0.0, 1.0, 1.5),
+                    0.0,
+                    TAU,
+                ),
+                1,
+            ),
+            (
+                SphereCurve::ellipse_arc(
+                    v(-3.0, -4.0, -1.0),
+                    v(1.0, 0.0, 0.5),
+                    v(0.0, 2.0, 0.0),
+                    1.0,
+                    -4.0,
+                ),
+                1,
+            ),
+        ];
+        for (curve, count) in &curves {
+            let drawn = drawn_within_tolerance(curve);
+            assert_eq!(drawn.len(), *count, "{curve:?}: {drawn:?}");
+        }
+        // The level ring is a straight row at elevation atan(2 / 5) from border to border.
+        let row = (PI / 2.0 - (2.0f64 / 5.0).atan()) / PI * 2048.0;
+        let ring = lines(&curves[0].0);
+        assert!(ring.iter().flatten().all(|p| (p.y - row).abs() < 1e-9));
+        let ends = [
+            ring[0][0].x,
+            ring[0].last().unwrap().x,
+            ring[1][0].x,
+            ring[1].last().unwrap().x,
+        ];
+        // It starts due right (t = 0 at (5, 0, 2): x = 3072), runs left to the seam on
+        // the left border, and on from the right border back to its start.
+        assert_eq!(ends, [3072.0, 0.0, 4096.0, 3072.0]);
+    }
+
+    #[test]
+    fn an_end_straight_behind_lies_on_the_border_its_edge_comes_from() {
+        // Level edges (on the horizon row, y = 1024) with one end exactly behind the eye,
+        // where atan2 gives +pi or -pi by the sign of a zero x: the end must be drawn on the
+        // border on the edge's own side, the left (x = 0) for an edge on the left
+        // (azimuth atan2(-4, -3) = -126.9 degrees, x = 604.5), the right (x = 4096) for one
+        // on the right, whichever the zero's sign.
+        let left = (PI + (-4f64).atan2(-3.0)) / TAU * 4096.0;
+        let right = 4096.0 - left;
+        let cases = [
+            ([-4.0, -3.0, 0.0], [0.0, -5.0, 0.0], (left, 0.0)),
+            ([-4.0, -3.0, 0.0], [-0.0, -5.0, 0.0], (left, 0.0)),
+            ([4.0, -3.0, 0.0], [0.0, -5.0, 0.0], (right, 4096.0)),
+            ([4.0, -3.0, 0.0], [-0.0, -5.0, 0.0], (right, 4096.0)),
+            ([0.0, -5.0, 0.0], [-4.0, -3.0, 0.0], (0.0, left)),
+            ([-0.0, -5.0, 0.0], [-4.0, -3.0, 0.0], (0.0, left)),
+            ([0.0, -5.0, 0.0], [4.0, -3.0, 0.0], (4096.0, right)),
+            ([-0.0, -5.0, 0.0], [4.0, -3.0, 0.0], (4096.0, right)),
+        ];
+        for (a, b, (first, last)) in cases {
+            let drawn = lines(&arc(a, b));
+            assert_eq!(drawn.len(), 1, "{a:?} {b:?}: {drawn:?}");
+            let line = &drawn[0];
+            assert!(line.iter().all(|p| (p.y - 1024.0).abs() < 1e-9), "{line:?}");
+            let ends = (line[0].x, line.last().unwrap().x);
+            assert!(
+                (ends.0 - first).abs() < 1e-9 && (ends.1 - last).abs() < 1e-9,
+                "{a:?} {b:?}: {ends:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn consecutive_edges_meet_at_the_same_point_exactly() {
+        // Edges of a polyline share their ends: the image of a shared end must be the same
+        // bit for bit whichever edge draws it, however long the edge (these are 95 to 150
+        // degrees, cut into three or four equal parts before refining), so a wireframe's
+        // strokes join without a hair's gap.
+        let corners = [
+            [-1.0, 0.1, 0.0],
+            [1.0, 0.3, 0.5],
+            [-0.8, 0.2, 0.9],
+            [0.9, 0.5, -0.7],
+            [-1.0, 0.4, -0.2],
+            [0.7, 0.1, 0.3],
+        ];
+        for w in corners.windows(3) {
+            let first = lines(&arc(w[0], w[1]));
+            let second = lines(&arc(w[1], w[2]));
+            assert_eq!((first.len(), second.len()), (1, 1), "{w:?}");
+            assert_eq!(first[0].last().unwrap(), &second[0][0], "{w:?}");
+        }
+    }
+
     #[test]
     fn every_vertex_lies_on_the_curve() {
         let curve = arc([5.0, 2.0, -1.0], [-3.0, 6.0, 4.0]);
