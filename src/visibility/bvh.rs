@@ -995,15 +995,15 @@ mod tests {
                     count: 1,
                 };
                 let normal = Vector3::new(next() - 0.5, next() - 0.5, next() - 0.5);
-                let pick = |corner: usize, k: usize| {
-                    if corner >> k & 1 == 1 {
-                        hi[k] as f64
+                // Corner `k % 8`: bit `axis` of it picks that axis's high side.
+                let pick = |axis: usize| {
+                    if (k % 8) >> axis & 1 == 1 {
+                        hi[axis] as f64
                     } else {
-                        lo[k] as f64
+                        lo[axis] as f64
                     }
                 };
-                let corner = (k % 8) as usize;
-                let at = Vector3::new(pick(corner, 0), pick(corner, 1), pick(corner, 2));
+                let at = Vector3::new(pick(0), pick(1), pick(2));
                 assert!(
                     box_meets_plane(&node, &normal, normal.dot(&at)),
                     "{out} m out, case {k}"
