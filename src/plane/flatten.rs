@@ -1122,6 +1122,32 @@ mod tests {
     }
 
     #[test]
+    fn a_long_stretch_to_the_seam_is_cut_in_parts_before_it_is_unwrapped() {
+        // An ellipse passing 1.45 m from the eye (its points worked in the test's own
+        // terms: azimuth atan2(x, y), elevation atan2(z, hypot(x, y))): it starts below on
+        // the left (azimuth -75.9 degrees, elevation -42.8), swings up over the front and
+        // the right (87.9 degrees, 55.5 up at t = -4) and round behind, meets the seam at
+        // t = -1.901 and ends behind on the left (-155.0 degrees). Its first stretch, to the
+        // seam, is 3.7 radians of parameter; a piece that ends on the seam is unwrapped
+        // against the azimuth at its middle, which for that whole stretch is 109.9 degrees,
+        // more than half a turn (185.8 degrees) from the start's: drawn as one piece, its
+        // start would land beyond the right border. In parts of at most a quarter of pi,
+        // the part that ends on the seam lies within half a turn of its own middle.
+        let curve = SphereCurve::ellipse_arc(
+            Vector3::new(-1.3, -2.1, -1.3),
+            Vector3::new(-4.3, 1.1, -4.6),
+            Vector3::new(0.1, 3.8, 0.8),
+            -5.6,
+            4.3,
+        );
+        let drawn = drawn_within_tolerance(&curve);
+        // Two polylines: start to the seam's right border, left border to the end.
+        assert_eq!(drawn.len(), 2, "{drawn:?}");
+        assert_eq!(drawn[0].last().unwrap().x, 4096.0);
+        assert_eq!(drawn[1][0].x, 0.0);
+    }
+
+    #[test]
     fn consecutive_edges_meet_at_the_same_point_exactly() {
         // Edges of a polyline share their ends: the image of a shared end must be the same
         // bit for bit whichever edge draws it, however long the edge (these are 95 to 150
