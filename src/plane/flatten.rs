@@ -68,7 +68,8 @@ pub fn check_tolerance(tolerance_px: f64) -> crate::Result<()> {
 }
 
 /// Pieces longer than this in parameter (radians of arc for great circles) are cut in equal
-/// parts first, so that no single chord test spans an inflection on both sides.
+/// parts first, so that no single chord test spans an inflection on both sides, and a piece
+/// that ends on the seam keeps near the azimuth at its middle, which it is unwrapped against.
 const MAX_PIECE_PARAMETER: f64 = FRAC_PI_4;
 
 /// A curve passing nearer than this to a pole (radians) is cut at its nearest point.
@@ -201,7 +202,9 @@ impl Flattener {
         };
         for pair in cuts.windows(2) {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
-            // Long stretches go in equal pieces so that no chord test spans too much.
+            // Long stretches go in equal pieces so that no chord test spans too much, and
+            // so that a piece ending on the seam keeps near the azimuth at its middle, which
+            // it is unwrapped against (a whole stretch can swing more than half a turn away).
             let parts = whole_parts((tb - ta) / MAX_PIECE_PARAMETER);
             for k in 0..parts {
                 let start = ta + (tb - ta) * k as f64 / parts as f64;
