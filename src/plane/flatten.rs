@@ -43,7 +43,7 @@
 use super::{Equirect, ImagePoint, PolylineSet};
 use crate::sphere::SphereCurve;
 use nalgebra::{Vector2, Vector3};
-use std::f64::consts::{FRAC_PI_4, PI, TAU};
+use std::f64::consts::{FRAC_PI_4, PI};
 
 /// The default tolerance, in output pixels.
 pub const DEFAULT_TOLERANCE_PX: f64 = 0.1;
@@ -92,6 +92,12 @@ const SHORT_SPAN: f64 = 0.03;
 /// there up to 0.4% short).
 const POLAR_ROWS: f64 = 0.05;
 const POLAR_MARGIN: f64 = 0.8;
+
+/// A sample within this angle of the seam (radians of azimuth) but on the border a piece
+/// does not lie on is put on the piece's own: a piece is cut where it crosses the seam, so
+/// only the rounding of that cut can put a sample there (1e-6 rad is about a thousandth of
+/// a pixel on the widest image).
+const NEAR_SEAM: f64 = 1e-6;
 
 /// Recursion and work limits, reached only by pathological input.
 const MAX_DEPTH: u32 = 60;
@@ -154,8 +160,9 @@ struct Run {
 /// What one piece of a curve needs while it is refined.
 struct Piece<'a> {
     curve: &'a SphereCurve,
-    /// Azimuth at the middle of the piece: every sample is unwrapped against it.
-    reference: f64,
+    /// The border a piece that meets the seam lies on: -pi (left) or pi (right); 0 for one
+    /// that does not. Only samples on the seam take it (see [`onto_side`]).
+    seam_side: f64,
     samples_left: usize,
 }
 
@@ -183,7 +190,7 @@ impl Flattener {
         // The two ends are sampled once, for the cuts and for the pieces that end there.
         let mut whole = Piece {
             curve,
-            reference: 0.0,
+            seam_side: 0.0,
             samples_left: MAX_SAMPLES_PER_CURVE,
         };
         let ends = (
@@ -239,12 +246,12 @@ impl Flattener {
             return;
         }
         let lies_on_seam = run.on_seam_plane && middle().y < 0.0;
-        // Samples are unwrapped against the azimuth at the middle only where it matters: a
-        // piece never crosses the seam (it is cut there), so atan2's own range is continuous
-        // along it except at an end lying on the seam.
+        // A piece never crosses the seam (it is cut there), so atan2's own range is
+        // continuous along it but at an end lying on the seam, whose side atan2 picks by the
+        // sign of a zero: only there is the piece's side needed.
         let mut piece = Piece {
             curve,
-            reference: 0.0,
+            seam_side: 0.0,
             samples_left: run.samples_left,
         };
         let mut sample_at = |t: f64, known: &Sample| {
@@ -255,23 +262,19 @@ impl Flattener {
             }
         };
         let (mut a, mut b) = (sample_at(ta, &run.ends.0), sample_at(tb, &run.ends.1));
-        // atan2 gives exactly +-pi only on the seam itself, whose side it picks by the sign
-        // of a zero: only then does the middle decide.
         let on_border = |s: &Sample| s.at.x == 0.0 || s.at.x == self.map.width();
-        if lies_on_seam
-            || cut_a == Cut::Seam
-            || cut_b == Cut::Seam
-            || on_border(&a)
-            || on_border(&b)
-        {
-            let middle = middle();
-            piece.reference = if lies_on_seam {
+        let (a_on_seam, b_on_seam) = (
+            cut_a == Cut::Seam || on_border(&a),
+            cut_b == Cut::Seam || on_border(&b),
+        );
+        if lies_on_seam || a_on_seam || b_on_seam {
+            piece.seam_side = if lies_on_seam {
                 -PI
             } else {
-                middle.x.atan2(middle.y)
+                seam_side(curve, (ta, a_on_seam), tb, &middle())
             };
             for end in [&mut a, &mut b] {
-                end.at.x = self.rewrap_x(end.at.x, piece.reference);
+                end.at.x = self.onto_side_x(end.at.x, piece.seam_side);
             }
         }
         self.snap_to_cut(&mut a, cut_a, &piece);
@@ -428,7 +431,7 @@ impl Flattener {
         match cut {
             Cut::Plain => {}
             Cut::Seam => {
-                sample.at.x = if piece.reference < 0.0 {
+                sample.at.x = if piece.seam_side < 0.0 {
                     0.0
                 } else {
                     self.map.width()
@@ -441,9 +444,9 @@ impl Flattener {
         }
     }
 
-    /// An image column re-unwrapped against another reference azimuth (whole turns only).
-    fn rewrap_x(&self, x: f64, reference: f64) -> f64 {
-        let azimuth = unwrap(x / self.map.x_scale() - PI, reference);
+    /// An image column put on the border `side` if it lies on the seam (see [`onto_side`]).
+    fn onto_side_x(&self, x: f64, side: f64) -> f64 {
+        let azimuth = onto_side(x / self.map.x_scale() - PI, side);
         (azimuth + PI) * self.map.x_scale()
     }
 
@@ -462,7 +465,7 @@ impl Flattener {
         let rho2 = p.x * p.x + p.y * p.y;
         let rho = rho2.sqrt();
         let (raw_azimuth, elevation) = self.angles(&p, rho);
-        let azimuth = unwrap(raw_azimuth, piece.reference);
+        let azimuth = onto_side(raw_azimuth, piece.seam_side);
         let at = self.map.to_image(azimuth, elevation);
         let derivatives = (rho2 > 1e-300 * p.norm_squared())
             .then(|| self.image_derivatives(&p, &d1, &d2, rho))
@@ -683,24 +686,49 @@ fn distance_to_chord(a: ImagePoint, b: ImagePoint, p: ImagePoint) -> f64 {
     (to_p - chord * along).norm()
 }
 
-/// `azimuth` moved by whole turns into `[reference - pi, reference + pi]`, then into
-/// `[-pi, pi]` (a reference on the seam keeps its side).
-fn unwrap(azimuth: f64, reference: f64) -> f64 {
-    // Both lie in [-pi, pi], so one turn at most brings them within half a turn.
-    let mut difference = azimuth - reference;
-    if difference > PI {
-        difference -= TAU;
-    } else if difference < -PI {
-        difference += TAU;
+/// An azimuth in `[-pi, pi]` (atan2's own) put on the border `side` (-pi or pi) when it lies
+/// on the seam on the other border, within `NEAR_SEAM`; every other azimuth, and every one
+/// when `side` is 0, as it is.
+fn onto_side(azimuth: f64, side: f64) -> f64 {
+    if azimuth * side < 0.0 && PI - azimuth.abs() <= NEAR_SEAM {
+        side
+    } else {
+        azimuth
     }
-    let unwrapped = reference + difference;
-    unwrapped.clamp(-PI, PI)
+}
+
+/// The border, -pi (left) or pi (right), of a piece of `curve` from `ta` to `tb` that meets
+/// the seam at an end (at `ta` when `a_on_seam`, else at `tb`): the side the curve leaves
+/// the seam towards at `ta`, or comes to it from at `tb`. Just right of straight behind, x
+/// is positive and the azimuth near pi, so the side is the sign of x just inside the piece,
+/// the sign of the curve's sideways velocity at `ta` and the opposite at `tb`. The middle of
+/// the piece is no guide: a curve passing close to the eye swings through more than half a
+/// turn of azimuth in a short piece. Should the curve run along the seam's plane at that end
+/// (no sideways velocity), the side of `middle` decides.
+fn seam_side(
+    curve: &SphereCurve,
+    (ta, a_on_seam): (f64, bool),
+    tb: f64,
+    middle: &Vector3<f64>,
+) -> f64 {
+    let sideways = if a_on_seam {
+        curve.velocity(ta).x
+    } else {
+        -curve.velocity(tb).x
+    };
+    let sign = if sideways != 0.0 { sideways } else { middle.x };
+    if sign < 0.0 {
+        -PI
+    } else {
+        PI
+    }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::sphere::azimuth_elevation;
+    use std::f64::consts::TAU;
 
     fn map() -> Equirect {
         Equirect::from_size_px(4096.0, 2048.0)
@@ -727,10 +755,20 @@ mod tests {
     }
 
     #[test]
-    fn unwrap_keeps_the_side_of_the_reference() {
-        assert_eq!(unwrap(-PI, 3.0), PI);
-        assert_eq!(unwrap(PI, -3.0), -PI);
-        assert!((unwrap(0.5, 0.4) - 0.5).abs() < 1e-15);
+    fn only_an_azimuth_on_the_seam_takes_the_side() {
+        assert_eq!(onto_side(-PI, PI), PI);
+        assert_eq!(onto_side(PI, -PI), -PI);
+        assert_eq!(onto_side(-PI + 0.5e-6, PI), PI);
+        // Away from the seam, on the piece's own border, or with no side: as it is.
+        for (azimuth, side) in [
+            (-PI + 2e-6, PI),
+            (-3.0, PI),
+            (0.5, -PI),
+            (PI, PI),
+            (-PI, 0.0),
+        ] {
+            assert_eq!(onto_side(azimuth, side), azimuth);
+        }
     }
 
     #[test]
@@ -746,7 +784,7 @@ mod tests {
         for t in [0.1, 1.0, 2.5, 4.0] {
             let mut piece = Piece {
                 curve: &curve,
-                reference: 0.0,
+                seam_side: 0.0,
                 samples_left: 100,
             };
             let h = 1e-4;
@@ -755,7 +793,7 @@ mod tests {
                     .sample(
                         &mut Piece {
                             curve: &curve,
-                            reference: 0.0,
+                            seam_side: 0.0,
                             samples_left: 9,
                         },
                         t,
@@ -1145,6 +1183,29 @@ mod tests {
         );
         let drawn = drawn_within_tolerance(&curve);
         // Two polylines: start to the seam's right border, left border to the end.
+        assert_eq!(drawn.len(), 2, "{drawn:?}");
+        assert_eq!(drawn[0].last().unwrap().x, 4096.0);
+        assert_eq!(drawn[1][0].x, 0.0);
+    }
+
+    #[test]
+    fn a_curve_passing_close_to_the_eye_keeps_to_its_side_of_the_seam() {
+        // A ring of 4.3 m radius, tilted a little, passing 3.5 cm from the eye (worked
+        // outside the crate, the ring's points in the test's own terms): it starts behind on
+        // the right (azimuth 167.7 degrees), crosses the seam behind at t = -3.448, sweeps
+        // round the left and past the eye, where its azimuth turns through most of a half
+        // turn in a few hundredths of a radian, and ends ahead on the right (39.7 degrees).
+        // The piece that leaves the seam swings more than half a turn from the azimuth at
+        // its own middle, so only the way the curve leaves the seam tells which border it
+        // starts from (the left: it runs on to negative azimuths).
+        let curve = SphereCurve::ellipse_arc(
+            Vector3::new(4.1, -1.2, -0.2),
+            Vector3::new(4.3, 0.0, 0.0),
+            Vector3::new(0.0, -4.2, -0.8),
+            -3.86,
+            1.8,
+        );
+        let drawn = drawn_within_tolerance(&curve);
         assert_eq!(drawn.len(), 2, "{drawn:?}");
         assert_eq!(drawn[0].last().unwrap().x, 4096.0);
         assert_eq!(drawn[1][0].x, 0.0);
