@@ -888,6 +888,32 @@ mod tests {
     }
 
     #[test]
+    fn the_pole_band_is_an_angle_whatever_the_height() {
+        // A ring of 3 m radius 10 m overhead, passing 0.1 mm from the vertical: 1e-5 rad
+        // from the zenith, inside the band of about 7.7e-5 rad, so it breaks at the border
+        // row like the great arc above, though the 0.1 mm is more than the band's 7.7e-5
+        // taken as a length.
+        let ring = SphereCurve::ellipse_arc(
+            Vector3::new(3.0 + 1e-4, 0.0, 10.0),
+            Vector3::new(-3.0, 0.0, 0.0),
+            Vector3::new(0.0, 3.0, 0.0),
+            -1.0,
+            2.0,
+        );
+        let pieces = lines(&ring);
+        assert_eq!(pieces.len(), 2, "{pieces:?}");
+        let (up, down) = (*pieces[0].last().unwrap(), pieces[1][0]);
+        assert_eq!((up.y, down.y), (0.0, 0.0));
+        // It meets the band's circle, 10 tan(band) from the vertical, s either side of its
+        // nearest point (the ring's own bend there, 1.5 t^2, is a thousandth of the miss):
+        // coming from straight behind at pi - atan(miss / s), leaving ahead at atan(miss / s).
+        let (miss, reach): (f64, f64) = (1e-4, 10.0 * (0.05 * PI / 2048.0).tan());
+        let off = miss.atan2((reach * reach - miss * miss).sqrt()) * 4096.0 / TAU;
+        assert!((up.x - (4096.0 - off)).abs() < 0.5, "{up:?}, off {off}");
+        assert!((down.x - (2048.0 + off)).abs() < 0.5, "{down:?}, off {off}");
+    }
+
+    #[test]
     fn near_pole_pass_beyond_tolerance_sweeps_below_the_border() {
         let miss = 0.02; // about 13 px from the zenith
         let pieces = lines(&arc([miss, 1.0, 1.0], [miss, -1.0, 1.0]));
