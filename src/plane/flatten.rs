@@ -68,8 +68,7 @@ pub fn check_tolerance(tolerance_px: f64) -> crate::Result<()> {
 }
 
 /// Pieces longer than this in parameter (radians of arc for great circles) are cut in equal
-/// parts first, so that no single chord test spans an inflection on both sides, and a piece
-/// that ends on the seam keeps near the azimuth at its middle, which it is unwrapped against.
+/// parts first, so that no single chord test spans an inflection on both sides.
 const MAX_PIECE_PARAMETER: f64 = FRAC_PI_4;
 
 /// A curve passing nearer than this to a pole (radians) is cut at its nearest point.
@@ -209,9 +208,7 @@ impl Flattener {
         };
         for pair in cuts.windows(2) {
             let ((ta, cut_a), (tb, cut_b)) = (pair[0], pair[1]);
-            // Long stretches go in equal pieces so that no chord test spans too much, and
-            // so that a piece ending on the seam keeps near the azimuth at its middle, which
-            // it is unwrapped against (a whole stretch can swing more than half a turn away).
+            // Long stretches go in equal pieces so that no chord test spans too much.
             let parts = whole_parts((tb - ta) / MAX_PIECE_PARAMETER);
             for k in 0..parts {
                 let start = ta + (tb - ta) * k as f64 / parts as f64;
@@ -1189,17 +1186,16 @@ mod tests {
     }
 
     #[test]
-    fn a_long_stretch_to_the_seam_is_cut_in_parts_before_it_is_unwrapped() {
+    fn a_stretch_swinging_past_half_a_turn_meets_the_seam_on_its_own_border() {
         // An ellipse passing 1.45 m from the eye (its points worked in the test's own
         // terms: azimuth atan2(x, y), elevation atan2(z, hypot(x, y))): it starts below on
         // the left (azimuth -75.9 degrees, elevation -42.8), swings up over the front and
         // the right (87.9 degrees, 55.5 up at t = -4) and round behind, meets the seam at
-        // t = -1.901 and ends behind on the left (-155.0 degrees). Its first stretch, to the
-        // seam, is 3.7 radians of parameter; a piece that ends on the seam is unwrapped
-        // against the azimuth at its middle, which for that whole stretch is 109.9 degrees,
-        // more than half a turn (185.8 degrees) from the start's: drawn as one piece, its
-        // start would land beyond the right border. In parts of at most a quarter of pi,
-        // the part that ends on the seam lies within half a turn of its own middle.
+        // t = -1.901 and ends behind on the left (-155.0 degrees). The azimuth at the
+        // middle of its first stretch, to the seam, is 109.9 degrees, more than half a turn
+        // (185.8 degrees) from the start's: no azimuth of one point of a stretch tells
+        // every other which side of the seam it is on (this drawing once began beyond the
+        // right border, when the middle's did).
         let curve = SphereCurve::ellipse_arc(
             Vector3::new(-1.3, -2.1, -1.3),
             Vector3::new(-4.3, 1.1, -4.6),
