@@ -885,6 +885,18 @@ mod tests {
     }
 
     #[test]
+    fn a_short_arc_through_a_pole_band_breaks_at_the_border_row() {
+        // Arcs of 0.04 rad (shorter than the 0.05 rad that may skip the search for a pole
+        // when both ends lie well away from it), passing 1e-5 rad from the zenith and from
+        // the nadir: inside the band, so each breaks at its border row.
+        for (z, row) in [(1.0, 0.0), (-1.0, 2048.0)] {
+            let pieces = lines(&arc([1e-5, 0.02, z], [1e-5, -0.02, z]));
+            assert_eq!(pieces.len(), 2, "{pieces:?}");
+            assert_eq!((pieces[0].last().unwrap().y, pieces[1][0].y), (row, row));
+        }
+    }
+
+    #[test]
     fn the_pole_band_is_an_angle_whatever_the_height() {
         // A ring of 3 m radius 10 m overhead, passing 0.1 mm from the vertical: 1e-5 rad
         // from the zenith, inside the band of about 7.7e-5 rad, so it breaks at the border
