@@ -752,6 +752,42 @@ mod tests {
     }
 
     #[test]
+    fn a_piece_takes_the_side_the_curve_leaves_or_reaches_the_seam_from() {
+        // A level ring round the eye, 5 m across, starting straight behind (0, -5, 0) and
+        // turning towards +x (u straight behind, v to the right): it leaves the seam to
+        // the right (pi) at t = 0 and, run backwards from t = 0, reaches it from the left.
+        let ring = SphereCurve::ellipse_arc(
+            Vector3::zeros(),
+            Vector3::new(0.0, -5.0, 0.0),
+            Vector3::new(5.0, 0.0, 0.0),
+            -1.0,
+            2.0,
+        );
+        // Whatever side the middle given lies on.
+        for middle in [Vector3::new(-1.0, 1.0, 0.0), Vector3::new(1.0, 1.0, 0.0)] {
+            assert_eq!(seam_side(&ring, (0.0, true), 0.5, &middle), PI);
+            assert_eq!(seam_side(&ring, (-0.5, false), 0.0, &middle), -PI);
+        }
+        // A curve running along the seam's plane at that end (no sideways velocity): the
+        // middle's side decides.
+        let upright = SphereCurve::ellipse_arc(
+            Vector3::new(0.0, -5.0, 0.0),
+            Vector3::new(0.0, 0.0, 1.0),
+            Vector3::new(0.0, 1.0, 0.0),
+            0.0,
+            1.0,
+        );
+        assert_eq!(
+            seam_side(&upright, (0.0, true), 1.0, &Vector3::new(-1.0, -1.0, 0.0)),
+            -PI
+        );
+        assert_eq!(
+            seam_side(&upright, (0.0, true), 1.0, &Vector3::new(1.0, -1.0, 0.0)),
+            PI
+        );
+    }
+
+    #[test]
     fn only_an_azimuth_on_the_seam_takes_the_side() {
         assert_eq!(onto_side(-PI, PI), PI);
         assert_eq!(onto_side(PI, -PI), -PI);
