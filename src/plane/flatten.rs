@@ -1053,8 +1053,10 @@ mod tests {
         let arcs = [
             // Long, ahead, rising from below the eye to well above it.
             ([-5.0, 2.0, -1.0], [4.0, 3.0, 6.0], 1),
-            // Across the seam behind the viewer.
+            // Across the seam behind the viewer; and from ahead on the left (azimuth -84
+            // degrees) to behind on the right (146), the short way round, through the seam.
             ([-2.0, -5.0, 1.0], [2.0, -5.0, -0.5], 2),
+            ([-1.0, 0.1, 0.0], [1.0, -1.5, 0.0], 2),
             // Past the zenith 0.02 rad off (13 px below the top row), and the nadir 0.1 off.
             ([0.02, 1.0, 1.0], [0.02, -1.0, 1.0], 1),
             ([0.1, 1.0, -1.0], [0.1, -1.0, -1.0], 1),
@@ -1116,6 +1118,10 @@ mod tests {
                 }
             }
         }
+        // The level arc through the seam breaks exactly on the borders, on the horizon row.
+        let level = lines(&arc([-1.0, 0.1, 0.0], [1.0, -1.5, 0.0]));
+        assert_eq!(*level[0].last().unwrap(), ImagePoint::new(0.0, 1024.0));
+        assert_eq!(level[1][0], ImagePoint::new(4096.0, 1024.0));
     }
 
     #[test]
@@ -1170,6 +1176,20 @@ mod tests {
                     TAU,
                 ),
                 1,
+            ),
+            // A level ring 8 m across round a point 3.5 m ahead (the eye inside it, 0.5 m
+            // from its back), from t = 3.3 to 6.2: both ends ahead (y = 2.87 and 3.17) in
+            // less than half a turn of parameter, yet it passes behind, through the seam at
+            // t = 3 pi / 2, y = -0.5.
+            (
+                SphereCurve::ellipse_arc(
+                    v(0.0, 3.5, 0.0),
+                    v(4.0, 0.0, 0.0),
+                    v(0.0, 4.0, 0.0),
+                    3.3,
+                    2.9,
+                ),
+                2,
             ),
             (
                 SphereCurve::ellipse_arc(
