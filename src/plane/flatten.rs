@@ -35,8 +35,10 @@
 //!    point of the true image within the tolerance of the drawing.
 //!
 //! A piece never crosses the seam (it is cut there), so the azimuths of its samples are
-//! continuous as `atan2` gives them; only a piece touching the seam is unwrapped against the
-//! azimuth at its middle, so a piece ending on the seam ends exactly on the left or right
+//! continuous as `atan2` gives them; only a sample on the seam itself takes the side of the
+//! piece, read from the way the curve leaves or reaches the seam there (not from the
+//! azimuth at the piece's middle: a curve passing close to the eye swings more than half a
+//! turn within one piece). So a piece ending on the seam ends exactly on the left or right
 //! border, and the two pieces on either side of a seam crossing share the same `t` and so
 //! the same row.
 
@@ -152,7 +154,7 @@ struct Run {
     /// A polyline is open (the last piece was drawn).
     drawing: bool,
     samples_left: usize,
-    /// The samples at the curve's two ends, unwrapped against azimuth zero.
+    /// The samples at the curve's two ends, with `atan2`'s own azimuths.
     ends: (Sample, Sample),
 }
 
