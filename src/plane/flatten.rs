@@ -1273,11 +1273,7 @@ mod tests {
             -5.6,
             4.3,
         );
-        let drawn = drawn_within_tolerance(&curve);
-        // Two polylines: start to the seam's right border, left border to the end.
-        assert_eq!(drawn.len(), 2, "{drawn:?}");
-        assert_eq!(drawn[0].last().unwrap().x, 4096.0);
-        assert_eq!(drawn[1][0].x, 0.0);
+        crosses_the_seam_from_right_to_left(&curve);
     }
 
     #[test]
@@ -1297,7 +1293,13 @@ mod tests {
             -3.86,
             1.8,
         );
-        let drawn = drawn_within_tolerance(&curve);
+        crosses_the_seam_from_right_to_left(&curve);
+    }
+
+    /// Checks that `curve` is drawn within the tolerance as two polylines: from its start
+    /// to the seam on the right border, then from the left border to its end.
+    fn crosses_the_seam_from_right_to_left(curve: &SphereCurve) {
+        let drawn = drawn_within_tolerance(curve);
         assert_eq!(drawn.len(), 2, "{drawn:?}");
         assert_eq!(drawn[0].last().unwrap().x, 4096.0);
         assert_eq!(drawn[1][0].x, 0.0);
