@@ -982,6 +982,66 @@ mod tests {
         assert!(pieces[1].iter().all(|p| p.x == 4096.0));
     }
 
+    #[test]
+    fn a_seam_crossing_costs_no_more_vertices_than_a_crossing_straight_ahead() {
+        // Turning a curve half a turn about the vertical only slides its image half the
+        // width sideways, so across the seam it needs about as many vertices as across the
+        // middle column (a few more: the cut at the seam moves where the refinement splits
+        // it). A seam crossing missed by the cuts is still found, by bisecting the chord
+        // that jumps across the image down to `MAX_DEPTH`, and lands on the same border
+        // points, but leaves a trail of a hundred or more vertices on either side.
+        let v = Vector3::new;
+        let half_turn = |p: Vector3<f64>| v(-p.x, -p.y, p.z);
+        let vertices = |curve: &SphereCurve| lines(curve).iter().map(Vec::len).sum::<usize>();
+        let level_ring = |u: Vector3<f64>, w: Vector3<f64>| {
+            SphereCurve::ellipse_arc(Vector3::zeros(), u, w, 0.5, 5.0)
+        };
+        let (a, b) = (v(-1.0, 0.1, 0.0), v(1.0, -1.5, 0.0));
+        let (ahead, right) = (v(0.0, 5.0, 0.0), v(5.0, 0.0, 0.0));
+        let cases = [
+            // A great arc from ahead on the left to behind on the right, the short way
+            // round (through the seam), and the same turned to cross straight ahead.
+            (
+                arc(a.into(), b.into()),
+                arc(half_turn(a).into(), half_turn(b).into()),
+            ),
+            // Most of a level great circle, five radians from ahead on the right round
+            // behind to ahead on the left: both ends ahead, yet more than half a turn.
+            (
+                level_ring(ahead, right),
+                level_ring(half_turn(ahead), half_turn(right)),
+            ),
+        ];
+        for (across_the_seam, across_the_middle) in cases {
+            assert_eq!(lines(&across_the_seam).len(), 2);
+            assert_eq!(lines(&across_the_middle).len(), 1);
+            let (seam, middle) = (vertices(&across_the_seam), vertices(&across_the_middle));
+            assert!(
+                seam <= 2 * middle,
+                "{seam} vertices across the seam, {middle} ahead"
+            );
+        }
+    }
+
+    #[test]
+    fn the_pole_band_widens_with_the_tolerance() {
+        // The band is half the tolerance deep in rows: at 100 px, the widest tolerance
+        // allowed, it reaches 50 / (2048 / pi) = 0.077 rad from the zenith of a 4096 x 2048
+        // image. A great arc whose plane leans 0.065 rad from the vertical passes that far
+        // from the zenith: at the default tolerance it is drawn whole, just below the top
+        // row; at 100 px it is cut at the band's edge, on the top row, like an arc through
+        // the zenith itself.
+        let lean = 0.065;
+        let curve = arc([-lean, 1.0, 1.0], [-lean, -1.0, 1.0]);
+        assert_eq!(lines(&curve).len(), 1);
+        let mut out = PolylineSet::new();
+        flatten(&curve, map(), 100.0, &mut out);
+        let drawn: Vec<Vec<ImagePoint>> = out.iter().map(|l| l.to_vec()).collect();
+        assert_eq!(drawn.len(), 2, "{drawn:?}");
+        assert_eq!(drawn[0].last().unwrap().y, 0.0);
+        assert_eq!(drawn[1][0].y, 0.0);
+    }
+
     /// The true image of a direction, by the mapping written out here (the crate's
     /// convention, Snyder 1987 eq. 12-1 and 12-2 scaled to pixels): azimuth `atan2(x, y)`
     /// clockwise from straight ahead, elevation `atan2(z, hypot(x, y))`,
