@@ -774,6 +774,17 @@ mod tests {
     }
 
     #[test]
+    fn a_cap_whose_side_lies_on_a_column_border_takes_the_column_beyond() {
+        // On the horizon the tangent meridians lie the radius either side of the middle:
+        // a cap of radius pi / 32 (two columns of 128) round straight ahead has its sides
+        // exactly on the borders between columns 61 and 62 and between 65 and 66. Rounding
+        // may put the true cap a hair over either, so 61 and 66 are named too: the margin
+        // widens the reach, never narrows it.
+        let (_, columns) = cells_near(64, 128, 0.0, 0.0, PI / 32.0);
+        assert_eq!(columns, 61..67);
+    }
+
+    #[test]
     fn the_nearest_point_of_a_segment() {
         let a = Vector3::new(-3.0, 4.0, 0.0);
         let b = Vector3::new(3.0, 4.0, 0.0);
