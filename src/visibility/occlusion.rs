@@ -774,6 +774,26 @@ mod tests {
     }
 
     #[test]
+    fn a_face_whose_plane_passes_within_a_millionth_of_its_distance_is_edge_on() {
+        // A level triangle about 100 m ahead (its farthest corner 100.5 m off), its plane h
+        // above the eye: seen edge-on, and left out of the map, when h is within a
+        // millionth of that distance (0.1 mm); a plate when it is twice that.
+        let at = |h: f64| {
+            [
+                Vector3::new(-10.0, 100.0, h),
+                Vector3::new(10.0, 100.0, h),
+                Vector3::new(0.0, 90.0, h),
+            ]
+        };
+        assert!(Plate::of(&at(5e-5)).is_none());
+        assert!(Plate::of(&at(-5e-5)).is_none());
+        let plate = Plate::of(&at(2e-4)).unwrap();
+        assert!((plate.h - 2e-4).abs() < 1e-12 && plate.normal.z == 1.0);
+        let below = Plate::of(&at(-2e-4)).unwrap();
+        assert!((below.h - 2e-4).abs() < 1e-12 && below.normal.z == -1.0);
+    }
+
+    #[test]
     fn a_cap_whose_side_lies_on_a_column_border_takes_the_column_beyond() {
         // On the horizon the tangent meridians lie the radius either side of the middle:
         // a cap of radius pi / 32 (two columns of 128) round straight ahead has its sides
