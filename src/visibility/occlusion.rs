@@ -794,6 +794,21 @@ mod tests {
     }
 
     #[test]
+    fn a_cap_touching_a_side_of_a_cone_is_not_inside_it() {
+        // The cone of directions right of the plane x = 0 (inward normal +x); a cap of
+        // radius 0.25 rad whose centre is 0.25 rad right of that plane touches it: rounding
+        // may put the true cap a hair over, so it does not count as inside. A little
+        // further right (a microradian), it does.
+        let sides = [Vector3::x()];
+        let sin_radius = 0.25f64.sin();
+        let touching = Vector3::new(sin_radius, (1.0 - sin_radius * sin_radius).sqrt(), 0.0);
+        assert!(!cap_in_cone(&sides, &touching, sin_radius));
+        let further = 0.25f64 + 1e-6;
+        let clear = Vector3::new(further.sin(), further.cos(), 0.0);
+        assert!(cap_in_cone(&sides, &clear, sin_radius));
+    }
+
+    #[test]
     fn a_cap_whose_side_lies_on_a_column_border_takes_the_column_beyond() {
         // On the horizon the tangent meridians lie the radius either side of the middle:
         // a cap of radius pi / 32 (two columns of 128) round straight ahead has its sides
