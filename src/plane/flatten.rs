@@ -807,7 +807,7 @@ mod tests {
     }
 
     #[test]
-    fn second_derivative_matches_finite_differences() {
+    fn first_and_second_derivatives_match_finite_differences() {
         let curve = SphereCurve::ellipse_arc(
             Vector3::new(1.0, 4.0, 2.0),
             Vector3::new(2.0, 0.5, 0.0),
@@ -836,8 +836,14 @@ mod tests {
                     .at
             };
             let (m, p0, p) = (s(t - h), s(t), s(t + h));
+            // Central differences: (P(t+h) - P(t-h)) / 2h and (P(t+h) - 2 P(t) + P(t-h)) / h^2.
+            let fd_velocity = Vector2::new(p.x - m.x, p.y - m.y) / (2.0 * h);
             let fd = Vector2::new(m.x - 2.0 * p0.x + p.x, m.y - 2.0 * p0.y + p.y) / (h * h);
-            let exact = flattener.sample(&mut piece, t).derivatives.unwrap().1;
+            let (velocity, exact) = flattener.sample(&mut piece, t).derivatives.unwrap();
+            assert!(
+                (fd_velocity - velocity).norm() <= 1e-6 * velocity.norm().max(1.0),
+                "t {t}: {fd_velocity} vs {velocity}"
+            );
             assert!(
                 (fd - exact).norm() <= 1e-4 * exact.norm().max(1.0),
                 "t {t}: {fd} vs {exact}"
