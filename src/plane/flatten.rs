@@ -734,8 +734,12 @@ mod tests {
     }
 
     fn lines(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
+        lines_at(curve, DEFAULT_TOLERANCE_PX)
+    }
+
+    fn lines_at(curve: &SphereCurve, tolerance_px: f64) -> Vec<Vec<ImagePoint>> {
         let mut out = PolylineSet::new();
-        flatten(curve, map(), DEFAULT_TOLERANCE_PX, &mut out);
+        flatten(curve, map(), tolerance_px, &mut out);
         out.iter().map(|l| l.to_vec()).collect()
     }
 
@@ -1040,9 +1044,7 @@ mod tests {
         let lean = 0.065;
         let curve = arc([-lean, 1.0, 1.0], [-lean, -1.0, 1.0]);
         assert_eq!(lines(&curve).len(), 1);
-        let mut out = PolylineSet::new();
-        flatten(&curve, map(), 100.0, &mut out);
-        let drawn: Vec<Vec<ImagePoint>> = out.iter().map(|l| l.to_vec()).collect();
+        let drawn = lines_at(&curve, 100.0);
         assert_eq!(drawn.len(), 2, "{drawn:?}");
         assert_eq!(drawn[0].last().unwrap().y, 0.0);
         assert_eq!(drawn[1][0].y, 0.0);
