@@ -1195,6 +1195,26 @@ mod tests {
     }
 
     #[test]
+    fn a_short_span_over_the_top_of_a_steep_great_circle_is_cut_where_it_sags() {
+        // A great circle inclined 69 degrees bends most over its top, 21 degrees from the
+        // zenith (outside the cut near a pole). A span of 0.0298 rad centred there (short
+        // enough to be judged on its ends' curvature) sags 0.19 px from its chord, above the
+        // default tolerance (worked numerically from the true image): its ends' bound must
+        // send it to be cut, not let it be drawn as the chord.
+        let inclination = 69f64.to_radians();
+        let top = Vector3::new(0.0, inclination.cos(), inclination.sin());
+        let half = 0.0149;
+        // t runs from -half to half, the top at 0.
+        let curve =
+            SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
+        let (a, b) = (curve.position(-half), curve.position(half));
+        let sag = distance_to_chord(true_image(&a), true_image(&b), true_image(&top));
+        assert!((sag - 0.19).abs() < 0.002, "{sag}");
+        let drawn = drawn_within_tolerance(&curve);
+        assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
+    }
+
+    #[test]
     fn rings_and_ellipses_stay_within_the_tolerance() {
         let v = Vector3::new;
         // Each with the polylines it must make (from where its points lie).
