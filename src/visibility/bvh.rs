@@ -927,6 +927,35 @@ mod tests {
     }
 
     #[test]
+    fn triangles_touching_a_plane_at_a_corner_cross_where_the_reference_finds_them_overlap() {
+        // A corner exactly on the other's plane sends the pair to the side-by-side test. The
+        // first triangle lies in z = 0, the second has its first corner there too; they cross
+        // where the separating-axis reference finds an overlap. But a second triangle whose
+        // other corners lie on one side meets the first at one point at most: where it does,
+        // either answer is right (a crossing only costs the caller a closer look).
+        let mut next = crate::testing::numbers(61);
+        let (mut crossing, mut apart) = (0, 0);
+        for k in 0..2000 {
+            let mut flat = || Point3::new(4.0 * next() - 2.0, 4.0 * next() - 2.0, 0.0);
+            let (a, touch) = ([flat(), flat(), flat()], flat());
+            let mut off =
+                || Point3::new(4.0 * next() - 2.0, 4.0 * next() - 2.0, 2.0 * next() - 1.0);
+            let b = [touch, off(), off()];
+            assert!(Plane::of(&a).sides_of(&b).unwrap().touching, "pair {k}");
+            let expected = triangles_overlap(&a, &b);
+            if expected && b[1].z * b[2].z > 0.0 {
+                continue;
+            }
+            assert_eq!(triangles_cross(&a, &b), expected, "pair {k}: {a:?} {b:?}");
+            assert_eq!(triangles_cross(&b, &a), expected, "pair {k}, swapped");
+            crossing += expected as usize;
+            apart += !expected as usize;
+        }
+        // Both answers are exercised.
+        assert!(crossing > 200 && apart > 200, "{crossing} {apart}");
+    }
+
+    #[test]
     fn a_plane_meets_a_box_when_its_corners_are_not_all_on_one_side() {
         let mut next = crate::testing::numbers(5);
         let mut met = 0;
