@@ -956,6 +956,53 @@ mod tests {
     }
 
     #[test]
+    fn a_ray_meets_a_box_where_points_along_it_fall_inside() {
+        // The definition, from points along the ray: a box it does not meet has none of 2,000
+        // points of the ray from 0 to the limit inside it; where it meets one, the entry lies
+        // on the box (a float's rounding aside), no earlier point lies inside, and the entry
+        // is not beyond the limit.
+        let mut next = crate::testing::numbers(83);
+        let (mut met, mut missed) = (0, 0);
+        for k in 0..3000 {
+            let o = [0; 3].map(|_| (10.0 * next() - 5.0) as f32);
+            let lo = [0; 3].map(|_| (6.0 * next() - 3.0) as f32);
+            let hi = lo.map(|x| x + (2.0 * next()) as f32);
+            // Aimed at a point near the box, so that about half the rays meet it.
+            let towards = |i: usize, u: f64| {
+                lo[i] as f64 + (hi[i] - lo[i]) as f64 * (2.0 * u - 0.5) - o[i] as f64
+            };
+            let d = Vector3::new(towards(0, next()), towards(1, next()), towards(2, next()));
+            let d = d.normalize();
+            let direction = [d.x as f32, d.y as f32, d.z as f32];
+            let inverse = direction.map(|x| 1.0 / x);
+            let (pad, limit) = (0.01f32, (10.0 * next()) as f32);
+            let at = |t: f32| [0, 1, 2].map(|i| o[i] + t * direction[i]);
+            let inside = |p: [f32; 3], slack: f32| {
+                (0..3).all(|i| p[i] >= lo[i] - pad - slack && p[i] <= hi[i] + pad + slack)
+            };
+            let samples = (0..=2000).map(|i| limit * i as f32 / 2000.0);
+            match ray_meets_box(&o, &inverse, &lo, &hi, pad, limit) {
+                None => {
+                    for t in samples {
+                        assert!(!inside(at(t), -1e-3), "case {k}: {t} inside");
+                    }
+                    missed += 1;
+                }
+                Some(entry) => {
+                    assert!((0.0..=limit).contains(&entry), "case {k}: {entry}");
+                    assert!(inside(at(entry), 1e-3), "case {k}: {entry} outside");
+                    for t in samples.filter(|&t| t < entry - 1e-3) {
+                        assert!(!inside(at(t), -1e-3), "case {k}: {t} before {entry}");
+                    }
+                    met += 1;
+                }
+            }
+        }
+        // Both answers are exercised.
+        assert!(met > 300 && missed > 300, "{met} {missed}");
+    }
+
+    #[test]
     fn a_plane_meets_a_box_when_its_corners_are_not_all_on_one_side() {
         let mut next = crate::testing::numbers(5);
         let mut met = 0;
