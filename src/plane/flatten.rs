@@ -1083,8 +1083,13 @@ mod tests {
     /// but those within half the tolerance of a pole (drawn as the border row); no stroke
     /// runs across a quarter of the image or off it. Returns the drawing.
     fn drawn_within_tolerance(curve: &SphereCurve) -> Vec<Vec<ImagePoint>> {
-        let drawn = lines(curve);
-        let band = 0.5 * DEFAULT_TOLERANCE_PX * PI / 2048.0;
+        drawn_within(curve, DEFAULT_TOLERANCE_PX)
+    }
+
+    /// [`drawn_within_tolerance`] at any tolerance.
+    fn drawn_within(curve: &SphereCurve, tolerance_px: f64) -> Vec<Vec<ImagePoint>> {
+        let drawn = lines_at(curve, tolerance_px);
+        let band = 0.5 * tolerance_px * PI / 2048.0;
         for i in 0..=3000 {
             let t = curve.t0 + (curve.t1 - curve.t0) * i as f64 / 3000.0;
             let d = curve.position(t);
@@ -1094,7 +1099,7 @@ mod tests {
             let p = true_image(&d);
             let off = distance_to_drawing(p, &drawn);
             assert!(
-                off <= DEFAULT_TOLERANCE_PX * 1.0001 + 1e-9,
+                off <= tolerance_px * 1.0001 + 1e-9,
                 "t = {t}: {p:?} is {off} px from the drawing {drawn:?}"
             );
         }
@@ -1211,6 +1216,37 @@ mod tests {
         let sag = distance_to_chord(true_image(&a), true_image(&b), true_image(&top));
         assert!((sag - 0.19).abs() < 0.002, "{sag}");
         let drawn = drawn_within_tolerance(&curve);
+        assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
+    }
+
+    #[test]
+    fn a_long_span_is_never_taken_on_its_ends_bound() {
+        // The ends' bound holds only over a short span: over 0.7 rad across the top of a
+        // great circle inclined 68.5 degrees (its top 21.5 degrees from the zenith, outside
+        // the cut near a pole) it is less than half the sag of the true image. At a
+        // tolerance just over twice that bound, the shortcut would draw the span as its
+        // chord, more than the tolerance from the curve; the span must be cut instead.
+        let inclination = 68.5f64.to_radians();
+        let top = Vector3::new(0.0, inclination.cos(), inclination.sin());
+        let half = 0.35;
+        let curve =
+            SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
+        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
+        let mut piece = Piece {
+            curve: &curve,
+            seam_side: 0.0,
+            samples_left: 2,
+        };
+        let (a, b) = (
+            flattener.sample(&mut piece, -half),
+            flattener.sample(&mut piece, half),
+        );
+        let bound = flattener.ends_bound(&a, &b).unwrap();
+        let sag = distance_to_chord(a.at, b.at, true_image(&top));
+        assert!(sag > 2.1 * bound, "{sag} {bound}");
+        let tolerance = 2.02 * bound;
+        assert!(tolerance <= 100.0, "{tolerance}");
+        let drawn = drawn_within(&curve, tolerance);
         assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
     }
 
