@@ -1217,6 +1217,23 @@ mod tests {
         assert!((sag - 0.19).abs() < 0.002, "{sag}");
         let drawn = drawn_within_tolerance(&curve);
         assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
+        // The ends' curvature is a little below the top's, so their bound falls 0.2% short
+        // of the sag here: hence only half the tolerance is taken on it. At a tolerance just
+        // over the bound, the span is still cut.
+        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
+        let mut piece = Piece {
+            curve: &curve,
+            seam_side: 0.0,
+            samples_left: 2,
+        };
+        let (a, b) = (
+            flattener.sample(&mut piece, -half),
+            flattener.sample(&mut piece, half),
+        );
+        let bound = flattener.ends_bound(&a, &b).unwrap();
+        assert!(sag > 1.0015 * bound, "{sag} {bound}");
+        let drawn = drawn_within(&curve, 1.0003 * bound);
+        assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
     }
 
     #[test]
