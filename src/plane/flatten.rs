@@ -1481,4 +1481,32 @@ mod tests {
             }
         }
     }
+
+    #[test]
+    fn a_curve_through_the_eye_is_drawn_with_bounded_work() {
+        // A level ring 4 m across passing exactly through the eye (an arch's circle through
+        // the standpoint): its image tears there, from due left to due right, and no chord
+        // across the tear can meet the tolerance. Refining stops at its depth limit beside
+        // the tear, the ring drawn up to it from either side; it does not go on until the
+        // curve's whole budget of a million samples is spent.
+        let v = Vector3::new;
+        let ring = SphereCurve::ellipse_arc(
+            v(0.0, 2.0, 0.0),
+            v(0.0, -2.0, 0.0),
+            v(2.0, 0.0, 0.0),
+            -1.0,
+            2.0,
+        );
+        let drawn = lines(&ring);
+        assert_eq!(drawn.len(), 2, "{drawn:?}");
+        let vertices: usize = drawn.iter().map(Vec::len).sum();
+        assert!(vertices < 1000, "{vertices}");
+        let near = |p: ImagePoint, x: f64| (p.x - x).abs() < 1e-6 && (p.y - 1024.0).abs() < 1e-6;
+        assert!(
+            near(*drawn[0].last().unwrap(), 1024.0),
+            "{:?}",
+            drawn[0].last()
+        );
+        assert!(near(drawn[1][0], 3072.0), "{:?}", drawn[1][0]);
+    }
 }
