@@ -1201,6 +1201,22 @@ mod tests {
         assert_eq!(level[1][0], ImagePoint::new(4096.0, 1024.0));
     }
 
+    /// The samples at `ta` and `tb` of `curve`, as `refine` takes them, and their ends' bound.
+    fn ends_and_bound(curve: &SphereCurve, ta: f64, tb: f64) -> (Sample, Sample, f64) {
+        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
+        let mut piece = Piece {
+            curve,
+            seam_side: 0.0,
+            samples_left: 2,
+        };
+        let (a, b) = (
+            flattener.sample(&mut piece, ta),
+            flattener.sample(&mut piece, tb),
+        );
+        let bound = flattener.ends_bound(&a, &b).unwrap();
+        (a, b, bound)
+    }
+
     #[test]
     fn a_short_span_over_the_top_of_a_steep_great_circle_is_cut_where_it_sags() {
         // A great circle inclined 69 degrees bends most over its top, 21 degrees from the
@@ -1222,17 +1238,7 @@ mod tests {
         // The ends' curvature is a little below the top's, so their bound falls 0.2% short
         // of the sag here: hence only half the tolerance is taken on it. At a tolerance just
         // over the bound, the span is still cut.
-        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
-        let mut piece = Piece {
-            curve: &curve,
-            seam_side: 0.0,
-            samples_left: 2,
-        };
-        let (a, b) = (
-            flattener.sample(&mut piece, -half),
-            flattener.sample(&mut piece, half),
-        );
-        let bound = flattener.ends_bound(&a, &b).unwrap();
+        let (_, _, bound) = ends_and_bound(&curve, -half, half);
         assert!(sag > 1.0015 * bound, "{sag} {bound}");
         let drawn = drawn_within(&curve, 1.0003 * bound);
         assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
@@ -1250,17 +1256,7 @@ mod tests {
         let half = 0.35;
         let curve =
             SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
-        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
-        let mut piece = Piece {
-            curve: &curve,
-            seam_side: 0.0,
-            samples_left: 2,
-        };
-        let (a, b) = (
-            flattener.sample(&mut piece, -half),
-            flattener.sample(&mut piece, half),
-        );
-        let bound = flattener.ends_bound(&a, &b).unwrap();
+        let (a, b, bound) = ends_and_bound(&curve, -half, half);
         let sag = distance_to_chord(a.at, b.at, true_image(&top));
         assert!(sag > 2.1 * bound, "{sag} {bound}");
         let tolerance = 2.02 * bound;
