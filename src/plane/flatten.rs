@@ -1201,6 +1201,16 @@ mod tests {
         assert_eq!(level[1][0], ImagePoint::new(4096.0, 1024.0));
     }
 
+    /// The span of a great circle inclined `inclination_degrees` (its top straight ahead)
+    /// from `-half` to `half`, the parameter 0 at its top; and the top.
+    fn over_the_top(inclination_degrees: f64, half: f64) -> (SphereCurve, Vector3<f64>) {
+        let inclination = inclination_degrees.to_radians();
+        let top = Vector3::new(0.0, inclination.cos(), inclination.sin());
+        let curve =
+            SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
+        (curve, top)
+    }
+
     /// The samples at `ta` and `tb` of `curve`, as `refine` takes them, and their ends' bound.
     fn ends_and_bound(curve: &SphereCurve, ta: f64, tb: f64) -> (Sample, Sample, f64) {
         let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
@@ -1224,12 +1234,8 @@ mod tests {
         // enough to be judged on its ends' curvature) sags 0.19 px from its chord, above the
         // default tolerance (worked numerically from the true image): its ends' bound must
         // send it to be cut, not let it be drawn as the chord.
-        let inclination = 69f64.to_radians();
-        let top = Vector3::new(0.0, inclination.cos(), inclination.sin());
         let half = 0.0149;
-        // t runs from -half to half, the top at 0.
-        let curve =
-            SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
+        let (curve, top) = over_the_top(69.0, half);
         let (a, b) = (curve.position(-half), curve.position(half));
         let sag = distance_to_chord(true_image(&a), true_image(&b), true_image(&top));
         assert!((sag - 0.19).abs() < 0.002, "{sag}");
@@ -1251,11 +1257,8 @@ mod tests {
         // the cut near a pole) it is less than half the sag of the true image. At a
         // tolerance just over twice that bound, the shortcut would draw the span as its
         // chord, more than the tolerance from the curve; the span must be cut instead.
-        let inclination = 68.5f64.to_radians();
-        let top = Vector3::new(0.0, inclination.cos(), inclination.sin());
         let half = 0.35;
-        let curve =
-            SphereCurve::ellipse_arc(Vector3::zeros(), top, Vector3::x(), -half, 2.0 * half);
+        let (curve, top) = over_the_top(68.5, half);
         let (a, b, bound) = ends_and_bound(&curve, -half, half);
         let sag = distance_to_chord(a.at, b.at, true_image(&top));
         assert!(sag > 2.1 * bound, "{sag} {bound}");
