@@ -1510,4 +1510,39 @@ mod tests {
         );
         assert!(near(drawn[1][0], 3072.0), "{:?}", drawn[1][0]);
     }
+
+    #[test]
+    fn an_arc_leaving_or_reaching_the_eye_is_drawn_with_bounded_work() {
+        // The ring above cut at the eye, so the tear sits at an end of the arc: the parameter
+        // can close in on it, a quarter at a time, for some 500 levels before floats run out.
+        // The depth limit must count every level, whether the tear falls in the first of the
+        // parts (an arc leaving the eye) or in the last (an arc reaching it).
+        let v = Vector3::new;
+        for (start, tear_x) in [(0.0, 3072.0), (-2.0, 1024.0)] {
+            let half_ring = SphereCurve::ellipse_arc(
+                v(0.0, 2.0, 0.0),
+                v(0.0, -2.0, 0.0),
+                v(2.0, 0.0, 0.0),
+                start,
+                2.0,
+            );
+            // The eye itself has no direction: a lone vertex may stand for it, never a stroke.
+            let drawn: Vec<_> = lines(&half_ring)
+                .into_iter()
+                .filter(|l| l.len() > 1)
+                .collect();
+            assert_eq!(drawn.len(), 1, "{drawn:?}");
+            let line = &drawn[0];
+            assert!(line.len() < 1000, "{}", line.len());
+            let beside_eye = if start == 0.0 {
+                line[0]
+            } else {
+                line[line.len() - 1]
+            };
+            assert!(
+                (beside_eye.x - tear_x).abs() < 1e-6 && (beside_eye.y - 1024.0).abs() < 1e-6,
+                "{beside_eye:?}"
+            );
+        }
+    }
 }
