@@ -1251,6 +1251,38 @@ mod tests {
     }
 
     #[test]
+    fn a_short_slanting_span_is_judged_by_its_bend_across_the_chord() {
+        // Two spans of 0.029 rad on steep great circles, 79 to 81 degrees below the horizon
+        // (just outside the cut near the pole), whose images bend strongly and whose chords
+        // run slantwise across the image. Each sags more than the default tolerance from its
+        // chord (0.44 and 0.65 px, worked from the true image), so each must be cut; its
+        // ends' bound must measure the curvature across the chord, not along either axis.
+        // (Found among 200,000 random short spans as the ones a wrongly turned
+        // bound would pass.)
+        let spans = [
+            (
+                [-0.185107, 0.033524, -0.982146],
+                [-0.204081, 0.012303, -0.978877],
+                0.44,
+            ),
+            (
+                [-0.128626, 0.092094, -0.987408],
+                [-0.145332, 0.115148, -0.982659],
+                0.65,
+            ),
+        ];
+        for (a, b, sag_px) in spans {
+            let curve = arc(a, b);
+            let middle = curve.position(curve.t1 / 2.0);
+            let (start, end) = (Vector3::from(a), Vector3::from(b));
+            let sag = distance_to_chord(true_image(&start), true_image(&end), true_image(&middle));
+            assert!((sag - sag_px).abs() < 0.01, "{sag}");
+            let drawn = drawn_within_tolerance(&curve);
+            assert!(drawn.len() == 1 && drawn[0].len() > 2, "{drawn:?}");
+        }
+    }
+
+    #[test]
     fn a_long_span_is_never_taken_on_its_ends_bound() {
         // The ends' bound holds only over a short span: over 0.7 rad across the top of a
         // great circle inclined 68.5 degrees (its top 21.5 degrees from the zenith, outside
