@@ -1322,6 +1322,41 @@ mod tests {
         drawn_within(&narrow, 0.5);
     }
 
+    #[test]
+    fn coarse_tolerances_hold_as_fine_ones_do() {
+        // Two ellipses a few metres across and off, drawn for a quick draft at 10 px and
+        // 5 px: the bound on a span's bend across its chord must take the chord's true
+        // direction at any tolerance. (Found among 16,000 random curves as the ones a chord
+        // direction worked wrongly lets stray 1.3% and 0.3% beyond the tolerance.)
+        let v = Vector3::new;
+        let curves = [
+            (
+                v(-2.1772166022141723, 3.9348600917290577, -2.6387873319162782),
+                v(-2.74700336362808, 2.9006313942780317, 1.9307882366810973),
+                v(1.6987026694252276, 1.0957841984061665, -1.9742419933334465),
+                (2.4187956771546117, 6.890577241869501),
+                10.0,
+            ),
+            (
+                v(1.9179270435259115, 1.1817526596372847, -1.0305310306872197),
+                v(1.0127007558709205, 1.7450480907224069, -2.4114492156559315),
+                v(
+                    1.1933666333126425,
+                    -0.0507606359584331,
+                    -0.15687289463686277,
+                ),
+                (3.4979671629052946, 5.990662102677703),
+                5.0,
+            ),
+        ];
+        for (centre, u, v, (t0, t1), tolerance_px) in curves {
+            drawn_within(
+                &SphereCurve::ellipse_arc(centre, u, v, t0, t1 - t0),
+                tolerance_px,
+            );
+        }
+    }
+
     /// The fewest chords, none longer than an eighth of the image's height (the flattener's
     /// own limit), that keep within `tolerance_px` of the true image of `curve`: a greedy
     /// walk taking each chord as long as it can be.
