@@ -940,6 +940,26 @@ mod tests {
     }
 
     #[test]
+    fn a_box_close_before_the_cover_is_not_hidden_but_one_behind_is() {
+        // A wall 10 m north of the eye, 60 m long, and two boxes half a metre across seen
+        // through it, 2 m to the east: one 0.2 m before it (the wall covers every sight line
+        // to it, but only beyond it) and one 0.5 m behind. Only the second is hidden.
+        let wall = [
+            face([[-30.0, 10.0, -5.0], [30.0, 10.0, -5.0], [30.0, 10.0, 10.0]]),
+            face([[-30.0, 10.0, -5.0], [30.0, 10.0, 10.0], [-30.0, 10.0, 10.0]]),
+        ];
+        let view = ViewFrame::new(&Standpoint::from_degrees("o", 0.0, 0.0, 1.6, 0.0, 0.0, 0.0));
+        let mut map = OcclusionMap::empty(512, 1024);
+        map.enter(&wall, 0, &view);
+        let hidden = |y: f64| {
+            let (lo, hi) = (Point3::new(2.0, y - 0.5, 1.35), Point3::new(2.5, y, 1.85));
+            map.hides_box(&lo, &hi, &view.eye(), &view)
+        };
+        assert!(!hidden(9.8));
+        assert!(hidden(11.0));
+    }
+
+    #[test]
     fn a_map_filled_on_two_cores_is_the_one_filled_face_by_face() {
         // Four walls 10 m round the eye (north, south, east, west; 20 m long, 2 m below to
         // 3 m above it, each two triangles) and 224 x 224 small triangles 30 m below, spread
