@@ -956,6 +956,39 @@ mod tests {
     }
 
     #[test]
+    fn a_triangle_is_met_on_all_three_sides_but_not_at_the_ray_origin() {
+        // The triangle is closed: a ray through the middle of any side, or through a
+        // corner, meets it (its first two sides are closed by `0 <= u, v`; the third by
+        // `u + v <= 1`, as in Moeller and Trumbore's own code, from memory). A ray starting
+        // on it leaves it at distance 0, which is no crossing ahead of the origin: a face
+        // through the eye hides nothing.
+        let corners = [
+            Point3::new(0.0, 0.0, 0.0),
+            Point3::new(1.0, 0.0, 0.0),
+            Point3::new(0.0, 1.0, 0.0),
+        ];
+        let down = Vector3::new(0.0, 0.0, -1.0);
+        for (x, y) in [
+            (0.5, 0.0),
+            (0.0, 0.5),
+            (0.5, 0.5),
+            (0.0, 0.0),
+            (1.0, 0.0),
+            (0.0, 1.0),
+        ] {
+            let origin = Point3::new(x, y, 2.0);
+            assert_eq!(
+                ray_hits_triangle(&origin, &down, &corners),
+                Some(2.0),
+                "{x} {y}"
+            );
+        }
+        let on_it = Point3::new(0.25, 0.25, 0.0);
+        assert_eq!(ray_hits_triangle(&on_it, &down, &corners), None);
+        assert_eq!(ray_hits_triangle(&on_it, &-down, &corners), None);
+    }
+
+    #[test]
     fn a_ray_meets_a_box_where_points_along_it_fall_inside() {
         // The definition, from points along the ray: a box it does not meet has none of 2,000
         // points of the ray from 0 to the limit inside it; where it meets one, the entry lies
