@@ -1323,11 +1323,12 @@ mod tests {
     }
 
     #[test]
-    fn coarse_tolerances_hold_as_fine_ones_do() {
-        // Two ellipses a few metres across and off, drawn for a quick draft at 10 px and
-        // 5 px: the bound on a span's bend across its chord must take the chord's true
-        // direction at any tolerance. (Found among 16,000 random curves as the ones a chord
-        // direction worked wrongly lets stray 1.3% and 0.3% beyond the tolerance.)
+    fn the_bend_bound_follows_the_chord_at_any_tolerance() {
+        // Four ellipses a few metres across and off, drawn for quick drafts at 10, 5, 3 and
+        // 1 px, and a great arc at 0.05 px: the bound on a span's bend across its chord must
+        // take the chord's true direction. (Found among 32,000 random curves at tolerances
+        // from 0.05 to 10 px as the ones a chord or its direction worked wrongly lets stray
+        // 0.3% to 2.2% beyond the tolerance.)
         let v = Vector3::new;
         let curves = [
             (
@@ -1347,6 +1348,27 @@ mod tests {
                 ),
                 (3.4979671629052946, 5.990662102677703),
                 5.0,
+            ),
+            (
+                v(1.5375948090140046, -0.7345379193532668, -0.881811996150649),
+                v(0.19393587833380255, 1.6516774762996465, 2.2838268981947647),
+                v(0.1360963593494202, -0.632439139361449, -2.504003910402006),
+                (4.282038751332368, 10.13363740981558),
+                3.0,
+            ),
+            (
+                v(-1.2391404206331442, 0.263382617017208, 0.9911735151602103),
+                v(-0.06958074771307782, 2.357364861630654, 1.7277341133729667),
+                v(2.989186701005763, 1.3161245325710755, 2.920882271289522),
+                (1.0163997915844258, 3.9742662187698192),
+                1.0,
+            ),
+            (
+                Vector3::zeros(),
+                v(0.6292438655990769, 0.7060380818676628, 0.3249036542708656),
+                v(-0.7243415800875763, 0.38119665892785043, 0.5744722644118487),
+                (0.0, 2.9606374118449743),
+                0.05,
             ),
         ];
         for (centre, u, v, (t0, t1), tolerance_px) in curves {
