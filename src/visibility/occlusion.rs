@@ -902,15 +902,21 @@ mod tests {
         faces
     }
 
-    #[test]
-    fn passing_over_hidden_boxes_changes_nothing() {
-        // The map filled through the hierarchy (skipping boxes already hidden) against every
-        // face entered one by one.
+    /// The loose houses, their hierarchy, and a view from between them at eye height.
+    fn among_the_houses() -> (Vec<Face>, Bvh, ViewFrame) {
         let faces = loose_houses();
         let bvh = Bvh::new(&faces);
         let view = ViewFrame::new(&Standpoint::from_degrees(
             "o", 3.0, 4.0, 1.6, 20.0, 0.0, 0.0,
         ));
+        (faces, bvh, view)
+    }
+
+    #[test]
+    fn passing_over_hidden_boxes_changes_nothing() {
+        // The map filled through the hierarchy (skipping boxes already hidden) against every
+        // face entered one by one.
+        let (faces, bvh, view) = among_the_houses();
         let culled = OcclusionMap::with_rows(&faces, &bvh, &view, 128);
         let mut every = OcclusionMap::empty(128, 256);
         for index in 0..faces.len() as u32 {
@@ -926,11 +932,7 @@ mod tests {
         // Some of the houses behind the nearest ones round the eye lie in boxes the map
         // already hides, and are never entered (here 470 of the 1,512 faces; at least a
         // quarter must be passed over).
-        let faces = loose_houses();
-        let bvh = Bvh::new(&faces);
-        let view = ViewFrame::new(&Standpoint::from_degrees(
-            "o", 3.0, 4.0, 1.6, 20.0, 0.0, 0.0,
-        ));
+        let (faces, bvh, view) = among_the_houses();
         let entered = OcclusionMap::empty(128, 256).fill(&faces, &bvh, 0, &view);
         assert!(
             4 * entered < 3 * faces.len(),
@@ -1019,11 +1021,7 @@ mod tests {
     fn an_arc_declared_hidden_really_lies_behind() {
         // Random short arcs at random distances; wherever the map says hidden, every point
         // of the arc has a face nearer than the limit along its sight line (brute force).
-        let faces = loose_houses();
-        let bvh = Bvh::new(&faces);
-        let view = ViewFrame::new(&Standpoint::from_degrees(
-            "o", 3.0, 4.0, 1.6, 20.0, 0.0, 0.0,
-        ));
+        let (faces, bvh, view) = among_the_houses();
         let map = OcclusionMap::with_rows(&faces, &bvh, &view, 128);
         let (mut hidden, mut state) = (0, 0x2545_f491_4f6c_dd1du64);
         let mut next = || {
