@@ -1386,7 +1386,7 @@ mod tests {
         let image = |t: f64| true_image(&curve.position(t));
         let fits = |ta: f64, tb: f64| {
             let (a, b) = (image(ta), image(tb));
-            (b.x - a.x).hypot(b.y - a.y) <= 256.0
+            (b.x - a.x).hypot(b.y - a.y) <= map().height() / 8.0
                 && (1..100).all(|i| {
                     let t = ta + (tb - ta) * i as f64 / 100.0;
                     distance_to_chord(a, b, image(t)) <= tolerance_px
@@ -1649,6 +1649,19 @@ mod tests {
         }
     }
 
+    /// A level ring 4 m across through the eye, from eccentric angle `start` through
+    /// `sweep`: the eye at angle 0, due left of it below 0 and due right above.
+    fn ring_through_the_eye(start: f64, sweep: f64) -> SphereCurve {
+        let v = Vector3::new;
+        SphereCurve::ellipse_arc(
+            v(0.0, 2.0, 0.0),
+            v(0.0, -2.0, 0.0),
+            v(2.0, 0.0, 0.0),
+            start,
+            sweep,
+        )
+    }
+
     #[test]
     fn a_curve_through_the_eye_is_drawn_with_bounded_work() {
         // A level ring 4 m across passing exactly through the eye (an arch's circle through
@@ -1656,15 +1669,7 @@ mod tests {
         // across the tear can meet the tolerance. Refining stops at its depth limit beside
         // the tear, the ring drawn up to it from either side; it does not go on until the
         // curve's whole budget of a million samples is spent.
-        let v = Vector3::new;
-        let ring = SphereCurve::ellipse_arc(
-            v(0.0, 2.0, 0.0),
-            v(0.0, -2.0, 0.0),
-            v(2.0, 0.0, 0.0),
-            -1.0,
-            2.0,
-        );
-        let drawn = lines(&ring);
+        let drawn = lines(&ring_through_the_eye(-1.0, 2.0));
         assert_eq!(drawn.len(), 2, "{drawn:?}");
         let vertices: usize = drawn.iter().map(Vec::len).sum();
         assert!(vertices < 1000, "{vertices}");
@@ -1683,15 +1688,8 @@ mod tests {
         // can close in on it, a quarter at a time, for some 500 levels before floats run out.
         // The depth limit must count every level, whether the tear falls in the first of the
         // parts (an arc leaving the eye) or in the last (an arc reaching it).
-        let v = Vector3::new;
         for (start, tear_x) in [(0.0, 3072.0), (-2.0, 1024.0)] {
-            let half_ring = SphereCurve::ellipse_arc(
-                v(0.0, 2.0, 0.0),
-                v(0.0, -2.0, 0.0),
-                v(2.0, 0.0, 0.0),
-                start,
-                2.0,
-            );
+            let half_ring = ring_through_the_eye(start, 2.0);
             // The eye itself has no direction: a lone vertex may stand for it, never a stroke.
             let drawn: Vec<_> = lines(&half_ring)
                 .into_iter()
