@@ -813,6 +813,18 @@ mod tests {
     }
 
     #[test]
+    fn the_distance_to_a_chord_is_to_its_nearest_point() {
+        let point = |x, y| ImagePoint { x, y };
+        let (a, b) = (point(0.0, 0.0), point(4.0, 0.0));
+        // Beside the chord, the perpendicular; beyond an end, the distance to that end.
+        assert_eq!(distance_to_chord(a, b, point(1.0, 3.0)), 3.0);
+        assert_eq!(distance_to_chord(a, b, point(7.0, 4.0)), 5.0);
+        assert_eq!(distance_to_chord(a, b, point(-3.0, -4.0)), 5.0);
+        // A chord of no length (a curve back at its start) is a point.
+        assert_eq!(distance_to_chord(b, b, point(7.0, 4.0)), 5.0);
+    }
+
+    #[test]
     fn first_and_second_derivatives_match_finite_differences() {
         let curve = SphereCurve::ellipse_arc(
             Vector3::new(1.0, 4.0, 2.0),

@@ -693,6 +693,65 @@ mod tests {
     }
 
     #[test]
+    fn a_direction_falls_in_its_cell_counted_from_the_zenith_and_from_behind() {
+        // Rows from the zenith down, columns from azimuth -180 degrees round to 180: the
+        // image's own layout, so that a cell and the pixels it stands for agree.
+        let map = OcclusionMap::empty(8, 16);
+        let toward = |azimuth: f64, elevation: f64| {
+            let (azimuth, elevation) = (azimuth.to_radians(), elevation.to_radians());
+            Vector3::new(
+                elevation.cos() * azimuth.sin(),
+                elevation.cos() * azimuth.cos(),
+                elevation.sin(),
+            )
+        };
+        assert_eq!(map.cell_of(&toward(0.0, 89.0)), (0, 8));
+        assert_eq!(map.cell_of(&toward(0.0, -89.0)), (7, 8));
+        assert_eq!(map.cell_of(&toward(-179.0, 10.0)), (3, 0));
+        assert_eq!(map.cell_of(&toward(179.0, -10.0)), (4, 15));
+        assert_eq!(map.cell_of(&toward(-1.0, 30.0)), (2, 7));
+        // The nadir and straight behind (x = +0: atan2 gives azimuth +180) lie on the far
+        // borders: the last row, the last column.
+        assert_eq!(map.cell_of(&Vector3::new(0.0, 0.0, -1.0)), (7, 8));
+        assert_eq!(map.cell_of(&Vector3::new(0.0, -1.0, 0.0)), (4, 15));
+        for row in 0..8 {
+            for column in 0..16 {
+                let middle = map.cell_middle(row, column);
+                assert_eq!(map.cell_of(&middle), (row, column));
+            }
+        }
+    }
+
+    #[test]
+    fn the_blockers_are_the_face_in_that_direction_and_only_beyond_its_bound() {
+        // One triangle 10 m ahead (face 0), one 20 m to the left (face 1): apart, so each
+        // covers cells alone.
+        let faces = [
+            face([[-10.0, 10.0, -5.0], [10.0, 10.0, -5.0], [0.0, 10.0, 10.0]]),
+            face([
+                [-20.0, -20.0, -10.0],
+                [-20.0, 20.0, -10.0],
+                [-20.0, 0.0, 20.0],
+            ]),
+        ];
+        let map = map_of(&faces, 64);
+        let (ahead, left) = (Vector3::y(), -Vector3::x());
+        assert_eq!(map.blockers(&ahead, 11.0), Some(0..1));
+        assert_eq!(map.blockers(&left, 21.0), Some(1..2));
+        assert_eq!(map.blockers(&left, 19.0), None);
+        assert_eq!(map.blockers(&Vector3::x(), 1e9), None);
+        // The depth kept is already rounded up; a point at that depth is still not
+        // certainly hidden, one a few roundings beyond it is.
+        let (row, column) = map.cell_of(&ahead);
+        let depth = map.depth[row * map.columns + column] as f64;
+        assert_eq!(map.blockers(&ahead, depth), None);
+        assert_eq!(
+            map.blockers(&ahead, depth * (1.0 + 3.0 * ROUNDING)),
+            Some(0..1)
+        );
+    }
+
+    #[test]
     fn the_depth_bound_is_tight_straight_ahead() {
         // Straight ahead the plane bound is about the wall's distance, well under the
         // farthest corner's (15 m).
