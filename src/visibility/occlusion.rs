@@ -752,6 +752,28 @@ mod tests {
     }
 
     #[test]
+    fn a_cell_covered_by_two_faces_together_names_both() {
+        // A lone triangle to the left (face 0), then a 2 m square 5 m ahead split along its
+        // diagonal (faces 1 and 2, as a modeller writes a quadrilateral).
+        let faces = [
+            face([
+                [-20.0, -20.0, -10.0],
+                [-20.0, 20.0, -10.0],
+                [-20.0, 0.0, 20.0],
+            ]),
+            face([[-1.0, 5.0, -1.0], [1.0, 5.0, -1.0], [1.0, 5.0, 1.0]]),
+            face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [-1.0, 5.0, 1.0]]),
+        ];
+        let map = map_of(&faces, 64);
+        // A cell the diagonal runs through (azimuth and elevation 0 to 2.8 degrees) is
+        // covered by neither triangle alone; one up and to the left of it, by face 2 alone.
+        let on_diagonal = Vector3::new(0.02, 1.0, 0.02).normalize();
+        assert_eq!(map.blockers(&on_diagonal, 6.0), Some(1..3));
+        let above_diagonal = Vector3::new(-0.1, 1.0, 0.1).normalize();
+        assert_eq!(map.blockers(&above_diagonal, 6.0), Some(2..3));
+    }
+
+    #[test]
     fn the_depth_bound_is_tight_straight_ahead() {
         // Straight ahead the plane bound is about the wall's distance, well under the
         // farthest corner's (15 m).
