@@ -774,6 +774,36 @@ mod tests {
     }
 
     #[test]
+    fn a_cap_is_covered_only_by_every_cell_it_touches_and_only_beyond_their_bounds() {
+        // The wall of `a_cell_covered_by_a_triangle_really_is`, 10 m ahead.
+        let faces = [
+            face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 6.0]]),
+            face([[-10.0, 10.0, -2.0], [10.0, 10.0, 6.0], [-10.0, 10.0, 6.0]]),
+        ];
+        let map = map_of(&faces, 64);
+        let (row_angle, column_angle) = (PI / 64.0, TAU / 128.0);
+        // Straight ahead (the middle of column 64), the highest row covered lies under one
+        // that is not (the wall's top edge runs through it).
+        let column = 64;
+        let azimuth = 0.5 * column_angle;
+        let depth = |row: usize| map.depth[row * map.columns + column] as f64;
+        let top = (0..64).find(|&row| depth(row).is_finite()).unwrap();
+        assert!(top > 0 && depth(top + 2).is_finite());
+        // A cap reaching up to the border between them touches the row above: not covered;
+        // one a micro-radian lower is.
+        let border = FRAC_PI_2 - top as f64 * row_angle;
+        let radius = 0.3 * row_angle;
+        let centre = |elevation| direction_from_azimuth_elevation(azimuth, elevation);
+        assert!(!map.covers_cap(&centre(border - radius), radius, 1e9));
+        assert!(map.covers_cap(&centre(border - radius - 1e-6), radius, 1e9));
+        // Within one cell: a point at the depth kept (already rounded up) is not certainly
+        // hidden, one a few roundings beyond it is.
+        let middle = map.cell_middle(top + 2, column);
+        assert!(!map.covers_cap(&middle, 1e-6, depth(top + 2)));
+        assert!(map.covers_cap(&middle, 1e-6, depth(top + 2) * (1.0 + 3.0 * ROUNDING)));
+    }
+
+    #[test]
     fn the_depth_bound_is_tight_straight_ahead() {
         // Straight ahead the plane bound is about the wall's distance, well under the
         // farthest corner's (15 m).
