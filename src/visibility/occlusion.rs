@@ -804,6 +804,29 @@ mod tests {
     }
 
     #[test]
+    fn a_long_arc_behind_a_low_wall_is_covered_piece_by_piece() {
+        // A wall 10 m ahead, 20 m wide and 4 m high round eye height: at least 8 degrees
+        // above and below the horizon from azimuth -45 to 45. The horizon from -30 to 30
+        // lies behind it, 20 m away; the sight lines 12 degrees up do not.
+        let faces = [
+            face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 2.0]]),
+            face([[-10.0, 10.0, -2.0], [10.0, 10.0, 2.0], [-10.0, 10.0, 2.0]]),
+        ];
+        let map = map_of(&faces, 128);
+        let toward = |azimuth: f64, elevation: f64| {
+            direction_from_azimuth_elevation(azimuth.to_radians(), elevation.to_radians())
+        };
+        let horizon = SphereCurve::great_arc(&toward(-30.0, 0.0), &toward(30.0, 0.0)).unwrap();
+        // Checked in pieces about two cells long: a cap round the whole arc would reach 30
+        // degrees up, over the wall.
+        assert!(map.covers_great_arc(&horizon, horizon.t0, horizon.t1, 20.0));
+        assert!(map.covers_great_arc(&horizon, 0.3, 0.6, 20.0));
+        assert!(!map.covers_great_arc(&horizon, horizon.t0, horizon.t1, 9.0));
+        let high = SphereCurve::great_arc(&toward(-5.0, 12.0), &toward(5.0, 12.0)).unwrap();
+        assert!(!map.covers_great_arc(&high, high.t0, high.t1, 20.0));
+    }
+
+    #[test]
     fn the_depth_bound_is_tight_straight_ahead() {
         // Straight ahead the plane bound is about the wall's distance, well under the
         // farthest corner's (15 m).
