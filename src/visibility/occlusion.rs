@@ -579,6 +579,28 @@ mod tests {
         }
     }
 
+    /// A wall 10 m ahead, 20 m wide, from `bottom` to `top` metres about eye height, as
+    /// two triangles sharing its diagonal.
+    fn wall_ahead(bottom: f64, top: f64) -> [Face; 2] {
+        [
+            face([
+                [-10.0, 10.0, bottom],
+                [10.0, 10.0, bottom],
+                [10.0, 10.0, top],
+            ]),
+            face([[-10.0, 10.0, bottom], [10.0, 10.0, top], [-10.0, 10.0, top]]),
+        ]
+    }
+
+    /// A large triangle 20 m to the left, facing the eye.
+    fn triangle_to_the_left() -> Face {
+        face([
+            [-20.0, -20.0, -10.0],
+            [-20.0, 20.0, -10.0],
+            [-20.0, 0.0, 20.0],
+        ])
+    }
+
     /// The eye at the origin, looking north, level.
     fn level_view() -> ViewFrame {
         ViewFrame::new(&Standpoint::from_degrees("o", 0.0, 0.0, 0.0, 0.0, 0.0, 0.0))
@@ -669,10 +691,7 @@ mod tests {
     #[test]
     fn a_cell_covered_by_a_triangle_really_is() {
         // A wall 10 m ahead, 20 m wide, 2 m below to 6 m above the eye, as two triangles.
-        let faces = [
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 6.0]]),
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, 6.0], [-10.0, 10.0, 6.0]]),
-        ];
+        let faces = wall_ahead(-2.0, 6.0);
         let map = map_of(&faces, 64);
         let covered = assert_cover_is_true(&map, &faces);
         // The wall spans 90 degrees of azimuth and about 11 below to 31 above, at best
@@ -697,6 +716,8 @@ mod tests {
         // Rows from the zenith down, columns from azimuth -180 degrees round to 180: the
         // image's own layout, so that a cell and the pixels it stands for agree.
         let map = OcclusionMap::empty(8, 16);
+        // Written out here, not through the crate's own conversion: azimuth from ahead (+y)
+        // towards the right (+x), elevation up (+z).
         let toward = |azimuth: f64, elevation: f64| {
             let (azimuth, elevation) = (azimuth.to_radians(), elevation.to_radians());
             Vector3::new(
@@ -728,11 +749,7 @@ mod tests {
         // covers cells alone.
         let faces = [
             face([[-10.0, 10.0, -5.0], [10.0, 10.0, -5.0], [0.0, 10.0, 10.0]]),
-            face([
-                [-20.0, -20.0, -10.0],
-                [-20.0, 20.0, -10.0],
-                [-20.0, 0.0, 20.0],
-            ]),
+            triangle_to_the_left(),
         ];
         let map = map_of(&faces, 64);
         let (ahead, left) = (Vector3::y(), -Vector3::x());
@@ -756,11 +773,7 @@ mod tests {
         // A lone triangle to the left (face 0), then a 2 m square 5 m ahead split along its
         // diagonal (faces 1 and 2, as a modeller writes a quadrilateral).
         let faces = [
-            face([
-                [-20.0, -20.0, -10.0],
-                [-20.0, 20.0, -10.0],
-                [-20.0, 0.0, 20.0],
-            ]),
+            triangle_to_the_left(),
             face([[-1.0, 5.0, -1.0], [1.0, 5.0, -1.0], [1.0, 5.0, 1.0]]),
             face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [-1.0, 5.0, 1.0]]),
         ];
@@ -775,11 +788,7 @@ mod tests {
 
     #[test]
     fn a_cap_is_covered_only_by_every_cell_it_touches_and_only_beyond_their_bounds() {
-        // The wall of `a_cell_covered_by_a_triangle_really_is`, 10 m ahead.
-        let faces = [
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 6.0]]),
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, 6.0], [-10.0, 10.0, 6.0]]),
-        ];
+        let faces = wall_ahead(-2.0, 6.0);
         let map = map_of(&faces, 64);
         let (row_angle, column_angle) = (PI / 64.0, TAU / 128.0);
         // Straight ahead (the middle of column 64), the highest row covered lies under one
@@ -808,10 +817,7 @@ mod tests {
         // A wall 10 m ahead, 20 m wide and 4 m high round eye height: at least 8 degrees
         // above and below the horizon from azimuth -45 to 45. The horizon from -30 to 30
         // lies behind it, 20 m away; the sight lines 12 degrees up do not.
-        let faces = [
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [10.0, 10.0, 2.0]]),
-            face([[-10.0, 10.0, -2.0], [10.0, 10.0, 2.0], [-10.0, 10.0, 2.0]]),
-        ];
+        let faces = wall_ahead(-2.0, 2.0);
         let map = map_of(&faces, 128);
         let toward = |azimuth: f64, elevation: f64| {
             direction_from_azimuth_elevation(azimuth.to_radians(), elevation.to_radians())
