@@ -579,16 +579,14 @@ mod tests {
         }
     }
 
-    /// A wall 10 m ahead, 20 m wide, from `bottom` to `top` metres about eye height, as
-    /// two triangles sharing its diagonal.
-    fn wall_ahead(bottom: f64, top: f64) -> [Face; 2] {
+    /// An upright rectangle `distance` m ahead, `half_width` m either side, from `bottom` to
+    /// `top` m about eye height, as two triangles sharing its diagonal (as a modeller writes
+    /// a quadrilateral).
+    fn rectangle_ahead(distance: f64, half_width: f64, bottom: f64, top: f64) -> [Face; 2] {
+        let (d, w) = (distance, half_width);
         [
-            face([
-                [-10.0, 10.0, bottom],
-                [10.0, 10.0, bottom],
-                [10.0, 10.0, top],
-            ]),
-            face([[-10.0, 10.0, bottom], [10.0, 10.0, top], [-10.0, 10.0, top]]),
+            face([[-w, d, bottom], [w, d, bottom], [w, d, top]]),
+            face([[-w, d, bottom], [w, d, top], [-w, d, top]]),
         ]
     }
 
@@ -691,7 +689,7 @@ mod tests {
     #[test]
     fn a_cell_covered_by_a_triangle_really_is() {
         // A wall 10 m ahead, 20 m wide, 2 m below to 6 m above the eye, as two triangles.
-        let faces = wall_ahead(-2.0, 6.0);
+        let faces = rectangle_ahead(10.0, 10.0, -2.0, 6.0);
         let map = map_of(&faces, 64);
         let covered = assert_cover_is_true(&map, &faces);
         // The wall spans 90 degrees of azimuth and about 11 below to 31 above, at best
@@ -771,12 +769,9 @@ mod tests {
     #[test]
     fn a_cell_covered_by_two_faces_together_names_both() {
         // A lone triangle to the left (face 0), then a 2 m square 5 m ahead split along its
-        // diagonal (faces 1 and 2, as a modeller writes a quadrilateral).
-        let faces = [
-            triangle_to_the_left(),
-            face([[-1.0, 5.0, -1.0], [1.0, 5.0, -1.0], [1.0, 5.0, 1.0]]),
-            face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [-1.0, 5.0, 1.0]]),
-        ];
+        // diagonal (faces 1 and 2).
+        let [lower, upper] = rectangle_ahead(5.0, 1.0, -1.0, 1.0);
+        let faces = [triangle_to_the_left(), lower, upper];
         let map = map_of(&faces, 64);
         // A cell the diagonal runs through (azimuth and elevation 0 to 2.8 degrees) is
         // covered by neither triangle alone; one up and to the left of it, by face 2 alone.
@@ -788,7 +783,7 @@ mod tests {
 
     #[test]
     fn a_cap_is_covered_only_by_every_cell_it_touches_and_only_beyond_their_bounds() {
-        let faces = wall_ahead(-2.0, 6.0);
+        let faces = rectangle_ahead(10.0, 10.0, -2.0, 6.0);
         let map = map_of(&faces, 64);
         let (row_angle, column_angle) = (PI / 64.0, TAU / 128.0);
         // Straight ahead (the middle of column 64), the highest row covered lies under one
@@ -817,7 +812,7 @@ mod tests {
         // A wall 10 m ahead, 20 m wide and 4 m high round eye height: at least 8 degrees
         // above and below the horizon from azimuth -45 to 45. The horizon from -30 to 30
         // lies behind it, 20 m away; the sight lines 12 degrees up do not.
-        let faces = wall_ahead(-2.0, 2.0);
+        let faces = rectangle_ahead(10.0, 10.0, -2.0, 2.0);
         let map = map_of(&faces, 128);
         let toward = |azimuth: f64, elevation: f64| {
             direction_from_azimuth_elevation(azimuth.to_radians(), elevation.to_radians())
@@ -1196,10 +1191,7 @@ mod tests {
 
     #[test]
     fn two_triangles_of_a_convex_quadrilateral_cover_together() {
-        let square = [
-            face([[-1.0, 5.0, -1.0], [1.0, 5.0, -1.0], [1.0, 5.0, 1.0]]),
-            face([[-1.0, 5.0, -1.0], [1.0, 5.0, 1.0], [-1.0, 5.0, 1.0]]),
-        ];
+        let square = rectangle_ahead(5.0, 1.0, -1.0, 1.0);
         assert!(share_side(&square[0], &square[1]));
         let view = |f: &Face| f.corners.map(|p| p.coords);
         let sides = quad_sides(
