@@ -5,10 +5,11 @@
 //! then checked against the real binary: the `angles` table and the drawn `render`.
 //!
 //! The prediction itself is first held to hand-worked cases, so it cannot drift along with
-//! the code. Flipping the sign of any one angle in `src/sphere/view.rs` fails these tests.
+//! the code. Flipping the sign of any one angle in `src/sphere/view.rs` fails these tests,
+//! and so does flipping one in the pose the PNG's metadata tells a panorama viewer.
 
 mod common;
-use common::{predicted_pixel, read_png_grey, stdout, succeeds, Scratch};
+use common::{gpano_pose, predicted_pixel, read_png_grey, stdout, succeeds, Scratch};
 
 /// A scene of labelled points all round the eye (at the origin, eye 1.5 m), none near the
 /// zenith or nadir, none behind another.
@@ -97,8 +98,9 @@ fn the_prediction_agrees_with_hand_worked_cases() {
         at((0.0, 30.0, 0.0), [0.0, 1.0, 0.0]),
         (1800.0, 1200.0)
     ));
-    // Roll 90 (the head laid on the right shoulder): the viewer's right is the sky, so due
-    // east at eye level is the zenith (the top row) and the zenith lies 90 degrees left.
+    // Roll 90 (the head laid on the right shoulder): the viewer's up turns to what was their
+    // right, so due east at eye level is the zenith (the top row) and the zenith lies 90
+    // degrees left.
     assert!(at((0.0, 0.0, 90.0), [1.0, 0.0, 0.0]).1.abs() < 1e-9);
     assert!(near(at((0.0, 0.0, 90.0), [0.0, 0.0, 1.0]), (900.0, 900.0)));
     // GPano: as roll grows the horizon turns counter-clockwise in the image, so a roll of 10
@@ -307,13 +309,24 @@ fn render_draws_each_line_where_the_pose_sends_it() {
                 "-q",
             ],
         );
-        let (width, height, grey) = read_png_grey(&std::fs::read(dir.path("out.png")).unwrap());
+        let bytes = std::fs::read(dir.path("out.png")).unwrap();
+        let (width, height, grey) = read_png_grey(&bytes);
         assert_eq!((width, height), (1440, 720));
         let predicted = samples(pose);
         for p in &predicted {
             assert!(
                 darkest(&grey, width, height, *p, 1.5) < 128,
                 "{pose:?}: no ink near the predicted {p:?}"
+            );
+        }
+        // The pose the file tells a panorama viewer (its GPano fields, read back): a viewer
+        // that applies it must find every line where it is drawn. Only the drawing's own
+        // pose does that; the controls below show that a flipped angle does not.
+        let told = gpano_pose(&bytes);
+        for p in samples(told) {
+            assert!(
+                darkest(&grey, width, height, p, 1.5) < 128,
+                "{pose:?}: the metadata's pose {told:?} puts a line at {p:?}, where none is drawn"
             );
         }
         // The same pose with one angle's sign flipped: wherever its points fall clear of

@@ -212,6 +212,39 @@ pub fn read_png_grey(bytes: &[u8]) -> (u32, u32, Vec<u8>) {
     (info.width, info.height, grey)
 }
 
+/// The pose angles (heading, pitch, roll in degrees) a PNG's XMP packet gives a panorama
+/// viewer, read with a general XML parser: the GPano fields PoseHeadingDegrees,
+/// PosePitchDegrees and PoseRollDegrees (Google, "Photo Sphere XMP Metadata").
+pub fn gpano_pose(png_bytes: &[u8]) -> (f64, f64, f64) {
+    let reader = png::Decoder::new(std::io::Cursor::new(png_bytes))
+        .read_info()
+        .expect("a PNG");
+    let xmp = reader
+        .info()
+        .utf8_text
+        .iter()
+        .find(|t| t.keyword == "XML:com.adobe.xmp")
+        .expect("an XMP packet")
+        .get_text()
+        .expect("XMP text");
+    let document = roxmltree::Document::parse(&xmp).expect("well-formed XMP");
+    let gpano = "http://ns.google.com/photos/1.0/panorama/";
+    let degrees = |name: &str| -> f64 {
+        document
+            .descendants()
+            .find(|n| n.tag_name().namespace() == Some(gpano) && n.tag_name().name() == name)
+            .and_then(|n| n.text())
+            .unwrap_or_else(|| panic!("no GPano:{name}"))
+            .parse()
+            .unwrap_or_else(|_| panic!("GPano:{name} is not a number"))
+    };
+    (
+        degrees("PoseHeadingDegrees"),
+        degrees("PosePitchDegrees"),
+        degrees("PoseRollDegrees"),
+    )
+}
+
 /// The viewer's right, forward and up directions in the site frame (x east, y north, z up)
 /// for a heading, pitch and roll in degrees, worked out here without the crate's view frame.
 ///
