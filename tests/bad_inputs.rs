@@ -263,6 +263,7 @@ corpus! {
     obj_normal_relative_before_start: "obj-normal-relative-before-start.obj" => refused("obj-normal-relative-before-start.obj:6:18:", &["relative index -2 reaches before the first normal"]);
     obj_missing_material_library: "obj-missing-mtl.obj" => warned(&["material library \"nowhere.mtl\"", "not beside it"]);
     obj_standpoint_inside_model: "obj-standpoint-inside-model.obj" => warned(&["standpoint", "is inside", "obj-standpoint-inside-model.obj"]);
+    obj_standpoint_inside_house_on_ground: "obj-standpoint-inside-house-on-ground.obj" => warned(&["standpoint", "is inside", "obj-standpoint-inside-house-on-ground.obj: house"]);
     obj_byte_order_mark_does_not_shift_columns: "obj-bom-bad-number.obj" => refused("obj-bom-bad-number.obj:2:7:", &["expected a number, found \"x\""]);
     // Open data: the file, the feature (index and id) or city object, the JSON path.
     geojson_truncated: "geojson-truncated.geojson" => refused("geojson-truncated.geojson:4:1:", &["expected JSON"]);

@@ -21,10 +21,12 @@
 //!   user needs told: obj-rs and tobj report a malformed number without its line (and obj-rs
 //!   keeps positions in `f32`); wavefront_obj 11 rejects `f -4 -3 -2 -1`, scopes indices to each
 //!   `o` object against the format, and turns a two-vertex face into a line silently (all seen
-//!   on hand-written cases). The reader takes `v`, `f`, `l`, `o`, `g`, the `v/vt/vn` forms and
-//!   negative indices, and passes over the rest. Errors: index out of range or zero, a face of
-//!   fewer than three vertices or a line of fewer than two, a malformed or non-finite number,
-//!   binary data, an empty file, a file with no faces or lines; each with its line.
+//!   on hand-written cases). The reader takes `v`, `vn`, `f`, `l`, `o`, `g`, `s`, `usemtl` and
+//!   `mtllib` (a missing library only warns), the `v/vt/vn` forms and negative indices, and
+//!   passes over the rest. Errors: index out of range or zero (positions and normals), a face
+//!   of fewer than three vertices or a line of fewer than two, a malformed or non-finite
+//!   number, a malformed smoothing group, binary data, an empty file, a file with no faces or
+//!   lines; each with its line and column.
 //! - **Axes and units**: Y-up files map (x, y, z) to site (x, -z, y) (x east, -z north);
 //!   Z-up files map straight across. Units: metre, centimetre, millimetre, inch (25.4 mm) and
 //!   foot (0.3048 m), exact by the 1959 international yard and pound agreement.
@@ -32,18 +34,24 @@
 //!   same multiple of 1e-7 of the bounding box's largest side (exact duplicates always merge; two
 //!   points within the tolerance across a rounding boundary do not, a known limit). Each face's
 //!   own edges are listed as (low, high, face), grouped by their low vertex and sorted; an edge of one face is a boundary,
-//!   of three or more non-manifold, both drawn; of two, a crease (drawn) when their normals
-//!   (Newell's method, orientation mended where neighbours are wound inconsistently) differ by
-//!   more than the crease angle (default 20 degrees, [`DEFAULT_CREASE_DEG`]), otherwise a silhouette candidate unless
-//!   the faces are coplanar (within 1e-6 rad). Triangulation diagonals are not face edges of
+//!   of three or more non-manifold, both drawn; of two, never drawn when the faces are
+//!   coplanar (within 1e-6 rad), else hard (a crease, drawn) or smooth as the file says where
+//!   it says (the same normals at both ends, or one smoothing group, is smooth; split normals,
+//!   or different groups, hard), and where it does not, a crease when their normals (Newell's
+//!   method, orientation mended where neighbours are wound inconsistently) differ by more than
+//!   the crease angle (default 20 degrees, [`DEFAULT_CREASE_DEG`]); a smooth edge is a
+//!   silhouette candidate. Triangulation diagonals are not face edges of
 //!   the polygon, and between triangles they are coplanar: never drawn. Silhouettes are chosen
 //!   per standpoint (`SilhouetteEdge::is_outline_from`: one face's plane has the eye in front,
 //!   the other's behind). Faces are kept as triangles (`Site::faces`) for hidden lines.
-//! - **Layers**: each `g` group (or `o` object) becomes an item on a layer of that name, and
-//!   each used layer becomes a layer of the drawing (`wireframe: NAME`).
+//! - **Layers**: each `g` group (or `o` object) and `usemtl` material becomes an item on a
+//!   layer of that name (the material's where a face has one), and each used layer becomes a
+//!   layer of the drawing (`wireframe: NAME`).
+//! - **Solids**: a model whose every edge lies between two faces is one solid; in an open
+//!   model each closed piece is (`scene/pieces.rs`). A standpoint inside one is warned of.
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Edge, Face, ItemId, ItemInfo, SilhouetteEdge, Site, SiteCurve};
+use super::site::{Edge, Face, ItemId, ItemInfo, MeshModel, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use rayon::prelude::*;
 use std::collections::HashMap;
@@ -423,9 +431,13 @@ fn add_mesh_on_cores(
         }
     }
     let last_item = site.items.len() as u32;
-    // A closed surface (every edge between exactly two faces) is a solid one cannot stand in.
-    if stats.boundary == 0 && stats.non_manifold == 0 && stats.faces > 0 {
-        site.closed_models.push(first_item..last_item);
+    // A closed surface (every edge between exactly two faces) is a solid one cannot stand in;
+    // an open one may still hold closed pieces, which the standpoint checks look for.
+    if stats.faces > 0 {
+        site.models.push(MeshModel {
+            items: first_item..last_item,
+            closed: stats.boundary == 0 && stats.non_manifold == 0,
+        });
     }
     if let Some(item) = items.first() {
         for warning in &obj.warnings {
@@ -1579,10 +1591,71 @@ mod tests {
         };
         assert_eq!(import(&tower(63.0), &old).1.creases, 12);
         // Closed: one solid, and a standpoint inside it is found.
-        assert_eq!(site.closed_models, vec![0..1]);
+        assert_eq!(
+            site.models,
+            vec![MeshModel {
+                items: 0..1,
+                closed: true
+            }]
+        );
         let inside = crate::scene::solids_enclosing(&site, &Point3::new(1.0, 1.0, 1.6));
         assert_eq!(inside, vec![ItemId(0)]);
         assert!(crate::scene::solids_enclosing(&site, &Point3::new(5.0, 1.0, 1.6)).is_empty());
+    }
+
+    /// An upright box from `(x0, y0, 0)` to `(x1, y1, height)` as OBJ text (z up), its
+    /// vertices numbered from `first`; without its floor when `floor` is false.
+    fn box_obj(
+        name: &str,
+        [x0, y0, x1, y1, height]: [f64; 5],
+        first: usize,
+        floor: bool,
+    ) -> String {
+        let mut text = format!("o {name}\n");
+        for z in [0.0, height] {
+            for (x, y) in [(x0, y0), (x1, y0), (x1, y1), (x0, y1)] {
+                writeln!(text, "v {x} {y} {z}").unwrap();
+            }
+        }
+        let sides = [
+            [1, 2, 6, 5],
+            [2, 3, 7, 6],
+            [3, 4, 8, 7],
+            [4, 1, 5, 8],
+            [5, 6, 7, 8],
+        ];
+        for side in sides.iter().chain(floor.then_some(&[4, 3, 2, 1])) {
+            let [a, b, c, d] = side.map(|k| k + first - 1);
+            writeln!(text, "f {a} {b} {c} {d}").unwrap();
+        }
+        text
+    }
+
+    #[test]
+    fn a_closed_house_in_an_open_model_is_still_a_solid() {
+        // A ground sheet, a closed house and a shed without a floor, one model: open as a
+        // whole, so only its closed pieces are solids.
+        let mut text =
+            String::from("o ground\nv -50 -50 0\nv 50 -50 0\nv 50 50 0\nv -50 50 0\nf 1 2 3 4\n");
+        text += &box_obj("house", [0.0, 0.0, 8.0, 6.0, 5.0], 5, true);
+        text += &box_obj("shed", [20.0, 0.0, 24.0, 3.0, 2.5], 13, false);
+        let (site, stats) = import(&text, &z_up());
+        assert!(stats.boundary > 0);
+        assert_eq!(site.models.len(), 1);
+        assert!(!site.models[0].closed);
+        let named = |items: Vec<ItemId>| -> Vec<String> {
+            items
+                .iter()
+                .map(|i| site.items[i.0 as usize].layer.clone().unwrap_or_default())
+                .collect()
+        };
+        let inside = |x, y, z| named(crate::scene::solids_enclosing(&site, &Point3::new(x, y, z)));
+        assert_eq!(inside(4.0, 3.0, 1.6), ["house"]);
+        assert_eq!(inside(7.5, 0.5, 4.9), ["house"]);
+        // Outside the house (beside it, above it), and inside the open shed: no solid.
+        assert!(inside(-2.0, 3.0, 1.6).is_empty());
+        assert!(inside(4.0, 3.0, 5.5).is_empty());
+        assert!(inside(22.0, 1.5, 1.6).is_empty());
     }
 
     #[test]

@@ -177,6 +177,16 @@ pub struct Edge {
     pub item: ItemId,
 }
 
+/// The items one mesh model was read into (its groups, objects and materials).
+#[derive(Clone, Debug, PartialEq)]
+pub struct MeshModel {
+    /// The model's items, by [`ItemId`] number.
+    pub items: std::ops::Range<u32>,
+    /// Every edge of the model lies between exactly two of its faces: together they are one
+    /// solid that one cannot stand in. An open model may still hold closed pieces.
+    pub closed: bool,
+}
+
 /// A scene resolved into edges.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Site {
@@ -227,9 +237,8 @@ pub struct Site {
     pub ground: Option<super::ground::Ground>,
     /// The date and local time of the sun and shadows the scene asks for.
     pub sun: Option<super::when::SunSpec>,
-    /// The items of each mesh whose surface is closed (every edge between two faces),
-    /// together a solid that one cannot stand in.
-    pub closed_models: Vec<std::ops::Range<u32>>,
+    /// The items of each mesh model, and whether its whole surface is closed.
+    pub models: Vec<MeshModel>,
     /// The files the site was read from besides the scene itself (the models it names), for
     /// `watch` to watch.
     pub sources: Vec<std::path::PathBuf>,

@@ -2,7 +2,8 @@
 //! whether each standpoint stands somewhere a person could (not inside a solid, not under
 //! the ground).
 
-use super::site::{ItemId, Site, SiteCurve, Standpoint};
+use super::pieces::closed_pieces;
+use super::site::{Face, ItemId, Site, SiteCurve, Standpoint};
 use nalgebra::{Point3, Vector3};
 use std::collections::BTreeMap;
 use std::f64::consts::TAU;
@@ -92,37 +93,87 @@ fn check_standpoint(site: &Site, standpoint: &Standpoint) -> StandpointCheck {
 /// buildings.
 ///
 /// A closed mesh counts as one solid, named by its first item, whatever groups and
-/// materials split it into (a group alone, a roof say, need not be closed).
+/// materials split it into (a group alone, a roof say, need not be closed). An open mesh (a
+/// ground sheet among its houses, one house without a floor) counts each of its closed
+/// pieces as a solid, named by the piece's first face's item; its pieces are only worked
+/// out when the ray meets the mesh.
 pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
     let ray = Vector3::new(0.280_573, 0.496_614, 0.821_411).normalize();
-    let mut crossings: BTreeMap<u32, usize> = BTreeMap::new();
-    // Each item's solid: itself for solid kinds, its mesh's first item for closed meshes.
-    let mut solid_of: Vec<Option<u32>> = site
+    // What each item's faces count towards: itself for solid kinds, its mesh's first item
+    // for closed meshes, its open mesh's number for the others.
+    let mut owner: Vec<Option<Owner>> = site
         .items
         .iter()
         .enumerate()
-        .map(|(i, item)| SOLID_KINDS.contains(&item.kind).then_some(i as u32))
+        .map(|(i, item)| {
+            SOLID_KINDS
+                .contains(&item.kind)
+                .then_some(Owner::Solid(i as u32))
+        })
         .collect();
-    for model in &site.closed_models {
-        for item in model.clone() {
-            if let Some(solid) = solid_of.get_mut(item as usize) {
-                *solid = Some(model.start);
+    for (m, model) in site.models.iter().enumerate() {
+        for item in model.items.clone() {
+            if let Some(owner) = owner.get_mut(item as usize) {
+                *owner = Some(if model.closed {
+                    Owner::Solid(model.items.start)
+                } else {
+                    Owner::OpenModel(m)
+                });
             }
         }
     }
-    for face in &site.faces {
-        let solid = solid_of.get(face.item.0 as usize).copied().flatten();
-        if let Some(solid) = solid {
+    let owner_of = |face: &Face| owner.get(face.item.0 as usize).copied().flatten();
+    let mut crossings: BTreeMap<u32, usize> = BTreeMap::new();
+    let mut crossed_open: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+    for (f, face) in site.faces.iter().enumerate() {
+        if let Some(owner) = owner_of(face) {
             if ray_hits_triangle(point, &ray, &face.corners) {
-                *crossings.entry(solid).or_insert(0) += 1;
+                match owner {
+                    Owner::Solid(item) => *crossings.entry(item).or_insert(0) += 1,
+                    Owner::OpenModel(m) => crossed_open.entry(m).or_default().push(f),
+                }
             }
         }
     }
-    crossings
+    let mut inside: Vec<ItemId> = crossings
         .into_iter()
         .filter(|(_, count)| count % 2 == 1)
         .map(|(item, _)| ItemId(item))
-        .collect()
+        .collect();
+    for (m, crossed) in crossed_open {
+        let faces: Vec<usize> = (0..site.faces.len())
+            .filter(|&f| owner_of(&site.faces[f]) == Some(Owner::OpenModel(m)))
+            .collect();
+        let triangles: Vec<&Face> = faces.iter().map(|&f| &site.faces[f]).collect();
+        let pieces = closed_pieces(&triangles);
+        let mut piece_crossings: BTreeMap<usize, usize> = BTreeMap::new();
+        for f in crossed {
+            let t = faces
+                .binary_search(&f)
+                .expect("a crossed face of the model");
+            if let Some(piece) = pieces[t] {
+                *piece_crossings.entry(piece).or_insert(0) += 1;
+            }
+        }
+        inside.extend(
+            piece_crossings
+                .into_iter()
+                .filter(|(_, count)| count % 2 == 1)
+                .map(|(piece, _)| triangles[piece].item),
+        );
+    }
+    inside.sort_unstable_by_key(|item| item.0);
+    inside.dedup();
+    inside
+}
+
+/// What a face's ray crossings count towards.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Owner {
+    /// A solid, named by its (first) item.
+    Solid(u32),
+    /// An open mesh, by its number in the site's models: its closed pieces are solids.
+    OpenModel(usize),
 }
 
 /// Whether the ray from `origin` along `direction` passes through the triangle (Moeller
