@@ -1,7 +1,8 @@
 //! Issue 18, big models: a generated town of 62,500 gabled houses as one OBJ of a million
 //! triangles, read, welded and classified, and drawn at 8192x4096 from a street corner at
 //! 1.6 m with hidden lines faint. Every time is given beside the floor F of the same run,
-//! with the stages split as `pansite render --timings` splits them.
+//! with the stages split as `pansite render --timings` splits them; a run is the command's
+//! own, from reading the OBJ file to the PNG written and synced to disk.
 //!
 //! The town, as the issue gives it: houses 6-10 m wide and deep on a 14 m grid (250 x 250),
 //! 4-12 m to the eaves, gables rising 35-45 degrees, each turned up to 5 degrees; 10
@@ -10,9 +11,11 @@
 //! The numbers come from a fixed-seed generator, so every run draws the same town.
 
 use pansite::render::{render_png_to, RenderSettings};
-use pansite::scene::{add_mesh, parse_obj, HiddenEdges, MeshPlacement, Site, Standpoint};
+use pansite::scene::{load_obj_timed, HiddenEdges, MeshPlacement, Site, Standpoint};
 use std::fmt::Write as _;
-use std::path::Path;
+use std::fs::File;
+use std::io::BufWriter;
+use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 const RUNS: usize = 3;
@@ -95,14 +98,37 @@ struct Stages {
     total: Duration,
 }
 
-fn end_to_end(text: &str, standpoint: &Standpoint, hidden: HiddenEdges) -> (Stages, Site) {
+/// The town written to a file of its own for the run, removed when dropped.
+struct TownFile {
+    obj: PathBuf,
+    png: PathBuf,
+}
+
+impl TownFile {
+    fn write(text: &str) -> TownFile {
+        let base = std::env::temp_dir().join(format!("pansite-bench-town-{}", std::process::id()));
+        let town = TownFile {
+            obj: base.with_extension("obj"),
+            png: base.with_extension("png"),
+        };
+        std::fs::write(&town.obj, text).unwrap();
+        town
+    }
+}
+
+impl Drop for TownFile {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_file(&self.obj);
+        let _ = std::fs::remove_file(&self.png);
+    }
+}
+
+/// One run as `pansite render town.obj` makes it: the file read from disk and parsed,
+/// welded and classed (the library's own timed loader), drawn, and the PNG written to a
+/// file.
+fn end_to_end(town: &TownFile, standpoint: &Standpoint, hidden: HiddenEdges) -> (Stages, Site) {
     let started = Instant::now();
-    let obj = parse_obj(text.as_bytes(), Path::new("town.obj")).unwrap();
-    let parse = started.elapsed();
-    let mut site = Site::default();
-    add_mesh(&mut site, &obj, &MeshPlacement::default(), "town.obj");
-    drop(obj);
-    let mesh = started.elapsed() - parse;
+    let (site, _, load) = load_obj_timed(&town.obj, &MeshPlacement::default()).unwrap();
     let settings = RenderSettings {
         width: 8192,
         height: 4096,
@@ -110,12 +136,13 @@ fn end_to_end(text: &str, standpoint: &Standpoint, hidden: HiddenEdges) -> (Stag
         time_limit: None,
         ..RenderSettings::default()
     };
-    let mut png = Vec::with_capacity(8 << 20);
+    let mut png = BufWriter::new(File::create(&town.png).unwrap());
     let render = render_png_to(&site, standpoint, &settings, &mut png).unwrap();
+    png.into_inner().unwrap().sync_all().unwrap();
     let total = started.elapsed();
     let stages = Stages {
-        parse,
-        mesh,
+        parse: load.parse,
+        mesh: load.expand,
         visibility: render.timings.flatten,
         hierarchy: render.timings.hierarchy,
         raster_encode: render.timings.raster_and_encode.unwrap_or_default(),
@@ -127,19 +154,24 @@ fn end_to_end(text: &str, standpoint: &Standpoint, hidden: HiddenEdges) -> (Stag
 /// For the memory figure: the whole run once, in a child process of its own.
 pub fn child() {
     let (text, standpoint) = town_obj();
-    let _ = end_to_end(&text, &standpoint, HiddenEdges::Faint);
+    let town = TownFile::write(&text);
+    drop(text);
+    let _ = end_to_end(&town, &standpoint, HiddenEdges::Faint);
 }
 
 pub fn run(floor_time: Duration, peak: Option<u64>) {
     let (text, standpoint) = town_obj();
+    let megabytes = text.len() as f64 / 1e6;
+    let town = TownFile::write(&text);
+    drop(text);
     let f = |d: Duration| d.as_secs_f64() / floor_time.as_secs_f64();
     let ms = super::ms;
     let faint: Vec<Stages> = (0..RUNS)
-        .map(|_| end_to_end(&text, &standpoint, HiddenEdges::Faint).0)
+        .map(|_| end_to_end(&town, &standpoint, HiddenEdges::Faint).0)
         .collect();
     let (solid, site) = {
         let runs: Vec<(Stages, Site)> = (0..RUNS)
-            .map(|_| end_to_end(&text, &standpoint, HiddenEdges::Solid))
+            .map(|_| end_to_end(&town, &standpoint, HiddenEdges::Solid))
             .collect();
         let visibility = super::median(runs.iter().map(|r| r.0.visibility).collect());
         (visibility, runs.into_iter().next().unwrap().1)
@@ -153,7 +185,6 @@ pub fn run(floor_time: Duration, peak: Option<u64>) {
         pick(|s| s.raster_encode),
         pick(|s| s.total),
     );
-    let megabytes = text.len() as f64 / 1e6;
     println!();
     println!(
         "big models (issue 18): a town of 62,500 gabled houses, {} triangles in {megabytes:.0} MB of OBJ, {} drawn edges, \
@@ -181,12 +212,17 @@ pub fn run(floor_time: Duration, peak: Option<u64>) {
             ms(hierarchy)
         ),
         visibility,
-        "visibility < 600 ms",
+        "",
     );
     row(
         "  flatten alone (the same with every edge drawn alike)",
         solid,
         "",
+    );
+    row(
+        "  so visibility alone (the difference)",
+        visibility.saturating_sub(solid),
+        "< 600 ms",
     );
     row("raster + encode (overlapped)", raster_encode, "");
     row("end to end", total, "< 1.5 s");
