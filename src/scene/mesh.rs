@@ -273,6 +273,10 @@ fn add_mesh_on_cores(
         slack: 0.0,
     };
     let all = 0..obj.faces.len();
+    let first_face = site.faces.len();
+    // Each triangle's vertex numbers, kept until it is known whether the model is closed.
+    let mut corners: Vec<[u32; 3]> = Vec::new();
+    let mut staged_triangles = None;
     let welded = if two_cores {
         // Each core lists its half's triangles by vertex number (a fifth of their size),
         // then both write them out in place, in file order (rayon's `par_extend` of an
@@ -292,6 +296,7 @@ fn add_mesh_on_cores(
         site.faces.reserve(first.len() + later.len());
         site.faces
             .par_extend(first.par_iter().chain(later.par_iter()).map(face));
+        staged_triangles = Some((first, later));
         WeldedMesh {
             first: welded,
             second,
@@ -300,6 +305,7 @@ fn add_mesh_on_cores(
         let mut welded = WeldedFaces::with_room(&obj.faces, vertices);
         site.faces.reserve(triangles_of(&obj.faces));
         work.run(all, &mut welded, |t, item| {
+            corners.push(t);
             site.faces.push(face(&(t, item)))
         });
         WeldedMesh {
@@ -432,11 +438,20 @@ fn add_mesh_on_cores(
     }
     let last_item = site.items.len() as u32;
     // A closed surface (every edge between exactly two faces) is a solid one cannot stand in;
-    // an open one may still hold closed pieces, which the standpoint checks look for.
+    // an open one may still hold closed pieces, which the standpoint checks look for by its
+    // triangles' vertex numbers.
     if stats.faces > 0 {
+        let closed = stats.boundary == 0 && stats.non_manifold == 0;
+        if closed {
+            corners = Vec::new();
+        } else if let Some((first, later)) = staged_triangles {
+            corners = first.iter().chain(&later).map(|&(t, _)| t).collect();
+        }
         site.models.push(MeshModel {
             items: first_item..last_item,
-            closed: stats.boundary == 0 && stats.non_manifold == 0,
+            faces: first_face..site.faces.len(),
+            closed,
+            open_corners: corners,
         });
     }
     if let Some(item) = items.first() {
@@ -1595,7 +1610,9 @@ mod tests {
             site.models,
             vec![MeshModel {
                 items: 0..1,
-                closed: true
+                faces: 0..site.faces.len(),
+                closed: true,
+                open_corners: Vec::new(),
             }]
         );
         let inside = crate::scene::solids_enclosing(&site, &Point3::new(1.0, 1.0, 1.6));

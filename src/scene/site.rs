@@ -177,14 +177,20 @@ pub struct Edge {
     pub item: ItemId,
 }
 
-/// The items one mesh model was read into (its groups, objects and materials).
+/// One mesh model of a site: its items (its groups, objects and materials), its faces, and
+/// whether it closes a solid.
 #[derive(Clone, Debug, PartialEq)]
 pub struct MeshModel {
     /// The model's items, by [`ItemId`] number.
     pub items: std::ops::Range<u32>,
+    /// Its triangles in [`Site::faces`], one run.
+    pub faces: std::ops::Range<usize>,
     /// Every edge of the model lies between exactly two of its faces: together they are one
     /// solid that one cannot stand in. An open model may still hold closed pieces.
     pub closed: bool,
+    /// For an open model, each triangle's corners by vertex number (the welded vertices,
+    /// so that the pieces joined edge to edge can be found); empty for a closed one.
+    pub open_corners: Vec<[u32; 3]>,
 }
 
 /// A scene resolved into edges.

@@ -2,7 +2,7 @@
 //! whether each standpoint stands somewhere a person could (not inside a solid, not under
 //! the ground).
 
-use super::pieces::closed_pieces;
+use super::pieces::{closed_piece, TrianglesAtVertices};
 use super::site::{Face, ItemId, Site, SiteCurve, Standpoint};
 use nalgebra::{Point3, Vector3};
 use std::collections::BTreeMap;
@@ -141,25 +141,31 @@ pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
         .map(|(item, _)| ItemId(item))
         .collect();
     for (m, crossed) in crossed_open {
-        let faces: Vec<usize> = (0..site.faces.len())
-            .filter(|&f| owner_of(&site.faces[f]) == Some(Owner::OpenModel(m)))
-            .collect();
-        let triangles: Vec<&Face> = faces.iter().map(|&f| &site.faces[f]).collect();
-        let pieces = closed_pieces(&triangles);
+        let model = &site.models[m];
+        let at_vertices = TrianglesAtVertices::of(&model.open_corners);
+        // Each crossed triangle's closed piece, walked once, named by its first triangle.
+        let mut pieces: Vec<Vec<u32>> = Vec::new();
         let mut piece_crossings: BTreeMap<usize, usize> = BTreeMap::new();
         for f in crossed {
-            let t = faces
-                .binary_search(&f)
-                .expect("a crossed face of the model");
-            if let Some(piece) = pieces[t] {
-                *piece_crossings.entry(piece).or_insert(0) += 1;
+            let t = (f - model.faces.start) as u32;
+            let known = pieces.iter().find(|p| p.binary_search(&t).is_ok());
+            let piece = match known {
+                Some(piece) => Some(piece[0]),
+                None => closed_piece(&model.open_corners, &at_vertices, t as usize).map(|p| {
+                    let first = p[0];
+                    pieces.push(p);
+                    first
+                }),
+            };
+            if let Some(first) = piece {
+                *piece_crossings.entry(first as usize).or_insert(0) += 1;
             }
         }
         inside.extend(
             piece_crossings
                 .into_iter()
                 .filter(|(_, count)| count % 2 == 1)
-                .map(|(piece, _)| triangles[piece].item),
+                .map(|(piece, _)| site.faces[model.faces.start + piece].item),
         );
     }
     inside.sort_unstable_by_key(|item| item.0);
