@@ -275,7 +275,7 @@ fn add_mesh_on_cores(
     let all = 0..obj.faces.len();
     let first_face = site.faces.len();
     // Each triangle's vertex numbers, kept until it is known whether the model is closed.
-    let mut corners: Vec<[u32; 3]> = Vec::new();
+    let mut triangle_corners: Vec<[u32; 3]> = Vec::new();
     let mut staged_triangles = None;
     let welded = if two_cores {
         // Each core lists its half's triangles by vertex number (a fifth of their size),
@@ -305,7 +305,7 @@ fn add_mesh_on_cores(
         let mut welded = WeldedFaces::with_room(&obj.faces, vertices);
         site.faces.reserve(triangles_of(&obj.faces));
         work.run(all, &mut welded, |t, item| {
-            corners.push(t);
+            triangle_corners.push(t);
             site.faces.push(face(&(t, item)))
         });
         WeldedMesh {
@@ -443,15 +443,15 @@ fn add_mesh_on_cores(
     if stats.faces > 0 {
         let closed = stats.boundary == 0 && stats.non_manifold == 0;
         if closed {
-            corners = Vec::new();
+            triangle_corners = Vec::new();
         } else if let Some((first, later)) = staged_triangles {
-            corners = first.iter().chain(&later).map(|&(t, _)| t).collect();
+            triangle_corners = first.iter().chain(&later).map(|&(t, _)| t).collect();
         }
         site.models.push(MeshModel {
             items: first_item..last_item,
             faces: first_face..site.faces.len(),
             closed,
-            open_corners: corners,
+            open_corners: triangle_corners,
         });
     }
     if let Some(item) = items.first() {
@@ -1669,8 +1669,10 @@ mod tests {
         let inside = |x, y, z| named(crate::scene::solids_enclosing(&site, &Point3::new(x, y, z)));
         assert_eq!(inside(4.0, 3.0, 1.6), ["house"]);
         assert_eq!(inside(7.5, 0.5, 4.9), ["house"]);
-        // Outside the house (beside it, above it), and inside the open shed: no solid.
+        // Outside the house (beside it, above it; below its eaves, where the ray goes in
+        // through the wall and out through the roof), and inside the open shed: no solid.
         assert!(inside(-2.0, 3.0, 1.6).is_empty());
+        assert!(inside(-1.0, -1.0, 0.5).is_empty());
         assert!(inside(4.0, 3.0, 5.5).is_empty());
         assert!(inside(22.0, 1.5, 1.6).is_empty());
     }

@@ -2,7 +2,7 @@
 //! whether each standpoint stands somewhere a person could (not inside a solid, not under
 //! the ground).
 
-use super::pieces::{closed_piece, TrianglesAtVertices};
+use super::pieces::Pieces;
 use super::site::{Face, ItemId, Site, SiteCurve, Standpoint};
 use nalgebra::{Point3, Vector3};
 use std::collections::BTreeMap;
@@ -142,23 +142,17 @@ pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
         .collect();
     for (m, crossed) in crossed_open {
         let model = &site.models[m];
-        let at_vertices = TrianglesAtVertices::of(&model.open_corners);
-        // Each crossed triangle's closed piece, walked once, named by its first triangle.
-        let mut pieces: Vec<Vec<u32>> = Vec::new();
+        let mut pieces = Pieces::of(&model.open_corners);
         let mut piece_crossings: BTreeMap<usize, usize> = BTreeMap::new();
         for f in crossed {
-            let t = (f - model.faces.start) as u32;
-            let known = pieces.iter().find(|p| p.binary_search(&t).is_ok());
-            let piece = match known {
-                Some(piece) => Some(piece[0]),
-                None => closed_piece(&model.open_corners, &at_vertices, t as usize).map(|p| {
-                    let first = p[0];
-                    pieces.push(p);
-                    first
-                }),
+            // The model's faces are one run of the site's, in the order of its corners.
+            let Some(t) = f.checked_sub(model.faces.start) else {
+                continue;
             };
-            if let Some(first) = piece {
-                *piece_crossings.entry(first as usize).or_insert(0) += 1;
+            if t < model.open_corners.len() {
+                if let Some(first) = pieces.closed_piece_of(t) {
+                    *piece_crossings.entry(first).or_insert(0) += 1;
+                }
             }
         }
         inside.extend(
