@@ -2,7 +2,7 @@
 //! triangles, read, welded and classified, and drawn at 8192x4096 from a street corner at
 //! 1.6 m with hidden lines faint. Every time is given beside the floor F of the same run,
 //! with the stages split as `pansite render --timings` splits them; a run is the command's
-//! own, from reading the OBJ file to the PNG written and synced to disk.
+//! own, from reading the OBJ file to the PNG written and synced.
 //!
 //! The town, as the issue gives it: houses 6-10 m wide and deep on a 14 m grid (250 x 250),
 //! 4-12 m to the eaves, gables rising 35-45 degrees, each turned up to 5 degrees; 10
@@ -11,7 +11,9 @@
 //! The numbers come from a fixed-seed generator, so every run draws the same town.
 
 use pansite::render::{render_png_to, RenderSettings};
-use pansite::scene::{load_obj_timed, HiddenEdges, MeshPlacement, Site, Standpoint};
+use pansite::scene::{
+    load_obj_timed, solids_enclosing, HiddenEdges, MeshPlacement, Site, Standpoint,
+};
 use std::fmt::Write as _;
 use std::fs::File;
 use std::io::BufWriter;
@@ -123,12 +125,15 @@ impl Drop for TownFile {
     }
 }
 
-/// One run as `pansite render town.obj` makes it: the file read from disk and parsed,
-/// welded and classed (the library's own timed loader), drawn, and the PNG written to a
-/// file.
+/// One run as `pansite render town.obj` makes it: the file read and parsed, welded and
+/// classed (the library's own timed loader), the standpoint checked, the town drawn, and the
+/// PNG written to a file and synced (both files in the system's temporary folder, which may
+/// be held in memory).
 fn end_to_end(town: &TownFile, standpoint: &Standpoint, hidden: HiddenEdges) -> (Stages, Site) {
     let started = Instant::now();
     let (site, _, load) = load_obj_timed(&town.obj, &MeshPlacement::default()).unwrap();
+    // The command warns of a standpoint inside a solid before it draws.
+    assert!(solids_enclosing(&site, &standpoint.eye()).is_empty());
     let settings = RenderSettings {
         width: 8192,
         height: 4096,
