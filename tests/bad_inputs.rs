@@ -170,6 +170,7 @@ corpus! {
     beyond_1e9: "beyond-1e9.ron" => refused("beyond-1e9.ron:4:36:", &["from -1e9 to 1e9, found 2e9"]);
     negative_width: "negative-width.ron" => refused("negative-width.ron:4:40:", &["greater than zero, found -8"]);
     zero_depth: "zero-depth.ron" => refused("zero-depth.ron:4:50:", &["greater than zero, found 0"]);
+    size_below_a_nanometre: "size-below-a-nanometre.ron" => refused("size-below-a-nanometre.ron:4:50:", &["expected a size of at least 1e-9, found 1e-250"]);
     zero_diameter: "zero-diameter.ron" => refused("zero-diameter.ron:4:38:", &["greater than zero, found 0"]);
     negative_count: "negative-count.ron" => refused("negative-count.ron:4:23:", &["whole count from 1 to 100000, found -3"]);
     zero_count: "zero-count.ron" => refused("zero-count.ron:4:23:", &["found 0"]);

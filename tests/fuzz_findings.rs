@@ -133,11 +133,23 @@ const EXTREMES: [(&str, &str); 5] = [
 /// The pipeline target's timeout: an arcade on piers of 2e-305 m, thinner than the
 /// arithmetic can tell from nothing, so its openings shared corners and triangulating its
 /// wall took hours for 4,000 arches (11 s for 255 under the fuzzer's instrumentation).
+/// Since 2026-12-05 such a pier is refused where it is written (sizes are at least a
+/// nanometre); piers above that but below a billionth of the arcade's length still meet
+/// the arcade's own rule.
 #[test]
 fn an_arcade_on_piers_too_thin_to_exist_is_refused_at_once() {
     let text = refusal(
         "Scene(items: [Arcade(at: Centre(4.778309726736751e-299, 0), count: 4000, span: 3.7, \
          springing: 33, pier: 2.2565935439425233e-305, thickness: 5.43222665692e-312)])",
+    );
+    assert!(
+        text.contains("expected a size of at least 1e-9, found 2.2565935439425233e-305"),
+        "{text}"
+    );
+    // 4,000 spans of 3.7 m: a billionth of the length is about 1.5e-5 m.
+    let text = refusal(
+        "Scene(items: [Arcade(at: Centre(0, 0), count: 4000, span: 3.7, springing: 33, \
+         pier: 1e-6, thickness: 0.5)])",
     );
     assert!(
         text.contains("at least a billionth of the arcade's length"),
@@ -167,6 +179,48 @@ fn a_grid_near_a_pole_with_an_infinite_error_estimate_draws() {
         width: 32,
         height: 16,
         hidden: Some(pansite::scene::HiddenEdges::Solid),
+        ..RenderSettings::default()
+    };
+    let mut png = Vec::new();
+    render_png_to(&site, &site.standpoints[0], &settings, &mut png).unwrap();
+    assert!(png.starts_with(b"\x89PNG"));
+}
+
+/// The pipeline target's crash (2026-12-05): a block 1.2e-250 m deep. The square of its
+/// depth is below the smallest double, so its end walls had a length of 0, their points
+/// came out NaN (0 / 0), and the hierarchy of faces panicked on a box of NaN. Sizes are
+/// now at least a nanometre, refused where they are written; at the floor the block draws.
+#[test]
+fn a_block_thinner_than_the_arithmetic_is_refused_where_it_is_written() {
+    let scene = |depth: &str| {
+        format!(
+            "Scene(standpoints: [(name: \"here\", x: 12, y: 1, eye_height: 9.345984231267034e-307, \
+             heading: 1282.2, pitch: -90, roll: 1802.2)], \
+             items: [Block(at: Corner(32, 0), width: 12, depth: {depth}, height: 12, facing: 12)])"
+        )
+    };
+    let text = refusal(&scene("1.224167783418391e-250"));
+    assert!(text.starts_with("finding.ron:1:"), "{text}");
+    assert!(
+        text.contains("expected a size of at least 1e-9, found 1.224167783418391e-250"),
+        "{text}"
+    );
+    let text = refusal(&scene("0"));
+    assert!(
+        text.contains("expected a size greater than zero, found 0"),
+        "{text}"
+    );
+    let site = parse_scene(
+        scene("1e-9").as_bytes(),
+        Path::new("finding.ron"),
+        "finding",
+    )
+    .unwrap();
+    assert!(site.faces.iter().all(|face| face.is_finite()));
+    let settings = RenderSettings {
+        width: 32,
+        height: 16,
+        hidden: Some(pansite::scene::HiddenEdges::Faint),
         ..RenderSettings::default()
     };
     let mut png = Vec::new();

@@ -13,7 +13,7 @@ use super::obj::read_obj;
 use super::opendata::{
     build_building, read_open_data, OpenDataContent, OpenDataSpec, Placed, CITY_CREASE_DEG,
 };
-use super::site::{ItemId, ItemInfo};
+use super::site::{Face, ItemId, ItemInfo};
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use super::streets::Culprit;
 use super::when::{offset_in, SunSpec};
@@ -270,10 +270,12 @@ impl Walker<'_> {
         let id = self
             .site
             .add_item_on_layer(item.kind(), label, layer.map(str::to_owned));
+        let before = (self.site.edges.len(), self.site.faces.len());
         let mut b = ItemBuilder::new(self.site, id, place);
         if let Some(built) = item.build(&mut b) {
             built.map_err(|message| self.fail(message))?;
         }
+        self.check_finite(before)?;
         // A road is placed, not drawn: it waits to be joined with the others.
         while self.road_paths.len() < self.site.roads.len() {
             self.road_paths.push(self.path.clone());
@@ -285,6 +287,22 @@ impl Walker<'_> {
             self.name_paths.push(self.path.clone());
         }
         self.check_size()
+    }
+
+    /// Refuses an item whose edges or faces came out with a NaN or an infinity (sizes so
+    /// far apart in scale that its arithmetic broke down), rather than letting them reach
+    /// the drawing. `before` is the edges and triangles before the item.
+    fn check_finite(&self, before: (usize, usize)) -> Result<(), ExpandError> {
+        let edges_finite = self.site.edges[before.0..]
+            .iter()
+            .all(|edge| edge.curve.is_finite());
+        let faces_finite = self.site.faces[before.1..].iter().all(Face::is_finite);
+        if edges_finite && faces_finite {
+            return Ok(());
+        }
+        Err(self.fail(
+            "its sizes are too far apart in scale for its edges to be worked out (a number came out infinite or undefined); make the smallest sizes larger or the largest smaller".to_owned(),
+        ))
     }
 
     /// After the first copy of a repeat: refuses at once when `count` copies like it would

@@ -64,15 +64,25 @@ impl<'de> Deserialize<'de> for FileName {
     }
 }
 
-/// A finite number greater than zero (a size).
+/// The smallest size a scene may give: a nanometre in metres (a picometre in millimetres).
+/// No site holds anything smaller, and smaller sizes vanish in the arithmetic (their
+/// squares underflow to zero, so a wall 1e-200 long has a length of 0 and its points come
+/// out NaN).
+pub const MIN_SIZE: f64 = 1e-9;
+
+/// A finite number of at least [`MIN_SIZE`] (a size).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Positive(pub f64);
 
 impl<'de> Deserialize<'de> for Positive {
     fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
         let Finite(value) = Finite::deserialize(deserializer)?;
-        if value > 0.0 {
+        if value >= MIN_SIZE {
             Ok(Positive(value))
+        } else if value > 0.0 {
+            Err(serde::de::Error::custom(format!(
+                "expected a size of at least 1e-9, found {value:e}"
+            )))
         } else {
             Err(serde::de::Error::custom(format!(
                 "expected a size greater than zero, found {value}"

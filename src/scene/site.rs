@@ -168,6 +168,15 @@ pub struct Face {
     pub slack: f32,
 }
 
+impl Face {
+    /// Whether its corners and slack are finite (its item's arithmetic gave no NaN or
+    /// infinity).
+    pub fn is_finite(&self) -> bool {
+        let corners = self.corners.iter().flat_map(|corner| corner.iter());
+        corners.copied().all(f64::is_finite) && self.slack.is_finite()
+    }
+}
+
 /// An edge to draw: a curve of an item.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Edge {
@@ -347,5 +356,38 @@ impl Site {
     /// The standpoint of that name, if there is one.
     pub fn standpoint(&self, name: &str) -> Option<&Standpoint> {
         self.standpoints.iter().find(|s| s.name == name)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_face_is_finite_only_when_its_corners_and_slack_are() {
+        let face = Face {
+            corners: [
+                Point3::origin(),
+                Point3::new(1.0, 0.0, 0.0),
+                Point3::new(0.0, 1.0, 0.0),
+            ],
+            item: ItemId(0),
+            slack: 0.0,
+        };
+        assert!(face.is_finite());
+        for (corner, axis, value) in [
+            (0, 0, f64::NAN),
+            (1, 1, f64::INFINITY),
+            (2, 2, f64::NEG_INFINITY),
+        ] {
+            let mut broken = face;
+            broken.corners[corner][axis] = value;
+            assert!(!broken.is_finite(), "corner {corner}, axis {axis}: {value}");
+        }
+        assert!(!Face {
+            slack: f32::NAN,
+            ..face
+        }
+        .is_finite());
     }
 }
