@@ -175,14 +175,19 @@ fn a_grid_near_a_pole_with_an_infinite_error_estimate_draws() {
                  heading: 4.600556940150025e-91, pitch: 110, roll: 0)], \
                  items: [Repeat(count: 138, step: (-56, 32, 0), turn: 230.4, items: [])])";
     let site = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding").unwrap();
+    draws_32_by_16(&site, pansite::scene::HiddenEdges::Solid);
+}
+
+/// Draws the site's first standpoint 32x16 px and checks a PNG came out.
+fn draws_32_by_16(site: &pansite::scene::Site, hidden: pansite::scene::HiddenEdges) {
     let settings = RenderSettings {
         width: 32,
         height: 16,
-        hidden: Some(pansite::scene::HiddenEdges::Solid),
+        hidden: Some(hidden),
         ..RenderSettings::default()
     };
     let mut png = Vec::new();
-    render_png_to(&site, &site.standpoints[0], &settings, &mut png).unwrap();
+    render_png_to(site, &site.standpoints[0], &settings, &mut png).unwrap();
     assert!(png.starts_with(b"\x89PNG"));
 }
 
@@ -217,13 +222,5 @@ fn a_block_thinner_than_the_arithmetic_is_refused_where_it_is_written() {
     )
     .unwrap();
     assert!(site.faces.iter().all(|face| face.is_finite()));
-    let settings = RenderSettings {
-        width: 32,
-        height: 16,
-        hidden: Some(pansite::scene::HiddenEdges::Faint),
-        ..RenderSettings::default()
-    };
-    let mut png = Vec::new();
-    render_png_to(&site, &site.standpoints[0], &settings, &mut png).unwrap();
-    assert!(png.starts_with(b"\x89PNG"));
+    draws_32_by_16(&site, pansite::scene::HiddenEdges::Faint);
 }
