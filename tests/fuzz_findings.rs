@@ -224,3 +224,25 @@ fn a_block_thinner_than_the_arithmetic_is_refused_where_it_is_written() {
     assert!(site.faces.iter().all(|face| face.is_finite()));
     draws_32_by_16(&site, pansite::scene::HiddenEdges::Faint);
 }
+
+/// The same crash one layer down: a site whose faces came out NaN (as the thin block's did,
+/// and as a library caller's own site might) must still draw in every hidden-line mode.
+/// The hierarchy of faces clamped the eye into each box with `f64::clamp`, which panics on
+/// a NaN bound; it now takes `max` and `min`, so such a box is only far away.
+#[test]
+fn a_site_with_faces_of_nan_draws_in_every_mode() {
+    use pansite::scene::HiddenEdges;
+    let scene = "Scene(standpoints: [(name: \"s\", x: 5, y: -20)], \
+                 items: [Block(at: Corner(0, 0), width: 10, depth: 8, height: 6)])";
+    let mut site = parse_scene(scene.as_bytes(), Path::new("finding.ron"), "finding").unwrap();
+    // All but two faces lose their plan position, as the block's end walls and roof did.
+    for face in site.faces.iter_mut().skip(2) {
+        for corner in face.corners.iter_mut() {
+            corner.x = f64::NAN;
+            corner.y = f64::NAN;
+        }
+    }
+    for hidden in [HiddenEdges::Solid, HiddenEdges::Faint, HiddenEdges::Off] {
+        draws_32_by_16(&site, hidden);
+    }
+}

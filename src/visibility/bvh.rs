@@ -133,9 +133,12 @@ impl Bvh {
         eye: &Point3<f64>,
         mut visit: impl FnMut(Visit) -> bool,
     ) {
+        // `max` then `min` rather than `clamp`, which panics on a NaN bound: a box of faces
+        // whose corners came out NaN is then only far away (NaN), never a crash.
         let distance = |node: &Node| {
-            let nearest =
-                Point3::from([0, 1, 2].map(|k| eye[k].clamp(node.lo[k] as f64, node.hi[k] as f64)));
+            let nearest = Point3::from(
+                [0, 1, 2].map(|k| eye[k].max(node.lo[k] as f64).min(node.hi[k] as f64)),
+            );
             (nearest - eye).norm_squared()
         };
         let as_box = |node: &Node| Visit::Box {
