@@ -342,7 +342,7 @@ fn the_file_decides_the_towers_edges_and_its_materials_are_layers() {
     // tower.mtl defines both materials: no warning.
     assert!(site.warnings.is_empty(), "{:?}", site.warnings);
     assert_eq!(site.models.len(), 1);
-    assert!(site.models[0].closed);
+    assert!(site.models[0].is_closed());
 }
 
 /// What the default crease angle (20 degrees, was 30) adds on the bundled meshes, which say

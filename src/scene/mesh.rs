@@ -450,7 +450,6 @@ fn add_mesh_on_cores(
         site.models.push(MeshModel {
             items: first_item..last_item,
             faces: first_face..site.faces.len(),
-            closed,
             open_corners: triangle_corners,
         });
     }
@@ -1611,7 +1610,6 @@ mod tests {
             vec![MeshModel {
                 items: 0..1,
                 faces: 0..site.faces.len(),
-                closed: true,
                 open_corners: Vec::new(),
             }]
         );
@@ -1659,7 +1657,7 @@ mod tests {
         let (site, stats) = import(&text, &z_up());
         assert!(stats.boundary > 0);
         assert_eq!(site.models.len(), 1);
-        assert!(!site.models[0].closed);
+        assert!(!site.models[0].is_closed());
         let named = |items: Vec<ItemId>| -> Vec<String> {
             items
                 .iter()

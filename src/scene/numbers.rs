@@ -81,7 +81,7 @@ impl<'de> Deserialize<'de> for Positive {
             Ok(Positive(value))
         } else if value > 0.0 {
             Err(serde::de::Error::custom(format!(
-                "expected a size of at least 1e-9, found {value:e}"
+                "expected a size of at least {MIN_SIZE:e}, found {value:e}"
             )))
         } else {
             Err(serde::de::Error::custom(format!(

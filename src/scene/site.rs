@@ -194,12 +194,18 @@ pub struct MeshModel {
     pub items: std::ops::Range<u32>,
     /// Its triangles in [`Site::faces`], one run.
     pub faces: std::ops::Range<usize>,
-    /// Every edge of the model lies between exactly two of its faces: together they are one
-    /// solid that one cannot stand in. An open model may still hold closed pieces.
-    pub closed: bool,
     /// For an open model, each triangle's corners by vertex number (the welded vertices,
     /// so that the pieces joined edge to edge can be found); empty for a closed one.
     pub open_corners: Vec<[u32; 3]>,
+}
+
+impl MeshModel {
+    /// Every edge of the model lies between exactly two of its faces: together they are one
+    /// solid that one cannot stand in. (A model has at least one triangle, so only a closed
+    /// one keeps no corners.) An open model may still hold closed pieces.
+    pub fn is_closed(&self) -> bool {
+        self.open_corners.is_empty()
+    }
 }
 
 /// A scene resolved into edges.

@@ -114,7 +114,7 @@ pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
     for (m, model) in site.models.iter().enumerate() {
         for item in model.items.clone() {
             if let Some(owner) = owner.get_mut(item as usize) {
-                *owner = Some(if model.closed {
+                *owner = Some(if model.is_closed() {
                     Owner::Solid(model.items.start)
                 } else {
                     Owner::OpenModel(m)
