@@ -173,10 +173,6 @@ const WELD_FRACTION: f64 = 1e-7;
 /// vertex write the same vector twice, to the digits they print.
 const SAME_NORMAL: f64 = 1e-5;
 
-/// The corner index given to a hole's edges in the sorted edge list: they belong to the face
-/// the hole is cut from, and the file gives them no normals.
-const HOLE_CORNER: u32 = u32::MAX >> 1;
-
 /// Names the item of a mesh's group and material: its kind, label and layer.
 pub type ItemNames<'a> = &'a (dyn Fn(u32, u32) -> ItemInfo + Sync);
 
@@ -274,6 +270,8 @@ fn add_mesh_on_cores(
     };
     let all = 0..obj.faces.len();
     let first_face = site.faces.len();
+    // Normal indices are kept only where the file has normals to point at.
+    let normals = !obj.normals.is_empty();
     // Each triangle's vertex numbers, kept until it is known whether the model is closed.
     let mut triangle_corners: Vec<[u32; 3]> = Vec::new();
     let mut staged_triangles = None;
@@ -285,7 +283,7 @@ fn add_mesh_on_cores(
         let half = |range: Range<usize>| {
             let faces = &obj.faces[range.clone()];
             let mut triangles = Vec::with_capacity(triangles_of(faces));
-            let mut welded = WeldedFaces::with_room(faces, vertices);
+            let mut welded = WeldedFaces::with_room(faces, vertices, normals);
             work.run(range, &mut welded, |t, item| triangles.push((t, item)));
             (welded, triangles)
         };
@@ -302,7 +300,7 @@ fn add_mesh_on_cores(
             second,
         }
     } else {
-        let mut welded = WeldedFaces::with_room(&obj.faces, vertices);
+        let mut welded = WeldedFaces::with_room(&obj.faces, vertices, normals);
         site.faces.reserve(triangles_of(&obj.faces));
         work.run(all, &mut welded, |t, item| {
             triangle_corners.push(t);
@@ -310,7 +308,7 @@ fn add_mesh_on_cores(
         });
         WeldedMesh {
             first: welded,
-            second: WeldedFaces::with_room(&[], 0),
+            second: WeldedFaces::with_room(&[], 0, false),
         }
     };
     drop(holes_of);
@@ -322,8 +320,8 @@ fn add_mesh_on_cores(
         ..MeshStats::default()
     };
 
-    // Every face edge as (low vertex, high vertex, face, code), grouped by the low vertex:
-    // each run's on the core that welded it. Then the edges at each vertex, from both
+    // Every face edge as (low vertex, high vertex, face and direction), grouped by the low
+    // vertex: each run's on the core that welded it. Then the edges at each vertex, from both
     // runs, sorted (equal edges are adjacent) and classed: a large model's in two ranges
     // of low vertices on two cores, cut where half the face edges lie on either side
     // (equal edges share their low vertex); the second range's edges follow the first's,
@@ -552,7 +550,7 @@ impl<'a> MeshItems<'a> {
         weld: &[u32],
         points: &[Point3<f64>],
     ) {
-        let mut scratch = Vec::new();
+        let mut scratch = Corners::default();
         let mut known = None;
         for face in &obj.faces {
             let key = (face.group, face.material);
@@ -563,7 +561,7 @@ impl<'a> MeshItems<'a> {
                 known = Some(key);
                 continue;
             }
-            scratch.clear();
+            scratch.truncate(0);
             if weld_face(obj, face, weld, points, &mut scratch).is_some() {
                 self.get_or_add(site, face);
                 known = Some(key);
@@ -580,23 +578,25 @@ fn weld_face(
     face: &ObjElement,
     weld: &[u32],
     points: &[Point3<f64>],
-    corners: &mut Vec<(u32, u32)>,
+    corners: &mut Corners,
 ) -> Option<Vector3<f64>> {
     let first = corners.len();
     for (&c, &n) in obj.face_corners(face).iter().zip(obj.face_normals(face)) {
         let w = weld[c as usize];
-        if corners.len() == first || corners.last().map(|l| l.0) != Some(w) {
-            corners.push((w, n));
+        if corners.len() == first || corners.vertices.last() != Some(&w) {
+            corners.push(w, n);
         }
     }
-    while corners.len() > first + 1 && corners[first].0 == corners[corners.len() - 1].0 {
+    while corners.len() > first + 1
+        && corners.vertices[first] == corners.vertices[corners.len() - 1]
+    {
         corners.pop();
     }
-    let welded = &corners[first..];
+    let welded = &corners.vertices[first..];
     let normal = if welded.len() < 3 {
         None
     } else {
-        newell_normal(welded.iter().map(|c| c.0), welded.len(), points)
+        newell_normal(welded.iter().copied(), welded.len(), points)
     };
     if normal.is_none() {
         corners.truncate(first);
@@ -611,8 +611,8 @@ struct WeldedFaces {
     /// begin): apart from the faces, so that walking every face's edges reads only these
     /// and the corners.
     firsts: Vec<u32>,
-    /// Each face's corners: (vertex after welding, normal index).
-    corners: Vec<(u32, u32)>,
+    /// Each face's corners.
+    corners: Corners,
     /// Holes: the face's place in `faces`, and the welded ring.
     holes: Vec<(usize, Vec<u32>)>,
     /// How many edges of these faces and holes have each vertex as their lower end, at
@@ -626,13 +626,14 @@ struct WeldedFaces {
 }
 
 impl WeldedFaces {
-    /// Empty, with room for `faces` on a mesh of `vertices` welded vertices.
-    fn with_room(faces: &[ObjElement], vertices: usize) -> Self {
+    /// Empty, with room for `faces` on a mesh of `vertices` welded vertices, and for their
+    /// normal indices if the file has normals.
+    fn with_room(faces: &[ObjElement], vertices: usize, normals: bool) -> Self {
         let corners: usize = faces.iter().map(|f| f.count as usize).sum();
         WeldedFaces {
             faces: Vec::with_capacity(faces.len()),
             firsts: Vec::with_capacity(faces.len()),
-            corners: Vec::with_capacity(corners),
+            corners: Corners::with_room(corners, normals),
             holes: Vec::new(),
             low_ends: vec![0; vertices + 1],
             dropped: 0,
@@ -640,18 +641,70 @@ impl WeldedFaces {
         }
     }
 
-    /// Face `f`'s corners: (vertex after welding, normal index), up to the next face's.
-    fn ring(&self, f: usize) -> &[(u32, u32)] {
+    /// Where face `f`'s corners lie in `corners`: up to the next face's.
+    fn span(&self, f: usize) -> Range<usize> {
         let end = self
             .firsts
             .get(f + 1)
             .map_or(self.corners.len(), |&e| e as usize);
-        &self.corners[self.firsts[f] as usize..end]
+        self.firsts[f] as usize..end
+    }
+
+    /// Face `f`'s corners (vertices after welding).
+    fn ring(&self, f: usize) -> &[u32] {
+        &self.corners.vertices[self.span(f)]
     }
 }
 
-/// A face after welding, and its corners: (vertex after welding, normal index).
-type FaceAndRing<'a> = (&'a MeshFace, &'a [(u32, u32)]);
+/// Faces' corners after welding, one face's after another: each corner's vertex, and its
+/// normal index where the file has normals. The normals are kept apart, and not at all for
+/// a file without them (most big models): the vertices are what walking edges reads.
+#[derive(Default)]
+struct Corners {
+    vertices: Vec<u32>,
+    /// One for each vertex, if the file has normals.
+    normals: Option<Vec<u32>>,
+}
+
+impl Corners {
+    /// Empty, with room for `corners`, and for their normal indices if `normals`.
+    fn with_room(corners: usize, normals: bool) -> Self {
+        Corners {
+            vertices: Vec::with_capacity(corners),
+            normals: normals.then(|| Vec::with_capacity(corners)),
+        }
+    }
+
+    fn len(&self) -> usize {
+        self.vertices.len()
+    }
+
+    fn push(&mut self, vertex: u32, normal: u32) {
+        self.vertices.push(vertex);
+        if let Some(normals) = &mut self.normals {
+            normals.push(normal);
+        }
+    }
+
+    fn pop(&mut self) {
+        self.truncate(self.len().saturating_sub(1));
+    }
+
+    fn truncate(&mut self, len: usize) {
+        self.vertices.truncate(len);
+        if let Some(normals) = &mut self.normals {
+            normals.truncate(len);
+        }
+    }
+}
+
+/// A face after welding, its corners (vertices after welding), and their normal indices if
+/// the file has normals.
+struct WeldedFace<'a> {
+    face: &'a MeshFace,
+    ring: &'a [u32],
+    normals: Option<&'a [u32]>,
+}
 
 /// A mesh's faces after welding, as the cores welded them: the file's faces in two runs,
 /// one after the other (the second empty on one core), numbered through both in turn.
@@ -666,13 +719,29 @@ impl WeldedMesh {
         self.first.faces.len() + self.second.faces.len()
     }
 
-    /// Face number `f`, and its corners.
-    fn face(&self, f: usize) -> FaceAndRing<'_> {
-        let (run, f) = match f.checked_sub(self.first.faces.len()) {
+    /// Face number `f`'s run, and its number there.
+    fn run_of(&self, f: usize) -> (&WeldedFaces, usize) {
+        match f.checked_sub(self.first.faces.len()) {
             None => (&self.first, f),
             Some(later) => (&self.second, later),
-        };
-        (&run.faces[f], run.ring(f))
+        }
+    }
+
+    /// Face number `f`.
+    fn face(&self, f: usize) -> &MeshFace {
+        let (run, f) = self.run_of(f);
+        &run.faces[f]
+    }
+
+    /// Face number `f`, with its corners.
+    fn with_corners(&self, f: usize) -> WeldedFace<'_> {
+        let (run, f) = self.run_of(f);
+        let span = run.span(f);
+        WeldedFace {
+            face: &run.faces[f],
+            ring: &run.corners.vertices[span.clone()],
+            normals: run.corners.normals.as_ref().map(|n| &n[span]),
+        }
     }
 
     /// The two runs, each with the number of its first face.
@@ -728,7 +797,7 @@ impl FaceWork<'_> {
                 continue;
             };
             last = Some((key, item));
-            let corners = &welded.corners[first..];
+            let corners = &welded.corners.vertices[first..];
             let holes = self
                 .holes_of
                 .get(&(index as u32))
@@ -736,12 +805,12 @@ impl FaceWork<'_> {
             if holes.is_empty() && (corners.len() == 3 || is_convex_face(corners, points, &normal))
             {
                 for k in 1..corners.len() - 1 {
-                    triangle([corners[0].0, corners[k].0, corners[k + 1].0], item);
+                    triangle([corners[0], corners[k], corners[k + 1]], item);
                 }
                 welded.triangles += corners.len() - 2;
             } else {
                 // A concave face, or one with holes: the general triangulator.
-                let mut ring: Vec<u32> = corners.iter().map(|&(i, _)| i).collect();
+                let mut ring: Vec<u32> = corners.to_vec();
                 let mut hole_starts = Vec::with_capacity(holes.len());
                 for hole in holes {
                     hole_starts.push(ring.len());
@@ -754,9 +823,9 @@ impl FaceWork<'_> {
                     triangle(t.map(|i| ring[i]), item);
                 }
             }
-            count_low_ends(&mut welded.low_ends, &welded.corners[first..], |c| c.0);
+            count_low_ends(&mut welded.low_ends, &welded.corners.vertices[first..]);
             for hole in holes {
-                count_low_ends(&mut welded.low_ends, hole, |v| v);
+                count_low_ends(&mut welded.low_ends, hole);
                 welded.holes.push((welded.faces.len(), hole.clone()));
             }
             welded.firsts.push(first as u32);
@@ -782,12 +851,12 @@ struct EdgeClasses<'a> {
 
 impl EdgeClasses<'_> {
     /// Walks the runs of equal edges at vertex `a` (`at_a`: its face edges as (high
-    /// vertex, face, code), sorted), handing the drawn ones (their vertices and item) to
-    /// `draw`, adding the smooth ones to `silhouettes`, and counting them.
+    /// vertex, [`face_and_direction`]), sorted), handing the drawn ones (their vertices and
+    /// item) to `draw`, adding the smooth ones to `silhouettes`, and counting them.
     fn classify(
         &self,
         a: usize,
-        at_a: &[(u32, u32, u32)],
+        at_a: &[(u32, u32)],
         draw: &mut impl FnMut(u32, u32, ItemId),
         silhouettes: &mut Vec<SilhouetteEdge>,
         stats: &mut MeshStats,
@@ -795,9 +864,10 @@ impl EdgeClasses<'_> {
         let points = self.points;
         let pa = points[a];
         for run in at_a.chunk_by(|x, y| x.0 == y.0) {
-            let (b, first_face, first_code) = run[0];
+            let (b, first) = run[0];
+            let first_face = (first >> 1) as usize;
             stats.edges += 1;
-            let item = self.welded.face(first_face as usize).0.item;
+            let item = self.welded.face(first_face).item;
             let pb = points[b as usize];
             match run.len() {
                 1 => {
@@ -805,24 +875,23 @@ impl EdgeClasses<'_> {
                     draw(a as u32, b, item);
                 }
                 2 => {
-                    let (_, second_face, second_code) = run[1];
-                    let first = self.welded.face(first_face as usize);
-                    let second = self.welded.face(second_face as usize);
-                    let n1 = first.0.normal;
+                    let second = run[1].1;
+                    let second_face = (second >> 1) as usize;
+                    let n1 = self.welded.face(first_face).normal;
                     // Consistently wound neighbours run a shared edge in opposite
                     // directions; where they do not, one of them is turned over.
-                    let flip = if first_code & 1 == second_code & 1 {
-                        -1.0
-                    } else {
-                        1.0
-                    };
-                    let n2 = second.0.normal * flip;
+                    let flip = if first & 1 == second & 1 { -1.0 } else { 1.0 };
+                    let n2 = self.welded.face(second_face).normal * flip;
                     let bend = Bend::between(&n1, &n2);
                     if !bend.exceeds(&self.coplanar) {
                         // A triangulation diagonal or a subdivided flat wall: never drawn.
                     } else {
-                        let said =
-                            file_says_smooth(self.obj, (first, first_code), (second, second_code));
+                        let said = file_says_smooth(
+                            self.obj,
+                            (a as u32, b),
+                            (self.welded.with_corners(first_face), first & 1 == 1),
+                            (self.welded.with_corners(second_face), second & 1 == 1),
+                        );
                         if said.is_some() {
                             stats.by_file += 1;
                         }
@@ -893,14 +962,12 @@ fn welded_ring(corners: &[u32], weld: &[u32]) -> Vec<u32> {
     welded
 }
 
-/// Calls `visit(low, high, face, code)` for every face edge of a run whose first face is
-/// number `base`, its faces first, then its holes. `code` is the corner index in the face
-/// times two, plus one if the face runs the edge from the low vertex to the high; a hole's
-/// edges carry [`HOLE_CORNER`].
-fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, u32, u32)) {
+/// Calls `visit(low, high, face_and_direction)` for every face edge of a run whose first
+/// face is number `base`, its faces first, then its holes.
+fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, u32)) {
     for (f, index) in (base..).zip(0..run.faces.len()) {
-        for (k, (a, _), (b, _)) in sides(run.ring(index)) {
-            visit(a.min(b), a.max(b), f, (k as u32) << 1 | (a < b) as u32);
+        for (_, a, b) in sides(run.ring(index)) {
+            visit(a.min(b), a.max(b), face_and_direction(f, a < b));
         }
     }
     for (f, ring) in &run.holes {
@@ -908,17 +975,24 @@ fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, 
             visit(
                 a.min(b),
                 a.max(b),
-                base + *f as u32,
-                HOLE_CORNER << 1 | (a < b) as u32,
+                face_and_direction(base + *f as u32, a < b),
             );
         }
     }
 }
 
+/// A face edge's face and direction in one number, so that a face edge is 8 bytes: the
+/// face's number times two, plus one if the face runs the edge from its lower vertex to
+/// its higher. (A model has at most [`crate::budget::MAX_TRIANGLES`] faces, far below 2^31.)
+fn face_and_direction(face: u32, upwards: bool) -> u32 {
+    debug_assert!(face < 1 << 31);
+    face << 1 | upwards as u32
+}
+
 /// Adds one at each side's lower end (plus one) for the sides of a closed ring.
-fn count_low_ends<T: Copy>(low_ends: &mut [u32], ring: &[T], vertex: impl Fn(T) -> u32) {
+fn count_low_ends(low_ends: &mut [u32], ring: &[u32]) {
     for (_, a, b) in sides(ring) {
-        low_ends[vertex(a).min(vertex(b)) as usize + 1] += 1;
+        low_ends[a.min(b) as usize + 1] += 1;
     }
 }
 
@@ -932,14 +1006,15 @@ fn sides<T: Copy>(ring: &[T]) -> impl Iterator<Item = (usize, T, T)> + '_ {
         .map(|(k, (&a, &b))| (k, a, b))
 }
 
-/// A run's face edges as (high vertex, face, code), grouped by their low vertex: those at
+/// A run's face edges as (high vertex, [`face_and_direction`]), grouped by their low
+/// vertex: those at
 /// `v` are `edges[starts[v]..starts[v + 1]]` (a counting sort, from the counts made while
 /// welding), in the order the faces give them. Grouping leaves only a handful of edges
 /// at each vertex to sort: linear time, where sorting all the edges at once was the
 /// costliest step of a large model.
 struct EdgesByLow {
     starts: Vec<u32>,
-    edges: Vec<(u32, u32, u32)>,
+    edges: Vec<(u32, u32)>,
 }
 
 impl EdgesByLow {
@@ -951,31 +1026,31 @@ impl EdgesByLow {
         for v in 1..starts.len() {
             starts[v] += starts[v - 1];
         }
-        let mut edges = vec![(0, 0, 0); starts[vertices] as usize];
+        let mut edges = vec![(0, 0); starts[vertices] as usize];
         let mut next = starts.clone();
-        each_face_edge(run, base, |low, high, face, code| {
+        each_face_edge(run, base, |low, high, face| {
             let at = &mut next[low as usize];
-            edges[*at as usize] = (high, face, code);
+            edges[*at as usize] = (high, face);
             *at += 1;
         });
         EdgesByLow { starts, edges }
     }
 
     /// The face edges whose low vertex is `v`.
-    fn at(&self, v: usize) -> &[(u32, u32, u32)] {
+    fn at(&self, v: usize) -> &[(u32, u32)] {
         &self.edges[self.starts[v] as usize..self.starts[v + 1] as usize]
     }
 }
 
 /// Whether a face turns the same way at every corner about its normal (a fan of triangles
 /// from its first corner then covers it exactly).
-fn is_convex_face(corners: &[(u32, u32)], points: &[Point3<f64>], normal: &Vector3<f64>) -> bool {
+fn is_convex_face(corners: &[u32], points: &[Point3<f64>], normal: &Vector3<f64>) -> bool {
     let n = corners.len();
     (0..n).all(|k| {
         let (a, b, c) = (
-            points[corners[k].0 as usize],
-            points[corners[(k + 1) % n].0 as usize],
-            points[corners[(k + 2) % n].0 as usize],
+            points[corners[k] as usize],
+            points[corners[(k + 1) % n] as usize],
+            points[corners[(k + 2) % n] as usize],
         );
         (b - a).cross(&(c - b)).dot(normal) >= 0.0
     })
@@ -988,33 +1063,36 @@ struct MeshFace {
     smoothing: Smoothing,
 }
 
-/// Whether the file says two faces meet smoothly along their shared edge, `None` if it
-/// says nothing. `code` is the edge's corner index in the face times two, plus one if the
-/// face runs it from the lower vertex to the higher.
+/// Whether the file says two faces meet smoothly along their shared edge `(low, high)`,
+/// `None` if it says nothing. With each face goes whether it runs the edge upwards (from
+/// the lower vertex to the higher).
 ///
 /// The normals decide where both faces give them at both ends: the same normal at each end
 /// (by index, or the same vector) is smooth, a split one is hard. Otherwise the smoothing
 /// groups: the same group is smooth; different groups, or no group (`s off`), hard.
 fn file_says_smooth(
     obj: &ObjFile,
-    ((f1, ring1), code1): (FaceAndRing<'_>, u32),
-    ((f2, ring2), code2): (FaceAndRing<'_>, u32),
+    (low, high): (u32, u32),
+    (f1, upwards1): (WeldedFace<'_>, bool),
+    (f2, upwards2): (WeldedFace<'_>, bool),
 ) -> Option<bool> {
-    // Each face's normal indices at the edge's low and high vertex.
-    let ends = |welded: &[(u32, u32)], code: u32| {
-        if code >> 1 == HOLE_CORNER {
+    // Each face's normal indices at the edge's low and high vertex: those of the side of
+    // its ring that runs the edge. A hole's edge is no side of the ring, and has none.
+    let ends = |face: &WeldedFace, upwards: bool| {
+        let ends = if upwards { (low, high) } else { (high, low) };
+        let side = sides(face.ring).find(|&(_, a, b)| (a, b) == ends);
+        let (Some(normals), Some((k, _, _))) = (face.normals, side) else {
             return (NO_NORMAL, NO_NORMAL);
-        }
-        let k = (code >> 1) as usize;
-        let (start, next) = (welded[k].1, welded[(k + 1) % welded.len()].1);
-        if code & 1 == 1 {
+        };
+        let (start, next) = (normals[k], normals[(k + 1) % face.ring.len()]);
+        if upwards {
             (start, next)
         } else {
             (next, start)
         }
     };
-    let (low1, high1) = ends(ring1, code1);
-    let (low2, high2) = ends(ring2, code2);
+    let (low1, high1) = ends(&f1, upwards1);
+    let (low2, high2) = ends(&f2, upwards2);
     if [low1, high1, low2, high2].iter().all(|&n| n != NO_NORMAL) {
         let same = |i: u32, j: u32| {
             i == j || {
@@ -1027,7 +1105,7 @@ fn file_says_smooth(
         };
         return Some(same(low1, low2) && same(high1, high2));
     }
-    match (f1.smoothing, f2.smoothing) {
+    match (f1.face.smoothing, f2.face.smoothing) {
         (Smoothing::Unsaid, _) | (_, Smoothing::Unsaid) => None,
         (Smoothing::Group(a), Smoothing::Group(b)) => Some(a == b),
         _ => Some(false),
@@ -1528,15 +1606,15 @@ mod tests {
     }
 
     #[test]
-    fn face_edges_are_grouped_by_their_lower_vertex_with_direction_and_corner() {
+    fn face_edges_are_grouped_by_their_lower_vertex_with_their_direction() {
         // Worked by hand: triangles (0 1 2) and (2 1 3), numbered from 10, share the edge
-        // 1-2, which they run in opposite directions (consistent winding). Each side k of a
-        // face from a to b is (high, face, 2k + [a < b]) at its lower vertex.
-        let mut run = WeldedFaces::with_room(&[], 4);
+        // 1-2, which they run in opposite directions (consistent winding). Each side of a
+        // face f from a to b is (high, 2f + [a < b]) at its lower vertex.
+        let mut run = WeldedFaces::with_room(&[], 4, false);
         for ring in [[0, 1, 2], [2, 1, 3]] {
             run.firsts.push(run.corners.len() as u32);
-            run.corners.extend(ring.map(|v| (v, NO_NORMAL)));
-            count_low_ends(&mut run.low_ends, &ring, |v| v);
+            run.corners.vertices.extend(ring);
+            count_low_ends(&mut run.low_ends, &ring);
             run.faces.push(MeshFace {
                 normal: Vector3::z(),
                 item: ItemId(0),
@@ -1544,9 +1622,9 @@ mod tests {
             });
         }
         let grouped = EdgesByLow::of(&run, 10, 4);
-        assert_eq!(grouped.at(0), [(1, 10, 1), (2, 10, 4)]);
-        assert_eq!(grouped.at(1), [(2, 10, 3), (2, 11, 0), (3, 11, 3)]);
-        assert_eq!(grouped.at(2), [(3, 11, 4)]);
+        assert_eq!(grouped.at(0), [(1, 21), (2, 20)]);
+        assert_eq!(grouped.at(1), [(2, 21), (2, 22), (3, 23)]);
+        assert_eq!(grouped.at(2), [(3, 22)]);
         assert_eq!(grouped.at(3), []);
     }
 
