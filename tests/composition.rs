@@ -13,7 +13,7 @@ use pansite::compose::{
 use pansite::output::write_svg;
 use pansite::plane::{Equirect, ImagePoint};
 use pansite::render::{draw, RenderSettings};
-use pansite::scene::{load_scene, HiddenEdges, Site, SiteCurve, Standpoint};
+use pansite::scene::{load_scene, EllipseArc, HiddenEdges, Site, SiteCurve, Standpoint};
 use pansite::sphere::{
     angle_between, azimuth_elevation, direction_from_azimuth_elevation, ViewFrame,
 };
@@ -33,7 +33,7 @@ fn corners(site: &Site) -> Vec<Point3<f64>> {
         .iter()
         .filter_map(|e| match e.curve {
             SiteCurve::Segment { start, end } => Some([start, end]),
-            SiteCurve::Ellipse { .. } => None,
+            SiteCurve::Ellipse(_) => None,
         })
         .flatten()
         .collect()
@@ -219,13 +219,14 @@ fn straight_edges_stay_straight_and_arcs_are_within_tolerance() {
                     assert!(cross.abs() / length < 1e-6);
                 }
             }
-            SiteCurve::Ellipse {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc {
+                    centre,
+                    u,
+                    v,
+                    start,
+                    sweep,
+                } = **arc;
                 // Every true point of the arc inside the picture is within 0.1 px of the
                 // drawing (the definition, densely sampled).
                 for k in 0..=200 {

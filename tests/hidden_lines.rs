@@ -43,7 +43,7 @@ fn seen_by_brute_force(faces: &[Face], eye: &Point3<f64>, p: &Point3<f64>) -> bo
 fn site_point(view: &ViewFrame, edge: &SiteCurve, curve: &SphereCurve, t: f64) -> Point3<f64> {
     let d = curve.position(t);
     match *edge {
-        SiteCurve::Ellipse { .. } => view.eye() + view.direction_to_site(&d),
+        SiteCurve::Ellipse(_) => view.eye() + view.direction_to_site(&d),
         SiteCurve::Segment { start, end } => {
             // Where the sight line meets the segment: solve eye + s D = start + k (end - start)
             // by least squares in the plane they share.
@@ -77,8 +77,8 @@ fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
     let eye = view.eye();
     let bvh = Bvh::new(&site.faces);
     let occluders = Occluders::new(&site.faces, &bvh, &view);
-    let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve).collect();
-    edges.extend(site.outline_edges_from(&eye).iter().map(|e| e.curve));
+    let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve.clone()).collect();
+    edges.extend(site.outline_edges_from(&eye).into_iter().map(|e| e.curve));
     let mut tally = Tally {
         samples: 0,
         disagreeing: 0,
@@ -93,7 +93,7 @@ fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
                 a: view.to_view(&start),
                 b: view.to_view(&end),
             },
-            SiteCurve::Ellipse { .. } => Depth::Curve,
+            SiteCurve::Ellipse(_) => Depth::Curve,
         };
         let spans = occluders.spans(&curve, &depth, PIXEL, 1e-3 * PIXEL);
         let renderer_sees = |t: f64| {

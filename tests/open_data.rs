@@ -622,8 +622,8 @@ fn a_mapped_round_roof_rises_its_roof_height_and_its_crest_is_the_tangent_conics
     let arches: Vec<_> = site
         .edges
         .iter()
-        .filter_map(|e| match e.curve {
-            pansite::scene::SiteCurve::Ellipse { centre, u, v, .. } => Some((centre, u, v)),
+        .filter_map(|e| match &e.curve {
+            pansite::scene::SiteCurve::Ellipse(arc) => Some((arc.centre, arc.u, arc.v)),
             _ => None,
         })
         .collect();

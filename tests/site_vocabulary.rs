@@ -6,8 +6,8 @@
 use nalgebra::{Point3, Vector2};
 use pansite::plane::{flatten, Equirect, ImagePoint, PolylineSet};
 use pansite::scene::{
-    bounds, parse_scene, tangent_points, ItemId, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
-    SEATED_EYE_HEIGHT,
+    bounds, parse_scene, tangent_points, EllipseArc, ItemId, Site, SiteCurve, Standpoint,
+    DEFAULT_EYE_HEIGHT, SEATED_EYE_HEIGHT,
 };
 use pansite::sphere::{azimuth_elevation, ViewFrame};
 use proptest::prelude::*;
@@ -221,19 +221,19 @@ fn dome_rim_is_where_sight_lines_graze_the_sphere() {
             .outline_edges_from(&eye)
             .into_iter()
             .map(|e| e.curve)
-            .filter(|c| matches!(c, SiteCurve::Ellipse { .. }))
+            .filter(|c| matches!(c, SiteCurve::Ellipse(_)))
             .collect();
         assert_eq!(rims.len(), 1, "{eye}");
-        let SiteCurve::Ellipse {
+        let SiteCurve::Ellipse(arc) = &rims[0] else {
+            panic!()
+        };
+        let EllipseArc {
             centre: c,
             u,
             v,
             start,
             sweep,
-        } = rims[0]
-        else {
-            panic!()
-        };
+        } = **arc;
         for i in 0..=20 {
             let t = start + sweep * i as f64 / 20.0;
             let p = c + u * t.cos() + v * t.sin();
@@ -305,7 +305,7 @@ fn highest_curve_point(site: &Site) -> f64 {
     let mut curves = site.clone();
     curves
         .edges
-        .retain(|e| matches!(e.curve, SiteCurve::Ellipse { .. }));
+        .retain(|e| matches!(e.curve, SiteCurve::Ellipse(_)));
     curves.faces.clear();
     bounds(&curves).unwrap().1.z
 }
@@ -323,9 +323,9 @@ fn segmental_arch_crown_and_radius() {
     assert_near(highest_curve_point(&site), springing + rise, 1e-12);
     let radius = (span * span / 4.0 + rise * rise) / (2.0 * rise);
     for edge in &site.edges {
-        if let SiteCurve::Ellipse { u, v, .. } = edge.curve {
-            assert_near(u.norm(), radius, 1e-12);
-            assert_near(v.norm(), radius, 1e-12);
+        if let SiteCurve::Ellipse(arc) = &edge.curve {
+            assert_near(arc.u.norm(), radius, 1e-12);
+            assert_near(arc.v.norm(), radius, 1e-12);
         }
     }
 }
@@ -367,9 +367,9 @@ fn pointed_arch_and_window_head_by_radius() {
             1e-12,
         );
         for edge in &site.edges {
-            if let SiteCurve::Ellipse { u, v, .. } = edge.curve {
-                assert_near(u.norm(), radius, 1e-12);
-                assert_near(v.norm(), radius, 1e-12);
+            if let SiteCurve::Ellipse(arc) = &edge.curve {
+                assert_near(arc.u.norm(), radius, 1e-12);
+                assert_near(arc.v.norm(), radius, 1e-12);
             }
         }
     }
@@ -385,9 +385,9 @@ fn pointed_arch_and_window_head_by_radius() {
     let springing = sill + height - rise(width, radius);
     let mut arcs = 0;
     for edge in &site.edges {
-        if let SiteCurve::Ellipse { centre, u, .. } = edge.curve {
-            assert_near(u.norm(), radius, 1e-12);
-            assert_near(centre.z, springing, 1e-12);
+        if let SiteCurve::Ellipse(arc) = &edge.curve {
+            assert_near(arc.u.norm(), radius, 1e-12);
+            assert_near(arc.centre.z, springing, 1e-12);
             arcs += 1;
         }
     }
@@ -409,9 +409,9 @@ fn segmental_window_head_crown_and_radius() {
     let radius = (width * width / 4.0 + rise * rise) / (2.0 * rise);
     let mut radii: Vec<f64> = Vec::new();
     for edge in &site.edges {
-        if let SiteCurve::Ellipse { u, v, .. } = edge.curve {
-            assert_near(u.norm(), v.norm(), 1e-12);
-            radii.push(u.norm());
+        if let SiteCurve::Ellipse(arc) = &edge.curve {
+            assert_near(arc.u.norm(), arc.v.norm(), 1e-12);
+            radii.push(arc.u.norm());
         }
     }
     radii.sort_by(f64::total_cmp);
@@ -436,10 +436,10 @@ fn equilateral_pointed_window_head_apex() {
     assert_near(highest_curve_point(&site), sill + height, 1e-12);
     let springing = sill + height - width * 60f64.to_radians().sin();
     for edge in &site.edges {
-        if let SiteCurve::Ellipse { centre, u, .. } = edge.curve {
+        if let SiteCurve::Ellipse(arc) = &edge.curve {
             // Each arc's radius is the width, its centre on the springing line.
-            assert_near(u.norm(), width, 1e-12);
-            assert_near(centre.z, springing, 1e-12);
+            assert_near(arc.u.norm(), width, 1e-12);
+            assert_near(arc.centre.z, springing, 1e-12);
         }
     }
 }
@@ -466,10 +466,10 @@ fn a_footprints_sides_take_shaped_heads_and_round_windows() {
         let mut half_circles = 0;
         let mut circles = 0;
         for edge in &site.edges {
-            if let SiteCurve::Ellipse {
-                centre: c, u, v, ..
-            } = edge.curve
-            {
+            if let SiteCurve::Ellipse(arc) = &edge.curve {
+                let EllipseArc {
+                    centre: c, u, v, ..
+                } = **arc;
                 // Every curve stands in the side's plane y = 0.
                 assert_near(c.y, 0.0, 1e-12);
                 assert_near(u.y, 0.0, 1e-12);
@@ -573,7 +573,7 @@ proptest! {
         let view = ViewFrame::new(&standpoint);
         let outlines = site.outline_edges_from(&standpoint.eye());
         let curved = site.edges.iter().chain(&outlines).filter(|e| {
-            matches!(e.curve, SiteCurve::Ellipse { .. }) || outlines.contains(e)
+            matches!(e.curve, SiteCurve::Ellipse(_)) || outlines.contains(e)
         });
         // Every curve is built and compared: none may slip through as "no image".
         let (mut curves, mut points) = (0, 0);
@@ -902,7 +902,7 @@ fn curves_of<'a>(site: &'a Site, label: &str) -> impl Iterator<Item = SiteCurve>
     site.edges
         .iter()
         .filter(move |e| e.item == ItemId(item))
-        .map(|e| e.curve)
+        .map(|e| e.curve.clone())
 }
 
 /// The lowest point of an item's edges: segment ends, and the lowest point of each
@@ -911,7 +911,7 @@ fn lowest_point_of(site: &Site, label: &str) -> f64 {
     curves_of(site, label)
         .map(|curve| match curve {
             SiteCurve::Segment { start, end } => start.z.min(end.z),
-            SiteCurve::Ellipse { centre, u, v, .. } => centre.z - u.z.hypot(v.z),
+            SiteCurve::Ellipse(arc) => arc.centre.z - arc.u.z.hypot(arc.v.z),
         })
         .fold(f64::INFINITY, f64::min)
 }
@@ -1037,8 +1037,8 @@ fn a_figure_car_or_tree_sunk_in_the_ground_is_refused_by_name() {
 fn level_circles_of(site: &Site, label: &str) -> Vec<(f64, f64)> {
     curves_of(site, label)
         .filter_map(|curve| match curve {
-            SiteCurve::Ellipse { centre, u, v, .. } if u.z == 0.0 && v.z == 0.0 => {
-                Some((centre.z, u.norm()))
+            SiteCurve::Ellipse(arc) if arc.u.z == 0.0 && arc.v.z == 0.0 => {
+                Some((arc.centre.z, arc.u.norm()))
             }
             _ => None,
         })
@@ -1050,7 +1050,7 @@ fn level_circles_of(site: &Site, label: &str) -> Vec<(f64, f64)> {
 fn sloping_arcs_of(site: &Site, label: &str) -> Vec<SiteCurve> {
     curves_of(site, label)
         .filter(
-            |curve| matches!(curve, SiteCurve::Ellipse { u, v, .. } if u.z != 0.0 || v.z != 0.0),
+            |curve| matches!(curve, SiteCurve::Ellipse(arc) if arc.u.z != 0.0 || arc.v.z != 0.0),
         )
         .collect()
 }
@@ -1087,16 +1087,16 @@ fn round_items_stand_at_the_lowest_ground_round_their_rims() {
             1,
             "{label}: one flat triangle, one whole ellipse"
         );
-        let SiteCurve::Ellipse {
+        let SiteCurve::Ellipse(arc) = &arcs[0] else {
+            unreachable!()
+        };
+        let EllipseArc {
             centre,
             u,
             v,
             sweep,
             ..
-        } = arcs[0]
-        else {
-            unreachable!()
-        };
+        } = **arc;
         assert_near(sweep, std::f64::consts::TAU, 1e-12);
         assert_near(
             (centre - Point3::new(x, y, plane_height(x, y))).norm(),
@@ -1133,16 +1133,16 @@ fn a_round_item_in_a_turned_group_meets_the_ground_in_the_same_ellipse() {
     ));
     let arcs = sloping_arcs_of(&site, "c");
     assert_eq!(arcs.len(), 1);
-    let SiteCurve::Ellipse {
+    let SiteCurve::Ellipse(arc) = &arcs[0] else {
+        unreachable!()
+    };
+    let EllipseArc {
         centre,
         u,
         v,
         start,
         sweep,
-    } = arcs[0]
-    else {
-        unreachable!()
-    };
+    } = **arc;
     assert_near((centre - Point3::new(20.0, 10.0, 4.0)).norm(), 0.0, 1e-12);
     let ground = site.ground.as_ref().unwrap();
     for k in 0..16 {
@@ -1163,12 +1163,10 @@ fn a_round_item_in_a_turned_group_meets_the_ground_in_the_same_ellipse() {
             Column(label: \"c\", at: (0, 0), diameter: 4, height: 3, on_ground: true)])])"
     ));
     let foot = 0.3048;
-    let SiteCurve::Ellipse {
-        centre: in_feet, ..
-    } = sloping_arcs_of(&feet, "c")[0]
-    else {
+    let SiteCurve::Ellipse(arc) = &sloping_arcs_of(&feet, "c")[0] else {
         unreachable!()
     };
+    let in_feet = arc.centre;
     assert_near(
         (in_feet - Point3::new(20.0, 10.0, 4.0) * foot).norm(),
         0.0,
@@ -1201,16 +1199,16 @@ fn a_round_item_across_a_valley_meets_each_side_in_its_own_arc() {
     assert_eq!(arcs.len(), 2);
     let ground = site.ground.as_ref().unwrap();
     for arc in arcs {
-        let SiteCurve::Ellipse {
+        let SiteCurve::Ellipse(arc) = arc else {
+            unreachable!()
+        };
+        let EllipseArc {
             centre,
             u,
             v,
             start,
             sweep,
-        } = arc
-        else {
-            unreachable!()
-        };
+        } = *arc;
         assert_near(sweep, std::f64::consts::PI, 1e-12);
         for k in 0..=8 {
             let t = start + sweep * k as f64 / 8.0;

@@ -464,7 +464,7 @@ fn figures_eyes_lie_on_the_horizon_at_any_distance() {
         site.edges
             .iter()
             .filter_map(|edge| {
-                let pansite::scene::SiteCurve::Ellipse { v, .. } = edge.curve else {
+                let pansite::scene::SiteCurve::Ellipse(arc) = &edge.curve else {
                     return None;
                 };
                 let label = site.items[edge.item.0 as usize]
@@ -474,7 +474,7 @@ fn figures_eyes_lie_on_the_horizon_at_any_distance() {
                 let curve = view.sphere_curve(&edge.curve).unwrap();
                 let middle = (curve.t0 + curve.t1) / 2.0;
                 let elevation = |t: f64| azimuth_elevation(&curve.position(t)).1;
-                let size = (v.norm() / curve.centre.norm()).atan();
+                let size = (arc.v.norm() / curve.centre.norm()).atan();
                 Some((label, [elevation(curve.t0), elevation(middle)], size))
             })
             .collect()

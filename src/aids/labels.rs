@@ -8,7 +8,7 @@ use super::settings::AidSettings;
 use crate::drawing::{text_width, Align, Label, LabelKind, Spot};
 use crate::plane::{image_of_direction, image_of_point};
 use crate::plane::{Equirect, ImagePoint, PolylineSet, Rect};
-use crate::scene::{ItemId, Site, SiteCurve};
+use crate::scene::{EllipseArc, ItemId, Site, SiteCurve};
 use crate::sphere::{direction_from_azimuth_elevation, ViewFrame};
 use nalgebra::Point3;
 
@@ -171,7 +171,8 @@ fn anchors(site: &Site) -> Vec<Option<Point3<f64>>> {
                 add(edge.item, start);
                 add(edge.item, end);
             }
-            SiteCurve::Ellipse { centre, u, v, .. } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc { centre, u, v, .. } = **arc;
                 add(edge.item, centre + u);
                 add(edge.item, centre - u);
                 add(edge.item, centre + v);

@@ -14,7 +14,7 @@ use crate::drawing::{
 use crate::error::{Error, Result};
 use crate::page::{Paper, Sheet};
 use crate::plane::{ImagePoint, PolylineSet, Rect};
-use crate::scene::{bounds, Site, SiteCurve, Standpoint};
+use crate::scene::{bounds, EllipseArc, Site, SiteCurve, Standpoint};
 
 /// The size of the plan and its paper resolution.
 #[derive(Clone, Debug, PartialEq)]
@@ -458,11 +458,11 @@ fn building_labels(site: &Site, plan: &Plan, letter_px: f64) -> Vec<Label> {
         };
         let ends = match edge.curve {
             SiteCurve::Segment { start, end } => [start, end],
-            SiteCurve::Ellipse { centre, u, v, .. } => {
-                let r = u.norm().max(v.norm());
+            SiteCurve::Ellipse(ref arc) => {
+                let r = arc.u.norm().max(arc.v.norm());
                 [
-                    centre - nalgebra::Vector3::new(r, r, 0.0),
-                    centre + nalgebra::Vector3::new(r, r, 0.0),
+                    arc.centre - nalgebra::Vector3::new(r, r, 0.0),
+                    arc.centre + nalgebra::Vector3::new(r, r, 0.0),
                 ]
             }
         };
@@ -539,13 +539,14 @@ fn plan_curve(plan: &Plan, curve: &SiteCurve, tolerance: f64, out: &mut Polyline
                 out.push(&[a, b]);
             }
         }
-        SiteCurve::Ellipse {
-            centre,
-            u,
-            v,
-            start,
-            sweep,
-        } => {
+        SiteCurve::Ellipse(ref arc) => {
+            let EllipseArc {
+                centre,
+                u,
+                v,
+                start,
+                sweep,
+            } = **arc;
             // The plan of an ellipse is an ellipse (or a segment): chords of angle dt stray
             // at most r dt^2 / 8 from it, r the larger semi-axis in plan.
             let r = u.xy().norm().max(v.xy().norm()) * plan.px_per_metre;

@@ -16,7 +16,7 @@ use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
 use crate::error::{Error, Result};
 use crate::page::{clip_segment, Rect};
 use crate::plane::{ImagePoint, PolylineSet};
-use crate::scene::{Edge, HiddenEdges, Site, SiteCurve, Standpoint};
+use crate::scene::{Edge, EllipseArc, HiddenEdges, Site, SiteCurve, Standpoint};
 use crate::sphere::ViewFrame;
 use crate::visibility::{Depth, HiddenLines, Occluders};
 use nalgebra::{Point3, Vector3};
@@ -209,13 +209,14 @@ impl Pinhole {
             SiteCurve::Segment { start, end } => {
                 self.segment(self.view.to_view(&start), self.view.to_view(&end), out)
             }
-            SiteCurve::Ellipse {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc {
+                    centre,
+                    u,
+                    v,
+                    start,
+                    sweep,
+                } = **arc;
                 let at = |t: f64| self.view.to_view(&(centre + u * t.cos() + v * t.sin()));
                 self.arc(&at, start, start + sweep, tolerance, out);
             }
@@ -432,9 +433,10 @@ fn look_at_edge(
             &[camera.view.to_view(&start), camera.view.to_view(&end)],
             0.0,
         ),
-        SiteCurve::Ellipse { centre, u, v, .. } => {
+        SiteCurve::Ellipse(ref arc) => {
             // |u cos t + v sin t| <= |u| + |v|: a ball round the centre holds it.
-            camera.wholly_outside(&[camera.view.to_view(&centre)], u.norm() + v.norm())
+            let radius = arc.u.norm() + arc.v.norm();
+            camera.wholly_outside(&[camera.view.to_view(&arc.centre)], radius)
         }
     };
     if outside {
@@ -457,7 +459,7 @@ fn look_at_edge(
                 camera.segment(a + (b - a) * s0, a + (b - a) * s1, out);
             }
         }
-        SiteCurve::Ellipse { .. } => {
+        SiteCurve::Ellipse(_) => {
             // An ellipse's sphere curve is its own points relative to the eye.
             for (t0, t1, is_seen) in occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel) {
                 if t1 > t0 {

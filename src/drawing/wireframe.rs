@@ -267,8 +267,8 @@ impl Distance {
                     .clamp(0.0, 1.0);
                 (start + along * t - eye).norm()
             }
-            SiteCurve::Ellipse { centre, u, v, .. } => {
-                ((centre - eye).norm() - u.norm().max(v.norm())).max(0.0)
+            SiteCurve::Ellipse(ref arc) => {
+                ((arc.centre - eye).norm() - arc.u.norm().max(arc.v.norm())).max(0.0)
             }
         };
         if nearest < NEAR_METRES {
@@ -344,7 +344,7 @@ fn flatten_edges(
                                 a: view.to_view(&start),
                                 b: view.to_view(&end),
                             },
-                            SiteCurve::Ellipse { .. } => Depth::Curve,
+                            SiteCurve::Ellipse(_) => Depth::Curve,
                         };
                         for (t0, t1, seen) in occluders.spans(&curve, &depth, pixel, 1e-3 * pixel) {
                             if t1 <= t0 {
@@ -384,7 +384,7 @@ fn flatten_edges(
 mod tests {
     use super::*;
     use crate::plane::Equirect;
-    use crate::scene::{parse_scene, Face, HiddenEdges};
+    use crate::scene::{parse_scene, EllipseArc, Face, HiddenEdges};
     use std::path::Path;
 
     fn drawn(scene: &str, width: f64, hidden: HiddenEdges) -> Wireframe {
@@ -558,13 +558,13 @@ mod tests {
         // semi-axis 8.5 m); 40 m off with semi-axes 2 and 1 m, 38 m (far); 3 m off with a
         // radius of 5 m the eye is inside it, 0 m (near).
         let ellipse = |ahead: f64, u: f64, v: f64| Edge {
-            curve: SiteCurve::Ellipse {
+            curve: SiteCurve::from(EllipseArc {
                 centre: eye + Vector3::new(0.0, ahead, 0.0),
                 u: Vector3::new(u, 0.0, 0.0),
                 v: Vector3::new(0.0, 0.0, v),
                 start: 0.0,
                 sweep: std::f64::consts::TAU,
-            },
+            }),
             item: ItemId(0),
         };
         assert_eq!(band(ellipse(9.0, 1.0, 2.0)), Distance::Near);

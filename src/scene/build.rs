@@ -3,7 +3,7 @@
 //! the groups and repeats the item sits in).
 
 use super::outline::RoundOutline;
-use super::site::{Edge, Face, ItemId, Marker, Outline, Site, SiteCurve};
+use super::site::{Edge, EllipseArc, Face, ItemId, Marker, Outline, Site, SiteCurve};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::collections::HashSet;
 use std::f64::consts::TAU;
@@ -264,13 +264,13 @@ impl<'a> ItemBuilder<'a> {
         sweep: f64,
     ) {
         self.site.edges.push(Edge {
-            curve: SiteCurve::Ellipse {
+            curve: SiteCurve::from(EllipseArc {
                 centre: self.place.point(&centre),
                 u: self.place.vector(&u),
                 v: self.place.vector(&v),
                 start,
                 sweep,
-            },
+            }),
             item: self.item,
         });
     }

@@ -1,9 +1,12 @@
 //! The curves an item is drawn with, in site coordinates.
+//!
+//! The ellipse's numbers live behind a box: arcs are few, while a big mesh model has a
+//! million straight edges, each kept small by not reserving an arc's room.
 
 use nalgebra::{Point3, Vector3};
 
 /// A drawable edge in site coordinates.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq)]
 pub enum SiteCurve {
     /// A straight edge.
     Segment {
@@ -12,20 +15,30 @@ pub enum SiteCurve {
         /// The other end.
         end: Point3<f64>,
     },
-    /// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): circles
-    /// and ellipses of arches, columns and domes.
-    Ellipse {
-        /// The centre.
-        centre: Point3<f64>,
-        /// The semi-axis at `t = 0`.
-        u: Vector3<f64>,
-        /// The semi-axis at `t = pi / 2` (perpendicular to `u` for a true ellipse).
-        v: Vector3<f64>,
-        /// Where the arc starts, radians.
-        start: f64,
-        /// How far it runs, radians (negative runs backwards).
-        sweep: f64,
-    },
+    /// An elliptic arc: circles and ellipses of arches, columns and domes.
+    Ellipse(Box<EllipseArc>),
+}
+
+/// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): the numbers
+/// of a [`SiteCurve::Ellipse`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct EllipseArc {
+    /// The centre.
+    pub centre: Point3<f64>,
+    /// The semi-axis at `t = 0`.
+    pub u: Vector3<f64>,
+    /// The semi-axis at `t = pi / 2` (perpendicular to `u` for a true ellipse).
+    pub v: Vector3<f64>,
+    /// Where the arc starts, radians.
+    pub start: f64,
+    /// How far it runs, radians (negative runs backwards).
+    pub sweep: f64,
+}
+
+impl From<EllipseArc> for SiteCurve {
+    fn from(arc: EllipseArc) -> Self {
+        SiteCurve::Ellipse(Box::new(arc))
+    }
 }
 
 impl SiteCurve {
@@ -36,13 +49,14 @@ impl SiteCurve {
             SiteCurve::Segment { start, end } => {
                 start.iter().chain(end.iter()).all(|x| x.is_finite())
             }
-            SiteCurve::Ellipse {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } => {
+            SiteCurve::Ellipse(arc) => {
+                let EllipseArc {
+                    centre,
+                    u,
+                    v,
+                    start,
+                    sweep,
+                } = &**arc;
                 let numbers = centre.iter().chain(u.iter()).chain(v.iter());
                 numbers.chain([start, sweep]).all(|x| x.is_finite())
             }
@@ -61,12 +75,14 @@ mod tests {
         assert!(segment(Point3::origin()).is_finite());
         assert!(!segment(Point3::new(0.0, f64::NAN, 0.0)).is_finite());
         assert!(!segment(Point3::new(0.0, 0.0, f64::INFINITY)).is_finite());
-        let ellipse = |u: f64, sweep: f64| SiteCurve::Ellipse {
-            centre: p,
-            u: Vector3::new(u, 0.0, 0.0),
-            v: Vector3::y(),
-            start: 0.0,
-            sweep,
+        let ellipse = |u: f64, sweep: f64| {
+            SiteCurve::from(EllipseArc {
+                centre: p,
+                u: Vector3::new(u, 0.0, 0.0),
+                v: Vector3::y(),
+                start: 0.0,
+                sweep,
+            })
         };
         assert!(ellipse(1.0, 1.0).is_finite());
         assert!(!ellipse(f64::NAN, 1.0).is_finite());

@@ -7,7 +7,7 @@
 //! the height of the ground anywhere inside it: items and standpoints can stand on it.
 
 use super::numbers::{Finite, Plan, Spot};
-use super::site::{Edge, Face, ItemId, Site, SiteCurve};
+use super::site::{Edge, EllipseArc, Face, ItemId, Site, SiteCurve};
 use nalgebra::{Point3, Vector2};
 use serde::Deserialize;
 use spade::{ConstrainedDelaunayTriangulation, Point2, Triangulation};
@@ -420,7 +420,8 @@ pub fn draw_ground(site: &mut Site, spec: &GroundSpec, edges: GroundEdges) {
         }
         let off = match edge.curve {
             SiteCurve::Segment { start, end } => outside(&start) || outside(&end),
-            SiteCurve::Ellipse { centre, u, v, .. } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc { centre, u, v, .. } = **arc;
                 outside(&(centre + u))
                     || outside(&(centre - u))
                     || outside(&(centre + v))

@@ -52,8 +52,8 @@ pub use opendata::{
 };
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Axis, Edge, Face, HiddenEdges, ItemId, ItemInfo, Marker, MeshModel, NamedPoint, Outline,
-    SilhouetteEdge, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+    Axis, Edge, EllipseArc, Face, HiddenEdges, ItemId, ItemInfo, Marker, MeshModel, NamedPoint,
+    Outline, SilhouetteEdge, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

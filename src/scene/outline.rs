@@ -4,7 +4,7 @@
 //! Each is found exactly from the eye's position (tangent planes through the eye), so a
 //! round column reads correctly from anywhere.
 
-use super::curve::SiteCurve;
+use super::curve::{EllipseArc, SiteCurve};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::f64::consts::PI;
 
@@ -234,13 +234,13 @@ fn sphere_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<Sit
         horizontal.normalize()
     };
     let v = n.cross(&u);
-    Some(SiteCurve::Ellipse {
+    Some(SiteCurve::from(EllipseArc {
         centre: rim_centre,
         u: u * rim_radius,
         v: v * rim_radius,
         start: 0.0,
         sweep: 2.0 * PI,
-    })
+    }))
 }
 
 /// The rim of the upper half of a spheroid (equator `radius`, crown `height` above it) seen
@@ -261,19 +261,12 @@ fn spheroid_dome_rim(
     let stretched_eye = Point3::new(eye.x, eye.y, centre.z + (eye.z - centre.z) * stretch);
     let squeeze = |v: Vector3<f64>| Vector3::new(v.x, v.y, v.z / stretch);
     match dome_rim(centre, radius, &stretched_eye)? {
-        SiteCurve::Ellipse {
-            centre: rim_centre,
-            u,
-            v,
-            start,
-            sweep,
-        } => Some(SiteCurve::Ellipse {
-            centre: centre + squeeze(rim_centre - centre),
-            u: squeeze(u),
-            v: squeeze(v),
-            start,
-            sweep,
-        }),
+        SiteCurve::Ellipse(mut arc) => {
+            arc.centre = centre + squeeze(arc.centre - centre);
+            arc.u = squeeze(arc.u);
+            arc.v = squeeze(arc.v);
+            Some(SiteCurve::Ellipse(arc))
+        }
         other => Some(other),
     }
 }
@@ -292,12 +285,14 @@ fn dome_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteC
     let horizontal = Vector3::new(-n.y, n.x, 0.0);
     if horizontal.norm() < 1e-12 {
         // Straight above or below the centre: the rim is a level circle.
-        return (rim_height > 0.0).then(|| SiteCurve::Ellipse {
-            centre: rim_centre,
-            u: Vector3::x() * rim_radius,
-            v: Vector3::y() * rim_radius,
-            start: 0.0,
-            sweep: 2.0 * PI,
+        return (rim_height > 0.0).then(|| {
+            SiteCurve::from(EllipseArc {
+                centre: rim_centre,
+                u: Vector3::x() * rim_radius,
+                v: Vector3::y() * rim_radius,
+                start: 0.0,
+                sweep: 2.0 * PI,
+            })
         });
     }
     let u = horizontal.normalize();
@@ -321,13 +316,13 @@ fn dome_rim(centre: Point3<f64>, radius: f64, eye: &Point3<f64>) -> Option<SiteC
         let low = k.asin();
         (low, PI - 2.0 * low)
     };
-    Some(SiteCurve::Ellipse {
+    Some(SiteCurve::from(EllipseArc {
         centre: rim_centre,
         u: u * rim_radius,
         v: v * rim_radius,
         start,
         sweep,
-    })
+    }))
 }
 
 #[cfg(test)]
@@ -350,10 +345,10 @@ mod tests {
     fn dome_rim_from_the_side_is_a_half_circle() {
         // Eye level with the centre: the rim's upper half is the half above the equator.
         let rim = dome_rim(Point3::origin(), 1.0, &Point3::new(0.0, -4.0, 0.0)).unwrap();
-        let SiteCurve::Ellipse { start, sweep, .. } = rim else {
+        let SiteCurve::Ellipse(arc) = rim else {
             panic!()
         };
-        assert!(start.abs() < 1e-12 && (sweep - PI).abs() < 1e-12);
+        assert!(arc.start.abs() < 1e-12 && (arc.sweep - PI).abs() < 1e-12);
     }
 
     #[test]
@@ -367,16 +362,16 @@ mod tests {
             Point3::new(-12.0, 3.0, 3.0),
             Point3::new(2.0, 9.0, 30.0),
         ] {
-            let Some(SiteCurve::Ellipse {
+            let Some(SiteCurve::Ellipse(arc)) = spheroid_dome_rim(centre, r, h, &eye) else {
+                panic!("no rim from {eye:?}")
+            };
+            let EllipseArc {
                 centre: c,
                 u,
                 v,
                 start,
                 sweep,
-            }) = spheroid_dome_rim(centre, r, h, &eye)
-            else {
-                panic!("no rim from {eye:?}")
-            };
+            } = *arc;
             for k in 0..=8 {
                 let t = start + sweep * k as f64 / 8.0;
                 let p = c + u * t.cos() + v * t.sin();
@@ -443,9 +438,9 @@ mod tests {
     #[test]
     fn dome_rim_seen_from_above_is_whole() {
         let rim = dome_rim(Point3::origin(), 1.0, &Point3::new(0.3, -0.2, 5.0)).unwrap();
-        let SiteCurve::Ellipse { sweep, .. } = rim else {
+        let SiteCurve::Ellipse(arc) = rim else {
             panic!()
         };
-        assert!((sweep - 2.0 * PI).abs() < 1e-12);
+        assert!((arc.sweep - 2.0 * PI).abs() < 1e-12);
     }
 }

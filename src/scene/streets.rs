@@ -550,7 +550,7 @@ fn short(length: f64) -> String {
 mod tests {
     use super::*;
     use crate::scene::items::{road_line, RoadSpec};
-    use crate::scene::SiteCurve;
+    use crate::scene::{EllipseArc, SiteCurve};
     use std::f64::consts::FRAC_PI_2;
 
     fn v(x: f64, y: f64) -> Vector2<f64> {
@@ -577,10 +577,13 @@ mod tests {
     fn arcs(site: &Site) -> Vec<(Vector2<f64>, f64, f64, f64)> {
         site.edges
             .iter()
-            .filter_map(|e| match e.curve {
-                SiteCurve::Ellipse {
-                    centre, u, sweep, ..
-                } => Some((v(centre.x, centre.y), u.norm(), sweep, centre.z)),
+            .filter_map(|e| match &e.curve {
+                SiteCurve::Ellipse(arc) => {
+                    let EllipseArc {
+                        centre, u, sweep, ..
+                    } = **arc;
+                    Some((v(centre.x, centre.y), u.norm(), sweep, centre.z))
+                }
                 _ => None,
             })
             .collect()

@@ -2,7 +2,7 @@
 //! the panorama is laid out in.
 
 use super::SphereCurve;
-use crate::scene::{SiteCurve, Standpoint};
+use crate::scene::{EllipseArc, SiteCurve, Standpoint};
 use nalgebra::{Point3, Rotation3, Vector3};
 
 /// Why an edge has no drawable image from a standpoint. The renderer skips such edges with a
@@ -92,13 +92,14 @@ impl ViewFrame {
                 SphereCurve::great_arc_between_units(a * (1.0 / length_a), b * (1.0 / length_b))
                     .ok_or(Degeneracy::SeenEndOn)
             }
-            SiteCurve::Ellipse {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc {
+                    centre,
+                    u,
+                    v,
+                    start,
+                    sweep,
+                } = **arc;
                 if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300) || sweep == 0.0 {
                     return Err(Degeneracy::ZeroLength);
                 }
@@ -190,13 +191,13 @@ mod tests {
 
         let ellipse = |u: Vector3<f64>, v: Vector3<f64>, sweep: f64| {
             let centre = eye + far;
-            view.sphere_curve(&SiteCurve::Ellipse {
+            view.sphere_curve(&SiteCurve::from(EllipseArc {
                 centre,
                 u,
                 v,
                 start: 0.0,
                 sweep,
-            })
+            }))
         };
         let (u, v) = (Vector3::new(1.0, 0.0, 0.0), Vector3::new(0.0, 0.0, 1.0));
         assert_eq!(ellipse(u, v, 0.0), Err(Degeneracy::ZeroLength));

@@ -384,7 +384,7 @@ fn parameter_step(curve: &SphereCurve, t: f64, angle: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::scene::{ItemId, SiteCurve, Standpoint};
+    use crate::scene::{EllipseArc, ItemId, SiteCurve, Standpoint};
     use std::f64::consts::{PI, TAU};
 
     #[test]
@@ -632,13 +632,13 @@ mod tests {
         let bvh = Bvh::new(&faces);
         let view = eye_at_1_5();
         let occluders = Occluders::new(&faces, &bvh, &view);
-        let ring = SiteCurve::Ellipse {
+        let ring = SiteCurve::from(EllipseArc {
             centre: Point3::new(0.0, 20.0, 1.0),
             u: Vector3::new(2.0, 0.0, 0.0),
             v: Vector3::new(0.0, 2.0, 0.0),
             start: -PI / 2.0,
             sweep: TAU,
-        };
+        });
         let curve = view.sphere_curve(&ring).unwrap();
         let pixel = TAU / 4096.0;
         let spans = occluders.spans(&curve, &Depth::Curve, pixel, 1e-3 * pixel);

@@ -830,8 +830,8 @@ mod tests {
                 edges: site
                     .edges
                     .iter()
-                    .filter(|e| matches!(e.curve, SiteCurve::Ellipse { .. }))
-                    .copied()
+                    .filter(|e| matches!(e.curve, SiteCurve::Ellipse(_)))
+                    .cloned()
                     .collect(),
                 ..Site::default()
             };

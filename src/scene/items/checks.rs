@@ -2,7 +2,7 @@
 //! measured.
 
 use super::super::build::{ItemBuilder, Placement};
-use super::super::site::{ItemId, Site, SiteCurve};
+use super::super::site::{EllipseArc, ItemId, Site, SiteCurve};
 use nalgebra::Point3;
 use std::collections::HashMap;
 
@@ -29,7 +29,7 @@ pub fn edge_counts(site: &Site) -> (usize, usize) {
     let arcs = site
         .edges
         .iter()
-        .filter(|e| matches!(e.curve, SiteCurve::Ellipse { .. }))
+        .filter(|e| matches!(e.curve, SiteCurve::Ellipse(_)))
         .count();
     (site.edges.len() - arcs, arcs)
 }
@@ -41,13 +41,14 @@ pub fn edge_points(site: &Site) -> Vec<Point3<f64>> {
     for edge in &site.edges {
         match edge.curve {
             SiteCurve::Segment { start, end } => points.extend([start, end]),
-            SiteCurve::Ellipse {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } => {
+            SiteCurve::Ellipse(ref arc) => {
+                let EllipseArc {
+                    centre,
+                    u,
+                    v,
+                    start,
+                    sweep,
+                } = **arc;
                 let samples = 4000;
                 points.extend((0..=samples).map(|i| {
                     let t = start + sweep * i as f64 / samples as f64;

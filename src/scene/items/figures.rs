@@ -479,7 +479,7 @@ mod tests {
             .outline_edges_from(&eye)
             .into_iter()
             .filter_map(|e| match e.curve {
-                crate::scene::SiteCurve::Ellipse { u, v, .. } => Some((u.norm(), v.norm())),
+                crate::scene::SiteCurve::Ellipse(arc) => Some((arc.u.norm(), arc.v.norm())),
                 _ => None,
             })
             .collect();

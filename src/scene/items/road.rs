@@ -785,7 +785,7 @@ fn draw_crossing(
 
 #[cfg(test)]
 mod tests {
-    use super::super::super::site::{Site, SiteCurve};
+    use super::super::super::site::{EllipseArc, Site, SiteCurve};
     use super::*;
     use std::f64::consts::FRAC_PI_2;
 
@@ -809,7 +809,7 @@ mod tests {
             .iter()
             .filter_map(|edge| match edge.curve {
                 SiteCurve::Segment { start, end } => Some((start, end)),
-                SiteCurve::Ellipse { .. } => None,
+                SiteCurve::Ellipse(_) => None,
             })
             .collect()
     }
@@ -818,14 +818,15 @@ mod tests {
     fn arcs(site: &Site) -> Vec<(Point3<f64>, f64, f64)> {
         site.edges
             .iter()
-            .filter_map(|edge| match edge.curve {
-                SiteCurve::Ellipse {
-                    centre,
-                    u,
-                    v,
-                    sweep,
-                    ..
-                } => {
+            .filter_map(|edge| match &edge.curve {
+                SiteCurve::Ellipse(arc) => {
+                    let EllipseArc {
+                        centre,
+                        u,
+                        v,
+                        sweep,
+                        ..
+                    } = **arc;
                     assert!(u.z == 0.0 && v.z == 0.0 && u.dot(&v) == 0.0);
                     assert_eq!(u.norm(), v.norm());
                     Some((centre, u.norm(), sweep))

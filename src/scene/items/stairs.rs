@@ -259,7 +259,7 @@ mod tests {
                 SiteCurve::Segment { start, end } => {
                     close(start, Point3::new(9.0, y, 1.5)) && close(end, Point3::new(11.0, y, 1.5))
                 }
-                SiteCurve::Ellipse { .. } => false,
+                SiteCurve::Ellipse(_) => false,
             })
         };
         assert!(nosing(&plain, 20.5) && !nosing(&plain, 21.25));
@@ -282,7 +282,7 @@ mod tests {
                 let middle = (start.coords + end.coords) / 2.0;
                 (middle - Vector3::new(3.0 + top_back.x, 4.0 + top_back.y, 1.0)).norm() < 1e-12
             }
-            SiteCurve::Ellipse { .. } => false,
+            SiteCurve::Ellipse(_) => false,
         });
         assert!(top);
     }

@@ -307,8 +307,8 @@ mod tests {
         let mut radii: Vec<f64> = site
             .edges
             .iter()
-            .filter_map(|e| match e.curve {
-                SiteCurve::Ellipse { u, sweep, .. } if sweep < 6.0 => Some(u.norm()),
+            .filter_map(|e| match &e.curve {
+                SiteCurve::Ellipse(arc) if arc.sweep < 6.0 => Some(arc.u.norm()),
                 _ => None,
             })
             .collect();

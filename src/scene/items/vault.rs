@@ -110,8 +110,8 @@ mod tests {
         let mut along: Vec<f64> = site
             .edges
             .iter()
-            .filter_map(|e| match e.curve {
-                SiteCurve::Ellipse { centre, .. } => Some(centre.y),
+            .filter_map(|e| match &e.curve {
+                SiteCurve::Ellipse(arc) => Some(arc.centre.y),
                 SiteCurve::Segment { .. } => None,
             })
             .collect();
