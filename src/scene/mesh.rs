@@ -1080,8 +1080,10 @@ fn file_says_smooth(
     // its ring that runs the edge. A hole's edge is no side of the ring, and has none.
     let ends = |face: &WeldedFace, upwards: bool| {
         let ends = if upwards { (low, high) } else { (high, low) };
-        let side = sides(face.ring).find(|&(_, a, b)| (a, b) == ends);
-        let (Some(normals), Some((k, _, _))) = (face.normals, side) else {
+        let Some(normals) = face.normals else {
+            return (NO_NORMAL, NO_NORMAL);
+        };
+        let Some((k, _, _)) = sides(face.ring).find(|&(_, a, b)| (a, b) == ends) else {
             return (NO_NORMAL, NO_NORMAL);
         };
         let (start, next) = (normals[k], normals[(k + 1) % face.ring.len()]);
@@ -1340,11 +1342,11 @@ fn newell_normal(
         longest_sq = longest_sq.max((b - a).norm_squared());
     }
     let doubled_area = n.norm();
-    if doubled_area.is_nan() || doubled_area <= 1e-9 * longest_sq {
+    if doubled_area.is_nan() || doubled_area <= 1e-9 * longest_sq || doubled_area <= 0.0 {
         return None;
     }
-    n.try_normalize(0.0)
-        .filter(|v: &Vector3<f64>| v.iter().all(|c| c.is_finite()))
+    // What `try_normalize` gives, without taking the norm a second time.
+    Some(n / doubled_area).filter(|v: &Vector3<f64>| v.iter().all(|c| c.is_finite()))
 }
 
 #[cfg(test)]
