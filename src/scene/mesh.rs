@@ -253,9 +253,10 @@ fn add_mesh_on_cores(
             holes_of.entry(*face).or_default().push(ring);
         }
     }
-    // Faces: welded corner lists without repeats (flat, with each corner's normal index),
-    // their normals, and their triangles; a large model's second half on another core,
-    // its faces and triangles then following the first half's, as one pass gives them.
+    // Faces: welded corner lists without repeats (flat, with each corner's normal index
+    // where the file has normals), their normals, and their triangles; a large model's
+    // second half on another core, its faces and triangles then following the first
+    // half's, as one pass gives them.
     let work = FaceWork {
         obj,
         weld: &weld,
