@@ -14,7 +14,7 @@ use crate::drawing::{
 use crate::error::{Error, Result};
 use crate::page::{Paper, Sheet};
 use crate::plane::{ImagePoint, PolylineSet, Rect};
-use crate::scene::{bounds, EllipseArc, Site, SiteCurve, Standpoint};
+use crate::scene::{bounds, Site, SiteCurve, Standpoint};
 
 /// The size of the plan and its paper resolution.
 #[derive(Clone, Debug, PartialEq)]
@@ -540,25 +540,17 @@ fn plan_curve(plan: &Plan, curve: &SiteCurve, tolerance: f64, out: &mut Polyline
             }
         }
         SiteCurve::Ellipse(ref arc) => {
-            let EllipseArc {
-                centre,
-                u,
-                v,
-                start,
-                sweep,
-            } = **arc;
             // The plan of an ellipse is an ellipse (or a segment): chords of angle dt stray
             // at most r dt^2 / 8 from it, r the larger semi-axis in plan.
-            let r = u.xy().norm().max(v.xy().norm()) * plan.px_per_metre;
+            let r = arc.u.xy().norm().max(arc.v.xy().norm()) * plan.px_per_metre;
             if r < 1e-9 {
                 return;
             }
             let dt = (8.0 * tolerance / r).sqrt().min(std::f64::consts::PI / 8.0);
-            let n = ((sweep.abs() / dt).ceil() as usize).clamp(1, 100_000);
+            let n = ((arc.sweep.abs() / dt).ceil() as usize).clamp(1, 100_000);
             let points: Vec<ImagePoint> = (0..=n)
                 .map(|k| {
-                    let t = start + sweep * k as f64 / n as f64;
-                    let p = centre + u * t.cos() + v * t.sin();
+                    let p = arc.along(k as f64 / n as f64);
                     plan.to_px(p.x, p.y)
                 })
                 .collect();

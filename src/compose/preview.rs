@@ -16,7 +16,7 @@ use crate::drawing::{Drawing, Layer, Stroke, WIREFRAME};
 use crate::error::{Error, Result};
 use crate::page::{clip_segment, Rect};
 use crate::plane::{ImagePoint, PolylineSet};
-use crate::scene::{Edge, EllipseArc, HiddenEdges, Site, SiteCurve, Standpoint};
+use crate::scene::{Edge, HiddenEdges, Site, SiteCurve, Standpoint};
 use crate::sphere::ViewFrame;
 use crate::visibility::{Depth, HiddenLines, Occluders};
 use nalgebra::{Point3, Vector3};
@@ -210,15 +210,8 @@ impl Pinhole {
                 self.segment(self.view.to_view(&start), self.view.to_view(&end), out)
             }
             SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc {
-                    centre,
-                    u,
-                    v,
-                    start,
-                    sweep,
-                } = **arc;
-                let at = |t: f64| self.view.to_view(&(centre + u * t.cos() + v * t.sin()));
-                self.arc(&at, start, start + sweep, tolerance, out);
+                let at = |t: f64| self.view.to_view(&arc.at(t));
+                self.arc(&at, arc.start, arc.start + arc.sweep, tolerance, out);
             }
         }
     }

@@ -35,6 +35,18 @@ pub struct EllipseArc {
     pub sweep: f64,
 }
 
+impl EllipseArc {
+    /// The point at angle `t` (radians).
+    pub fn at(&self, t: f64) -> Point3<f64> {
+        self.centre + self.u * t.cos() + self.v * t.sin()
+    }
+
+    /// The point a `fraction` of the way along the arc, from its start (0) to its end (1).
+    pub fn along(&self, fraction: f64) -> Point3<f64> {
+        self.at(self.start + self.sweep * fraction)
+    }
+}
+
 impl From<EllipseArc> for SiteCurve {
     fn from(arc: EllipseArc) -> Self {
         SiteCurve::Ellipse(Box::new(arc))
@@ -67,6 +79,24 @@ impl SiteCurve {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn an_arc_runs_from_its_start_through_its_sweep() {
+        // A half circle of radius 2 about (1, 2, 3), from the top (+y) anticlockwise
+        // round to the bottom: worked by hand from centre + u cos t + v sin t.
+        let arc = EllipseArc {
+            centre: Point3::new(1.0, 2.0, 3.0),
+            u: Vector3::new(2.0, 0.0, 0.0),
+            v: Vector3::new(0.0, 2.0, 0.0),
+            start: std::f64::consts::FRAC_PI_2,
+            sweep: std::f64::consts::PI,
+        };
+        let near = |p: Point3<f64>, x: f64, y: f64| (p - Point3::new(x, y, 3.0)).norm() < 1e-12;
+        assert!(near(arc.along(0.0), 1.0, 4.0));
+        assert!(near(arc.along(0.5), -1.0, 2.0));
+        assert!(near(arc.along(1.0), 1.0, 0.0));
+        assert!(near(arc.at(0.0), 3.0, 2.0));
+    }
 
     #[test]
     fn a_curve_is_finite_only_when_every_number_is() {

@@ -365,16 +365,8 @@ mod tests {
             let Some(SiteCurve::Ellipse(arc)) = spheroid_dome_rim(centre, r, h, &eye) else {
                 panic!("no rim from {eye:?}")
             };
-            let EllipseArc {
-                centre: c,
-                u,
-                v,
-                start,
-                sweep,
-            } = *arc;
             for k in 0..=8 {
-                let t = start + sweep * k as f64 / 8.0;
-                let p = c + u * t.cos() + v * t.sin();
+                let p = arc.along(k as f64 / 8.0);
                 let q = p - centre;
                 let on = (q.x * q.x + q.y * q.y) / (r * r) + q.z * q.z / (h * h);
                 assert!((on - 1.0).abs() < 1e-9, "{on}");

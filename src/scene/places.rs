@@ -376,7 +376,7 @@ mod tests {
     use super::*;
     use crate::scene::items::{build_round_place, road_line, RoadSpec, RoundPlaceSpec};
     use crate::scene::streets::draw_streets;
-    use crate::scene::{EllipseArc, SiteCurve};
+    use crate::scene::SiteCurve;
 
     fn v(x: f64, y: f64) -> Vector2<f64> {
         Vector2::new(x, y)
@@ -511,16 +511,8 @@ mod tests {
             .iter()
             .filter_map(|e| match &e.curve {
                 SiteCurve::Ellipse(arc) if arc.centre.z == 0.0 => {
-                    let EllipseArc {
-                        centre,
-                        u,
-                        v: w,
-                        start: start_angle,
-                        sweep,
-                    } = **arc;
-                    let at = |a: f64| centre + u * a.cos() + w * a.sin();
-                    let (s, t) = (at(start_angle), at(start_angle + sweep));
-                    Some((v(centre.x, centre.y), u.norm(), v(s.x, s.y), v(t.x, t.y)))
+                    let (s, t, c) = (arc.along(0.0), arc.along(1.0), arc.centre);
+                    Some((v(c.x, c.y), arc.u.norm(), v(s.x, s.y), v(t.x, t.y)))
                 }
                 _ => None,
             })

@@ -550,7 +550,7 @@ fn short(length: f64) -> String {
 mod tests {
     use super::*;
     use crate::scene::items::{road_line, RoadSpec};
-    use crate::scene::{EllipseArc, SiteCurve};
+    use crate::scene::SiteCurve;
     use std::f64::consts::FRAC_PI_2;
 
     fn v(x: f64, y: f64) -> Vector2<f64> {
@@ -579,10 +579,8 @@ mod tests {
             .iter()
             .filter_map(|e| match &e.curve {
                 SiteCurve::Ellipse(arc) => {
-                    let EllipseArc {
-                        centre, u, sweep, ..
-                    } = **arc;
-                    Some((v(centre.x, centre.y), u.norm(), sweep, centre.z))
+                    let c = arc.centre;
+                    Some((v(c.x, c.y), arc.u.norm(), arc.sweep, c.z))
                 }
                 _ => None,
             })

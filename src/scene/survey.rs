@@ -3,7 +3,7 @@
 //! the ground).
 
 use super::pieces::Pieces;
-use super::site::{EllipseArc, Face, ItemId, Site, SiteCurve, Standpoint};
+use super::site::{Face, ItemId, Site, SiteCurve, Standpoint};
 use nalgebra::{Point3, Vector3};
 use std::collections::BTreeMap;
 use std::f64::consts::TAU;
@@ -218,15 +218,8 @@ pub fn bounds(site: &Site) -> Option<(Point3<f64>, Point3<f64>)> {
                 take(end);
             }
             SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc {
-                    centre,
-                    u,
-                    v,
-                    start,
-                    sweep,
-                } = **arc;
-                for t in ellipse_extreme_angles(&u, &v, start, sweep) {
-                    take(centre + u * t.cos() + v * t.sin());
+                for t in ellipse_extreme_angles(&arc.u, &arc.v, arc.start, arc.sweep) {
+                    take(arc.at(t));
                 }
             }
         }

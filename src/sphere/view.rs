@@ -2,7 +2,7 @@
 //! the panorama is laid out in.
 
 use super::SphereCurve;
-use crate::scene::{EllipseArc, SiteCurve, Standpoint};
+use crate::scene::{SiteCurve, Standpoint};
 use nalgebra::{Point3, Rotation3, Vector3};
 
 /// Why an edge has no drawable image from a standpoint. The renderer skips such edges with a
@@ -93,22 +93,18 @@ impl ViewFrame {
                     .ok_or(Degeneracy::SeenEndOn)
             }
             SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc {
-                    centre,
-                    u,
-                    v,
-                    start,
-                    sweep,
-                } = **arc;
-                if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300) || sweep == 0.0 {
+                let (u, v) = (arc.u, arc.v);
+                if u.cross(&v).norm() <= 1e-12 * (u.norm() * v.norm()).max(1e-300)
+                    || arc.sweep == 0.0
+                {
                     return Err(Degeneracy::ZeroLength);
                 }
                 Ok(SphereCurve::ellipse_arc(
-                    self.to_view(&centre),
+                    self.to_view(&arc.centre),
                     self.direction_to_view(&u),
                     self.direction_to_view(&v),
-                    start,
-                    sweep,
+                    arc.start,
+                    arc.sweep,
                 ))
             }
         }
@@ -118,6 +114,7 @@ impl ViewFrame {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::scene::EllipseArc;
     use crate::sphere::azimuth_elevation;
 
     fn standpoint(heading_deg: f64, pitch_deg: f64, roll_deg: f64) -> Standpoint {

@@ -2,7 +2,7 @@
 //! measured.
 
 use super::super::build::{ItemBuilder, Placement};
-use super::super::site::{EllipseArc, ItemId, Site, SiteCurve};
+use super::super::site::{ItemId, Site, SiteCurve};
 use nalgebra::Point3;
 use std::collections::HashMap;
 
@@ -42,18 +42,8 @@ pub fn edge_points(site: &Site) -> Vec<Point3<f64>> {
         match edge.curve {
             SiteCurve::Segment { start, end } => points.extend([start, end]),
             SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc {
-                    centre,
-                    u,
-                    v,
-                    start,
-                    sweep,
-                } = **arc;
                 let samples = 4000;
-                points.extend((0..=samples).map(|i| {
-                    let t = start + sweep * i as f64 / samples as f64;
-                    centre + u * t.cos() + v * t.sin()
-                }));
+                points.extend((0..=samples).map(|i| arc.along(i as f64 / samples as f64)));
             }
         }
     }

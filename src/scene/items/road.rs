@@ -785,7 +785,7 @@ fn draw_crossing(
 
 #[cfg(test)]
 mod tests {
-    use super::super::super::site::{EllipseArc, Site, SiteCurve};
+    use super::super::super::site::{Site, SiteCurve};
     use super::*;
     use std::f64::consts::FRAC_PI_2;
 
@@ -820,16 +820,10 @@ mod tests {
             .iter()
             .filter_map(|edge| match &edge.curve {
                 SiteCurve::Ellipse(arc) => {
-                    let EllipseArc {
-                        centre,
-                        u,
-                        v,
-                        sweep,
-                        ..
-                    } = **arc;
+                    let (u, v) = (arc.u, arc.v);
                     assert!(u.z == 0.0 && v.z == 0.0 && u.dot(&v) == 0.0);
                     assert_eq!(u.norm(), v.norm());
-                    Some((centre, u.norm(), sweep))
+                    Some((arc.centre, u.norm(), arc.sweep))
                 }
                 SiteCurve::Segment { .. } => None,
             })
