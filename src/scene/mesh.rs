@@ -562,7 +562,7 @@ impl<'a> MeshItems<'a> {
                 known = Some(key);
                 continue;
             }
-            scratch.truncate(0);
+            scratch.clear();
             if weld_face(obj, face, weld, points, &mut scratch).is_some() {
                 self.get_or_add(site, face);
                 known = Some(key);
@@ -696,6 +696,10 @@ impl Corners {
         if let Some(normals) = &mut self.normals {
             normals.truncate(len);
         }
+    }
+
+    fn clear(&mut self) {
+        self.truncate(0);
     }
 }
 
