@@ -33,8 +33,9 @@
 //! - **Which edges** (`scene/mesh.rs`): positions are welded when their coordinates round to the
 //!   same multiple of 1e-7 of the bounding box's largest side (exact duplicates always merge; two
 //!   points within the tolerance across a rounding boundary do not, a known limit). Each face's
-//!   own edges are listed as (low, high, face and direction, 8 bytes each), grouped by
-//!   their low vertex and sorted; an edge of one face is a boundary,
+//!   own edges are listed as (low, high, face and direction), grouped by their low vertex
+//!   (which the group then holds, so each is 8 bytes) and sorted; an edge of one face is a
+//!   boundary,
 //!   of three or more non-manifold, both drawn; of two, never drawn when the faces are
 //!   coplanar (within 1e-6 rad), else hard (a crease, drawn) or smooth as the file says where
 //!   it says (the same normals at both ends, or one smoothing group, is smooth; split normals,
