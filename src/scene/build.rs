@@ -117,11 +117,17 @@ pub fn ellipse_points(
     sweep: f64,
     count: usize,
 ) -> Vec<Point3<f64>> {
+    let arc = EllipseArc {
+        centre,
+        u,
+        v,
+        start,
+        sweep,
+    };
+    // The angle as `start + sweep i / count` (not `along`'s `sweep (i / count)`), so that
+    // the facets' corners keep the numbers they have always had.
     (0..=count)
-        .map(|i| {
-            let t = start + sweep * i as f64 / count as f64;
-            centre + u * t.cos() + v * t.sin()
-        })
+        .map(|i| arc.at(start + sweep * i as f64 / count as f64))
         .collect()
 }
 
