@@ -705,12 +705,11 @@ impl Corners {
     }
 }
 
-/// A face after welding, its corners (vertices after welding), and their normal indices if
-/// the file has normals.
+/// A face after welding and, if the file has normals (only then are they asked for), its
+/// corners (vertices after welding) with their normal indices.
 struct WeldedFace<'a> {
     face: &'a MeshFace,
-    ring: &'a [u32],
-    normals: Option<&'a [u32]>,
+    ring_and_normals: Option<(&'a [u32], &'a [u32])>,
 }
 
 /// A mesh's faces after welding, as the cores welded them: the file's faces in two runs,
@@ -740,14 +739,16 @@ impl WeldedMesh {
         &run.faces[f]
     }
 
-    /// Face number `f`, with its corners.
-    fn with_corners(&self, f: usize) -> WeldedFace<'_> {
+    /// Face number `f`, with its corners and their normals if the file has normals.
+    fn with_normals(&self, f: usize) -> WeldedFace<'_> {
         let (run, f) = self.run_of(f);
-        let span = run.span(f);
+        let ring_and_normals = run.corners.normals.as_ref().map(|normals| {
+            let span = run.span(f);
+            (&run.corners.vertices[span.clone()], &normals[span])
+        });
         WeldedFace {
             face: &run.faces[f],
-            ring: &run.corners.vertices[span.clone()],
-            normals: run.corners.normals.as_ref().map(|n| &n[span]),
+            ring_and_normals,
         }
     }
 
@@ -872,7 +873,7 @@ impl EdgeClasses<'_> {
         let pa = points[a];
         for run in at_a.chunk_by(|x, y| x.0 == y.0) {
             let (b, first) = run[0];
-            let first_face = (first >> 1) as usize;
+            let first_face = face_of(first);
             stats.edges += 1;
             let item = self.welded.face(first_face).item;
             let pb = points[b as usize];
@@ -883,11 +884,15 @@ impl EdgeClasses<'_> {
                 }
                 2 => {
                     let second = run[1].1;
-                    let second_face = (second >> 1) as usize;
+                    let second_face = face_of(second);
                     let n1 = self.welded.face(first_face).normal;
                     // Consistently wound neighbours run a shared edge in opposite
                     // directions; where they do not, one of them is turned over.
-                    let flip = if first & 1 == second & 1 { -1.0 } else { 1.0 };
+                    let flip = if runs_upwards(first) == runs_upwards(second) {
+                        -1.0
+                    } else {
+                        1.0
+                    };
                     let n2 = self.welded.face(second_face).normal * flip;
                     let bend = Bend::between(&n1, &n2);
                     if !bend.exceeds(&self.coplanar) {
@@ -896,8 +901,8 @@ impl EdgeClasses<'_> {
                         let said = file_says_smooth(
                             self.obj,
                             (a as u32, b),
-                            (self.welded.with_corners(first_face), first & 1 == 1),
-                            (self.welded.with_corners(second_face), second & 1 == 1),
+                            (self.welded.with_normals(first_face), runs_upwards(first)),
+                            (self.welded.with_normals(second_face), runs_upwards(second)),
                         );
                         if said.is_some() {
                             stats.by_file += 1;
@@ -994,6 +999,16 @@ fn each_face_edge(run: &WeldedFaces, base: u32, mut visit: impl FnMut(u32, u32, 
 fn face_and_direction(face: u32, upwards: bool) -> u32 {
     debug_assert!(face < 1 << 31);
     face << 1 | upwards as u32
+}
+
+/// The face of a [`face_and_direction`].
+fn face_of(face_and_direction: u32) -> usize {
+    (face_and_direction >> 1) as usize
+}
+
+/// Whether a [`face_and_direction`]'s face runs the edge from its lower vertex to its higher.
+fn runs_upwards(face_and_direction: u32) -> bool {
+    face_and_direction & 1 == 1
 }
 
 /// Adds one at each side's lower end (plus one) for the sides of a closed ring.
@@ -1116,13 +1131,13 @@ fn file_says_smooth(
     // its ring that runs the edge. A hole's edge is no side of the ring, and has none.
     let ends = |face: &WeldedFace, upwards: bool| {
         let ends = if upwards { (low, high) } else { (high, low) };
-        let Some(normals) = face.normals else {
+        let Some((ring, normals)) = face.ring_and_normals else {
             return (NO_NORMAL, NO_NORMAL);
         };
-        let Some((k, _, _)) = sides(face.ring).find(|&(_, a, b)| (a, b) == ends) else {
+        let Some((k, _, _)) = sides(ring).find(|&(_, a, b)| (a, b) == ends) else {
             return (NO_NORMAL, NO_NORMAL);
         };
-        let (start, next) = (normals[k], normals[(k + 1) % face.ring.len()]);
+        let (start, next) = (normals[k], normals[(k + 1) % ring.len()]);
         if upwards {
             (start, next)
         } else {
@@ -1663,6 +1678,8 @@ mod tests {
         assert_eq!(grouped.at(0), [(1, 21), (2, 20)]);
         assert_eq!(grouped.at(1), [(2, 21), (2, 22), (3, 23)]);
         assert_eq!(grouped.at(2), [(3, 22)]);
+        assert_eq!((face_of(23), runs_upwards(23)), (11, true));
+        assert_eq!((face_of(22), runs_upwards(22)), (11, false));
         assert_eq!(grouped.at(3), []);
     }
 
