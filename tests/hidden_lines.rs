@@ -11,7 +11,7 @@
 mod common;
 use common::crossing;
 use nalgebra::{Point3, Vector3};
-use pansite::scene::{load_scene, parse_scene, Face, Site, SiteCurve, Standpoint};
+use pansite::scene::{load_scene, parse_scene, Faces, Site, SiteCurve, Standpoint};
 use pansite::sphere::{SphereCurve, ViewFrame};
 use pansite::visibility::{Bvh, Depth, Occluders, DEPTH_BIAS};
 use std::f64::consts::TAU;
@@ -22,13 +22,13 @@ const WIDTH: f64 = 1024.0;
 const PIXEL: f64 = TAU / WIDTH;
 
 /// The reference: is the site point `p` seen from `eye`, by every face in turn?
-fn seen_by_brute_force(faces: &[Face], eye: &Point3<f64>, p: &Point3<f64>) -> bool {
+fn seen_by_brute_force(faces: &Faces, eye: &Point3<f64>, p: &Point3<f64>) -> bool {
     let to = p - eye;
     let distance = to.norm();
     let d = to / distance;
     let limit = distance * (1.0 - DEPTH_BIAS);
     !faces.iter().any(|f| {
-        crossing(eye, &d, f).is_some_and(|t| {
+        crossing(eye, &d, &f).is_some_and(|t| {
             let [a, b, c] = f.corners;
             let n = (b - a).cross(&(c - a)).normalize();
             let cosine = n.dot(&d).abs().max(0.05);
@@ -401,7 +401,7 @@ fn a_small_town_with_the_seam_and_the_poles_on_near_walls() {
         Vector3::new(0.0, -1.0, -0.6),
     ] {
         let towards = view.direction_to_site(&d.normalize());
-        let blocked = bvh.first_hit(&site.faces, &view.eye(), &towards, 1e9, |_, _| true);
+        let blocked = bvh.first_hit(&site.faces, &view.eye(), &towards, 1e9, |_, _, _| true);
         assert!(blocked.is_some(), "{d:?} looks at the sky");
         // And the map of certain cover has it, so the shortcuts are taken there.
         let occluders = Occluders::new(&site.faces, &bvh, &view);

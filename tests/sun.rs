@@ -585,7 +585,7 @@ fn lit(site: &Site, p: &Point3<f64>, s: &Vector3<f64>) -> bool {
     !site
         .faces
         .iter()
-        .any(|f| common::crossing(p, s, f).is_some())
+        .any(|f| common::crossing(p, s, &f).is_some())
 }
 
 /// Whether the site point `p` is seen from `eye`: no face crosses the sight line nearer than
@@ -597,7 +597,7 @@ fn seen_from(site: &Site, eye: &Point3<f64>, p: &Point3<f64>) -> bool {
     !site
         .faces
         .iter()
-        .any(|f| common::crossing(eye, &(to / distance), f).is_some_and(|t| t < limit))
+        .any(|f| common::crossing(eye, &(to / distance), &f).is_some_and(|t| t < limit))
 }
 
 /// The pixel of a site point seen from `eye` with the view turned to `heading` (degrees).

@@ -384,7 +384,7 @@ fn flatten_edges(
 mod tests {
     use super::*;
     use crate::plane::Equirect;
-    use crate::scene::{parse_scene, EllipseArc, Face, HiddenEdges};
+    use crate::scene::{parse_scene, EllipseArc, Face, Faces, HiddenEdges};
     use std::path::Path;
 
     fn drawn(scene: &str, width: f64, hidden: HiddenEdges) -> Wireframe {
@@ -682,10 +682,10 @@ mod tests {
             item: ItemId(0),
             slack: 0.0,
         };
-        site.faces = vec![
+        site.faces = Faces::from([
             face([corner(-1.0, 0.0), corner(1.0, 0.0), corner(1.0, 3.0)]),
             face([corner(-1.0, 0.0), corner(1.0, 3.0), corner(-1.0, 3.0)]),
-        ];
+        ]);
         let width = 2048.0;
         let column = |x: f64| width / 2.0 + (x / 10.0).atan() * width / std::f64::consts::TAU;
         let wire = drawn_site(&site, width, HiddenEdges::Faint, false, &Budget::new(None)).unwrap();

@@ -13,7 +13,7 @@ use super::obj::read_obj;
 use super::opendata::{
     build_building, read_open_data, OpenDataContent, OpenDataSpec, Placed, CITY_CREASE_DEG,
 };
-use super::site::{Face, ItemId, ItemInfo};
+use super::site::{ItemId, ItemInfo};
 use super::site::{Site, Standpoint, DEFAULT_EYE_HEIGHT};
 use super::streets::Culprit;
 use super::when::{offset_in, SunSpec};
@@ -296,7 +296,11 @@ impl Walker<'_> {
         let edges_finite = self.site.edges[before.0..]
             .iter()
             .all(|edge| edge.curve.is_finite());
-        let faces_finite = self.site.faces[before.1..].iter().all(Face::is_finite);
+        let faces_finite = self
+            .site
+            .faces
+            .iter_from(before.1)
+            .all(|face| face.is_finite());
         if edges_finite && faces_finite {
             return Ok(());
         }

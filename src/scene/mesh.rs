@@ -53,7 +53,7 @@
 //!   model each closed piece is (`scene/pieces.rs`). A standpoint inside one is warned of.
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Edge, Face, ItemId, ItemInfo, MeshModel, SilhouetteEdge, Site, SiteCurve};
+use super::site::{Edge, ItemId, ItemInfo, MeshModel, SilhouetteEdge, Site, SiteCurve};
 use nalgebra::{Point3, Rotation3, Vector3};
 use rayon::prelude::*;
 use std::collections::HashMap;
@@ -266,22 +266,13 @@ fn add_mesh_on_cores(
         items: &items,
         holes_of: &holes_of,
     };
-    let face = |&(corners, item): &([u32; 3], ItemId)| Face {
-        corners: corners.map(|i| points[i as usize]),
-        item,
-        slack: 0.0,
-    };
     let all = 0..obj.faces.len();
-    let first_face = site.faces.len();
     // Normal indices are kept only where the file has normals to point at.
     let normals = !obj.normals.is_empty();
-    // Each triangle's vertex numbers, kept until it is known whether the model is closed.
-    let mut triangle_corners: Vec<[u32; 3]> = Vec::new();
-    let mut staged_triangles = None;
-    let welded = if two_cores {
-        // Each core lists its half's triangles by vertex number (a fifth of their size),
-        // then both write them out in place, in file order (rayon's `par_extend` of an
-        // indexed list): no half is left to write out on one core afterwards.
+    // Each triangle's vertex numbers and item: the site's faces once the edges are found.
+    let (welded, first_triangles, later_triangles) = if two_cores {
+        // Each core welds and lists its half's triangles; the second half's follow the
+        // first's, as one pass gives them.
         let middle = obj.faces.len() / 2;
         let half = |range: Range<usize>| {
             let faces = &obj.faces[range.clone()];
@@ -290,29 +281,21 @@ fn add_mesh_on_cores(
             work.run(range, &mut welded, |t, item| triangles.push((t, item)));
             (welded, triangles)
         };
-        let ((welded, first), (second, later)) = std::thread::scope(|scope| {
+        let ((first, first_triangles), (second, later_triangles)) = std::thread::scope(|scope| {
             let later = scope.spawn(|| half(middle..all.end));
             (half(0..middle), joined(later))
         });
-        site.faces.reserve(first.len() + later.len());
-        site.faces
-            .par_extend(first.par_iter().chain(later.par_iter()).map(face));
-        staged_triangles = Some((first, later));
-        WeldedMesh {
-            first: welded,
-            second,
-        }
+        let welded = WeldedMesh { first, second };
+        (welded, first_triangles, later_triangles)
     } else {
         let mut welded = WeldedFaces::with_room(&obj.faces, vertices, normals);
-        site.faces.reserve(triangles_of(&obj.faces));
-        work.run(all, &mut welded, |t, item| {
-            triangle_corners.push(t);
-            site.faces.push(face(&(t, item)))
-        });
-        WeldedMesh {
+        let mut triangles = Vec::with_capacity(triangles_of(&obj.faces));
+        work.run(all, &mut welded, |t, item| triangles.push((t, item)));
+        let welded = WeldedMesh {
             first: welded,
             second: WeldedFaces::with_room(&[], 0, false),
-        }
+        };
+        (welded, triangles, Vec::new())
     };
     drop(holes_of);
     let mut stats = MeshStats {
@@ -441,17 +424,32 @@ fn add_mesh_on_cores(
     // A closed surface (every edge between exactly two faces) is a solid one cannot stand in;
     // an open one may still hold closed pieces, which the standpoint checks look for by its
     // triangles' vertex numbers.
+    let first_face = site.faces.len();
+    let closed = stats.boundary == 0 && stats.non_manifold == 0;
+    let open_corners = match closed {
+        true => Vec::new(),
+        false => first_triangles
+            .iter()
+            .chain(&later_triangles)
+            .map(|&(t, _)| t)
+            .collect(),
+    };
+    // The welded vertices become the faces' corner points, shared (a model of lines alone
+    // keeps none).
+    if stats.triangles > 0 {
+        site.faces.extend_sharing(
+            points,
+            first_triangles
+                .par_iter()
+                .chain(later_triangles.par_iter())
+                .copied(),
+        );
+    }
     if stats.faces > 0 {
-        let closed = stats.boundary == 0 && stats.non_manifold == 0;
-        if closed {
-            triangle_corners = Vec::new();
-        } else if let Some((first, later)) = staged_triangles {
-            triangle_corners = first.iter().chain(&later).map(|&(t, _)| t).collect();
-        }
         site.models.push(MeshModel {
             items: first_item..last_item,
             faces: first_face..site.faces.len(),
-            open_corners: triangle_corners,
+            open_corners,
         });
     }
     if let Some(item) = items.first() {

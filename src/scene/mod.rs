@@ -8,6 +8,7 @@
 mod build;
 mod curve;
 mod expand;
+mod faces;
 mod file;
 mod format;
 mod ground;
@@ -52,8 +53,9 @@ pub use opendata::{
 };
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Axis, Edge, EllipseArc, Face, HiddenEdges, ItemId, ItemInfo, Marker, MeshModel, NamedPoint,
-    Outline, SilhouetteEdge, Site, SiteCurve, Standpoint, DEFAULT_EYE_HEIGHT,
+    Axis, Edge, EllipseArc, Face, FaceIter, Faces, HiddenEdges, ItemId, ItemInfo, Marker,
+    MeshModel, NamedPoint, Outline, SilhouetteEdge, Site, SiteCurve, Standpoint,
+    DEFAULT_EYE_HEIGHT,
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

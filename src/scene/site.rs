@@ -1,6 +1,7 @@
 //! The resolved site model.
 
 pub use super::curve::{EllipseArc, SiteCurve};
+pub use super::faces::{Face, FaceIter, Faces};
 use super::outline::RoundOutline;
 use nalgebra::{Point3, Vector3};
 
@@ -155,28 +156,6 @@ impl SilhouetteEdge {
     }
 }
 
-/// A triangle that hides what lies behind it.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Face {
-    /// The triangle's corners, in site coordinates.
-    pub corners: [Point3<f64>; 3],
-    /// The item it belongs to.
-    pub item: ItemId,
-    /// How far (metres) the true surface may stand off this flat piece of it: 0 for a flat
-    /// face, the sagitta of the facet for a piece of a curved surface. Edges drawn on the
-    /// true surface lie up to this far behind the facet, and must not be hidden by it.
-    pub slack: f32,
-}
-
-impl Face {
-    /// Whether its corners and slack are finite (its item's arithmetic gave no NaN or
-    /// infinity).
-    pub fn is_finite(&self) -> bool {
-        let corners = self.corners.iter().flat_map(|corner| corner.iter());
-        corners.copied().all(f64::is_finite) && self.slack.is_finite()
-    }
-}
-
 /// An edge to draw: a curve of an item.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Edge {
@@ -224,7 +203,7 @@ pub struct Site {
     /// Edges drawn only where they are part of the outline (smooth meshes).
     pub silhouette_candidates: Vec<SilhouetteEdge>,
     /// Triangles of the solid items and meshes, for hidden lines.
-    pub faces: Vec<Face>,
+    pub faces: Faces,
     /// Round shapes whose outline depends on the eye (columns, cones, domes).
     pub outlines: Vec<Outline>,
     /// Labelled points, drawn as small marks.
@@ -368,34 +347,6 @@ impl Site {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn a_face_is_finite_only_when_its_corners_and_slack_are() {
-        let face = Face {
-            corners: [
-                Point3::origin(),
-                Point3::new(1.0, 0.0, 0.0),
-                Point3::new(0.0, 1.0, 0.0),
-            ],
-            item: ItemId(0),
-            slack: 0.0,
-        };
-        assert!(face.is_finite());
-        for (corner, axis, value) in [
-            (0, 0, f64::NAN),
-            (1, 1, f64::INFINITY),
-            (2, 2, f64::NEG_INFINITY),
-        ] {
-            let mut broken = face;
-            broken.corners[corner][axis] = value;
-            assert!(!broken.is_finite(), "corner {corner}, axis {axis}: {value}");
-        }
-        assert!(!Face {
-            slack: f32::NAN,
-            ..face
-        }
-        .is_finite());
-    }
 
     /// A big mesh model writes about a million edges, nearly all straight: keeping an arc's
     /// numbers behind a box holds each edge to a segment's size rather than an ellipse's 104

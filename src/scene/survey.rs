@@ -126,7 +126,7 @@ pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
     let mut crossings: BTreeMap<u32, usize> = BTreeMap::new();
     let mut crossed_open: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
     for (f, face) in site.faces.iter().enumerate() {
-        if let Some(owner) = owner_of(face) {
+        if let Some(owner) = owner_of(&face) {
             if ray_hits_triangle(point, &ray, &face.corners) {
                 match owner {
                     Owner::Solid(item) => *crossings.entry(item).or_insert(0) += 1,
@@ -159,7 +159,7 @@ pub fn solids_enclosing(site: &Site, point: &Point3<f64>) -> Vec<ItemId> {
             piece_crossings
                 .into_iter()
                 .filter(|(_, count)| count % 2 == 1)
-                .map(|(piece, _)| site.faces[model.faces.start + piece].item),
+                .map(|(piece, _)| site.faces.get(model.faces.start + piece).item),
         );
     }
     inside.sort_unstable_by_key(|item| item.0);

@@ -299,7 +299,7 @@ pub fn wall_in_sun(
             p,
             towards_sun,
             f64::INFINITY,
-            |face, distance| face.item != item && distance > 1e-6,
+            |_, face, distance| face.item != item && distance > 1e-6,
         )
         .is_none()
     })

@@ -19,7 +19,7 @@
 use super::boxes::{Bounds, BoxGrid};
 use super::position::across_rays;
 use crate::cores;
-use crate::scene::{Face, Site};
+use crate::scene::{Face, Faces, Site};
 use crate::visibility::{ray_hits_triangle, Bvh};
 use nalgebra::{Point3, Vector2, Vector3};
 
@@ -83,7 +83,8 @@ fn outlines(site: &Site, towards_sun: &Vector3<f64>, every_face: Option<&Bvh>) -
         return Vec::new();
     }
     let silhouettes = silhouettes(&site.faces, &s);
-    let planes: Vec<Option<(Vector3<f64>, f64)>> = site.faces.iter().map(plane_of).collect();
+    let planes: Vec<Option<(Vector3<f64>, f64)>> =
+        site.faces.iter().map(|face| plane_of(&face)).collect();
     // The plane z = 0 receives only where the scene has no sloping ground: then the
     // ground's triangles, faces like any other, receive instead.
     let level = site.ground.is_none().then_some(Receiver::Ground);
@@ -267,7 +268,7 @@ fn segment_meets_box(a: Vector2<f64>, b: Vector2<f64>, lo: Vector2<f64>, hi: Vec
 }
 
 impl SunView {
-    fn new(faces: &[Face], s: &Vector3<f64>) -> SunView {
+    fn new(faces: &Faces, s: &Vector3<f64>) -> SunView {
         let (u, v) = across_rays(s);
         let view = SunView {
             u,
@@ -310,7 +311,7 @@ impl SunView {
     /// casting the ray through it.
     fn ray_meets(
         &self,
-        faces: &[Face],
+        faces: &Faces,
         p: &Point3<f64>,
         s: &Vector3<f64>,
         blocks: impl Fn(u32, f64, f64) -> bool,
@@ -331,7 +332,7 @@ impl SunView {
     /// is false for the rest.
     fn ray_meets_among(
         &self,
-        faces: &[Face],
+        faces: &Faces,
         among: &[u32],
         p: &Point3<f64>,
         s: &Vector3<f64>,
@@ -350,7 +351,7 @@ impl SunView {
     #[allow(clippy::too_many_arguments)]
     fn tried(
         &self,
-        faces: &[Face],
+        faces: &Faces,
         index: u32,
         p: &Point3<f64>,
         q: Vector2<f64>,
@@ -363,7 +364,7 @@ impl SunView {
         if self.images[index as usize].as_ref().is_some_and(outside) {
             return false;
         }
-        ray_hits_triangle(p, s, &faces[index as usize].corners)
+        ray_hits_triangle(p, s, &faces.get(index as usize).corners)
             .is_some_and(|distance| blocks(index, distance, start))
     }
 
@@ -490,7 +491,7 @@ fn hatch_lines(
     };
     let mut lines: Vec<(Receiver, Point3<f64>, Point3<f64>)> = Vec::new();
     for (index, face) in site.faces.iter().enumerate() {
-        let Some((n, _)) = plane_of(face) else {
+        let Some((n, _)) = plane_of(&face) else {
             continue;
         };
         // Along: 45 degrees up an upright face; the plan's diagonal projected elsewhere.
@@ -581,7 +582,7 @@ fn plane_of(face: &Face) -> Option<(Vector3<f64>, f64)> {
 
 /// The silhouette edges of the faces from the sun: edges of one face, or of faces on one
 /// side of the plane through the edge and the sun's direction.
-fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
+fn silhouettes(faces: &Faces, s: &Vector3<f64>) -> Vec<Silhouette> {
     let key = |p: &Point3<f64>| [p.x, p.y, p.z].map(|v| (v / WELD_M).round() as i64);
     // Every side of every face under its welded ends (the lesser first), sorted so that
     // the faces along one edge come together in the faces' order: a sort of one list
@@ -602,12 +603,12 @@ fn silhouettes(faces: &[Face], s: &Vector3<f64>) -> Vec<Silhouette> {
     // along it, the face's index and third corner.
     let edges = sides.chunk_by(|p, q| (p.0, p.1) == (q.0, q.1)).map(|run| {
         let (ka, _, index, k) = run[0];
-        let corners = faces[index as usize].corners;
+        let corners = faces.get(index as usize).corners;
         let (a, b) = (corners[k], corners[(k + 1) % 3]);
         let (a, b) = if key(&a) == ka { (a, b) } else { (b, a) };
         let around: Vec<(u32, Point3<f64>)> = run
             .iter()
-            .map(|&(_, _, index, k)| (index, faces[index as usize].corners[(k + 2) % 3]))
+            .map(|&(_, _, index, k)| (index, faces.get(index as usize).corners[(k + 2) % 3]))
             .collect();
         (a, b, around)
     });
@@ -643,7 +644,7 @@ fn carried_span(
     n: &Vector3<f64>,
     d: f64,
     s: &Vector3<f64>,
-    faces: &[Face],
+    faces: &Faces,
 ) -> Option<(f64, f64)> {
     let ns = n.dot(s);
     // How far along the ray back from the sun each end travels to the plane: positive
@@ -656,7 +657,7 @@ fn carried_span(
     if let Receiver::Face(i) = receiver {
         let carried = |p: &Point3<f64>, t: f64| p - s * t;
         let (pa, pb) = (carried(&edge.a, ta), carried(&edge.b, tb));
-        let c = faces[i as usize].corners;
+        let c = faces.get(i as usize).corners;
         for k in 0..3 {
             let (from, to) = (c[k], c[(k + 1) % 3]);
             // Inside is where (n x side) . (p - from) >= 0, the corners turning about n.
@@ -705,11 +706,8 @@ fn meets(
     s: &Vector3<f64>,
     blocks: impl Fn(u32, f64, f64) -> bool,
 ) -> bool {
-    let base = site.faces.as_ptr() as usize;
-    let size = std::mem::size_of::<Face>();
     let start = own_face_reach(p);
-    bvh.first_hit(&site.faces, p, s, f64::INFINITY, |face, distance| {
-        let index = ((face as *const Face as usize - base) / size) as u32;
+    bvh.first_hit(&site.faces, p, s, f64::INFINITY, |index, _, distance| {
         blocks(index, distance, start)
     })
     .is_some()

@@ -91,7 +91,7 @@ pub fn seen_shade(
     // stand in front of a receiver; a grid of them over the sphere of directions names
     // the few a receiver's cone may overlap (ascending, so the hiders come in the faces'
     // order as when every face was tried).
-    let cones: Vec<Cone> = site.faces.iter().map(|f| Cone::round(f, eye)).collect();
+    let cones: Vec<Cone> = site.faces.iter().map(|f| Cone::round(&f, eye)).collect();
     let cone_grid = ConeGrid::new(&cones);
     let mut receivers: Vec<(Option<usize>, PlaneFrame)> = Vec::new();
     if site.ground.is_none() {
@@ -131,7 +131,9 @@ pub fn seen_shade(
             return None;
         }
         let outline: Option<Polygon> = index.map(|i| {
-            let mut t: Polygon = site.faces[i]
+            let mut t: Polygon = site
+                .faces
+                .get(i)
                 .corners
                 .iter()
                 .map(|c| plane.to_plane(c))
@@ -162,8 +164,8 @@ pub fn seen_shade(
                 if Some(j) == index || index.is_some_and(|i| !overlaps(&extents[i], &extents[j])) {
                     continue;
                 }
-                let face = &site.faces[j];
-                if let Some(piece) = carried_by_sun(face, plane, &s, ns, outline.as_ref()) {
+                let face = site.faces.get(j);
+                if let Some(piece) = carried_by_sun(&face, plane, &s, ns, outline.as_ref()) {
                     shade.push(piece);
                 }
             }
@@ -190,9 +192,9 @@ pub fn seen_shade(
         let pyramid = all.and_then(|b| Pyramid::through(plane, eye, &b));
         let hiders: Vec<Polygon> = candidates
             .iter()
-            .map(|&j| &site.faces[j as usize])
+            .map(|&j| site.faces.get(j as usize))
             .filter(|face| pyramid.as_ref().is_none_or(|p| !p.leaves_out(face)))
-            .filter_map(|face| carried_from_eye(face, plane, eye, eye_height))
+            .filter_map(|face| carried_from_eye(&face, plane, eye, eye_height))
             .collect();
         Some((shade, Hiders::new(hiders)))
     };

@@ -10,7 +10,7 @@
 //! builds three times faster. Boxes are stored in f32, rounded outwards, to keep a node to
 //! 32 bytes; the triangle tests are in f64 against the site's own faces.
 
-use crate::scene::Face;
+use crate::scene::{Face, Faces};
 use nalgebra::{Point3, Vector3};
 
 /// Faces in a leaf: more saves nodes, fewer saves triangle tests.
@@ -77,14 +77,14 @@ const FACES_FOR_THREADS: usize = 50_000;
 
 impl Bvh {
     /// The hierarchy of these faces, built on all cores when there are many.
-    pub fn new(faces: &[Face]) -> Bvh {
+    pub fn new(faces: &Faces) -> Bvh {
         let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
         // Each split below the root may hand one half to a thread of its own.
         Bvh::with_split_levels(faces, usize::BITS - (cores - 1).leading_zeros())
     }
 
     /// The hierarchy, with this many levels of splits handing a half to a thread.
-    fn with_split_levels(faces: &[Face], split_levels: u32) -> Bvh {
+    fn with_split_levels(faces: &Faces, split_levels: u32) -> Bvh {
         // Each face's centre travels with its index, so that the splits read memory in order.
         let mut items: Vec<Item> = faces
             .iter()
@@ -175,16 +175,16 @@ impl Bvh {
         }
     }
 
-    /// A face for which `blocks(face, distance)` holds that meets the ray from `origin`
-    /// along the unit `direction` closer than `limit` (its index), if any. Stops at the
-    /// first one found.
+    /// A face for which `blocks(index, face, distance)` holds that meets the ray from
+    /// `origin` along the unit `direction` closer than `limit` (its index), if any. Stops
+    /// at the first one found.
     pub fn first_hit(
         &self,
-        faces: &[Face],
+        faces: &Faces,
         origin: &Point3<f64>,
         direction: &Vector3<f64>,
         limit: f64,
-        blocks: impl Fn(&Face, f64) -> bool,
+        blocks: impl Fn(u32, &Face, f64) -> bool,
     ) -> Option<u32> {
         let o = [origin.x as f32, origin.y as f32, origin.z as f32];
         let inverse = [
@@ -198,9 +198,9 @@ impl Bvh {
         self.search(
             |node| ray_meets_box(&o, &inverse, &node.lo, &node.hi, pad, limit32),
             |index| {
-                let face = &faces[index as usize];
+                let face = faces.get(index as usize);
                 ray_hits_triangle(origin, direction, &face.corners)
-                    .is_some_and(|distance| distance < limit && blocks(face, distance))
+                    .is_some_and(|distance| distance < limit && blocks(index, &face, distance))
             },
         )
     }
@@ -208,7 +208,7 @@ impl Bvh {
     /// Whether any face crosses the triangle `wedge` (a fan of sight lines from the eye to a
     /// piece of an edge): if none does, nothing stands between the eye and that piece.
     /// Faces in the wedge's own plane are seen edge-on and do not count.
-    pub fn crosses(&self, faces: &[Face], wedge: &[Point3<f64>; 3]) -> bool {
+    pub fn crosses(&self, faces: &Faces, wedge: &[Point3<f64>; 3]) -> bool {
         let mut lo = wedge[0].coords;
         let mut hi = lo;
         for p in wedge {
@@ -224,7 +224,7 @@ impl Bvh {
                 (!apart && box_meets_plane(node, &plane.normal, offset)).then_some(0.0)
             },
             |i| {
-                let face = &faces[i as usize].corners;
+                let face = &faces.get(i as usize).corners;
                 triangles_cross_in(face, &Plane::of(face), wedge, &plane)
             },
         )
@@ -283,7 +283,7 @@ impl Bvh {
 
 /// What building the hierarchy reads: the faces.
 struct Build<'a> {
-    faces: &'a [Face],
+    faces: &'a Faces,
 }
 
 /// A face being placed in the hierarchy: its centre and its index.
@@ -296,7 +296,7 @@ struct Item {
 impl Build<'_> {
     /// A face's box in f32 (for the split's costs only, so rounding does not matter).
     fn face_box(&self, face: u32) -> Bounds {
-        let [a, b, c] = self.faces[face as usize].corners;
+        let [a, b, c] = self.faces.get(face as usize).corners;
         let (lo, hi) = (
             a.coords.inf(&b.coords).inf(&c.coords),
             a.coords.sup(&b.coords).sup(&c.coords),
@@ -337,7 +337,7 @@ impl Build<'_> {
             let mut lo = Vector3::repeat(f64::INFINITY);
             let mut hi = Vector3::repeat(f64::NEG_INFINITY);
             for item in order.iter() {
-                for p in &self.faces[item.face as usize].corners {
+                for p in &self.faces.get(item.face as usize).corners {
                     lo = lo.inf(&p.coords);
                     hi = hi.sup(&p.coords);
                 }
@@ -704,7 +704,7 @@ mod tests {
     #[test]
     fn rays_find_the_faces_a_brute_force_search_finds() {
         // A grid of small triangles at various heights; rays from below in many directions.
-        let faces: Vec<Face> = (0..400)
+        let faces: Faces = (0..400)
             .map(|i| {
                 let (x, y) = ((i % 20) as f64 * 0.7 - 7.0, (i / 20) as f64 * 0.7 - 7.0);
                 let mut f = triangle(2.0 + (i % 7) as f64 * 0.3, x);
@@ -725,7 +725,7 @@ mod tests {
                     .iter()
                     .any(|f| ray_hits_triangle(&origin, &d, &f.corners).is_some_and(|t| t < limit));
                 assert_eq!(
-                    bvh.first_hit(&faces, &origin, &d, limit, |_, _| true)
+                    bvh.first_hit(&faces, &origin, &d, limit, |_, _, _| true)
                         .is_some(),
                     brute
                 );
@@ -735,7 +735,7 @@ mod tests {
 
     #[test]
     fn built_on_threads_or_on_one_the_hierarchy_is_the_same() {
-        let faces: Vec<Face> = (0..3 * FACES_FOR_THREADS)
+        let faces: Faces = (0..3 * FACES_FOR_THREADS)
             .map(|i| {
                 let (x, y) = ((i % 400) as f64, (i / 400) as f64);
                 triangle(0.5 * (x * 0.37).sin(), x + 0.1 * y)
@@ -752,7 +752,7 @@ mod tests {
             for &i in &one.order[node.index as usize..(node.index + node.count) as usize] {
                 assert!(!seen[i as usize]);
                 seen[i as usize] = true;
-                for p in &faces[i as usize].corners {
+                for p in &faces.get(i as usize).corners {
                     for k in 0..3 {
                         assert!(node.lo[k] as f64 <= p[k] && p[k] <= node.hi[k] as f64);
                     }
@@ -823,7 +823,7 @@ mod tests {
     #[test]
     fn faces_all_in_one_place_are_split_at_the_median() {
         // Twelve copies of one face: no extent to bin, so every split is the median.
-        let faces: Vec<Face> = (0..12).map(|_| triangle(1.0, 0.0)).collect();
+        let faces: Faces = (0..12).map(|_| triangle(1.0, 0.0)).collect();
         let bvh = Bvh::new(&faces);
         let leaves: Vec<u32> = bvh
             .nodes
@@ -843,7 +843,7 @@ mod tests {
         // Faces spaced ever wider (x doubling every thousand faces) give the heuristic
         // lopsided choices at every level; the tree stays within the 64 entries of the
         // searches' stacks and a ray to each face finds it.
-        let faces: Vec<Face> = (0..20_000)
+        let faces: Faces = (0..20_000)
             .map(|i| triangle(1.0, (0.001 * i as f64).exp2()))
             .collect();
         let bvh = Bvh::new(&faces);
@@ -855,14 +855,14 @@ mod tests {
             let towards =
                 (face.corners[0].coords + face.corners[1].coords + face.corners[2].coords) / 3.0;
             let d = towards.normalize();
-            let hit = bvh.first_hit(&faces, &origin, &d, 1e30, |f, _| std::ptr::eq(f, face));
+            let hit = bvh.first_hit(&faces, &origin, &d, 1e30, |f, _, _| f as usize == i);
             assert_eq!(hit, Some(i as u32));
         }
     }
 
     #[test]
     fn wedges_cross_the_faces_a_brute_force_search_finds() {
-        let faces: Vec<Face> = (0..300)
+        let faces: Faces = (0..300)
             .map(|i| {
                 let mut f = triangle(1.0 + (i % 11) as f64 * 0.4, (i % 17) as f64 * 0.9 - 7.0);
                 for p in &mut f.corners {
@@ -1183,7 +1183,7 @@ mod tests {
         // A node is six f32 and two u32, 32 bytes (as the module's notes say), and a face's
         // place in the order a u32; a list holds room for its capacity.
         assert_eq!(std::mem::size_of::<Node>(), 32);
-        let faces: Vec<Face> = (0..100).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let faces: Faces = (0..100).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
         let bvh = Bvh::new(&faces);
         assert!(bvh.nodes.capacity() >= bvh.nodes.len() && bvh.order.capacity() >= 100);
         assert_eq!(
@@ -1197,7 +1197,7 @@ mod tests {
         // Forty faces in a row: the root is split, and the walks from its two children hand
         // out every face once between them, each some. Four faces make a single leaf (no
         // halves), and no faces no hierarchy.
-        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let faces: Faces = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
         let bvh = Bvh::new(&faces);
         let eye = Point3::new(-5.0, 0.0, 0.0);
         let [first, second] = bvh.halves().unwrap();
@@ -1207,8 +1207,8 @@ mod tests {
         a.extend(b);
         a.sort_unstable();
         assert_eq!(a, (0..40).collect::<Vec<u32>>());
-        assert_eq!(Bvh::new(&faces[..4]).halves(), None);
-        assert_eq!(Bvh::new(&[]).halves(), None);
+        assert_eq!(Bvh::new(&faces.iter().take(4).collect()).halves(), None);
+        assert_eq!(Bvh::new(&Faces::new()).halves(), None);
         // A node past the end hands out nothing.
         assert_eq!(
             walk(&bvh, Some(bvh.nodes.len() as u32), &eye).0,
@@ -1221,7 +1221,7 @@ mod tests {
         // Forty faces 3 m apart in a row along x, seen from either end of it, 5 m beyond: the
         // leaves come nearest first, so each leaf's faces all lie nearer than the next
         // leaf's (a leaf's own faces come in the order they were grouped).
-        let faces: Vec<Face> = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
+        let faces: Faces = (0..40).map(|i| triangle(1.0, 3.0 * i as f64)).collect();
         let bvh = Bvh::new(&faces);
         for (eye, toward) in [(-5.0, 1.0), (122.0, -1.0)] {
             let (order, boxes) = walk(&bvh, None, &Point3::new(eye, 0.0, 0.0));
@@ -1270,13 +1270,16 @@ mod tests {
                 p.x *= 5.0;
                 p.y *= 5.0;
             }
-            vec![face]
+            Faces::from([face])
         };
-        let first_hit = |faces: &[Face], limit: f64| {
-            Bvh::new(faces).first_hit(faces, &origin, &up, limit, |_, _| true)
+        let first_hit = |faces: &Faces, limit: f64| {
+            Bvh::new(faces).first_hit(faces, &origin, &up, limit, |_, _, _| true)
         };
         let ten = level(10.0);
-        assert_eq!(ray_hits_triangle(&origin, &up, &ten[0].corners), Some(10.0));
+        assert_eq!(
+            ray_hits_triangle(&origin, &up, &ten.get(0).corners),
+            Some(10.0)
+        );
         assert_eq!(first_hit(&ten, 10.0), None);
         assert_eq!(first_hit(&ten, 10.001), Some(0));
         let far = level(99.9995);
@@ -1287,11 +1290,11 @@ mod tests {
     #[test]
     fn an_empty_hierarchy_holds_nothing() {
         // No faces: no box, no walk, no ray's hit and no wedge crossed.
-        let empty = Bvh::new(&[]);
+        let empty = Bvh::new(&Faces::new());
         assert!(empty.nodes.is_empty() && empty.order.is_empty());
         let origin = Point3::origin();
         assert_eq!(
-            empty.first_hit(&[], &origin, &Vector3::z(), 1e9, |_, _| true),
+            empty.first_hit(&Faces::new(), &origin, &Vector3::z(), 1e9, |_, _, _| true),
             None
         );
         let wedge = [
@@ -1299,7 +1302,7 @@ mod tests {
             Point3::new(1.0, 5.0, 0.0),
             Point3::new(-1.0, 5.0, 0.0),
         ];
-        assert!(!empty.crosses(&[], &wedge));
+        assert!(!empty.crosses(&Faces::new(), &wedge));
         assert_eq!(walk(&empty, None, &origin), (vec![], vec![]));
     }
 
@@ -1325,7 +1328,7 @@ mod tests {
         }
         let mut xs = Vec::new();
         place(20_000, 1e15, 30, &mut xs);
-        let faces: Vec<Face> = xs
+        let faces: Faces = xs
             .iter()
             .map(|&x| Face {
                 corners: [
@@ -1340,9 +1343,9 @@ mod tests {
         let bvh = Bvh::new(&faces);
         assert!(depth(&bvh, 0) > 32, "{}", depth(&bvh, 0));
         let origin = Point3::new(-1.0, 0.0, 0.0);
-        for (i, face) in faces.iter().enumerate().step_by(97) {
-            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _| {
-                std::ptr::eq(f, face)
+        for i in (0..faces.len()).step_by(97) {
+            let hit = bvh.first_hit(&faces, &origin, &Vector3::x(), f64::INFINITY, |f, _, _| {
+                f as usize == i
             });
             assert_eq!(hit, Some(i as u32));
         }
@@ -1353,7 +1356,7 @@ mod tests {
         // From x = 1000 the boxes are grown by 1e-5 x 1001 m, about 1 cm, for the f32
         // rounding of the ray; a face 5 mm ahead is found with a limit of 1 cm, and not
         // with one of 4 mm.
-        let faces = vec![Face {
+        let faces = Faces::from([Face {
             corners: [
                 Point3::new(1000.004, -1.0, -1.0),
                 Point3::new(1000.006, -1.0, 1.0),
@@ -1361,10 +1364,11 @@ mod tests {
             ],
             item: ItemId(0),
             slack: 0.0,
-        }];
+        }]);
         let bvh = Bvh::new(&faces);
         let origin = Point3::new(1000.0, 0.0, 0.0);
-        let first_hit = |limit| bvh.first_hit(&faces, &origin, &Vector3::x(), limit, |_, _| true);
+        let first_hit =
+            |limit| bvh.first_hit(&faces, &origin, &Vector3::x(), limit, |_, _, _| true);
         assert_eq!(first_hit(0.01), Some(0));
         assert_eq!(first_hit(0.004), None);
     }
@@ -1380,7 +1384,7 @@ mod tests {
         // a number, and the box would be turned away; the pad (at least 1e-5 m, even at the
         // origin) keeps it finite.
         let x0 = f32::MIN_POSITIVE as f64 / (1.0 - 4.0 * f32::EPSILON as f64);
-        let faces = vec![Face {
+        let faces = Faces::from([Face {
             corners: [
                 Point3::new(x0, 10.0, -1.0),
                 Point3::new(x0, 10.0, 1.0),
@@ -1388,22 +1392,22 @@ mod tests {
             ],
             item: ItemId(0),
             slack: 0.0,
-        }];
+        }]);
         let bvh = Bvh::new(&faces);
         assert_eq!(bvh.nodes[0].lo[0], 0.0, "the case asked about");
         let (origin, direction) = (Point3::origin(), Vector3::new(2e-39, 1.0, 0.0));
         assert!((1.0 / direction.x) as f32 == f32::INFINITY);
-        let hit = ray_hits_triangle(&origin, &direction, &faces[0].corners);
+        let hit = ray_hits_triangle(&origin, &direction, &faces.get(0).corners);
         assert!(hit.is_some_and(|t| (t - 10.0).abs() < 1e-12), "{hit:?}");
         assert_eq!(
-            bvh.first_hit(&faces, &origin, &direction, 20.0, |_, _| true),
+            bvh.first_hit(&faces, &origin, &direction, 20.0, |_, _, _| true),
             Some(0)
         );
     }
 
     /// `n` faces along the x axis split lopsidedly `levels` times over (see below), each
     /// scaled with its level's span, reaching to `hi` from near the origin.
-    fn lopsided_faces(n: usize, hi: f64, levels: u32) -> Vec<Face> {
+    fn lopsided_faces(n: usize, hi: f64, levels: u32) -> Faces {
         fn place(n: usize, hi: f64, levels: u32, out: &mut Vec<(f64, f64)>) {
             if levels == 0 || n <= 16 {
                 out.extend((1..=n).map(|k| (hi * k as f64 / n as f64, hi / n as f64)));
@@ -1440,19 +1444,15 @@ mod tests {
         // same mirrored (x to -x), the chain then running down the second halves.
         let mut faces = lopsided_faces(20_000, 3e37, 60);
         for toward in [1.0, -1.0] {
-            for face in &mut faces {
-                for p in &mut face.corners {
-                    p.x = toward * p.x.abs();
-                }
-            }
+            faces.map_points(|p| Point3::new(toward * p.x.abs(), p.y, p.z));
             let bvh = Bvh::new(&faces);
             let levels = depth(&bvh, 0);
             assert!(levels < 64, "{levels}");
             let origin = Point3::new(-toward, 0.0, 0.0);
             let along = Vector3::new(toward, 0.0, 0.0);
-            for (i, face) in faces.iter().enumerate().step_by(97) {
-                let hit = bvh.first_hit(&faces, &origin, &along, f64::INFINITY, |f, _| {
-                    std::ptr::eq(f, face)
+            for i in (0..faces.len()).step_by(97) {
+                let hit = bvh.first_hit(&faces, &origin, &along, f64::INFINITY, |f, _, _| {
+                    f as usize == i
                 });
                 assert_eq!(hit, Some(i as u32), "{levels}");
             }
@@ -1469,11 +1469,7 @@ mod tests {
         let mut faces = lopsided_faces(100_000, 3e37, 60);
         for mirrored in [false, true] {
             if mirrored {
-                for face in &mut faces {
-                    for p in &mut face.corners {
-                        p.x = -p.x;
-                    }
-                }
+                faces.map_points(|p| Point3::new(-p.x, p.y, p.z));
             }
             let one = Bvh::with_split_levels(&faces, 0);
             let threaded = Bvh::with_split_levels(&faces, 3);

@@ -30,7 +30,7 @@
 //!   more than the rounding of the few operations between.
 
 use super::bvh::{Bvh, Visit};
-use crate::scene::Face;
+use crate::scene::{Face, Faces};
 use crate::sphere::{angle_between, direction_from_azimuth_elevation, SphereCurve, ViewFrame};
 use nalgebra::{Point3, Vector3};
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
@@ -291,7 +291,7 @@ pub(super) fn segment_distance(a: &Vector3<f64>, b: &Vector3<f64>) -> f64 {
 impl OcclusionMap {
     /// The map of these faces (with their hierarchy) from the eye of `view`, sized to the
     /// number of faces.
-    pub fn new(faces: &[Face], bvh: &Bvh, view: &ViewFrame) -> OcclusionMap {
+    pub fn new(faces: &Faces, bvh: &Bvh, view: &ViewFrame) -> OcclusionMap {
         let rows = ((faces.len() as f64).sqrt() as usize)
             .next_power_of_two()
             .clamp(MIN_ROWS, MAX_ROWS);
@@ -303,7 +303,7 @@ impl OcclusionMap {
     /// The faces are entered nearest first, through their hierarchy: a box of faces whose
     /// every sight line is already covered nearer than the box could add nothing, and is
     /// passed over with everything in it. From a street that is most of a town.
-    pub fn with_rows(faces: &[Face], bvh: &Bvh, view: &ViewFrame, rows: usize) -> OcclusionMap {
+    pub fn with_rows(faces: &Faces, bvh: &Bvh, view: &ViewFrame, rows: usize) -> OcclusionMap {
         let mut map = OcclusionMap::empty(rows.max(2), 2 * rows.max(2));
         let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
         let halves = bvh
@@ -331,7 +331,7 @@ impl OcclusionMap {
 
     /// Enters the faces under the node `root` of their hierarchy, nearest first; returns
     /// how many it entered (the rest lay in boxes already hidden).
-    fn fill(&mut self, faces: &[Face], bvh: &Bvh, root: u32, view: &ViewFrame) -> usize {
+    fn fill(&mut self, faces: &Faces, bvh: &Bvh, root: u32, view: &ViewFrame) -> usize {
         let eye = view.eye();
         let mut entered = 0;
         bvh.front_to_back_under(root, &eye, |visit| match visit {
@@ -372,19 +372,20 @@ impl OcclusionMap {
     /// quadrilateral split in two, as modellers and the scene's builders write them), so
     /// that they cover the cells along that side together; not at all when it shares a side
     /// with the one before (it was entered with that one).
-    fn enter(&mut self, faces: &[Face], index: u32, view: &ViewFrame) {
+    fn enter(&mut self, faces: &Faces, index: u32, view: &ViewFrame) {
         let i = index as usize;
         let flat = |face: &Face| face.slack == 0.0;
-        if !flat(&faces[i])
-            || (i > 0 && flat(&faces[i - 1]) && share_side(&faces[i - 1], &faces[i]))
+        let face = faces.get(i);
+        if !flat(&face)
+            || (i > 0 && flat(&faces.get(i - 1)) && share_side(&faces.get(i - 1), &face))
         {
             return;
         }
-        let corners = faces[i].corners.map(|p| view.to_view(&p));
+        let corners = face.corners.map(|p| view.to_view(&p));
         let plate = Plate::of(&corners);
-        let Some(next) = faces
-            .get(i + 1)
-            .filter(|next| flat(next) && share_side(&faces[i], next))
+        let Some(next) = (i + 1 < faces.len())
+            .then(|| faces.get(i + 1))
+            .filter(|next| flat(next) && share_side(&face, next))
         else {
             if let Some(plate) = plate {
                 self.cover(index, &[plate], None);
@@ -394,7 +395,7 @@ impl OcclusionMap {
         let next_corners = next.corners.map(|p| view.to_view(&p));
         match (plate, Plate::of(&next_corners)) {
             (Some(plate), Some(next_plate)) => {
-                let outline = quad_sides(&faces[i].corners, &next.corners, &corners, &next_corners);
+                let outline = quad_sides(&face.corners, &next.corners, &corners, &next_corners);
                 self.cover(index, &[plate, next_plate], outline.as_ref());
             }
             (Some(plate), None) => self.cover(index, &[plate], None),
@@ -605,7 +606,7 @@ mod tests {
     }
 
     /// The map of these faces from `level_view`, with `rows` rows.
-    fn map_of(faces: &[Face], rows: usize) -> OcclusionMap {
+    fn map_of(faces: &Faces, rows: usize) -> OcclusionMap {
         OcclusionMap::with_rows(faces, &Bvh::new(faces), &level_view(), rows)
     }
 
@@ -627,7 +628,7 @@ mod tests {
     }
 
     /// Every direction of every covered cell meets the cell's face no farther than its depth.
-    fn assert_cover_is_true(map: &OcclusionMap, faces: &[Face]) -> usize {
+    fn assert_cover_is_true(map: &OcclusionMap, faces: &Faces) -> usize {
         let mut covered = 0;
         for row in 0..map.rows {
             for column in 0..map.columns {
@@ -644,7 +645,7 @@ mod tests {
                 };
                 for d in cell_directions(map, row, column) {
                     let hit = candidates.iter().find_map(|&f| {
-                        ray_hits_triangle(&Point3::origin(), &d, &faces[f as usize].corners)
+                        ray_hits_triangle(&Point3::origin(), &d, &faces.get(f as usize).corners)
                     });
                     let hit =
                         hit.unwrap_or_else(|| panic!("cell {row},{column} not covered at {d:?}"));
@@ -689,7 +690,7 @@ mod tests {
     #[test]
     fn a_cell_covered_by_a_triangle_really_is() {
         // A wall 10 m ahead, 20 m wide, 2 m below to 6 m above the eye, as two triangles.
-        let faces = rectangle_ahead(10.0, 10.0, -2.0, 6.0);
+        let faces = Faces::from(rectangle_ahead(10.0, 10.0, -2.0, 6.0));
         let map = map_of(&faces, 64);
         let covered = assert_cover_is_true(&map, &faces);
         // The wall spans 90 degrees of azimuth and about 11 below to 31 above, at best
@@ -745,10 +746,10 @@ mod tests {
     fn the_blockers_are_the_face_in_that_direction_and_only_beyond_its_bound() {
         // One triangle 10 m ahead (face 0), one 20 m to the left (face 1): apart, so each
         // covers cells alone.
-        let faces = [
+        let faces = Faces::from([
             face([[-10.0, 10.0, -5.0], [10.0, 10.0, -5.0], [0.0, 10.0, 10.0]]),
             triangle_to_the_left(),
-        ];
+        ]);
         let map = map_of(&faces, 64);
         let (ahead, left) = (Vector3::y(), -Vector3::x());
         assert_eq!(map.blockers(&ahead, 11.0), Some(0..1));
@@ -771,7 +772,7 @@ mod tests {
         // A lone triangle to the left (face 0), then a 2 m square 5 m ahead split along its
         // diagonal (faces 1 and 2).
         let [lower, upper] = rectangle_ahead(5.0, 1.0, -1.0, 1.0);
-        let faces = [triangle_to_the_left(), lower, upper];
+        let faces = Faces::from([triangle_to_the_left(), lower, upper]);
         let map = map_of(&faces, 64);
         // A cell the diagonal runs through (azimuth and elevation 0 to 2.8 degrees) is
         // covered by neither triangle alone; one up and to the left of it, by face 2 alone.
@@ -783,7 +784,7 @@ mod tests {
 
     #[test]
     fn a_cap_is_covered_only_by_every_cell_it_touches_and_only_beyond_their_bounds() {
-        let faces = rectangle_ahead(10.0, 10.0, -2.0, 6.0);
+        let faces = Faces::from(rectangle_ahead(10.0, 10.0, -2.0, 6.0));
         let map = map_of(&faces, 64);
         let (row_angle, column_angle) = (PI / 64.0, TAU / 128.0);
         // Straight ahead (the middle of column 64), the highest row covered lies under one
@@ -812,7 +813,7 @@ mod tests {
         // A wall 10 m ahead, 20 m wide and 4 m high round eye height: at least 8 degrees
         // above and below the horizon from azimuth -45 to 45. The horizon from -30 to 30
         // lies behind it, 20 m away; the sight lines 12 degrees up do not.
-        let faces = rectangle_ahead(10.0, 10.0, -2.0, 2.0);
+        let faces = Faces::from(rectangle_ahead(10.0, 10.0, -2.0, 2.0));
         let map = map_of(&faces, 128);
         let toward = |azimuth: f64, elevation: f64| {
             direction_from_azimuth_elevation(azimuth.to_radians(), elevation.to_radians())
@@ -831,11 +832,11 @@ mod tests {
     fn the_depth_bound_is_tight_straight_ahead() {
         // Straight ahead the plane bound is about the wall's distance, well under the
         // farthest corner's (15 m).
-        let faces = [face([
+        let faces = Faces::from([face([
             [-10.0, 10.0, -5.0],
             [10.0, 10.0, -5.0],
             [0.0, 10.0, 10.0],
-        ])];
+        ])]);
         let map = map_of(&faces, 256);
         let (row, column) = map.cell_of(&Vector3::new(0.0, 1.0, 0.0));
         let depth = map.depth[row * map.columns + column] as f64;
@@ -845,14 +846,14 @@ mod tests {
     #[test]
     fn a_triangle_across_the_seam_covers_both_sides() {
         // Behind the eye (azimuth 180, the seam), a wall from azimuth 135 to -135.
-        let faces = [
+        let faces = Faces::from([
             face([
                 [10.0, -10.0, -3.0],
                 [-10.0, -10.0, -3.0],
                 [-10.0, -10.0, 3.0],
             ]),
             face([[10.0, -10.0, -3.0], [-10.0, -10.0, 3.0], [10.0, -10.0, 3.0]]),
-        ];
+        ]);
         let map = map_of(&faces, 64);
         assert_cover_is_true(&map, &faces);
         let equator = map.rows / 2;
@@ -870,10 +871,10 @@ mod tests {
     #[test]
     fn a_ceiling_covers_the_zenith_all_round() {
         // A ceiling 3 m above the eye, 40 m across, as two triangles.
-        let faces = [
+        let faces = Faces::from([
             face([[-20.0, -20.0, 3.0], [20.0, -20.0, 3.0], [20.0, 20.0, 3.0]]),
             face([[-20.0, -20.0, 3.0], [20.0, 20.0, 3.0], [-20.0, 20.0, 3.0]]),
-        ];
+        ]);
         let map = map_of(&faces, 64);
         assert_cover_is_true(&map, &faces);
         // The top row's tiny cells, in every column.
@@ -889,7 +890,7 @@ mod tests {
         let mut curved = face([[-10.0, 10.0, -2.0], [10.0, 10.0, -2.0], [0.0, 10.0, 6.0]]);
         curved.slack = 0.01;
         let edge_on = face([[-10.0, 10.0, 0.0], [10.0, 10.0, 0.0], [0.0, 20.0, 0.0]]);
-        let map = map_of(&[curved, edge_on], 64);
+        let map = map_of(&Faces::from([curved, edge_on]), 64);
         assert!(map.depth.iter().all(|d| d.is_infinite()));
     }
 
@@ -1004,8 +1005,8 @@ mod tests {
 
     /// Houses of four walls and a roof as loose triangles (no two share a side), on a grid
     /// round the eye, with a fixed rule for their sizes.
-    fn loose_houses() -> Vec<Face> {
-        let mut faces = Vec::new();
+    fn loose_houses() -> Faces {
+        let mut faces = Faces::new();
         for i in -6..=6 {
             for j in -6..=6 {
                 if i == 0 && j == 0 {
@@ -1038,7 +1039,7 @@ mod tests {
     }
 
     /// The loose houses, their hierarchy, and a view from between them at eye height.
-    fn among_the_houses() -> (Vec<Face>, Bvh, ViewFrame) {
+    fn among_the_houses() -> (Faces, Bvh, ViewFrame) {
         let faces = loose_houses();
         let bvh = Bvh::new(&faces);
         let view = ViewFrame::new(&Standpoint::from_degrees(
@@ -1081,10 +1082,10 @@ mod tests {
         // A wall 10 m north of the eye, 60 m long, and two boxes half a metre across seen
         // through it, 2 m to the east: one 0.2 m before it (the wall covers every sight line
         // to it, but only beyond it) and one 0.5 m behind. Only the second is hidden.
-        let wall = [
+        let wall = Faces::from([
             face([[-30.0, 10.0, -5.0], [30.0, 10.0, -5.0], [30.0, 10.0, 10.0]]),
             face([[-30.0, 10.0, -5.0], [30.0, 10.0, 10.0], [-30.0, 10.0, 10.0]]),
-        ];
+        ]);
         let view = ViewFrame::new(&Standpoint::from_degrees("o", 0.0, 0.0, 1.6, 0.0, 0.0, 0.0));
         let mut map = OcclusionMap::empty(512, 1024);
         map.enter(&wall, 0, &view);
@@ -1113,7 +1114,7 @@ mod tests {
                 face([at(-10.0, -2.0), at(10.0, 3.0), at(-10.0, 3.0)]),
             ]
         };
-        let mut faces = Vec::new();
+        let mut faces = Faces::new();
         for (along, across) in [
             ([1.0, 0.0], [0.0, 10.0]),
             ([1.0, 0.0], [0.0, -10.0]),

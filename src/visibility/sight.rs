@@ -3,7 +3,7 @@
 
 use super::bvh::{ray_hits_triangle, Bvh};
 use super::occlusion::{segment_distance, OcclusionMap};
-use crate::scene::Face;
+use crate::scene::{Face, Faces};
 use crate::sphere::{SphereCurve, ViewFrame};
 use nalgebra::{Point3, Vector3};
 
@@ -19,7 +19,7 @@ pub type Spans = Vec<(f64, f64, bool)>;
 /// Everything that hides, from one eye.
 pub struct Occluders<'a> {
     /// The faces that may hide things.
-    pub faces: &'a [Face],
+    pub faces: &'a Faces,
     /// Their hierarchy.
     pub bvh: &'a Bvh,
     /// The view the curves are given in.
@@ -74,7 +74,7 @@ impl Look {
 impl<'a> Occluders<'a> {
     /// What hides things from the eye of `view`: the faces, their hierarchy, and the map of
     /// certain cover made for this eye.
-    pub fn new(faces: &'a [Face], bvh: &'a Bvh, view: &'a ViewFrame) -> Occluders<'a> {
+    pub fn new(faces: &'a Faces, bvh: &'a Bvh, view: &'a ViewFrame) -> Occluders<'a> {
         Occluders {
             faces,
             bvh,
@@ -123,7 +123,7 @@ impl<'a> Occluders<'a> {
             .and_then(|mut faces| faces.find(|&face| self.blocks(face, &towards, limit)))
             .or_else(|| {
                 self.bvh
-                    .first_hit(self.faces, &self.eye, &towards, limit, |face, hit| {
+                    .first_hit(self.faces, &self.eye, &towards, limit, |_, face, hit| {
                         self.hides(face, &towards, hit, limit)
                     })
             });
@@ -132,9 +132,9 @@ impl<'a> Occluders<'a> {
 
     /// Whether the face hides the point at `limit` along the site direction `towards`.
     fn blocks(&self, face: u32, towards: &Vector3<f64>, limit: f64) -> bool {
-        let face = &self.faces[face as usize];
+        let face = self.faces.get(face as usize);
         ray_hits_triangle(&self.eye, towards, &face.corners)
-            .is_some_and(|hit| self.hides(face, towards, hit, limit))
+            .is_some_and(|hit| self.hides(&face, towards, hit, limit))
     }
 
     /// Whether the face hides the point of the edge at `t`.
@@ -335,7 +335,9 @@ impl<'a> Occluders<'a> {
         b: f64,
         hidden_at_b: bool,
     ) -> Option<f64> {
-        let [p, q, r] = self.faces[face as usize]
+        let [p, q, r] = self
+            .faces
+            .get(face as usize)
             .corners
             .map(|corner| self.view.to_view(&corner));
         let crossings = [p.cross(&q), q.cross(&r), r.cross(&p)]
@@ -402,7 +404,7 @@ mod tests {
 
     /// The wall of tests/hidden_by_hand.rs seen from (0, 0) at 1.5 m: its face y = 10, x from
     /// -2 to 2, z from 0 to 3, cut into `rows` strips of two triangles each.
-    fn wall(rows: usize) -> Vec<Face> {
+    fn wall(rows: usize) -> Faces {
         let height = |k: usize| 3.0 * k as f64 / rows as f64;
         (0..rows)
             .flat_map(|k| panel((-2.0, 2.0), 10.0, (height(k), height(k + 1)), 0.0))
@@ -411,7 +413,7 @@ mod tests {
 
     /// The stretches of the post at (1, 20) from the ground to 5 m, at 4096 pixels round,
     /// and the height on the post where the first stretch ends.
-    fn post_behind(faces: &[Face]) -> (Spans, f64) {
+    fn post_behind(faces: &Faces) -> (Spans, f64) {
         let (spans, curve) = stretches(
             faces,
             Point3::new(1.0, 20.0, 0.0),
@@ -444,7 +446,7 @@ mod tests {
     }
 
     /// The stretches of a straight edge, a pixel apart at 4096 round.
-    fn stretches(faces: &[Face], start: Point3<f64>, end: Point3<f64>) -> (Spans, SphereCurve) {
+    fn stretches(faces: &Faces, start: Point3<f64>, end: Point3<f64>) -> (Spans, SphereCurve) {
         let bvh = Bvh::new(faces);
         let view = eye_at_1_5();
         let occluders = Occluders::new(faces, &bvh, &view);
@@ -462,7 +464,7 @@ mod tests {
     /// A rail along y = 20 at height `z`, from x = -`half` to `half`, behind `faces`: which
     /// of its stretches are seen, and where along x each change lies (its sight line followed
     /// out to y = 20).
-    fn rail(faces: &[Face], half: f64, z: f64) -> (Vec<bool>, Vec<f64>) {
+    fn rail(faces: &Faces, half: f64, z: f64) -> (Vec<bool>, Vec<f64>) {
         let (spans, curve) = stretches(
             faces,
             Point3::new(-half, 20.0, z),
@@ -501,7 +503,7 @@ mod tests {
             item: ItemId(0),
             slack: 0.25,
         };
-        let faces = [face];
+        let faces = Faces::from([face]);
         let bvh = Bvh::new(&faces);
         let view = eye_at_1_5();
         let occluders = Occluders::new(&faces, &bvh, &view);
@@ -523,7 +525,7 @@ mod tests {
     fn an_edge_drawn_on_a_face_is_not_hidden_by_it() {
         // A line across the middle of a wall, in its plane: the depth bias keeps the wall
         // from hiding it.
-        let faces = panel((-2.0, 2.0), 10.0, (0.0, 3.0), 0.0);
+        let faces = Faces::from(panel((-2.0, 2.0), 10.0, (0.0, 3.0), 0.0));
         let (spans, curve) = stretches(
             &faces,
             Point3::new(-1.0, 10.0, 1.0),
@@ -538,7 +540,7 @@ mod tests {
         // up, from x = -6 to 6. Seen from (0, 0) at 1.5 m, the rail's sight lines cross the
         // walls' plane at half its x (similar triangles) and 1.25 m up: its ends hide
         // behind different walls, and it shows through the gap where |x| < 1.
-        let mut faces = panel((-4.0, -0.5), 10.0, (0.0, 3.0), 0.0).to_vec();
+        let mut faces = Faces::from(panel((-4.0, -0.5), 10.0, (0.0, 3.0), 0.0));
         faces.extend(panel((0.5, 4.0), 10.0, (0.0, 3.0), 0.0));
         let (seen, changes) = rail(&faces, 6.0, 1.0);
         assert_eq!(seen, [false, true, false]);
@@ -549,7 +551,7 @@ mod tests {
     fn a_rail_seen_at_both_ends_hides_in_the_middle_behind_a_pillar() {
         // The rail of the test above behind a pillar at y = 10 from x = -0.5 to 0.5: both
         // ends are seen, and the middle, where |x| < 1, is hidden.
-        let faces = panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0);
+        let faces = Faces::from(panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0));
         let (seen, changes) = rail(&faces, 6.0, 1.0);
         assert_eq!(seen, [true, false, true]);
         assert_changes_at(&changes, &[-1.0, 1.0]);
@@ -562,7 +564,7 @@ mod tests {
         // The facade covers every direction near the rail, all of it within a metre of the
         // rail's nearest point, but hides none of the rail: the rail shows between the
         // posts, where |x| / 2 < 1.25 (similar triangles).
-        let mut faces = panel((-20.0, 20.0), 20.2, (0.0, 10.0), 0.0).to_vec();
+        let mut faces = Faces::from(panel((-20.0, 20.0), 20.2, (0.0, 10.0), 0.0));
         faces.extend(panel((-1.75, -1.25), 10.0, (0.0, 3.0), 0.0));
         faces.extend(panel((1.25, 1.75), 10.0, (0.0, 3.0), 0.0));
         let (seen, changes) = rail(&faces, 3.0, 3.0);
@@ -602,7 +604,7 @@ mod tests {
         // x * 5 / y = 1.75, similar triangles). Hidden behind the wall, seen, hidden behind
         // the post: the wall, which hides the far end, lies 0.86 m behind the near end
         // along its sight line and must not be taken to hide it.
-        let mut faces = panel((-20.0, 20.0), 10.8, (0.0, 10.0), 0.0).to_vec();
+        let mut faces = Faces::from(panel((-20.0, 20.0), 10.8, (0.0, 10.0), 0.0));
         faces.extend(panel((1.75, 2.25), 5.0, (0.0, 3.0), 0.0));
         let (start, end) = (Point3::new(-4.0, 25.0, 1.0), Point3::new(4.0, 10.0, 1.0));
         let (spans, curve) = stretches(&faces, start, end);
@@ -628,7 +630,7 @@ mod tests {
         // A ring of radius 2 round (0, 20), 1 m up, behind a wall at y = 10 from x = -0.5 to
         // 0.5: its sight lines cross the wall's plane at x * 10 / y, so the points of the
         // ring straight ahead and straight behind its centre hide, and its sides show.
-        let faces = panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0);
+        let faces = Faces::from(panel((-0.5, 0.5), 10.0, (0.0, 3.0), 0.0));
         let bvh = Bvh::new(&faces);
         let view = eye_at_1_5();
         let occluders = Occluders::new(&faces, &bvh, &view);
