@@ -15,7 +15,7 @@ fuzz_target!(|data: &[u8]| {
     add_mesh(&mut site, &obj, &MeshPlacement::default(), "fuzz");
     // Asked from the middle of the corners, the check's ray meets the model most often, so
     // an open model's pieces are walked (a model's every face is the check's to count).
-    let Some(first) = site.faces.first() else {
+    let Some(first) = site.faces.iter().next() else {
         return;
     };
     let mut middle = first.corners[0];
