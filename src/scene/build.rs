@@ -3,7 +3,7 @@
 //! the groups and repeats the item sits in).
 
 use super::outline::RoundOutline;
-use super::site::{Edge, EllipseArc, Face, ItemId, Marker, Outline, Site, SiteCurve};
+use super::site::{Edge, EllipseArc, ItemId, Marker, Outline, Site, SiteCurve};
 use nalgebra::{Point3, Vector2, Vector3};
 use std::collections::HashSet;
 use std::f64::consts::TAU;
@@ -307,13 +307,9 @@ impl<'a> ItemBuilder<'a> {
             hole_starts.push(next);
             next += hole.len();
         }
-        for [a, b, c] in triangulate(&placed, &hole_starts) {
-            self.site.faces.push(Face {
-                corners: [placed[a], placed[b], placed[c]],
-                item: self.item,
-                slack: 0.0,
-            });
-        }
+        let triangles = triangulate(&placed, &hole_starts);
+        let flat = triangles.into_iter().map(|t| (t, 0.0));
+        self.site.faces.add_sharing(&placed, flat, self.item);
     }
 
     /// The faces between two rows of points that run side by side (a curved strip: a
@@ -324,37 +320,30 @@ impl<'a> ItemBuilder<'a> {
     /// (c / 2) tan(angle / 4) (the chord and the arc of a circle); that is the faces'
     /// slack.
     pub fn strip(&mut self, a: &[Point3<f64>], b: &[Point3<f64>]) {
-        let a: Vec<Point3<f64>> = a.iter().map(|p| self.place.point(p)).collect();
-        let b: Vec<Point3<f64>> = b.iter().map(|p| self.place.point(p)).collect();
+        // Both rows as one list of corners, the second row's numbers after the first's.
+        let rows: Vec<Point3<f64>> = a.iter().chain(b).map(|p| self.place.point(p)).collect();
+        let (a, b) = rows.split_at(a.len());
+        let second = a.len();
         let bow = (FACET_ANGLE / 4.0).tan() / 2.0;
-        for i in 0..a.len().min(b.len()).saturating_sub(1) {
+        let quads = (0..a.len().min(b.len()).saturating_sub(1)).flat_map(|i| {
             let chord = (a[i + 1] - a[i]).norm().max((b[i + 1] - b[i]).norm());
             let slack = (chord * bow) as f32;
-            for corners in [[a[i], a[i + 1], b[i + 1]], [a[i], b[i + 1], b[i]]] {
-                self.placed_triangle(corners, slack);
-            }
-        }
+            let (a0, a1, b0, b1) = (i, i + 1, second + i, second + i + 1);
+            [([a0, a1, b1], slack), ([a0, b1, b0], slack)]
+        });
+        let triangles: Vec<([usize; 3], f32)> = quads.filter(|(t, _)| has_area(&rows, t)).collect();
+        self.site.faces.add_sharing(&rows, triangles, self.item);
     }
 
     /// A flat convex face (a column's lid): a fan of triangles from its first corner,
     /// without the general triangulator.
     pub fn convex_face(&mut self, corners: &[Point3<f64>]) {
         let placed: Vec<Point3<f64>> = corners.iter().map(|p| self.place.point(p)).collect();
-        for k in 1..placed.len().saturating_sub(1) {
-            self.placed_triangle([placed[0], placed[k], placed[k + 1]], 0.0);
-        }
-    }
-
-    /// A triangle already in site coordinates; one of no area hides nothing and is left out.
-    fn placed_triangle(&mut self, corners: [Point3<f64>; 3], slack: f32) {
-        let area2 = (corners[1] - corners[0]).cross(&(corners[2] - corners[0]));
-        if area2.norm_squared() > 0.0 {
-            self.site.faces.push(Face {
-                corners,
-                item: self.item,
-                slack,
-            });
-        }
+        let fan: Vec<([usize; 3], f32)> = (1..placed.len().saturating_sub(1))
+            .map(|k| ([0, k, k + 1], 0.0))
+            .filter(|(t, _)| has_area(&placed, t))
+            .collect();
+        self.site.faces.add_sharing(&placed, fan, self.item);
     }
 
     /// A vertical cylinder whose two outline generators are found from each eye.
@@ -424,6 +413,13 @@ impl<'a> ItemBuilder<'a> {
             item: self.item,
         });
     }
+}
+
+/// Whether the triangle of these corners (numbers into `points`) has an area: one of
+/// none hides nothing and is left out.
+fn has_area(points: &[Point3<f64>], &[a, b, c]: &[usize; 3]) -> bool {
+    let area2 = (points[b] - points[a]).cross(&(points[c] - points[a]));
+    area2.norm_squared() > 0.0
 }
 
 /// Triangles (vertex indices) covering a flat polygon with holes. The polygon is laid flat

@@ -296,11 +296,7 @@ impl Walker<'_> {
         let edges_finite = self.site.edges[before.0..]
             .iter()
             .all(|edge| edge.curve.is_finite());
-        let faces_finite = self
-            .site
-            .faces
-            .iter_from(before.1)
-            .all(|face| face.is_finite());
+        let faces_finite = self.site.faces.are_finite_from(before.1);
         if edges_finite && faces_finite {
             return Ok(());
         }

@@ -64,6 +64,7 @@ impl Faces {
     }
 
     /// The face at `index`, its corners looked up. Panics past the end, as a slice does.
+    #[inline]
     pub fn get(&self, index: usize) -> Face {
         self.resolve(&self.faces[index])
     }
@@ -81,10 +82,39 @@ impl Faces {
         }
     }
 
+    /// Whether the faces from `start` on have finite corners and slack (see
+    /// [`Face::is_finite`]), without building each face.
+    pub fn are_finite_from(&self, start: usize) -> bool {
+        let finite = |c: u32| self.points[c as usize].iter().all(|v| v.is_finite());
+        self.faces[start..]
+            .iter()
+            .all(|face| face.slack.is_finite() && face.corners.into_iter().all(finite))
+    }
+
+    /// Adds faces of one item over these corner points, which join the list once: each
+    /// triangle as three numbers into `points`, with its slack.
+    pub fn add_sharing(
+        &mut self,
+        points: &[Point3<f64>],
+        triangles: impl IntoIterator<Item = ([usize; 3], f32)>,
+        item: ItemId,
+    ) {
+        let base = self.points.len();
+        self.points.extend_from_slice(points);
+        self.faces
+            .extend(triangles.into_iter().map(|(corners, slack)| Stored {
+                corners: corners.map(|c| (base + c) as u32),
+                item,
+                slack,
+            }));
+    }
+
     /// Adds a face with corners of its own.
     pub fn push(&mut self, face: Face) {
         let first = self.points.len() as u32;
-        self.points.extend_from_slice(&face.corners);
+        for corner in face.corners {
+            self.points.push(corner);
+        }
         self.faces.push(Stored {
             corners: [first, first + 1, first + 2],
             item: face.item,
@@ -141,15 +171,18 @@ impl Faces {
         }
     }
 
+    #[inline]
     fn resolve(&self, stored: &Stored) -> Face {
         stored.resolve(&self.points)
     }
 }
 
 impl Stored {
+    #[inline]
     fn resolve(&self, points: &[Point3<f64>]) -> Face {
+        let [a, b, c] = self.corners;
         Face {
-            corners: self.corners.map(|c| points[c as usize]),
+            corners: [points[a as usize], points[b as usize], points[c as usize]],
             item: self.item,
             slack: self.slack,
         }
@@ -166,6 +199,7 @@ pub struct FaceIter<'a> {
 impl Iterator for FaceIter<'_> {
     type Item = Face;
 
+    #[inline]
     fn next(&mut self) -> Option<Face> {
         self.stored.next().map(|s| s.resolve(self.points))
     }
@@ -292,6 +326,34 @@ mod tests {
         assert_eq!(all[0], triangle(0.0, 0));
         assert_eq!(faces.iter_from(2).next(), Some(faces.get(2)));
         assert_eq!(faces.iter().next_back(), Some(upper));
+    }
+
+    #[test]
+    fn an_items_faces_share_the_corners_it_gives_once() {
+        // A unit square as a fan of two triangles over its four corners, each with its
+        // slack, after a face of its own.
+        let mut faces = Faces::from([triangle(0.0, 0)]);
+        let square = [
+            Point3::new(0.0, 0.0, 2.0),
+            Point3::new(1.0, 0.0, 2.0),
+            Point3::new(1.0, 1.0, 2.0),
+            Point3::new(0.0, 1.0, 2.0),
+        ];
+        let fan = [([0, 1, 2], 0.25), ([0, 2, 3], 0.5)];
+        faces.add_sharing(&square, fan, ItemId(7));
+        assert_eq!(faces.points.len(), 3 + 4);
+        assert_eq!(
+            faces.get(2),
+            Face {
+                corners: [square[0], square[2], square[3]],
+                item: ItemId(7),
+                slack: 0.5,
+            }
+        );
+        assert!(faces.are_finite_from(0));
+        faces.map_points(|p| Point3::new(p.x, p.y, if p.z > 1.0 { f64::NAN } else { p.z }));
+        assert!(!faces.are_finite_from(1));
+        assert!(faces.get(0).is_finite());
     }
 
     #[test]
