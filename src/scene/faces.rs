@@ -71,14 +71,9 @@ impl Faces {
 
     /// Every face, in order.
     pub fn iter(&self) -> FaceIter<'_> {
-        self.iter_from(0)
-    }
-
-    /// The faces from `start` on, in order.
-    pub fn iter_from(&self, start: usize) -> FaceIter<'_> {
         FaceIter {
             points: &self.points,
-            stored: self.faces[start..].iter(),
+            stored: self.faces.iter(),
         }
     }
 
@@ -111,15 +106,7 @@ impl Faces {
 
     /// Adds a face with corners of its own.
     pub fn push(&mut self, face: Face) {
-        let first = self.points.len() as u32;
-        for corner in face.corners {
-            self.points.push(corner);
-        }
-        self.faces.push(Stored {
-            corners: [first, first + 1, first + 2],
-            item: face.item,
-            slack: face.slack,
-        });
+        self.add_sharing(&face.corners, [([0, 1, 2], face.slack)], face.item);
     }
 
     /// Keeps the first `len` faces, and drops the points that only the others used
@@ -164,7 +151,7 @@ impl Faces {
             }));
     }
 
-    /// Moves every corner by `change` (a fuzzing test breaks faces this way).
+    /// Moves every corner by `change` (the hierarchy's tests mirror a model this way).
     pub fn map_points(&mut self, change: impl Fn(Point3<f64>) -> Point3<f64>) {
         for point in &mut self.points {
             *point = change(*point);
@@ -209,12 +196,6 @@ impl Iterator for FaceIter<'_> {
     }
 }
 
-impl DoubleEndedIterator for FaceIter<'_> {
-    fn next_back(&mut self) -> Option<Face> {
-        self.stored.next_back().map(|s| s.resolve(self.points))
-    }
-}
-
 impl ExactSizeIterator for FaceIter<'_> {}
 
 impl<'a> IntoIterator for &'a Faces {
@@ -231,12 +212,6 @@ impl FromIterator<Face> for Faces {
         let mut all = Faces::new();
         all.extend(faces);
         all
-    }
-}
-
-impl From<Vec<Face>> for Faces {
-    fn from(faces: Vec<Face>) -> Faces {
-        faces.into_iter().collect()
     }
 }
 
@@ -324,8 +299,7 @@ mod tests {
         let all: Vec<Face> = faces.iter().collect();
         assert_eq!(all.len(), 4);
         assert_eq!(all[0], triangle(0.0, 0));
-        assert_eq!(faces.iter_from(2).next(), Some(faces.get(2)));
-        assert_eq!(faces.iter().next_back(), Some(upper));
+        assert_eq!(all[3], upper);
     }
 
     #[test]

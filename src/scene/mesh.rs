@@ -426,13 +426,11 @@ fn add_mesh_on_cores(
     // triangles' vertex numbers.
     let first_face = site.faces.len();
     let closed = stats.boundary == 0 && stats.non_manifold == 0;
-    let open_corners = match closed {
-        true => Vec::new(),
-        false => first_triangles
-            .iter()
-            .chain(&later_triangles)
-            .map(|&(t, _)| t)
-            .collect(),
+    let open_corners = if closed {
+        Vec::new()
+    } else {
+        let triangles = first_triangles.iter().chain(&later_triangles);
+        triangles.map(|&(t, _)| t).collect()
     };
     // The welded vertices become the faces' corner points, shared (a model of lines alone
     // keeps none).

@@ -376,9 +376,8 @@ impl OcclusionMap {
         let i = index as usize;
         let flat = |face: &Face| face.slack == 0.0;
         let face = faces.get(i);
-        if !flat(&face)
-            || (i > 0 && flat(&faces.get(i - 1)) && share_side(&faces.get(i - 1), &face))
-        {
+        let entered_before = |before: Face| flat(&before) && share_side(&before, &face);
+        if !flat(&face) || (i > 0 && entered_before(faces.get(i - 1))) {
             return;
         }
         let corners = face.corners.map(|p| view.to_view(&p));
