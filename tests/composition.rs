@@ -226,7 +226,7 @@ fn straight_edges_stay_straight_and_arcs_are_within_tolerance() {
                     v,
                     start,
                     sweep,
-                } = **arc;
+                } = *arc;
                 // Every true point of the arc inside the picture is within 0.1 px of the
                 // drawing (the definition, densely sampled).
                 for k in 0..=200 {

@@ -537,8 +537,8 @@ fn an_open_data_file_given_directly_is_explored_and_kept_beside() {
     assert_eq!(kept.location, direct.location);
     assert_eq!(kept.edges.len(), direct.edges.len());
     assert_eq!(
-        format!("{:?}", kept.edges[0].curve),
-        format!("{:?}", direct.edges[0].curve)
+        format!("{:?}", kept.edges.get(0).curve),
+        format!("{:?}", direct.edges.get(0).curve)
     );
 }
 

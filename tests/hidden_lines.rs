@@ -77,7 +77,7 @@ fn check_scene(name: &str, site: &Site, standpoint: &Standpoint, every: usize) {
     let eye = view.eye();
     let bvh = Bvh::new(&site.faces);
     let occluders = Occluders::new(&site.faces, &bvh, &view);
-    let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve.clone()).collect();
+    let mut edges: Vec<SiteCurve> = site.edges.iter().map(|e| e.curve).collect();
     edges.extend(site.outline_edges_from(&eye).into_iter().map(|e| e.curve));
     let mut tally = Tally {
         samples: 0,

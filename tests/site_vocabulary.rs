@@ -233,7 +233,7 @@ fn dome_rim_is_where_sight_lines_graze_the_sphere() {
             v,
             start,
             sweep,
-        } = **arc;
+        } = *arc;
         for i in 0..=20 {
             let t = start + sweep * i as f64 / 20.0;
             let p = c + u * t.cos() + v * t.sin();
@@ -303,9 +303,11 @@ fn groups_and_repeats_place_their_items() {
 /// The highest point of a site's curved edges (exactly, from the curves).
 fn highest_curve_point(site: &Site) -> f64 {
     let mut curves = site.clone();
-    curves
+    curves.edges = site
         .edges
-        .retain(|e| matches!(e.curve, SiteCurve::Ellipse(_)));
+        .iter()
+        .filter(|e| matches!(e.curve, SiteCurve::Ellipse(_)))
+        .collect();
     curves.faces.clear();
     bounds(&curves).unwrap().1.z
 }
@@ -469,7 +471,7 @@ fn a_footprints_sides_take_shaped_heads_and_round_windows() {
             if let SiteCurve::Ellipse(arc) = &edge.curve {
                 let EllipseArc {
                     centre: c, u, v, ..
-                } = **arc;
+                } = *arc;
                 // Every curve stands in the side's plane y = 0.
                 assert_near(c.y, 0.0, 1e-12);
                 assert_near(u.y, 0.0, 1e-12);
@@ -572,7 +574,7 @@ proptest! {
         let site = site(CURVED);
         let view = ViewFrame::new(&standpoint);
         let outlines = site.outline_edges_from(&standpoint.eye());
-        let curved = site.edges.iter().chain(&outlines).filter(|e| {
+        let curved = site.edges.iter().chain(outlines.iter().copied()).filter(|e| {
             matches!(e.curve, SiteCurve::Ellipse(_)) || outlines.contains(e)
         });
         // Every curve is built and compared: none may slip through as "no image".
@@ -902,7 +904,7 @@ fn curves_of<'a>(site: &'a Site, label: &str) -> impl Iterator<Item = SiteCurve>
     site.edges
         .iter()
         .filter(move |e| e.item == ItemId(item))
-        .map(|e| e.curve.clone())
+        .map(|e| e.curve)
 }
 
 /// The lowest point of an item's edges: segment ends, and the lowest point of each
@@ -1096,7 +1098,7 @@ fn round_items_stand_at_the_lowest_ground_round_their_rims() {
             v,
             sweep,
             ..
-        } = **arc;
+        } = *arc;
         assert_near(sweep, std::f64::consts::TAU, 1e-12);
         assert_near(
             (centre - Point3::new(x, y, plane_height(x, y))).norm(),
@@ -1142,7 +1144,7 @@ fn a_round_item_in_a_turned_group_meets_the_ground_in_the_same_ellipse() {
         v,
         start,
         sweep,
-    } = **arc;
+    } = *arc;
     assert_near((centre - Point3::new(20.0, 10.0, 4.0)).norm(), 0.0, 1e-12);
     let ground = site.ground.as_ref().unwrap();
     for k in 0..16 {
@@ -1208,7 +1210,7 @@ fn a_round_item_across_a_valley_meets_each_side_in_its_own_arc() {
             v,
             start,
             sweep,
-        } = *arc;
+        } = arc;
         assert_near(sweep, std::f64::consts::PI, 1e-12);
         for k in 0..=8 {
             let t = start + sweep * k as f64 / 8.0;

@@ -171,8 +171,8 @@ fn anchors(site: &Site) -> Vec<Option<Point3<f64>>> {
                 add(edge.item, start);
                 add(edge.item, end);
             }
-            SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc { centre, u, v, .. } = **arc;
+            SiteCurve::Ellipse(arc) => {
+                let EllipseArc { centre, u, v, .. } = arc;
                 add(edge.item, centre + u);
                 add(edge.item, centre - u);
                 add(edge.item, centre + v);

@@ -345,14 +345,18 @@ pub fn preview_with_hidden_lines(
     let tolerance = settings.tolerance_px;
     // Runs of edges on all cores (with hidden lines an edge costs its sight lines), their
     // lines joined in edge order.
-    let edges: Vec<&Edge> = site.edges.iter().chain(outlines.iter()).collect();
-    let runs = crate::cores::in_order(edges.len().div_ceil(EDGES_PER_RUN), |run| {
+    let (fixed, all) = (site.edges.len(), site.edges.len() + outlines.len());
+    let edge = |index: usize| match index.checked_sub(fixed) {
+        None => site.edges.get(index),
+        Some(outline) => outlines[outline],
+    };
+    let runs = crate::cores::in_order(all.div_ceil(EDGES_PER_RUN), |run| {
         let (mut seen, mut hidden) = (Vec::new(), Vec::new());
         let first = run * EDGES_PER_RUN;
-        for edge in &edges[first..(first + EDGES_PER_RUN).min(edges.len())] {
+        for index in first..(first + EDGES_PER_RUN).min(all) {
             look_at_edge(
                 &camera,
-                edge,
+                &edge(index),
                 occluders.as_ref(),
                 pixel,
                 tolerance,

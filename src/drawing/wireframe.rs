@@ -56,18 +56,26 @@ pub fn wireframe(
     } else {
         EDGES_PER_RUN
     };
-    let runs: Vec<&[Edge]> = site
-        .edges
-        .chunks(per_run)
-        .chain(outlines.chunks(per_run))
+    // Runs of the site's edges, then runs of these, each as its first edge's number
+    // (counting on past the site's into these) and its length.
+    let fixed = site.edges.len();
+    let runs: Vec<(usize, usize)> = (0..fixed)
+        .step_by(per_run)
+        .map(|first| (first, per_run.min(fixed - first)))
+        .chain(
+            (0..outlines.len())
+                .step_by(per_run)
+                .map(|first| (fixed + first, per_run.min(outlines.len() - first))),
+        )
         .collect();
-    let fixed_runs = site.edges.len().div_ceil(per_run);
-    let first_index = |run: usize| {
-        if run < fixed_runs {
-            run * per_run
-        } else {
-            site.edges.len() + (run - fixed_runs) * per_run
-        }
+    // A run lies wholly among the site's edges or wholly among these: one part is empty.
+    let run_edges = |(first, length): (usize, usize)| {
+        let (own, found) = match first.checked_sub(fixed) {
+            None => (first..first + length, 0..0),
+            Some(first) => (fixed..fixed, first..first + length),
+        };
+        let edges = site.edges.iter_range(own);
+        (edges.chain(outlines[found].iter().copied()), length)
     };
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
@@ -99,14 +107,14 @@ pub fn wireframe(
         let mut done = Vec::new();
         loop {
             let index = next_run.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-            let Some(edges) = runs.get(index) else { break };
+            let Some(&run) = runs.get(index) else { break };
             if let Err(error) = budget.check_time(stage, stage_started, index, runs.len()) {
                 refuse(&refused, error, &next_run, runs.len());
                 break;
             }
             let (lines, hidden, skipped) = flatten_edges(
-                edges,
-                first_index(index),
+                run_edges(run),
+                run.0,
                 view,
                 &mut flattener,
                 slot_of_item,
@@ -304,8 +312,9 @@ pub struct WireLayer {
 /// One run's polylines, by layer slot.
 type RunLines = Vec<(u32, PolylineSet)>;
 
+/// Flattens a run of `count` edges, the first numbered `first_index`.
 fn flatten_edges(
-    edges: &[Edge],
+    (edges, count): (impl Iterator<Item = Edge>, usize),
     first_index: usize,
     view: &ViewFrame,
     flattener: &mut Flattener,
@@ -320,10 +329,10 @@ fn flatten_edges(
     // Only the layers this run uses (a model may have a layer for each of its parts).
     let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();
-    for (offset, edge) in edges.iter().enumerate() {
+    for (offset, edge) in edges.enumerate() {
         let mut slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0);
         if bands > 1 {
-            slot += Distance::of(edge, &eye).offset();
+            slot += Distance::of(&edge, &eye).offset();
         }
         match view.sphere_curve(&edge.curve) {
             Ok(curve) => {
@@ -331,7 +340,7 @@ fn flatten_edges(
                     Some(position) => position,
                     None => {
                         // Most edges draw as one polyline of two or three vertices.
-                        let room = edges.len() - offset;
+                        let room = count - offset;
                         lines.push((slot, PolylineSet::with_capacity(room, 3 * room)));
                         lines.len() - 1
                     }

@@ -1,12 +1,12 @@
 //! The curves an item is drawn with, in site coordinates.
 //!
-//! The ellipse's numbers live behind a box: arcs are few, while a big mesh model has a
-//! million straight edges, each kept small by not reserving an arc's room.
+//! A curve here is a value to work with; the site keeps its edges smaller (see
+//! [`super::Edges`]).
 
 use nalgebra::{Point3, Vector3};
 
 /// A drawable edge in site coordinates.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 pub enum SiteCurve {
     /// A straight edge.
     Segment {
@@ -16,7 +16,7 @@ pub enum SiteCurve {
         end: Point3<f64>,
     },
     /// An elliptic arc: circles and ellipses of arches, columns and domes.
-    Ellipse(Box<EllipseArc>),
+    Ellipse(EllipseArc),
 }
 
 /// `centre + u cos t + v sin t` for `t` from `start` through `sweep` (radians): the numbers
@@ -49,7 +49,7 @@ impl EllipseArc {
 
 impl From<EllipseArc> for SiteCurve {
     fn from(arc: EllipseArc) -> Self {
-        SiteCurve::Ellipse(Box::new(arc))
+        SiteCurve::Ellipse(arc)
     }
 }
 
@@ -68,7 +68,7 @@ impl SiteCurve {
                     v,
                     start,
                     sweep,
-                } = &**arc;
+                } = arc;
                 let numbers = centre.iter().chain(u.iter()).chain(v.iter());
                 numbers.chain([start, sweep]).all(|x| x.is_finite())
             }

@@ -293,8 +293,10 @@ impl Walker<'_> {
     /// far apart in scale that its arithmetic broke down), rather than letting them reach
     /// the drawing. `before` is the edges and triangles before the item.
     fn check_finite(&self, before: (usize, usize)) -> Result<(), ExpandError> {
-        let edges_finite = self.site.edges[before.0..]
-            .iter()
+        let edges_finite = self
+            .site
+            .edges
+            .iter_range(before.0..self.site.edges.len())
             .all(|edge| edge.curve.is_finite());
         let faces_finite = self.site.faces.are_finite_from(before.1);
         if edges_finite && faces_finite {

@@ -420,8 +420,8 @@ pub fn draw_ground(site: &mut Site, spec: &GroundSpec, edges: GroundEdges) {
         }
         let off = match edge.curve {
             SiteCurve::Segment { start, end } => outside(&start) || outside(&end),
-            SiteCurve::Ellipse(ref arc) => {
-                let EllipseArc { centre, u, v, .. } = **arc;
+            SiteCurve::Ellipse(arc) => {
+                let EllipseArc { centre, u, v, .. } = arc;
                 outside(&(centre + u))
                     || outside(&(centre - u))
                     || outside(&(centre + v))

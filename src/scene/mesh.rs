@@ -53,7 +53,7 @@
 //!   model each closed piece is (`scene/pieces.rs`). A standpoint inside one is warned of.
 
 use super::obj::{ObjElement, ObjFile, Smoothing, NO_NORMAL};
-use super::site::{Edge, ItemId, ItemInfo, MeshModel, SilhouetteEdge, Site, SiteCurve};
+use super::site::{ItemId, ItemInfo, MeshModel, NumberedEdge, SilhouetteEdge, Site};
 use nalgebra::{Point3, Rotation3, Vector3};
 use rayon::prelude::*;
 use std::collections::HashMap;
@@ -362,37 +362,25 @@ fn add_mesh_on_cores(
             classes.classify(
                 a,
                 &at_a,
-                &mut |a, b, item| drawn.push((a, b, item)),
+                &mut |a, b, item| drawn.push(NumberedEdge { ends: [a, b], item }),
                 &mut smooth,
                 &mut counts,
             );
         }
         (drawn, smooth, counts)
     };
-    let (mut first, later) = std::thread::scope(|scope| {
+    let (mut first, mut later) = std::thread::scope(|scope| {
         let later = (cut < vertices).then(|| scope.spawn(|| range_edges(cut..vertices)));
         (range_edges(0..cut), later.map(joined))
     });
     drop((first_run, second_run));
-    let (later_drawn, later_smooth) = later
-        .as_ref()
-        .map_or((&[][..], &[][..]), |l| (&l.0[..], &l.1[..]));
-    let line_segments: usize = obj.lines.iter().map(|l| l.count as usize).sum();
+    // The drawn edges over the welded vertices: the first range's moved in where they can
+    // be, the second's after them.
+    let later_drawn = later.as_mut().map(|l| std::mem::take(&mut l.0));
+    let drawn = [Some(std::mem::take(&mut first.0)), later_drawn];
     site.edges
-        .reserve(first.0.len() + later_drawn.len() + line_segments);
-    site.edges.par_extend(
-        first
-            .0
-            .par_iter()
-            .chain(later_drawn)
-            .map(|&(a, b, item)| Edge {
-                curve: SiteCurve::Segment {
-                    start: points[a as usize],
-                    end: points[b as usize],
-                },
-                item,
-            }),
-    );
+        .extend_numbered(&points, drawn.into_iter().flatten());
+    let later_smooth = later.as_ref().map_or(&[][..], |l| &l.1[..]);
     // The first range's smooth edges become the site's list when it has none yet (a
     // single model), rather than being copied into it.
     if site.silhouette_candidates.is_empty() {

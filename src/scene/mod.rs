@@ -7,6 +7,7 @@
 
 mod build;
 mod curve;
+mod edges;
 mod expand;
 mod faces;
 mod file;
@@ -53,9 +54,9 @@ pub use opendata::{
 };
 pub use outline::{tangent_points, RoundOutline};
 pub use site::{
-    Axis, Edge, EllipseArc, Face, FaceIter, Faces, HiddenEdges, ItemId, ItemInfo, Marker,
-    MeshModel, NamedPoint, Outline, SilhouetteEdge, Site, SiteCurve, Standpoint,
-    DEFAULT_EYE_HEIGHT,
+    Axis, Edge, EdgeIter, Edges, EllipseArc, Face, FaceIter, Faces, HiddenEdges, ItemId, ItemInfo,
+    Marker, MeshModel, NamedPoint, NumberedEdge, Outline, SilhouetteEdge, Site, SiteCurve,
+    Standpoint, DEFAULT_EYE_HEIGHT,
 };
 pub use style::{Colour, LayerStyle, Opacity, StyleSheet};
 pub use survey::{bounds, solids_enclosing, survey, StandpointCheck, Survey};

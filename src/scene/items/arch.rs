@@ -831,7 +831,6 @@ mod tests {
                     .edges
                     .iter()
                     .filter(|e| matches!(e.curve, SiteCurve::Ellipse(_)))
-                    .cloned()
                     .collect(),
                 ..Site::default()
             };
