@@ -68,14 +68,10 @@ pub fn wireframe(
                 .map(|first| (fixed + first, per_run.min(outlines.len() - first))),
         )
         .collect();
-    // A run lies wholly among the site's edges or wholly among these: one part is empty.
-    let run_edges = |(first, length): (usize, usize)| {
-        let (own, found) = match first.checked_sub(fixed) {
-            None => (first..first + length, 0..0),
-            Some(first) => (fixed..fixed, first..first + length),
-        };
-        let edges = site.edges.iter_range(own);
-        (edges.chain(outlines[found].iter().copied()), length)
+    // The site's edges, then these, by one count.
+    let edge_at = |index: usize| match index.checked_sub(fixed) {
+        None => site.edges.get(index),
+        Some(found) => outlines[found],
     };
     let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
     let threads = cores.min(runs.len()).max(1);
@@ -113,8 +109,8 @@ pub fn wireframe(
                 break;
             }
             let (lines, hidden, skipped) = flatten_edges(
-                run_edges(run),
-                run.0,
+                &edge_at,
+                run,
                 view,
                 &mut flattener,
                 slot_of_item,
@@ -312,10 +308,10 @@ pub struct WireLayer {
 /// One run's polylines, by layer slot.
 type RunLines = Vec<(u32, PolylineSet)>;
 
-/// Flattens a run of `count` edges, the first numbered `first_index`.
+/// Flattens the `count` edges from the one numbered `first_index`.
 fn flatten_edges(
-    (edges, count): (impl Iterator<Item = Edge>, usize),
-    first_index: usize,
+    edge_at: &impl Fn(usize) -> Edge,
+    (first_index, count): (usize, usize),
     view: &ViewFrame,
     flattener: &mut Flattener,
     slot_of_item: &[u32],
@@ -329,7 +325,8 @@ fn flatten_edges(
     // Only the layers this run uses (a model may have a layer for each of its parts).
     let mut lines: Vec<(u32, PolylineSet)> = Vec::new();
     let mut skipped = Vec::new();
-    for (offset, edge) in edges.enumerate() {
+    for offset in 0..count {
+        let edge = edge_at(first_index + offset);
         let mut slot = slot_of_item.get(edge.item.0 as usize).copied().unwrap_or(0);
         if bands > 1 {
             slot += Distance::of(&edge, &eye).offset();
