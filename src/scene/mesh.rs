@@ -45,7 +45,8 @@
 //!   silhouette candidate. Triangulation diagonals are not face edges of
 //!   the polygon, and between triangles they are coplanar: never drawn. Silhouettes are chosen
 //!   per standpoint (`SilhouetteEdge::is_outline_from`: one face's plane has the eye in front,
-//!   the other's behind). Faces are kept as triangles (`Site::faces`) for hidden lines.
+//!   the other's behind). Faces are kept as triangles (`Site::faces`) for hidden lines, and
+//!   both they and the drawn edges as numbers into the welded vertices (`Faces`, `Edges`).
 //! - **Layers**: each `g` group (or `o` object) and `usemtl` material becomes an item on a
 //!   layer of that name (the material's where a face has one), and each used layer becomes a
 //!   layer of the drawing (`wireframe: NAME`).
@@ -345,7 +346,7 @@ fn add_mesh_on_cores(
         crease: Bend::of_angle(placement.crease_deg.to_radians()),
     };
     // Each core lists its range's drawn edges by vertex number and keeps its smooth ones;
-    // then both write the drawn edges out in place, in order, as with the triangles. The
+    // the drawn lists then become the site's edges as they are (12 bytes an edge). The
     // lists have room for every face edge of the range (each distinct edge is at least
     // one, a smooth one two): what is never written costs address space, not memory.
     let range_edges = |range: Range<usize>| {
@@ -374,8 +375,8 @@ fn add_mesh_on_cores(
         (range_edges(0..cut), later.map(joined))
     });
     drop((first_run, second_run));
-    // The drawn edges over the welded vertices: the first range's moved in where they can
-    // be, the second's after them.
+    // The drawn edges over the welded vertices, which join the site's edges' points once:
+    // the first range's list moved in where it can be, the second's after it.
     let later_drawn = later.as_mut().map(|l| std::mem::take(&mut l.0));
     let drawn = [Some(std::mem::take(&mut first.0)), later_drawn];
     site.edges
