@@ -349,4 +349,31 @@ mod tests {
         assert_eq!(std::mem::size_of::<Stored>(), 20);
         assert_eq!(std::mem::size_of::<Face>(), 80);
     }
+
+    #[test]
+    fn clearing_drops_every_face_and_point_and_later_faces_number_from_zero() {
+        // Worked by hand: two triangles of three corners each, then nothing; a face pushed
+        // after is the only one, over its own three points.
+        let mut faces = Faces::from([triangle(0.0, 0), triangle(5.0, 1)]);
+        assert!(!faces.is_empty());
+        faces.clear();
+        assert!(faces.is_empty() && faces.points.is_empty());
+        faces.push(triangle(7.0, 3));
+        assert_eq!((faces.len(), faces.points.len()), (1, 3));
+        assert_eq!(faces.get(0), triangle(7.0, 3));
+    }
+
+    #[test]
+    fn the_iterator_tells_exactly_how_many_faces_are_left() {
+        // An ExactSizeIterator's size_hint must be exact, (n, Some(n)), and its len() reads
+        // it (the standard library's documentation of the trait): callers size their
+        // buffers by it. Worked by hand: three faces, then two, then none.
+        let faces = Faces::from([triangle(0.0, 0), triangle(5.0, 1), triangle(9.0, 2)]);
+        let mut iter = faces.iter();
+        assert_eq!(iter.size_hint(), (3, Some(3)));
+        iter.next();
+        assert_eq!(iter.len(), 2);
+        assert_eq!(iter.by_ref().count(), 2);
+        assert_eq!(iter.size_hint(), (0, Some(0)));
+    }
 }

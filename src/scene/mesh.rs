@@ -1973,4 +1973,92 @@ mod tests {
             ]
         );
     }
+
+    #[test]
+    fn a_neighbour_wound_the_wrong_way_is_turned_over_before_its_bend_is_measured() {
+        // Worked by hand: a flat unit square as two triangles, the second wound the wrong
+        // way round, so both run the diagonal from corner 3 to corner 1. Turned over, its
+        // normal is the first's (+z): a bend of 0, and the diagonal is no edge. Taken as
+        // given, the two normals are opposite, a bend of pi, and the diagonal a crease.
+        let text = "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nf 1 2 3\nf 1 4 3\n";
+        let (site, stats) = import(text, &z_up());
+        assert_eq!((stats.edges, stats.boundary, stats.creases), (5, 4, 0));
+        assert_eq!(site.edges.len(), 4);
+    }
+
+    #[test]
+    fn a_smoothing_group_numbered_out_of_range_stays_a_group() {
+        // Worked by hand from the packing's two reserved numbers (0 unsaid, u32::MAX off): a
+        // caller's group u32::MAX is kept as the highest group left, u32::MAX - 1, not read
+        // back as `s off` (which would make its faces hard); a group 0 as group 1.
+        let packed = |n| PackedSmoothing::of(Smoothing::Group(n)).get();
+        assert_eq!(packed(u32::MAX), Smoothing::Group(u32::MAX - 1));
+        assert_eq!(packed(0), Smoothing::Group(1));
+    }
+
+    #[test]
+    fn normals_are_compared_end_by_end_along_the_shared_edge() {
+        // Two quads folded 10 degrees along x = 1, the edge from vertex 2 (y = 0) to vertex
+        // 3 (y = 1), as in `normals_decide_where_both_faces_give_them`; smooth shading gives
+        // each end of the fold a normal of its own (common practice: a vertex normal
+        // averages the faces around that vertex), here 3 at vertex 2 and 4 at vertex 3.
+        let z = 10f64.to_radians().tan();
+        let fold = |second: &str| {
+            format!(
+                "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\nv 2 0 {z}\nv 2 1 {z}\n\
+                 vn 0 0 1\nvn -0.17 0 0.98\nvn -0.087 0 0.996\nvn -0.087 0.05 0.995\n\
+                 f 1//1 2//3 3//4 4//1\n{second}\n"
+            )
+        };
+        // Worked by hand: both faces give 3 at vertex 2 and 4 at vertex 3: smooth.
+        let (_, stats) = import(&fold("f 2//3 5//2 6//2 3//4"), &z_up());
+        assert_eq!((stats.creases, stats.smooth, stats.by_file), (0, 1, 1));
+        // The same at one end and split at the other, either end: hard.
+        for second in ["f 2//3 5//2 6//2 3//2", "f 2//2 5//2 6//2 3//4"] {
+            let (_, stats) = import(&fold(second), &z_up());
+            assert_eq!(
+                (stats.creases, stats.smooth, stats.by_file),
+                (1, 0, 1),
+                "{second}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_welded_hole_ring_keeps_each_corner_once_and_does_not_close_on_itself() {
+        // Worked by hand: corners 0 to 5 weld to 7 7 8 9 7 7 (a hole whose file repeats
+        // corners and closes back on its first): the repeats within go, and so do the 7s
+        // at the end that only return to the first corner, leaving the triangle 7 8 9.
+        assert_eq!(
+            welded_ring(&[0, 1, 2, 3, 4, 5], &[7, 7, 8, 9, 7, 7]),
+            [7, 8, 9]
+        );
+        // A ring already without repeats comes through as it is, in its order.
+        assert_eq!(welded_ring(&[2, 0, 1], &[5, 3, 4]), [4, 5, 3]);
+    }
+
+    #[test]
+    fn a_holes_edges_belong_to_its_face_with_their_direction() {
+        // Worked by hand: a run numbered from 10 with triangles (0 1 2) and (2 1 3), the
+        // second (face 11) holding the hole ring 5 4 6. Its sides 5-4, 4-6 and 6-5 are
+        // (high, 2f + [a < b]) at their lower vertex: 22, 23 and 22.
+        let mut run = WeldedFaces::with_room(&[], 7, false);
+        for ring in [[0, 1, 2], [2, 1, 3]] {
+            run.firsts.push(run.corners.len() as u32);
+            run.corners.vertices.extend(ring);
+            count_low_ends(&mut run.low_ends, &ring);
+            run.faces.push(MeshFace {
+                normal: Vector3::z(),
+                item: ItemId(0),
+                smoothing: PackedSmoothing::of(Smoothing::Unsaid),
+            });
+        }
+        let hole = vec![5, 4, 6];
+        count_low_ends(&mut run.low_ends, &hole);
+        run.holes.push((1, hole));
+        let grouped = EdgesByLow::of(&run, 10, 7);
+        assert_eq!(grouped.at(4), [(5, 22), (6, 23)]);
+        assert_eq!(grouped.at(5), [(6, 22)]);
+        assert_eq!(grouped.at(6), []);
+    }
 }
