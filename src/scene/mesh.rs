@@ -1643,22 +1643,29 @@ mod tests {
         }
     }
 
-    #[test]
-    fn face_edges_are_grouped_by_their_lower_vertex_with_their_direction() {
-        // Worked by hand: triangles (0 1 2) and (2 1 3), numbered from 10, share the edge
-        // 1-2, which they run in opposite directions (consistent winding). Each side of a
-        // face f from a to b is (high, 2f + [a < b]) at its lower vertex.
-        let mut run = WeldedFaces::with_room(&[], 4, false);
-        for ring in [[0, 1, 2], [2, 1, 3]] {
+    /// A run of level triangles over `vertices` welded vertices, with its low-end counts,
+    /// as welding leaves it.
+    fn level_triangles(vertices: usize, rings: &[[u32; 3]]) -> WeldedFaces {
+        let mut run = WeldedFaces::with_room(&[], vertices, false);
+        for ring in rings {
             run.firsts.push(run.corners.len() as u32);
             run.corners.vertices.extend(ring);
-            count_low_ends(&mut run.low_ends, &ring);
+            count_low_ends(&mut run.low_ends, ring);
             run.faces.push(MeshFace {
                 normal: Vector3::z(),
                 item: ItemId(0),
                 smoothing: PackedSmoothing::of(Smoothing::Unsaid),
             });
         }
+        run
+    }
+
+    #[test]
+    fn face_edges_are_grouped_by_their_lower_vertex_with_their_direction() {
+        // Worked by hand: triangles (0 1 2) and (2 1 3), numbered from 10, share the edge
+        // 1-2, which they run in opposite directions (consistent winding). Each side of a
+        // face f from a to b is (high, 2f + [a < b]) at its lower vertex.
+        let run = level_triangles(4, &[[0, 1, 2], [2, 1, 3]]);
         let grouped = EdgesByLow::of(&run, 10, 4);
         assert_eq!(grouped.at(0), [(1, 21), (2, 20)]);
         assert_eq!(grouped.at(1), [(2, 21), (2, 22), (3, 23)]);
@@ -2042,17 +2049,7 @@ mod tests {
         // Worked by hand: a run numbered from 10 with triangles (0 1 2) and (2 1 3), the
         // second (face 11) holding the hole ring 5 4 6. Its sides 5-4, 4-6 and 6-5 are
         // (high, 2f + [a < b]) at their lower vertex: 22, 23 and 22.
-        let mut run = WeldedFaces::with_room(&[], 7, false);
-        for ring in [[0, 1, 2], [2, 1, 3]] {
-            run.firsts.push(run.corners.len() as u32);
-            run.corners.vertices.extend(ring);
-            count_low_ends(&mut run.low_ends, &ring);
-            run.faces.push(MeshFace {
-                normal: Vector3::z(),
-                item: ItemId(0),
-                smoothing: PackedSmoothing::of(Smoothing::Unsaid),
-            });
-        }
+        let mut run = level_triangles(7, &[[0, 1, 2], [2, 1, 3]]);
         let hole = vec![5, 4, 6];
         count_low_ends(&mut run.low_ends, &hole);
         run.holes.push((1, hole));
