@@ -95,12 +95,17 @@ impl Edges {
 
     /// Adds straight edges whose ends are numbers into `points`, which join the list once:
     /// a mesh's drawn edges over its welded vertices, in runs (one from each core). A run
-    /// that can be kept as it is, is moved in rather than copied.
+    /// that can be kept as it is, is moved in rather than copied. Without any edge, the
+    /// points are not kept (a smooth model draws only outlines, found from each eye).
     pub fn extend_numbered(
         &mut self,
         points: &[Point3<f64>],
         runs: impl IntoIterator<Item = Vec<NumberedEdge>>,
     ) {
+        let runs: Vec<Vec<NumberedEdge>> = runs.into_iter().filter(|r| !r.is_empty()).collect();
+        if runs.is_empty() {
+            return;
+        }
         let base = self.points.len() as u32;
         self.points.extend_from_slice(points);
         debug_assert!(self.points.len() < ARC as usize);
@@ -294,6 +299,9 @@ mod tests {
             segment([0.0, 0.0, 0.0], [1.0, 1.0, 0.0], 5),
         ];
         assert_eq!(edges.iter().collect::<Vec<_>>(), expected);
+        // No edges bring no points.
+        edges.extend_numbered(&points, [vec![], vec![]]);
+        assert_eq!((edges.len(), edges.points.len()), (4, 5));
         // Into an empty list the numbers are kept as they are.
         let mut alone = Edges::new();
         alone.extend_numbered(&points, [vec![numbered(2, 0, 1)], vec![numbered(1, 2, 1)]]);
