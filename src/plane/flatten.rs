@@ -45,6 +45,7 @@
 use super::{Equirect, ImagePoint, PolylineSet};
 use crate::sphere::SphereCurve;
 use nalgebra::{Vector2, Vector3};
+use std::cell::Cell;
 use std::f64::consts::{FRAC_PI_4, PI};
 
 /// The default tolerance, in output pixels.
@@ -82,6 +83,10 @@ const SHORT_ARC: f64 = 0.05;
 /// `cos(NEAR_POLE + SHORT_ARC)`: an end further than this from both poles.
 const COS_NEAR_POLE_AND_SHORT_ARC: f64 = 0.921_060_994_002_885_1;
 
+/// How far from the seam's plane, as a fraction of its length, a direction must lie to be
+/// clearly on one side of it (see [`is_short_and_clear`]).
+const CLEAR_OF_SEAM: f64 = 1e-9;
+
 /// Great-arc spans up to this long (radians) may be accepted on their ends' curvature alone
 /// (see [`Flattener::ends_bound`]): over so short an arc, away from the poles, the image's
 /// curvature changes little, and the spread between the ends widens the bound.
@@ -118,7 +123,7 @@ pub struct Flattener {
     /// `tan^2` of the pole band's angle, for [`Flattener::is_in_pole_band`].
     pole_band_tan_squared: f64,
     /// The last position whose angles were computed, and its angles (see `angles`).
-    last_angles: std::cell::Cell<Option<([u64; 3], f64, f64)>>,
+    last_angles: Cell<Option<([u64; 3], f64, f64)>>,
 }
 
 /// Flattens one curve; a convenience over [`Flattener`].
@@ -177,7 +182,7 @@ impl Flattener {
             tolerance: tolerance_px,
             cuts: Vec::with_capacity(16),
             pole_band_tan_squared: (0.5 * tolerance_px / map.y_scale()).tan().powi(2),
-            last_angles: std::cell::Cell::new(None),
+            last_angles: Cell::new(None),
         }
     }
 
@@ -189,7 +194,6 @@ impl Flattener {
     /// Appends the image of `curve` to `out`: one polyline for each stretch between the
     /// seam and pole crossings.
     pub fn flatten(&mut self, curve: &SphereCurve, out: &mut PolylineSet) {
-        let mut cuts = std::mem::take(&mut self.cuts);
         // The two ends are sampled once, for the cuts and for the pieces that end there.
         let mut whole = Piece {
             curve,
@@ -200,6 +204,13 @@ impl Flattener {
             self.sample(&mut whole, curve.t0),
             self.sample(&mut whole, curve.t1),
         );
+        if is_short_and_clear(curve, &ends.0.position, &ends.1.position) {
+            // No cut can fall inside (see `find_cuts`): one piece, refined from its ends.
+            out.move_to(ends.0.at);
+            self.refine(&mut whole, &ends.0, &ends.1, 0, out);
+            return;
+        }
+        let mut cuts = std::mem::take(&mut self.cuts);
         let touches_pole_band =
             self.find_cuts(curve, &mut cuts, (&ends.0.position, &ends.1.position));
         let mut run = Run {
@@ -364,9 +375,7 @@ impl Flattener {
         // that near either pole: |n . z| >= sin(NEAR_POLE) |n| for its normal n.
         // Or a short great arc whose ends are both far from the poles: no point of it is more
         // than its length from its start. (Squared: |z| <= c |p| as z^2 <= c^2 |p|^2.)
-        let level =
-            |p: &Vector3<f64>| p.z * p.z <= COS_NEAR_POLE_AND_SHORT_ARC.powi(2) * p.norm_squared();
-        let short_and_level = t1 - t0 <= SHORT_ARC && level(start) && level(end);
+        let short_and_level = t1 - t0 <= SHORT_ARC && is_level(start) && is_level(end);
         let far_from_poles = curve.is_great_circle() && {
             short_and_level || {
                 let normal = curve.u.cross(&curve.v);
@@ -455,14 +464,21 @@ impl Flattener {
     fn sample(&self, piece: &mut Piece, t: f64) -> Sample {
         piece.samples_left = piece.samples_left.saturating_sub(1);
         let curve = piece.curve;
-        // Every great arc starts at t = 0: spare the library call there.
-        let (sin, cos) = if t == 0.0 { (0.0, 1.0) } else { t.sin_cos() };
-        let p = match curve.exact_end {
-            Some(end) if t == curve.t1 => end,
-            _ => curve.centre + curve.u * cos + curve.v * sin,
+        let (p, d1, d2) = match curve.exact_end {
+            // A great arc's end, given exactly. On a great circle (`u`, `v` unit and square,
+            // no centre) `P' = (u x v) x P` and `P'' = -P`: no sine or cosine is needed.
+            Some(end) if t == curve.t1 => (end, curve.u.cross(&curve.v).cross(&end), -end),
+            _ => {
+                // Every great arc starts at t = 0: spare the library call there.
+                let (sin, cos) = if t == 0.0 { (0.0, 1.0) } else { t.sin_cos() };
+                let radius = curve.u * cos + curve.v * sin;
+                (
+                    curve.centre + radius,
+                    curve.v * cos - curve.u * sin,
+                    -radius,
+                )
+            }
         };
-        let d1 = curve.v * cos - curve.u * sin;
-        let d2 = -(curve.u * cos + curve.v * sin);
         let rho2 = p.x * p.x + p.y * p.y;
         let rho = rho2.sqrt();
         let (raw_azimuth, elevation) = self.angles(&p, rho);
@@ -470,7 +486,8 @@ impl Flattener {
         let at = self.map.to_image(azimuth, elevation);
         let derivatives = (rho2 > 1e-300 * p.norm_squared())
             .then(|| self.image_derivatives(&p, &d1, &d2, rho))
-            .filter(|(v, a)| v.iter().chain(a.iter()).all(|c| c.is_finite()));
+            // A sum is finite only if every term is (one that overflows counts as not).
+            .filter(|(v, a)| (v.x + v.y + a.x + a.y).is_finite());
         Sample {
             t,
             position: p,
@@ -482,6 +499,8 @@ impl Flattener {
     /// The azimuth (`atan2`'s own range) and elevation of a position. Consecutive edges of a
     /// polyline or a block share their ends exactly, so the angles of the last end met are
     /// kept and reused when the next edge starts there: a third fewer `atan2` on a wireframe.
+    /// (Keeping the last four, so that a window's last edge finds its first corner, saved
+    /// about as many instructions in `atan2` as the longer search cost.)
     fn angles(&self, p: &Vector3<f64>, rho: f64) -> (f64, f64) {
         let key = [p.x.to_bits(), p.y.to_bits(), p.z.to_bits()];
         if let Some((last, azimuth, elevation)) = self.last_angles.get() {
@@ -660,6 +679,35 @@ impl Flattener {
         let bound = largest * (1.0 + spread) * span * span / 8.0;
         distance_to_chord(a.at, b.at, middle.at).max(bound)
     }
+}
+
+/// Whether a direction lies further than `NEAR_POLE + SHORT_ARC` from both poles:
+/// `|z| <= c |p|`, squared as `z^2 <= c^2 |p|^2`.
+fn is_level(p: &Vector3<f64>) -> bool {
+    p.z * p.z <= COS_NEAR_POLE_AND_SHORT_ARC.powi(2) * p.norm_squared()
+}
+
+/// Whether a curve is a short great arc that can meet neither the seam nor a pole band, so
+/// that [`Flattener::find_cuts`] would find no cut inside it and nothing in it lies on the
+/// seam: at most `SHORT_ARC` long, its ends level (so it comes no nearer a pole than
+/// `NEAR_POLE`), and its ends both ahead of the viewer or both clearly to one side. A short
+/// arc lies in the cone of its ends, so it stays there too. Most edges of a site are such
+/// arcs.
+///
+/// "Clearly" to one side: `|x| > CLEAR_OF_SEAM |p|` at both ends of a true great arc (one
+/// with an exact end, so `u` and `v` are unit vectors). Then the arc does not lie in the
+/// seam's plane by [`SphereCurve::lies_in_plane`] (a start `u cos t0 + v sin t0` with
+/// `|x| > 1e-9` needs `u.x` or `v.x` past `1e-9 / sqrt 2`, far over its `2e-12`), and
+/// neither end's azimuth is on the seam: both are `1e-9` rad or more from it.
+fn is_short_and_clear(curve: &SphereCurve, start: &Vector3<f64>, end: &Vector3<f64>) -> bool {
+    let ahead = start.y > 0.0 && end.y > 0.0;
+    let clear = |p: &Vector3<f64>| p.x * p.x > CLEAR_OF_SEAM * CLEAR_OF_SEAM * p.norm_squared();
+    let one_side = curve.exact_end.is_some() && start.x * end.x > 0.0 && clear(start) && clear(end);
+    curve.is_great_circle()
+        && curve.t1 - curve.t0 <= SHORT_ARC
+        && (ahead || one_side)
+        && is_level(start)
+        && is_level(end)
 }
 
 /// `ceil(x)` as a count of at least one, without the library call `ceil` makes on the
@@ -1655,6 +1703,73 @@ mod tests {
         assert_eq!(drawn.len(), 2, "{drawn:?}");
         assert_eq!(drawn[0].last().unwrap().x, 4096.0);
         assert_eq!(drawn[1][0].x, 0.0);
+    }
+
+    #[test]
+    fn a_short_arc_clear_of_the_seam_and_the_poles_has_no_cut_inside() {
+        // `flatten` skips the search for cuts on arcs `is_short_and_clear` passes. Over arcs
+        // of every direction, heading and length up to the limit, and starts a hair to
+        // either side of the seam's plane, wherever the shortcut is taken the search must
+        // find only the ends, no pole band, and neither end on the seam. (Worked through
+        // the search's own rules: this test ties the shortcut to them.)
+        let flattener = Flattener::new(map(), DEFAULT_TOLERANCE_PX);
+        let mut cuts = Vec::new();
+        let (mut taken, mut refused_near_seam) = (0, 0);
+        for i in 0..20_000u32 {
+            // A low-discrepancy walk over the start's azimuth and elevation, the arc's
+            // heading and its length (golden-ratio steps).
+            let step = |k: f64| (f64::from(i) * k).fract();
+            let azimuth = match i % 4 {
+                0 => PI - 1e-10 * step(0.618),
+                1 => -PI + 1e-7 * step(0.618),
+                _ => (2.0 * step(0.618_033_988_7) - 1.0) * PI,
+            };
+            let elevation = (2.0 * step(0.754_877_666_2) - 1.0) * 1.5;
+            let heading = step(0.569_840_290_9) * TAU;
+            let length = 1e-6 + step(0.412_454_033_6) * if i % 3 == 0 { 1.0 } else { 0.06 };
+            let start = Vector3::new(
+                azimuth.sin() * elevation.cos(),
+                azimuth.cos() * elevation.cos(),
+                elevation.sin(),
+            );
+            // A direction square to the start, turned by the heading, and the end that far on.
+            let east = Vector3::new(azimuth.cos(), -azimuth.sin(), 0.0);
+            let north = start.cross(&east);
+            let along = east * heading.cos() + north * heading.sin();
+            let end = start * length.cos() + along * length.sin();
+            let Some(curve) = SphereCurve::great_arc(&start, &end) else {
+                continue;
+            };
+            let mut whole = Piece {
+                curve: &curve,
+                seam_side: 0.0,
+                samples_left: MAX_SAMPLES_PER_CURVE,
+            };
+            let ends = (
+                flattener.sample(&mut whole, curve.t0),
+                flattener.sample(&mut whole, curve.t1),
+            );
+            if !is_short_and_clear(&curve, &ends.0.position, &ends.1.position) {
+                refused_near_seam += usize::from(i % 4 < 2 && start.y < 0.0);
+                continue;
+            }
+            taken += 1;
+            let touches =
+                flattener.find_cuts(&curve, &mut cuts, (&ends.0.position, &ends.1.position));
+            let plain_ends = [(curve.t0, Cut::Plain), (curve.t1, Cut::Plain)];
+            assert_eq!(cuts, plain_ends, "{start:?} -> {end:?}");
+            assert!(!touches, "{start:?} -> {end:?}");
+            for end in [&ends.0, &ends.1] {
+                assert!(end.at.x > 0.0 && end.at.x < map().width(), "{:?}", end.at);
+            }
+            let behind = ends.0.position.y < 0.0 || ends.1.position.y < 0.0;
+            assert!(!(behind && curve.lies_in_plane(&Vector3::x())), "{start:?}");
+        }
+        assert!(taken > 5_000, "the shortcut was taken {taken} times");
+        assert!(
+            refused_near_seam > 1_000,
+            "{refused_near_seam} refused near the seam"
+        );
     }
 
     #[test]
