@@ -13,7 +13,9 @@
 //!    those ends are put on the border row at their true azimuth (a move of at most half the
 //!    tolerance). A curve through a pole thus runs up to the border and continues from the
 //!    column 180 degrees away; a near pass does the same at its own true columns, instead of
-//!    drawing a sweep along the border.
+//!    drawing a sweep along the border. Most edges of a site are short great arcs far from
+//!    the poles and ahead of the viewer or clearly to one side of the seam, where there is
+//!    nothing to cut: they skip the search (see `is_short_and_clear`).
 //! 2. *Refine* each piece recursively. For a chord from parameter `a` to `b` the error is
 //!    estimated as the larger of (i) the distance of the curve's midpoint from the chord and
 //!    (ii) the bound `max |n . P''| (b - a)^2 / 8`, where `P''` is the exact second derivative
