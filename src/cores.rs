@@ -53,6 +53,18 @@ pub fn each_on_a_thread<I: Send, T: Send>(
     here: bool,
     work: impl Fn(I) -> T + Sync,
 ) -> Vec<T> {
+    each_on_a_thread_and(inputs, here, work, || ()).0
+}
+
+/// [`each_on_a_thread`], with `meanwhile()` done on the calling thread once the threads are
+/// spawned, before it takes its own input (with `here`) or waits for theirs: work that would
+/// otherwise keep the cores waiting before they start.
+pub fn each_on_a_thread_and<I: Send, T: Send, U>(
+    inputs: Vec<I>,
+    here: bool,
+    work: impl Fn(I) -> T + Sync,
+    meanwhile: impl FnOnce() -> U,
+) -> (Vec<T>, U) {
     let work = &work;
     let mut inputs = inputs.into_iter();
     let first = if here { inputs.next() } else { None };
@@ -60,6 +72,7 @@ pub fn each_on_a_thread<I: Send, T: Send>(
         let handles: Vec<_> = inputs
             .map(|input| scope.spawn(move || work(input)))
             .collect();
+        let meanwhile = meanwhile();
         let mut results: Vec<T> = first.into_iter().map(work).collect();
         for handle in handles {
             results.push(
@@ -68,7 +81,7 @@ pub fn each_on_a_thread<I: Send, T: Send>(
                     .unwrap_or_else(|panic| std::panic::resume_unwind(panic)),
             );
         }
-        results
+        (results, meanwhile)
     })
 }
 
@@ -102,5 +115,38 @@ mod tests {
             assert_eq!(done, expected);
         }
         assert!(each_on_a_thread(Vec::<usize>::new(), true, |k| k).is_empty());
+    }
+
+    #[test]
+    fn the_work_meanwhile_runs_here_while_the_threads_run_and_before_the_first_share() {
+        let caller = std::thread::current().id();
+        let (sent, received) = std::sync::mpsc::channel();
+        let sent = std::sync::Mutex::new(sent);
+        let order = std::sync::Mutex::new(Vec::new());
+        let (done, meanwhile) = each_on_a_thread_and(
+            vec![0, 1],
+            true,
+            |k| {
+                if k == 1 {
+                    // The spawned thread reports in: the caller's work meanwhile waits for it.
+                    sent.lock().unwrap().send(()).unwrap();
+                } else {
+                    order.lock().unwrap().push("first share");
+                }
+                k * 10
+            },
+            || {
+                let heard = received.recv_timeout(std::time::Duration::from_secs(20));
+                order.lock().unwrap().push("meanwhile");
+                (heard.is_ok(), std::thread::current().id() == caller)
+            },
+        );
+        assert_eq!(done, vec![0, 10]);
+        assert_eq!(
+            meanwhile,
+            (true, true),
+            "heard from the thread, on the caller"
+        );
+        assert_eq!(*order.lock().unwrap(), vec!["meanwhile", "first share"]);
     }
 }

@@ -5,7 +5,7 @@ use crate::aids::{self, AidSettings};
 use crate::aids::{sun_layers, SunDrawing};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
-    apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
+    apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe_and, wireframe_layer_name,
     Distance, Drawing, Layer, SkippedEdge, Stroke, Wireframe,
 };
 use crate::error::{Error, Result};
@@ -256,10 +256,14 @@ pub fn draw_with_hidden_lines(
     let view = ViewFrame::new(standpoint);
     let map = Equirect::from_size_px(settings.width as f64, settings.height as f64);
     let mut flattener = Flattener::new(map, settings.tolerance_px);
+    // The overlays under the drawing are found while the other cores flatten the edges
+    // (below); they go under the sun's layers.
+    let mut under_flattener = flattener.clone();
+    let under = || match settings.overlays {
+        true => aids::under(site, &view, &mut under_flattener, &settings.aids),
+        false => Vec::new(),
+    };
     let mut layers = Vec::new();
-    if settings.overlays {
-        layers.extend(aids::under(site, &view, &mut flattener, &settings.aids));
-    }
     let mut notes = Vec::new();
     let mut sun_labels = Vec::new();
     let shadowed;
@@ -300,18 +304,23 @@ pub fn draw_with_hidden_lines(
     };
     // Shadows and hatching add edges, never faces: the caller's hidden-line set-up
     // (the faces' hierarchy) holds for the shadowed site too.
-    let Wireframe {
-        layers: site_layers,
-        hidden,
-        skipped,
-    } = wireframe(
+    let (
+        Wireframe {
+            layers: site_layers,
+            hidden,
+            skipped,
+        },
+        under,
+    ) = wireframe_and(
         site,
         &view,
         &flattener,
         hidden_lines,
         settings.weight_by_distance,
         budget,
+        under,
     )?;
+    layers.splice(0..0, under);
     let width = settings.line_weight_px;
     if hidden_lines.mode == HiddenEdges::Faint && !hidden.is_empty() {
         // Under the seen edges; dashed by the styles.

@@ -42,6 +42,30 @@ pub fn wireframe(
     by_distance: bool,
     budget: &Budget,
 ) -> Result<Wireframe> {
+    wireframe_and(
+        site,
+        view,
+        flattener,
+        hidden_lines,
+        by_distance,
+        budget,
+        || (),
+    )
+    .map(|(wireframe, ())| wireframe)
+}
+
+/// [`wireframe`], with `meanwhile()` done on the calling thread once the other cores have
+/// started on the edges (the overlays under the drawing, which would otherwise keep them
+/// waiting), and its result.
+pub fn wireframe_and<U>(
+    site: &Site,
+    view: &ViewFrame,
+    flattener: &Flattener,
+    hidden_lines: &HiddenLines,
+    by_distance: bool,
+    budget: &Budget,
+    meanwhile: impl FnOnce() -> U,
+) -> Result<(Wireframe, U)> {
     // The edges that depend on the eye (mesh silhouettes, the outlines of round items,
     // point markers) join the fixed edges; they are numbered after them in the list of
     // skipped edges.
@@ -135,11 +159,10 @@ pub fn wireframe(
     // 5 %, measured, against 6 to 10 % with each client's thread keeping the lists of its
     // share in a memory arena of its own).
     let here = threads > 1 && site.edges.len() + outlines.len() >= EDGES_FOR_CALLER;
+    let (parts, meanwhile) =
+        crate::cores::each_on_a_thread_and(vec![flattener.clone(); threads], here, work, meanwhile);
     let mut parts: Vec<(usize, RunLines, PolylineSet, Vec<SkippedEdge>)> =
-        crate::cores::each_on_a_thread(vec![flattener.clone(); threads], here, work)
-            .into_iter()
-            .flatten()
-            .collect();
+        parts.into_iter().flatten().collect();
     if let Some(error) = refused
         .into_inner()
         .unwrap_or_else(|poisoned| poisoned.into_inner())
@@ -176,11 +199,12 @@ pub fn wireframe(
         hidden.append(&mut part_hidden);
         skipped.extend(part_skipped);
     }
-    Ok(Wireframe {
+    let wireframe = Wireframe {
         layers,
         hidden,
         skipped,
-    })
+    };
+    Ok((wireframe, meanwhile))
 }
 
 /// Keeps the first refusal and sends the other threads past the last run.
