@@ -615,6 +615,18 @@ mod tests {
                 "byte {changed} changed"
             );
         }
+        // Two words of one step changed alike (the same bit of the same byte): their
+        // differences are equal, and must not cancel.
+        for (first, second) in [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)] {
+            let mut now = before.clone();
+            now[8 * first + 5] ^= 0x04;
+            now[8 * second + 5] ^= 0x04;
+            assert_eq!(
+                equal_words(&now, &before),
+                8 * first,
+                "words {first} and {second} changed alike"
+            );
+        }
     }
 
     #[test]
