@@ -816,6 +816,37 @@ mod tests {
     }
 
     #[test]
+    fn an_area_is_inked_at_its_colours_full_strength_whatever_its_line_width() {
+        // A filled square given no line width (as the shade tone is): inside it, the
+        // colour's darkness (BT.709 luminance, `Stroke::darkness`) at full coverage, not
+        // scaled down as a line thinner than a pixel would be.
+        let square = [(10.0, 10.0), (30.0, 10.0), (30.0, 30.0), (10.0, 30.0)];
+        let mut lines = PolylineSet::new();
+        lines.push(&square.map(|(x, y)| ImagePoint::new(x, y)));
+        let stroke = Stroke {
+            colour: [112, 122, 150],
+            opacity: 0.3,
+            width_px: 0.0,
+        };
+        let drawing = Drawing {
+            width: 40,
+            height: 40,
+            layers: vec![Layer {
+                filled: true,
+                text: None,
+                name: "area".to_owned(),
+                stroke,
+                lines,
+            }],
+        };
+        let canvas = rasterize(&drawing);
+        let inside = (255.0 - 255.0 * stroke.darkness()).round() as u8;
+        assert!(inside < 240, "a visible tone: {inside}");
+        assert_eq!(canvas.pixel(20, 20), inside);
+        assert_eq!(canvas.pixel(5, 5), 255, "outside, white paper");
+    }
+
+    #[test]
     fn the_bands_lists_made_in_shares_keep_the_drawing_order() {
         // Three stroked layers (the middle one a white halo, whose order matters) around a
         // filled one, enough polylines for the lists to be made in shares: each band's
