@@ -816,6 +816,20 @@ mod tests {
     }
 
     #[test]
+    fn a_steep_line_whose_four_pixels_would_end_past_the_row_is_drawn_the_general_way() {
+        // An upright line at x = 97.5 on rows 100 px wide, through the whole height: its
+        // four pixels would start at column 97 and end one past the row (in the last row,
+        // past the canvas). Column 97 is inked in full, its neighbours 1 px away not at all
+        // (a pen reaching 1 px).
+        let canvas = canvas_with(&[&[(97.5, -10.0), (97.5, 50.0)]], 1.0, (100, 40));
+        for row in [0, 20, 39] {
+            assert_eq!(canvas.pixel(97, row), 0, "row {row}");
+            assert_eq!(canvas.pixel(96, row), 255, "row {row}");
+            assert_eq!(canvas.pixel(98, row), 255, "row {row}");
+        }
+    }
+
+    #[test]
     fn an_area_is_inked_at_its_colours_full_strength_whatever_its_line_width() {
         // A filled square given no line width (as the shade tone is): inside it, the
         // colour's darkness (BT.709 luminance, `Stroke::darkness`) at full coverage, not
