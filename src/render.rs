@@ -5,7 +5,7 @@ use crate::aids::{self, AidSettings};
 use crate::aids::{sun_layers, SunDrawing};
 use crate::budget::{Budget, DEFAULT_TIME_LIMIT};
 use crate::drawing::{
-    apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe_and, wireframe_layer_name,
+    apply_styles, hidden_dash_px, hidden_layer, page_style, wireframe, wireframe_layer_name,
     Distance, Drawing, Layer, SkippedEdge, Stroke, Wireframe,
 };
 use crate::error::{Error, Result};
@@ -311,7 +311,7 @@ pub fn draw_with_hidden_lines(
             skipped,
         },
         under,
-    ) = wireframe_and(
+    ) = wireframe(
         site,
         &view,
         &flattener,

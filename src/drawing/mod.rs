@@ -20,7 +20,7 @@ pub use north::{
 };
 pub use style::{apply_styles, page_style};
 pub use wireframe::{
-    wireframe, wireframe_and, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
+    wireframe, Distance, SkippedEdge, WireLayer, Wireframe, FAR_METRES, NEAR_METRES,
 };
 
 use crate::plane::{ImagePoint, PolylineSet};

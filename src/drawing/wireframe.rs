@@ -28,36 +28,16 @@ const EDGES_PER_RUN: usize = 2048;
 /// so a square of a few hundred edges is already worth both cores.
 const SEEN_EDGES_PER_RUN: usize = 64;
 
-/// Flattens every edge of the site; degenerate edges are listed, not drawn.
+/// Flattens every edge of the site; degenerate edges are listed, not drawn. `meanwhile()`
+/// is done on the calling thread once the other cores have started on the edges (the
+/// overlays under the drawing, which would otherwise keep them waiting; `|| ()` for
+/// nothing), and its result returned beside the wireframe.
 ///
 /// Large sites are cut into runs of consecutive edges that the cores take one at a time
 /// (near edges cost far more than distant ones, so fixed halves would leave a core idle);
 /// the runs' polylines are joined in edge order, so the result does not depend on the
 /// number of cores.
-pub fn wireframe(
-    site: &Site,
-    view: &ViewFrame,
-    flattener: &Flattener,
-    hidden_lines: &HiddenLines,
-    by_distance: bool,
-    budget: &Budget,
-) -> Result<Wireframe> {
-    wireframe_and(
-        site,
-        view,
-        flattener,
-        hidden_lines,
-        by_distance,
-        budget,
-        || (),
-    )
-    .map(|(wireframe, ())| wireframe)
-}
-
-/// [`wireframe`], with `meanwhile()` done on the calling thread once the other cores have
-/// started on the edges (the overlays under the drawing, which would otherwise keep them
-/// waiting), and its result.
-pub fn wireframe_and<U>(
+pub fn wireframe<U>(
     site: &Site,
     view: &ViewFrame,
     flattener: &Flattener,
@@ -433,7 +413,16 @@ mod tests {
         let view = ViewFrame::new(&site.standpoints[0]);
         let flattener = Flattener::new(Equirect::from_size_px(width, width / 2.0), 0.1);
         let hidden_lines = HiddenLines::new(site, Some(hidden));
-        wireframe(site, &view, &flattener, &hidden_lines, by_distance, budget)
+        wireframe(
+            site,
+            &view,
+            &flattener,
+            &hidden_lines,
+            by_distance,
+            budget,
+            || (),
+        )
+        .map(|(wireframe, ())| wireframe)
     }
 
     fn segment(start: Point3<f64>, end: Point3<f64>) -> Edge {
