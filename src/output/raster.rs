@@ -30,7 +30,7 @@
 //! offset times the slope's sine.
 //! Strokes reaching past the left or right border wrap to the other side. Hot loops use
 //! casts instead of `floor`/`ceil`/`round` (library calls on the baseline x86-64 target),
-//! through `u32` rather than `usize` (one instruction against a dozen), and plain
+//! through `u32` rather than `usize` (a few instructions against a dozen), and plain
 //! comparisons instead of `f64::max`/`min` (which check for NaN).
 //!
 //! `output::rasterize` (the whole canvas at once) is built on the same banded routine; the
